@@ -1,13 +1,32 @@
 import { defineConfig } from 'vitest/config';
 
-// Server, API and engine tests (the Angular specs under src/ run through `ng test`).
+// Engine tests need nothing but Node; server and API tests run against the real
+// PostgreSQL started by tests/global-setup.ts. The Angular specs under src/ run
+// through `ng test` instead.
 export default defineConfig({
   test: {
-    include: ['tests/**/*.test.ts'],
-    environment: 'node',
-    pool: 'forks',
-    testTimeout: 60_000,
-    hookTimeout: 120_000,
-    globalSetup: ['tests/global-setup.ts'],
+    projects: [
+      {
+        test: {
+          name: 'engine',
+          include: ['tests/engine/**/*.test.ts'],
+          environment: 'node',
+          pool: 'threads',
+          testTimeout: 120_000,
+        },
+      },
+      {
+        test: {
+          name: 'server',
+          include: ['tests/server/**/*.test.ts'],
+          environment: 'node',
+          pool: 'forks',
+          fileParallelism: false,
+          testTimeout: 60_000,
+          hookTimeout: 120_000,
+          globalSetup: ['tests/global-setup.ts'],
+        },
+      },
+    ],
   },
 });
