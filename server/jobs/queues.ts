@@ -1,0 +1,43 @@
+/**
+ * Every queue of Poleward, with its retry and expiry policy, in one place.
+ * Later job kinds (peak fits, parameter sweeps, geometry files) add an entry here
+ * and a handler file beside worker.ts.
+ *
+ * Crash recovery: the worker beats a heartbeat on the run row every few seconds;
+ * the supervisor (supervisor.ts) fails the pg-boss job of a run whose heartbeat is
+ * older than `staleAfterSeconds`, and pg-boss retries it (up to retryLimit). The
+ * pg-boss expiry is only the backstop for a supervisor that is not running.
+ */
+export interface QueueSpec {
+  name: string;
+  retryLimit: number;
+  retryDelaySeconds: number;
+  expireInSeconds: number;
+}
+
+export const RUN_QUEUES = {
+  'pole-search': {
+    name: 'pole-search',
+    retryLimit: 3,
+    retryDelaySeconds: 2,
+    expireInSeconds: 4 * 3600,
+  },
+  transmission: {
+    name: 'transmission',
+    retryLimit: 3,
+    retryDelaySeconds: 2,
+    expireInSeconds: 4 * 3600,
+  },
+} as const satisfies Record<string, QueueSpec>;
+
+export type RunKind = keyof typeof RUN_QUEUES;
+export const RUN_KINDS = Object.keys(RUN_QUEUES) as RunKind[];
+
+/** The payload of every run job: the run row holds everything else. */
+export interface RunJobData {
+  runId: string;
+}
+
+/** Seconds between heartbeats of a busy worker, and the age after which a run counts as lost. */
+export const HEARTBEAT_SECONDS = 3;
+export const DEFAULT_STALE_AFTER_SECONDS = 30;
