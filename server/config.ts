@@ -1,0 +1,87 @@
+import { randomBytes } from 'node:crypto';
+import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
+import { dirname, join } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { z } from 'zod';
+
+/** The project root (one folder above server/), used for .data/, migrations/ and dist/. */
+export const projectRoot = join(dirname(fileURLToPath(import.meta.url)), '..');
+
+const envSchema = z.object({
+  NODE_ENV: z.enum(['development', 'production', 'test']).default('development'),
+  POLEWARD_PORT: z.coerce.number().int().min(0).max(65535).default(8640),
+  POLEWARD_DB_PORT: z.coerce.number().int().min(1).max(65535).default(54329),
+  DATABASE_URL: z.url({ protocol: /^postgres(ql)?$/ }).optional(),
+  POLEWARD_JWT_SECRET: z.string().min(32, 'must be at least 32 characters').optional(),
+  POLEWARD_PUBLIC_URL: z.url({ protocol: /^https?$/ }).default('http://127.0.0.1:8640'),
+  POLEWARD_SMTP_URL: z.url({ protocol: /^smtps?$/ }).default('smtp://127.0.0.1:2526'),
+  POLEWARD_MAIL_FROM: z.string().min(3).default('Poleward <no-reply@poleward.invalid>'),
+  POLEWARD_WORKERS: z.coerce.number().int().min(0).max(64).default(2),
+});
+
+export interface Config {
+  nodeEnv: 'development' | 'production' | 'test';
+  port: number;
+  dbPort: number;
+  databaseUrl: string;
+  jwtSecret: string;
+  /** Base of links in e-mails, without a trailing slash. */
+  publicUrl: string;
+  smtpUrl: string;
+  mailFrom: string;
+  /** True when mail goes to the local SMTP stand-in, whose messages GET /api/outbox lists. */
+  mailStandIn: boolean;
+  workers: number;
+  /** Folder of the built Angular client (may not exist in development). */
+  clientDir: string;
+  version: string;
+}
+
+/** Thrown by loadConfig with one line per bad variable, so a wrong env fails at start, readably. */
+export class ConfigError extends Error {}
+
+/**
+ * Reads the environment once at start. In development the JWT secret is generated
+ * and kept in .data/jwt-secret so sessions survive restarts; production must set it.
+ */
+export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
+  const parsed = envSchema.safeParse(env);
+  if (!parsed.success) {
+    const lines = parsed.error.issues.map((i) => `  ${i.path.join('.')}: ${i.message}`);
+    throw new ConfigError(`Poleward configuration is not valid:\n${lines.join('\n')}`);
+  }
+  const e = parsed.data;
+  if (e.NODE_ENV === 'production' && !e.POLEWARD_JWT_SECRET) {
+    throw new ConfigError('Poleward configuration is not valid:\n  POLEWARD_JWT_SECRET: required when NODE_ENV=production');
+  }
+  const smtp = new URL(e.POLEWARD_SMTP_URL);
+  const local = smtp.protocol === 'smtp:' && ['127.0.0.1', 'localhost', '[::1]'].includes(smtp.hostname);
+  return {
+    nodeEnv: e.NODE_ENV,
+    port: e.POLEWARD_PORT,
+    dbPort: e.POLEWARD_DB_PORT,
+    databaseUrl: e.DATABASE_URL ?? `postgres://postgres@127.0.0.1:${e.POLEWARD_DB_PORT}/poleward`,
+    jwtSecret: e.POLEWARD_JWT_SECRET ?? developmentSecret(),
+    publicUrl: e.POLEWARD_PUBLIC_URL.replace(/\/+$/, ''),
+    smtpUrl: e.POLEWARD_SMTP_URL,
+    mailFrom: e.POLEWARD_MAIL_FROM,
+    mailStandIn: local,
+    workers: e.POLEWARD_WORKERS,
+    clientDir: join(projectRoot, 'dist', 'poleward', 'browser'),
+    version: packageVersion(),
+  };
+}
+
+function developmentSecret(): string {
+  const file = join(projectRoot, '.data', 'jwt-secret');
+  if (existsSync(file)) return readFileSync(file, 'utf8').trim();
+  mkdirSync(dirname(file), { recursive: true });
+  const secret = randomBytes(48).toString('base64url');
+  writeFileSync(file, secret + '\n', { mode: 0o600 });
+  return secret;
+}
+
+function packageVersion(): string {
+  const pkg = JSON.parse(readFileSync(join(projectRoot, 'package.json'), 'utf8')) as { version?: string };
+  return pkg.version ?? '0.0.0';
+}

@@ -1,0 +1,8 @@
+// The whole schema in one import, for the drizzle client and drizzle-kit. One file per area.
+export * from './users.js';
+export * from './groups.js';
+export * from './invitations.js';
+export * from './credentials.js';
+export * from './audit.js';
+export * from './outbox.js';
+export * from '../relations.js';
