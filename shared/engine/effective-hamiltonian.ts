@@ -1,0 +1,277 @@
+/**
+ * The open cavity as a nonlinear operator T(z) = z − H − Σ_ℓ Σ_ℓ(z)
+ * (docs/physics-model.md, "Observables"), built from a model document.
+ * The pattern is H's plus one dense W×W block per lead mouth, fixed for all z.
+ */
+import { hoppingEnergy, fluxPerPlaquette } from '../units/constants';
+import { validateCavityModel, modelMassRatio, formatIssuePath, type CavityModel, type LeadSide, type ModelIssue } from '../model/cavity-model';
+import { mouthSites } from '../model/geometry';
+import { evaluatePotential } from '../model/potential';
+import { buildLattice, hamiltonianEntries, addHamiltonian, indexSites, type CavityLattice } from './lattice';
+import {
+  channelFlags,
+  leadChannels,
+  leadThresholds,
+  mouthBlock,
+  mouthPhases,
+  selfEnergyCoefficients,
+  selfEnergyDerivativeCoefficients,
+  type LeadChannels,
+} from './leads';
+import { buildPattern, patternSlot } from './sparsity-pattern';
+import type { Complex, NonlinearOperator, SheetFlags } from './operator';
+
+/** Thrown when a model document fails validation; carries the field-tagged issues. */
+export class InvalidModelError extends Error {
+  constructor(readonly issues: ModelIssue[]) {
+    super(`invalid cavity model: ${issues.map((i) => `${formatIssuePath(i.path)}: ${i.message}`).join('; ')}`);
+    this.name = 'InvalidModelError';
+  }
+}
+
+/** One lead attached to the cavity. */
+export interface SystemLead {
+  name: string;
+  side: LeadSide;
+  channels: LeadChannels;
+  /** Unknown index of each mouth site, p = 1..W order. */
+  mouth: Int32Array;
+  /** Phase θ_p of each lead-cavity bond. */
+  theta: Float64Array;
+}
+
+/** Everything the operator needs, derived once from a model. */
+export interface CavitySystem {
+  model: CavityModel;
+  massRatio: number;
+  /** Lattice spacing a (nm). */
+  spacing: number;
+  mask: Uint8Array;
+  lattice: CavityLattice;
+  sites: { i: Int32Array; j: Int32Array };
+  /** t (meV). */
+  hopping: number;
+  /** φ per plaquette. */
+  flux: number;
+  leads: SystemLead[];
+}
+
+/**
+ * Validates a model document and builds its lattice and leads. Throws
+ * InvalidModelError with field paths when the document is invalid.
+ * Cost O(nx·ny + Σ W²).
+ */
+export function buildCavitySystem(doc: unknown): CavitySystem {
+  const checked = validateCavityModel(doc);
+  if (!checked.ok) throw new InvalidModelError(checked.issues);
+  const { model, mask } = checked;
+  const { nx, ny } = model.grid;
+  const massRatio = modelMassRatio(model);
+  const hopping = hoppingEnergy(model.spacing, massRatio);
+  const flux = fluxPerPlaquette(model.field, model.spacing);
+  const { siteIndex, sites } = indexSites(mask, nx, ny);
+  const potential = evaluatePotential(model.potential, sites, siteIndex, ny, model.spacing);
+  const lattice = buildLattice(mask, nx, ny, hopping, flux, potential);
+  const leads = model.leads.map((lead, k): SystemLead => {
+    const m = mouthSites(lead, nx, ny);
+    const mouth = new Int32Array(lead.width);
+    for (let p = 0; p < lead.width; p++) mouth[p] = lattice.siteIndex[m.i[p] * ny + m.j[p]];
+    return {
+      name: lead.name ?? `${lead.side}${k}`,
+      side: lead.side,
+      channels: leadChannels(lead.width, hopping, lead.offset),
+      mouth,
+      theta: mouthPhases(lead.side, m.i, m.j, flux),
+    };
+  });
+  return { model, massRatio, spacing: model.spacing, mask, lattice, sites: lattice.sites, hopping, flux, leads };
+}
+
+/** Open-channel coupling vectors W (columns sqrt(2t sin k_m)·e^{−iθ_p}χ_m(p) on each mouth). */
+export interface CouplingColumns {
+  /** Total number of open channels (columns). */
+  count: number;
+  /** Column-major n × count, interleaved complex. */
+  values: Float64Array;
+  /** Lead of each column. */
+  lead: Int32Array;
+  /** Channel m (1-based) of each column. */
+  channel: Int32Array;
+  /** Open channel count per lead. */
+  perLead: number[];
+}
+
+/** T(z) = z − H − Σ(z) for a cavity with leads; implements the engine's operator contract. */
+export class EffectiveHamiltonian implements NonlinearOperator {
+  readonly n: number;
+  readonly colPtr: Int32Array;
+  readonly rowIdx: Int32Array;
+  readonly sites: { i: Int32Array; j: Int32Array };
+  readonly thresholds: readonly number[];
+  readonly leadCount: number;
+  readonly hopping: number;
+  readonly system: CavitySystem;
+
+  private readonly minusH: Float64Array;
+  private readonly diagSlot: Int32Array;
+  private readonly blockSlots: Int32Array[];
+  private readonly coef: Float64Array;
+  private readonly block: Float64Array;
+
+  constructor(system: CavitySystem) {
+    this.system = system;
+    const lattice = system.lattice;
+    this.n = lattice.onsite.length;
+    this.sites = system.sites;
+    this.hopping = system.hopping;
+    this.leadCount = system.leads.length;
+    const { rows, cols } = hamiltonianEntries(lattice);
+    for (const lead of system.leads) {
+      for (const p of lead.mouth) for (const q of lead.mouth) {
+        rows.push(p);
+        cols.push(q);
+      }
+    }
+    const pattern = buildPattern(this.n, rows, cols);
+    this.colPtr = pattern.colPtr;
+    this.rowIdx = pattern.rowIdx;
+    this.minusH = new Float64Array(2 * pattern.rowIdx.length);
+    addHamiltonian(lattice, pattern, -1, this.minusH);
+    this.diagSlot = new Int32Array(this.n);
+    for (let s = 0; s < this.n; s++) this.diagSlot[s] = patternSlot(pattern, s, s);
+    let widest = 0;
+    this.blockSlots = system.leads.map((lead) => {
+      const w = lead.mouth.length;
+      widest = Math.max(widest, w);
+      const slots = new Int32Array(w * w);
+      for (let p = 0; p < w; p++) for (let q = 0; q < w; q++) slots[p * w + q] = patternSlot(pattern, lead.mouth[p], lead.mouth[q]);
+      return slots;
+    });
+    this.coef = new Float64Array(2 * widest);
+    this.block = new Float64Array(2 * widest * widest);
+
+    const all = system.leads.flatMap((l) => leadThresholds(l.channels)).sort((x, y) => x - y);
+    const merged: number[] = [];
+    const tol = 1e-12 * Math.max(1, system.hopping);
+    for (const e of all) if (!merged.length || e - merged[merged.length - 1] > tol) merged.push(e);
+    this.thresholds = merged;
+  }
+
+  /** Open flags of every channel of every lead for the threshold interval containing reE. */
+  sheetAt(reE: number): SheetFlags {
+    return this.system.leads.map((l) => channelFlags(l.channels, reE));
+  }
+
+  assemble(z: Complex, sheet: SheetFlags, out: Float64Array): void {
+    out.set(this.minusH);
+    for (let s = 0; s < this.n; s++) {
+      out[2 * this.diagSlot[s]] += z.re;
+      out[2 * this.diagSlot[s] + 1] += z.im;
+    }
+    this.system.leads.forEach((lead, l) => {
+      selfEnergyCoefficients(lead.channels, z.re, z.im, sheet[l], this.coef);
+      this.subtractBlock(l, out);
+    });
+  }
+
+  assembleDerivative(z: Complex, sheet: SheetFlags, out: Float64Array): void {
+    out.fill(0);
+    for (let s = 0; s < this.n; s++) out[2 * this.diagSlot[s]] = 1;
+    this.system.leads.forEach((lead, l) => {
+      selfEnergyDerivativeCoefficients(lead.channels, z.re, z.im, sheet[l], this.coef);
+      this.subtractBlock(l, out);
+    });
+  }
+
+  /** ψ†Γ_ℓψ = −2·Im(ψ†Σ_ℓψ) = Σ_m 2t·Im(λ_m)·|Σ_p χ_m(p) e^{iθ_p} ψ_p|². Cost O(W²). */
+  leadWidthForm(z: Complex, sheet: SheetFlags, lead: number, psi: Float64Array): number {
+    const l = this.system.leads[lead];
+    const ch = l.channels;
+    const w = ch.width;
+    selfEnergyCoefficients(ch, z.re, z.im, sheet[lead], this.coef);
+    let sum = 0;
+    for (let m = 0; m < w; m++) {
+      let ar = 0;
+      let ai = 0;
+      for (let p = 0; p < w; p++) {
+        const s = l.mouth[p];
+        const c = Math.cos(l.theta[p]);
+        const sn = Math.sin(l.theta[p]);
+        const x = ch.chi[m * w + p];
+        ar += x * (c * psi[2 * s] - sn * psi[2 * s + 1]);
+        ai += x * (c * psi[2 * s + 1] + sn * psi[2 * s]);
+      }
+      // coef = −tλ, so 2t·Im λ = −2·Im coef.
+      sum += -2 * this.coef[2 * m + 1] * (ar * ar + ai * ai);
+    }
+    return sum;
+  }
+
+  /** Unknown indices of lead ℓ's mouth sites (p = 1..W). */
+  mouthSites(lead: number): Int32Array {
+    return this.system.leads[lead].mouth;
+  }
+
+  /** 1-based indices of lead ℓ's open channels at a real energy E (meV). */
+  openChannels(lead: number, energy: number): number[] {
+    const out: number[] = [];
+    channelFlags(this.system.leads[lead].channels, energy).forEach((open, m) => open && out.push(m + 1));
+    return out;
+  }
+
+  /** Σ_ℓ(z) on lead ℓ's mouth, dense W×W row-major interleaved. */
+  selfEnergy(lead: number, z: Complex, sheet: SheetFlags = this.sheetAt(z.re)): Float64Array {
+    const l = this.system.leads[lead];
+    const w = l.mouth.length;
+    const coef = new Float64Array(2 * w);
+    selfEnergyCoefficients(l.channels, z.re, z.im, sheet[lead], coef);
+    return mouthBlock(l.channels, l.theta, coef, new Float64Array(2 * w * w));
+  }
+
+  /**
+   * The coupling matrix W at a real energy E: one column per open channel,
+   * sqrt(2t sin k_m)·e^{−iθ_p}χ_m(p) on its lead's mouth, so Γ_ℓ = W_ℓW_ℓ†.
+   * sin k_m = sqrt(1 − w_m²), w_m = (ε_m − E)/(2t). Cost O(n·N_open).
+   */
+  couplingColumns(energy: number): CouplingColumns {
+    const t = this.hopping;
+    const leadOf: number[] = [];
+    const channelOf: number[] = [];
+    const perLead: number[] = [];
+    this.system.leads.forEach((l, k) => {
+      const open = this.openChannels(k, energy);
+      perLead.push(open.length);
+      for (const m of open) {
+        leadOf.push(k);
+        channelOf.push(m);
+      }
+    });
+    const count = leadOf.length;
+    const values = new Float64Array(2 * this.n * count);
+    for (let c = 0; c < count; c++) {
+      const l = this.system.leads[leadOf[c]];
+      const ch = l.channels;
+      const m = channelOf[c] - 1;
+      const w = (ch.energies[m] - energy) / (2 * t);
+      const amp = Math.sqrt(2 * t * Math.sqrt(Math.max(0, 1 - w * w)));
+      for (let p = 0; p < ch.width; p++) {
+        const x = amp * ch.chi[m * ch.width + p];
+        const s = l.mouth[p];
+        values[2 * (c * this.n + s)] = x * Math.cos(l.theta[p]);
+        values[2 * (c * this.n + s) + 1] = -x * Math.sin(l.theta[p]);
+      }
+    }
+    return { count, values, lead: Int32Array.from(leadOf), channel: Int32Array.from(channelOf), perLead };
+  }
+
+  private subtractBlock(lead: number, out: Float64Array): void {
+    const l = this.system.leads[lead];
+    const w = l.mouth.length;
+    mouthBlock(l.channels, l.theta, this.coef, this.block);
+    const slots = this.blockSlots[lead];
+    for (let e = 0; e < w * w; e++) {
+      out[2 * slots[e]] -= this.block[2 * e];
+      out[2 * slots[e] + 1] -= this.block[2 * e + 1];
+    }
+  }
+}

@@ -1,0 +1,222 @@
+/**
+ * Rasterising a cavity shape onto the site grid. Site (i, j) sits at
+ * (x, y) = (i·a, j·a) nm; mask index i·ny + j (lexicographic (i, j) order, the
+ * order of the unknowns). Rules, fixed so a shape means one set of sites:
+ * rectangles are half-open [x0, x0+width) × [y0, y0+height) so width = N·a
+ * covers N sites; disks, ellipses, stadiums and annulus outer rims include their
+ * boundary (annulus inner rim excluded); polygons use the even-odd rule.
+ * A tolerance of 1e-9·a absorbs rounding in i·a.
+ */
+import type { Lead, Shape } from './cavity-model';
+
+const EDGE_TOLERANCE = 1e-9;
+
+/** Decodes base64 without Node or DOM APIs. Cost O(length). */
+function decodeBase64(text: string): Uint8Array {
+  const alphabet = 'ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz0123456789+/';
+  const clean = text.replace(/=+$/, '');
+  const out = new Uint8Array(Math.floor((clean.length * 3) / 4));
+  let bits = 0;
+  let acc = 0;
+  let o = 0;
+  for (let c = 0; c < clean.length; c++) {
+    const v = alphabet.indexOf(clean[c]);
+    if (v < 0) throw new Error(`invalid base64 character '${clean[c]}' at position ${c}`);
+    acc = (acc << 6) | v;
+    bits += 6;
+    if (bits >= 8) {
+      bits -= 8;
+      out[o++] = (acc >> bits) & 0xff;
+    }
+  }
+  return out;
+}
+
+/** Sets mask sites whose position satisfies `inside`, scanning only the bounding box (nm). */
+function fillWhere(
+  mask: Uint8Array,
+  nx: number,
+  ny: number,
+  a: number,
+  box: [number, number, number, number],
+  inside: (x: number, y: number) => boolean,
+): void {
+  const i0 = Math.max(0, Math.floor(box[0] / a) - 1);
+  const i1 = Math.min(nx - 1, Math.ceil(box[2] / a) + 1);
+  const j0 = Math.max(0, Math.floor(box[1] / a) - 1);
+  const j1 = Math.min(ny - 1, Math.ceil(box[3] / a) + 1);
+  for (let i = i0; i <= i1; i++) {
+    for (let j = j0; j <= j1; j++) {
+      if (inside(i * a, j * a)) mask[i * ny + j] = 1;
+    }
+  }
+}
+
+/**
+ * The site mask (1 = cavity) of a shape tree on an nx × ny grid of spacing a (nm).
+ * Cost O(Σ bounding-box sites of the primitives); combinators add O(nx·ny) each.
+ */
+export function rasteriseShape(shape: Shape, nx: number, ny: number, a: number): Uint8Array {
+  const mask = new Uint8Array(nx * ny);
+  const eps = EDGE_TOLERANCE * a;
+  switch (shape.kind) {
+    case 'rectangle': {
+      const { x0, y0, width, height } = shape;
+      fillWhere(mask, nx, ny, a, [x0, y0, x0 + width, y0 + height], (x, y) => x >= x0 - eps && x < x0 + width - eps && y >= y0 - eps && y < y0 + height - eps);
+      break;
+    }
+    case 'disk': {
+      const { cx, cy, radius: r } = shape;
+      const r2 = (r + eps) * (r + eps);
+      fillWhere(mask, nx, ny, a, [cx - r, cy - r, cx + r, cy + r], (x, y) => (x - cx) ** 2 + (y - cy) ** 2 <= r2);
+      break;
+    }
+    case 'ellipse': {
+      const { cx, cy, rx, ry } = shape;
+      const phi = ((shape.angleDeg ?? 0) * Math.PI) / 180;
+      const c = Math.cos(phi);
+      const s = Math.sin(phi);
+      const reach = Math.max(rx, ry);
+      const tol = 1 + 2 * EDGE_TOLERANCE;
+      fillWhere(mask, nx, ny, a, [cx - reach, cy - reach, cx + reach, cy + reach], (x, y) => {
+        const u = (c * (x - cx) + s * (y - cy)) / rx;
+        const v = (-s * (x - cx) + c * (y - cy)) / ry;
+        return u * u + v * v <= tol;
+      });
+      break;
+    }
+    case 'stadium': {
+      const { cx, cy, length, radius: r } = shape;
+      const half = length / 2;
+      const r2 = (r + eps) * (r + eps);
+      fillWhere(mask, nx, ny, a, [cx - half - r, cy - r, cx + half + r, cy + r], (x, y) => {
+        const dx = Math.max(0, Math.abs(x - cx) - half);
+        return dx * dx + (y - cy) ** 2 <= r2;
+      });
+      break;
+    }
+    case 'annulus': {
+      const { cx, cy, inner, outer } = shape;
+      const o2 = (outer + eps) * (outer + eps);
+      const i2 = (inner + eps) * (inner + eps);
+      fillWhere(mask, nx, ny, a, [cx - outer, cy - outer, cx + outer, cy + outer], (x, y) => {
+        const d2 = (x - cx) ** 2 + (y - cy) ** 2;
+        return d2 <= o2 && d2 > i2;
+      });
+      break;
+    }
+    case 'polygon': {
+      const v = shape.vertices;
+      let minX = Infinity, minY = Infinity, maxX = -Infinity, maxY = -Infinity;
+      for (const [x, y] of v) {
+        minX = Math.min(minX, x); maxX = Math.max(maxX, x);
+        minY = Math.min(minY, y); maxY = Math.max(maxY, y);
+      }
+      fillWhere(mask, nx, ny, a, [minX, minY, maxX, maxY], (x, y) => {
+        // Even-odd crossing test; the half-open comparison counts a vertex once.
+        let inside = false;
+        for (let k = 0, l = v.length - 1; k < v.length; l = k++) {
+          const [xk, yk] = v[k];
+          const [xl, yl] = v[l];
+          if (yk > y !== yl > y && x < ((xl - xk) * (y - yk)) / (yl - yk) + xk) inside = !inside;
+        }
+        return inside;
+      });
+      break;
+    }
+    case 'sites':
+      for (const [i, j] of shape.list) if (i < nx && j < ny) mask[i * ny + j] = 1;
+      break;
+    case 'bitmap': {
+      const bytes = decodeBase64(shape.data);
+      const stride = Math.ceil(shape.width / 8);
+      const i0 = shape.i0 ?? 0;
+      const j0 = shape.j0 ?? 0;
+      for (let r = 0; r < shape.height; r++) {
+        for (let c = 0; c < shape.width; c++) {
+          const byte = bytes[r * stride + (c >> 3)] ?? 0;
+          if ((byte >> (7 - (c & 7))) & 1) {
+            const i = i0 + c;
+            const j = j0 + r;
+            if (i < nx && j < ny) mask[i * ny + j] = 1;
+          }
+        }
+      }
+      break;
+    }
+    case 'union':
+      for (const part of shape.of) {
+        const m = rasteriseShape(part, nx, ny, a);
+        for (let s = 0; s < mask.length; s++) mask[s] |= m[s];
+      }
+      break;
+    case 'subtract': {
+      mask.set(rasteriseShape(shape.from, nx, ny, a));
+      for (const part of shape.remove) {
+        const m = rasteriseShape(part, nx, ny, a);
+        for (let s = 0; s < mask.length; s++) if (m[s]) mask[s] = 0;
+      }
+      break;
+    }
+  }
+  return mask;
+}
+
+/** One 4-connected piece of the cavity: its size and its first site in (i, j) order. */
+export interface CavityComponent {
+  size: number;
+  firstI: number;
+  firstJ: number;
+}
+
+/** The 4-connected components of a mask (nearest-neighbour bonds only). Cost O(nx·ny). */
+export function connectedComponents(mask: Uint8Array, nx: number, ny: number): CavityComponent[] {
+  const seen = new Uint8Array(mask.length);
+  const stack = new Int32Array(mask.length);
+  const parts: CavityComponent[] = [];
+  for (let s0 = 0; s0 < mask.length; s0++) {
+    if (!mask[s0] || seen[s0]) continue;
+    let top = 0;
+    let size = 0;
+    stack[top++] = s0;
+    seen[s0] = 1;
+    while (top > 0) {
+      const s = stack[--top];
+      size++;
+      const i = Math.floor(s / ny);
+      const j = s - i * ny;
+      const push = (t: number) => {
+        if (mask[t] && !seen[t]) {
+          seen[t] = 1;
+          stack[top++] = t;
+        }
+      };
+      if (i > 0) push(s - ny);
+      if (i < nx - 1) push(s + ny);
+      if (j > 0) push(s - 1);
+      if (j < ny - 1) push(s + 1);
+    }
+    parts.push({ size, firstI: Math.floor(s0 / ny), firstJ: s0 % ny });
+  }
+  return parts;
+}
+
+/**
+ * Lattice coordinates of a lead's mouth sites, in the order p = 1..W of the
+ * transverse modes (increasing j for left/right leads, increasing i for
+ * bottom/top), per the contract's "Mouth sites" rule.
+ */
+export function mouthSites(lead: Pick<Lead, 'side' | 'start' | 'width'>, nx: number, ny: number): { i: Int32Array; j: Int32Array } {
+  const i = new Int32Array(lead.width);
+  const j = new Int32Array(lead.width);
+  for (let p = 0; p < lead.width; p++) {
+    const along = lead.start + p;
+    switch (lead.side) {
+      case 'left': i[p] = 0; j[p] = along; break;
+      case 'right': i[p] = nx - 1; j[p] = along; break;
+      case 'bottom': i[p] = along; j[p] = 0; break;
+      case 'top': i[p] = along; j[p] = ny - 1; break;
+    }
+  }
+  return { i, j };
+}
