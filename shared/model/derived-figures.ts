@@ -1,0 +1,115 @@
+/**
+ * Figures the editor and the run launcher show for a model: site count, hopping,
+ * every channel threshold, field scales, and how far the lattice can be trusted
+ * at a chosen energy (docs/physics-model.md, "Choices made in Poleward").
+ */
+import { cyclotronEnergy, fluxPerPlaquette, hoppingEnergy, magneticLength } from '../units/constants';
+import { modelMassRatio, type CavityModel } from './cavity-model';
+
+/** Recommended ceiling of the kinetic energy, as a fraction of t (dispersion error about 4 %). */
+export const ENERGY_CEILING_OVER_T = 0.5;
+/** Warn when the wavelength is shorter than this many lattice spacings. */
+export const MIN_WAVELENGTH_OVER_SPACING = 10;
+
+export interface ChannelThreshold {
+  /** Channel m (1-based). */
+  channel: number;
+  /** Transverse energy ε_m (meV). */
+  transverse: number;
+  /** Channel opens at ε_m − 2t (meV). */
+  opens: number;
+  /** Channel closes at ε_m + 2t (meV). */
+  closes: number;
+}
+
+export interface EnergyValidity {
+  energy: number;
+  /** (E_lattice − E_parabola)/E_parabola at the same wavevector; negative: the lattice band is flatter. */
+  dispersionError: number;
+  /** Wavelength 2π/k (nm), k from the lattice dispersion E = 2t(1 − cos ka). Infinity at E ≤ 0. */
+  wavelength: number;
+  wavelengthOverSpacing: number;
+  warnings: string[];
+}
+
+export interface DerivedFigures {
+  siteCount: number;
+  /** t (meV). */
+  hopping: number;
+  massRatio: number;
+  /** Recommended largest kinetic energy E (meV), ENERGY_CEILING_OVER_T·t. */
+  energyCeiling: number;
+  /** Energy (meV) at which the wavelength equals MIN_WAVELENGTH_OVER_SPACING·a. */
+  wavelengthCeiling: number;
+  fluxPerPlaquette: number;
+  /** ħω_c (meV), 0 at B = 0. */
+  cyclotronEnergy: number;
+  /** ℓ_B (nm), Infinity at B = 0. */
+  magneticLength: number;
+  leads: { name: string; side: string; width: number; offset: number; thresholds: ChannelThreshold[] }[];
+  validity?: EnergyValidity;
+}
+
+/**
+ * Relative error of the lattice dispersion E = 2t(1 − cos ka) against the
+ * parabola t(ka)² at the wavevector where the lattice energy is E. Small E:
+ * ≈ −E/(12t). Returns NaN above the band top 4t. Cost O(1).
+ */
+export function dispersionError(energy: number, hopping: number): number {
+  if (energy <= 0) return 0;
+  const c = 1 - energy / (2 * hopping);
+  if (c < -1) return NaN;
+  const ka = Math.acos(c);
+  const parabola = hopping * ka * ka;
+  return (energy - parabola) / parabola;
+}
+
+/** Lattice wavelength 2π/k (nm) at kinetic energy E on a 1D lattice of spacing a. */
+export function latticeWavelength(energy: number, hopping: number, spacing: number): number {
+  if (energy <= 0) return Infinity;
+  const c = 1 - energy / (2 * hopping);
+  if (c < -1) return NaN;
+  return (2 * Math.PI * spacing) / Math.acos(c);
+}
+
+/** Validity of the lattice at energy E (meV) measured from the band bottom (minus the lead offsets). */
+export function energyValidity(energy: number, hopping: number, spacing: number): EnergyValidity {
+  const err = dispersionError(energy, hopping);
+  const wl = latticeWavelength(energy, hopping, spacing);
+  const warnings: string[] = [];
+  if (energy > ENERGY_CEILING_OVER_T * hopping) {
+    warnings.push(`E = ${energy.toPrecision(4)} meV is above t/2 = ${(hopping / 2).toPrecision(4)} meV: the lattice dispersion is off the parabola by ${(100 * Math.abs(err)).toFixed(1)} %`);
+  }
+  if (wl / spacing < MIN_WAVELENGTH_OVER_SPACING) {
+    warnings.push(`the wavelength ${wl.toPrecision(3)} nm is shorter than ${MIN_WAVELENGTH_OVER_SPACING} lattice spacings (${(MIN_WAVELENGTH_OVER_SPACING * spacing).toPrecision(3)} nm): refine the grid`);
+  }
+  return { energy, dispersionError: err, wavelength: wl, wavelengthOverSpacing: wl / spacing, warnings };
+}
+
+/** Derived figures of a parsed model; `energy` (meV) adds the validity block. Cost O(Σ W). */
+export function deriveFigures(model: CavityModel, siteCount: number, energy?: number): DerivedFigures {
+  const massRatio = modelMassRatio(model);
+  const t = hoppingEnergy(model.spacing, massRatio);
+  const leads = model.leads.map((lead, k) => {
+    const thresholds: ChannelThreshold[] = [];
+    for (let m = 1; m <= lead.width; m++) {
+      const eps = lead.offset + 4 * t - 2 * t * Math.cos((m * Math.PI) / (lead.width + 1));
+      thresholds.push({ channel: m, transverse: eps, opens: eps - 2 * t, closes: eps + 2 * t });
+    }
+    return { name: lead.name ?? `${lead.side}${k}`, side: lead.side, width: lead.width, offset: lead.offset, thresholds };
+  });
+  // λ = 10a ⇔ ka = 2π/10 ⇔ E = 2t(1 − cos(π/5)).
+  const wavelengthCeiling = 2 * t * (1 - Math.cos((2 * Math.PI) / MIN_WAVELENGTH_OVER_SPACING));
+  return {
+    siteCount,
+    hopping: t,
+    massRatio,
+    energyCeiling: ENERGY_CEILING_OVER_T * t,
+    wavelengthCeiling,
+    fluxPerPlaquette: fluxPerPlaquette(model.field, model.spacing),
+    cyclotronEnergy: cyclotronEnergy(model.field, massRatio),
+    magneticLength: magneticLength(model.field),
+    leads,
+    validity: energy === undefined ? undefined : energyValidity(energy, t, model.spacing),
+  };
+}
