@@ -1,0 +1,111 @@
+import { sql, type SQL } from 'drizzle-orm';
+import {
+  boolean,
+  customType,
+  doublePrecision,
+  index,
+  integer,
+  jsonb,
+  pgTable,
+  primaryKey,
+  text,
+  timestamp,
+  unique,
+  uuid,
+} from 'drizzle-orm/pg-core';
+import { researchGroups } from './groups.js';
+import { cavityModels, modelVersions } from './models.js';
+import { runs } from './runs.js';
+
+const bytea = customType<{ data: Buffer; driverData: Buffer }>({ dataType: () => 'bytea' });
+const tsvector = customType<{ data: string }>({ dataType: () => 'tsvector' });
+
+/**
+ * One resonance (pole) found by a run. Geometry columns are copied from the
+ * model version so that catalogue searches filter and sort on one table with
+ * plain b-tree indexes. (run_id, idx) is unique: a retried run rewrites its
+ * rows instead of adding copies.
+ */
+export const resonances = pgTable(
+  'resonances',
+  {
+    id: uuid('id').primaryKey().defaultRandom(),
+    groupId: uuid('group_id')
+      .notNull()
+      .references(() => researchGroups.id, { onDelete: 'cascade' }),
+    runId: uuid('run_id')
+      .notNull()
+      .references(() => runs.id, { onDelete: 'cascade' }),
+    modelId: uuid('model_id')
+      .notNull()
+      .references(() => cavityModels.id, { onDelete: 'cascade' }),
+    modelVersionId: uuid('model_version_id')
+      .notNull()
+      .references(() => modelVersions.id, { onDelete: 'cascade' }),
+    idx: integer('idx').notNull(),
+    energy: doublePrecision('energy').notNull(),
+    width: doublePrecision('width').notNull(),
+    lifetimePs: doublePrecision('lifetime_ps'),
+    quality: doublePrecision('quality'),
+    partialWidths: jsonb('partial_widths').$type<{ lead: string; width: number }[]>().notNull(),
+    petermann: doublePrecision('petermann').notNull(),
+    residual: doublePrecision('residual').notNull(),
+    bound: boolean('bound').notNull(),
+    nearThreshold: boolean('near_threshold').notNull(),
+    overlapping: boolean('overlapping').notNull(),
+    details: jsonb('details').$type<Record<string, unknown>>().notNull().default({}),
+    tags: text('tags').array().notNull().default(sql`'{}'::text[]`),
+    notes: text('notes').notNull().default(''),
+    // Copied from the model version for one-table searches.
+    modelName: text('model_name').notNull(),
+    modelVersion: integer('model_version').notNull(),
+    family: text('family').notNull(),
+    material: text('material').notNull(),
+    fieldT: doublePrecision('field_t').notNull(),
+    spacingNm: doublePrecision('spacing_nm').notNull(),
+    widthNm: doublePrecision('width_nm'),
+    heightNm: doublePrecision('height_nm'),
+    radiusNm: doublePrecision('radius_nm'),
+    lengthNm: doublePrecision('length_nm'),
+    searchText: tsvector('search_text').generatedAlwaysAs(
+      (): SQL => sql`to_tsvector('simple', ${resonances.modelName} || ' ' || ${resonances.notes})`,
+    ),
+    createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [
+    unique('resonances_run_idx').on(t.runId, t.idx),
+    index('resonances_group_energy').on(t.groupId, t.energy),
+    index('resonances_group_width').on(t.groupId, t.width),
+    index('resonances_group_quality').on(t.groupId, t.quality),
+    index('resonances_group_lifetime').on(t.groupId, t.lifetimePs),
+    index('resonances_group_created').on(t.groupId, t.createdAt.desc()),
+    index('resonances_group_family_energy').on(t.groupId, t.family, t.energy),
+    index('resonances_tags').using('gin', t.tags),
+    index('resonances_search_text').using('gin', t.searchText),
+  ],
+);
+
+/** The mode vector ψ_R of a resonance (Float64 interleaved re, im), kept for later maps (currents, Husimi). */
+export const resonanceModes = pgTable('resonance_modes', {
+  resonanceId: uuid('resonance_id')
+    .primaryKey()
+    .references(() => resonances.id, { onDelete: 'cascade' }),
+  sites: integer('sites').notNull(),
+  vector: bytea('vector').notNull(),
+});
+
+/** Rendered mode images (PNG), a thumbnail and a full-size one per resonance. */
+export const modeImages = pgTable(
+  'mode_images',
+  {
+    resonanceId: uuid('resonance_id')
+      .notNull()
+      .references(() => resonances.id, { onDelete: 'cascade' }),
+    size: text('size').$type<'thumb' | 'full'>().notNull(),
+    width: integer('width').notNull(),
+    height: integer('height').notNull(),
+    etag: text('etag').notNull(),
+    png: bytea('png').notNull(),
+  },
+  (t) => [primaryKey({ columns: [t.resonanceId, t.size] })],
+);
