@@ -1,0 +1,63 @@
+import type { Request, RequestHandler } from 'express';
+import type { Db } from '../db/client.js';
+import { ApiError } from '../http/error-handler.js';
+import { findActiveApiToken, touchApiToken } from './api-token-repository.js';
+import { apiTokenPrefix, hashOpaqueToken } from './opaque-token.js';
+import { sessionCookie } from './session-cookies.js';
+import { verifySessionToken } from './session-token.js';
+import { findUserById } from './user-repository.js';
+
+export interface AuthUser {
+  id: string;
+  email: string;
+  name: string;
+}
+
+declare module 'express-serve-static-core' {
+  interface Request {
+    /** Set by authenticate when the request carries a valid session cookie or personal token. */
+    auth?: { user: AuthUser; via: 'cookie' | 'token'; tokenId?: string };
+    /** Why a session cookie was refused, for the 401 message of a protected route. */
+    authProblem?: string;
+  }
+}
+
+/**
+ * Resolves who is calling, without refusing anyone: public routes still work with a
+ * stale cookie. A Bearer header is an explicit claim, so a bad one answers 401 at once.
+ */
+export function authenticate(db: Db, jwtSecret: string): RequestHandler {
+  return async (req, _res, next) => {
+    const header = req.get('authorization');
+    if (header !== undefined) {
+      const match = /^Bearer\s+(\S+)$/i.exec(header);
+      if (!match || !match[1]!.startsWith(apiTokenPrefix)) {
+        throw new ApiError(401, 'unauthenticated', `The Authorization header must be "Bearer ${apiTokenPrefix}…" with a personal API token.`);
+      }
+      const token = await findActiveApiToken(db, hashOpaqueToken(match[1]!));
+      const user = token && (await findUserById(db, token.userId));
+      if (!token || !user) throw new ApiError(401, 'unauthenticated', 'The API token is unknown or has been revoked.');
+      await touchApiToken(db, token.id);
+      req.auth = { user: { id: user.id, email: user.email, name: user.name }, via: 'token', tokenId: token.id };
+      return next();
+    }
+    const jwtToken = (req.cookies as Record<string, string | undefined>)[sessionCookie];
+    if (jwtToken) {
+      const claims = verifySessionToken(jwtToken, jwtSecret);
+      const user = claims && (await findUserById(db, claims.userId));
+      // A session issued before the last password change is over (iat has 1 s resolution).
+      if (!claims || !user || claims.issuedAt < Math.floor(user.passwordChangedAt.getTime() / 1000)) {
+        req.authProblem = 'Your session is invalid or has expired; sign in again.';
+      } else {
+        req.auth = { user: { id: user.id, email: user.email, name: user.name }, via: 'cookie' };
+      }
+    }
+    next();
+  };
+}
+
+/** Throws 401 unless someone is signed in; narrows req.auth. */
+export function signedInUser(req: Request): AuthUser {
+  if (!req.auth) throw new ApiError(401, 'unauthenticated', req.authProblem ?? 'Sign in first.');
+  return req.auth.user;
+}

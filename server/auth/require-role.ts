@@ -1,0 +1,55 @@
+import { and, eq } from 'drizzle-orm';
+import type { RequestHandler } from 'express';
+import type { Db } from '../db/client.js';
+import { memberships, researchGroups, type MembershipRole } from '../db/schema/groups.js';
+import { ApiError } from '../http/error-handler.js';
+import { signedInUser } from './authenticate.js';
+import { checkCsrf } from './csrf.js';
+
+export interface GroupMembership {
+  groupId: string;
+  groupName: string;
+  groupSlug: string;
+  role: MembershipRole;
+}
+
+declare module 'express-serve-static-core' {
+  interface Request {
+    /** The caller's membership in the route's :groupId, set by requireRole. */
+    membership?: GroupMembership;
+  }
+}
+
+const uuidPattern = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
+
+export function groupNotFound(): ApiError {
+  return new ApiError(404, 'not_found', 'No such group, or you are not a member of it.');
+}
+
+/**
+ * Resolves :groupId to the caller's membership. Not a member (or no such group) → 404,
+ * so a group's existence never leaks; a member with the wrong role → 403. Admin passes
+ * every role check; no roles given = any member. Also enforces sign-in and CSRF.
+ * Needs `app.locals.db` (set by createApp).
+ */
+export function requireRole(...roles: MembershipRole[]): RequestHandler {
+  return async (req, _res, next) => {
+    const user = signedInUser(req);
+    checkCsrf(req);
+    const groupId = req.params.groupId;
+    if (typeof groupId !== 'string' || !uuidPattern.test(groupId)) throw groupNotFound();
+    const db = req.app.locals.db as Db;
+    const [row] = await db
+      .select({ groupName: researchGroups.name, groupSlug: researchGroups.slug, role: memberships.role })
+      .from(memberships)
+      .innerJoin(researchGroups, eq(researchGroups.id, memberships.groupId))
+      .where(and(eq(memberships.groupId, groupId), eq(memberships.userId, user.id)));
+    if (!row) throw groupNotFound();
+    if (roles.length > 0 && row.role !== 'admin' && !roles.includes(row.role)) {
+      const wanted = roles.length === 1 ? `the ${roles[0]} role` : `one of the roles ${roles.join(', ')}`;
+      throw new ApiError(403, 'forbidden', `This needs ${wanted} in this group; you are ${row.role}.`);
+    }
+    req.membership = { groupId, ...row };
+    next();
+  };
+}

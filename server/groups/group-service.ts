@@ -1,0 +1,57 @@
+import { writeAudit } from '../audit/audit-log.js';
+import type { Db } from '../db/client.js';
+import type { MembershipRole } from '../db/schema/groups.js';
+import { ApiError } from '../http/error-handler.js';
+import { findUserById } from '../auth/user-repository.js';
+import { deleteMembership, lockMemberships, setMemberRole } from './group-repository.js';
+
+function noSuchMember(): ApiError {
+  return new ApiError(404, 'not_found', 'No such member in this group.');
+}
+
+function lastAdmin(): ApiError {
+  return new ApiError(409, 'last_admin', 'A group needs at least one admin: make another member admin first.');
+}
+
+/** Membership rules: role changes and removals, never leaving a group without an admin. */
+export class GroupService {
+  constructor(private readonly db: Db) {}
+
+  async changeRole(actorId: string, groupId: string, userId: string, role: MembershipRole): Promise<void> {
+    await this.db.transaction(async (tx) => {
+      const members = await lockMemberships(tx, groupId);
+      const target = members.find((m) => m.userId === userId);
+      if (!target) throw noSuchMember();
+      if (target.role === role) return;
+      const admins = members.filter((m) => m.role === 'admin').length;
+      if (target.role === 'admin' && admins <= 1) throw lastAdmin();
+      await setMemberRole(tx, groupId, userId, role);
+      const user = await findUserById(tx, userId);
+      await writeAudit(tx, {
+        groupId,
+        actorId,
+        action: 'member.role_changed',
+        subject: user?.email ?? userId,
+        details: { userId, from: target.role, to: role },
+      });
+    });
+  }
+
+  async removeMember(actorId: string, groupId: string, userId: string): Promise<void> {
+    await this.db.transaction(async (tx) => {
+      const members = await lockMemberships(tx, groupId);
+      const target = members.find((m) => m.userId === userId);
+      if (!target) throw noSuchMember();
+      if (target.role === 'admin' && members.filter((m) => m.role === 'admin').length <= 1) throw lastAdmin();
+      await deleteMembership(tx, groupId, userId);
+      const user = await findUserById(tx, userId);
+      await writeAudit(tx, {
+        groupId,
+        actorId,
+        action: 'member.removed',
+        subject: user?.email ?? userId,
+        details: { userId, role: target.role },
+      });
+    });
+  }
+}

@@ -1,0 +1,39 @@
+import { desc, eq } from 'drizzle-orm';
+import type { Queryable } from '../db/client.js';
+import { outboxMessages } from '../db/schema/outbox.js';
+
+export interface OutboxMessage {
+  id: string;
+  to: string;
+  subject: string;
+  text: string;
+  html?: string;
+  receivedAt: string;
+}
+
+type Row = typeof outboxMessages.$inferSelect;
+
+function toMessage(r: Row): OutboxMessage {
+  return {
+    id: r.id,
+    to: r.toAddress,
+    subject: r.subject,
+    text: r.textBody,
+    ...(r.htmlBody ? { html: r.htmlBody } : {}),
+    receivedAt: r.receivedAt.toISOString(),
+  };
+}
+
+export async function storeOutboxMessage(q: Queryable, m: Omit<typeof outboxMessages.$inferInsert, 'id'>): Promise<void> {
+  await q.insert(outboxMessages).values(m);
+}
+
+export async function recentOutboxMessages(q: Queryable, limit = 100): Promise<OutboxMessage[]> {
+  const rows = await q.select().from(outboxMessages).orderBy(desc(outboxMessages.receivedAt)).limit(limit);
+  return rows.map(toMessage);
+}
+
+export async function findOutboxMessage(q: Queryable, id: string): Promise<OutboxMessage | undefined> {
+  const [row] = await q.select().from(outboxMessages).where(eq(outboxMessages.id, id));
+  return row && toMessage(row);
+}
