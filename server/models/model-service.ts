@@ -1,0 +1,101 @@
+import type { Db } from '../db/client.js';
+import { writeAudit } from '../audit/audit-log.js';
+import { ApiError } from '../http/error-handler.js';
+import { checkModel } from './model-figures.js';
+import * as repo from './model-repository.js';
+import { deriveFigures } from '../../shared/model/derived-figures.js';
+import { validateCavityModel } from '../../shared/model/cavity-model.js';
+
+export function modelNotFound(): ApiError {
+  return new ApiError(404, 'not_found', 'No such cavity model in this group.');
+}
+
+type SummaryRow = NonNullable<Awaited<ReturnType<typeof repo.findModel>>>;
+
+export function toSummary(r: SummaryRow) {
+  return {
+    id: r.id,
+    name: r.name,
+    family: r.family,
+    latestVersion: r.latestVersion,
+    material: r.material,
+    spacingNm: r.spacingNm,
+    fieldT: r.fieldT,
+    siteCount: r.siteCount,
+    leadCount: r.leadCount,
+    keyDimensions: r.keyDimensions,
+    updatedAt: r.updatedAt,
+    createdBy: r.createdById ? { id: r.createdById, name: r.createdByName ?? '' } : null,
+  };
+}
+
+/** Versioned cavity models: a version is never changed; an edit writes the next one. */
+export class ModelService {
+  constructor(private readonly db: Db) {}
+
+  async list(groupId: string, f: repo.ModelListFilter) {
+    const { rows, total } = await repo.listModels(this.db, groupId, f);
+    return { items: rows.map(toSummary), total };
+  }
+
+  async detail(groupId: string, modelId: string) {
+    const summary = await repo.findModel(this.db, groupId, modelId);
+    if (!summary) throw modelNotFound();
+    const version = await repo.findVersion(this.db, groupId, modelId);
+    const versions = await repo.listVersions(this.db, groupId, modelId);
+    return {
+      ...toSummary(summary),
+      document: version!.document,
+      derived: derivedOf(version!.document),
+      versions: versions.map((v) => ({
+        version: v.version,
+        createdAt: v.createdAt,
+        createdBy: v.createdById ? { id: v.createdById, name: v.createdByName ?? '' } : null,
+        usedByRuns: v.usedByRuns,
+      })),
+    };
+  }
+
+  async version(groupId: string, modelId: string, version: number) {
+    const v = await repo.findVersion(this.db, groupId, modelId, version);
+    if (!v) throw new ApiError(404, 'not_found', `This model has no version ${version}.`);
+    return { version: v.version, document: v.document, derived: derivedOf(v.document), createdAt: v.createdAt };
+  }
+
+  async create(groupId: string, userId: string, document: unknown, referenceKey: string | null = null) {
+    const checked = checkModel(document);
+    const id = await this.db.transaction(async (tx) => {
+      const modelId = await repo.insertModel(tx, groupId, userId, checked.model.name, referenceKey);
+      await repo.insertVersion(tx, groupId, modelId, 1, userId, checked.model, checked.columns);
+      await writeAudit(tx, { groupId, actorId: userId, action: 'model.created', subject: checked.model.name, details: { modelId } });
+      return modelId;
+    });
+    return this.detail(groupId, id);
+  }
+
+  async update(groupId: string, userId: string, modelId: string, document: unknown) {
+    const checked = checkModel(document);
+    await this.db.transaction(async (tx) => {
+      const current = await repo.lockModel(tx, groupId, modelId);
+      if (!current) throw modelNotFound();
+      const version = current.latestVersion + 1;
+      await repo.insertVersion(tx, groupId, modelId, version, userId, checked.model, checked.columns);
+      if (checked.model.name !== current.name) await repo.renameModel(tx, modelId, checked.model.name);
+      await writeAudit(tx, {
+        groupId,
+        actorId: userId,
+        action: 'model.version_created',
+        subject: `${checked.model.name} v${version}`,
+        details: { modelId, version },
+      });
+    });
+    return this.detail(groupId, modelId);
+  }
+}
+
+/** Derived figures of a stored (already valid) document. */
+export function derivedOf(document: unknown) {
+  const v = validateCavityModel(document);
+  if (!v.ok) throw new ApiError(500, 'stored_model_invalid', 'A stored model version no longer validates; please report this.');
+  return deriveFigures(v.model, v.siteCount);
+}
