@@ -1,5 +1,6 @@
 import { Router } from 'express';
 import { z } from 'zod';
+import { emailField } from './email-field.js';
 import type { Db } from '../db/client.js';
 import { validate } from '../http/validate.js';
 import type { AuthService } from './auth-service.js';
@@ -9,10 +10,11 @@ import { newPasswordSchema } from './password.js';
 import { sessionOf } from './session.js';
 import { clearSessionCookies, csrfCookie, setSessionCookies } from './session-cookies.js';
 import { signSessionToken } from './session-token.js';
+import { findUserById } from './user-repository.js';
 import { attemptLimiter, type AttemptLimit } from './sign-in-limit.js';
 
-const signInBody = z.object({ email: z.email().max(320), password: z.string().min(1).max(1000) });
-const resetBody = z.object({ email: z.email().max(320) });
+const signInBody = z.object({ email: emailField, password: z.string().min(1).max(1000) });
+const resetBody = z.object({ email: emailField });
 const confirmBody = z.object({ token: z.string().min(1).max(200), password: newPasswordSchema });
 
 export interface AuthRouteDeps {
@@ -30,7 +32,7 @@ export function authRoutes(d: AuthRouteDeps): Router {
   router.post('/sign-in', attemptLimiter(d.signInLimit, 'sign-in'), validate({ body: signInBody }), async (req, res) => {
     const { email, password } = req.valid.body as z.infer<typeof signInBody>;
     const user = await d.auth.signIn(email, password);
-    const csrf = setSessionCookies(res, signSessionToken(user.id, d.jwtSecret), d.secureCookies);
+    const csrf = setSessionCookies(res, signSessionToken(user.id, user.passwordChangedAt.getTime(), d.jwtSecret), d.secureCookies);
     res.json(await sessionOf(d.db, user, csrf));
   });
 
@@ -46,7 +48,10 @@ export function authRoutes(d: AuthRouteDeps): Router {
     if (req.auth?.via === 'cookie') {
       csrf = (req.cookies as Record<string, string | undefined>)[csrfCookie] ?? '';
       // A lost pw_csrf cookie would make every later POST fail: issue a fresh pair.
-      if (!csrf) csrf = setSessionCookies(res, signSessionToken(user.id, d.jwtSecret), d.secureCookies);
+      if (!csrf) {
+        const row = await findUserById(d.db, user.id);
+        csrf = setSessionCookies(res, signSessionToken(user.id, row!.passwordChangedAt.getTime(), d.jwtSecret), d.secureCookies);
+      }
     }
     res.json(await sessionOf(d.db, user, csrf));
   });

@@ -45,8 +45,8 @@ export function authenticate(db: Db, jwtSecret: string): RequestHandler {
     if (jwtToken) {
       const claims = verifySessionToken(jwtToken, jwtSecret);
       const user = claims && (await findUserById(db, claims.userId));
-      // A session issued before the last password change is over (iat has 1 s resolution).
-      if (!claims || !user || claims.issuedAt < Math.floor(user.passwordChangedAt.getTime() / 1000)) {
+      // A session issued before the last password change is over.
+      if (!claims || !user || claims.passwordStamp !== user.passwordChangedAt.getTime()) {
         req.authProblem = 'Your session is invalid or has expired; sign in again.';
       } else {
         req.auth = { user: { id: user.id, email: user.email, name: user.name }, via: 'cookie' };

@@ -1,5 +1,6 @@
 import { Router } from 'express';
 import { z } from 'zod';
+import { emailField } from '../auth/email-field.js';
 import { groupActivity } from '../audit/activity.js';
 import { signedInUser } from '../auth/authenticate.js';
 import { requireAuth } from '../auth/require-auth.js';
@@ -15,7 +16,7 @@ import type { GroupService } from './group-service.js';
 const role = z.enum(membershipRole.enumValues);
 const memberParams = z.object({ groupId: z.uuid(), userId: z.uuid() });
 const invitationParams = z.object({ groupId: z.uuid(), id: z.uuid() });
-const inviteBody = z.object({ email: z.email().max(320), role });
+const inviteBody = z.object({ email: emailField, role });
 const activityQuery = z.object({ limit: z.coerce.number().int().min(1).max(200).default(20) });
 
 /** /api/groups: everything below :groupId goes through requireRole, which scopes it to the caller's group. */

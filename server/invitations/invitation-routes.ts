@@ -23,7 +23,7 @@ export function invitationRoutes(d: { db: Db; invitations: InvitationService; jw
     const { token } = req.valid.params as z.infer<typeof tokenParams>;
     const { name, password } = req.valid.body as z.infer<typeof acceptBody>;
     const user = await d.invitations.accept(token, name, password);
-    const csrf = setSessionCookies(res, signSessionToken(user.id, d.jwtSecret), d.secureCookies);
+    const csrf = setSessionCookies(res, signSessionToken(user.id, user.passwordChangedAt.getTime(), d.jwtSecret), d.secureCookies);
     res.status(201).json(await sessionOf(d.db, user, csrf));
   });
 
