@@ -1,0 +1,87 @@
+import type { Routes } from '@angular/router';
+import { authGuard } from './core/auth/auth-guard';
+import { groupGuard } from './core/group/group-guard';
+import { homeRedirect } from './core/group/home-redirect';
+
+const laterRelease = () => import('./core/shell/later-release').then((m) => m.LaterRelease);
+
+/** Areas planned for later releases: each shows a plain placeholder until its feature lands. */
+const later = (path: string, area: string) => ({
+  path,
+  loadComponent: laterRelease,
+  data: { area },
+  title: `${area} · Poleward`,
+});
+
+export const routes: Routes = [
+  {
+    path: 'sign-in',
+    loadComponent: () => import('./sign-in/sign-in').then((m) => m.SignIn),
+    title: 'Sign in · Poleward',
+  },
+  {
+    path: 'invitation',
+    loadComponent: () => import('./invitation/invitation').then((m) => m.Invitation),
+    title: 'Invitation · Poleward',
+  },
+  {
+    path: 'reset-password',
+    loadComponent: () => import('./reset-password/reset-password').then((m) => m.ResetPassword),
+    title: 'Reset password · Poleward',
+  },
+  {
+    path: '',
+    canActivate: [authGuard],
+    loadComponent: () => import('./core/shell/shell').then((m) => m.Shell),
+    children: [
+      { path: '', pathMatch: 'full', canActivate: [homeRedirect], children: [] },
+      {
+        path: 'g/:groupSlug',
+        canActivate: [groupGuard],
+        children: [
+          { path: '', pathMatch: 'full', redirectTo: 'dashboard' },
+          {
+            path: 'dashboard',
+            loadComponent: () => import('./dashboard/dashboard').then((m) => m.Dashboard),
+            title: 'Dashboard · Poleward',
+          },
+          {
+            path: 'members',
+            loadComponent: () => import('./members/members').then((m) => m.Members),
+            title: 'Members · Poleward',
+          },
+          later('models', 'Models'),
+          later('runs', 'Runs'),
+          later('catalogue', 'Catalogue'),
+          later('fits', 'Fits'),
+          later('fabrication', 'Fabrication'),
+        ],
+      },
+      {
+        path: 'tokens',
+        loadComponent: () => import('./tokens/tokens').then((m) => m.Tokens),
+        title: 'API tokens · Poleward',
+      },
+      {
+        path: 'outbox',
+        loadComponent: () => import('./outbox/outbox').then((m) => m.Outbox),
+        title: 'Mail outbox · Poleward',
+      },
+      {
+        path: 'outbox/:messageId',
+        loadComponent: () => import('./outbox/outbox-message').then((m) => m.OutboxMessage),
+        title: 'Message · Poleward',
+      },
+      {
+        path: 'no-group',
+        loadComponent: () => import('./core/shell/no-group').then((m) => m.NoGroup),
+        title: 'No group · Poleward',
+      },
+      {
+        path: '**',
+        loadComponent: () => import('./core/shell/not-found').then((m) => m.NotFound),
+        title: 'Not found · Poleward',
+      },
+    ],
+  },
+];

@@ -1,0 +1,24 @@
+import { HttpClient } from '@angular/common/http';
+import { Injectable, inject } from '@angular/core';
+import { Observable, map } from 'rxjs';
+import { type Session, sessionSchema } from './session';
+
+/** HTTP for signing in and out and for the current session. */
+@Injectable({ providedIn: 'root' })
+export class AuthApi {
+  private readonly http = inject(HttpClient);
+
+  session(): Observable<Session> {
+    return this.http.get('/api/auth/session').pipe(map((body) => sessionSchema.parse(body)));
+  }
+
+  signIn(email: string, password: string): Observable<Session> {
+    return this.http
+      .post('/api/auth/sign-in', { email, password })
+      .pipe(map((body) => sessionSchema.parse(body)));
+  }
+
+  signOut(): Observable<void> {
+    return this.http.post<void>('/api/auth/sign-out', {});
+  }
+}

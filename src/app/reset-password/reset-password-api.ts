@@ -1,0 +1,18 @@
+import { HttpClient } from '@angular/common/http';
+import { Injectable, inject } from '@angular/core';
+import type { Observable } from 'rxjs';
+
+/** HTTP for the two halves of a password reset: ask for the e-mail, then set the new password. */
+@Injectable({ providedIn: 'root' })
+export class ResetPasswordApi {
+  private readonly http = inject(HttpClient);
+
+  /** Always 202: the server does not say whether the address has an account. */
+  request(email: string): Observable<unknown> {
+    return this.http.post('/api/auth/password-reset', { email });
+  }
+
+  confirm(token: string, password: string): Observable<unknown> {
+    return this.http.post('/api/auth/password-reset/confirm', { token, password });
+  }
+}
