@@ -1,0 +1,535 @@
+/**
+ * The certified pole search: every resonance z = E − iΓ/2 of T(z) = z − H − Σ(z)
+ * in a window [emin, emax] × [−gammaMax/2, 0], with an argument-principle
+ * certificate per piece of the window (docs/physics-model.md, "How the pole search works").
+ *
+ * 1. The window is cut at every channel threshold; each piece has fixed sheet
+ *    flags, so T is analytic on its strip, and its contour stops a small gap short
+ *    of the threshold branch points. The contour's top edge lies at +gammaMax/2:
+ *    above the real axis this continuation is the physical sheet (no poles), and
+ *    narrow resonances then sit far from every edge.
+ * 2. At each contour node one LU gives log det T (for the count) and T⁻¹V for ℓ
+ *    probes (for the block Hankel moments, beyn.ts).
+ * 3. The count settles by bisecting panels (argument-principle.ts); the Hankel
+ *    eigenvalues inside are refined by Newton (pole-refine.ts) and deduplicated.
+ * 4. If the count and the poles found disagree: retry with every panel bisected and
+ *    more moments, then cut the piece in two, and finally mark it uncertified.
+ * Cost: one LU per contour node plus 2–3 per pole; each node also does ℓ solves.
+ */
+import { HBAR_MEV_PS } from '../units/constants';
+import { checkCancelled, type NonlinearOperator, type SheetFlags } from './operator';
+import { SparseLuPlan } from './sparse-lu';
+import { settleWinding } from './argument-principle';
+import { contourEigenvalues } from './beyn';
+import {
+  PANEL_ORDER,
+  panelPoints,
+  rectangleContour,
+  referenceVertical,
+  splitRef,
+  type Contour,
+  type ContourNode,
+  type Panel,
+  type PanelRef,
+} from './contour';
+import { normalise, refinePole, type RefinedPole, type RefineSetting } from './pole-refine';
+import type {
+  CertificatePiece,
+  Pole,
+  PoleFactorPlan,
+  PoleSearchOptions,
+  PoleSearchResult,
+  PoleWindow,
+} from './pole-types';
+
+export type { CertificatePiece, Pole, PoleSearchOptions, PoleSearchResult, PoleWindow } from './pole-types';
+
+/** Largest number of Hankel blocks K per side (conditioning of s^p grows with p). */
+const MAX_MOMENTS = 8;
+/** How many times a piece may be cut in two when its count does not match. */
+const MAX_CUT_DEPTH = 3;
+/** Candidates with a relative residual above this after Newton are not poles. */
+const SPURIOUS_RESIDUAL = 1e-8;
+
+interface Piece {
+  contour: Contour;
+  sheet: SheetFlags;
+  /** Threshold interval (open) that Newton iterates must stay in. */
+  stripLo: number;
+  stripHi: number;
+  strip: number;
+  depth: number;
+  winding: number | null;
+  note?: string;
+}
+
+interface FoundPole extends RefinedPole {
+  strip: number;
+  sheet: SheetFlags;
+}
+
+/**
+ * Finds and certifies every pole of `op` in `window`.
+ * @throws RangeError naming the bad field when the window or an option is invalid
+ * @throws WorkCancelled when options.signal is aborted
+ */
+export function findPoles(op: NonlinearOperator, window: PoleWindow, options: PoleSearchOptions = {}): PoleSearchResult {
+  const started = performance.now();
+  validate(op, window, options);
+  const t = op.hopping;
+  const probes = options.probes ?? 6;
+  const tolerance = options.tolerance ?? 1e-12;
+  const maxNodes = options.maxNodes ?? 4000;
+  const plan: PoleFactorPlan = options.plan ?? SparseLuPlan.analyse(op.n, op.colPtr, op.rowIdx, { sites: op.sites });
+  const { emin, emax, gammaMax } = window;
+  const y0 = -gammaMax / 2;
+  const y1 = gammaMax / 2;
+  const random = mulberry32(options.seed ?? 1);
+  const right = randomBlock(op.n, probes, random);
+  const left = randomBlock(op.n, probes, random);
+
+  let factorisations = 0;
+  let nodesSpent = 0;
+  const onFactor = (): void => {
+    checkCancelled(options);
+    factorisations++;
+  };
+
+  // Per-node work: a pure function of (z, sheet, probes), so it can later be farmed out.
+  const nnz = op.colPtr[op.n];
+  const values = new Float64Array(2 * nnz);
+  const solved = new Float64Array(2 * op.n * probes);
+  const evaluateNode = (zRe: number, zIm: number, sheet: SheetFlags): ContourNode => {
+    op.assemble({ re: zRe, im: zIm }, sheet, values);
+    const f = plan.factor(values);
+    onFactor();
+    const { logAbs, arg } = f.logDet();
+    f.solve(right, probes, solved);
+    return { zRe, zIm, logAbs, arg, probed: project(op.n, probes, left, solved) };
+  };
+
+  // The strips between thresholds, with the contour pulled back from each threshold.
+  const cuts = op.thresholds.filter((e) => e > emin && e < emax);
+  const bounds = [emin, ...cuts, emax];
+  const pieces: Piece[] = [];
+  const skipped: string[] = [];
+  const horizontalPanel = Math.max(gammaMax, (emax - emin) / 8);
+  for (let s = 0; s + 1 < bounds.length; s++) {
+    const a = bounds[s];
+    const b = bounds[s + 1];
+    const gap = Math.min(1e-4 * t, 0.01 * (b - a));
+    const leftIsThreshold = s > 0 || op.thresholds.includes(a);
+    const rightIsThreshold = s + 1 < bounds.length - 1 || op.thresholds.includes(b);
+    const x0 = leftIsThreshold ? a + gap : a;
+    const x1 = rightIsThreshold ? b - gap : b;
+    if (!(x1 > x0)) {
+      skipped.push(`[${a}, ${b}]`);
+      continue;
+    }
+    const mid = 0.5 * (a + b);
+    const lo = op.thresholds.filter((e) => e <= a).pop() ?? -Infinity;
+    const hi = op.thresholds.find((e) => e >= b) ?? Infinity;
+    const vertical = { maxPanel: gammaMax };
+    const contour = rectangleContour(
+      x0,
+      x1,
+      y0,
+      y1,
+      { maxPanel: horizontalPanel },
+      leftIsThreshold ? { maxPanel: gammaMax, branchGap: gap } : vertical,
+      rightIsThreshold ? { maxPanel: gammaMax, branchGap: gap } : vertical,
+    );
+    pieces.push({ contour, sheet: op.sheetAt(mid), stripLo: lo, stripHi: hi, strip: s, depth: 0, winding: null });
+  }
+
+  const found: FoundPole[] = [];
+  const done: Piece[] = [];
+  const totalWidth = pieces.reduce((acc, p) => acc + (p.contour.x1 - p.contour.x0), 0);
+  let widthDone = 0;
+  const report = (stage: string, fraction: number): void => options.onProgress?.(stage, Math.min(1, Math.max(0, fraction)));
+
+  const queue = pieces.slice();
+  while (queue.length) {
+    checkCancelled(options);
+    const piece = queue.shift()!;
+    const width = piece.contour.x1 - piece.contour.x0;
+    report('contour', (0.95 * widthDone) / totalWidth);
+    const evaluatePanel = (panel: Panel): boolean => {
+      if (nodesSpent + PANEL_ORDER > maxNodes) return false;
+      const pts = panelPoints(panel);
+      const nodes: ContourNode[] = [];
+      for (let k = 0; k < PANEL_ORDER; k++) nodes.push(evaluateNode(pts[2 * k], pts[2 * k + 1], piece.sheet));
+      nodesSpent += PANEL_ORDER;
+      panel.nodes = nodes;
+      return true;
+    };
+    const setting: RefineSetting = {
+      op,
+      plan,
+      sheet: piece.sheet,
+      stripLo: piece.stripLo,
+      stripHi: piece.stripHi,
+      tolerance,
+      maxSteps: 8,
+      onFactor,
+    };
+
+    let settled = false;
+    for (let attempt = 0; attempt < 2 && !settled; attempt++) {
+      if (attempt > 0) piece.contour.refs = piece.contour.refs.flatMap((r) => splitRef(r));
+      const count = settleWinding(piece.contour, evaluatePanel);
+      piece.winding = count.winding;
+      if (count.winding === null) {
+        piece.note = count.note;
+        break;
+      }
+      const N = count.winding;
+      if (N === 0) {
+        settled = insideCount(found, piece) === 0;
+        continue;
+      }
+      const K = Math.ceil((N + Math.max(2, Math.ceil(N / 2)) + 1) / probes) + attempt;
+      if (K > MAX_MOMENTS) break; // too many poles for the probes: cut the piece instead
+      const eig = contourEigenvalues(piece.contour, probes, K);
+      report('refine', (0.95 * (widthDone + 0.9 * width)) / totalWidth);
+      refineCandidates(eig.values, piece, setting, found, random, op.n);
+      settled = insideCount(found, piece) === N;
+    }
+
+    if (!settled && piece.winding !== null && piece.depth < MAX_CUT_DEPTH) {
+      const halves = cutPiece(piece, found, gammaMax);
+      if (halves) {
+        queue.unshift(...halves);
+        continue;
+      }
+    }
+    if (!settled && piece.winding !== null && !piece.note) {
+      piece.note = `argument principle counts ${piece.winding} pole(s) but ${insideCount(found, piece)} were found`;
+    }
+    done.push(piece);
+    widthDone += width;
+  }
+
+  done.sort((p, q) => p.contour.x0 - q.contour.x0);
+  report('modes', 0.97);
+  const poles: Pole[] = [];
+  const certPieces: CertificatePiece[] = done.map((p) => ({
+    emin: p.contour.x0,
+    emax: p.contour.x1,
+    polesFound: 0,
+    windingNumber: p.winding,
+    certified: false,
+    nodes: distinctNodes(p.contour),
+    ...(p.note ? { note: p.note } : {}),
+  }));
+  const boundTolerance = 1e-10 * t;
+  found.sort((p, q) => p.zRe - q.zRe || p.zIm - q.zIm);
+  for (const f of found) {
+    const k = done.findIndex((p) => p.strip === f.strip && inside(p.contour, f.zRe, f.zIm));
+    if (k < 0) continue; // outside every contour (below the window or in a threshold gap)
+    certPieces[k].polesFound++;
+    if (f.zIm > boundTolerance) continue; // counted, but not a pole of a physical resonance
+    poles.push(describePole(op, f, k, boundTolerance));
+  }
+  for (const c of certPieces) c.certified = c.windingNumber !== null && c.windingNumber === c.polesFound;
+  const certified = certPieces.length > 0 && certPieces.every((c) => c.certified) && skipped.length === 0;
+  const bad = certPieces.filter((c) => !c.certified).length;
+  let summary = certified
+    ? `${poles.length} pole(s) in ${certPieces.length} piece(s); every count confirmed by the argument principle`
+    : `${poles.length} pole(s) in ${certPieces.length} piece(s); ${bad} piece(s) not certified`;
+  const gaps = cuts.length ? `; strips of width ≤ ${formatEnergy(1e-4 * t)} meV at ${cuts.length} threshold(s) are not searched` : '';
+  summary += gaps;
+  if (skipped.length) summary += `; intervals too narrow to search: ${skipped.join(', ')}`;
+  report('done', 1);
+  return {
+    poles,
+    certificate: { pieces: certPieces, certified, summary },
+    stats: { factorisations, seconds: (performance.now() - started) / 1000 },
+  };
+}
+
+/** Newton-refines the Hankel eigenvalues that lie in (or just around) the piece's contour. */
+function refineCandidates(
+  values: Float64Array,
+  piece: Piece,
+  setting: RefineSetting,
+  found: FoundPole[],
+  random: () => number,
+  n: number,
+): void {
+  const c = piece.contour;
+  const mx = 0.05 * (c.x1 - c.x0);
+  const my = 0.05 * (c.y1 - c.y0);
+  const candidates: [number, number][] = [];
+  for (let k = 0; k < values.length / 2; k++) {
+    const re = values[2 * k];
+    const im = values[2 * k + 1];
+    if (re > c.x0 - mx && re < c.x1 + mx && im > c.y0 - my && im < c.y1 + my) candidates.push([re, im]);
+  }
+  // Deep candidates first: an exact duplicate after refinement costs nothing further.
+  candidates.sort((p, q) => p[0] - q[0]);
+  for (const [re, im] of candidates) {
+    const start = randomBlock(n, 1, random);
+    const r = refinePole(setting, re, im, start);
+    if (!r || !(r.residual <= SPURIOUS_RESIDUAL)) continue;
+    addPole(found, { ...r, strip: piece.strip, sheet: piece.sheet }, setting.op.hopping);
+  }
+}
+
+/**
+ * Adds a refined pole unless it repeats one already found: same z to 1e-9·t and
+ * parallel modes. Two poles at the same z with independent modes (a degenerate
+ * pair) are both kept, as the argument principle counts them twice.
+ */
+function addPole(found: FoundPole[], p: FoundPole, t: number): void {
+  for (const q of found) {
+    if (q.strip !== p.strip) continue;
+    if (Math.hypot(q.zRe - p.zRe, q.zIm - p.zIm) > 1e-9 * (t + Math.hypot(p.zRe, p.zIm))) continue;
+    if (overlap(q.right, p.right) > 0.9) return;
+  }
+  found.push(p);
+}
+
+/** |aᴴb| for unit vectors a, b. */
+function overlap(a: Float64Array, b: Float64Array): number {
+  let re = 0;
+  let im = 0;
+  for (let i = 0; i < a.length; i += 2) {
+    re += a[i] * b[i] + a[i + 1] * b[i + 1];
+    im += a[i] * b[i + 1] - a[i + 1] * b[i];
+  }
+  return Math.hypot(re, im);
+}
+
+function inside(c: Contour, re: number, im: number): boolean {
+  return re > c.x0 && re < c.x1 && im > c.y0 && im < c.y1;
+}
+
+function insideCount(found: FoundPole[], piece: Piece): number {
+  return found.filter((f) => f.strip === piece.strip && inside(piece.contour, f.zRe, f.zIm)).length;
+}
+
+function distinctNodes(c: Contour): number {
+  return new Set(c.refs.map((r) => r.panel)).size * PANEL_ORDER;
+}
+
+/**
+ * Cuts a piece by a vertical line near its middle, as far as possible from the
+ * poles already found, reusing the evaluated panels of the bottom and top edges.
+ */
+function cutPiece(piece: Piece, found: FoundPole[], gammaMax: number): [Piece, Piece] | null {
+  const c = piece.contour;
+  const width = c.x1 - c.x0;
+  const poles = found.filter((f) => f.strip === piece.strip && inside(c, f.zRe, f.zIm)).map((f) => f.zRe);
+  let best = 0.5 * (c.x0 + c.x1);
+  let bestScore = -Infinity;
+  for (let k = 1; k < 16; k++) {
+    const x = c.x0 + 0.25 * width + (0.5 * width * k) / 16;
+    const clearance = poles.reduce((m, e) => Math.min(m, Math.abs(e - x)), Infinity);
+    const score = Math.min(clearance, 0.5 * width) - 0.25 * Math.abs(x - 0.5 * (c.x0 + c.x1));
+    if (score > bestScore) {
+      bestScore = score;
+      best = x;
+    }
+  }
+  const x = best;
+  const leftRefs: PanelRef[] = [];
+  const rightRefs: PanelRef[] = [];
+  const bottom: PanelRef[] = [];
+  const top: PanelRef[] = [];
+  const rightEdge: PanelRef[] = [];
+  const leftEdge: PanelRef[] = [];
+  for (const r of c.refs) {
+    const p = r.panel;
+    if (p.aIm === c.y0 && p.bIm === c.y0) bottom.push(r);
+    else if (p.aIm === c.y1 && p.bIm === c.y1) top.push(r);
+    else if (p.aRe === c.x1) rightEdge.push(r);
+    else leftEdge.push(r);
+  }
+  const splitAt = (refs: PanelRef[]): { low: PanelRef[]; high: PanelRef[] } => {
+    const low: PanelRef[] = [];
+    const high: PanelRef[] = [];
+    for (const r of refs) {
+      const p = r.panel;
+      const lo = Math.min(p.aRe, p.bRe);
+      const hi = Math.max(p.aRe, p.bRe);
+      if (hi <= x) low.push(r);
+      else if (lo >= x) high.push(r);
+      else {
+        // a panel straddling the cut becomes two fresh panels, in traversal order
+        const forward = p.bRe > p.aRe;
+        const pa: Panel = { aRe: p.aRe, aIm: p.aIm, bRe: x, bIm: p.bIm, nodes: null };
+        const pb: Panel = { aRe: x, aIm: p.aIm, bRe: p.bRe, bIm: p.bIm, nodes: null };
+        if (forward) {
+          low.push({ panel: pa, reversed: r.reversed });
+          high.push({ panel: pb, reversed: r.reversed });
+        } else {
+          high.push({ panel: pa, reversed: r.reversed });
+          low.push({ panel: pb, reversed: r.reversed });
+        }
+      }
+    }
+    return { low, high };
+  };
+  const b = splitAt(bottom);
+  const tp = splitAt(top);
+  const cutPanels: Panel[] = [];
+  const height = c.y1 - c.y0;
+  const count = Math.max(1, Math.ceil(height / gammaMax - 1e-9));
+  for (let k = 0; k < count; k++) {
+    cutPanels.push({ aRe: x, aIm: c.y0 + (height * k) / count, bRe: x, bIm: k + 1 === count ? c.y1 : c.y0 + (height * (k + 1)) / count, nodes: null });
+  }
+  leftRefs.push(...b.low, ...referenceVertical(cutPanels, false), ...tp.low, ...leftEdge);
+  rightRefs.push(...b.high, ...rightEdge, ...tp.high, ...referenceVertical(cutPanels, true));
+  if (!b.low.length || !b.high.length) return null;
+  const make = (refs: PanelRef[], x0: number, x1: number): Piece => ({
+    ...piece,
+    contour: { x0, x1, y0: c.y0, y1: c.y1, refs },
+    depth: piece.depth + 1,
+    winding: null,
+    note: undefined,
+  });
+  return [make(leftRefs, c.x0, x), make(rightRefs, x, c.x1)];
+}
+
+/** The reported observables of a refined pole (contract, "Observables"). */
+function describePole(op: NonlinearOperator, f: FoundPole, piece: number, boundTolerance: number): Pole {
+  const bound = Math.abs(f.zIm) <= boundTolerance;
+  const width = bound ? 0 : -2 * f.zIm;
+  const z = { re: f.zRe, im: bound ? 0 : f.zIm };
+  const psi = f.right;
+  let norm2 = 0;
+  for (let i = 0; i < psi.length; i++) norm2 += psi[i] * psi[i];
+  const partialWidths: number[] = [];
+  for (let l = 0; l < op.leadCount; l++) partialWidths.push(op.leadWidthForm(z, f.sheet, l, psi) / norm2);
+  const K = petermann(f.left, psi);
+  let nearThreshold: Pole['nearThreshold'] = null;
+  if (!bound) {
+    for (const th of op.thresholds) {
+      const d = Math.abs(f.zRe - th);
+      if (d < 3 * width && (!nearThreshold || d / width < nearThreshold.distanceInWidths)) {
+        nearThreshold = { threshold: th, distanceInWidths: d / width };
+      }
+    }
+  }
+  return {
+    energy: f.zRe,
+    width,
+    lifetimePs: bound ? null : HBAR_MEV_PS / width,
+    quality: bound ? null : f.zRe / width,
+    partialWidths,
+    petermann: K,
+    residual: f.residual,
+    bound,
+    nearThreshold,
+    sheet: f.sheet.map((row) => row.slice()),
+    piece,
+    mode: modeImage(op, psi),
+  };
+}
+
+/** K = (ψ_L†ψ_L)(ψ_R†ψ_R)/|ψ_Lᵀψ_R|². */
+function petermann(l: Float64Array, r: Float64Array): number {
+  let ll = 0;
+  let rr = 0;
+  let re = 0;
+  let im = 0;
+  for (let i = 0; i < r.length; i += 2) {
+    ll += l[i] * l[i] + l[i + 1] * l[i + 1];
+    rr += r[i] * r[i] + r[i + 1] * r[i + 1];
+    re += l[i] * r[i] - l[i + 1] * r[i + 1];
+    im += l[i] * r[i + 1] + l[i + 1] * r[i];
+  }
+  return (ll * rr) / (re * re + im * im);
+}
+
+/**
+ * ψ normalised to Σ|ψ|² = 1 and rotated so its largest-magnitude site is real
+ * positive; ties within 1e-9 relative go to the first site in (i, j) order (contract).
+ */
+export function modeImage(op: NonlinearOperator, psi: Float64Array): Float64Array {
+  const out = Float64Array.from(psi);
+  normalise(out);
+  let maxAbs = 0;
+  for (let s = 0; s < op.n; s++) maxAbs = Math.max(maxAbs, Math.hypot(out[2 * s], out[2 * s + 1]));
+  let pick = -1;
+  for (let s = 0; s < op.n; s++) {
+    if (Math.hypot(out[2 * s], out[2 * s + 1]) < maxAbs * (1 - 1e-9)) continue;
+    if (pick < 0 || op.sites.i[s] < op.sites.i[pick] || (op.sites.i[s] === op.sites.i[pick] && op.sites.j[s] < op.sites.j[pick])) pick = s;
+  }
+  const a = Math.hypot(out[2 * pick], out[2 * pick + 1]);
+  const cr = out[2 * pick] / a;
+  const ci = -out[2 * pick + 1] / a;
+  for (let s = 0; s < op.n; s++) {
+    const xr = out[2 * s], xi = out[2 * s + 1];
+    out[2 * s] = xr * cr - xi * ci;
+    out[2 * s + 1] = xr * ci + xi * cr;
+  }
+  out[2 * pick + 1] = 0;
+  return out;
+}
+
+/** Y = Uᴴ X for column-major n×ℓ blocks U, X; Y row-major ℓ×ℓ. Cost O(nℓ²). */
+function project(n: number, l: number, U: Float64Array, X: Float64Array): Float64Array {
+  const Y = new Float64Array(2 * l * l);
+  for (let a = 0; a < l; a++) {
+    const ua = 2 * a * n;
+    for (let b = 0; b < l; b++) {
+      const xb = 2 * b * n;
+      let re = 0;
+      let im = 0;
+      for (let i = 0; i < 2 * n; i += 2) {
+        const ur = U[ua + i], ui = U[ua + i + 1], xr = X[xb + i], xi = X[xb + i + 1];
+        re += ur * xr + ui * xi;
+        im += ur * xi - ui * xr;
+      }
+      Y[2 * (a * l + b)] = re;
+      Y[2 * (a * l + b) + 1] = im;
+    }
+  }
+  return Y;
+}
+
+/** A column-major n×ℓ block of complex entries uniform in the unit square around 0. */
+function randomBlock(n: number, l: number, random: () => number): Float64Array {
+  const out = new Float64Array(2 * n * l);
+  for (let k = 0; k < out.length; k++) out[k] = 2 * random() - 1;
+  return out;
+}
+
+/** Small seeded generator (mulberry32, common practice, no source) so searches are reproducible. */
+function mulberry32(seed: number): () => number {
+  let a = seed >>> 0;
+  return () => {
+    a = (a + 0x6d2b79f5) >>> 0;
+    let r = Math.imul(a ^ (a >>> 15), 1 | a);
+    r = (r + Math.imul(r ^ (r >>> 7), 61 | r)) ^ r;
+    return ((r ^ (r >>> 14)) >>> 0) / 4294967296;
+  };
+}
+
+function formatEnergy(e: number): string {
+  return e.toPrecision(3);
+}
+
+function validate(op: NonlinearOperator, w: PoleWindow, o: PoleSearchOptions): void {
+  const where = 'findPoles';
+  if (!w || typeof w !== 'object') throw new RangeError(`${where}: window must be an object { emin, emax, gammaMax }`);
+  for (const key of ['emin', 'emax', 'gammaMax'] as const) {
+    if (typeof w[key] !== 'number' || !Number.isFinite(w[key])) throw new RangeError(`${where}: window.${key} must be a finite number (meV), got ${String(w[key])}`);
+  }
+  if (!(w.emax > w.emin)) throw new RangeError(`${where}: window.emax (${w.emax}) must exceed window.emin (${w.emin})`);
+  if (!(w.gammaMax > 0)) throw new RangeError(`${where}: window.gammaMax must be positive (meV), got ${w.gammaMax}`);
+  if (o.probes !== undefined && !(Number.isInteger(o.probes) && o.probes >= 1 && o.probes <= 32)) {
+    throw new RangeError(`${where}: options.probes must be an integer from 1 to 32, got ${o.probes}`);
+  }
+  if (o.maxNodes !== undefined && !(Number.isInteger(o.maxNodes) && o.maxNodes >= 4 * PANEL_ORDER)) {
+    throw new RangeError(`${where}: options.maxNodes must be an integer of at least ${4 * PANEL_ORDER}, got ${o.maxNodes}`);
+  }
+  if (o.tolerance !== undefined && !(o.tolerance > 0 && o.tolerance < 1e-4)) {
+    throw new RangeError(`${where}: options.tolerance must lie in (0, 1e-4), got ${o.tolerance}`);
+  }
+  if (o.seed !== undefined && !Number.isInteger(o.seed)) throw new RangeError(`${where}: options.seed must be an integer, got ${o.seed}`);
+  if (!(op.n > 0) || op.colPtr.length !== op.n + 1) throw new RangeError(`${where}: operator has ${op.n} unknowns but ${op.colPtr.length} column pointers`);
+  if (!(op.hopping > 0)) throw new RangeError(`${where}: operator hopping must be positive, got ${op.hopping}`);
+}
