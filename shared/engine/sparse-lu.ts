@@ -1,0 +1,1016 @@
+/**
+ * Sparse complex LU of T(z) = z − H − Σ(z): a multifrontal factorisation
+ * (Duff & Reid 1983, "The multifrontal solution of indefinite sparse symmetric
+ * linear equations", ACM TOMS 9; Liu 1992, "The multifrontal method for sparse
+ * matrix solution: theory and practice", SIAM Review 34) on the structurally
+ * symmetric pattern, with threshold partial pivoting and delayed pivots.
+ *
+ * Analysis (once per pattern, SparseLuPlan.analyse):
+ *  1. nested-dissection ordering (ordering.ts), geometric when sites are given;
+ *  2. elimination tree of the symmetric pattern (Liu 1986, ACM TOMS 12), postorder;
+ *  3. column counts of L by row subtrees, fundamental supernodes, then relaxed
+ *     amalgamation of small supernodes into their parents (fewer, larger dense
+ *     fronts: JavaScript pays per front, dense kernels are cheap);
+ *  4. the index list of every front, the map of each child's contribution block
+ *     into its parent, and where every matrix entry is assembled.
+ *
+ * Numeric factorisation (SparseLuPlan.factor, thousands of times per pattern):
+ * fronts in postorder; each is assembled from the matrix entries and its
+ * children's contribution blocks (extend-add), its fully-summed block is factorised
+ * by factorFront (dense-complex.ts), the Schur complement goes on a stack for the
+ * parent.
+ *
+ * Pivoting: within a front, rows may be exchanged among the fully-summed rows. A
+ * pivot is accepted when |a_rp| ≥ u·max_r |a_rp| over its whole front column, u =
+ * pivotThreshold (default 0.1, growth ≤ (1 + 1/u) per elimination step). A column
+ * without an acceptable pivot is delayed to the parent front together with one
+ * unused row, so a zero or tiny diagonal does not stop the factorisation; it only
+ * makes the fronts above it larger. At a root nothing can be delayed: a remaining
+ * column that is exactly zero means the matrix is exactly singular
+ * (SingularMatrixError). Limits: many delays make fronts grow (more time and
+ * memory than predicted by factorNonzeros/factorFlops); no scaling or static
+ * pivoting is done, and a nearly singular matrix factorises without error (see
+ * pivotRatio()).
+ *
+ * Result: P·A·Q = L·U with P, Q the row and column orders of the pivots (equal
+ * unless pivoting exchanged rows or delayed columns).
+ */
+import { assertCscPattern } from './complex-csc';
+import { factorFront } from './dense-complex';
+import { invertPermutation, nestedDissectionOrder, symmetricAdjacency, type Adjacency } from './ordering';
+
+export interface LuPlanOptions {
+  /** Lattice coordinates (column i, row j) of every unknown → geometric nested dissection. */
+  sites?: { i: Int32Array; j: Int32Array };
+  /** An elimination order to use instead of nested dissection: perm[k] = original index of the k-th pivot. */
+  permutation?: ArrayLike<number>;
+  /** Threshold u in (0, 1] of the pivot test |a_rp| ≥ u·max|a_·p| (default 0.1; 1 = partial pivoting within fronts). */
+  pivotThreshold?: number;
+}
+
+/** Thrown when a pivot column is exactly zero after elimination: the matrix is exactly singular. */
+export class SingularMatrixError extends Error {
+  /** Original index of the unknown whose column had no nonzero pivot. */
+  readonly column: number;
+  constructor(column: number, detail: string) {
+    super(`The matrix is exactly singular: ${detail}`);
+    this.name = 'SingularMatrixError';
+    this.column = column;
+  }
+}
+
+/** Supernodes whose merged pivot count stays at or below this are always merged into their parent. */
+const AMALGAMATE_ALWAYS = 16;
+/** Up to this size, merging is accepted when at most this fraction of the merged front is explicit zeros. */
+const AMALGAMATE_SMALL = 48;
+const AMALGAMATE_SMALL_ZEROS = 0.4;
+/** Any size: merging accepted when at most this fraction of stored entries are explicit zeros. */
+const AMALGAMATE_ZEROS = 0.05;
+
+export class SparseLuPlan {
+  readonly n: number;
+  readonly factorNonzeros: number;
+  readonly factorFlops: number;
+  /** Number of fronts (supernodes after amalgamation). */
+  readonly frontCount: number;
+  /** Largest front dimension predicted by the analysis. */
+  readonly largestFront: number;
+
+  /** @internal perm[k] = original index of the unknown with label k. */
+  readonly perm: Int32Array;
+  /** @internal Nonzeros of the analysed pattern (values must have length 2·nnz). */
+  readonly nnz: number;
+  private readonly threshold: number;
+  // Supernodes, numbered in postorder; pivots of s are labels first[s]..first[s+1]-1.
+  private readonly first: Int32Array;
+  private readonly parent: Int32Array;
+  private readonly childPtr: Int32Array;
+  private readonly childList: Int32Array;
+  private readonly nonfsPtr: Int32Array;
+  private readonly nonfs: Int32Array;
+  /** For child c: position of each of its non-fully-summed indices in its parent's symbolic front. */
+  private readonly relMap: Int32Array;
+  private readonly asmPtr: Int32Array;
+  private readonly asmEntry: Int32Array;
+  private readonly asmRow: Int32Array;
+  private readonly asmCol: Int32Array;
+  private readonly stackPeak: number;
+  // Scratch shared by factorisations (factor() is synchronous, so one at a time).
+  private front: Float64Array;
+  private cbStack: Float64Array;
+  private delayStack: Int32Array;
+  private readonly map: Int32Array;
+  private save: Float64Array;
+  private rowList: Int32Array;
+  private colList: Int32Array;
+  private relScratch: Int32Array;
+
+  private constructor(n: number, nnz: number, perm: Int32Array, s: SymbolicFronts, threshold: number) {
+    this.n = n;
+    this.nnz = nnz;
+    this.perm = perm;
+    this.threshold = threshold;
+    this.first = s.first;
+    this.parent = s.parent;
+    this.childPtr = s.childPtr;
+    this.childList = s.childList;
+    this.nonfsPtr = s.nonfsPtr;
+    this.nonfs = s.nonfs;
+    this.relMap = s.relMap;
+    this.asmPtr = s.asmPtr;
+    this.asmEntry = s.asmEntry;
+    this.asmRow = s.asmRow;
+    this.asmCol = s.asmCol;
+    this.stackPeak = s.stackPeak;
+    this.factorNonzeros = s.factorNonzeros;
+    this.factorFlops = s.factorFlops;
+    this.frontCount = s.first.length - 1;
+    this.largestFront = s.maxFront;
+    const mx = Math.max(1, s.maxFront);
+    this.front = new Float64Array(2 * mx * mx);
+    this.cbStack = new Float64Array(2 * Math.max(1, s.stackPeak));
+    this.delayStack = new Int32Array(64);
+    this.map = new Int32Array(Math.max(1, n));
+    this.save = new Float64Array(2 * mx);
+    this.rowList = new Int32Array(mx);
+    this.colList = new Int32Array(mx);
+    this.relScratch = new Int32Array(mx);
+  }
+
+  /**
+   * Ordering and symbolic analysis of an n×n pattern (CSC, rows sorted per column).
+   * The pattern is symmetrised (A + Aᵀ) for the analysis; entries present only in
+   * Aᵀ are treated as explicit zeros. Cost: O(nnz(L)) time, O(n + nnz) memory
+   * beyond the front structure.
+   */
+  static analyse(n: number, colPtr: Int32Array, rowIdx: Int32Array, options: LuPlanOptions = {}): SparseLuPlan {
+    assertCscPattern('SparseLuPlan.analyse', n, colPtr, rowIdx);
+    const threshold = options.pivotThreshold ?? 0.1;
+    if (!(threshold > 0 && threshold <= 1)) {
+      throw new RangeError(`SparseLuPlan.analyse: pivotThreshold must be in (0, 1], got ${threshold}`);
+    }
+    if (options.sites && (options.sites.i.length !== n || options.sites.j.length !== n)) {
+      throw new RangeError(
+        `SparseLuPlan.analyse: sites.i and sites.j must have length n = ${n} (got ${options.sites.i.length}, ${options.sites.j.length})`,
+      );
+    }
+    const graph = symmetricAdjacency(n, colPtr, rowIdx);
+    let perm0: Int32Array;
+    if (options.permutation) {
+      if (options.permutation.length !== n) {
+        throw new RangeError(`SparseLuPlan.analyse: permutation has length ${options.permutation.length}, expected n = ${n}`);
+      }
+      perm0 = Int32Array.from(options.permutation);
+      invertPermutation(perm0, 'SparseLuPlan.analyse: permutation');
+    } else {
+      perm0 = nestedDissectionOrder(graph, options.sites);
+    }
+    const { perm, symbolic } = analyseFronts(graph, perm0, colPtr, rowIdx);
+    return new SparseLuPlan(n, colPtr[n], perm, symbolic, threshold);
+  }
+
+  /**
+   * Numeric factorisation of the matrix with the analysed pattern and these CSC
+   * values (interleaved re, im, length 2·nnz). The result owns its storage, so
+   * several factorisations of one plan can be alive at once.
+   * Cost: about factorFlops real flops, 16·factorNonzeros bytes.
+   */
+  factor(values: Float64Array): SparseLuFactors {
+    const nnz = this.nnz;
+    if (values.length !== 2 * nnz) {
+      throw new RangeError(`SparseLuPlan.factor: values has length ${values.length}, expected 2·nnz = ${2 * nnz}`);
+    }
+    for (let e = 0; e < 2 * nnz; e++) {
+      if (!Number.isFinite(values[e])) {
+        throw new RangeError(`SparseLuPlan.factor: entry ${e >> 1} of the values (${e & 1 ? 'imaginary' : 'real'} part) is ${values[e]}`);
+      }
+    }
+    const ns = this.frontCount;
+    const { first, parent, childPtr, childList, nonfsPtr, nonfs, relMap, asmPtr, asmEntry, asmRow, asmCol, map } = this;
+    const valOff = new Float64Array(ns + 1);
+    const idxOff = new Int32Array(ns + 1);
+    const frontDim = new Int32Array(ns);
+    const pivots = new Int32Array(ns);
+    let store = new Float64Array(2 * this.factorNonzeros);
+    let index = new Int32Array(2 * (this.nonfs.length + this.n));
+    // Per supernode: size of its contribution block, how many of its rows/columns are delayed.
+    const cbDim = new Int32Array(ns);
+    const cbStart = new Float64Array(ns);
+    const delayOut = new Int32Array(ns);
+    const delayStart = new Int32Array(ns);
+    let cbTop = 0;
+    let delayTop = 0;
+    let valTop = 0;
+    let idxTop = 0;
+
+    for (let s = 0; s < ns; s++) {
+      const f0 = first[s];
+      const k = first[s + 1] - f0;
+      const c0 = childPtr[s];
+      const c1 = childPtr[s + 1];
+      let d = 0;
+      for (let t = c0; t < c1; t++) d += delayOut[childList[t]];
+      const nf0 = nonfsPtr[s];
+      const nfLen = nonfsPtr[s + 1] - nf0;
+      const m = k + d + nfLen;
+      const kFs = k + d;
+      if (this.front.length < 2 * m * m) this.front = new Float64Array(2 * m * m);
+      if (this.rowList.length < m) this.growLists(m);
+      const F = this.front;
+      const rowList = this.rowList;
+      const colList = this.colList;
+      F.fill(0, 0, 2 * m * m);
+      for (let q = 0; q < k; q++) {
+        rowList[q] = f0 + q;
+        colList[q] = f0 + q;
+      }
+      for (let q = 0; q < nfLen; q++) {
+        rowList[kFs + q] = nonfs[nf0 + q];
+        colList[kFs + q] = nonfs[nf0 + q];
+      }
+      // Matrix entries whose first eliminated index lies in this front.
+      for (let a = asmPtr[s]; a < asmPtr[s + 1]; a++) {
+        let lr = asmRow[a];
+        let lc = asmCol[a];
+        if (lr >= k) lr += d;
+        if (lc >= k) lc += d;
+        const e = asmEntry[a];
+        const o = 2 * (lc * m + lr);
+        F[o] += values[2 * e];
+        F[o + 1] += values[2 * e + 1];
+      }
+      // Extend-add of the children's contribution blocks (they sit on top of the stack, in order).
+      let off = 0;
+      const firstChildStart = c1 > c0 ? cbStart[childList[c0]] : cbTop;
+      const firstDelayStart = c1 > c0 ? delayStart[childList[c0]] : delayTop;
+      for (let t = c0; t < c1; t++) {
+        const c = childList[t];
+        const mc = cbDim[c];
+        const dc = delayOut[c];
+        const ds = delayStart[c];
+        for (let q = 0; q < dc; q++) {
+          map[q] = k + off + q;
+          rowList[k + off + q] = this.delayStack[ds + q];
+          colList[k + off + q] = this.delayStack[ds + dc + q];
+        }
+        const rp = nonfsPtr[c];
+        for (let q = dc; q < mc; q++) {
+          const rel = relMap[rp + q - dc];
+          map[q] = rel < k ? rel : rel + d;
+        }
+        off += dc;
+        const cb = this.cbStack;
+        let src = cbStart[c];
+        for (let jj = 0; jj < mc; jj++) {
+          const dst = 2 * map[jj] * m;
+          for (let ii = 0; ii < mc; ii++) {
+            const o = dst + 2 * map[ii];
+            F[o] += cb[src];
+            F[o + 1] += cb[src + 1];
+            src += 2;
+          }
+        }
+      }
+      cbTop = firstChildStart;
+      delayTop = firstDelayStart;
+
+      if (this.save.length < 2 * m) this.save = new Float64Array(2 * m);
+      const done = factorFront(F, m, kFs, this.threshold, rowList, colList, this.save);
+      if (parent[s] < 0 && done < kFs) {
+        const col = this.perm[colList[done]];
+        throw new SingularMatrixError(col, `no nonzero pivot is left for column ${col} (front ${s} of ${ns}, ${done} of ${kFs} pivots eliminated)`);
+      }
+
+      // Keep L (m×done) and U12 (done×(m−done)) of this front.
+      const need = valTop + 2 * done * (2 * m - done);
+      if (need > store.length) store = growFloat(store, need);
+      for (let c = 0; c < done; c++) store.set(F.subarray(2 * c * m, 2 * (c + 1) * m), valTop + 2 * c * m);
+      let u = valTop + 2 * done * m;
+      for (let c = done; c < m; c++) {
+        store.set(F.subarray(2 * c * m, 2 * c * m + 2 * done), u);
+        u += 2 * done;
+      }
+      if (idxTop + 2 * m > index.length) index = growInt(index, idxTop + 2 * m);
+      index.set(rowList.subarray(0, m), idxTop);
+      index.set(colList.subarray(0, m), idxTop + m);
+      valOff[s] = valTop;
+      idxOff[s] = idxTop;
+      frontDim[s] = m;
+      pivots[s] = done;
+      valTop = need;
+      idxTop += 2 * m;
+
+      // Push the Schur complement and the delayed rows/columns for the parent.
+      const mc = m - done;
+      cbDim[s] = mc;
+      cbStart[s] = cbTop;
+      delayOut[s] = kFs - done;
+      delayStart[s] = delayTop;
+      if (mc > 0) {
+        if (cbTop + 2 * mc * mc > this.cbStack.length) this.cbStack = growFloat(this.cbStack, cbTop + 2 * mc * mc);
+        const cb = this.cbStack;
+        let dst = cbTop;
+        for (let c = done; c < m; c++) {
+          cb.set(F.subarray(2 * (c * m + done), 2 * (c * m + m)), dst);
+          dst += 2 * mc;
+        }
+        cbTop = dst;
+      }
+      const dOut = kFs - done;
+      if (dOut > 0) {
+        if (delayTop + 2 * dOut > this.delayStack.length) this.delayStack = growInt(this.delayStack, delayTop + 2 * dOut);
+        this.delayStack.set(rowList.subarray(done, kFs), delayTop);
+        this.delayStack.set(colList.subarray(done, kFs), delayTop + dOut);
+        delayTop += 2 * dOut;
+      }
+    }
+    valOff[ns] = valTop;
+    idxOff[ns] = idxTop;
+    return new SparseLuFactors(this.n, this.perm, store, index, valOff, idxOff, frontDim, pivots);
+  }
+
+  private growLists(m: number): void {
+    this.rowList = new Int32Array(m);
+    this.colList = new Int32Array(m);
+    this.relScratch = new Int32Array(m);
+  }
+}
+
+export class SparseLuFactors {
+  readonly n: number;
+  private work: Float64Array = new Float64Array(0);
+  private work2: Float64Array = new Float64Array(0);
+  private local: Float64Array = new Float64Array(0);
+  private local2: Float64Array = new Float64Array(0);
+  private readonly maxFront: number;
+
+  /** @internal Built by SparseLuPlan.factor. */
+  constructor(
+    n: number,
+    private readonly perm: Int32Array,
+    private readonly store: Float64Array,
+    private readonly index: Int32Array,
+    private readonly valOff: Float64Array,
+    private readonly idxOff: Int32Array,
+    private readonly frontDim: Int32Array,
+    private readonly pivots: Int32Array,
+  ) {
+    this.n = n;
+    let mx = 0;
+    for (let s = 0; s < frontDim.length; s++) if (frontDim[s] > mx) mx = frontDim[s];
+    this.maxFront = mx;
+  }
+
+  /**
+   * Solves A X = B in place or into out; B is column-major n×nrhs, interleaved
+   * complex (length 2·n·nrhs). Internally the right-hand sides are interleaved per
+   * unknown so every update runs over nrhs contiguous values.
+   * Cost: 8·nrhs·(2·nnz(L+U)) real flops, about.
+   */
+  solve(b: Float64Array, nrhs = 1, out?: Float64Array): Float64Array {
+    return this.run(b, nrhs, out, false);
+  }
+
+  /** Solves Aᵀ X = B (plain transpose, not conjugate), same layout and cost as solve(). */
+  solveTranspose(b: Float64Array, nrhs = 1, out?: Float64Array): Float64Array {
+    return this.run(b, nrhs, out, true);
+  }
+
+  /**
+   * log det A = logAbs + i·arg with arg in (−π, π]: the sum of log u_tt over the
+   * pivots plus iπ for an odd number of row and column exchanges. Cost: O(n).
+   */
+  logDet(): { logAbs: number; arg: number } {
+    let logAbs = 0;
+    let arg = 0;
+    const rowOrder = new Int32Array(this.n);
+    const colOrder = new Int32Array(this.n);
+    let t = 0;
+    this.forEachPivot((re, im, row, col) => {
+      const a = Math.abs(re), b = Math.abs(im);
+      const big = Math.max(a, b), small = Math.min(a, b);
+      const ratio = small / big;
+      logAbs += Math.log(big) + 0.5 * Math.log1p(ratio * ratio);
+      arg += Math.atan2(im, re);
+      rowOrder[t] = row;
+      colOrder[t] = col;
+      t++;
+    });
+    if ((permutationParity(rowOrder) ^ permutationParity(colOrder)) === 1) arg += Math.PI;
+    return { logAbs, arg: wrapAngle(arg) };
+  }
+
+  /** Smallest |pivot| / largest |pivot|, a cheap conditioning hint (1 for n = 0). */
+  pivotRatio(): number {
+    let lo = Infinity;
+    let hi = 0;
+    this.forEachPivot((re, im) => {
+      const a = Math.hypot(re, im);
+      if (a < lo) lo = a;
+      if (a > hi) hi = a;
+    });
+    return hi > 0 ? lo / hi : 1;
+  }
+
+  private forEachPivot(fn: (re: number, im: number, row: number, col: number) => void): void {
+    const { store, index, valOff, idxOff, frontDim, pivots } = this;
+    for (let s = 0; s < frontDim.length; s++) {
+      const m = frontDim[s];
+      const k = pivots[s];
+      const v = valOff[s];
+      const ix = idxOff[s];
+      for (let t = 0; t < k; t++) {
+        const o = v + 2 * (t * m + t);
+        fn(store[o], store[o + 1], index[ix + t], index[ix + m + t]);
+      }
+    }
+  }
+
+  private run(b: Float64Array, nrhs: number, out: Float64Array | undefined, transpose: boolean): Float64Array {
+    const n = this.n;
+    if (!Number.isInteger(nrhs) || nrhs < 1) throw new RangeError(`SparseLuFactors.solve: nrhs must be a positive integer, got ${nrhs}`);
+    const len = 2 * n * nrhs;
+    if (b.length < len) throw new RangeError(`SparseLuFactors.solve: b has length ${b.length}, expected 2·n·nrhs = ${len}`);
+    const x = out ?? b;
+    if (x.length < len) throw new RangeError(`SparseLuFactors.solve: out has length ${x.length}, expected 2·n·nrhs = ${len}`);
+    if (this.work.length < len) {
+      this.work = new Float64Array(len);
+      this.work2 = new Float64Array(len);
+    }
+    const ll = 2 * this.maxFront * nrhs;
+    if (this.local.length < ll) {
+      this.local = new Float64Array(ll);
+      this.local2 = new Float64Array(ll);
+    }
+    const w1 = this.work;
+    const w2 = this.work2;
+    const perm = this.perm;
+    // Gather into per-unknown layout: w1[2·(label·nrhs + r)].
+    for (let r = 0; r < nrhs; r++) {
+      const bo = 2 * n * r;
+      for (let lab = 0; lab < n; lab++) {
+        const src = bo + 2 * perm[lab];
+        const dst = 2 * (lab * nrhs + r);
+        w1[dst] = b[src];
+        w1[dst + 1] = b[src + 1];
+      }
+    }
+    if (transpose) this.transposeSweeps(w1, w2, nrhs);
+    else this.sweeps(w1, w2, nrhs);
+    for (let r = 0; r < nrhs; r++) {
+      const bo = 2 * n * r;
+      for (let lab = 0; lab < n; lab++) {
+        const dst = bo + 2 * perm[lab];
+        const src = 2 * (lab * nrhs + r);
+        x[dst] = w2[src];
+        x[dst + 1] = w2[src + 1];
+      }
+    }
+    return x;
+  }
+
+  /** L y = P b (y kept at row labels in y), then U w = y (w at column labels in x). */
+  private sweeps(y: Float64Array, x: Float64Array, nrhs: number): void {
+    const { store, index, valOff, idxOff, frontDim, pivots } = this;
+    const X = this.local;
+    const Z = this.local2;
+    const ns = frontDim.length;
+    const w = 2 * nrhs;
+    for (let s = 0; s < ns; s++) {
+      const m = frontDim[s];
+      const k = pivots[s];
+      if (k === 0) continue;
+      const v = valOff[s];
+      const ix = idxOff[s];
+      gather(y, index, ix, m, X, w);
+      for (let t = 0; t < k; t++) {
+        const lc = v + 2 * t * m;
+        const xt = t * w;
+        for (let i = t + 1; i < m; i++) {
+          const lr = store[lc + 2 * i], li = store[lc + 2 * i + 1];
+          if (lr === 0 && li === 0) continue;
+          const xi = i * w;
+          for (let q = 0; q < w; q += 2) {
+            const ar = X[xt + q], ai = X[xt + q + 1];
+            X[xi + q] -= lr * ar - li * ai;
+            X[xi + q + 1] -= lr * ai + li * ar;
+          }
+        }
+      }
+      scatter(y, index, ix, m, X, w);
+    }
+    for (let s = ns - 1; s >= 0; s--) {
+      const m = frontDim[s];
+      const k = pivots[s];
+      if (k === 0) continue;
+      const v = valOff[s];
+      const ix = idxOff[s];
+      gather(y, index, ix, k, X, w);
+      gather(x, index, ix + m + k, m - k, Z, w);
+      // X −= U12 · x_rest
+      let u = v + 2 * k * m;
+      for (let j = 0; j < m - k; j++) {
+        const zj = j * w;
+        for (let i = 0; i < k; i++) {
+          const ur = store[u], ui = store[u + 1];
+          u += 2;
+          if (ur === 0 && ui === 0) continue;
+          const xi = i * w;
+          for (let q = 0; q < w; q += 2) {
+            const ar = Z[zj + q], ai = Z[zj + q + 1];
+            X[xi + q] -= ur * ar - ui * ai;
+            X[xi + q + 1] -= ur * ai + ui * ar;
+          }
+        }
+      }
+      // Back substitution with U11 (upper triangle of the front's first k columns).
+      for (let t = k - 1; t >= 0; t--) {
+        const uc = v + 2 * t * m;
+        const dr = store[uc + 2 * t], di = store[uc + 2 * t + 1];
+        const den = dr * dr + di * di;
+        const ir = dr / den, ii = -di / den;
+        const xt = t * w;
+        for (let q = 0; q < w; q += 2) {
+          const ar = X[xt + q], ai = X[xt + q + 1];
+          X[xt + q] = ar * ir - ai * ii;
+          X[xt + q + 1] = ar * ii + ai * ir;
+        }
+        for (let i = 0; i < t; i++) {
+          const ur = store[uc + 2 * i], ui = store[uc + 2 * i + 1];
+          if (ur === 0 && ui === 0) continue;
+          const xi = i * w;
+          for (let q = 0; q < w; q += 2) {
+            const ar = X[xt + q], ai = X[xt + q + 1];
+            X[xi + q] -= ur * ar - ui * ai;
+            X[xi + q + 1] -= ur * ai + ui * ar;
+          }
+        }
+      }
+      scatter(x, index, ix + m, k, X, w);
+    }
+  }
+
+  /** Uᵀ z = Qᵀ b (z at column labels in z), then Lᵀ w = z (w at row labels in x). */
+  private transposeSweeps(z: Float64Array, x: Float64Array, nrhs: number): void {
+    const { store, index, valOff, idxOff, frontDim, pivots } = this;
+    const X = this.local;
+    const Z = this.local2;
+    const ns = frontDim.length;
+    const w = 2 * nrhs;
+    for (let s = 0; s < ns; s++) {
+      const m = frontDim[s];
+      const k = pivots[s];
+      if (k === 0) continue;
+      const v = valOff[s];
+      const ix = idxOff[s];
+      gather(z, index, ix + m, m, X, w);
+      // U11ᵀ forward: x_t = (b_t − Σ_{i<t} U[i,t] x_i) / U[t,t]
+      for (let t = 0; t < k; t++) {
+        const uc = v + 2 * t * m;
+        const xt = t * w;
+        for (let i = 0; i < t; i++) {
+          const ur = store[uc + 2 * i], ui = store[uc + 2 * i + 1];
+          if (ur === 0 && ui === 0) continue;
+          const xi = i * w;
+          for (let q = 0; q < w; q += 2) {
+            const ar = X[xi + q], ai = X[xi + q + 1];
+            X[xt + q] -= ur * ar - ui * ai;
+            X[xt + q + 1] -= ur * ai + ui * ar;
+          }
+        }
+        const dr = store[uc + 2 * t], di = store[uc + 2 * t + 1];
+        const den = dr * dr + di * di;
+        const ir = dr / den, ii = -di / den;
+        for (let q = 0; q < w; q += 2) {
+          const ar = X[xt + q], ai = X[xt + q + 1];
+          X[xt + q] = ar * ir - ai * ii;
+          X[xt + q + 1] = ar * ii + ai * ir;
+        }
+      }
+      // Rest columns: b_j −= Σ_i U12[i,j] x_i
+      let u = v + 2 * k * m;
+      for (let j = 0; j < m - k; j++) {
+        const xj = (k + j) * w;
+        for (let i = 0; i < k; i++) {
+          const ur = store[u], ui = store[u + 1];
+          u += 2;
+          if (ur === 0 && ui === 0) continue;
+          const xi = i * w;
+          for (let q = 0; q < w; q += 2) {
+            const ar = X[xi + q], ai = X[xi + q + 1];
+            X[xj + q] -= ur * ar - ui * ai;
+            X[xj + q + 1] -= ur * ai + ui * ar;
+          }
+        }
+      }
+      scatter(z, index, ix + m, m, X, w);
+    }
+    for (let s = ns - 1; s >= 0; s--) {
+      const m = frontDim[s];
+      const k = pivots[s];
+      if (k === 0) continue;
+      const v = valOff[s];
+      const ix = idxOff[s];
+      gather(z, index, ix + m, k, X, w);
+      gather(x, index, ix + k, m - k, Z, w);
+      for (let t = k - 1; t >= 0; t--) {
+        const lc = v + 2 * t * m;
+        const xt = t * w;
+        // x_t −= Σ_{i>t} L[i,t] x_i over the rest rows (in Z) and the later pivots of this front (in X).
+        for (let i = m - 1; i > t; i--) {
+          const lr = store[lc + 2 * i], li = store[lc + 2 * i + 1];
+          if (lr === 0 && li === 0) continue;
+          const src = i >= k ? Z : X;
+          const si = (i >= k ? i - k : i) * w;
+          for (let q = 0; q < w; q += 2) {
+            const ar = src[si + q], ai = src[si + q + 1];
+            X[xt + q] -= lr * ar - li * ai;
+            X[xt + q + 1] -= lr * ai + li * ar;
+          }
+        }
+      }
+      scatter(x, index, ix, k, X, w);
+    }
+  }
+}
+
+/** Copies rows index[ix..ix+count) of the per-unknown array v into the dense block X (w doubles per row). */
+function gather(v: Float64Array, index: Int32Array, ix: number, count: number, X: Float64Array, w: number): void {
+  for (let i = 0; i < count; i++) {
+    const src = index[ix + i] * w;
+    const dst = i * w;
+    for (let q = 0; q < w; q++) X[dst + q] = v[src + q];
+  }
+}
+
+function scatter(v: Float64Array, index: Int32Array, ix: number, count: number, X: Float64Array, w: number): void {
+  for (let i = 0; i < count; i++) {
+    const dst = index[ix + i] * w;
+    const src = i * w;
+    for (let q = 0; q < w; q++) v[dst + q] = X[src + q];
+  }
+}
+
+function growFloat(a: Float64Array, need: number): Float64Array<ArrayBuffer> {
+  const b = new Float64Array(Math.max(need, Math.ceil(a.length * 1.5)));
+  b.set(a);
+  return b;
+}
+
+function growInt(a: Int32Array, need: number): Int32Array<ArrayBuffer> {
+  const b = new Int32Array(Math.max(need, Math.ceil(a.length * 1.5)));
+  b.set(a);
+  return b;
+}
+
+/** 0 for an even permutation, 1 for an odd one (by cycle count). Cost: O(n). */
+function permutationParity(p: Int32Array): number {
+  const n = p.length;
+  const seen = new Uint8Array(n);
+  let parity = 0;
+  for (let s = 0; s < n; s++) {
+    if (seen[s]) continue;
+    let len = 0;
+    for (let v = s; !seen[v]; v = p[v]) {
+      seen[v] = 1;
+      len++;
+    }
+    parity ^= (len - 1) & 1;
+  }
+  return parity;
+}
+
+/** Reduces an angle to (−π, π]. */
+function wrapAngle(a: number): number {
+  const twoPi = 2 * Math.PI;
+  let r = a - twoPi * Math.round(a / twoPi);
+  if (r <= -Math.PI) r += twoPi;
+  if (r > Math.PI) r -= twoPi;
+  return r;
+}
+
+/** Everything the numeric phase needs about the fronts, from the symbolic analysis. */
+interface SymbolicFronts {
+  first: Int32Array;
+  parent: Int32Array;
+  childPtr: Int32Array;
+  childList: Int32Array;
+  nonfsPtr: Int32Array;
+  nonfs: Int32Array;
+  relMap: Int32Array;
+  asmPtr: Int32Array;
+  asmEntry: Int32Array;
+  asmRow: Int32Array;
+  asmCol: Int32Array;
+  stackPeak: number;
+  factorNonzeros: number;
+  factorFlops: number;
+  maxFront: number;
+}
+
+/**
+ * Elimination tree, postorder, column counts, supernodes with amalgamation, front
+ * index lists and assembly maps, for the elimination order perm0.
+ * Returns the final order (a postorder of the amalgamated tree, equivalent to perm0
+ * in fill) and the front structure in its labels.
+ */
+function analyseFronts(
+  graph: Adjacency,
+  perm0: Int32Array,
+  colPtr: Int32Array,
+  rowIdx: Int32Array,
+): { perm: Int32Array; symbolic: SymbolicFronts } {
+  const n = graph.n;
+  const { ptr, adj } = graph;
+  const inv0 = invertPermutation(perm0);
+
+  // Elimination tree with path compression (Liu 1986), labels = positions in perm0.
+  const parent0 = new Int32Array(n).fill(-1);
+  const ancestor = new Int32Array(n).fill(-1);
+  for (let k = 0; k < n; k++) {
+    const v = perm0[k];
+    for (let e = ptr[v]; e < ptr[v + 1]; e++) {
+      let i = inv0[adj[e]];
+      while (i !== -1 && i < k) {
+        const next = ancestor[i];
+        ancestor[i] = k;
+        if (next === -1) parent0[i] = k;
+        i = next;
+      }
+    }
+  }
+  // Column counts of L (diagonal included) by row subtrees: row i of L is the union
+  // of the tree paths from each k < i adjacent to i up to i. Cost O(nnz(L)).
+  const count0 = new Int32Array(n);
+  const mark = new Int32Array(n).fill(-1);
+  for (let i = 0; i < n; i++) {
+    mark[i] = i;
+    count0[i]++;
+    const v = perm0[i];
+    for (let e = ptr[v]; e < ptr[v + 1]; e++) {
+      let k = inv0[adj[e]];
+      if (k > i) continue;
+      while (mark[k] !== i) {
+        mark[k] = i;
+        count0[k]++;
+        k = parent0[k];
+      }
+    }
+  }
+  const post = postorder(parent0);
+  const ipost = invertPermutation(post);
+  // Labels 1: postorder of the elimination tree.
+  const parent1 = new Int32Array(n);
+  const count1 = new Int32Array(n);
+  for (let t = 0; t < n; t++) {
+    const k = post[t];
+    parent1[t] = parent0[k] < 0 ? -1 : ipost[parent0[k]];
+    count1[t] = count0[k];
+  }
+  const childCount = new Int32Array(n);
+  for (let t = 0; t < n; t++) if (parent1[t] >= 0) childCount[parent1[t]]++;
+  // Fundamental supernodes: t joins t−1 when t is its only child's parent and the structure nests.
+  const snOf1 = new Int32Array(n);
+  const snFirst: number[] = [];
+  for (let t = 0; t < n; t++) {
+    if (t > 0 && parent1[t - 1] === t && childCount[t] === 1 && count1[t - 1] === count1[t] + 1) {
+      snOf1[t] = snFirst.length - 1;
+    } else {
+      snOf1[t] = snFirst.length;
+      snFirst.push(t);
+    }
+  }
+  const ns1 = snFirst.length;
+  snFirst.push(n);
+  const snParent1 = new Int32Array(ns1);
+  const kS = new Float64Array(ns1);
+  const mS = new Float64Array(ns1);
+  const nzS = new Float64Array(ns1);
+  for (let s = 0; s < ns1; s++) {
+    const f = snFirst[s];
+    const l = snFirst[s + 1] - 1;
+    snParent1[s] = parent1[l] < 0 ? -1 : snOf1[parent1[l]];
+    kS[s] = l - f + 1;
+    mS[s] = count1[f];
+    nzS[s] = kS[s] * (2 * mS[s] - kS[s]);
+  }
+  // Relaxed amalgamation, children before parents (supernodes are in postorder).
+  const mergedInto = new Int32Array(ns1).fill(-1);
+  for (let s = 0; s < ns1; s++) {
+    const p = snParent1[s];
+    if (p < 0) continue;
+    const k = kS[s] + kS[p];
+    const m = kS[s] + mS[p];
+    const stored = k * (2 * m - k);
+    const zeros = stored - nzS[s] - nzS[p];
+    if (k <= AMALGAMATE_ALWAYS || (k <= AMALGAMATE_SMALL && zeros <= AMALGAMATE_SMALL_ZEROS * stored) || zeros <= AMALGAMATE_ZEROS * stored) {
+      mergedInto[s] = p;
+      kS[p] = k;
+      mS[p] = m;
+      nzS[p] += nzS[s];
+    }
+  }
+  // Representatives (the topmost member of each merged group) and the merged tree.
+  const rep = new Int32Array(ns1);
+  for (let s = ns1 - 1; s >= 0; s--) rep[s] = mergedInto[s] < 0 ? s : rep[mergedInto[s]];
+  const groupId = new Int32Array(ns1).fill(-1);
+  let ng = 0;
+  for (let s = 0; s < ns1; s++) if (rep[s] === s) groupId[s] = ng++;
+  const gParent = new Int32Array(ng);
+  for (let s = 0; s < ns1; s++) {
+    if (rep[s] !== s) continue;
+    gParent[groupId[s]] = snParent1[s] < 0 ? -1 : groupId[rep[snParent1[s]]];
+  }
+  // Members of each group, in ascending label order (they are a valid elimination order).
+  const memPtr = new Int32Array(ng + 1);
+  for (let s = 0; s < ns1; s++) memPtr[groupId[rep[s]] + 1]++;
+  for (let g = 0; g < ng; g++) memPtr[g + 1] += memPtr[g];
+  const memList = new Int32Array(ns1);
+  const memFill = memPtr.slice(0, ng);
+  for (let s = 0; s < ns1; s++) memList[memFill[groupId[rep[s]]]++] = s;
+  // Labels 2: postorder of the group tree; pivots of each group contiguous.
+  const gPost = postorder(gParent);
+  const perm = new Int32Array(n);
+  const first = new Int32Array(ng + 1);
+  const gNew = new Int32Array(ng);
+  let lab = 0;
+  for (let t = 0; t < ng; t++) {
+    const g = gPost[t];
+    gNew[g] = t;
+    first[t] = lab;
+    for (let q = memPtr[g]; q < memPtr[g + 1]; q++) {
+      const s = memList[q];
+      for (let c = snFirst[s]; c < snFirst[s + 1]; c++) perm[lab++] = perm0[post[c]];
+    }
+  }
+  first[ng] = n;
+  const parent = new Int32Array(ng);
+  for (let g = 0; g < ng; g++) parent[gNew[g]] = gParent[g] < 0 ? -1 : gNew[gParent[g]];
+  const inv = invertPermutation(perm);
+  const frontOf = new Int32Array(n);
+  for (let s = 0; s < ng; s++) for (let t = first[s]; t < first[s + 1]; t++) frontOf[t] = s;
+  // Children lists in ascending order (= the order their blocks are pushed).
+  const childPtr = new Int32Array(ng + 1);
+  for (let s = 0; s < ng; s++) if (parent[s] >= 0) childPtr[parent[s] + 1]++;
+  for (let s = 0; s < ng; s++) childPtr[s + 1] += childPtr[s];
+  const childList = new Int32Array(Math.max(0, ng - 1));
+  const childFill = childPtr.slice(0, ng);
+  for (let s = 0; s < ng; s++) if (parent[s] >= 0) childList[childFill[parent[s]]++] = s;
+
+  // Front structures: pivots ∪ children's blocks ∪ later neighbours of the pivots.
+  // Entries of A by row too, so each entry is assembled where its smaller label is eliminated.
+  const nnz = colPtr[n];
+  const rowPtr = new Int32Array(n + 1);
+  for (let e = 0; e < nnz; e++) rowPtr[rowIdx[e] + 1]++;
+  for (let r = 0; r < n; r++) rowPtr[r + 1] += rowPtr[r];
+  const rowEntry = new Int32Array(nnz);
+  const rowCol = new Int32Array(nnz);
+  const rowFill = rowPtr.slice(0, n);
+  for (let c = 0; c < n; c++) {
+    for (let e = colPtr[c]; e < colPtr[c + 1]; e++) {
+      const q = rowFill[rowIdx[e]]++;
+      rowEntry[q] = e;
+      rowCol[q] = c;
+    }
+  }
+  const nonfsChunks: Int32Array[] = [];
+  const nonfsPtr = new Int32Array(ng + 1);
+  const relMap: number[] = [];
+  const stamp = new Int32Array(n).fill(-1);
+  const pos = new Int32Array(n);
+  const asmPtr = new Int32Array(ng + 1);
+  const asmEntry = new Int32Array(nnz);
+  const asmRow = new Int32Array(nnz);
+  const asmCol = new Int32Array(nnz);
+  let asmTop = 0;
+  let list = new Int32Array(64);
+  let factorNonzeros = 0;
+  let factorFlops = 0;
+  let maxFront = 0;
+  let stack = 0;
+  let stackPeak = 0;
+  const cbSize = new Float64Array(ng);
+  for (let s = 0; s < ng; s++) {
+    const f = first[s];
+    const l = first[s + 1] - 1;
+    const k = l - f + 1;
+    let len = 0;
+    const push = (v: number): void => {
+      if (v > l && stamp[v] !== s) {
+        stamp[v] = s;
+        if (len === list.length) list = growInt(list, 2 * len);
+        list[len++] = v;
+      }
+    };
+    for (let t = childPtr[s]; t < childPtr[s + 1]; t++) {
+      const c = childList[t];
+      const chunk = nonfsChunks[c];
+      for (let q = 0; q < chunk.length; q++) push(chunk[q]);
+    }
+    for (let t = f; t <= l; t++) {
+      const v = perm[t];
+      for (let e = ptr[v]; e < ptr[v + 1]; e++) push(inv[adj[e]]);
+    }
+    const nf = list.slice(0, len).sort();
+    nonfsChunks.push(nf);
+    nonfsPtr[s + 1] = nonfsPtr[s] + len;
+    for (let q = 0; q < len; q++) pos[nf[q]] = k + q;
+    for (let t = f; t <= l; t++) pos[t] = t - f;
+    // Where each child's block lands in this front (symbolic positions).
+    for (let t = childPtr[s]; t < childPtr[s + 1]; t++) {
+      const c = childList[t];
+      const chunk = nonfsChunks[c];
+      for (let q = 0; q < chunk.length; q++) relMap[nonfsPtr[c] + q] = pos[chunk[q]];
+    }
+    // Matrix entries (r, c) with min(label r, label c) in this front.
+    for (let t = f; t <= l; t++) {
+      const v = perm[t];
+      for (let e = colPtr[v]; e < colPtr[v + 1]; e++) {
+        const r = inv[rowIdx[e]];
+        if (r < f) continue;
+        asmEntry[asmTop] = e;
+        asmRow[asmTop] = pos[r];
+        asmCol[asmTop] = t - f;
+        asmTop++;
+      }
+      for (let q = rowPtr[v]; q < rowPtr[v + 1]; q++) {
+        const c = inv[rowCol[q]];
+        if (c <= l) continue;
+        asmEntry[asmTop] = rowEntry[q];
+        asmRow[asmTop] = t - f;
+        asmCol[asmTop] = pos[c];
+        asmTop++;
+      }
+    }
+    asmPtr[s + 1] = asmTop;
+    const m = k + len;
+    if (m > maxFront) maxFront = m;
+    factorNonzeros += k * (2 * m - k);
+    for (let t = 0; t < k; t++) {
+      const r = m - t - 1;
+      factorFlops += 8 * r * r + 6 * r;
+    }
+    // Contribution-block stack: children popped, this block pushed.
+    for (let t = childPtr[s]; t < childPtr[s + 1]; t++) stack -= cbSize[childList[t]];
+    cbSize[s] = len * len;
+    stack += cbSize[s];
+    if (stack > stackPeak) stackPeak = stack;
+  }
+  if (asmTop !== nnz) throw new Error(`SparseLuPlan.analyse: internal error, ${asmTop} of ${nnz} entries placed in fronts`);
+  const nonfs = new Int32Array(nonfsPtr[ng]);
+  for (let s = 0; s < ng; s++) nonfs.set(nonfsChunks[s], nonfsPtr[s]);
+  return {
+    perm,
+    symbolic: {
+      first,
+      parent,
+      childPtr,
+      childList,
+      nonfsPtr,
+      nonfs,
+      relMap: Int32Array.from(relMap),
+      asmPtr,
+      asmEntry,
+      asmRow,
+      asmCol,
+      stackPeak,
+      factorNonzeros,
+      factorFlops,
+      maxFront,
+    },
+  };
+}
+
+/** Postorder of a forest given by parent[] (−1 for roots): post[t] = node visited t-th. Cost O(n). */
+function postorder(parent: Int32Array): Int32Array {
+  const n = parent.length;
+  const head = new Int32Array(n).fill(-1);
+  const next = new Int32Array(n).fill(-1);
+  // Children linked in descending order so they are visited ascending.
+  for (let v = n - 1; v >= 0; v--) {
+    const p = parent[v];
+    if (p < 0) continue;
+    next[v] = head[p];
+    head[p] = v;
+  }
+  const post = new Int32Array(n);
+  const stack = new Int32Array(n);
+  let t = 0;
+  for (let root = 0; root < n; root++) {
+    if (parent[root] >= 0) continue;
+    let top = 0;
+    stack[0] = root;
+    while (top >= 0) {
+      const v = stack[top];
+      const c = head[v];
+      if (c === -1) {
+        post[t++] = v;
+        top--;
+      } else {
+        head[v] = next[c];
+        stack[++top] = c;
+      }
+    }
+  }
+  return post;
+}
