@@ -1,0 +1,275 @@
+/**
+ * Transmission through the open cavity at real energies (docs/physics-model.md,
+ * "Observables"): S = −1 + i·W†GW in the open channels, G = T(E)⁻¹ with
+ * T(E) = E − H − Σ(E), W the coupling columns sqrt(2t sin k_m)·χ_m (with mouth
+ * phases), so that T(ℓ→ℓ') = Σ_{a∈ℓ', b∈ℓ}|S_ab|² = Tr[Γ_ℓ' G Γ_ℓ G†]
+ * (Fisher & Lee, Phys. Rev. B 23, 6851 (1981); Mahaux & Weidenmüller, "Shell-Model
+ * Approach to Nuclear Reactions" (1969) for the S-matrix form).
+ * Conductance in units of 2e²/h (spin degenerate): G/(2e²/h) = T. Energies in meV.
+ * Cost per energy: one sparse LU of T(E) plus N_open solves.
+ */
+import { checkCancelled, type WorkControl } from './operator';
+import { SparseLuPlan } from './sparse-lu';
+import type { EffectiveHamiltonian } from './effective-hamiltonian';
+
+/** Everything computed at one real energy. */
+export interface TransmissionPoint {
+  /** E (meV). */
+  energy: number;
+  /** transmission[from][to] = T(from→to); the diagonal is 0 (see reflection). */
+  transmission: number[][];
+  /** R_ℓ = Σ over ℓ's open channels of |S_ℓℓ|². */
+  reflection: number[];
+  /** Open channel count N_ℓ of every lead. */
+  channels: number[];
+  /** Two-terminal conductance T(0→1) in units of 2e²/h; null with fewer than two leads. */
+  conductance: number | null;
+  /** max_ℓ |R_ℓ + Σ_ℓ' T(ℓ→ℓ') − N_ℓ| (current conservation). */
+  currentResidual: number;
+  /** max |(S†S − 1)_ab| over the open channels. */
+  unitarityResidual: number;
+  /** arg det T(E) (rad, wrapped to (−π, π]); it drops by about π across a narrow resonance. */
+  detPhase: number;
+  /** Open-channel S matrix, row-major interleaved (N_open²); only when asked for. */
+  sMatrix?: Float64Array;
+  /** Lead and 1-based channel of each S row/column; only with sMatrix. */
+  sChannels?: { lead: number; channel: number }[];
+}
+
+/** A reusable evaluator: one symbolic analysis of T's pattern serves every energy. */
+export class TransmissionSolver {
+  private readonly plan: SparseLuPlan;
+  private readonly values: Float64Array;
+
+  constructor(readonly op: EffectiveHamiltonian, plan?: SparseLuPlan) {
+    this.plan = plan ?? SparseLuPlan.analyse(op.n, op.colPtr, op.rowIdx, { sites: op.sites });
+    this.values = new Float64Array(2 * op.rowIdx.length);
+  }
+
+  /** Transmission, reflection, S matrix checks and det phase at a real energy E (meV). */
+  at(energy: number, withS = false): TransmissionPoint {
+    if (!Number.isFinite(energy)) throw new RangeError(`transmission: energy must be a finite number of meV, got ${energy}`);
+    const op = this.op;
+    const n = op.n;
+    const sheet = op.sheetAt(energy);
+    op.assemble({ re: energy, im: 0 }, sheet, this.values);
+    const lu = this.plan.factor(this.values);
+    const w = op.couplingColumns(energy);
+    const count = w.count;
+    const leads = op.leadCount;
+    const s = new Float64Array(2 * count * count);
+    if (count > 0) {
+      // solve() works in place unless given an output buffer; W is still needed below.
+      const x = lu.solve(w.values, count, new Float64Array(w.values.length));
+      // S_ab = −δ_ab + i Σ_s conj(W_sa)·X_sb, summed over a's mouth only (W is zero elsewhere).
+      for (let a = 0; a < count; a++) {
+        const mouth = op.mouthSites(w.lead[a]);
+        for (let b = 0; b < count; b++) {
+          let re = 0;
+          let im = 0;
+          for (const site of mouth) {
+            const wr = w.values[2 * (a * n + site)];
+            const wi = w.values[2 * (a * n + site) + 1];
+            const xr = x[2 * (b * n + site)];
+            const xi = x[2 * (b * n + site) + 1];
+            re += wr * xr + wi * xi;
+            im += wr * xi - wi * xr;
+          }
+          // i·(re + i·im) = −im + i·re
+          s[2 * (a * count + b)] = -im - (a === b ? 1 : 0);
+          s[2 * (a * count + b) + 1] = re;
+        }
+      }
+    }
+    const transmission = Array.from({ length: leads }, () => new Array<number>(leads).fill(0));
+    const reflection = new Array<number>(leads).fill(0);
+    for (let a = 0; a < count; a++) {
+      for (let b = 0; b < count; b++) {
+        const p = s[2 * (a * count + b)] ** 2 + s[2 * (a * count + b) + 1] ** 2;
+        const from = w.lead[b];
+        const to = w.lead[a];
+        if (from === to) reflection[from] += p;
+        else transmission[from][to] += p;
+      }
+    }
+    let currentResidual = 0;
+    for (let l = 0; l < leads; l++) {
+      let sum = reflection[l];
+      for (let m = 0; m < leads; m++) sum += transmission[l][m];
+      currentResidual = Math.max(currentResidual, Math.abs(sum - w.perLead[l]));
+    }
+    let unitarityResidual = 0;
+    for (let a = 0; a < count; a++) {
+      for (let b = 0; b < count; b++) {
+        let re = a === b ? -1 : 0;
+        let im = 0;
+        for (let c = 0; c < count; c++) {
+          const ar = s[2 * (c * count + a)];
+          const ai = s[2 * (c * count + a) + 1];
+          const br = s[2 * (c * count + b)];
+          const bi = s[2 * (c * count + b) + 1];
+          re += ar * br + ai * bi;
+          im += ar * bi - ai * br;
+        }
+        unitarityResidual = Math.max(unitarityResidual, Math.hypot(re, im));
+      }
+    }
+    const point: TransmissionPoint = {
+      energy,
+      transmission,
+      reflection,
+      channels: w.perLead,
+      conductance: leads >= 2 ? transmission[0][1] : null,
+      currentResidual,
+      unitarityResidual,
+      detPhase: lu.logDet().arg,
+    };
+    if (withS) {
+      point.sMatrix = s;
+      point.sChannels = Array.from({ length: count }, (_, c) => ({ lead: w.lead[c], channel: w.channel[c] }));
+    }
+    return point;
+  }
+}
+
+/** Transmission at one energy (analyses the pattern; use TransmissionSolver for many energies). */
+export function transmissionAt(op: EffectiveHamiltonian, energy: number, withS = false): TransmissionPoint {
+  return new TransmissionSolver(op).at(energy, withS);
+}
+
+export interface SweepRefinement {
+  /** Largest total number of energies, grid included. */
+  maxPoints: number;
+  /** Largest change of any T(ℓ→ℓ') or R_ℓ allowed between neighbouring energies, and between a
+   *  sample and the straight line through its neighbours (curvature). Default 0.02. */
+  tolerance?: number;
+  /** Largest change of arg det T(E) (rad) allowed between neighbours; default 0.5. */
+  phaseTolerance?: number;
+  /** Intervals narrower than this (meV) are never split; default 1e-6·t. */
+  minWidth?: number;
+}
+
+export interface SweepRequest {
+  emin: number;
+  emax: number;
+  /** Points of the uniform grid (≥ 2), both ends included. */
+  points: number;
+  refine?: SweepRefinement;
+}
+
+export interface TransmissionSweep {
+  /** Samples sorted by energy. */
+  points: TransmissionPoint[];
+  /** Size of the uniform grid and how many refinement passes ran. */
+  gridPoints: number;
+  passes: number;
+  /** True when the refinement stopped on maxPoints with intervals still flagged. */
+  budgetExhausted: boolean;
+  /** Largest current-conservation and unitarity residuals over all samples. */
+  worstCurrentResidual: number;
+  worstUnitarityResidual: number;
+}
+
+function largestChange(a: TransmissionPoint, b: TransmissionPoint): number {
+  let d = 0;
+  for (let l = 0; l < a.reflection.length; l++) {
+    d = Math.max(d, Math.abs(a.reflection[l] - b.reflection[l]));
+    for (let m = 0; m < a.reflection.length; m++) d = Math.max(d, Math.abs(a.transmission[l][m] - b.transmission[l][m]));
+  }
+  return d;
+}
+
+/** Deviation of `mid` from the straight line through `left` and `right`, largest over entries. */
+function curvature(left: TransmissionPoint, mid: TransmissionPoint, right: TransmissionPoint): number {
+  const u = (mid.energy - left.energy) / (right.energy - left.energy);
+  let d = 0;
+  const lerp = (x: number, y: number) => x + u * (y - x);
+  for (let l = 0; l < mid.reflection.length; l++) {
+    d = Math.max(d, Math.abs(mid.reflection[l] - lerp(left.reflection[l], right.reflection[l])));
+    for (let m = 0; m < mid.reflection.length; m++) {
+      d = Math.max(d, Math.abs(mid.transmission[l][m] - lerp(left.transmission[l][m], right.transmission[l][m])));
+    }
+  }
+  return d;
+}
+
+function phaseStep(a: TransmissionPoint, b: TransmissionPoint): number {
+  const d = b.detPhase - a.detPhase;
+  return Math.abs(Math.atan2(Math.sin(d), Math.cos(d)));
+}
+
+/**
+ * Transmission on a uniform grid, then adaptive bisection. An interval is split
+ * when T or R changes across it by more than `tolerance`, when a neighbouring
+ * sample sits off the straight line by more than `tolerance` (curvature), or
+ * when arg det T(E) changes by more than `phaseTolerance`. The last test is what
+ * finds a resonance narrower than the grid step: det T(E) ≈ Π(E − z_n)·(smooth),
+ * and arg(E − z_n) falls by π across E_n however small Γ_n is, while far poles
+ * turn it only by about step/distance. Two unresolved poles inside one step
+ * cancel modulo 2π; a finer grid is the remedy (documented in the physics doc).
+ * Passes split the most-flagged intervals first until none is flagged, all are
+ * narrower than minWidth, or maxPoints is reached. One LU analysis for all.
+ */
+export function transmissionSweep(op: EffectiveHamiltonian, request: SweepRequest, control?: WorkControl): TransmissionSweep {
+  const { emin, emax, points } = request;
+  if (!Number.isFinite(emin) || !Number.isFinite(emax) || !(emax > emin)) {
+    throw new RangeError(`transmissionSweep: need finite emin < emax (meV), got emin = ${emin}, emax = ${emax}`);
+  }
+  if (!Number.isInteger(points) || points < 2) throw new RangeError(`transmissionSweep: points must be an integer ≥ 2, got ${points}`);
+  const refine = request.refine;
+  if (refine && (!Number.isInteger(refine.maxPoints) || refine.maxPoints < points)) {
+    throw new RangeError(`transmissionSweep: refine.maxPoints must be an integer ≥ points (${points}), got ${refine.maxPoints}`);
+  }
+  const maxPoints = refine ? refine.maxPoints : points;
+  const tolerance = refine?.tolerance ?? 0.02;
+  const phaseTolerance = refine?.phaseTolerance ?? 0.5;
+  const minWidth = refine?.minWidth ?? 1e-6 * op.hopping;
+  const solver = new TransmissionSolver(op);
+  const report = (done: number) => control?.onProgress?.('transmission', Math.min(1, done / maxPoints));
+
+  let samples: TransmissionPoint[] = [];
+  for (let k = 0; k < points; k++) {
+    checkCancelled(control);
+    samples.push(solver.at(emin + ((emax - emin) * k) / (points - 1)));
+    report(samples.length);
+  }
+  let passes = 0;
+  let budgetExhausted = false;
+  while (refine) {
+    const flagged: { k: number; score: number }[] = [];
+    for (let k = 0; k + 1 < samples.length; k++) {
+      const a = samples[k];
+      const b = samples[k + 1];
+      if (b.energy - a.energy < 2 * minWidth) continue;
+      let score = Math.max(largestChange(a, b) / tolerance, phaseStep(a, b) / phaseTolerance);
+      if (k > 0) score = Math.max(score, curvature(samples[k - 1], a, b) / tolerance);
+      if (k + 2 < samples.length) score = Math.max(score, curvature(a, b, samples[k + 2]) / tolerance);
+      if (score > 1) flagged.push({ k, score });
+    }
+    if (!flagged.length) break;
+    const room = maxPoints - samples.length;
+    if (room <= 0) {
+      budgetExhausted = true;
+      break;
+    }
+    flagged.sort((x, y) => y.score - x.score);
+    const chosen = flagged.slice(0, room);
+    if (chosen.length < flagged.length) budgetExhausted = true;
+    for (const { k } of chosen) {
+      checkCancelled(control);
+      samples.push(solver.at((samples[k].energy + samples[k + 1].energy) / 2));
+      report(samples.length);
+    }
+    samples = samples.sort((x, y) => x.energy - y.energy);
+    passes++;
+    if (budgetExhausted) break;
+  }
+  control?.onProgress?.('transmission', 1);
+  let worstCurrentResidual = 0;
+  let worstUnitarityResidual = 0;
+  for (const p of samples) {
+    worstCurrentResidual = Math.max(worstCurrentResidual, p.currentResidual);
+    worstUnitarityResidual = Math.max(worstUnitarityResidual, p.unitarityResidual);
+  }
+  return { points: samples, gridPoints: points, passes, budgetExhausted, worstCurrentResidual, worstUnitarityResidual };
+}
