@@ -9,6 +9,13 @@ function noSuchMember(): ApiError {
   return new ApiError(404, 'not_found', 'No such member in this group.');
 }
 
+/** Re-checked under the lock: the actor may have been demoted since requireRole looked. */
+function assertStillAdmin(members: { userId: string; role: MembershipRole }[], actorId: string): void {
+  if (members.find((m) => m.userId === actorId)?.role !== 'admin') {
+    throw new ApiError(403, 'forbidden', 'This needs the admin role in this group; yours has just changed.');
+  }
+}
+
 function lastAdmin(): ApiError {
   return new ApiError(409, 'last_admin', 'A group needs at least one admin: make another member admin first.');
 }
@@ -20,6 +27,7 @@ export class GroupService {
   async changeRole(actorId: string, groupId: string, userId: string, role: MembershipRole): Promise<void> {
     await this.db.transaction(async (tx) => {
       const members = await lockMemberships(tx, groupId);
+      assertStillAdmin(members, actorId);
       const target = members.find((m) => m.userId === userId);
       if (!target) throw noSuchMember();
       if (target.role === role) return;
@@ -40,6 +48,7 @@ export class GroupService {
   async removeMember(actorId: string, groupId: string, userId: string): Promise<void> {
     await this.db.transaction(async (tx) => {
       const members = await lockMemberships(tx, groupId);
+      assertStillAdmin(members, actorId);
       const target = members.find((m) => m.userId === userId);
       if (!target) throw noSuchMember();
       if (target.role === 'admin' && members.filter((m) => m.role === 'admin').length <= 1) throw lastAdmin();

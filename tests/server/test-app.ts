@@ -27,7 +27,7 @@ export function testDatabaseUrl(): string {
 }
 
 export async function startTestApp(
-  overrides: Partial<Omit<AppDeps, 'db' | 'config' | 'mailer'>> & { env?: Record<string, string> } = {},
+  overrides: Partial<Omit<AppDeps, 'db' | 'config' | 'mailer'>> & { env?: Record<string, string>; config?: Partial<Config> } = {},
 ): Promise<TestApp> {
   const handle = connectDb(testDatabaseUrl(), 4);
   const standIn = await startMailStandIn({ port: 0, db: handle.db });
@@ -39,8 +39,9 @@ export async function startTestApp(
     POLEWARD_SMTP_URL: `smtp://127.0.0.1:${standIn.port}`,
     ...overrides.env,
   });
+  Object.assign(config, overrides.config);
   const mailer = createMailer(`smtp://127.0.0.1:${standIn.port}`, config.mailFrom);
-  const { env: _env, ...appOverrides } = overrides;
+  const { env: _env, config: _config, ...appOverrides } = overrides;
   const app = createApp({ db: handle.db, config, mailer, passwordCost: testPasswordCost, log: () => {}, ...appOverrides });
   const server = createServer(app);
   await new Promise<void>((done) => server.listen(0, '127.0.0.1', done));

@@ -1,0 +1,44 @@
+import PgBoss from 'pg-boss';
+import { RUN_QUEUES, type RunKind } from './queues.js';
+
+export interface BossOptions {
+  databaseUrl: string;
+  /** How often pg-boss looks for expired jobs (its own backstop for lost workers). */
+  maintenanceIntervalSeconds?: number;
+}
+
+/** Starts pg-boss on the application's database and declares every queue of queues.ts. */
+export async function startBoss(opts: BossOptions): Promise<PgBoss> {
+  const boss = new PgBoss({
+    connectionString: opts.databaseUrl,
+    max: 4,
+    maintenanceIntervalSeconds: opts.maintenanceIntervalSeconds ?? 60,
+  });
+  boss.on('error', (err) => console.error('[poleward] queue error:', err.message));
+  await boss.start();
+  for (const spec of Object.values(RUN_QUEUES)) {
+    await boss.createQueue(spec.name, {
+      name: spec.name,
+      retryLimit: spec.retryLimit,
+      retryDelay: spec.retryDelaySeconds,
+      expireInSeconds: spec.expireInSeconds,
+    });
+  }
+  return boss;
+}
+
+/** What the API needs of the queue: enqueue a run, and let the supervisor retry a lost one. */
+export interface RunQueue {
+  enqueue(kind: RunKind, runId: string): Promise<string>;
+}
+
+export function runQueue(boss: PgBoss): RunQueue {
+  return {
+    async enqueue(kind, runId) {
+      const spec = RUN_QUEUES[kind];
+      const id = await boss.send(spec.name, { runId }, { retryLimit: spec.retryLimit, retryDelay: spec.retryDelaySeconds, expireInSeconds: spec.expireInSeconds });
+      if (!id) throw new Error(`the queue ${spec.name} refused the job`);
+      return id;
+    },
+  };
+}

@@ -1,0 +1,91 @@
+/**
+ * The numerical part of a run, as one pure function of its inputs: it runs in a
+ * worker thread (engine-thread.ts) so that the worker process keeps beating its
+ * heartbeat and polling the queue while the engine computes.
+ */
+import { buildCavitySystem, EffectiveHamiltonian } from '../../shared/engine/effective-hamiltonian.js';
+import type { WorkControl } from '../../shared/engine/operator.js';
+import { findPoles } from '../../shared/engine/poles.js';
+import type { CertificatePiece, Pole } from '../../shared/engine/pole-types.js';
+import { transmissionSweep } from '../../shared/engine/transmission.js';
+
+/** Bumped whenever a change of the engine can change computed numbers. */
+export const ENGINE_VERSION = 'poleward-engine 0.1.0';
+
+export type EngineTask =
+  | { kind: 'pole-search'; document: unknown; window: { emin: number; emax: number; gammaMax: number }; spectrumPoints: number }
+  | { kind: 'transmission'; document: unknown; window: { emin: number; emax: number; points: number } };
+
+export interface EngineSpectrum {
+  energies: number[];
+  pairs: { from: number; to: number }[];
+  transmission: number[][];
+  residual: number[];
+}
+
+export interface EngineTaskResult {
+  engineVersion: string;
+  thresholds: number[];
+  leadNames: string[];
+  grid: { nx: number; ny: number };
+  sites: { i: Int32Array; j: Int32Array };
+  poles: Pole[];
+  certificate: { pieces: CertificatePiece[]; certified: boolean; summary: string } | null;
+  spectrum: EngineSpectrum;
+  stats: Record<string, number | boolean>;
+}
+
+/** Builds the operator from the model document and computes the run. Throws InvalidModelError for a bad model. */
+export function runEngineTask(task: EngineTask, control: WorkControl = {}): EngineTaskResult {
+  const started = performance.now();
+  const system = buildCavitySystem(task.document);
+  const op = new EffectiveHamiltonian(system);
+  const { emin, emax } = task.window;
+  const thresholds = op.thresholds.filter((e) => e >= emin && e <= emax);
+  let poles: Pole[] = [];
+  let certificate: EngineTaskResult['certificate'] = null;
+  const stats: Record<string, number | boolean> = { sites: op.n };
+
+  let spectrumShare = 1;
+  if (task.kind === 'pole-search') {
+    spectrumShare = 0.2;
+    const result = findPoles(op, task.window, {
+      ...control,
+      onProgress: (stage, f) => control.onProgress?.(stage, 0.8 * f),
+    });
+    poles = result.poles;
+    certificate = result.certificate;
+    stats['poleSearchSeconds'] = result.stats.seconds;
+    stats['factorisations'] = result.stats.factorisations;
+  }
+  const points = task.kind === 'pole-search' ? task.spectrumPoints : task.window.points;
+  const base = 1 - spectrumShare;
+  const sweep = transmissionSweep(
+    op,
+    { emin, emax, points, refine: { maxPoints: Math.max(points, Math.min(4 * points, 4000)) } },
+    { ...control, onProgress: (stage, f) => control.onProgress?.(stage, base + spectrumShare * f) },
+  );
+  const pairs: { from: number; to: number }[] = [];
+  for (let a = 0; a < op.leadCount; a++) for (let b = 0; b < op.leadCount; b++) if (a !== b) pairs.push({ from: a, to: b });
+  const spectrum: EngineSpectrum = {
+    energies: sweep.points.map((p) => p.energy),
+    pairs,
+    transmission: pairs.map(({ from, to }) => sweep.points.map((p) => p.transmission[from][to])),
+    residual: sweep.points.map((p) => p.currentResidual),
+  };
+  stats['spectrumPoints'] = sweep.points.length;
+  stats['spectrumBudgetExhausted'] = sweep.budgetExhausted;
+  stats['worstCurrentResidual'] = sweep.worstCurrentResidual;
+  stats['seconds'] = (performance.now() - started) / 1000;
+  return {
+    engineVersion: ENGINE_VERSION,
+    thresholds,
+    leadNames: system.leads.map((l) => l.name),
+    grid: { nx: system.model.grid.nx, ny: system.model.grid.ny },
+    sites: system.sites,
+    poles,
+    certificate,
+    spectrum,
+    stats,
+  };
+}

@@ -1,0 +1,31 @@
+/**
+ * Worker-thread entry: computes one EngineTask and posts progress messages as it
+ * goes. Cancellation is done by the parent terminating the thread, since the
+ * engine's loops are synchronous and would not see a message before they end.
+ */
+import { parentPort, workerData } from 'node:worker_threads';
+import { InvalidModelError } from '../../shared/engine/effective-hamiltonian.js';
+import { runEngineTask, type EngineTask } from './engine-task.js';
+
+export type ThreadMessage =
+  | { type: 'progress'; stage: string; fraction: number }
+  | { type: 'result'; result: ReturnType<typeof runEngineTask> }
+  | { type: 'error'; message: string; invalidModel: boolean };
+
+const port = parentPort!;
+try {
+  let last = 0;
+  const result = runEngineTask(workerData as EngineTask, {
+    onProgress: (stage, fraction) => {
+      const now = Date.now();
+      if (now - last < 200 && fraction < 1) return;
+      last = now;
+      port.postMessage({ type: 'progress', stage, fraction } satisfies ThreadMessage);
+    },
+  });
+  const transfer: ArrayBuffer[] = result.poles.map((p) => p.mode.buffer as ArrayBuffer);
+  port.postMessage({ type: 'result', result } satisfies ThreadMessage, transfer);
+} catch (err) {
+  const message = err instanceof Error ? err.message : String(err);
+  port.postMessage({ type: 'error', message, invalidModel: err instanceof InvalidModelError } satisfies ThreadMessage);
+}

@@ -1,0 +1,147 @@
+import { createHash } from 'node:crypto';
+import { and, eq, sql } from 'drizzle-orm';
+import type { Db } from '../db/client.js';
+import { writeAudit } from '../audit/audit-log.js';
+import { modeImages, resonanceModes, resonances } from '../db/schema/catalogue.js';
+import { runs, spectra } from '../db/schema/runs.js';
+import { renderModePng } from '../catalogue/mode-image.js';
+import type { EngineTaskResult } from './engine-task.js';
+import type { Pole } from '../../shared/engine/pole-types.js';
+
+/** A Petermann factor above this marks non-orthogonal, overlapping modes (common practice, no source). */
+export const OVERLAP_PETERMANN = 1.2;
+export const THUMB_SIDE = 96;
+export const FULL_SIDE = 720;
+
+/**
+ * Whether a Breit–Wigner width of pole k would mislead: another pole closer in
+ * energy than the sum of the two widths (the peaks overlap), or K above
+ * OVERLAP_PETERMANN.
+ */
+export function isOverlapping(poles: readonly Pole[], k: number): boolean {
+  const p = poles[k];
+  if (p.petermann > OVERLAP_PETERMANN) return true;
+  return poles.some((q, j) => j !== k && Math.abs(q.energy - p.energy) < p.width + q.width);
+}
+
+export interface RunContext {
+  runId: string;
+  groupId: string;
+  attempt: number;
+  actorId: string | null;
+  model: {
+    id: string;
+    versionId: string;
+    name: string;
+    version: number;
+    family: string;
+    material: string;
+    fieldT: number;
+    spacingNm: number;
+    widthNm: number | null;
+    heightNm: number | null;
+    radiusNm: number | null;
+    lengthNm: number | null;
+  };
+}
+
+/**
+ * Writes a run's results in one transaction, only while the run's attempt is
+ * still `ctx.attempt` (a worker that lost its job to a retry writes nothing).
+ * Earlier rows of the run are replaced, so a retried run leaves exactly one copy.
+ * Returns false when the attempt was stale.
+ */
+export async function writeRunResults(db: Db, ctx: RunContext, result: EngineTaskResult): Promise<boolean> {
+  const lattice = { nx: result.grid.nx, ny: result.grid.ny, i: result.sites.i, j: result.sites.j };
+  // Render outside the transaction: it is the slow part and needs no lock.
+  const images = result.poles.map((p) => {
+    const thumb = renderModePng(lattice, p.mode, { maxSide: THUMB_SIDE });
+    const full = renderModePng(lattice, p.mode, { maxSide: FULL_SIDE });
+    return { thumb, full };
+  });
+  return db.transaction(async (tx) => {
+    const [current] = await tx
+      .select({ attempt: runs.attempt, status: runs.status })
+      .from(runs)
+      .where(eq(runs.id, ctx.runId))
+      .for('update');
+    if (!current || current.attempt !== ctx.attempt || current.status !== 'running') return false;
+    await tx.delete(resonances).where(eq(resonances.runId, ctx.runId));
+    await tx.delete(spectra).where(eq(spectra.runId, ctx.runId));
+    for (let k = 0; k < result.poles.length; k++) {
+      const p = result.poles[k];
+      const [row] = await tx
+        .insert(resonances)
+        .values({
+          groupId: ctx.groupId,
+          runId: ctx.runId,
+          modelId: ctx.model.id,
+          modelVersionId: ctx.model.versionId,
+          idx: k,
+          energy: p.energy,
+          width: p.width,
+          lifetimePs: p.lifetimePs,
+          quality: p.quality,
+          partialWidths: p.partialWidths.map((w, l) => ({ lead: result.leadNames[l] ?? `lead ${l}`, width: w })),
+          petermann: p.petermann,
+          residual: p.residual,
+          bound: p.bound,
+          nearThreshold: p.nearThreshold !== null,
+          overlapping: isOverlapping(result.poles, k),
+          details: { nearThreshold: p.nearThreshold, sheet: p.sheet, piece: p.piece },
+          modelName: ctx.model.name,
+          modelVersion: ctx.model.version,
+          family: ctx.model.family,
+          material: ctx.model.material,
+          fieldT: ctx.model.fieldT,
+          spacingNm: ctx.model.spacingNm,
+          widthNm: ctx.model.widthNm,
+          heightNm: ctx.model.heightNm,
+          radiusNm: ctx.model.radiusNm,
+          lengthNm: ctx.model.lengthNm,
+        })
+        .returning({ id: resonances.id });
+      await tx.insert(resonanceModes).values({
+        resonanceId: row.id,
+        sites: p.mode.length / 2,
+        vector: Buffer.from(p.mode.buffer, p.mode.byteOffset, p.mode.byteLength),
+      });
+      for (const size of ['thumb', 'full'] as const) {
+        const png = images[k][size];
+        await tx.insert(modeImages).values({
+          resonanceId: row.id,
+          size,
+          width: png.readUInt32BE(16),
+          height: png.readUInt32BE(20),
+          etag: `"${createHash('sha256').update(png).digest('hex').slice(0, 32)}"`,
+          png,
+        });
+      }
+    }
+    await tx.insert(spectra).values({ runId: ctx.runId, groupId: ctx.groupId, ...result.spectrum });
+    await tx
+      .update(runs)
+      .set({
+        status: 'completed',
+        progressStage: 'done',
+        progressFraction: 1,
+        finishedAt: new Date(),
+        error: null,
+        engineVersion: result.engineVersion,
+        thresholds: result.thresholds,
+        certificate: result.certificate,
+        stats: result.stats,
+        resonanceCount: result.poles.length,
+      })
+      .where(and(eq(runs.id, ctx.runId), eq(runs.attempt, ctx.attempt)));
+    await writeAudit(tx, {
+      groupId: ctx.groupId,
+      actorId: ctx.actorId,
+      action: 'run.completed',
+      subject: `${ctx.model.name} v${ctx.model.version}`,
+      details: { runId: ctx.runId, resonances: result.poles.length, certified: result.certificate?.certified ?? null },
+    });
+    await tx.execute(sql`select pg_notify('run_events', ${ctx.runId})`);
+    return true;
+  });
+}
