@@ -48,7 +48,7 @@ export function phaseSteps(contour: Contour): { steps: Float64Array; winding: nu
     steps[k] = s;
     total += s;
   }
-  return { steps, winding: Math.round(total / (2 * Math.PI)), total };
+  return { steps, winding: Math.round(total / (2 * Math.PI)) + 0, total }; // + 0 turns −0 into 0
 }
 
 /** Wraps a phase difference into (−π, π]. */
