@@ -1,0 +1,25 @@
+/** Entry of a worker process: `tsx server/jobs/worker-main.ts`. */
+import { loadConfig } from '../config.js';
+import { connectDb } from '../db/client.js';
+import { startBoss } from './boss.js';
+import { runInThread } from './thread-runner.js';
+import { startWorkerLoop } from './worker.js';
+
+const config = loadConfig();
+const handle = connectDb(config.databaseUrl, 4);
+const boss = await startBoss({ databaseUrl: config.databaseUrl });
+const worker = startWorkerLoop({ db: handle.db, boss, compute: runInThread });
+console.log(`[worker ${process.pid}] waiting for runs`);
+
+let stopping = false;
+async function shutdown(signal: string) {
+  if (stopping) return;
+  stopping = true;
+  console.log(`[worker ${process.pid}] ${signal}: stopping`);
+  await worker.stop();
+  await boss.stop({ graceful: false, wait: false }).catch(() => {});
+  await handle.close().catch(() => {});
+  process.exit(0);
+}
+process.on('SIGTERM', () => void shutdown('SIGTERM'));
+process.on('SIGINT', () => void shutdown('SIGINT'));
