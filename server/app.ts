@@ -2,7 +2,7 @@ import { createHash } from 'node:crypto';
 import { existsSync } from 'node:fs';
 import { join } from 'node:path';
 import cookieParser from 'cookie-parser';
-import express, { type Express } from 'express';
+import express, { type Express, type Router } from 'express';
 import helmet from 'helmet';
 import { apiTokenRoutes } from './auth/api-token-routes.js';
 import { authRoutes } from './auth/auth-routes.js';
@@ -31,6 +31,12 @@ export interface AppDeps {
   /** bcrypt cost for new password hashes; tests pass 4 to stay fast. */
   passwordCost?: number;
   log?: (msg: string, err: unknown) => void;
+  /**
+   * Mounts the other features' routers on the /api router (after authentication, before
+   * the JSON 404), e.g. `api => api.use('/groups/:groupId/models', modelRoutes(...))`.
+   * Their routers use requireRole(), which scopes every request to the caller's group.
+   */
+  mountFeatures?: (api: Router) => void;
 }
 
 /** JSON bodies up to 1 MB: cavity models with bitmap masks fit; uploads go through multer instead. */
@@ -92,6 +98,7 @@ export function createApp(deps: AppDeps): Express {
   api.use('/groups', groupRoutes({ db, groups, invitations }));
   api.use('/tokens', apiTokenRoutes(db));
   api.use('/outbox', outboxRoutes(db, config.mailStandIn));
+  deps.mountFeatures?.(api);
   api.use(apiNotFound);
   app.use('/api', api);
 

@@ -70,3 +70,31 @@ describe('HTTP shell', () => {
     ]);
   });
 });
+
+describe('feature mounting', () => {
+  it('mounts feature routers under /api, behind authentication and group scoping', async () => {
+    const { Router } = await import('express');
+    const { requireRole } = await import('../../server/auth/require-role.js');
+    const { createLab } = await import('./lab-fixture.js');
+    const { signInAs } = await import('./sign-in-as.js');
+    const withFeature = await startTestApp({
+      mountFeatures: (api) => {
+        const feature = Router({ mergeParams: true });
+        feature.get('/', requireRole('designer'), (req, res) => {
+          res.json({ group: req.membership!.groupId });
+        });
+        api.use('/groups/:groupId/widgets', feature);
+      },
+    });
+    try {
+      const lab = await createLab(withFeature.handle.db, ['designer', 'viewer']);
+      const designer = await signInAs(withFeature, lab.as('designer').email);
+      expect((await designer.get(`/api/groups/${lab.groupId}/widgets`)).body).toEqual({ group: lab.groupId });
+      const viewer = await signInAs(withFeature, lab.as('viewer').email);
+      expect((await viewer.get(`/api/groups/${lab.groupId}/widgets`)).status).toBe(403);
+      expect((await request(withFeature.server).get(`/api/groups/${lab.groupId}/widgets`)).status).toBe(401);
+    } finally {
+      await withFeature.close();
+    }
+  });
+});
