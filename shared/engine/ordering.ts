@@ -44,8 +44,7 @@ export function symmetricAdjacency(n: number, colPtr: Int32Array, rowIdx: Int32A
   for (let v = 0; v < n; v++) deg[v + 1] += deg[v];
   const fill = deg.slice(0, n);
   const raw = new Int32Array(deg[n]);
-  // Column-major traversal of A then of Aᵀ gives each list in ascending order per source,
-  // but the two sources interleave; a stable merge-free approach: sort each list, then dedupe.
+  // Entries of A and of Aᵀ interleave in each list: sort it, then drop duplicates.
   for (let c = 0; c < n; c++) {
     for (let e = colPtr[c]; e < colPtr[c + 1]; e++) {
       const r = rowIdx[e];
@@ -60,7 +59,6 @@ export function symmetricAdjacency(n: number, colPtr: Int32Array, rowIdx: Int32A
     const list = raw.subarray(deg[v], deg[v + 1]);
     list.sort();
     let last = -1;
-    const start = out;
     for (let q = 0; q < list.length; q++) {
       const u = list[q];
       if (u !== last) {
@@ -68,7 +66,6 @@ export function symmetricAdjacency(n: number, colPtr: Int32Array, rowIdx: Int32A
         last = u;
       }
     }
-    void start;
     ptr[v + 1] = out;
   }
   return { n, ptr, adj: raw.slice(0, out) };
@@ -226,7 +223,7 @@ class Dissector {
       // Disconnected: component of the root → A, the rest → B, no separator.
       for (let q = lo; q < hi; q++) {
         const v = order[q];
-        this.side[v] = this.level[v] >= 0 && this.visited(v, stamp) ? SIDE_A : SIDE_B;
+        this.side[v] = this.bfsMark[v] === this.bfsStamp ? SIDE_A : SIDE_B;
       }
       return true;
     }
@@ -255,10 +252,6 @@ class Dissector {
 
   private bfsMark = new Int32Array(0);
   private bfsStamp = 0;
-
-  private visited(v: number, _stamp: number): boolean {
-    return this.bfsMark[v] === this.bfsStamp;
-  }
 
   /** Breadth-first search inside the region; fills level[], returns depth, size and last vertex. */
   private bfs(root: number, stamp: number): { depth: number; count: number; last: number } {

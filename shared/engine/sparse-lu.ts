@@ -60,12 +60,12 @@ export class SingularMatrixError extends Error {
 }
 
 /** Supernodes whose merged pivot count stays at or below this are always merged into their parent. */
-const AMALGAMATE_ALWAYS = 16;
+const AMALGAMATE_ALWAYS = 4;
 /** Up to this size, merging is accepted when at most this fraction of the merged front is explicit zeros. */
-const AMALGAMATE_SMALL = 48;
-const AMALGAMATE_SMALL_ZEROS = 0.4;
+const AMALGAMATE_SMALL = 16;
+const AMALGAMATE_SMALL_ZEROS = 0.3;
 /** Any size: merging accepted when at most this fraction of stored entries are explicit zeros. */
-const AMALGAMATE_ZEROS = 0.05;
+const AMALGAMATE_ZEROS = 0.02;
 
 export class SparseLuPlan {
   readonly n: number;
@@ -103,7 +103,6 @@ export class SparseLuPlan {
   private save: Float64Array;
   private rowList: Int32Array;
   private colList: Int32Array;
-  private relScratch: Int32Array;
 
   private constructor(n: number, nnz: number, perm: Int32Array, s: SymbolicFronts, threshold: number) {
     this.n = n;
@@ -134,7 +133,6 @@ export class SparseLuPlan {
     this.save = new Float64Array(2 * mx);
     this.rowList = new Int32Array(mx);
     this.colList = new Int32Array(mx);
-    this.relScratch = new Int32Array(mx);
   }
 
   /**
@@ -200,6 +198,7 @@ export class SparseLuPlan {
     const delayStart = new Int32Array(ns);
     let cbTop = 0;
     let delayTop = 0;
+    let delayed = 0;
     let valTop = 0;
     let idxTop = 0;
 
@@ -317,6 +316,7 @@ export class SparseLuPlan {
         cbTop = dst;
       }
       const dOut = kFs - done;
+      delayed += dOut;
       if (dOut > 0) {
         if (delayTop + 2 * dOut > this.delayStack.length) this.delayStack = growInt(this.delayStack, delayTop + 2 * dOut);
         this.delayStack.set(rowList.subarray(done, kFs), delayTop);
@@ -326,18 +326,19 @@ export class SparseLuPlan {
     }
     valOff[ns] = valTop;
     idxOff[ns] = idxTop;
-    return new SparseLuFactors(this.n, this.perm, store, index, valOff, idxOff, frontDim, pivots);
+    return new SparseLuFactors(this.n, this.perm, store, index, valOff, idxOff, frontDim, pivots, delayed);
   }
 
   private growLists(m: number): void {
     this.rowList = new Int32Array(m);
     this.colList = new Int32Array(m);
-    this.relScratch = new Int32Array(m);
   }
 }
 
 export class SparseLuFactors {
   readonly n: number;
+  /** How many times a pivot column was passed up to a parent front (0 when no pivot was rejected). */
+  readonly delayedPivots: number;
   private work: Float64Array = new Float64Array(0);
   private work2: Float64Array = new Float64Array(0);
   private local: Float64Array = new Float64Array(0);
@@ -354,8 +355,10 @@ export class SparseLuFactors {
     private readonly idxOff: Int32Array,
     private readonly frontDim: Int32Array,
     private readonly pivots: Int32Array,
+    delayedPivots: number,
   ) {
     this.n = n;
+    this.delayedPivots = delayedPivots;
     let mx = 0;
     for (let s = 0; s < frontDim.length; s++) if (frontDim[s] > mx) mx = frontDim[s];
     this.maxFront = mx;
