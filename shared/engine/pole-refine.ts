@@ -66,12 +66,13 @@ export function refinePole(s: RefineSetting, z0Re: number, z0Im: number, start: 
     const f = s.plan.factor(values);
     s.onFactor();
     if (x === null) {
-      x = f.solve(start);
+      x = f.solve(start, 1, new Float64Array(2 * n));
       if (!normalise(x)) return null;
     }
     op.assembleDerivative(z, s.sheet, deriv);
     cscMultiply(op, deriv, x, tx);
-    const xt = f.solve(tx);
+    // solve() works in place unless given out: keep x, T′x and the new iterate in separate buffers
+    const xt = f.solve(tx, 1, new Float64Array(2 * n));
     let dRe = 0;
     let dIm = 0;
     for (let i = 0; i < n; i++) {

@@ -20,7 +20,9 @@ export interface PoleWindow {
  * with T and Tᵀ and gives log det T. SparseLuFactors (sparse-lu.ts) has this shape.
  */
 export interface PoleFactors {
+  /** Solves T X = B (B column-major n×nrhs, interleaved); in place in b unless out is given. */
   solve(b: Float64Array, nrhs?: number, out?: Float64Array): Float64Array;
+  /** Solves Tᵀ X = B (plain transpose), in place unless out is given. */
   solveTranspose(b: Float64Array, nrhs?: number, out?: Float64Array): Float64Array;
   logDet(): { logAbs: number; arg: number };
 }

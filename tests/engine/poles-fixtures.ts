@@ -311,7 +311,7 @@ export function denseLu(n: number, A: Float64Array): PoleFactors {
     }
   };
   const many = (one: typeof solveOne) => (b: Float64Array, nrhs = 1, out?: Float64Array): Float64Array => {
-    const o = out ?? new Float64Array(2 * n * nrhs);
+    const o = out ?? b; // in place unless out is given, like SparseLuFactors
     for (let k = 0; k < nrhs; k++) one(b, 2 * n * k, o);
     return o;
   };
