@@ -1,6 +1,6 @@
 // Starts, stops and reports the project's own PostgreSQL 15 (Debian's server binaries),
 // with its data under .data/pg. Used by the start and test scripts and as a CLI:
-//   tsx scripts/db.ts start|stop|status
+//   tsx scripts/db.ts start [--fast-unsafe]|stop|status   (--fast-unsafe: fsync off, for test machines only)
 import { execFileSync, spawnSync } from 'node:child_process';
 import { chmodSync, existsSync, mkdirSync, statSync } from 'node:fs';
 import { dirname, join } from 'node:path';
@@ -141,7 +141,7 @@ export function databaseStatus(port = defaultPort()): string {
 if (process.argv[1] && fileURLToPath(import.meta.url) === process.argv[1]) {
   const command = process.argv[2];
   if (command === 'start') {
-    const server = await ensureDatabase();
+    const server = await ensureDatabase({ fastUnsafe: process.argv.includes('--fast-unsafe') });
     console.log(`[db] ready: ${server.url('poleward')}`);
   } else if (command === 'stop') {
     stopDatabase();
@@ -149,7 +149,7 @@ if (process.argv[1] && fileURLToPath(import.meta.url) === process.argv[1]) {
   } else if (command === 'status') {
     console.log(`[db] ${databaseStatus()}`);
   } else {
-    console.error('usage: tsx scripts/db.ts start|stop|status');
+    console.error('usage: tsx scripts/db.ts start [--fast-unsafe] | stop | status');
     process.exit(2);
   }
 }
