@@ -7,16 +7,19 @@ import { z } from 'zod';
 /** The project root (one folder above server/), used for .data/, migrations/ and dist/. */
 export const projectRoot = join(dirname(fileURLToPath(import.meta.url)), '..');
 
+const port = (fallback: number) =>
+  z.coerce.number({ error: 'must be a port number' }).int('must be a port number').min(0).max(65535).default(fallback);
+
 const envSchema = z.object({
   NODE_ENV: z.enum(['development', 'production', 'test']).default('development'),
-  POLEWARD_PORT: z.coerce.number().int().min(0).max(65535).default(8640),
-  POLEWARD_DB_PORT: z.coerce.number().int().min(1).max(65535).default(54329),
+  POLEWARD_PORT: port(8640),
+  POLEWARD_DB_PORT: port(54329),
   DATABASE_URL: z.url({ protocol: /^postgres(ql)?$/ }).optional(),
   POLEWARD_JWT_SECRET: z.string().min(32, 'must be at least 32 characters').optional(),
   POLEWARD_PUBLIC_URL: z.url({ protocol: /^https?$/ }).default('http://127.0.0.1:8640'),
   POLEWARD_SMTP_URL: z.url({ protocol: /^smtps?$/ }).default('smtp://127.0.0.1:2526'),
   POLEWARD_MAIL_FROM: z.string().min(3).default('Poleward <no-reply@poleward.invalid>'),
-  POLEWARD_WORKERS: z.coerce.number().int().min(0).max(64).default(2),
+  POLEWARD_WORKERS: z.coerce.number({ error: 'must be a whole number' }).int('must be a whole number').min(0).max(64).default(2),
 });
 
 export interface Config {
