@@ -102,6 +102,7 @@ class Dissector {
   private readonly level: Int32Array;
   private readonly queue: Int32Array;
   private readonly tmp: Int32Array;
+  private readonly kept: Uint8Array;
   private regionStamp = 0;
   private readonly ptr: Int32Array;
   private readonly adj: Int32Array;
@@ -116,6 +117,7 @@ class Dissector {
     this.level = new Int32Array(n);
     this.queue = new Int32Array(n);
     this.tmp = new Int32Array(n);
+    this.kept = new Uint8Array(n);
     this.ptr = graph.ptr;
     this.adj = graph.adj;
     this.ci = sites?.i;
@@ -141,13 +143,40 @@ class Dissector {
   private split(lo: number, hi: number): [number, number] | null {
     const stamp = ++this.regionStamp;
     for (let q = lo; q < hi; q++) this.region[this.order[q]] = stamp;
-    let ok = false;
-    if (this.ci && this.cj) ok = this.markGeometric(lo, hi);
-    if (!ok) ok = this.markLevels(lo, hi, stamp);
-    if (!ok) return null;
-    this.repair(lo, hi, stamp);
-    this.trim(lo, hi, stamp);
+    // With coordinates, both finders run and the cheaper split wins: the grid line is
+    // best on plain rectangles, level sets often beat it on irregular or cut regions.
+    let geometricScore = Infinity;
+    if (this.ci && this.cj && this.markGeometric(lo, hi)) {
+      this.repair(lo, hi, stamp);
+      this.trim(lo, hi, stamp);
+      geometricScore = this.score(lo, hi);
+      for (let q = lo; q < hi; q++) this.kept[q - lo] = this.side[this.order[q]];
+    }
+    let levelScore = Infinity;
+    if (this.markLevels(lo, hi, stamp)) {
+      this.repair(lo, hi, stamp);
+      this.trim(lo, hi, stamp);
+      levelScore = this.score(lo, hi);
+    }
+    if (geometricScore === Infinity && levelScore === Infinity) return null;
+    if (geometricScore <= levelScore) for (let q = lo; q < hi; q++) this.side[this.order[q]] = this.kept[q - lo];
     return this.partition(lo, hi);
+  }
+
+  /**
+   * Cost proxy of a split: separator size times the imbalance (1 when even), so a
+   * slightly larger but balanced separator wins over a lopsided one.
+   */
+  private score(lo: number, hi: number): number {
+    let na = 0, nb = 0, ns = 0;
+    for (let q = lo; q < hi; q++) {
+      const s = this.side[this.order[q]];
+      if (s === SIDE_A) na++;
+      else if (s === SIDE_B) nb++;
+      else ns++;
+    }
+    if (na === 0 || nb === 0) return Infinity;
+    return (ns + 1) * (Math.max(na, nb) / ((na + nb) / 2));
   }
 
   /** Marks sides by the median grid line across the longer extent. False if degenerate. */

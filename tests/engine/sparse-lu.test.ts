@@ -285,6 +285,8 @@ describe('sparse LU log-determinant', () => {
   const cases: Array<[string, LatticeOptions]> = [
     ['values with a nonzero diagonal', { nx: 9, ny: 7, mouth: 3, seed: 13 }],
     ['zero diagonal (row and column exchanges change the sign)', { nx: 9, ny: 7, mouth: 3, diagonal: 'zero', seed: 19 }],
+    ['zero diagonal, second draw', { nx: 8, ny: 7, mouth: 3, diagonal: 'zero', seed: 20 }],
+    ['zero diagonal, third draw', { nx: 7, ny: 6, mouth: 2, diagonal: 'zero', seed: 21 }],
   ];
   for (const [name, opts] of cases) {
     it(`agrees with dense references: ${name}`, () => {
@@ -315,6 +317,20 @@ describe('sparse LU log-determinant', () => {
       expect(got.arg).toBeLessThanOrEqual(Math.PI);
     });
   }
+
+  it('counts the sign of row exchanges: permutation matrices times a phase', () => {
+    // det of a transposition is −1, of a 3-cycle +1 (definition of the permutation sign);
+    // scaling every entry by e^{iφ} multiplies det by e^{inφ}.
+    const phi = 0.3;
+    const swap = cscFromTriplets(4, [0, 1, 2, 3], [1, 0, 2, 3], [1, 1, 1, 1].map(() => Math.cos(phi)), [1, 1, 1, 1].map(() => Math.sin(phi)));
+    const d1 = SparseLuPlan.analyse(4, swap.colPtr, swap.rowIdx).factor(swap.values).logDet();
+    expect(Math.abs(d1.logAbs)).toBeLessThan(1e-14);
+    expect(angleGap(d1.arg, Math.PI + 4 * phi)).toBeLessThan(1e-13);
+    const cycle = cscFromTriplets(3, [0, 1, 2], [1, 2, 0], [2, 2, 2], [0, 0, 0]);
+    const d2 = SparseLuPlan.analyse(3, cycle.colPtr, cycle.rowIdx).factor(cycle.values).logDet();
+    expect(Math.abs(d2.logAbs - 3 * Math.log(2))).toBeLessThan(1e-14);
+    expect(angleGap(d2.arg, 0)).toBeLessThan(1e-13);
+  });
 
   it('pivotRatio reports a near-singular matrix', () => {
     const { a, sites } = latticeMatrix({ nx: 8, ny: 8, seed: 2 });
