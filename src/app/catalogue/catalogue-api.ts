@@ -1,0 +1,91 @@
+import { HttpClient, HttpParams } from '@angular/common/http';
+import { Injectable, inject } from '@angular/core';
+import type { Observable } from 'rxjs';
+import type { RunCertificate, RunWindow } from '../runs/runs-api';
+
+/** One catalogued resonance z = E − iΓ/2 (energies meV, lifetime ps), as the API lists it. */
+export interface ResonanceRow {
+  id: string;
+  runId: string;
+  modelId: string;
+  modelName: string;
+  modelVersion: number;
+  family: string;
+  keyDimensions: Record<string, number>;
+  material: string;
+  fieldT: number;
+  energy: number;
+  width: number;
+  /** null for a bound state (Γ = 0): the lifetime is infinite. */
+  lifetimePs: number | null;
+  /** null for a bound state: Q is infinite. */
+  quality: number | null;
+  partialWidths: { lead: string; width: number }[];
+  petermann: number;
+  residual: number;
+  bound: boolean;
+  nearThreshold: boolean;
+  /** Another pole within 2 widths, or K > 1.2: a Breit–Wigner width is not meaningful. */
+  overlapping: boolean;
+  tags: string[];
+  notes: string;
+  createdAt: string;
+  thumbnailUrl: string;
+  imageUrl: string;
+}
+
+export interface ResonanceDetail extends ResonanceRow {
+  run: { id: string; window: RunWindow; certificate: RunCertificate | null };
+  model: { id: string; name: string; version: number };
+  otherPoles: { energy: number; width: number }[];
+  thresholds: number[];
+  leads: { name: string; side: string; width: number }[];
+}
+
+export interface CataloguePage {
+  items: ResonanceRow[];
+  total: number;
+  page: number;
+  pageSize: number;
+}
+
+/** The catalogue query exactly as the API names its parameters (strings, as in a URL). */
+export type CatalogueQuery = Record<string, string | string[]>;
+
+/** HTTP for the group's resonance catalogue. */
+@Injectable({ providedIn: 'root' })
+export class CatalogueApi {
+  private readonly http = inject(HttpClient);
+
+  list(groupId: string, query: CatalogueQuery): Observable<CataloguePage> {
+    return this.http.get<CataloguePage>(`${base(groupId)}/catalogue`, { params: new HttpParams({ fromObject: query }) });
+  }
+
+  /** A link (not a request) so the browser downloads the file with the session cookie. */
+  exportUrl(groupId: string, format: 'csv' | 'json', query: CatalogueQuery): string {
+    const params = new HttpParams({ fromObject: withoutPaging(query) }).toString();
+    return `${base(groupId)}/catalogue/export.${format}${params ? `?${params}` : ''}`;
+  }
+
+  resonance(groupId: string, id: string): Observable<ResonanceDetail> {
+    return this.http.get<ResonanceDetail>(`${base(groupId)}/resonances/${encodeURIComponent(id)}`);
+  }
+
+  update(groupId: string, id: string, change: { tags?: string[]; notes?: string }): Observable<ResonanceRow> {
+    return this.http.patch<ResonanceRow>(`${base(groupId)}/resonances/${encodeURIComponent(id)}`, change);
+  }
+
+  modeImageUrl(groupId: string, id: string, size: 'thumb' | 'full'): string {
+    return `${base(groupId)}/resonances/${encodeURIComponent(id)}/mode.png?size=${size}`;
+  }
+}
+
+function base(groupId: string): string {
+  return `/api/groups/${encodeURIComponent(groupId)}`;
+}
+
+/** An export is the whole filtered set, so page and pageSize are dropped. */
+function withoutPaging(query: CatalogueQuery): CatalogueQuery {
+  const { page: _page, pageSize: _size, ...rest } = query;
+  return rest;
+}

@@ -1,0 +1,178 @@
+import { ChangeDetectionStrategy, Component, computed, inject, signal } from '@angular/core';
+import { takeUntilDestroyed, toObservable, toSignal } from '@angular/core/rxjs-interop';
+import { FormControl, FormGroup, ReactiveFormsModule } from '@angular/forms';
+import { MatButtonModule } from '@angular/material/button';
+import { MatExpansionModule } from '@angular/material/expansion';
+import { MatFormFieldModule } from '@angular/material/form-field';
+import { MatIconModule } from '@angular/material/icon';
+import { MatInputModule } from '@angular/material/input';
+import { MatPaginatorModule, type PageEvent } from '@angular/material/paginator';
+import { MatProgressBarModule } from '@angular/material/progress-bar';
+import { MatSelectModule } from '@angular/material/select';
+import { MatSortModule, type Sort } from '@angular/material/sort';
+import { MatTableModule } from '@angular/material/table';
+import { MatTooltipModule } from '@angular/material/tooltip';
+import { ActivatedRoute, Router, RouterLink } from '@angular/router';
+import { catchError, combineLatest, debounceTime, map, of, switchMap } from 'rxjs';
+import { MATERIAL_PRESETS } from '../../../shared/model/materials';
+import { toProblem } from '../core/errors/problem';
+import { CurrentGroup } from '../core/group/current-group';
+import { modelFamilies } from '../models/model-list';
+import { type CataloguePage, CatalogueApi } from './catalogue-api';
+import {
+  type CatalogueFilter,
+  type CatalogueView,
+  type SortKey,
+  emptyFilter,
+  numericFields,
+  queryToView,
+  viewToQuery,
+} from './catalogue-filter';
+import { EnergyPipe, LifetimePipe, QualityPipe, WidthPipe } from './energy-format';
+
+type FilterControls = { [K in keyof Omit<CatalogueFilter, 'tags'>]: FormControl<string> } & { tags: FormControl<string> };
+
+/**
+ * The group's resonance catalogue: a sortable, paged Material table with a filter
+ * panel. The whole view (filter, sort, page) lives in the URL query, so a search
+ * can be shared as a link, and the same parameters go to the API and the exports.
+ */
+@Component({
+  selector: 'pw-catalogue-table',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  imports: [
+    ReactiveFormsModule,
+    RouterLink,
+    MatButtonModule,
+    MatExpansionModule,
+    MatFormFieldModule,
+    MatIconModule,
+    MatInputModule,
+    MatPaginatorModule,
+    MatProgressBarModule,
+    MatSelectModule,
+    MatSortModule,
+    MatTableModule,
+    MatTooltipModule,
+    EnergyPipe,
+    WidthPipe,
+    LifetimePipe,
+    QualityPipe,
+  ],
+  templateUrl: './catalogue-table.html',
+  styleUrl: './catalogue-table.scss',
+})
+export class CatalogueTable {
+  private readonly api = inject(CatalogueApi);
+  private readonly route = inject(ActivatedRoute);
+  private readonly router = inject(Router);
+  protected readonly group = inject(CurrentGroup);
+  protected readonly families = modelFamilies;
+  protected readonly materials = MATERIAL_PRESETS;
+  protected readonly dimensionKeys = ['width', 'height', 'radius', 'length', 'rx', 'ry', 'inner', 'outer'];
+  protected readonly columns = ['thumbnail', 'energy', 'width', 'lifetime', 'quality', 'flags', 'geometry', 'model', 'date', 'tags'];
+
+  protected readonly form = new FormGroup<FilterControls>(
+    Object.fromEntries(Object.keys(emptyFilter).map((k) => [k, new FormControl('', { nonNullable: true })])) as unknown as FilterControls,
+  );
+
+  protected readonly view = toSignal(this.route.queryParamMap.pipe(map((p) => queryToView(p))), {
+    initialValue: queryToView(this.route.snapshot.queryParamMap),
+  });
+  protected readonly page = signal<CataloguePage | null>(null);
+  protected readonly loading = signal(false);
+  protected readonly error = signal<string | null>(null);
+  protected readonly numberErrors = signal<string[]>([]);
+
+  /** The API query of the current view: page and pageSize always sent, so the answer's paging is unambiguous. */
+  private readonly apiQuery = computed(() => {
+    const v = this.view();
+    return { ...viewToQuery(v), page: String(v.page), pageSize: String(v.pageSize) };
+  });
+  protected readonly csvUrl = computed(() => this.exportUrl('csv'));
+  protected readonly jsonUrl = computed(() => this.exportUrl('json'));
+
+  constructor() {
+    this.fillForm(this.view());
+    this.route.queryParamMap.pipe(takeUntilDestroyed()).subscribe((p) => this.fillForm(queryToView(p)));
+
+    // Typing changes the URL (debounced, replacing the history entry); the URL drives the request.
+    this.form.valueChanges.pipe(debounceTime(350), takeUntilDestroyed()).subscribe(() => {
+      const filter = this.readForm();
+      const bad = numericFields.filter(({ key }) => {
+        const v = String(filter[key]).trim();
+        return v !== '' && !Number.isFinite(Number(v));
+      });
+      this.numberErrors.set(bad.map((f) => `${f.label} is not a number.`));
+      if (bad.length) return;
+      this.navigate({ ...this.view(), filter, page: 1 });
+    });
+
+    combineLatest([toObservable(this.apiQuery), toObservable(this.group.id)])
+      .pipe(
+        debounceTime(0),
+        switchMap(([query, groupId]) => {
+          if (!groupId) return of(null);
+          this.loading.set(true);
+          return this.api.list(groupId, query).pipe(
+            catchError((err: unknown) => {
+              this.error.set(toProblem(err).message);
+              return of(null);
+            }),
+          );
+        }),
+        takeUntilDestroyed(),
+      )
+      .subscribe((answer) => {
+        this.loading.set(false);
+        if (!answer) return;
+        this.error.set(null);
+        this.page.set(answer);
+      });
+  }
+
+  protected onSort(sort: Sort): void {
+    this.navigate({ ...this.view(), sort: sort.direction ? (sort.active as SortKey) : '', dir: sort.direction, page: 1 });
+  }
+
+  protected onPage(e: PageEvent): void {
+    this.navigate({ ...this.view(), page: e.pageIndex + 1, pageSize: e.pageSize });
+  }
+
+  protected clear(): void {
+    this.navigate({ ...this.view(), filter: emptyFilter, page: 1 });
+  }
+
+  protected dimensions(dims: Record<string, number>): string {
+    return Object.entries(dims ?? {})
+      .map(([k, v]) => `${k} ${Math.round(v)}`)
+      .join(' · ');
+  }
+
+  private navigate(view: CatalogueView): void {
+    void this.router.navigate([], { relativeTo: this.route, queryParams: viewToQuery(view), replaceUrl: true });
+  }
+
+  private exportUrl(format: 'csv' | 'json'): string | null {
+    const groupId = this.group.id();
+    return groupId ? this.api.exportUrl(groupId, format, viewToQuery(this.view())) : null;
+  }
+
+  private readForm(): CatalogueFilter {
+    const v = this.form.getRawValue();
+    return {
+      ...v,
+      tags: v.tags
+        .split(',')
+        .map((t) => t.trim())
+        .filter(Boolean),
+    };
+  }
+
+  private fillForm(view: CatalogueView): void {
+    const current = this.readForm();
+    const next = { ...view.filter, tags: view.filter.tags.join(', ') };
+    if (JSON.stringify({ ...current, tags: current.tags.join(', ') }) === JSON.stringify(next)) return;
+    this.form.setValue(next, { emitEvent: false });
+  }
+}

@@ -1,0 +1,140 @@
+import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, inject, input, signal, untracked } from '@angular/core';
+import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
+import { FormControl, ReactiveFormsModule } from '@angular/forms';
+import { MatButtonModule } from '@angular/material/button';
+import { MatCardModule } from '@angular/material/card';
+import { MatFormFieldModule } from '@angular/material/form-field';
+import { MatIconModule } from '@angular/material/icon';
+import { MatInputModule } from '@angular/material/input';
+import { MatProgressBarModule } from '@angular/material/progress-bar';
+import { MatSnackBar } from '@angular/material/snack-bar';
+import { RouterLink } from '@angular/router';
+import { ErrorReport } from '../core/errors/error-report';
+import { CurrentGroup } from '../core/group/current-group';
+import { injectCanDesign } from '../models/design-permission';
+import { certificateInWords } from '../runs/certificate-words';
+import { PolePlaneChart } from '../runs/pole-plane-chart';
+import type { PlanePole } from '../runs/pole-plane-options';
+import { windowText } from '../runs/run-labels';
+import { type ResonanceDetail as ResonanceData, CatalogueApi } from './catalogue-api';
+import { formatEnergy, formatLifetime, formatQuality, formatWidth, significant } from './energy-format';
+import { PartialWidths } from './partial-widths';
+import { PhaseLegend } from './phase-legend';
+
+/**
+ * One catalogued resonance: its figures in units that fit, the partial widths per
+ * lead, the full mode image with its colour legend, the pole on its run's complex
+ * plane, links to the model and run, and tag editing for designers.
+ */
+@Component({
+  selector: 'pw-resonance-detail',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  imports: [
+    ReactiveFormsModule,
+    RouterLink,
+    MatButtonModule,
+    MatCardModule,
+    MatFormFieldModule,
+    MatIconModule,
+    MatInputModule,
+    MatProgressBarModule,
+    PartialWidths,
+    PhaseLegend,
+    PolePlaneChart,
+  ],
+  templateUrl: './resonance-detail.html',
+  styleUrl: './resonance-detail.scss',
+})
+export class ResonanceDetail {
+  readonly resonanceId = input.required<string>();
+
+  private readonly api = inject(CatalogueApi);
+  private readonly errors = inject(ErrorReport);
+  private readonly snackBar = inject(MatSnackBar);
+  private readonly destroyRef = inject(DestroyRef);
+  protected readonly group = inject(CurrentGroup);
+  protected readonly canDesign = injectCanDesign();
+  protected readonly windowText = windowText;
+
+  protected readonly resonance = signal<ResonanceData | null>(null);
+  protected readonly loadError = signal<string | null>(null);
+  protected readonly saving = signal(false);
+  protected readonly tags = new FormControl('', { nonNullable: true });
+  protected readonly notes = new FormControl('', { nonNullable: true });
+
+  protected readonly figures = computed(() => {
+    const r = this.resonance();
+    if (!r) return [];
+    return [
+      { label: 'Energy E', value: formatEnergy(r.energy, 6) },
+      { label: 'Width Γ', value: formatWidth(r.width) },
+      { label: 'Pole z = E − iΓ/2', value: `${formatEnergy(r.energy, 6)} − i·${formatWidth(r.width / 2)}` },
+      { label: 'Lifetime τ = ħ/Γ', value: formatLifetime(r.lifetimePs) },
+      { label: 'Quality Q', value: formatQuality(r.quality) },
+      { label: 'Petermann K', value: significant(r.petermann, 4) },
+      { label: 'Residual', value: significant(r.residual, 2) },
+    ];
+  });
+  protected readonly imageUrl = computed(() => {
+    const r = this.resonance();
+    const groupId = this.group.id();
+    return r && groupId ? this.api.modeImageUrl(groupId, r.id, 'full') : null;
+  });
+  protected readonly planePoles = computed<PlanePole[]>(() => {
+    const r = this.resonance();
+    if (!r) return [];
+    const others = r.otherPoles.filter((p) => !(Math.abs(p.energy - r.energy) <= 1e-12 * Math.max(1, Math.abs(r.energy)) && p.width === r.width));
+    return [...others.map((p) => ({ energy: p.energy, width: p.width, bound: p.width === 0 })), { ...r, id: r.id }];
+  });
+  protected readonly certificate = computed(() => certificateInWords(this.resonance()?.run.certificate ?? null));
+  protected readonly uncertified = computed(() => {
+    const r = this.resonance();
+    const piece = r?.run.certificate?.pieces.find((p) => r.energy >= p.emin && r.energy <= p.emax);
+    return !!piece && !piece.certified;
+  });
+
+  constructor() {
+    effect(() => {
+      const id = this.resonanceId();
+      untracked(() => this.load(id));
+    });
+  }
+
+  protected saveTags(): void {
+    const groupId = this.group.id();
+    const r = this.resonance();
+    if (!groupId || !r || this.saving()) return;
+    const tags = [...new Set(this.tags.value.split(',').map((t) => t.trim()).filter(Boolean))];
+    this.saving.set(true);
+    this.api
+      .update(groupId, r.id, { tags, notes: this.notes.value })
+      .pipe(takeUntilDestroyed(this.destroyRef))
+      .subscribe({
+        next: (row) => {
+          this.saving.set(false);
+          this.resonance.update((old) => (old ? { ...old, tags: row.tags ?? tags, notes: row.notes ?? this.notes.value } : old));
+          this.snackBar.open('Tags and notes saved.', 'OK', { duration: 3000 });
+        },
+        error: (err: unknown) => {
+          this.saving.set(false);
+          this.errors.show(err);
+        },
+      });
+  }
+
+  private load(id: string): void {
+    const groupId = this.group.id();
+    if (!groupId) return;
+    this.api
+      .resonance(groupId, id)
+      .pipe(takeUntilDestroyed(this.destroyRef))
+      .subscribe({
+        next: (r) => {
+          this.resonance.set(r);
+          this.tags.setValue(r.tags.join(', '));
+          this.notes.setValue(r.notes ?? '');
+        },
+        error: (err: unknown) => this.loadError.set(this.errors.show(err).message),
+      });
+  }
+}

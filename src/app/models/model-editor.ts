@@ -1,0 +1,305 @@
+import { HttpErrorResponse } from '@angular/common/http';
+import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, inject, input, signal, untracked } from '@angular/core';
+import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
+import { ReactiveFormsModule } from '@angular/forms';
+import { MatButtonModule } from '@angular/material/button';
+import { MatCardModule } from '@angular/material/card';
+import { MatFormFieldModule } from '@angular/material/form-field';
+import { MatIconModule } from '@angular/material/icon';
+import { MatInputModule } from '@angular/material/input';
+import { MatProgressBarModule } from '@angular/material/progress-bar';
+import { MatSelectModule } from '@angular/material/select';
+import { MatSnackBar } from '@angular/material/snack-bar';
+import { MatTooltipModule } from '@angular/material/tooltip';
+import { Router, RouterLink } from '@angular/router';
+import { Subject, catchError, debounceTime, map, of, switchMap } from 'rxjs';
+import {
+  type CavityModelInput,
+  MAX_GRID_POINTS,
+  shapeSchema,
+  validateCavityModel,
+} from '../../../shared/model/cavity-model';
+import { rasteriseShape } from '../../../shared/model/geometry';
+import { CurrentGroup } from '../core/group/current-group';
+import { ErrorReport } from '../core/errors/error-report';
+import { fieldError } from '../core/errors/field-error';
+import { toProblem } from '../core/errors/problem';
+import { formatEnergy } from '../catalogue/energy-format';
+import type { DerivedFigures } from './derived-figures';
+import { injectCanDesign } from './design-permission';
+import { LatticePreview } from './lattice-preview';
+import { countSites } from './lattice-mask-path';
+import {
+  type LeadForm,
+  type ShapeMode,
+  customMaterial,
+  fillForm,
+  leadGroup,
+  materialChoices,
+  modelForm,
+  readForm,
+  shapeFields,
+  simpleShapeKinds,
+  starterModel,
+} from './model-form';
+import { type PlacedIssue, clearPlacedIssues, dottedPath, placeIssues } from './model-issues';
+import { type ModelDetail, ModelsApi } from './models-api';
+
+/** What the live drawing needs: the rasterised mask of the current form, or why there is none. */
+interface Drawing {
+  mask: Uint8Array | null;
+  nx: number;
+  ny: number;
+  spacing: number;
+  sites: number;
+  reason: string | null;
+}
+
+/**
+ * Creates and edits a cavity model. Every change redraws the lattice at once (the
+ * shared rasteriser runs in the browser) and, a moment later, asks the API for the
+ * derived figures and validity warnings. Saving an existing model makes a new
+ * version; the versions runs used stay immutable.
+ */
+@Component({
+  selector: 'pw-model-editor',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  imports: [
+    ReactiveFormsModule,
+    RouterLink,
+    MatButtonModule,
+    MatCardModule,
+    MatFormFieldModule,
+    MatIconModule,
+    MatInputModule,
+    MatProgressBarModule,
+    MatSelectModule,
+    MatTooltipModule,
+    LatticePreview,
+  ],
+  templateUrl: './model-editor.html',
+  styleUrl: './model-editor.scss',
+})
+export class ModelEditor {
+  /** Route parameter; absent for a new model. */
+  readonly modelId = input<string | undefined>(undefined);
+
+  private readonly api = inject(ModelsApi);
+  private readonly group = inject(CurrentGroup);
+  private readonly router = inject(Router);
+  private readonly errors = inject(ErrorReport);
+  private readonly snackBar = inject(MatSnackBar);
+  private readonly destroyRef = inject(DestroyRef);
+
+  protected readonly canDesign = injectCanDesign();
+  protected readonly form = modelForm();
+  protected readonly materialChoices = materialChoices;
+  protected readonly shapeKinds: ShapeMode[] = [...simpleShapeKinds, 'json'];
+  protected readonly shapeFields = shapeFields;
+  protected readonly customMaterial = customMaterial;
+  protected readonly fieldError = fieldError;
+  protected readonly formatEnergy = formatEnergy;
+
+  protected readonly detail = signal<ModelDetail | null>(null);
+  protected readonly loading = signal(false);
+  protected readonly saving = signal(false);
+  protected readonly derived = signal<DerivedFigures | null>(null);
+  protected readonly checking = signal(false);
+  /** Issues no single field holds, by section ('shape', 'leads.1', '' for the document). */
+  protected readonly sectionIssues = signal<Map<string, string[]>>(new Map());
+  protected readonly document = signal<CavityModelInput>(starterModel);
+  protected readonly value = signal(this.form.getRawValue());
+
+  protected readonly drawing = computed<Drawing>(() => drawingOf(this.document()));
+  protected readonly leadsForPreview = computed(() =>
+    this.value().leads.map((l) => ({ side: l.side, start: l.start ?? 0, width: l.width ?? 0, offset: l.offset ?? 0, name: l.name })),
+  );
+  protected readonly shapeMode = computed(() => this.value().shape.kind);
+  protected readonly isCustomMaterial = computed(() => this.value().material === customMaterial);
+  protected readonly groupSlug = computed(() => this.group.slug());
+  protected readonly title = computed(() => {
+    const d = this.detail();
+    return d ? `${d.name} · version ${d.latestVersion}` : 'New cavity model';
+  });
+
+  private readonly serverCheck = new Subject<CavityModelInput>();
+
+  constructor() {
+    fillForm(this.form, starterModel);
+    this.afterChange();
+
+    this.form.valueChanges.pipe(takeUntilDestroyed()).subscribe(() => this.afterChange());
+
+    // Live server check: only the latest document counts (switchMap drops stale answers).
+    this.serverCheck
+      .pipe(
+        debounceTime(450),
+        switchMap((doc) => {
+          const groupId = this.group.id();
+          if (!groupId) return of(null);
+          this.checking.set(true);
+          return this.api.validate(groupId, doc).pipe(
+            map((r) => ({ ok: true as const, derived: r.derived })),
+            catchError((err: unknown) => of({ ok: false as const, err })),
+          );
+        }),
+        takeUntilDestroyed(),
+      )
+      .subscribe((answer) => {
+        this.checking.set(false);
+        if (!answer) return;
+        if (answer.ok) {
+          this.derived.set(answer.derived);
+          return;
+        }
+        this.derived.set(null);
+        const problem = toProblem(answer.err);
+        if (problem.issues?.length) this.showIssues(problem.issues);
+        else if (!(answer.err instanceof HttpErrorResponse && answer.err.status === 400)) {
+          this.sectionIssues.set(new Map([['', [`The live check is unavailable: ${problem.message}`]]]));
+        }
+      });
+
+    effect(() => {
+      const id = this.modelId();
+      untracked(() => this.load(id));
+    });
+  }
+
+  protected get leads() {
+    return this.form.controls.leads;
+  }
+
+  protected addLead(): void {
+    const ny = this.value().grid.ny ?? 1;
+    this.leads.push(leadGroup({ side: 'left', start: 0, width: Math.max(1, Math.floor(ny / 3)), offset: 0 }));
+  }
+
+  protected removeLead(index: number): void {
+    this.leads.removeAt(index);
+  }
+
+  protected thresholdText(values: readonly number[]): string {
+    if (!values?.length) return '—';
+    const shown = values.slice(0, 8).map((v) => formatEnergy(v, 4).replace(' meV', ''));
+    return `${shown.join(', ')}${values.length > 8 ? `, … (${values.length})` : ''} meV`;
+  }
+
+  protected issuesOf(section: string): string[] {
+    return this.sectionIssues().get(section) ?? [];
+  }
+
+  protected leadError(lead: LeadForm, key: 'start' | 'width' | 'offset', label: string): string {
+    return fieldError(lead.controls[key], label);
+  }
+
+  /** Upload of a drawn outline (PNG, black inside), turned into a bitmap shape by the API. */
+  protected uploadOutline(event: Event): void {
+    const file = (event.target as HTMLInputElement).files?.[0];
+    const groupId = this.group.id();
+    const v = this.form.getRawValue();
+    if (!file || !groupId) return;
+    const spacing = v.spacing ?? 0;
+    const widthNm = (v.grid.nx ?? 0) * spacing;
+    this.api
+      .maskFromBitmap(groupId, file, spacing, widthNm)
+      .pipe(takeUntilDestroyed(this.destroyRef))
+      .subscribe({
+        next: ({ shape }) => {
+          this.form.controls.shape.patchValue({ kind: 'json', json: JSON.stringify(shape, null, 2) });
+          this.snackBar.open(`Outline read: ${shape.width} × ${shape.height} sites.`, 'OK', { duration: 4000 });
+        },
+        error: (err: unknown) => this.errors.show(err),
+      });
+    (event.target as HTMLInputElement).value = '';
+  }
+
+  protected save(): void {
+    const groupId = this.group.id();
+    if (!groupId || this.saving()) return;
+    const { document, issues } = readForm(this.form);
+    if (issues.length) {
+      this.showIssues(issues);
+      return;
+    }
+    const id = this.modelId();
+    this.saving.set(true);
+    const request = id ? this.api.update(groupId, id, document) : this.api.create(groupId, document);
+    request.pipe(takeUntilDestroyed(this.destroyRef)).subscribe({
+      next: (saved) => {
+        this.saving.set(false);
+        this.detail.set(saved);
+        this.derived.set(saved.derived);
+        this.snackBar.open(`Saved ${saved.name}, version ${saved.latestVersion}.`, 'OK', { duration: 4000 });
+        if (!id) void this.router.navigate(['/g', this.group.slug(), 'models', saved.id]);
+      },
+      error: (err: unknown) => {
+        this.saving.set(false);
+        const problem = toProblem(err);
+        if (problem.issues?.length) {
+          this.showIssues(problem.issues);
+          this.snackBar.open(`Not saved: ${problem.message}`, 'Dismiss', { duration: 8000 });
+        } else this.errors.show(err);
+      },
+    });
+  }
+
+  private load(id: string | undefined): void {
+    const groupId = this.group.id();
+    if (!id || !groupId) return;
+    this.loading.set(true);
+    this.api
+      .model(groupId, id)
+      .pipe(takeUntilDestroyed(this.destroyRef))
+      .subscribe({
+        next: (detail) => {
+          this.loading.set(false);
+          this.detail.set(detail);
+          this.derived.set(detail.derived);
+          fillForm(this.form, detail.document);
+          if (!this.canDesign()) this.form.disable({ emitEvent: false });
+        },
+        error: (err: unknown) => {
+          this.loading.set(false);
+          this.errors.show(err);
+        },
+      });
+  }
+
+  /** Redraws from the form at once; the derived figures follow from the server check. */
+  private afterChange(): void {
+    this.value.set(this.form.getRawValue());
+    const { document, issues } = readForm(this.form);
+    this.document.set(document);
+    const local = validateCavityModel(document);
+    const all: PlacedIssue[] = [...issues, ...(local.ok ? [] : local.issues.map((i) => ({ path: dottedPath(i.path), message: i.message })))];
+    this.showIssues(all);
+    if (!issues.length) this.serverCheck.next(document);
+  }
+
+  private showIssues(issues: readonly PlacedIssue[]): void {
+    clearPlacedIssues(this.form);
+    const sections = ['', 'grid', 'material', 'shape', 'leads', 'potential', ...this.leads.controls.map((_, k) => `leads.${k}`)];
+    this.sectionIssues.set(placeIssues(this.form, issues, sections));
+  }
+}
+
+/** Rasterises the shape alone, so the drawing stays up while a lead is still wrong. */
+function drawingOf(doc: CavityModelInput): Drawing {
+  const nx = Number(doc.grid?.nx);
+  const ny = Number(doc.grid?.ny);
+  const spacing = Number(doc.spacing);
+  const empty = (reason: string): Drawing => ({ mask: null, nx: nx > 0 ? nx : 1, ny: ny > 0 ? ny : 1, spacing: spacing > 0 ? spacing : 1, sites: 0, reason });
+  if (!Number.isInteger(nx) || !Number.isInteger(ny) || nx < 1 || ny < 1) return empty('The grid needs whole numbers of columns and rows.');
+  if (nx * ny > MAX_GRID_POINTS) return empty(`The grid has ${nx * ny} points, above the cap of ${MAX_GRID_POINTS}.`);
+  if (!(spacing > 0)) return empty('The lattice spacing must be positive.');
+  const shape = shapeSchema.safeParse(doc.shape);
+  if (!shape.success) return empty('The shape is incomplete; see the messages under it.');
+  try {
+    const mask = rasteriseShape(shape.data, nx, ny, spacing);
+    return { mask, nx, ny, spacing, sites: countSites(mask), reason: null };
+  } catch (err) {
+    return empty(err instanceof Error ? err.message : String(err));
+  }
+}
+

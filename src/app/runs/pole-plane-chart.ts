@@ -1,0 +1,35 @@
+import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
+import { NgxEchartsDirective } from 'ngx-echarts';
+import { chartColours } from './chart-colours';
+import { type PlanePole, polePlaneOptions } from './pole-plane-options';
+
+/** The poles of a run in the complex energy plane, with thresholds and the searched window. */
+@Component({
+  selector: 'pw-pole-plane-chart',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  imports: [NgxEchartsDirective],
+  template: `<div class="chart" echarts [options]="options()" [initOpts]="{ renderer: 'svg' }" role="img" [attr.aria-label]="label()"></div>`,
+  styles: `
+    :host { display: block; }
+    .chart { height: 340px; width: 100%; }
+  `,
+})
+export class PolePlaneChart {
+  readonly poles = input.required<readonly PlanePole[]>();
+  readonly thresholds = input<readonly number[]>([]);
+  readonly window = input<{ emin: number; emax: number; gammaMax?: number } | null>(null);
+  readonly highlightId = input<string | null>(null);
+
+  protected readonly options = computed(() =>
+    polePlaneOptions({
+      poles: this.poles(),
+      thresholds: this.thresholds(),
+      window: this.window(),
+      highlightId: this.highlightId(),
+      colours: chartColours(),
+    }),
+  );
+  protected readonly label = computed(
+    () => `Complex energy plane with ${this.poles().length} pole(s) and ${this.thresholds().length} channel threshold(s)`,
+  );
+}

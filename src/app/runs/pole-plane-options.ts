@@ -1,0 +1,109 @@
+import type { EChartsCoreOption } from 'echarts/core';
+import type { ChartColours } from './chart-colours';
+
+/** One pole z = E − iΓ/2 to draw (meV), with the flags that change how it is drawn. */
+export interface PlanePole {
+  energy: number;
+  width: number;
+  id?: string;
+  bound?: boolean;
+  nearThreshold?: boolean;
+  overlapping?: boolean;
+}
+
+export interface PlaneInput {
+  poles: readonly PlanePole[];
+  thresholds: readonly number[];
+  window: { emin: number; emax: number; gammaMax?: number } | null;
+  /** The pole to single out (the resonance detail page). */
+  highlightId?: string | null;
+  colours: ChartColours;
+}
+
+/**
+ * echarts option for the complex energy plane: Re z = E on x, Im z = −Γ/2 on y
+ * (both meV), poles below the real axis, channel thresholds as vertical lines and
+ * the searched window as a shaded box. Bound states sit on the real axis.
+ */
+export function polePlaneOptions(input: PlaneInput): EChartsCoreOption {
+  const c = input.colours;
+  const point = (p: PlanePole) => ({ value: [p.energy, -p.width / 2], id: p.id });
+  const isolated = input.poles.filter((p) => !p.bound && !p.nearThreshold && !p.overlapping && p.id !== input.highlightId);
+  const nearThreshold = input.poles.filter((p) => !p.bound && p.nearThreshold && p.id !== input.highlightId);
+  const overlapping = input.poles.filter((p) => !p.bound && !p.nearThreshold && p.overlapping && p.id !== input.highlightId);
+  const bound = input.poles.filter((p) => p.bound && p.id !== input.highlightId);
+  const highlighted = input.poles.filter((p) => input.highlightId != null && p.id === input.highlightId);
+  const w = input.window;
+  const gammaMax = w?.gammaMax;
+  const windowArea =
+    w && gammaMax != null
+      ? [[{ xAxis: w.emin, yAxis: -gammaMax / 2 }, { xAxis: w.emax, yAxis: 0 }]]
+      : w
+        ? [[{ xAxis: w.emin }, { xAxis: w.emax }]]
+        : [];
+  const axisText = { color: c.onSurfaceVariant };
+  return {
+    animation: false,
+    grid: { left: 72, right: 24, top: 40, bottom: 56 },
+    legend: { top: 4, textStyle: { color: c.onSurface } },
+    tooltip: {
+      trigger: 'item',
+      formatter: (p: { value: [number, number]; seriesName: string }) =>
+        `${p.seriesName}<br>E = ${p.value[0].toPrecision(6)} meV<br>Γ/2 = ${(-p.value[1]).toPrecision(3)} meV`,
+    },
+    xAxis: {
+      type: 'value',
+      name: 'Re z = E (meV)',
+      nameLocation: 'middle',
+      nameGap: 32,
+      scale: true,
+      min: w ? w.emin - 0.02 * (w.emax - w.emin) : undefined,
+      max: w ? w.emax + 0.02 * (w.emax - w.emin) : undefined,
+      axisLabel: axisText,
+      nameTextStyle: axisText,
+      splitLine: { lineStyle: { color: c.outlineVariant } },
+    },
+    yAxis: {
+      type: 'value',
+      name: 'Im z = −Γ/2 (meV)',
+      nameLocation: 'middle',
+      nameGap: 52,
+      max: 0,
+      axisLabel: axisText,
+      nameTextStyle: axisText,
+      splitLine: { lineStyle: { color: c.outlineVariant } },
+    },
+    series: [
+      {
+        name: 'Resonances',
+        type: 'scatter',
+        symbolSize: 9,
+        itemStyle: { color: c.primary },
+        data: isolated.map(point),
+        markLine: {
+          silent: true,
+          symbol: 'none',
+          label: { formatter: 'threshold', color: c.onSurfaceVariant, fontSize: 10 },
+          lineStyle: { type: 'dashed', color: c.outline },
+          data: input.thresholds.map((x) => ({ xAxis: x })),
+        },
+        markArea: {
+          silent: true,
+          itemStyle: { color: c.primary, opacity: 0.06, borderColor: c.primary, borderWidth: 1, borderType: 'dotted' },
+          data: windowArea,
+        },
+      },
+      { name: 'Near a threshold', type: 'scatter', symbol: 'triangle', symbolSize: 11, itemStyle: { color: c.tertiary }, data: nearThreshold.map(point) },
+      { name: 'Overlapping', type: 'scatter', symbol: 'rect', symbolSize: 9, itemStyle: { color: c.secondary }, data: overlapping.map(point) },
+      { name: 'Bound', type: 'scatter', symbol: 'diamond', symbolSize: 11, itemStyle: { color: c.onSurface }, data: bound.map(point) },
+      {
+        name: 'This resonance',
+        type: 'scatter',
+        symbol: 'circle',
+        symbolSize: 16,
+        itemStyle: { color: c.error, borderColor: c.surface, borderWidth: 2 },
+        data: highlighted.map(point),
+      },
+    ].filter((s) => s.name === 'Resonances' || s.data.length > 0),
+  };
+}

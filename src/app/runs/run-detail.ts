@@ -1,0 +1,127 @@
+import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, inject, input, signal, untracked } from '@angular/core';
+import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
+import { MatButtonModule } from '@angular/material/button';
+import { MatCardModule } from '@angular/material/card';
+import { MatIconModule } from '@angular/material/icon';
+import { MatProgressBarModule } from '@angular/material/progress-bar';
+import { MatTableModule } from '@angular/material/table';
+import { RouterLink } from '@angular/router';
+import type { Subscription } from 'rxjs';
+import { EnergyPipe, LifetimePipe, QualityPipe, WidthPipe } from '../catalogue/energy-format';
+import { Auth } from '../core/auth/auth';
+import { ErrorReport } from '../core/errors/error-report';
+import { CurrentGroup } from '../core/group/current-group';
+import { injectCanDesign } from '../models/design-permission';
+import { certificateInWords } from './certificate-words';
+import { PolePlaneChart } from './pole-plane-chart';
+import { kindLabel, statusLabel, windowText } from './run-labels';
+import { type RunDetail as RunDetailData, RunsApi, finishedStatuses } from './runs-api';
+import { TransmissionChart } from './transmission-chart';
+
+/**
+ * One run: live progress while it works; afterwards its poles in the complex
+ * plane, the transmission spectrum with the poles marked, the certificate in words
+ * and a table of the poles with their flags.
+ */
+@Component({
+  selector: 'pw-run-detail',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  imports: [
+    RouterLink,
+    MatButtonModule,
+    MatCardModule,
+    MatIconModule,
+    MatProgressBarModule,
+    MatTableModule,
+    EnergyPipe,
+    WidthPipe,
+    LifetimePipe,
+    QualityPipe,
+    PolePlaneChart,
+    TransmissionChart,
+  ],
+  templateUrl: './run-detail.html',
+  styleUrl: './run-detail.scss',
+})
+export class RunDetail {
+  readonly runId = input.required<string>();
+
+  private readonly api = inject(RunsApi);
+  private readonly auth = inject(Auth);
+  private readonly errors = inject(ErrorReport);
+  private readonly destroyRef = inject(DestroyRef);
+  protected readonly group = inject(CurrentGroup);
+  protected readonly canDesign = injectCanDesign();
+  protected readonly kindLabel = kindLabel;
+  protected readonly statusLabel = statusLabel;
+  protected readonly windowText = windowText;
+  protected readonly columns = ['index', 'energy', 'width', 'lifetime', 'quality', 'petermann', 'flags'];
+
+  protected readonly run = signal<RunDetailData | null>(null);
+  protected readonly loadError = signal<string | null>(null);
+  private live: Subscription | null = null;
+
+  protected readonly active = computed(() => {
+    const r = this.run();
+    return !!r && !finishedStatuses.has(r.status);
+  });
+  protected readonly percent = computed(() => Math.round(Math.min(1, Math.max(0, this.run()?.progress?.fraction ?? 0)) * 100));
+  protected readonly certificate = computed(() => certificateInWords(this.run()?.certificate ?? null));
+  protected readonly uncertified = computed(() => this.run()?.certificate?.pieces.filter((p) => !p.certified) ?? []);
+  protected readonly poles = computed(() => this.run()?.poles ?? []);
+  protected readonly flagCounts = computed(() => {
+    const p = this.poles();
+    return {
+      nearThreshold: p.filter((r) => r.nearThreshold).length,
+      overlapping: p.filter((r) => r.overlapping).length,
+      bound: p.filter((r) => r.bound).length,
+    };
+  });
+  protected readonly canCancel = computed(() => {
+    const r = this.run();
+    if (!r || !this.active() || !this.canDesign()) return false;
+    return this.group.group()?.role === 'admin' || r.createdBy.id === this.auth.user()?.id;
+  });
+
+  constructor() {
+    effect(() => {
+      const id = this.runId();
+      untracked(() => this.load(id));
+    });
+    this.destroyRef.onDestroy(() => this.live?.unsubscribe());
+  }
+
+  protected cancel(): void {
+    const groupId = this.group.id();
+    const r = this.run();
+    if (!groupId || !r) return;
+    this.api
+      .cancel(groupId, r.id)
+      .pipe(takeUntilDestroyed(this.destroyRef))
+      .subscribe({ error: (err: unknown) => this.errors.show(err) });
+  }
+
+  private load(id: string): void {
+    const groupId = this.group.id();
+    if (!groupId) return;
+    this.api
+      .run(groupId, id)
+      .pipe(takeUntilDestroyed(this.destroyRef))
+      .subscribe({
+        next: (r) => {
+          this.run.set(r);
+          if (!finishedStatuses.has(r.status)) this.follow(groupId, id);
+        },
+        error: (err: unknown) => this.loadError.set(this.errors.show(err).message),
+      });
+  }
+
+  /** Live progress; when the run ends, the full result is fetched once. */
+  private follow(groupId: string, id: string): void {
+    this.live?.unsubscribe();
+    this.live = this.api.updates(groupId, id).subscribe({
+      next: (u) => this.run.update((r) => (r ? { ...r, status: u.status, progress: u.progress } : r)),
+      complete: () => this.load(id),
+    });
+  }
+}

@@ -1,0 +1,230 @@
+import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, inject, input, signal, untracked } from '@angular/core';
+import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
+import { FormControl, FormGroup, ReactiveFormsModule, Validators } from '@angular/forms';
+import { MatButtonModule } from '@angular/material/button';
+import { MatButtonToggleModule } from '@angular/material/button-toggle';
+import { MatCardModule } from '@angular/material/card';
+import { MatFormFieldModule } from '@angular/material/form-field';
+import { MatIconModule } from '@angular/material/icon';
+import { MatInputModule } from '@angular/material/input';
+import { MatProgressBarModule } from '@angular/material/progress-bar';
+import { MatSelectModule } from '@angular/material/select';
+import { Router, RouterLink } from '@angular/router';
+import { Subject, catchError, debounceTime, map, of, switchMap } from 'rxjs';
+import { formatDuration, formatEnergy } from '../catalogue/energy-format';
+import { ErrorReport } from '../core/errors/error-report';
+import { fieldError } from '../core/errors/field-error';
+import { toProblem } from '../core/errors/problem';
+import { CurrentGroup } from '../core/group/current-group';
+import type { DerivedFigures } from '../models/derived-figures';
+import { injectCanDesign } from '../models/design-permission';
+import { type ModelDetail, type ModelSummary, ModelsApi } from '../models/models-api';
+import { placeIssues } from '../models/model-issues';
+import { type AxisThreshold, EnergyAxis } from './energy-axis';
+import { type RunEstimate, type RunKind, type RunRequest, RunsApi } from './runs-api';
+
+/**
+ * Launches a pole search or a transmission sweep on one model version. The window
+ * is drawn on an energy axis with that version's channel thresholds, and the
+ * server's estimate (sites, window pieces, expected time, warnings) is shown
+ * before anything is queued.
+ */
+@Component({
+  selector: 'pw-run-launcher',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  imports: [
+    ReactiveFormsModule,
+    RouterLink,
+    MatButtonModule,
+    MatButtonToggleModule,
+    MatCardModule,
+    MatFormFieldModule,
+    MatIconModule,
+    MatInputModule,
+    MatProgressBarModule,
+    MatSelectModule,
+    EnergyAxis,
+  ],
+  templateUrl: './run-launcher.html',
+  styleUrl: './run-launcher.scss',
+})
+export class RunLauncher {
+  /** ?modelId= and ?version= preselect a model version (from the model page). */
+  readonly modelId = input<string | undefined>(undefined);
+  readonly version = input<string | undefined>(undefined);
+
+  private readonly runs = inject(RunsApi);
+  private readonly models = inject(ModelsApi);
+  private readonly errors = inject(ErrorReport);
+  private readonly router = inject(Router);
+  private readonly destroyRef = inject(DestroyRef);
+  protected readonly group = inject(CurrentGroup);
+  protected readonly canDesign = injectCanDesign();
+  protected readonly fieldError = fieldError;
+  protected readonly formatEnergy = formatEnergy;
+  protected readonly formatDuration = formatDuration;
+
+  protected readonly form = new FormGroup({
+    modelId: new FormControl('', { nonNullable: true, validators: [Validators.required] }),
+    version: new FormControl<number | null>(null),
+    kind: new FormControl<RunKind>('pole-search', { nonNullable: true }),
+    window: new FormGroup({
+      emin: new FormControl<number | null>(1, [Validators.required]),
+      emax: new FormControl<number | null>(10, [Validators.required]),
+      gammaMax: new FormControl<number | null>(1),
+      points: new FormControl<number | null>(400),
+    }),
+    note: new FormControl('', { nonNullable: true }),
+  });
+
+  protected readonly modelChoices = signal<ModelSummary[]>([]);
+  protected readonly model = signal<ModelDetail | null>(null);
+  protected readonly derived = signal<DerivedFigures | null>(null);
+  protected readonly estimate = signal<RunEstimate | null>(null);
+  protected readonly estimateError = signal<string | null>(null);
+  protected readonly estimating = signal(false);
+  protected readonly launching = signal(false);
+  protected readonly value = signal(this.form.getRawValue());
+  protected readonly kind = computed(() => this.value().kind);
+
+  protected readonly thresholds = computed<AxisThreshold[]>(() =>
+    (this.derived()?.thresholds ?? [])
+      .flatMap((t) => t.values.map((energy) => ({ energy, lead: t.lead })))
+      .sort((a, b) => a.energy - b.energy),
+  );
+  protected readonly hopping = computed(() => this.derived()?.hoppingMeV ?? null);
+  /** E_max / t: the lattice dispersion error grows with it (common practice: keep it well below 1). */
+  protected readonly energyOverHopping = computed(() => {
+    const t = this.hopping();
+    const emax = this.value().window.emax;
+    return t && emax != null ? emax / t : null;
+  });
+
+  /** Above this E_max/t the dispersion error is called out (common practice, no source: (ka)²/12 ≈ 3 % there). */
+  protected readonly validityRatio = 0.3;
+
+  private readonly estimates = new Subject<Omit<RunRequest, 'note'> | null>();
+
+  constructor() {
+    this.form.valueChanges.pipe(takeUntilDestroyed()).subscribe(() => {
+      this.value.set(this.form.getRawValue());
+      this.estimates.next(this.request());
+    });
+    this.form.controls.modelId.valueChanges.pipe(takeUntilDestroyed()).subscribe((id) => this.loadModel(id, null));
+    this.form.controls.version.valueChanges.pipe(takeUntilDestroyed()).subscribe((v) => this.loadDerived(v));
+
+    this.estimates
+      .pipe(
+        debounceTime(400),
+        switchMap((request) => {
+          const groupId = this.group.id();
+          if (!request || !groupId) return of(null);
+          this.estimating.set(true);
+          return this.runs.estimate(groupId, request).pipe(
+            map((e) => ({ ok: true as const, e })),
+            catchError((err: unknown) => of({ ok: false as const, err })),
+          );
+        }),
+        takeUntilDestroyed(),
+      )
+      .subscribe((answer) => {
+        this.estimating.set(false);
+        if (!answer) {
+          this.estimate.set(null);
+          return;
+        }
+        if (answer.ok) {
+          this.estimate.set(answer.e);
+          this.estimateError.set(null);
+        } else {
+          this.estimate.set(null);
+          const problem = toProblem(answer.err);
+          this.estimateError.set(problem.message);
+          if (problem.issues?.length) placeIssues(this.form, problem.issues, []);
+        }
+      });
+
+    effect(() => {
+      const groupId = this.group.id();
+      if (!groupId) return;
+      untracked(() =>
+        this.models
+          .list(groupId, { pageSize: 100 })
+          .pipe(takeUntilDestroyed(this.destroyRef))
+          .subscribe({ next: (r) => this.modelChoices.set(r.items), error: (err: unknown) => this.errors.show(err) }),
+      );
+    });
+    effect(() => {
+      const id = this.modelId();
+      const version = this.version();
+      untracked(() => {
+        if (!id) return;
+        this.form.controls.modelId.setValue(id, { emitEvent: false });
+        this.loadModel(id, version ? Number(version) : null);
+      });
+    });
+  }
+
+  protected launch(): void {
+    const groupId = this.group.id();
+    const request = this.request();
+    if (!groupId || !request || this.launching()) return;
+    const note = this.form.controls.note.value.trim();
+    this.launching.set(true);
+    this.runs
+      .launch(groupId, { ...request, ...(note ? { note } : {}) })
+      .pipe(takeUntilDestroyed(this.destroyRef))
+      .subscribe({
+        next: (run) => {
+          this.launching.set(false);
+          void this.router.navigate(['/g', this.group.slug(), 'runs', run.id]);
+        },
+        error: (err: unknown) => {
+          this.launching.set(false);
+          this.errors.showOnForm(err, this.form);
+        },
+      });
+  }
+
+  /** The request the form describes, or null while it is incomplete. */
+  private request(): Omit<RunRequest, 'note'> | null {
+    const v = this.form.getRawValue();
+    const w = v.window;
+    if (!v.modelId || w.emin == null || w.emax == null || !(w.emax > w.emin)) return null;
+    const window =
+      v.kind === 'transmission'
+        ? { emin: w.emin, emax: w.emax, points: w.points ?? 400 }
+        : { emin: w.emin, emax: w.emax, ...(w.gammaMax != null ? { gammaMax: w.gammaMax } : {}) };
+    return { modelId: v.modelId, ...(v.version != null ? { version: v.version } : {}), kind: v.kind, window };
+  }
+
+  private loadModel(id: string, version: number | null): void {
+    const groupId = this.group.id();
+    if (!groupId || !id) return;
+    this.models
+      .model(groupId, id)
+      .pipe(takeUntilDestroyed(this.destroyRef))
+      .subscribe({
+        next: (detail) => {
+          this.model.set(detail);
+          const chosen = version ?? detail.latestVersion;
+          this.form.controls.version.setValue(chosen, { emitEvent: false });
+          this.value.set(this.form.getRawValue());
+          if (chosen === detail.latestVersion) this.derived.set(detail.derived);
+          else this.loadDerived(chosen);
+          this.estimates.next(this.request());
+        },
+        error: (err: unknown) => this.errors.show(err),
+      });
+  }
+
+  private loadDerived(version: number | null): void {
+    const groupId = this.group.id();
+    const id = this.form.controls.modelId.value;
+    if (!groupId || !id || version == null) return;
+    this.models
+      .version(groupId, id, version)
+      .pipe(takeUntilDestroyed(this.destroyRef))
+      .subscribe({ next: (v) => this.derived.set(v.derived), error: (err: unknown) => this.errors.show(err) });
+  }
+}

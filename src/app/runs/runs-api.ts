@@ -1,0 +1,202 @@
+import { HttpClient, HttpParams } from '@angular/common/http';
+import { Injectable, inject } from '@angular/core';
+import { Observable, map, of, switchMap, takeWhile, timer } from 'rxjs';
+import type { ResonanceRow } from '../catalogue/catalogue-api';
+
+export type RunKind = 'pole-search' | 'transmission';
+export type RunStatus = 'queued' | 'running' | 'completed' | 'failed' | 'cancelled';
+
+/** A pole search looks for poles with E in [emin, emax] meV and Γ ≤ gammaMax meV. */
+export interface PoleWindow {
+  emin: number;
+  emax: number;
+  gammaMax?: number;
+}
+/** A transmission sweep samples `points` real energies in [emin, emax] meV. */
+export interface SweepWindow {
+  emin: number;
+  emax: number;
+  points: number;
+}
+export type RunWindow = PoleWindow | SweepWindow;
+
+export interface CertificatePiece {
+  emin: number;
+  emax: number;
+  polesFound: number;
+  windingNumber: number;
+  certified: boolean;
+  nodes: number;
+  note?: string;
+}
+
+export interface RunCertificate {
+  pieces: CertificatePiece[];
+  certified: boolean;
+  summary: string;
+}
+
+export interface RunProgress {
+  stage: string;
+  fraction: number;
+}
+
+export interface Run {
+  id: string;
+  kind: RunKind;
+  status: RunStatus;
+  progress: RunProgress | null;
+  window: RunWindow;
+  modelId: string;
+  modelName: string;
+  modelVersion: number;
+  createdBy: { id: string; name: string };
+  createdAt: string;
+  startedAt: string | null;
+  finishedAt: string | null;
+  attempts: number;
+  error: string | null;
+  engineVersion: string;
+  resonanceCount: number | null;
+  certificate: RunCertificate | null;
+}
+
+export interface Spectrum {
+  energies: number[];
+  /** transmission[pair][energy], pairs[k] names the leads of row k. */
+  transmission: number[][];
+  pairs: { from: string; to: string }[];
+  residual: number[];
+}
+
+export interface RunDetail extends Run {
+  thresholds: number[];
+  poles: ResonanceRow[];
+  spectrum: Spectrum | null;
+}
+
+export interface RunEstimate {
+  sites: number;
+  pieces: number;
+  thresholdsInWindow: number[];
+  factorisations: number;
+  expectedSeconds: number;
+  warnings: string[];
+}
+
+export interface RunRequest {
+  modelId: string;
+  version?: number;
+  kind: RunKind;
+  window: RunWindow;
+  note?: string;
+}
+
+export interface RunListQuery {
+  status?: RunStatus;
+  kind?: RunKind;
+  modelId?: string;
+  page?: number;
+  pageSize?: number;
+}
+
+/** What the events stream and the polling fallback both deliver. */
+export interface RunUpdate {
+  status: RunStatus;
+  progress: RunProgress | null;
+}
+
+export const finishedStatuses: ReadonlySet<RunStatus> = new Set(['completed', 'failed', 'cancelled']);
+
+/** Polling period of the fallback when the event stream is unavailable (the contract says 2 s). */
+export const pollPeriodMs = 2000;
+
+/** Creates an EventSource; a seam so specs can hand in a fake one (jsdom has none). */
+export type EventSourceFactory = (url: string) => EventSource;
+
+/** HTTP for runs: estimate, launch, list, detail, cancel and live progress. */
+@Injectable({ providedIn: 'root' })
+export class RunsApi {
+  private readonly http = inject(HttpClient);
+  /** Replaced in specs; null when the browser has no EventSource, which means polling. */
+  eventSourceFactory: EventSourceFactory | null =
+    typeof EventSource === 'function' ? (url) => new EventSource(url, { withCredentials: true }) : null;
+
+  estimate(groupId: string, request: Omit<RunRequest, 'note'>): Observable<RunEstimate> {
+    return this.http.post<RunEstimate>(`${base(groupId)}/runs/estimate`, request);
+  }
+
+  launch(groupId: string, request: RunRequest): Observable<Run> {
+    return this.http.post<Run>(`${base(groupId)}/runs`, request);
+  }
+
+  list(groupId: string, query: RunListQuery = {}): Observable<{ items: Run[]; total: number }> {
+    let params = new HttpParams();
+    for (const [key, value] of Object.entries(query)) {
+      if (value !== undefined && value !== '') params = params.set(key, String(value));
+    }
+    return this.http.get<{ items: Run[]; total: number }>(`${base(groupId)}/runs`, { params });
+  }
+
+  run(groupId: string, runId: string): Observable<RunDetail> {
+    return this.http.get<RunDetail>(`${base(groupId)}/runs/${encodeURIComponent(runId)}`);
+  }
+
+  cancel(groupId: string, runId: string): Observable<void> {
+    return this.http.post<void>(`${base(groupId)}/runs/${encodeURIComponent(runId)}/cancel`, {});
+  }
+
+  /**
+   * Live status of one run: the server's event stream while it lasts, then polling
+   * GET /runs/:id every 2 s if the stream fails (proxy, old browser). Completes once
+   * the run has finished, after emitting the final status.
+   */
+  updates(groupId: string, runId: string): Observable<RunUpdate> {
+    const poll = (): Observable<RunUpdate> =>
+      timer(0, pollPeriodMs).pipe(
+        switchMap(() => this.run(groupId, runId)),
+        map((r): RunUpdate => ({ status: r.status, progress: r.progress })),
+        takeWhile((u) => !finishedStatuses.has(u.status), true),
+      );
+    const factory = this.eventSourceFactory;
+    if (!factory) return poll();
+    const url = `${base(groupId)}/runs/${encodeURIComponent(runId)}/events`;
+    return this.stream(factory, url).pipe(
+      switchMap((event) => (event === 'poll' ? poll() : of(event))),
+      takeWhile((u) => !finishedStatuses.has(u.status), true),
+    );
+  }
+
+  /**
+   * The SSE stream as an observable of updates, ending in 'poll': after 'done' one
+   * GET fetches the exact final status (completed / failed / cancelled), and after a
+   * stream error polling takes over, so both cases end the same way.
+   */
+  private stream(factory: EventSourceFactory, url: string): Observable<RunUpdate | 'poll'> {
+    return new Observable<RunUpdate | 'poll'>((subscriber) => {
+      const source = factory(url);
+      const handOver = () => {
+        source.close();
+        subscriber.next('poll');
+        subscriber.complete();
+      };
+      source.addEventListener('progress', (e: Event) => {
+        let data: RunUpdate;
+        try {
+          data = JSON.parse((e as MessageEvent<string>).data) as RunUpdate;
+        } catch {
+          return; // A malformed message is skipped; the next one or the final GET corrects it.
+        }
+        subscriber.next(data);
+      });
+      source.addEventListener('done', handOver);
+      source.addEventListener('error', handOver);
+      return () => source.close();
+    });
+  }
+}
+
+function base(groupId: string): string {
+  return `/api/groups/${encodeURIComponent(groupId)}`;
+}
+

@@ -1,0 +1,21 @@
+import type { Routes } from '@angular/router';
+import { provideEchartsCore } from 'ngx-echarts';
+import { designerOnly } from '../models/designer-only';
+
+/** Mounted at /g/:groupSlug/runs. echarts is loaded only when a chart first shows. */
+export const runsRoutes: Routes = [
+  {
+    path: '',
+    providers: [provideEchartsCore({ echarts: () => import('./echarts') })],
+    children: [
+      { path: '', loadComponent: () => import('./run-list').then((m) => m.RunList), title: 'Runs · Poleward' },
+      {
+        path: 'new',
+        canActivate: [designerOnly],
+        loadComponent: () => import('./run-launcher').then((m) => m.RunLauncher),
+        title: 'Launch a run · Poleward',
+      },
+      { path: ':runId', loadComponent: () => import('./run-detail').then((m) => m.RunDetail), title: 'Run · Poleward' },
+    ],
+  },
+];

@@ -1,0 +1,24 @@
+import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
+import { NgxEchartsDirective } from 'ngx-echarts';
+import { chartColours } from './chart-colours';
+import type { Spectrum } from './runs-api';
+import { transmissionOptions } from './transmission-options';
+
+/** The transmission spectrum of a run, with its poles marked on the energy axis. */
+@Component({
+  selector: 'pw-transmission-chart',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  imports: [NgxEchartsDirective],
+  template: `<div class="chart" echarts [options]="options()" [initOpts]="{ renderer: 'svg' }" role="img" aria-label="Transmission spectrum"></div>`,
+  styles: `
+    :host { display: block; }
+    .chart { height: 340px; width: 100%; }
+  `,
+})
+export class TransmissionChart {
+  readonly spectrum = input.required<Spectrum>();
+  readonly poles = input<readonly { energy: number }[]>([]);
+  readonly thresholds = input<readonly number[]>([]);
+
+  protected readonly options = computed(() => transmissionOptions(this.spectrum(), this.poles(), this.thresholds(), chartColours()));
+}

@@ -1,0 +1,76 @@
+import type { EChartsCoreOption } from 'echarts/core';
+import type { ChartColours } from './chart-colours';
+import type { Spectrum } from './runs-api';
+
+/**
+ * echarts option for the transmission spectrum T(ℓ→ℓ′)(E): one line per lead pair,
+ * pole energies as dotted vertical markers (labelled with their index) and channel
+ * thresholds as dashed ones, where steps in T are expected.
+ */
+export function transmissionOptions(
+  spectrum: Spectrum,
+  poles: readonly { energy: number }[],
+  thresholds: readonly number[],
+  colours: ChartColours,
+): EChartsCoreOption {
+  const c = colours;
+  const palette = [c.primary, c.tertiary, c.secondary, c.error, c.outline];
+  const emin = spectrum.energies[0];
+  const emax = spectrum.energies[spectrum.energies.length - 1];
+  const inside = (e: number) => e >= emin && e <= emax;
+  const axisText = { color: c.onSurfaceVariant };
+  return {
+    animation: false,
+    color: palette,
+    grid: { left: 64, right: 24, top: 40, bottom: 80 },
+    legend: { top: 4, textStyle: { color: c.onSurface } },
+    tooltip: { trigger: 'axis', valueFormatter: (v: number) => (typeof v === 'number' ? v.toFixed(4) : String(v)) },
+    dataZoom: [{ type: 'inside' }, { type: 'slider', height: 18, bottom: 8 }],
+    xAxis: {
+      type: 'value',
+      name: 'E (meV)',
+      nameLocation: 'middle',
+      nameGap: 30,
+      min: emin,
+      max: emax,
+      axisLabel: axisText,
+      nameTextStyle: axisText,
+    },
+    yAxis: {
+      type: 'value',
+      name: 'T',
+      min: 0,
+      axisLabel: axisText,
+      nameTextStyle: axisText,
+      splitLine: { lineStyle: { color: c.outlineVariant } },
+    },
+    series: spectrum.pairs.map((pair, k) => ({
+      name: `T(${pair.from} → ${pair.to})`,
+      type: 'line',
+      showSymbol: false,
+      lineStyle: { width: 1.5 },
+      data: spectrum.energies.map((e, n) => [e, spectrum.transmission[k]?.[n] ?? null]),
+      ...(k === 0
+        ? {
+            markLine: {
+              silent: true,
+              symbol: 'none',
+              data: [
+                ...poles
+                  .map((p, n) => ({ p, n }))
+                  .filter(({ p }) => inside(p.energy))
+                  .map(({ p, n }) => ({
+                    xAxis: p.energy,
+                    label: { formatter: `${n + 1}`, color: c.error, fontSize: 10 },
+                    lineStyle: { type: 'dotted', color: c.error },
+                  })),
+                ...thresholds
+                  .filter(inside)
+                  .map((x) => ({ xAxis: x, label: { show: false }, lineStyle: { type: 'dashed', color: c.outline } })),
+              ],
+            },
+          }
+        : {}),
+    })),
+  };
+}
