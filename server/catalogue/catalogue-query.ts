@@ -118,8 +118,8 @@ export const catalogueFilterSchema = z
   })
   .superRefine((f, ctx) => {
     for (const r of Object.values(ranges)) {
-      const lo = f[r.min] as number | undefined;
-      const hi = f[r.max] as number | undefined;
+      const lo = (f as Record<string, unknown>)[r.min] as number | undefined;
+      const hi = (f as Record<string, unknown>)[r.max] as number | undefined;
       if (lo !== undefined && hi !== undefined && lo > hi) {
         ctx.addIssue({ code: 'custom', path: [r.max], message: `must not be below ${r.min} (${lo})` });
       }
@@ -158,8 +158,8 @@ export function toCatalogueFilter(parsed: ParsedFilter): CatalogueFilter {
   if (parsed.tag) out.tags = [...new Set(parsed.tag as string[])];
   if (parsed.bound !== undefined) out.bound = parsed.bound as boolean;
   for (const [name, r] of Object.entries(ranges) as [RangeName, (typeof ranges)[RangeName]][]) {
-    const min = parsed[r.min] as number | undefined;
-    const max = parsed[r.max] as number | undefined;
+    const min = (parsed as Record<string, unknown>)[r.min] as number | undefined;
+    const max = (parsed as Record<string, unknown>)[r.max] as number | undefined;
     if (min !== undefined || max !== undefined) out.ranges[name] = { min, max };
   }
   return out;
@@ -240,5 +240,12 @@ export function catalogueOrder(sort: CatalogueSort, dir: 'asc' | 'desc'): SQL[] 
   const by = dir === 'asc' ? asc : desc;
   const cols = [...sortColumns[sort]];
   if (sort !== 'energy') cols.push(resonances.energy);
-  return [...cols.map((c) => by(c)), by(resonances.id)];
+  return [
+    ...cols.map((c) =>
+      // The index is (group_id, created_at DESC NULLS LAST); PostgreSQL's default DESC is NULLS
+      // FIRST and it will not use the index for a different null order, even on a NOT NULL column.
+      c === resonances.createdAt ? (dir === 'asc' ? sql`${c} asc nulls first` : sql`${c} desc nulls last`) : by(c),
+    ),
+    by(resonances.id),
+  ];
 }

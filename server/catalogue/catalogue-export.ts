@@ -1,0 +1,124 @@
+import type { Response } from 'express';
+import Papa from 'papaparse';
+import type { ResonanceRecord } from './catalogue-repository.js';
+import { toResonanceRow, type ResonanceRow } from './resonance-row.js';
+
+export type ExportFormat = 'csv' | 'json';
+
+/** Hands batches of matching rows to `onBatch` until it returns false; resolves to the number of rows read. */
+export type RowSource = (onBatch: (rows: ResonanceRecord[]) => Promise<boolean>) => Promise<number>;
+
+/**
+ * CSV columns: the header names the unit of every dimensional quantity. Empty lifetime
+ * and quality cells mean infinite (bound states). Lists (partial widths, tags) are
+ * "; "-separated inside one cell so every resonance stays one line.
+ */
+const csvColumns: [string, (r: ResonanceRow) => string | number | boolean | null][] = [
+  ['energy_meV', (r) => r.energy],
+  ['width_meV', (r) => r.width],
+  ['lifetime_ps', (r) => r.lifetimePs],
+  ['quality', (r) => r.quality],
+  ['petermann', (r) => r.petermann],
+  ['residual', (r) => r.residual],
+  ['partial_widths_meV', (r) => r.partialWidths.map((p) => `${p.lead}=${p.width}`).join('; ')],
+  ['bound', (r) => r.bound],
+  ['near_threshold', (r) => r.nearThreshold],
+  ['overlapping', (r) => r.overlapping],
+  ['model_name', (r) => r.modelName],
+  ['model_version', (r) => r.modelVersion],
+  ['family', (r) => r.family],
+  ['material', (r) => r.material],
+  ['field_T', (r) => r.fieldT],
+  ['width_nm', (r) => r.keyDimensions.width ?? null],
+  ['height_nm', (r) => r.keyDimensions.height ?? null],
+  ['radius_nm', (r) => r.keyDimensions.radius ?? null],
+  ['length_nm', (r) => r.keyDimensions.length ?? null],
+  ['tags', (r) => r.tags.join('; ')],
+  ['notes', (r) => r.notes],
+  ['created_at', (r) => r.createdAt],
+  ['resonance_id', (r) => r.id],
+  ['run_id', (r) => r.runId],
+  ['model_id', (r) => r.modelId],
+];
+
+export const csvHeader = csvColumns.map(([name]) => name);
+
+/** Units of the JSON export's fields, written at its top so the file explains itself. */
+const jsonUnits = {
+  energy: 'meV',
+  width: 'meV',
+  lifetimePs: 'ps (null: infinite, bound state)',
+  quality: 'E/Γ, no unit (null: infinite, bound state)',
+  partialWidths: 'meV',
+  fieldT: 'T',
+  keyDimensions: 'nm',
+};
+
+/**
+ * RFC 4180 lines (CRLF). escapeFormulae prefixes text cells that start with =, +, -, @
+ * so a spreadsheet does not run a note as a formula; numbers are left alone.
+ */
+function csvLines(rows: ResonanceRow[], header: boolean): string {
+  const data = rows.map((r) => csvColumns.map(([, get]) => get(r)));
+  const text = Papa.unparse({ fields: csvHeader, data }, { header, newline: '\r\n', escapeFormulae: true });
+  return text.length > 0 ? text + '\r\n' : '';
+}
+
+/** Writes with back-pressure; false once the client has gone away. */
+function write(res: Response, chunk: string): Promise<boolean> {
+  if (res.destroyed || res.writableEnded) return Promise.resolve(false);
+  if (res.write(chunk)) return Promise.resolve(true);
+  return new Promise((resolve) => {
+    const done = (ok: boolean) => {
+      res.off('drain', onDrain);
+      res.off('close', onClose);
+      resolve(ok);
+    };
+    const onDrain = () => done(true);
+    const onClose = () => done(false);
+    res.on('drain', onDrain);
+    res.on('close', onClose);
+  });
+}
+
+function exportFileName(format: ExportFormat, now: Date): string {
+  return `poleward-catalogue-${now.toISOString().slice(0, 10)}.${format}`;
+}
+
+/**
+ * Streams the whole filtered catalogue as a download. Headers go out with the first
+ * batch, so a failure before any row still answers a normal JSON error; a failure
+ * after that cuts the connection, so a truncated file is never mistaken for a whole one.
+ */
+export async function sendCatalogueExport(res: Response, format: ExportFormat, source: RowSource, now = new Date()): Promise<void> {
+  let started = false;
+  let first = true;
+  const start = async (): Promise<boolean> => {
+    if (started) return true;
+    started = true;
+    res.status(200);
+    res.setHeader('Content-Type', format === 'csv' ? 'text/csv; charset=utf-8' : 'application/json; charset=utf-8');
+    res.setHeader('Content-Disposition', `attachment; filename="${exportFileName(format, now)}"`);
+    res.setHeader('Cache-Control', 'no-store');
+    const opening =
+      format === 'csv' ? csvLines([], true) : `{"exportedAt":${JSON.stringify(now.toISOString())},"units":${JSON.stringify(jsonUnits)},"items":[`;
+    return write(res, opening);
+  };
+  try {
+    await source(async (records) => {
+      if (!(await start())) return false;
+      const rows = records.map(toResonanceRow);
+      if (format === 'csv') return write(res, csvLines(rows, false));
+      const body = rows.map((r) => JSON.stringify(r)).join(',\n');
+      const chunk = (first ? '\n' : ',\n') + body;
+      first = false;
+      return write(res, chunk);
+    });
+    if (!(await start())) return;
+    if (format === 'json') await write(res, '\n]}\n');
+    res.end();
+  } catch (err) {
+    if (!started) throw err;
+    res.destroy(err instanceof Error ? err : new Error(String(err)));
+  }
+}
