@@ -1,17 +1,17 @@
 import { Router } from 'express';
 import { z } from 'zod';
-import { emailField } from './email-field.js';
 import type { Db } from '../db/client.js';
 import { validate } from '../http/validate.js';
 import type { AuthService } from './auth-service.js';
 import { signedInUser } from './authenticate.js';
 import { checkCsrf } from './csrf.js';
+import { emailField } from './email-field.js';
 import { newPasswordSchema } from './password.js';
 import { sessionOf } from './session.js';
 import { clearSessionCookies, csrfCookie, setSessionCookies } from './session-cookies.js';
 import { signSessionToken } from './session-token.js';
-import { findUserById } from './user-repository.js';
 import { attemptLimiter, type AttemptLimit } from './sign-in-limit.js';
+import { findUserById } from './user-repository.js';
 
 const signInBody = z.object({ email: emailField, password: z.string().min(1).max(1000) });
 const resetBody = z.object({ email: emailField });

@@ -1,8 +1,8 @@
 import { Router } from 'express';
 import { z } from 'zod';
-import { emailField } from '../auth/email-field.js';
 import { groupActivity } from '../audit/activity.js';
 import { signedInUser } from '../auth/authenticate.js';
+import { emailField } from '../auth/email-field.js';
 import { requireAuth } from '../auth/require-auth.js';
 import { requireRole } from '../auth/require-role.js';
 import { groupsOfUser } from '../auth/user-repository.js';
