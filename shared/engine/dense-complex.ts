@@ -17,35 +17,18 @@
  */
 export function eliminateColumn(f: Float64Array, m: number, j: number, q0: number, q1: number): void {
   const cj = 2 * j * m;
+  const end = 2 * m;
   let q = q0;
   for (; q + 4 <= q1; q += 4) {
+    triangle4(f, m, cj, q);
     const c0 = 2 * q * m;
     const c1 = c0 + 2 * m;
     const c2 = c1 + 2 * m;
     const c3 = c2 + 2 * m;
-    // The 4×4 unit lower triangle first, sequentially.
-    const a0 = cj + 2 * q;
-    const u0r = f[a0], u0i = f[a0 + 1];
-    let l = c0 + 2 * (q + 1);
-    let u1r = f[a0 + 2] - (f[l] * u0r - f[l + 1] * u0i);
-    let u1i = f[a0 + 3] - (f[l] * u0i + f[l + 1] * u0r);
-    f[a0 + 2] = u1r;
-    f[a0 + 3] = u1i;
-    l = c0 + 2 * (q + 2);
-    let l2 = c1 + 2 * (q + 2);
-    const u2r = f[a0 + 4] - (f[l] * u0r - f[l + 1] * u0i) - (f[l2] * u1r - f[l2 + 1] * u1i);
-    const u2i = f[a0 + 5] - (f[l] * u0i + f[l + 1] * u0r) - (f[l2] * u1i + f[l2 + 1] * u1r);
-    f[a0 + 4] = u2r;
-    f[a0 + 5] = u2i;
-    l = c0 + 2 * (q + 3);
-    l2 = c1 + 2 * (q + 3);
-    const l3 = c2 + 2 * (q + 3);
-    const u3r = f[a0 + 6] - (f[l] * u0r - f[l + 1] * u0i) - (f[l2] * u1r - f[l2 + 1] * u1i) - (f[l3] * u2r - f[l3 + 1] * u2i);
-    const u3i = f[a0 + 7] - (f[l] * u0i + f[l + 1] * u0r) - (f[l2] * u1i + f[l2 + 1] * u1r) - (f[l3] * u2i + f[l3 + 1] * u2r);
-    f[a0 + 6] = u3r;
-    f[a0 + 7] = u3i;
+    const a = cj + 2 * q;
+    const u0r = f[a], u0i = f[a + 1], u1r = f[a + 2], u1i = f[a + 3];
+    const u2r = f[a + 4], u2i = f[a + 5], u3r = f[a + 6], u3i = f[a + 7];
     if (u0r === 0 && u0i === 0 && u1r === 0 && u1i === 0 && u2r === 0 && u2i === 0 && u3r === 0 && u3i === 0) continue;
-    const end = 2 * m;
     for (let r = 2 * (q + 4); r < end; r += 2) {
       const x0r = f[c0 + r], x0i = f[c0 + r + 1];
       const x1r = f[c1 + r], x1i = f[c1 + r + 1];
@@ -59,13 +42,84 @@ export function eliminateColumn(f: Float64Array, m: number, j: number, q0: numbe
     const c0 = 2 * q * m;
     const ur = f[cj + 2 * q], ui = f[cj + 2 * q + 1];
     if (ur === 0 && ui === 0) continue;
-    const end = 2 * m;
     for (let r = 2 * (q + 1); r < end; r += 2) {
       const xr = f[c0 + r], xi = f[c0 + r + 1];
       f[cj + r] -= xr * ur - xi * ui;
       f[cj + r + 1] -= xr * ui + xi * ur;
     }
   }
+}
+
+/**
+ * eliminateColumn on the two neighbouring columns j and j+1 at once: every
+ * multiplier loaded from F serves two columns, which makes the trailing update
+ * about a third faster in V8 than one column at a time (measured, 320×320 front).
+ */
+export function eliminateColumnPair(f: Float64Array, m: number, j: number, q0: number, q1: number): void {
+  const cj = 2 * j * m;
+  const ck = cj + 2 * m;
+  const end = 2 * m;
+  let q = q0;
+  for (; q + 4 <= q1; q += 4) {
+    triangle4(f, m, cj, q);
+    triangle4(f, m, ck, q);
+    const c0 = 2 * q * m;
+    const c1 = c0 + 2 * m;
+    const c2 = c1 + 2 * m;
+    const c3 = c2 + 2 * m;
+    const a = cj + 2 * q;
+    const b = ck + 2 * q;
+    const u0r = f[a], u0i = f[a + 1], u1r = f[a + 2], u1i = f[a + 3];
+    const u2r = f[a + 4], u2i = f[a + 5], u3r = f[a + 6], u3i = f[a + 7];
+    const v0r = f[b], v0i = f[b + 1], v1r = f[b + 2], v1i = f[b + 3];
+    const v2r = f[b + 4], v2i = f[b + 5], v3r = f[b + 6], v3i = f[b + 7];
+    if (
+      u0r === 0 && u0i === 0 && u1r === 0 && u1i === 0 && u2r === 0 && u2i === 0 && u3r === 0 && u3i === 0 &&
+      v0r === 0 && v0i === 0 && v1r === 0 && v1i === 0 && v2r === 0 && v2i === 0 && v3r === 0 && v3i === 0
+    ) continue;
+    for (let r = 2 * (q + 4); r < end; r += 2) {
+      const x0r = f[c0 + r], x0i = f[c0 + r + 1];
+      const x1r = f[c1 + r], x1i = f[c1 + r + 1];
+      const x2r = f[c2 + r], x2i = f[c2 + r + 1];
+      const x3r = f[c3 + r], x3i = f[c3 + r + 1];
+      f[cj + r] -= x0r * u0r - x0i * u0i + x1r * u1r - x1i * u1i + x2r * u2r - x2i * u2i + x3r * u3r - x3i * u3i;
+      f[cj + r + 1] -= x0r * u0i + x0i * u0r + x1r * u1i + x1i * u1r + x2r * u2i + x2i * u2r + x3r * u3i + x3i * u3r;
+      f[ck + r] -= x0r * v0r - x0i * v0i + x1r * v1r - x1i * v1i + x2r * v2r - x2i * v2i + x3r * v3r - x3i * v3i;
+      f[ck + r + 1] -= x0r * v0i + x0i * v0r + x1r * v1i + x1i * v1r + x2r * v2i + x2i * v2r + x3r * v3i + x3i * v3r;
+    }
+  }
+  if (q < q1) {
+    eliminateColumn(f, m, j, q, q1);
+    eliminateColumn(f, m, j + 1, q, q1);
+  }
+}
+
+/**
+ * The unit lower 4×4 triangle of pivots q..q+3 applied to rows q+1..q+3 of the
+ * column starting at offset cj, sequentially (each row needs the one above).
+ */
+function triangle4(f: Float64Array, m: number, cj: number, q: number): void {
+  const c0 = 2 * q * m;
+  const c1 = c0 + 2 * m;
+  const c2 = c1 + 2 * m;
+  const a0 = cj + 2 * q;
+  const u0r = f[a0], u0i = f[a0 + 1];
+  let l = c0 + 2 * (q + 1);
+  const u1r = f[a0 + 2] - (f[l] * u0r - f[l + 1] * u0i);
+  const u1i = f[a0 + 3] - (f[l] * u0i + f[l + 1] * u0r);
+  f[a0 + 2] = u1r;
+  f[a0 + 3] = u1i;
+  l = c0 + 2 * (q + 2);
+  let l2 = c1 + 2 * (q + 2);
+  const u2r = f[a0 + 4] - (f[l] * u0r - f[l + 1] * u0i) - (f[l2] * u1r - f[l2 + 1] * u1i);
+  const u2i = f[a0 + 5] - (f[l] * u0i + f[l + 1] * u0r) - (f[l2] * u1i + f[l2 + 1] * u1r);
+  f[a0 + 4] = u2r;
+  f[a0 + 5] = u2i;
+  l = c0 + 2 * (q + 3);
+  l2 = c1 + 2 * (q + 3);
+  const l3 = c2 + 2 * (q + 3);
+  f[a0 + 6] -= f[l] * u0r - f[l + 1] * u0i + (f[l2] * u1r - f[l2 + 1] * u1i) + (f[l3] * u2r - f[l3 + 1] * u2i);
+  f[a0 + 7] -= f[l] * u0i + f[l + 1] * u0r + (f[l2] * u1i + f[l2 + 1] * u1r) + (f[l3] * u2i + f[l3 + 1] * u2r);
 }
 
 /**
@@ -152,7 +206,11 @@ export function factorFront(
       p++;
     }
     // Right-looking update of every column not yet pivoted (later candidates and the rest).
-    if (p > b0) for (let j = p; j < m; j++) eliminateColumn(f, m, j, b0, p);
+    if (p > b0) {
+      let j = p;
+      for (; j + 1 < m; j += 2) eliminateColumnPair(f, m, j, b0, p);
+      if (j < m) eliminateColumn(f, m, j, b0, p);
+    }
   }
   return p;
 }

@@ -103,6 +103,8 @@ export class SparseLuPlan {
   private save: Float64Array;
   private rowList: Int32Array;
   private colList: Int32Array;
+  private storeHint = 0;
+  private indexHint = 0;
 
   private constructor(n: number, nnz: number, perm: Int32Array, s: SymbolicFronts, threshold: number) {
     this.n = n;
@@ -189,8 +191,10 @@ export class SparseLuPlan {
     const idxOff = new Int32Array(ns + 1);
     const frontDim = new Int32Array(ns);
     const pivots = new Int32Array(ns);
-    let store = new Float64Array(2 * this.factorNonzeros);
-    let index = new Int32Array(2 * (this.nonfs.length + this.n));
+    // Delayed pivots enlarge fronts beyond the prediction; the plan remembers the largest
+    // storage any factorisation needed so later ones allocate once instead of growing.
+    let store = new Float64Array(Math.max(this.storeHint, 2 * this.factorNonzeros));
+    let index = new Int32Array(Math.max(this.indexHint, 2 * (this.nonfs.length + this.n)));
     // Per supernode: size of its contribution block, how many of its rows/columns are delayed.
     const cbDim = new Int32Array(ns);
     const cbStart = new Float64Array(ns);
@@ -283,10 +287,13 @@ export class SparseLuPlan {
       // Keep L (m×done) and U12 (done×(m−done)) of this front.
       const need = valTop + 2 * done * (2 * m - done);
       if (need > store.length) store = growFloat(store, need);
-      for (let c = 0; c < done; c++) store.set(F.subarray(2 * c * m, 2 * (c + 1) * m), valTop + 2 * c * m);
-      let u = valTop + 2 * done * m;
+      // The L panel is contiguous in F; U12 is strided (plain loops: no subarray views per column).
+      const lLen = 2 * done * m;
+      for (let q = 0; q < lLen; q++) store[valTop + q] = F[q];
+      let u = valTop + lLen;
       for (let c = done; c < m; c++) {
-        store.set(F.subarray(2 * c * m, 2 * c * m + 2 * done), u);
+        const src = 2 * c * m;
+        for (let q = 0; q < 2 * done; q++) store[u + q] = F[src + q];
         u += 2 * done;
       }
       if (idxTop + 2 * m > index.length) index = growInt(index, idxTop + 2 * m);
@@ -310,7 +317,8 @@ export class SparseLuPlan {
         const cb = this.cbStack;
         let dst = cbTop;
         for (let c = done; c < m; c++) {
-          cb.set(F.subarray(2 * (c * m + done), 2 * (c * m + m)), dst);
+          const src = 2 * (c * m + done);
+          for (let q = 0; q < 2 * mc; q++) cb[dst + q] = F[src + q];
           dst += 2 * mc;
         }
         cbTop = dst;
@@ -326,6 +334,8 @@ export class SparseLuPlan {
     }
     valOff[ns] = valTop;
     idxOff[ns] = idxTop;
+    if (valTop > this.storeHint) this.storeHint = valTop;
+    if (idxTop > this.indexHint) this.indexHint = idxTop;
     return new SparseLuFactors(this.n, this.perm, store, index, valOff, idxOff, frontDim, pivots, delayed);
   }
 
