@@ -19,11 +19,22 @@ import { invitationRoutes } from './invitations/invitation-routes.js';
 import { InvitationService } from './invitations/invitation-service.js';
 import type { Mailer } from './mail/mailer.js';
 import { outboxRoutes } from './mail/outbox-routes.js';
+import { catalogueRoutes } from './catalogue/catalogue-routes.js';
+import type { RunQueue } from './jobs/boss.js';
+import { modelRoutes } from './models/model-routes.js';
+import { ModelService } from './models/model-service.js';
+import type { RunEvents } from './runs/run-events.js';
+import { runRoutes } from './runs/run-routes.js';
+import { RunService } from './runs/run-service.js';
 
 export interface AppDeps {
   db: Db;
   config: Config;
   mailer: Mailer;
+  /** Where runs are queued for the workers (pg-boss in production). */
+  queue: RunQueue;
+  /** Live run progress for server-sent events; null falls back to polling the database. */
+  runEvents?: RunEvents | null;
   /** Sign-in attempts per window (default 10 per 15 min); tests pass a small one. */
   signInLimit?: AttemptLimit;
   /** Password-reset requests per window, same default. */
@@ -96,6 +107,9 @@ export function createApp(deps: AppDeps): Express {
   );
   api.use('/invitations', invitationRoutes({ db, invitations, jwtSecret: config.jwtSecret, secureCookies }));
   api.use('/groups', groupRoutes({ db, groups, invitations }));
+  api.use('/groups/:groupId/models', modelRoutes(new ModelService(db)));
+  api.use('/groups/:groupId/runs', runRoutes(new RunService(db, deps.queue), deps.runEvents ?? null));
+  api.use('/groups/:groupId', catalogueRoutes({ db }));
   api.use('/tokens', apiTokenRoutes(db));
   api.use('/outbox', outboxRoutes(db, config.mailStandIn));
   deps.mountFeatures?.(api);

@@ -6,6 +6,8 @@ import { ConfigError, loadConfig } from './config.js';
 import { connectDb } from './db/client.js';
 import { startMailStandIn, type MailStandIn } from './mail/mail-stand-in.js';
 import { createMailer } from './mail/mailer.js';
+import { runQueue, startBoss } from './jobs/boss.js';
+import { RunEvents } from './runs/run-events.js';
 
 async function main(): Promise<void> {
   let config;
@@ -40,7 +42,10 @@ async function main(): Promise<void> {
   }
 
   const mailer = createMailer(config.smtpUrl, config.mailFrom);
-  const app = createApp({ db: handle.db, config, mailer });
+  const boss = await startBoss({ databaseUrl: config.databaseUrl });
+  const runEvents = new RunEvents(config.databaseUrl);
+  await runEvents.start();
+  const app = createApp({ db: handle.db, config, mailer, queue: runQueue(boss), runEvents });
   // createServer + 'listening' rather than app.listen: Express 5 calls listen's callback on errors too.
   const server: Server = createServer(app);
   server.once('error', (err) => {
@@ -59,6 +64,8 @@ async function main(): Promise<void> {
     // Stop taking requests, let running ones finish, then release the pool.
     await new Promise<void>((done) => server.close(() => done()));
     await standIn?.close();
+    await runEvents.close();
+    await boss.stop({ graceful: false, wait: false }).catch(() => {});
     mailer.close();
     await handle.close();
     process.exit(0);

@@ -11,8 +11,10 @@ declare module 'vitest' {
 }
 
 export default async function setup(project: TestProject): Promise<void> {
-  const server = await ensureDatabase({ databases: ['poleward_test'], recreate: true, fastUnsafe: true, log: () => {} });
-  const url = server.url('poleward_test');
+  // POLEWARD_TEST_DB lets two test runs share the server without dropping each other's database.
+  const name = process.env.POLEWARD_TEST_DB ?? 'poleward_test';
+  const server = await ensureDatabase({ databases: [name], recreate: true, fastUnsafe: true, log: () => {} });
+  const url = server.url(name);
   await migrate(url);
   // Both: env for code that reads DATABASE_URL, provide/inject for tests that prefer it.
   process.env.DATABASE_URL = url;

@@ -30,6 +30,8 @@ export async function startBoss(opts: BossOptions): Promise<PgBoss> {
 /** What the API needs of the queue: enqueue a run, and let the supervisor retry a lost one. */
 export interface RunQueue {
   enqueue(kind: RunKind, runId: string): Promise<string>;
+  /** Drops a job that no worker has started yet. */
+  cancel(kind: RunKind, jobId: string): Promise<void>;
 }
 
 export function runQueue(boss: PgBoss): RunQueue {
@@ -39,6 +41,9 @@ export function runQueue(boss: PgBoss): RunQueue {
       const id = await boss.send(spec.name, { runId }, { retryLimit: spec.retryLimit, retryDelay: spec.retryDelaySeconds, expireInSeconds: spec.expireInSeconds });
       if (!id) throw new Error(`the queue ${spec.name} refused the job`);
       return id;
+    },
+    async cancel(kind, jobId) {
+      await boss.cancel(RUN_QUEUES[kind].name, jobId);
     },
   };
 }

@@ -8,7 +8,13 @@ import { startWorkerLoop } from './worker.js';
 const config = loadConfig();
 const handle = connectDb(config.databaseUrl, 4);
 const boss = await startBoss({ databaseUrl: config.databaseUrl });
-const worker = startWorkerLoop({ db: handle.db, boss, compute: runInThread });
+const worker = startWorkerLoop({
+  db: handle.db,
+  boss,
+  compute: runInThread,
+  staleAfterSeconds: config.runStaleSeconds,
+  supervisorSeconds: Math.max(1, Math.min(10, Math.floor(config.runStaleSeconds / 3))),
+});
 console.log(`[worker ${process.pid}] waiting for runs`);
 
 let stopping = false;

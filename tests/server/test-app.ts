@@ -8,6 +8,25 @@ import { loadConfig, type Config } from '../../server/config.js';
 import { connectDb, type DbHandle } from '../../server/db/client.js';
 import { startMailStandIn, type MailStandIn } from '../../server/mail/mail-stand-in.js';
 import { createMailer } from '../../server/mail/mailer.js';
+import type { RunQueue } from '../../server/jobs/boss.js';
+
+/** Jobs the API queued during a test (tests of the workers use the real pg-boss instead). */
+export interface RecordingQueue extends RunQueue {
+  sent: { kind: string; runId: string; jobId: string }[];
+}
+
+export function recordingQueue(): RecordingQueue {
+  const sent: RecordingQueue['sent'] = [];
+  return {
+    sent,
+    async enqueue(kind, runId) {
+      const jobId = `job-${sent.length + 1}`;
+      sent.push({ kind, runId, jobId });
+      return jobId;
+    },
+    async cancel() {},
+  };
+}
 
 /** Fast bcrypt for tests; production uses the default cost. */
 export const testPasswordCost = 4;
@@ -42,7 +61,7 @@ export async function startTestApp(
   Object.assign(config, overrides.config);
   const mailer = createMailer(`smtp://127.0.0.1:${standIn.port}`, config.mailFrom);
   const { env: _env, config: _config, ...appOverrides } = overrides;
-  const app = createApp({ db: handle.db, config, mailer, passwordCost: testPasswordCost, log: () => {}, ...appOverrides });
+  const app = createApp({ db: handle.db, config, mailer, passwordCost: testPasswordCost, log: () => {}, queue: recordingQueue(), ...appOverrides });
   const server = createServer(app);
   await new Promise<void>((done) => server.listen(0, '127.0.0.1', done));
   const { port } = server.address() as AddressInfo;

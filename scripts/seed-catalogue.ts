@@ -1,0 +1,55 @@
+// Queues the demo catalogue: every reference device in catalogue/*.json becomes a
+// model of the demo lab (once), with one pole-search run, computed by the workers
+// in the background. Idempotent: a device already there is left alone.
+import { readdirSync, readFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { and, eq } from 'drizzle-orm';
+import { z } from 'zod';
+import type { Db } from '../server/db/client.js';
+import { cavityModels } from '../server/db/schema/models.js';
+import type { RunQueue } from '../server/jobs/boss.js';
+import { ModelService } from '../server/models/model-service.js';
+import { RunService } from '../server/runs/run-service.js';
+import { projectRoot } from '../server/config.js';
+
+const referenceSchema = z.object({
+  key: z.string().regex(/^[a-z0-9-]+$/),
+  description: z.string(),
+  model: z.unknown(),
+  poleSearch: z.object({ emin: z.number(), emax: z.number(), gammaMax: z.number() }),
+});
+export type ReferenceDevice = z.infer<typeof referenceSchema>;
+
+export function readReferenceDevices(folder = join(projectRoot, 'catalogue')): ReferenceDevice[] {
+  return readdirSync(folder)
+    .filter((f) => f.endsWith('.json'))
+    .sort()
+    .map((f) => {
+      const parsed = referenceSchema.safeParse(JSON.parse(readFileSync(join(folder, f), 'utf8')));
+      if (!parsed.success) throw new Error(`catalogue/${f}: ${parsed.error.issues.map((i) => `${i.path.join('.')}: ${i.message}`).join('; ')}`);
+      return parsed.data;
+    });
+}
+
+export async function seedCatalogue(db: Db, queue: RunQueue, groupId: string, userId: string, log = console.log): Promise<number> {
+  const models = new ModelService(db);
+  const runsService = new RunService(db, queue);
+  let queued = 0;
+  for (const device of readReferenceDevices()) {
+    const [existing] = await db
+      .select({ id: cavityModels.id })
+      .from(cavityModels)
+      .where(and(eq(cavityModels.groupId, groupId), eq(cavityModels.referenceKey, device.key)));
+    if (existing) continue;
+    const model = await models.create(groupId, userId, device.model, device.key);
+    await runsService.create(groupId, userId, {
+      kind: 'pole-search',
+      modelId: model.id,
+      window: device.poleSearch,
+      note: `Reference device: ${device.description}`,
+    });
+    queued++;
+  }
+  if (queued) log(`[seed] queued ${queued} reference device(s) of the demo catalogue; the workers compute them in the background`);
+  return queued;
+}

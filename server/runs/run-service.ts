@@ -1,0 +1,180 @@
+import { and, eq, sql } from 'drizzle-orm';
+import type { Db } from '../db/client.js';
+import { writeAudit } from '../audit/audit-log.js';
+import { runs } from '../db/schema/runs.js';
+import { ApiError } from '../http/error-handler.js';
+import type { RunQueue } from '../jobs/boss.js';
+import type { RunKind } from '../jobs/queues.js';
+import { findVersion } from '../models/model-repository.js';
+import { derivedOf, modelNotFound } from '../models/model-service.js';
+import { toResonanceRow } from '../catalogue/resonance-row.js';
+import { InvalidModelError } from '../../shared/engine/effective-hamiltonian.js';
+import { invalidModel } from '../models/model-figures.js';
+import { estimateRun } from './run-estimate.js';
+import * as repo from './run-repository.js';
+import type { RunRequest } from './run-window.js';
+
+export function runNotFound(): ApiError {
+  return new ApiError(404, 'not_found', 'No such run in this group.');
+}
+
+type RunRow = NonNullable<Awaited<ReturnType<typeof repo.findRun>>>;
+
+/** The API's view of a run. */
+export function toRunView(r: RunRow) {
+  const run = r.run;
+  return {
+    id: run.id,
+    kind: run.kind,
+    status: run.status,
+    progress: run.progressStage !== null ? { stage: run.progressStage, fraction: run.progressFraction ?? 0 } : null,
+    window: run.window,
+    note: run.note,
+    modelId: r.modelId,
+    modelName: r.modelName,
+    modelVersion: r.modelVersion,
+    createdBy: run.createdBy ? { id: run.createdBy, name: r.createdByName ?? '' } : null,
+    createdAt: run.createdAt,
+    startedAt: run.startedAt,
+    finishedAt: run.finishedAt,
+    attempts: run.attempt,
+    error: run.error,
+    engineVersion: run.engineVersion,
+    resonanceCount: run.resonanceCount,
+    certificate: run.certificate,
+    estimate: run.estimate,
+    stats: run.stats,
+  };
+}
+
+export class RunService {
+  constructor(
+    private readonly db: Db,
+    private readonly queue: RunQueue,
+  ) {}
+
+  private async version(groupId: string, req: Pick<RunRequest, 'modelId' | 'version'>) {
+    const v = await findVersion(this.db, groupId, req.modelId, req.version);
+    if (!v) throw req.version ? new ApiError(404, 'not_found', `This model has no version ${req.version}.`) : modelNotFound();
+    return v;
+  }
+
+  async estimate(groupId: string, req: RunRequest) {
+    const v = await this.version(groupId, req);
+    return estimateOrThrow(v.document, req);
+  }
+
+  async create(groupId: string, userId: string, req: RunRequest) {
+    const v = await this.version(groupId, req);
+    const estimate = estimateOrThrow(v.document, req);
+    const runId = await this.db.transaction(async (tx) => {
+      const [row] = await tx
+        .insert(runs)
+        .values({
+          groupId,
+          modelVersionId: v.id,
+          kind: req.kind,
+          window: req.window,
+          note: req.note ?? '',
+          estimate,
+          createdBy: userId,
+          progressStage: 'queued',
+          progressFraction: 0,
+        })
+        .returning({ id: runs.id });
+      await writeAudit(tx, {
+        groupId,
+        actorId: userId,
+        action: 'run.queued',
+        subject: `${v.modelName} v${v.version}`,
+        details: { runId: row.id, kind: req.kind, window: req.window },
+      });
+      return row.id;
+    });
+    // Queued after the commit, so a worker never sees a job whose run row is not there yet.
+    try {
+      const jobId = await this.queue.enqueue(req.kind as RunKind, runId);
+      await this.db.update(runs).set({ jobId }).where(eq(runs.id, runId));
+    } catch (err) {
+      await this.db.update(runs).set({ status: 'failed', error: 'the run could not be queued' }).where(eq(runs.id, runId));
+      throw err;
+    }
+    return this.view(groupId, runId);
+  }
+
+  async list(groupId: string, f: repo.RunListFilter) {
+    const { rows, total } = await repo.listRuns(this.db, groupId, f);
+    return { items: rows.map(toRunView), total };
+  }
+
+  async view(groupId: string, runId: string) {
+    const r = await repo.findRun(this.db, groupId, runId);
+    if (!r) throw runNotFound();
+    return toRunView(r);
+  }
+
+  async detail(groupId: string, runId: string) {
+    const r = await repo.findRun(this.db, groupId, runId);
+    if (!r) throw runNotFound();
+    const [poles, spectrum] = await Promise.all([
+      repo.runResonances(this.db, groupId, runId),
+      repo.runSpectrum(this.db, groupId, runId),
+    ]);
+    const v = await findVersion(this.db, groupId, r.modelId, r.modelVersion);
+    return {
+      ...toRunView(r),
+      thresholds: r.run.thresholds ?? estimateThresholds(v?.document, r.run.window),
+      poles: poles.map(toResonanceRow),
+      spectrum,
+    };
+  }
+
+  async spectrum(groupId: string, runId: string) {
+    const r = await repo.findRun(this.db, groupId, runId);
+    if (!r) throw runNotFound();
+    const s = await repo.runSpectrum(this.db, groupId, runId);
+    if (!s) throw new ApiError(404, 'not_found', 'This run has no spectrum yet.');
+    return s;
+  }
+
+  /** The owner or an admin may cancel; a queued run ends at once, a running one at the worker's next heartbeat. */
+  async cancel(groupId: string, userId: string, role: string, runId: string) {
+    const r = await repo.findRun(this.db, groupId, runId);
+    if (!r) throw runNotFound();
+    if (r.run.createdBy !== userId && role !== 'admin') {
+      throw new ApiError(403, 'forbidden', 'Only the person who launched this run, or a group admin, can cancel it.');
+    }
+    if (['completed', 'failed', 'cancelled'].includes(r.run.status)) {
+      throw new ApiError(409, 'run_finished', `This run has already ${r.run.status === 'completed' ? 'completed' : r.run.status === 'failed' ? 'failed' : 'been cancelled'}.`);
+    }
+    await this.db.transaction(async (tx) => {
+      await tx
+        .update(runs)
+        .set(
+          r.run.status === 'queued'
+            ? { cancelRequested: true, status: 'cancelled', finishedAt: new Date(), progressStage: 'cancelled' }
+            : { cancelRequested: true },
+        )
+        .where(and(eq(runs.id, runId), eq(runs.groupId, groupId)));
+      await writeAudit(tx, { groupId, actorId: userId, action: 'run.cancelled', subject: `${r.modelName} v${r.modelVersion}`, details: { runId } });
+      await tx.execute(sql`select pg_notify('run_events', ${runId})`);
+    });
+    if (r.run.status === 'queued' && r.run.jobId) await this.queue.cancel(r.run.kind as RunKind, r.run.jobId).catch(() => {});
+  }
+}
+
+function estimateOrThrow(document: unknown, req: Pick<RunRequest, 'kind' | 'window'>) {
+  try {
+    return estimateRun(document, req);
+  } catch (err) {
+    if (err instanceof InvalidModelError) throw invalidModel(err.issues);
+    throw err;
+  }
+}
+
+/** Channel thresholds (meV) of a stored model inside a window, from its derived figures (no LU needed). */
+function estimateThresholds(document: unknown, window: Record<string, number>): number[] {
+  if (!document) return [];
+  const all = derivedOf(document).leads.flatMap((l) => l.thresholds.flatMap((t) => [t.opens, t.closes]));
+  return [...new Set(all)].filter((e) => e >= window.emin && e <= window.emax).sort((a, b) => a - b);
+}
