@@ -61,7 +61,8 @@ const jsonUnits = {
 function csvLines(rows: ResonanceRow[], header: boolean): string {
   const data = rows.map((r) => csvColumns.map(([, get]) => get(r)));
   const text = Papa.unparse({ fields: csvHeader, data }, { header, newline: '\r\n', escapeFormulae: true });
-  return text.length > 0 ? text + '\r\n' : '';
+  if (text.length === 0) return '';
+  return text.endsWith('\r\n') ? text : text + '\r\n';
 }
 
 /** Writes with back-pressure; false once the client has gone away. */

@@ -59,7 +59,8 @@ function intParam(min: number, max: number, fallback: number) {
       .regex(/^\d+$/, 'must be a whole number')
       .transform(Number)
       .pipe(z.number().min(min, `must be at least ${min}`).max(max, `must be at most ${max}`))
-      .default(String(fallback) as never),
+      // zod 4 returns a default as the output, unparsed: so it is the number itself.
+      .default(fallback as never),
   );
 }
 
