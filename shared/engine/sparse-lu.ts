@@ -496,6 +496,21 @@ export class SparseLuFactors {
       const v = valOff[s];
       const ix = idxOff[s];
       gather(y, index, ix, m, X, w);
+      if (w === 2) {
+        // One right-hand side: the column of L and the block are both contiguous.
+        for (let t = 0; t < k; t++) {
+          const lc = v + 2 * t * m;
+          const ar = X[2 * t], ai = X[2 * t + 1];
+          if (ar === 0 && ai === 0) continue;
+          for (let i = t + 1; i < m; i++) {
+            const lr = store[lc + 2 * i], li = store[lc + 2 * i + 1];
+            X[2 * i] -= lr * ar - li * ai;
+            X[2 * i + 1] -= lr * ai + li * ar;
+          }
+        }
+        scatter(y, index, ix, m, X, w);
+        continue;
+      }
       for (let t = 0; t < k; t++) {
         const lc = v + 2 * t * m;
         const xt = t * w;
@@ -522,7 +537,18 @@ export class SparseLuFactors {
       gather(x, index, ix + m + k, m - k, Z, w);
       // X −= U12 · x_rest
       let u = v + 2 * k * m;
-      for (let j = 0; j < m - k; j++) {
+      if (w === 2) {
+        for (let j = 0; j < m - k; j++) {
+          const ar = Z[2 * j], ai = Z[2 * j + 1];
+          for (let i = 0; i < k; i++) {
+            const ur = store[u], ui = store[u + 1];
+            u += 2;
+            X[2 * i] -= ur * ar - ui * ai;
+            X[2 * i + 1] -= ur * ai + ui * ar;
+          }
+        }
+      }
+      for (let j = 0; w !== 2 && j < m - k; j++) {
         const zj = j * w;
         for (let i = 0; i < k; i++) {
           const ur = store[u], ui = store[u + 1];
