@@ -46,6 +46,12 @@ export class TransmissionSolver {
     this.values = new Float64Array(2 * op.rowIdx.length);
   }
 
+  /** arg det T(z) (rad) at a complex energy, sheet chosen by Re z; one LU, no solves. */
+  detPhase(z: { re: number; im: number }): number {
+    this.op.assemble(z, this.op.sheetAt(z.re), this.values);
+    return this.plan.factor(this.values).logDet().arg;
+  }
+
   /** Transmission, reflection, S matrix checks and det phase at a real energy E (meV). */
   at(energy: number, withS = false): TransmissionPoint {
     if (!Number.isFinite(energy)) throw new RangeError(`transmission: energy must be a finite number of meV, got ${energy}`);
@@ -147,6 +153,14 @@ export interface SweepRefinement {
   phaseTolerance?: number;
   /** Intervals narrower than this (meV) are never split; default 1e-6·t. */
   minWidth?: number;
+  /**
+   * Probe arg det T(E + iη) just above the axis (η = the grid step) at every grid
+   * energy and split the grid steps it flags down to step/16; default true. Costs
+   * one more LU per grid energy and catches several resonances in one step.
+   */
+  upperProbe?: boolean;
+  /** Phase change (rad) of the upper probe across a grid step that flags it; default 0.4. */
+  probeTolerance?: number;
 }
 
 export interface SweepRequest {
@@ -198,6 +212,9 @@ function phaseStep(a: TransmissionPoint, b: TransmissionPoint): number {
   return Math.abs(Math.atan2(Math.sin(d), Math.cos(d)));
 }
 
+/** Grid steps flagged by the upper probe are split down to step / 2^PROBE_DEPTH. */
+const PROBE_DEPTH = 4;
+
 /**
  * Transmission on a uniform grid, then adaptive bisection. An interval is split
  * when T or R changes across it by more than `tolerance`, when a neighbouring
@@ -205,8 +222,11 @@ function phaseStep(a: TransmissionPoint, b: TransmissionPoint): number {
  * when arg det T(E) changes by more than `phaseTolerance`. The last test is what
  * finds a resonance narrower than the grid step: det T(E) ≈ Π(E − z_n)·(smooth),
  * and arg(E − z_n) falls by π across E_n however small Γ_n is, while far poles
- * turn it only by about step/distance. Two unresolved poles inside one step
- * cancel modulo 2π; a finer grid is the remedy (documented in the physics doc).
+ * turn it only by about step/distance. Two narrow poles inside one step turn it
+ * by 2π and would cancel, so (upperProbe) arg det T(E + iη) with η = step is also
+ * sampled on the grid: there each pole under a step turns the phase smoothly by
+ * 2·atan(step/2η) ≈ 0.93 rad, several poles add up instead of cancelling, and a
+ * flagged step is split to step/16 so that its poles fall into separate pieces.
  * Passes split the most-flagged intervals first until none is flagged, all are
  * narrower than minWidth, or maxPoints is reached. One LU analysis for all.
  */
@@ -233,6 +253,24 @@ export function transmissionSweep(op: EffectiveHamiltonian, request: SweepReques
     samples.push(solver.at(emin + ((emax - emin) * k) / (points - 1)));
     report(samples.length);
   }
+  // Upper-half-plane probe: the physical Σ is analytic there and both sheet formulas
+  // give it (|λ| < 1), so the phase varies on the scale η and cannot jump.
+  const step = (emax - emin) / (points - 1);
+  const suspect = new Uint8Array(points - 1);
+  if (refine && refine.upperProbe !== false) {
+    const probeTolerance = refine.probeTolerance ?? 0.4;
+    let previous = 0;
+    for (let k = 0; k < points; k++) {
+      checkCancelled(control);
+      const phase = solver.detPhase({ re: samples[k].energy, im: step });
+      if (k > 0) {
+        const d = phase - previous;
+        if (Math.abs(Math.atan2(Math.sin(d), Math.cos(d))) > probeTolerance) suspect[k - 1] = 1;
+      }
+      previous = phase;
+    }
+  }
+  const forcedWidth = step / 2 ** PROBE_DEPTH;
   let passes = 0;
   let budgetExhausted = false;
   while (refine) {
@@ -244,6 +282,10 @@ export function transmissionSweep(op: EffectiveHamiltonian, request: SweepReques
       let score = Math.max(largestChange(a, b) / tolerance, phaseStep(a, b) / phaseTolerance);
       if (k > 0) score = Math.max(score, curvature(samples[k - 1], a, b) / tolerance);
       if (k + 2 < samples.length) score = Math.max(score, curvature(a, b, samples[k + 2]) / tolerance);
+      if (b.energy - a.energy > forcedWidth * (1 + 1e-9)) {
+        const coarse = Math.min(points - 2, Math.floor((0.5 * (a.energy + b.energy) - emin) / step));
+        if (suspect[coarse]) score = Math.max(score, 1.01);
+      }
       if (score > 1) flagged.push({ k, score });
     }
     if (!flagged.length) break;

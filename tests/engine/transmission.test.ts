@@ -29,6 +29,45 @@ function irregular(field: number, leads: CavityModelInput['leads']): CavityModel
   };
 }
 
+/** Double barrier in a chain: a weakly coupled 1D cavity with narrow resonances. */
+function doubleBarrier(): EffectiveHamiltonian {
+  const doc: CavityModelInput = {
+    name: 'double barrier',
+    spacing,
+    material,
+    grid: { nx: 40, ny: 1 },
+    shape: { kind: 'rectangle', x0: 0, y0: 0, width: 200, height: 5 },
+    potential: [{ kind: 'sites', values: [[4, 0, 1], [31, 0, 1]] }],
+    leads: [
+      { side: 'left', start: 0, width: 1 },
+      { side: 'right', start: 0, width: 1 },
+    ],
+  };
+  const t = operator(doc).hopping;
+  (doc.potential![0] as { values: [number, number, number][] }).values = [[4, 0, 40 * t], [31, 0, 40 * t]];
+  return operator(doc);
+}
+
+/** Samples above half height grouped into peaks (gaps over 1e-3·t separate peaks). */
+function peaksOf(points: { energy: number; transmission: number[][] }[], t: number) {
+  const peaks: { lo: number; hi: number; max: number; at: number }[] = [];
+  let prev: number | null = null;
+  for (const p of points) {
+    const tr = p.transmission[0][1];
+    if (tr <= 0.5) continue;
+    const last = peaks[peaks.length - 1];
+    if (last && prev !== null && p.energy - prev < 1e-3 * t) {
+      last.hi = p.energy;
+      if (tr > last.max) {
+        last.max = tr;
+        last.at = p.energy;
+      }
+    } else peaks.push({ lo: p.energy, hi: p.energy, max: tr, at: p.energy });
+    prev = p.energy;
+  }
+  return peaks;
+}
+
 describe('transmission', () => {
   it('gives integer plateaus in a clean ribbon, stepping at ε_m − 2t', () => {
     const width = 6;
@@ -192,23 +231,9 @@ describe('transmission', () => {
     expect(differs).toBeGreaterThan(0);
   });
 
-  it('finds a resonance of width 1e-4·t hidden between grid points', () => {
-    // Double barrier in a chain: a weakly coupled 1D cavity with a narrow resonance.
-    const doc: CavityModelInput = {
-      name: 'double barrier',
-      spacing,
-      material,
-      grid: { nx: 40, ny: 1 },
-      shape: { kind: 'rectangle', x0: 0, y0: 0, width: 200, height: 5 },
-      potential: [{ kind: 'sites', values: [[4, 0, 1], [31, 0, 1]] }],
-      leads: [
-        { side: 'left', start: 0, width: 1 },
-        { side: 'right', start: 0, width: 1 },
-      ],
-    };
-    const t = operator(doc).hopping;
-    (doc.potential![0] as { values: [number, number, number][] }).values = [[4, 0, 40 * t], [31, 0, 40 * t]];
-    const op = operator(doc);
+  it('finds resonances of width 1e-4·t hidden between grid points', () => {
+    const op = doubleBarrier();
+    const t = op.hopping;
     const emin = 2.5 * t;
     const emax = 3.5 * t;
     const coarse = transmissionSweep(op, { emin, emax, points: 41 });
@@ -216,22 +241,7 @@ describe('transmission', () => {
     const progress: number[] = [];
     const fine = transmissionSweep(op, { emin, emax, points: 41, refine: { maxPoints: 1500 } }, { onProgress: (_s, f) => progress.push(f) });
     expect(coarseMax).toBeLessThan(0.05);
-    // Group the samples above half height into peaks.
-    const peaks: { lo: number; hi: number; max: number; at: number }[] = [];
-    let prev: number | null = null;
-    for (const p of fine.points) {
-      const tr = p.transmission[0][1];
-      if (tr <= 0.5) continue;
-      const last = peaks[peaks.length - 1];
-      if (last && prev !== null && p.energy - prev < 1e-3 * t) {
-        last.hi = p.energy;
-        if (tr > last.max) {
-          last.max = tr;
-          last.at = p.energy;
-        }
-      } else peaks.push({ lo: p.energy, hi: p.energy, max: tr, at: p.energy });
-      prev = p.energy;
-    }
+    const peaks = peaksOf(fine.points, t);
     // Box levels between hard walls at sites 4 and 31: k_n = nπ/27, E = 4t − 2t cos k_n
     // (particle in a box on a chain, common practice); n = 7..11 fall in the window.
     const levels = [7, 8, 9, 10, 11].map((n) => 4 * t - 2 * t * Math.cos((n * Math.PI) / 27));
@@ -247,6 +257,35 @@ describe('transmission', () => {
     expect(fine.budgetExhausted).toBe(false);
     expect(progress[progress.length - 1]).toBe(1);
     expect(fine.worstCurrentResidual).toBeLessThan(1e-9);
+  });
+
+  it('finds two narrow resonances inside one grid step with the upper probe', () => {
+    // A two-site well between two high barriers: its bonding and antibonding levels
+    // 4t ∓ t (two-site molecule ε ∓ t, common practice) are narrow and are the only
+    // poles near the window, so across one step holding both arg det T turns by ≈ 2π.
+    const doc: CavityModelInput = {
+      name: 'two-site well',
+      spacing,
+      material,
+      grid: { nx: 4, ny: 1 },
+      shape: { kind: 'rectangle', x0: 0, y0: 0, width: 20, height: 5 },
+      potential: [{ kind: 'sites', values: [[0, 0, 1], [3, 0, 1]] }],
+      leads: [
+        { side: 'left', start: 0, width: 1 },
+        { side: 'right', start: 0, width: 1 },
+      ],
+    };
+    const t = operator(doc).hopping;
+    (doc.potential![0] as { values: [number, number, number][] }).values = [[0, 0, 30 * t], [3, 0, 30 * t]];
+    const op = operator(doc);
+    const request = { emin: 2.6 * t, emax: 5.4 * t, points: 2 };
+    const withProbe = peaksOf(transmissionSweep(op, { ...request, refine: { maxPoints: 600 } }).points, t);
+    const without = peaksOf(transmissionSweep(op, { ...request, refine: { maxPoints: 600, upperProbe: false } }).points, t);
+    expect(withProbe).toHaveLength(2);
+    expect(Math.abs(withProbe[0].at - 3 * t)).toBeLessThan(0.05 * t);
+    expect(Math.abs(withProbe[1].at - 5 * t)).toBeLessThan(0.05 * t);
+    // Without the probe the pair cancels modulo 2π and nothing is found: the test is not empty.
+    expect(without).toHaveLength(0);
   });
 
   it('stops on cancellation and rejects a bad request', () => {
