@@ -10,6 +10,10 @@ import { resonances } from '../db/schema/catalogue.js';
 
 const decimal = /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/;
 
+/** PostgreSQL text cannot hold U+0000; refused here rather than failing in the database. */
+export const noNul = /^[^\u0000]*$/;
+const noNulMessage = 'must not contain NUL characters';
+
 /** One optional number; a repeated parameter or a non-number is refused with the parameter's name (via validate). */
 function numberParam(unit: string) {
   return z.preprocess(
@@ -40,7 +44,12 @@ function listParam(item: z.ZodString) {
 function textParam(max: number) {
   return z.preprocess(
     (v) => (v === undefined || (typeof v === 'string' && v.trim() === '') ? undefined : v),
-    z.string({ error: 'must be given once, as text' }).trim().max(max, `must be at most ${max} characters`).optional(),
+    z
+      .string({ error: 'must be given once, as text' })
+      .trim()
+      .max(max, `must be at most ${max} characters`)
+      .regex(noNul, noNulMessage)
+      .optional(),
   );
 }
 
@@ -108,8 +117,8 @@ export const tagSchema = z
 /** Filters without paging (the exports use this). */
 export const catalogueFilterSchema = z
   .object({
-    family: listParam(z.string().max(40, 'a family name has at most 40 characters')),
-    material: listParam(z.string().max(80, 'a material name has at most 80 characters')),
+    family: listParam(z.string().max(40, 'a family name has at most 40 characters').regex(noNul, noNulMessage)),
+    material: listParam(z.string().max(80, 'a material name has at most 80 characters').regex(noNul, noNulMessage)),
     q: textParam(200),
     tag: listParam(tagSchema),
     bound: booleanParam,

@@ -3,7 +3,7 @@ import { z } from 'zod';
 import { signedInUser } from '../auth/authenticate.js';
 import { requireRole } from '../auth/require-role.js';
 import { validate } from '../http/validate.js';
-import { tagSchema } from './catalogue-query.js';
+import { noNul, tagSchema } from './catalogue-query.js';
 import { resonanceNotFound, type CatalogueService } from './catalogue-service.js';
 
 const uuidPattern = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
@@ -15,7 +15,11 @@ const labelBody = z
       .max(20, 'at most 20 tags')
       .transform((tags) => [...new Set(tags)])
       .optional(),
-    notes: z.string({ error: 'must be text' }).max(4000, 'must be at most 4000 characters').optional(),
+    notes: z
+      .string({ error: 'must be text' })
+      .max(4000, 'must be at most 4000 characters')
+      .regex(noNul, 'must not contain NUL characters')
+      .optional(),
   })
   .refine((b) => b.tags !== undefined || b.notes !== undefined, { message: 'send tags, notes or both' });
 

@@ -1,6 +1,7 @@
 // Catalogue API against the real database: a handful of resonances with hand-picked
 // values, then each filter, sort, page, export, edit and image answer is checked against
 // what those values imply.
+import fc from 'fast-check';
 import Papa from 'papaparse';
 import { PNG } from 'pngjs';
 import request from 'supertest';
@@ -190,6 +191,20 @@ describe('GET /catalogue filters', () => {
     expect(total).toBe(expected.length);
   });
 
+  it('never fails on odd free text: any mix of tsquery operators, quotes, accents and control characters', async () => {
+    const unit = fc.constantFrom('a', 'Q', '7', '-', '_', '.', ':', '*', '&', '|', '!', '(', ')', "'", '"', '\\', '<', '>', ' ', '\t', 'é', 'ß', '中', '@', '%', '+', '/', '—');
+    await fc.assert(
+      fc.asyncProperty(fc.string({ unit, maxLength: 16 }), async (text) => {
+        const res = await viewer.get(`/api/groups/${lab.groupId}/catalogue?q=${encodeURIComponent(text)}`);
+        expect(res.status, `q=${JSON.stringify(text)}: ${JSON.stringify(res.body)}`).toBe(200);
+      }),
+      { numRuns: 60 },
+    );
+    const nul = await viewer.get(`/api/groups/${lab.groupId}/catalogue?q=a%00b`);
+    expect(nul.status).toBe(400);
+    expect(nul.body.issues[0].path).toBe('query.q');
+  });
+
   it.each([
     // Prefix words on model names and notes, case-insensitive, all words required.
     ['q=whisp', ['r1']],
@@ -351,6 +366,7 @@ describe('PATCH /resonances/:id', () => {
     ['21 tags', { tags: Array.from({ length: 21 }, (_, i) => `t${i}`) }, 'tags'],
     ['4001 characters of notes', { notes: 'n'.repeat(4001) }, 'notes'],
     ['notes that are a number', { notes: 7 }, 'notes'],
+    ['notes with a NUL character', { notes: 'a\u0000b' }, 'notes'],
     ['an unknown field', { tag: ['typo'] }, 'body'],
     ['an empty change', {}, 'body'],
   ])('refuses %s, naming the field', async (_label, body, path) => {
