@@ -9,7 +9,7 @@
  * and the settled count must survive one further bisection of the panels around
  * the largest increment. Cost: one LU per new node, no solves needed for the count.
  */
-import { PANEL_ORDER, splitRef, traverse, type Contour, type Panel } from './contour';
+import { PANEL_ORDER, splitRefInto, traverse, type Contour, type Panel } from './contour';
 
 /**
  * Largest accepted phase step between neighbouring nodes. Well below π so an
@@ -17,7 +17,7 @@ import { PANEL_ORDER, splitRef, traverse, type Contour, type Panel } from './con
  * enough that node spacing tracks the distance of nearby poles, which the contour
  * integral needs too (common practice, no source).
  */
-export const PHASE_LIMIT = Math.PI / 6;
+export const PHASE_LIMIT = Math.PI / 4;
 
 export interface WindingCount {
   /** The settled winding number, or null when the node budget ran out first. */
@@ -29,6 +29,21 @@ export interface WindingCount {
   note?: string;
 }
 
+/**
+ * A phase to take off arg det T at z: Σ_k arg(z − z_k) over zeros z_k already found.
+ * det T(z)/Π(z − z_k) winds (count − found inside) times and, once the zeros near the
+ * contour are known, its phase is smooth, so far fewer nodes settle the count.
+ */
+export type PhaseShift = (zRe: number, zIm: number) => number;
+
+export interface SettleOptions {
+  /** Phase taken off every node before the steps are checked. */
+  shift?: PhaseShift;
+  /** Called each round once all panels are evaluated, before the check (it may change `shift`'s zeros). */
+  beforeCheck?: () => void;
+  maxRounds?: number;
+}
+
 /** Evaluates the nodes of one panel (one LU per node); false when the node budget is spent. */
 export type PanelEvaluator = (panel: Panel) => boolean;
 
@@ -36,9 +51,9 @@ export type PanelEvaluator = (panel: Panel) => boolean;
  * Phase steps between consecutive nodes of an evaluated contour (the last entry
  * closes the loop) and the winding number they add up to.
  */
-export function phaseSteps(contour: Contour): { steps: Float64Array; winding: number; total: number } {
+export function phaseSteps(contour: Contour, shift?: PhaseShift): { steps: Float64Array; winding: number; total: number } {
   const args: number[] = [];
-  for (const { node } of traverse(contour)) args.push(node.arg);
+  for (const { node } of traverse(contour)) args.push(shift ? node.arg - shift(node.zRe, node.zIm) : node.arg);
   const m = args.length;
   const steps = new Float64Array(m);
   let total = 0;
@@ -61,10 +76,12 @@ export function wrapPhase(d: number): number {
 
 /**
  * Refines the contour in place until every phase step is below PHASE_LIMIT and the
- * count is stable under one extra bisection, then returns the winding number.
+ * count is stable under one extra bisection, then returns the winding number (of
+ * det T, or of det T/Π(z − z_k) when options.shift is given).
  * Panels without nodes are evaluated through `evaluate`.
  */
-export function settleWinding(contour: Contour, evaluate: PanelEvaluator, maxRounds = 40): WindingCount {
+export function settleWinding(contour: Contour, evaluate: PanelEvaluator, options: SettleOptions = {}): WindingCount {
+  const maxRounds = options.maxRounds ?? 40;
   let lastSmooth: number | null = null;
   for (let round = 0; round < maxRounds; round++) {
     for (const ref of contour.refs) {
@@ -72,8 +89,15 @@ export function settleWinding(contour: Contour, evaluate: PanelEvaluator, maxRou
         return { winding: null, maxStep: NaN, rounds: round, note: 'node budget spent before the count settled' };
       }
     }
-    const { steps, winding, total } = phaseSteps(contour);
-    const marked = new Set<number>();
+    options.beforeCheck?.();
+    const { steps, winding, total } = phaseSteps(contour, options.shift);
+    // panel index → number of parts to cut it into; a step s needs about s/PHASE_LIMIT
+    // times finer spacing, so cut in that many parts at once rather than bisect repeatedly
+    // (every cut discards the panel's LUs)
+    const marked = new Map<number, number>();
+    const mark = (panel: number, parts: number): void => {
+      marked.set(panel, Math.max(marked.get(panel) ?? 0, parts));
+    };
     let maxStep = 0;
     let worst = 0;
     for (let k = 0; k < steps.length; k++) {
@@ -83,8 +107,9 @@ export function settleWinding(contour: Contour, evaluate: PanelEvaluator, maxRou
         worst = k;
       }
       if (!(s <= PHASE_LIMIT)) {
-        marked.add(Math.floor(k / PANEL_ORDER));
-        marked.add(Math.floor(((k + 1) % steps.length) / PANEL_ORDER));
+        const parts = Number.isFinite(s) ? Math.min(6, Math.ceil((1.2 * s) / PHASE_LIMIT)) : 2;
+        mark(Math.floor(k / PANEL_ORDER), parts);
+        mark(Math.floor(((k + 1) % steps.length) / PANEL_ORDER), parts);
       }
     }
     const integral = Number.isFinite(total) && Math.abs(total / (2 * Math.PI) - winding) < 1e-6;
@@ -92,14 +117,15 @@ export function settleWinding(contour: Contour, evaluate: PanelEvaluator, maxRou
       if (lastSmooth === winding) return { winding, maxStep, rounds: round };
       lastSmooth = winding;
       // Consistency check: bisect the panels around the largest step once more.
-      marked.add(Math.floor(worst / PANEL_ORDER));
-      marked.add(Math.floor(((worst + 1) % steps.length) / PANEL_ORDER));
+      mark(Math.floor(worst / PANEL_ORDER), 2);
+      mark(Math.floor(((worst + 1) % steps.length) / PANEL_ORDER), 2);
     } else {
       lastSmooth = null;
     }
     const refs = [];
     for (let p = 0; p < contour.refs.length; p++) {
-      if (marked.has(p)) refs.push(...splitRef(contour.refs[p]));
+      const parts = marked.get(p);
+      if (parts) refs.push(...splitRefInto(contour.refs[p], parts));
       else refs.push(contour.refs[p]);
     }
     contour.refs = refs;

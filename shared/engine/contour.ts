@@ -156,6 +156,26 @@ export function splitRef(ref: PanelRef): [PanelRef, PanelRef] {
     : [{ panel: first, reversed: false }, { panel: second, reversed: false }];
 }
 
+/** Splits the panel of ref into k equal parts, returned in traversal order. */
+export function splitRefInto(ref: PanelRef, k: number): PanelRef[] {
+  const p = ref.panel;
+  const parts: Panel[] = [];
+  for (let m = 0; m < k; m++) {
+    const u0 = m / k;
+    const u1 = (m + 1) / k;
+    parts.push(
+      freshPanel(
+        p.aRe + (p.bRe - p.aRe) * u0,
+        p.aIm + (p.bIm - p.aIm) * u0,
+        m + 1 === k ? p.bRe : p.aRe + (p.bRe - p.aRe) * u1,
+        m + 1 === k ? p.bIm : p.aIm + (p.bIm - p.aIm) * u1,
+      ),
+    );
+  }
+  if (ref.reversed) parts.reverse();
+  return parts.map((panel) => ({ panel, reversed: ref.reversed }));
+}
+
 /** The node positions z_k (interleaved) of a panel, in a→b order. */
 export function panelPoints(p: Panel): Float64Array {
   const out = new Float64Array(2 * PANEL_ORDER);

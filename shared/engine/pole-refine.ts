@@ -95,16 +95,18 @@ export function refinePole(s: RefineSetting, z0Re: number, z0Im: number, start: 
       steps++;
       break;
     }
+    // From a good start Newton is quadratic: still far off after three steps means a spurious candidate.
+    if (steps >= 2 && residual > 1e-6) return null;
   }
   if (!x || !last || !(zRe > s.stripLo && zRe < s.stripHi)) return null;
   // Left null vector: transposed inverse iteration from conj(ψ_R), whose overlap ψ_Rᵀ·conj(ψ_R) = ‖ψ_R‖² never vanishes.
-  let left = new Float64Array(2 * n);
+  const left = new Float64Array(2 * n);
   for (let i = 0; i < n; i++) {
     left[2 * i] = x[2 * i];
     left[2 * i + 1] = -x[2 * i + 1];
   }
   for (let k = 0; k < 2; k++) {
-    left = last.solveTranspose(left);
+    last.solveTranspose(left, 1, left);
     if (!normalise(left)) return null;
   }
   return { zRe, zIm, right: x, left, residual, steps };

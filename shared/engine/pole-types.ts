@@ -95,5 +95,12 @@ export interface CertificatePiece {
 export interface PoleSearchResult {
   poles: Pole[];
   certificate: { pieces: CertificatePiece[]; certified: boolean; summary: string };
-  stats: { factorisations: number; seconds: number };
+  stats: {
+    factorisations: number;
+    seconds: number;
+    /** LUs at contour nodes, including nodes of panels later bisected. */
+    contourFactorisations?: number;
+    /** LUs spent by Newton refinement. */
+    refineFactorisations?: number;
+  };
 }

@@ -19,7 +19,7 @@
 import { HBAR_MEV_PS } from '../units/constants';
 import { checkCancelled, type NonlinearOperator, type SheetFlags } from './operator';
 import { SparseLuPlan } from './sparse-lu';
-import { settleWinding } from './argument-principle';
+import { phaseSteps, settleWinding } from './argument-principle';
 import { contourEigenvalues } from './beyn';
 import {
   PANEL_ORDER,
@@ -90,6 +90,7 @@ export function findPoles(op: NonlinearOperator, window: PoleWindow, options: Po
 
   let factorisations = 0;
   let nodesSpent = 0;
+  let nodeFactorisations = 0;
   const onFactor = (): void => {
     checkCancelled(options);
     factorisations++;
@@ -103,6 +104,7 @@ export function findPoles(op: NonlinearOperator, window: PoleWindow, options: Po
     op.assemble({ re: zRe, im: zIm }, sheet, values);
     const f = plan.factor(values);
     onFactor();
+    nodeFactorisations++;
     const { logAbs, arg } = f.logDet();
     f.solve(right, probes, solved);
     return { zRe, zIm, logAbs, arg, probed: project(op.n, probes, left, solved) };
@@ -113,7 +115,9 @@ export function findPoles(op: NonlinearOperator, window: PoleWindow, options: Po
   const bounds = [emin, ...cuts, emax];
   const pieces: Piece[] = [];
   const skipped: string[] = [];
-  const horizontalPanel = Math.max(gammaMax, (emax - emin) / 8);
+  // Panels of about 2·Γmax: narrow poles lie Γmax/2 from the top edge, and the deflated
+  // phase check adds nodes only where a pole sits closer (tuned on the bench, see docs).
+  const horizontalPanel = Math.max(2 * gammaMax, (emax - emin) / 8);
   for (let s = 0; s + 1 < bounds.length; s++) {
     const a = bounds[s];
     const b = bounds[s + 1];
@@ -175,25 +179,44 @@ export function findPoles(op: NonlinearOperator, window: PoleWindow, options: Po
     };
 
     let settled = false;
-    for (let attempt = 0; attempt < 2 && !settled; attempt++) {
+    let tooMany = false;
+    for (let attempt = 0; attempt < 2 && !settled && !tooMany; attempt++) {
       if (attempt > 0) piece.contour.refs = piece.contour.refs.flatMap((r) => splitRef(r));
-      const count = settleWinding(piece.contour, evaluatePanel);
-      piece.winding = count.winding;
+      const strip = (): FoundPole[] => found.filter((f) => f.strip === piece.strip);
+      const rejected: [number, number][] = [];
+      let beynPanels = -1;
+      // Between rounds: new nodes → new Hankel candidates → Newton, so the deflated phase
+      // check below always sees every pole found so far.
+      const beforeCheck = (): void => {
+        const panels = piece.contour.refs.length;
+        if (panels === beynPanels) return;
+        beynPanels = panels;
+        const raw = phaseSteps(piece.contour).winding;
+        const known = insideCount(found, piece);
+        const guess = Math.max(raw, known + 1, 1);
+        let K = Math.ceil((guess + Math.max(2, Math.ceil(guess / 2)) + 1) / probes) + attempt;
+        if (K > MAX_MOMENTS) {
+          tooMany = raw > MAX_MOMENTS * probes - 3;
+          K = MAX_MOMENTS;
+        }
+        const eig = contourEigenvalues(piece.contour, probes, K);
+        report('refine', (0.95 * (widthDone + 0.5 * width)) / totalWidth);
+        refineCandidates(eig.values, piece, setting, found, rejected, random, op.n, attempt > 0);
+      };
+      const shift = (zRe: number, zIm: number): number => {
+        let a = 0;
+        for (const f of strip()) a += Math.atan2(zIm - f.zIm, zRe - f.zRe);
+        return a;
+      };
+      const count = settleWinding(piece.contour, evaluatePanel, { shift, beforeCheck });
       if (count.winding === null) {
+        piece.winding = null;
         piece.note = count.note;
         break;
       }
-      const N = count.winding;
-      if (N === 0) {
-        settled = insideCount(found, piece) === 0;
-        continue;
-      }
-      const K = Math.ceil((N + Math.max(2, Math.ceil(N / 2)) + 1) / probes) + attempt;
-      if (K > MAX_MOMENTS) break; // too many poles for the probes: cut the piece instead
-      const eig = contourEigenvalues(piece.contour, probes, K);
-      report('refine', (0.95 * (widthDone + 0.9 * width)) / totalWidth);
-      refineCandidates(eig.values, piece, setting, found, random, op.n);
-      settled = insideCount(found, piece) === N;
+      // winding of det T = winding of det T/Π(z − z_k) + the found zeros inside
+      piece.winding = count.winding + insideCount(found, piece);
+      settled = count.winding === 0;
     }
 
     if (!settled && piece.winding !== null && piece.depth < MAX_CUT_DEPTH) {
@@ -244,34 +267,52 @@ export function findPoles(op: NonlinearOperator, window: PoleWindow, options: Po
   return {
     poles,
     certificate: { pieces: certPieces, certified, summary },
-    stats: { factorisations, seconds: (performance.now() - started) / 1000 },
+    stats: {
+      factorisations,
+      seconds: (performance.now() - started) / 1000,
+      contourFactorisations: nodeFactorisations,
+      refineFactorisations: factorisations - nodeFactorisations,
+    },
   };
 }
 
-/** Newton-refines the Hankel eigenvalues that lie in (or just around) the piece's contour. */
+/**
+ * Newton-refines the Hankel eigenvalues that lie in (or just around) the piece's
+ * contour, those inside first. A candidate next to a pole already found (or to one
+ * that already failed) is skipped: it is that pole again, unless `nearKnown` asks
+ * to try them too (a degenerate partner is missing).
+ */
 function refineCandidates(
   values: Float64Array,
   piece: Piece,
   setting: RefineSetting,
   found: FoundPole[],
+  rejected: [number, number][],
   random: () => number,
   n: number,
+  nearKnown: boolean,
 ): void {
   const c = piece.contour;
-  const mx = 0.05 * (c.x1 - c.x0);
-  const my = 0.05 * (c.y1 - c.y0);
-  const candidates: [number, number][] = [];
+  const mx = 0.02 * (c.x1 - c.x0);
+  const my = 0.02 * (c.y1 - c.y0);
+  const near = 1e-4 * Math.min(c.x1 - c.x0, c.y1 - c.y0);
+  const candidates: { re: number; im: number; inner: boolean }[] = [];
   for (let k = 0; k < values.length / 2; k++) {
     const re = values[2 * k];
     const im = values[2 * k + 1];
-    if (re > c.x0 - mx && re < c.x1 + mx && im > c.y0 - my && im < c.y1 + my) candidates.push([re, im]);
+    if (re > c.x0 - mx && re < c.x1 + mx && im > c.y0 - my && im < c.y1 + my) candidates.push({ re, im, inner: inside(c, re, im) });
   }
-  // Deep candidates first: an exact duplicate after refinement costs nothing further.
-  candidates.sort((p, q) => p[0] - q[0]);
-  for (const [re, im] of candidates) {
+  candidates.sort((p, q) => Number(q.inner) - Number(p.inner) || p.re - q.re);
+  for (const cand of candidates) {
+    const close = (re: number, im: number): boolean => Math.hypot(re - cand.re, im - cand.im) < near;
+    if (rejected.some(([re, im]) => close(re, im))) continue;
+    if (!nearKnown && found.some((f) => f.strip === piece.strip && close(f.zRe, f.zIm))) continue;
     const start = randomBlock(n, 1, random);
-    const r = refinePole(setting, re, im, start);
-    if (!r || !(r.residual <= SPURIOUS_RESIDUAL)) continue;
+    const r = refinePole(setting, cand.re, cand.im, start);
+    if (!r || !(r.residual <= SPURIOUS_RESIDUAL)) {
+      rejected.push([cand.re, cand.im]);
+      continue;
+    }
     addPole(found, { ...r, strip: piece.strip, sheet: piece.sheet }, setting.op.hopping);
   }
 }
