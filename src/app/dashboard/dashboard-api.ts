@@ -3,7 +3,7 @@ import { Injectable, inject } from '@angular/core';
 import { Observable, map } from 'rxjs';
 // zod/mini: the classic build pulls ~450 kB (all locales) into the first chunk.
 import * as z from 'zod/mini';
-import { roleSchema } from '../core/auth/session';
+import { roleSchema } from '../core/auth/role-schema';
 
 export const activityEntrySchema = z.object({
   id: z.string(),

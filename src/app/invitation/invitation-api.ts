@@ -3,7 +3,9 @@ import { Injectable, inject } from '@angular/core';
 import { Observable, map } from 'rxjs';
 // zod/mini: the classic build pulls ~450 kB (all locales) into the first chunk.
 import * as z from 'zod/mini';
-import { roleSchema, type Session, sessionSchema } from '../core/auth/session';
+import { readSession } from '../core/auth/read-session';
+import { roleSchema } from '../core/auth/role-schema';
+import type { Session } from '../core/auth/session';
 
 export const invitationOfferSchema = z.object({
   email: z.string(),
@@ -27,6 +29,6 @@ export class InvitationApi {
   accept(token: string, name: string, password: string): Observable<Session> {
     return this.http
       .post(`/api/invitations/${encodeURIComponent(token)}/accept`, { name, password })
-      .pipe(map((body) => sessionSchema.parse(body)));
+      .pipe(map((body) => readSession(body)));
   }
 }

@@ -3,7 +3,8 @@ import { Injectable, inject } from '@angular/core';
 import { Observable, map } from 'rxjs';
 // zod/mini: the classic build pulls ~450 kB (all locales) into the first chunk.
 import * as z from 'zod/mini';
-import { type Role, roleSchema } from '../core/auth/session';
+import { roleSchema } from '../core/auth/role-schema';
+import type { Role } from '../core/auth/session';
 
 export const memberSchema = z.object({
   userId: z.string(),
@@ -21,6 +22,8 @@ export const pendingInvitationSchema = z.object({
   role: roleSchema,
   createdAt: z.optional(z.string()),
   expiresAt: z.optional(z.string()),
+  invitedBy: z.optional(z.nullable(z.object({ id: z.string(), name: z.string() }))),
+  status: z.optional(z.string()),
 });
 export type PendingInvitation = z.infer<typeof pendingInvitationSchema>;
 

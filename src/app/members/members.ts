@@ -100,7 +100,9 @@ export class Members {
         this.inviteForm.reset({ email: '', role });
         this.reload.update((n) => n + 1);
       } catch (err) {
-        this.errors.showOnForm(err, this.inviteForm);
+        const problem = this.errors.showOnForm(err, this.inviteForm);
+        // mail_failed: the invitation was saved, only its e-mail was not sent; list it.
+        if (problem.code === 'mail_failed') this.reload.update((n) => n + 1);
       }
     });
   }

@@ -1,24 +1,23 @@
-// zod/mini: the classic build pulls ~450 kB (all locales) into the first chunk.
-import * as z from 'zod/mini';
+/**
+ * The session types. Plain TypeScript on purpose: this file sits on the path of the
+ * first chunk (interceptor → Auth), and any zod import here drags zod's core into it.
+ */
 
 /** Roles inside one research group; admin can also do what designer and reviewer do. */
-export const roleSchema = z.enum(['admin', 'designer', 'reviewer', 'viewer']);
-export type Role = z.infer<typeof roleSchema>;
-export const roles: readonly Role[] = roleSchema.options;
+export type Role = 'admin' | 'designer' | 'reviewer' | 'viewer';
+export const roles: readonly Role[] = ['admin', 'designer', 'reviewer', 'viewer'];
 
 /** One group the signed-in user belongs to, with the user's role there. */
-export const groupMembershipSchema = z.object({
-  id: z.string(),
-  name: z.string(),
-  slug: z.string(),
-  role: roleSchema,
-});
-export type GroupMembership = z.infer<typeof groupMembershipSchema>;
+export interface GroupMembership {
+  id: string;
+  name: string;
+  slug: string;
+  role: Role;
+}
 
 /** What GET /api/auth/session, sign-in and invitation acceptance answer. */
-export const sessionSchema = z.object({
-  user: z.object({ id: z.string(), email: z.string(), name: z.string() }),
-  groups: z.array(groupMembershipSchema),
-  csrfToken: z.string(),
-});
-export type Session = z.infer<typeof sessionSchema>;
+export interface Session {
+  user: { id: string; email: string; name: string };
+  groups: GroupMembership[];
+  csrfToken: string;
+}
