@@ -470,6 +470,15 @@ describe('GET /resonances/:id/mode.png', () => {
     expect(stale.status).toBe(200);
   });
 
+  it('keeps an ETag stored with its quotes (as the run worker writes it) as it is', async () => {
+    await app.handle.db.insert(modeImages).values({ resonanceId: ids.r2!, size: 'full', width: 2, height: 2, etag: '"0123abcd"', png });
+    const url = `/api/groups/${lab.groupId}/resonances/${ids.r2}/mode.png?size=full`;
+    const res = await viewer.get(url);
+    expect(res.status).toBe(200);
+    expect(res.headers.etag).toBe('"0123abcd"');
+    expect((await viewer.get(url).set('If-None-Match', '"0123abcd"')).status).toBe(304);
+  });
+
   it('answers 404 for a missing size, another group, or a stranger; 400 for an unknown size', async () => {
     expect((await viewer.get(`/api/groups/${lab.groupId}/resonances/${ids.r1}/mode.png?size=full`)).status).toBe(404);
     expect((await viewer.get(`/api/groups/${lab.groupId}/resonances/${otherIds.o1}/mode.png?size=thumb`)).status).toBe(404);
