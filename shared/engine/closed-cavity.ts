@@ -11,7 +11,7 @@
  */
 import { EigenvalueDecomposition, Matrix } from 'ml-matrix';
 import { checkCancelled, type WorkControl } from './operator';
-import { SparseLuPlan, type SparseLuFactors } from './sparse-lu';
+import { SingularMatrixError, SparseLuPlan, type SparseLuFactors } from './sparse-lu';
 import { applyHamiltonian, hamiltonianCsc, type CavityLattice } from './lattice';
 import { siteUniform } from '../model/site-noise';
 
@@ -168,7 +168,7 @@ function lanczosRound(
  * eigenvectors). Throws RangeError on bad options.
  */
 export function closedCavityEigenvalues(lattice: CavityLattice, options: ClosedCavityOptions): ClosedCavityResult {
-  const { target } = options;
+  let target = options.target;
   const n = lattice.onsite.length;
   if (!Number.isFinite(target)) throw new RangeError(`closed cavity: target must be a finite energy in meV, got ${target}`);
   if (!Number.isInteger(options.count) || options.count < 1) throw new RangeError(`closed cavity: count must be a positive integer, got ${options.count}`);
@@ -177,12 +177,23 @@ export function closedCavityEigenvalues(lattice: CavityLattice, options: ClosedC
   const maxBasis = Math.max(options.maxBasis ?? Math.max(2 * count + 30, 60), count + 2);
   const seed = options.seed ?? 1;
   const h = hamiltonianCsc(lattice);
-  const values = Float64Array.from(h.values);
-  for (let c = 0; c < n; c++) {
-    for (let e = h.colPtr[c]; e < h.colPtr[c + 1]; e++) if (h.rowIdx[e] === c) values[2 * e] -= target;
-  }
   const plan = SparseLuPlan.analyse(n, h.colPtr, h.rowIdx, { sites: lattice.sites });
-  const lu = plan.factor(values);
+  const shifted = (sigma: number) => {
+    const values = Float64Array.from(h.values);
+    for (let c = 0; c < n; c++) {
+      for (let e = h.colPtr[c]; e < h.colPtr[c + 1]; e++) if (h.rowIdx[e] === c) values[2 * e] -= sigma;
+    }
+    return plan.factor(values);
+  };
+  let lu: SparseLuFactors;
+  try {
+    lu = shifted(target);
+  } catch (err) {
+    if (!(err instanceof SingularMatrixError)) throw err;
+    // The target is an eigenvalue to rounding: move off it by a hair; the answer is unchanged.
+    target += 1e-9 * Math.max(lattice.hopping, Math.abs(target));
+    lu = shifted(target);
+  }
 
   const locked: Pair[] = [];
   const counter = { steps: 0 };

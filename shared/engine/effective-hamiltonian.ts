@@ -163,6 +163,7 @@ export class EffectiveHamiltonian implements NonlinearOperator {
   }
 
   assemble(z: Complex, sheet: SheetFlags, out: Float64Array): void {
+    this.checkArguments('assemble', sheet, out);
     out.set(this.minusH);
     for (let s = 0; s < this.n; s++) {
       out[2 * this.diagSlot[s]] += z.re;
@@ -175,6 +176,7 @@ export class EffectiveHamiltonian implements NonlinearOperator {
   }
 
   assembleDerivative(z: Complex, sheet: SheetFlags, out: Float64Array): void {
+    this.checkArguments('assembleDerivative', sheet, out);
     out.fill(0);
     for (let s = 0; s < this.n; s++) out[2 * this.diagSlot[s]] = 1;
     this.system.leads.forEach((lead, l) => {
@@ -186,6 +188,8 @@ export class EffectiveHamiltonian implements NonlinearOperator {
   /** ψ†Γ_ℓψ = −2·Im(ψ†Σ_ℓψ) = Σ_m 2t·Im(λ_m)·|Σ_p χ_m(p) e^{iθ_p} ψ_p|². Cost O(W²). */
   leadWidthForm(z: Complex, sheet: SheetFlags, lead: number, psi: Float64Array): number {
     const l = this.system.leads[lead];
+    if (!l) throw new RangeError(`leadWidthForm: lead ${lead} does not exist (the cavity has ${this.leadCount} leads)`);
+    if (psi.length < 2 * this.n) throw new RangeError(`leadWidthForm: psi has length ${psi.length}, expected 2·n = ${2 * this.n}`);
     const ch = l.channels;
     const w = ch.width;
     selfEnergyCoefficients(ch, z.re, z.im, sheet[lead], this.coef);
@@ -262,6 +266,14 @@ export class EffectiveHamiltonian implements NonlinearOperator {
       }
     }
     return { count, values, lead: Int32Array.from(leadOf), channel: Int32Array.from(channelOf), perLead };
+  }
+
+  private checkArguments(where: string, sheet: SheetFlags, out: Float64Array): void {
+    if (out.length < 2 * this.rowIdx.length) throw new RangeError(`${where}: out has length ${out.length}, expected 2·nnz = ${2 * this.rowIdx.length}`);
+    if (sheet.length !== this.leadCount) throw new RangeError(`${where}: sheet has flags for ${sheet.length} leads, the cavity has ${this.leadCount}`);
+    this.system.leads.forEach((l, k) => {
+      if (sheet[k].length !== l.mouth.length) throw new RangeError(`${where}: sheet[${k}] has ${sheet[k].length} flags, lead ${k} has ${l.mouth.length} channels`);
+    });
   }
 
   private subtractBlock(lead: number, out: Float64Array): void {

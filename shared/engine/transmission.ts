@@ -169,6 +169,8 @@ export interface SweepRequest {
   /** Points of the uniform grid (≥ 2), both ends included. */
   points: number;
   refine?: SweepRefinement;
+  /** An analysed plan of op's pattern to reuse (e.g. shared with a pole search). */
+  plan?: SparseLuPlan;
 }
 
 export interface TransmissionSweep {
@@ -244,7 +246,7 @@ export function transmissionSweep(op: EffectiveHamiltonian, request: SweepReques
   const tolerance = refine?.tolerance ?? 0.02;
   const phaseTolerance = refine?.phaseTolerance ?? 0.5;
   const minWidth = refine?.minWidth ?? 1e-6 * op.hopping;
-  const solver = new TransmissionSolver(op);
+  const solver = new TransmissionSolver(op, request.plan);
   const report = (done: number) => control?.onProgress?.('transmission', Math.min(1, done / maxPoints));
 
   let samples: TransmissionPoint[] = [];

@@ -89,6 +89,14 @@ describe('closed-cavity eigenvalues', () => {
     }
   });
 
+  it('copes with a target sitting exactly on an eigenvalue', () => {
+    // Chain of 5 sites: E_n = 2t(2 − cos(nπ/6) − cos(π/2)) (contract rectangle formula, Ny = 1).
+    const lattice = buildLattice(rasteriseShape({ kind: 'rectangle', x0: 0, y0: 0, width: 5, height: 1 }, 5, 1, 1), 5, 1, 1, 0);
+    const e2 = 2 * (2 - Math.cos((2 * Math.PI) / 6));
+    const res = closedCavityEigenvalues(lattice, { target: e2, count: 1 });
+    expect(Math.abs(res.energies[0] - e2)).toBeLessThan(1e-9);
+  });
+
   it('rejects bad options', () => {
     const lattice = buildLattice(rasteriseShape({ kind: 'rectangle', x0: 0, y0: 0, width: 4, height: 4 }, 4, 4, 1), 4, 4, 1, 0);
     expect(() => closedCavityEigenvalues(lattice, { target: NaN, count: 2 })).toThrow(/target/);

@@ -187,5 +187,9 @@ describe('lead channels and self-energy', () => {
     expect(op.thresholds).toHaveLength(6 + 4);
     for (let k = 1; k < op.thresholds.length; k++) expect(op.thresholds[k]).toBeGreaterThan(op.thresholds[k - 1]);
     expect(op.leadCount).toBe(3);
+    const out = new Float64Array(2 * op.rowIdx.length);
+    expect(() => op.assemble({ re: 1, im: 0 }, op.sheetAt(1).slice(1), out)).toThrow(/sheet has flags for 2 leads/);
+    expect(() => op.assemble({ re: 1, im: 0 }, op.sheetAt(1), new Float64Array(4))).toThrow(/out has length 4/);
+    expect(() => op.leadWidthForm({ re: 1, im: 0 }, op.sheetAt(1), 5, new Float64Array(2 * op.n))).toThrow(/lead 5/);
   });
 });
