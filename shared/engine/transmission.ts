@@ -247,7 +247,11 @@ export function transmissionSweep(op: EffectiveHamiltonian, request: SweepReques
   const phaseTolerance = refine?.phaseTolerance ?? 0.5;
   const minWidth = refine?.minWidth ?? 1e-6 * op.hopping;
   const solver = new TransmissionSolver(op, request.plan);
-  const report = (done: number) => control?.onProgress?.('transmission', Math.min(1, done / maxPoints));
+  const probing = !!refine && refine.upperProbe !== false;
+  // Work units: one per transmission sample plus one per probe LU.
+  const total = maxPoints + (probing ? points : 0);
+  let probes = 0;
+  const report = (done: number) => control?.onProgress?.('transmission', Math.min(1, (done + probes) / total));
 
   let samples: TransmissionPoint[] = [];
   for (let k = 0; k < points; k++) {
@@ -259,12 +263,14 @@ export function transmissionSweep(op: EffectiveHamiltonian, request: SweepReques
   // give it (|λ| < 1), so the phase varies on the scale η and cannot jump.
   const step = (emax - emin) / (points - 1);
   const suspect = new Uint8Array(points - 1);
-  if (refine && refine.upperProbe !== false) {
+  if (refine && probing) {
     const probeTolerance = refine.probeTolerance ?? 0.4;
     let previous = 0;
     for (let k = 0; k < points; k++) {
       checkCancelled(control);
       const phase = solver.detPhase({ re: samples[k].energy, im: step });
+      probes++;
+      report(samples.length);
       if (k > 0) {
         const d = phase - previous;
         if (Math.abs(Math.atan2(Math.sin(d), Math.cos(d))) > probeTolerance) suspect[k - 1] = 1;
