@@ -242,14 +242,14 @@ export class EffectiveHamiltonian implements NonlinearOperator {
     const leadOf: number[] = [];
     const channelOf: number[] = [];
     const perLead: number[] = [];
-    this.system.leads.forEach((l, k) => {
+    for (let k = 0; k < this.leadCount; k++) {
       const open = this.openChannels(k, energy);
       perLead.push(open.length);
       for (const m of open) {
         leadOf.push(k);
         channelOf.push(m);
       }
-    });
+    }
     const count = leadOf.length;
     const values = new Float64Array(2 * this.n * count);
     for (let c = 0; c < count; c++) {
