@@ -34,13 +34,13 @@ export function formatEnergy(meV: number | null | undefined, digits = 4): string
   return `${significant(meV, digits)} meV`;
 }
 
-/** A width Γ in meV, shown in meV, µeV or neV, whichever puts 1–999 before the unit. */
+/** A width Γ in meV, shown in meV down to 1 meV, in µeV down to 0.1 µeV, in neV below. */
 export function formatWidth(meV: number | null | undefined, digits = 3): string {
   if (meV == null || !Number.isFinite(meV)) return '—';
   if (meV === 0) return '0 meV';
   const abs = Math.abs(meV);
   if (abs >= 1) return `${significant(meV, digits)} meV`;
-  if (abs >= 1e-3) return `${significant(meV * 1e3, digits)} µeV`;
+  if (abs >= 1e-4) return `${significant(meV * 1e3, digits)} µeV`;
   return `${significant(meV * 1e6, digits)} neV`;
 }
 

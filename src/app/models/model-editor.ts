@@ -25,7 +25,7 @@ import { ErrorReport } from '../core/errors/error-report';
 import { fieldError } from '../core/errors/field-error';
 import { toProblem } from '../core/errors/problem';
 import { formatEnergy } from '../catalogue/energy-format';
-import type { DerivedFigures } from './derived-figures';
+import type { ChannelThreshold, DerivedFigures } from '../../../shared/model/derived-figures';
 import { injectCanDesign } from './design-permission';
 import { LatticePreview } from './lattice-preview';
 import { countSites } from './lattice-mask-path';
@@ -179,10 +179,13 @@ export class ModelEditor {
     this.leads.removeAt(index);
   }
 
-  protected thresholdText(values: readonly number[]): string {
-    if (!values?.length) return '—';
-    const shown = values.slice(0, 8).map((v) => formatEnergy(v, 4).replace(' meV', ''));
-    return `${shown.join(', ')}${values.length > 8 ? `, … (${values.length})` : ''} meV`;
+  protected readonly Math = Math;
+
+  /** The opening energies ε_m − 2t of a lead's channels, the first few of them. */
+  protected thresholdText(thresholds: readonly ChannelThreshold[]): string {
+    if (!thresholds?.length) return '—';
+    const shown = thresholds.slice(0, 6).map((th) => formatEnergy(th.opens, 4).replace(' meV', ''));
+    return `${shown.join(', ')}${thresholds.length > 6 ? `, … (${thresholds.length} channels)` : ''} meV`;
   }
 
   protected issuesOf(section: string): string[] {

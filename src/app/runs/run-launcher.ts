@@ -16,7 +16,7 @@ import { ErrorReport } from '../core/errors/error-report';
 import { fieldError } from '../core/errors/field-error';
 import { toProblem } from '../core/errors/problem';
 import { CurrentGroup } from '../core/group/current-group';
-import type { DerivedFigures } from '../models/derived-figures';
+import { type DerivedFigures, energyValidity } from '../../../shared/model/derived-figures';
 import { injectCanDesign } from '../models/design-permission';
 import { type ModelDetail, type ModelSummary, ModelsApi } from '../models/models-api';
 import { placeIssues } from '../models/model-issues';
@@ -63,6 +63,7 @@ export class RunLauncher {
   protected readonly fieldError = fieldError;
   protected readonly formatEnergy = formatEnergy;
   protected readonly formatDuration = formatDuration;
+  protected readonly Math = Math;
 
   protected readonly form = new FormGroup({
     modelId: new FormControl('', { nonNullable: true, validators: [Validators.required] }),
@@ -87,21 +88,29 @@ export class RunLauncher {
   protected readonly value = signal(this.form.getRawValue());
   protected readonly kind = computed(() => this.value().kind);
 
+  /** Every channel opening ε_m − 2t and closing ε_m + 2t of every lead: a window piece never straddles one. */
   protected readonly thresholds = computed<AxisThreshold[]>(() =>
-    (this.derived()?.thresholds ?? [])
-      .flatMap((t) => t.values.map((energy) => ({ energy, lead: t.lead })))
+    (this.derived()?.leads ?? [])
+      .flatMap((lead) =>
+        lead.thresholds.flatMap((th) => [
+          { energy: th.opens, lead: `${lead.name}, channel ${th.channel} opens` },
+          { energy: th.closes, lead: `${lead.name}, channel ${th.channel} closes` },
+        ]),
+      )
       .sort((a, b) => a.energy - b.energy),
   );
-  protected readonly hopping = computed(() => this.derived()?.hoppingMeV ?? null);
-  /** E_max / t: the lattice dispersion error grows with it (common practice: keep it well below 1). */
-  protected readonly energyOverHopping = computed(() => {
+  protected readonly hopping = computed(() => this.derived()?.hopping ?? null);
+  /**
+   * The model-validity check at the top of the window, by the same shared function the
+   * API uses (docs/physics-model.md, "Validity figures"): dispersion error and λ/a.
+   */
+  protected readonly validity = computed(() => {
     const t = this.hopping();
+    const spacing = this.model()?.spacingNm;
     const emax = this.value().window.emax;
-    return t && emax != null ? emax / t : null;
+    const lowestOffset = Math.min(0, ...(this.derived()?.leads ?? []).map((l) => l.offset));
+    return t && spacing && emax != null && emax > 0 ? energyValidity(emax - lowestOffset, t, spacing) : null;
   });
-
-  /** Above this E_max/t the dispersion error is called out (common practice, no source: (ka)²/12 ≈ 3 % there). */
-  protected readonly validityRatio = 0.3;
 
   private readonly estimates = new Subject<Omit<RunRequest, 'note'> | null>();
 

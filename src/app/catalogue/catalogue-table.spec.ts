@@ -1,0 +1,94 @@
+import { provideHttpClient } from '@angular/common/http';
+import { HttpTestingController, provideHttpClientTesting } from '@angular/common/http/testing';
+import { TestBed } from '@angular/core/testing';
+import { provideRouter, Router } from '@angular/router';
+import { RouterTestingHarness } from '@angular/router/testing';
+import { provideFakeCurrentGroup } from '../models/fake-current-group';
+import { CatalogueTable } from './catalogue-table';
+
+const wait = (ms: number) => new Promise((r) => setTimeout(r, ms));
+
+function setUp() {
+  TestBed.configureTestingModule({
+    providers: [
+      provideHttpClient(),
+      provideHttpClientTesting(),
+      provideRouter([{ path: 'catalogue', component: CatalogueTable }]),
+      provideFakeCurrentGroup('viewer'),
+    ],
+  });
+  return TestBed.inject(HttpTestingController);
+}
+
+const emptyPage = { items: [], total: 0, page: 1, pageSize: 25 };
+
+describe('CatalogueTable', () => {
+  it('sends the filter in the URL to the API as query parameters', async () => {
+    const http = setUp();
+    const harness = await RouterTestingHarness.create();
+    await harness.navigateByUrl('/catalogue?family=disk&emin=5&emax=12.5&gmax=0.02&dim.radius.min=100&tag=candidate&tag=q-high&sort=width&dir=desc');
+    await wait(0);
+    const req = http.expectOne((r) => r.url === '/api/groups/g1/catalogue');
+    const p = req.request.params;
+    expect(p.get('family')).toBe('disk');
+    expect(p.get('emin')).toBe('5');
+    expect(p.get('emax')).toBe('12.5');
+    expect(p.get('gmax')).toBe('0.02');
+    expect(p.get('dim.radius.min')).toBe('100');
+    expect(p.getAll('tag')).toEqual(['candidate', 'q-high']);
+    expect(p.get('sort')).toBe('width');
+    expect(p.get('dir')).toBe('desc');
+    expect(p.get('page')).toBe('1');
+    expect(p.get('pageSize')).toBe('25');
+    req.flush(emptyPage);
+
+    // The export links carry the same filter, without paging.
+    harness.detectChanges();
+    const csv = (harness.routeNativeElement as HTMLElement).querySelector<HTMLAnchorElement>('[data-test="export-csv"]')!;
+    expect(csv.getAttribute('href')).toContain('/api/groups/g1/catalogue/export.csv?');
+    expect(csv.getAttribute('href')).toContain('emin=5');
+    expect(csv.getAttribute('href')).not.toContain('page=');
+  });
+
+  it('puts what the user types into the URL, debounced, and queries with it', async () => {
+    const http = setUp();
+    const harness = await RouterTestingHarness.create();
+    await harness.navigateByUrl('/catalogue');
+    await wait(0);
+    http.expectOne((r) => r.url === '/api/groups/g1/catalogue').flush(emptyPage);
+
+    const host = harness.routeNativeElement as HTMLElement;
+    const emin = host.querySelector<HTMLInputElement>('[data-filter="emin"]')!;
+    const q = host.querySelector<HTMLInputElement>('[data-filter="q"]')!;
+    emin.value = '3.5';
+    emin.dispatchEvent(new Event('input'));
+    q.value = 'stadium';
+    q.dispatchEvent(new Event('input'));
+    await wait(500);
+    await harness.fixture.whenStable();
+
+    expect(TestBed.inject(Router).url).toBe('/catalogue?q=stadium&emin=3.5');
+    const req = http.expectOne((r) => r.url === '/api/groups/g1/catalogue');
+    expect(req.request.params.get('emin')).toBe('3.5');
+    expect(req.request.params.get('q')).toBe('stadium');
+    req.flush(emptyPage);
+    await wait(400);
+    http.verify();
+  });
+
+  it('names a filter field that is not a number instead of sending it', async () => {
+    const http = setUp();
+    const harness = await RouterTestingHarness.create();
+    await harness.navigateByUrl('/catalogue');
+    await wait(0);
+    http.expectOne((r) => r.url === '/api/groups/g1/catalogue').flush(emptyPage);
+    const host = harness.routeNativeElement as HTMLElement;
+    const emin = host.querySelector<HTMLInputElement>('[data-filter="emin"]')!;
+    emin.value = '3,5';
+    emin.dispatchEvent(new Event('input'));
+    await wait(500);
+    harness.detectChanges();
+    expect(host.textContent).toContain('E from is not a number.');
+    http.expectNone((r) => r.url === '/api/groups/g1/catalogue');
+  });
+});

@@ -1,0 +1,20 @@
+import { computed, signal } from '@angular/core';
+import type { Role } from '../core/auth/session';
+import { CurrentGroup } from '../core/group/current-group';
+
+/**
+ * A CurrentGroup provider for specs: a fixed group with the given role, so the
+ * feature pages can be rendered without a signed-in session or a router URL.
+ */
+export function provideFakeCurrentGroup(role: Role, id = 'g1', slug = 'lab') {
+  const group = signal({ id, slug, name: 'Lab', role });
+  return {
+    provide: CurrentGroup,
+    useValue: {
+      group,
+      id: computed(() => group().id),
+      slug: computed(() => group().slug),
+      isAdmin: computed(() => group().role === 'admin'),
+    } as unknown as CurrentGroup,
+  };
+}
