@@ -1,7 +1,23 @@
+/** Verbs for the audit actions docs/api.md lists; the subject follows them in the sentence. */
+const verbs: Record<string, string> = {
+  'invitation.created': 'invited',
+  'invitation.revoked': 'withdrew the invitation of',
+  'invitation.accepted': 'accepted the invitation for',
+  'member.role_changed': 'changed the role of',
+  'member.removed': 'removed',
+};
+
 /**
- * Turns an audit action code ("member.role_changed", "invitation-sent") into words
- * ("member role changed"). Codes are the server's; unknown ones still read plainly.
+ * Turns an audit action code into words: a verb for the known ones, and the code
+ * itself spelled out ("model.created" → "model created") for codes added later.
  */
 export function actionLabel(action: string): string {
-  return action.replace(/[._-]+/g, ' ').trim();
+  return verbs[action] ?? action.replace(/[._-]+/g, ' ').trim();
+}
+
+/** "(designer → reviewer)" for a role change, from its details; empty otherwise. */
+export function actionDetail(action: string, details: unknown): string {
+  if (action !== 'member.role_changed' || typeof details !== 'object' || details === null) return '';
+  const { from, to } = details as { from?: unknown; to?: unknown };
+  return typeof from === 'string' && typeof to === 'string' ? `(${from} → ${to})` : '';
 }

@@ -30,8 +30,8 @@ describe('Dashboard', () => {
     const harness = await RouterTestingHarness.create();
     await harness.navigateByUrl('/g/harrow-lake/dashboard', Dashboard);
     (await nextRequest(mock, '/api/groups/g-harrow/activity?limit=20')).flush([
-      { id: 'a2', at: '2026-11-30T14:05:00Z', actor: { id: 'u-ada', name: 'Ada Marlow' }, action: 'member.role_changed', subject: 'Rae Lindqvist', details: {} },
-      { id: 'a1', at: '2026-11-29T08:00:00Z', actor: null, action: 'password_reset.requested', subject: 'someone@harrow-lake.example', details: {} },
+      { id: 'a2', at: '2026-11-30T14:05:00Z', actor: { id: 'u-ada', name: 'Ada Marlow' }, action: 'member.role_changed', subject: 'Rae Lindqvist', details: { userId: 'u-rae', from: 'designer', to: 'reviewer' } },
+      { id: 'a1', at: '2026-11-29T08:00:00Z', actor: null, action: 'invitation.created', subject: 'someone@harrow-lake.example', details: {} },
     ]);
     (await nextRequest(mock, '/api/groups/g-harrow/members')).flush([
       { userId: 'u-rae', email: 'rae.reviewer@harrow-lake.example', name: 'Rae Lindqvist', role: 'reviewer', joinedAt: '2026-01-05T09:00:00Z' },
@@ -42,7 +42,8 @@ describe('Dashboard', () => {
     expect(text).toContain('Harrow Lake Mesoscopics Lab');
     expect(text).toContain('You are reviewer in this group.');
     expect(text).toContain('Ada Marlow');
-    expect(text).toContain('member role changed');
+    expect(text).toContain('changed the role of');
+    expect(text).toContain('(designer → reviewer)');
     expect(text).toContain('Someone');
     expect(text).toContain('Rae Lindqvist');
     // Non-admins get the plain members link, and no outbox link.

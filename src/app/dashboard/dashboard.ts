@@ -12,7 +12,7 @@ import { roleLabel } from '../core/auth/role-label';
 import { ErrorReport } from '../core/errors/error-report';
 import { CurrentGroup } from '../core/group/current-group';
 import { MembersApi } from '../members/members-api';
-import { actionLabel } from './action-label';
+import { actionDetail, actionLabel } from './action-label';
 import { DashboardApi } from './dashboard-api';
 
 /** The group's landing page: what happened lately, who is in it, where to go next. */
@@ -34,6 +34,7 @@ export class Dashboard {
   protected readonly adminSomewhere = inject(Auth).adminSomewhere;
   protected readonly roleLabel = roleLabel;
   protected readonly actionLabel = actionLabel;
+  protected readonly actionDetail = actionDetail;
 
   /** `undefined` while loading, `null` when the request failed (the snackbar said why). */
   protected readonly activity = toSignal(this.perGroup((id) => this.api.activity(id, 20)));

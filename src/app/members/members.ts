@@ -1,7 +1,7 @@
 import { DatePipe } from '@angular/common';
-import { Component, computed, inject, signal } from '@angular/core';
+import { Component, computed, inject, signal, viewChild } from '@angular/core';
 import { toObservable, toSignal } from '@angular/core/rxjs-interop';
-import { NonNullableFormBuilder, ReactiveFormsModule, Validators } from '@angular/forms';
+import { FormGroupDirective, NonNullableFormBuilder, ReactiveFormsModule, Validators } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
 import { MatDialog } from '@angular/material/dialog';
 import { MatFormFieldModule } from '@angular/material/form-field';
@@ -58,6 +58,8 @@ export class Members {
   protected readonly roleLabel = roleLabel;
   protected readonly roleDuty = roleDuty;
   protected readonly fieldError = fieldError;
+  /** resetForm() also clears the submitted flag, so the emptied field is not shown as an error. */
+  private readonly formDirective = viewChild(FormGroupDirective);
   protected readonly busy = signal(false);
 
   /** `undefined` while loading, `null` after a failure (reported by snackbar). */
@@ -97,7 +99,7 @@ export class Members {
         this.snackBar.open(`Invitation sent to ${email.trim()} as ${roleLabel[role].toLowerCase()}.`, 'OK', {
           duration: 6000,
         });
-        this.inviteForm.reset({ email: '', role });
+        this.formDirective()?.resetForm({ email: '', role });
         this.reload.update((n) => n + 1);
       } catch (err) {
         const problem = this.errors.showOnForm(err, this.inviteForm);

@@ -1,8 +1,8 @@
 import { Clipboard } from '@angular/cdk/clipboard';
 import { DatePipe, DOCUMENT } from '@angular/common';
-import { Component, computed, inject, signal } from '@angular/core';
+import { Component, computed, inject, signal, viewChild } from '@angular/core';
 import { toObservable, toSignal } from '@angular/core/rxjs-interop';
-import { NonNullableFormBuilder, ReactiveFormsModule, Validators } from '@angular/forms';
+import { FormGroupDirective, NonNullableFormBuilder, ReactiveFormsModule, Validators } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
 import { MatDialog } from '@angular/material/dialog';
 import { MatFormFieldModule } from '@angular/material/form-field';
@@ -42,6 +42,8 @@ export class Tokens {
   private readonly reload = signal(0);
 
   protected readonly fieldError = fieldError;
+  /** resetForm() also clears the submitted flag, so the emptied field is not shown as an error. */
+  private readonly formDirective = viewChild(FormGroupDirective);
   protected readonly busy = signal(false);
   /** The just-created token; kept only in memory, gone on navigation. */
   protected readonly created = signal<CreatedToken | null>(null);
@@ -76,7 +78,7 @@ export class Tokens {
     try {
       const token = await firstValueFrom(this.api.create(this.form.getRawValue().name.trim()));
       this.created.set(token);
-      this.form.reset();
+      this.formDirective()?.resetForm({ name: '' });
       this.reload.update((n) => n + 1);
     } catch (err) {
       this.errors.showOnForm(err, this.form);

@@ -8,5 +8,7 @@ export const authGuard: CanActivateFn = async (_route, state) => {
   const router = inject(Router);
   const session = await auth.load().catch(() => null);
   if (session) return true;
-  return router.createUrlTree(['/sign-in'], { queryParams: { returnUrl: state.url } });
+  // "/" is where sign-in leads anyway; only a deeper address is worth carrying along.
+  const queryParams = state.url === '/' ? {} : { returnUrl: state.url };
+  return router.createUrlTree(['/sign-in'], { queryParams });
 };

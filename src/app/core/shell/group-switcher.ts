@@ -34,8 +34,10 @@ import { CurrentGroup } from '../group/current-group';
             [attr.aria-current]="g.id === group.id ? 'true' : null"
           >
             <mat-icon aria-hidden="true">{{ g.id === group.id ? 'check' : 'groups' }}</mat-icon>
-            <span>{{ g.name }}</span>
-            <span class="role">· {{ roleLabel[g.role] }}</span>
+            <span class="item">
+              <span class="item-name">{{ g.name }}</span>
+              <span class="role">{{ roleLabel[g.role] }}</span>
+            </span>
           </button>
         }
       </mat-menu>
@@ -44,7 +46,9 @@ import { CurrentGroup } from '../group/current-group';
   styles: `
     .trigger { max-width: 420px; }
     .name { overflow: hidden; text-overflow: ellipsis; white-space: nowrap; }
-    .role { color: var(--mat-sys-on-surface-variant); margin-left: 4px; }
+    .item { display: flex; flex-direction: column; padding: 4px 0; }
+    .item-name { white-space: nowrap; }
+    .role { font: var(--mat-sys-body-small); color: var(--mat-sys-on-surface-variant); }
   `,
 })
 export class GroupSwitcher {
