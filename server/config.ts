@@ -19,6 +19,7 @@ const envSchema = z.object({
   POLEWARD_PUBLIC_URL: z.url({ protocol: /^https?$/ }).default('http://127.0.0.1:8640'),
   POLEWARD_SMTP_URL: z.url({ protocol: /^smtps?$/ }).default('smtp://127.0.0.1:2526'),
   POLEWARD_MAIL_FROM: z.string().min(3).default('Poleward <no-reply@poleward.invalid>'),
+  POLEWARD_THREADS_PER_RUN: z.coerce.number().int().min(1).max(16).default(1),
   POLEWARD_RUN_STALE_SECONDS: z.coerce.number().int().min(2).max(3600).default(30),
   POLEWARD_WORKERS: z.coerce.number({ error: 'must be a whole number' }).int('must be a whole number').min(0).max(64).default(2),
 });
@@ -36,6 +37,8 @@ export interface Config {
   /** True when mail goes to the local SMTP stand-in, whose messages GET /api/outbox lists. */
   mailStandIn: boolean;
   workers: number;
+  /** Worker threads one pole search may use (its window is split between them). */
+  threadsPerRun: number;
   /** A running run with no worker heartbeat for this long is put back in the queue. */
   runStaleSeconds: number;
   /** Folder of the built Angular client (may not exist in development). */
@@ -74,6 +77,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     mailStandIn: local,
     workers: e.POLEWARD_WORKERS,
     runStaleSeconds: e.POLEWARD_RUN_STALE_SECONDS,
+    threadsPerRun: e.POLEWARD_THREADS_PER_RUN,
     clientDir: join(projectRoot, 'dist', 'poleward', 'browser'),
     version: packageVersion(),
   };

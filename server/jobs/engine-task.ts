@@ -48,10 +48,10 @@ export function runEngineTask(task: EngineTask, control: WorkControl = {}): Engi
 
   let spectrumShare = 1;
   if (task.kind === 'pole-search') {
-    spectrumShare = 0.2;
+    spectrumShare = task.spectrumPoints > 0 ? 0.2 : 0;
     const result = findPoles(op, task.window, {
       ...control,
-      onProgress: (stage, f) => control.onProgress?.(stage, 0.8 * f),
+      onProgress: (stage, f) => control.onProgress?.(stage, (1 - spectrumShare) * f),
     });
     poles = result.poles;
     certificate = result.certificate;
@@ -59,14 +59,30 @@ export function runEngineTask(task: EngineTask, control: WorkControl = {}): Engi
     stats['factorisations'] = result.stats.factorisations;
   }
   const points = task.kind === 'pole-search' ? task.spectrumPoints : task.window.points;
+  const pairs: { from: number; to: number }[] = [];
+  for (let a = 0; a < op.leadCount; a++) for (let b = 0; b < op.leadCount; b++) if (a !== b) pairs.push({ from: a, to: b });
   const base = 1 - spectrumShare;
+  const result = (spectrum: EngineSpectrum): EngineTaskResult => {
+    stats['seconds'] = (performance.now() - started) / 1000;
+    return {
+      engineVersion: ENGINE_VERSION,
+      thresholds,
+      leadNames: system.leads.map((l) => l.name),
+      grid: { nx: system.model.grid.nx, ny: system.model.grid.ny },
+      sites: system.sites,
+      poles,
+      certificate,
+      spectrum,
+      stats,
+    };
+  };
+  // A part of a window split over several threads leaves the spectrum to another part.
+  if (points === 0) return result({ energies: [], pairs, transmission: pairs.map(() => []), residual: [] });
   const sweep = transmissionSweep(
     op,
     { emin, emax, points, refine: { maxPoints: Math.max(points, Math.min(4 * points, 4000)) } },
     { ...control, onProgress: (stage, f) => control.onProgress?.(stage, base + spectrumShare * f) },
   );
-  const pairs: { from: number; to: number }[] = [];
-  for (let a = 0; a < op.leadCount; a++) for (let b = 0; b < op.leadCount; b++) if (a !== b) pairs.push({ from: a, to: b });
   const spectrum: EngineSpectrum = {
     energies: sweep.points.map((p) => p.energy),
     pairs,
@@ -76,16 +92,5 @@ export function runEngineTask(task: EngineTask, control: WorkControl = {}): Engi
   stats['spectrumPoints'] = sweep.points.length;
   stats['spectrumBudgetExhausted'] = sweep.budgetExhausted;
   stats['worstCurrentResidual'] = sweep.worstCurrentResidual;
-  stats['seconds'] = (performance.now() - started) / 1000;
-  return {
-    engineVersion: ENGINE_VERSION,
-    thresholds,
-    leadNames: system.leads.map((l) => l.name),
-    grid: { nx: system.model.grid.nx, ny: system.model.grid.ny },
-    sites: system.sites,
-    poles,
-    certificate,
-    spectrum,
-    stats,
-  };
+  return result(spectrum);
 }

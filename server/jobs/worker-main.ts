@@ -2,7 +2,7 @@
 import { loadConfig } from '../config.js';
 import { connectDb } from '../db/client.js';
 import { startBoss } from './boss.js';
-import { runInThread } from './thread-runner.js';
+import { runPartitioned } from './partitioned-run.js';
 import { startWorkerLoop } from './worker.js';
 
 const config = loadConfig();
@@ -11,7 +11,7 @@ const boss = await startBoss({ databaseUrl: config.databaseUrl });
 const worker = startWorkerLoop({
   db: handle.db,
   boss,
-  compute: runInThread,
+  compute: (task, onProgress, signal) => runPartitioned(task, config.threadsPerRun, onProgress, signal),
   staleAfterSeconds: config.runStaleSeconds,
   supervisorSeconds: Math.max(1, Math.min(10, Math.floor(config.runStaleSeconds / 3))),
 });
