@@ -11,6 +11,7 @@ import { runQueue, startBoss } from '../../server/jobs/boss.js';
 import { runEngineTask } from '../../server/jobs/engine-task.js';
 import { handleRunJob } from '../../server/jobs/run-job.js';
 import { runInThread } from '../../server/jobs/thread-runner.js';
+import { runPartitioned } from '../../server/jobs/partitioned-run.js';
 import { startWorkerLoop } from '../../server/jobs/worker.js';
 import { ModelService } from '../../server/models/model-service.js';
 import { RunService } from '../../server/runs/run-service.js';
@@ -143,5 +144,18 @@ describe('runs on the queue', () => {
       expect(Math.abs(r.energy - p.energy)).toBeLessThan(1e-9 * Math.max(1, Math.abs(p.energy)));
       expect(Math.abs(r.width - p.width)).toBeLessThan(1e-9 * Math.max(1e-6, p.width) + 1e-12);
     });
+  });
+
+  it('a pole search split over two threads finds the same poles as one thread', async () => {
+    const task = { kind: 'pole-search' as const, document: smallRectangle('Split'), window: smallWindow, spectrumPoints: 100 };
+    const one = await runInThread(task, () => {});
+    const two = await runPartitioned(task, 2, () => {});
+    expect(two.certificate!.certified).toBe(one.certificate!.certified);
+    expect(two.poles.length).toBe(one.poles.length);
+    const a = one.poles.map((p) => p.energy).sort((x, y) => x - y);
+    const b = two.poles.map((p) => p.energy).sort((x, y) => x - y);
+    a.forEach((e, k) => expect(Math.abs(e - b[k]!)).toBeLessThan(1e-9 * Math.max(1, e)));
+    expect(two.spectrum.energies.length).toBe(one.spectrum.energies.length);
+    expect(two.certificate!.pieces.length).toBeGreaterThan(one.certificate!.pieces.length - 1);
   });
 });
