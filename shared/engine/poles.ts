@@ -115,9 +115,9 @@ export function findPoles(op: NonlinearOperator, window: PoleWindow, options: Po
   const bounds = [emin, ...cuts, emax];
   const pieces: Piece[] = [];
   const skipped: string[] = [];
-  // Panels of about 2·Γmax: narrow poles lie Γmax/2 from the top edge, and the deflated
+  // Panels of about 1.5·Γmax: narrow poles lie Γmax/2 from the top edge, and the deflated
   // phase check adds nodes only where a pole sits closer (tuned on the bench, see docs).
-  const horizontalPanel = Math.max(2 * gammaMax, (emax - emin) / 8);
+  const horizontalPanel = Math.max(1.5 * gammaMax, (emax - emin) / 8);
   for (let s = 0; s + 1 < bounds.length; s++) {
     const a = bounds[s];
     const b = bounds[s + 1];

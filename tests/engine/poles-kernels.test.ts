@@ -11,15 +11,25 @@ function lcg(seed: number): () => number {
 
 describe('Gauss–Legendre panel rule', () => {
   it('integrates x^k exactly up to degree 2q − 1 (∫_{−1}^{1} x^k dx = 2/(k+1) for even k)', () => {
-    const { x, w } = gaussLegendre(PANEL_ORDER);
-    for (let k = 0; k < 2 * PANEL_ORDER; k++) {
-      let s = 0;
-      for (let i = 0; i < PANEL_ORDER; i++) s += w[i] * x[i] ** k;
-      const exact = k % 2 ? 0 : 2 / (k + 1);
-      expect(Math.abs(s - exact)).toBeLessThan(1e-14);
+    for (const q of [PANEL_ORDER, 8]) {
+      const { x, w } = gaussLegendre(q);
+      for (let k = 0; k < 2 * q; k++) {
+        let s = 0;
+        for (let i = 0; i < q; i++) s += w[i] * x[i] ** k;
+        const exact = k % 2 ? 0 : 2 / (k + 1);
+        expect(Math.abs(s - exact)).toBeLessThan(1e-14);
+      }
     }
-    // 8-point node, Abramowitz & Stegun Table 25.4: 0.96028 98564 97536
-    expect(Math.abs(x[PANEL_ORDER - 1] - 0.9602898564975363)).toBeLessThan(1e-15);
+  });
+
+  it('matches the tabulated nodes and weights (Abramowitz & Stegun Table 25.4, from memory)', () => {
+    const g5 = gaussLegendre(5);
+    expect(Math.abs(g5.x[4] - 0.906179845938664)).toBeLessThan(1e-14);
+    expect(Math.abs(g5.w[4] - 0.236926885056189)).toBeLessThan(1e-14);
+    expect(Math.abs(g5.x[2])).toBeLessThan(1e-15);
+    expect(Math.abs(g5.w[2] - 0.568888888888889)).toBeLessThan(1e-14);
+    const g8 = gaussLegendre(8);
+    expect(Math.abs(g8.x[7] - 0.960289856497536)).toBeLessThan(1e-14);
   });
 });
 
