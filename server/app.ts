@@ -19,6 +19,7 @@ import { invitationRoutes } from './invitations/invitation-routes.js';
 import { InvitationService } from './invitations/invitation-service.js';
 import type { Mailer } from './mail/mailer.js';
 import { outboxRoutes } from './mail/outbox-routes.js';
+import { openApiRoute } from './openapi/openapi-route.js';
 import { catalogueRoutes } from './catalogue/catalogue-routes.js';
 import type { RunQueue } from './jobs/boss.js';
 import { modelRoutes } from './models/model-routes.js';
@@ -94,6 +95,7 @@ export function createApp(deps: AppDeps): Express {
   api.get('/health', (_req, res) => {
     res.json({ ok: true, version: config.version });
   });
+  api.get('/openapi.json', openApiRoute(config.version));
   api.use(
     '/auth',
     authRoutes({

@@ -9,7 +9,8 @@ import { signedInUser } from './authenticate.js';
 import { apiTokenPrefix, hashOpaqueToken, newOpaqueToken } from './opaque-token.js';
 import { requireAuth } from './require-auth.js';
 
-const createBody = z.object({ name: z.string().trim().min(1, 'must not be empty').max(100) });
+export const createBody = z.object({ name: z.string().trim().min(1, 'must not be empty').max(100) });
+export const tokenParams = z.object({ id: z.uuid() });
 
 /** Personal API tokens of the signed-in user; the secret is returned once, at creation. */
 export function apiTokenRoutes(db: Db): Router {
@@ -33,7 +34,7 @@ export function apiTokenRoutes(db: Db): Router {
     res.status(201).json({ id: row.id, name: row.name, token, createdAt: row.createdAt.toISOString() });
   });
 
-  router.delete('/:id', validate({ params: z.object({ id: z.uuid() }) }), async (req, res) => {
+  router.delete('/:id', validate({ params: tokenParams }), async (req, res) => {
     const user = signedInUser(req);
     const { id } = req.valid.params as { id: string };
     await db.transaction(async (tx) => {

@@ -13,9 +13,9 @@ import { signSessionToken } from './session-token.js';
 import { attemptLimiter, type AttemptLimit } from './sign-in-limit.js';
 import { findUserById } from './user-repository.js';
 
-const signInBody = z.object({ email: emailField, password: z.string().min(1).max(1000) });
-const resetBody = z.object({ email: emailField });
-const confirmBody = z.object({ token: z.string().min(1).max(200), password: newPasswordSchema });
+export const signInBody = z.object({ email: emailField, password: z.string().min(1).max(1000) });
+export const resetBody = z.object({ email: emailField });
+export const confirmBody = z.object({ token: z.string().min(1).max(200), password: newPasswordSchema });
 
 export interface AuthRouteDeps {
   db: Db;

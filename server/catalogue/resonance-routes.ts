@@ -8,7 +8,7 @@ import { resonanceNotFound, type CatalogueService } from './catalogue-service.js
 
 const uuidPattern = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 
-const labelBody = z
+export const labelBody = z
   .strictObject({
     tags: z
       .array(tagSchema, { error: 'must be a list of tags' })
@@ -23,7 +23,7 @@ const labelBody = z
   })
   .refine((b) => b.tags !== undefined || b.notes !== undefined, { message: 'send tags, notes or both' });
 
-const imageQuery = z.object({
+export const imageQuery = z.object({
   size: z.enum(['thumb', 'full'], { error: 'must be thumb or full' }).default('thumb'),
 });
 

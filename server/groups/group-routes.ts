@@ -13,11 +13,12 @@ import type { InvitationService } from '../invitations/invitation-service.js';
 import { memberCount, membersOf } from './group-repository.js';
 import type { GroupService } from './group-service.js';
 
-const role = z.enum(membershipRole.enumValues);
-const memberParams = z.object({ groupId: z.uuid(), userId: z.uuid() });
-const invitationParams = z.object({ groupId: z.uuid(), id: z.uuid() });
-const inviteBody = z.object({ email: emailField, role });
-const activityQuery = z.object({ limit: z.coerce.number().int().min(1).max(200).default(20) });
+export const role = z.enum(membershipRole.enumValues);
+export const memberParams = z.object({ groupId: z.uuid(), userId: z.uuid() });
+export const invitationParams = z.object({ groupId: z.uuid(), id: z.uuid() });
+export const inviteBody = z.object({ email: emailField, role });
+export const activityQuery = z.object({ limit: z.coerce.number().int().min(1).max(200).default(20) });
+export const roleBody = z.object({ role });
 
 /** /api/groups: everything below :groupId goes through requireRole, which scopes it to the caller's group. */
 export function groupRoutes(d: { db: Db; groups: GroupService; invitations: InvitationService }): Router {
@@ -36,7 +37,7 @@ export function groupRoutes(d: { db: Db; groups: GroupService; invitations: Invi
     res.json(await membersOf(d.db, req.membership!.groupId));
   });
 
-  router.patch('/:groupId/members/:userId', requireRole('admin'), validate({ params: memberParams, body: z.object({ role }) }), async (req, res) => {
+  router.patch('/:groupId/members/:userId', requireRole('admin'), validate({ params: memberParams, body: roleBody }), async (req, res) => {
     const { userId } = req.valid.params as z.infer<typeof memberParams>;
     await d.groups.changeRole(signedInUser(req).id, req.membership!.groupId, userId, (req.valid.body as { role: z.infer<typeof role> }).role);
     res.json((await membersOf(d.db, req.membership!.groupId)).find((m) => m.userId === userId));

@@ -8,8 +8,8 @@ import type { Db } from '../db/client.js';
 import { validate } from '../http/validate.js';
 import type { InvitationService } from './invitation-service.js';
 
-const tokenParams = z.object({ token: z.string().min(1).max(200) });
-const acceptBody = z.object({ name: z.string().trim().min(1, 'must not be empty').max(100), password: newPasswordSchema });
+export const tokenParams = z.object({ token: z.string().min(1).max(200) });
+export const acceptBody = z.object({ name: z.string().trim().min(1, 'must not be empty').max(100), password: newPasswordSchema });
 
 /** The public side of invitations: the link's landing page and its accept button. */
 export function invitationRoutes(d: { db: Db; invitations: InvitationService; jwtSecret: string; secureCookies: boolean }): Router {

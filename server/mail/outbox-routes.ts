@@ -7,6 +7,8 @@ import { ApiError } from '../http/error-handler.js';
 import { validate } from '../http/validate.js';
 import { findOutboxMessage, recentOutboxMessages } from './outbox-repository.js';
 
+export const messageParams = z.object({ id: z.uuid() });
+
 const hidden = () => new ApiError(404, 'not_found', 'There is no outbox: mail goes to a real provider, or you are not an admin of any group.');
 
 /**
@@ -23,7 +25,7 @@ export function outboxRoutes(db: Db, standInIsTransport: boolean): Router {
   router.get('/', async (_req, res) => {
     res.json(await recentOutboxMessages(db));
   });
-  router.get('/:id', validate({ params: z.object({ id: z.uuid() }) }), async (req, res) => {
+  router.get('/:id', validate({ params: messageParams }), async (req, res) => {
     const { id } = req.valid.params as { id: string };
     const message = await findOutboxMessage(db, id);
     if (!message) throw new ApiError(404, 'not_found', 'No such message in the outbox.');

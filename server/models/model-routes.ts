@@ -10,16 +10,16 @@ import { maskFromBitmap } from './mask-from-bitmap.js';
 import { checkModel } from './model-figures.js';
 import type { ModelService } from './model-service.js';
 
-const listQuery = z.object({
+export const listQuery = z.object({
   search: z.string().max(200).optional(),
   family: z.string().max(40).optional(),
   page: z.coerce.number().int().min(1).default(1),
   pageSize: z.coerce.number().int().min(1).max(200).default(25),
 });
-const modelParams = z.object({ groupId: z.uuid(), modelId: z.uuid() });
-const versionParams = modelParams.extend({ version: z.coerce.number().int().min(1) });
-const documentBody = z.object({ document: z.unknown().refine((d) => d !== undefined, 'the model document is missing') });
-const bitmapBody = z.object({
+export const modelParams = z.object({ groupId: z.uuid(), modelId: z.uuid() });
+export const versionParams = modelParams.extend({ version: z.coerce.number().int().min(1) });
+export const documentBody = z.object({ document: z.unknown().refine((d) => d !== undefined, 'the model document is missing') });
+export const bitmapBody = z.object({
   spacingNm: z.coerce.number().positive().max(1000),
   widthNm: z.coerce.number().positive().max(1e6),
 });

@@ -8,14 +8,14 @@ import type { RunEvents } from './run-events.js';
 import type { RunService } from './run-service.js';
 import { runRequestSchema, type RunRequest } from './run-window.js';
 
-const listQuery = z.object({
+export const listQuery = z.object({
   status: z.enum(['queued', 'running', 'completed', 'failed', 'cancelled']).optional(),
   kind: z.enum(RUN_KINDS as [string, ...string[]]).optional(),
   modelId: z.uuid().optional(),
   page: z.coerce.number().int().min(1).default(1),
   pageSize: z.coerce.number().int().min(1).max(200).default(25),
 });
-const runParams = z.object({ groupId: z.uuid(), runId: z.uuid() });
+export const runParams = z.object({ groupId: z.uuid(), runId: z.uuid() });
 const TERMINAL = new Set(['completed', 'failed', 'cancelled']);
 
 /** /api/groups/:groupId/runs */

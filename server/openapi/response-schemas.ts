@@ -1,0 +1,294 @@
+/**
+ * Zod schemas of what the API answers, for the OpenAPI description. Requests are
+ * described by the schemas the routes validate with; answers had none, so they live
+ * here in one place. Nothing parses answers with these at run time: the OpenAPI test
+ * parses real answers with them so they cannot quietly drift from the services.
+ * Units: energies and widths meV, lifetimes ps, lengths nm, field T; times ISO 8601.
+ */
+import { z } from 'zod';
+import { membershipRole } from '../db/schema/groups.js';
+import { RUN_KINDS } from '../jobs/queues.js';
+import { cavityModelDescription } from './cavity-model-description.js';
+
+const timestamp = () => z.iso.datetime({ offset: true });
+/** Infinity (ℓ_B at B = 0, λ at E ≤ 0) leaves JSON.stringify as null. */
+const numberOrInfinite = () => z.number().nullable().meta({ description: 'null stands for infinity' });
+
+export const problemSchema = z
+  .object({
+    status: z.number().int().min(400).max(599),
+    code: z.string().meta({ description: 'Stable machine-readable reason, e.g. validation_failed, not_found, forbidden.' }),
+    message: z.string().meta({ description: 'A sentence for a person, naming what is wrong and where.' }),
+    issues: z
+      .array(z.object({ path: z.string().meta({ description: 'Body field path (leads.1.start) or query./params.-prefixed name.' }), message: z.string() }))
+      .optional()
+      .meta({ description: 'Only on validation_failed.' }),
+  })
+  .meta({ id: 'Problem', description: 'Every error answer of the API.' });
+
+export const roleSchema = z.enum(membershipRole.enumValues).meta({ id: 'Role' });
+const personRef = z.object({ id: z.uuid(), name: z.string() });
+
+export const healthSchema = z.object({ ok: z.literal(true), version: z.string() }).meta({ id: 'Health' });
+
+export const groupOfUserSchema = z.object({ id: z.uuid(), name: z.string(), slug: z.string(), role: roleSchema }).meta({ id: 'GroupOfUser' });
+
+export const sessionSchema = z
+  .object({
+    user: z.object({ id: z.uuid(), email: z.string(), name: z.string() }),
+    groups: z.array(groupOfUserSchema),
+    csrfToken: z.string().meta({ description: 'Echo in X-CSRF-Token on unsafe requests; empty for personal-token callers.' }),
+  })
+  .meta({ id: 'Session' });
+
+export const messageSchema = z.object({ message: z.string() }).meta({ id: 'Message' });
+
+export const groupDetailSchema = groupOfUserSchema.extend({ memberCount: z.number().int().nonnegative() }).meta({ id: 'GroupDetail' });
+
+export const memberSchema = z
+  .object({ userId: z.uuid(), email: z.string(), name: z.string(), role: roleSchema, joinedAt: timestamp() })
+  .meta({ id: 'Member' });
+
+export const invitationSchema = z
+  .object({
+    id: z.uuid(),
+    email: z.string(),
+    role: roleSchema,
+    invitedBy: personRef.nullable(),
+    createdAt: timestamp(),
+    expiresAt: timestamp(),
+    status: z.enum(['pending', 'expired']),
+  })
+  .meta({ id: 'Invitation' });
+
+export const invitationPreviewSchema = z
+  .object({ email: z.string(), groupName: z.string(), role: roleSchema, invitedBy: z.string().nullable() })
+  .meta({ id: 'InvitationPreview' });
+
+export const activityEntrySchema = z
+  .object({ id: z.uuid(), at: timestamp(), actor: personRef.nullable(), action: z.string(), subject: z.string(), details: z.unknown() })
+  .meta({ id: 'ActivityEntry' });
+
+export const apiTokenSchema = z
+  .object({ id: z.uuid(), name: z.string(), createdAt: timestamp(), lastUsedAt: timestamp().nullable() })
+  .meta({ id: 'ApiToken' });
+
+export const createdApiTokenSchema = z
+  .object({
+    id: z.uuid(),
+    name: z.string(),
+    token: z.string().meta({ description: 'pwt_ and 43 characters; shown this once, stored only as its hash.' }),
+    createdAt: timestamp(),
+  })
+  .meta({ id: 'CreatedApiToken' });
+
+export const outboxMessageSchema = z
+  .object({ id: z.uuid(), to: z.string(), subject: z.string(), text: z.string(), html: z.string().optional(), receivedAt: timestamp() })
+  .meta({ id: 'OutboxMessage' });
+
+// ---- models
+
+const channelThreshold = z.object({
+  channel: z.number().int().min(1),
+  transverse: z.number().meta({ description: 'ε_m (meV)' }),
+  opens: z.number().meta({ description: 'ε_m − 2t (meV)' }),
+  closes: z.number().meta({ description: 'ε_m + 2t (meV)' }),
+});
+
+export const derivedFiguresSchema = z
+  .object({
+    siteCount: z.number().int().nonnegative(),
+    hopping: z.number().meta({ description: 't = ħ²/(2m*a²) (meV)' }),
+    massRatio: z.number().meta({ description: 'm*/m_e' }),
+    energyCeiling: z.number().meta({ description: 'Recommended largest kinetic energy (meV)' }),
+    wavelengthCeiling: z.number().meta({ description: 'Energy where λ = 10 a (meV)' }),
+    fluxPerPlaquette: z.number(),
+    cyclotronEnergy: z.number().meta({ description: 'ħω_c (meV), 0 at B = 0' }),
+    magneticLength: numberOrInfinite(),
+    leads: z.array(
+      z.object({ name: z.string(), side: z.string(), width: z.number().int(), offset: z.number(), thresholds: z.array(channelThreshold) }),
+    ),
+    validity: z
+      .object({
+        energy: z.number(),
+        dispersionError: z.number(),
+        wavelength: numberOrInfinite(),
+        wavelengthOverSpacing: numberOrInfinite(),
+        warnings: z.array(z.string()),
+      })
+      .optional(),
+  })
+  .meta({ id: 'DerivedFigures', description: 'Figures that follow from a model: hopping, thresholds, magnetic length (docs/physics-model.md).' });
+
+const modelKeyDimensions = z.record(z.string(), z.number()).meta({ description: 'width, height, radius, length of the cavity (nm), as the family has them' });
+
+export const modelSummarySchema = z
+  .object({
+    id: z.uuid(),
+    name: z.string(),
+    family: z.string().meta({ description: 'The shape kind, or composite for union and subtract' }),
+    latestVersion: z.number().int().min(1),
+    material: z.string().meta({ description: 'Preset id, or custom' }),
+    spacingNm: z.number(),
+    fieldT: z.number(),
+    siteCount: z.number().int(),
+    leadCount: z.number().int(),
+    keyDimensions: modelKeyDimensions,
+    updatedAt: timestamp(),
+    createdBy: personRef.nullable(),
+  })
+  .meta({ id: 'ModelSummary' });
+
+export const modelListSchema = z.object({ items: z.array(modelSummarySchema), total: z.number().int().nonnegative() }).meta({ id: 'ModelList' });
+
+export const modelDetailSchema = modelSummarySchema
+  .extend({
+    document: cavityModelDescription,
+    derived: derivedFiguresSchema,
+    versions: z.array(
+      z.object({ version: z.number().int().min(1), createdAt: timestamp(), createdBy: personRef.nullable(), usedByRuns: z.number().int().nonnegative() }),
+    ),
+  })
+  .meta({ id: 'ModelDetail' });
+
+export const modelVersionSchema = z
+  .object({ version: z.number().int().min(1), document: cavityModelDescription, derived: derivedFiguresSchema, createdAt: timestamp() })
+  .meta({ id: 'ModelVersion' });
+
+export const modelCheckSchema = z
+  .object({
+    ok: z.literal(true),
+    derived: derivedFiguresSchema,
+    columns: z
+      .object({
+        family: z.string(),
+        material: z.string(),
+        effectiveMass: z.number(),
+        spacingNm: z.number(),
+        fieldT: z.number(),
+        siteCount: z.number().int(),
+        leadCount: z.number().int(),
+        hoppingMeV: z.number(),
+        widthNm: z.number().nullable(),
+        heightNm: z.number().nullable(),
+        radiusNm: z.number().nullable(),
+        lengthNm: z.number().nullable(),
+        keyDimensions: modelKeyDimensions,
+      })
+      .meta({ description: 'What the catalogue will file the model under' }),
+  })
+  .meta({ id: 'ModelCheck' });
+
+export const bitmapMaskSchema = z
+  .object({
+    shape: z.object({ kind: z.literal('bitmap'), width: z.number().int(), height: z.number().int(), data: z.string() }),
+    grid: z.object({ nx: z.number().int(), ny: z.number().int() }),
+    siteCount: z.number().int(),
+  })
+  .meta({ id: 'BitmapMask', description: 'A bitmap shape and grid to paste into a model document.' });
+
+// ---- runs
+
+export const runEstimateSchema = z
+  .object({
+    sites: z.number().int(),
+    pieces: z.number().int(),
+    thresholdsInWindow: z.array(z.number()),
+    factorisations: z.number().int(),
+    expectedSeconds: z.number(),
+    warnings: z.array(z.string()),
+  })
+  .meta({ id: 'RunEstimate' });
+
+export const runSchema = z
+  .object({
+    id: z.uuid(),
+    kind: z.enum(RUN_KINDS as [string, ...string[]]),
+    status: z.enum(['queued', 'running', 'completed', 'failed', 'cancelled']),
+    progress: z.object({ stage: z.string(), fraction: z.number().min(0).max(1) }).nullable(),
+    window: z.record(z.string(), z.number()).meta({ description: 'As submitted (meV; points for a transmission sweep)' }),
+    note: z.string(),
+    modelId: z.uuid(),
+    modelName: z.string(),
+    modelVersion: z.number().int().min(1),
+    createdBy: personRef.nullable(),
+    createdAt: timestamp(),
+    startedAt: timestamp().nullable(),
+    finishedAt: timestamp().nullable(),
+    attempts: z.number().int().nonnegative(),
+    error: z.string().nullable(),
+    engineVersion: z.string().nullable(),
+    resonanceCount: z.number().int().nullable(),
+    certificate: z.unknown().meta({ description: 'How far the pole count is certified, per window piece (pole searches), or null' }),
+    estimate: runEstimateSchema.nullable(),
+    stats: z.unknown().meta({ description: 'Engine counters (LU factorisations, Newton steps...), or null' }),
+  })
+  .meta({ id: 'Run' });
+
+export const runListSchema = z.object({ items: z.array(runSchema), total: z.number().int().nonnegative() }).meta({ id: 'RunList' });
+
+export const spectrumSchema = z
+  .object({
+    energies: z.array(z.number()).meta({ description: 'meV' }),
+    pairs: z.array(z.object({ from: z.number().int(), to: z.number().int() })).meta({ description: 'Lead pairs in the order of transmission rows' }),
+    transmission: z.array(z.array(z.number())),
+    residual: z.array(z.number()),
+  })
+  .meta({ id: 'Spectrum' });
+
+// ---- catalogue
+
+export const resonanceRowSchema = z
+  .object({
+    id: z.uuid(),
+    runId: z.uuid(),
+    modelId: z.uuid(),
+    modelName: z.string(),
+    modelVersion: z.number().int().min(1),
+    family: z.string(),
+    keyDimensions: z.object({ width: z.number().optional(), height: z.number().optional(), radius: z.number().optional(), length: z.number().optional() }),
+    material: z.string(),
+    fieldT: z.number(),
+    energy: z.number().meta({ description: 'E = Re z (meV)' }),
+    width: z.number().meta({ description: 'Γ = −2 Im z (meV)' }),
+    lifetimePs: z.number().nullable().meta({ description: 'τ = ħ/Γ (ps); null for a bound state' }),
+    quality: z.number().nullable().meta({ description: 'Q = E/Γ; null for a bound state' }),
+    partialWidths: z.array(z.object({ lead: z.string(), width: z.number() })),
+    petermann: z.number(),
+    residual: z.number(),
+    bound: z.boolean(),
+    nearThreshold: z.boolean(),
+    overlapping: z.boolean(),
+    tags: z.array(z.string()),
+    notes: z.string(),
+    createdAt: timestamp(),
+    thumbnailUrl: z.string(),
+    imageUrl: z.string(),
+  })
+  .meta({ id: 'ResonanceRow', description: 'One catalogued resonance z = E − iΓ/2.' });
+
+export const cataloguePageSchema = z
+  .object({ items: z.array(resonanceRowSchema), total: z.number().int().nonnegative(), page: z.number().int(), pageSize: z.number().int() })
+  .meta({ id: 'CataloguePage' });
+
+export const resonanceDetailSchema = resonanceRowSchema
+  .extend({
+    run: z.object({ id: z.uuid(), kind: z.string(), window: z.record(z.string(), z.number()), certificate: z.unknown(), status: z.string() }),
+    model: z.object({ id: z.uuid(), name: z.string(), version: z.number().int() }),
+    otherPoles: z.array(z.object({ id: z.uuid(), energy: z.number(), width: z.number() })),
+    thresholds: z.array(z.number()).meta({ description: 'Channel thresholds in the run window (meV)' }),
+    leads: z.array(z.object({ name: z.string(), side: z.string(), width: z.number().int() })),
+  })
+  .meta({ id: 'ResonanceDetail' });
+
+export const runDetailSchema = runSchema
+  .extend({
+    thresholds: z.array(z.number()),
+    poles: z.array(resonanceRowSchema),
+    spectrum: spectrumSchema.nullable(),
+  })
+  .meta({ id: 'RunDetail' });
+
+export const catalogueExportSchema = z
+  .object({ exportedAt: timestamp(), units: z.record(z.string(), z.string()), items: z.array(resonanceRowSchema) })
+  .meta({ id: 'CatalogueExport' });
