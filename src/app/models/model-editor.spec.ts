@@ -40,7 +40,8 @@ describe('ModelEditor', () => {
         message: 'The model is not valid.',
         issues: [
           { path: 'leads.1.start', message: 'mouth site (59, 45) of leads[1] (right) is outside the cavity' },
-          { path: 'spacing', message: 'spacing must be positive' },
+          { path: 'document.spacing', message: 'spacing must be positive' },
+          { path: 'document.leads.0', message: 'leads[0] (left) overlaps leads[1]' },
         ],
       },
       { status: 400, statusText: 'Bad Request' },
@@ -51,6 +52,7 @@ describe('ModelEditor', () => {
     expect(fieldOf(host, 'leads.1.start').textContent).toContain('mouth site (59, 45) of leads[1] (right) is outside the cavity');
     expect(fieldOf(host, 'leads.0.start').textContent).not.toContain('outside the cavity');
     expect(fieldOf(host, 'spacing').textContent).toContain('spacing must be positive');
+    expect(host.querySelector('[data-lead="0"]')!.textContent).toContain('leads[0] (left) overlaps leads[1]');
     http.match((r) => r.url.endsWith('/models/validate'));
   });
 

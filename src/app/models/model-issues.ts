@@ -18,7 +18,9 @@ export function dottedPath(path: readonly (string | number)[]): string {
  */
 export function placeIssues(form: FormGroup, issues: readonly PlacedIssue[], sections: readonly string[]): Map<string, string[]> {
   const rest = new Map<string, string[]>();
-  for (const issue of issues) {
+  for (const raw of issues) {
+    // The API may name the request body's field ("document.leads.1"); the form mirrors the document itself.
+    const issue = { ...raw, path: raw.path.replace(/^document(\.|$)/, '') };
     const control = leafControl(form, issue.path);
     if (control) {
       control.setErrors({ ...(control.errors ?? {}), server: issue.message });
