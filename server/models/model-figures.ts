@@ -70,21 +70,34 @@ export function checkModel(document: unknown): CheckedModel {
   };
 }
 
-/** The family a geometry is filed under: its primitive, or "composite" for unions and subtractions. */
+/**
+ * The primitive that forms the body of a shape: a union is filed under its first
+ * member (lead stubs and bumps are usually added after the body), a subtraction
+ * under what is subtracted from.
+ */
+export function bodyShape(shape: Shape): Shape {
+  if (shape.kind === 'union') return shape.of.length ? bodyShape(shape.of[0]) : shape;
+  if (shape.kind === 'subtract') return bodyShape(shape.from);
+  return shape;
+}
+
+/** The family a geometry is filed under: the primitive of its body (see bodyShape). */
 export function shapeFamily(shape: Shape): string {
-  return shape.kind === 'union' || shape.kind === 'subtract' ? 'composite' : shape.kind;
+  const body = bodyShape(shape);
+  return body.kind === 'union' || body.kind === 'subtract' ? 'composite' : body.kind;
 }
 
 function shapeDimensions(shape: Shape): { radius?: number; length?: number } {
-  switch (shape.kind) {
+  const body = bodyShape(shape);
+  switch (body.kind) {
     case 'disk':
-      return { radius: shape.radius };
+      return { radius: body.radius };
     case 'stadium':
-      return { radius: shape.radius, length: shape.length };
+      return { radius: body.radius, length: body.length };
     case 'annulus':
-      return { radius: shape.outer };
+      return { radius: body.outer };
     case 'ellipse':
-      return { radius: Math.max(shape.rx, shape.ry) };
+      return { radius: Math.max(body.rx, body.ry) };
     default:
       return {};
   }

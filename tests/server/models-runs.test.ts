@@ -143,3 +143,29 @@ describe('runs', () => {
     expect(theirs.body.items.every((r: { modelName: string }) => r.modelName !== 'For runs')).toBe(true);
   });
 });
+
+describe('geometry family', () => {
+  it('a stadium with lead stubs is filed as a stadium, with its radius and straight length', async () => {
+    const doc = smallRectangle('Stadium with stubs', {
+      grid: { nx: 41, ny: 21 },
+      shape: {
+        kind: 'union',
+        of: [
+          { kind: 'stadium', cx: 100, cy: 50, length: 80, radius: 50 },
+          { kind: 'rectangle', x0: 0, y0: 30, width: 20, height: 45 },
+          { kind: 'rectangle', x0: 180, y0: 30, width: 25, height: 45 },
+        ],
+      },
+      leads: [
+        { side: 'left', start: 7, width: 6 },
+        { side: 'right', start: 7, width: 6 },
+      ],
+    });
+    const res = await designer.post(models(lab), { document: doc });
+    expect(res.body.issues ?? []).toEqual([]);
+    expect(res.status).toBe(201);
+    expect(res.body.family).toBe('stadium');
+    expect(res.body.keyDimensions.radius).toBe(50);
+    expect(res.body.keyDimensions.length).toBe(80);
+  });
+});
