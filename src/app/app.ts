@@ -1,11 +1,14 @@
 import { DOCUMENT } from '@angular/common';
-import { Component, inject } from '@angular/core';
-import { RouterOutlet } from '@angular/router';
+import { Component, ElementRef, inject } from '@angular/core';
+import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
+import { NavigationEnd, Router, RouterOutlet } from '@angular/router';
+import { filter } from 'rxjs';
 
 /** The root: a skip link, the routed page, and the note every page carries. */
 @Component({
   selector: 'pw-root',
   imports: [RouterOutlet],
+  host: { tabindex: '-1' },
   template: `
     <a class="skip-link" href="#main" (click)="skipToMain($event)">Skip to main content</a>
     <div class="page">
@@ -17,9 +20,8 @@ import { RouterOutlet } from '@angular/router';
     </footer>
   `,
   styles: `
-    :host { display: flex; flex-direction: column; height: 100vh; }
+    :host { display: flex; flex-direction: column; height: 100vh; outline: none; }
     .page { flex: 1; min-height: 0; overflow: auto; }
-    .page > :not(router-outlet) { display: block; min-height: 100%; }
     .footer-note {
       padding: 6px 16px;
       font: var(--mat-sys-body-small);
@@ -32,6 +34,23 @@ import { RouterOutlet } from '@angular/router';
 })
 export class App {
   private readonly document = inject(DOCUMENT);
+  private readonly host = inject<ElementRef<HTMLElement>>(ElementRef);
+
+  constructor() {
+    // When a navigation removed the focused element (a submitted form), the next Tab
+    // would start mid-page; restart it at the top, where the skip link is.
+    inject(Router)
+      .events.pipe(
+        filter((e) => e instanceof NavigationEnd),
+        takeUntilDestroyed(),
+      )
+      .subscribe(() => {
+        const active = this.document.activeElement;
+        if (!active || active === this.document.body || !active.isConnected) {
+          this.host.nativeElement.focus({ preventScroll: true });
+        }
+      });
+  }
 
   /** Moves focus itself: a bare "#main" would also go through the router and change the URL. */
   protected skipToMain(event: Event): void {
