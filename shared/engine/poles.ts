@@ -199,7 +199,9 @@ export function findPoles(op: NonlinearOperator, window: PoleWindow, options: Po
           tooMany = raw > MAX_MOMENTS * probes - 3;
           K = MAX_MOMENTS;
         }
-        const eig = contourEigenvalues(piece.contour, probes, K);
+        let eig = contourEigenvalues(piece.contour, probes, K);
+        // A full-rank Hankel matrix means more eigenvalues than the block holds: widen it (no new LUs).
+        while (eig.rank === probes * K && K < MAX_MOMENTS) eig = contourEigenvalues(piece.contour, probes, ++K);
         report('refine', (0.95 * (widthDone + 0.5 * width)) / totalWidth);
         refineCandidates(eig.values, piece, setting, found, rejected, random, op.n, attempt > 0);
       };
@@ -293,14 +295,17 @@ function refineCandidates(
   nearKnown: boolean,
 ): void {
   const c = piece.contour;
-  const mx = 0.02 * (c.x1 - c.x0);
+  // Poles just outside (mostly below the bottom edge) are refined too: once known, they are
+  // divided out of det T and no longer force fine panels on the nearby edge.
+  const mx = 0.05 * (c.x1 - c.x0);
+  const below = 0.5 * (c.y1 - c.y0);
   const my = 0.02 * (c.y1 - c.y0);
   const near = 1e-4 * Math.min(c.x1 - c.x0, c.y1 - c.y0);
   const candidates: { re: number; im: number; inner: boolean }[] = [];
   for (let k = 0; k < values.length / 2; k++) {
     const re = values[2 * k];
     const im = values[2 * k + 1];
-    if (re > c.x0 - mx && re < c.x1 + mx && im > c.y0 - my && im < c.y1 + my) candidates.push({ re, im, inner: inside(c, re, im) });
+    if (re > c.x0 - mx && re < c.x1 + mx && im > c.y0 - below && im < c.y1 + my) candidates.push({ re, im, inner: inside(c, re, im) });
   }
   candidates.sort((p, q) => Number(q.inner) - Number(p.inner) || p.re - q.re);
   for (const cand of candidates) {
