@@ -33,7 +33,7 @@ export interface PoleFactorPlan {
 }
 
 export interface PoleSearchOptions extends WorkControl {
-  /** Random probe vectors of the contour integral (block width ℓ); default 6. */
+  /** Random probe vectors of the contour integral (block width ℓ ≥ the largest degeneracy); default 4. */
   probes?: number;
   /** Seed of the probe vectors, so a search is reproducible; default 1. */
   seed?: number;

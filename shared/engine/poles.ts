@@ -77,7 +77,7 @@ export function findPoles(op: NonlinearOperator, window: PoleWindow, options: Po
   const started = performance.now();
   validate(op, window, options);
   const t = op.hopping;
-  const probes = options.probes ?? 6;
+  const probes = options.probes ?? 4;
   const tolerance = options.tolerance ?? 1e-12;
   const maxNodes = options.maxNodes ?? 4000;
   const plan: PoleFactorPlan = options.plan ?? SparseLuPlan.analyse(op.n, op.colPtr, op.rowIdx, { sites: op.sites });
@@ -311,7 +311,10 @@ function refineCandidates(
   for (const cand of candidates) {
     const close = (re: number, im: number): boolean => Math.hypot(re - cand.re, im - cand.im) < near;
     if (rejected.some(([re, im]) => close(re, im))) continue;
-    if (!nearKnown && found.some((f) => f.strip === piece.strip && close(f.zRe, f.zIm))) continue;
+    // a cluster of m candidates at one place stands for m poles (a degenerate pole)
+    const cluster = candidates.filter((o) => close(o.re, o.im)).length;
+    const held = found.filter((f) => f.strip === piece.strip && close(f.zRe, f.zIm)).length;
+    if (!nearKnown && held >= cluster) continue;
     const start = randomBlock(n, 1, random);
     const r = refinePole(setting, cand.re, cand.im, start);
     if (!r || !(r.residual <= SPURIOUS_RESIDUAL)) {
@@ -323,28 +326,45 @@ function refineCandidates(
 }
 
 /**
- * Adds a refined pole unless it repeats one already found: same z to 1e-9·t and
- * parallel modes. Two poles at the same z with independent modes (a degenerate
- * pair) are both kept, as the argument principle counts them twice.
+ * Adds a refined pole unless it repeats one already found: same z to 1e-9·(t + |z|)
+ * and a mode inside the span of the modes already held at that z (less than 30% of
+ * its norm left after projecting them out). Independent modes at one z (a degenerate
+ * pole) are each kept, as the argument principle counts the pole that many times.
  */
-function addPole(found: FoundPole[], p: FoundPole, t: number): void {
-  for (const q of found) {
-    if (q.strip !== p.strip) continue;
-    if (Math.hypot(q.zRe - p.zRe, q.zIm - p.zIm) > 1e-9 * (t + Math.hypot(p.zRe, p.zIm))) continue;
-    if (overlap(q.right, p.right) > 0.9) return;
+function addPole(found: FoundPole[], p: FoundPole, t: number): boolean {
+  const same = found.filter(
+    (q) => q.strip === p.strip && Math.hypot(q.zRe - p.zRe, q.zIm - p.zIm) <= 1e-9 * (t + Math.hypot(p.zRe, p.zIm)),
+  );
+  if (same.length) {
+    // Gram–Schmidt of the held modes, then the part of p's mode outside their span
+    const basis: Float64Array[] = [];
+    const rest = Float64Array.from(p.right);
+    for (const q of same) {
+      const v = Float64Array.from(q.right);
+      for (const b of basis) subtractProjection(v, b);
+      if (normalise(v)) basis.push(v);
+    }
+    for (const b of basis) subtractProjection(rest, b);
+    let r2 = 0;
+    for (let i = 0; i < rest.length; i++) r2 += rest[i] * rest[i];
+    if (Math.sqrt(r2) < 0.3) return false;
   }
   found.push(p);
+  return true;
 }
 
-/** |aᴴb| for unit vectors a, b. */
-function overlap(a: Float64Array, b: Float64Array): number {
+/** v ← v − b(bᴴv) for a unit vector b. */
+function subtractProjection(v: Float64Array, b: Float64Array): void {
   let re = 0;
   let im = 0;
-  for (let i = 0; i < a.length; i += 2) {
-    re += a[i] * b[i] + a[i + 1] * b[i + 1];
-    im += a[i] * b[i + 1] - a[i + 1] * b[i];
+  for (let i = 0; i < v.length; i += 2) {
+    re += b[i] * v[i] + b[i + 1] * v[i + 1];
+    im += b[i] * v[i + 1] - b[i + 1] * v[i];
   }
-  return Math.hypot(re, im);
+  for (let i = 0; i < v.length; i += 2) {
+    v[i] -= b[i] * re - b[i + 1] * im;
+    v[i + 1] -= b[i] * im + b[i + 1] * re;
+  }
 }
 
 function inside(c: Contour, re: number, im: number): boolean {

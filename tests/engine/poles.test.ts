@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { EigenvalueDecomposition, Matrix } from 'ml-matrix';
 import { findPoles } from '../../shared/engine/poles';
-import { WorkCancelled, type Complex, type SheetFlags } from '../../shared/engine/operator';
+import { WorkCancelled, type Complex, type NonlinearOperator, type SheetFlags } from '../../shared/engine/operator';
 import type { PoleSearchResult } from '../../shared/engine/pole-types';
 import { HBAR_MEV_PS } from '../../shared/units/constants';
 import { DenseLuPlan, StripWithLeads, transmission } from './poles-fixtures';
@@ -286,5 +286,103 @@ describe('control and errors', () => {
     expect(a.poles.length).toBe(b.poles.length);
     a.poles.forEach((p, k) => expect(Math.abs(p.energy - b.poles[k].energy)).toBeLessThanOrEqual(1e-14 * t));
     expect(a.stats.factorisations).toBe(b.stats.factorisations);
+  });
+});
+
+/** Two copies of one operator side by side (block-diagonal T): every pole is exactly doubly degenerate. */
+class TwoCopies implements NonlinearOperator {
+  readonly n: number;
+  readonly colPtr: Int32Array;
+  readonly rowIdx: Int32Array;
+  readonly sites: { i: Int32Array; j: Int32Array };
+  readonly thresholds: readonly number[];
+  readonly leadCount: number;
+  readonly hopping: number;
+  constructor(private readonly a: NonlinearOperator) {
+    const n = a.n;
+    const nnz = a.colPtr[n];
+    this.n = 2 * n;
+    this.colPtr = new Int32Array(2 * n + 1);
+    this.rowIdx = new Int32Array(2 * nnz);
+    for (let c = 0; c <= n; c++) this.colPtr[c] = a.colPtr[c];
+    for (let c = 1; c <= n; c++) this.colPtr[n + c] = nnz + a.colPtr[c];
+    for (let p = 0; p < nnz; p++) {
+      this.rowIdx[p] = a.rowIdx[p];
+      this.rowIdx[nnz + p] = n + a.rowIdx[p];
+    }
+    // the copy sits one lattice column to the right of the original's last column
+    const shift = Math.max(...a.sites.i) + 2;
+    this.sites = {
+      i: Int32Array.from([...a.sites.i, ...Array.from(a.sites.i, (i) => i + shift)]),
+      j: Int32Array.from([...a.sites.j, ...a.sites.j]),
+    };
+    this.thresholds = a.thresholds;
+    this.leadCount = 2 * a.leadCount;
+    this.hopping = a.hopping;
+  }
+  sheetAt(e: number): SheetFlags {
+    const s = this.a.sheetAt(e);
+    return [...s, ...s.map((r) => r.slice())];
+  }
+  private both(write: (z: Complex, s: SheetFlags, out: Float64Array) => void, z: Complex, s: SheetFlags, out: Float64Array): void {
+    const nnz = this.a.colPtr[this.a.n];
+    const half = new Float64Array(2 * nnz);
+    write(z, s.slice(0, this.a.leadCount), half);
+    out.set(half, 0);
+    out.set(half, 2 * nnz);
+  }
+  assemble(z: Complex, s: SheetFlags, out: Float64Array): void {
+    this.both((zz, ss, o) => this.a.assemble(zz, ss, o), z, s, out);
+  }
+  assembleDerivative(z: Complex, s: SheetFlags, out: Float64Array): void {
+    this.both((zz, ss, o) => this.a.assembleDerivative(zz, ss, o), z, s, out);
+  }
+  leadWidthForm(z: Complex, s: SheetFlags, lead: number, psi: Float64Array): number {
+    const n = this.a.n;
+    const copy = lead >= this.a.leadCount ? 1 : 0;
+    return this.a.leadWidthForm(z, s.slice(0, this.a.leadCount), lead - copy * this.a.leadCount, psi.subarray(2 * n * copy, 2 * n * (copy + 1)));
+  }
+}
+
+describe('degenerate poles', () => {
+  const single = doubleBarrier(9, 3 * t);
+  const op = new TwoCopies(single);
+  const window = { emin: 2.5 * t, emax: 5.5 * t, gammaMax: 0.25 * t };
+  const reference = findPoles(single, window, { plan: new DenseLuPlan(single) });
+
+  it('lists an exactly double pole twice, with independent modes, as the count demands', () => {
+    const r = findPoles(op, window, { plan: new DenseLuPlan(op) });
+    expectCertified(r);
+    expect(reference.poles.length).toBeGreaterThanOrEqual(2);
+    expect(r.poles.length).toBe(2 * reference.poles.length);
+    reference.poles.forEach((p, k) => {
+      const pair = [r.poles[2 * k], r.poles[2 * k + 1]];
+      for (const q of pair) {
+        expect(Math.abs(q.energy - p.energy)).toBeLessThan(1e-10 * t);
+        expect(Math.abs(q.width - p.width)).toBeLessThan(1e-10 * t);
+      }
+      // |ψ1ᴴψ2| < 1: two directions in the two-dimensional null space
+      let re = 0;
+      let im = 0;
+      for (let i = 0; i < op.n; i++) {
+        const [a, b] = [pair[0].mode, pair[1].mode];
+        re += a[2 * i] * b[2 * i] + a[2 * i + 1] * b[2 * i + 1];
+        im += a[2 * i] * b[2 * i + 1] - a[2 * i + 1] * b[2 * i];
+      }
+      expect(Math.hypot(re, im)).toBeLessThan(0.95);
+    });
+  });
+
+  it('never claims a piece it could not confirm, even with a single probe vector', () => {
+    const r = findPoles(op, window, { plan: new DenseLuPlan(op), probes: 1 });
+    for (const p of r.certificate.pieces) {
+      expect(p.certified).toBe(p.windingNumber !== null && p.windingNumber === p.polesFound);
+      if (!p.certified) expect(p.note).toBeTruthy();
+    }
+    expect(r.certificate.certified).toBe(r.certificate.pieces.every((p) => p.certified));
+    // whatever it lists is a true pole of the single copy
+    for (const q of r.poles) {
+      expect(reference.poles.some((p) => Math.abs(p.energy - q.energy) < 1e-9 * t && Math.abs(p.width - q.width) < 1e-9 * t)).toBe(true);
+    }
   });
 });
