@@ -1,0 +1,88 @@
+// `npm run bench`: prints the speed figures of the engine and the catalogue on this
+// machine. Nothing here is asserted; compare the figures by eye with the targets in
+// DEVELOPERS.md. Sections: --only lu,transmission,poles,scaling,catalogue (default all).
+import { cpus, loadavg } from 'node:os';
+import { buildCavitySystem, EffectiveHamiltonian } from '../shared/engine/effective-hamiltonian';
+import { findPoles } from '../shared/engine/poles';
+import type { CavityModelInput } from '../shared/model/cavity-model';
+import { runPartitioned } from '../server/jobs/partitioned-run';
+import { benchLu } from './bench-lu';
+import { benchTransmission } from './bench-transmission';
+import { benchCatalogue } from './bench-catalogue';
+
+const only = (process.argv.find((a) => a.startsWith('--only='))?.slice(7) ?? 'lu,transmission,poles,scaling,catalogue').split(',');
+const print = (title: string, figures: Record<string, number | string>) => {
+  console.log(`\n== ${title}`);
+  for (const [k, v] of Object.entries(figures)) console.log(`  ${k.padEnd(40)} ${typeof v === 'number' && !Number.isInteger(v) ? v.toPrecision(4) : v}`);
+};
+
+/** The pole-search bench cavity: an n×n GaAs rectangle (a = 5 nm) with weak disorder and two 10-site leads. */
+function benchCavity(side: number): CavityModelInput {
+  return {
+    name: `bench rectangle ${side}×${side}`,
+    spacing: 5,
+    material: { effectiveMass: 0.067 },
+    grid: { nx: side, ny: side },
+    shape: { kind: 'rectangle', x0: 0, y0: 0, width: 5 * side, height: 5 * side },
+    // weak disorder breaks the rectangle's degeneracies, as in a real dot
+    potential: [{ kind: 'disorder', strength: 0.5, seed: 11 }],
+    leads: [
+      { side: 'left', start: Math.round(0.2 * side), width: 10 },
+      { side: 'right', start: Math.round(0.65 * side), width: 10 },
+    ],
+  };
+}
+
+/** A window between the thresholds of channels 2 and 3 of the 10-site leads, scaled so it holds a similar number of poles at every size. */
+function benchWindow(t: number, sites: number) {
+  const width = 0.027 * t * (10_000 / sites);
+  return { emin: 0.4 * t, emax: 0.4 * t + width, gammaMax: 2e-3 * t };
+}
+
+function searchOnce(side: number) {
+  const op = new EffectiveHamiltonian(buildCavitySystem(benchCavity(side)));
+  const window = benchWindow(op.hopping, op.n);
+  const t0 = performance.now();
+  const r = findPoles(op, window);
+  return { sites: op.n, seconds: (performance.now() - t0) / 1000, poles: r.poles.length, certified: r.certificate.certified, factorisations: r.stats.factorisations, window };
+}
+
+console.log(`Poleward bench on ${cpus().length} × ${cpus()[0]?.model ?? 'cpu'}, load average ${loadavg().map((x) => x.toFixed(1)).join(' ')}`);
+console.log('Targets (half of a SciPy/SuperLU reference on this kind of machine): LU 1.75 / 17–30 / 140 ms at 2,500 / 10,000 / 40,000 sites;');
+console.log('1,000-energy sweep at 10,000 sites 23–35 s; certified pole search at 10,000 sites 8.5–11 s.');
+
+if (only.includes('lu')) print('sparse LU of z − H_eff (one thread)', await benchLu());
+if (only.includes('transmission')) print('transmission sweep at 10,000 sites (one thread)', await benchTransmission());
+if (only.includes('poles')) {
+  const one = searchOnce(100);
+  print('certified pole search at 10,000 sites, one thread', {
+    sites: one.sites,
+    window: `[${one.window.emin.toFixed(3)}, ${one.window.emax.toFixed(3)}] meV, Γ ≤ ${one.window.gammaMax.toFixed(4)} meV`,
+    poles: one.poles,
+    certified: one.certified ? 'yes' : 'NO',
+    factorisations: one.factorisations,
+    seconds: one.seconds,
+  });
+  const t0 = performance.now();
+  const op = new EffectiveHamiltonian(buildCavitySystem(benchCavity(100)));
+  const two = await runPartitioned({ kind: 'pole-search', document: benchCavity(100), window: benchWindow(op.hopping, op.n), spectrumPoints: 0 }, 2, () => {});
+  print('certified pole search at 10,000 sites, two worker threads (window split in two)', {
+    poles: two.poles.length,
+    certified: two.certificate?.certified ? 'yes' : 'NO',
+    seconds: (performance.now() - t0) / 1000,
+  });
+}
+if (only.includes('scaling')) {
+  const rows = [50, 71, 100].map((side) => searchOnce(side));
+  // Least-squares slope of log(seconds) against log(sites).
+  const xs = rows.map((r) => Math.log(r.sites));
+  const ys = rows.map((r) => Math.log(r.seconds));
+  const mx = xs.reduce((a, b) => a + b) / xs.length;
+  const my = ys.reduce((a, b) => a + b) / ys.length;
+  const slope = xs.reduce((s, x, k) => s + (x - mx) * (ys[k] - my), 0) / xs.reduce((s, x) => s + (x - mx) ** 2, 0);
+  const figures: Record<string, number | string> = {};
+  for (const r of rows) figures[`${r.sites} sites`] = `${r.seconds.toFixed(2)} s, ${r.poles} poles, ${r.certified ? 'certified' : 'NOT certified'}`;
+  figures['fitted exponent (time ∝ sites^p)'] = slope;
+  print('pole-search time against site count (windows scaled to hold similar pole counts)', figures);
+}
+if (only.includes('catalogue')) print('catalogue search with 100,000 resonances, 20 concurrent clients', await benchCatalogue());
