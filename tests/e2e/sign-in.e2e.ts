@@ -32,6 +32,8 @@ describe('sign-in and dashboard in a real browser', () => {
     await signIn(page, baseUrl, 'dev.designer@harrow-lake.example');
     await page.waitForURL(/\/g\/harrow-lake/, { timeout: 15_000 });
     await expect.poll(() => page.getByText('Harrow Lake Mesoscopics Lab').first().isVisible(), { timeout: 10_000 }).toBe(true);
+    // The members panel has loaded (the admin of the demo lab is listed).
+    await expect.poll(() => page.getByText('Ada Marlow').first().isVisible(), { timeout: 10_000 }).toBe(true);
     await page.evaluate(() => document.fonts.ready);
     const iconFont = await page.evaluate(() => [...document.fonts].some((f) => /material symbols/i.test(f.family) && f.status === 'loaded'));
     expect(iconFont).toBe(true);
