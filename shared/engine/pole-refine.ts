@@ -62,8 +62,7 @@ export function refinePole(s: RefineSetting, z0Re: number, z0Im: number, start: 
   for (; steps < s.maxSteps; steps++) {
     if (!(zRe > s.stripLo && zRe < s.stripHi) || !Number.isFinite(zIm)) return null;
     const z = { re: zRe, im: zIm };
-    op.assemble(z, s.sheet, values);
-    const f = s.plan.factor(values);
+    const f = factorNear(op, s.plan, zRe, zIm, s.sheet, values);
     s.onFactor();
     if (x === null) {
       x = f.solve(start, 1, new Float64Array(2 * n));
@@ -110,6 +109,29 @@ export function refinePole(s: RefineSetting, z0Re: number, z0Im: number, start: 
     if (!normalise(left)) return null;
   }
   return { zRe, zIm, right: x, left, residual, steps };
+}
+
+/**
+ * Assembles T(z) into `values` and factorises it. A point exactly on a pole makes T
+ * exactly singular (SingularMatrixError); it is then moved by 1e-13·t along Re z,
+ * far below any tolerance and too little to change a count or a moment.
+ */
+export function factorNear(
+  op: NonlinearOperator,
+  plan: PoleFactorPlan,
+  zRe: number,
+  zIm: number,
+  sheet: SheetFlags,
+  values: Float64Array,
+): PoleFactors {
+  for (let k = 0; ; k++) {
+    op.assemble({ re: zRe + k * 1e-13 * op.hopping, im: zIm }, sheet, values);
+    try {
+      return plan.factor(values);
+    } catch (e) {
+      if (k >= 2 || !(e instanceof Error) || e.name !== 'SingularMatrixError') throw e;
+    }
+  }
 }
 
 /**

@@ -32,7 +32,7 @@ import {
   type Panel,
   type PanelRef,
 } from './contour';
-import { normalise, refinePole, type RefinedPole, type RefineSetting } from './pole-refine';
+import { factorNear, normalise, refinePole, type RefinedPole, type RefineSetting } from './pole-refine';
 import type {
   CertificatePiece,
   Pole,
@@ -101,8 +101,7 @@ export function findPoles(op: NonlinearOperator, window: PoleWindow, options: Po
   const values = new Float64Array(2 * nnz);
   const solved = new Float64Array(2 * op.n * probes);
   const evaluateNode = (zRe: number, zIm: number, sheet: SheetFlags): ContourNode => {
-    op.assemble({ re: zRe, im: zIm }, sheet, values);
-    const f = plan.factor(values);
+    const f = factorNear(op, plan, zRe, zIm, sheet, values);
     onFactor();
     nodeFactorisations++;
     const { logAbs, arg } = f.logDet();
@@ -150,7 +149,11 @@ export function findPoles(op: NonlinearOperator, window: PoleWindow, options: Po
   const done: Piece[] = [];
   const totalWidth = pieces.reduce((acc, p) => acc + (p.contour.x1 - p.contour.x0), 0);
   let widthDone = 0;
-  const report = (stage: string, fraction: number): void => options.onProgress?.(stage, Math.min(1, Math.max(0, fraction)));
+  let reported = 0;
+  const report = (stage: string, fraction: number): void => {
+    reported = Math.min(1, Math.max(reported, fraction)); // never step back, even when a piece is cut
+    options.onProgress?.(stage, reported);
+  };
 
   const queue = pieces.slice();
   while (queue.length) {
@@ -253,7 +256,11 @@ export function findPoles(op: NonlinearOperator, window: PoleWindow, options: Po
     const k = done.findIndex((p) => p.strip === f.strip && inside(p.contour, f.zRe, f.zIm));
     if (k < 0) continue; // outside every contour (below the window or in a threshold gap)
     certPieces[k].polesFound++;
-    if (f.zIm > boundTolerance) continue; // counted, but not a pole of a physical resonance
+    if (f.zIm > boundTolerance) {
+      // det T has no zeros above the real axis on a correct continuation: say so rather than list it
+      certPieces[k].note = `a zero of det T above the real axis at ${f.zRe} + ${f.zIm}i (operator fault?)`;
+      continue;
+    }
     poles.push(describePole(op, f, k, boundTolerance));
   }
   for (const c of certPieces) c.certified = c.windingNumber !== null && c.windingNumber === c.polesFound;
