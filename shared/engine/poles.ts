@@ -115,8 +115,9 @@ export function findPoles(op: NonlinearOperator, window: PoleWindow, options: Po
   const pieces: Piece[] = [];
   const skipped: string[] = [];
   // Panels of about 1.5·Γmax: narrow poles lie Γmax/2 from the top edge, and the deflated
-  // phase check adds nodes only where a pole sits closer (tuned on the bench, see docs).
-  const horizontalPanel = Math.max(1.5 * gammaMax, (emax - emin) / 8);
+  // phase check adds nodes only where a pole sits closer (tuned on the bench, see docs)
+  // (at most a quarter of the node budget goes to the first bottom and top edges)
+  const horizontalPanel = Math.max(1.5 * gammaMax, (emax - emin) / Math.max(1, Math.floor(maxNodes / (8 * PANEL_ORDER))));
   for (let s = 0; s + 1 < bounds.length; s++) {
     const a = bounds[s];
     const b = bounds[s + 1];
