@@ -330,7 +330,13 @@ export function validateCavityModel(doc: unknown): ModelValidation {
     for (let p = 0; p < i.length; p++) {
       const s = i[p] * ny + j[p];
       if (!mask[s]) {
-        issues.push({ path: ['leads', k], message: `mouth site (${i[p]}, ${j[p]}) of ${leadLabel(lead, k)} is outside the cavity` });
+        // Say what to do: a rounded cavity rarely reaches the grid edge across a whole lead width.
+        issues.push({
+          path: ['leads', k, 'start'],
+          message:
+            `mouth site (${i[p]}, ${j[p]}) of ${leadLabel(lead, k)} is outside the cavity; ` +
+            `move the lead, or extend the cavity to the ${lead.side} edge over these ${lead.width} sites (e.g. a union with a rectangular lead stub)`,
+        });
         return;
       }
       if (owner[s] >= 0) {

@@ -46,10 +46,12 @@ describe('model document', () => {
     const doc = base();
     doc.shape = { kind: 'subtract', from: doc.shape, remove: [{ kind: 'rectangle', x0: 0, y0: 20, width: 10, height: 5 }] };
     const [issue] = issuesOf(doc);
-    expect(formatIssuePath(issue.path)).toBe('leads[0]');
+    // Named on the lead's first mouth site, so the editor shows it next to that field.
+    expect(formatIssuePath(issue.path)).toBe('leads[0].start');
     expect(issue.message).toContain("lead 'source'");
     expect(issue.message).toContain('(0, 4)');
     expect(issue.message).toContain('outside the cavity');
+    expect(issue.message).toMatch(/extend the cavity to the left edge/);
   });
 
   it('reports overlapping leads on the same edge and at a corner', () => {
