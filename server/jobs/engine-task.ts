@@ -35,6 +35,15 @@ export interface EngineTaskResult {
   stats: Record<string, number | boolean>;
 }
 
+/**
+ * Most energies an adaptive sweep may use: a transmission run is the spectrum
+ * the user asked for and may refine to 4× its grid; the spectrum beside a pole
+ * search is a preview (the poles are the result) and may refine to 2×.
+ */
+export function spectrumBudget(kind: EngineTask['kind'], points: number): number {
+  return Math.max(points, Math.min((kind === 'transmission' ? 4 : 2) * points, 4000));
+}
+
 /** Builds the operator from the model document and computes the run. Throws InvalidModelError for a bad model. */
 export function runEngineTask(task: EngineTask, control: WorkControl = {}): EngineTaskResult {
   const started = performance.now();
@@ -80,7 +89,7 @@ export function runEngineTask(task: EngineTask, control: WorkControl = {}): Engi
   if (points === 0) return result({ energies: [], pairs, transmission: pairs.map(() => []), residual: [] });
   const sweep = transmissionSweep(
     op,
-    { emin, emax, points, refine: { maxPoints: Math.max(points, Math.min(4 * points, 4000)) } },
+    { emin, emax, points, refine: { maxPoints: spectrumBudget(task.kind, points) } },
     { ...control, onProgress: (stage, f) => control.onProgress?.(stage, base + spectrumShare * f) },
   );
   const spectrum: EngineSpectrum = {

@@ -194,7 +194,9 @@ export const runEstimateSchema = z
     sites: z.number().int(),
     pieces: z.number().int(),
     thresholdsInWindow: z.array(z.number()),
+    expectedLevels: z.number().int().describe("closed-cavity levels in the window by Weyl's law"),
     factorisations: z.number().int(),
+    secondsPerFactorisation: z.number().describe('one LU and probe solve, timed on the server'),
     expectedSeconds: z.number(),
     warnings: z.array(z.string()),
   })
