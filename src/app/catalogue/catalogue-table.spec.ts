@@ -4,6 +4,7 @@ import { TestBed } from '@angular/core/testing';
 import { provideRouter, Router } from '@angular/router';
 import { RouterTestingHarness } from '@angular/router/testing';
 import { provideFakeCurrentGroup } from '../models/fake-current-group';
+import type { ResonanceRow } from './catalogue-api';
 import { CatalogueTable } from './catalogue-table';
 
 const wait = (ms: number) => new Promise((r) => setTimeout(r, ms));
@@ -21,6 +22,16 @@ function setUp() {
 }
 
 const emptyPage = { items: [], total: 0, page: 1, pageSize: 25 };
+
+/** One catalogue row as the API lists it; only the fields a test changes vary. */
+function row(id: string, material: string): ResonanceRow {
+  return {
+    id, runId: 'r1', modelId: 'm1', modelName: 'Dot A', modelVersion: 1, family: 'disk', keyDimensions: { radius: 120 },
+    material, fieldT: 0.4, energy: 2.5, width: 0.01, lifetimePs: 65.8, quality: 250, partialWidths: [], petermann: 1.01,
+    residual: 1e-12, bound: false, nearThreshold: false, overlapping: false, tags: [], notes: '', createdAt: '2025-01-01T10:00:00Z',
+    thumbnailUrl: '/t.png', imageUrl: '/i.png',
+  };
+}
 
 describe('CatalogueTable', () => {
   it('sends the filter in the URL to the API as query parameters', async () => {
@@ -90,5 +101,19 @@ describe('CatalogueTable', () => {
     harness.detectChanges();
     expect(host.textContent).toContain('E from is not a number.');
     http.expectNone((r) => r.url === '/api/groups/g1/catalogue');
+  });
+
+  it('names the material by its preset label in the geometry column', async () => {
+    const http = setUp();
+    const harness = await RouterTestingHarness.create();
+    await harness.navigateByUrl('/catalogue');
+    await wait(0);
+    http.expectOne((r) => r.url === '/api/groups/g1/catalogue').flush({ ...emptyPage, items: [row('a', 'gaas'), row('b', 'custom')], total: 2 });
+    harness.detectChanges();
+    const subs = Array.from((harness.routeNativeElement as HTMLElement).querySelectorAll('[data-test="geometry-sub"]')).map((e) => e.textContent ?? '');
+    expect(subs).toHaveLength(2);
+    expect(subs[0]).toContain('GaAs (2DEG)');
+    expect(subs[0]).not.toMatch(/\bgaas\b/);
+    expect(subs[1]).toContain('custom m*');
   });
 });

@@ -29,6 +29,7 @@ import {
   viewToQuery,
 } from './catalogue-filter';
 import { EnergyPipe, LifetimePipe, QualityPipe, WidthPipe } from './energy-format';
+import { MaterialLabelPipe } from './material-label';
 
 type FilterControls = { [K in keyof Omit<CatalogueFilter, 'tags'>]: FormControl<string> } & { tags: FormControl<string> };
 
@@ -58,6 +59,7 @@ type FilterControls = { [K in keyof Omit<CatalogueFilter, 'tags'>]: FormControl<
     WidthPipe,
     LifetimePipe,
     QualityPipe,
+    MaterialLabelPipe,
   ],
   templateUrl: './catalogue-table.html',
   styleUrl: './catalogue-table.scss',

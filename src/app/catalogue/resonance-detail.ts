@@ -18,6 +18,7 @@ import type { PlanePole } from '../runs/pole-plane-options';
 import { windowText } from '../runs/run-labels';
 import { type ResonanceDetail as ResonanceData, CatalogueApi } from './catalogue-api';
 import { formatEnergy, formatLifetime, formatQuality, formatWidth, significant } from './energy-format';
+import { materialLabel } from './material-label';
 import { PartialWidths } from './partial-widths';
 import { PhaseLegend } from './phase-legend';
 
@@ -55,6 +56,7 @@ export class ResonanceDetail {
   protected readonly group = inject(CurrentGroup);
   protected readonly canDesign = injectCanDesign();
   protected readonly windowText = windowText;
+  protected readonly materialLabel = materialLabel;
 
   protected readonly resonance = signal<ResonanceData | null>(null);
   protected readonly loadError = signal<string | null>(null);

@@ -14,6 +14,7 @@ import { catchError, combineLatest, debounceTime, distinctUntilChanged, of, star
 import { CurrentGroup } from '../core/group/current-group';
 import { toProblem } from '../core/errors/problem';
 import { formatLength } from '../catalogue/energy-format';
+import { MaterialLabelPipe } from '../catalogue/material-label';
 import { injectCanDesign } from './design-permission';
 import { type ModelSummary, ModelsApi } from './models-api';
 
@@ -34,6 +35,7 @@ export const modelFamilies = ['rectangle', 'disk', 'ellipse', 'stadium', 'annulu
     MatProgressBarModule,
     MatSelectModule,
     MatTableModule,
+    MaterialLabelPipe,
   ],
   template: `
     <header class="page-head">
@@ -76,7 +78,7 @@ export const modelFamilies = ['rectangle', 'disk', 'ellipse', 'stadium', 'annulu
       </ng-container>
       <ng-container matColumnDef="material">
         <th mat-header-cell *matHeaderCellDef>Material</th>
-        <td mat-cell *matCellDef="let m">{{ m.material }}</td>
+        <td mat-cell *matCellDef="let m">{{ m.material | materialLabel }}</td>
       </ng-container>
       <ng-container matColumnDef="lattice">
         <th mat-header-cell *matHeaderCellDef>Lattice</th>
