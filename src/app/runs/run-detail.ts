@@ -16,6 +16,7 @@ import { certificateInWords } from './certificate-words';
 import { PolePlaneChart } from './pole-plane-chart';
 import { kindLabel, statusLabel, windowText } from './run-labels';
 import { type RunDetail as RunDetailData, RunsApi, finishedStatuses } from './runs-api';
+import { stageInWords } from './stage-words';
 import { TransmissionChart } from './transmission-chart';
 
 /**
@@ -66,6 +67,10 @@ export class RunDetail {
     return !!r && !finishedStatuses.has(r.status);
   });
   protected readonly percent = computed(() => Math.round(Math.min(1, Math.max(0, this.run()?.progress?.fraction ?? 0)) * 100));
+  protected readonly stage = computed(() => {
+    const r = this.run();
+    return r ? stageInWords(r.progress?.stage, r.status) : '';
+  });
   protected readonly certificate = computed(() => certificateInWords(this.run()?.certificate ?? null));
   protected readonly uncertified = computed(() => this.run()?.certificate?.pieces.filter((p) => !p.certified) ?? []);
   protected readonly poles = computed(() => this.run()?.poles ?? []);

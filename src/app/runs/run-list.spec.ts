@@ -3,94 +3,127 @@ import { HttpTestingController, provideHttpClientTesting } from '@angular/common
 import { TestBed } from '@angular/core/testing';
 import { provideRouter } from '@angular/router';
 import { provideFakeCurrentGroup } from '../models/fake-current-group';
+import { FakeEventSource } from '../testing/fake-event-source';
+import { sampleRun } from '../testing/sample-run';
 import { RunList } from './run-list';
-import { type Run, RunsApi } from './runs-api';
+import { type Run, RunsApi, pollPeriodMs } from './runs-api';
 
-/** A stand-in for the browser's EventSource (jsdom has none) that the test drives by hand. */
-class FakeEventSource extends EventTarget {
-  static last: FakeEventSource | null = null;
-  closed = false;
-  constructor(readonly url: string) {
-    super();
-    FakeEventSource.last = this;
-  }
-  emit(type: string, data?: unknown): void {
-    this.dispatchEvent(new MessageEvent(type, { data: data === undefined ? '' : JSON.stringify(data) }));
-  }
-  close(): void {
-    this.closed = true;
-  }
+const listUrl = '/api/groups/g1/runs';
+const done: Run = { ...sampleRun, id: 'r2', status: 'completed', progress: null, resonanceCount: 4 };
+
+/** The run list on fake timers, so the 2 s polling period can be stepped through. */
+function setUp() {
+  vi.useFakeTimers();
+  FakeEventSource.made = [];
+  TestBed.configureTestingModule({
+    providers: [provideHttpClient(), provideHttpClientTesting(), provideRouter([]), provideFakeCurrentGroup('designer')],
+  });
+  TestBed.inject(RunsApi).eventSourceFactory = (url) => new FakeEventSource(url) as unknown as EventSource;
+  const http = TestBed.inject(HttpTestingController);
+  const fixture = TestBed.createComponent(RunList);
+  fixture.detectChanges();
+  return { http, fixture, host: fixture.nativeElement as HTMLElement };
 }
 
-const running: Run = {
-  id: 'r1',
-  kind: 'pole-search',
-  status: 'running',
-  progress: { stage: 'contour', fraction: 0.1 },
-  window: { emin: 1, emax: 5, gammaMax: 0.5 },
-  modelId: 'm1',
-  modelName: 'Dot A',
-  modelVersion: 2,
-  createdBy: { id: 'u1', name: 'Ada' },
-  createdAt: '2025-01-01T10:00:00Z',
-  startedAt: '2025-01-01T10:00:01Z',
-  finishedAt: null,
-  attempts: 1,
-  error: null,
-  engineVersion: '0.1.0',
-  resonanceCount: null,
-  certificate: null,
-};
-
 describe('RunList', () => {
-  it('moves the progress bar with the run events and settles when the run ends', async () => {
-    TestBed.configureTestingModule({
-      providers: [provideHttpClient(), provideHttpClientTesting(), provideRouter([]), provideFakeCurrentGroup('designer')],
-    });
-    TestBed.inject(RunsApi).eventSourceFactory = (url) => new FakeEventSource(url) as unknown as EventSource;
-    const http = TestBed.inject(HttpTestingController);
-    const fixture = TestBed.createComponent(RunList);
-    fixture.detectChanges();
-    await fixture.whenStable();
-    await new Promise((r) => setTimeout(r, 0));
+  afterEach(() => vi.useRealTimers());
 
-    http.expectOne((r) => r.url === '/api/groups/g1/runs').flush({ items: [running], total: 1 });
+  it('polls GET /runs every 2 s while a run is unfinished and stops when none is', async () => {
+    const { http, fixture, host } = setUp();
+    await vi.advanceTimersByTimeAsync(0);
+    http.expectOne((r) => r.url === listUrl).flush({ items: [sampleRun, done], total: 2 });
     fixture.detectChanges();
-    const host = fixture.nativeElement as HTMLElement;
     const bar = () => host.querySelector('[data-run="r1"] mat-progress-bar');
     expect(bar()!.getAttribute('aria-valuenow')).toBe('10');
-    expect(FakeEventSource.last!.url).toBe('/api/groups/g1/runs/r1/events');
+    expect(host.querySelector('[data-run="r1"] .stage')!.textContent).toContain('searching the contour');
+    // No event stream per run: with many runs in flight they would use up the browser's connections.
+    expect(FakeEventSource.made).toHaveLength(0);
 
-    FakeEventSource.last!.emit('progress', { status: 'running', progress: { stage: 'Newton refinement', fraction: 0.6 } });
+    await vi.advanceTimersByTimeAsync(pollPeriodMs - 10);
+    http.expectNone((r) => r.url === listUrl);
+    await vi.advanceTimersByTimeAsync(10);
+    http.expectOne((r) => r.url === listUrl).flush({ items: [{ ...sampleRun, progress: { stage: 'refine', fraction: 0.6 } }, done], total: 2 });
     fixture.detectChanges();
     expect(bar()!.getAttribute('aria-valuenow')).toBe('60');
-    expect(host.querySelector('[data-run="r1"] .stage')!.textContent).toContain('Newton refinement');
+    expect(host.querySelector('[data-run="r1"] .stage')!.textContent).toContain('refining poles');
 
-    FakeEventSource.last!.emit('done');
-    expect(FakeEventSource.last!.closed).toBe(true);
-    await new Promise((r) => setTimeout(r, 0));
-    const finished = { ...running, status: 'completed', progress: null, resonanceCount: 3 };
-    // One GET ends the live stream with the exact final status, a second refreshes the row.
-    http.expectOne('/api/groups/g1/runs/r1').flush({ ...finished, thresholds: [], poles: [], spectrum: null });
-    await new Promise((r) => setTimeout(r, 0));
-    http.expectOne('/api/groups/g1/runs/r1').flush({ ...finished, thresholds: [], poles: [], spectrum: null });
+    await vi.advanceTimersByTimeAsync(pollPeriodMs);
+    http.expectOne((r) => r.url === listUrl).flush({ items: [{ ...sampleRun, status: 'completed', progress: null, resonanceCount: 3 }, done], total: 2 });
     fixture.detectChanges();
     expect(bar()).toBeNull();
     expect(host.querySelector('[data-run="r1"]')!.textContent).toContain('3 resonance(s)');
+
+    // Every listed run has finished: no more requests.
+    await vi.advanceTimersByTimeAsync(5 * pollPeriodMs);
+    http.expectNone((r) => r.url === listUrl);
+    expect(FakeEventSource.made).toHaveLength(0);
     http.verify();
   });
 
+  it('does not poll a page of finished runs at all', async () => {
+    const { http } = setUp();
+    await vi.advanceTimersByTimeAsync(0);
+    http.expectOne((r) => r.url === listUrl).flush({ items: [done], total: 1 });
+    await vi.advanceTimersByTimeAsync(3 * pollPeriodMs);
+    http.verify();
+  });
+
+  it('keeps polling through a failed poll while runs were still working', async () => {
+    const { http, fixture, host } = setUp();
+    await vi.advanceTimersByTimeAsync(0);
+    http.expectOne((r) => r.url === listUrl).flush({ items: [sampleRun], total: 1 });
+    await vi.advanceTimersByTimeAsync(pollPeriodMs);
+    http.expectOne((r) => r.url === listUrl).flush({ message: 'gateway timeout' }, { status: 504, statusText: 'Gateway Timeout' });
+    fixture.detectChanges();
+    expect(host.querySelector('.issue')).not.toBeNull();
+    await vi.advanceTimersByTimeAsync(pollPeriodMs);
+    http.expectOne((r) => r.url === listUrl).flush({ items: [{ ...sampleRun, progress: { stage: 'refine', fraction: 0.5 } }], total: 1 });
+    fixture.detectChanges();
+    expect(host.querySelector('.issue')).toBeNull();
+    expect(host.querySelector('[data-run="r1"] mat-progress-bar')!.getAttribute('aria-valuenow')).toBe('50');
+  });
+
+  it('stops polling when the page is left', async () => {
+    const { http, fixture } = setUp();
+    await vi.advanceTimersByTimeAsync(0);
+    http.expectOne((r) => r.url === listUrl).flush({ items: [sampleRun], total: 1 });
+    fixture.destroy();
+    await vi.advanceTimersByTimeAsync(3 * pollPeriodMs);
+    http.verify();
+  });
+});
+
+describe('RunsApi.updates', () => {
   it('falls back to polling when the event stream fails', async () => {
     TestBed.configureTestingModule({ providers: [provideHttpClient(), provideHttpClientTesting()] });
     const api = TestBed.inject(RunsApi);
     api.eventSourceFactory = (url) => new FakeEventSource(url) as unknown as EventSource;
     const http = TestBed.inject(HttpTestingController);
     const seen: number[] = [];
-    api.updates('g1', 'r1').subscribe((u) => seen.push(u.progress?.fraction ?? -1));
+    const sub = api.updates('g1', 'r1').subscribe((u) => seen.push(u.progress?.fraction ?? -1));
     FakeEventSource.last!.emit('error');
     await new Promise((r) => setTimeout(r, 0));
-    http.expectOne('/api/groups/g1/runs/r1').flush({ ...running, progress: { stage: 'contour', fraction: 0.4 } });
+    http.expectOne('/api/groups/g1/runs/r1').flush({ ...sampleRun, progress: { stage: 'contour', fraction: 0.4 } });
     expect(seen).toEqual([0.4]);
     expect(FakeEventSource.last!.closed).toBe(true);
+    // The 2 s poll would otherwise outlive this spec and fire into a destroyed injector (NG0205).
+    sub.unsubscribe();
+  });
+
+  it('ends its polling when the root injector is destroyed', async () => {
+    vi.useFakeTimers();
+    TestBed.configureTestingModule({ providers: [provideHttpClient(), provideHttpClientTesting()] });
+    const api = TestBed.inject(RunsApi);
+    api.eventSourceFactory = null;
+    const http = TestBed.inject(HttpTestingController);
+    let completed = false;
+    api.updates('g1', 'r1').subscribe({ complete: () => (completed = true) });
+    await vi.advanceTimersByTimeAsync(0);
+    http.expectOne('/api/groups/g1/runs/r1').flush(sampleRun);
+    TestBed.resetTestingModule();
+    expect(completed).toBe(true);
+    // No poll fires into the destroyed injector (it would throw NG0205 as an unhandled error).
+    await vi.advanceTimersByTimeAsync(3 * pollPeriodMs);
+    vi.useRealTimers();
   });
 });

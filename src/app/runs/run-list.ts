@@ -9,18 +9,24 @@ import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatSelectModule } from '@angular/material/select';
 import { MatTooltipModule } from '@angular/material/tooltip';
 import { RouterLink } from '@angular/router';
-import { type Subscription, catchError, combineLatest, debounceTime, of, switchMap } from 'rxjs';
+import { EMPTY, type Observable, catchError, combineLatest, debounceTime, expand, of, switchMap, timer } from 'rxjs';
 import { Auth } from '../core/auth/auth';
 import { ErrorReport } from '../core/errors/error-report';
 import { toProblem } from '../core/errors/problem';
 import { CurrentGroup } from '../core/group/current-group';
 import { injectCanDesign } from '../models/design-permission';
 import { kindLabel, statusLabel, windowText } from './run-labels';
-import { type Run, type RunKind, type RunStatus, RunsApi, finishedStatuses } from './runs-api';
+import { type Run, type RunKind, type RunListQuery, type RunStatus, RunsApi, finishedStatuses, pollPeriodMs } from './runs-api';
+import { stageInWords } from './stage-words';
+
+type RunPage = { items: Run[]; total: number };
 
 /**
- * The group's runs, newest first, with a live progress bar on every queued or
- * running one (event stream per run, polling when the stream is unavailable).
+ * The group's runs, newest first, with a progress bar on every queued or running
+ * one. The list refreshes itself by polling GET /runs every 2 s while any listed
+ * run is unfinished, and stops once none is: one request for the whole page,
+ * where an event stream per run would use up the browser's ~6 connections per
+ * host and stall every other request of the app. Only the run page streams.
  */
 @Component({
   selector: 'pw-run-list',
@@ -63,8 +69,9 @@ export class RunList {
   protected readonly loading = signal(false);
   protected readonly error = signal<string | null>(null);
 
-  private readonly live = new Map<string, Subscription>();
-  private readonly query = computed(() => ({
+  /** Bumped to fetch the page again at once (after a cancel). */
+  private readonly refresh = signal(0);
+  private readonly query = computed<RunListQuery>(() => ({
     status: this.status() || undefined,
     kind: this.kind() || undefined,
     modelId: this.modelId() || undefined,
@@ -73,19 +80,16 @@ export class RunList {
   }));
 
   constructor() {
-    combineLatest([toObservable(this.query), toObservable(this.group.id)])
+    combineLatest([toObservable(this.query), toObservable(this.group.id), toObservable(this.refresh)])
       .pipe(
         debounceTime(0),
+        // A new query, group or refresh drops the old polling loop (switchMap).
         switchMap(([query, groupId]) => {
           if (!groupId) return of(null);
           this.loading.set(true);
-          return this.api.list(groupId, query).pipe(
-            catchError((err: unknown) => {
-              this.error.set(toProblem(err).message);
-              return of(null);
-            }),
-          );
+          return this.polled(groupId, query);
         }),
+        // Ends the polling loop with the page: no request after the component is gone.
         takeUntilDestroyed(),
       )
       .subscribe((answer) => {
@@ -94,9 +98,7 @@ export class RunList {
         this.error.set(null);
         this.runs.set(answer.items);
         this.total.set(answer.total);
-        this.followActive();
       });
-    this.destroyRef.onDestroy(() => this.live.forEach((s) => s.unsubscribe()));
   }
 
   protected setStatus(value: RunStatus | ''): void {
@@ -118,6 +120,10 @@ export class RunList {
     return Math.round(Math.min(1, Math.max(0, run.progress?.fraction ?? 0)) * 100);
   }
 
+  protected stage(run: Run): string {
+    return stageInWords(run.progress?.stage, run.status);
+  }
+
   protected isActive(run: Run): boolean {
     return !finishedStatuses.has(run.status);
   }
@@ -134,35 +140,27 @@ export class RunList {
     this.api
       .cancel(groupId, run.id)
       .pipe(takeUntilDestroyed(this.destroyRef))
-      .subscribe({ error: (err: unknown) => this.errors.show(err) });
+      .subscribe({ next: () => this.refresh.update((n) => n + 1), error: (err: unknown) => this.errors.show(err) });
   }
 
-  /** One live subscription per unfinished run on the page; finished ones are refetched once. */
-  private followActive(): void {
-    const groupId = this.group.id();
-    if (!groupId) return;
-    const onPage = new Set(this.runs().map((r) => r.id));
-    for (const [id, sub] of this.live) {
-      if (!onPage.has(id)) {
-        sub.unsubscribe();
-        this.live.delete(id);
-      }
-    }
-    for (const run of this.runs()) {
-      if (!this.isActive(run) || this.live.has(run.id)) continue;
-      const sub = this.api.updates(groupId, run.id).subscribe({
-        next: (u) => this.patch(run.id, { status: u.status, progress: u.progress }),
-        complete: () => {
-          this.live.delete(run.id);
-          this.api.run(groupId, run.id).subscribe({ next: (full) => this.patch(run.id, full), error: () => undefined });
-        },
-        error: () => this.live.delete(run.id),
-      });
-      this.live.set(run.id, sub);
-    }
-  }
-
-  private patch(id: string, change: Partial<Run>): void {
-    this.runs.update((list) => list.map((r) => (r.id === id ? { ...r, ...change } : r)));
+  /**
+   * The page now, then again every pollPeriodMs while a listed run is unfinished.
+   * A failed poll shows its error and keeps polling if the runs last seen were
+   * still working (a network blip should not freeze the bars); null stands for it.
+   */
+  private polled(groupId: string, query: RunListQuery): Observable<RunPage | null> {
+    const fetch = (): Observable<RunPage | null> =>
+      this.api.list(groupId, query).pipe(
+        catchError((err: unknown) => {
+          this.error.set(toProblem(err).message);
+          return of(null);
+        }),
+      );
+    return fetch().pipe(
+      expand((answer) => {
+        const items = answer ? answer.items : this.runs();
+        return items.some((r) => this.isActive(r)) ? timer(pollPeriodMs).pipe(switchMap(fetch)) : EMPTY;
+      }),
+    );
   }
 }

@@ -1,5 +1,6 @@
 import { HttpClient, HttpParams } from '@angular/common/http';
-import { Injectable, inject } from '@angular/core';
+import { DestroyRef, Injectable, inject } from '@angular/core';
+import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
 import { Observable, map, of, switchMap, takeWhile, timer } from 'rxjs';
 import type { ResonanceRow } from '../catalogue/catalogue-api';
 
@@ -108,7 +109,7 @@ export interface RunUpdate {
 
 export const finishedStatuses: ReadonlySet<RunStatus> = new Set(['completed', 'failed', 'cancelled']);
 
-/** Polling period of the fallback when the event stream is unavailable (the contract says 2 s). */
+/** Polling period of the run list, and of the run page when its event stream is unavailable (the contract says 2 s). */
 export const pollPeriodMs = 2000;
 
 /** Creates an EventSource; a seam so specs can hand in a fake one (jsdom has none). */
@@ -118,6 +119,8 @@ export type EventSourceFactory = (url: string) => EventSource;
 @Injectable({ providedIn: 'root' })
 export class RunsApi {
   private readonly http = inject(HttpClient);
+  /** The app's (or a spec's) root injector: live updates end with it, so no poll fires into a destroyed injector. */
+  private readonly destroyRef = inject(DestroyRef);
   /** Replaced in specs; null when the browser has no EventSource, which means polling. */
   eventSourceFactory: EventSourceFactory | null =
     typeof EventSource === 'function' ? (url) => new EventSource(url, { withCredentials: true }) : null;
@@ -147,7 +150,8 @@ export class RunsApi {
   }
 
   /**
-   * Live status of one run: the server's event stream while it lasts, then polling
+   * Live status of one run, for the run page only (the run list polls GET /runs
+   * instead, one request for all its runs): the server's event stream while it lasts, then polling
    * GET /runs/:id every 2 s if the stream fails (proxy, old browser). Completes once
    * the run has finished, after emitting the final status.
    */
@@ -159,11 +163,12 @@ export class RunsApi {
         takeWhile((u) => !finishedStatuses.has(u.status), true),
       );
     const factory = this.eventSourceFactory;
-    if (!factory) return poll();
+    if (!factory) return poll().pipe(takeUntilDestroyed(this.destroyRef));
     const url = `${base(groupId)}/runs/${encodeURIComponent(runId)}/events`;
     return this.stream(factory, url).pipe(
       switchMap((event) => (event === 'poll' ? poll() : of(event))),
       takeWhile((u) => !finishedStatuses.has(u.status), true),
+      takeUntilDestroyed(this.destroyRef),
     );
   }
 

@@ -1,0 +1,59 @@
+import { provideHttpClient } from '@angular/common/http';
+import { HttpTestingController, provideHttpClientTesting } from '@angular/common/http/testing';
+import { TestBed } from '@angular/core/testing';
+import { provideRouter } from '@angular/router';
+import { provideEchartsCore } from 'ngx-echarts';
+import { provideFakeCurrentGroup } from '../models/fake-current-group';
+import { FakeEventSource } from '../testing/fake-event-source';
+import { sampleRun } from '../testing/sample-run';
+import { settle } from '../testing/next-request';
+import { RunDetail } from './run-detail';
+import { RunsApi } from './runs-api';
+
+const detail = { ...sampleRun, thresholds: [], poles: [], spectrum: null };
+
+describe('RunDetail', () => {
+  it('follows its run on the event stream, in plain words, and loads the result when it ends', async () => {
+    FakeEventSource.made = [];
+    TestBed.configureTestingModule({
+      providers: [
+        provideHttpClient(),
+        provideHttpClientTesting(),
+        provideRouter([]),
+        provideFakeCurrentGroup('viewer'),
+        provideEchartsCore({ echarts: () => import('./echarts') }),
+      ],
+    });
+    TestBed.inject(RunsApi).eventSourceFactory = (url) => new FakeEventSource(url) as unknown as EventSource;
+    const http = TestBed.inject(HttpTestingController);
+    const fixture = TestBed.createComponent(RunDetail);
+    fixture.componentRef.setInput('runId', 'r1');
+    fixture.detectChanges();
+    await settle();
+    http.expectOne('/api/groups/g1/runs/r1').flush(detail);
+    fixture.detectChanges();
+    const host = fixture.nativeElement as HTMLElement;
+    const stage = () => host.querySelector('[data-test="stage"]')?.textContent ?? '';
+    expect(stage()).toContain('searching the contour · 10 %');
+    expect(FakeEventSource.made.map((s) => s.url)).toEqual(['/api/groups/g1/runs/r1/events']);
+
+    FakeEventSource.last!.emit('progress', { status: 'running', progress: { stage: 'transmission', fraction: 0.9 } });
+    fixture.detectChanges();
+    expect(stage()).toContain('transmission spectrum · 90 %');
+
+    FakeEventSource.last!.emit('done');
+    expect(FakeEventSource.last!.closed).toBe(true);
+    await settle();
+    const finished = { ...detail, status: 'completed', progress: null, resonanceCount: 0 };
+    // One GET gives the exact final status, then the page loads the full result.
+    http.expectOne('/api/groups/g1/runs/r1').flush(finished);
+    await settle();
+    http.expectOne('/api/groups/g1/runs/r1').flush(finished);
+    fixture.detectChanges();
+    expect(host.querySelector('[data-test="stage"]')).toBeNull();
+    expect(host.textContent).toContain('Completed');
+    // A viewer gets no cancel button.
+    expect(host.querySelector('[data-test="cancel"]')).toBeNull();
+    http.verify();
+  });
+});
