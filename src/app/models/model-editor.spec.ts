@@ -4,12 +4,27 @@ import { TestBed } from '@angular/core/testing';
 import { provideRouter } from '@angular/router';
 import { provideFakeCurrentGroup } from './fake-current-group';
 import { ModelEditor } from './model-editor';
+import { starterModel } from './model-form';
+import type { ModelDetail } from './models-api';
 
-function setUp(role: 'designer' | 'viewer') {
+/** A saved model as GET /models/:id answers, built on the editor's own starting document. */
+const saved: ModelDetail = {
+  id: 'm1', name: 'Dot A', family: 'rectangle', latestVersion: 2, material: 'gaas', spacingNm: 5, fieldT: 0, siteCount: 2400,
+  leadCount: 2, keyDimensions: { width: 300, height: 200 }, updatedAt: '2025-01-01T10:00:00Z', createdBy: { id: 'u1', name: 'Ada' },
+  document: { ...starterModel, name: 'Dot A' },
+  versions: [{ version: 2, createdAt: '2025-01-01T10:00:00Z', createdBy: { id: 'u1', name: 'Ada' }, usedByRuns: 1 }],
+  derived: {
+    siteCount: 2400, hopping: 22.75, massRatio: 0.067, energyCeiling: 11.4, wavelengthCeiling: 8.9, fluxPerPlaquette: 0,
+    cyclotronEnergy: 0, magneticLength: Infinity, leads: [],
+  },
+};
+
+function setUp(role: 'designer' | 'viewer' | 'reviewer', modelId?: string) {
   TestBed.configureTestingModule({
     providers: [provideHttpClient(), provideHttpClientTesting(), provideRouter([]), provideFakeCurrentGroup(role)],
   });
   const fixture = TestBed.createComponent(ModelEditor);
+  if (modelId) fixture.componentRef.setInput('modelId', modelId);
   fixture.detectChanges();
   return { fixture, http: TestBed.inject(HttpTestingController), host: fixture.nativeElement as HTMLElement };
 }
@@ -75,5 +90,35 @@ describe('ModelEditor', () => {
     expect(host.querySelector('[data-test="save"]')).toBeNull();
     expect(host.textContent).not.toContain('Add a lead');
     http.match(() => true);
+  });
+
+  for (const role of ['viewer', 'reviewer'] as const) {
+    it(`shows a ${role} a saved model with no save, launch, upload or lead controls, and no live check`, async () => {
+      const { fixture, http, host } = setUp(role, 'm1');
+      http.expectOne('/api/groups/g1/models/m1').flush(saved);
+      fixture.detectChanges();
+      await fixture.whenStable();
+      expect(host.textContent).toContain('Dot A · version 2');
+      expect(host.querySelector<HTMLInputElement>('[data-field="name"]')!.disabled).toBe(true);
+      expect(host.querySelector('[data-test="save"]')).toBeNull();
+      expect(host.querySelector('input[type="file"]')).toBeNull();
+      const words = Array.from(host.querySelectorAll('button, a')).map((e) => `${e.textContent} ${e.getAttribute('aria-label') ?? ''}`);
+      expect(words.filter((w) => /save|launch|add a lead|remove lead|outline/i.test(w))).toEqual([]);
+      // The form is read-only, so the editor does not ask the server to check it.
+      await new Promise((r) => setTimeout(r, 500));
+      http.expectNone((r) => r.url.endsWith('/models/validate'));
+      http.verify();
+    });
+  }
+
+  it('gives a designer the same saved model with its controls', async () => {
+    const { fixture, http, host } = setUp('designer', 'm1');
+    http.expectOne('/api/groups/g1/models/m1').flush(saved);
+    fixture.detectChanges();
+    await fixture.whenStable();
+    expect(host.querySelector('[data-test="save"]')).not.toBeNull();
+    expect(host.textContent).toContain('Launch a run');
+    expect(host.querySelector('input[type="file"]')).not.toBeNull();
+    http.match((r) => r.url.endsWith('/models/validate'));
   });
 });

@@ -277,7 +277,8 @@ export class ModelEditor {
     const local = validateCavityModel(document);
     const all: PlacedIssue[] = [...issues, ...(local.ok ? [] : local.issues.map((i) => ({ path: dottedPath(i.path), message: i.message })))];
     this.showIssues(all);
-    if (!issues.length) this.serverCheck.next(document);
+    // Viewers and reviewers cannot change the form; the loaded model already carries its figures.
+    if (!issues.length && this.canDesign()) this.serverCheck.next(document);
   }
 
   private showIssues(issues: readonly PlacedIssue[]): void {
