@@ -36,7 +36,15 @@
  * unless pivoting exchanged rows or delayed columns).
  */
 import { assertCscPattern } from './complex-csc';
-import { factorFront } from './dense-complex';
+import {
+  factorFront,
+  lowerSolveFront,
+  lowerSolveFrontPair,
+  lowerTransposeSolveFront,
+  upperSolveFront,
+  upperSolveFrontPair,
+  upperTransposeSolveFront,
+} from './dense-complex';
 import { invertPermutation, nestedDissectionOrder, symmetricAdjacency, type Adjacency } from './ordering';
 
 export interface LuPlanOptions {
@@ -96,7 +104,15 @@ export class SparseLuPlan {
   private readonly asmCol: Int32Array;
   private readonly stackPeak: number;
   // Scratch shared by factorisations (factor() is synchronous, so one at a time).
-  private front: Float64Array;
+  private frontA: Float64Array;
+  private frontB: Float64Array;
+  private readonly cbDim: Int32Array;
+  private readonly cbStart: Float64Array;
+  private readonly cbLd: Int32Array;
+  private readonly delayOut: Int32Array;
+  private readonly delayStart: Int32Array;
+  /** Work arrays of the solves, shared by every factorisation of this plan (solves are synchronous too). */
+  private readonly scratch = new SolveScratch();
   private cbStack: Float64Array;
   private delayStack: Int32Array;
   private readonly map: Int32Array;
@@ -128,7 +144,14 @@ export class SparseLuPlan {
     this.frontCount = s.first.length - 1;
     this.largestFront = s.maxFront;
     const mx = Math.max(1, s.maxFront);
-    this.front = new Float64Array(2 * mx * mx);
+    this.frontA = new Float64Array(2 * mx * mx);
+    this.frontB = new Float64Array(2 * mx * mx);
+    const ns = this.frontCount;
+    this.cbDim = new Int32Array(ns);
+    this.cbStart = new Float64Array(ns);
+    this.cbLd = new Int32Array(ns);
+    this.delayOut = new Int32Array(ns);
+    this.delayStart = new Int32Array(ns);
     this.cbStack = new Float64Array(2 * Math.max(1, s.stackPeak));
     this.delayStack = new Int32Array(64);
     this.map = new Int32Array(Math.max(1, n));
@@ -173,9 +196,17 @@ export class SparseLuPlan {
    * Numeric factorisation of the matrix with the analysed pattern and these CSC
    * values (interleaved re, im, length 2·nnz). The result owns its storage, so
    * several factorisations of one plan can be alive at once.
+   *
+   * reuse: a factorisation of this plan that the caller no longer needs; its
+   * storage is taken over (no fresh 16·factorNonzeros bytes to allocate and fault
+   * in) and it is released: its solve, solveTranspose, logDet and pivotRatio
+   * throw from then on. Results are the same with and without reuse.
    * Cost: about factorFlops real flops, 16·factorNonzeros bytes.
+   * @throws RangeError for values of the wrong length or with a non-finite entry,
+   *   Error for a reuse from another plan or already released
+   * @throws SingularMatrixError when a pivot column is exactly zero
    */
-  factor(values: Float64Array): SparseLuFactors {
+  factor(values: Float64Array, reuse?: SparseLuFactors): SparseLuFactors {
     const nnz = this.nnz;
     if (values.length !== 2 * nnz) {
       throw new RangeError(`SparseLuPlan.factor: values has length ${values.length}, expected 2·nnz = ${2 * nnz}`);
@@ -187,24 +218,36 @@ export class SparseLuPlan {
     }
     const ns = this.frontCount;
     const { first, parent, childPtr, childList, nonfsPtr, nonfs, relMap, asmPtr, asmEntry, asmRow, asmCol, map } = this;
-    const valOff = new Float64Array(ns + 1);
-    const idxOff = new Int32Array(ns + 1);
-    const frontDim = new Int32Array(ns);
-    const pivots = new Int32Array(ns);
-    // Delayed pivots enlarge fronts beyond the prediction; the plan remembers the largest
-    // storage any factorisation needed so later ones allocate once instead of growing.
-    let store = new Float64Array(Math.max(this.storeHint, 2 * this.factorNonzeros));
-    let index = new Int32Array(Math.max(this.indexHint, 2 * (this.nonfs.length + this.n)));
-    // Per supernode: size of its contribution block, how many of its rows/columns are delayed.
-    const cbDim = new Int32Array(ns);
-    const cbStart = new Float64Array(ns);
-    const delayOut = new Int32Array(ns);
-    const delayStart = new Int32Array(ns);
+    let valOff: Float64Array;
+    let idxOff: Int32Array;
+    let frontDim: Int32Array;
+    let pivots: Int32Array;
+    let store: Float64Array;
+    let index: Int32Array;
+    if (reuse) {
+      const taken = reuse.takeStorage(this.scratch);
+      ({ valOff, idxOff, frontDim, pivots, store, index } = taken);
+    } else {
+      valOff = new Float64Array(ns + 1);
+      idxOff = new Int32Array(ns + 1);
+      frontDim = new Int32Array(ns);
+      pivots = new Int32Array(ns);
+      // Delayed pivots enlarge fronts beyond the prediction; the plan remembers the largest
+      // storage any factorisation needed so later ones allocate once instead of growing.
+      store = new Float64Array(Math.max(this.storeHint, 2 * this.factorNonzeros));
+      index = new Int32Array(Math.max(this.indexHint, 2 * (this.nonfs.length + this.n)));
+    }
+    // Per supernode: its contribution block (where it starts, its column stride), how many of its rows/columns are delayed.
+    const { cbDim, cbStart, cbLd, delayOut, delayStart } = this;
     let cbTop = 0;
     let delayTop = 0;
     let delayed = 0;
     let valTop = 0;
     let idxTop = 0;
+    // The front just finished, when its parent is the next front: its Schur complement
+    // is extend-added straight from there instead of going through the stack.
+    let prevFront: Float64Array = this.frontB;
+    let prevDirect = -1;
 
     for (let s = 0; s < ns; s++) {
       const f0 = first[s];
@@ -217,9 +260,14 @@ export class SparseLuPlan {
       const nfLen = nonfsPtr[s + 1] - nf0;
       const m = k + d + nfLen;
       const kFs = k + d;
-      if (this.front.length < 2 * m * m) this.front = new Float64Array(2 * m * m);
+      // Two front buffers in turn, so the previous front's Schur complement stays readable.
+      let F = prevFront === this.frontA ? this.frontB : this.frontA;
+      if (F.length < 2 * m * m) {
+        F = new Float64Array(2 * m * m);
+        if (prevFront === this.frontA) this.frontB = F;
+        else this.frontA = F;
+      }
       if (this.rowList.length < m) this.growLists(m);
-      const F = this.front;
       const rowList = this.rowList;
       const colList = this.colList;
       F.fill(0, 0, 2 * m * m);
@@ -242,9 +290,11 @@ export class SparseLuPlan {
         F[o] += values[2 * e];
         F[o + 1] += values[2 * e + 1];
       }
-      // Extend-add of the children's contribution blocks (they sit on top of the stack, in order).
+      // Extend-add of the children's contribution blocks (on top of the stack, in order,
+      // except the last child's when it is still in the other front buffer).
       let off = 0;
-      const firstChildStart = c1 > c0 ? cbStart[childList[c0]] : cbTop;
+      // (a block read in place was never pushed, so it does not move the stack top)
+      const firstChildStart = c1 > c0 && childList[c0] !== prevDirect ? cbStart[childList[c0]] : cbTop;
       const firstDelayStart = c1 > c0 ? delayStart[childList[c0]] : delayTop;
       for (let t = c0; t < c1; t++) {
         const c = childList[t];
@@ -262,16 +312,17 @@ export class SparseLuPlan {
           map[q] = rel < k ? rel : rel + d;
         }
         off += dc;
-        const cb = this.cbStack;
+        const cb = c === prevDirect ? prevFront : this.cbStack;
+        const ld = cbLd[c];
         let src = cbStart[c];
         for (let jj = 0; jj < mc; jj++) {
           const dst = 2 * map[jj] * m;
           for (let ii = 0; ii < mc; ii++) {
             const o = dst + 2 * map[ii];
-            F[o] += cb[src];
-            F[o + 1] += cb[src + 1];
-            src += 2;
+            F[o] += cb[src + 2 * ii];
+            F[o + 1] += cb[src + 2 * ii + 1];
           }
+          src += ld;
         }
       }
       cbTop = firstChildStart;
@@ -287,18 +338,23 @@ export class SparseLuPlan {
       // Keep L (m×done) and U12 (done×(m−done)) of this front.
       const need = valTop + 2 * done * (2 * m - done);
       if (need > store.length) store = growFloat(store, need);
-      // The L panel is contiguous in F; U12 is strided (plain loops: no subarray views per column).
+      // The L panel is contiguous in F (one native copy); U12 is strided.
       const lLen = 2 * done * m;
-      for (let q = 0; q < lLen; q++) store[valTop + q] = F[q];
+      store.set(F.subarray(0, lLen), valTop);
       let u = valTop + lLen;
+      const uLen = 2 * done;
       for (let c = done; c < m; c++) {
         const src = 2 * c * m;
-        for (let q = 0; q < 2 * done; q++) store[u + q] = F[src + q];
-        u += 2 * done;
+        for (let q = 0; q < uLen; q++) store[u + q] = F[src + q];
+        u += uLen;
       }
       if (idxTop + 2 * m > index.length) index = growInt(index, idxTop + 2 * m);
-      index.set(rowList.subarray(0, m), idxTop);
-      index.set(colList.subarray(0, m), idxTop + m);
+      // Original unknowns (not labels), so solves need no permuted copy of b.
+      const perm = this.perm;
+      for (let q = 0; q < m; q++) {
+        index[idxTop + q] = perm[rowList[q]];
+        index[idxTop + m + q] = perm[colList[q]];
+      }
       valOff[s] = valTop;
       idxOff[s] = idxTop;
       frontDim[s] = m;
@@ -306,13 +362,21 @@ export class SparseLuPlan {
       valTop = need;
       idxTop += 2 * m;
 
-      // Push the Schur complement and the delayed rows/columns for the parent.
+      // The Schur complement and the delayed rows/columns for the parent.
       const mc = m - done;
       cbDim[s] = mc;
-      cbStart[s] = cbTop;
       delayOut[s] = kFs - done;
       delayStart[s] = delayTop;
-      if (mc > 0) {
+      prevFront = F;
+      prevDirect = -1;
+      if (mc > 0 && parent[s] === s + 1) {
+        // Postorder puts a parent right after its last child: read this block in place.
+        cbStart[s] = 2 * (done * m + done);
+        cbLd[s] = 2 * m;
+        prevDirect = s;
+      } else if (mc > 0) {
+        cbStart[s] = cbTop;
+        cbLd[s] = 2 * mc;
         if (cbTop + 2 * mc * mc > this.cbStack.length) this.cbStack = growFloat(this.cbStack, cbTop + 2 * mc * mc);
         const cb = this.cbStack;
         let dst = cbTop;
@@ -322,13 +386,18 @@ export class SparseLuPlan {
           dst += 2 * mc;
         }
         cbTop = dst;
+      } else {
+        cbStart[s] = cbTop;
+        cbLd[s] = 0;
       }
       const dOut = kFs - done;
       delayed += dOut;
       if (dOut > 0) {
         if (delayTop + 2 * dOut > this.delayStack.length) this.delayStack = growInt(this.delayStack, delayTop + 2 * dOut);
-        this.delayStack.set(rowList.subarray(done, kFs), delayTop);
-        this.delayStack.set(colList.subarray(done, kFs), delayTop + dOut);
+        for (let q = 0; q < dOut; q++) {
+          this.delayStack[delayTop + q] = rowList[done + q];
+          this.delayStack[delayTop + dOut + q] = colList[done + q];
+        }
         delayTop += 2 * dOut;
       }
     }
@@ -336,7 +405,7 @@ export class SparseLuPlan {
     idxOff[ns] = idxTop;
     if (valTop > this.storeHint) this.storeHint = valTop;
     if (idxTop > this.indexHint) this.indexHint = idxTop;
-    return new SparseLuFactors(this.n, this.perm, store, index, valOff, idxOff, frontDim, pivots, delayed);
+    return new SparseLuFactors(this.n, store, index, valOff, idxOff, frontDim, pivots, delayed, this.scratch);
   }
 
   private growLists(m: number): void {
@@ -345,20 +414,32 @@ export class SparseLuPlan {
   }
 }
 
+/** Solve work arrays: a copy of the right-hand sides and one front's dense block. */
+class SolveScratch {
+  work = new Float64Array(0);
+  local = new Float64Array(0);
+}
+
+/** Storage a released factorisation hands to the next factor() of its plan. */
+interface FactorStorage {
+  store: Float64Array;
+  index: Int32Array;
+  valOff: Float64Array;
+  idxOff: Int32Array;
+  frontDim: Int32Array;
+  pivots: Int32Array;
+}
+
 export class SparseLuFactors {
   readonly n: number;
   /** How many times a pivot column was passed up to a parent front (0 when no pivot was rejected). */
   readonly delayedPivots: number;
-  private work: Float64Array = new Float64Array(0);
-  private work2: Float64Array = new Float64Array(0);
-  private local: Float64Array = new Float64Array(0);
-  private local2: Float64Array = new Float64Array(0);
   private readonly maxFront: number;
+  private released = false;
 
   /** @internal Built by SparseLuPlan.factor. */
   constructor(
     n: number,
-    private readonly perm: Int32Array,
     private readonly store: Float64Array,
     private readonly index: Int32Array,
     private readonly valOff: Float64Array,
@@ -366,12 +447,28 @@ export class SparseLuFactors {
     private readonly frontDim: Int32Array,
     private readonly pivots: Int32Array,
     delayedPivots: number,
+    private readonly scratch: SolveScratch,
   ) {
     this.n = n;
     this.delayedPivots = delayedPivots;
     let mx = 0;
     for (let s = 0; s < frontDim.length; s++) if (frontDim[s] > mx) mx = frontDim[s];
     this.maxFront = mx;
+  }
+
+  /** @internal Hands this factorisation's storage to SparseLuPlan.factor(values, reuse) and releases it. */
+  takeStorage(planScratch: SolveScratch): FactorStorage {
+    if (planScratch !== this.scratch) throw new Error('SparseLuPlan.factor: reuse must be a factorisation of the same plan');
+    this.assertHeld('SparseLuPlan.factor (reuse)');
+    this.released = true;
+    const { store, index, valOff, idxOff, frontDim, pivots } = this;
+    return { store, index, valOff, idxOff, frontDim, pivots };
+  }
+
+  private assertHeld(what: string): void {
+    if (this.released) {
+      throw new Error(`${what}: this factorisation was passed as reuse to a later factor() call and no longer holds its factors`);
+    }
   }
 
   /**
@@ -426,6 +523,7 @@ export class SparseLuFactors {
   }
 
   private forEachPivot(fn: (re: number, im: number, row: number, col: number) => void): void {
+    this.assertHeld('SparseLuFactors.logDet/pivotRatio');
     const { store, index, valOff, idxOff, frontDim, pivots } = this;
     for (let s = 0; s < frontDim.length; s++) {
       const m = frontDim[s];
@@ -441,91 +539,49 @@ export class SparseLuFactors {
 
   private run(b: Float64Array, nrhs: number, out: Float64Array | undefined, transpose: boolean): Float64Array {
     const n = this.n;
-    if (!Number.isInteger(nrhs) || nrhs < 1) throw new RangeError(`SparseLuFactors.solve: nrhs must be a positive integer, got ${nrhs}`);
+    const what = transpose ? 'SparseLuFactors.solveTranspose' : 'SparseLuFactors.solve';
+    this.assertHeld(what);
+    if (!Number.isInteger(nrhs) || nrhs < 1) throw new RangeError(`${what}: nrhs must be a positive integer, got ${nrhs}`);
     const len = 2 * n * nrhs;
-    if (b.length < len) throw new RangeError(`SparseLuFactors.solve: b has length ${b.length}, expected 2·n·nrhs = ${len}`);
+    if (b.length < len) throw new RangeError(`${what}: b has length ${b.length}, expected 2·n·nrhs = ${len}`);
     const x = out ?? b;
-    if (x.length < len) throw new RangeError(`SparseLuFactors.solve: out has length ${x.length}, expected 2·n·nrhs = ${len}`);
-    if (this.work.length < len) {
-      this.work = new Float64Array(len);
-      this.work2 = new Float64Array(len);
-    }
+    if (x.length < len) throw new RangeError(`${what}: out has length ${x.length}, expected 2·n·nrhs = ${len}`);
+    const sc = this.scratch;
+    if (sc.work.length < len) sc.work = new Float64Array(len);
     const ll = 2 * this.maxFront * nrhs;
-    if (this.local.length < ll) {
-      this.local = new Float64Array(ll);
-      this.local2 = new Float64Array(ll);
-    }
-    const w1 = this.work;
-    const w2 = this.work2;
-    const perm = this.perm;
-    // Gather into per-unknown layout: w1[2·(label·nrhs + r)].
-    for (let r = 0; r < nrhs; r++) {
-      const bo = 2 * n * r;
-      for (let lab = 0; lab < n; lab++) {
-        const src = bo + 2 * perm[lab];
-        const dst = 2 * (lab * nrhs + r);
-        w1[dst] = b[src];
-        w1[dst + 1] = b[src + 1];
-      }
-    }
-    if (transpose) this.transposeSweeps(w1, w2, nrhs);
-    else this.sweeps(w1, w2, nrhs);
-    for (let r = 0; r < nrhs; r++) {
-      const bo = 2 * n * r;
-      for (let lab = 0; lab < n; lab++) {
-        const dst = bo + 2 * perm[lab];
-        const src = 2 * (lab * nrhs + r);
-        x[dst] = w2[src];
-        x[dst + 1] = w2[src + 1];
-      }
-    }
+    if (sc.local.length < ll) sc.local = new Float64Array(ll);
+    // The factors' index lists hold original unknowns, so no permuted copy is made: the
+    // forward sweep works on a copy of b, the backward sweep writes x directly (each
+    // unknown once, before any front reads it), which also makes x = b safe.
+    const y = sc.work;
+    y.set(b.subarray(0, len));
+    if (transpose) this.transposeSweeps(y, x, nrhs);
+    else this.sweeps(y, x, nrhs);
     return x;
   }
 
-  /** L y = P b (y kept at row labels in y), then U w = y (w at column labels in x). */
+  /**
+   * L y = P b (y kept at row labels in y), then U w = y (w at column labels in x).
+   * Each front gathers its rows of all right-hand sides into one dense block (the
+   * r-th at offset 2·m·r), runs the dense kernels on pairs of right-hand sides (one
+   * load of the factor panel serves two), and scatters back.
+   */
   private sweeps(y: Float64Array, x: Float64Array, nrhs: number): void {
     const { store, index, valOff, idxOff, frontDim, pivots } = this;
-    const X = this.local;
-    const Z = this.local2;
+    const X = this.scratch.local;
     const ns = frontDim.length;
-    const w = 2 * nrhs;
+    const n2 = 2 * this.n;
     for (let s = 0; s < ns; s++) {
       const m = frontDim[s];
       const k = pivots[s];
       if (k === 0) continue;
       const v = valOff[s];
       const ix = idxOff[s];
-      gather(y, index, ix, m, X, w);
-      if (w === 2) {
-        // One right-hand side: the column of L and the block are both contiguous.
-        for (let t = 0; t < k; t++) {
-          const lc = v + 2 * t * m;
-          const ar = X[2 * t], ai = X[2 * t + 1];
-          if (ar === 0 && ai === 0) continue;
-          for (let i = t + 1; i < m; i++) {
-            const lr = store[lc + 2 * i], li = store[lc + 2 * i + 1];
-            X[2 * i] -= lr * ar - li * ai;
-            X[2 * i + 1] -= lr * ai + li * ar;
-          }
-        }
-        scatter(y, index, ix, m, X, w);
-        continue;
-      }
-      for (let t = 0; t < k; t++) {
-        const lc = v + 2 * t * m;
-        const xt = t * w;
-        for (let i = t + 1; i < m; i++) {
-          const lr = store[lc + 2 * i], li = store[lc + 2 * i + 1];
-          if (lr === 0 && li === 0) continue;
-          const xi = i * w;
-          for (let q = 0; q < w; q += 2) {
-            const ar = X[xt + q], ai = X[xt + q + 1];
-            X[xi + q] -= lr * ar - li * ai;
-            X[xi + q + 1] -= lr * ai + li * ar;
-          }
-        }
-      }
-      scatter(y, index, ix, m, X, w);
+      gather(y, n2, index, ix, m, X, 0, 2 * m, nrhs);
+      let r = 0;
+      for (; r + 1 < nrhs; r += 2) lowerSolveFrontPair(store, v, m, k, X, 2 * m * r, 2 * m * (r + 1));
+      if (r < nrhs) lowerSolveFront(store, v, m, k, X, 2 * m * r);
+      scatter(y, n2, index, ix, m, X, 0, 2 * m, nrhs);
     }
     for (let s = ns - 1; s >= 0; s--) {
       const m = frontDim[s];
@@ -533,116 +589,30 @@ export class SparseLuFactors {
       if (k === 0) continue;
       const v = valOff[s];
       const ix = idxOff[s];
-      gather(y, index, ix, k, X, w);
-      gather(x, index, ix + m + k, m - k, Z, w);
-      // X −= U12 · x_rest
-      let u = v + 2 * k * m;
-      if (w === 2) {
-        for (let j = 0; j < m - k; j++) {
-          const ar = Z[2 * j], ai = Z[2 * j + 1];
-          for (let i = 0; i < k; i++) {
-            const ur = store[u], ui = store[u + 1];
-            u += 2;
-            X[2 * i] -= ur * ar - ui * ai;
-            X[2 * i + 1] -= ur * ai + ui * ar;
-          }
-        }
-      }
-      for (let j = 0; w !== 2 && j < m - k; j++) {
-        const zj = j * w;
-        for (let i = 0; i < k; i++) {
-          const ur = store[u], ui = store[u + 1];
-          u += 2;
-          if (ur === 0 && ui === 0) continue;
-          const xi = i * w;
-          for (let q = 0; q < w; q += 2) {
-            const ar = Z[zj + q], ai = Z[zj + q + 1];
-            X[xi + q] -= ur * ar - ui * ai;
-            X[xi + q + 1] -= ur * ai + ui * ar;
-          }
-        }
-      }
-      // Back substitution with U11 (upper triangle of the front's first k columns).
-      for (let t = k - 1; t >= 0; t--) {
-        const uc = v + 2 * t * m;
-        const dr = store[uc + 2 * t], di = store[uc + 2 * t + 1];
-        const den = dr * dr + di * di;
-        const ir = dr / den, ii = -di / den;
-        const xt = t * w;
-        for (let q = 0; q < w; q += 2) {
-          const ar = X[xt + q], ai = X[xt + q + 1];
-          X[xt + q] = ar * ir - ai * ii;
-          X[xt + q + 1] = ar * ii + ai * ir;
-        }
-        for (let i = 0; i < t; i++) {
-          const ur = store[uc + 2 * i], ui = store[uc + 2 * i + 1];
-          if (ur === 0 && ui === 0) continue;
-          const xi = i * w;
-          for (let q = 0; q < w; q += 2) {
-            const ar = X[xt + q], ai = X[xt + q + 1];
-            X[xi + q] -= ur * ar - ui * ai;
-            X[xi + q + 1] -= ur * ai + ui * ar;
-          }
-        }
-      }
-      scatter(x, index, ix + m, k, X, w);
+      gather(y, n2, index, ix, k, X, 0, 2 * m, nrhs);
+      gather(x, n2, index, ix + m + k, m - k, X, 2 * k, 2 * m, nrhs);
+      let r = 0;
+      for (; r + 1 < nrhs; r += 2) upperSolveFrontPair(store, v, m, k, X, 2 * m * r, 2 * m * (r + 1));
+      if (r < nrhs) upperSolveFront(store, v, m, k, X, 2 * m * r);
+      scatter(x, n2, index, ix + m, k, X, 0, 2 * m, nrhs);
     }
   }
 
-  /** Uᵀ z = Qᵀ b (z at column labels in z), then Lᵀ w = z (w at row labels in x). */
+  /** Uᵀ z = Qᵀ b (z at column labels in z), then Lᵀ w = z (w at row labels in x); blocks as in sweeps(). */
   private transposeSweeps(z: Float64Array, x: Float64Array, nrhs: number): void {
     const { store, index, valOff, idxOff, frontDim, pivots } = this;
-    const X = this.local;
-    const Z = this.local2;
+    const X = this.scratch.local;
     const ns = frontDim.length;
-    const w = 2 * nrhs;
+    const n2 = 2 * this.n;
     for (let s = 0; s < ns; s++) {
       const m = frontDim[s];
       const k = pivots[s];
       if (k === 0) continue;
       const v = valOff[s];
       const ix = idxOff[s];
-      gather(z, index, ix + m, m, X, w);
-      // U11ᵀ forward: x_t = (b_t − Σ_{i<t} U[i,t] x_i) / U[t,t]
-      for (let t = 0; t < k; t++) {
-        const uc = v + 2 * t * m;
-        const xt = t * w;
-        for (let i = 0; i < t; i++) {
-          const ur = store[uc + 2 * i], ui = store[uc + 2 * i + 1];
-          if (ur === 0 && ui === 0) continue;
-          const xi = i * w;
-          for (let q = 0; q < w; q += 2) {
-            const ar = X[xi + q], ai = X[xi + q + 1];
-            X[xt + q] -= ur * ar - ui * ai;
-            X[xt + q + 1] -= ur * ai + ui * ar;
-          }
-        }
-        const dr = store[uc + 2 * t], di = store[uc + 2 * t + 1];
-        const den = dr * dr + di * di;
-        const ir = dr / den, ii = -di / den;
-        for (let q = 0; q < w; q += 2) {
-          const ar = X[xt + q], ai = X[xt + q + 1];
-          X[xt + q] = ar * ir - ai * ii;
-          X[xt + q + 1] = ar * ii + ai * ir;
-        }
-      }
-      // Rest columns: b_j −= Σ_i U12[i,j] x_i
-      let u = v + 2 * k * m;
-      for (let j = 0; j < m - k; j++) {
-        const xj = (k + j) * w;
-        for (let i = 0; i < k; i++) {
-          const ur = store[u], ui = store[u + 1];
-          u += 2;
-          if (ur === 0 && ui === 0) continue;
-          const xi = i * w;
-          for (let q = 0; q < w; q += 2) {
-            const ar = X[xi + q], ai = X[xi + q + 1];
-            X[xj + q] -= ur * ar - ui * ai;
-            X[xj + q + 1] -= ur * ai + ui * ar;
-          }
-        }
-      }
-      scatter(z, index, ix + m, m, X, w);
+      gather(z, n2, index, ix + m, m, X, 0, 2 * m, nrhs);
+      for (let r = 0; r < nrhs; r++) upperTransposeSolveFront(store, v, m, k, X, 2 * m * r);
+      scatter(z, n2, index, ix + m, m, X, 0, 2 * m, nrhs);
     }
     for (let s = ns - 1; s >= 0; s--) {
       const m = frontDim[s];
@@ -650,43 +620,40 @@ export class SparseLuFactors {
       if (k === 0) continue;
       const v = valOff[s];
       const ix = idxOff[s];
-      gather(z, index, ix + m, k, X, w);
-      gather(x, index, ix + k, m - k, Z, w);
-      for (let t = k - 1; t >= 0; t--) {
-        const lc = v + 2 * t * m;
-        const xt = t * w;
-        // x_t −= Σ_{i>t} L[i,t] x_i over the rest rows (in Z) and the later pivots of this front (in X).
-        for (let i = m - 1; i > t; i--) {
-          const lr = store[lc + 2 * i], li = store[lc + 2 * i + 1];
-          if (lr === 0 && li === 0) continue;
-          const src = i >= k ? Z : X;
-          const si = (i >= k ? i - k : i) * w;
-          for (let q = 0; q < w; q += 2) {
-            const ar = src[si + q], ai = src[si + q + 1];
-            X[xt + q] -= lr * ar - li * ai;
-            X[xt + q + 1] -= lr * ai + li * ar;
-          }
-        }
-      }
-      scatter(x, index, ix, k, X, w);
+      gather(z, n2, index, ix + m, k, X, 0, 2 * m, nrhs);
+      gather(x, n2, index, ix + k, m - k, X, 2 * k, 2 * m, nrhs);
+      for (let r = 0; r < nrhs; r++) lowerTransposeSolveFront(store, v, m, k, X, 2 * m * r);
+      scatter(x, n2, index, ix, k, X, 0, 2 * m, nrhs);
     }
   }
 }
 
-/** Copies rows index[ix..ix+count) of the per-unknown array v into the dense block X (w doubles per row). */
-function gather(v: Float64Array, index: Int32Array, ix: number, count: number, X: Float64Array, w: number): void {
-  for (let i = 0; i < count; i++) {
-    const src = index[ix + i] * w;
-    const dst = i * w;
-    for (let q = 0; q < w; q++) X[dst + q] = v[src + q];
+/**
+ * Copies unknowns index[ix..ix+count) of every right-hand side of v (the r-th
+ * at offset r·n2) into the dense block X, the r-th to X[xo + r·ld ...].
+ */
+function gather(v: Float64Array, n2: number, index: Int32Array, ix: number, count: number, X: Float64Array, xo: number, ld: number, nrhs: number): void {
+  for (let r = 0; r < nrhs; r++) {
+    const vo = r * n2;
+    const dst = xo + r * ld;
+    for (let i = 0; i < count; i++) {
+      const src = vo + 2 * index[ix + i];
+      X[dst + 2 * i] = v[src];
+      X[dst + 2 * i + 1] = v[src + 1];
+    }
   }
 }
 
-function scatter(v: Float64Array, index: Int32Array, ix: number, count: number, X: Float64Array, w: number): void {
-  for (let i = 0; i < count; i++) {
-    const dst = index[ix + i] * w;
-    const src = i * w;
-    for (let q = 0; q < w; q++) v[dst + q] = X[src + q];
+/** The inverse of gather(): X's rows back to unknowns index[ix..ix+count) of v. */
+function scatter(v: Float64Array, n2: number, index: Int32Array, ix: number, count: number, X: Float64Array, xo: number, ld: number, nrhs: number): void {
+  for (let r = 0; r < nrhs; r++) {
+    const vo = r * n2;
+    const src = xo + r * ld;
+    for (let i = 0; i < count; i++) {
+      const dst = vo + 2 * index[ix + i];
+      v[dst] = X[src + 2 * i];
+      v[dst + 1] = X[src + 2 * i + 1];
+    }
   }
 }
 

@@ -258,6 +258,110 @@ describe('sparse LU solves', () => {
   });
 });
 
+describe('sparse LU blocked solves and storage reuse', () => {
+  /** Largest |a − b| over the first len doubles. */
+  function maxDiff(a: Float64Array, b: Float64Array, len = a.length): number {
+    let d = 0;
+    for (let q = 0; q < len; q++) d = Math.max(d, Math.abs(a[q] - b[q]));
+    return d;
+  }
+
+  // Wide mouths give fronts with many pivots (the four-column blocks and their remainders);
+  // a zero diagonal adds delayed pivots, so pivot rows and columns differ.
+  const matrices: Array<[string, LatticeOptions]> = [
+    ['dense mouths', { nx: 30, ny: 22, mouth: 9, seed: 13 }],
+    ['zero diagonal', { nx: 18, ny: 14, mouth: 5, diagonal: 'zero', seed: 19 }],
+  ];
+  for (const [name, opts] of matrices) {
+    it(`pairs of right-hand sides give the one-at-a-time answers, even and odd counts: ${name}`, () => {
+      const { a, sites } = latticeMatrix(opts);
+      const plan = SparseLuPlan.analyse(a.n, a.colPtr, a.rowIdx, { sites });
+      const lu = plan.factor(a.values);
+      const n = a.n;
+      for (const nrhs of [2, 3, 8]) {
+        const B = randomVector(2 * n * nrhs, 100 + nrhs);
+        // A sparse column too (one unit entry): the kernels skip blocks of zeros.
+        B.fill(0, 0, 2 * n);
+        B[2 * (n >> 1)] = 1;
+        for (const transpose of [false, true]) {
+          const X = transpose ? lu.solveTranspose(B, nrhs, new Float64Array(B.length)) : lu.solve(B, nrhs, new Float64Array(B.length));
+          for (let r = 0; r < nrhs; r++) {
+            const col = B.slice(2 * n * r, 2 * n * (r + 1));
+            const single = transpose ? lu.solveTranspose(col.slice()) : lu.solve(col.slice());
+            const xr = X.slice(2 * n * r, 2 * n * (r + 1));
+            // Same operations in another grouping: agreement to rounding (common practice, no source).
+            expect(maxDiff(single, xr)).toBeLessThan(1e-12 * (1 + norm(single)));
+            expect(residual(a, xr, col, transpose)).toBeLessThan(1e-12);
+          }
+        }
+      }
+    });
+  }
+
+  it('with out, b is left alone; without, the answer replaces b (several right-hand sides)', () => {
+    const { a, sites } = latticeMatrix({ nx: 14, ny: 11, mouth: 4, seed: 29 });
+    const plan = SparseLuPlan.analyse(a.n, a.colPtr, a.rowIdx, { sites });
+    const lu = plan.factor(a.values);
+    const n = a.n;
+    const nrhs = 3;
+    const B = randomVector(2 * n * nrhs, 37);
+    const keep = B.slice();
+    const out = new Float64Array(B.length);
+    for (const transpose of [false, true]) {
+      const viaOut = transpose ? lu.solveTranspose(B, nrhs, out) : lu.solve(B, nrhs, out);
+      expect(viaOut).toBe(out);
+      expect(maxDiff(B, keep)).toBe(0);
+      const inPlace = B.slice();
+      const ret = transpose ? lu.solveTranspose(inPlace, nrhs) : lu.solve(inPlace, nrhs);
+      expect(ret).toBe(inPlace);
+      expect(maxDiff(inPlace, out)).toBe(0);
+    }
+    // b longer than 2·n·nrhs: only the first 2·n·nrhs doubles are read and, in place, written.
+    const long = new Float64Array(2 * n + 6);
+    long.set(keep.subarray(0, 2 * n));
+    long.fill(7, 2 * n);
+    lu.solve(long);
+    expect(residual(a, long.slice(0, 2 * n), keep.slice(0, 2 * n))).toBeLessThan(1e-12);
+    for (let q = 2 * n; q < long.length; q++) expect(long[q]).toBe(7);
+  });
+
+  it('factor(values, reuse) gives the same factors as a fresh factorisation and releases the old one', () => {
+    const one = latticeMatrix({ nx: 20, ny: 15, mouth: 5, seed: 51 });
+    // Same pattern, other values: a zero diagonal (delayed pivots, larger fronts, more storage).
+    const two = latticeMatrix({ nx: 20, ny: 15, mouth: 5, seed: 52, diagonal: 'zero' });
+    const plan = SparseLuPlan.analyse(one.a.n, one.a.colPtr, one.a.rowIdx, { sites: one.sites });
+    const n = one.a.n;
+    const b = randomVector(2 * n * 2, 9);
+    const fresh = plan.factor(two.a.values);
+    const xFresh = fresh.solve(b, 2, new Float64Array(b.length));
+    const tFresh = fresh.solveTranspose(b, 2, new Float64Array(b.length));
+    const detFresh = fresh.logDet();
+
+    const first = plan.factor(one.a.values);
+    const reused = plan.factor(two.a.values, first);
+    // Identical arithmetic on the same values: bit-for-bit equal results.
+    expect(maxDiff(reused.solve(b, 2, new Float64Array(b.length)), xFresh)).toBe(0);
+    expect(maxDiff(reused.solveTranspose(b, 2, new Float64Array(b.length)), tFresh)).toBe(0);
+    expect(reused.logDet().logAbs).toBe(detFresh.logAbs);
+    expect(reused.logDet().arg).toBe(detFresh.arg);
+    expect(reused.delayedPivots).toBe(fresh.delayedPivots);
+    expect(residual(two.a, xFresh.slice(0, 2 * n), b.slice(0, 2 * n))).toBeLessThan(1e-12);
+
+    // The released factorisation refuses to answer instead of giving stale numbers.
+    expect(() => first.solve(b.slice())).toThrow(/reuse/);
+    expect(() => first.logDet()).toThrow(/reuse/);
+    expect(() => plan.factor(one.a.values, first)).toThrow(/reuse/);
+    // Back the other way (storage grown by the delays serves the smaller case), chained.
+    const again = plan.factor(one.a.values, plan.factor(one.a.values, reused));
+    const y = again.solve(b.slice(0, 2 * n));
+    expect(residual(one.a, y, b.slice(0, 2 * n))).toBeLessThan(1e-12);
+    // A factorisation of another plan cannot lend its storage.
+    const other = SparseLuPlan.analyse(one.a.n, one.a.colPtr, one.a.rowIdx, { sites: one.sites });
+    expect(() => other.factor(one.a.values, again)).toThrow(/same plan/);
+    expect(again.solve(b.slice(0, 2 * n))).toBeInstanceOf(Float64Array);
+  });
+});
+
 describe('sparse LU log-determinant', () => {
   it('the reference dense determinant matches the Leibniz expansion of a 4×4 matrix', () => {
     // det A = Σ_σ sgn(σ) Π_i A[i, σ(i)] (definition of the determinant).
