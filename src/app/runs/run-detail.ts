@@ -74,6 +74,8 @@ export class RunDetail {
   protected readonly certificate = computed(() => certificateInWords(this.run()?.certificate ?? null));
   protected readonly uncertified = computed(() => this.run()?.certificate?.pieces.filter((p) => !p.certified) ?? []);
   protected readonly poles = computed(() => this.run()?.poles ?? []);
+  /** Lead names in lead order, as the poles' partial widths carry them (the server writes them in that order). */
+  protected readonly leadNames = computed(() => this.poles()[0]?.partialWidths.map((w) => w.lead) ?? []);
   protected readonly flagCounts = computed(() => {
     const p = this.poles();
     return {

@@ -66,7 +66,8 @@ export interface Spectrum {
   energies: number[];
   /** transmission[pair][energy], pairs[k] names the leads of row k. */
   transmission: number[][];
-  pairs: { from: string; to: string }[];
+  /** Lead indices in the model's lead order (server/jobs/engine-task.ts); a name is shown as it is. */
+  pairs: { from: number | string; to: number | string }[];
   residual: number[];
 }
 

@@ -19,6 +19,10 @@ export class TransmissionChart {
   readonly spectrum = input.required<Spectrum>();
   readonly poles = input<readonly { energy: number }[]>([]);
   readonly thresholds = input<readonly number[]>([]);
+  /** Lead names in the engine's lead order: the spectrum names its pairs by index. */
+  readonly leadNames = input<readonly string[]>([]);
 
-  protected readonly options = computed(() => transmissionOptions(this.spectrum(), this.poles(), this.thresholds(), chartColours()));
+  protected readonly options = computed(() =>
+    transmissionOptions(this.spectrum(), this.poles(), this.thresholds(), chartColours(), this.leadNames()),
+  );
 }

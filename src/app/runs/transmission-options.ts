@@ -4,14 +4,16 @@ import type { Spectrum } from './runs-api';
 
 /**
  * echarts option for the transmission spectrum T(ℓ→ℓ′)(E): one line per lead pair,
- * pole energies as dotted vertical markers (labelled with their index) and channel
- * thresholds as dashed ones, where steps in T are expected.
+ * named by the leads' names where known, pole energies as dotted vertical markers
+ * (labelled with their index where there is room) and channel thresholds as dashed
+ * ones, where steps in T are expected.
  */
 export function transmissionOptions(
   spectrum: Spectrum,
   poles: readonly { energy: number }[],
   thresholds: readonly number[],
   colours: ChartColours,
+  leadNames: readonly string[] = [],
 ): EChartsCoreOption {
   const c = colours;
   const palette = [c.primary, c.tertiary, c.secondary, c.error, c.outline];
@@ -19,10 +21,12 @@ export function transmissionOptions(
   const emax = spectrum.energies[spectrum.energies.length - 1];
   const inside = (e: number) => e >= emin && e <= emax;
   const axisText = { color: c.onSurfaceVariant };
+  const leadName = (k: number | string) => (typeof k === 'number' ? (leadNames[k] ?? `lead ${k + 1}`) : k);
+  const labelled = labelledPoles(poles.map((p) => p.energy), emin, emax);
   return {
     animation: false,
     color: palette,
-    grid: { left: 64, right: 24, top: 40, bottom: 80 },
+    grid: { left: 64, right: 24, top: 56, bottom: 80 },
     legend: { top: 4, textStyle: { color: c.onSurface } },
     tooltip: { trigger: 'axis', valueFormatter: (v: number) => (typeof v === 'number' ? v.toFixed(4) : String(v)) },
     dataZoom: [{ type: 'inside' }, { type: 'slider', height: 18, bottom: 8 }],
@@ -38,14 +42,16 @@ export function transmissionOptions(
     },
     yAxis: {
       type: 'value',
-      name: 'T',
+      name: 'transmission T',
+      nameLocation: 'middle',
+      nameGap: 40,
       min: 0,
       axisLabel: axisText,
       nameTextStyle: axisText,
       splitLine: { lineStyle: { color: c.outlineVariant } },
     },
     series: spectrum.pairs.map((pair, k) => ({
-      name: `T(${pair.from} → ${pair.to})`,
+      name: `T(${leadName(pair.from)} → ${leadName(pair.to)})`,
       type: 'line',
       showSymbol: false,
       lineStyle: { width: 1.5 },
@@ -61,7 +67,7 @@ export function transmissionOptions(
                   .filter(({ p }) => inside(p.energy))
                   .map(({ p, n }) => ({
                     xAxis: p.energy,
-                    label: { formatter: `${n + 1}`, color: c.error, fontSize: 10 },
+                    label: labelled.has(n) ? { formatter: `${n + 1}`, color: c.error, fontSize: 10 } : { show: false },
                     lineStyle: { type: 'dotted', color: c.error },
                   })),
                 ...thresholds
@@ -73,4 +79,26 @@ export function transmissionOptions(
         : {}),
     })),
   };
+}
+
+/**
+ * Which pole markers get their index as a label: one at least 1/30 of the window
+ * from the last labelled one, so dense spectra (dozens of poles) do not print their
+ * indices on top of each other; the unlabelled ones keep their dotted line.
+ */
+export function labelledPoles(energies: readonly number[], emin: number, emax: number): Set<number> {
+  const gap = (emax - emin) / 30;
+  const out = new Set<number>();
+  let last = -Infinity;
+  energies
+    .map((e, n) => ({ e, n }))
+    .filter(({ e }) => e >= emin && e <= emax)
+    .sort((a, b) => a.e - b.e)
+    .forEach(({ e, n }) => {
+      if (e - last >= gap) {
+        out.add(n);
+        last = e;
+      }
+    });
+  return out;
 }

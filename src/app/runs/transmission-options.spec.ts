@@ -1,0 +1,20 @@
+import type { ChartColours } from './chart-colours';
+import { labelledPoles, transmissionOptions } from './transmission-options';
+
+const colours = new Proxy({}, { get: () => '#000' }) as ChartColours;
+
+describe('transmission chart options', () => {
+  it('labels only pole markers with room for their index', () => {
+    // Window 0..30 meV: labels need 1 meV between them.
+    const labelled = labelledPoles([5, 5.2, 5.5, 6.1, 40, 12], 0, 30);
+    expect([...labelled].sort((a, b) => a - b)).toEqual([0, 3, 5]);
+  });
+
+  it('names the curves by lead name, falling back to a 1-based lead number', () => {
+    const spectrum = { energies: [1, 2], transmission: [[0.1, 0.2], [0.1, 0.2]], pairs: [{ from: 0, to: 1 }, { from: 1, to: 0 }], residual: [0, 0] };
+    const named = transmissionOptions(spectrum, [], [], colours, ['source', 'drain']) as { series: { name: string }[] };
+    expect(named.series.map((s) => s.name)).toEqual(['T(source → drain)', 'T(drain → source)']);
+    const bare = transmissionOptions(spectrum, [], [], colours) as { series: { name: string }[] };
+    expect(bare.series[0].name).toBe('T(lead 1 → lead 2)');
+  });
+});
