@@ -74,7 +74,8 @@ export class ResonanceDetail {
       { label: 'Lifetime τ = ħ/Γ', value: formatLifetime(r.lifetimePs) },
       { label: 'Quality Q', value: formatQuality(r.quality) },
       { label: 'Petermann K', value: significant(r.petermann, 4) },
-      { label: 'Residual', value: significant(r.residual, 2) },
+      // The engine's Newton residual ‖T(z)ψ‖/‖T(z)‖ with T(z) = z − H − Σ(z) (shared/engine/pole-refine.ts); "Residual" alone read like a fit.
+      { label: 'Relative residual ‖(z − H − Σ)ψ‖', value: significant(r.residual, 2) },
     ];
   });
   protected readonly imageUrl = computed(() => {

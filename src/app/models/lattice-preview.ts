@@ -12,7 +12,12 @@ interface LeadDrawing {
   /** The mouth: the line of cavity sites the lead attaches to. */
   mouth: { x1: number; y1: number; x2: number; y2: number };
   labelAt: { x: number; y: number };
+  /** Font size that keeps the name inside its ribbon (long names such as "source" overflowed it). */
+  labelSize: number;
 }
+
+/** Rough advance width of a glyph of the UI font, in font sizes (common practice for sans fonts, no source). */
+const GLYPH_WIDTH = 0.6;
 
 /**
  * Live drawing of a cavity model: the site mask, the leads as ribbons leaving the
@@ -41,8 +46,8 @@ interface LeadDrawing {
         <rect class="lead" [attr.x]="l.ribbon.x" [attr.y]="l.ribbon.y" [attr.width]="l.ribbon.w" [attr.height]="l.ribbon.h" />
         <line class="mouth" [attr.x1]="l.mouth.x1" [attr.y1]="l.mouth.y1" [attr.x2]="l.mouth.x2" [attr.y2]="l.mouth.y2"
           [attr.stroke-width]="stroke() * 2.5" />
-        <text class="lead-label" [attr.x]="l.labelAt.x" [attr.y]="l.labelAt.y" [attr.font-size]="fontSize()"
-          text-anchor="middle" dominant-baseline="middle">{{ l.label }}</text>
+        <text class="lead-label" [attr.x]="l.labelAt.x" [attr.y]="l.labelAt.y" [attr.font-size]="l.labelSize"
+          text-anchor="middle" dominant-baseline="middle"><title>Lead {{ l.label }}</title>{{ l.label }}</text>
       }
       <g class="scale">
         <line [attr.x1]="0" [attr.x2]="scaleBar().sites" [attr.y1]="ny() + margin() * 0.55" [attr.y2]="ny() + margin() * 0.55"
@@ -102,23 +107,26 @@ export class LatticePreview {
     const nx = this.nx();
     const ny = this.ny();
     const len = this.margin() * 0.8;
-    return this.leads().map((lead, k) => {
+    const size = this.fontSize();
+    // The name runs along the ribbon's length for side leads and across its width for top/bottom ones.
+    const fit = (label: string, room: number) => Math.max(size * 0.45, Math.min(size, (0.9 * room) / (GLYPH_WIDTH * Math.max(1, label.length))));
+    return this.leads().map((lead, k): LeadDrawing => {
       const label = lead.name?.trim() || `L${k + 1}`;
       const s = lead.start;
       const w = lead.width;
       switch (lead.side) {
         case 'left': {
           const y = ny - s - w;
-          return { label, ribbon: { x: -len, y, w: len, h: w }, mouth: { x1: 0, y1: y, x2: 0, y2: y + w }, labelAt: { x: -len / 2, y: y + w / 2 } };
+          return { label, labelSize: fit(label, len), ribbon: { x: -len, y, w: len, h: w }, mouth: { x1: 0, y1: y, x2: 0, y2: y + w }, labelAt: { x: -len / 2, y: y + w / 2 } };
         }
         case 'right': {
           const y = ny - s - w;
-          return { label, ribbon: { x: nx, y, w: len, h: w }, mouth: { x1: nx, y1: y, x2: nx, y2: y + w }, labelAt: { x: nx + len / 2, y: y + w / 2 } };
+          return { label, labelSize: fit(label, len), ribbon: { x: nx, y, w: len, h: w }, mouth: { x1: nx, y1: y, x2: nx, y2: y + w }, labelAt: { x: nx + len / 2, y: y + w / 2 } };
         }
         case 'bottom':
-          return { label, ribbon: { x: s, y: ny, w, h: len }, mouth: { x1: s, y1: ny, x2: s + w, y2: ny }, labelAt: { x: s + w / 2, y: ny + len / 2 } };
+          return { label, labelSize: fit(label, w), ribbon: { x: s, y: ny, w, h: len }, mouth: { x1: s, y1: ny, x2: s + w, y2: ny }, labelAt: { x: s + w / 2, y: ny + len / 2 } };
         case 'top':
-          return { label, ribbon: { x: s, y: -len, w, h: len }, mouth: { x1: s, y1: 0, x2: s + w, y2: 0 }, labelAt: { x: s + w / 2, y: -len / 2 } };
+          return { label, labelSize: fit(label, w), ribbon: { x: s, y: -len, w, h: len }, mouth: { x1: s, y1: 0, x2: s + w, y2: 0 }, labelAt: { x: s + w / 2, y: -len / 2 } };
       }
     });
   });

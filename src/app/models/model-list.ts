@@ -85,8 +85,8 @@ export const modelFamilies = ['rectangle', 'disk', 'ellipse', 'stadium', 'annulu
         <td mat-cell *matCellDef="let m">a = {{ m.spacingNm }} nm · {{ m.siteCount }} sites · {{ m.leadCount }} leads</td>
       </ng-container>
       <ng-container matColumnDef="field">
-        <th mat-header-cell *matHeaderCellDef>B</th>
-        <td mat-cell *matCellDef="let m">{{ m.fieldT }} T</td>
+        <th mat-header-cell *matHeaderCellDef>Field B</th>
+        <td mat-cell *matCellDef="let m" class="num">{{ m.fieldT }} T</td>
       </ng-container>
       <ng-container matColumnDef="version">
         <th mat-header-cell *matHeaderCellDef>Version</th>
@@ -105,13 +105,14 @@ export const modelFamilies = ['rectangle', 'disk', 'ellipse', 'stadium', 'annulu
     <mat-paginator [length]="total()" [pageSize]="pageSize()" [pageIndex]="page() - 1" [pageSizeOptions]="[10, 25, 50]" (page)="onPage($event)" />
   `,
   styles: `
-    :host { display: block; padding: 16px 24px; }
+    :host { display: block; }
     .page-head { display: flex; align-items: center; }
     .page-head h1 { font: var(--mat-sys-headline-small); }
     .spacer { flex: 1; }
     .filters { display: flex; gap: 12px; flex-wrap: wrap; }
     .issue { color: var(--mat-sys-error); }
     .empty { padding: 16px; }
+    .num { white-space: nowrap; }
   `,
 })
 export class ModelList {
