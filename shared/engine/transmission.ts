@@ -9,7 +9,7 @@
  * Cost per energy: one sparse LU of T(E) plus N_open solves.
  */
 import { checkCancelled, type WorkControl } from './operator';
-import { SparseLuPlan } from './sparse-lu';
+import { SparseLuPlan, type SparseLuFactors } from './sparse-lu';
 import type { EffectiveHamiltonian } from './effective-hamiltonian';
 
 /** Everything computed at one real energy. */
@@ -40,6 +40,8 @@ export interface TransmissionPoint {
 export class TransmissionSolver {
   private readonly plan: SparseLuPlan;
   private readonly values: Float64Array;
+  /** The last energy's LU, finished with: the next factorisation takes over its storage. */
+  private spare: SparseLuFactors | undefined;
 
   constructor(readonly op: EffectiveHamiltonian, plan?: SparseLuPlan) {
     this.plan = plan ?? SparseLuPlan.analyse(op.n, op.colPtr, op.rowIdx, { sites: op.sites });
@@ -49,7 +51,18 @@ export class TransmissionSolver {
   /** arg det T(z) (rad) at a complex energy, sheet chosen by Re z; one LU, no solves. */
   detPhase(z: { re: number; im: number }): number {
     this.op.assemble(z, this.op.sheetAt(z.re), this.values);
-    return this.plan.factor(this.values).logDet().arg;
+    const lu = this.factor();
+    const arg = lu.logDet().arg;
+    this.spare = lu;
+    return arg;
+  }
+
+  /** LU of the assembled values; never referenced after the caller hands it back as spare. */
+  private factor(): SparseLuFactors {
+    const spare = this.spare;
+    // Cleared first: a factorisation that throws leaves the spare released.
+    this.spare = undefined;
+    return this.plan.factor(this.values, spare);
   }
 
   /** Transmission, reflection, S matrix checks and det phase at a real energy E (meV). */
@@ -59,7 +72,7 @@ export class TransmissionSolver {
     const n = op.n;
     const sheet = op.sheetAt(energy);
     op.assemble({ re: energy, im: 0 }, sheet, this.values);
-    const lu = this.plan.factor(this.values);
+    const lu = this.factor();
     const w = op.couplingColumns(energy);
     const count = w.count;
     const leads = op.leadCount;
@@ -130,6 +143,8 @@ export class TransmissionSolver {
       unitarityResidual,
       detPhase: lu.logDet().arg,
     };
+    // Nothing returned refers to lu (x and s are plain arrays), so its storage can be reused.
+    this.spare = lu;
     if (withS) {
       point.sMatrix = s;
       point.sChannels = Array.from({ length: count }, (_, c) => ({ lead: w.lead[c], channel: w.channel[c] }));
