@@ -7,9 +7,9 @@ import { authGuard } from './auth-guard';
 import { authInterceptor } from './auth-interceptor';
 import { nextRequest } from '../../testing/next-request';
 
-@Component({ template: 'secret page' })
+@Component({ selector: 'pw-secret-stub', template: 'secret page' })
 class Secret {}
-@Component({ template: 'sign-in page' })
+@Component({ selector: 'pw-sign-in-stub', template: 'sign-in page' })
 class SignInStub {}
 
 describe('authGuard', () => {
