@@ -116,6 +116,7 @@ export class SparseLuPlan {
   private cbStack: Float64Array;
   private delayStack: Int32Array;
   private readonly map: Int32Array;
+  private readonly runs: Int32Array;
   private save: Float64Array;
   private rowList: Int32Array;
   private colList: Int32Array;
@@ -155,6 +156,7 @@ export class SparseLuPlan {
     this.cbStack = new Float64Array(2 * Math.max(1, s.stackPeak));
     this.delayStack = new Int32Array(64);
     this.map = new Int32Array(Math.max(1, n));
+    this.runs = new Int32Array(3 * Math.max(1, n));
     this.save = new Float64Array(2 * mx);
     this.rowList = new Int32Array(mx);
     this.colList = new Int32Array(mx);
@@ -314,13 +316,27 @@ export class SparseLuPlan {
         off += dc;
         const cb = c === prevDirect ? prevFront : this.cbStack;
         const ld = cbLd[c];
+        // Runs of consecutive parent positions (separators are labelled contiguously), so
+        // each column is added in a few contiguous stretches: [child offset, parent offset, length]·2.
+        const runs = this.runs;
+        let nRuns = 0;
+        for (let ii = 0; ii < mc; ) {
+          let len = 1;
+          while (ii + len < mc && map[ii + len] === map[ii] + len) len++;
+          runs[3 * nRuns] = 2 * ii;
+          runs[3 * nRuns + 1] = 2 * map[ii];
+          runs[3 * nRuns + 2] = 2 * len;
+          nRuns++;
+          ii += len;
+        }
         let src = cbStart[c];
         for (let jj = 0; jj < mc; jj++) {
           const dst = 2 * map[jj] * m;
-          for (let ii = 0; ii < mc; ii++) {
-            const o = dst + 2 * map[ii];
-            F[o] += cb[src + 2 * ii];
-            F[o + 1] += cb[src + 2 * ii + 1];
+          for (let g = 0; g < 3 * nRuns; g += 3) {
+            const a = src + runs[g];
+            const o = dst + runs[g + 1];
+            const len = runs[g + 2];
+            for (let q = 0; q < len; q++) F[o + q] += cb[a + q];
           }
           src += ld;
         }
