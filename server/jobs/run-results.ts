@@ -15,13 +15,16 @@ export const FULL_SIDE = 720;
 
 /**
  * Whether a Breit–Wigner width of pole k would mislead: another pole closer in
- * energy than the sum of the two widths (the peaks overlap), or K above
- * OVERLAP_PETERMANN.
+ * energy than the mean of the two widths, |E_k − E_j| < (Γ_k + Γ_j)/2, so the two
+ * peaks' half-width intervals overlap (the usual criterion Γ/D ≳ 1, e.g. Mahaux &
+ * Weidenmüller 1969), or a Petermann factor above OVERLAP_PETERMANN (the mode is
+ * not orthogonal to its neighbours). A narrow pole on a broad one's flank is
+ * flagged too: its transmission peak is Fano-shaped, not Breit–Wigner.
  */
 export function isOverlapping(poles: readonly Pole[], k: number): boolean {
   const p = poles[k];
   if (p.petermann > OVERLAP_PETERMANN) return true;
-  return poles.some((q, j) => j !== k && Math.abs(q.energy - p.energy) < p.width + q.width);
+  return poles.some((q, j) => j !== k && Math.abs(q.energy - p.energy) < 0.5 * (p.width + q.width));
 }
 
 export interface RunContext {

@@ -25,7 +25,7 @@ export interface ResonanceRow {
   residual: number;
   bound: boolean;
   nearThreshold: boolean;
-  /** Another pole within 2 widths, or K > 1.2: a Breit–Wigner width is not meaningful. */
+  /** Another pole closer than the mean of the two widths, or K > 1.2: a Breit–Wigner fit is not meaningful. */
   overlapping: boolean;
   tags: string[];
   notes: string;
