@@ -18,7 +18,7 @@
  */
 import { HBAR_MEV_PS } from '../units/constants';
 import { checkCancelled, type NonlinearOperator, type SheetFlags } from './operator';
-import { SparseLuPlan } from './sparse-lu';
+import { SparseLuPlan, type SparseLuFactors } from './sparse-lu';
 import { phaseSteps, settleWinding } from './argument-principle';
 import { contourEigenvalues } from './beyn';
 import {
@@ -100,13 +100,28 @@ export function findPoles(op: NonlinearOperator, window: PoleWindow, options: Po
   const nnz = op.colPtr[op.n];
   const values = new Float64Array(2 * nnz);
   const solved = new Float64Array(2 * op.n * probes);
+  // A node's LU is finished with once its log det and probe solves are done, so the next
+  // node's LU takes over its storage (a SparseLuPlan only; a spare is never used twice).
+  let spare: SparseLuFactors | undefined;
+  const sparse = plan instanceof SparseLuPlan ? plan : undefined;
+  const nodePlan: PoleFactorPlan = sparse
+    ? {
+        factor: (v) => {
+          const s = spare;
+          spare = undefined;
+          return sparse.factor(v, s);
+        },
+      }
+    : plan;
   const evaluateNode = (zRe: number, zIm: number, sheet: SheetFlags): ContourNode => {
-    const f = factorNear(op, plan, zRe, zIm, sheet, values);
+    const f = factorNear(op, nodePlan, zRe, zIm, sheet, values);
     onFactor();
     nodeFactorisations++;
     const { logAbs, arg } = f.logDet();
     f.solve(right, probes, solved);
-    return { zRe, zIm, logAbs, arg, probed: project(op.n, probes, left, solved) };
+    const probed = project(op.n, probes, left, solved);
+    if (sparse) spare = f as SparseLuFactors;
+    return { zRe, zIm, logAbs, arg, probed };
   };
 
   // The strips between thresholds, with the contour pulled back from each threshold.
