@@ -593,6 +593,9 @@ export class SparseLuFactors {
       if (k === 0) continue;
       const v = valOff[s];
       const ix = idxOff[s];
+      // Zero pivot rows change nothing below them: right-hand sides on a lead's mouth
+      // leave most of the tree untouched in this sweep.
+      if (allZero(y, n2, index, ix, k, nrhs)) continue;
       gather(y, n2, index, ix, m, X, 0, 2 * m, nrhs);
       let r = 0;
       for (; r + 1 < nrhs; r += 2) lowerSolveFrontPair(store, v, m, k, X, 2 * m * r, 2 * m * (r + 1));
@@ -626,6 +629,7 @@ export class SparseLuFactors {
       if (k === 0) continue;
       const v = valOff[s];
       const ix = idxOff[s];
+      if (allZero(z, n2, index, ix + m, k, nrhs)) continue;
       gather(z, n2, index, ix + m, m, X, 0, 2 * m, nrhs);
       for (let r = 0; r < nrhs; r++) upperTransposeSolveFront(store, v, m, k, X, 2 * m * r);
       scatter(z, n2, index, ix + m, m, X, 0, 2 * m, nrhs);
@@ -658,6 +662,18 @@ function gather(v: Float64Array, n2: number, index: Int32Array, ix: number, coun
       X[dst + 2 * i + 1] = v[src + 1];
     }
   }
+}
+
+/** True when unknowns index[ix..ix+count) are exactly zero in every right-hand side of v. */
+function allZero(v: Float64Array, n2: number, index: Int32Array, ix: number, count: number, nrhs: number): boolean {
+  for (let r = 0; r < nrhs; r++) {
+    const vo = r * n2;
+    for (let i = 0; i < count; i++) {
+      const o = vo + 2 * index[ix + i];
+      if (v[o] !== 0 || v[o + 1] !== 0) return false;
+    }
+  }
+  return true;
 }
 
 /** The inverse of gather(): X's rows back to unknowns index[ix..ix+count) of v. */
