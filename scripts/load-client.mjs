@@ -1,0 +1,21 @@
+// Runs autocannon in its own process, so the load generator does not share the
+// event loop of the server it measures. Reads its options as JSON from argv[2],
+// prints one JSON line: { rps, requests, non2xx, p50, p95, p99, duration }.
+import autocannon from 'autocannon';
+
+const opts = JSON.parse(process.argv[2]);
+const samples = [];
+let non2xx = 0;
+const instance = autocannon(opts, (err, result) => {
+  if (err) {
+    console.error(err.message);
+    process.exit(1);
+  }
+  samples.sort((a, b) => a - b);
+  const pct = (p) => samples[Math.min(samples.length - 1, Math.floor((p / 100) * samples.length))] ?? NaN;
+  console.log(JSON.stringify({ rps: result.requests.average, requests: samples.length, non2xx, p50: pct(50), p95: pct(95), p99: pct(99), duration: result.duration }));
+});
+instance.on('response', (_client, status, _bytes, ms) => {
+  samples.push(ms);
+  if (status < 200 || status >= 300) non2xx++;
+});
