@@ -14,7 +14,13 @@ export const ENGINE_VERSION = 'poleward-engine 0.1.0';
 
 export type EngineTask =
   | { kind: 'pole-search'; document: unknown; window: { emin: number; emax: number; gammaMax: number }; spectrumPoints: number }
-  | { kind: 'transmission'; document: unknown; window: { emin: number; emax: number; points: number } };
+  | {
+      kind: 'transmission';
+      document: unknown;
+      window: { emin: number; emax: number; points: number };
+      /** Most energies the refinement may use; default spectrumBudget('transmission', points). */
+      maxPoints?: number;
+    };
 
 export interface EngineSpectrum {
   energies: number[];
@@ -89,7 +95,7 @@ export function runEngineTask(task: EngineTask, control: WorkControl = {}): Engi
   if (points === 0) return result({ energies: [], pairs, transmission: pairs.map(() => []), residual: [] });
   const sweep = transmissionSweep(
     op,
-    { emin, emax, points, refine: { maxPoints: spectrumBudget(task.kind, points) } },
+    { emin, emax, points, refine: { maxPoints: (task.kind === 'transmission' ? task.maxPoints : undefined) ?? spectrumBudget(task.kind, points) } },
     { ...control, onProgress: (stage, f) => control.onProgress?.(stage, base + spectrumShare * f) },
   );
   const spectrum: EngineSpectrum = {

@@ -1,4 +1,4 @@
-import type { EngineTask, EngineTaskResult } from './engine-task.js';
+import { spectrumBudget, type EngineTask, type EngineTaskResult } from './engine-task.js';
 import { runInThread } from './thread-runner.js';
 
 /**
@@ -22,7 +22,13 @@ export async function runPartitioned(
     const b = k === threads - 1 ? emax : emin + ((emax - emin) * (k + 1)) / threads;
     parts.push({ kind: 'pole-search', document: task.document, window: { emin: a, emax: b, gammaMax }, spectrumPoints: 0 });
   }
-  parts.push({ kind: 'transmission', document: task.document, window: { emin, emax, points: task.spectrumPoints } });
+  // The spectrum part keeps the budget of a pole search's preview spectrum.
+  parts.push({
+    kind: 'transmission',
+    document: task.document,
+    window: { emin, emax, points: task.spectrumPoints },
+    maxPoints: spectrumBudget('pole-search', task.spectrumPoints),
+  });
 
   const fractions = parts.map(() => 0);
   const report = (k: number) => (stage: string, f: number) => {
