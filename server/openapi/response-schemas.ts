@@ -288,6 +288,9 @@ export const runDetailSchema = runSchema
     thresholds: z.array(z.number()),
     poles: z.array(resonanceRowSchema),
     spectrum: spectrumSchema.nullable(),
+    leads: z
+      .array(z.object({ name: z.string(), side: z.string(), width: z.number().int() }))
+      .meta({ description: "The model version's leads in engine order (spectrum pairs index into it)" }),
   })
   .meta({ id: 'RunDetail' });
 

@@ -121,11 +121,14 @@ export class RunService {
       repo.runSpectrum(this.db, groupId, runId),
     ]);
     const v = await findVersion(this.db, groupId, r.modelId, r.modelVersion);
+    const derived = v ? derivedOf(v.document) : null;
     return {
       ...toRunView(r),
       thresholds: r.run.thresholds ?? estimateThresholds(v?.document, r.run.window),
       poles: poles.map(toResonanceRow),
       spectrum,
+      // Lead names in engine order: the spectrum's pairs index into this list.
+      leads: derived?.leads.map((l) => ({ name: l.name, side: l.side, width: l.width })) ?? [],
     };
   }
 

@@ -169,3 +169,14 @@ describe('geometry family', () => {
     expect(res.body.keyDimensions.length).toBe(80);
   });
 });
+
+describe('run detail', () => {
+  it('names the leads in engine order, so the spectrum pairs can be labelled', async () => {
+    const m = await designer.post(models(lab), { document: smallRectangle('Lead names') });
+    const run = await designer.post(runsUrl(lab), { kind: 'transmission', modelId: m.body.id, window: { emin: 3, emax: 5, points: 20 } });
+    const detail = await designer.get(`${runsUrl(lab)}/${run.body.id}`);
+    expect(detail.status).toBe(200);
+    expect(detail.body.leads.map((l: { name: string }) => l.name)).toEqual(['source', 'drain']);
+    expect(detail.body.leads[0].side).toBe('left');
+  });
+});

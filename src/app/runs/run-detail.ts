@@ -74,8 +74,8 @@ export class RunDetail {
   protected readonly certificate = computed(() => certificateInWords(this.run()?.certificate ?? null));
   protected readonly uncertified = computed(() => this.run()?.certificate?.pieces.filter((p) => !p.certified) ?? []);
   protected readonly poles = computed(() => this.run()?.poles ?? []);
-  /** Lead names in lead order, as the poles' partial widths carry them (the server writes them in that order). */
-  protected readonly leadNames = computed(() => this.poles()[0]?.partialWidths.map((w) => w.lead) ?? []);
+  /** Lead names in engine order, from the run's model version (the spectrum names its pairs by index). */
+  protected readonly leadNames = computed(() => this.run()?.leads?.map((l) => l.name) ?? this.poles()[0]?.partialWidths.map((w) => w.lead) ?? []);
   protected readonly flagCounts = computed(() => {
     const p = this.poles();
     return {

@@ -75,6 +75,8 @@ export interface RunDetail extends Run {
   thresholds: number[];
   poles: ResonanceRow[];
   spectrum: Spectrum | null;
+  /** The model version's leads in engine order; the spectrum's pairs index into it. */
+  leads?: { name: string; side: string; width: number }[];
 }
 
 export interface RunEstimate {
