@@ -24,8 +24,10 @@ declare module 'vitest' {
 }
 
 export default async function setup(project: TestProject): Promise<() => Promise<void>> {
-  const server = await ensureDatabase({ databases: ['poleward_e2e'], recreate: true, fastUnsafe: true, log: () => {} });
-  const url = server.url('poleward_e2e');
+  // POLEWARD_E2E_DB lets two browser-test runs share the server (as POLEWARD_TEST_DB does for vitest).
+  const name = process.env.POLEWARD_E2E_DB ?? 'poleward_e2e';
+  const server = await ensureDatabase({ databases: [name], recreate: true, fastUnsafe: true, log: () => {} });
+  const url = server.url(name);
   await migrate(url);
   const handle = connectDb(url, 6);
   await seedDemo(handle.db, { passwordCost: 4 });
