@@ -5,6 +5,7 @@
 import { fileURLToPath } from 'node:url';
 import { eq } from 'drizzle-orm';
 import { hashPassword } from '../server/auth/password.js';
+import { ensureSiteOperator } from '../server/auth/site-operator.js';
 import type { Db } from '../server/db/client.js';
 import { memberships, researchGroups, type MembershipRole } from '../server/db/schema/groups.js';
 import { users } from '../server/db/schema/users.js';
@@ -49,6 +50,8 @@ export async function seedDemo(db: Db, opts: { passwordCost?: number } = {}): Pr
         .values({ groupId: groupIds[a.group]!, userId: row!.id, role: a.role })
         .onConflictDoNothing();
     }
+    // The demo's first admin runs the local set-up: she alone reads the mail outbox.
+    await ensureSiteOperator(tx, demoAccounts[0]!.email);
     return { groups: groupIds, users: userIds };
   });
 }

@@ -8,8 +8,17 @@ import { apiTokenRoutes } from './auth/api-token-routes.js';
 import { authRoutes } from './auth/auth-routes.js';
 import { AuthService } from './auth/auth-service.js';
 import { authenticate } from './auth/authenticate.js';
+import { accountRoutes } from './auth/account-routes.js';
 import { defaultPasswordCost } from './auth/password.js';
-import { defaultSignInLimit, type AttemptLimit } from './auth/sign-in-limit.js';
+import { threadPasswordHasher, type PasswordHasher } from './auth/password-hasher.js';
+import {
+  defaultLinkLimit,
+  defaultResetRequestLimits,
+  defaultSignInLimits,
+  type AttemptLimit,
+  type AttemptLimits,
+} from './auth/sign-in-limit.js';
+import { refusalAudit } from './audit/refusal-audit.js';
 import type { Config } from './config.js';
 import type { Db } from './db/client.js';
 import { groupRoutes } from './groups/group-routes.js';
@@ -36,12 +45,16 @@ export interface AppDeps {
   queue: RunQueue;
   /** Live run progress for server-sent events; null falls back to polling the database. */
   runEvents?: RunEvents | null;
-  /** Sign-in attempts per window (default 10 per 15 min); tests pass a small one. */
-  signInLimit?: AttemptLimit;
-  /** Password-reset requests per window, same default. */
-  resetLimit?: AttemptLimit;
+  /** Failed sign-ins per account and per IP (defaults in auth/sign-in-limit.ts); tests pass small ones. */
+  signInLimits?: AttemptLimits;
+  /** Password-reset requests per e-mail and per IP. */
+  resetRequestLimits?: AttemptLimits;
+  /** Failed uses of reset and invitation links per IP. */
+  linkLimit?: AttemptLimit;
   /** bcrypt cost for new password hashes; tests pass 4 to stay fast. */
   passwordCost?: number;
+  /** Where passwords are hashed (worker threads by default); tests count the calls. */
+  passwords?: PasswordHasher;
   log?: (msg: string, err: unknown) => void;
   /**
    * Mounts the other features' routers on the /api router (after authentication, before
@@ -68,8 +81,10 @@ export function createApp(deps: AppDeps): Express {
   const passwordCost = deps.passwordCost ?? defaultPasswordCost;
   const secureCookies = config.publicUrl.startsWith('https:');
 
-  const auth = new AuthService({ db, mailer, publicUrl: config.publicUrl, passwordCost, log });
-  const invitations = new InvitationService({ db, mailer, publicUrl: config.publicUrl, passwordCost });
+  const passwords = deps.passwords ?? threadPasswordHasher;
+  const linkLimit = deps.linkLimit ?? defaultLinkLimit;
+  const auth = new AuthService({ db, mailer, publicUrl: config.publicUrl, passwordCost, passwords, log });
+  const invitations = new InvitationService({ db, mailer, publicUrl: config.publicUrl, passwordCost, passwords });
   const groups = new GroupService(db);
 
   const app = express();
@@ -91,6 +106,12 @@ export function createApp(deps: AppDeps): Express {
   app.use(cookieParser());
 
   const api = express.Router();
+  // API answers are per user and often secret (links, tokens): no cache keeps them. Routes
+  // whose answers are public or versioned (the OpenAPI document, mode images) set their own.
+  api.use((_req, res, next) => {
+    res.setHeader('Cache-Control', 'no-store');
+    next();
+  });
   api.use(authenticate(db, config.jwtSecret));
   api.get('/health', (_req, res) => {
     res.json({ ok: true, version: config.version });
@@ -103,11 +124,14 @@ export function createApp(deps: AppDeps): Express {
       auth,
       jwtSecret: config.jwtSecret,
       secureCookies,
-      signInLimit: deps.signInLimit ?? defaultSignInLimit,
-      resetLimit: deps.resetLimit ?? defaultSignInLimit,
+      signInLimits: deps.signInLimits ?? defaultSignInLimits,
+      resetRequestLimits: deps.resetRequestLimits ?? defaultResetRequestLimits,
+      linkLimit,
+      log,
     }),
   );
-  api.use('/invitations', invitationRoutes({ db, invitations, jwtSecret: config.jwtSecret, secureCookies }));
+  api.use('/invitations', invitationRoutes({ db, invitations, jwtSecret: config.jwtSecret, secureCookies, linkLimit }));
+  api.use('/account', accountRoutes(db));
   api.use('/groups', groupRoutes({ db, groups, invitations }));
   api.use('/groups/:groupId/models', modelRoutes(new ModelService(db)));
   api.use('/groups/:groupId/runs', runRoutes(new RunService(db, deps.queue), deps.runEvents ?? null));
@@ -130,6 +154,6 @@ export function createApp(deps: AppDeps): Express {
     res.sendFile(index);
   });
 
-  app.use(errorHandler(log));
+  app.use(errorHandler(log, refusalAudit(db, log)));
   return app;
 }

@@ -13,6 +13,12 @@ const port = (fallback: number) =>
 const envSchema = z.object({
   NODE_ENV: z.enum(['development', 'production', 'test']).default('development'),
   POLEWARD_PORT: port(8640),
+  // Loopback only unless asked: the app is meant to sit behind a TLS proxy when shared.
+  POLEWARD_HOST: z
+    .string()
+    .trim()
+    .regex(/^[0-9A-Za-z.:[\]-]+$/, 'must be an IP address or host name, e.g. 127.0.0.1 or 0.0.0.0')
+    .default('127.0.0.1'),
   POLEWARD_DB_PORT: port(54329),
   DATABASE_URL: z.url({ protocol: /^postgres(ql)?$/ }).optional(),
   POLEWARD_JWT_SECRET: z.string().min(32, 'must be at least 32 characters').optional(),
@@ -27,6 +33,8 @@ const envSchema = z.object({
 export interface Config {
   nodeEnv: 'development' | 'production' | 'test';
   port: number;
+  /** Address the HTTP server binds (default 127.0.0.1: loopback only). */
+  host: string;
   dbPort: number;
   databaseUrl: string;
   jwtSecret: string;
@@ -68,6 +76,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
   return {
     nodeEnv: e.NODE_ENV,
     port: e.POLEWARD_PORT,
+    host: e.POLEWARD_HOST,
     dbPort: e.POLEWARD_DB_PORT,
     databaseUrl: e.DATABASE_URL ?? `postgres://postgres@127.0.0.1:${e.POLEWARD_DB_PORT}/poleward`,
     jwtSecret: e.POLEWARD_JWT_SECRET ?? developmentSecret(),

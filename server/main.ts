@@ -4,6 +4,8 @@ import { createServer, type Server } from 'node:http';
 import { createApp } from './app.js';
 import { ConfigError, loadConfig } from './config.js';
 import { connectDb } from './db/client.js';
+import { ensureSiteOperator } from './auth/site-operator.js';
+import { closePasswordPool } from './auth/password-hasher.js';
 import { startMailStandIn, type MailStandIn } from './mail/mail-stand-in.js';
 import { createMailer } from './mail/mailer.js';
 import { runQueue, startBoss } from './jobs/boss.js';
@@ -30,6 +32,9 @@ async function main(): Promise<void> {
 
   let standIn: MailStandIn | undefined;
   if (config.mailStandIn) {
+    // A local set-up: its first admin runs it, and is the one who may read the outbox.
+    const operator = await ensureSiteOperator(handle.db);
+    if (operator) console.log(`[poleward] site operator (reads the mail outbox): ${operator}`);
     const port = Number(new URL(config.smtpUrl).port || 25);
     try {
       standIn = await startMailStandIn({ port, db: handle.db });
@@ -49,11 +54,13 @@ async function main(): Promise<void> {
   // createServer + 'listening' rather than app.listen: Express 5 calls listen's callback on errors too.
   const server: Server = createServer(app);
   server.once('error', (err) => {
-    console.error(`[poleward] cannot listen on port ${config.port}: ${err.message}`);
+    console.error(`[poleward] cannot listen on ${config.host}:${config.port}: ${err.message}`);
     process.exit(1);
   });
-  server.listen(config.port, () => {
-    console.log(`[poleward] serving on http://127.0.0.1:${config.port} (public URL ${config.publicUrl})`);
+  // 127.0.0.1 unless POLEWARD_HOST says otherwise: a shared server sits behind a TLS proxy.
+  server.listen(config.port, config.host, () => {
+    const shown = config.host.includes(':') ? `[${config.host}]` : config.host;
+    console.log(`[poleward] serving on http://${shown}:${config.port} (public URL ${config.publicUrl})`);
   });
 
   let stopping = false;
@@ -67,6 +74,7 @@ async function main(): Promise<void> {
     await runEvents.close();
     await boss.stop({ graceful: false, wait: false }).catch(() => {});
     mailer.close();
+    await closePasswordPool();
     await handle.close();
     process.exit(0);
   };

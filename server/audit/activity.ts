@@ -1,4 +1,4 @@
-import { desc, eq } from 'drizzle-orm';
+import { and, desc, eq, not, like, type SQL } from 'drizzle-orm';
 import type { Queryable } from '../db/client.js';
 import { auditLog } from '../db/schema/audit.js';
 import { users } from '../db/schema/users.js';
@@ -12,8 +12,10 @@ export interface ActivityEntry {
   details: Record<string, unknown>;
 }
 
-/** A group's audit entries, newest first; uses the (group_id, at desc) index. */
-export async function groupActivity(q: Queryable, groupId: string, limit: number): Promise<ActivityEntry[]> {
+/** Actions of this prefix are refusals (CSRF, rate limits): shown to admins only. */
+export const securityActionPrefix = 'security.';
+
+async function activity(q: Queryable, where: SQL | undefined, limit: number): Promise<ActivityEntry[]> {
   const rows = await q
     .select({
       id: auditLog.id,
@@ -26,7 +28,7 @@ export async function groupActivity(q: Queryable, groupId: string, limit: number
     })
     .from(auditLog)
     .leftJoin(users, eq(users.id, auditLog.actorId))
-    .where(eq(auditLog.groupId, groupId))
+    .where(where)
     .orderBy(desc(auditLog.at), desc(auditLog.id))
     .limit(limit);
   return rows.map((r) => ({
@@ -37,4 +39,18 @@ export async function groupActivity(q: Queryable, groupId: string, limit: number
     subject: r.subject,
     details: r.details,
   }));
+}
+
+/**
+ * A group's audit entries, newest first; uses the (group_id, at desc) index. Security
+ * refusals in the group (CSRF, rate limits) are for its admins only.
+ */
+export function groupActivity(q: Queryable, groupId: string, limit: number, opts: { withSecurity: boolean }): Promise<ActivityEntry[]> {
+  const inGroup = eq(auditLog.groupId, groupId);
+  return activity(q, opts.withSecurity ? inGroup : and(inGroup, not(like(auditLog.action, `${securityActionPrefix}%`))), limit);
+}
+
+/** Entries about one account (sign-ins, failures, sign-outs, resets, tokens, mail read), newest first. */
+export function accountActivity(q: Queryable, userId: string, limit: number): Promise<ActivityEntry[]> {
+  return activity(q, eq(auditLog.accountId, userId), limit);
 }

@@ -38,3 +38,13 @@ export async function findActiveApiToken(q: Queryable, tokenHash: string): Promi
 export async function touchApiToken(q: Queryable, id: string): Promise<void> {
   await q.update(apiTokens).set({ lastUsedAt: sql`now()` }).where(eq(apiTokens.id, id));
 }
+
+/** Revokes every personal token of the user (password reset); returns how many. */
+export async function revokeAllApiTokens(q: Queryable, userId: string): Promise<number> {
+  const rows = await q
+    .update(apiTokens)
+    .set({ revokedAt: sql`now()` })
+    .where(and(eq(apiTokens.userId, userId), isNull(apiTokens.revokedAt)))
+    .returning({ id: apiTokens.id });
+  return rows.length;
+}

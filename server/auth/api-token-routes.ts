@@ -28,7 +28,7 @@ export function apiTokenRoutes(db: Db): Router {
     const token = newOpaqueToken(apiTokenPrefix);
     const row = await db.transaction(async (tx) => {
       const created = await insertApiToken(tx, user.id, name, hashOpaqueToken(token));
-      await writeAudit(tx, { groupId: null, actorId: user.id, action: 'api_token.created', subject: name });
+      await writeAudit(tx, { groupId: null, actorId: user.id, accountId: user.id, action: 'api_token.created', subject: name });
       return created;
     });
     res.status(201).json({ id: row.id, name: row.name, token, createdAt: row.createdAt.toISOString() });
@@ -40,7 +40,7 @@ export function apiTokenRoutes(db: Db): Router {
     await db.transaction(async (tx) => {
       const row = await revokeApiToken(tx, user.id, id);
       if (!row) throw new ApiError(404, 'not_found', 'You have no active API token with this id.');
-      await writeAudit(tx, { groupId: null, actorId: user.id, action: 'api_token.revoked', subject: row.name });
+      await writeAudit(tx, { groupId: null, actorId: user.id, accountId: user.id, action: 'api_token.revoked', subject: row.name });
     });
     res.status(204).end();
   });

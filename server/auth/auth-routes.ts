@@ -6,12 +6,11 @@ import type { AuthService } from './auth-service.js';
 import { signedInUser } from './authenticate.js';
 import { checkCsrf } from './csrf.js';
 import { emailField } from './email-field.js';
+import { openSession } from './open-session.js';
 import { newPasswordSchema } from './password.js';
 import { sessionOf } from './session.js';
-import { clearSessionCookies, csrfCookie, setSessionCookies } from './session-cookies.js';
-import { signSessionToken } from './session-token.js';
-import { attemptLimiter, type AttemptLimit } from './sign-in-limit.js';
-import { findUserById } from './user-repository.js';
+import { clearSessionCookies, csrfCookie, setCsrfCookie } from './session-cookies.js';
+import { accountAndIpLimiters, attemptLimiter, type AttemptLimit, type AttemptLimits } from './sign-in-limit.js';
 
 export const signInBody = z.object({ email: emailField, password: z.string().min(1).max(1000) });
 export const resetBody = z.object({ email: emailField });
@@ -22,22 +21,27 @@ export interface AuthRouteDeps {
   auth: AuthService;
   jwtSecret: string;
   secureCookies: boolean;
-  signInLimit: AttemptLimit;
-  resetLimit: AttemptLimit;
+  signInLimits: AttemptLimits;
+  resetRequestLimits: AttemptLimits;
+  linkLimit: AttemptLimit;
+  log: (msg: string, err: unknown) => void;
 }
 
 export function authRoutes(d: AuthRouteDeps): Router {
   const router = Router();
+  const cookieOpts = { jwtSecret: d.jwtSecret, secureCookies: d.secureCookies };
 
-  router.post('/sign-in', attemptLimiter(d.signInLimit, 'sign-in'), validate({ body: signInBody }), async (req, res) => {
+  // Failed sign-ins only are counted, per account and per IP apart.
+  router.post('/sign-in', ...accountAndIpLimiters(d.signInLimits, 'failed sign-in', true), validate({ body: signInBody }), async (req, res) => {
     const { email, password } = req.valid.body as z.infer<typeof signInBody>;
-    const user = await d.auth.signIn(email, password);
-    const csrf = setSessionCookies(res, signSessionToken(user.id, user.passwordChangedAt.getTime(), d.jwtSecret), d.secureCookies);
+    const user = await d.auth.signIn(email, password, req.ip);
+    const csrf = await openSession(d.db, req, res, user.id, cookieOpts);
     res.json(await sessionOf(d.db, user, csrf));
   });
 
-  router.post('/sign-out', (req, res) => {
+  router.post('/sign-out', async (req, res) => {
     checkCsrf(req);
+    if (req.auth?.via === 'cookie') await d.auth.signOut(req.auth.user.id, req.auth.sessionId!, req.ip);
     clearSessionCookies(res, d.secureCookies);
     res.status(204).end();
   });
@@ -46,26 +50,30 @@ export function authRoutes(d: AuthRouteDeps): Router {
     const user = signedInUser(req);
     let csrf = '';
     if (req.auth?.via === 'cookie') {
-      csrf = (req.cookies as Record<string, string | undefined>)[csrfCookie] ?? '';
-      // A lost pw_csrf cookie would make every later POST fail: issue a fresh pair.
-      if (!csrf) {
-        const row = await findUserById(d.db, user.id);
-        csrf = setSessionCookies(res, signSessionToken(user.id, row!.passwordChangedAt.getTime(), d.jwtSecret), d.secureCookies);
-      }
+      csrf = req.auth.csrfToken!;
+      // A lost or stale pw_csrf cookie would make every later POST fail: set it again.
+      if ((req.cookies as Record<string, string | undefined>)[csrfCookie] !== csrf) setCsrfCookie(res, csrf, d.secureCookies);
     }
     res.json(await sessionOf(d.db, user, csrf));
   });
 
-  router.post('/password-reset', attemptLimiter(d.resetLimit, 'password-reset'), validate({ body: resetBody }), async (req, res) => {
-    await d.auth.requestPasswordReset((req.valid.body as z.infer<typeof resetBody>).email);
+  // Answers first, then looks the e-mail up and mails: known and unknown e-mails take the same time.
+  router.post('/password-reset', ...accountAndIpLimiters(d.resetRequestLimits, 'password-reset', false), validate({ body: resetBody }), (req, res) => {
+    const { email } = req.valid.body as z.infer<typeof resetBody>;
     res.status(202).json({ message: 'If an account has this e-mail, a reset link is on its way.' });
+    d.auth.requestPasswordReset(email, req.ip).catch((err: unknown) => d.log(`[poleward] password reset for ${email} failed:`, err));
   });
 
-  router.post('/password-reset/confirm', validate({ body: confirmBody }), async (req, res) => {
-    const { token, password } = req.valid.body as z.infer<typeof confirmBody>;
-    await d.auth.confirmPasswordReset(token, password);
-    res.status(204).end();
-  });
+  router.post(
+    '/password-reset/confirm',
+    attemptLimiter({ limit: d.linkLimit, what: 'password-reset link', per: 'ip', failuresOnly: true }),
+    validate({ body: confirmBody }),
+    async (req, res) => {
+      const { token, password } = req.valid.body as z.infer<typeof confirmBody>;
+      await d.auth.confirmPasswordReset(token, password);
+      res.status(204).end();
+    },
+  );
 
   return router;
 }

@@ -2,8 +2,10 @@ import type { Request, RequestHandler } from 'express';
 import type { Db } from '../db/client.js';
 import { ApiError } from '../http/error-handler.js';
 import { findActiveApiToken, touchApiToken } from './api-token-repository.js';
+import { csrfTokenFor } from './csrf.js';
 import { apiTokenPrefix, hashOpaqueToken } from './opaque-token.js';
 import { sessionCookie } from './session-cookies.js';
+import { findLiveSession } from './session-repository.js';
 import { verifySessionToken } from './session-token.js';
 import { findUserById } from './user-repository.js';
 
@@ -11,20 +13,33 @@ export interface AuthUser {
   id: string;
   email: string;
   name: string;
+  /** Runs this installation: may read the local mail outbox. */
+  siteOperator: boolean;
 }
 
 declare module 'express-serve-static-core' {
   interface Request {
     /** Set by authenticate when the request carries a valid session cookie or personal token. */
-    auth?: { user: AuthUser; via: 'cookie' | 'token'; tokenId?: string };
+    auth?: {
+      user: AuthUser;
+      via: 'cookie' | 'token';
+      tokenId?: string;
+      /** The sessions row of a cookie request, and the CSRF value bound to it. */
+      sessionId?: string;
+      csrfToken?: string;
+    };
     /** Why a session cookie was refused, for the 401 message of a protected route. */
     authProblem?: string;
   }
 }
 
+const authUser = (u: AuthUser): AuthUser => ({ id: u.id, email: u.email, name: u.name, siteOperator: u.siteOperator });
+
 /**
  * Resolves who is calling, without refusing anyone: public routes still work with a
  * stale cookie. A Bearer header is an explicit claim, so a bad one answers 401 at once.
+ * A cookie holds only while its sessions row is neither revoked (sign-out, password
+ * reset) nor expired.
  */
 export function authenticate(db: Db, jwtSecret: string): RequestHandler {
   return async (req, _res, next) => {
@@ -38,18 +53,22 @@ export function authenticate(db: Db, jwtSecret: string): RequestHandler {
       const user = token && (await findUserById(db, token.userId));
       if (!token || !user) throw new ApiError(401, 'unauthenticated', 'The API token is unknown or has been revoked.');
       await touchApiToken(db, token.id);
-      req.auth = { user: { id: user.id, email: user.email, name: user.name }, via: 'token', tokenId: token.id };
+      req.auth = { user: authUser(user), via: 'token', tokenId: token.id };
       return next();
     }
     const jwtToken = (req.cookies as Record<string, string | undefined>)[sessionCookie];
     if (jwtToken) {
       const claims = verifySessionToken(jwtToken, jwtSecret);
-      const user = claims && (await findUserById(db, claims.userId));
-      // A session issued before the last password change is over.
-      if (!claims || !user || claims.passwordStamp !== user.passwordChangedAt.getTime()) {
-        req.authProblem = 'Your session is invalid or has expired; sign in again.';
+      const live = claims && (await findLiveSession(db, claims.sessionId, claims.userId));
+      if (!claims || !live) {
+        req.authProblem = 'Your session is invalid, has ended or has expired; sign in again.';
       } else {
-        req.auth = { user: { id: user.id, email: user.email, name: user.name }, via: 'cookie' };
+        req.auth = {
+          user: authUser(live.user),
+          via: 'cookie',
+          sessionId: live.session.id,
+          csrfToken: csrfTokenFor(live.session.id, jwtSecret),
+        };
       }
     }
     next();

@@ -1,7 +1,6 @@
-import { timingSafeEqual } from 'node:crypto';
+import { createHmac, timingSafeEqual } from 'node:crypto';
 import type { Request } from 'express';
 import { ApiError } from '../http/error-handler.js';
-import { csrfCookie } from './session-cookies.js';
 
 const safeMethods = new Set(['GET', 'HEAD', 'OPTIONS']);
 
@@ -12,15 +11,24 @@ function same(a: string, b: string): boolean {
 }
 
 /**
- * Double-submit check: a cookie-authenticated unsafe request must repeat the pw_csrf
- * cookie in X-CSRF-Token. Another site can make the browser send the cookie but cannot
- * read it. Bearer-token requests carry no ambient credential and skip the check.
+ * The CSRF value of one session: an HMAC of the session id under the server's secret.
+ * Bound to the session, so a value planted in the browser's pw_csrf cookie (by a
+ * sibling subdomain, say) or taken from another session never passes; nothing to store.
+ */
+export function csrfTokenFor(sessionId: string, secret: string): string {
+  return createHmac('sha256', secret).update(`csrf:${sessionId}`).digest('base64url');
+}
+
+/**
+ * A cookie-authenticated unsafe request must send its session's CSRF value in
+ * X-CSRF-Token (the client reads it from the pw_csrf cookie or the Session). Another
+ * site can make the browser send the cookie but cannot read it. Bearer-token requests
+ * carry no ambient credential and skip the check.
  */
 export function checkCsrf(req: Request): void {
   if (safeMethods.has(req.method) || req.auth?.via !== 'cookie') return;
-  const cookie = (req.cookies as Record<string, string | undefined>)[csrfCookie];
   const header = req.get('x-csrf-token');
-  if (!cookie || !header || !same(cookie, header)) {
-    throw new ApiError(403, 'csrf_failed', 'The X-CSRF-Token header is missing or does not match the pw_csrf cookie.');
+  if (!header || !req.auth.csrfToken || !same(req.auth.csrfToken, header)) {
+    throw new ApiError(403, 'csrf_failed', 'The X-CSRF-Token header is missing or is not the CSRF value of this session (see pw_csrf).');
   }
 }

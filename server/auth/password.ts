@@ -1,5 +1,5 @@
-import bcrypt from 'bcryptjs';
 import { z } from 'zod';
+import { threadPasswordHasher, type PasswordHasher } from './password-hasher.js';
 
 /**
  * bcrypt work factor 10 (2^10 rounds): the OWASP password-storage cheat sheet's minimum.
@@ -14,20 +14,25 @@ export const newPasswordSchema = z
   .min(8, 'must be at least 8 characters')
   .refine((p) => Buffer.byteLength(p, 'utf8') <= 72, 'must be at most 72 bytes (bcrypt ignores the rest)');
 
-export function hashPassword(password: string, cost = defaultPasswordCost): Promise<string> {
-  return bcrypt.hash(password, cost);
+/** Hashes in a worker thread (password-hasher.ts), so the caller's event loop stays free. */
+export function hashPassword(password: string, cost = defaultPasswordCost, hasher: PasswordHasher = threadPasswordHasher): Promise<string> {
+  return hasher.hash(password, cost);
 }
 
-export function verifyPassword(password: string, hash: string): Promise<boolean> {
-  return bcrypt.compare(password, hash);
+export function verifyPassword(password: string, hash: string, hasher: PasswordHasher = threadPasswordHasher): Promise<boolean> {
+  return hasher.verify(password, hash);
 }
 
 /**
  * A hash of a random password, compared against when the e-mail is unknown so a wrong
  * e-mail takes as long as a wrong password (no account enumeration by timing).
  */
-let dummyHash: Promise<string> | undefined;
-export function dummyPasswordHash(cost = defaultPasswordCost): Promise<string> {
-  dummyHash ??= bcrypt.hash(crypto.randomUUID(), cost);
-  return dummyHash;
+const dummyHashes = new Map<number, Promise<string>>();
+export function dummyPasswordHash(cost = defaultPasswordCost, hasher: PasswordHasher = threadPasswordHasher): Promise<string> {
+  let hash = dummyHashes.get(cost);
+  if (!hash) {
+    hash = hasher.hash(crypto.randomUUID(), cost);
+    dummyHashes.set(cost, hash);
+  }
+  return hash;
 }

@@ -35,7 +35,6 @@ export function groupNotFound(): ApiError {
 export function requireRole(...roles: MembershipRole[]): RequestHandler {
   return async (req, _res, next) => {
     const user = signedInUser(req);
-    checkCsrf(req);
     const groupId = req.params.groupId;
     if (typeof groupId !== 'string' || !uuidPattern.test(groupId)) throw groupNotFound();
     const db = req.app.locals.db as Db;
@@ -45,11 +44,13 @@ export function requireRole(...roles: MembershipRole[]): RequestHandler {
       .innerJoin(researchGroups, eq(researchGroups.id, memberships.groupId))
       .where(and(eq(memberships.groupId, groupId), eq(memberships.userId, user.id)));
     if (!row) throw groupNotFound();
+    // Set before the CSRF check, so a refusal is recorded in this group's activity.
+    req.membership = { groupId, ...row };
+    checkCsrf(req);
     if (roles.length > 0 && row.role !== 'admin' && !roles.includes(row.role)) {
       const wanted = roles.length === 1 ? `the ${roles[0]} role` : `one of the roles ${roles.join(', ')}`;
       throw new ApiError(403, 'forbidden', `This needs ${wanted} in this group; you are ${row.role}.`);
     }
-    req.membership = { groupId, ...row };
     next();
   };
 }

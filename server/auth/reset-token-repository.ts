@@ -6,6 +6,12 @@ export async function insertResetToken(q: Queryable, userId: string, tokenHash: 
   await q.insert(passwordResetTokens).values({ userId, tokenHash, expiresAt });
 }
 
+/** Reads the row without locking it: the cheap first check, before any password is hashed. */
+export async function findResetToken(q: Queryable, tokenHash: string) {
+  const [row] = await q.select().from(passwordResetTokens).where(eq(passwordResetTokens.tokenHash, tokenHash));
+  return row;
+}
+
 /** Locks the row so two confirmations racing with the same link cannot both succeed. */
 export async function lockResetToken(q: Queryable, tokenHash: string) {
   const [row] = await q

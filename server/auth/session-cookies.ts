@@ -1,5 +1,4 @@
 import type { CookieOptions, Response } from 'express';
-import { newOpaqueToken } from './opaque-token.js';
 import { sessionLifetimeSeconds } from './session-token.js';
 
 export const sessionCookie = 'pw_session';
@@ -9,12 +8,14 @@ function base(secure: boolean): CookieOptions {
   return { sameSite: 'lax', path: '/', secure, maxAge: sessionLifetimeSeconds * 1000 };
 }
 
-/** Sets the JWT (httpOnly) and the CSRF double-submit value (readable by the client). Returns the CSRF value. */
-export function setSessionCookies(res: Response, jwtToken: string, secure: boolean): string {
-  const csrf = newOpaqueToken();
+/** Sets the JWT (httpOnly) and the session's CSRF value (readable by the client). */
+export function setSessionCookies(res: Response, jwtToken: string, csrf: string, secure: boolean): void {
   res.cookie(sessionCookie, jwtToken, { ...base(secure), httpOnly: true });
+  setCsrfCookie(res, csrf, secure);
+}
+
+export function setCsrfCookie(res: Response, csrf: string, secure: boolean): void {
   res.cookie(csrfCookie, csrf, { ...base(secure), httpOnly: false });
-  return csrf;
 }
 
 export function clearSessionCookies(res: Response, secure: boolean): void {

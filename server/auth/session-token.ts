@@ -1,28 +1,32 @@
 import jwt from 'jsonwebtoken';
 
-/** Sessions last 12 hours; the cookie's Max-Age matches. */
+/** Sessions last 12 hours; the cookie's Max-Age and the session row's expiry match. */
 export const sessionLifetimeSeconds = 12 * 60 * 60;
 
 /**
- * The JWT carries the user id and `pwc`, the account's password_changed_at in ms:
- * a password reset moves it, which ends every session issued before (exact, unlike
- * comparing with the 1-second `iat`).
+ * The JWT carries the user id (`sub`) and the session row's id (`jti`): the row decides
+ * whether the session still holds (sign-out and password resets revoke it).
  */
-export function signSessionToken(userId: string, passwordStamp: number, secret: string, lifetimeSeconds = sessionLifetimeSeconds): string {
-  return jwt.sign({ pwc: passwordStamp }, secret, { subject: userId, expiresIn: lifetimeSeconds, algorithm: 'HS256' });
+export function signSessionToken(userId: string, sessionId: string, secret: string, lifetimeSeconds = sessionLifetimeSeconds): string {
+  return jwt.sign({}, secret, { subject: userId, jwtid: sessionId, expiresIn: lifetimeSeconds, algorithm: 'HS256' });
 }
 
 export interface SessionClaims {
   userId: string;
-  passwordStamp: number;
+  sessionId: string;
 }
 
-/** Null for a tampered, expired or malformed token; the caller answers 401. Only HS256 is accepted. */
+/**
+ * Null for a tampered, expired or malformed token; the caller answers 401. Only HS256
+ * is accepted, and a token without an expiry or a session id is refused: jsonwebtoken
+ * would accept one without `exp` for ever.
+ */
 export function verifySessionToken(token: string, secret: string): SessionClaims | null {
   try {
     const claims = jwt.verify(token, secret, { algorithms: ['HS256'] });
-    if (typeof claims === 'string' || typeof claims.sub !== 'string' || typeof claims.pwc !== 'number') return null;
-    return { userId: claims.sub, passwordStamp: claims.pwc };
+    if (typeof claims === 'string' || typeof claims.sub !== 'string' || typeof claims.jti !== 'string') return null;
+    if (typeof claims.exp !== 'number') return null;
+    return { userId: claims.sub, sessionId: claims.jti };
   } catch {
     return null;
   }

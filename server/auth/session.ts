@@ -4,12 +4,19 @@ import { groupsOfUser, type GroupOfUser } from './user-repository.js';
 
 /** What the client keeps about the signed-in person (the API contract's Session). */
 export interface Session {
-  user: AuthUser;
+  user: { id: string; email: string; name: string };
   groups: GroupOfUser[];
-  /** The pw_csrf value to echo in X-CSRF-Token; empty for personal-token callers, who need none. */
+  /** The session's CSRF value to echo in X-CSRF-Token; empty for personal-token callers, who need none. */
   csrfToken: string;
+  /** True for the site operator, the one person who may read the local mail outbox. */
+  siteOperator: boolean;
 }
 
 export async function sessionOf(q: Queryable, user: AuthUser, csrfToken: string): Promise<Session> {
-  return { user: { id: user.id, email: user.email, name: user.name }, groups: await groupsOfUser(q, user.id), csrfToken };
+  return {
+    user: { id: user.id, email: user.email, name: user.name },
+    groups: await groupsOfUser(q, user.id),
+    csrfToken,
+    siteOperator: user.siteOperator,
+  };
 }

@@ -66,7 +66,7 @@ export function groupRoutes(d: { db: Db; groups: GroupService; invitations: Invi
 
   router.get('/:groupId/activity', requireRole(), validate({ query: activityQuery }), async (req, res) => {
     const { limit } = req.valid.query as z.infer<typeof activityQuery>;
-    res.json(await groupActivity(d.db, req.membership!.groupId, limit));
+    res.json(await groupActivity(d.db, req.membership!.groupId, limit, { withSecurity: req.membership!.role === 'admin' }));
   });
 
   return router;

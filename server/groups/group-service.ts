@@ -38,6 +38,7 @@ export class GroupService {
       await writeAudit(tx, {
         groupId,
         actorId,
+        accountId: userId,
         action: 'member.role_changed',
         subject: user?.email ?? userId,
         details: { userId, from: target.role, to: role },
@@ -57,6 +58,7 @@ export class GroupService {
       await writeAudit(tx, {
         groupId,
         actorId,
+        accountId: userId,
         action: 'member.removed',
         subject: user?.email ?? userId,
         details: { userId, role: target.role },

@@ -1,4 +1,5 @@
-import type { ErrorRequestHandler, RequestHandler } from 'express';
+import type { ErrorRequestHandler, Request, RequestHandler } from 'express';
+import { isDatabaseOutage, outageRetrySeconds } from './database-outage.js';
 
 export interface FieldIssue {
   path: string;
@@ -33,8 +34,14 @@ interface BodyParserError {
   limit?: number;
 }
 
-export function errorHandler(log: (msg: string, err: unknown) => void = console.error): ErrorRequestHandler {
-  return (err, req, res, _next) => {
+/**
+ * Told about every problem before it is answered, so refusals (CSRF, rate limits) are
+ * recorded by the time the client sees them. Must not reject.
+ */
+export type ProblemObserver = (req: Request, problem: ApiError) => Promise<void> | void;
+
+export function errorHandler(log: (msg: string, err: unknown) => void = console.error, observe?: ProblemObserver): ErrorRequestHandler {
+  return async (err, req, res, _next) => {
     let problem: ApiError;
     const bp = err as BodyParserError;
     if (err instanceof ApiError) problem = err;
@@ -44,10 +51,17 @@ export function errorHandler(log: (msg: string, err: unknown) => void = console.
       problem = new ApiError(413, 'payload_too_large', `The request body is larger than the limit of ${bp.limit} bytes.`);
     } else if (typeof bp?.status === 'number' && bp.status >= 400 && bp.status < 500) {
       problem = new ApiError(bp.status, 'bad_request', err instanceof Error ? err.message : 'Bad request.');
+    } else if (isDatabaseOutage(err)) {
+      // Not a bug: the database is down or restarting. Nothing was half-written (each
+      // change is one transaction); the client may simply try again.
+      log(`[poleward] ${req.method} ${req.originalUrl}: database unavailable:`, (err as Error)?.message ?? err);
+      problem = new ApiError(503, 'database_unavailable', `The database cannot be reached right now; nothing was changed. Try again in ${outageRetrySeconds} seconds.`);
+      if (!res.headersSent) res.setHeader('Retry-After', String(outageRetrySeconds));
     } else {
       log(`[poleward] ${req.method} ${req.originalUrl} failed:`, err);
       problem = new ApiError(500, 'internal', 'Something went wrong on the server; the error has been logged.');
     }
+    await observe?.(req, problem);
     if (res.headersSent) return;
     res.status(problem.status).json({
       status: problem.status,

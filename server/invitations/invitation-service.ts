@@ -1,6 +1,8 @@
 import { writeAudit } from '../audit/audit-log.js';
 import { hashOpaqueToken, newOpaqueToken } from '../auth/opaque-token.js';
 import { hashPassword, verifyPassword } from '../auth/password.js';
+import type { PasswordHasher } from '../auth/password-hasher.js';
+import { recordSecurityEvent } from '../audit/security-event.js';
 import type { GroupMembership } from '../auth/require-role.js';
 import { findUserByEmail, insertUser, normaliseEmail, type UserRow } from '../auth/user-repository.js';
 import type { Db } from '../db/client.js';
@@ -35,6 +37,7 @@ export interface InvitationServiceDeps {
   mailer: Mailer;
   publicUrl: string;
   passwordCost: number;
+  passwords: PasswordHasher;
 }
 
 function unknownInvitation(): ApiError {
@@ -121,24 +124,44 @@ export class InvitationService {
    * Accepts once (the invitation row is locked). A new e-mail gets an account with this
    * name and password; an e-mail that already has an account must give that account's
    * password, so the link alone never signs anybody in to an existing account.
+   * The link is checked before any password is hashed or compared, so an anonymous
+   * caller without a live link costs no bcrypt work.
    */
   async accept(token: string, name: string, password: string): Promise<UserRow> {
-    const newHash = await hashPassword(password, this.deps.passwordCost);
-    return this.deps.db.transaction(async (tx) => {
-      const { inv } = checkUsable(await invitationByTokenHash(tx, hashOpaqueToken(token), true));
-      let user = await findUserByEmail(tx, inv.email);
-      if (user) {
-        if (!(await verifyPassword(password, user.passwordHash))) {
-          throw new ApiError(401, 'invalid_credentials', `${inv.email} already has a Poleward account: enter its password to accept.`);
-        }
-      } else {
-        user = await insertUser(tx, { email: inv.email, name, passwordHash: newHash });
+    const { db, passwords, passwordCost } = this.deps;
+    const tokenHash = hashOpaqueToken(token);
+    const { inv: seen } = checkUsable(await invitationByTokenHash(db, tokenHash));
+    const existing = await findUserByEmail(db, seen.email);
+    let newHash: string | null = null;
+    if (existing) {
+      if (!(await verifyPassword(password, existing.passwordHash, passwords))) {
+        await recordSecurityEvent(db, {
+          groupId: seen.groupId,
+          actorId: null,
+          accountId: existing.id,
+          action: 'auth.sign_in_failed',
+          subject: existing.email,
+          details: { via: 'invitation' },
+        });
+        throw new ApiError(401, 'invalid_credentials', `${seen.email} already has a Poleward account: enter its password to accept.`);
       }
+    } else {
+      newHash = await hashPassword(password, passwordCost, passwords);
+    }
+    return db.transaction(async (tx) => {
+      const { inv } = checkUsable(await invitationByTokenHash(tx, tokenHash, true));
+      let user = await findUserByEmail(tx, inv.email);
+      if (user ? user.id !== existing?.id : existing) {
+        // The account was created (or removed) between the check and the lock.
+        throw new ApiError(409, 'conflict', `An account for ${inv.email} has just changed; open the link again.`);
+      }
+      user ??= await insertUser(tx, { email: inv.email, name, passwordHash: newHash! });
       const added = await addMembership(tx, inv.groupId, user.id, inv.role);
       await markInvitationAccepted(tx, inv.id);
       await writeAudit(tx, {
         groupId: inv.groupId,
         actorId: user.id,
+        accountId: user.id,
         action: 'invitation.accepted',
         subject: inv.email,
         details: { role: inv.role, alreadyMember: !added },

@@ -2,13 +2,17 @@ import { desc, eq } from 'drizzle-orm';
 import type { Queryable } from '../db/client.js';
 import { outboxMessages } from '../db/schema/outbox.js';
 
-export interface OutboxMessage {
+/** What the outbox list shows: no bodies, so every read of a link is one audited GET of one message. */
+export interface OutboxSummary {
   id: string;
   to: string;
   subject: string;
+  receivedAt: string;
+}
+
+export interface OutboxMessage extends OutboxSummary {
   text: string;
   html?: string;
-  receivedAt: string;
 }
 
 type Row = typeof outboxMessages.$inferSelect;
@@ -28,9 +32,13 @@ export async function storeOutboxMessage(q: Queryable, m: Omit<typeof outboxMess
   await q.insert(outboxMessages).values(m);
 }
 
-export async function recentOutboxMessages(q: Queryable, limit = 100): Promise<OutboxMessage[]> {
-  const rows = await q.select().from(outboxMessages).orderBy(desc(outboxMessages.receivedAt)).limit(limit);
-  return rows.map(toMessage);
+export async function recentOutboxMessages(q: Queryable, limit = 100): Promise<OutboxSummary[]> {
+  const rows = await q
+    .select({ id: outboxMessages.id, to: outboxMessages.toAddress, subject: outboxMessages.subject, receivedAt: outboxMessages.receivedAt })
+    .from(outboxMessages)
+    .orderBy(desc(outboxMessages.receivedAt))
+    .limit(limit);
+  return rows.map((r) => ({ ...r, receivedAt: r.receivedAt.toISOString() }));
 }
 
 export async function findOutboxMessage(q: Queryable, id: string): Promise<OutboxMessage | undefined> {

@@ -7,6 +7,7 @@
 import { extendZodWithOpenApi, OpenAPIRegistry, OpenApiGeneratorV31, type RouteConfig } from '@asteasolutions/zod-to-openapi';
 import { z } from 'zod';
 import { confirmBody, resetBody, signInBody } from '../auth/auth-routes.js';
+import { accountActivityQuery } from '../auth/account-routes.js';
 import { createBody as tokenBody, tokenParams as apiTokenParams } from '../auth/api-token-routes.js';
 import { catalogueFilterSchema, catalogueQuerySchema } from '../catalogue/catalogue-query.js';
 import { imageQuery, labelBody } from '../catalogue/resonance-routes.js';
@@ -33,8 +34,12 @@ const runRequest = runRequestSchema.meta({ id: 'RunRequest' });
 
 type Method = 'get' | 'post' | 'put' | 'patch' | 'delete';
 
-/** Who may call a route, as the route's middleware enforces it (requireAuth, requireRole, the outbox guard). */
-type Access = 'public' | 'signed-in' | 'member' | 'designer' | 'admin' | 'outbox';
+/**
+ * Who may call a route, as the route's middleware enforces it (requireAuth, requireRole, the
+ * outbox guard). tests/server/access-matrix.test.ts calls every mounted route as every kind of
+ * caller and checks the answer against this rule: a route without one fails there.
+ */
+export type Access = 'public' | 'signed-in' | 'member' | 'designer' | 'admin' | 'operator';
 
 const accessText: Record<Access, string> = {
   public: 'Public: no sign-in needed.',
@@ -42,7 +47,7 @@ const accessText: Record<Access, string> = {
   member: 'Needs membership of the group, any role. Not a member, or no such group: 404.',
   designer: 'Needs the designer role in the group (admin passes every role check). Not a member: 404.',
   admin: 'Needs the admin role in the group. Not a member: 404.',
-  outbox: 'Only while the local mail stand-in is the transport, and only for a user who is admin of some group; 404 otherwise.',
+  operator: 'Only for the site operator, and only while the local mail stand-in is the transport; 404 otherwise (also to group admins).',
 };
 
 interface Answer {
@@ -116,7 +121,7 @@ const operations: Operation[] = [
     method: 'post',
     path: '/auth/sign-out',
     tag: 'auth',
-    summary: 'Sign out: clears both cookies',
+    summary: 'Sign out: ends the session on the server and clears both cookies',
     access: 'public',
     notes: 'While the session cookie is valid, X-CSRF-Token must match pw_csrf.',
     success: empty(204, 'Signed out'),
@@ -139,10 +144,11 @@ const operations: Operation[] = [
     method: 'post',
     path: '/auth/password-reset/confirm',
     tag: 'auth',
-    summary: 'Set a new password with the token from the reset link; ends every earlier session',
+    summary: 'Set a new password with the token from the reset link; ends every session and revokes every personal API token of the account',
     access: 'public',
     body: confirmBody,
     success: empty(204, 'Password changed'),
+    errors: { 429: 'rate_limited: too many failed attempts from this address' },
   },
 
   {
@@ -166,7 +172,7 @@ const operations: Operation[] = [
     params: invitationTokenParams,
     body: acceptBody,
     success: json(201, 'Member of the group, signed in', answers.sessionSchema),
-    errors: { 401: 'invalid_credentials (existing account)', 404: 'unknown token', 410: 'invitation_gone' },
+    errors: { 401: 'invalid_credentials (existing account)', 404: 'unknown token', 410: 'invitation_gone', 429: 'rate_limited: too many failed attempts from this address' },
   },
 
   { id: 'listMyGroups', method: 'get', path: '/groups', tag: 'groups', summary: "The caller's groups and roles", access: 'signed-in', success: json(200, 'Groups, by name', z.array(answers.groupOfUserSchema)) },
@@ -417,8 +423,20 @@ const operations: Operation[] = [
   },
   { id: 'revokeApiToken', method: 'delete', path: '/tokens/{id}', tag: 'tokens', summary: 'Revoke a personal API token', access: 'signed-in', params: apiTokenParams, success: empty(204, 'Revoked') },
 
-  { id: 'listOutbox', method: 'get', path: '/outbox', tag: 'outbox', summary: 'Latest 100 messages the local mail stand-in received', access: 'outbox', success: json(200, 'Messages, newest first', z.array(answers.outboxMessageSchema)) },
-  { id: 'getOutboxMessage', method: 'get', path: '/outbox/{id}', tag: 'outbox', summary: 'One received message', access: 'outbox', params: messageParams, success: json(200, 'The message', answers.outboxMessageSchema) },
+  {
+    id: 'listAccountActivity',
+    method: 'get',
+    path: '/account/activity',
+    tag: 'account',
+    summary: "Audit entries about the caller's own account, newest first",
+    access: 'signed-in',
+    notes: 'Sign-ins and failed ones, sign-outs, rate-limit and CSRF refusals, password resets, tokens, role changes, and reads of mail addressed to the account.',
+    query: accountActivityQuery,
+    success: json(200, 'Entries', z.array(answers.activityEntrySchema)),
+  },
+
+  { id: 'listOutbox', method: 'get', path: '/outbox', tag: 'outbox', summary: 'Latest 100 messages the local mail stand-in received (no bodies; recorded)', access: 'operator', success: json(200, 'Messages, newest first', z.array(answers.outboxSummarySchema)) },
+  { id: 'getOutboxMessage', method: 'get', path: '/outbox/{id}', tag: 'outbox', summary: 'One received message, with its body (each read recorded, and shown to the recipient)', access: 'operator', params: messageParams, success: json(200, 'The message', answers.outboxMessageSchema) },
 ];
 
 const problemContent = { 'application/json': { schema: answers.problemSchema } };
@@ -430,7 +448,7 @@ function errorAnswers(op: Operation): Record<number, string> {
   if (op.access !== 'public') out[401] = 'unauthenticated: not signed in, session expired, or unknown API token';
   if (op.method !== 'get' && op.access !== 'public') out[403] = 'csrf_failed: cookie request without a matching X-CSRF-Token';
   if (op.access === 'designer' || op.access === 'admin') out[403] = 'forbidden: the role is missing; or csrf_failed';
-  if (op.access === 'member' || op.access === 'designer' || op.access === 'admin' || op.access === 'outbox' || op.params) {
+  if (op.access === 'member' || op.access === 'designer' || op.access === 'admin' || op.access === 'operator' || op.params) {
     out[404] = 'not_found (also for objects of a group you are not in)';
   }
   return { ...out, ...op.errors };
@@ -472,8 +490,12 @@ function routeConfig(op: Operation): RouteConfig {
   };
 }
 
-/** Method and path (OpenAPI spelling, with /api) of every described route; the test compares it with Express. */
-export const describedRoutes: readonly { method: Method; path: string }[] = operations.map((op) => ({ method: op.method, path: `/api${op.path}` }));
+/** Method, path (OpenAPI spelling, with /api) and access rule of every described route; the tests compare them with Express. */
+export const describedRoutes: readonly { method: Method; path: string; access: Access }[] = operations.map((op) => ({
+  method: op.method,
+  path: `/api${op.path}`,
+  access: op.access,
+}));
 
 /** Builds the whole document. Pure; about 0.1 s on this machine, so the route builds it once per process. */
 export function buildOpenApiDocument(version: string): ReturnType<OpenApiGeneratorV31['generateDocument']> {
@@ -517,6 +539,7 @@ export function buildOpenApiDocument(version: string): ReturnType<OpenApiGenerat
       { name: 'runs', description: 'Pole searches and transmission sweeps' },
       { name: 'catalogue', description: 'The resonance catalogue' },
       { name: 'tokens', description: 'Personal API tokens' },
+      { name: 'account', description: "The caller's own account: its activity" },
       { name: 'outbox', description: 'The local mail stand-in' },
     ],
   });

@@ -37,7 +37,8 @@ export const sessionSchema = z
   .object({
     user: z.object({ id: z.uuid(), email: z.string(), name: z.string() }),
     groups: z.array(groupOfUserSchema),
-    csrfToken: z.string().meta({ description: 'Echo in X-CSRF-Token on unsafe requests; empty for personal-token callers.' }),
+    csrfToken: z.string().meta({ description: "This session's CSRF value: echo it in X-CSRF-Token on unsafe requests; empty for personal-token callers." }),
+    siteOperator: z.boolean().meta({ description: 'True for the site operator, who alone may read the local mail outbox.' }),
   })
   .meta({ id: 'Session' });
 
@@ -81,6 +82,10 @@ export const createdApiTokenSchema = z
     createdAt: timestamp(),
   })
   .meta({ id: 'CreatedApiToken' });
+
+export const outboxSummarySchema = z
+  .object({ id: z.uuid(), to: z.string(), subject: z.string(), receivedAt: timestamp() })
+  .meta({ id: 'OutboxSummary' });
 
 export const outboxMessageSchema = z
   .object({ id: z.uuid(), to: z.string(), subject: z.string(), text: z.string(), html: z.string().optional(), receivedAt: timestamp() })

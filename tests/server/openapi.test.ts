@@ -14,6 +14,7 @@ import { cavityModelSchema } from '../../shared/model/cavity-model.js';
 import { createLab, type Lab } from './lab-fixture.js';
 import { smallRectangle, smallWindow } from './fixtures/small-cavity.js';
 import { signInAs, type SignedIn } from './sign-in-as.js';
+import { mountedRoutes, type Layer } from './mounted-routes.js';
 import { startTestApp, type TestApp } from './test-app.js';
 
 // The served document is plain JSON, walked by key; typing every OpenAPI object here would add nothing.
@@ -41,35 +42,6 @@ function operations(): { method: string; path: string; op: Json }[] {
   return Object.entries(doc.paths as Json).flatMap(([path, item]) =>
     methods.filter((m) => item[m]).map((method) => ({ method, path, op: item[method] as Json })),
   );
-}
-
-// ---- Express's own list of routes
-
-interface Layer {
-  route?: { path: unknown; methods: Record<string, boolean> };
-  handle: { stack?: Layer[] };
-  rawPath?: unknown;
-}
-
-/** Every method + path the router tree answers, in OpenAPI spelling (:id → {id}). */
-function mountedRoutes(stack: Layer[], prefix = ''): string[] {
-  const joined = (a: string, b: unknown) => {
-    if (typeof b !== 'string') throw new Error(`a route or mount path under '${a}' is not a plain string (${String(b)}); teach this walk about it`);
-    return b === '/' ? a : a + b;
-  };
-  return stack.flatMap((layer) => {
-    if (layer.route) {
-      const path = joined(prefix, layer.route.path).replace(/:(\w+)/g, '{$1}') || '/';
-      return Object.keys(layer.route.methods)
-        .filter((m) => m !== '_all')
-        .map((m) => `${m} ${path}`);
-    }
-    if (layer.handle.stack) {
-      if (layer.rawPath === undefined) throw new Error('this router version keeps no rawPath on its layers; the route walk needs updating');
-      return mountedRoutes(layer.handle.stack, joined(prefix, layer.rawPath));
-    }
-    return [];
-  });
 }
 
 // ---- JSON Schema checks against the served document (ajv, draft 2020-12 as OpenAPI 3.1 uses)

@@ -75,6 +75,8 @@ describe('session tokens', () => {
     const res = await request(app.server).post('/api/auth/sign-in').send({ email: lab.as('viewer').email, password: fixturePassword });
     return cookieHeader(res).find((c) => c.startsWith('pw_session='))!.split(';')[0]!.slice('pw_session='.length);
   }
+  const claimsOf = (token: string) => JSON.parse(Buffer.from(token.split('.')[1]!, 'base64url').toString()) as { sub: string; jti: string };
+  const asCookie = (token: string) => request(app.server).get('/api/auth/session').set('Cookie', `pw_session=${token}`);
 
   it('refuses a tampered JWT with 401', async () => {
     const token = await sessionCookie();
@@ -82,31 +84,46 @@ describe('session tokens', () => {
     const claims = JSON.parse(Buffer.from(payload!, 'base64url').toString());
     claims.sub = lab.as('admin').id; // try to become the admin without the secret
     const forged = `${head}.${Buffer.from(JSON.stringify(claims)).toString('base64url')}.${sig}`;
-    const res = await request(app.server).get('/api/auth/session').set('Cookie', `pw_session=${forged}`);
+    const res = await asCookie(forged);
     expect(res.status).toBe(401);
     expect(res.body.code).toBe('unauthenticated');
-    expect(res.body.message).toMatch(/invalid or has expired/);
+    expect(res.body.message).toMatch(/invalid, has ended or has expired/);
   });
 
   it('refuses an expired JWT with 401', async () => {
-    const viewer = lab.as('viewer');
-    const [row] = await app.handle.pool.query('select password_changed_at from users where id = $1', [viewer.id]).then((r) => r.rows);
+    const { sub, jti } = claimsOf(await sessionCookie());
     const now = Math.floor(Date.now() / 1000);
-    const expired = jwt.sign({ sub: viewer.id, pwc: (row.password_changed_at as Date).getTime(), iat: now - 13 * 3600, exp: now - 3600 }, testJwtSecret, { algorithm: 'HS256' });
+    const expired = jwt.sign({ sub, jti, iat: now - 13 * 3600, exp: now - 3600 }, testJwtSecret, { algorithm: 'HS256' });
     // The same claims with a future expiry are accepted, so the 401 is due to the expiry alone.
-    const fresh = jwt.sign({ sub: viewer.id, pwc: (row.password_changed_at as Date).getTime(), iat: now, exp: now + 3600 }, testJwtSecret, { algorithm: 'HS256' });
-    expect((await request(app.server).get('/api/auth/session').set('Cookie', `pw_session=${fresh}`)).status).toBe(200);
-    const res = await request(app.server).get('/api/auth/session').set('Cookie', `pw_session=${expired}`);
+    const fresh = jwt.sign({ sub, jti, iat: now, exp: now + 3600 }, testJwtSecret, { algorithm: 'HS256' });
+    expect((await asCookie(fresh)).status).toBe(200);
+    const res = await asCookie(expired);
     expect(res.status).toBe(401);
     expect(res.body.code).toBe('unauthenticated');
   });
 
+  it('refuses a correctly signed JWT that has no expiry', async () => {
+    const { sub, jti } = claimsOf(await sessionCookie());
+    const forever = jwt.sign({ sub, jti }, testJwtSecret, { algorithm: 'HS256' });
+    expect(claimsOf(forever)).not.toHaveProperty('exp');
+    const res = await asCookie(forever);
+    expect(res.status).toBe(401);
+    expect(res.body.code).toBe('unauthenticated');
+  });
+
+  it("refuses a JWT naming another user's session", async () => {
+    const { jti } = claimsOf(await sessionCookie());
+    const now = Math.floor(Date.now() / 1000);
+    const borrowed = jwt.sign({ sub: lab.as('admin').id, jti, iat: now, exp: now + 3600 }, testJwtSecret, { algorithm: 'HS256' });
+    expect((await asCookie(borrowed)).status).toBe(401);
+  });
+
   it('refuses a JWT signed with another secret or with alg none', async () => {
-    const viewer = lab.as('viewer');
-    const other = jwt.sign({ pwc: 0 }, 'some-other-secret-of-sufficient-length!!', { subject: viewer.id, expiresIn: 600 });
-    const none = jwt.sign({ pwc: 0 }, '', { subject: viewer.id, algorithm: 'none' } as jwt.SignOptions);
+    const { sub, jti } = claimsOf(await sessionCookie());
+    const other = jwt.sign({ jti }, 'some-other-secret-of-sufficient-length!!', { subject: sub, expiresIn: 600 });
+    const none = jwt.sign({ jti }, '', { subject: sub, algorithm: 'none' } as jwt.SignOptions);
     for (const token of [other, none]) {
-      const res = await request(app.server).get('/api/auth/session').set('Cookie', `pw_session=${token}`);
+      const res = await asCookie(token);
       expect(res.status).toBe(401);
     }
   });
@@ -118,24 +135,112 @@ describe('session tokens', () => {
   });
 });
 
+describe('sign-out', () => {
+  it('ends the session on the server: a copy of the old cookie answers 401 afterwards', async () => {
+    const res = await request(app.server).post('/api/auth/sign-in').send({ email: lab.as('viewer').email, password: fixturePassword });
+    const cookies = cookieHeader(res).map((c) => c.split(';')[0]!);
+    const copied = cookies.join('; ');
+    expect((await request(app.server).get('/api/auth/session').set('Cookie', copied)).status).toBe(200);
+    const out = await request(app.server).post('/api/auth/sign-out').set('Cookie', copied).set('X-CSRF-Token', res.body.csrfToken);
+    expect(out.status).toBe(204);
+    const replay = await request(app.server).get('/api/auth/session').set('Cookie', copied);
+    expect(replay.status).toBe(401);
+    expect(replay.body.message).toMatch(/has ended/);
+    const row = await app.handle.pool.query('select revoked_at from sessions where user_id = $1 and revoked_at is not null', [lab.as('viewer').id]);
+    expect(row.rowCount).toBeGreaterThanOrEqual(1);
+  });
+
+  it('other sessions of the same person stay signed in', async () => {
+    const one = await signInAs(app, lab.as('admin').email);
+    const two = await signInAs(app, lab.as('admin').email);
+    expect((await one.post('/api/auth/sign-out')).status).toBe(204);
+    expect((await two.get('/api/auth/session')).status).toBe(200);
+  });
+});
+
+describe('CSRF value bound to the session', () => {
+  it("refuses another session's CSRF value, even when the pw_csrf cookie repeats it", async () => {
+    const a = await signInAs(app, lab.as('admin').email);
+    const b = await request(app.server).post('/api/auth/sign-in').send({ email: lab.as('admin').email, password: fixturePassword });
+    const bSession = cookieHeader(b).find((c) => c.startsWith('pw_session='))!.split(';')[0]!;
+    expect(b.body.csrfToken).not.toBe(a.csrf);
+    // Session B's cookie, with session A's CSRF value planted as both the cookie and the header.
+    const res = await request(app.server)
+      .post('/api/tokens')
+      .set('Cookie', `${bSession}; pw_csrf=${a.csrf}`)
+      .set('X-CSRF-Token', a.csrf)
+      .send({ name: 'planted' });
+    expect(res.status).toBe(403);
+    expect(res.body.code).toBe('csrf_failed');
+    const ok = await request(app.server).post('/api/tokens').set('Cookie', bSession).set('X-CSRF-Token', b.body.csrfToken).send({ name: 'own value' });
+    expect(ok.status).toBe(201);
+  });
+
+  it('GET /session sets the pw_csrf cookie again when it was lost, with the same value', async () => {
+    const signIn = await request(app.server).post('/api/auth/sign-in').send({ email: lab.as('viewer').email, password: fixturePassword });
+    const sessionOnly = cookieHeader(signIn).find((c) => c.startsWith('pw_session='))!.split(';')[0]!;
+    const res = await request(app.server).get('/api/auth/session').set('Cookie', sessionOnly);
+    expect(res.status).toBe(200);
+    expect(res.body.csrfToken).toBe(signIn.body.csrfToken);
+    expect(cookieHeader(res).find((c) => c.startsWith('pw_csrf='))).toContain(`pw_csrf=${signIn.body.csrfToken};`);
+  });
+});
+
 describe('sign-in rate limit', () => {
-  it('answers 429 rate_limited after the configured number of attempts, per e-mail', async () => {
-    const limited = await startTestApp({ signInLimit: { max: 3, windowMs: 60_000 } });
+  const minute = 60_000;
+
+  it('counts failed sign-ins only: good ones never lock an account', async () => {
+    const limited = await startTestApp({ signInLimits: { perAccount: { max: 3, windowMs: minute }, perIp: { max: 100, windowMs: minute } } });
     try {
       const email = lab.as('viewer').email;
+      for (let i = 0; i < 6; i++) {
+        const res = await request(limited.server).post('/api/auth/sign-in').send({ email, password: fixturePassword });
+        expect(res.status, `good sign-in ${i + 1}`).toBe(200);
+      }
       for (let i = 0; i < 3; i++) {
-        const res = await request(limited.server).post('/api/auth/sign-in').send({ email, password: `wrong-${i}` });
-        expect(res.status).toBe(401);
+        expect((await request(limited.server).post('/api/auth/sign-in').send({ email, password: `wrong-${i}` })).status).toBe(401);
       }
       const blocked = await request(limited.server).post('/api/auth/sign-in').send({ email, password: fixturePassword });
       expect(blocked.status).toBe(429);
       expect(blocked.body.code).toBe('rate_limited');
-      expect(blocked.body.message).toMatch(/Too many sign-in attempts/);
-      // Another e-mail from the same address has its own budget.
+      expect(blocked.body.message).toMatch(/Too many failed sign-in attempts for this account; try again in \d+ minutes?/);
+      expect(blocked.headers['retry-after']).toMatch(/^\d+$/);
+      // Another account from the same address has its own budget.
       const other = await request(limited.server).post('/api/auth/sign-in').send({ email: lab.as('admin').email, password: fixturePassword });
       expect(other.status).toBe(200);
     } finally {
       await limited.close();
     }
+  });
+
+  it('limits one address spraying a password over many accounts', async () => {
+    const limited = await startTestApp({ signInLimits: { perAccount: { max: 100, windowMs: minute }, perIp: { max: 4, windowMs: minute } } });
+    try {
+      const statuses: number[] = [];
+      for (let i = 0; i < 6; i++) {
+        const res = await request(limited.server).post('/api/auth/sign-in').send({ email: `sprayed${i}@fixture.example`, password: 'Summer2026!' });
+        statuses.push(res.status);
+        if (res.status === 429) expect(res.body.message).toMatch(/from your address/);
+      }
+      expect(statuses).toEqual([401, 401, 401, 401, 429, 429]);
+    } finally {
+      await limited.close();
+    }
+  });
+
+  it('records failed sign-ins and refusals on the account concerned, shown to its owner', async () => {
+    const own = await createLab(app.handle.db, ['viewer']);
+    const email = own.as('viewer').email;
+    const limited = await startTestApp({ signInLimits: { perAccount: { max: 2, windowMs: minute }, perIp: { max: 100, windowMs: minute } } });
+    try {
+      for (let i = 0; i < 3; i++) await request(limited.server).post('/api/auth/sign-in').send({ email, password: 'wrong-password' });
+    } finally {
+      await limited.close();
+    }
+    const me = await signInAs(app, email);
+    const actions = ((await me.get('/api/account/activity')).body as { action: string }[]).map((e) => e.action);
+    expect(actions.filter((a) => a === 'auth.sign_in_failed')).toHaveLength(2);
+    expect(actions).toContain('security.rate_limited');
+    expect(actions).toContain('auth.signed_in');
   });
 });

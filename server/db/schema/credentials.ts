@@ -33,3 +33,25 @@ export const apiTokens = pgTable(
   },
   (t) => [index('api_tokens_user').on(t.userId)],
 );
+
+/**
+ * Signed-in browser sessions. The session cookie's JWT names its row (`sid`); a row
+ * revoked by sign-out or a password reset, or past its expiry, ends the session at
+ * once, whatever the JWT's own expiry says.
+ */
+export const sessions = pgTable(
+  'sessions',
+  {
+    id: uuid('id').primaryKey().defaultRandom(),
+    userId: uuid('user_id')
+      .notNull()
+      .references(() => users.id, { onDelete: 'cascade' }),
+    createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+    expiresAt: timestamp('expires_at', { withTimezone: true }).notNull(),
+    revokedAt: timestamp('revoked_at', { withTimezone: true }),
+    /** Where the sign-in came from, shown on the account page. */
+    ip: text('ip'),
+    userAgent: text('user_agent'),
+  },
+  (t) => [index('sessions_user').on(t.userId)],
+);
