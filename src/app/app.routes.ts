@@ -63,6 +63,11 @@ export const routes: Routes = [
         title: 'API tokens · Poleward',
       },
       {
+        path: 'account',
+        loadComponent: () => import('./account/account').then((m) => m.Account),
+        title: 'Account activity · Poleward',
+      },
+      {
         path: 'outbox',
         loadComponent: () => import('./outbox/outbox').then((m) => m.Outbox),
         title: 'Mail outbox · Poleward',

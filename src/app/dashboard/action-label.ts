@@ -5,6 +5,10 @@ const verbs: Record<string, string> = {
   'invitation.accepted': 'accepted the invitation for',
   'member.role_changed': 'changed the role of',
   'member.removed': 'removed',
+  'catalogue.exported': 'exported',
+  'auth.sign_in_failed': 'gave a wrong password accepting an invitation for',
+  'security.csrf_refused': 'was refused (no valid CSRF value) on',
+  'security.rate_limited': 'was refused (too many attempts) on',
 };
 
 /**

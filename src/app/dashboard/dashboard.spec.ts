@@ -46,7 +46,7 @@ describe('Dashboard', () => {
     expect(text).toContain('(designer → reviewer)');
     expect(text).toContain('Someone');
     expect(text).toContain('Rae Lindqvist');
-    // Non-admins get the plain members link, and no outbox link.
+    // Non-admins get the plain members link; only the site operator gets the outbox link.
     expect(text).not.toContain('Manage members');
     expect(text).not.toContain('Mail outbox');
   });
@@ -62,6 +62,18 @@ describe('Dashboard', () => {
     const text = harness.routeNativeElement!.textContent!;
     expect(text).toContain('Nothing has happened in this group yet.');
     expect(text).toContain('Manage members');
-    expect(text).toContain('Mail outbox');
+    // An admin of a group is not the site operator: the outbox holds every group's links.
+    expect(text).not.toContain('Mail outbox');
+  });
+
+  it('shows the site operator the outbox link', async () => {
+    TestBed.inject(Auth).adopt({ ...demoSession('admin'), siteOperator: true });
+    const harness = await RouterTestingHarness.create();
+    await harness.navigateByUrl('/g/harrow-lake/dashboard', Dashboard);
+    (await nextRequest(mock, '/api/groups/g-harrow/activity?limit=20')).flush([]);
+    (await nextRequest(mock, '/api/groups/g-harrow/members')).flush([]);
+    await settle();
+    harness.detectChanges();
+    expect(harness.routeNativeElement!.textContent).toContain('Mail outbox');
   });
 });

@@ -31,7 +31,7 @@ export class Dashboard {
 
   protected readonly group = this.currentGroup.group;
   protected readonly isAdmin = this.currentGroup.isAdmin;
-  protected readonly adminSomewhere = inject(Auth).adminSomewhere;
+  protected readonly siteOperator = inject(Auth).siteOperator;
   protected readonly roleLabel = roleLabel;
   protected readonly actionLabel = actionLabel;
   protected readonly actionDetail = actionDetail;

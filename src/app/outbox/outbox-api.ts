@@ -4,23 +4,28 @@ import { Observable, map } from 'rxjs';
 // zod/mini: the classic build pulls ~450 kB (all locales) into the first chunk.
 import * as z from 'zod/mini';
 
-export const outboxMessageSchema = z.object({
+/** A list entry: no body, so each link is read by one recorded GET of its message. */
+export const outboxSummarySchema = z.object({
   id: z.string(),
   to: z.string(),
   subject: z.string(),
+  receivedAt: z.string(),
+});
+export type OutboxSummaryData = z.infer<typeof outboxSummarySchema>;
+
+export const outboxMessageSchema = z.extend(outboxSummarySchema, {
   text: z.string(),
   html: z.optional(z.nullable(z.string())),
-  receivedAt: z.string(),
 });
 export type OutboxMessageData = z.infer<typeof outboxMessageSchema>;
 
-/** HTTP for the mail the local SMTP stand-in received (admins only; 404 with a real mail host). */
+/** HTTP for the mail the local SMTP stand-in received (site operator only; 404 with a real mail host). */
 @Injectable({ providedIn: 'root' })
 export class OutboxApi {
   private readonly http = inject(HttpClient);
 
-  list(): Observable<OutboxMessageData[]> {
-    return this.http.get('/api/outbox').pipe(map((body) => z.array(outboxMessageSchema).parse(body)));
+  list(): Observable<OutboxSummaryData[]> {
+    return this.http.get('/api/outbox').pipe(map((body) => z.array(outboxSummarySchema).parse(body)));
   }
 
   message(id: string): Observable<OutboxMessageData> {

@@ -6,5 +6,6 @@ export function demoSession(role: Role, extraGroups: Session['groups'] = []): Se
     user: { id: 'u-ada', email: 'ada.admin@harrow-lake.example', name: 'Ada Marlow' },
     groups: [{ id: 'g-harrow', name: 'Harrow Lake Mesoscopics Lab', slug: 'harrow-lake', role }, ...extraGroups],
     csrfToken: 'csrf-test',
+    siteOperator: false,
   };
 }

@@ -15,6 +15,7 @@ const session: Session = {
   user: { id: 'u1', email: 'ada.admin@harrow-lake.example', name: 'Ada Marlow' },
   groups: [{ id: 'g1', name: 'Harrow Lake Mesoscopics Lab', slug: 'harrow-lake', role: 'admin' }],
   csrfToken: 'from-session',
+  siteOperator: false,
 };
 
 describe('authInterceptor', () => {

@@ -19,8 +19,9 @@ export class Auth {
   readonly groups = computed(() => this.state()?.groups ?? []);
   readonly signedIn = computed(() => !!this.state());
   readonly csrfToken = computed(() => this.state()?.csrfToken ?? null);
-  /** The outbox answers only admins of at least one group, so the menu hides it for others. */
   readonly adminSomewhere = computed(() => this.groups().some((g) => g.role === 'admin'));
+  /** The outbox answers only the site operator, so the menu and dashboard hide it for others. */
+  readonly siteOperator = computed(() => this.state()?.siteOperator ?? false);
 
   /** Asks the server once who is signed in; 401 means nobody, other failures propagate. */
   load(): Promise<Session | null> {

@@ -11,6 +11,8 @@ describe('readSession', () => {
     const s = readSession(good);
     expect(s.groups[0]).toEqual({ id: 'g1', name: 'Harrow Lake Mesoscopics Lab', slug: 'harrow-lake', role: 'reviewer' });
     expect(s.user.name).toBe('Rae Lindqvist');
+    expect(s.siteOperator).toBe(false);
+    expect(readSession({ ...good, siteOperator: true }).siteOperator).toBe(true);
   });
 
   it('names the first wrong field', () => {

@@ -43,5 +43,7 @@ export function readSession(body: unknown): Session {
     user: { id: text(user['id'], 'user.id'), email: text(user['email'], 'user.email'), name: text(user['name'], 'user.name') },
     groups,
     csrfToken: text(root['csrfToken'], 'csrfToken'),
+    // Absent from servers older than the site-operator role: nobody is operator there.
+    siteOperator: root['siteOperator'] === true,
   };
 }

@@ -20,4 +20,6 @@ export interface Session {
   user: { id: string; email: string; name: string };
   groups: GroupMembership[];
   csrfToken: string;
+  /** The person who runs this installation: the only one who may read the local mail outbox. */
+  siteOperator: boolean;
 }

@@ -7,7 +7,7 @@ import { Router, RouterLink } from '@angular/router';
 import { Auth } from '../auth/auth';
 import { ErrorReport } from '../errors/error-report';
 
-/** The signed-in user's menu: API tokens, the mail outbox for admins, sign-out. */
+/** The signed-in user's menu: account activity, API tokens, the mail outbox for the site operator, sign-out. */
 @Component({
   selector: 'pw-user-menu',
   imports: [MatButtonModule, MatIconModule, MatMenuModule, MatDividerModule, RouterLink],
@@ -23,11 +23,15 @@ import { ErrorReport } from '../errors/error-report';
           <div class="who-email">{{ user.email }}</div>
         </div>
         <mat-divider />
+        <a mat-menu-item routerLink="/account">
+          <mat-icon aria-hidden="true">manage_history</mat-icon>
+          <span>Account activity</span>
+        </a>
         <a mat-menu-item routerLink="/tokens">
           <mat-icon aria-hidden="true">key</mat-icon>
           <span>API tokens</span>
         </a>
-        @if (adminSomewhere()) {
+        @if (siteOperator()) {
           <a mat-menu-item routerLink="/outbox">
             <mat-icon aria-hidden="true">outgoing_mail</mat-icon>
             <span>Mail outbox</span>
@@ -54,7 +58,7 @@ export class UserMenu {
   private readonly errors = inject(ErrorReport);
 
   protected readonly user = this.auth.user;
-  protected readonly adminSomewhere = this.auth.adminSomewhere;
+  protected readonly siteOperator = this.auth.siteOperator;
 
   protected async signOut(): Promise<void> {
     try {
