@@ -39,4 +39,21 @@ describe('sign-in and dashboard in a real browser', () => {
     expect(iconFont).toBe(true);
     await screenshot(page, 'dashboard');
   });
+
+  it('the account page lists the failed attempt and the sign-in; the menu has no outbox for a designer; sign-out ends the session', async () => {
+    await page.getByRole('button', { name: /account of devi okafor/i }).click();
+    await expect.poll(() => page.getByRole('menuitem', { name: 'Account activity' }).isVisible(), { timeout: 10_000 }).toBe(true);
+    expect(await page.getByRole('menuitem', { name: 'Mail outbox' }).count()).toBe(0);
+    await page.getByRole('menuitem', { name: 'Account activity' }).click();
+    await page.waitForURL(/\/account$/, { timeout: 10_000 });
+    await expect.poll(() => page.getByText('Failed sign-in: wrong password').first().isVisible(), { timeout: 10_000 }).toBe(true);
+    await expect.poll(() => page.getByText('Signed in', { exact: true }).first().isVisible()).toBe(true);
+    await screenshot(page, 'account-activity');
+
+    await page.getByRole('button', { name: /account of devi okafor/i }).click();
+    await page.getByRole('menuitem', { name: 'Sign out' }).click();
+    await page.waitForURL(/\/sign-in/, { timeout: 10_000 });
+    const status = await page.evaluate(async () => (await fetch('/api/auth/session')).status);
+    expect(status).toBe(401);
+  });
 });
