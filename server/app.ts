@@ -88,6 +88,7 @@ export function createApp(deps: AppDeps): Express {
   const groups = new GroupService(db);
 
   const app = express();
+  app.set('trust proxy', config.trustProxy);
   app.locals.db = db; // read by requireRole, which other features' routers also use
   app.use(
     helmet({

@@ -19,6 +19,13 @@ const envSchema = z.object({
     .trim()
     .regex(/^[0-9A-Za-z.:[\]-]+$/, 'must be an IP address or host name, e.g. 127.0.0.1 or 0.0.0.0')
     .default('127.0.0.1'),
+  // Behind a reverse proxy every request comes from the proxy: name it, so client addresses
+  // (for the per-address sign-in limits and the audit log) come from X-Forwarded-For.
+  POLEWARD_TRUST_PROXY: z
+    .string()
+    .trim()
+    .regex(/^(loopback|\d{1,2}|[0-9a-fA-F.:/, ]+)$/, 'must be "loopback", a number of proxy hops, or proxy addresses (comma-separated)')
+    .optional(),
   POLEWARD_DB_PORT: port(54329),
   DATABASE_URL: z.url({ protocol: /^postgres(ql)?$/ }).optional(),
   POLEWARD_JWT_SECRET: z.string().min(32, 'must be at least 32 characters').optional(),
@@ -35,6 +42,8 @@ export interface Config {
   port: number;
   /** Address the HTTP server binds (default 127.0.0.1: loopback only). */
   host: string;
+  /** Express's `trust proxy` setting: false (no proxy), a hop count, or proxy addresses. */
+  trustProxy: false | number | string;
   dbPort: number;
   databaseUrl: string;
   jwtSecret: string;
@@ -77,6 +86,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     nodeEnv: e.NODE_ENV,
     port: e.POLEWARD_PORT,
     host: e.POLEWARD_HOST,
+    trustProxy: e.POLEWARD_TRUST_PROXY === undefined ? false : /^\d+$/.test(e.POLEWARD_TRUST_PROXY) ? Number(e.POLEWARD_TRUST_PROXY) : e.POLEWARD_TRUST_PROXY,
     dbPort: e.POLEWARD_DB_PORT,
     databaseUrl: e.DATABASE_URL ?? `postgres://postgres@127.0.0.1:${e.POLEWARD_DB_PORT}/poleward`,
     jwtSecret: e.POLEWARD_JWT_SECRET ?? developmentSecret(),

@@ -2,7 +2,7 @@ import type { Request, Response } from 'express';
 import type { Queryable } from '../db/client.js';
 import { csrfTokenFor } from './csrf.js';
 import { setSessionCookies } from './session-cookies.js';
-import { insertSession } from './session-repository.js';
+import { insertSession, pruneSessions } from './session-repository.js';
 import { sessionLifetimeSeconds, signSessionToken } from './session-token.js';
 
 /**
@@ -16,6 +16,7 @@ export async function openSession(
   userId: string,
   opts: { jwtSecret: string; secureCookies: boolean },
 ): Promise<string> {
+  await pruneSessions(q, userId);
   const row = await insertSession(q, {
     userId,
     expiresAt: new Date(Date.now() + sessionLifetimeSeconds * 1000),

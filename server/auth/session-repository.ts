@@ -1,10 +1,17 @@
-import { and, eq, gt, isNull, sql } from 'drizzle-orm';
+import { and, eq, gt, isNull, lt, or, sql } from 'drizzle-orm';
 import type { Queryable } from '../db/client.js';
 import { sessions } from '../db/schema/credentials.js';
 import { users } from '../db/schema/users.js';
 
 export type SessionRow = typeof sessions.$inferSelect;
 type UserRow = typeof users.$inferSelect;
+
+/** Drops the user's sessions that ended more than a day ago (called at sign-in, so the table stays small). */
+export async function pruneSessions(q: Queryable, userId: string): Promise<void> {
+  await q
+    .delete(sessions)
+    .where(and(eq(sessions.userId, userId), or(lt(sessions.expiresAt, sql`now() - interval '1 day'`), lt(sessions.revokedAt, sql`now() - interval '1 day'`))));
+}
 
 export async function insertSession(
   q: Queryable,

@@ -94,4 +94,18 @@ describe('bind address', () => {
     expect(loadConfig({ ...secret, POLEWARD_HOST: '::1' }).host).toBe('::1');
     expect(() => loadConfig({ ...secret, POLEWARD_HOST: 'http://example.org/' })).toThrow(/POLEWARD_HOST: must be an IP address or host name/);
   });
+
+  it('trusts no proxy unless POLEWARD_TRUST_PROXY names one', async () => {
+    const secret = { POLEWARD_JWT_SECRET: 'x'.repeat(40) };
+    expect(loadConfig(secret).trustProxy).toBe(false);
+    expect(loadConfig({ ...secret, POLEWARD_TRUST_PROXY: '1' }).trustProxy).toBe(1);
+    expect(loadConfig({ ...secret, POLEWARD_TRUST_PROXY: 'loopback' }).trustProxy).toBe('loopback');
+    expect(() => loadConfig({ ...secret, POLEWARD_TRUST_PROXY: 'everyone' })).toThrow(/POLEWARD_TRUST_PROXY/);
+    // Without a trusted proxy a forged X-Forwarded-For does not change the address the limits count.
+    const lab = await createLab(app.handle.db, ['viewer']);
+    const forged = await request(app.server).post('/api/auth/sign-in').set('X-Forwarded-For', '198.51.100.9').send({ email: lab.as('viewer').email, password: 'wrong-password' });
+    expect(forged.status).toBe(401);
+    const { rows } = await app.handle.pool.query("select details from audit_log where account_id = $1 and action = 'auth.sign_in_failed'", [lab.as('viewer').id]);
+    expect(rows[0].details.ip).not.toBe('198.51.100.9');
+  });
 });

@@ -150,6 +150,19 @@ describe('sign-out', () => {
     expect(row.rowCount).toBeGreaterThanOrEqual(1);
   });
 
+  it('a sign-in clears the person\'s sessions that ended more than a day ago, and keeps the rest', async () => {
+    const own = await createLab(app.handle.db, ['viewer']);
+    const id = own.as('viewer').id;
+    await app.handle.pool.query(
+      `insert into sessions (user_id, expires_at, revoked_at) values
+         ($1, now() - interval '2 days', null), ($1, now() + interval '1 hour', now() - interval '3 days'), ($1, now() + interval '1 hour', now() - interval '1 hour')`,
+      [id],
+    );
+    await signInAs(app, own.as('viewer').email);
+    const { rows } = await app.handle.pool.query('select revoked_at is null as open from sessions where user_id = $1 order by created_at', [id]);
+    expect(rows).toEqual([{ open: false }, { open: true }]);
+  });
+
   it('other sessions of the same person stay signed in', async () => {
     const one = await signInAs(app, lab.as('admin').email);
     const two = await signInAs(app, lab.as('admin').email);
