@@ -22,6 +22,7 @@ import { outboxRoutes } from './mail/outbox-routes.js';
 import { openApiRoute } from './openapi/openapi-route.js';
 import { catalogueRoutes } from './catalogue/catalogue-routes.js';
 import type { RunQueue } from './jobs/boss.js';
+import { ComputePool, type Compute } from './compute/compute-pool.js';
 import { modelRoutes } from './models/model-routes.js';
 import { ModelService } from './models/model-service.js';
 import type { RunEvents } from './runs/run-events.js';
@@ -43,6 +44,8 @@ export interface AppDeps {
   /** bcrypt cost for new password hashes; tests pass 4 to stay fast. */
   passwordCost?: number;
   log?: (msg: string, err: unknown) => void;
+  /** Runs geometry and estimates off the event loop; default a new pool (closed by closeApp). */
+  compute?: Compute;
   /**
    * Mounts the other features' routers on the /api router (after authentication, before
    * the JSON 404), e.g. `api => api.use('/groups/:groupId/models', modelRoutes(...))`.
@@ -61,6 +64,11 @@ const jsonLimit = '1mb';
  */
 const stylesheetOnloadHash = `'sha256-${createHash('sha256').update("this.media='all'").digest('base64')}'`;
 
+/** Stops what createApp started besides the routes (the compute pool's threads). */
+export async function closeApp(app: Express): Promise<void> {
+  await (app.locals.compute as Compute | undefined)?.close();
+}
+
 /** Builds the HTTP app from its dependencies; main.ts listens, tests use an ephemeral port. */
 export function createApp(deps: AppDeps): Express {
   const { db, config, mailer } = deps;
@@ -74,6 +82,8 @@ export function createApp(deps: AppDeps): Express {
 
   const app = express();
   app.locals.db = db; // read by requireRole, which other features' routers also use
+  const compute = deps.compute ?? new ComputePool({ threads: config.computeThreads, timeoutSeconds: config.computeTimeoutSeconds });
+  app.locals.compute = compute;
   app.use(
     helmet({
       contentSecurityPolicy: {
@@ -109,8 +119,8 @@ export function createApp(deps: AppDeps): Express {
   );
   api.use('/invitations', invitationRoutes({ db, invitations, jwtSecret: config.jwtSecret, secureCookies }));
   api.use('/groups', groupRoutes({ db, groups, invitations }));
-  api.use('/groups/:groupId/models', modelRoutes(new ModelService(db)));
-  api.use('/groups/:groupId/runs', runRoutes(new RunService(db, deps.queue), deps.runEvents ?? null));
+  api.use('/groups/:groupId/models', modelRoutes(new ModelService(db, compute), compute));
+  api.use('/groups/:groupId/runs', runRoutes(new RunService(db, deps.queue, compute, config.runLimits), deps.runEvents ?? null));
   api.use('/groups/:groupId', catalogueRoutes({ db }));
   api.use('/tokens', apiTokenRoutes(db));
   api.use('/outbox', outboxRoutes(db, config.mailStandIn));
