@@ -75,18 +75,19 @@ export async function checkRunSlots(tx: Queryable, groupId: string, userId: stri
     })
     .from(runs)
     .where(and(eq(runs.groupId, groupId), active));
-  const refuse = async (who: string, limit: number, scope: ReturnType<typeof and>) => {
+  const refuse = async (who: 'you' | 'group', limit: number, scope: ReturnType<typeof and>) => {
     const seconds = await retryAfter(tx, scope);
     const when = new Date(Date.now() + seconds * 1000).toISOString().slice(11, 19);
+    const runsText = `${limit} run${limit === 1 ? '' : 's'}`;
     throw new ApiError(
       429,
       'too_many_runs',
-      `${who} already ${limit === 1 ? 'has 1 run' : `have ${limit} runs`} queued or running, the limit. ` +
+      `${who === 'you' ? `You already have ${runsText}` : `This group already has ${runsText}`} queued or running, the limit. ` +
         `Try again in about ${formatDuration(seconds)} (after ${when} UTC), when one has finished, or cancel one.`,
       undefined,
       seconds,
     );
   };
-  if (mine >= limits.perUser) await refuse('You', limits.perUser, and(eq(runs.groupId, groupId), eq(runs.createdBy, userId), active));
-  if (all >= limits.perGroup) await refuse('This group', limits.perGroup, and(eq(runs.groupId, groupId), active));
+  if (mine >= limits.perUser) await refuse('you', limits.perUser, and(eq(runs.groupId, groupId), eq(runs.createdBy, userId), active));
+  if (all >= limits.perGroup) await refuse('group', limits.perGroup, and(eq(runs.groupId, groupId), active));
 }
