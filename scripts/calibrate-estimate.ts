@@ -7,6 +7,7 @@
  *
  *   npx tsx scripts/calibrate-estimate.ts            measure, fit, write the model, print the table
  *   npx tsx scripts/calibrate-estimate.ts --check    measure and print the table against the stored model
+ *   npx tsx scripts/calibrate-estimate.ts --refit    fit again to the measurements stored in the model (no runs)
  *   npm run bench -- --only=estimate                 same as --check
  *
  * The fit is least squares on relative errors with non-negative constants; the
@@ -168,8 +169,8 @@ const median = (xs: number[]) => {
 export function fitCostModel(ms: CaseMeasurement[]): RunCostModel {
   const stepRow = (f: RunCostFeatures) => [f.factorFlops, f.factorNonzeros, f.sites];
   const poles = ms.filter((m) => m.features.kind === 'pole-search' && m.poleLUs > 0);
-  const [base, perPiece, perLevel] = fitNonNegative(
-    poles.map((m) => [1, m.features.pieces, m.features.expectedLevels]),
+  const [base, perPiece, perLevel, perLevelSquared] = fitNonNegative(
+    poles.map((m) => [1, m.features.pieces, m.features.expectedLevels, m.features.expectedLevels ** 2]),
     poles.map((m) => m.poleLUs),
     poles.map((m) => 1 / m.poleLUs ** 2),
   );
@@ -189,13 +190,14 @@ export function fitCostModel(ms: CaseMeasurement[]): RunCostModel {
     measuredOn: `${cpus().length} × ${cpus()[0]?.model.trim() ?? 'cpu'}, one thread per run, load average ${loadavg()[0].toFixed(2)} at the end`,
     poleStep: { perFlop: pf, perNonzero: pn, perSite: ps },
     sweepEnergy: { perFlop: sf, perNonzero: sn, perSite: ss },
-    poleLUs: { base, perPiece, perLevel },
+    poleLUs: { base, perPiece, perLevel, perLevelSquared },
     energiesPerPoint: { poleSearch: ratio('pole-search'), transmission: ratio('transmission') },
     setupPerSite: median(setup),
     accuracy: { worstOver: 0, worstUnder: 0, cases: ms.length },
   };
   const ratios = ms.map((m) => predictRunSeconds(m.features, model).total / m.seconds);
   model.accuracy = { worstOver: Math.max(...ratios), worstUnder: Math.max(...ratios.map((r) => 1 / r)), cases: ms.length };
+  model.measurements = ms;
   return model;
 }
 
@@ -227,8 +229,16 @@ export function measureAll(log: (line: string) => void = () => {}): CaseMeasurem
 const isMain = process.argv[1] && fileURLToPath(import.meta.url) === process.argv[1];
 if (isMain) {
   const check = process.argv.includes('--check');
-  console.log(`Measuring ${estimateCases().length} runs (one thread each); load average ${loadavg().map((l) => l.toFixed(2)).join(' ')}`);
-  const ms = measureAll(console.log);
+  const refit = process.argv.includes('--refit');
+  let ms: CaseMeasurement[];
+  if (refit) {
+    ms = (runCostModel().measurements ?? []) as CaseMeasurement[];
+    if (ms.length === 0) throw new Error('the stored cost model holds no measurements to refit');
+    console.log(`Fitting again to the ${ms.length} stored measurements`);
+  } else {
+    console.log(`Measuring ${estimateCases().length} runs (one thread each); load average ${loadavg().map((l) => l.toFixed(2)).join(' ')}`);
+    ms = measureAll(console.log);
+  }
   if (check) {
     console.log(accuracyTable(ms, runCostModel()));
   } else {

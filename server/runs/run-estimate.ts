@@ -20,14 +20,21 @@ export interface RunCostModel {
   poleStep: { perFlop: number; perNonzero: number; perSite: number };
   /** Seconds of one energy of a transmission sweep, same form. */
   sweepEnergy: { perFlop: number; perNonzero: number; perSite: number };
-  /** LU factorisations of a pole search: base + perPiece·pieces + perLevel·(levels expected in the window). */
-  poleLUs: { base: number; perPiece: number; perLevel: number };
+  /**
+   * LU factorisations of a pole search: base + perPiece·pieces + perLevel·L + perLevelSquared·L²,
+   * L the levels expected in the window. The square is empirical (no theory): on the
+   * calibration cases the count grows about as L², through contour subdivisions and
+   * Newton refinements that both grow with the poles inside.
+   */
+  poleLUs: { base: number; perPiece: number; perLevel: number; perLevelSquared: number };
   /** Energies a sweep computes, per energy of its grid (the adaptive refinement adds some). */
   energiesPerPoint: { poleSearch: number; transmission: number };
   /** Seconds to build the operator and analyse its pattern, per site. */
   setupPerSite: number;
   /** Accuracy measured when the constants were fitted: largest estimate/measured ratio and its inverse. */
   accuracy: { worstOver: number; worstUnder: number; cases: number };
+  /** The measurements the constants were fitted to (CPU seconds, LU counts), so a refit needs no new runs. */
+  measurements?: unknown[];
 }
 
 export interface RunEstimate {
@@ -96,7 +103,9 @@ const stepSeconds = (c: RunCostModel['poleStep'], f: RunCostFeatures) => c.perFl
 
 /** The modelled time of a run, split into its parts (seconds). */
 export function predictRunSeconds(f: RunCostFeatures, m: RunCostModel) {
-  const poleLUs = f.kind === 'pole-search' ? Math.round(m.poleLUs.base + m.poleLUs.perPiece * f.pieces + m.poleLUs.perLevel * f.expectedLevels) : 0;
+  const L = f.expectedLevels;
+  const poleLUs =
+    f.kind === 'pole-search' ? Math.round(m.poleLUs.base + m.poleLUs.perPiece * f.pieces + m.poleLUs.perLevel * L + (m.poleLUs.perLevelSquared ?? 0) * L * L) : 0;
   const perPoint = f.kind === 'transmission' ? m.energiesPerPoint.transmission : m.energiesPerPoint.poleSearch;
   const energies = Math.min(spectrumBudget(f.kind, f.spectrumPoints), Math.round(perPoint * f.spectrumPoints));
   const poleStep = stepSeconds(m.poleStep, f);

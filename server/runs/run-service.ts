@@ -71,8 +71,18 @@ export class RunService {
   async estimate(groupId: string, req: RunRequest, signal?: AbortSignal) {
     const v = await this.version(groupId, req);
     const estimate = await this.estimateOf(v.document, req, signal);
-    const limit = this.limits?.maxSeconds;
-    return { ...estimate, ...(limit !== undefined ? { limitSeconds: limit, withinLimit: estimate.expectedSeconds <= limit } : {}) };
+    if (!this.limits) return estimate;
+    const withinLimit = estimate.expectedSeconds <= this.limits.maxSeconds;
+    const warnings = [...estimate.warnings];
+    if (!withinLimit) {
+      // Say it before the launch is refused: the launcher shows the estimate's warnings.
+      try {
+        checkRunSize(estimate, req, this.limits);
+      } catch (err) {
+        if (err instanceof ApiError) warnings.unshift(`Launching this run will be refused. ${err.message}`);
+      }
+    }
+    return { ...estimate, limitSeconds: this.limits.maxSeconds, withinLimit, warnings };
   }
 
   async create(groupId: string, userId: string, req: RunRequest, signal?: AbortSignal) {

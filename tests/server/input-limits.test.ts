@@ -21,7 +21,14 @@ let viewer: SignedIn;
 
 beforeAll(async () => {
   app = await startTestApp({
-    env: { POLEWARD_RUNS_PER_USER: '2', POLEWARD_RUNS_PER_GROUP: '3', POLEWARD_RUN_MAX_SECONDS: '3600', POLEWARD_COMPUTE_THREADS: '1' },
+    env: {
+      POLEWARD_RUNS_PER_USER: '2',
+      POLEWARD_RUNS_PER_GROUP: '3',
+      POLEWARD_RUN_MAX_SECONDS: '3600',
+      POLEWARD_COMPUTE_THREADS: '1',
+      // 100,000-site estimates take seconds idle, minutes on a loaded 2-core machine.
+      POLEWARD_COMPUTE_TIMEOUT_SECONDS: '600',
+    },
   });
   lab = await createLab(app.handle.db, ['designer', 'designer', 'viewer']);
   designer = await signInAs(app, lab.members[0].email);
@@ -112,7 +119,7 @@ describe('model documents are capped before geometry work (defects 2 and 6)', ()
     expect(healthTimes.length).toBeGreaterThan(1);
     expect(delay.max / 1e6).toBeLessThan(1000);
     expect(Math.max(...healthTimes)).toBeLessThan(1000);
-  });
+  }, 300_000);
 });
 
 /** A real PNG declaring width×height 1-bit grey pixels, all zero: tiny on disk, huge decoded. */
@@ -202,7 +209,12 @@ describe('run estimate and run limits (defect 4)', () => {
 
   it('a run estimated above the limit is refused with what to shrink, and nothing is stored', async () => {
     const before = await runCount();
-    const res = await designer.post(runsUrl(), { kind: 'pole-search', modelId: largeId, window: { emin: 0.5, emax: 60, gammaMax: 5 } });
+    const tooLarge = { kind: 'pole-search', modelId: largeId, window: { emin: 0.5, emax: 60, gammaMax: 5 } };
+    const estimate = await designer.post(`${runsUrl()}/estimate`, tooLarge);
+    expect(estimate.status).toBe(200);
+    expect(estimate.body.withinLimit).toBe(false);
+    expect(estimate.body.warnings[0]).toMatch(/^Launching this run will be refused/);
+    const res = await designer.post(runsUrl(), tooLarge);
     expect(res.status).toBe(422);
     expect(res.body.code).toBe('run_too_large');
     expect(res.body.message).toMatch(/above this server's limit of 60 min/);
@@ -210,7 +222,7 @@ describe('run estimate and run limits (defect 4)', () => {
     expect(res.body.message).toMatch(/Γmax/);
     expect(res.body.message).toMatch(/fewer sites \(now 100000/);
     expect(await runCount()).toBe(before);
-  });
+  }, 300_000);
 
   it('queued and running runs are limited per person and per group, with 429 and Retry-After', async () => {
     const launch = (who: SignedIn) => who.post(runsUrl(), { kind: 'pole-search', modelId: smallId, window: smallWindow });
