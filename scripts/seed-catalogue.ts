@@ -8,6 +8,7 @@ import { z } from 'zod';
 import type { Db } from '../server/db/client.js';
 import { cavityModels } from '../server/db/schema/models.js';
 import type { RunQueue } from '../server/jobs/boss.js';
+import { inlineCompute } from '../server/compute/compute-pool.js';
 import { ModelService } from '../server/models/model-service.js';
 import { RunService } from '../server/runs/run-service.js';
 import { projectRoot } from '../server/config.js';
@@ -32,8 +33,9 @@ export function readReferenceDevices(folder = join(projectRoot, 'catalogue')): R
 }
 
 export async function seedCatalogue(db: Db, queue: RunQueue, groupId: string, userId: string, log = console.log): Promise<number> {
-  const models = new ModelService(db);
-  const runsService = new RunService(db, queue);
+  // The seed is a command-line script: its geometry runs inline, and the demo runs are not limited.
+  const models = new ModelService(db, inlineCompute);
+  const runsService = new RunService(db, queue, inlineCompute);
   let queued = 0;
   for (const device of readReferenceDevices()) {
     const [existing] = await db

@@ -31,6 +31,7 @@ import { outboxRoutes } from './mail/outbox-routes.js';
 import { openApiRoute } from './openapi/openapi-route.js';
 import { catalogueRoutes } from './catalogue/catalogue-routes.js';
 import type { RunQueue } from './jobs/boss.js';
+import { ComputePool, type Compute } from './compute/compute-pool.js';
 import { modelRoutes } from './models/model-routes.js';
 import { ModelService } from './models/model-service.js';
 import type { RunEvents } from './runs/run-events.js';
@@ -56,6 +57,8 @@ export interface AppDeps {
   /** Where passwords are hashed (worker threads by default); tests count the calls. */
   passwords?: PasswordHasher;
   log?: (msg: string, err: unknown) => void;
+  /** Runs geometry and estimates off the event loop; default a new pool (closed by closeApp). */
+  compute?: Compute;
   /**
    * Mounts the other features' routers on the /api router (after authentication, before
    * the JSON 404), e.g. `api => api.use('/groups/:groupId/models', modelRoutes(...))`.
@@ -74,6 +77,11 @@ const jsonLimit = '1mb';
  */
 const stylesheetOnloadHash = `'sha256-${createHash('sha256').update("this.media='all'").digest('base64')}'`;
 
+/** Stops what createApp started besides the routes (the compute pool's threads). */
+export async function closeApp(app: Express): Promise<void> {
+  await (app.locals.compute as Compute | undefined)?.close();
+}
+
 /** Builds the HTTP app from its dependencies; main.ts listens, tests use an ephemeral port. */
 export function createApp(deps: AppDeps): Express {
   const { db, config, mailer } = deps;
@@ -90,6 +98,8 @@ export function createApp(deps: AppDeps): Express {
   const app = express();
   app.set('trust proxy', config.trustProxy);
   app.locals.db = db; // read by requireRole, which other features' routers also use
+  const compute = deps.compute ?? new ComputePool({ threads: config.computeThreads, timeoutSeconds: config.computeTimeoutSeconds });
+  app.locals.compute = compute;
   app.use(
     helmet({
       contentSecurityPolicy: {
@@ -134,8 +144,8 @@ export function createApp(deps: AppDeps): Express {
   api.use('/invitations', invitationRoutes({ db, invitations, jwtSecret: config.jwtSecret, secureCookies, linkLimit }));
   api.use('/account', accountRoutes(db));
   api.use('/groups', groupRoutes({ db, groups, invitations }));
-  api.use('/groups/:groupId/models', modelRoutes(new ModelService(db)));
-  api.use('/groups/:groupId/runs', runRoutes(new RunService(db, deps.queue), deps.runEvents ?? null));
+  api.use('/groups/:groupId/models', modelRoutes(new ModelService(db, compute), compute));
+  api.use('/groups/:groupId/runs', runRoutes(new RunService(db, deps.queue, compute, config.runLimits), deps.runEvents ?? null));
   api.use('/groups/:groupId', catalogueRoutes({ db }));
   api.use('/tokens', apiTokenRoutes(db));
   api.use('/outbox', outboxRoutes(db, config.mailStandIn));

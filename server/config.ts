@@ -35,6 +35,11 @@ const envSchema = z.object({
   POLEWARD_THREADS_PER_RUN: z.coerce.number().int().min(1).max(16).default(1),
   POLEWARD_RUN_STALE_SECONDS: z.coerce.number().int().min(2).max(3600).default(30),
   POLEWARD_WORKERS: z.coerce.number({ error: 'must be a whole number' }).int('must be a whole number').min(0).max(64).default(2),
+  POLEWARD_COMPUTE_THREADS: z.coerce.number().int().min(1).max(64).optional(),
+  POLEWARD_COMPUTE_TIMEOUT_SECONDS: z.coerce.number().int().min(1).max(3600).default(60),
+  POLEWARD_RUN_MAX_SECONDS: z.coerce.number().positive().default(7200),
+  POLEWARD_RUNS_PER_GROUP: z.coerce.number().int().min(1).default(12),
+  POLEWARD_RUNS_PER_USER: z.coerce.number().int().min(1).default(4),
 });
 
 export interface Config {
@@ -58,6 +63,12 @@ export interface Config {
   threadsPerRun: number;
   /** A running run with no worker heartbeat for this long is put back in the queue. */
   runStaleSeconds: number;
+  /** Threads of the API's compute pool (geometry and estimates off the event loop); default cores − 1. */
+  computeThreads: number | undefined;
+  /** A request's computation running longer is stopped with a 503. */
+  computeTimeoutSeconds: number;
+  /** Run size and runs in flight (POLEWARD_RUN_MAX_SECONDS, POLEWARD_RUNS_PER_GROUP, POLEWARD_RUNS_PER_USER). */
+  runLimits: { maxSeconds: number; perGroup: number; perUser: number };
   /** Folder of the built Angular client (may not exist in development). */
   clientDir: string;
   version: string;
@@ -97,6 +108,9 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     workers: e.POLEWARD_WORKERS,
     runStaleSeconds: e.POLEWARD_RUN_STALE_SECONDS,
     threadsPerRun: e.POLEWARD_THREADS_PER_RUN,
+    computeThreads: e.POLEWARD_COMPUTE_THREADS,
+    computeTimeoutSeconds: e.POLEWARD_COMPUTE_TIMEOUT_SECONDS,
+    runLimits: { maxSeconds: e.POLEWARD_RUN_MAX_SECONDS, perGroup: e.POLEWARD_RUNS_PER_GROUP, perUser: e.POLEWARD_RUNS_PER_USER },
     clientDir: join(projectRoot, 'dist', 'poleward', 'browser'),
     version: packageVersion(),
   };

@@ -1,7 +1,7 @@
 // Runs the API and the built client: `npx tsx server/main.ts`. Reads config, connects
 // to PostgreSQL, starts the local mail stand-in when it is the transport, and serves.
 import { createServer, type Server } from 'node:http';
-import { createApp } from './app.js';
+import { closeApp, createApp } from './app.js';
 import { ConfigError, loadConfig } from './config.js';
 import { connectDb } from './db/client.js';
 import { ensureSiteOperator } from './auth/site-operator.js';
@@ -70,6 +70,7 @@ async function main(): Promise<void> {
     console.log(`[poleward] ${signal}: shutting down`);
     // Stop taking requests, let running ones finish, then release the pool.
     await new Promise<void>((done) => server.close(() => done()));
+    await closeApp(app);
     await standIn?.close();
     await runEvents.close();
     await boss.stop({ graceful: false, wait: false }).catch(() => {});

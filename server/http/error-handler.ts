@@ -16,6 +16,8 @@ export class ApiError extends Error {
     readonly code: string,
     message: string,
     readonly issues?: FieldIssue[],
+    /** Sent as the Retry-After header (seconds) with a 429 or 503. */
+    readonly retryAfterSeconds?: number,
   ) {
     super(message);
     this.name = 'ApiError';
@@ -63,6 +65,7 @@ export function errorHandler(log: (msg: string, err: unknown) => void = console.
     }
     await observe?.(req, problem);
     if (res.headersSent) return;
+    if (problem.retryAfterSeconds !== undefined) res.setHeader('Retry-After', String(Math.max(1, Math.ceil(problem.retryAfterSeconds))));
     res.status(problem.status).json({
       status: problem.status,
       code: problem.code,

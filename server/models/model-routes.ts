@@ -1,13 +1,14 @@
 import { Router } from 'express';
-import multer from 'multer';
 import { z } from 'zod';
 import { signedInUser } from '../auth/authenticate.js';
 import { requireRole } from '../auth/require-role.js';
 import { ApiError } from '../http/error-handler.js';
+import { clientGone } from '../http/client-gone.js';
 import { validate } from '../http/validate.js';
 import { MAX_CAVITY_SITES } from '../../shared/model/cavity-model.js';
-import { maskFromBitmap } from './mask-from-bitmap.js';
-import { checkModel } from './model-figures.js';
+import type { Compute } from '../compute/compute-pool.js';
+import { drawingUpload } from './drawing-upload.js';
+import { checkDrawingHeader } from './mask-from-bitmap.js';
 import type { ModelService } from './model-service.js';
 
 export const listQuery = z.object({
@@ -24,10 +25,11 @@ export const bitmapBody = z.object({
   widthNm: z.coerce.number().positive().max(1e6),
 });
 
-const upload = multer({ storage: multer.memoryStorage(), limits: { fileSize: 8 * 1024 * 1024, files: 1 } });
-
-/** /api/groups/:groupId/models — reading needs membership, writing the designer role. */
-export function modelRoutes(models: ModelService): Router {
+/**
+ * /api/groups/:groupId/models — reading needs membership, writing the designer role.
+ * Every rasterisation (validate, create, edit, drawing to mask) runs in the compute pool.
+ */
+export function modelRoutes(models: ModelService, compute: Compute): Router {
   const router = Router({ mergeParams: true });
 
   router.get('/', requireRole(), validate({ query: listQuery }), async (req, res) => {
@@ -36,23 +38,26 @@ export function modelRoutes(models: ModelService): Router {
 
   router.post('/', requireRole('designer'), validate({ body: documentBody }), async (req, res) => {
     const { document } = req.valid.body as z.infer<typeof documentBody>;
-    res.status(201).json(await models.create(req.membership!.groupId, signedInUser(req).id, document));
+    res.status(201).json(await models.create(req.membership!.groupId, signedInUser(req).id, document, null, clientGone(res)));
   });
 
-  router.post('/validate', requireRole(), validate({ body: documentBody }), (req, res) => {
+  router.post('/validate', requireRole(), validate({ body: documentBody }), async (req, res) => {
     const { document } = req.valid.body as z.infer<typeof documentBody>;
-    const checked = checkModel(document);
+    const checked = await models.check(document, clientGone(res));
     res.json({ ok: true, derived: checked.derived, columns: checked.columns });
   });
 
-  router.post('/mask-from-bitmap', requireRole('designer'), upload.single('file'), validate({ body: bitmapBody }), (req, res) => {
+  router.post('/mask-from-bitmap', requireRole('designer'), drawingUpload, validate({ body: bitmapBody }), async (req, res) => {
     if (!req.file) {
-      throw new ApiError(400, 'validation_failed', 'Attach the drawing as a PNG file in the field "file".', [
+      throw new ApiError(400, 'validation_failed', 'Attach the drawing as a PNG file in the multipart field "file".', [
         { path: 'file', message: 'missing' },
       ]);
     }
+    // The header is read here (no decoding), so a bomb is refused before it reaches a thread.
+    checkDrawingHeader(req.file.buffer);
     const { spacingNm, widthNm } = req.valid.body as z.infer<typeof bitmapBody>;
-    res.json(maskFromBitmap(req.file.buffer, spacingNm, widthNm, MAX_CAVITY_SITES));
+    const file = new Uint8Array(req.file.buffer);
+    res.json(await compute.run({ kind: 'mask-from-bitmap', file, spacingNm, widthNm, maxSites: MAX_CAVITY_SITES }, clientGone(res)));
   });
 
   router.get('/:modelId', requireRole(), validate({ params: modelParams }), async (req, res) => {
@@ -68,7 +73,7 @@ export function modelRoutes(models: ModelService): Router {
   router.put('/:modelId', requireRole('designer'), validate({ params: modelParams, body: documentBody }), async (req, res) => {
     const { modelId } = req.valid.params as z.infer<typeof modelParams>;
     const { document } = req.valid.body as z.infer<typeof documentBody>;
-    res.json(await models.update(req.membership!.groupId, signedInUser(req).id, modelId, document));
+    res.json(await models.update(req.membership!.groupId, signedInUser(req).id, modelId, document, clientGone(res)));
   });
 
   return router;

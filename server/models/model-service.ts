@@ -1,10 +1,10 @@
 import type { Db } from '../db/client.js';
 import { writeAudit } from '../audit/audit-log.js';
 import { ApiError } from '../http/error-handler.js';
-import { checkModel } from './model-figures.js';
+import type { Compute } from '../compute/compute-pool.js';
 import * as repo from './model-repository.js';
 import { deriveFigures } from '../../shared/model/derived-figures.js';
-import { validateCavityModel } from '../../shared/model/cavity-model.js';
+import { cavityModelSchema, type CavityModel } from '../../shared/model/cavity-model.js';
 
 export function modelNotFound(): ApiError {
   return new ApiError(404, 'not_found', 'No such cavity model in this group.');
@@ -31,7 +31,16 @@ export function toSummary(r: SummaryRow) {
 
 /** Versioned cavity models: a version is never changed; an edit writes the next one. */
 export class ModelService {
-  constructor(private readonly db: Db) {}
+  /** `compute` checks documents off the API thread (the pool in the app, inline in scripts). */
+  constructor(
+    private readonly db: Db,
+    private readonly compute: Compute,
+  ) {}
+
+  /** Validates and rasterises a document in the compute pool; throws the 400 naming each field. */
+  check(document: unknown, signal?: AbortSignal) {
+    return this.compute.run({ kind: 'check-model', document }, signal);
+  }
 
   async list(groupId: string, f: repo.ModelListFilter) {
     const { rows, total } = await repo.listModels(this.db, groupId, f);
@@ -46,7 +55,7 @@ export class ModelService {
     return {
       ...toSummary(summary),
       document: version!.document,
-      derived: derivedOf(version!.document),
+      derived: derivedOf(version!.document, version!.siteCount),
       versions: versions.map((v) => ({
         version: v.version,
         createdAt: v.createdAt,
@@ -59,11 +68,11 @@ export class ModelService {
   async version(groupId: string, modelId: string, version: number) {
     const v = await repo.findVersion(this.db, groupId, modelId, version);
     if (!v) throw new ApiError(404, 'not_found', `This model has no version ${version}.`);
-    return { version: v.version, document: v.document, derived: derivedOf(v.document), createdAt: v.createdAt };
+    return { version: v.version, document: v.document, derived: derivedOf(v.document, v.siteCount), createdAt: v.createdAt };
   }
 
-  async create(groupId: string, userId: string, document: unknown, referenceKey: string | null = null) {
-    const checked = checkModel(document);
+  async create(groupId: string, userId: string, document: unknown, referenceKey: string | null = null, signal?: AbortSignal) {
+    const checked = await this.check(document, signal);
     const id = await this.db.transaction(async (tx) => {
       const modelId = await repo.insertModel(tx, groupId, userId, checked.model.name, referenceKey);
       await repo.insertVersion(tx, groupId, modelId, 1, userId, checked.model, checked.columns);
@@ -73,8 +82,8 @@ export class ModelService {
     return this.detail(groupId, id);
   }
 
-  async update(groupId: string, userId: string, modelId: string, document: unknown) {
-    const checked = checkModel(document);
+  async update(groupId: string, userId: string, modelId: string, document: unknown, signal?: AbortSignal) {
+    const checked = await this.check(document, signal);
     await this.db.transaction(async (tx) => {
       const current = await repo.lockModel(tx, groupId, modelId);
       if (!current) throw modelNotFound();
@@ -93,9 +102,15 @@ export class ModelService {
   }
 }
 
-/** Derived figures of a stored (already valid) document. */
-export function derivedOf(document: unknown) {
-  const v = validateCavityModel(document);
-  if (!v.ok) throw new ApiError(500, 'stored_model_invalid', 'A stored model version no longer validates; please report this.');
-  return deriveFigures(v.model, v.siteCount);
+/** The fields of a document the derived figures read (not the shape or the potential). */
+const figureFields = cavityModelSchema.pick({ name: true, spacing: true, material: true, field: true, leads: true });
+
+/**
+ * Derived figures of a stored (already valid) document, from its stored site count:
+ * nothing is rasterised, so reading a model costs O(leads) on the API thread.
+ */
+export function derivedOf(document: unknown, siteCount: number) {
+  const v = figureFields.safeParse(document);
+  if (!v.success) throw new ApiError(500, 'stored_model_invalid', 'A stored model version no longer validates; please report this.');
+  return deriveFigures(v.data as CavityModel, siteCount);
 }

@@ -270,6 +270,7 @@ const operations: Operation[] = [
     body: bitmapUpload,
     bodyMediaType: 'multipart/form-data',
     success: json(200, 'The mask', answers.bitmapMaskSchema),
+    errors: { 413: 'payload_too_large (file over 8 MiB) or image_too_large (over 4096×4096 pixels, read from the header)', 415: 'unsupported_media_type: not a PNG' },
   },
   { id: 'getModel', method: 'get', path: '/groups/{groupId}/models/{modelId}', tag: 'models', summary: 'A model: latest document, derived figures, versions', access: 'member', params: modelParams, success: json(200, 'The model', answers.modelDetailSchema) },
   {
@@ -314,6 +315,7 @@ const operations: Operation[] = [
     access: 'designer',
     params: groupParams,
     body: runRequest,
+    errors: { 422: 'run_too_large: estimated above POLEWARD_RUN_MAX_SECONDS; the message says what to shrink', 429: 'too_many_runs: queued + running runs at the limit; see Retry-After' },
     success: json(201, 'Queued', answers.runSchema),
   },
   { id: 'listRuns', method: 'get', path: '/groups/{groupId}/runs', tag: 'runs', summary: 'Runs of the group, newest first', access: 'member', params: groupParams, query: runListQuery, success: json(200, 'One page of runs', answers.runListSchema) },

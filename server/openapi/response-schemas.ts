@@ -201,8 +201,11 @@ export const runEstimateSchema = z
     thresholdsInWindow: z.array(z.number()),
     expectedLevels: z.number().int().describe("closed-cavity levels in the window by Weyl's law"),
     factorisations: z.number().int(),
-    secondsPerFactorisation: z.number().describe('one LU and probe solve, timed on the server'),
-    expectedSeconds: z.number(),
+    secondsPerFactorisation: z.number().describe('modelled seconds of one pole-search step (an LU and its probe solves)'),
+    expectedSeconds: z.number().describe('the cost model applied to the run (deterministic; measured accuracy in docs/api.md)'),
+    method: z.object({ kind: z.literal('cost-model'), engineVersion: z.string(), calibratedAt: z.string() }),
+    limitSeconds: z.number().optional().describe("this server's limit per run (POLEWARD_RUN_MAX_SECONDS)"),
+    withinLimit: z.boolean().optional().describe('false: POST /runs would refuse this run with 422 run_too_large'),
     warnings: z.array(z.string()),
   })
   .meta({ id: 'RunEstimate' });

@@ -1,19 +1,41 @@
+import { readFileSync } from 'node:fs';
 import { buildCavitySystem, EffectiveHamiltonian } from '../../shared/engine/effective-hamiltonian.js';
 import { SparseLuPlan } from '../../shared/engine/sparse-lu.js';
 import { energyValidity } from '../../shared/model/derived-figures.js';
-import { spectrumBudget } from '../jobs/engine-task.js';
+import { ENGINE_VERSION, spectrumBudget } from '../jobs/engine-task.js';
 import { POLE_SEARCH_SPECTRUM_POINTS } from '../jobs/run-job.js';
 import type { RunRequest } from './run-window.js';
 
 /**
- * Contour nodes (one LU each) a pole search spends per window piece, and per pole
- * it finds, fitted by eye to the demo devices (common practice, no source; the
- * estimate is good to about a factor of two).
+ * The constants of the run cost model, fitted by `npx tsx scripts/calibrate-estimate.ts`
+ * to measured runs of the bench cavities and the demo devices, and stored with the
+ * engine version they were measured on (run-cost-model.json beside this file).
  */
-const NODES_PER_PIECE = 200;
-const NODES_PER_POLE = 40;
-/** Probe vectors of a contour node's solve (the pole search's default). */
-const PROBES = 6;
+export interface RunCostModel {
+  engineVersion: string;
+  calibratedAt: string;
+  /** How the figures were measured (machine, load average), for the reader. */
+  measuredOn: string;
+  /** Seconds of one contour node or Newton step of a pole search: perFlop·flops + perNonzero·nnz(L+U) + perSite·n. */
+  poleStep: { perFlop: number; perNonzero: number; perSite: number };
+  /** Seconds of one energy of a transmission sweep, same form. */
+  sweepEnergy: { perFlop: number; perNonzero: number; perSite: number };
+  /**
+   * LU factorisations of a pole search: base + perPiece·pieces + perLevel·L + perLevelSquared·L²,
+   * L the levels expected in the window. The square is empirical (no theory): on the
+   * calibration cases the count grows about as L², through contour subdivisions and
+   * Newton refinements that both grow with the poles inside.
+   */
+  poleLUs: { base: number; perPiece: number; perLevel: number; perLevelSquared: number };
+  /** Energies a sweep computes, per energy of its grid (the adaptive refinement adds some). */
+  energiesPerPoint: { poleSearch: number; transmission: number };
+  /** Seconds to build the operator and analyse its pattern, per site. */
+  setupPerSite: number;
+  /** Accuracy measured when the constants were fitted: largest estimate/measured ratio and its inverse. */
+  accuracy: { worstOver: number; worstUnder: number; cases: number };
+  /** The measurements the constants were fitted to (CPU seconds, LU counts), so a refit needs no new runs. */
+  measurements?: unknown[];
+}
 
 export interface RunEstimate {
   sites: number;
@@ -22,68 +44,119 @@ export interface RunEstimate {
   /** Closed-cavity levels expected in the window by Weyl's law: an upper bound on the poles. */
   expectedLevels: number;
   factorisations: number;
-  /** Seconds of one LU of z − H_eff and one probe solve, measured now on this machine. */
+  /** Modelled seconds of one pole-search step (an LU of z − H_eff and its probe solves). */
   secondsPerFactorisation: number;
   expectedSeconds: number;
+  /** How the time was estimated: the cost model's engine version and calibration date. */
+  method: { kind: 'cost-model'; engineVersion: string; calibratedAt: string };
   warnings: string[];
 }
 
+/** What the cost of a run depends on; computed from the model and the window alone (no LU). */
+export interface RunCostFeatures {
+  sites: number;
+  factorFlops: number;
+  factorNonzeros: number;
+  pieces: number;
+  thresholdsInWindow: number[];
+  expectedLevels: number;
+  /** Energies of the sweep's grid (the spectrum beside a pole search, or the transmission run's). */
+  spectrumPoints: number;
+  kind: RunRequest['kind'];
+  hopping: number;
+  spacing: number;
+  allThresholds: number[];
+}
+
 /**
- * What a run will cost and what to watch out for, before it is queued: one symbolic
- * analysis and one timed numeric factorisation of the model's operator.
+ * The features of a run: the operator's size, its predicted LU work from the
+ * symbolic analysis (ordering and fronts, no numeric factorisation), the pieces
+ * the window splits into at channel thresholds and the levels expected in it.
+ * Deterministic: the same model and window give the same features. Cost: one
+ * symbolic analysis, O(nnz(L)).
  */
-export function estimateRun(document: unknown, req: Pick<RunRequest, 'kind' | 'window'>): RunEstimate {
+export function runCostFeatures(document: unknown, req: Pick<RunRequest, 'kind' | 'window'>): RunCostFeatures {
   const system = buildCavitySystem(document);
   const op = new EffectiveHamiltonian(system);
   const plan = SparseLuPlan.analyse(op.n, op.colPtr, op.rowIdx, { sites: op.sites });
   const { emin, emax } = req.window;
   const inside = op.thresholds.filter((e) => e > emin && e < emax);
-  const pieces = inside.length + 1;
-
   // Weyl's law for a 2D billiard: N(E) ≈ A·E/(4π·ħ²/2m*) = sites·E/(4π t) on the lattice
   // (e.g. Stöckmann, "Quantum Chaos: An Introduction", ch. 3; leading term only).
   const expectedLevels = Math.max(0, Math.round((op.n * (Math.max(emax, 0) - Math.max(emin, 0))) / (4 * Math.PI * op.hopping)));
-
-  const z = { re: 0.5 * (emin + emax), im: -0.25 * ('gammaMax' in req.window ? req.window.gammaMax : 0) };
-  const values = new Float64Array(2 * op.rowIdx.length);
-  op.assemble(z, op.sheetAt(z.re), values);
-  const rhs = new Float64Array(2 * op.n * PROBES).fill(1);
-  const out = new Float64Array(rhs.length);
-  // The first factorisation of a plan runs cold (JIT, allocation); time the quicker of the next two.
-  plan.factor(values).solve(rhs, PROBES, out);
-  let secondsPerFactorisation = Infinity;
-  for (let k = 0; k < 2; k++) {
-    const started = performance.now();
-    plan.factor(values).solve(rhs, PROBES, out);
-    secondsPerFactorisation = Math.min(secondsPerFactorisation, (performance.now() - started) / 1000);
-  }
-
-  const spectrumPoints = req.kind === 'transmission' ? (req.window as { points: number }).points : POLE_SEARCH_SPECTRUM_POINTS;
-  // The sweep's refinement may use its whole budget; each grid energy also costs one probe above the axis.
-  const spectrumLUs = spectrumBudget(req.kind, spectrumPoints) + spectrumPoints;
-  const poleLUs = req.kind === 'pole-search' ? pieces * NODES_PER_PIECE + NODES_PER_POLE * expectedLevels : 0;
-  const factorisations = poleLUs + spectrumLUs;
-  const expectedSeconds = factorisations * secondsPerFactorisation * 1.2;
-
-  const warnings: string[] = [];
-  warnings.push(...energyValidity(emax, op.hopping, system.spacing).warnings);
-  if (inside.length > 0) {
-    warnings.push(
-      `${inside.length} channel threshold(s) lie inside the window; it is searched piece by piece, and poles within 3 widths of a threshold are flagged (their widths depend strongly on the exact threshold).`,
-    );
-  }
-  if (op.thresholds.length > 0 && emax < Math.min(...op.thresholds)) {
-    warnings.push('No lead channel is open anywhere in the window: only bound states can be found there.');
-  }
-  if (expectedSeconds > 600) warnings.push('This run is expected to take more than ten minutes.');
   return {
     sites: op.n,
-    pieces,
+    factorFlops: plan.factorFlops,
+    factorNonzeros: plan.factorNonzeros,
+    pieces: inside.length + 1,
     thresholdsInWindow: inside,
     expectedLevels,
-    factorisations,
-    secondsPerFactorisation,
-    expectedSeconds,
+    spectrumPoints: req.kind === 'transmission' ? (req.window as { points: number }).points : POLE_SEARCH_SPECTRUM_POINTS,
+    kind: req.kind,
+    hopping: op.hopping,
+    spacing: system.spacing,
+    allThresholds: [...op.thresholds],
+  };
+}
+
+const stepSeconds = (c: RunCostModel['poleStep'], f: RunCostFeatures) => c.perFlop * f.factorFlops + c.perNonzero * f.factorNonzeros + c.perSite * f.sites;
+
+/** The modelled time of a run, split into its parts (seconds). */
+export function predictRunSeconds(f: RunCostFeatures, m: RunCostModel) {
+  const L = f.expectedLevels;
+  const poleLUs =
+    f.kind === 'pole-search' ? Math.round(m.poleLUs.base + m.poleLUs.perPiece * f.pieces + m.poleLUs.perLevel * L + (m.poleLUs.perLevelSquared ?? 0) * L * L) : 0;
+  const perPoint = f.kind === 'transmission' ? m.energiesPerPoint.transmission : m.energiesPerPoint.poleSearch;
+  const energies = Math.min(spectrumBudget(f.kind, f.spectrumPoints), Math.round(perPoint * f.spectrumPoints));
+  const poleStep = stepSeconds(m.poleStep, f);
+  const setup = m.setupPerSite * f.sites;
+  const poles = poleLUs * poleStep;
+  const sweep = energies * stepSeconds(m.sweepEnergy, f);
+  return { poleLUs, energies, poleStep, setup, poles, sweep, total: setup + poles + sweep };
+}
+
+const costModelFile = new URL('./run-cost-model.json', import.meta.url);
+let loaded: RunCostModel | null = null;
+
+/** The stored cost model (read once). */
+export function runCostModel(): RunCostModel {
+  loaded ??= JSON.parse(readFileSync(costModelFile, 'utf8')) as RunCostModel;
+  return loaded;
+}
+
+/**
+ * What a run will cost and what to watch out for, before it is queued: the cost
+ * model applied to the run's features. Nothing is factorised or timed, so identical
+ * requests get identical estimates. Runs in a compute thread (a symbolic analysis
+ * at 100,000 sites takes about a second).
+ */
+export function estimateRun(document: unknown, req: Pick<RunRequest, 'kind' | 'window'>, model: RunCostModel = runCostModel()): RunEstimate {
+  const f = runCostFeatures(document, req);
+  const p = predictRunSeconds(f, model);
+  const { emax } = req.window;
+  const warnings: string[] = [];
+  warnings.push(...energyValidity(emax, f.hopping, f.spacing).warnings);
+  if (f.thresholdsInWindow.length > 0) {
+    warnings.push(
+      `${f.thresholdsInWindow.length} channel threshold(s) lie inside the window; it is searched piece by piece, and poles within 3 widths of a threshold are flagged (their widths depend strongly on the exact threshold).`,
+    );
+  }
+  if (f.allThresholds.length > 0 && emax < Math.min(...f.allThresholds)) {
+    warnings.push('No lead channel is open anywhere in the window: only bound states can be found there.');
+  }
+  if (model.engineVersion !== ENGINE_VERSION) {
+    warnings.push(`The time is estimated with figures measured on ${model.engineVersion}, not the running ${ENGINE_VERSION}; it may be off until the cost model is calibrated again.`);
+  }
+  if (p.total > 600) warnings.push('This run is expected to take more than ten minutes.');
+  return {
+    sites: f.sites,
+    pieces: f.pieces,
+    thresholdsInWindow: f.thresholdsInWindow,
+    expectedLevels: f.expectedLevels,
+    factorisations: p.poleLUs + p.energies,
+    secondsPerFactorisation: p.poleStep,
+    expectedSeconds: p.total,
+    method: { kind: 'cost-model', engineVersion: model.engineVersion, calibratedAt: model.calibratedAt },
     warnings,
   };
 }

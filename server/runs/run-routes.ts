@@ -2,6 +2,7 @@ import { Router } from 'express';
 import { z } from 'zod';
 import { signedInUser } from '../auth/authenticate.js';
 import { requireRole } from '../auth/require-role.js';
+import { clientGone } from '../http/client-gone.js';
 import { validate } from '../http/validate.js';
 import { RUN_KINDS } from '../jobs/queues.js';
 import type { RunEvents } from './run-events.js';
@@ -23,11 +24,11 @@ export function runRoutes(runsService: RunService, events: RunEvents | null): Ro
   const router = Router({ mergeParams: true });
 
   router.post('/estimate', requireRole('designer'), validate({ body: runRequestSchema }), async (req, res) => {
-    res.json(await runsService.estimate(req.membership!.groupId, req.valid.body as RunRequest));
+    res.json(await runsService.estimate(req.membership!.groupId, req.valid.body as RunRequest, clientGone(res)));
   });
 
   router.post('/', requireRole('designer'), validate({ body: runRequestSchema }), async (req, res) => {
-    res.status(201).json(await runsService.create(req.membership!.groupId, signedInUser(req).id, req.valid.body as RunRequest));
+    res.status(201).json(await runsService.create(req.membership!.groupId, signedInUser(req).id, req.valid.body as RunRequest, clientGone(res)));
   });
 
   router.get('/', requireRole(), validate({ query: listQuery }), async (req, res) => {

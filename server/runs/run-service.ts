@@ -8,9 +8,8 @@ import type { RunKind } from '../jobs/queues.js';
 import { findVersion } from '../models/model-repository.js';
 import { derivedOf, modelNotFound } from '../models/model-service.js';
 import { toResonanceRow } from '../catalogue/resonance-row.js';
-import { InvalidModelError } from '../../shared/engine/effective-hamiltonian.js';
-import { invalidModel } from '../models/model-figures.js';
-import { estimateRun } from './run-estimate.js';
+import type { Compute } from '../compute/compute-pool.js';
+import { checkRunSize, checkRunSlots, type RunLimits } from './run-limits.js';
 import * as repo from './run-repository.js';
 import type { RunRequest } from './run-window.js';
 
@@ -48,10 +47,20 @@ export function toRunView(r: RunRow) {
 }
 
 export class RunService {
+  /**
+   * `compute` runs the estimate off the API thread (the pool in the app, inline in
+   * scripts); `limits` caps run size and runs in flight (none for scripts such as the seed).
+   */
   constructor(
     private readonly db: Db,
     private readonly queue: RunQueue,
+    private readonly compute: Compute,
+    private readonly limits: RunLimits | null = null,
   ) {}
+
+  private async estimateOf(document: unknown, req: RunRequest, signal?: AbortSignal) {
+    return this.compute.run({ kind: 'estimate-run', document, request: { kind: req.kind, window: req.window } as Pick<RunRequest, 'kind' | 'window'> }, signal);
+  }
 
   private async version(groupId: string, req: Pick<RunRequest, 'modelId' | 'version'>) {
     const v = await findVersion(this.db, groupId, req.modelId, req.version);
@@ -59,15 +68,29 @@ export class RunService {
     return v;
   }
 
-  async estimate(groupId: string, req: RunRequest) {
+  async estimate(groupId: string, req: RunRequest, signal?: AbortSignal) {
     const v = await this.version(groupId, req);
-    return estimateOrThrow(v.document, req);
+    const estimate = await this.estimateOf(v.document, req, signal);
+    if (!this.limits) return estimate;
+    const withinLimit = estimate.expectedSeconds <= this.limits.maxSeconds;
+    const warnings = [...estimate.warnings];
+    if (!withinLimit) {
+      // Say it before the launch is refused: the launcher shows the estimate's warnings.
+      try {
+        checkRunSize(estimate, req, this.limits);
+      } catch (err) {
+        if (err instanceof ApiError) warnings.unshift(`Launching this run will be refused. ${err.message}`);
+      }
+    }
+    return { ...estimate, limitSeconds: this.limits.maxSeconds, withinLimit, warnings };
   }
 
-  async create(groupId: string, userId: string, req: RunRequest) {
+  async create(groupId: string, userId: string, req: RunRequest, signal?: AbortSignal) {
     const v = await this.version(groupId, req);
-    const estimate = estimateOrThrow(v.document, req);
+    const estimate = await this.estimateOf(v.document, req, signal);
+    if (this.limits) checkRunSize(estimate, req, this.limits);
     const runId = await this.db.transaction(async (tx) => {
+      if (this.limits) await checkRunSlots(tx, groupId, userId, this.limits);
       const [row] = await tx
         .insert(runs)
         .values({
@@ -121,10 +144,10 @@ export class RunService {
       repo.runSpectrum(this.db, groupId, runId),
     ]);
     const v = await findVersion(this.db, groupId, r.modelId, r.modelVersion);
-    const derived = v ? derivedOf(v.document) : null;
+    const derived = v ? derivedOf(v.document, v.siteCount) : null;
     return {
       ...toRunView(r),
-      thresholds: r.run.thresholds ?? estimateThresholds(v?.document, r.run.window),
+      thresholds: r.run.thresholds ?? estimateThresholds(v, r.run.window),
       poles: poles.map(toResonanceRow),
       spectrum,
       // Lead names in engine order: the spectrum's pairs index into this list.
@@ -166,18 +189,9 @@ export class RunService {
   }
 }
 
-function estimateOrThrow(document: unknown, req: Pick<RunRequest, 'kind' | 'window'>) {
-  try {
-    return estimateRun(document, req);
-  } catch (err) {
-    if (err instanceof InvalidModelError) throw invalidModel(err.issues);
-    throw err;
-  }
-}
-
 /** Channel thresholds (meV) of a stored model inside a window, from its derived figures (no LU needed). */
-function estimateThresholds(document: unknown, window: Record<string, number>): number[] {
-  if (!document) return [];
-  const all = derivedOf(document).leads.flatMap((l) => l.thresholds.flatMap((t) => [t.opens, t.closes]));
+function estimateThresholds(v: { document: unknown; siteCount: number } | null, window: Record<string, number>): number[] {
+  if (!v) return [];
+  const all = derivedOf(v.document, v.siteCount).leads.flatMap((l) => l.thresholds.flatMap((t) => [t.opens, t.closes]));
   return [...new Set(all)].filter((e) => e >= window.emin && e <= window.emax).sort((a, b) => a - b);
 }

@@ -6,7 +6,8 @@
  */
 import { z } from 'zod';
 import { findMaterial, MATERIAL_PRESETS } from './materials';
-import { connectedComponents, mouthSites, rasteriseShape } from './geometry';
+import { DOCUMENT_LIMITS, checkDocumentLimits } from './document-limits';
+import { connectedComponents, mouthSites, rasteriseShape, rasterWork } from './geometry';
 
 /** Largest grid (nx·ny) a model may declare. */
 export const MAX_GRID_POINTS = 250_000;
@@ -46,10 +47,19 @@ export const stadiumSchema = z.object({
 export const annulusSchema = z
   .object({ kind: z.literal('annulus'), cx: finite(), cy: finite(), inner: nonNegative(), outer: positive() })
   .refine((a) => a.inner < a.outer, { message: 'inner radius must be smaller than outer radius', path: ['inner'] });
-export const polygonSchema = z.object({ kind: z.literal('polygon'), vertices: z.array(point).min(3, 'a polygon needs at least 3 vertices') });
+export const polygonSchema = z.object({
+  kind: z.literal('polygon'),
+  vertices: z
+    .array(point)
+    .min(3, 'a polygon needs at least 3 vertices')
+    .max(DOCUMENT_LIMITS.polygonVertices, `at most ${DOCUMENT_LIMITS.polygonVertices} vertices`),
+});
 export const siteListSchema = z.object({
   kind: z.literal('sites'),
-  list: z.array(z.tuple([siteIndex(), siteIndex()])).min(1, 'the site list is empty'),
+  list: z
+    .array(z.tuple([siteIndex(), siteIndex()]))
+    .min(1, 'the site list is empty')
+    .max(DOCUMENT_LIMITS.explicitSites, `at most ${DOCUMENT_LIMITS.explicitSites} sites`),
 });
 /**
  * A packed bitmap mask: `data` is base64 of `height` rows of ceil(width/8) bytes,
@@ -117,8 +127,15 @@ export const shapeSchema: z.ZodType<Shape> = z.lazy(() =>
         polygonSchema,
         siteListSchema,
         bitmapSchema,
-        z.object({ kind: z.literal('union'), of: z.array(shapeSchema).min(1, 'a union needs at least one shape') }),
-        z.object({ kind: z.literal('subtract'), from: shapeSchema, remove: z.array(shapeSchema) }),
+        z.object({
+          kind: z.literal('union'),
+          of: z.array(shapeSchema).min(1, 'a union needs at least one shape').max(DOCUMENT_LIMITS.shapeMembers, `at most ${DOCUMENT_LIMITS.shapeMembers} shapes`),
+        }),
+        z.object({
+          kind: z.literal('subtract'),
+          from: shapeSchema,
+          remove: z.array(shapeSchema).max(DOCUMENT_LIMITS.shapeMembers, `at most ${DOCUMENT_LIMITS.shapeMembers} shapes`),
+        }),
       ]),
     ),
 ) as unknown as z.ZodType<Shape>;
@@ -186,10 +203,10 @@ export const cavityModelSchema = z.object({
   material: materialSchema,
   grid: z.object({ nx: z.number().int().positive(), ny: z.number().int().positive() }),
   shape: shapeSchema,
-  potential: z.array(potentialTermSchema).default([]),
+  potential: z.array(potentialTermSchema).max(DOCUMENT_LIMITS.potentialTerms).default([]),
   /** Perpendicular field B (T), along +z. */
   field: finite().default(0),
-  leads: z.array(leadSchema).default([]),
+  leads: z.array(leadSchema).max(DOCUMENT_LIMITS.leads).default([]),
 });
 /** A parsed model (defaults filled in). */
 export type CavityModel = z.infer<typeof cavityModelSchema>;
@@ -263,6 +280,9 @@ function checkShapeBounds(shape: Shape, path: (string | number)[], nx: number, n
  * one flood fill, O(nx·ny).
  */
 export function validateCavityModel(doc: unknown): ModelValidation {
+  // Size caps first, on the raw JSON: the schema check below recurses through the shape tree.
+  const tooLarge = checkDocumentLimits(doc);
+  if (tooLarge.length) return { ok: false, issues: tooLarge };
   const parsed = cavityModelSchema.safeParse(doc);
   if (!parsed.success) {
     return {
@@ -293,6 +313,16 @@ export function validateCavityModel(doc: unknown): ModelValidation {
   });
   if (issues.length) return { ok: false, issues };
 
+  const work = rasterWork(model.shape, nx, ny, model.spacing);
+  if (work > DOCUMENT_LIMITS.rasterWork) {
+    issues.push({
+      path: ['shape'],
+      message:
+        `drawing this shape on the ${nx}×${ny} grid takes about ${work.toExponential(1)} site tests, above the limit of ${DOCUMENT_LIMITS.rasterWork.toExponential(1)}; ` +
+        'use fewer polygon vertices, fewer combined shapes, or a smaller grid',
+    });
+    return { ok: false, issues };
+  }
   const mask = rasteriseShape(model.shape, nx, ny, model.spacing);
   let siteCount = 0;
   for (let s = 0; s < mask.length; s++) siteCount += mask[s];

@@ -53,6 +53,114 @@ function fillWhere(
 }
 
 /**
+ * Even-odd fill of a polygon, row by row: site (i, j) is inside when an odd number
+ * of edges crossing the row y = j·a lie to its right (x < crossing), the same test
+ * and arithmetic as the per-site crossing rule, with the half-open comparison
+ * counting a vertex once. Sorting each row's crossings makes the cost
+ * O(rows·V·log V + sites) instead of O(sites·V).
+ */
+function fillPolygon(mask: Uint8Array, nx: number, ny: number, a: number, vertices: readonly (readonly [number, number])[]): void {
+  const n = vertices.length;
+  const vx = new Float64Array(n);
+  const vy = new Float64Array(n);
+  vertices.forEach(([x, y], k) => {
+    vx[k] = x;
+    vy[k] = y;
+  });
+  const [minX, minY, maxX, maxY] = shapeBox({ kind: 'polygon', vertices: vertices as [number, number][] })!;
+  const i0 = Math.max(0, Math.floor(minX / a) - 1);
+  const i1 = Math.min(nx - 1, Math.ceil(maxX / a) + 1);
+  const j0 = Math.max(0, Math.floor(minY / a) - 1);
+  const j1 = Math.min(ny - 1, Math.ceil(maxY / a) + 1);
+  const crossings = new Float64Array(n);
+  for (let j = j0; j <= j1; j++) {
+    const y = j * a;
+    let m = 0;
+    for (let k = 0, l = n - 1; k < n; l = k++) {
+      const xk = vx[k], yk = vy[k], xl = vx[l], yl = vy[l];
+      if (yk > y !== yl > y) crossings[m++] = ((xl - xk) * (y - yk)) / (yl - yk) + xk;
+    }
+    if (m === 0) continue;
+    const row = crossings.subarray(0, m).sort();
+    // c = crossings at or left of x; the ones right of x (x < crossing) number m − c.
+    let c = 0;
+    for (let i = i0; i <= i1; i++) {
+      const x = i * a;
+      while (c < m && !(x < row[c])) c++;
+      if ((m - c) & 1) mask[i * ny + j] = 1;
+    }
+  }
+}
+
+/** Bounding box (nm) [xmin, ymin, xmax, ymax] of a primitive drawn in nm; null for sites and bitmaps. */
+function shapeBox(shape: Shape): [number, number, number, number] | null {
+  switch (shape.kind) {
+    case 'rectangle':
+      return [shape.x0, shape.y0, shape.x0 + shape.width, shape.y0 + shape.height];
+    case 'disk':
+      return [shape.cx - shape.radius, shape.cy - shape.radius, shape.cx + shape.radius, shape.cy + shape.radius];
+    case 'ellipse': {
+      const r = Math.max(shape.rx, shape.ry);
+      return [shape.cx - r, shape.cy - r, shape.cx + r, shape.cy + r];
+    }
+    case 'stadium': {
+      const half = shape.length / 2;
+      return [shape.cx - half - shape.radius, shape.cy - shape.radius, shape.cx + half + shape.radius, shape.cy + shape.radius];
+    }
+    case 'annulus':
+      return [shape.cx - shape.outer, shape.cy - shape.outer, shape.cx + shape.outer, shape.cy + shape.outer];
+    case 'polygon': {
+      let minX = Infinity, minY = Infinity, maxX = -Infinity, maxY = -Infinity;
+      for (const [x, y] of shape.vertices) {
+        minX = Math.min(minX, x); maxX = Math.max(maxX, x);
+        minY = Math.min(minY, y); maxY = Math.max(maxY, y);
+      }
+      return [minX, minY, maxX, maxY];
+    }
+    default:
+      return null;
+  }
+}
+
+/** Grid sites fillWhere scans for a bounding box (the same clipping, so the count is exact). */
+function boxSites(box: [number, number, number, number], nx: number, ny: number, a: number): number {
+  const i0 = Math.max(0, Math.floor(box[0] / a) - 1);
+  const i1 = Math.min(nx - 1, Math.ceil(box[2] / a) + 1);
+  const j0 = Math.max(0, Math.floor(box[1] / a) - 1);
+  const j1 = Math.min(ny - 1, Math.ceil(box[3] / a) + 1);
+  return Math.max(0, i1 - i0 + 1) * Math.max(0, j1 - j0 + 1);
+}
+
+/**
+ * Work of rasteriseShape in site tests, computed without rasterising: Σ over
+ * primitives of the sites scanned (plus rows × V·log V for a polygon), plus one grid pass
+ * (nx·ny) for every shape's mask and every member a combinator merges. Cost
+ * O(shapes + vertices). Used to refuse a document before the work starts.
+ */
+export function rasterWork(shape: Shape, nx: number, ny: number, a: number): number {
+  const grid = nx * ny;
+  switch (shape.kind) {
+    case 'sites':
+      return grid + shape.list.length;
+    case 'bitmap':
+      return grid + shape.width * shape.height;
+    case 'union':
+      return grid + shape.of.reduce((s, m) => s + grid + rasterWork(m, nx, ny, a), 0);
+    case 'subtract':
+      return grid + rasterWork(shape.from, nx, ny, a) + shape.remove.reduce((s, m) => s + grid + rasterWork(m, nx, ny, a), 0);
+    case 'polygon': {
+      // Row scan: each row tests every edge (and sorts its crossings), then passes its sites.
+      const box = shapeBox(shape)!;
+      const rows = boxSites([0, box[1], 0, box[3]], 1, ny, a);
+      const v = shape.vertices.length;
+      return grid + rows * v * (1 + Math.log2(v)) + boxSites(box, nx, ny, a);
+    }
+    default:
+      return grid + boxSites(shapeBox(shape)!, nx, ny, a);
+  }
+}
+
+/**
  * The site mask (1 = cavity) of a shape tree on an nx × ny grid of spacing a (nm).
  * Cost O(Σ bounding-box sites of the primitives); combinators add O(nx·ny) each.
  */
@@ -105,25 +213,9 @@ export function rasteriseShape(shape: Shape, nx: number, ny: number, a: number):
       });
       break;
     }
-    case 'polygon': {
-      const v = shape.vertices;
-      let minX = Infinity, minY = Infinity, maxX = -Infinity, maxY = -Infinity;
-      for (const [x, y] of v) {
-        minX = Math.min(minX, x); maxX = Math.max(maxX, x);
-        minY = Math.min(minY, y); maxY = Math.max(maxY, y);
-      }
-      fillWhere(mask, nx, ny, a, [minX, minY, maxX, maxY], (x, y) => {
-        // Even-odd crossing test; the half-open comparison counts a vertex once.
-        let inside = false;
-        for (let k = 0, l = v.length - 1; k < v.length; l = k++) {
-          const [xk, yk] = v[k];
-          const [xl, yl] = v[l];
-          if (yk > y !== yl > y && x < ((xl - xk) * (y - yk)) / (yl - yk) + xk) inside = !inside;
-        }
-        return inside;
-      });
+    case 'polygon':
+      fillPolygon(mask, nx, ny, a, shape.vertices);
       break;
-    }
     case 'sites':
       for (const [i, j] of shape.list) if (i < nx && j < ny) mask[i * ny + j] = 1;
       break;

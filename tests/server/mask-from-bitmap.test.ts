@@ -62,7 +62,7 @@ describe('a drawn outline becomes a site mask', () => {
 
   it('refuses a file that is not a PNG, an empty drawing and a missing file, naming the field', async () => {
     const notPng = await upload(designer, Buffer.from('hello'), { spacingNm: '5', widthNm: '400' }, 'outline.txt');
-    expect(notPng.status).toBe(400);
+    expect(notPng.status).toBe(415); // Unsupported Media Type: the bytes are not a PNG
     expect(notPng.body.issues[0].path).toBe('file');
     const empty = await upload(designer, diskDrawing(100, 0), { spacingNm: '5', widthNm: '400' });
     expect(empty.status).toBe(400);

@@ -13,6 +13,7 @@ import { handleRunJob } from '../../server/jobs/run-job.js';
 import { runInThread } from '../../server/jobs/thread-runner.js';
 import { runPartitioned } from '../../server/jobs/partitioned-run.js';
 import { startWorkerLoop } from '../../server/jobs/worker.js';
+import { inlineCompute } from '../../server/compute/compute-pool.js';
 import { ModelService } from '../../server/models/model-service.js';
 import { RunService } from '../../server/runs/run-service.js';
 import { projectRoot } from '../../server/config.js';
@@ -31,8 +32,8 @@ beforeAll(async () => {
   handle = connectDb(testDatabaseUrl(), 4);
   boss = await startBoss({ databaseUrl: testDatabaseUrl() });
   lab = await createLab(handle.db, ['designer']);
-  models = new ModelService(handle.db);
-  runService = new RunService(handle.db, runQueue(boss));
+  models = new ModelService(handle.db, inlineCompute);
+  runService = new RunService(handle.db, runQueue(boss), inlineCompute);
 });
 afterAll(async () => {
   for (const c of children) if (c.exitCode === null) c.kill('SIGKILL');

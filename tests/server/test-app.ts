@@ -3,7 +3,7 @@
 import { createServer, type Server } from 'node:http';
 import type { AddressInfo } from 'node:net';
 import { inject } from 'vitest';
-import { createApp, type AppDeps } from '../../server/app.js';
+import { closeApp, createApp, type AppDeps } from '../../server/app.js';
 import { loadConfig, type Config } from '../../server/config.js';
 import { connectDb, type DbHandle } from '../../server/db/client.js';
 import { startMailStandIn, type MailStandIn } from '../../server/mail/mail-stand-in.js';
@@ -56,6 +56,11 @@ export async function startTestApp(
     POLEWARD_JWT_SECRET: testJwtSecret,
     POLEWARD_PUBLIC_URL: 'http://127.0.0.1:8640',
     POLEWARD_SMTP_URL: `smtp://127.0.0.1:${standIn.port}`,
+    // Tests queue runs that no worker takes; the run limits have their own tests (input-limits).
+    POLEWARD_RUNS_PER_USER: '1000',
+    POLEWARD_RUNS_PER_GROUP: '1000',
+    // One compute thread: the test process shares two cores with vitest and PostgreSQL.
+    POLEWARD_COMPUTE_THREADS: '1',
     ...overrides.env,
   });
   Object.assign(config, overrides.config);
@@ -73,6 +78,7 @@ export async function startTestApp(
     standIn,
     async close() {
       await new Promise<void>((done) => server.close(() => done()));
+      await closeApp(app);
       await standIn.close();
       mailer.close();
       await handle.close();

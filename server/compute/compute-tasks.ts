@@ -1,0 +1,63 @@
+/**
+ * The geometry and engine work a request needs, as pure functions of plain data:
+ * they run in the compute pool's threads (compute-pool.ts), never on the API's
+ * event loop. An expected refusal (a bad model, a drawing too large) comes back as
+ * a problem, since a thrown error loses its class crossing the thread boundary.
+ */
+import { InvalidModelError } from '../../shared/engine/effective-hamiltonian.js';
+import { ApiError, type FieldIssue } from '../http/error-handler.js';
+import { maskFromBitmap, type BitmapMask } from '../models/mask-from-bitmap.js';
+import { checkModel, type CheckedModel, invalidModel } from '../models/model-figures.js';
+import { estimateRun, type RunEstimate } from '../runs/run-estimate.js';
+import type { RunRequest } from '../runs/run-window.js';
+
+export type ComputeTask =
+  | { kind: 'check-model'; document: unknown }
+  | { kind: 'mask-from-bitmap'; file: Uint8Array; spacingNm: number; widthNm: number; maxSites: number }
+  | { kind: 'estimate-run'; document: unknown; request: Pick<RunRequest, 'kind' | 'window'> };
+
+/** What each task kind answers. */
+export interface ComputeAnswers {
+  'check-model': CheckedModel;
+  'mask-from-bitmap': BitmapMask;
+  'estimate-run': RunEstimate;
+}
+
+export interface ComputeProblem {
+  status: number;
+  code: string;
+  message: string;
+  issues?: FieldIssue[];
+}
+
+export type ComputeOutcome<T = unknown> = { ok: true; value: T } | { ok: false; problem: ComputeProblem };
+
+function compute(task: ComputeTask): unknown {
+  switch (task.kind) {
+    case 'check-model':
+      return checkModel(task.document);
+    case 'mask-from-bitmap': {
+      const file = Buffer.from(task.file.buffer, task.file.byteOffset, task.file.byteLength);
+      return maskFromBitmap(file, task.spacingNm, task.widthNm, task.maxSites);
+    }
+    case 'estimate-run':
+      try {
+        return estimateRun(task.document, task.request);
+      } catch (err) {
+        if (err instanceof InvalidModelError) throw invalidModel(err.issues);
+        throw err;
+      }
+  }
+}
+
+/** Runs one task; ApiErrors become problems, anything else is thrown (a 500 on the API side). */
+export function runComputeTask(task: ComputeTask): ComputeOutcome {
+  try {
+    return { ok: true, value: compute(task) };
+  } catch (err) {
+    if (err instanceof ApiError) {
+      return { ok: false, problem: { status: err.status, code: err.code, message: err.message, issues: err.issues } };
+    }
+    throw err;
+  }
+}
