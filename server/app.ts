@@ -21,6 +21,9 @@ import type { Mailer } from './mail/mailer.js';
 import { outboxRoutes } from './mail/outbox-routes.js';
 import { openApiRoute } from './openapi/openapi-route.js';
 import { catalogueRoutes } from './catalogue/catalogue-routes.js';
+import type { ModeMapQueue } from './modemaps/mode-map-queue.js';
+import { modeMapRoutes } from './modemaps/mode-map-routes.js';
+import { ModeMapService } from './modemaps/mode-map-service.js';
 import type { RunQueue } from './jobs/boss.js';
 import { modelRoutes } from './models/model-routes.js';
 import { ModelService } from './models/model-service.js';
@@ -34,6 +37,8 @@ export interface AppDeps {
   mailer: Mailer;
   /** Where runs are queued for the workers (pg-boss in production). */
   queue: RunQueue;
+  /** Where mode maps (scattering states, Husimi maps) are queued; without it they cannot be computed (503). */
+  modeMapQueue?: ModeMapQueue;
   /** Live run progress for server-sent events; null falls back to polling the database. */
   runEvents?: RunEvents | null;
   /** Sign-in attempts per window (default 10 per 15 min); tests pass a small one. */
@@ -112,6 +117,7 @@ export function createApp(deps: AppDeps): Express {
   api.use('/groups/:groupId/models', modelRoutes(new ModelService(db)));
   api.use('/groups/:groupId/runs', runRoutes(new RunService(db, deps.queue), deps.runEvents ?? null));
   api.use('/groups/:groupId', catalogueRoutes({ db }));
+  api.use('/groups/:groupId', modeMapRoutes(new ModeMapService(db, deps.modeMapQueue ?? null)));
   api.use('/tokens', apiTokenRoutes(db));
   api.use('/outbox', outboxRoutes(db, config.mailStandIn));
   deps.mountFeatures?.(api);
