@@ -64,14 +64,19 @@ describe('current and Husimi maps on the resonance page', () => {
     const svg = page.locator('[data-test="mode-map-svg"]');
     await svg.waitFor({ timeout: 20_000 });
     await page.locator('[data-test="layer-density"]').waitFor({ timeout: 10_000 });
-    const arrowsBefore = await page.locator('[data-test="layer-current"] line').count();
-    expect(arrowsBefore).toBeGreaterThan(4);
+    expect(await page.locator('[data-test="layer-current"] line').count()).toBeGreaterThan(4);
     expect(await page.locator('[data-test="lead-currents"] li').count()).toBe(2);
     await page.locator('[data-test="mode-maps"]').scrollIntoViewIfNeeded();
     await screenshot(page, 'mode-map-current');
-    // Zooming in spreads the arrows over fewer sites each: more arrows per cavity, fewer on screen.
+    // On a narrow screen one arrow stands for a block of sites; zooming in makes the blocks smaller.
+    await page.setViewportSize({ width: 720, height: 1000 });
+    const stride = () => page.locator('[data-test="layer-current"]').getAttribute('data-stride').then(Number);
+    await expect.poll(stride).toBeGreaterThan(1);
+    const wide = await stride();
     for (let k = 0; k < 3; k++) await page.locator('[data-test="zoom-in"]').click();
-    await expect.poll(() => page.locator('[data-test="layer-current"] line').count()).toBeGreaterThan(arrowsBefore);
+    await expect.poll(stride).toBeLessThan(wide);
+    await screenshot(page, 'mode-map-zoomed');
+    await page.setViewportSize({ width: 1366, height: 1000 });
     await page.locator('[data-test="husimi-grid"]').fill('12');
     await page.locator('[data-test="compute-husimi"]').click();
     await page.locator('[data-test="layer-husimi"] path').first().waitFor({ timeout: 60_000 });

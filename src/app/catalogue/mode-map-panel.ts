@@ -82,13 +82,38 @@ export class ModeMapPanel {
   protected readonly husimi = computed(() => this.payload()?.husimi ?? null);
   protected readonly caption = computed(() => {
     const p = this.payload();
-    if (!p) return '';
-    const parts = [p.state.label, `current in ${p.unit}`];
+    if (!p) return [];
+    const st = p.state;
+    const e = significant(st.energy, 6);
+    const lines = [
+      st.kind === 'scattering'
+        ? `Scattering state at E = ${e} meV from lead ${st.leadName ?? st.lead}, channel ${st.channel} (incoming flux 1)`
+        : st.kind === 'bound'
+          ? `Bound state at E = ${e} meV (Γ = 0)`
+          : `Resonance mode, z = E − iΓ/2 = ${e} − i·${significant(st.width / 2, 4)} meV`,
+      `${this.backgroundWords()} · white arrows: probability current, largest site ${significant(this.largestArrow(), 3)} ${p.unit}`,
+    ];
     const h = p.husimi;
-    if (h) parts.push(`Husimi σ = ${significant(h.sigmaNm, 3)} nm, ${h.directions.length} directions, resolution ≈ ${significant((h.angularResolution * 180) / Math.PI, 2)}°`);
-    if (p.state.kind === 'pole') parts.push('a resonance decays: its net outflow is Γ/ħ');
-    return parts.join(' · ');
+    if (h) {
+      lines.push(
+        `Husimi: σ = ${significant(h.sigmaNm, 3)} nm, ${h.directions.length} directions, grid ${significant(h.gridNm, 3)} nm, angular resolution ≈ ${significant((h.angularResolution * 180) / Math.PI, 2)}°; amber arrows: peaks above ${significant(h.peakThreshold * 100, 2)} %`,
+      );
+    }
+    if (st.kind === 'pole') lines.push('A resonance decays: its current leaves through the leads, net outflow Γ/ħ.');
+    return lines;
   });
+  private backgroundWords(): string {
+    switch (this.layers().background) {
+      case 'phase':
+        return 'Brightness √(|ψ|²/max), hue arg ψ';
+      case 'ldos':
+        return 'Local density of states √(ρ/max), cividis';
+      case 'none':
+        return 'No background';
+      default:
+        return 'Density √(|ψ|²/max), cividis (dark blue 0 → yellow max)';
+    }
+  }
   protected readonly fileName = computed(() => {
     const p = this.payload();
     return p ? `${p.state.kind}-${significant(p.state.energy, 6)}meV${p.husimi ? '-husimi' : ''}` : 'mode-map';

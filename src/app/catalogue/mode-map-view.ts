@@ -14,8 +14,8 @@ export interface ModeMapLayers {
 
 /** Screen pixels between current arrows, whatever the zoom. */
 const ARROW_SPACING_PX = 26;
-/** Margin (drawing units are nm) below the map for the scale bar and captions. */
-const FOOTER = 0.16;
+/** Caption font size as a fraction of the visible width (drawing units are nm). */
+const FONT = 1 / 80;
 
 function lut(interpolate: (t: number) => string): Uint8ClampedArray {
   const out = new Uint8ClampedArray(256 * 3);
@@ -47,7 +47,8 @@ export class ModeMapView {
   readonly field = input.required<ModeMapField>();
   readonly layers = input.required<ModeMapLayers>();
   readonly unit = input('1/ps');
-  readonly caption = input('');
+  /** Caption lines drawn under the map (and kept in the exports). */
+  readonly caption = input<string[]>([]);
   readonly fileName = input('mode-map');
 
   private readonly svg = viewChild<ElementRef<SVGSVGElement>>('svg');
@@ -61,9 +62,12 @@ export class ModeMapView {
     return { w: f.nx * f.a, h: f.ny * f.a };
   });
 
+  /** Height of the footer (scale bar and caption lines) in drawing units. */
+  protected readonly footer = computed(() => this.view().w * FONT * (2.6 + 1.4 * this.caption().length) + this.field().a);
+
   protected readonly viewBox = computed(() => {
     const v = this.view();
-    return `${v.x - 0.5 * this.field().a} ${v.y - 0.5 * this.field().a} ${v.w} ${v.h * (1 + FOOTER)}`;
+    return `${v.x - 0.5 * this.field().a} ${v.y - 0.5 * this.field().a} ${v.w} ${v.h + this.footer()}`;
   });
 
   /** The background as a PNG data URL (one pixel per site), or null when drawn without. */
@@ -97,19 +101,27 @@ export class ModeMapView {
     return canvas.toDataURL('image/png');
   });
 
+  /** Sites per arrow block: the arrows stay about ARROW_SPACING_PX apart on screen at any zoom. */
+  protected readonly stride = computed(() => {
+    const pxPerNm = this.widthPx() / this.view().w;
+    return Math.max(1, Math.ceil(ARROW_SPACING_PX / (pxPerNm * this.field().a)));
+  });
+
   protected readonly arrows = computed(() => {
     if (!this.layers().current) return [];
     const f = this.field();
-    const pxPerNm = this.widthPx() / this.view().w;
-    const stride = Math.max(1, Math.ceil(ARROW_SPACING_PX / (pxPerNm * f.a)));
+    const v = this.view();
+    const stride = this.stride();
     const step = stride * f.a;
-    return currentArrows(f, stride).map((a) => {
+    // Only the arrows in view (plus a margin) are drawn.
+    const inView = (a: { x: number; y: number }) => a.x >= v.x - step && a.x <= v.x + v.w + step && a.y >= v.y - step && a.y <= v.y + v.h + step;
+    return currentArrows(f, stride).filter((a) => a.length >= 0.06 && inView(a)).map((a) => {
       const len = 0.9 * step * a.length;
       const x1 = a.x - 0.5 * len * a.ux;
       const y1 = a.y - 0.5 * len * a.uy;
       const x2 = a.x + 0.5 * len * a.ux;
       const y2 = a.y + 0.5 * len * a.uy;
-      const head = Math.max(0.25 * len, 0.12 * step);
+      const head = Math.max(0.3 * len, 0.06 * step);
       return { x1, y1, x2, y2, head: arrowHead(x2, y2, a.ux, a.uy, head) };
     });
   });
@@ -143,14 +155,16 @@ export class ModeMapView {
 
   protected readonly scaleBar = computed(() => {
     const v = this.view();
+    const font = v.w * FONT;
     const len = scaleBarLength(v.w);
-    const y = v.y + v.h * (1 + FOOTER * 0.35);
-    return { x1: v.x + 0.04 * v.w, x2: v.x + 0.04 * v.w + len, y, label: `${len} nm`, text: v.h * FOOTER * 0.28 };
+    const y = v.y + v.h + 1.3 * font;
+    return { x1: v.x + 0.02 * v.w, x2: v.x + 0.02 * v.w + len, y, label: `${len} nm`, font };
   });
 
-  protected readonly footerText = computed(() => {
+  protected readonly captionLines = computed(() => {
     const v = this.view();
-    return { x: v.x + 0.04 * v.w, y: v.y + v.h * (1 + FOOTER * 0.8), size: v.h * FOOTER * 0.22 };
+    const font = v.w * FONT;
+    return this.caption().map((text, k) => ({ text, x: v.x + 0.02 * v.w, y: v.y + v.h + (3 + 1.4 * k) * font, font }));
   });
 
   constructor() {
@@ -235,7 +249,7 @@ export class ModeMapView {
     const w = Math.max(640, el.clientWidth || 640);
     const v = this.view();
     copy.setAttribute('width', String(w));
-    copy.setAttribute('height', String(Math.round((w * v.h * (1 + FOOTER)) / v.w)));
+    copy.setAttribute('height', String(Math.round((w * (v.h + this.footer())) / v.w)));
     copy.removeAttribute('class');
     copy.removeAttribute('tabindex');
     return '<?xml version="1.0" encoding="UTF-8"?>\n' + new XMLSerializer().serializeToString(copy);
