@@ -7,11 +7,16 @@
  *   npm run engine -- transmission MODEL.json --emin X --emax Y --points N [--refine MAXPOINTS] [--tolerance T]
  *   npm run engine -- poles MODEL.json --emin X --emax Y --gmax Z [--probes P] [--seed S] [--max-nodes M] [--modes]
  *   npm run engine -- closed MODEL.json --target E --count K [--vectors]
+ *   npm run engine -- current MODEL.json (--pole-near E | --energy E --lead L --channel M) [--window W] [--gmax G]
+ *   npm run engine -- husimi MODEL.json (--pole-near E | --energy E --lead L --channel M) [--sigma-nm S] [--directions N] [--grid-nm G] [--threshold F]
  *
+ * --lead is a lead's name or its index (0-based, in the model's order); --channel is 1-based.
  * Energies and widths in meV, lifetimes in ps.
  */
 import { readFileSync } from 'node:fs';
-import { buildCavitySystem, EffectiveHamiltonian, InvalidModelError } from '../shared/engine/effective-hamiltonian';
+import { buildCavitySystem, EffectiveHamiltonian, InvalidModelError, type CavitySystem } from '../shared/engine/effective-hamiltonian';
+import { resolveState, type StateRequest } from '../shared/engine/mode-state';
+import { currentReport, husimiReport } from '../shared/engine/mode-maps';
 import { transmissionSweep } from '../shared/engine/transmission';
 import { closedCavityEigenvalues } from '../shared/engine/closed-cavity';
 import { validateCavityModel, formatIssuePath } from '../shared/model/cavity-model';
@@ -25,16 +30,22 @@ const USAGE = `usage:
   engine transmission MODEL.json --emin X --emax Y --points N [--refine MAXPOINTS] [--tolerance T]
   engine poles MODEL.json --emin X --emax Y --gmax Z [--probes P] [--seed S] [--max-nodes M] [--modes]
   engine closed MODEL.json --target E --count K [--vectors]
-(energies in meV)`;
+  engine current MODEL.json (--pole-near E | --energy E --lead L --channel M) [--window W] [--gmax G]
+  engine husimi MODEL.json (--pole-near E | --energy E --lead L --channel M) [--sigma-nm S] [--directions N] [--grid-nm G] [--threshold F]
+(energies in meV, lengths in nm; --lead is a name or a 0-based index, --channel 1-based)`;
 
-const FLAGS: Record<string, { numbers: string[]; switches: string[]; required: string[] }> = {
+const STATE_FLAGS = ['pole-near', 'energy', 'channel', 'window', 'gmax'];
+
+const FLAGS: Record<string, { numbers: string[]; switches: string[]; required: string[]; strings?: string[] }> = {
   info: { numbers: ['energy'], switches: [], required: [] },
   transmission: { numbers: ['emin', 'emax', 'points', 'refine', 'tolerance'], switches: [], required: ['emin', 'emax', 'points'] },
   poles: { numbers: ['emin', 'emax', 'gmax', 'probes', 'seed', 'max-nodes'], switches: ['modes'], required: ['emin', 'emax', 'gmax'] },
   closed: { numbers: ['target', 'count'], switches: ['vectors'], required: ['target', 'count'] },
+  current: { numbers: STATE_FLAGS, switches: [], required: [], strings: ['lead'] },
+  husimi: { numbers: [...STATE_FLAGS, 'sigma-nm', 'directions', 'grid-nm', 'threshold'], switches: [], required: [], strings: ['lead'] },
 };
 
-function parseArgs(argv: string[]): { command: string; file: string; numbers: Record<string, number>; switches: Set<string> } {
+function parseArgs(argv: string[]): { command: string; file: string; numbers: Record<string, number>; switches: Set<string>; strings: Record<string, string> } {
   const [command, file, ...rest] = argv;
   if (!command || command === '--help' || command === '-h') throw new UsageError('no command given');
   const spec = FLAGS[command];
@@ -42,12 +53,19 @@ function parseArgs(argv: string[]): { command: string; file: string; numbers: Re
   if (!file || file.startsWith('--')) throw new UsageError(`'${command}' needs a model file`);
   const numbers: Record<string, number> = {};
   const switches = new Set<string>();
+  const strings: Record<string, string> = {};
   for (let k = 0; k < rest.length; k++) {
     const arg = rest[k];
     if (!arg.startsWith('--')) throw new UsageError(`unexpected argument '${arg}'`);
     const name = arg.slice(2);
     if (spec.switches.includes(name)) {
       switches.add(name);
+      continue;
+    }
+    if (spec.strings?.includes(name)) {
+      const text = rest[++k];
+      if (text === undefined || text.trim() === '') throw new UsageError(`--${name} needs a value`);
+      strings[name] = text;
       continue;
     }
     if (!spec.numbers.includes(name)) throw new UsageError(`unknown flag --${name} for '${command}'`);
@@ -57,7 +75,25 @@ function parseArgs(argv: string[]): { command: string; file: string; numbers: Re
     numbers[name] = value;
   }
   for (const name of spec.required) if (!(name in numbers)) throw new UsageError(`'${command}' needs --${name}`);
-  return { command, file, numbers, switches };
+  return { command, file, numbers, switches, strings };
+}
+
+/** --pole-near E, or --energy E --lead L --channel M (exactly one of the two). */
+function stateRequest(system: CavitySystem, numbers: Record<string, number>, strings: Record<string, string>): StateRequest {
+  const scattering = 'energy' in numbers || 'lead' in strings || 'channel' in numbers;
+  if ('pole-near' in numbers) {
+    if (scattering) throw new UsageError('give either --pole-near or --energy with --lead and --channel, not both');
+    return { kind: 'pole-near', near: numbers['pole-near'], window: numbers.window, gammaMax: numbers.gmax };
+  }
+  if (!scattering) throw new UsageError('give --pole-near E, or --energy E --lead L --channel M');
+  for (const f of ['energy', 'channel']) if (!(f in numbers)) throw new UsageError(`a scattering state needs --${f}`);
+  if (!('lead' in strings)) throw new UsageError('a scattering state needs --lead (a name or a 0-based index)');
+  const byName = system.leads.findIndex((l) => l.name === strings.lead);
+  const lead = byName >= 0 ? byName : /^\d+$/.test(strings.lead) ? Number(strings.lead) : -1;
+  if (lead < 0 || lead >= system.leads.length) {
+    throw new UsageError(`--lead ${strings.lead}: no such lead (the model has ${system.leads.map((l, k) => `${k} = ${l.name}`).join(', ') || 'no leads'})`);
+  }
+  return { kind: 'scattering', energy: numbers.energy, lead, channel: integer(numbers, 'channel', 1) };
 }
 
 function readModel(file: string): unknown {
@@ -81,7 +117,7 @@ function integer(numbers: Record<string, number>, name: string, min: number): nu
 }
 
 async function run(argv: string[]): Promise<unknown> {
-  const { command, file, numbers, switches } = parseArgs(argv);
+  const { command, file, numbers, switches, strings } = parseArgs(argv);
   const doc = readModel(file);
   if (command === 'info') {
     const checked = validateCavityModel(doc);
@@ -106,6 +142,16 @@ async function run(argv: string[]): Promise<unknown> {
     };
   }
   const op = new EffectiveHamiltonian(system);
+  if (command === 'current' || command === 'husimi') {
+    const state = resolveState(system, op, stateRequest(system, numbers, strings));
+    if (command === 'current') return currentReport(system, state);
+    return husimiReport(system, state, {
+      sigmaNm: numbers['sigma-nm'],
+      directions: numbers.directions === undefined ? undefined : integer(numbers, 'directions', 4),
+      gridNm: numbers['grid-nm'],
+      peakThreshold: numbers.threshold,
+    });
+  }
   if (command === 'transmission') {
     const points = integer(numbers, 'points', 2);
     const refine = numbers.refine === undefined ? undefined : { maxPoints: integer(numbers, 'refine', points), tolerance: numbers.tolerance };

@@ -30,6 +30,9 @@ import type { Mailer } from './mail/mailer.js';
 import { outboxRoutes } from './mail/outbox-routes.js';
 import { openApiRoute } from './openapi/openapi-route.js';
 import { catalogueRoutes } from './catalogue/catalogue-routes.js';
+import type { ModeMapQueue } from './modemaps/mode-map-queue.js';
+import { modeMapRoutes } from './modemaps/mode-map-routes.js';
+import { ModeMapService } from './modemaps/mode-map-service.js';
 import type { RunQueue } from './jobs/boss.js';
 import { ComputePool, type Compute } from './compute/compute-pool.js';
 import { modelRoutes } from './models/model-routes.js';
@@ -44,6 +47,8 @@ export interface AppDeps {
   mailer: Mailer;
   /** Where runs are queued for the workers (pg-boss in production). */
   queue: RunQueue;
+  /** Where mode maps (scattering states, Husimi maps) are queued; without it they cannot be computed (503). */
+  modeMapQueue?: ModeMapQueue;
   /** Live run progress for server-sent events; null falls back to polling the database. */
   runEvents?: RunEvents | null;
   /** Failed sign-ins per account and per IP (defaults in auth/sign-in-limit.ts); tests pass small ones. */
@@ -147,6 +152,7 @@ export function createApp(deps: AppDeps): Express {
   api.use('/groups/:groupId/models', modelRoutes(new ModelService(db, compute), compute));
   api.use('/groups/:groupId/runs', runRoutes(new RunService(db, deps.queue, compute, config.runLimits), deps.runEvents ?? null));
   api.use('/groups/:groupId', catalogueRoutes({ db }));
+  api.use('/groups/:groupId', modeMapRoutes(new ModeMapService(db, deps.modeMapQueue ?? null)));
   api.use('/tokens', apiTokenRoutes(db));
   api.use('/outbox', outboxRoutes(db, config.mailStandIn));
   deps.mountFeatures?.(api);

@@ -8,6 +8,7 @@ import type { WorkControl } from '../../shared/engine/operator.js';
 import { findPoles } from '../../shared/engine/poles.js';
 import type { CertificatePiece, Pole } from '../../shared/engine/pole-types.js';
 import { transmissionSweep } from '../../shared/engine/transmission.js';
+import { withCurrents, type RunPole } from '../modemaps/pole-currents.js';
 
 /** Bumped whenever a change of the engine can change computed numbers. */
 export const ENGINE_VERSION = 'poleward-engine 0.1.0';
@@ -35,7 +36,8 @@ export interface EngineTaskResult {
   leadNames: string[];
   grid: { nx: number; ny: number };
   sites: { i: Int32Array; j: Int32Array };
-  poles: Pole[];
+  /** The poles, each with its current map (server/modemaps/pole-currents.ts). */
+  poles: RunPole[];
   certificate: { pieces: CertificatePiece[]; certified: boolean; summary: string } | null;
   spectrum: EngineSpectrum;
   stats: Record<string, number | boolean>;
@@ -57,7 +59,7 @@ export function runEngineTask(task: EngineTask, control: WorkControl = {}): Engi
   const op = new EffectiveHamiltonian(system);
   const { emin, emax } = task.window;
   const thresholds = op.thresholds.filter((e) => e >= emin && e <= emax);
-  let poles: Pole[] = [];
+  let poles: RunPole[] = [];
   let certificate: EngineTaskResult['certificate'] = null;
   const stats: Record<string, number | boolean> = { sites: op.n };
 
@@ -68,7 +70,8 @@ export function runEngineTask(task: EngineTask, control: WorkControl = {}): Engi
       ...control,
       onProgress: (stage, f) => control.onProgress?.(stage, (1 - spectrumShare) * f),
     });
-    poles = result.poles;
+    // Mode maps: the current of every pole is part of its run.
+    poles = withCurrents(op, result.poles);
     certificate = result.certificate;
     stats['poleSearchSeconds'] = result.stats.seconds;
     stats['factorisations'] = result.stats.factorisations;

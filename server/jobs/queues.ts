@@ -41,3 +41,14 @@ export interface RunJobData {
 /** Seconds between heartbeats of a busy worker, and the age after which a run counts as lost. */
 export const HEARTBEAT_SECONDS = 3;
 export const DEFAULT_STALE_AFTER_SECONDS = 30;
+
+/**
+ * Mode maps (server/modemaps): scattering states and Husimi maps computed on demand.
+ * Short jobs (seconds); a lost worker's job comes back when its expiry runs out.
+ */
+export const MODE_MAP_QUEUE = {
+  name: 'mode-map',
+  retryLimit: 2,
+  retryDelaySeconds: 2,
+  expireInSeconds: 600,
+} as const satisfies QueueSpec;

@@ -3,6 +3,8 @@ import { and, eq, sql } from 'drizzle-orm';
 import type { Db } from '../db/client.js';
 import { writeAudit } from '../audit/audit-log.js';
 import { modeImages, resonanceModes, resonances } from '../db/schema/catalogue.js';
+import { resonanceCurrents } from '../db/schema/mode-maps.js';
+import { bytesOf, maskBits } from '../modemaps/pole-currents.js';
 import { runs, spectra } from '../db/schema/runs.js';
 import { renderModePng } from '../catalogue/mode-image.js';
 import type { EngineTaskResult } from './engine-task.js';
@@ -57,6 +59,7 @@ export interface RunContext {
 export async function writeRunResults(db: Db, ctx: RunContext, result: EngineTaskResult): Promise<boolean> {
   const lattice = { nx: result.grid.nx, ny: result.grid.ny, i: result.sites.i, j: result.sites.j };
   // Render outside the transaction: it is the slow part and needs no lock.
+  const mask = maskBits(result.grid.nx, result.grid.ny, result.sites);
   const images = result.poles.map((p) => {
     const thumb = renderModePng(lattice, p.mode, { maxSide: THUMB_SIDE });
     const full = renderModePng(lattice, p.mode, { maxSide: FULL_SIDE });
@@ -109,6 +112,17 @@ export async function writeRunResults(db: Db, ctx: RunContext, result: EngineTas
         sites: p.mode.length / 2,
         vector: Buffer.from(p.mode.buffer, p.mode.byteOffset, p.mode.byteLength),
       });
+      // Mode maps: the pole's current (server/modemaps/pole-currents.ts).
+      if (p.current) {
+        await tx.insert(resonanceCurrents).values({
+          resonanceId: row.id,
+          nx: result.grid.nx,
+          ny: result.grid.ny,
+          mask,
+          vectors: bytesOf(p.current.vectors),
+          leadCurrents: p.current.leads,
+        });
+      }
       for (const size of ['thumb', 'full'] as const) {
         const png = images[k][size];
         await tx.insert(modeImages).values({

@@ -4,6 +4,7 @@ import { connectDb } from '../db/client.js';
 import { startBoss } from './boss.js';
 import { runPartitioned } from './partitioned-run.js';
 import { startWorkerLoop } from './worker.js';
+import { startModeMapWorker } from '../modemaps/mode-map-worker.js';
 
 const config = loadConfig();
 const handle = connectDb(config.databaseUrl, 4);
@@ -15,7 +16,8 @@ const worker = startWorkerLoop({
   staleAfterSeconds: config.runStaleSeconds,
   supervisorSeconds: Math.max(1, Math.min(10, Math.floor(config.runStaleSeconds / 3))),
 });
-console.log(`[worker ${process.pid}] waiting for runs`);
+const maps = startModeMapWorker({ db: handle.db, boss });
+console.log(`[worker ${process.pid}] waiting for runs and mode maps`);
 
 let stopping = false;
 async function shutdown(signal: string) {
@@ -23,6 +25,7 @@ async function shutdown(signal: string) {
   stopping = true;
   console.log(`[worker ${process.pid}] ${signal}: stopping`);
   await worker.stop();
+  await maps.stop();
   await boss.stop({ graceful: false, wait: false }).catch(() => {});
   await handle.close().catch(() => {});
   process.exit(0);

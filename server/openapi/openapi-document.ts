@@ -17,6 +17,8 @@ import { messageParams } from '../mail/outbox-routes.js';
 import { bitmapBody, documentBody, listQuery as modelListQuery, modelParams, versionParams } from '../models/model-routes.js';
 import { listQuery as runListQuery, runParams } from '../runs/run-routes.js';
 import { runRequestSchema } from '../runs/run-window.js';
+import { modeMapRequestSchema } from '../modemaps/mode-map-request.js';
+import { modeMapPayloadSchema, modeMapViewSchema } from '../modemaps/mode-map-schemas.js';
 import { cavityModelDescription } from './cavity-model-description.js';
 import * as answers from './response-schemas.js';
 
@@ -410,6 +412,50 @@ const operations: Operation[] = [
     query: imageQuery,
     success: { status: 200, description: 'PNG', schema: z.string().meta({ contentMediaType: 'image/png' }), mediaType: 'image/png' },
     errors: { 304: 'Not modified: the image behind the ETag you hold is current' },
+  },
+  {
+    id: 'getResonanceCurrent',
+    method: 'get',
+    path: '/groups/{groupId}/resonances/{id}/current',
+    tag: 'catalogue',
+    summary: "Probability current of the resonance's mode, as its run stored it, with the mode",
+    access: 'member',
+    notes: "404 no_current for resonances catalogued before current maps were stored (ask for a map with POST /mode-maps).",
+    params: resonanceParams,
+    success: json(200, 'The current map', modeMapPayloadSchema),
+  },
+  {
+    id: 'listResonanceModeMaps',
+    method: 'get',
+    path: '/groups/{groupId}/resonances/{id}/mode-maps',
+    tag: 'catalogue',
+    summary: 'Maps already asked for this resonance (without their results), newest first',
+    access: 'member',
+    params: resonanceParams,
+    success: json(200, 'The maps', z.object({ items: z.array(modeMapViewSchema) })),
+  },
+  {
+    id: 'createModeMap',
+    method: 'post',
+    path: '/groups/{groupId}/mode-maps',
+    tag: 'catalogue',
+    summary: 'Queue a map (current of a scattering state, Husimi map) or get the cached one',
+    access: 'member',
+    notes: '202 when queued, 200 when the same map (same parameters and engine version) already exists; a failed map is queued again.',
+    params: groupParams,
+    body: modeMapRequestSchema,
+    success: json(202, 'The map, queued', modeMapViewSchema),
+    errors: { 503: 'queue_unavailable: this server has no computation queue' },
+  },
+  {
+    id: 'getModeMap',
+    method: 'get',
+    path: '/groups/{groupId}/mode-maps/{mapId}',
+    tag: 'catalogue',
+    summary: 'Status, progress and (when completed) the result of a map',
+    access: 'member',
+    params: z.object({ groupId: z.uuid(), mapId: z.uuid() }),
+    success: json(200, 'The map', modeMapViewSchema),
   },
 
   { id: 'listApiTokens', method: 'get', path: '/tokens', tag: 'tokens', summary: "The caller's active personal API tokens (never the secret)", access: 'signed-in', success: json(200, 'Tokens', z.array(answers.apiTokenSchema)) },

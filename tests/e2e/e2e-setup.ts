@@ -10,6 +10,8 @@ import { connectDb } from '../../server/db/client.js';
 import { runQueue, startBoss } from '../../server/jobs/boss.js';
 import { runInThread } from '../../server/jobs/thread-runner.js';
 import { startWorkerLoop } from '../../server/jobs/worker.js';
+import { modeMapQueue } from '../../server/modemaps/mode-map-queue.js';
+import { startModeMapWorker } from '../../server/modemaps/mode-map-worker.js';
 import { startMailStandIn } from '../../server/mail/mail-stand-in.js';
 import { createMailer } from '../../server/mail/mailer.js';
 import { RunEvents } from '../../server/runs/run-events.js';
@@ -42,14 +44,16 @@ export default async function setup(project: TestProject): Promise<() => Promise
   const runEvents = new RunEvents(url);
   await runEvents.start();
   const mailer = createMailer(config.smtpUrl, config.mailFrom);
-  const app = createApp({ db: handle.db, config, mailer, queue: runQueue(boss), runEvents, log: () => {} });
+  const app = createApp({ db: handle.db, config, mailer, queue: runQueue(boss), modeMapQueue: modeMapQueue(boss), runEvents, log: () => {} });
   const http = createServer(app);
   await new Promise<void>((done) => http.listen(0, '127.0.0.1', done));
   const { port } = http.address() as AddressInfo;
   const worker = startWorkerLoop({ db: handle.db, boss, compute: runInThread, pollSeconds: 0.5, log: () => {} });
+  const maps = startModeMapWorker({ db: handle.db, boss, pollSeconds: 0.5, log: () => {} });
   project.provide('baseUrl', `http://127.0.0.1:${port}`);
   return async () => {
     await worker.stop();
+    await maps.stop();
     http.closeAllConnections();
     await new Promise<void>((done) => http.close(() => done()));
     await runEvents.close();

@@ -21,6 +21,7 @@ import { formatEnergy, formatLifetime, formatQuality, formatWidth, significant }
 import { materialLabel } from './material-label';
 import { PartialWidths } from './partial-widths';
 import { PhaseLegend } from './phase-legend';
+import { ModeMapPanel } from './mode-map-panel';
 
 /**
  * One catalogued resonance: its figures in units that fit, the partial widths per
@@ -42,6 +43,7 @@ import { PhaseLegend } from './phase-legend';
     PartialWidths,
     PhaseLegend,
     PolePlaneChart,
+    ModeMapPanel,
   ],
   templateUrl: './resonance-detail.html',
   styleUrl: './resonance-detail.scss',
