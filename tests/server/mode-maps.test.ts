@@ -2,6 +2,7 @@
 // the resonance's current is served, and maps computed on demand are queued, cached by
 // their parameters, computed by the worker (in-process here, and once through pg-boss
 // and a worker thread) and refused with field paths when the request is wrong.
+import { inlineCompute } from '../../server/compute/compute-pool.js';
 import { eq } from 'drizzle-orm';
 import type PgBoss from 'pg-boss';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -50,9 +51,9 @@ beforeAll(async () => {
   other = await createLab(app.handle.db, ['designer']);
   viewer = await signInAs(app, lab.as('viewer').email);
   outsider = await signInAs(app, other.as('designer').email);
-  const model = await new ModelService(app.handle.db).create(lab.groupId, lab.as('designer').id, smallRectangle('Map test', { field: 0.5 }));
+  const model = await new ModelService(app.handle.db, inlineCompute).create(lab.groupId, lab.as('designer').id, smallRectangle('Map test', { field: 0.5 }));
   modelId = model.id;
-  const run = await new RunService(app.handle.db, recordingQueue()).create(lab.groupId, lab.as('designer').id, { kind: 'pole-search', modelId, window: smallWindow });
+  const run = await new RunService(app.handle.db, recordingQueue(), inlineCompute).create(lab.groupId, lab.as('designer').id, { kind: 'pole-search', modelId, window: smallWindow });
   runId = run.id;
   await handleRunJob(
     { db: app.handle.db, compute: (task, onProgress) => Promise.resolve(runEngineTask(task, { onProgress })) },
