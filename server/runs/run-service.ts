@@ -1,4 +1,4 @@
-import { and, eq, sql } from 'drizzle-orm';
+import { and, eq, isNull, sql } from 'drizzle-orm';
 import type { Db } from '../db/client.js';
 import { writeAudit } from '../audit/audit-log.js';
 import { runs } from '../db/schema/runs.js';
@@ -11,6 +11,7 @@ import { toResonanceRow } from '../catalogue/resonance-row.js';
 import { InvalidModelError } from '../../shared/engine/effective-hamiltonian.js';
 import { invalidModel } from '../models/model-figures.js';
 import { estimateRun } from './run-estimate.js';
+import { runNotice } from './run-notice.js';
 import * as repo from './run-repository.js';
 import type { RunRequest } from './run-window.js';
 
@@ -39,6 +40,7 @@ export function toRunView(r: RunRow) {
     finishedAt: run.finishedAt,
     attempts: run.attempt,
     error: run.error,
+    notice: runNotice(run),
     engineVersion: run.engineVersion,
     resonanceCount: run.resonanceCount,
     certificate: run.certificate,
@@ -94,7 +96,8 @@ export class RunService {
     // Queued after the commit, so a worker never sees a job whose run row is not there yet.
     try {
       const jobId = await this.queue.enqueue(req.kind as RunKind, runId);
-      await this.db.update(runs).set({ jobId }).where(eq(runs.id, runId));
+      // A worker may have claimed the run with this job already; never overwrite another job.
+      await this.db.update(runs).set({ jobId }).where(and(eq(runs.id, runId), isNull(runs.jobId)));
     } catch (err) {
       await this.db.update(runs).set({ status: 'failed', error: 'the run could not be queued' }).where(eq(runs.id, runId));
       throw err;
