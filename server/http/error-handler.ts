@@ -1,4 +1,5 @@
 import type { ErrorRequestHandler, RequestHandler } from 'express';
+import { isDatabaseOutage, OUTAGE_RETRY_SECONDS } from './database-outage.js';
 
 export interface FieldIssue {
   path: string;
@@ -44,11 +45,14 @@ export function errorHandler(log: (msg: string, err: unknown) => void = console.
       problem = new ApiError(413, 'payload_too_large', `The request body is larger than the limit of ${bp.limit} bytes.`);
     } else if (typeof bp?.status === 'number' && bp.status >= 400 && bp.status < 500) {
       problem = new ApiError(bp.status, 'bad_request', err instanceof Error ? err.message : 'Bad request.');
+    } else if (isDatabaseOutage(err)) {
+      problem = new ApiError(503, 'database_unavailable', `The database cannot be reached just now; nothing was changed. Try again in ${OUTAGE_RETRY_SECONDS} s.`);
     } else {
       log(`[poleward] ${req.method} ${req.originalUrl} failed:`, err);
       problem = new ApiError(500, 'internal', 'Something went wrong on the server; the error has been logged.');
     }
     if (res.headersSent) return;
+    if (problem.status === 503) res.setHeader('Retry-After', String(OUTAGE_RETRY_SECONDS));
     res.status(problem.status).json({
       status: problem.status,
       code: problem.code,
