@@ -20,6 +20,7 @@ import { InvitationService } from './invitations/invitation-service.js';
 import type { Mailer } from './mail/mailer.js';
 import { outboxRoutes } from './mail/outbox-routes.js';
 import { openApiRoute } from './openapi/openapi-route.js';
+import { backupRoutes } from './backup/backup-routes.js';
 import { catalogueRoutes } from './catalogue/catalogue-routes.js';
 import type { RunQueue } from './jobs/boss.js';
 import { modelRoutes } from './models/model-routes.js';
@@ -111,6 +112,7 @@ export function createApp(deps: AppDeps): Express {
   api.use('/groups', groupRoutes({ db, groups, invitations }));
   api.use('/groups/:groupId/models', modelRoutes(new ModelService(db)));
   api.use('/groups/:groupId/runs', runRoutes(new RunService(db, deps.queue), deps.runEvents ?? null));
+  api.use('/groups/:groupId', backupRoutes({ db }));
   api.use('/groups/:groupId', catalogueRoutes({ db }));
   api.use('/tokens', apiTokenRoutes(db));
   api.use('/outbox', outboxRoutes(db, config.mailStandIn));
