@@ -1,6 +1,6 @@
 // `npm run bench`: prints the speed figures of the engine and the catalogue on this
 // machine. Nothing here is asserted; compare the figures by eye with the targets in
-// DEVELOPERS.md. Sections: --only lu,transmission,poles,scaling,catalogue,estimate (default all).
+// DEVELOPERS.md. Sections: --only lu,transmission,poles,scaling,catalogue,estimate,load (default all).
 import { cpus, loadavg } from 'node:os';
 import { buildCavitySystem, EffectiveHamiltonian } from '../shared/engine/effective-hamiltonian';
 import { findPoles } from '../shared/engine/poles';
@@ -9,8 +9,9 @@ import { runPartitioned } from '../server/jobs/partitioned-run';
 import { benchLu } from './bench-lu';
 import { benchTransmission } from './bench-transmission';
 import { benchCatalogue } from './bench-catalogue';
+import { benchLoad } from './bench-load';
 
-const only = (process.argv.find((a) => a.startsWith('--only='))?.slice(7) ?? 'lu,transmission,poles,scaling,catalogue,estimate').split(',');
+const only = (process.argv.find((a) => a.startsWith('--only='))?.slice(7) ?? 'lu,transmission,poles,scaling,catalogue,estimate,load').split(',');
 const print = (title: string, figures: Record<string, number | string>) => {
   console.log(`\n== ${title}`);
   for (const [k, v] of Object.entries(figures)) console.log(`  ${k.padEnd(40)} ${typeof v === 'number' && !Number.isInteger(v) ? v.toPrecision(4) : v}`);
@@ -93,3 +94,4 @@ if (only.includes('estimate')) {
   console.log('\n== run estimate against measured CPU time (cost model of server/runs/run-cost-model.json)');
   console.log(accuracyTable(measureAll(), runCostModel()));
 }
+if (only.includes('load')) print('HTTP load on loopback: sign-in, catalogue, resonance, mode image, run launch (20 clients each)', await benchLoad());

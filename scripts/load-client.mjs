@@ -1,6 +1,7 @@
 // Runs autocannon in its own process, so the load generator does not share the
 // event loop of the server it measures. Reads its options as JSON from argv[2],
-// prints one JSON line: { rps, requests, non2xx, p50, p95, p99, duration }.
+// prints one JSON line: { rps, requests, non2xx, errors, p50, p95, p99, duration }
+// (errors: connection errors and timeouts, which have no status).
 import autocannon from 'autocannon';
 
 const opts = JSON.parse(process.argv[2]);
@@ -13,7 +14,7 @@ const instance = autocannon(opts, (err, result) => {
   }
   samples.sort((a, b) => a - b);
   const pct = (p) => samples[Math.min(samples.length - 1, Math.floor((p / 100) * samples.length))] ?? NaN;
-  console.log(JSON.stringify({ rps: result.requests.average, requests: samples.length, non2xx, p50: pct(50), p95: pct(95), p99: pct(99), duration: result.duration }));
+  console.log(JSON.stringify({ rps: result.requests.average, requests: samples.length, non2xx, errors: result.errors + result.timeouts, p50: pct(50), p95: pct(95), p99: pct(99), duration: result.duration }));
 });
 instance.on('response', (_client, status, _bytes, ms) => {
   samples.push(ms);

@@ -1,6 +1,7 @@
 // `npm start`: PostgreSQL, migrations, demo data, the web client build, then the API
-// (which also runs the local mail stand-in) and the worker processes. Ctrl-C stops all.
-import { spawn, spawnSync, type ChildProcess } from 'node:child_process';
+// (which also runs the local mail stand-in) and the worker processes, each restarted
+// with back-off when it dies (services.ts). Ctrl-C stops all.
+import { spawnSync } from 'node:child_process';
 import { existsSync, readdirSync, statSync } from 'node:fs';
 import { join } from 'node:path';
 import { loadConfig, projectRoot } from '../server/config.js';
@@ -10,6 +11,7 @@ import { ensureDatabase } from './db.js';
 import { migrate } from './migrate.js';
 import { demoAccounts, printDemoAccounts, seedDemo } from './seed.js';
 import { seedCatalogue } from './seed-catalogue.js';
+import { startServices, stopOnSignals } from './services.js';
 
 const config = loadConfig();
 const dbName = new URL(config.databaseUrl).pathname.slice(1) || 'poleward';
@@ -26,36 +28,12 @@ await handle.close();
 
 buildClientIfStale();
 
-const children: ChildProcess[] = [];
-function launch(name: string, script: string) {
-  // node with tsx's loader, not the tsx wrapper, so signals reach the process itself.
-  const child = spawn(process.execPath, ['--import', 'tsx', script], { cwd: projectRoot, stdio: 'inherit', env: process.env });
-  child.on('exit', (code, signal) => {
-    if (!stopping) {
-      console.error(`[poleward] ${name} stopped (${signal ?? `exit ${code}`}); stopping everything`);
-      void stop(1);
-    }
-  });
-  children.push(child);
-}
-launch('api', 'server/main.ts');
-for (let k = 0; k < config.workers; k++) launch(`worker ${k + 1}`, 'server/jobs/worker-main.ts');
+const services = startServices({ workers: config.workers });
+stopOnSignals(services);
 
 console.log(`\n[poleward] open ${config.publicUrl} — API and client on port ${config.port}, PostgreSQL on 127.0.0.1:${config.dbPort}, ${config.workers} worker process(es)`);
 printDemoAccounts();
-console.log('[poleward] Ctrl-C stops the app and the workers (PostgreSQL keeps running; `npm run db:stop` stops it).\n');
-
-let stopping = false;
-async function stop(code: number) {
-  if (stopping) return;
-  stopping = true;
-  for (const c of children) c.kill('SIGTERM');
-  await new Promise((r) => setTimeout(r, 1500));
-  for (const c of children) if (c.exitCode === null) c.kill('SIGKILL');
-  process.exit(code);
-}
-process.on('SIGINT', () => void stop(0));
-process.on('SIGTERM', () => void stop(0));
+console.log('[poleward] a process that dies is restarted (1 s, 2 s, 4 s … up to 30 s apart); Ctrl-C stops the app and the workers (PostgreSQL keeps running; `npm run db:stop` stops it).\n');
 
 /** Builds the Angular client when there is no build yet or a source file is newer than it. */
 function buildClientIfStale() {

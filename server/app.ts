@@ -29,6 +29,7 @@ import { InvitationService } from './invitations/invitation-service.js';
 import type { Mailer } from './mail/mailer.js';
 import { outboxRoutes } from './mail/outbox-routes.js';
 import { openApiRoute } from './openapi/openapi-route.js';
+import { backupRoutes } from './backup/backup-routes.js';
 import { catalogueRoutes } from './catalogue/catalogue-routes.js';
 import type { ModeMapQueue } from './modemaps/mode-map-queue.js';
 import { modeMapRoutes } from './modemaps/mode-map-routes.js';
@@ -151,6 +152,7 @@ export function createApp(deps: AppDeps): Express {
   api.use('/groups', groupRoutes({ db, groups, invitations }));
   api.use('/groups/:groupId/models', modelRoutes(new ModelService(db, compute), compute));
   api.use('/groups/:groupId/runs', runRoutes(new RunService(db, deps.queue, compute, config.runLimits), deps.runEvents ?? null));
+  api.use('/groups/:groupId', backupRoutes({ db }));
   api.use('/groups/:groupId', catalogueRoutes({ db }));
   api.use('/groups/:groupId', modeMapRoutes(new ModeMapService(db, deps.modeMapQueue ?? null)));
   api.use('/tokens', apiTokenRoutes(db));

@@ -34,14 +34,17 @@ export interface RunQueue {
   cancel(kind: RunKind, jobId: string): Promise<void>;
 }
 
+/** Sends one run's job with its queue's policy; `options.db` sends it inside a transaction. */
+export async function sendRunJob(boss: PgBoss, kind: RunKind, runId: string, options: PgBoss.ConnectionOptions = {}): Promise<string> {
+  const spec = RUN_QUEUES[kind];
+  const id = await boss.send(spec.name, { runId }, { retryLimit: spec.retryLimit, retryDelay: spec.retryDelaySeconds, expireInSeconds: spec.expireInSeconds, ...options });
+  if (!id) throw new Error(`the queue ${spec.name} refused the job`);
+  return id;
+}
+
 export function runQueue(boss: PgBoss): RunQueue {
   return {
-    async enqueue(kind, runId) {
-      const spec = RUN_QUEUES[kind];
-      const id = await boss.send(spec.name, { runId }, { retryLimit: spec.retryLimit, retryDelay: spec.retryDelaySeconds, expireInSeconds: spec.expireInSeconds });
-      if (!id) throw new Error(`the queue ${spec.name} refused the job`);
-      return id;
-    },
+    enqueue: (kind, runId) => sendRunJob(boss, kind, runId),
     async cancel(kind, jobId) {
       await boss.cancel(RUN_QUEUES[kind].name, jobId);
     },

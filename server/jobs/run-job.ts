@@ -1,5 +1,5 @@
-import { and, eq, sql } from 'drizzle-orm';
-import type { Db } from '../db/client.js';
+import { and, eq, inArray, isNull, or, sql } from 'drizzle-orm';
+import type { Db, Queryable } from '../db/client.js';
 import { writeAudit } from '../audit/audit-log.js';
 import { cavityModels, modelVersions } from '../db/schema/models.js';
 import { runs } from '../db/schema/runs.js';
@@ -17,76 +17,137 @@ export interface RunJobDeps {
   compute: (task: EngineTask, onProgress: (stage: string, fraction: number) => void, signal: AbortSignal) => Promise<EngineTaskResult>;
   heartbeatSeconds?: number;
   log?: (msg: string) => void;
+  /** Fault tests only: while this answers true the attempt beats no heartbeat, as a stalled process would. */
+  heartbeatPaused?: () => boolean;
 }
+
+/**
+ * Ends the queue job of this delivery inside `tx`, the transaction that wrote the
+ * run's end, so a job is completed or failed only by the attempt that still owns
+ * its run (worker.ts passes pg-boss through boss-in-transaction.ts).
+ */
+export type JobSettler = (tx: Queryable, how: 'complete' | 'fail', output: Record<string, unknown>) => Promise<void>;
 
 export interface RunJobInfo {
   runId: string;
   retryCount: number;
   retryLimit: number;
-}
-
-async function notify(db: Db, runId: string) {
-  await db.execute(sql`select pg_notify('run_events', ${runId})`);
+  /** The pg-boss job delivering this attempt; absent when a test calls the handler directly. */
+  jobId?: string;
+  settle?: JobSettler;
 }
 
 /**
- * One attempt at a run. Claims the run (attempt + 1), computes in a thread while
- * beating the heartbeat and watching for cancellation, then writes the results
- * only if the attempt is still its own. Throws to let pg-boss retry a failure
- * that may pass (a crash, a lost connection); a bad model or a cancellation ends
- * the run without retry.
+ * How an attempt ended. `superseded`: another attempt owns the run (this one was
+ * handed over while it stalled); it wrote nothing and left the job alone.
  */
-export async function handleRunJob(deps: RunJobDeps, job: RunJobInfo): Promise<void> {
+export type RunJobOutcome = 'completed' | 'failed' | 'cancelled' | 'retry' | 'superseded' | 'skipped';
+
+async function notify(db: Queryable, runId: string) {
+  await db.execute(sql`select pg_notify('run_events', ${runId})`);
+}
+
+const notSettled: JobSettler = async () => {};
+
+/**
+ * One attempt at a run. Claims the run (attempt + 1, job id), computes in a thread
+ * while beating the heartbeat and watching for cancellation, then writes the end
+ * of the run (results, failure, cancellation) only while the attempt is still its
+ * own, and settles the queue job in the same transaction. A failure that may pass
+ * (a crash, a lost connection) fails the job so pg-boss retries it; a bad model, a
+ * cancellation or the last attempt end the run. A stale attempt changes nothing.
+ */
+export async function handleRunJob(deps: RunJobDeps, job: RunJobInfo): Promise<RunJobOutcome> {
   const { db } = deps;
   const log = deps.log ?? (() => {});
+  const settle = job.settle ?? notSettled;
   const [run] = await db.select().from(runs).where(eq(runs.id, job.runId));
-  if (!run) return log(`run ${job.runId} no longer exists; dropping its job`);
-  if (run.status === 'completed' || run.status === 'cancelled' || run.status === 'failed') return;
-  if (run.cancelRequested) {
-    await db.update(runs).set({ status: 'cancelled', finishedAt: new Date(), progressStage: 'cancelled' }).where(eq(runs.id, run.id));
-    await notify(db, run.id);
-    return;
+  if (!run) {
+    log(`run ${job.runId} no longer exists; dropping its job`);
+    await settle(db, 'complete', { dropped: 'the run no longer exists' });
+    return 'skipped';
   }
+  if (run.status === 'completed' || run.status === 'cancelled' || run.status === 'failed') {
+    await settle(db, 'complete', { dropped: `the run had already ${run.status}` });
+    return 'skipped';
+  }
+  if (run.cancelRequested) {
+    await db.transaction(async (tx) => {
+      await tx.update(runs).set({ status: 'cancelled', finishedAt: new Date(), progressStage: 'cancelled' }).where(eq(runs.id, run.id));
+      await settle(tx, 'complete', { cancelled: true });
+      await notify(tx, run.id);
+    });
+    return 'cancelled';
+  }
+  // The claim takes over from an attempt that pg-boss or the supervisor gave up on,
+  // but never from another live job of the same run (a duplicate delivery).
   const [claimed] = await db
     .update(runs)
     .set({
       status: 'running',
       attempt: sql`${runs.attempt} + 1`,
+      jobId: job.jobId ?? sql`${runs.jobId}`,
       startedAt: sql`coalesce(${runs.startedAt}, now())`,
       heartbeatAt: new Date(),
       progressStage: 'starting',
       progressFraction: 0,
       error: null,
     })
-    .where(eq(runs.id, run.id))
+    .where(
+      and(
+        eq(runs.id, run.id),
+        inArray(runs.status, ['queued', 'running']),
+        job.jobId ? or(isNull(runs.jobId), eq(runs.jobId, job.jobId)) : undefined,
+      ),
+    )
     .returning({ attempt: runs.attempt });
+  if (!claimed) {
+    log(`run ${run.id}: not claimed (it ended, or another job of it is live); dropping job ${job.jobId ?? ''}`);
+    await settle(db, 'complete', { dropped: 'the run ended or has another live job' });
+    return 'skipped';
+  }
   const attempt = claimed.attempt;
   await notify(db, run.id);
+  let subject = `run ${run.id}`;
 
-  const [mv] = await db
-    .select({
-      id: modelVersions.id,
-      modelId: modelVersions.modelId,
-      name: cavityModels.name,
-      version: modelVersions.version,
-      document: modelVersions.document,
-      family: modelVersions.family,
-      material: modelVersions.material,
-      fieldT: modelVersions.fieldT,
-      spacingNm: modelVersions.spacingNm,
-      widthNm: modelVersions.widthNm,
-      heightNm: modelVersions.heightNm,
-      radiusNm: modelVersions.radiusNm,
-      lengthNm: modelVersions.lengthNm,
-    })
-    .from(modelVersions)
-    .innerJoin(cavityModels, eq(cavityModels.id, modelVersions.modelId))
-    .where(eq(modelVersions.id, run.modelVersionId));
-  const w = run.window;
-  const task: EngineTask =
-    run.kind === 'transmission'
-      ? { kind: 'transmission', document: mv.document, window: { emin: w.emin, emax: w.emax, points: w.points } }
-      : { kind: 'pole-search', document: mv.document, window: { emin: w.emin, emax: w.emax, gammaMax: w.gammaMax }, spectrumPoints: POLE_SEARCH_SPECTRUM_POINTS };
+  /** Writes the end of a failed or cancelled attempt, if the attempt still owns the run. */
+  const endWithError = async (err: unknown): Promise<RunJobOutcome> => {
+    if (err instanceof EngineTaskCancelled) {
+      const ended = await db.transaction(async (tx) => {
+        const [row] = await tx
+          .update(runs)
+          .set({ status: 'cancelled', finishedAt: new Date(), progressStage: 'cancelled' })
+          .where(and(eq(runs.id, run.id), eq(runs.attempt, attempt), eq(runs.status, 'running'), eq(runs.cancelRequested, true)))
+          .returning({ id: runs.id });
+        if (row) await settle(tx, 'complete', { cancelled: true });
+        return !!row;
+      });
+      if (!ended) return 'superseded';
+      await notify(db, run.id);
+      return 'cancelled';
+    }
+    const message = err instanceof Error ? err.message : String(err);
+    const final = (err instanceof EngineTaskError && err.invalidModel) || job.retryCount >= job.retryLimit || attempt > job.retryLimit;
+    const ended = await db.transaction(async (tx) => {
+      const [row] = await tx
+        .update(runs)
+        .set(final ? { status: 'failed', error: message, finishedAt: new Date() } : { status: 'queued', progressStage: 'waiting for a retry', error: `attempt ${attempt} failed, retrying: ${message}` })
+        .where(and(eq(runs.id, run.id), eq(runs.attempt, attempt), eq(runs.status, 'running')))
+        .returning({ id: runs.id });
+      if (!row) return false;
+      if (final) {
+        await writeAudit(tx, { groupId: run.groupId, actorId: run.createdBy, action: 'run.failed', subject, details: { runId: run.id, error: message } });
+        await settle(tx, 'complete', { failed: message });
+      } else {
+        await settle(tx, 'fail', { message });
+      }
+      await notify(tx, run.id);
+      return true;
+    });
+    if (!ended) return 'superseded';
+    log(`run ${run.id} failed (attempt ${attempt}${final ? ', final' : ', will be retried'}): ${message}`);
+    return final ? 'failed' : 'retry';
+  };
 
   const abort = new AbortController();
   let lastFraction = 0;
@@ -97,53 +158,70 @@ export async function handleRunJob(deps: RunJobDeps, job: RunJobInfo): Promise<v
     pending = { stage, fraction: lastFraction };
   };
   const beat = async () => {
+    if (deps.heartbeatPaused?.()) return;
     const p = pending;
     pending = null;
     const [row] = await db
       .update(runs)
       .set({ heartbeatAt: new Date(), ...(p ? { progressStage: p.stage, progressFraction: p.fraction } : {}) })
-      .where(and(eq(runs.id, run.id), eq(runs.attempt, attempt)))
+      .where(and(eq(runs.id, run.id), eq(runs.attempt, attempt), eq(runs.status, 'running')))
       .returning({ cancel: runs.cancelRequested });
-    if (!row) abort.abort(); // another attempt took over this run
+    if (!row) abort.abort(); // another attempt took over this run, or the supervisor gave it up
     else if (row.cancel) abort.abort();
     if (p) await notify(db, run.id);
   };
   const progressTimer = setInterval(() => void beat().catch((e) => log(`heartbeat failed: ${e.message}`)), Math.min(1000, (deps.heartbeatSeconds ?? HEARTBEAT_SECONDS) * 1000));
 
   let result: EngineTaskResult;
+  let ctx: RunContext;
   try {
+    const [mv] = await db
+      .select({
+        id: modelVersions.id,
+        modelId: modelVersions.modelId,
+        name: cavityModels.name,
+        version: modelVersions.version,
+        document: modelVersions.document,
+        family: modelVersions.family,
+        material: modelVersions.material,
+        fieldT: modelVersions.fieldT,
+        spacingNm: modelVersions.spacingNm,
+        widthNm: modelVersions.widthNm,
+        heightNm: modelVersions.heightNm,
+        radiusNm: modelVersions.radiusNm,
+        lengthNm: modelVersions.lengthNm,
+      })
+      .from(modelVersions)
+      .innerJoin(cavityModels, eq(cavityModels.id, modelVersions.modelId))
+      .where(eq(modelVersions.id, run.modelVersionId));
+    subject = `${mv.name} v${mv.version}`;
+    const w = run.window;
+    const task: EngineTask =
+      run.kind === 'transmission'
+        ? { kind: 'transmission', document: mv.document, window: { emin: w.emin, emax: w.emax, points: w.points } }
+        : { kind: 'pole-search', document: mv.document, window: { emin: w.emin, emax: w.emax, gammaMax: w.gammaMax }, spectrumPoints: POLE_SEARCH_SPECTRUM_POINTS };
+    ctx = {
+      runId: run.id,
+      groupId: run.groupId,
+      attempt,
+      actorId: run.createdBy,
+      model: { ...mv, id: mv.modelId, versionId: mv.id },
+    };
     result = await deps.compute(task, onProgress, abort.signal);
   } catch (err) {
     clearInterval(progressTimer);
-    if (err instanceof EngineTaskCancelled) {
-      await db
-        .update(runs)
-        .set({ status: 'cancelled', finishedAt: new Date(), progressStage: 'cancelled' })
-        .where(and(eq(runs.id, run.id), eq(runs.attempt, attempt), eq(runs.cancelRequested, true)));
-      await notify(db, run.id);
-      return;
-    }
-    const message = err instanceof Error ? err.message : String(err);
-    const final = (err instanceof EngineTaskError && err.invalidModel) || job.retryCount >= job.retryLimit;
-    await db
-      .update(runs)
-      .set(final ? { status: 'failed', error: message, finishedAt: new Date() } : { status: 'queued', error: `attempt ${attempt} failed, retrying: ${message}` })
-      .where(and(eq(runs.id, run.id), eq(runs.attempt, attempt)));
-    await notify(db, run.id);
-    if (final) {
-      await writeAudit(db, { groupId: run.groupId, actorId: run.createdBy, action: 'run.failed', subject: `${mv.name} v${mv.version}`, details: { runId: run.id, error: message } });
-      return;
-    }
-    throw err;
+    return endWithError(err);
   }
   clearInterval(progressTimer);
-  const ctx: RunContext = {
-    runId: run.id,
-    groupId: run.groupId,
-    attempt,
-    actorId: run.createdBy,
-    model: { ...mv, id: mv.modelId, versionId: mv.id },
-  };
-  const written = await writeRunResults(db, ctx, result);
-  if (!written) log(`run ${run.id}: attempt ${attempt} was superseded; its results were discarded`);
+  let written: boolean;
+  try {
+    written = await writeRunResults(db, ctx, result, (tx) => settle(tx, 'complete', { resonances: result.poles.length }));
+  } catch (err) {
+    return endWithError(err);
+  }
+  if (!written) {
+    log(`run ${run.id}: attempt ${attempt} was superseded; its results were discarded and its job left to the live attempt`);
+    return 'superseded';
+  }
+  return 'completed';
 }

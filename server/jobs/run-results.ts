@@ -1,6 +1,6 @@
 import { createHash } from 'node:crypto';
 import { and, eq, sql } from 'drizzle-orm';
-import type { Db } from '../db/client.js';
+import type { Db, Queryable } from '../db/client.js';
 import { writeAudit } from '../audit/audit-log.js';
 import { modeImages, resonanceModes, resonances } from '../db/schema/catalogue.js';
 import { resonanceCurrents } from '../db/schema/mode-maps.js';
@@ -54,9 +54,15 @@ export interface RunContext {
  * Writes a run's results in one transaction, only while the run's attempt is
  * still `ctx.attempt` (a worker that lost its job to a retry writes nothing).
  * Earlier rows of the run are replaced, so a retried run leaves exactly one copy.
- * Returns false when the attempt was stale.
+ * Returns false when the attempt was stale. `inTransaction` runs last inside the
+ * same transaction (the worker completes the queue job there).
  */
-export async function writeRunResults(db: Db, ctx: RunContext, result: EngineTaskResult): Promise<boolean> {
+export async function writeRunResults(
+  db: Db,
+  ctx: RunContext,
+  result: EngineTaskResult,
+  inTransaction?: (tx: Queryable) => Promise<void>,
+): Promise<boolean> {
   const lattice = { nx: result.grid.nx, ny: result.grid.ny, i: result.sites.i, j: result.sites.j };
   // Render outside the transaction: it is the slow part and needs no lock.
   const mask = maskBits(result.grid.nx, result.grid.ny, result.sites);
@@ -158,6 +164,7 @@ export async function writeRunResults(db: Db, ctx: RunContext, result: EngineTas
       subject: `${ctx.model.name} v${ctx.model.version}`,
       details: { runId: ctx.runId, resonances: result.poles.length, certified: result.certificate?.certified ?? null },
     });
+    await inTransaction?.(tx);
     await tx.execute(sql`select pg_notify('run_events', ${ctx.runId})`);
     return true;
   });

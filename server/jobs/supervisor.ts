@@ -1,7 +1,8 @@
-import { eq, sql } from 'drizzle-orm';
+import { sql } from 'drizzle-orm';
 import type PgBoss from 'pg-boss';
-import type { Db } from '../db/client.js';
-import { runs } from '../db/schema/runs.js';
+import type { Db, Queryable } from '../db/client.js';
+import { bossDb, jobsAffected } from './boss-in-transaction.js';
+import { sendRunJob } from './boss.js';
 import { RUN_QUEUES, type RunKind } from './queues.js';
 
 export interface SupervisorOptions {
@@ -11,36 +12,130 @@ export interface SupervisorOptions {
   staleAfterSeconds: number;
   intervalSeconds: number;
   log?: (msg: string) => void;
+  /** Supervise one group's runs only (tests that share a database with others). */
+  groupId?: string;
 }
 
+export interface SupervisorReport {
+  /** Running runs whose worker stopped answering, put back in the queue. */
+  handedOn: number;
+  /** Runs that had no live queue job, sent again. */
+  resent: number;
+  /** Runs ended as failed because their attempts were used up. */
+  failed: number;
+}
+
+type RunRef = {
+  id: string;
+  job_id: string | null;
+  kind: RunKind;
+  attempt: number;
+};
+
+const finishedJobStates = new Set(['completed', 'failed', 'cancelled']);
+
 /**
- * Finds runs whose worker died (no heartbeat for staleAfterSeconds) and fails
- * their pg-boss job, which pg-boss then retries after its retry delay (or marks
- * failed when the retries are used up, and so does the run). Several workers
- * may supervise at once: the UPDATE … RETURNING hands each lost run to one.
+ * One pass of the run supervisor. Several workers may supervise at once: every
+ * change locks the run row first, and the run and its queue job change in one
+ * transaction (boss-in-transaction.ts), so the two always agree.
+ *
+ * 1. A running run with no heartbeat for staleAfterSeconds lost its worker: it goes
+ *    back to `queued` and its job is failed, which pg-boss retries after the retry
+ *    delay (or the run fails when the retries are used up).
+ * 2. A queued run older than staleAfterSeconds must have a live job (created,
+ *    retry, or active under a worker that claims it at once). A job that is
+ *    missing, finished, or active for longer without a claim (the fetching worker
+ *    died) is replaced: the run is sent again, or fails once its attempts are used up.
  */
-export async function requeueLostRuns(o: Omit<SupervisorOptions, 'intervalSeconds'>): Promise<number> {
-  const lost = await o.db.execute<{ id: string; job_id: string | null; kind: RunKind; attempt: number }>(sql`
-    update ${runs} set status = 'queued', progress_stage = 'waiting for another worker',
-      error = 'the worker of attempt ' || attempt || ' stopped answering; the run was put back in the queue'
-    where status = 'running' and heartbeat_at < now() - make_interval(secs => ${o.staleAfterSeconds})
-    returning id, job_id, kind, attempt`);
-  for (const run of lost.rows) {
-    if (!run.job_id) continue;
-    const queue = RUN_QUEUES[run.kind]?.name;
-    if (!queue) continue;
-    await o.boss.fail(queue, run.job_id, { reason: 'worker lost' });
-    const job = await o.boss.getJobById(queue, run.job_id);
-    if (job?.state === 'failed') {
-      await o.db
-        .update(runs)
-        .set({ status: 'failed', finishedAt: new Date(), error: `the run's worker was lost on every attempt (${run.attempt})` })
-        .where(eq(runs.id, run.id));
-    }
-    await o.db.execute(sql`select pg_notify('run_events', ${run.id})`);
-    o.log?.(`run ${run.id}: worker lost during attempt ${run.attempt}; job ${job?.state === 'failed' ? 'failed for good' : 'will be retried'}`);
+export async function superviseRuns(o: Omit<SupervisorOptions, 'intervalSeconds'>): Promise<SupervisorReport> {
+  const report: SupervisorReport = { handedOn: 0, resent: 0, failed: 0 };
+  const stale = o.staleAfterSeconds;
+  // Job ids that are not pg-boss's (uuid) come from tests' recording queues.
+  const scope = sql`(job_id is null or job_id ~* '^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$')
+    ${o.groupId ? sql`and group_id = ${o.groupId}` : sql``}`;
+  const lost = await o.db.execute<{ id: string }>(sql`
+    select id from runs where status = 'running' and heartbeat_at < now() - make_interval(secs => ${stale}) and ${scope}`);
+  for (const { id } of lost.rows) {
+    await guarded(o, id, () => o.db.transaction(async (tx) => {
+      const claimed = await tx.execute<RunRef>(sql`
+        update runs set status = 'queued', progress_stage = 'waiting for another worker',
+          error = 'the worker of attempt ' || attempt || ' stopped answering; the run was put back in the queue'
+        where id = ${id} and status = 'running' and heartbeat_at < now() - make_interval(secs => ${stale})
+        returning id, job_id, kind, attempt`);
+      const run = claimed.rows[0];
+      if (!run) return; // another supervisor, or the attempt itself, got there first
+      report.handedOn++;
+      const queue = RUN_QUEUES[run.kind]?.name;
+      if (!queue) return;
+      const failed = run.job_id ? jobsAffected(await o.boss.fail(queue, run.job_id, { reason: 'worker lost' }, { db: bossDb(tx) })) : 0;
+      if (failed === 0) {
+        await replaceJob(o, tx, run, report, 'its queue job had already ended');
+        return;
+      }
+      const job = await o.boss.getJobById(queue, run.job_id!, { db: bossDb(tx), includeArchive: false });
+      if (job?.state === 'failed') {
+        await failRun(tx, run.id, `the run's worker was lost on every attempt (${run.attempt})`);
+        report.failed++;
+        o.log?.(`run ${run.id}: worker lost during attempt ${run.attempt}; no retries left, the run failed`);
+      } else {
+        o.log?.(`run ${run.id}: worker lost during attempt ${run.attempt}; job ${run.job_id} will be retried`);
+      }
+      await tx.execute(sql`select pg_notify('run_events', ${run.id})`);
+    }));
   }
-  return lost.rows.length;
+
+  const waiting = await o.db.execute<{ id: string }>(sql`
+    select id from runs where status = 'queued' and created_at < now() - make_interval(secs => ${stale}) and ${scope}`);
+  for (const { id } of waiting.rows) {
+    await guarded(o, id, () => o.db.transaction(async (tx) => {
+      const locked = await tx.execute<RunRef>(sql`
+        select id, job_id, kind, attempt from runs where id = ${id} and status = 'queued' for update skip locked`);
+      const run = locked.rows[0];
+      if (!run) return;
+      const queue = RUN_QUEUES[run.kind]?.name;
+      if (!queue) return;
+      const job = run.job_id ? await o.boss.getJobById(queue, run.job_id, { db: bossDb(tx), includeArchive: true }) : null;
+      if (!job || finishedJobStates.has(job.state)) {
+        await replaceJob(o, tx, run, report, job ? `its queue job had ${job.state}` : 'it had no queue job');
+        return;
+      }
+      if (job.state === 'active' && job.startedOn && Date.now() - new Date(job.startedOn).getTime() > stale * 1000) {
+        // Fetched but never claimed: the fetching worker died in between.
+        await o.boss.fail(queue, job.id, { reason: 'fetched but never started' }, { db: bossDb(tx) });
+        o.log?.(`run ${run.id}: job ${job.id} was fetched but never started; it will be retried`);
+      }
+    }));
+  }
+  return report;
+}
+
+/** One run's trouble (a lost connection, say) must not stop the pass for the others. */
+async function guarded(o: Omit<SupervisorOptions, 'intervalSeconds'>, runId: string, step: () => Promise<unknown>) {
+  try {
+    await step();
+  } catch (e) {
+    o.log?.(`supervisor: run ${runId}: ${e instanceof Error ? e.message : String(e)}`);
+  }
+}
+
+/** Sends a run whose job ended without ending the run again, or fails it when its attempts are used up. */
+async function replaceJob(o: Omit<SupervisorOptions, 'intervalSeconds'>, tx: Queryable, run: RunRef, report: SupervisorReport, why: string) {
+  const spec = RUN_QUEUES[run.kind];
+  if (run.attempt > spec.retryLimit) {
+    await failRun(tx, run.id, `the run was attempted ${run.attempt} times without finishing; ${why}`);
+    report.failed++;
+    o.log?.(`run ${run.id}: ${why}; attempts used up, the run failed`);
+  } else {
+    const jobId = await sendRunJob(o.boss, run.kind, run.id, { db: bossDb(tx) });
+    await tx.execute(sql`update runs set job_id = ${jobId}, progress_stage = 'queued again' where id = ${run.id}`);
+    report.resent++;
+    o.log?.(`run ${run.id}: ${why}; sent again as job ${jobId}`);
+  }
+  await tx.execute(sql`select pg_notify('run_events', ${run.id})`);
+}
+
+async function failRun(tx: Queryable, runId: string, error: string) {
+  await tx.execute(sql`update runs set status = 'failed', finished_at = now(), error = ${error} where id = ${runId}`);
 }
 
 export function startSupervisor(o: SupervisorOptions): () => void {
@@ -48,7 +143,7 @@ export function startSupervisor(o: SupervisorOptions): () => void {
   const timer = setInterval(() => {
     if (busy) return;
     busy = true;
-    requeueLostRuns(o)
+    superviseRuns(o)
       .catch((e) => o.log?.(`supervisor: ${e.message}`))
       .finally(() => (busy = false));
   }, o.intervalSeconds * 1000);

@@ -6,6 +6,7 @@
  */
 import { extendZodWithOpenApi, OpenAPIRegistry, OpenApiGeneratorV31, type RouteConfig } from '@asteasolutions/zod-to-openapi';
 import { z } from 'zod';
+import { backupQuery } from '../backup/backup-routes.js';
 import { confirmBody, resetBody, signInBody } from '../auth/auth-routes.js';
 import { accountActivityQuery } from '../auth/account-routes.js';
 import { createBody as tokenBody, tokenParams as apiTokenParams } from '../auth/api-token-routes.js';
@@ -387,6 +388,39 @@ const operations: Operation[] = [
     params: groupParams,
     query: catalogueFilterSchema,
     success: json(200, 'The export', answers.catalogueExportSchema),
+  },
+  {
+    id: 'backupGroup',
+    method: 'get',
+    path: '/groups/{groupId}/backup',
+    tag: 'groups',
+    summary: "The group's whole data as one archive (gzip'd JSON lines)",
+    access: 'admin',
+    notes:
+      'Models with every version, runs, spectra, resonances with tags and notes, mode vectors and images, and the member list unless members=false. One record per line, header first, `end` with the counts last; see docs/api.md. Streamed from one read-only snapshot.',
+    params: groupParams,
+    query: backupQuery,
+    success: { status: 200, description: 'application/gzip attachment poleward-<slug>-<date>.jsonl.gz', schema: z.string().meta({ format: 'binary' }), mediaType: 'application/gzip' },
+  },
+  {
+    id: 'restoreGroup',
+    method: 'post',
+    path: '/groups/{groupId}/restore',
+    tag: 'groups',
+    summary: 'Restore a group backup into this empty group',
+    access: 'admin',
+    notes:
+      'The body is the archive itself (Content-Type application/gzip). Everything is validated before anything is written, then written in one transaction with new ids; a bad archive is refused whole.',
+    params: groupParams,
+    body: z.string().meta({ format: 'binary' }),
+    bodyMediaType: 'application/gzip',
+    success: json(201, 'What was restored (record counts)', z.object({ restored: z.record(z.string(), z.number().int()) }).meta({ id: 'RestoreSummary' })),
+    errors: {
+      400: 'invalid_backup: issues name the line, record type and field',
+      409: 'group_not_empty: restore only into a group with no models and no runs',
+      413: 'payload_too_large / backup_too_large',
+      415: 'unsupported_media_type: send the file with Content-Type application/gzip',
+    },
   },
   { id: 'getResonance', method: 'get', path: '/groups/{groupId}/resonances/{id}', tag: 'catalogue', summary: 'A resonance with its run, model, neighbours and leads', access: 'member', params: resonanceParams, success: json(200, 'The resonance', answers.resonanceDetailSchema) },
   {

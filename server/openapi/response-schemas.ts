@@ -227,6 +227,7 @@ export const runSchema = z
     finishedAt: timestamp().nullable(),
     attempts: z.number().int().nonnegative(),
     error: z.string().nullable(),
+    notice: z.string().nullable().meta({ description: 'Set while the run looks stuck (queued with no worker taking it, or its worker silent): what is happening and what to do' }),
     engineVersion: z.string().nullable(),
     resonanceCount: z.number().int().nullable(),
     certificate: z.unknown().meta({ description: 'How far the pole count is certified, per window piece (pole searches), or null' }),

@@ -1,4 +1,4 @@
-import { and, eq, sql } from 'drizzle-orm';
+import { and, eq, isNull, sql } from 'drizzle-orm';
 import type { Db } from '../db/client.js';
 import { writeAudit } from '../audit/audit-log.js';
 import { runs } from '../db/schema/runs.js';
@@ -10,6 +10,7 @@ import { derivedOf, modelNotFound } from '../models/model-service.js';
 import { toResonanceRow } from '../catalogue/resonance-row.js';
 import type { Compute } from '../compute/compute-pool.js';
 import { checkRunSize, checkRunSlots, type RunLimits } from './run-limits.js';
+import { runNotice } from './run-notice.js';
 import * as repo from './run-repository.js';
 import type { RunRequest } from './run-window.js';
 
@@ -38,6 +39,7 @@ export function toRunView(r: RunRow) {
     finishedAt: run.finishedAt,
     attempts: run.attempt,
     error: run.error,
+    notice: runNotice(run),
     engineVersion: run.engineVersion,
     resonanceCount: run.resonanceCount,
     certificate: run.certificate,
@@ -117,7 +119,8 @@ export class RunService {
     // Queued after the commit, so a worker never sees a job whose run row is not there yet.
     try {
       const jobId = await this.queue.enqueue(req.kind as RunKind, runId);
-      await this.db.update(runs).set({ jobId }).where(eq(runs.id, runId));
+      // A worker may have claimed the run with this job already; never overwrite another job.
+      await this.db.update(runs).set({ jobId }).where(and(eq(runs.id, runId), isNull(runs.jobId)));
     } catch (err) {
       await this.db.update(runs).set({ status: 'failed', error: 'the run could not be queued' }).where(eq(runs.id, runId));
       throw err;

@@ -19,6 +19,7 @@ import { confirmAction } from '../core/confirm/confirm-dialog';
 import { ErrorReport } from '../core/errors/error-report';
 import { fieldError } from '../core/errors/field-error';
 import { CurrentGroup } from '../core/group/current-group';
+import { GroupBackup } from './group-backup';
 import { type Member, MembersApi, type PendingInvitation } from './members-api';
 
 /**
@@ -29,6 +30,7 @@ import { type Member, MembersApi, type PendingInvitation } from './members-api';
   selector: 'pw-members',
   imports: [
     DatePipe,
+    GroupBackup,
     ReactiveFormsModule,
     MatButtonModule,
     MatFormFieldModule,

@@ -60,6 +60,16 @@ describe('RunList', () => {
     http.verify();
   });
 
+  it('shows the notice of a run that looks stuck', async () => {
+    const { http, fixture, host } = setUp();
+    await vi.advanceTimersByTimeAsync(0);
+    const stuck = { ...sampleRun, status: 'queued' as const, notice: 'No worker has taken this run for 5 min.' };
+    http.expectOne((r) => r.url === listUrl).flush({ items: [stuck, done], total: 2 });
+    fixture.detectChanges();
+    expect(host.querySelector('[data-run="r1"] [data-test="notice"]')!.textContent).toContain('No worker has taken this run for 5 min.');
+    expect(host.querySelector('[data-run="r2"] [data-test="notice"]')).toBeNull();
+  });
+
   it('does not poll a page of finished runs at all', async () => {
     const { http } = setUp();
     await vi.advanceTimersByTimeAsync(0);

@@ -57,6 +57,8 @@ export interface Run {
   finishedAt: string | null;
   attempts: number;
   error: string | null;
+  /** Set while the run looks stuck: what is happening and what to do. */
+  notice?: string | null;
   engineVersion: string;
   resonanceCount: number | null;
   certificate: RunCertificate | null;

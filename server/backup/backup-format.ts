@@ -1,0 +1,182 @@
+/**
+ * The group backup archive: gzip'd JSON lines (`.jsonl.gz`), one record per line,
+ * each with a `type`. Plain and open: `zcat file | jq` reads it. Ids are the
+ * source server's; a restore gives every row a new id and keeps the links.
+ * Binary columns (mode vectors, PNG images) are base64. People are named by
+ * e-mail, never by id.
+ *
+ * Order: header, members, models, model versions, runs, spectra, resonances,
+ * modes, mode images, then any extension section (fits, fabrication records… as
+ * they arrive: see BackupSection), then `end` with the record counts, so a
+ * truncated file is refused.
+ */
+import { z } from 'zod';
+
+export const BACKUP_FORMAT = 'poleward-group-backup';
+export const BACKUP_FORMAT_VERSION = 1;
+/** Refused beyond this many bytes once decompressed (a gzip bomb, or not a group backup). */
+export const MAX_RESTORE_BYTES = 512 * 1024 * 1024;
+/** Refused beyond this many bytes as uploaded. */
+export const MAX_UPLOAD_BYTES = 256 * 1024 * 1024;
+
+const id = z.uuid();
+const when = z.iso.datetime({ offset: true });
+const email = z.string().max(320).nullable();
+const num = z.number().finite();
+const base64 = z.string().regex(/^[A-Za-z0-9+/]*={0,2}$/, 'must be base64');
+
+export const headerRecord = z.object({
+  type: z.literal('header'),
+  format: z.literal(BACKUP_FORMAT, { error: `must be "${BACKUP_FORMAT}" (this is not a Poleward group backup)` }),
+  version: z.literal(BACKUP_FORMAT_VERSION, { error: `this server reads version ${BACKUP_FORMAT_VERSION} of the backup format` }),
+  createdAt: when,
+  engineVersion: z.string().optional(),
+  group: z.object({ name: z.string(), slug: z.string() }),
+});
+
+export const memberRecord = z.object({
+  type: z.literal('member'),
+  email: z.string().max(320),
+  name: z.string().max(200),
+  role: z.enum(['admin', 'designer', 'reviewer', 'viewer']),
+});
+
+export const modelRecord = z.object({
+  type: z.literal('model'),
+  id,
+  name: z.string().min(1).max(200),
+  latestVersion: z.number().int().min(1),
+  referenceKey: z.string().max(200).nullable(),
+  createdBy: email,
+  createdAt: when,
+  updatedAt: when,
+});
+
+export const modelVersionRecord = z.object({
+  type: z.literal('modelVersion'),
+  id,
+  modelId: id,
+  version: z.number().int().min(1),
+  document: z.record(z.string(), z.unknown()),
+  family: z.string(),
+  material: z.string(),
+  effectiveMass: num,
+  spacingNm: num,
+  fieldT: num,
+  siteCount: z.number().int().nonnegative(),
+  leadCount: z.number().int().nonnegative(),
+  hoppingMeV: num,
+  widthNm: num.nullable(),
+  heightNm: num.nullable(),
+  radiusNm: num.nullable(),
+  lengthNm: num.nullable(),
+  keyDimensions: z.record(z.string(), num),
+  createdBy: email,
+  createdAt: when,
+});
+
+export const runRecord = z.object({
+  type: z.literal('run'),
+  id,
+  modelVersionId: id,
+  kind: z.string().min(1).max(40),
+  status: z.enum(['queued', 'running', 'completed', 'failed', 'cancelled']),
+  window: z.record(z.string(), num),
+  note: z.string().max(10_000),
+  progressStage: z.string().nullable(),
+  progressFraction: num.nullable(),
+  attempt: z.number().int().nonnegative(),
+  error: z.string().nullable(),
+  engineVersion: z.string().nullable(),
+  thresholds: z.array(num).nullable(),
+  certificate: z.unknown(),
+  stats: z.unknown(),
+  estimate: z.unknown(),
+  resonanceCount: z.number().int().nonnegative().nullable(),
+  createdBy: email,
+  createdAt: when,
+  startedAt: when.nullable(),
+  finishedAt: when.nullable(),
+});
+
+export const spectrumRecord = z.object({
+  type: z.literal('spectrum'),
+  runId: id,
+  energies: z.array(num),
+  pairs: z.array(z.object({ from: z.number().int(), to: z.number().int() })),
+  transmission: z.array(z.array(num)),
+  residual: z.array(num),
+  createdAt: when,
+});
+
+export const resonanceRecord = z.object({
+  type: z.literal('resonance'),
+  id,
+  runId: id,
+  modelId: id,
+  modelVersionId: id,
+  idx: z.number().int().nonnegative(),
+  energy: num,
+  width: num.nonnegative(),
+  lifetimePs: num.nullable(),
+  quality: num.nullable(),
+  partialWidths: z.array(z.object({ lead: z.string(), width: num })),
+  petermann: num,
+  residual: num,
+  bound: z.boolean(),
+  nearThreshold: z.boolean(),
+  overlapping: z.boolean(),
+  details: z.record(z.string(), z.unknown()),
+  tags: z.array(z.string().max(100)).max(100),
+  notes: z.string().max(20_000),
+  modelName: z.string(),
+  modelVersion: z.number().int().min(1),
+  family: z.string(),
+  material: z.string(),
+  fieldT: num,
+  spacingNm: num,
+  widthNm: num.nullable(),
+  heightNm: num.nullable(),
+  radiusNm: num.nullable(),
+  lengthNm: num.nullable(),
+  createdAt: when,
+});
+
+export const modeRecord = z.object({
+  type: z.literal('mode'),
+  resonanceId: id,
+  sites: z.number().int().nonnegative(),
+  /** Float64 pairs (re, im) per site, little-endian, base64. */
+  vector: base64,
+});
+
+export const modeImageRecord = z.object({
+  type: z.literal('modeImage'),
+  resonanceId: id,
+  size: z.enum(['thumb', 'full']),
+  width: z.number().int().positive(),
+  height: z.number().int().positive(),
+  etag: z.string(),
+  png: base64,
+});
+
+export const endRecord = z.object({
+  type: z.literal('end'),
+  counts: z.record(z.string(), z.number().int().nonnegative()),
+});
+
+export const coreRecord = z.discriminatedUnion('type', [
+  headerRecord,
+  memberRecord,
+  modelRecord,
+  modelVersionRecord,
+  runRecord,
+  spectrumRecord,
+  resonanceRecord,
+  modeRecord,
+  modeImageRecord,
+  endRecord,
+]);
+
+export type CoreRecord = z.infer<typeof coreRecord>;
+export type RecordOf<T extends CoreRecord['type']> = Extract<CoreRecord, { type: T }>;

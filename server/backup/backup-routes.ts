@@ -1,0 +1,66 @@
+import { Transform } from 'node:stream';
+import { pipeline } from 'node:stream/promises';
+import { Router } from 'express';
+import { z } from 'zod';
+import { writeAudit } from '../audit/audit-log.js';
+import { signedInUser } from '../auth/authenticate.js';
+import { requireRole } from '../auth/require-role.js';
+import type { Db } from '../db/client.js';
+import { ApiError } from '../http/error-handler.js';
+import { validate } from '../http/validate.js';
+import { MAX_UPLOAD_BYTES } from './backup-format.js';
+import { groupBackupStream } from './group-backup.js';
+import { readBackup, restoreGroup } from './group-restore.js';
+
+export const backupQuery = z.object({
+  members: z.enum(['true', 'false'], { error: 'must be true or false' }).default('true'),
+});
+
+/**
+ * Group backup and restore, mounted at /api/groups/:groupId, admins only:
+ * GET /backup streams the archive (backup-format.ts); POST /restore takes one as
+ * the request body (Content-Type application/gzip) into an empty group.
+ */
+export function backupRoutes(d: { db: Db }): Router {
+  const router = Router({ mergeParams: true });
+
+  router.get('/backup', requireRole('admin'), validate({ query: backupQuery }), async (req, res) => {
+    const m = req.membership!;
+    const members = (req.valid.query as z.infer<typeof backupQuery>).members === 'true';
+    await writeAudit(d.db, { groupId: m.groupId, actorId: signedInUser(req).id, action: 'group.backup_downloaded', subject: m.groupName, details: { members } });
+    res.setHeader('Content-Type', 'application/gzip');
+    res.setHeader('Content-Disposition', `attachment; filename="poleward-${m.groupSlug}-${new Date().toISOString().slice(0, 10)}.jsonl.gz"`);
+    res.setHeader('Cache-Control', 'no-store');
+    // One read-only snapshot, so a run finishing meanwhile cannot leave half of itself in the file.
+    await d.db
+      .transaction((tx) => pipeline(groupBackupStream(tx, m.groupId, members), res), { isolationLevel: 'repeatable read', accessMode: 'read only' })
+      .catch((err) => {
+        // The headers are gone: all that can be done is to cut the download short.
+        if (res.headersSent) res.destroy(err as Error);
+        else throw err;
+      });
+  });
+
+  router.post('/restore', requireRole('admin'), async (req, res) => {
+    const type = (req.headers['content-type'] ?? '').split(';')[0]!.trim();
+    if (!['application/gzip', 'application/x-gzip', 'application/octet-stream'].includes(type)) {
+      throw new ApiError(415, 'unsupported_media_type', 'Send the backup file itself as the request body, with Content-Type application/gzip.');
+    }
+    const declared = Number(req.headers['content-length'] ?? 0);
+    const tooLarge = () => new ApiError(413, 'payload_too_large', `The backup file is larger than the limit of ${MAX_UPLOAD_BYTES / 1024 / 1024} MB.`);
+    if (declared > MAX_UPLOAD_BYTES) throw tooLarge();
+    let received = 0;
+    const cap = new Transform({
+      transform(chunk: Buffer, _e, done) {
+        received += chunk.length;
+        done(received > MAX_UPLOAD_BYTES ? tooLarge() : null, chunk);
+      },
+    });
+    req.on('error', (e) => cap.destroy(e));
+    const parsed = await readBackup(req.pipe(cap));
+    const summary = await restoreGroup(d.db, req.membership!.groupId, signedInUser(req).id, parsed);
+    res.status(201).json({ restored: summary });
+  });
+
+  return router;
+}

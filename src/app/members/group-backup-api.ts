@@ -1,0 +1,25 @@
+import { HttpClient, HttpHeaders } from '@angular/common/http';
+import { Injectable, inject } from '@angular/core';
+import { Observable, map } from 'rxjs';
+
+/** Record counts the server restored (models, runs, resonances…). */
+export type RestoreSummary = Record<string, number>;
+
+/** HTTP of the group backup (admins only; the server enforces it). */
+@Injectable({ providedIn: 'root' })
+export class GroupBackupApi {
+  private readonly http = inject(HttpClient);
+
+  /** A plain link, so the browser streams the archive to disk instead of holding it in memory. */
+  downloadUrl(groupId: string, members: boolean): string {
+    return `/api/groups/${encodeURIComponent(groupId)}/backup?members=${members}`;
+  }
+
+  restore(groupId: string, file: Blob): Observable<RestoreSummary> {
+    return this.http
+      .post<{ restored: RestoreSummary }>(`/api/groups/${encodeURIComponent(groupId)}/restore`, file, {
+        headers: new HttpHeaders({ 'Content-Type': 'application/gzip' }),
+      })
+      .pipe(map((r) => r.restored));
+  }
+}

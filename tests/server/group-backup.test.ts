@@ -1,0 +1,195 @@
+// Group backup and restore (issue 7): the archive of one group restored into another
+// holds the same models, versions, runs, spectra, resonances (tags, notes), mode
+// vectors and images, byte for byte; a bad archive is refused whole.
+import { inlineCompute } from '../../server/compute/compute-pool.js';
+import { gzipSync, gunzipSync } from 'node:zlib';
+import { count, eq } from 'drizzle-orm';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { cavityModels } from '../../server/db/schema/models.js';
+import { memberships } from '../../server/db/schema/groups.js';
+import { resonances } from '../../server/db/schema/catalogue.js';
+import { runs } from '../../server/db/schema/runs.js';
+import { runEngineTask, type EngineTaskResult } from '../../server/jobs/engine-task.js';
+import { handleRunJob } from '../../server/jobs/run-job.js';
+import { CatalogueService } from '../../server/catalogue/catalogue-service.js';
+import { ModelService } from '../../server/models/model-service.js';
+import { RunService } from '../../server/runs/run-service.js';
+import { createLab, type Lab } from './lab-fixture.js';
+import { signInAs, type SignedIn } from './sign-in-as.js';
+import { recordingQueue, startTestApp, type TestApp } from './test-app.js';
+import { smallRectangle, smallWindow } from './fixtures/small-cavity.js';
+
+let app: TestApp;
+let source: Lab;
+let target: Lab;
+let sourceAdmin: SignedIn;
+let targetAdmin: SignedIn;
+let reference: EngineTaskResult;
+
+const uuid = /[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}/g;
+
+/** Archive lines with each id replaced by the order it first appears in, and the header dropped. */
+function normalised(archive: Buffer): string[] {
+  const seen = new Map<string, number>();
+  return gunzipSync(archive)
+    .toString('utf8')
+    .split('\n')
+    .filter((l) => l && !l.startsWith('{"type":"header"'))
+    .map((l) => l.replace(uuid, (id) => `#${seen.get(id) ?? seen.set(id, seen.size).get(id)}`));
+}
+
+async function download(user: SignedIn, lab: Lab, members = false): Promise<Buffer> {
+  const res = await user.get(`/api/groups/${lab.groupId}/backup?members=${members}`).buffer(true).parse((r, cb) => {
+    const chunks: Buffer[] = [];
+    r.on('data', (c: Buffer) => chunks.push(c));
+    r.on('end', () => cb(null, Buffer.concat(chunks)));
+  });
+  expect(res.status).toBe(200);
+  expect(res.headers['content-type']).toBe('application/gzip');
+  expect(res.headers['content-disposition']).toMatch(/attachment; filename="poleward-fixture-[0-9a-f]+-\d{4}-\d\d-\d\d\.jsonl\.gz"/);
+  return res.body as Buffer;
+}
+
+function restore(user: SignedIn, lab: Lab, body: Buffer) {
+  return user.agent.post(`/api/groups/${lab.groupId}/restore`).set('X-CSRF-Token', user.csrf).set('Content-Type', 'application/gzip').send(body);
+}
+
+function lines(archive: Buffer) {
+  return gunzipSync(archive).toString('utf8').split('\n').filter(Boolean);
+}
+
+async function groupRowCounts(groupId: string) {
+  const [m] = await app.handle.db.select({ n: count() }).from(cavityModels).where(eq(cavityModels.groupId, groupId));
+  const [r] = await app.handle.db.select({ n: count() }).from(runs).where(eq(runs.groupId, groupId));
+  const [s] = await app.handle.db.select({ n: count() }).from(resonances).where(eq(resonances.groupId, groupId));
+  return { models: m!.n, runs: r!.n, resonances: s!.n };
+}
+
+beforeAll(async () => {
+  app = await startTestApp();
+  const db = app.handle.db;
+  source = await createLab(db, ['admin', 'designer', 'viewer']);
+  target = await createLab(db, ['admin']);
+  // The source's designer is also in the target group: authorship follows by e-mail.
+  await db.insert(memberships).values({ groupId: target.groupId, userId: source.as('designer').id, role: 'designer' });
+  reference = runEngineTask({ kind: 'pole-search', document: smallRectangle('Backup'), window: smallWindow, spectrumPoints: 400 });
+
+  const designer = source.as('designer').id;
+  const models = new ModelService(db, inlineCompute);
+  const runService = new RunService(db, recordingQueue(), inlineCompute);
+  const a = await models.create(source.groupId, designer, smallRectangle('Backup dot A'));
+  await models.update(source.groupId, designer, a.id, smallRectangle('Backup dot A', {
+      leads: [
+        { side: 'left', start: 6, width: 8, name: 'source' },
+        { side: 'right', start: 6, width: 8, name: 'drain' },
+      ],
+    }));
+  const b = await models.create(source.groupId, designer, smallRectangle('Backup dot B'));
+  for (const [modelId, version] of [[a.id, 1], [a.id, 2], [b.id, 1]] as const) {
+    const run = await runService.create(source.groupId, designer, { kind: 'pole-search', modelId, version, window: smallWindow });
+    await handleRunJob({ db, compute: async () => reference }, { runId: run.id, retryCount: 0, retryLimit: 3 });
+  }
+  // One run still waiting in the queue when the backup is made.
+  await runService.create(source.groupId, designer, { kind: 'transmission', modelId: b.id, window: { emin: 3, emax: 6, points: 50 } });
+  const catalogue = new CatalogueService(db);
+  const [first] = await db.select({ id: resonances.id }).from(resonances).where(eq(resonances.groupId, source.groupId)).limit(1);
+  await catalogue.label(source.groupId, designer, first!.id, { tags: ['device-3', 'check'], notes: 'Matches the second cool-down, Δ < 1 µeV.' });
+
+  sourceAdmin = await signInAs(app, source.as('admin').email);
+  targetAdmin = await signInAs(app, target.as('admin').email);
+}, 180_000);
+afterAll(async () => {
+  await app?.close();
+});
+
+describe('group backup and restore', () => {
+  it('round trip: the restored group holds the same models, runs, resonances and figures, with new ids', async () => {
+    const archive = await download(sourceAdmin, source);
+    const before = lines(archive);
+    expect(JSON.parse(before[0]!)).toMatchObject({ type: 'header', format: 'poleward-group-backup', version: 1 });
+    expect(JSON.parse(before.at(-1)!)).toMatchObject({ type: 'end', counts: { model: 2, modelVersion: 3, run: 4, spectrum: 3, resonance: 3 * reference.poles.length, mode: 3 * reference.poles.length, modeImage: 6 * reference.poles.length } });
+
+    const res = await restore(targetAdmin, target, archive);
+    expect(res.status).toBe(201);
+    expect(res.body.restored).toMatchObject({ models: 2, modelVersions: 3, runs: 4, resonances: 3 * reference.poles.length });
+
+    const again = await download(targetAdmin, target);
+    const a = normalised(archive);
+    const b = normalised(again);
+    // The unfinished run comes back cancelled (its worker belonged to the other group's server).
+    const unfinished = (l: string) => l.includes('"type":"run"') && l.includes('"kind":"transmission"');
+    expect(b.filter((l) => !unfinished(l))).toEqual(a.filter((l) => !unfinished(l)));
+    const restoredQueued = JSON.parse(b.find(unfinished)!);
+    expect(restoredQueued.status).toBe('cancelled');
+    expect(restoredQueued.error).toMatch(/unfinished when the group was backed up/);
+    // New ids: nothing of the source's ids is in the restored group.
+    const sourceIds = new Set(lines(archive).slice(1).flatMap((l) => l.match(uuid) ?? []));
+    const targetIds = lines(again).slice(1).flatMap((l) => l.match(uuid) ?? []);
+    expect(targetIds.some((id) => sourceIds.has(id))).toBe(false);
+
+    // The restored catalogue answers like the source's, tags and notes included.
+    const tagged = await targetAdmin.get(`/api/groups/${target.groupId}/catalogue?tag=device-3`);
+    expect(tagged.status).toBe(200);
+    expect(tagged.body.total).toBe(1);
+    expect(tagged.body.items[0].notes).toBe('Matches the second cool-down, Δ < 1 µeV.');
+    const img = await targetAdmin.get(`/api/groups/${target.groupId}/resonances/${tagged.body.items[0].id}/mode.png?size=thumb`);
+    expect(img.status).toBe(200);
+  });
+
+  it('a restore into a group that is not empty is refused (409) and changes nothing', async () => {
+    const archive = await download(sourceAdmin, source);
+    const before = await groupRowCounts(source.groupId);
+    const res = await restore(sourceAdmin, source, archive);
+    expect(res.status).toBe(409);
+    expect(res.body.code).toBe('group_not_empty');
+    expect(await groupRowCounts(source.groupId)).toEqual(before);
+  });
+
+  it('a bad archive is refused whole, saying what is wrong and where', async () => {
+    const empty = await createLab(app.handle.db, ['admin']);
+    const admin = await signInAs(app, empty.as('admin').email);
+    const good = lines(await download(sourceAdmin, source));
+
+    const notGzip = await restore(admin, empty, Buffer.from('models,runs\n1,2\n'));
+    expect(notGzip.status).toBe(400);
+    expect(notGzip.body.issues[0]).toEqual({ path: 'file', message: expect.stringMatching(/not a gzip file/) });
+
+    // A resonance with a bad energy near the end: the models and runs before it must not be written.
+    const at = good.findLastIndex((l) => l.startsWith('{"type":"resonance"'));
+    const bad = [...good];
+    bad[at] = bad[at]!.replace(/"energy":[^,]+/, '"energy":"4.2 meV"');
+    const res = await restore(admin, empty, gzipSync(bad.join('\n')));
+    expect(res.status).toBe(400);
+    expect(res.body.code).toBe('invalid_backup');
+    expect(res.body.issues).toEqual([{ path: `line ${at + 1} (resonance) energy`, message: expect.stringMatching(/number/) }]);
+
+    const dangling = good.map((l) => (l.startsWith('{"type":"spectrum"') ? l.replace(/"runId":"[^"]+"/, '"runId":"00000000-0000-4000-8000-000000000000"') : l));
+    const res2 = await restore(admin, empty, gzipSync(dangling.join('\n')));
+    expect(res2.status).toBe(400);
+    expect(res2.body.issues[0].message).toMatch(/refers to run 00000000-0000-4000-8000-000000000000, which is not in the archive/);
+
+    const truncated = await restore(admin, empty, gzipSync(good.slice(0, -1).join('\n')));
+    expect(truncated.status).toBe(400);
+    expect(truncated.body.issues[0].message).toMatch(/without its end record/);
+
+    const otherFile = await restore(admin, empty, gzipSync('{"type":"header","format":"something-else","version":1}\n'));
+    expect(otherFile.status).toBe(400);
+    expect(otherFile.body.issues[0].path).toBe('line 1 (header) format');
+
+    expect(await groupRowCounts(empty.groupId)).toEqual({ models: 0, runs: 0, resonances: 0 });
+  });
+
+  it('only an admin of the group may back it up or restore into it', async () => {
+    const designer = await signInAs(app, source.as('designer').email);
+    expect((await designer.get(`/api/groups/${source.groupId}/backup`)).status).toBe(403);
+    expect((await restore(designer, target, gzipSync('x'))).status).toBe(403);
+    // An admin of another group does not even learn that the group exists.
+    expect((await targetAdmin.get(`/api/groups/${source.groupId}/backup`)).status).toBe(404);
+  });
+
+  it('the member list is in the archive only when asked for', async () => {
+    const withMembers = lines(await download(sourceAdmin, source, true)).filter((l) => l.startsWith('{"type":"member"'));
+    expect(withMembers.map((l) => JSON.parse(l).email).sort()).toEqual(source.members.map((m) => m.email).sort());
+    expect(lines(await download(sourceAdmin, source, false)).some((l) => l.startsWith('{"type":"member"'))).toBe(false);
+  });
+});
