@@ -1,6 +1,6 @@
 // Catalogue search latency with 100,000 resonances in one group (plus 20,000 in a second).
 //   npx tsx scripts/bench-catalogue.ts
-// Builds its own database poleward_bench (dropped and recreated) on the project's
+// Builds its own database (POLEWARD_BENCH_DB, default poleward_bench; dropped and recreated) on the project's
 // PostgreSQL, fills it with synthetic but plausible resonances, serves the real app on a
 // loopback port and loads it with autocannon. Prints figures; asserts nothing.
 import { randomBytes } from 'node:crypto';
@@ -232,8 +232,10 @@ export async function benchCatalogue(): Promise<Record<string, number>> {
   const figures: Record<string, number> = {};
   // BENCH_REUSE=1 keeps the database of the previous run (the load takes a minute or two).
   const reuse = process.env.BENCH_REUSE === '1';
-  const server = await ensureDatabase({ databases: ['poleward_bench'], recreate: !reuse, log: () => {} });
-  const url = server.url('poleward_bench');
+  // Its own name per checkout, so two benches on one PostgreSQL do not drop each other's data.
+  const dbName = process.env.POLEWARD_BENCH_DB ?? 'poleward_bench';
+  const server = await ensureDatabase({ databases: [dbName], recreate: !reuse, log: () => {} });
+  const url = server.url(dbName);
   await migrate(url);
   const handle = connectDb(url, 10);
   const db = handle.db;
