@@ -74,11 +74,33 @@ export interface KeyedRecord {
 }
 
 /**
- * Up to `limit` rows of a search in its sort order: after `offset` rows, or strictly
- * beyond a keyset cursor. Rows before a cursor are read in the reverse order and handed
- * back in the sort order. Every sort has an index in exactly its order, so either way the
- * plan is an index scan that stops after `limit` rows.
+ * The query behind a page: up to `limit` rows of a search in its sort order, after
+ * `offset` rows or strictly beyond a keyset cursor (rows before a cursor come in the
+ * reverse order). Every sort has an index in exactly its order, so either way the plan is
+ * an index scan that stops after `limit` rows (tests/server/catalogue-plans.test.ts).
  */
+export function pageQuery(
+  q: Queryable,
+  groupId: string,
+  filter: CatalogueFilter,
+  at: { offset: number } | { cursor: CursorPosition },
+  limit: number,
+) {
+  const cursor = 'cursor' in at ? at.cursor : undefined;
+  const where = catalogueConditions(groupId, filter);
+  const backwards = cursor?.toward === 'before';
+  const dir = backwards ? (filter.dir === 'asc' ? 'desc' : 'asc') : filter.dir;
+  const query = q
+    .select({ row: rowColumns, ...keyFields(filter.sort) })
+    .from(resonances)
+    .where(cursor ? and(where, keysetCondition(filter.sort, filter.dir, cursor)) : where)
+    .orderBy(...catalogueOrder(filter.sort, dir))
+    .limit(limit)
+    .$dynamic();
+  return 'offset' in at && at.offset > 0 ? query.offset(at.offset) : query;
+}
+
+/** Runs pageQuery; rows come back in the sort order, each with its key in cursor form. */
 export async function pageOfResonances(
   q: Queryable,
   groupId: string,
@@ -86,23 +108,17 @@ export async function pageOfResonances(
   at: { offset: number } | { cursor: CursorPosition },
   limit: number,
 ): Promise<KeyedRecord[]> {
-  const cursor = 'cursor' in at ? at.cursor : undefined;
-  const where = catalogueConditions(groupId, filter);
-  const backwards = cursor?.toward === 'before';
-  const dir = backwards ? (filter.dir === 'asc' ? 'desc' : 'asc') : filter.dir;
-  const keys = keyFields(filter.sort);
-  let query = q
-    .select({ row: rowColumns, ...keys })
-    .from(resonances)
-    .where(cursor ? and(where, keysetCondition(filter.sort, filter.dir, cursor)) : where)
-    .orderBy(...catalogueOrder(filter.sort, dir))
-    .limit(limit)
-    .$dynamic();
-  if ('offset' in at && at.offset > 0) query = query.offset(at.offset);
-  const rows = (await query) as unknown as ({ row: ResonanceRecord } & Record<string, unknown>)[];
-  const keyNames = Object.keys(keys);
+  const rows = (await pageQuery(q, groupId, filter, at, limit)) as unknown as ({ row: ResonanceRecord } & Record<string, unknown>)[];
+  const keyNames = Object.keys(keyFields(filter.sort));
   const out = rows.map((r) => ({ record: r.row, key: keyNames.map((k) => toKeyValue(r[k])) }));
-  return backwards ? out.reverse() : out;
+  return 'cursor' in at && at.cursor.toward === 'before' ? out.reverse() : out;
+}
+
+/** The count query: the matches, at most `cap` + 1 of them when a cap is given. */
+export function countQuery(q: Queryable, groupId: string, filter: CatalogueFilter, cap?: number) {
+  const matches = q.select({ one: sql`1`.as('one') }).from(resonances).where(catalogueConditions(groupId, filter)).$dynamic();
+  const bounded = cap === undefined ? matches : matches.limit(cap + 1);
+  return q.select({ n: sql<number>`count(*)::int` }).from(bounded.as('matches'));
 }
 
 /**
@@ -110,9 +126,7 @@ export async function pageOfResonances(
  * a wrong guess about a filter's size then costs a bounded scan, never the whole table.
  */
 export async function countResonances(q: Queryable, groupId: string, filter: CatalogueFilter, cap?: number): Promise<number | null> {
-  const matches = q.select({ one: sql`1`.as('one') }).from(resonances).where(catalogueConditions(groupId, filter)).$dynamic();
-  const bounded = cap === undefined ? matches : matches.limit(cap + 1);
-  const [row] = await q.select({ n: sql<number>`count(*)::int` }).from(bounded.as('matches'));
+  const [row] = await countQuery(q, groupId, filter, cap);
   const n = row?.n ?? 0;
   return cap !== undefined && n > cap ? null : n;
 }

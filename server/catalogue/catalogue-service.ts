@@ -65,11 +65,13 @@ function leadsOf(document: unknown): ResonanceDetail['leads'] {
 export class CatalogueService {
   private readonly counter: CatalogueCounter;
 
+  /** `countPolicy` and `now` (the clock of count ages) are for tests; the defaults serve the app. */
   constructor(
     private readonly db: Db,
     countPolicy?: CountPolicy,
+    private readonly now: () => number = Date.now,
   ) {
-    this.counter = new CatalogueCounter(db, countPolicy);
+    this.counter = new CatalogueCounter(db, countPolicy, now);
   }
 
   /** Resolves once background recounts are done (tests; shutdown). */
@@ -93,7 +95,7 @@ export class CatalogueService {
       total: count.total,
       totalKind: count.kind,
       countedAt: count.countedAt?.toISOString() ?? null,
-      countAgeSeconds: count.countedAt ? Math.max(0, Math.round((Date.now() - count.countedAt.getTime()) / 1000)) : null,
+      countAgeSeconds: count.countedAt ? Math.max(0, Math.round((this.now() - count.countedAt.getTime()) / 1000)) : null,
       page,
       pageSize: req.pageSize,
       nextCursor: hasNext && last ? encodeCursor(req, { toward: 'after', key: last.key, page: page + 1 }) : null,
