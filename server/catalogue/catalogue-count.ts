@@ -55,6 +55,8 @@ export const defaultCountPolicy: CountPolicy = {
 export class CatalogueCounter {
   private readonly cache = new Map<string, { total: number; countedAt: number }>();
   private readonly queued = new Map<string, { groupId: string; filter: CatalogueFilter }>();
+  /** Searches whose capped count succeeded, and when: counted on the spot again without asking the planner. */
+  private readonly small = new Map<string, number>();
   private running = false;
 
   constructor(
@@ -75,11 +77,20 @@ export class CatalogueCounter {
       return { total: hit.total, kind: 'cached', countedAt: new Date(hit.countedAt) };
     }
 
-    let estimate = await estimateResonances(this.db, groupId, filter);
+    // A search known to be small skips the estimate: its capped count is the only query.
+    const smallSince = this.small.get(key);
+    const knownSmall = smallSince !== undefined && this.now() - smallSince <= this.policy.staleMs;
+    let estimate = knownSmall ? 0 : await estimateResonances(this.db, groupId, filter);
     if (estimate <= this.policy.countBelow) {
       const counted = await countResonances(this.db, groupId, filter, this.policy.countCap);
-      if (counted !== null) return { total: counted, kind: 'exact', countedAt: new Date(this.now()) };
-      estimate = Math.max(estimate, this.policy.countCap + 1); // the planner was wrong; at least this many
+      if (counted !== null) {
+        if (!knownSmall) this.markSmall(key);
+        return { total: counted, kind: 'exact', countedAt: new Date(this.now()) };
+      }
+      this.small.delete(key);
+      // The planner (or an old mark) was wrong: at least this many.
+      estimate = knownSmall ? await estimateResonances(this.db, groupId, filter) : estimate;
+      estimate = Math.max(estimate, this.policy.countCap + 1);
     }
     this.recountLater(key, groupId, filter);
     return { total: estimate, kind: 'estimated', countedAt: null };
@@ -100,6 +111,12 @@ export class CatalogueCounter {
     const total = (await countResonances(this.db, groupId, filter))!;
     this.remember(key, { total, countedAt });
     return { total, kind: 'exact', countedAt: new Date(countedAt) };
+  }
+
+  private markSmall(key: string): void {
+    this.small.delete(key);
+    this.small.set(key, this.now());
+    while (this.small.size > this.policy.maxEntries) this.small.delete(this.small.keys().next().value!);
   }
 
   private remember(key: string, entry: { total: number; countedAt: number }): void {

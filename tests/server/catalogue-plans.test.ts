@@ -190,6 +190,18 @@ describe('totals: exact, cached with its age, or estimated', () => {
     expect(answer.totalKind).toBe('exact');
     expect(answer.total).toBe(await countResonances(handle.db, main.groupId, req));
     expect(answer.countAgeSeconds).toBe(0);
+    // Again: still counted now (a small set is never answered from a cache).
+    expect(await service.search(main.groupId, req)).toMatchObject({ totalKind: 'exact', total: answer.total });
+  });
+
+  it('stops counting at the cap when the set is larger than the planner thought, and estimates instead', async () => {
+    const service = new CatalogueService(handle.db, { ...policy, countBelow: 1_000_000, countCap: 10 });
+    const req = request('family=disk');
+    const answer = await service.search(main.groupId, req);
+    expect(answer.totalKind).toBe('estimated');
+    expect(answer.total).toBeGreaterThan(10);
+    await service.settled();
+    expect(await service.search(main.groupId, req)).toMatchObject({ totalKind: 'cached', total: await countResonances(handle.db, main.groupId, req) });
   });
 
   it('estimates a large set, counts it in the background, then answers the count with its age until it is too old', async () => {
