@@ -4,6 +4,7 @@
 // PostgreSQL, fills it with synthetic but plausible resonances, serves the real app on a
 // loopback port and loads it with autocannon. Prints figures; asserts nothing.
 import { randomBytes } from 'node:crypto';
+import { readFileSync } from 'node:fs';
 import { availableParallelism, loadavg } from 'node:os';
 import type { AddressInfo } from 'node:net';
 import { fileURLToPath } from 'node:url';
@@ -47,7 +48,7 @@ function typicalSearches(): Record<string, string> {
 const deepSearch = 'sort=energy&dir=asc&pageSize=100';
 const deepPageNumber = 200;
 
-function requestOf(db: Db, groupId: string, query: string): CataloguePageRequest {
+function requestOf(query: string): CataloguePageRequest {
   const parsed = catalogueQuerySchema.parse(Object.fromEntries(new URLSearchParams(query)));
   return toCataloguePageRequest(parsed);
 }
@@ -68,6 +69,31 @@ async function explainSearch(db: Db, groupId: string, req: CataloguePageRequest,
   const estimate = performance.now() - t;
   const count = await explainMs(db, countQuery(db, groupId, req), `${label}: full count`);
   return { page, estimate, count };
+}
+
+/**
+ * CPU time (ms) the database's backends of this bench have used so far, from /proc (Linux):
+ * utime + stime of every backend connected to the bench database. Only this bench uses it.
+ */
+async function databaseCpuMs(db: Db, dbName: string): Promise<number> {
+  const result = await db.execute(sql`select pid from pg_stat_activity where datname = ${dbName}`);
+  const tick = 1000 / 100; // USER_HZ is 100 on Linux (common practice, no source)
+  let ms = 0;
+  for (const { pid } of result.rows as { pid: number }[]) {
+    try {
+      const stat = readFileSync(`/proc/${pid}/stat`, 'utf8');
+      const fields = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
+      ms += (Number(fields[11]) + Number(fields[12])) * tick; // fields 14 and 15 of proc(5): utime, stime
+    } catch {
+      // Not Linux, or the backend ended: left out.
+    }
+  }
+  return ms;
+}
+
+/** Waits until no pool client is busy (requests the load generator abandoned still finish), at most 10 s. */
+async function drain(pool: { totalCount: number; idleCount: number; waitingCount: number }): Promise<void> {
+  for (let i = 0; i < 200 && (pool.waitingCount > 0 || pool.idleCount < pool.totalCount); i++) await new Promise((r) => setTimeout(r, 50));
 }
 
 export async function benchCatalogue(): Promise<Record<string, number>> {
@@ -148,7 +174,7 @@ export async function benchCatalogue(): Promise<Record<string, number>> {
 
     console.log('[bench] EXPLAIN ANALYZE (ms: page query / planner estimate, round trip / a full count, which answers no longer run unless count=exact):');
     for (const [name, query] of Object.entries(searches)) {
-      const req = requestOf(db, main.groupId, query);
+      const req = requestOf(query);
       const at = req.cursor ? { cursor: decodeCursor(req.cursor, req) } : { offset: 0 };
       const ms = await explainSearch(db, main.groupId, req, at, name);
       figures[`explain_${name}_page_ms`] = ms.page;
@@ -156,7 +182,7 @@ export async function benchCatalogue(): Promise<Record<string, number>> {
       figures[`explain_${name}_count_ms`] = ms.count;
       console.log(`  ${name.padEnd(18)} ${ms.page.toFixed(2).padStart(8)} ${ms.estimate.toFixed(2).padStart(8)} ${ms.count.toFixed(2).padStart(8)}   ?${query.slice(0, 70)}`);
     }
-    const deepReq = requestOf(db, main.groupId, deepSearch);
+    const deepReq = requestOf(deepSearch);
     figures.explain_deepPageByOffset_page_ms = await explainMs(db, pageQuery(db, main.groupId, deepReq, { offset: (deepPageNumber - 1) * 100 }, 101), 'deep page by offset');
     console.log(`  the same deep page by OFFSET 19,900 (no longer served: numbered pages stop 10,000 rows deep): ${figures.explain_deepPageByOffset_page_ms.toFixed(2)} ms`);
     if (process.env.BENCH_ONLY_EXPLAIN === '1') return figures;
@@ -190,6 +216,7 @@ export async function benchCatalogue(): Promise<Record<string, number>> {
     const paths = Object.entries(searches).map(([name, q]) => ({ name, path: `${catalogue}?${q}` }));
 
     // The load generator runs in a child process: in this one it would take the server's event loop.
+    const cpuBefore = { node: process.cpuUsage(), db: await databaseCpuMs(db, dbName) };
     const load = await new Promise<{ rps: number; requests: number; non2xx: number; p50: number; p95: number; p99: number; duration: number }>(
       (resolve, reject) => {
         const options = {
@@ -204,6 +231,8 @@ export async function benchCatalogue(): Promise<Record<string, number>> {
         );
       },
     );
+    const nodeCpu = process.cpuUsage(cpuBefore.node);
+    const dbCpuMs = (await databaseCpuMs(db, dbName)) - cpuBefore.db;
     // Other work on the machine shows up in every figure: print how busy it was.
     figures.machine_loadavg_1min = loadavg()[0]!;
     figures.load_connections = 20;
@@ -218,6 +247,15 @@ export async function benchCatalogue(): Promise<Record<string, number>> {
         `${figures.load_rps.toFixed(0)} req/s, p50 ${figures.load_p50_ms.toFixed(1)} ms, p95 ${figures.load_p95_ms.toFixed(1)} ms, ` +
         `p99 ${figures.load_p99_ms.toFixed(1)} ms (${load.requests} requests, ${load.non2xx} not 2xx; machine load average ${figures.machine_loadavg_1min.toFixed(1)} on ${availableParallelism()} cores)`,
     );
+    // CPU time per answer, which other work on the machine does not inflate the way it inflates latency.
+    const requests = Math.max(1, load.requests);
+    figures.cpu_ms_per_request_node = (nodeCpu.user + nodeCpu.system) / 1000 / requests;
+    figures.cpu_ms_per_request_db = dbCpuMs / requests;
+    console.log(
+      `[bench] CPU per answer under that load: API process ${figures.cpu_ms_per_request_node.toFixed(2)} ms, PostgreSQL backends ${figures.cpu_ms_per_request_db.toFixed(2)} ms ` +
+        `(the API's event loop alone allows at most ~${(1000 / figures.cpu_ms_per_request_node).toFixed(0)} answers/s)`,
+    );
+    await drain(handle.pool);
 
     // The whole group as one CSV download: time, size, and how far the process memory grew.
     if (process.env.BENCH_SKIP_EXPORT === '1') return figures;
@@ -243,6 +281,7 @@ export async function benchCatalogue(): Promise<Record<string, number>> {
     );
     return figures;
   } finally {
+    await drain(handle.pool);
     await new Promise<void>((resolve) => (listener ? listener.close(() => resolve()) : resolve()));
     await handle.close();
   }
