@@ -116,6 +116,12 @@ describe('query plans on a catalogue of some size (EXPLAIN, after ANALYZE)', () 
     if (sortFree) expect(plan.map((n) => n['Node Type']), describePlan(plan)).not.toContain('Sort');
   });
 
+  it('bound=false is checked in the Q index, not by fetching the bound rows that lead a descending Q order', async () => {
+    const plan = await planOf(pageQuery(handle.db, main.groupId, request('qmin=100&bound=false&sort=quality&dir=desc&pageSize=25'), { offset: 0 }, 26));
+    const scan = plan.find((n) => n['Index Name'] === 'resonances_group_quality_key');
+    expect(scan?.['Index Cond'] ?? '', describePlan(plan)).toMatch(/bound = false/);
+  });
+
   it('the planner estimate of a group is close to its count once ANALYZEd', async () => {
     const estimate = await estimateResonances(handle.db, main.groupId, request(''));
     expect(Math.abs(estimate - MAIN_ROWS)).toBeLessThan(0.1 * MAIN_ROWS);

@@ -91,8 +91,10 @@ export const resonances = pgTable(
     // Energy is a key column of every one, so an energy window is checked in the index.
     index('resonances_group_energy_key').on(t.groupId, t.energy, t.id),
     index('resonances_group_width_key').on(t.groupId, t.width, t.energy, t.id),
-    index('resonances_group_quality_key').on(t.groupId, nullAsInfinity(t.quality), t.energy, t.id),
-    index('resonances_group_lifetime_key').on(t.groupId, nullAsInfinity(t.lifetimePs), t.energy, t.id),
+    // Bound states (Q, τ infinite) lead a descending Q or τ order: `bound` after the key lets
+    // "bound=false" be checked in the index instead of fetching each bound row to drop it.
+    index('resonances_group_quality_key').on(t.groupId, nullAsInfinity(t.quality), t.energy, t.id, t.bound),
+    index('resonances_group_lifetime_key').on(t.groupId, nullAsInfinity(t.lifetimePs), t.energy, t.id, t.bound),
     index('resonances_group_created_key').on(t.groupId, t.createdAt, t.energy, t.id),
     index('resonances_group_model_key').on(t.groupId, t.modelName, t.modelVersion, t.energy, t.id),
     index('resonances_group_geometry_key').on(
