@@ -117,9 +117,10 @@ export function keysetCondition(sort: CatalogueSort, dir: 'asc' | 'desc', positi
 }
 
 /** The SELECT expressions that read a row's key in the cursor's text form (see KeyValue). */
-export function keyFields(sort: CatalogueSort): Record<string, SQL> {
+export function keyFields(sort: CatalogueSort): Record<string, SQL.Aliased> {
+  // Aliased k0, k1…: the plain driver row then holds them under names no column has.
   return Object.fromEntries(
-    sortKey(sort).map((p, i) => [`k${i}`, p.type === 'timestamptz' ? sql`${p.expr}::text` : sql`${p.expr}`]),
+    sortKey(sort).map((p, i) => [`k${i}`, (p.type === 'timestamptz' ? sql`${p.expr}::text` : sql`${p.expr}`).as(`k${i}`)]),
   );
 }
 

@@ -1,4 +1,4 @@
-import { and, asc, eq, ne, sql } from 'drizzle-orm';
+import { and, asc, eq, ne, sql, type Column } from 'drizzle-orm';
 import type { Queryable, Tx } from '../db/client.js';
 import { modeImages, resonances } from '../db/schema/catalogue.js';
 import { modelVersions } from '../db/schema/models.js';
@@ -108,10 +108,24 @@ export async function pageOfResonances(
   at: { offset: number } | { cursor: CursorPosition },
   limit: number,
 ): Promise<KeyedRecord[]> {
-  const rows = (await pageQuery(q, groupId, filter, at, limit)) as unknown as ({ row: ResonanceRecord } & Record<string, unknown>)[];
+  // Read as plain driver rows and decoded column by column: drizzle's generic row mapping
+  // of nested selections cost more than the query itself for export batches of 1,000.
+  const result = await q.execute(pageQuery(q, groupId, filter, at, limit).getSQL());
   const keyNames = Object.keys(keyFields(filter.sort));
-  const out = rows.map((r) => ({ record: r.row, key: keyNames.map((k) => toKeyValue(r[k])) }));
+  const out = (result.rows as Record<string, unknown>[]).map((raw) => ({ record: fromDriverRow(raw), key: keyNames.map((k) => toKeyValue(raw[k])) }));
   return 'cursor' in at && at.cursor.toward === 'before' ? out.reverse() : out;
+}
+
+const rowDecoders = Object.entries(rowColumns).map(([key, col]) => [key, col.name, col as Column] as const);
+
+/** A record from a plain driver row (snake_case keys), each value through its column's own decoder. */
+function fromDriverRow(raw: Record<string, unknown>): ResonanceRecord {
+  const out: Record<string, unknown> = {};
+  for (const [key, name, col] of rowDecoders) {
+    const value = raw[name];
+    out[key] = value === null || value === undefined ? null : col.mapFromDriverValue(value);
+  }
+  return out as unknown as ResonanceRecord;
 }
 
 /** The count query: the matches, at most `cap` + 1 of them when a cap is given. */
