@@ -1,6 +1,6 @@
-import { and, arrayContains, asc, desc, eq, gte, inArray, isNull, lte, or, sql, type AnyColumn, type SQL } from 'drizzle-orm';
+import { and, arrayContains, eq, gte, inArray, lte, SQL, sql, type AnyColumn } from 'drizzle-orm';
 import { z } from 'zod';
-import { resonances } from '../db/schema/catalogue.js';
+import { nullAsInfinity, resonances } from '../db/schema/catalogue.js';
 
 /**
  * The catalogue filter, as the URL carries it: GET /catalogue?emin=&emax=&tag=…
@@ -136,9 +136,49 @@ export const catalogueFilterSchema = z
     }
   });
 
+/** Offset paging stops this many rows deep; deeper pages follow the keyset cursor. */
+export const maxOffsetRows = 10_000;
+
+export const countKinds = ['estimate', 'exact'] as const;
+
 export const catalogueQuerySchema = z.intersection(
   catalogueFilterSchema,
-  z.object({ page: intParam(1, 1_000_000, 1), pageSize: intParam(1, 200, 25) }),
+  z
+    .object({
+      // No default here: whether `page` was given at all decides between offset and cursor paging.
+      page: z.preprocess(
+        (v) => (v === undefined || v === '' ? undefined : v),
+        z
+          .string({ error: 'must be given once, as a whole number' })
+          .regex(/^\d+$/, 'must be a whole number')
+          .transform(Number)
+          .pipe(z.number().min(1, 'must be at least 1').max(1_000_000, 'must be at most 1000000'))
+          .optional(),
+      ),
+      pageSize: intParam(1, 200, 25),
+      cursor: z.preprocess(
+        (v) => (v === undefined || v === '' ? undefined : v),
+        z
+          .string({ error: 'must be given once' })
+          .max(4000, 'is too long to be a cursor of this API')
+          .regex(/^[A-Za-z0-9_-]+$/, 'is not a cursor of this API (take nextCursor or prevCursor from an answer)')
+          .optional(),
+      ),
+      count: enumParam(countKinds, 'estimate'),
+    })
+    .superRefine((p, ctx) => {
+      const page = p.page as number | undefined;
+      const size = p.pageSize as number;
+      if (page !== undefined && p.cursor !== undefined) {
+        ctx.addIssue({ code: 'custom', path: ['page'], message: 'give either page or cursor, not both' });
+      } else if (page !== undefined && (page - 1) * size > maxOffsetRows) {
+        ctx.addIssue({
+          code: 'custom',
+          path: ['page'],
+          message: `page ${page} starts ${(page - 1) * size} rows deep; numbered pages stop at ${maxOffsetRows} rows, deeper pages follow nextCursor`,
+        });
+      }
+    }),
 );
 
 type ParsedFilter = z.infer<typeof catalogueFilterSchema>;
@@ -156,8 +196,13 @@ export interface CatalogueFilter {
 }
 
 export interface CataloguePageRequest extends CatalogueFilter {
-  page: number;
+  /** Offset paging (1-based); undefined with a cursor. */
+  page?: number;
   pageSize: number;
+  /** The opaque keyset cursor of a previous answer (nextCursor / prevCursor). */
+  cursor?: string;
+  /** 'estimate': a planner estimate or a cached exact count when the set is large; 'exact': count now. */
+  count: (typeof countKinds)[number];
 }
 
 export function toCatalogueFilter(parsed: ParsedFilter): CatalogueFilter {
@@ -176,23 +221,32 @@ export function toCatalogueFilter(parsed: ParsedFilter): CatalogueFilter {
 }
 
 export function toCataloguePageRequest(parsed: z.infer<typeof catalogueQuerySchema>): CataloguePageRequest {
-  return { ...toCatalogueFilter(parsed as ParsedFilter), page: parsed.page as number, pageSize: parsed.pageSize as number };
+  const out: CataloguePageRequest = {
+    ...toCatalogueFilter(parsed as ParsedFilter),
+    pageSize: parsed.pageSize as number,
+    count: parsed.count as CataloguePageRequest['count'],
+  };
+  if (parsed.cursor !== undefined) out.cursor = parsed.cursor as string;
+  else out.page = (parsed.page as number | undefined) ?? 1;
+  return out;
 }
 
-const rangeColumns: Record<RangeName, AnyColumn> = {
+/**
+ * The expression each range filters. Null lifetime and Q mean infinite (bound states), so
+ * they are filtered through the same +Infinity key their sort indexes hold: a lower bound
+ * keeps bound states, an upper bound drops them, and the index serves both.
+ */
+const rangeColumns: Record<RangeName, AnyColumn | SQL> = {
   energy: resonances.energy,
   width: resonances.width,
-  quality: resonances.quality,
-  lifetime: resonances.lifetimePs,
+  quality: nullAsInfinity(resonances.quality),
+  lifetime: nullAsInfinity(resonances.lifetimePs),
   field: resonances.fieldT,
   dimWidth: resonances.widthNm,
   dimHeight: resonances.heightNm,
   dimRadius: resonances.radiusNm,
   dimLength: resonances.lengthNm,
 };
-
-/** Null lifetime and Q mean infinite (bound states): a lower bound keeps them, an upper bound drops them. */
-const nullMeansInfinite = new Set<RangeName>(['quality', 'lifetime']);
 
 /**
  * Free text → a prefix tsquery. search_text is to_tsvector('simple', model_name || ' ' || notes):
@@ -224,38 +278,52 @@ export function catalogueConditions(groupId: string, f: CatalogueFilter): SQL {
   }
   for (const [name, r] of Object.entries(f.ranges) as [RangeName, { min?: number; max?: number }][]) {
     const col = rangeColumns[name];
-    if (r.min !== undefined) {
-      conds.push(nullMeansInfinite.has(name) ? or(gte(col, r.min), isNull(col))! : gte(col, r.min));
-    }
-    if (r.max !== undefined) conds.push(lte(col, r.max));
+    if (r.min !== undefined) conds.push(col instanceof SQL ? gte(col, r.min) : gte(col, r.min));
+    if (r.max !== undefined) conds.push(col instanceof SQL ? lte(col, r.max) : lte(col, r.max));
   }
   return and(...conds)!;
 }
 
-const sortColumns: Record<CatalogueSort, AnyColumn[]> = {
-  energy: [resonances.energy],
-  width: [resonances.width],
-  // PostgreSQL puts nulls last ascending and first descending: exactly where infinite τ and Q belong.
-  lifetime: [resonances.lifetimePs],
-  quality: [resonances.quality],
-  geometry: [resonances.family, resonances.widthNm, resonances.heightNm, resonances.radiusNm, resonances.lengthNm],
-  model: [resonances.modelName, resonances.modelVersion],
-  date: [resonances.createdAt],
-  // Arrays compare element by element, so untagged rows come first ascending.
-  tags: [resonances.tags],
+/** How a sort key's value travels in a cursor, and the SQL type it is compared as. */
+export type KeyType = 'float8' | 'int4' | 'text' | 'text[]' | 'timestamptz' | 'uuid';
+
+export interface SortKeyPart {
+  expr: AnyColumn | SQL;
+  type: KeyType;
+}
+
+const part = (expr: AnyColumn | SQL, type: KeyType): SortKeyPart => ({ expr, type });
+
+/**
+ * The sort keys of each catalogue sort, before the tie-breakers (energy, id). Each list is
+ * the leading columns of one index in server/db/schema/catalogue.ts, in the same order.
+ * Infinite τ and Q (bound states) and missing dimensions are +Infinity: last ascending,
+ * first descending. Arrays compare element by element, so untagged rows come first ascending.
+ */
+const sortParts: Record<CatalogueSort, SortKeyPart[]> = {
+  energy: [],
+  width: [part(resonances.width, 'float8')],
+  lifetime: [part(nullAsInfinity(resonances.lifetimePs), 'float8')],
+  quality: [part(nullAsInfinity(resonances.quality), 'float8')],
+  geometry: [
+    part(resonances.family, 'text'),
+    part(nullAsInfinity(resonances.widthNm), 'float8'),
+    part(nullAsInfinity(resonances.heightNm), 'float8'),
+    part(nullAsInfinity(resonances.radiusNm), 'float8'),
+    part(nullAsInfinity(resonances.lengthNm), 'float8'),
+  ],
+  model: [part(resonances.modelName, 'text'), part(resonances.modelVersion, 'int4')],
+  date: [part(resonances.createdAt, 'timestamptz')],
+  tags: [part(resonances.tags, 'text[]')],
 };
 
-/** ORDER BY of a sort, with energy and then id as tie-breakers so pages never overlap. */
+/** The full key of a sort: its own columns, then energy and id, so every row has one place and pages never overlap. */
+export function sortKey(sort: CatalogueSort): SortKeyPart[] {
+  return [...sortParts[sort], part(resonances.energy, 'float8'), part(resonances.id, 'uuid')];
+}
+
+/** ORDER BY of a sort: every key part in the same direction, so one index scan (forward or backward) delivers it. */
 export function catalogueOrder(sort: CatalogueSort, dir: 'asc' | 'desc'): SQL[] {
-  const by = dir === 'asc' ? asc : desc;
-  const cols = [...sortColumns[sort]];
-  if (sort !== 'energy') cols.push(resonances.energy);
-  return [
-    ...cols.map((c) =>
-      // The index is (group_id, created_at DESC NULLS LAST); PostgreSQL's default DESC is NULLS
-      // FIRST and it will not use the index for a different null order, even on a NOT NULL column.
-      c === resonances.createdAt ? (dir === 'asc' ? sql`${c} asc nulls first` : sql`${c} desc nulls last`) : by(c),
-    ),
-    by(resonances.id),
-  ];
+  const word = dir === 'asc' ? sql`asc` : sql`desc`;
+  return sortKey(sort).map((p) => sql`${p.expr} ${word}`);
 }

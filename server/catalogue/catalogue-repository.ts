@@ -1,9 +1,10 @@
-import { and, asc, count, eq, ne, sql, type Column } from 'drizzle-orm';
+import { and, asc, eq, ne, sql, type Column } from 'drizzle-orm';
 import type { Queryable, Tx } from '../db/client.js';
 import { modeImages, resonances } from '../db/schema/catalogue.js';
 import { modelVersions } from '../db/schema/models.js';
 import { runs } from '../db/schema/runs.js';
-import { catalogueConditions, catalogueOrder, type CatalogueFilter, type CataloguePageRequest } from './catalogue-query.js';
+import { keyFields, keysetCondition, toKeyValue, type CursorPosition, type KeyValue } from './catalogue-cursor.js';
+import { catalogueConditions, catalogueOrder, type CatalogueFilter } from './catalogue-query.js';
 
 /** The columns a catalogue row needs (not details, not search_text). */
 const rowColumns = {
@@ -66,45 +67,103 @@ export interface ResonanceRecord {
   createdAt: Date;
 }
 
-/**
- * One page of a search and the number of matching rows. The count and the page are two
- * queries on two pool connections at once: with the (group_id, …) indexes both stay in the
- * milliseconds, while `count(*) over ()` would make PostgreSQL read and sort every match
- * just to return 25 (see scripts/bench-catalogue.ts for the figures).
- */
-export async function searchResonances(
-  q: Queryable,
-  groupId: string,
-  req: CataloguePageRequest,
-): Promise<{ rows: ResonanceRecord[]; total: number }> {
-  const where = catalogueConditions(groupId, req);
-  const [rows, [counted]] = await Promise.all([
-    q
-      .select(rowColumns)
-      .from(resonances)
-      .where(where)
-      .orderBy(...catalogueOrder(req.sort, req.dir))
-      .limit(req.pageSize)
-      .offset((req.page - 1) * req.pageSize),
-    q.select({ total: count() }).from(resonances).where(where),
-  ]);
-  return { rows, total: counted?.total ?? 0 };
+export interface KeyedRecord {
+  record: ResonanceRecord;
+  /** The row's sort key in cursor form (see catalogue-cursor.ts). */
+  key: KeyValue[];
 }
 
-/** Builds a record from a raw driver row (snake_case keys), using each column's own decoder. */
+/**
+ * The query behind a page: up to `limit` rows of a search in its sort order, after
+ * `offset` rows or strictly beyond a keyset cursor (rows before a cursor come in the
+ * reverse order). Every sort has an index in exactly its order, so either way the plan is
+ * an index scan that stops after `limit` rows (tests/server/catalogue-plans.test.ts).
+ */
+export function pageQuery(
+  q: Queryable,
+  groupId: string,
+  filter: CatalogueFilter,
+  at: { offset: number } | { cursor: CursorPosition },
+  limit: number,
+) {
+  const cursor = 'cursor' in at ? at.cursor : undefined;
+  const where = catalogueConditions(groupId, filter);
+  const backwards = cursor?.toward === 'before';
+  const dir = backwards ? (filter.dir === 'asc' ? 'desc' : 'asc') : filter.dir;
+  const query = q
+    .select({ row: rowColumns, ...keyFields(filter.sort) })
+    .from(resonances)
+    .where(cursor ? and(where, keysetCondition(filter.sort, filter.dir, cursor)) : where)
+    .orderBy(...catalogueOrder(filter.sort, dir))
+    .limit(limit)
+    .$dynamic();
+  return 'offset' in at && at.offset > 0 ? query.offset(at.offset) : query;
+}
+
+/** Runs pageQuery; rows come back in the sort order, each with its key in cursor form. */
+export async function pageOfResonances(
+  q: Queryable,
+  groupId: string,
+  filter: CatalogueFilter,
+  at: { offset: number } | { cursor: CursorPosition },
+  limit: number,
+): Promise<KeyedRecord[]> {
+  // Read as plain driver rows and decoded column by column: drizzle's generic row mapping
+  // of nested selections cost more than the query itself for export batches of 1,000.
+  const result = await q.execute(pageQuery(q, groupId, filter, at, limit).getSQL());
+  const keyNames = Object.keys(keyFields(filter.sort));
+  const out = (result.rows as Record<string, unknown>[]).map((raw) => ({ record: fromDriverRow(raw), key: keyNames.map((k) => toKeyValue(raw[k])) }));
+  return 'cursor' in at && at.cursor.toward === 'before' ? out.reverse() : out;
+}
+
+const rowDecoders = Object.entries(rowColumns).map(([key, col]) => [key, col.name, col as Column] as const);
+
+/** A record from a plain driver row (snake_case keys), each value through its column's own decoder. */
 function fromDriverRow(raw: Record<string, unknown>): ResonanceRecord {
   const out: Record<string, unknown> = {};
-  for (const [key, col] of Object.entries(rowColumns) as [string, Column][]) {
-    const value = raw[col.name];
+  for (const [key, name, col] of rowDecoders) {
+    const value = raw[name];
     out[key] = value === null || value === undefined ? null : col.mapFromDriverValue(value);
   }
   return out as unknown as ResonanceRecord;
 }
 
+/** The count query: the matches, at most `cap` + 1 of them when a cap is given. */
+export function countQuery(q: Queryable, groupId: string, filter: CatalogueFilter, cap?: number) {
+  const matches = q.select({ one: sql`1`.as('one') }).from(resonances).where(catalogueConditions(groupId, filter)).$dynamic();
+  const bounded = cap === undefined ? matches : matches.limit(cap + 1);
+  return q.select({ n: sql<number>`count(*)::int` }).from(bounded.as('matches'));
+}
+
+/**
+ * The exact number of matches, counting at most `cap` of them (null when there are more):
+ * a wrong guess about a filter's size then costs a bounded scan, never the whole table.
+ */
+export async function countResonances(q: Queryable, groupId: string, filter: CatalogueFilter, cap?: number): Promise<number | null> {
+  const [row] = await countQuery(q, groupId, filter, cap);
+  const n = row?.n ?? 0;
+  return cap !== undefined && n > cap ? null : n;
+}
+
+/**
+ * PostgreSQL's own estimate of the number of matches (the planner's row estimate from the
+ * table statistics that ANALYZE and autovacuum keep), read from EXPLAIN without running
+ * the query: a fraction of a millisecond whatever the size of the catalogue.
+ */
+export async function estimateResonances(q: Queryable, groupId: string, filter: CatalogueFilter): Promise<number> {
+  const matches = q.select({ one: sql`1` }).from(resonances).where(catalogueConditions(groupId, filter));
+  const result = await q.execute(sql`explain (format json) ${matches}`);
+  const plan = (result.rows[0] as Record<string, unknown> | undefined)?.['QUERY PLAN'];
+  const parsed = (typeof plan === 'string' ? JSON.parse(plan) : plan) as { Plan?: { 'Plan Rows'?: number } }[] | undefined;
+  const rows = parsed?.[0]?.Plan?.['Plan Rows'];
+  return typeof rows === 'number' && Number.isFinite(rows) ? Math.max(0, Math.round(rows)) : 0;
+}
+
 /**
  * Every row matching the filter, in the filter's sort order, handed out in batches of
- * `batchSize` from a server-side cursor, so an export of 100,000 rows holds one batch in
- * memory. Runs in a read-only repeatable-read transaction (one consistent snapshot);
+ * `batchSize`, each batch one keyset page after the last row of the one before, so an
+ * export of 100,000 rows holds one batch in memory and every batch is an index range
+ * scan. Call it in a read-only repeatable-read transaction (one consistent snapshot);
  * `onBatch` returning false stops early (the client went away).
  */
 export async function streamResonances(
@@ -114,22 +173,16 @@ export async function streamResonances(
   batchSize: number,
   onBatch: (rows: ResonanceRecord[]) => Promise<boolean>,
 ): Promise<number> {
-  const query = tx
-    .select(rowColumns)
-    .from(resonances)
-    .where(catalogueConditions(groupId, filter))
-    .orderBy(...catalogueOrder(filter.sort, filter.dir));
-  await tx.execute(sql`declare catalogue_export no scroll cursor for ${query}`);
   let sent = 0;
+  let cursor: CursorPosition | undefined;
   for (;;) {
-    const result = await tx.execute(sql.raw(`fetch ${Math.trunc(batchSize)} from catalogue_export`));
-    const rows = (result.rows as Record<string, unknown>[]).map(fromDriverRow);
+    const rows = await pageOfResonances(tx, groupId, filter, cursor ? { cursor } : { offset: 0 }, batchSize);
     if (rows.length === 0) break;
     sent += rows.length;
-    if (!(await onBatch(rows))) break;
+    if (!(await onBatch(rows.map((r) => r.record)))) break;
     if (rows.length < batchSize) break;
+    cursor = { toward: 'after', key: rows.at(-1)!.key, page: 1 };
   }
-  await tx.execute(sql`close catalogue_export`);
   return sent;
 }
 

@@ -3,14 +3,17 @@ import type { Db } from '../db/client.js';
 import { ApiError } from '../http/error-handler.js';
 import type { RowSource } from './catalogue-export.js';
 import type { CatalogueFilter, CataloguePageRequest } from './catalogue-query.js';
+import { CatalogueCounter, type CountKind, type CountPolicy } from './catalogue-count.js';
+import { decodeCursor, encodeCursor, type CursorPosition } from './catalogue-cursor.js';
 import {
   findModeImage,
   findResonance,
   findResonanceContext,
   otherPolesOfRun,
-  searchResonances,
+  pageOfResonances,
   streamResonances,
   updateResonanceLabels,
+  type KeyedRecord,
 } from './catalogue-repository.js';
 import { toResonanceRow, type ResonanceRow } from './resonance-row.js';
 
@@ -22,7 +25,21 @@ export interface ResonanceDetail extends ResonanceRow {
   leads: { name: string; side: string; width: number }[];
 }
 
-/** Rows per cursor fetch in an export: a few hundred kB of JSON at a time. */
+/** One page of a catalogue search as GET /catalogue answers it (docs/api.md, "Catalogue"). */
+export interface CatalogueAnswer {
+  items: ResonanceRow[];
+  total: number;
+  totalKind: CountKind;
+  countedAt: string | null;
+  countAgeSeconds: number | null;
+  /** 1-based page number: exact with offsets, a label carried by the cursor otherwise. */
+  page: number;
+  pageSize: number;
+  nextCursor: string | null;
+  prevCursor: string | null;
+}
+
+/** Rows per keyset batch in an export: a few hundred kB of JSON at a time. */
 const exportBatch = 1000;
 
 export function resonanceNotFound(): ApiError {
@@ -46,14 +63,69 @@ function leadsOf(document: unknown): ResonanceDetail['leads'] {
 
 /** Catalogue rules: searching, exporting, detail, labelling, mode images; everything scoped by group. */
 export class CatalogueService {
-  constructor(private readonly db: Db) {}
+  private readonly counter: CatalogueCounter;
 
-  async search(groupId: string, req: CataloguePageRequest): Promise<{ items: ResonanceRow[]; total: number; page: number; pageSize: number }> {
-    const { rows, total } = await searchResonances(this.db, groupId, req);
-    return { items: rows.map(toResonanceRow), total, page: req.page, pageSize: req.pageSize };
+  /** `countPolicy` and `now` (the clock of count ages) are for tests; the defaults serve the app. */
+  constructor(
+    private readonly db: Db,
+    countPolicy?: CountPolicy,
+    private readonly now: () => number = Date.now,
+  ) {
+    this.counter = new CatalogueCounter(db, countPolicy, now);
   }
 
-  /** A row source for sendCatalogueExport: one snapshot, read through a cursor. */
+  /** Resolves once background recounts are done (tests; shutdown). */
+  settled(): Promise<void> {
+    return this.counter.settled();
+  }
+
+  /**
+   * One page of a search: by offset (`page`, the first pages) or by keyset cursor, with
+   * cursors to the next and previous pages either way, and the total with its kind.
+   * The page and the count run at once on two pool connections.
+   */
+  async search(groupId: string, req: CataloguePageRequest): Promise<CatalogueAnswer> {
+    const position = req.cursor !== undefined ? decodeCursor(req.cursor, req) : undefined;
+    const [paged, count] = await Promise.all([this.page(groupId, req, position), this.counter.count(groupId, req, req.count)]);
+    const { rows, page, hasNext, hasPrev } = paged;
+    const first = rows[0];
+    const last = rows.at(-1);
+    return {
+      items: rows.map((r) => toResonanceRow(r.record)),
+      total: count.total,
+      totalKind: count.kind,
+      countedAt: count.countedAt?.toISOString() ?? null,
+      countAgeSeconds: count.countedAt ? Math.max(0, Math.round((this.now() - count.countedAt.getTime()) / 1000)) : null,
+      page,
+      pageSize: req.pageSize,
+      nextCursor: hasNext && last ? encodeCursor(req, { toward: 'after', key: last.key, page: page + 1 }) : null,
+      prevCursor: hasPrev && first ? encodeCursor(req, { toward: 'before', key: first.key, page: Math.max(1, page - 1) }) : null,
+    };
+  }
+
+  /** Reads one more row than the page holds to learn whether another page follows. */
+  private async page(
+    groupId: string,
+    req: CataloguePageRequest,
+    position: CursorPosition | undefined,
+  ): Promise<{ rows: KeyedRecord[]; page: number; hasNext: boolean; hasPrev: boolean }> {
+    const size = req.pageSize;
+    if (position?.toward === 'after') {
+      const rows = await pageOfResonances(this.db, groupId, req, { cursor: position }, size + 1);
+      return { rows: rows.slice(0, size), page: position.page, hasNext: rows.length > size, hasPrev: rows.length > 0 };
+    }
+    if (position?.toward === 'before') {
+      const rows = await pageOfResonances(this.db, groupId, req, { cursor: position }, size + 1);
+      // The boundary row follows, so a next page exists; a full page plus one before it means this is not the first page.
+      if (rows.length > size) return { rows: rows.slice(1), page: Math.max(2, position.page), hasNext: true, hasPrev: true };
+      // Back at the start: answer the first page itself, full, rather than the few rows left before the boundary.
+    }
+    const pageNo = position ? 1 : (req.page ?? 1);
+    const rows = await pageOfResonances(this.db, groupId, req, { offset: (pageNo - 1) * size }, size + 1);
+    return { rows: rows.slice(0, size), page: pageNo, hasNext: rows.length > size, hasPrev: pageNo > 1 && rows.length > 0 };
+  }
+
+  /** A row source for sendCatalogueExport: one snapshot, read in keyset batches. */
   exportSource(groupId: string, filter: CatalogueFilter): RowSource {
     return (onBatch) =>
       this.db.transaction((tx) => streamResonances(tx, groupId, filter, exportBatch, onBatch), {
@@ -79,7 +151,7 @@ export class CatalogueService {
 
   /** Tags and notes of a resonance, with a "resonance.tagged" audit entry in the same transaction. */
   async label(groupId: string, actorId: string, id: string, change: { tags?: string[]; notes?: string }): Promise<ResonanceRow> {
-    return this.db.transaction(async (tx) => {
+    const result = await this.db.transaction(async (tx) => {
       const before = await findResonance(tx, groupId, id);
       if (!before) throw resonanceNotFound();
       const after = await updateResonanceLabels(tx, groupId, id, change);
@@ -97,6 +169,9 @@ export class CatalogueService {
       });
       return toResonanceRow(after);
     });
+    // Tags and notes feed the tag and text filters: their cached totals are stale now.
+    this.counter.forgetGroup(groupId);
+    return result;
   }
 
   /** The PNG (null when the caller's ETag is current) and its ETag; 404 when there is none. */

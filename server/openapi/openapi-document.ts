@@ -362,7 +362,10 @@ const operations: Operation[] = [
     tag: 'catalogue',
     summary: "Filter, sort and page the group's resonances",
     access: 'member',
-    notes: 'List parameters (family, material, tag) repeat or take a comma list; empty parameters count as absent.',
+    notes:
+      'List parameters (family, material, tag) repeat or take a comma list; empty parameters count as absent. ' +
+      'Pages: page= (numbered, up to 10,000 rows deep) or cursor= (nextCursor/prevCursor of an answer, any depth). ' +
+      'The total is exact, cached (with its age) or estimated, as totalKind says; count=exact counts now.',
     params: groupParams,
     query: catalogueParameters,
     success: json(200, 'One page of resonances', answers.cataloguePageSchema),

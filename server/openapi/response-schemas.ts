@@ -279,7 +279,19 @@ export const resonanceRowSchema = z
   .meta({ id: 'ResonanceRow', description: 'One catalogued resonance z = E − iΓ/2.' });
 
 export const cataloguePageSchema = z
-  .object({ items: z.array(resonanceRowSchema), total: z.number().int().nonnegative(), page: z.number().int(), pageSize: z.number().int() })
+  .object({
+    items: z.array(resonanceRowSchema),
+    total: z.number().int().nonnegative().meta({ description: 'Number of matches, obtained as totalKind says' }),
+    totalKind: z
+      .enum(['exact', 'cached', 'estimated'])
+      .meta({ description: 'exact: counted for this answer; cached: counted exactly countAgeSeconds ago; estimated: the database planner\'s estimate (ask count=exact)' }),
+    countedAt: timestamp().nullable().meta({ description: 'When the exact count was taken; null for an estimate' }),
+    countAgeSeconds: z.number().int().nonnegative().nullable(),
+    page: z.number().int().min(1).meta({ description: 'Page number: exact with page=, carried as a label by cursors' }),
+    pageSize: z.number().int(),
+    nextCursor: z.string().nullable().meta({ description: 'Opaque cursor of the next page (pass as cursor=); null on the last page' }),
+    prevCursor: z.string().nullable().meta({ description: 'Opaque cursor of the previous page; null on the first page' }),
+  })
   .meta({ id: 'CataloguePage' });
 
 export const resonanceDetailSchema = resonanceRowSchema

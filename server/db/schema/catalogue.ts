@@ -12,6 +12,7 @@ import {
   timestamp,
   unique,
   uuid,
+  type AnyPgColumn,
 } from 'drizzle-orm/pg-core';
 import { researchGroups } from './groups.js';
 import { cavityModels, modelVersions } from './models.js';
@@ -19,6 +20,16 @@ import { runs } from './runs.js';
 
 const bytea = customType<{ data: Buffer; driverData: Buffer }>({ dataType: () => 'bytea' });
 const tsvector = customType<{ data: string }>({ dataType: () => 'tsvector' });
+
+/**
+ * A nullable double as a sort and filter key: null (an infinite lifetime or Q of a bound
+ * state, a dimension the family lacks) becomes +Infinity, which sorts after every finite
+ * value and compares as infinite. Catalogue queries use this same expression, so the
+ * planner matches them to the expression indexes below.
+ */
+export function nullAsInfinity(column: AnyPgColumn): SQL {
+  return sql`coalesce(${column}, 'Infinity'::float8)`;
+}
 
 /**
  * One resonance (pole) found by a run. Geometry columns are copied from the
@@ -74,12 +85,31 @@ export const resonances = pgTable(
   },
   (t) => [
     unique('resonances_run_idx').on(t.runId, t.idx),
-    index('resonances_group_energy').on(t.groupId, t.energy),
-    index('resonances_group_width').on(t.groupId, t.width),
-    index('resonances_group_quality').on(t.groupId, t.quality),
-    index('resonances_group_lifetime').on(t.groupId, t.lifetimePs),
-    index('resonances_group_created').on(t.groupId, t.createdAt.desc()),
-    index('resonances_group_family_energy').on(t.groupId, t.family, t.energy),
+    // Catalogue sort keys: one b-tree per sort of the catalogue, in the sort's exact order
+    // with the tie-breakers (energy, then id), so a page is read straight off the index
+    // without a Sort, and a keyset cursor (key, energy, id) > (…) is an index bound.
+    // Energy is a key column of every one, so an energy window is checked in the index.
+    index('resonances_group_energy_key').on(t.groupId, t.energy, t.id),
+    index('resonances_group_width_key').on(t.groupId, t.width, t.energy, t.id),
+    // Bound states (Q, τ infinite) lead a descending Q or τ order: `bound` after the key lets
+    // "bound=false" be checked in the index instead of fetching each bound row to drop it.
+    index('resonances_group_quality_key').on(t.groupId, nullAsInfinity(t.quality), t.energy, t.id, t.bound),
+    index('resonances_group_lifetime_key').on(t.groupId, nullAsInfinity(t.lifetimePs), t.energy, t.id, t.bound),
+    index('resonances_group_created_key').on(t.groupId, t.createdAt, t.energy, t.id),
+    index('resonances_group_model_key').on(t.groupId, t.modelName, t.modelVersion, t.energy, t.id),
+    index('resonances_group_geometry_key').on(
+      t.groupId,
+      t.family,
+      nullAsInfinity(t.widthNm),
+      nullAsInfinity(t.heightNm),
+      nullAsInfinity(t.radiusNm),
+      nullAsInfinity(t.lengthNm),
+      t.energy,
+      t.id,
+    ),
+    index('resonances_group_tags_key').on(t.groupId, t.tags, t.energy, t.id),
+    // The usual "one family, by energy" search.
+    index('resonances_group_family_energy_key').on(t.groupId, t.family, t.energy, t.id),
     index('resonances_tags').using('gin', t.tags),
     index('resonances_search_text').using('gin', t.searchText),
   ],

@@ -42,11 +42,24 @@ export interface ResonanceDetail extends ResonanceRow {
   leads: { name: string; side: string; width: number }[];
 }
 
+/**
+ * How the total was obtained (docs/api.md): counted for this answer, counted exactly
+ * `countAgeSeconds` ago, or the database's estimate.
+ */
+export type CountKind = 'exact' | 'cached' | 'estimated';
+
 export interface CataloguePage {
   items: ResonanceRow[];
   total: number;
+  totalKind: CountKind;
+  countedAt: string | null;
+  countAgeSeconds: number | null;
+  /** Page number: exact for numbered pages, a label the cursor carries otherwise. */
   page: number;
   pageSize: number;
+  /** Opaque keyset cursors of the neighbouring pages; null at either end. */
+  nextCursor: string | null;
+  prevCursor: string | null;
 }
 
 /** The catalogue query exactly as the API names its parameters (strings, as in a URL). */
@@ -84,8 +97,8 @@ function base(groupId: string): string {
   return `/api/groups/${encodeURIComponent(groupId)}`;
 }
 
-/** An export is the whole filtered set, so page and pageSize are dropped. */
+/** An export is the whole filtered set, so paging and counting parameters are dropped. */
 function withoutPaging(query: CatalogueQuery): CatalogueQuery {
-  const { page: _page, pageSize: _size, ...rest } = query;
+  const { page: _page, pageSize: _size, cursor: _cursor, count: _count, ...rest } = query;
   return rest;
 }

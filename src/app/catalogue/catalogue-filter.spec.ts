@@ -9,10 +9,19 @@ describe('catalogue filter in the URL', () => {
       dir: 'desc' as const,
       page: 3,
       pageSize: 50,
+      cursor: '',
     };
     const query = viewToQuery(view);
     expect(query).toEqual({ family: 'stadium', taumin: '10', 'dim.length.max': '400', tag: ['a', 'b'], sort: 'lifetime', dir: 'desc', page: '3', pageSize: '50' });
     expect(queryToView(convertToParamMap(query))).toEqual(view);
+  });
+
+  it('carries a cursor instead of a page number, and drops one that is not a cursor', () => {
+    const view = { filter: { ...emptyFilter, emin: '2' }, sort: 'width' as const, dir: 'asc' as const, page: 4, pageSize: 25, cursor: 'eyJ2IjoxfQ' };
+    const query = viewToQuery(view);
+    expect(query).toEqual({ emin: '2', sort: 'width', dir: 'asc', cursor: 'eyJ2IjoxfQ' });
+    expect(queryToView(convertToParamMap(query))).toEqual({ ...view, page: 1 });
+    expect(queryToView(convertToParamMap({ cursor: 'a b<script>' })).cursor).toBe('');
   });
 
   it('ignores an unknown sort key and a bad page', () => {

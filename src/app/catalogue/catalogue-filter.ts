@@ -31,8 +31,11 @@ export interface CatalogueView {
   filter: CatalogueFilter;
   sort: SortKey | '';
   dir: 'asc' | 'desc' | '';
+  /** A numbered page (older links); the table itself pages by cursor. */
   page: number;
   pageSize: number;
+  /** The API's opaque keyset cursor of the page shown ('' for the first page). */
+  cursor: string;
 }
 
 export const emptyFilter: CatalogueFilter = {
@@ -76,7 +79,8 @@ export function viewToQuery(view: CatalogueView): Record<string, string | string
     out['sort'] = view.sort;
     out['dir'] = view.dir || 'asc';
   }
-  if (view.page > 1) out['page'] = String(view.page);
+  if (view.cursor) out['cursor'] = view.cursor;
+  else if (view.page > 1) out['page'] = String(view.page);
   if (view.pageSize !== defaultPageSize) out['pageSize'] = String(view.pageSize);
   return out;
 }
@@ -96,12 +100,14 @@ export function queryToView(params: { get(name: string): string | null; getAll(n
   const dir = params.get('dir');
   const page = Number(params.get('page') ?? 1);
   const pageSize = Number(params.get('pageSize') ?? defaultPageSize);
+  const cursor = params.get('cursor') ?? '';
   return {
     filter,
     sort: sort && sortKeys.includes(sort) ? sort : '',
     dir: dir === 'asc' || dir === 'desc' ? dir : '',
     page: Number.isInteger(page) && page >= 1 ? page : 1,
     pageSize: Number.isInteger(pageSize) && pageSize >= 1 && pageSize <= 200 ? pageSize : defaultPageSize,
+    cursor: /^[A-Za-z0-9_-]+$/.test(cursor) ? cursor : '',
   };
 }
 

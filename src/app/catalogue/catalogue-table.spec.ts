@@ -21,7 +21,7 @@ function setUp() {
   return TestBed.inject(HttpTestingController);
 }
 
-const emptyPage = { items: [], total: 0, page: 1, pageSize: 25 };
+const emptyPage = { items: [], total: 0, totalKind: 'exact', countedAt: '2026-01-01T00:00:00Z', countAgeSeconds: 0, page: 1, pageSize: 25, nextCursor: null, prevCursor: null };
 
 /** One catalogue row as the API lists it; only the fields a test changes vary. */
 function row(id: string, material: string): ResonanceRow {
@@ -115,5 +115,81 @@ describe('CatalogueTable', () => {
     expect(subs[0]).toContain('GaAs (2DEG)');
     expect(subs[0]).not.toMatch(/\bgaas\b/);
     expect(subs[1]).toContain('custom m*');
+  });
+
+  it('pages by the API\'s cursors: next and previous put the cursor in the URL and the request, first drops it', async () => {
+    const http = setUp();
+    const harness = await RouterTestingHarness.create();
+    await harness.navigateByUrl('/catalogue?family=disk&sort=width');
+    await wait(0);
+    http.expectOne((r) => r.url === '/api/groups/g1/catalogue').flush({ ...emptyPage, items: [row('a', 'gaas')], total: 60, nextCursor: 'NEXT1' });
+    harness.detectChanges();
+    const host = harness.routeNativeElement as HTMLElement;
+    const button = (name: string) => host.querySelector<HTMLButtonElement>(`[data-test="${name}"]`)!;
+    expect(button('previous-page').disabled).toBe(true);
+    expect(button('first-page').disabled).toBe(true);
+    expect(button('next-page').disabled).toBe(false);
+
+    button('next-page').click();
+    await harness.fixture.whenStable();
+    await wait(0);
+    expect(TestBed.inject(Router).url).toBe('/catalogue?family=disk&sort=width&dir=asc&cursor=NEXT1');
+    const next = http.expectOne((r) => r.url === '/api/groups/g1/catalogue');
+    expect(next.request.params.get('cursor')).toBe('NEXT1');
+    expect(next.request.params.get('family')).toBe('disk');
+    expect(next.request.params.has('page')).toBe(false);
+    next.flush({ ...emptyPage, items: [row('b', 'gaas')], total: 60, page: 2, nextCursor: 'NEXT2', prevCursor: 'PREV1' });
+    harness.detectChanges();
+    expect(host.querySelector('[data-test="page-label"]')!.textContent).toContain('Page 2 · rows 26–26');
+
+    button('previous-page').click();
+    await harness.fixture.whenStable();
+    await wait(0);
+    http.expectOne((r) => r.params.get('cursor') === 'PREV1').flush({ ...emptyPage, items: [row('a', 'gaas')], total: 60, nextCursor: 'NEXT1', prevCursor: 'PREV0' });
+    harness.detectChanges();
+
+    button('first-page').click();
+    await harness.fixture.whenStable();
+    await wait(0);
+    expect(TestBed.inject(Router).url).toBe('/catalogue?family=disk&sort=width&dir=asc');
+    const first = http.expectOne((r) => r.url === '/api/groups/g1/catalogue');
+    expect(first.request.params.has('cursor')).toBe(false);
+    expect(first.request.params.get('page')).toBe('1');
+    first.flush(emptyPage);
+  });
+
+  it('says how the total was obtained and counts exactly on request', async () => {
+    const http = setUp();
+    const harness = await RouterTestingHarness.create();
+    await harness.navigateByUrl('/catalogue?emin=1');
+    await wait(0);
+    http
+      .expectOne((r) => r.url === '/api/groups/g1/catalogue')
+      .flush({ ...emptyPage, items: [row('a', 'gaas')], total: 41213, totalKind: 'estimated', countedAt: null, countAgeSeconds: null, nextCursor: 'N' });
+    harness.detectChanges();
+    const host = harness.routeNativeElement as HTMLElement;
+    expect(host.querySelector('[data-test="count"]')!.textContent).toContain('about 41,200 resonances (estimated)');
+
+    host.querySelector<HTMLButtonElement>('[data-test="count-exact"]')!.click();
+    const exact = http.expectOne((r) => r.params.get('count') === 'exact');
+    expect(exact.request.params.get('emin')).toBe('1');
+    exact.flush({ ...emptyPage, items: [row('a', 'gaas')], total: 41213, totalKind: 'exact', countAgeSeconds: 0, nextCursor: 'N' });
+    harness.detectChanges();
+    expect(host.querySelector('[data-test="count"]')!.textContent!.trim()).toBe('41,213 resonances');
+    expect(host.querySelector('[data-test="count-exact"]')).toBeNull();
+    // Only the count was asked for: the page is not fetched again.
+    http.verify();
+  });
+
+  it('shows a cached count with its age', async () => {
+    const http = setUp();
+    const harness = await RouterTestingHarness.create();
+    await harness.navigateByUrl('/catalogue');
+    await wait(0);
+    http.expectOne((r) => r.url === '/api/groups/g1/catalogue').flush({ ...emptyPage, total: 100000, totalKind: 'cached', countAgeSeconds: 20 });
+    harness.detectChanges();
+    const host = harness.routeNativeElement as HTMLElement;
+    expect(host.querySelector('[data-test="count"]')!.textContent).toContain('100,000 resonances (counted 20 s ago)');
+    expect(host.querySelector('[data-test="count-exact"]')).not.toBeNull();
   });
 });

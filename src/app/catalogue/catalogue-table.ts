@@ -6,7 +6,6 @@ import { MatExpansionModule } from '@angular/material/expansion';
 import { MatFormFieldModule } from '@angular/material/form-field';
 import { MatIconModule } from '@angular/material/icon';
 import { MatInputModule } from '@angular/material/input';
-import { MatPaginatorModule, type PageEvent } from '@angular/material/paginator';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatSelectModule } from '@angular/material/select';
 import { MatSortModule, type Sort } from '@angular/material/sort';
@@ -19,6 +18,7 @@ import { toProblem } from '../core/errors/problem';
 import { CurrentGroup } from '../core/group/current-group';
 import { modelFamilies } from '../models/model-list';
 import { type CataloguePage, CatalogueApi } from './catalogue-api';
+import { countLabel } from './count-label';
 import {
   type CatalogueFilter,
   type CatalogueView,
@@ -35,8 +35,11 @@ type FilterControls = { [K in keyof Omit<CatalogueFilter, 'tags'>]: FormControl<
 
 /**
  * The group's resonance catalogue: a sortable, paged Material table with a filter
- * panel. The whole view (filter, sort, page) lives in the URL query, so a search
+ * panel. The whole view (filter, sort, page cursor) lives in the URL query, so a search
  * can be shared as a link, and the same parameters go to the API and the exports.
+ * Pages follow the API's keyset cursors (next, previous, first), which cost the same at
+ * any depth; the total says whether it is exact, counted a while ago, or estimated, and
+ * "Count exactly" asks the API to count now.
  */
 @Component({
   selector: 'pw-catalogue-table',
@@ -49,7 +52,6 @@ type FilterControls = { [K in keyof Omit<CatalogueFilter, 'tags'>]: FormControl<
     MatFormFieldModule,
     MatIconModule,
     MatInputModule,
-    MatPaginatorModule,
     MatProgressBarModule,
     MatSelectModule,
     MatSortModule,
@@ -86,11 +88,23 @@ export class CatalogueTable {
   protected readonly error = signal<string | null>(null);
   protected readonly numberErrors = signal<string[]>([]);
 
-  /** The API query of the current view: page and pageSize always sent, so the answer's paging is unambiguous. */
+  /** The API query of the current view: pageSize always, and the cursor or the page number (never both). */
   private readonly apiQuery = computed(() => {
     const v = this.view();
-    return { ...viewToQuery(v), page: String(v.page), pageSize: String(v.pageSize) };
+    const query: Record<string, string | string[]> = { ...viewToQuery(v), pageSize: String(v.pageSize) };
+    if (!v.cursor) query['page'] = String(v.page);
+    return query;
   });
+  protected readonly counting = signal(false);
+  protected readonly countText = computed(() => {
+    const p = this.page();
+    return p ? countLabel(p) : '';
+  });
+  protected readonly firstRow = computed(() => {
+    const p = this.page();
+    return p && p.items.length > 0 ? (p.page - 1) * p.pageSize + 1 : 0;
+  });
+  protected readonly pageSizes = [10, 25, 50, 100];
   protected readonly csvUrl = computed(() => this.exportUrl('csv'));
   protected readonly jsonUrl = computed(() => this.exportUrl('json'));
 
@@ -107,7 +121,7 @@ export class CatalogueTable {
       });
       this.numberErrors.set(bad.map((f) => `${f.label} is not a number.`));
       if (bad.length) return;
-      this.navigate({ ...this.view(), filter, page: 1 });
+      this.navigate({ ...this.view(), filter, page: 1, cursor: '' });
     });
 
     combineLatest([toObservable(this.apiQuery), toObservable(this.group.id)])
@@ -134,15 +148,47 @@ export class CatalogueTable {
   }
 
   protected onSort(sort: Sort): void {
-    this.navigate({ ...this.view(), sort: sort.direction ? (sort.active as SortKey) : '', dir: sort.direction, page: 1 });
+    this.navigate({ ...this.view(), sort: sort.direction ? (sort.active as SortKey) : '', dir: sort.direction, page: 1, cursor: '' });
   }
 
-  protected onPage(e: PageEvent): void {
-    this.navigate({ ...this.view(), page: e.pageIndex + 1, pageSize: e.pageSize });
+  protected nextPage(): void {
+    const cursor = this.page()?.nextCursor;
+    if (cursor) this.navigate({ ...this.view(), page: 1, cursor });
+  }
+
+  protected previousPage(): void {
+    const cursor = this.page()?.prevCursor;
+    if (cursor) this.navigate({ ...this.view(), page: 1, cursor });
+  }
+
+  protected firstPage(): void {
+    this.navigate({ ...this.view(), page: 1, cursor: '' });
+  }
+
+  protected onPageSize(size: string): void {
+    this.navigate({ ...this.view(), pageSize: Number(size), page: 1, cursor: '' });
+  }
+
+  /** Asks the API to count the matches now; only the total of the page shown changes. */
+  protected countExactly(): void {
+    const groupId = this.group.id();
+    if (!groupId || this.counting()) return;
+    this.counting.set(true);
+    this.api.list(groupId, { ...this.apiQuery(), count: 'exact' }).subscribe({
+      next: (answer) => {
+        this.counting.set(false);
+        const shown = this.page();
+        if (shown) this.page.set({ ...shown, total: answer.total, totalKind: answer.totalKind, countedAt: answer.countedAt, countAgeSeconds: answer.countAgeSeconds });
+      },
+      error: (err: unknown) => {
+        this.counting.set(false);
+        this.error.set(toProblem(err).message);
+      },
+    });
   }
 
   protected clear(): void {
-    this.navigate({ ...this.view(), filter: emptyFilter, page: 1 });
+    this.navigate({ ...this.view(), filter: emptyFilter, page: 1, cursor: '' });
   }
 
   protected dimensions(dims: Record<string, number>): string {
