@@ -7,6 +7,7 @@
  *   npm run engine -- transmission MODEL.json --emin X --emax Y --points N [--refine MAXPOINTS] [--tolerance T]
  *   npm run engine -- poles MODEL.json --emin X --emax Y --gmax Z [--probes P] [--seed S] [--max-nodes M] [--modes]
  *   npm run engine -- closed MODEL.json --target E --count K [--vectors]
+ *   npm run engine -- fit DATA.csv --x COLUMN --y COLUMN --shape bw|fano|thermal|thermal-fano [...] (scripts/engine-fit.ts)
  *
  * Energies and widths in meV, lifetimes in ps.
  */
@@ -17,6 +18,7 @@ import { closedCavityEigenvalues } from '../shared/engine/closed-cavity';
 import { validateCavityModel, formatIssuePath } from '../shared/model/cavity-model';
 import { deriveFigures } from '../shared/model/derived-figures';
 import { lifetimeFromWidth } from '../shared/units/constants';
+import { FitFileError, FitUsageError, runFitCommand } from './engine-fit';
 
 class UsageError extends Error {}
 
@@ -25,6 +27,9 @@ const USAGE = `usage:
   engine transmission MODEL.json --emin X --emax Y --points N [--refine MAXPOINTS] [--tolerance T]
   engine poles MODEL.json --emin X --emax Y --gmax Z [--probes P] [--seed S] [--max-nodes M] [--modes]
   engine closed MODEL.json --target E --count K [--vectors]
+  engine fit DATA.csv --x COLUMN --y COLUMN --shape bw|fano|thermal|thermal-fano
+      [--x-unit meV|ueV|mV --lever-arm MEV_PER_MV] [--y-unit T|e2h|2e2h|uS] [--temperature-mK T]
+      [--range A:B] [--lines FIRST:LAST] [--peaks N] [--background constant|linear] [--curve]
 (energies in meV)`;
 
 const FLAGS: Record<string, { numbers: string[]; switches: string[]; required: string[] }> = {
@@ -38,7 +43,7 @@ function parseArgs(argv: string[]): { command: string; file: string; numbers: Re
   const [command, file, ...rest] = argv;
   if (!command || command === '--help' || command === '-h') throw new UsageError('no command given');
   const spec = FLAGS[command];
-  if (!spec) throw new UsageError(`unknown command '${command}' (expected ${Object.keys(FLAGS).join(', ')})`);
+  if (!spec) throw new UsageError(`unknown command '${command}' (expected ${[...Object.keys(FLAGS), 'fit'].join(', ')})`);
   if (!file || file.startsWith('--')) throw new UsageError(`'${command}' needs a model file`);
   const numbers: Record<string, number> = {};
   const switches = new Set<string>();
@@ -81,6 +86,7 @@ function integer(numbers: Record<string, number>, name: string, min: number): nu
 }
 
 async function run(argv: string[]): Promise<unknown> {
+  if (argv[0] === 'fit') return runFitCommand(argv[1], argv.slice(2));
   const { command, file, numbers, switches } = parseArgs(argv);
   const doc = readModel(file);
   if (command === 'info') {
@@ -151,9 +157,12 @@ run(process.argv.slice(2)).then(
     process.stdout.write(JSON.stringify(out, null, 2) + '\n');
   },
   (err: unknown) => {
-    if (err instanceof UsageError) {
+    if (err instanceof UsageError || err instanceof FitUsageError) {
       process.stderr.write(`engine: ${err.message}\n${USAGE}\n`);
       process.exitCode = 2;
+    } else if (err instanceof FitFileError) {
+      process.stderr.write(`engine: ${err.message}\n`);
+      process.exitCode = 1;
     } else if (err instanceof InvalidModelError) {
       process.stderr.write('engine: invalid model\n' + err.issues.map((i) => `  ${formatIssuePath(i.path)}: ${i.message}`).join('\n') + '\n');
       process.exitCode = 1;

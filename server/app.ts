@@ -26,6 +26,8 @@ import { modelRoutes } from './models/model-routes.js';
 import { ModelService } from './models/model-service.js';
 import type { RunEvents } from './runs/run-events.js';
 import { runRoutes } from './runs/run-routes.js';
+import { fitRoutes } from './fits/fit-routes.js';
+import { FitService, type FitQueue } from './fits/fit-service.js';
 import { RunService } from './runs/run-service.js';
 
 export interface AppDeps {
@@ -34,6 +36,8 @@ export interface AppDeps {
   mailer: Mailer;
   /** Where runs are queued for the workers (pg-boss in production). */
   queue: RunQueue;
+  /** Where large peak fits are queued; without it every fit runs in a worker thread of the API. */
+  fitQueue?: FitQueue | null;
   /** Live run progress for server-sent events; null falls back to polling the database. */
   runEvents?: RunEvents | null;
   /** Sign-in attempts per window (default 10 per 15 min); tests pass a small one. */
@@ -112,6 +116,7 @@ export function createApp(deps: AppDeps): Express {
   api.use('/groups/:groupId/models', modelRoutes(new ModelService(db)));
   api.use('/groups/:groupId/runs', runRoutes(new RunService(db, deps.queue), deps.runEvents ?? null));
   api.use('/groups/:groupId', catalogueRoutes({ db }));
+  api.use('/groups/:groupId', fitRoutes(new FitService(db, deps.fitQueue ?? null)));
   api.use('/tokens', apiTokenRoutes(db));
   api.use('/outbox', outboxRoutes(db, config.mailStandIn));
   deps.mountFeatures?.(api);

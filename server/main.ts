@@ -7,6 +7,7 @@ import { connectDb } from './db/client.js';
 import { startMailStandIn, type MailStandIn } from './mail/mail-stand-in.js';
 import { createMailer } from './mail/mailer.js';
 import { runQueue, startBoss } from './jobs/boss.js';
+import { fitQueue } from './fits/fit-job.js';
 import { RunEvents } from './runs/run-events.js';
 
 async function main(): Promise<void> {
@@ -45,7 +46,7 @@ async function main(): Promise<void> {
   const boss = await startBoss({ databaseUrl: config.databaseUrl });
   const runEvents = new RunEvents(config.databaseUrl);
   await runEvents.start();
-  const app = createApp({ db: handle.db, config, mailer, queue: runQueue(boss), runEvents });
+  const app = createApp({ db: handle.db, config, mailer, queue: runQueue(boss), fitQueue: fitQueue(boss), runEvents });
   // createServer + 'listening' rather than app.listen: Express 5 calls listen's callback on errors too.
   const server: Server = createServer(app);
   server.once('error', (err) => {

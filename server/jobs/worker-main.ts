@@ -4,6 +4,7 @@ import { connectDb } from '../db/client.js';
 import { startBoss } from './boss.js';
 import { runPartitioned } from './partitioned-run.js';
 import { startWorkerLoop } from './worker.js';
+import { startFitWorker } from '../fits/fit-job.js';
 
 const config = loadConfig();
 const handle = connectDb(config.databaseUrl, 4);
@@ -15,6 +16,7 @@ const worker = startWorkerLoop({
   staleAfterSeconds: config.runStaleSeconds,
   supervisorSeconds: Math.max(1, Math.min(10, Math.floor(config.runStaleSeconds / 3))),
 });
+const fitWorker = await startFitWorker({ db: handle.db, boss });
 console.log(`[worker ${process.pid}] waiting for runs`);
 
 let stopping = false;
@@ -23,6 +25,7 @@ async function shutdown(signal: string) {
   stopping = true;
   console.log(`[worker ${process.pid}] ${signal}: stopping`);
   await worker.stop();
+  await fitWorker.stop();
   await boss.stop({ graceful: false, wait: false }).catch(() => {});
   await handle.close().catch(() => {});
   process.exit(0);

@@ -340,11 +340,18 @@ export function fitPeaks(xIn: ArrayLike<number>, yIn: ArrayLike<number>, options
     });
   if (temperatureMK !== null && temperatureMK > 0) {
     const kTm = temperatureMK * BOLTZMANN_MEV_PER_MK;
+    const thermalWidth = THERMAL_FWHM_PER_KT * kTm;
     fittedPeaks.forEach((pk, k) => {
-      if (THERMAL_FWHM_PER_KT * kTm > pk.width)
+      const head = `Peak ${k + 1}: at ${temperatureMK} mK the thermal width 3.53·kT = ${thermalWidth.toPrecision(3)} meV`;
+      if (isThermal(lineshape) && thermalWidth > 3 * pk.width)
         warnings.push({
           code: 'thermal_width',
-          message: `Peak ${k + 1}: kT = ${kTm.toPrecision(3)} meV at ${temperatureMK} mK gives a thermal width 3.53·kT = ${(THERMAL_FWHM_PER_KT * kTm).toPrecision(3)} meV above Γ = ${pk.width.toPrecision(3)} meV: the peak's width is the temperature's, not the resonance's${isThermal(lineshape) ? ', and Γ is poorly determined' : '; a Breit–Wigner Γ here measures the temperature'}.`,
+          message: `${head} is over three times Γ = ${pk.width.toPrecision(3)} meV (kT ≫ Γ): the peak's width is the temperature's, not the resonance's; Γ is poorly determined and only A·Γ (the peak's area) is well fixed.`,
+        });
+      else if (!isThermal(lineshape) && thermalWidth > pk.width / 2)
+        warnings.push({
+          code: 'thermal_width',
+          message: `${head} is not small against the fitted Γ = ${pk.width.toPrecision(3)} meV: this Γ includes thermal broadening${thermalWidth > pk.width ? ' and mostly measures the temperature' : ''}. Fit the thermally broadened lineshape instead.`,
         });
     });
   }

@@ -9,3 +9,4 @@ export * from '../relations.js';
 export * from './models.js';
 export * from './runs.js';
 export * from './catalogue.js';
+export * from './fits.js';
