@@ -80,6 +80,8 @@ describe('fitting a measured trace against the computed poles', () => {
     expect(Math.abs(percent)).toBeLessThan(5);
     expect(await page.locator('[data-test="fit-results"]').textContent()).toMatch(/±/);
     await screenshot(page, 'fit-workspace');
+    await page.locator('[data-test="pole-agreement"]').scrollIntoViewIfNeeded();
+    await screenshot(page, 'fit-workspace-results');
   });
 
   it('finds the fit in the catalogue, marked as fitted', async () => {

@@ -213,6 +213,10 @@ export class FitWorkspace {
     });
   }
 
+  protected fmt(value: number | null | undefined, digits = 3): string {
+    return value === null || value === undefined || !Number.isFinite(value) ? '—' : significant(value, digits);
+  }
+
   protected pm(value: number | null | undefined, error: number | null | undefined, digits = 4): string {
     if (value === null || value === undefined) return '—';
     return error === null || error === undefined ? `${significant(value, digits)} (no uncertainty)` : `${significant(value, digits)} ± ${significant(error, 2)}`;
