@@ -9,6 +9,7 @@
  *   npm run engine -- closed MODEL.json --target E --count K [--vectors]
  *   npm run engine -- current MODEL.json (--pole-near E | --energy E --lead L --channel M) [--window W] [--gmax G]
  *   npm run engine -- husimi MODEL.json (--pole-near E | --energy E --lead L --channel M) [--sigma-nm S] [--directions N] [--grid-nm G] [--threshold F]
+ *   npm run engine -- fit DATA.csv --x COLUMN --y COLUMN --shape bw|fano|thermal|thermal-fano [...] (scripts/engine-fit.ts)
  *
  * --lead is a lead's name or its index (0-based, in the model's order); --channel is 1-based.
  * Energies and widths in meV, lifetimes in ps.
@@ -22,6 +23,7 @@ import { closedCavityEigenvalues } from '../shared/engine/closed-cavity';
 import { validateCavityModel, formatIssuePath } from '../shared/model/cavity-model';
 import { deriveFigures } from '../shared/model/derived-figures';
 import { lifetimeFromWidth } from '../shared/units/constants';
+import { FitFileError, FitUsageError, runFitCommand } from './engine-fit';
 
 class UsageError extends Error {}
 
@@ -32,6 +34,9 @@ const USAGE = `usage:
   engine closed MODEL.json --target E --count K [--vectors]
   engine current MODEL.json (--pole-near E | --energy E --lead L --channel M) [--window W] [--gmax G]
   engine husimi MODEL.json (--pole-near E | --energy E --lead L --channel M) [--sigma-nm S] [--directions N] [--grid-nm G] [--threshold F]
+  engine fit DATA.csv --x COLUMN --y COLUMN --shape bw|fano|thermal|thermal-fano
+      [--x-unit meV|ueV|mV --lever-arm MEV_PER_MV] [--y-unit T|e2h|2e2h|uS] [--temperature-mK T]
+      [--range A:B] [--lines FIRST:LAST] [--peaks N] [--background constant|linear] [--curve]
 (energies in meV, lengths in nm; --lead is a name or a 0-based index, --channel 1-based)`;
 
 const STATE_FLAGS = ['pole-near', 'energy', 'channel', 'window', 'gmax'];
@@ -49,7 +54,7 @@ function parseArgs(argv: string[]): { command: string; file: string; numbers: Re
   const [command, file, ...rest] = argv;
   if (!command || command === '--help' || command === '-h') throw new UsageError('no command given');
   const spec = FLAGS[command];
-  if (!spec) throw new UsageError(`unknown command '${command}' (expected ${Object.keys(FLAGS).join(', ')})`);
+  if (!spec) throw new UsageError(`unknown command '${command}' (expected ${[...Object.keys(FLAGS), 'fit'].join(', ')})`);
   if (!file || file.startsWith('--')) throw new UsageError(`'${command}' needs a model file`);
   const numbers: Record<string, number> = {};
   const switches = new Set<string>();
@@ -117,6 +122,7 @@ function integer(numbers: Record<string, number>, name: string, min: number): nu
 }
 
 async function run(argv: string[]): Promise<unknown> {
+  if (argv[0] === 'fit') return runFitCommand(argv[1], argv.slice(2));
   const { command, file, numbers, switches, strings } = parseArgs(argv);
   const doc = readModel(file);
   if (command === 'info') {
@@ -197,9 +203,12 @@ run(process.argv.slice(2)).then(
     process.stdout.write(JSON.stringify(out, null, 2) + '\n');
   },
   (err: unknown) => {
-    if (err instanceof UsageError) {
+    if (err instanceof UsageError || err instanceof FitUsageError) {
       process.stderr.write(`engine: ${err.message}\n${USAGE}\n`);
       process.exitCode = 2;
+    } else if (err instanceof FitFileError) {
+      process.stderr.write(`engine: ${err.message}\n`);
+      process.exitCode = 1;
     } else if (err instanceof InvalidModelError) {
       process.stderr.write('engine: invalid model\n' + err.issues.map((i) => `  ${formatIssuePath(i.path)}: ${i.message}`).join('\n') + '\n');
       process.exitCode = 1;

@@ -40,6 +40,8 @@ import { modelRoutes } from './models/model-routes.js';
 import { ModelService } from './models/model-service.js';
 import type { RunEvents } from './runs/run-events.js';
 import { runRoutes } from './runs/run-routes.js';
+import { fitRoutes } from './fits/fit-routes.js';
+import { FitService, type FitQueue } from './fits/fit-service.js';
 import { RunService } from './runs/run-service.js';
 
 export interface AppDeps {
@@ -50,6 +52,8 @@ export interface AppDeps {
   queue: RunQueue;
   /** Where mode maps (scattering states, Husimi maps) are queued; without it they cannot be computed (503). */
   modeMapQueue?: ModeMapQueue;
+  /** Where large peak fits are queued; without it every fit runs in a worker thread of the API. */
+  fitQueue?: FitQueue | null;
   /** Live run progress for server-sent events; null falls back to polling the database. */
   runEvents?: RunEvents | null;
   /** Failed sign-ins per account and per IP (defaults in auth/sign-in-limit.ts); tests pass small ones. */
@@ -155,6 +159,7 @@ export function createApp(deps: AppDeps): Express {
   api.use('/groups/:groupId', backupRoutes({ db }));
   api.use('/groups/:groupId', catalogueRoutes({ db }));
   api.use('/groups/:groupId', modeMapRoutes(new ModeMapService(db, deps.modeMapQueue ?? null)));
+  api.use('/groups/:groupId', fitRoutes(new FitService(db, deps.fitQueue ?? null)));
   api.use('/tokens', apiTokenRoutes(db));
   api.use('/outbox', outboxRoutes(db, config.mailStandIn));
   deps.mountFeatures?.(api);

@@ -10,6 +10,7 @@ import { startMailStandIn, type MailStandIn } from './mail/mail-stand-in.js';
 import { createMailer } from './mail/mailer.js';
 import { runQueue, startBoss } from './jobs/boss.js';
 import { modeMapQueue } from './modemaps/mode-map-queue.js';
+import { fitQueue } from './fits/fit-job.js';
 import { RunEvents } from './runs/run-events.js';
 
 async function main(): Promise<void> {
@@ -51,7 +52,7 @@ async function main(): Promise<void> {
   const boss = await startBoss({ databaseUrl: config.databaseUrl });
   const runEvents = new RunEvents(config.databaseUrl);
   await runEvents.start();
-  const app = createApp({ db: handle.db, config, mailer, queue: runQueue(boss), modeMapQueue: modeMapQueue(boss), runEvents });
+  const app = createApp({ db: handle.db, config, mailer, queue: runQueue(boss), modeMapQueue: modeMapQueue(boss), fitQueue: fitQueue(boss), runEvents });
   // createServer + 'listening' rather than app.listen: Express 5 calls listen's callback on errors too.
   const server: Server = createServer(app);
   server.once('error', (err) => {

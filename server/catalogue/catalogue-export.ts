@@ -39,6 +39,8 @@ const csvColumns: [string, (r: ResonanceRow) => string | number | boolean | null
   ['resonance_id', (r) => r.id],
   ['run_id', (r) => r.runId],
   ['model_id', (r) => r.modelId],
+  ['source', (r) => r.source],
+  ['fit_id', (r) => r.fitId],
 ];
 
 export const csvHeader = csvColumns.map(([name]) => name);

@@ -122,6 +122,10 @@ export const catalogueFilterSchema = z
     q: textParam(200),
     tag: listParam(tagSchema),
     bound: booleanParam,
+    source: z.preprocess(
+      (v) => (v === undefined || v === '' ? undefined : v),
+      z.enum(['computed', 'fitted'], { error: 'must be computed or fitted' }).optional(),
+    ),
     sort: enumParam(catalogueSorts, 'energy'),
     dir: enumParam(['asc', 'desc'] as const, 'asc'),
     ...rangeShape,
@@ -190,6 +194,8 @@ export interface CatalogueFilter {
   q?: string;
   tags?: string[];
   bound?: boolean;
+  /** Only computed poles, or only fitted resonances. */
+  source?: 'computed' | 'fitted';
   ranges: Partial<Record<RangeName, { min?: number; max?: number }>>;
   sort: CatalogueSort;
   dir: 'asc' | 'desc';
@@ -212,6 +218,7 @@ export function toCatalogueFilter(parsed: ParsedFilter): CatalogueFilter {
   if (parsed.q) out.q = parsed.q as string;
   if (parsed.tag) out.tags = [...new Set(parsed.tag as string[])];
   if (parsed.bound !== undefined) out.bound = parsed.bound as boolean;
+  if (parsed.source) out.source = parsed.source as 'computed' | 'fitted';
   for (const [name, r] of Object.entries(ranges) as [RangeName, (typeof ranges)[RangeName]][]) {
     const min = (parsed as Record<string, unknown>)[r.min] as number | undefined;
     const max = (parsed as Record<string, unknown>)[r.max] as number | undefined;
@@ -270,6 +277,7 @@ export function catalogueConditions(groupId: string, f: CatalogueFilter): SQL {
   if (f.family) conds.push(inArray(resonances.family, f.family));
   if (f.material) conds.push(inArray(resonances.material, f.material));
   if (f.bound !== undefined) conds.push(eq(resonances.bound, f.bound));
+  if (f.source) conds.push(eq(resonances.source, f.source));
   if (f.tags) conds.push(arrayContains(resonances.tags, f.tags));
   if (f.q) {
     const tsquery = prefixQuery(f.q);

@@ -11,6 +11,8 @@ const rowColumns = {
   id: resonances.id,
   groupId: resonances.groupId,
   runId: resonances.runId,
+  source: resonances.source,
+  fitId: resonances.fitId,
   modelId: resonances.modelId,
   modelVersionId: resonances.modelVersionId,
   modelName: resonances.modelName,
@@ -40,7 +42,10 @@ const rowColumns = {
 export interface ResonanceRecord {
   id: string;
   groupId: string;
-  runId: string;
+  /** Null for a fitted resonance of a measured trace. */
+  runId: string | null;
+  source: 'computed' | 'fitted';
+  fitId: string | null;
   modelId: string;
   modelVersionId: string;
   modelName: string;
@@ -57,8 +62,9 @@ export interface ResonanceRecord {
   lifetimePs: number | null;
   quality: number | null;
   partialWidths: { lead: string; width: number }[];
-  petermann: number;
-  residual: number;
+  /** Null for fitted resonances (a property of a computed pole). */
+  petermann: number | null;
+  residual: number | null;
   bound: boolean;
   nearThreshold: boolean;
   overlapping: boolean;
@@ -188,6 +194,7 @@ export async function streamResonances(
 
 export interface ResonanceContext {
   row: ResonanceRecord;
+  /** Null for a fitted resonance of a measured trace. */
   run: {
     id: string;
     kind: string;
@@ -195,7 +202,7 @@ export interface ResonanceContext {
     certificate: unknown;
     status: string;
     thresholds: number[] | null;
-  };
+  } | null;
   /** document.leads of the model version the run computed. */
   leads: unknown;
 }
@@ -221,20 +228,23 @@ export async function findResonanceContext(q: Queryable, groupId: string, id: st
       leads: sql<unknown>`${modelVersions.document} -> 'leads'`,
     })
     .from(resonances)
-    .innerJoin(runs, eq(runs.id, resonances.runId))
+    .leftJoin(runs, eq(runs.id, resonances.runId))
     .innerJoin(modelVersions, eq(modelVersions.id, resonances.modelVersionId))
     .where(and(eq(resonances.id, id), eq(resonances.groupId, groupId)));
   if (!found) return undefined;
   return {
     row: found.row,
-    run: {
-      id: found.row.runId,
-      kind: found.runKind,
-      window: found.runWindow,
-      certificate: found.runCertificate ?? null,
-      status: found.runStatus,
-      thresholds: found.runThresholds,
-    },
+    run:
+      found.row.runId === null || found.runKind === null
+        ? null
+        : {
+            id: found.row.runId,
+            kind: found.runKind,
+            window: found.runWindow ?? {},
+            certificate: found.runCertificate ?? null,
+            status: found.runStatus ?? '',
+            thresholds: found.runThresholds,
+          },
     leads: found.leads,
   };
 }
@@ -243,9 +253,10 @@ export async function findResonanceContext(q: Queryable, groupId: string, id: st
 export async function otherPolesOfRun(
   q: Queryable,
   groupId: string,
-  runId: string,
+  runId: string | null,
   exceptId: string,
 ): Promise<{ id: string; energy: number; width: number }[]> {
+  if (runId === null) return [];
   return q
     .select({ id: resonances.id, energy: resonances.energy, width: resonances.width })
     .from(resonances)

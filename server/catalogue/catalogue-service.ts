@@ -18,7 +18,8 @@ import {
 import { toResonanceRow, type ResonanceRow } from './resonance-row.js';
 
 export interface ResonanceDetail extends ResonanceRow {
-  run: { id: string; kind: string; window: Record<string, number>; certificate: unknown; status: string };
+  /** Null for a fitted resonance of a measured trace. */
+  run: { id: string; kind: string; window: Record<string, number>; certificate: unknown; status: string } | null;
   model: { id: string; name: string; version: number };
   otherPoles: { id: string; energy: number; width: number }[];
   thresholds: number[];
@@ -138,10 +139,10 @@ export class CatalogueService {
     const found = await findResonanceContext(this.db, groupId, id);
     if (!found) throw resonanceNotFound();
     const otherPoles = await otherPolesOfRun(this.db, groupId, found.row.runId, id);
-    const { thresholds, ...run } = found.run;
+    const { thresholds, ...run } = found.run ?? { thresholds: null };
     return {
       ...toResonanceRow(found.row),
-      run,
+      run: found.run ? (run as NonNullable<ResonanceDetail['run']>) : null,
       model: { id: found.row.modelId, name: found.row.modelName, version: found.row.modelVersion },
       otherPoles,
       thresholds: thresholds ?? [],

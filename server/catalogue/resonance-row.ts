@@ -7,7 +7,11 @@ import type { ResonanceRecord } from './catalogue-repository.js';
  */
 export interface ResonanceRow {
   id: string;
-  runId: string;
+  /** Null for a fitted resonance of a measured trace. */
+  runId: string | null;
+  /** 'computed': a pole a run found; 'fitted': a peak fit (see fitId). */
+  source: 'computed' | 'fitted';
+  fitId: string | null;
   modelId: string;
   modelName: string;
   modelVersion: number;
@@ -20,16 +24,18 @@ export interface ResonanceRow {
   lifetimePs: number | null;
   quality: number | null;
   partialWidths: { lead: string; width: number }[];
-  petermann: number;
-  residual: number;
+  /** Null for fitted resonances. */
+  petermann: number | null;
+  residual: number | null;
   bound: boolean;
   nearThreshold: boolean;
   overlapping: boolean;
   tags: string[];
   notes: string;
   createdAt: string;
-  thumbnailUrl: string;
-  imageUrl: string;
+  /** Null for fitted resonances (they have no mode image). */
+  thumbnailUrl: string | null;
+  imageUrl: string | null;
 }
 
 export function modeImageUrl(groupId: string, id: string, size: 'thumb' | 'full'): string {
@@ -46,6 +52,8 @@ export function toResonanceRow(r: ResonanceRecord): ResonanceRow {
   return {
     id: r.id,
     runId: r.runId,
+    source: r.source,
+    fitId: r.fitId,
     modelId: r.modelId,
     modelName: r.modelName,
     modelVersion: r.modelVersion,
@@ -66,7 +74,7 @@ export function toResonanceRow(r: ResonanceRecord): ResonanceRow {
     tags: r.tags,
     notes: r.notes,
     createdAt: r.createdAt.toISOString(),
-    thumbnailUrl: modeImageUrl(r.groupId, r.id, 'thumb'),
-    imageUrl: modeImageUrl(r.groupId, r.id, 'full'),
+    thumbnailUrl: r.source === 'fitted' ? null : modeImageUrl(r.groupId, r.id, 'thumb'),
+    imageUrl: r.source === 'fitted' ? null : modeImageUrl(r.groupId, r.id, 'full'),
   };
 }

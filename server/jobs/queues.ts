@@ -30,6 +30,17 @@ export const RUN_QUEUES = {
   },
 } as const satisfies Record<string, QueueSpec>;
 
+/**
+ * Peak fits too large to compute during the request (server/fits). A fit takes seconds to
+ * a few minutes; a lost one is retried after its expiry.
+ */
+export const FIT_QUEUE = {
+  name: 'peak-fit',
+  retryLimit: 2,
+  retryDelaySeconds: 2,
+  expireInSeconds: 15 * 60,
+} as const satisfies QueueSpec;
+
 export type RunKind = keyof typeof RUN_QUEUES;
 export const RUN_KINDS = Object.keys(RUN_QUEUES) as RunKind[];
 

@@ -5,6 +5,7 @@ import { startBoss } from './boss.js';
 import { runPartitioned } from './partitioned-run.js';
 import { startWorkerLoop } from './worker.js';
 import { startModeMapWorker } from '../modemaps/mode-map-worker.js';
+import { startFitWorker } from '../fits/fit-job.js';
 
 const config = loadConfig();
 const handle = connectDb(config.databaseUrl, 4);
@@ -16,8 +17,9 @@ const worker = startWorkerLoop({
   staleAfterSeconds: config.runStaleSeconds,
   supervisorSeconds: Math.max(1, Math.min(10, Math.floor(config.runStaleSeconds / 3))),
 });
+const fitWorker = await startFitWorker({ db: handle.db, boss });
 const maps = startModeMapWorker({ db: handle.db, boss });
-console.log(`[worker ${process.pid}] waiting for runs and mode maps`);
+console.log(`[worker ${process.pid}] waiting for runs, mode maps and fits`);
 
 let stopping = false;
 async function shutdown(signal: string) {
@@ -26,6 +28,7 @@ async function shutdown(signal: string) {
   console.log(`[worker ${process.pid}] ${signal}: stopping`);
   await worker.stop();
   await maps.stop();
+  await fitWorker.stop();
   await boss.stop({ graceful: false, wait: false }).catch(() => {});
   await handle.close().catch(() => {});
   process.exit(0);

@@ -22,6 +22,8 @@ import { modeMapRequestSchema } from '../modemaps/mode-map-request.js';
 import { modeMapPayloadSchema, modeMapViewSchema } from '../modemaps/mode-map-schemas.js';
 import { cavityModelDescription } from './cavity-model-description.js';
 import * as answers from './response-schemas.js';
+import * as fitAnswers from './fit-schemas.js';
+import { fitBody, fitParams, traceFields, traceParams } from '../fits/fit-routes.js';
 
 // The generator calls .openapi() on every path and query parameter. zod 4 copies prototype methods
 // onto each schema when it is built, so schemas imported above lack it: asParameters clones them.
@@ -42,13 +44,14 @@ type Method = 'get' | 'post' | 'put' | 'patch' | 'delete';
  * outbox guard). tests/server/access-matrix.test.ts calls every mounted route as every kind of
  * caller and checks the answer against this rule: a route without one fails there.
  */
-export type Access = 'public' | 'signed-in' | 'member' | 'designer' | 'admin' | 'operator';
+export type Access = 'public' | 'signed-in' | 'member' | 'designer' | 'analyst' | 'admin' | 'operator';
 
 const accessText: Record<Access, string> = {
   public: 'Public: no sign-in needed.',
   'signed-in': 'Needs a signed-in user (session cookie, or a personal token as bearer).',
   member: 'Needs membership of the group, any role. Not a member, or no such group: 404.',
   designer: 'Needs the designer role in the group (admin passes every role check). Not a member: 404.',
+  analyst: 'Needs the designer role or the reviewer role in the group (admin passes every role check). Not a member: 404.',
   admin: 'Needs the admin role in the group. Not a member: 404.',
   operator: 'Only for the site operator, and only while the local mail stand-in is the transport; 404 otherwise (also to group admins).',
 };
@@ -89,6 +92,10 @@ const modelDocumentBody = documentBody.extend({ document: cavityModelDescription
 const bitmapUpload = bitmapBody.extend({
   file: z.string().meta({ contentMediaType: 'image/png', description: 'The drawing: dark pixels are inside the cavity.' }),
 });
+const traceUpload = asParameters(traceFields as unknown as z.ZodObject).extend({
+  file: z.string().meta({ contentMediaType: 'text/csv', description: 'The trace: CSV or TSV, UTF-8, at most 2 MB.' }),
+});
+const traceFile = z.object({ file: z.string().meta({ contentMediaType: 'text/csv', description: 'CSV or TSV, UTF-8, at most 2 MB.' }) });
 const eventStream = z.string().meta({
   description: 'Server-sent events: `progress` with { id, status, progress, attempts, error, resonanceCount } on every change, then `done` with { status }.',
 });
@@ -97,6 +104,50 @@ const json = (status: number, description: string, schema: z.ZodType): Answer =>
 const empty = (status: number, description: string): Answer => ({ status, description });
 
 const operations: Operation[] = [
+  { id: 'listTraces', method: 'get', path: '/groups/{groupId}/traces', tag: 'fits', summary: "The group's measured traces, newest first", access: 'member', params: groupParams, success: json(200, 'The traces', z.array(fitAnswers.traceSummarySchema)) },
+  {
+    id: 'previewTrace',
+    method: 'post',
+    path: '/groups/{groupId}/traces/preview',
+    tag: 'fits',
+    summary: 'Columns and first rows of a CSV/TSV file, to choose columns before uploading (stores nothing)',
+    access: 'analyst',
+    params: groupParams,
+    body: traceFile,
+    bodyMediaType: 'multipart/form-data',
+    success: json(200, 'The preview', fitAnswers.tracePreviewSchema),
+    errors: { 413: 'The file is over 2 MB', 415: 'The file is not CSV/TSV text' },
+  },
+  {
+    id: 'uploadTrace',
+    method: 'post',
+    path: '/groups/{groupId}/traces',
+    tag: 'fits',
+    summary: 'Upload a measured trace with its columns, units, temperature and device',
+    access: 'analyst',
+    notes: 'A bad file answers 400 invalid_trace naming the line and the column; nothing is stored.',
+    params: groupParams,
+    body: traceUpload,
+    bodyMediaType: 'multipart/form-data',
+    success: json(201, 'The stored trace', fitAnswers.traceDetailSchema),
+    errors: { 413: 'The file is over 2 MB', 415: 'The file is not CSV/TSV text' },
+  },
+  { id: 'getTrace', method: 'get', path: '/groups/{groupId}/traces/{traceId}', tag: 'fits', summary: 'A measured trace with its points (meV, T)', access: 'member', params: traceParams, success: json(200, 'The trace', fitAnswers.traceDetailSchema) },
+  { id: 'listFits', method: 'get', path: '/groups/{groupId}/fits', tag: 'fits', summary: "The group's peak fits, newest first", access: 'member', params: groupParams, success: json(200, 'The fits', fitAnswers.fitListSchema) },
+  {
+    id: 'createFit',
+    method: 'post',
+    path: '/groups/{groupId}/fits',
+    tag: 'fits',
+    summary: "Fit peaks to a range of a run's spectrum or to a measured trace",
+    access: 'analyst',
+    notes: 'Small fits answer 201 completed; larger ones 202 queued (poll getFit for progress).',
+    params: groupParams,
+    body: fitBody.meta({ id: 'FitRequest' }),
+    success: json(201, 'The fit (202 when queued)', fitAnswers.fitDetailSchema),
+    errors: { 409: 'The run has no spectrum yet' },
+  },
+  { id: 'getFit', method: 'get', path: '/groups/{groupId}/fits/{fitId}', tag: 'fits', summary: 'A fit with its result, comparison and catalogue rows', access: 'member', params: fitParams, success: json(200, 'The fit', fitAnswers.fitDetailSchema) },
   { id: 'health', method: 'get', path: '/health', tag: 'meta', summary: 'Is the server up, and which version', access: 'public', success: json(200, 'Up', answers.healthSchema) },
   {
     id: 'openApiDocument',

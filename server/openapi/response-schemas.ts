@@ -252,7 +252,9 @@ export const spectrumSchema = z
 export const resonanceRowSchema = z
   .object({
     id: z.uuid(),
-    runId: z.uuid(),
+    runId: z.uuid().nullable().meta({ description: 'The run; null for a fitted resonance of a measured trace' }),
+    source: z.enum(['computed', 'fitted']).meta({ description: 'computed: a pole a run found; fitted: a peak fit (fitId)' }),
+    fitId: z.uuid().nullable(),
     modelId: z.uuid(),
     modelName: z.string(),
     modelVersion: z.number().int().min(1),
@@ -265,16 +267,16 @@ export const resonanceRowSchema = z
     lifetimePs: z.number().nullable().meta({ description: 'τ = ħ/Γ (ps); null for a bound state' }),
     quality: z.number().nullable().meta({ description: 'Q = E/Γ; null for a bound state' }),
     partialWidths: z.array(z.object({ lead: z.string(), width: z.number() })),
-    petermann: z.number(),
-    residual: z.number(),
+    petermann: z.number().nullable().meta({ description: 'null for fitted resonances' }),
+    residual: z.number().nullable().meta({ description: 'null for fitted resonances' }),
     bound: z.boolean(),
     nearThreshold: z.boolean(),
     overlapping: z.boolean(),
     tags: z.array(z.string()),
     notes: z.string(),
     createdAt: timestamp(),
-    thumbnailUrl: z.string(),
-    imageUrl: z.string(),
+    thumbnailUrl: z.string().nullable().meta({ description: 'null for fitted resonances (no mode image)' }),
+    imageUrl: z.string().nullable(),
   })
   .meta({ id: 'ResonanceRow', description: 'One catalogued resonance z = E − iΓ/2.' });
 
@@ -296,7 +298,7 @@ export const cataloguePageSchema = z
 
 export const resonanceDetailSchema = resonanceRowSchema
   .extend({
-    run: z.object({ id: z.uuid(), kind: z.string(), window: z.record(z.string(), z.number()), certificate: z.unknown(), status: z.string() }),
+    run: z.object({ id: z.uuid(), kind: z.string(), window: z.record(z.string(), z.number()), certificate: z.unknown(), status: z.string() }).nullable(),
     model: z.object({ id: z.uuid(), name: z.string(), version: z.number().int() }),
     otherPoles: z.array(z.object({ id: z.uuid(), energy: z.number(), width: z.number() })),
     thresholds: z.array(z.number()).meta({ description: 'Channel thresholds in the run window (meV)' }),

@@ -53,7 +53,7 @@ export const routes: Routes = [
           { path: 'models', loadChildren: () => import('./models/models.routes').then((m) => m.modelsRoutes) },
           { path: 'runs', loadChildren: () => import('./runs/runs.routes').then((m) => m.runsRoutes) },
           { path: 'catalogue', loadChildren: () => import('./catalogue/catalogue.routes').then((m) => m.catalogueRoutes) },
-          later('fits', 'Fits'),
+          { path: 'fits', loadChildren: () => import('./fits/fits.routes').then((m) => m.fitsRoutes) },
           later('fabrication', 'Fabrication'),
         ],
       },

@@ -32,9 +32,15 @@ function expected(access: Access, caller: Caller): Outcome {
       return caller === 'site operator' ? 'passes' : 'hidden';
     case 'member':
     case 'designer':
+    case 'analyst':
     case 'admin': {
       if (!groupRoles.includes(caller)) return 'hidden';
-      const allowed: Record<typeof access, Caller[]> = { member: groupRoles, designer: ['admin', 'designer'], admin: ['admin'] };
+      const allowed: Record<typeof access, Caller[]> = {
+        member: groupRoles,
+        designer: ['admin', 'designer'],
+        analyst: ['admin', 'designer', 'reviewer'],
+        admin: ['admin'],
+      };
       return allowed[access].includes(caller) ? 'passes' : 'forbidden';
     }
   }

@@ -17,6 +17,7 @@ import {
 import { researchGroups } from './groups.js';
 import { cavityModels, modelVersions } from './models.js';
 import { runs } from './runs.js';
+import { peakFits } from './fits.js';
 
 const bytea = customType<{ data: Buffer; driverData: Buffer }>({ dataType: () => 'bytea' });
 const tsvector = customType<{ data: string }>({ dataType: () => 'tsvector' });
@@ -36,6 +37,9 @@ export function nullAsInfinity(column: AnyPgColumn): SQL {
  * model version so that catalogue searches filter and sort on one table with
  * plain b-tree indexes. (run_id, idx) is unique: a retried run rewrites its
  * rows instead of adding copies.
+ * A fitted resonance (source 'fitted') is a peak fit filed under the model it was
+ * compared with: fit_id is set, idx is null, run_id is the fitted run (null for a
+ * measured trace), and petermann/residual (properties of a computed pole) are null.
  */
 export const resonances = pgTable(
   'resonances',
@@ -44,23 +48,24 @@ export const resonances = pgTable(
     groupId: uuid('group_id')
       .notNull()
       .references(() => researchGroups.id, { onDelete: 'cascade' }),
-    runId: uuid('run_id')
-      .notNull()
-      .references(() => runs.id, { onDelete: 'cascade' }),
+    runId: uuid('run_id').references(() => runs.id, { onDelete: 'cascade' }),
+    /** 'computed' (a pole a run found) or 'fitted' (a peak fit). */
+    source: text('source').$type<'computed' | 'fitted'>().notNull().default('computed'),
+    fitId: uuid('fit_id').references(() => peakFits.id, { onDelete: 'cascade' }),
     modelId: uuid('model_id')
       .notNull()
       .references(() => cavityModels.id, { onDelete: 'cascade' }),
     modelVersionId: uuid('model_version_id')
       .notNull()
       .references(() => modelVersions.id, { onDelete: 'cascade' }),
-    idx: integer('idx').notNull(),
+    idx: integer('idx'),
     energy: doublePrecision('energy').notNull(),
     width: doublePrecision('width').notNull(),
     lifetimePs: doublePrecision('lifetime_ps'),
     quality: doublePrecision('quality'),
     partialWidths: jsonb('partial_widths').$type<{ lead: string; width: number }[]>().notNull(),
-    petermann: doublePrecision('petermann').notNull(),
-    residual: doublePrecision('residual').notNull(),
+    petermann: doublePrecision('petermann'),
+    residual: doublePrecision('residual'),
     bound: boolean('bound').notNull(),
     nearThreshold: boolean('near_threshold').notNull(),
     overlapping: boolean('overlapping').notNull(),

@@ -10,3 +10,4 @@ export * from './models.js';
 export * from './runs.js';
 export * from './catalogue.js';
 export * from './mode-maps.js';
+export * from './fits.js';

@@ -6,7 +6,11 @@ import type { RunCertificate, RunWindow } from '../runs/runs-api';
 /** One catalogued resonance z = E − iΓ/2 (energies meV, lifetime ps), as the API lists it. */
 export interface ResonanceRow {
   id: string;
-  runId: string;
+  /** null for a fitted resonance of a measured trace. */
+  runId: string | null;
+  /** 'fitted': a peak fit (fitId), not a computed pole. */
+  source: 'computed' | 'fitted';
+  fitId: string | null;
   modelId: string;
   modelName: string;
   modelVersion: number;
@@ -21,8 +25,9 @@ export interface ResonanceRow {
   /** null for a bound state: Q is infinite. */
   quality: number | null;
   partialWidths: { lead: string; width: number }[];
-  petermann: number;
-  residual: number;
+  /** null for fitted resonances. */
+  petermann: number | null;
+  residual: number | null;
   bound: boolean;
   nearThreshold: boolean;
   /** Another pole closer than the mean of the two widths, or K > 1.2: a Breit–Wigner fit is not meaningful. */
@@ -30,12 +35,14 @@ export interface ResonanceRow {
   tags: string[];
   notes: string;
   createdAt: string;
-  thumbnailUrl: string;
-  imageUrl: string;
+  /** null for fitted resonances (no mode image). */
+  thumbnailUrl: string | null;
+  imageUrl: string | null;
 }
 
 export interface ResonanceDetail extends ResonanceRow {
-  run: { id: string; window: RunWindow; certificate: RunCertificate | null };
+  /** null for a fitted resonance of a measured trace. */
+  run: { id: string; window: RunWindow; certificate: RunCertificate | null } | null;
   model: { id: string; name: string; version: number };
   otherPoles: { energy: number; width: number }[];
   thresholds: number[];

@@ -26,7 +26,7 @@ const emptyPage = { items: [], total: 0, totalKind: 'exact', countedAt: '2026-01
 /** One catalogue row as the API lists it; only the fields a test changes vary. */
 function row(id: string, material: string): ResonanceRow {
   return {
-    id, runId: 'r1', modelId: 'm1', modelName: 'Dot A', modelVersion: 1, family: 'disk', keyDimensions: { radius: 120 },
+    id, runId: 'r1', source: 'computed', fitId: null, modelId: 'm1', modelName: 'Dot A', modelVersion: 1, family: 'disk', keyDimensions: { radius: 120 },
     material, fieldT: 0.4, energy: 2.5, width: 0.01, lifetimePs: 65.8, quality: 250, partialWidths: [], petermann: 1.01,
     residual: 1e-12, bound: false, nearThreshold: false, overlapping: false, tags: [], notes: '', createdAt: '2025-01-01T10:00:00Z',
     thumbnailUrl: '/t.png', imageUrl: '/i.png',

@@ -75,9 +75,13 @@ export class ResonanceDetail {
       { label: 'Pole z = E − iΓ/2', value: `${formatEnergy(r.energy, 6)} − i·${formatWidth(r.width / 2)}` },
       { label: 'Lifetime τ = ħ/Γ', value: formatLifetime(r.lifetimePs) },
       { label: 'Quality Q', value: formatQuality(r.quality) },
-      { label: 'Petermann K', value: significant(r.petermann, 4) },
-      // The engine's Newton residual ‖T(z)ψ‖/‖T(z)‖ with T(z) = z − H − Σ(z) (shared/engine/pole-refine.ts); "Residual" alone read like a fit.
-      { label: 'Relative residual ‖(z − H − Σ)ψ‖', value: significant(r.residual, 2) },
+      ...(r.source === 'fitted'
+        ? []
+        : [
+            { label: 'Petermann K', value: significant(r.petermann ?? NaN, 4) },
+            // The engine's Newton residual ‖T(z)ψ‖/‖T(z)‖ with T(z) = z − H − Σ(z) (shared/engine/pole-refine.ts); "Residual" alone read like a fit.
+            { label: 'Relative residual ‖(z − H − Σ)ψ‖', value: significant(r.residual ?? NaN, 2) },
+          ]),
     ];
   });
   protected readonly imageUrl = computed(() => {
@@ -91,10 +95,10 @@ export class ResonanceDetail {
     const others = r.otherPoles.filter((p) => !(Math.abs(p.energy - r.energy) <= 1e-12 * Math.max(1, Math.abs(r.energy)) && p.width === r.width));
     return [...others.map((p) => ({ energy: p.energy, width: p.width, bound: p.width === 0 })), { ...r, id: r.id }];
   });
-  protected readonly certificate = computed(() => certificateInWords(this.resonance()?.run.certificate ?? null));
+  protected readonly certificate = computed(() => certificateInWords(this.resonance()?.run?.certificate ?? null));
   protected readonly uncertified = computed(() => {
     const r = this.resonance();
-    const piece = r?.run.certificate?.pieces.find((p) => r.energy >= p.emin && r.energy <= p.emax);
+    const piece = r?.run?.certificate?.pieces.find((p) => r.energy >= p.emin && r.energy <= p.emax);
     return !!piece && !piece.certified;
   });
 

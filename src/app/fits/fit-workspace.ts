@@ -1,0 +1,224 @@
+import { HttpClient } from '@angular/common/http';
+import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, inject, input, signal, untracked } from '@angular/core';
+import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
+import { FormsModule } from '@angular/forms';
+import { MatButtonModule } from '@angular/material/button';
+import { MatCardModule } from '@angular/material/card';
+import { MatFormFieldModule } from '@angular/material/form-field';
+import { MatIconModule } from '@angular/material/icon';
+import { MatInputModule } from '@angular/material/input';
+import { MatProgressBarModule } from '@angular/material/progress-bar';
+import { MatSelectModule } from '@angular/material/select';
+import { Router, RouterLink } from '@angular/router';
+import { NgxEchartsDirective } from 'ngx-echarts';
+import { interval, switchMap, takeWhile } from 'rxjs';
+import { ErrorReport } from '../core/errors/error-report';
+import { CurrentGroup } from '../core/group/current-group';
+import { significant } from '../catalogue/energy-format';
+import { chartColours } from '../runs/chart-colours';
+import { fitChartOptions } from './fit-chart-options';
+import { FitsApi, type FitDetail, type FitRequest, type Lineshape } from './fits-api';
+
+/** kT per mK in meV (CODATA 2018 k_B = 8.617333262e-5 eV/K). */
+const KT_PER_MK = 8.617333262e-5;
+
+/**
+ * The fit workspace: the data (a range of a run's spectrum, or a measured trace), a slider
+ * under the chart that chooses the range, the lineshape, the fitted curve with its
+ * components and residuals, the parameters with their uncertainties, and the nearest
+ * computed pole with the agreement. Opened empty (/fits/new?runId=… or ?traceId=…) or on a
+ * saved fit (/fits/:fitId).
+ */
+@Component({
+  selector: 'pw-fit-workspace',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  imports: [FormsModule, RouterLink, MatButtonModule, MatCardModule, MatFormFieldModule, MatIconModule, MatInputModule, MatProgressBarModule, MatSelectModule, NgxEchartsDirective],
+  templateUrl: './fit-workspace.html',
+  styleUrl: './fit-workspace.scss',
+})
+export class FitWorkspace {
+  readonly fitId = input<string>();
+  readonly runId = input<string>();
+  readonly traceId = input<string>();
+  readonly energy = input<string>();
+  readonly width = input<string>();
+  readonly from = input<string>();
+  readonly to = input<string>();
+
+  private readonly api = inject(FitsApi);
+  private readonly http = inject(HttpClient);
+  private readonly errors = inject(ErrorReport);
+  private readonly router = inject(Router);
+  private readonly destroyRef = inject(DestroyRef);
+  protected readonly group = inject(CurrentGroup);
+  protected readonly significant = significant;
+
+  protected readonly data = signal<{ x: number[]; y: number[] } | null>(null);
+  protected readonly sourceText = signal('');
+  protected readonly fit = signal<FitDetail | null>(null);
+  protected readonly busy = signal(false);
+  protected readonly problem = signal<string | null>(null);
+  protected readonly rangeFrom = signal<number | null>(null);
+  protected readonly rangeTo = signal<number | null>(null);
+  protected lineshape: Lineshape = 'bw';
+  protected background: 'constant' | 'linear' = 'constant';
+  protected peaks = 1;
+  protected temperatureMK: number | null = null;
+  private source: { kind: 'run'; runId: string } | { kind: 'trace'; traceId: string } | null = null;
+
+  protected readonly lineshapes: { value: Lineshape; label: string }[] = [
+    { value: 'bw', label: 'Breit–Wigner' },
+    { value: 'fano', label: 'Fano (asymmetry q)' },
+    { value: 'thermal', label: 'Breit–Wigner, thermally broadened' },
+    { value: 'thermal-fano', label: 'Fano, thermally broadened' },
+  ];
+
+  protected readonly result = computed(() => this.fit()?.result ?? null);
+  protected readonly chartOptions = computed(() => {
+    const d = this.data();
+    if (!d) return null;
+    const from = this.rangeFrom();
+    const to = this.rangeTo();
+    return fitChartOptions(d, this.result(), from !== null && to !== null ? { from, to } : null, chartColours());
+  });
+  protected readonly thermalNote = computed(() => {
+    const t = this.fit()?.result?.temperatureMK ?? this.temperatureMK;
+    return t ? `kT = ${significant(t * KT_PER_MK * 1000, 3)} µeV at ${t} mK; thermal width 3.53·kT = ${significant(3.5255 * t * KT_PER_MK * 1000, 3)} µeV` : null;
+  });
+
+  constructor() {
+    effect(() => {
+      const groupId = this.group.id();
+      const fitId = this.fitId();
+      const runId = this.runId();
+      const traceId = this.traceId();
+      if (!groupId) return;
+      untracked(() => {
+        if (fitId) this.loadFit(groupId, fitId);
+        else if (runId) this.loadRun(groupId, runId);
+        else if (traceId) this.loadTrace(groupId, traceId);
+      });
+    });
+  }
+
+  private loadRun(groupId: string, runId: string) {
+    this.source = { kind: 'run', runId };
+    this.http.get<{ energies: number[]; transmission: number[][] }>(`/api/groups/${groupId}/runs/${runId}/spectrum`).subscribe({
+      next: (s) => {
+        this.data.set({ x: s.energies, y: s.transmission[0] ?? [] });
+        this.sourceText.set(`Computed spectrum of run ${runId.slice(0, 8)} (first lead pair)`);
+        const from = Number(this.from());
+        const to = Number(this.to());
+        if (Number.isFinite(from) && Number.isFinite(to) && this.from() && this.to()) {
+          this.rangeFrom.set(Math.max(from, Math.min(...s.energies)));
+          this.rangeTo.set(Math.min(to, Math.max(...s.energies)));
+        }
+      },
+      error: (err) => this.errors.show(err),
+    });
+  }
+
+  private loadTrace(groupId: string, traceId: string) {
+    this.source = { kind: 'trace', traceId };
+    this.api.trace(groupId, traceId).subscribe({
+      next: (t) => {
+        this.data.set({ x: t.energies, y: t.transmission });
+        this.temperatureMK = t.temperatureMK;
+        this.sourceText.set(`Measured trace "${t.deviceName}" (${t.fileName}, ${t.temperatureMK} mK${t.modelName ? `, model ${t.modelName}` : ''})`);
+      },
+      error: (err) => this.errors.show(err),
+    });
+  }
+
+  private loadFit(groupId: string, fitId: string) {
+    this.api.fit(groupId, fitId).subscribe({
+      next: (f) => {
+        this.fit.set(f);
+        const req = f.request as unknown as FitRequest;
+        this.lineshape = req.lineshape;
+        this.background = req.background;
+        this.peaks = req.peaks;
+        this.temperatureMK = req.temperatureMK ?? null;
+        if (f.runId) this.loadRun(groupId, f.runId);
+        else if (f.traceId) this.loadTrace(groupId, f.traceId);
+        const src = req.source as { from?: number; to?: number };
+        if (src.from !== undefined && src.to !== undefined) {
+          this.rangeFrom.set(src.from);
+          this.rangeTo.set(src.to);
+        }
+        if (f.status === 'queued' || f.status === 'running') this.poll(groupId, fitId);
+      },
+      error: (err) => this.errors.show(err),
+    });
+  }
+
+  private poll(groupId: string, fitId: string) {
+    interval(1000)
+      .pipe(
+        switchMap(() => this.api.fit(groupId, fitId)),
+        takeWhile((f) => f.status === 'queued' || f.status === 'running', true),
+        takeUntilDestroyed(this.destroyRef),
+      )
+      .subscribe((f) => this.fit.set(f));
+  }
+
+  /** The slider under the chart moved: its values are the range to fit. */
+  protected onZoom(event: unknown, chart: { getOption(): { dataZoom?: { startValue?: number; endValue?: number }[] } } | null) {
+    const dz = chart?.getOption().dataZoom?.[0];
+    if (dz && typeof dz.startValue === 'number' && typeof dz.endValue === 'number') {
+      this.rangeFrom.set(dz.startValue);
+      this.rangeTo.set(dz.endValue);
+    }
+    void event;
+  }
+
+  protected chart: { getOption(): { dataZoom?: { startValue?: number; endValue?: number }[] } } | null = null;
+  protected onChartInit(instance: unknown) {
+    this.chart = instance as typeof this.chart;
+  }
+
+  protected setRange(which: 'from' | 'to', value: string) {
+    const v = Number(value);
+    if (!Number.isFinite(v)) return;
+    (which === 'from' ? this.rangeFrom : this.rangeTo).set(v);
+  }
+
+  protected runFit() {
+    const groupId = this.group.id();
+    if (!groupId || !this.source) return;
+    const d = this.data();
+    const from = this.rangeFrom() ?? (d ? Math.min(...d.x) : 0);
+    const to = this.rangeTo() ?? (d ? Math.max(...d.x) : 0);
+    const energy = Number(this.energy());
+    const width = Number(this.width());
+    const request: FitRequest = {
+      source: this.source.kind === 'run' ? { kind: 'run', runId: this.source.runId, pair: 0, from, to } : { kind: 'trace', traceId: this.source.traceId, from, to },
+      lineshape: this.lineshape,
+      background: this.background,
+      peaks: this.peaks,
+      ...(this.temperatureMK ? { temperatureMK: this.temperatureMK } : {}),
+      ...(this.peaks === 1 && this.energy() && Number.isFinite(energy) && energy >= from && energy <= to ? { hints: [{ energy, ...(width > 0 ? { width } : {}) }] } : {}),
+    };
+    this.busy.set(true);
+    this.problem.set(null);
+    this.api.create(groupId, request).subscribe({
+      next: (f) => {
+        this.busy.set(false);
+        void this.router.navigate(['/g', this.group.slug(), 'fits', f.id]);
+      },
+      error: (err) => {
+        this.busy.set(false);
+        this.problem.set(err?.error?.message ?? 'The fit failed.');
+      },
+    });
+  }
+
+  protected fmt(value: number | null | undefined, digits = 3): string {
+    return value === null || value === undefined || !Number.isFinite(value) ? '—' : significant(value, digits);
+  }
+
+  protected pm(value: number | null | undefined, error: number | null | undefined, digits = 4): string {
+    if (value === null || value === undefined) return '—';
+    return error === null || error === undefined ? `${significant(value, digits)} (no uncertainty)` : `${significant(value, digits)} ± ${significant(error, 2)}`;
+  }
+}
