@@ -4,8 +4,9 @@
  * certificate per piece of the window (docs/physics-model.md, "How the pole search works").
  *
  * 1. The window is cut at every channel threshold; each piece has fixed sheet
- *    flags, so T is analytic on its strip, and its contour stops a small gap short
- *    of the threshold branch points. The contour's top edge lies at +gammaMax/2:
+ *    flags, so T is analytic on its strip and continuous up to its thresholds, and
+ *    its contour runs through them (square-root panels at the branch points, so the
+ *    whole window is counted). The contour's top edge lies at +gammaMax/2:
  *    above the real axis this continuation is the physical sheet (no poles), and
  *    narrow resonances then sit far from every edge.
  * 2. At each contour node one LU gives log det T (for the count) and T⁻¹V for ℓ
@@ -124,7 +125,10 @@ export function findPoles(op: NonlinearOperator, window: PoleWindow, options: Po
     return { zRe, zIm, logAbs, arg, probed };
   };
 
-  // The strips between thresholds, with the contour pulled back from each threshold.
+  // The strips between thresholds. Each contour runs up to the thresholds themselves: with
+  // frozen channel flags T is continuous there and analytic inside; only the square-root
+  // branch point sits on the vertical edge, at Im z = 0, where the two panels touching it
+  // use the square-root rule (contour.ts), so no strip of the window is left uncounted.
   const cuts = op.thresholds.filter((e) => e > emin && e < emax);
   const bounds = [emin, ...cuts, emax];
   const pieces: Piece[] = [];
@@ -136,27 +140,25 @@ export function findPoles(op: NonlinearOperator, window: PoleWindow, options: Po
   for (let s = 0; s + 1 < bounds.length; s++) {
     const a = bounds[s];
     const b = bounds[s + 1];
-    const gap = Math.min(1e-4 * t, 0.01 * (b - a));
-    const leftIsThreshold = s > 0 || op.thresholds.includes(a);
-    const rightIsThreshold = s + 1 < bounds.length - 1 || op.thresholds.includes(b);
-    const x0 = leftIsThreshold ? a + gap : a;
-    const x1 = rightIsThreshold ? b - gap : b;
-    if (!(x1 > x0)) {
+    if (!(b > a)) {
       skipped.push(`[${a}, ${b}]`);
       continue;
     }
+    const leftIsThreshold = s > 0 || op.thresholds.includes(a);
+    const rightIsThreshold = s + 1 < bounds.length - 1 || op.thresholds.includes(b);
     const mid = 0.5 * (a + b);
     const lo = op.thresholds.filter((e) => e <= a).pop() ?? -Infinity;
     const hi = op.thresholds.find((e) => e >= b) ?? Infinity;
     const vertical = { maxPanel: gammaMax };
+    const atThreshold = { maxPanel: gammaMax, branchOnEdge: true };
     const contour = rectangleContour(
-      x0,
-      x1,
+      a,
+      b,
       y0,
       y1,
       { maxPanel: horizontalPanel },
-      leftIsThreshold ? { maxPanel: gammaMax, branchGap: gap } : vertical,
-      rightIsThreshold ? { maxPanel: gammaMax, branchGap: gap } : vertical,
+      leftIsThreshold ? atThreshold : vertical,
+      rightIsThreshold ? atThreshold : vertical,
     );
     pieces.push({ contour, sheet: op.sheetAt(mid), stripLo: lo, stripHi: hi, strip: s, depth: 0, winding: null });
   }
@@ -270,7 +272,7 @@ export function findPoles(op: NonlinearOperator, window: PoleWindow, options: Po
   found.sort((p, q) => p.zRe - q.zRe || p.zIm - q.zIm);
   for (const f of found) {
     const k = done.findIndex((p) => p.strip === f.strip && inside(p.contour, f.zRe, f.zIm));
-    if (k < 0) continue; // outside every contour (below the window or in a threshold gap)
+    if (k < 0) continue; // outside every contour (below the window, or beside it)
     certPieces[k].polesFound++;
     if (f.zIm > boundTolerance) {
       // det T has no zeros above the real axis on a correct continuation: say so rather than list it
@@ -285,8 +287,7 @@ export function findPoles(op: NonlinearOperator, window: PoleWindow, options: Po
   let summary = certified
     ? `${poles.length} pole(s) in ${certPieces.length} piece(s); every count confirmed by the argument principle`
     : `${poles.length} pole(s) in ${certPieces.length} piece(s); ${bad} piece(s) not certified`;
-  const gaps = cuts.length ? `; strips of width ≤ ${formatEnergy(1e-4 * t)} meV at ${cuts.length} threshold(s) are not searched` : '';
-  summary += gaps;
+  if (cuts.length) summary += `; the contours run through ${cuts.length} channel threshold(s) (square-root panels at each branch point), so no strip is left out`;
   if (skipped.length) summary += `; intervals too narrow to search: ${skipped.join(', ')}`;
   report('done', 1);
   return {
@@ -595,10 +596,6 @@ function mulberry32(seed: number): () => number {
     r = (r + Math.imul(r ^ (r >>> 7), 61 | r)) ^ r;
     return ((r ^ (r >>> 14)) >>> 0) / 4294967296;
   };
-}
-
-function formatEnergy(e: number): string {
-  return e.toPrecision(3);
 }
 
 function validate(op: NonlinearOperator, w: PoleWindow, o: PoleSearchOptions): void {
