@@ -199,54 +199,54 @@ function scatteringPoint(
   withS: boolean,
 ): TransmissionPoint {
   const count = w.count;
-    const transmission = Array.from({ length: leads }, () => new Array<number>(leads).fill(0));
-    const reflection = new Array<number>(leads).fill(0);
-    for (let a = 0; a < count; a++) {
-      for (let b = 0; b < count; b++) {
-        const p = s[2 * (a * count + b)] ** 2 + s[2 * (a * count + b) + 1] ** 2;
-        const from = w.lead[b];
-        const to = w.lead[a];
-        if (from === to) reflection[from] += p;
-        else transmission[from][to] += p;
+  const transmission = Array.from({ length: leads }, () => new Array<number>(leads).fill(0));
+  const reflection = new Array<number>(leads).fill(0);
+  for (let a = 0; a < count; a++) {
+    for (let b = 0; b < count; b++) {
+      const p = s[2 * (a * count + b)] ** 2 + s[2 * (a * count + b) + 1] ** 2;
+      const from = w.lead[b];
+      const to = w.lead[a];
+      if (from === to) reflection[from] += p;
+      else transmission[from][to] += p;
+    }
+  }
+  let currentResidual = 0;
+  for (let l = 0; l < leads; l++) {
+    let sum = reflection[l];
+    for (let m = 0; m < leads; m++) sum += transmission[l][m];
+    currentResidual = Math.max(currentResidual, Math.abs(sum - w.perLead[l]));
+  }
+  let unitarityResidual = 0;
+  for (let a = 0; a < count; a++) {
+    for (let b = 0; b < count; b++) {
+      let re = a === b ? -1 : 0;
+      let im = 0;
+      for (let c = 0; c < count; c++) {
+        const ar = s[2 * (c * count + a)];
+        const ai = s[2 * (c * count + a) + 1];
+        const br = s[2 * (c * count + b)];
+        const bi = s[2 * (c * count + b) + 1];
+        re += ar * br + ai * bi;
+        im += ar * bi - ai * br;
       }
+      unitarityResidual = Math.max(unitarityResidual, Math.hypot(re, im));
     }
-    let currentResidual = 0;
-    for (let l = 0; l < leads; l++) {
-      let sum = reflection[l];
-      for (let m = 0; m < leads; m++) sum += transmission[l][m];
-      currentResidual = Math.max(currentResidual, Math.abs(sum - w.perLead[l]));
-    }
-    let unitarityResidual = 0;
-    for (let a = 0; a < count; a++) {
-      for (let b = 0; b < count; b++) {
-        let re = a === b ? -1 : 0;
-        let im = 0;
-        for (let c = 0; c < count; c++) {
-          const ar = s[2 * (c * count + a)];
-          const ai = s[2 * (c * count + a) + 1];
-          const br = s[2 * (c * count + b)];
-          const bi = s[2 * (c * count + b) + 1];
-          re += ar * br + ai * bi;
-          im += ar * bi - ai * br;
-        }
-        unitarityResidual = Math.max(unitarityResidual, Math.hypot(re, im));
-      }
-    }
-    const point: TransmissionPoint = {
-      energy,
-      transmission,
-      reflection,
-      channels: w.perLead,
-      conductance: leads >= 2 ? transmission[0][1] : null,
-      currentResidual,
-      unitarityResidual,
-      detPhase,
-    };
-    if (withS) {
-      point.sMatrix = s;
-      point.sChannels = Array.from({ length: count }, (_, c) => ({ lead: w.lead[c], channel: w.channel[c] }));
-    }
-    return point;
+  }
+  const point: TransmissionPoint = {
+    energy,
+    transmission,
+    reflection,
+    channels: w.perLead,
+    conductance: leads >= 2 ? transmission[0][1] : null,
+    currentResidual,
+    unitarityResidual,
+    detPhase,
+  };
+  if (withS) {
+    point.sMatrix = s;
+    point.sChannels = Array.from({ length: count }, (_, c) => ({ lead: w.lead[c], channel: w.channel[c] }));
+  }
+  return point;
 }
 
 /** Transmission at one energy (analyses the pattern; use TransmissionSolver for many energies). */
