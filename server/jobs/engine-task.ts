@@ -66,13 +66,22 @@ export function runEngineTask(task: EngineTask, control: WorkControl = {}): Engi
 }
 
 /**
+ * Smallest cavity (sites) whose pole search goes to a pool of threads: each pool thread
+ * loads the engine and builds its own operator (about a second), which only pays off
+ * when one LU takes a few milliseconds or more.
+ */
+export const POOL_MIN_SITES = 2000;
+
+/**
  * The same run with a pole search whose LUs are shared by task.threads worker threads
  * (one copy of the operator each): the same poles and certificate as runEngineTask.
+ * Cavities under POOL_MIN_SITES sites are searched on this thread.
  */
 export async function runEngineTaskWithPool(task: EngineTask, control: WorkControl = {}): Promise<EngineTaskResult> {
   const threads = task.kind === 'pole-search' ? task.threads ?? 1 : 1;
   if (task.kind !== 'pole-search' || threads <= 1) return runEngineTask(task, control);
   const ctx = startTask(task);
+  if (ctx.op.n < POOL_MIN_SITES) return finishTask(ctx, { ...task, threads: 1 }, findPoles(ctx.op, task.window, poleOptions(task, control)), control);
   const options = poleOptions(task, control);
   const pool = await PoleThreadPool.start(task.document, poleWorkSetup(options), threads);
   let search: PoleSearchResult;
