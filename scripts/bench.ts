@@ -1,17 +1,17 @@
 // `npm run bench`: prints the speed figures of the engine and the catalogue on this
 // machine. Nothing here is asserted; compare the figures by eye with the targets in
-// DEVELOPERS.md. Sections: --only lu,transmission,poles,scaling,catalogue,estimate,load (default all).
+// DEVELOPERS.md. Sections: --only lu,transmission,sweep,poles,scaling,catalogue,estimate,load (default all).
 import { cpus, loadavg } from 'node:os';
 import { buildCavitySystem, EffectiveHamiltonian } from '../shared/engine/effective-hamiltonian';
-import { findPoles } from '../shared/engine/poles';
+import { findPoles, findPolesWith, poleWorkSetup } from '../shared/engine/poles';
 import type { CavityModelInput } from '../shared/model/cavity-model';
-import { runPartitioned } from '../server/jobs/partitioned-run';
+import { PoleThreadPool } from '../server/jobs/pole-pool';
 import { benchLu } from './bench-lu';
-import { benchTransmission } from './bench-transmission';
+import { benchSweep1000, benchTransmission } from './bench-transmission';
 import { benchCatalogue } from './bench-catalogue';
 import { benchLoad } from './bench-load';
 
-const only = (process.argv.find((a) => a.startsWith('--only='))?.slice(7) ?? 'lu,transmission,poles,scaling,catalogue,estimate,load').split(',');
+const only = (process.argv.find((a) => a.startsWith('--only='))?.slice(7) ?? 'lu,transmission,sweep,poles,scaling,catalogue,estimate,load').split(',');
 const print = (title: string, figures: Record<string, number | string>) => {
   console.log(`\n== ${title}`);
   for (const [k, v] of Object.entries(figures)) console.log(`  ${k.padEnd(40)} ${typeof v === 'number' && !Number.isInteger(v) ? v.toPrecision(4) : v}`);
@@ -54,6 +54,7 @@ console.log('1,000-energy sweep at 10,000 sites 23–35 s; certified pole search
 
 if (only.includes('lu')) print('sparse LU of z − H_eff (one thread)', await benchLu());
 if (only.includes('transmission')) print('transmission sweep at 10,000 sites (one thread)', await benchTransmission());
+if (only.includes('sweep')) print('1,000-energy transmission sweep at 10,000 sites: direct against interpolated (one thread)', await benchSweep1000());
 if (only.includes('poles')) {
   const one = searchOnce(100);
   print('certified pole search at 10,000 sites, one thread', {
@@ -64,13 +65,25 @@ if (only.includes('poles')) {
     factorisations: one.factorisations,
     seconds: one.seconds,
   });
-  const t0 = performance.now();
+  // The same search with its LUs on a pool of two worker threads: one search, one certificate.
   const op = new EffectiveHamiltonian(buildCavitySystem(benchCavity(100)));
-  const two = await runPartitioned({ kind: 'pole-search', document: benchCavity(100), window: benchWindow(op.hopping, op.n), spectrumPoints: 0 }, 2, () => {});
-  print('certified pole search at 10,000 sites, two worker threads (window split in two)', {
+  const window = benchWindow(op.hopping, op.n);
+  const load = loadavg()[0];
+  const t0 = performance.now();
+  const pool = await PoleThreadPool.start(benchCavity(100), poleWorkSetup({}), 2);
+  const started = (performance.now() - t0) / 1000;
+  const two = await findPolesWith(op, window, {}, pool);
+  await pool.close();
+  const reference = findPoles(op, window);
+  const samePoles = two.poles.length === reference.poles.length && two.poles.every((p, k) => Math.abs(p.energy - reference.poles[k].energy) <= 1e-12 * op.hopping);
+  print('certified pole search at 10,000 sites, pool of two worker threads (one search, one certificate)', {
     poles: two.poles.length,
-    certified: two.certificate?.certified ? 'yes' : 'NO',
-    seconds: (performance.now() - t0) / 1000,
+    certified: two.certificate.certified ? 'yes' : 'NO',
+    'same poles and certificate as one thread': samePoles && two.certificate.certified === reference.certificate.certified ? 'yes' : 'NO',
+    factorisations: two.stats.factorisations,
+    'search seconds': two.stats.seconds,
+    'pool start seconds (threads build their operator)': started,
+    'load average (1 min) at start': load,
   });
 }
 if (only.includes('scaling')) {

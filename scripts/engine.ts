@@ -4,7 +4,7 @@
  * status (2: bad command or flag, 1: bad file, invalid model, failed computation).
  *
  *   npm run engine -- info MODEL.json [--energy E]
- *   npm run engine -- transmission MODEL.json --emin X --emax Y --points N [--refine MAXPOINTS] [--tolerance T]
+ *   npm run engine -- transmission MODEL.json --emin X --emax Y --points N [--refine MAXPOINTS] [--tolerance T] [--interpolate]
  *   npm run engine -- poles MODEL.json --emin X --emax Y --gmax Z [--probes P] [--seed S] [--max-nodes M] [--modes]
  *   npm run engine -- closed MODEL.json --target E --count K [--vectors]
  *   npm run engine -- current MODEL.json (--pole-near E | --energy E --lead L --channel M) [--window W] [--gmax G]
@@ -29,7 +29,7 @@ class UsageError extends Error {}
 
 const USAGE = `usage:
   engine info MODEL.json [--energy E]
-  engine transmission MODEL.json --emin X --emax Y --points N [--refine MAXPOINTS] [--tolerance T]
+  engine transmission MODEL.json --emin X --emax Y --points N [--refine MAXPOINTS] [--tolerance T] [--interpolate]
   engine poles MODEL.json --emin X --emax Y --gmax Z [--probes P] [--seed S] [--max-nodes M] [--modes]
   engine closed MODEL.json --target E --count K [--vectors]
   engine current MODEL.json (--pole-near E | --energy E --lead L --channel M) [--window W] [--gmax G]
@@ -43,7 +43,7 @@ const STATE_FLAGS = ['pole-near', 'energy', 'channel', 'window', 'gmax'];
 
 const FLAGS: Record<string, { numbers: string[]; switches: string[]; required: string[]; strings?: string[] }> = {
   info: { numbers: ['energy'], switches: [], required: [] },
-  transmission: { numbers: ['emin', 'emax', 'points', 'refine', 'tolerance'], switches: [], required: ['emin', 'emax', 'points'] },
+  transmission: { numbers: ['emin', 'emax', 'points', 'refine', 'tolerance'], switches: ['interpolate'], required: ['emin', 'emax', 'points'] },
   poles: { numbers: ['emin', 'emax', 'gmax', 'probes', 'seed', 'max-nodes'], switches: ['modes'], required: ['emin', 'emax', 'gmax'] },
   closed: { numbers: ['target', 'count'], switches: ['vectors'], required: ['target', 'count'] },
   current: { numbers: STATE_FLAGS, switches: [], required: [], strings: ['lead'] },
@@ -161,7 +161,7 @@ async function run(argv: string[]): Promise<unknown> {
   if (command === 'transmission') {
     const points = integer(numbers, 'points', 2);
     const refine = numbers.refine === undefined ? undefined : { maxPoints: integer(numbers, 'refine', points), tolerance: numbers.tolerance };
-    const sweep = transmissionSweep(op, { emin: numbers.emin, emax: numbers.emax, points, refine });
+    const sweep = transmissionSweep(op, { emin: numbers.emin, emax: numbers.emax, points, refine, interpolate: switches.has('interpolate') });
     return {
       leads: system.leads.map((l) => ({ name: l.name, side: l.side, width: l.mouth.length })),
       energies: sweep.points.map((p) => p.energy),
@@ -173,6 +173,8 @@ async function run(argv: string[]): Promise<unknown> {
       unitarityResidual: sweep.worstUnitarityResidual,
       gridPoints: sweep.gridPoints,
       budgetExhausted: sweep.budgetExhausted,
+      directSolves: sweep.directSolves,
+      ...(sweep.interpolation ? { interpolation: sweep.interpolation } : {}),
       units: { energy: 'meV', conductance: '2e²/h' },
     };
   }

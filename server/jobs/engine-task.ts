@@ -5,8 +5,9 @@
  */
 import { buildCavitySystem, EffectiveHamiltonian } from '../../shared/engine/effective-hamiltonian.js';
 import type { WorkControl } from '../../shared/engine/operator.js';
-import { findPoles } from '../../shared/engine/poles.js';
-import type { CertificatePiece, Pole } from '../../shared/engine/pole-types.js';
+import { findPoles, findPolesWith, poleWorkSetup } from '../../shared/engine/poles.js';
+import type { CertificatePiece, Pole, PoleSearchOptions, PoleSearchResult } from '../../shared/engine/pole-types.js';
+import { PoleThreadPool } from './pole-pool.js';
 import { transmissionSweep } from '../../shared/engine/transmission.js';
 import { withCurrents, type RunPole } from '../modemaps/pole-currents.js';
 
@@ -14,7 +15,14 @@ import { withCurrents, type RunPole } from '../modemaps/pole-currents.js';
 export const ENGINE_VERSION = 'poleward-engine 0.1.0';
 
 export type EngineTask =
-  | { kind: 'pole-search'; document: unknown; window: { emin: number; emax: number; gammaMax: number }; spectrumPoints: number }
+  | {
+      kind: 'pole-search';
+      document: unknown;
+      window: { emin: number; emax: number; gammaMax: number };
+      spectrumPoints: number;
+      /** Worker threads that factorise the contour nodes and Newton steps (default 1: this thread). */
+      threads?: number;
+    }
   | {
       kind: 'transmission';
       document: unknown;
@@ -52,29 +60,79 @@ export function spectrumBudget(kind: EngineTask['kind'], points: number): number
   return Math.max(points, Math.min((kind === 'transmission' ? 4 : 2) * points, 4000));
 }
 
-/** Builds the operator from the model document and computes the run. Throws InvalidModelError for a bad model. */
+/** Builds the operator from the model document and computes the run on this thread. Throws InvalidModelError for a bad model. */
 export function runEngineTask(task: EngineTask, control: WorkControl = {}): EngineTaskResult {
+  const ctx = startTask(task);
+  const search = task.kind === 'pole-search' ? findPoles(ctx.op, task.window, poleOptions(task, control)) : null;
+  return finishTask(ctx, task, search, control);
+}
+
+/**
+ * Smallest cavity (sites) whose pole search goes to a pool of threads: each pool thread
+ * loads the engine and builds its own operator (about a second), which only pays off
+ * when one LU takes a few milliseconds or more.
+ */
+export const POOL_MIN_SITES = 2000;
+
+/**
+ * The same run with a pole search whose LUs are shared by task.threads worker threads
+ * (one copy of the operator each): the same poles and certificate as runEngineTask.
+ * Cavities under POOL_MIN_SITES sites are searched on this thread.
+ */
+export async function runEngineTaskWithPool(task: EngineTask, control: WorkControl = {}): Promise<EngineTaskResult> {
+  const threads = task.kind === 'pole-search' ? task.threads ?? 1 : 1;
+  if (task.kind !== 'pole-search' || threads <= 1) return runEngineTask(task, control);
+  const ctx = startTask(task);
+  if (ctx.op.n < POOL_MIN_SITES) return finishTask(ctx, { ...task, threads: 1 }, findPoles(ctx.op, task.window, poleOptions(task, control)), control);
+  const options = poleOptions(task, control);
+  const pool = await PoleThreadPool.start(task.document, poleWorkSetup(options), threads);
+  let search: PoleSearchResult;
+  try {
+    search = await findPolesWith(ctx.op, task.window, options, pool);
+  } finally {
+    await pool.close();
+  }
+  return finishTask(ctx, task, search, control);
+}
+
+interface TaskContext {
+  started: number;
+  system: ReturnType<typeof buildCavitySystem>;
+  op: EffectiveHamiltonian;
+}
+
+function startTask(task: EngineTask): TaskContext {
   const started = performance.now();
   const system = buildCavitySystem(task.document);
-  const op = new EffectiveHamiltonian(system);
+  return { started, system, op: new EffectiveHamiltonian(system) };
+}
+
+/** Share of the progress bar the spectrum takes after a pole search. */
+function spectrumShareOf(task: EngineTask): number {
+  return task.kind === 'pole-search' ? (task.spectrumPoints > 0 ? 0.2 : 0) : 1;
+}
+
+function poleOptions(task: EngineTask, control: WorkControl): PoleSearchOptions {
+  const share = spectrumShareOf(task);
+  return { ...control, onProgress: (stage, f) => control.onProgress?.(stage, (1 - share) * f) };
+}
+
+function finishTask(ctx: TaskContext, task: EngineTask, search: PoleSearchResult | null, control: WorkControl): EngineTaskResult {
+  const { started, system, op } = ctx;
   const { emin, emax } = task.window;
   const thresholds = op.thresholds.filter((e) => e >= emin && e <= emax);
   let poles: RunPole[] = [];
   let certificate: EngineTaskResult['certificate'] = null;
   const stats: Record<string, number | boolean> = { sites: op.n };
 
-  let spectrumShare = 1;
-  if (task.kind === 'pole-search') {
-    spectrumShare = task.spectrumPoints > 0 ? 0.2 : 0;
-    const result = findPoles(op, task.window, {
-      ...control,
-      onProgress: (stage, f) => control.onProgress?.(stage, (1 - spectrumShare) * f),
-    });
+  const spectrumShare = spectrumShareOf(task);
+  if (search) {
     // Mode maps: the current of every pole is part of its run.
-    poles = withCurrents(op, result.poles);
-    certificate = result.certificate;
-    stats['poleSearchSeconds'] = result.stats.seconds;
-    stats['factorisations'] = result.stats.factorisations;
+    poles = withCurrents(op, search.poles);
+    certificate = search.certificate;
+    stats['poleSearchSeconds'] = search.stats.seconds;
+    stats['factorisations'] = search.stats.factorisations;
+    if (task.kind === 'pole-search' && (task.threads ?? 1) > 1) stats['threads'] = task.threads!;
   }
   const points = task.kind === 'pole-search' ? task.spectrumPoints : task.window.points;
   const pairs: { from: number; to: number }[] = [];

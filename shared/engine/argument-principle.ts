@@ -75,21 +75,46 @@ export function wrapPhase(d: number): number {
 }
 
 /**
+ * What the count asks its driver for: the nodes of these unevaluated panels (answer
+ * true once they are all evaluated, false when the node budget does not allow it),
+ * or a pause before the phase check (the pole search refines candidates there).
+ */
+export type SettleRequest = { kind: 'panels'; panels: Panel[] } | { kind: 'check' };
+
+/**
  * Refines the contour in place until every phase step is below PHASE_LIMIT and the
  * count is stable under one extra bisection, then returns the winding number (of
  * det T, or of det T/Π(z − z_k) when options.shift is given).
  * Panels without nodes are evaluated through `evaluate`.
  */
 export function settleWinding(contour: Contour, evaluate: PanelEvaluator, options: SettleOptions = {}): WindingCount {
+  const steps = settleSteps(contour, options);
+  let answer: boolean | undefined;
+  for (;;) {
+    const next = steps.next(answer as boolean);
+    if (next.done) return next.value;
+    if (next.value.kind === 'panels') answer = next.value.panels.every((p) => evaluate(p));
+    else {
+      options.beforeCheck?.();
+      answer = undefined;
+    }
+  }
+}
+
+/**
+ * settleWinding as a generator: each round it yields every unevaluated panel at once
+ * (so a driver may evaluate their nodes in parallel), then a 'check' pause. The
+ * result does not depend on how the driver evaluates the panels.
+ */
+export function* settleSteps(contour: Contour, options: Omit<SettleOptions, 'beforeCheck'> = {}): Generator<SettleRequest, WindingCount, boolean> {
   const maxRounds = options.maxRounds ?? 40;
   let lastSmooth: number | null = null;
   for (let round = 0; round < maxRounds; round++) {
-    for (const ref of contour.refs) {
-      if (!ref.panel.nodes && !evaluate(ref.panel)) {
-        return { winding: null, maxStep: NaN, rounds: round, note: 'node budget spent before the count settled' };
-      }
+    const fresh = contour.refs.filter((r) => !r.panel.nodes).map((r) => r.panel);
+    if (fresh.length && !(yield { kind: 'panels', panels: fresh })) {
+      return { winding: null, maxStep: NaN, rounds: round, note: 'node budget spent before the count settled' };
     }
-    options.beforeCheck?.();
+    yield { kind: 'check' };
     const { steps, winding, total } = phaseSteps(contour, options.shift);
     // panel index → number of parts to cut it into; a step s needs about s/PHASE_LIMIT
     // times finer spacing, so cut in that many parts at once rather than bisect repeatedly

@@ -29,13 +29,21 @@ export interface ContourNode {
   probed: Float64Array;
 }
 
-/** A straight panel from a to b; nodes are filled in by the search (one LU each). */
+/**
+ * A straight panel from a to b; nodes are filled in by the search (one LU each).
+ * `branch` marks an end that sits on a square-root branch point (a channel
+ * threshold on the real axis): the panel's rule is then Gauss–Legendre in
+ * σ = sqrt(distance from that end), which integrates f = u(z) + sqrt(z − z_b)·v(z),
+ * u and v analytic, as well as a plain panel integrates an analytic f, and never
+ * puts a node on the branch point itself.
+ */
 export interface Panel {
   aRe: number;
   aIm: number;
   bRe: number;
   bIm: number;
   nodes: ContourNode[] | null;
+  branch?: 'a' | 'b';
 }
 
 /** A panel used in a contour, traversed from a to b, or from b to a when reversed. */
@@ -58,6 +66,35 @@ const GAUSS = gaussLegendre(PANEL_ORDER);
 /** Gauss–Legendre nodes (ascending, on [−1, 1]) and weights of the panel rule. */
 export const gaussNodes: Float64Array = GAUSS.x;
 export const gaussWeights: Float64Array = GAUSS.w;
+
+/**
+ * A panel rule on [0, 1] in the panel's own parameter τ (z = a + (b − a)τ):
+ * positions τ_k ascending and weights j_k, so that ∫_a^b f dz ≈ (b − a) Σ_k j_k f(z_k).
+ */
+interface PanelRule {
+  tau: Float64Array;
+  jac: Float64Array;
+}
+
+/** The square-root rule for a branch point at end a or b (the plain rule is gaussNodes/gaussWeights). */
+function makeRule(branch: 'a' | 'b'): PanelRule {
+  const tau = new Float64Array(PANEL_ORDER);
+  const jac = new Float64Array(PANEL_ORDER);
+  for (let k = 0; k < PANEL_ORDER; k++) {
+    // τ = σ² from the branch end, σ = (1 + x)/2: dτ = 2σ dσ = σ·w (Gauss weight w on [−1, 1])
+    const m = branch === 'a' ? k : PANEL_ORDER - 1 - k;
+    const sigma = 0.5 * (1 + gaussNodes[m]);
+    tau[k] = branch === 'a' ? sigma * sigma : 1 - sigma * sigma;
+    jac[k] = sigma * gaussWeights[m];
+  }
+  return { tau, jac };
+}
+
+const RULES = { a: makeRule('a'), b: makeRule('b') };
+
+function ruleOf(p: Panel): PanelRule {
+  return p.branch === 'b' ? RULES.b : RULES.a;
+}
 
 /**
  * q-point Gauss–Legendre rule on [−1, 1] by Newton on the Legendre recurrence
@@ -99,6 +136,12 @@ export interface EdgeGrading {
    * panel is about as long as its distance to the branch point.
    */
   branchGap?: number;
+  /**
+   * When true, the edge runs through a branch point at Im z = 0 (the contour meets a
+   * channel threshold): 0 is a panel break and the two panels that touch it use the
+   * square-root rule at that end (Panel.branch).
+   */
+  branchOnEdge?: boolean;
 }
 
 /**
@@ -133,6 +176,14 @@ export function rectangleContour(
  * so a cut shared by two contours can use the same panels in both directions.
  */
 export function verticalEdge(x: number, y0: number, y1: number, grading: EdgeGrading, downward: boolean): PanelRef[] {
+  if (grading.branchOnEdge && y0 < 0 && y1 > 0) {
+    const up: Panel[] = [];
+    const below = uniformBreaks(y0, 0, grading.maxPanel);
+    const above = uniformBreaks(0, y1, grading.maxPanel);
+    for (let k = 0; k + 1 < below.length; k++) up.push(freshPanel(x, below[k], x, below[k + 1], k + 2 === below.length ? 'b' : undefined));
+    for (let k = 0; k + 1 < above.length; k++) up.push(freshPanel(x, above[k], x, above[k + 1], k === 0 ? 'a' : undefined));
+    return referenceVertical(up, downward);
+  }
   const breaks = grading.branchGap !== undefined
     ? gradedBreaks(y0, y1, grading.branchGap, grading.maxPanel)
     : uniformBreaks(y0, y1, grading.maxPanel);
@@ -155,8 +206,8 @@ export function splitRef(ref: PanelRef): [PanelRef, PanelRef] {
   const p = ref.panel;
   const mRe = 0.5 * (p.aRe + p.bRe);
   const mIm = 0.5 * (p.aIm + p.bIm);
-  const first = freshPanel(p.aRe, p.aIm, mRe, mIm);
-  const second = freshPanel(mRe, mIm, p.bRe, p.bIm);
+  const first = freshPanel(p.aRe, p.aIm, mRe, mIm, p.branch === 'a' ? 'a' : undefined);
+  const second = freshPanel(mRe, mIm, p.bRe, p.bIm, p.branch === 'b' ? 'b' : undefined);
   return ref.reversed
     ? [{ panel: second, reversed: true }, { panel: first, reversed: true }]
     : [{ panel: first, reversed: false }, { panel: second, reversed: false }];
@@ -175,6 +226,7 @@ export function splitRefInto(ref: PanelRef, k: number): PanelRef[] {
         p.aIm + (p.bIm - p.aIm) * u0,
         m + 1 === k ? p.bRe : p.aRe + (p.bRe - p.aRe) * u1,
         m + 1 === k ? p.bIm : p.aIm + (p.bIm - p.aIm) * u1,
+        p.branch === 'a' && m === 0 ? 'a' : p.branch === 'b' && m + 1 === k ? 'b' : undefined,
       ),
     );
   }
@@ -185,13 +237,21 @@ export function splitRefInto(ref: PanelRef, k: number): PanelRef[] {
 /** The node positions z_k (interleaved) of a panel, in a→b order. */
 export function panelPoints(p: Panel): Float64Array {
   const out = new Float64Array(2 * PANEL_ORDER);
-  const cRe = 0.5 * (p.aRe + p.bRe);
-  const cIm = 0.5 * (p.aIm + p.bIm);
-  const hRe = 0.5 * (p.bRe - p.aRe);
-  const hIm = 0.5 * (p.bIm - p.aIm);
+  if (!p.branch) {
+    const cRe = 0.5 * (p.aRe + p.bRe);
+    const cIm = 0.5 * (p.aIm + p.bIm);
+    const hRe = 0.5 * (p.bRe - p.aRe);
+    const hIm = 0.5 * (p.bIm - p.aIm);
+    for (let k = 0; k < PANEL_ORDER; k++) {
+      out[2 * k] = cRe + hRe * gaussNodes[k];
+      out[2 * k + 1] = cIm + hIm * gaussNodes[k];
+    }
+    return out;
+  }
+  const { tau } = ruleOf(p);
   for (let k = 0; k < PANEL_ORDER; k++) {
-    out[2 * k] = cRe + hRe * gaussNodes[k];
-    out[2 * k + 1] = cIm + hIm * gaussNodes[k];
+    out[2 * k] = p.aRe + (p.bRe - p.aRe) * tau[k];
+    out[2 * k + 1] = p.aIm + (p.bIm - p.aIm) * tau[k];
   }
   return out;
 }
@@ -202,8 +262,12 @@ export function panelPoints(p: Panel): Float64Array {
  */
 export function panelWeight(ref: PanelRef, k: number): { re: number; im: number } {
   const p = ref.panel;
-  const s = ref.reversed ? -0.5 : 0.5;
-  return { re: s * (p.bRe - p.aRe) * gaussWeights[k], im: s * (p.bIm - p.aIm) * gaussWeights[k] };
+  if (!p.branch) {
+    const s = ref.reversed ? -0.5 : 0.5;
+    return { re: s * (p.bRe - p.aRe) * gaussWeights[k], im: s * (p.bIm - p.aIm) * gaussWeights[k] };
+  }
+  const j = (ref.reversed ? -1 : 1) * ruleOf(p).jac[k];
+  return { re: j * (p.bRe - p.aRe), im: j * (p.bIm - p.aIm) };
 }
 
 /** Contour nodes in traversal order with their weights (all panels must be evaluated). */
@@ -223,8 +287,8 @@ function fresh(aRe: number, aIm: number, bRe: number, bIm: number, reversed: boo
   return { panel: freshPanel(aRe, aIm, bRe, bIm), reversed };
 }
 
-function freshPanel(aRe: number, aIm: number, bRe: number, bIm: number): Panel {
-  return { aRe, aIm, bRe, bIm, nodes: null };
+function freshPanel(aRe: number, aIm: number, bRe: number, bIm: number, branch?: 'a' | 'b'): Panel {
+  return branch ? { aRe, aIm, bRe, bIm, nodes: null, branch } : { aRe, aIm, bRe, bIm, nodes: null };
 }
 
 function uniformBreaks(a: number, b: number, maxPanel: number): number[] {

@@ -16,7 +16,10 @@ export interface RefineSetting {
   op: NonlinearOperator;
   plan: PoleFactorPlan;
   sheet: SheetFlags;
-  /** Open strip lo < Re z < hi the iterates must stay in (the piece's threshold interval). */
+  /**
+   * Open strip lo < Re z < hi (the piece's threshold interval) the result must lie in;
+   * iterates may leave it only below the real axis, where T stays analytic.
+   */
   stripLo: number;
   stripHi: number;
   /** Stop when the relative residual is at most this. */
@@ -60,7 +63,11 @@ export function refinePole(s: RefineSetting, z0Re: number, z0Im: number, start: 
   let residual = Infinity;
   let steps = 0;
   for (; steps < s.maxSteps; steps++) {
-    if (!(zRe > s.stripLo && zRe < s.stripHi) || !Number.isFinite(zIm)) return null;
+    // With frozen flags T is analytic in the whole open lower half plane (the square-root
+    // cuts lie on the real axis only), so an iterate may pass under a threshold; in or above
+    // the real axis outside the strip it would be on another continuation.
+    if (!Number.isFinite(zRe) || !Number.isFinite(zIm)) return null;
+    if (!(zRe > s.stripLo && zRe < s.stripHi) && !(zIm < 0)) return null;
     const z = { re: zRe, im: zIm };
     const f = factorNear(op, s.plan, zRe, zIm, s.sheet, values);
     s.onFactor();

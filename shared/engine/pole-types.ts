@@ -78,7 +78,7 @@ export interface Pole {
 
 /** The argument-principle check of one piece of the window. */
 export interface CertificatePiece {
-  /** Real extent of the piece's contour (meV); pieces stop a small gap short of thresholds. */
+  /** Real extent of the piece's contour (meV); pieces meet at the channel thresholds, leaving no gap. */
   emin: number;
   emax: number;
   /** Poles found inside the piece's contour. */

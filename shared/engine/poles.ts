@@ -4,8 +4,9 @@
  * certificate per piece of the window (docs/physics-model.md, "How the pole search works").
  *
  * 1. The window is cut at every channel threshold; each piece has fixed sheet
- *    flags, so T is analytic on its strip, and its contour stops a small gap short
- *    of the threshold branch points. The contour's top edge lies at +gammaMax/2:
+ *    flags, so T is analytic on its strip and continuous up to its thresholds, and
+ *    its contour runs through them (square-root panels at the branch points, so the
+ *    whole window is counted). The contour's top edge lies at +gammaMax/2:
  *    above the real axis this continuation is the physical sheet (no poles), and
  *    narrow resonances then sit far from every edge.
  * 2. At each contour node one LU gives log det T (for the count) and T⁻¹V for ℓ
@@ -18,8 +19,8 @@
  */
 import { HBAR_MEV_PS } from '../units/constants';
 import { checkCancelled, type NonlinearOperator, type SheetFlags } from './operator';
-import { SparseLuPlan, type SparseLuFactors } from './sparse-lu';
-import { phaseSteps, settleWinding } from './argument-principle';
+import { SparseLuPlan } from './sparse-lu';
+import { phaseSteps, settleSteps, type WindingCount } from './argument-principle';
 import { contourEigenvalues } from './beyn';
 import {
   PANEL_ORDER,
@@ -32,7 +33,17 @@ import {
   type Panel,
   type PanelRef,
 } from './contour';
-import { factorNear, normalise, refinePole, type RefinedPole, type RefineSetting } from './pole-refine';
+import { normalise, type RefinedPole } from './pole-refine';
+import {
+  randomBlock,
+  searchProbes,
+  SerialPoleWork,
+  type NodeRequest,
+  type PoleWork,
+  type PoleWorkSetup,
+  type RefineOutcome,
+  type RefineRequest,
+} from './pole-work';
 import type {
   CertificatePiece,
   Pole,
@@ -43,6 +54,12 @@ import type {
 } from './pole-types';
 
 export type { CertificatePiece, Pole, PoleSearchOptions, PoleSearchResult, PoleWindow } from './pole-types';
+export type { PoleWork, PoleWorkSetup } from './pole-work';
+
+/** A batch of independent work the search needs before it can go on. */
+type WorkRequest = { kind: 'nodes'; requests: NodeRequest[] } | { kind: 'refine'; requests: RefineRequest[] };
+type WorkAnswer = ContourNode[] | RefineOutcome[];
+type Steps<T> = Generator<WorkRequest, T, WorkAnswer>;
 
 /** Largest number of Hankel blocks K per side (conditioning of s^p grows with p). */
 const MAX_MOMENTS = 8;
@@ -69,62 +86,70 @@ interface FoundPole extends RefinedPole {
 }
 
 /**
- * Finds and certifies every pole of `op` in `window`.
+ * Finds and certifies every pole of `op` in `window`, on this thread.
  * @throws RangeError naming the bad field when the window or an option is invalid
  * @throws WorkCancelled when options.signal is aborted
  */
 export function findPoles(op: NonlinearOperator, window: PoleWindow, options: PoleSearchOptions = {}): PoleSearchResult {
-  const started = performance.now();
   validate(op, window, options);
-  const t = op.hopping;
-  const probes = options.probes ?? 4;
-  const tolerance = options.tolerance ?? 1e-12;
-  const maxNodes = options.maxNodes ?? 4000;
   const plan: PoleFactorPlan = options.plan ?? SparseLuPlan.analyse(op.n, op.colPtr, op.rowIdx, { sites: op.sites });
+  const work = new SerialPoleWork(op, plan, poleWorkSetup(options), () => checkCancelled(options));
+  const steps = poleSearchSteps(op, window, options);
+  let answer: WorkAnswer | undefined;
+  for (;;) {
+    const next = steps.next(answer as WorkAnswer);
+    if (next.done) return next.value;
+    answer = next.value.kind === 'nodes' ? work.nodesSync(next.value.requests) : work.refineSync(next.value.requests);
+  }
+}
+
+/**
+ * The same search with its LUs done by `work` (e.g. a pool of worker threads, each
+ * with its own copy of the operator). The batches and the order their answers are
+ * used in are those of findPoles, so the poles and certificate are the same to the
+ * last bit whenever the workers' LUs are. `work.setup` must be poleWorkSetup(options).
+ */
+export async function findPolesWith(op: NonlinearOperator, window: PoleWindow, options: PoleSearchOptions, work: PoleWork): Promise<PoleSearchResult> {
+  validate(op, window, options);
+  const setup = poleWorkSetup(options);
+  if (work.setup.probes !== setup.probes || work.setup.seed !== setup.seed || work.setup.tolerance !== setup.tolerance) {
+    throw new RangeError(`findPolesWith: the work's setup ${JSON.stringify(work.setup)} differs from the search's ${JSON.stringify(setup)}`);
+  }
+  const steps = poleSearchSteps(op, window, options);
+  let answer: WorkAnswer | undefined;
+  for (;;) {
+    checkCancelled(options);
+    const next = steps.next(answer as WorkAnswer);
+    if (next.done) return next.value;
+    answer = next.value.kind === 'nodes' ? await work.evaluateNodes(next.value.requests) : await work.refine(next.value.requests);
+  }
+}
+
+/** The probe count, seed and Newton tolerance a search with these options uses. */
+export function poleWorkSetup(options: PoleSearchOptions): PoleWorkSetup {
+  return { probes: options.probes ?? 4, seed: options.seed ?? 1, tolerance: options.tolerance ?? 1e-12 };
+}
+
+/** The search itself: asks for nodes and refinements in batches, and does the rest. */
+function* poleSearchSteps(op: NonlinearOperator, window: PoleWindow, options: PoleSearchOptions): Steps<PoleSearchResult> {
+  const started = performance.now();
+  const t = op.hopping;
+  const { probes, seed } = poleWorkSetup(options);
+  const maxNodes = options.maxNodes ?? 4000;
   const { emin, emax, gammaMax } = window;
   const y0 = -gammaMax / 2;
   const y1 = gammaMax / 2;
-  const random = mulberry32(options.seed ?? 1);
-  const right = randomBlock(op.n, probes, random);
-  const left = randomBlock(op.n, probes, random);
+  // the probe blocks are drawn first (the workers draw the same ones from the seed)
+  const { random } = searchProbes(op.n, probes, seed);
 
   let factorisations = 0;
   let nodesSpent = 0;
   let nodeFactorisations = 0;
-  const onFactor = (): void => {
-    checkCancelled(options);
-    factorisations++;
-  };
 
-  // Per-node work: a pure function of (z, sheet, probes), so it can later be farmed out.
-  const nnz = op.colPtr[op.n];
-  const values = new Float64Array(2 * nnz);
-  const solved = new Float64Array(2 * op.n * probes);
-  // A node's LU is finished with once its log det and probe solves are done, so the next
-  // node's LU takes over its storage (a SparseLuPlan only; a spare is never used twice).
-  let spare: SparseLuFactors | undefined;
-  const sparse = plan instanceof SparseLuPlan ? plan : undefined;
-  const nodePlan: PoleFactorPlan = sparse
-    ? {
-        factor: (v) => {
-          const s = spare;
-          spare = undefined;
-          return sparse.factor(v, s);
-        },
-      }
-    : plan;
-  const evaluateNode = (zRe: number, zIm: number, sheet: SheetFlags): ContourNode => {
-    const f = factorNear(op, nodePlan, zRe, zIm, sheet, values);
-    onFactor();
-    nodeFactorisations++;
-    const { logAbs, arg } = f.logDet();
-    f.solve(right, probes, solved);
-    const probed = project(op.n, probes, left, solved);
-    if (sparse) spare = f as SparseLuFactors;
-    return { zRe, zIm, logAbs, arg, probed };
-  };
-
-  // The strips between thresholds, with the contour pulled back from each threshold.
+  // The strips between thresholds. Each contour runs up to the thresholds themselves: with
+  // frozen channel flags T is continuous there and analytic inside; only the square-root
+  // branch point sits on the vertical edge, at Im z = 0, where the two panels touching it
+  // use the square-root rule (contour.ts), so no strip of the window is left uncounted.
   const cuts = op.thresholds.filter((e) => e > emin && e < emax);
   const bounds = [emin, ...cuts, emax];
   const pieces: Piece[] = [];
@@ -136,27 +161,25 @@ export function findPoles(op: NonlinearOperator, window: PoleWindow, options: Po
   for (let s = 0; s + 1 < bounds.length; s++) {
     const a = bounds[s];
     const b = bounds[s + 1];
-    const gap = Math.min(1e-4 * t, 0.01 * (b - a));
-    const leftIsThreshold = s > 0 || op.thresholds.includes(a);
-    const rightIsThreshold = s + 1 < bounds.length - 1 || op.thresholds.includes(b);
-    const x0 = leftIsThreshold ? a + gap : a;
-    const x1 = rightIsThreshold ? b - gap : b;
-    if (!(x1 > x0)) {
+    if (!(b > a)) {
       skipped.push(`[${a}, ${b}]`);
       continue;
     }
+    const leftIsThreshold = s > 0 || op.thresholds.includes(a);
+    const rightIsThreshold = s + 1 < bounds.length - 1 || op.thresholds.includes(b);
     const mid = 0.5 * (a + b);
     const lo = op.thresholds.filter((e) => e <= a).pop() ?? -Infinity;
     const hi = op.thresholds.find((e) => e >= b) ?? Infinity;
     const vertical = { maxPanel: gammaMax };
+    const atThreshold = { maxPanel: gammaMax, branchOnEdge: true };
     const contour = rectangleContour(
-      x0,
-      x1,
+      a,
+      b,
       y0,
       y1,
       { maxPanel: horizontalPanel },
-      leftIsThreshold ? { maxPanel: gammaMax, branchGap: gap } : vertical,
-      rightIsThreshold ? { maxPanel: gammaMax, branchGap: gap } : vertical,
+      leftIsThreshold ? atThreshold : vertical,
+      rightIsThreshold ? atThreshold : vertical,
     );
     pieces.push({ contour, sheet: op.sheetAt(mid), stripLo: lo, stripHi: hi, strip: s, depth: 0, winding: null });
   }
@@ -177,24 +200,19 @@ export function findPoles(op: NonlinearOperator, window: PoleWindow, options: Po
     const piece = queue.shift()!;
     const width = piece.contour.x1 - piece.contour.x0;
     report('contour', (0.95 * widthDone) / totalWidth);
-    const evaluatePanel = (panel: Panel): boolean => {
-      if (nodesSpent + PANEL_ORDER > maxNodes) return false;
-      const pts = panelPoints(panel);
-      const nodes: ContourNode[] = [];
-      for (let k = 0; k < PANEL_ORDER; k++) nodes.push(evaluateNode(pts[2 * k], pts[2 * k + 1], piece.sheet));
-      nodesSpent += PANEL_ORDER;
-      panel.nodes = nodes;
+    const evaluatePanels = function* (panels: Panel[]): Steps<boolean> {
+      if (nodesSpent + PANEL_ORDER * panels.length > maxNodes) return false;
+      const requests: NodeRequest[] = [];
+      for (const panel of panels) {
+        const pts = panelPoints(panel);
+        for (let k = 0; k < PANEL_ORDER; k++) requests.push({ zRe: pts[2 * k], zIm: pts[2 * k + 1], sheet: piece.sheet });
+      }
+      const nodes = (yield { kind: 'nodes', requests }) as ContourNode[];
+      nodesSpent += requests.length;
+      nodeFactorisations += requests.length;
+      factorisations += requests.length;
+      panels.forEach((panel, k) => (panel.nodes = nodes.slice(k * PANEL_ORDER, (k + 1) * PANEL_ORDER)));
       return true;
-    };
-    const setting: RefineSetting = {
-      op,
-      plan,
-      sheet: piece.sheet,
-      stripLo: piece.stripLo,
-      stripHi: piece.stripHi,
-      tolerance,
-      maxSteps: 8,
-      onFactor,
     };
 
     let settled = false;
@@ -206,7 +224,7 @@ export function findPoles(op: NonlinearOperator, window: PoleWindow, options: Po
       let beynPanels = -1;
       // Between rounds: new nodes → new Hankel candidates → Newton, so the deflated phase
       // check below always sees every pole found so far.
-      const beforeCheck = (): void => {
+      const beforeCheck = function* (): Steps<void> {
         const panels = piece.contour.refs.length;
         if (panels === beynPanels) return;
         beynPanels = panels;
@@ -222,14 +240,29 @@ export function findPoles(op: NonlinearOperator, window: PoleWindow, options: Po
         // A full-rank Hankel matrix means more eigenvalues than the block holds: widen it (no new LUs).
         while (eig.rank === probes * K && K < MAX_MOMENTS) eig = contourEigenvalues(piece.contour, probes, ++K);
         report('refine', (0.95 * (widthDone + 0.5 * width)) / totalWidth);
-        refineCandidates(eig.values, piece, setting, found, rejected, random, op.n, attempt > 0);
+        const spent = yield* refineCandidates(eig.values, piece, found, rejected, random, op, attempt > 0);
+        factorisations += spent;
       };
       const shift = (zRe: number, zIm: number): number => {
         let a = 0;
         for (const f of strip()) a += Math.atan2(zIm - f.zIm, zRe - f.zRe);
         return a;
       };
-      const count = settleWinding(piece.contour, evaluatePanel, { shift, beforeCheck });
+      const settle = settleSteps(piece.contour, { shift });
+      let count: WindingCount;
+      let answer: boolean | undefined;
+      for (;;) {
+        const next = settle.next(answer as boolean);
+        if (next.done) {
+          count = next.value;
+          break;
+        }
+        if (next.value.kind === 'panels') answer = yield* evaluatePanels(next.value.panels);
+        else {
+          yield* beforeCheck();
+          answer = undefined;
+        }
+      }
       if (count.winding === null) {
         piece.winding = null;
         piece.note = count.note;
@@ -270,7 +303,7 @@ export function findPoles(op: NonlinearOperator, window: PoleWindow, options: Po
   found.sort((p, q) => p.zRe - q.zRe || p.zIm - q.zIm);
   for (const f of found) {
     const k = done.findIndex((p) => p.strip === f.strip && inside(p.contour, f.zRe, f.zIm));
-    if (k < 0) continue; // outside every contour (below the window or in a threshold gap)
+    if (k < 0) continue; // outside every contour (below the window, or beside it)
     certPieces[k].polesFound++;
     if (f.zIm > boundTolerance) {
       // det T has no zeros above the real axis on a correct continuation: say so rather than list it
@@ -285,8 +318,7 @@ export function findPoles(op: NonlinearOperator, window: PoleWindow, options: Po
   let summary = certified
     ? `${poles.length} pole(s) in ${certPieces.length} piece(s); every count confirmed by the argument principle`
     : `${poles.length} pole(s) in ${certPieces.length} piece(s); ${bad} piece(s) not certified`;
-  const gaps = cuts.length ? `; strips of width ≤ ${formatEnergy(1e-4 * t)} meV at ${cuts.length} threshold(s) are not searched` : '';
-  summary += gaps;
+  if (cuts.length) summary += `; the contours run through ${cuts.length} channel threshold(s) (square-root panels at each branch point), so no strip is left out`;
   if (skipped.length) summary += `; intervals too narrow to search: ${skipped.join(', ')}`;
   report('done', 1);
   return {
@@ -303,20 +335,20 @@ export function findPoles(op: NonlinearOperator, window: PoleWindow, options: Po
 
 /**
  * Newton-refines the Hankel eigenvalues that lie in (or just around) the piece's
- * contour, those inside first. A candidate next to a pole already found (or to one
- * that already failed) is skipped: it is that pole again, unless `nearKnown` asks
- * to try them too (a degenerate partner is missing).
+ * contour, those inside first, as one batch of independent refinements. A candidate
+ * next to a pole already found (or to one that already failed) is skipped: it is that
+ * pole again, unless `nearKnown` asks to try them too (a degenerate partner is
+ * missing). Returns the LUs spent.
  */
-function refineCandidates(
+function* refineCandidates(
   values: Float64Array,
   piece: Piece,
-  setting: RefineSetting,
   found: FoundPole[],
   rejected: [number, number][],
   random: () => number,
-  n: number,
+  op: NonlinearOperator,
   nearKnown: boolean,
-): void {
+): Steps<number> {
   const c = piece.contour;
   // Poles just outside (mostly below the bottom edge) are refined too: once known, they are
   // divided out of det T and no longer force fine panels on the nearby edge.
@@ -331,21 +363,29 @@ function refineCandidates(
     if (re > c.x0 - mx && re < c.x1 + mx && im > c.y0 - below && im < c.y1 + my) candidates.push({ re, im, inner: inside(c, re, im) });
   }
   candidates.sort((p, q) => Number(q.inner) - Number(p.inner) || p.re - q.re);
+  const chosen: { re: number; im: number }[] = [];
+  const requests: RefineRequest[] = [];
   for (const cand of candidates) {
     const close = (re: number, im: number): boolean => Math.hypot(re - cand.re, im - cand.im) < near;
     if (rejected.some(([re, im]) => close(re, im))) continue;
     // a cluster of m candidates at one place stands for m poles (a degenerate pole)
     const cluster = candidates.filter((o) => close(o.re, o.im)).length;
     const held = found.filter((f) => f.strip === piece.strip && close(f.zRe, f.zIm)).length;
-    if (!nearKnown && held >= cluster) continue;
-    const start = randomBlock(n, 1, random);
-    const r = refinePole(setting, cand.re, cand.im, start);
-    if (!r || !(r.residual <= SPURIOUS_RESIDUAL)) {
-      rejected.push([cand.re, cand.im]);
-      continue;
-    }
-    addPole(found, { ...r, strip: piece.strip, sheet: piece.sheet }, setting.op.hopping);
+    const planned = chosen.filter((o) => close(o.re, o.im)).length;
+    if (!nearKnown && held + planned >= cluster) continue;
+    chosen.push(cand);
+    requests.push({ zRe: cand.re, zIm: cand.im, sheet: piece.sheet, stripLo: piece.stripLo, stripHi: piece.stripHi, start: randomBlock(op.n, 1, random) });
   }
+  if (!requests.length) return 0;
+  const outcomes = (yield { kind: 'refine', requests }) as RefineOutcome[];
+  let spent = 0;
+  outcomes.forEach((o, k) => {
+    spent += o.factorisations;
+    const r = o.pole;
+    if (!r || !(r.residual <= SPURIOUS_RESIDUAL)) rejected.push([chosen[k].re, chosen[k].im]);
+    else addPole(found, { ...r, strip: piece.strip, sheet: piece.sheet }, op.hopping);
+  });
+  return spent;
 }
 
 /**
@@ -556,49 +596,6 @@ export function modeImage(op: NonlinearOperator, psi: Float64Array): Float64Arra
   }
   out[2 * pick + 1] = 0;
   return out;
-}
-
-/** Y = Uᴴ X for column-major n×ℓ blocks U, X; Y row-major ℓ×ℓ. Cost O(nℓ²). */
-function project(n: number, l: number, U: Float64Array, X: Float64Array): Float64Array {
-  const Y = new Float64Array(2 * l * l);
-  for (let a = 0; a < l; a++) {
-    const ua = 2 * a * n;
-    for (let b = 0; b < l; b++) {
-      const xb = 2 * b * n;
-      let re = 0;
-      let im = 0;
-      for (let i = 0; i < 2 * n; i += 2) {
-        const ur = U[ua + i], ui = U[ua + i + 1], xr = X[xb + i], xi = X[xb + i + 1];
-        re += ur * xr + ui * xi;
-        im += ur * xi - ui * xr;
-      }
-      Y[2 * (a * l + b)] = re;
-      Y[2 * (a * l + b) + 1] = im;
-    }
-  }
-  return Y;
-}
-
-/** A column-major n×ℓ block of complex entries uniform in the unit square around 0. */
-function randomBlock(n: number, l: number, random: () => number): Float64Array {
-  const out = new Float64Array(2 * n * l);
-  for (let k = 0; k < out.length; k++) out[k] = 2 * random() - 1;
-  return out;
-}
-
-/** Small seeded generator (mulberry32, common practice, no source) so searches are reproducible. */
-function mulberry32(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let r = Math.imul(a ^ (a >>> 15), 1 | a);
-    r = (r + Math.imul(r ^ (r >>> 7), 61 | r)) ^ r;
-    return ((r ^ (r >>> 14)) >>> 0) / 4294967296;
-  };
-}
-
-function formatEnergy(e: number): string {
-  return e.toPrecision(3);
 }
 
 function validate(op: NonlinearOperator, w: PoleWindow, o: PoleSearchOptions): void {

@@ -11,6 +11,7 @@
 import { checkCancelled, type WorkControl } from './operator';
 import { SparseLuPlan, type SparseLuFactors } from './sparse-lu';
 import type { EffectiveHamiltonian } from './effective-hamiltonian';
+import { MouthInterpolation, type MouthInterpolationOptions } from './mouth-interpolation';
 
 /** Everything computed at one real energy. */
 export interface TransmissionPoint {
@@ -100,57 +101,152 @@ export class TransmissionSolver {
         }
       }
     }
-    const transmission = Array.from({ length: leads }, () => new Array<number>(leads).fill(0));
-    const reflection = new Array<number>(leads).fill(0);
-    for (let a = 0; a < count; a++) {
-      for (let b = 0; b < count; b++) {
-        const p = s[2 * (a * count + b)] ** 2 + s[2 * (a * count + b) + 1] ** 2;
-        const from = w.lead[b];
-        const to = w.lead[a];
-        if (from === to) reflection[from] += p;
-        else transmission[from][to] += p;
-      }
-    }
-    let currentResidual = 0;
-    for (let l = 0; l < leads; l++) {
-      let sum = reflection[l];
-      for (let m = 0; m < leads; m++) sum += transmission[l][m];
-      currentResidual = Math.max(currentResidual, Math.abs(sum - w.perLead[l]));
-    }
-    let unitarityResidual = 0;
-    for (let a = 0; a < count; a++) {
-      for (let b = 0; b < count; b++) {
-        let re = a === b ? -1 : 0;
-        let im = 0;
-        for (let c = 0; c < count; c++) {
-          const ar = s[2 * (c * count + a)];
-          const ai = s[2 * (c * count + a) + 1];
-          const br = s[2 * (c * count + b)];
-          const bi = s[2 * (c * count + b) + 1];
-          re += ar * br + ai * bi;
-          im += ar * bi - ai * br;
-        }
-        unitarityResidual = Math.max(unitarityResidual, Math.hypot(re, im));
-      }
-    }
-    const point: TransmissionPoint = {
-      energy,
-      transmission,
-      reflection,
-      channels: w.perLead,
-      conductance: leads >= 2 ? transmission[0][1] : null,
-      currentResidual,
-      unitarityResidual,
-      detPhase: lu.logDet().arg,
-    };
+    const point = scatteringPoint(energy, s, w, leads, lu.logDet().arg, withS);
     // Nothing returned refers to lu (x and s are plain arrays), so its storage can be reused.
     this.spare = lu;
-    if (withS) {
-      point.sMatrix = s;
-      point.sChannels = Array.from({ length: count }, (_, c) => ({ lead: w.lead[c], channel: w.channel[c] }));
-    }
     return point;
   }
+
+  /**
+   * The point at E by a direct solve, and G_mouth = P T(E)⁻¹ Pᵀ on the mouth sites of
+   * every lead (in lead order, M×M row-major interleaved): one LU and M solves.
+   */
+  atMouth(energy: number): { point: TransmissionPoint; mouth: Float64Array } {
+    if (!Number.isFinite(energy)) throw new RangeError(`transmission: energy must be a finite number of meV, got ${energy}`);
+    const op = this.op;
+    const n = op.n;
+    op.assemble({ re: energy, im: 0 }, op.sheetAt(energy), this.values);
+    const lu = this.factor();
+    const sites = mouthOrder(op);
+    const M = sites.length;
+    const rhs = new Float64Array(2 * n * M);
+    sites.forEach((site, c) => (rhs[2 * (c * n + site)] = 1));
+    lu.solve(rhs, M);
+    const mouth = new Float64Array(2 * M * M);
+    for (let c = 0; c < M; c++) for (let r = 0; r < M; r++) {
+      mouth[2 * (r * M + c)] = rhs[2 * (c * n + sites[r])];
+      mouth[2 * (r * M + c) + 1] = rhs[2 * (c * n + sites[r]) + 1];
+    }
+    const point = pointFromMouth(op, energy, mouth, lu.logDet().arg);
+    this.spare = lu;
+    return { point, mouth };
+  }
+}
+
+/** Unknown indices of every lead's mouth sites, lead after lead (the order of G_mouth). */
+export function mouthOrder(op: EffectiveHamiltonian): Int32Array {
+  const out: number[] = [];
+  for (let l = 0; l < op.leadCount; l++) out.push(...op.mouthSites(l));
+  return Int32Array.from(out);
+}
+
+/**
+ * The point at a real energy from G_mouth alone: S_ab = −δ_ab + i W_aᴴ G_mouth W_b, with
+ * the coupling columns W restricted to the mouth (they vanish elsewhere). Cost O(M²·N_open).
+ */
+export function pointFromMouth(op: EffectiveHamiltonian, energy: number, mouth: Float64Array, detPhase: number, withS = false): TransmissionPoint {
+  const n = op.n;
+  const sites = mouthOrder(op);
+  const M = sites.length;
+  const w = op.couplingColumns(energy);
+  const count = w.count;
+  const wm = new Float64Array(2 * M * count);
+  for (let c = 0; c < count; c++) for (let p = 0; p < M; p++) {
+    wm[2 * (c * M + p)] = w.values[2 * (c * n + sites[p])];
+    wm[2 * (c * M + p) + 1] = w.values[2 * (c * n + sites[p]) + 1];
+  }
+  // X = G_mouth W (M × count, column-major)
+  const x = new Float64Array(2 * M * count);
+  for (let c = 0; c < count; c++) for (let r = 0; r < M; r++) {
+    let re = 0;
+    let im = 0;
+    for (let q = 0; q < M; q++) {
+      const gr = mouth[2 * (r * M + q)];
+      const gi = mouth[2 * (r * M + q) + 1];
+      const vr = wm[2 * (c * M + q)];
+      const vi = wm[2 * (c * M + q) + 1];
+      re += gr * vr - gi * vi;
+      im += gr * vi + gi * vr;
+    }
+    x[2 * (c * M + r)] = re;
+    x[2 * (c * M + r) + 1] = im;
+  }
+  const s = new Float64Array(2 * count * count);
+  for (let a = 0; a < count; a++) for (let b = 0; b < count; b++) {
+    let re = 0;
+    let im = 0;
+    for (let p = 0; p < M; p++) {
+      const wr = wm[2 * (a * M + p)];
+      const wi = wm[2 * (a * M + p) + 1];
+      const xr = x[2 * (b * M + p)];
+      const xi = x[2 * (b * M + p) + 1];
+      re += wr * xr + wi * xi;
+      im += wr * xi - wi * xr;
+    }
+    s[2 * (a * count + b)] = -im - (a === b ? 1 : 0);
+    s[2 * (a * count + b) + 1] = re;
+  }
+  return scatteringPoint(energy, s, w, op.leadCount, detPhase, withS);
+}
+
+/** T, R, residuals (and S when asked) from the open-channel S matrix. */
+function scatteringPoint(
+  energy: number,
+  s: Float64Array,
+  w: { count: number; lead: Int32Array; channel: Int32Array; perLead: number[] },
+  leads: number,
+  detPhase: number,
+  withS: boolean,
+): TransmissionPoint {
+  const count = w.count;
+  const transmission = Array.from({ length: leads }, () => new Array<number>(leads).fill(0));
+  const reflection = new Array<number>(leads).fill(0);
+  for (let a = 0; a < count; a++) {
+    for (let b = 0; b < count; b++) {
+      const p = s[2 * (a * count + b)] ** 2 + s[2 * (a * count + b) + 1] ** 2;
+      const from = w.lead[b];
+      const to = w.lead[a];
+      if (from === to) reflection[from] += p;
+      else transmission[from][to] += p;
+    }
+  }
+  let currentResidual = 0;
+  for (let l = 0; l < leads; l++) {
+    let sum = reflection[l];
+    for (let m = 0; m < leads; m++) sum += transmission[l][m];
+    currentResidual = Math.max(currentResidual, Math.abs(sum - w.perLead[l]));
+  }
+  let unitarityResidual = 0;
+  for (let a = 0; a < count; a++) {
+    for (let b = 0; b < count; b++) {
+      let re = a === b ? -1 : 0;
+      let im = 0;
+      for (let c = 0; c < count; c++) {
+        const ar = s[2 * (c * count + a)];
+        const ai = s[2 * (c * count + a) + 1];
+        const br = s[2 * (c * count + b)];
+        const bi = s[2 * (c * count + b) + 1];
+        re += ar * br + ai * bi;
+        im += ar * bi - ai * br;
+      }
+      unitarityResidual = Math.max(unitarityResidual, Math.hypot(re, im));
+    }
+  }
+  const point: TransmissionPoint = {
+    energy,
+    transmission,
+    reflection,
+    channels: w.perLead,
+    conductance: leads >= 2 ? transmission[0][1] : null,
+    currentResidual,
+    unitarityResidual,
+    detPhase,
+  };
+  if (withS) {
+    point.sMatrix = s;
+    point.sChannels = Array.from({ length: count }, (_, c) => ({ lead: w.lead[c], channel: w.channel[c] }));
+  }
+  return point;
 }
 
 /** Transmission at one energy (analyses the pattern; use TransmissionSolver for many energies). */
@@ -186,6 +282,12 @@ export interface SweepRequest {
   refine?: SweepRefinement;
   /** An analysed plan of op's pattern to reuse (e.g. shared with a pole search). */
   plan?: SparseLuPlan;
+  /**
+   * Interpolate the closed cavity's mouth resolvent between direct solves (block AAA,
+   * mouth-interpolation.ts), checked against direct solves at held-out energies, with
+   * direct solves wherever the check fails; default off (one LU per energy).
+   */
+  interpolate?: boolean | MouthInterpolationOptions;
 }
 
 export interface TransmissionSweep {
@@ -199,6 +301,10 @@ export interface TransmissionSweep {
   /** Largest current-conservation and unitarity residuals over all samples. */
   worstCurrentResidual: number;
   worstUnitarityResidual: number;
+  /** LU factorisations spent (one per direct solve, upper probes included). */
+  directSolves: number;
+  /** With interpolation: blocks, blocks computed directly, and the largest |ΔT| at held-out energies. */
+  interpolation?: { blocks: number; fallbackBlocks: number; worstHeldOut: number };
 }
 
 function largestChange(a: TransmissionPoint, b: TransmissionPoint): number {
@@ -268,10 +374,20 @@ export function transmissionSweep(op: EffectiveHamiltonian, request: SweepReques
   let probes = 0;
   const report = (done: number) => control?.onProgress?.('transmission', Math.min(1, (done + probes) / total));
 
+  let directSolves = 0;
+  const grid = Array.from({ length: points }, (_, k) => emin + ((emax - emin) * k) / (points - 1));
+  const interpolation = request.interpolate
+    ? new MouthInterpolation(op, solver, grid, request.interpolate === true ? {} : request.interpolate, () => checkCancelled(control))
+    : null;
+  const evaluate = (E: number): TransmissionPoint => {
+    if (interpolation) return interpolation.at(E);
+    directSolves++;
+    return solver.at(E);
+  };
   let samples: TransmissionPoint[] = [];
   for (let k = 0; k < points; k++) {
     checkCancelled(control);
-    samples.push(solver.at(emin + ((emax - emin) * k) / (points - 1)));
+    samples.push(evaluate(grid[k]));
     report(samples.length);
   }
   // Upper-half-plane probe: the physical Σ is analytic there and both sheet formulas
@@ -281,9 +397,22 @@ export function transmissionSweep(op: EffectiveHamiltonian, request: SweepReques
   if (refine && probing) {
     const probeTolerance = refine.probeTolerance ?? 0.4;
     let previous = 0;
+    let previousKnown = false;
     for (let k = 0; k < points; k++) {
       checkCancelled(control);
+      // with interpolation the probe comes from the block's interpolant where it has one
+      const free = interpolation && k > 0 ? interpolation.probeStep(samples[k - 1].energy, samples[k].energy, step) : null;
+      if (free !== null) {
+        if (free > probeTolerance) suspect[k - 1] = 1;
+        previousKnown = false;
+        continue;
+      }
+      if (!previousKnown && k > 0) {
+        previous = solver.detPhase({ re: samples[k - 1].energy, im: step });
+        directSolves++;
+      }
       const phase = solver.detPhase({ re: samples[k].energy, im: step });
+      directSolves++;
       probes++;
       report(samples.length);
       if (k > 0) {
@@ -291,6 +420,7 @@ export function transmissionSweep(op: EffectiveHamiltonian, request: SweepReques
         if (Math.abs(Math.atan2(Math.sin(d), Math.cos(d))) > probeTolerance) suspect[k - 1] = 1;
       }
       previous = phase;
+      previousKnown = true;
     }
   }
   const forcedWidth = step / 2 ** PROBE_DEPTH;
@@ -322,7 +452,7 @@ export function transmissionSweep(op: EffectiveHamiltonian, request: SweepReques
     if (chosen.length < flagged.length) budgetExhausted = true;
     for (const { k } of chosen) {
       checkCancelled(control);
-      samples.push(solver.at((samples[k].energy + samples[k + 1].energy) / 2));
+      samples.push(evaluate((samples[k].energy + samples[k + 1].energy) / 2));
       report(samples.length);
     }
     samples = samples.sort((x, y) => x.energy - y.energy);
@@ -336,5 +466,15 @@ export function transmissionSweep(op: EffectiveHamiltonian, request: SweepReques
     worstCurrentResidual = Math.max(worstCurrentResidual, p.currentResidual);
     worstUnitarityResidual = Math.max(worstUnitarityResidual, p.unitarityResidual);
   }
-  return { points: samples, gridPoints: points, passes, budgetExhausted, worstCurrentResidual, worstUnitarityResidual };
+  if (interpolation) directSolves += interpolation.directSolves;
+  return {
+    points: samples,
+    gridPoints: points,
+    passes,
+    budgetExhausted,
+    worstCurrentResidual,
+    worstUnitarityResidual,
+    directSolves,
+    ...(interpolation ? { interpolation: interpolation.summary() } : {}),
+  };
 }
