@@ -106,7 +106,7 @@ describe('group backup and restore', () => {
   it('round trip: the restored group holds the same models, runs, resonances and figures, with new ids', async () => {
     const archive = await download(sourceAdmin, source);
     const before = lines(archive);
-    expect(JSON.parse(before[0]!)).toMatchObject({ type: 'header', format: 'poleward-group-backup', version: 1 });
+    expect(JSON.parse(before[0]!)).toMatchObject({ type: 'header', format: 'poleward-group-backup', version: 2 });
     expect(JSON.parse(before.at(-1)!)).toMatchObject({ type: 'end', counts: { model: 2, modelVersion: 3, run: 4, spectrum: 3, resonance: 3 * reference.poles.length, mode: 3 * reference.poles.length, modeImage: 6 * reference.poles.length } });
 
     const res = await restore(targetAdmin, target, archive);
