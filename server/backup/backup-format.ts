@@ -5,15 +5,17 @@
  * Binary columns (mode vectors, PNG images) are base64. People are named by
  * e-mail, never by id.
  *
- * Order: header, members, models, model versions, runs, spectra, resonances,
- * modes, mode images, then any extension section (fits, fabrication records… as
- * they arrive: see BackupSection), then `end` with the record counts, so a
- * truncated file is refused.
+ * Order: header, members, models, model versions, runs, spectra, (computed)
+ * resonances, modes, mode images, then the extension sections (measured traces,
+ * peak fits, fitted resonances, pole currents, completed mode maps; fabrication
+ * records… as they arrive: see BackupSection), then `end` with the record counts,
+ * so a truncated file is refused.
  */
 import { z } from 'zod';
 
 export const BACKUP_FORMAT = 'poleward-group-backup';
-export const BACKUP_FORMAT_VERSION = 1;
+/** Version 2 added the peak-fit and mode-map records; version 1 files are still read. */
+export const BACKUP_FORMAT_VERSION = 2;
 /** Refused beyond this many bytes once decompressed (a gzip bomb, or not a group backup). */
 export const MAX_RESTORE_BYTES = 512 * 1024 * 1024;
 /** Refused beyond this many bytes as uploaded. */
@@ -28,7 +30,7 @@ const base64 = z.string().regex(/^[A-Za-z0-9+/]*={0,2}$/, 'must be base64');
 export const headerRecord = z.object({
   type: z.literal('header'),
   format: z.literal(BACKUP_FORMAT, { error: `must be "${BACKUP_FORMAT}" (this is not a Poleward group backup)` }),
-  version: z.literal(BACKUP_FORMAT_VERSION, { error: `this server reads version ${BACKUP_FORMAT_VERSION} of the backup format` }),
+  version: z.union([z.literal(1), z.literal(BACKUP_FORMAT_VERSION)], { error: `this server reads versions 1 to ${BACKUP_FORMAT_VERSION} of the backup format` }),
   createdAt: when,
   engineVersion: z.string().optional(),
   group: z.object({ name: z.string(), slug: z.string() }),

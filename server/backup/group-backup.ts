@@ -1,6 +1,6 @@
 import { Readable } from 'node:stream';
 import { createGzip } from 'node:zlib';
-import { asc, eq, inArray } from 'drizzle-orm';
+import { and, asc, eq, inArray } from 'drizzle-orm';
 import type { Queryable } from '../db/client.js';
 import { modeImages, resonanceModes, resonances } from '../db/schema/catalogue.js';
 import { memberships, researchGroups } from '../db/schema/groups.js';
@@ -100,13 +100,14 @@ export async function* groupBackupRecords(q: Queryable, groupId: string, include
     yield { type: 'spectrum', runId: s.runId, energies: s.energies, pairs: s.pairs, transmission: s.transmission, residual: s.residual, createdAt: iso(s.createdAt)! };
   }
 
-  // Resonances run by run, then their modes and images in batches.
+  // Computed resonances run by run, then their modes and images in batches. Fitted ones (a
+  // fit of a run's spectrum also names the run) hang on their fit: see fits-backup-sections.ts.
   for (const run of groupRuns) {
-    const rows = await q.select().from(resonances).where(eq(resonances.runId, run.id)).orderBy(asc(resonances.idx));
+    const rows = await q.select().from(resonances).where(and(eq(resonances.runId, run.id), eq(resonances.source, 'computed'))).orderBy(asc(resonances.idx));
     for (const r of rows) {
-      const { groupId: _g, searchText: _s, createdAt, ...rest } = r;
+      const { groupId: _g, searchText: _s, source: _src, fitId: _f, createdAt, ...rest } = r;
       count('resonance');
-      yield { type: 'resonance', ...rest, createdAt: iso(createdAt)! };
+      yield { type: 'resonance', ...rest, createdAt: iso(createdAt)! } as CoreRecord;
     }
     for (let k = 0; k < rows.length; k += RESONANCE_BATCH) {
       const ids = rows.slice(k, k + RESONANCE_BATCH).map((r) => r.id);

@@ -7,13 +7,14 @@ import type { z } from 'zod';
 import { writeAudit } from '../audit/audit-log.js';
 import type { Db, Queryable } from '../db/client.js';
 import { modeImages, resonanceModes, resonances } from '../db/schema/catalogue.js';
+import { measuredTraces } from '../db/schema/fits.js';
 import { memberships } from '../db/schema/groups.js';
 import { cavityModels, modelVersions } from '../db/schema/models.js';
 import { runs, spectra } from '../db/schema/runs.js';
 import { users } from '../db/schema/users.js';
 import { ApiError, type FieldIssue } from '../http/error-handler.js';
 import { coreRecord, MAX_RESTORE_BYTES, type CoreRecord, type RecordOf } from './backup-format.js';
-import { backupSections, type RestoredIds } from './backup-sections.js';
+import { backupSections, type IdKind, type RestoredIds } from './backup-sections.js';
 
 /** Issues reported at most; past this the file is plainly not a good backup. */
 const MAX_ISSUES = 50;
@@ -130,13 +131,23 @@ function checkReferences(core: Core, sections: Map<string, { type: string }[]>, 
     }
     return set;
   };
-  const known = {
-    models: unique('model', core.model.map((m) => m.id)),
-    modelVersions: unique('modelVersion', core.modelVersion.map((v) => v.id)),
-    runs: unique('run', core.run.map((r) => r.id)),
-    resonances: unique('resonance', core.resonance.map((r) => r.id)),
+  // Ids the sections bring (traces, fits, fitted resonances), checked unique with the core ones.
+  const provided: Record<IdKind, string[]> = {
+    models: core.model.map((m) => m.id),
+    modelVersions: core.modelVersion.map((v) => v.id),
+    runs: core.run.map((r) => r.id),
+    resonances: core.resonance.map((r) => r.id),
+    traces: [],
+    fits: [],
   };
-  const need = (where: string, kind: keyof typeof known, id: string) => {
+  for (const section of backupSections) {
+    for (const r of sections.get(section.type) ?? []) {
+      const p = section.provides?.(r);
+      if (p) provided[p.kind].push(p.id);
+    }
+  }
+  const known = Object.fromEntries(Object.entries(provided).map(([kind, ids]) => [kind, unique(kind.replace(/s$/, ''), ids)])) as Record<IdKind, Set<string>>;
+  const need = (where: string, kind: IdKind, id: string) => {
     if (!known[kind].has(id)) issue(where, `refers to ${kind.replace(/s$/, '').replace(/V/, ' v')} ${id}, which is not in the archive`);
   };
   for (const v of core.modelVersion) need(`modelVersion ${v.id} modelId`, 'models', v.modelId);
@@ -157,7 +168,9 @@ function checkReferences(core: Core, sections: Map<string, { type: string }[]>, 
   }
   for (const section of backupSections) {
     for (const r of sections.get(section.type) ?? []) {
-      for (const [kind, ids] of Object.entries(section.references?.(r) ?? {})) for (const id of ids ?? []) need(`${section.type} record`, kind as keyof typeof known, id);
+      const label = section.label(r);
+      for (const ref of section.references?.(r) ?? []) if (ref.id !== null) need(`${label} ${ref.field}`, ref.kind, ref.id);
+      for (const c of section.check?.(r) ?? []) issue(`${label} ${c.field}`, c.message);
     }
   }
 }
@@ -188,8 +201,13 @@ export async function restoreGroup(db: Db, groupId: string, actorId: string, b: 
     await tx.execute(sql`select id from research_groups where id = ${groupId} for update`);
     const [{ n: modelCount }] = await tx.select({ n: count() }).from(cavityModels).where(eq(cavityModels.groupId, groupId));
     const [{ n: runCount }] = await tx.select({ n: count() }).from(runs).where(eq(runs.groupId, groupId));
-    if (modelCount > 0 || runCount > 0) {
-      throw new ApiError(409, 'group_not_empty', `A backup is restored only into an empty group; this one already has ${modelCount} model(s) and ${runCount} run(s). Create a new group for it.`);
+    const [{ n: traceCount }] = await tx.select({ n: count() }).from(measuredTraces).where(eq(measuredTraces.groupId, groupId));
+    if (modelCount > 0 || runCount > 0 || traceCount > 0) {
+      throw new ApiError(
+        409,
+        'group_not_empty',
+        `A backup is restored only into an empty group; this one already has ${modelCount} model(s), ${runCount} run(s) and ${traceCount} measured trace(s). Create a new group for it.`,
+      );
     }
     const people = new Map<string, string>();
     for (const m of await tx.select({ id: users.id, email: users.email }).from(memberships).innerJoin(users, eq(users.id, memberships.userId)).where(eq(memberships.groupId, groupId))) {
@@ -202,8 +220,17 @@ export async function restoreGroup(db: Db, groupId: string, actorId: string, b: 
       modelVersions: remap(b.core.modelVersion),
       runs: remap(b.core.run),
       resonances: remap(b.core.resonance),
+      traces: new Map(),
+      fits: new Map(),
       people,
     };
+    // New ids for what the sections bring, before any section is written (a fit links to a trace).
+    for (const section of backupSections) {
+      for (const r of b.sections.get(section.type) ?? []) {
+        const p = section.provides?.(r);
+        if (p) ids[p.kind].set(p.id, randomUUID());
+      }
+    }
     const date = (s: string | null) => (s ? new Date(s) : null);
 
     await insertAll(b.core.model, 500, (slice) =>

@@ -41,6 +41,11 @@ function canonical(value: unknown): string {
   return JSON.stringify(value);
 }
 
+/** The cache key of a map: equal requests of one model version and engine give equal keys. */
+export function modeMapCacheKey(engineVersion: string, modelVersionId: string, params: Record<string, unknown>): string {
+  return createHash('sha256').update(canonical({ engine: engineVersion, modelVersionId, ...params })).digest('hex');
+}
+
 function mapNotFound(): ApiError {
   return new ApiError(404, 'not_found', 'No such map in this group.');
 }
@@ -125,7 +130,7 @@ export class ModeMapService {
       source = { kind: 'energy', energy: req.energy, lead: req.lead, channel: req.channel };
     }
     const params = { source, husimi: req.husimi };
-    const cacheKey = createHash('sha256').update(canonical({ engine: ENGINE_VERSION, modelVersionId, ...params })).digest('hex');
+    const cacheKey = modeMapCacheKey(ENGINE_VERSION, modelVersionId, params);
     const [inserted] = await this.db
       .insert(modeMaps)
       .values({ groupId, modelVersionId, resonanceId, params, cacheKey, createdBy: userId, progressStage: 'queued', progressFraction: 0 })

@@ -1,6 +1,8 @@
 // Group backup and restore (issue 7): the archive of one group restored into another
 // holds the same models, versions, runs, spectra, resonances (tags, notes), mode
-// vectors and images, byte for byte; a bad archive is refused whole.
+// vectors and images, measured traces, peak fits with their fitted resonances, pole
+// currents and completed mode maps, byte for byte; a bad archive is refused whole.
+import { readFileSync } from 'node:fs';
 import { inlineCompute } from '../../server/compute/compute-pool.js';
 import { gzipSync, gunzipSync } from 'node:zlib';
 import { count, eq } from 'drizzle-orm';
@@ -8,6 +10,12 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { cavityModels } from '../../server/db/schema/models.js';
 import { memberships } from '../../server/db/schema/groups.js';
 import { resonances } from '../../server/db/schema/catalogue.js';
+import { measuredTraces, peakFits } from '../../server/db/schema/fits.js';
+import { modeMaps, resonanceCurrents } from '../../server/db/schema/mode-maps.js';
+import { handleModeMapJob } from '../../server/modemaps/mode-map-worker.js';
+import { ModeMapService } from '../../server/modemaps/mode-map-service.js';
+import { runModeMapTask } from '../../server/modemaps/mode-map-task.js';
+import type { ModeMapQueue } from '../../server/modemaps/mode-map-queue.js';
 import { runs } from '../../server/db/schema/runs.js';
 import { runEngineTask, type EngineTaskResult } from '../../server/jobs/engine-task.js';
 import { handleRunJob } from '../../server/jobs/run-job.js';
@@ -25,6 +33,12 @@ let target: Lab;
 let sourceAdmin: SignedIn;
 let targetAdmin: SignedIn;
 let reference: EngineTaskResult;
+/** The source's map of a pole (completed) and of the same pole with a Husimi map (still queued). */
+let completedMapId: string;
+let queuedMapId: string;
+const mapQueue: ModeMapQueue = { enqueue: async (id) => `map-job-${id}` };
+/** The demo lab's invented measured trace. */
+const traceFile = readFileSync(new URL('../../catalogue/traces/hl-rect-r3-100mK.csv', import.meta.url));
 
 const uuid = /[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}/g;
 
@@ -62,11 +76,15 @@ async function groupRowCounts(groupId: string) {
   const [m] = await app.handle.db.select({ n: count() }).from(cavityModels).where(eq(cavityModels.groupId, groupId));
   const [r] = await app.handle.db.select({ n: count() }).from(runs).where(eq(runs.groupId, groupId));
   const [s] = await app.handle.db.select({ n: count() }).from(resonances).where(eq(resonances.groupId, groupId));
-  return { models: m!.n, runs: r!.n, resonances: s!.n };
+  const [t] = await app.handle.db.select({ n: count() }).from(measuredTraces).where(eq(measuredTraces.groupId, groupId));
+  const [f] = await app.handle.db.select({ n: count() }).from(peakFits).where(eq(peakFits.groupId, groupId));
+  const [c] = await app.handle.db.select({ n: count() }).from(resonanceCurrents).innerJoin(resonances, eq(resonances.id, resonanceCurrents.resonanceId)).where(eq(resonances.groupId, groupId));
+  const [k] = await app.handle.db.select({ n: count() }).from(modeMaps).where(eq(modeMaps.groupId, groupId));
+  return { models: m!.n, runs: r!.n, resonances: s!.n, traces: t!.n, fits: f!.n, currents: c!.n, maps: k!.n };
 }
 
 beforeAll(async () => {
-  app = await startTestApp();
+  app = await startTestApp({ modeMapQueue: mapQueue });
   const db = app.handle.db;
   source = await createLab(db, ['admin', 'designer', 'viewer']);
   target = await createLab(db, ['admin']);
@@ -97,6 +115,34 @@ beforeAll(async () => {
 
   sourceAdmin = await signInAs(app, source.as('admin').email);
   targetAdmin = await signInAs(app, target.as('admin').email);
+
+  // A measured trace of model A, fitted (in the request): one fitted resonance with no run.
+  const member = await signInAs(app, source.as('designer').email);
+  const trace = await member.agent
+    .post(`/api/groups/${source.groupId}/traces`)
+    .set('X-CSRF-Token', member.csrf)
+    .field('deviceName', 'Dot A cooldown 2')
+    .field('temperatureMK', '100')
+    .field('x', 'energy_ueV')
+    .field('xUnit', 'ueV')
+    .field('y', 'G_uS')
+    .field('yUnit', 'uS')
+    .field('notes', 'lock-in, 2 µV')
+    .field('modelId', a.id)
+    .attach('file', traceFile, { filename: 'dot-a-100mK.csv', contentType: 'text/csv' });
+  expect(trace.status, JSON.stringify(trace.body)).toBe(201);
+  const fit = await member.post(`/api/groups/${source.groupId}/fits`, { source: { kind: 'trace', traceId: trace.body.id }, lineshape: 'thermal', temperatureMK: 100 });
+  expect(fit.status, JSON.stringify(fit.body)).toBe(201);
+  expect(fit.body.catalogueIds).toHaveLength(1);
+
+  // A map of a pole, computed; the same pole with a Husimi map, left queued.
+  const completed = await member.post(`/api/groups/${source.groupId}/mode-maps`, { resonanceId: first!.id });
+  expect(completed.status, JSON.stringify(completed.body)).toBe(202);
+  completedMapId = completed.body.id;
+  await handleModeMapJob({ db, compute: (task) => Promise.resolve(runModeMapTask(task)) }, { mapId: completedMapId, retryCount: 0, retryLimit: 2 });
+  const queued = await member.post(`/api/groups/${source.groupId}/mode-maps`, { resonanceId: first!.id, husimi: { directions: 8 } });
+  expect(queued.status, JSON.stringify(queued.body)).toBe(202);
+  queuedMapId = queued.body.id;
 }, 180_000);
 afterAll(async () => {
   await app?.close();
@@ -106,12 +152,23 @@ describe('group backup and restore', () => {
   it('round trip: the restored group holds the same models, runs, resonances and figures, with new ids', async () => {
     const archive = await download(sourceAdmin, source);
     const before = lines(archive);
-    expect(JSON.parse(before[0]!)).toMatchObject({ type: 'header', format: 'poleward-group-backup', version: 1 });
+    expect(JSON.parse(before[0]!)).toMatchObject({ type: 'header', format: 'poleward-group-backup', version: 2 });
     expect(JSON.parse(before.at(-1)!)).toMatchObject({ type: 'end', counts: { model: 2, modelVersion: 3, run: 4, spectrum: 3, resonance: 3 * reference.poles.length, mode: 3 * reference.poles.length, modeImage: 6 * reference.poles.length } });
+    const poleCurrents = reference.poles.filter((p) => p.current).length;
+    expect(poleCurrents).toBe(reference.poles.length);
+    expect(JSON.parse(before.at(-1)!).counts).toMatchObject({ measuredTrace: 1, peakFit: 1, fittedResonance: 1, resonanceCurrent: 3 * poleCurrents, modeMap: 1 });
+    // Only the completed map: the one still queued is asked for again after a restore.
+    expect(before.some((l) => l.includes(completedMapId))).toBe(true);
+    expect(before.some((l) => l.includes(queuedMapId))).toBe(false);
+    // The fitted resonance of the trace (no run) is a record of its own, not a computed one.
+    expect(before.filter((l) => l.startsWith('{"type":"resonance"')).every((l) => JSON.parse(l).runId)).toBe(true);
+    expect(JSON.parse(before.find((l) => l.startsWith('{"type":"fittedResonance"'))!)).toMatchObject({ runId: null, tags: ['fitted'] });
 
     const res = await restore(targetAdmin, target, archive);
     expect(res.status).toBe(201);
-    expect(res.body.restored).toMatchObject({ models: 2, modelVersions: 3, runs: 4, resonances: 3 * reference.poles.length });
+    expect(res.body.restored).toMatchObject({ models: 2, modelVersions: 3, runs: 4, resonances: 3 * reference.poles.length, measuredTrace: 1, peakFit: 1, fittedResonance: 1, resonanceCurrent: 3 * poleCurrents, modeMap: 1 });
+    // Row by row in the database too: the same counts, but for the queued map left out.
+    expect(await groupRowCounts(target.groupId)).toEqual({ ...(await groupRowCounts(source.groupId)), maps: 1 });
 
     const again = await download(targetAdmin, target);
     const a = normalised(archive);
@@ -134,6 +191,33 @@ describe('group backup and restore', () => {
     expect(tagged.body.items[0].notes).toBe('Matches the second cool-down, Δ < 1 µeV.');
     const img = await targetAdmin.get(`/api/groups/${target.groupId}/resonances/${tagged.body.items[0].id}/mode.png?size=thumb`);
     expect(img.status).toBe(200);
+
+    // The fit, its trace and its fitted resonance are linked to each other in the restored group.
+    const restoredLines = lines(again).map((l) => JSON.parse(l));
+    const fit = restoredLines.find((r) => r.type === 'peakFit');
+    const trace = restoredLines.find((r) => r.type === 'measuredTrace');
+    expect(fit.traceId).toBe(trace.id);
+    const fitted = await targetAdmin.get(`/api/groups/${target.groupId}/catalogue?source=fitted`);
+    expect(fitted.body.total).toBe(1);
+    expect(fitted.body.items[0]).toMatchObject({ source: 'fitted', fitId: fit.id, runId: null });
+    // Ids inside the JSON a fit keeps follow too.
+    const fittedRecord = restoredLines.find((r) => r.type === 'fittedResonance');
+    expect(fittedRecord.details.fit).toMatchObject({ fitId: fit.id, traceId: trace.id });
+    expect(fit.request.source).toMatchObject({ kind: 'trace', traceId: trace.id });
+    const restoredPoles = new Set(restoredLines.filter((r) => r.type === 'resonance').map((r) => r.id));
+    expect(fit.comparison.length).toBe(1);
+    // The trace's peak is compared with the nearest computed pole of model A: the restored one.
+    expect(restoredPoles.has(fit.comparison[0].pole.id)).toBe(true);
+    const fitView = await targetAdmin.get(`/api/groups/${target.groupId}/fits/${fit.id}`);
+    expect(fitView.status).toBe(200);
+    expect(fitView.body).toMatchObject({ status: 'completed', traceId: trace.id, deviceName: 'Dot A cooldown 2' });
+    // The pole's current is served, and asking again for the restored map finds it in the cache.
+    const map = restoredLines.find((r) => r.type === 'modeMap');
+    const current = await targetAdmin.get(`/api/groups/${target.groupId}/resonances/${map.resonanceId}/current`);
+    expect(current.status).toBe(200);
+    const asked = await new ModeMapService(app.handle.db, mapQueue).create(target.groupId, target.as('admin').id, { resonanceId: map.resonanceId, husimi: null });
+    expect(asked.created).toBe(false);
+    expect(asked.view.status).toBe('completed');
   });
 
   it('a restore into a group that is not empty is refused (409) and changes nothing', async () => {
@@ -176,7 +260,33 @@ describe('group backup and restore', () => {
     expect(otherFile.status).toBe(400);
     expect(otherFile.body.issues[0].path).toBe('line 1 (header) format');
 
-    expect(await groupRowCounts(empty.groupId)).toEqual({ models: 0, runs: 0, resonances: 0 });
+    expect(await groupRowCounts(empty.groupId)).toEqual({ models: 0, runs: 0, resonances: 0, traces: 0, fits: 0, currents: 0, maps: 0 });
+  });
+
+  it('a peak fit or a pole current that does not fit the archive is refused whole, naming the record and field', async () => {
+    const empty = await createLab(app.handle.db, ['admin']);
+    const admin = await signInAs(app, empty.as('admin').email);
+    const good = lines(await download(sourceAdmin, source));
+
+    const lost = '00000000-0000-4000-8000-000000000001';
+    const fitAt = good.findIndex((l) => l.startsWith('{"type":"peakFit"'));
+    const fit = JSON.parse(good[fitAt]!);
+    const broken = [...good];
+    broken[fitAt] = JSON.stringify({ ...fit, traceId: lost });
+    const res = await restore(admin, empty, gzipSync(broken.join('\n')));
+    expect(res.status).toBe(400);
+    expect(res.body.code).toBe('invalid_backup');
+    expect(res.body.issues).toEqual([{ path: `peakFit ${fit.id} traceId`, message: `refers to trace ${lost}, which is not in the archive` }]);
+
+    const currentAt = good.findIndex((l) => l.startsWith('{"type":"resonanceCurrent"'));
+    const current = JSON.parse(good[currentAt]!);
+    const short = [...good];
+    short[currentAt] = JSON.stringify({ ...current, vectors: Buffer.from(current.vectors, 'base64').subarray(8).toString('base64') });
+    const res2 = await restore(admin, empty, gzipSync(short.join('\n')));
+    expect(res2.status).toBe(400);
+    expect(res2.body.issues).toEqual([{ path: `resonanceCurrent of resonance ${current.resonanceId} vectors`, message: expect.stringMatching(/must hold a float32 pair for each of the mask's \d+ sites/) }]);
+
+    expect(await groupRowCounts(empty.groupId)).toEqual({ models: 0, runs: 0, resonances: 0, traces: 0, fits: 0, currents: 0, maps: 0 });
   });
 
   it('only an admin of the group may back it up or restore into it', async () => {
