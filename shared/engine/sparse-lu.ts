@@ -48,6 +48,7 @@ import {
   upperSolveFrontPair,
   upperTransposeSolveFront,
 } from './dense-complex';
+import { WasmFrontKernel, wasmKernelAvailable } from './front-kernel-wasm';
 import { invertPermutation, nestedDissectionOrder, symmetricAdjacency, type Adjacency } from './ordering';
 
 export interface LuPlanOptions {
@@ -57,6 +58,12 @@ export interface LuPlanOptions {
   permutation?: ArrayLike<number>;
   /** Threshold u in (0, 1] of the pivot test |a_rp| ≥ u·max|a_·p| (default 0.1; 1 = partial pivoting within fronts). */
   pivotThreshold?: number;
+  /**
+   * Which dense front kernel factorises the fronts: 'wasm' (WebAssembly with SIMD,
+   * front-kernel-wasm.ts; the default where the runtime has it) or 'typescript'
+   * (dense-complex.ts, the reference). Both give the same factors to rounding.
+   */
+  denseKernel?: 'wasm' | 'typescript';
 }
 
 /** Thrown when a pivot column is exactly zero after elimination: the matrix is exactly singular. */
@@ -125,8 +132,17 @@ export class SparseLuPlan {
   private colList: Int32Array;
   private storeHint = 0;
   private indexHint = 0;
+  /** The WebAssembly kernel, whose memory holds frontA, frontB, save, rowList and colList; null for the TypeScript kernel. */
+  private readonly wasm: WasmFrontKernel | null;
+  /** Byte offsets of those buffers in the kernel's memory, and the front dimension they hold. */
+  private wsA = 0;
+  private wsB = 0;
+  private wsSave = 0;
+  private wsRows = 0;
+  private wsCols = 0;
+  private wsCap = 0;
 
-  private constructor(n: number, nnz: number, perm: Int32Array, s: SymbolicFronts, threshold: number) {
+  private constructor(n: number, nnz: number, perm: Int32Array, s: SymbolicFronts, threshold: number, kernel: 'wasm' | 'typescript') {
     this.n = n;
     this.nnz = nnz;
     this.perm = perm;
@@ -148,8 +164,10 @@ export class SparseLuPlan {
     this.frontCount = s.first.length - 1;
     this.largestFront = s.maxFront;
     const mx = Math.max(1, s.maxFront);
-    this.frontA = new Float64Array(2 * mx * mx);
-    this.frontB = new Float64Array(2 * mx * mx);
+    // (with the WebAssembly kernel these live in its memory: growWorkspace below)
+    const dense = kernel === 'wasm' ? 0 : 2 * mx * mx;
+    this.frontA = new Float64Array(dense);
+    this.frontB = new Float64Array(dense);
     const ns = this.frontCount;
     this.cbDim = new Int32Array(ns);
     this.cbStart = new Float64Array(ns);
@@ -163,6 +181,40 @@ export class SparseLuPlan {
     this.save = new Float64Array(2 * mx);
     this.rowList = new Int32Array(mx);
     this.colList = new Int32Array(mx);
+    this.wasm = kernel === 'wasm' ? new WasmFrontKernel() : null;
+    if (this.wasm) this.growWorkspace(mx);
+  }
+
+  /** Which dense kernel this plan's factorisations use. */
+  get denseKernel(): 'wasm' | 'typescript' {
+    return this.wasm ? 'wasm' : 'typescript';
+  }
+
+  /**
+   * Places the front buffers in the WebAssembly kernel's memory for fronts up to m,
+   * keeping the contents of both front buffers (one may hold the Schur complement the
+   * next front reads). Growing detaches the old views, so all are taken again.
+   */
+  private growWorkspace(m: number): void {
+    const wasm = this.wasm!;
+    const old = this.wsCap;
+    const oldA = this.wsA;
+    const oldB = this.wsB;
+    this.wsA = wasm.reserve(16 * m * m);
+    this.wsB = wasm.reserve(16 * m * m);
+    this.wsSave = wasm.reserve(16 * m);
+    this.wsRows = wasm.reserve(4 * m);
+    this.wsCols = wasm.reserve(4 * m);
+    this.wsCap = m;
+    this.frontA = wasm.f64(this.wsA, 2 * m * m);
+    this.frontB = wasm.f64(this.wsB, 2 * m * m);
+    if (old > 0) {
+      this.frontA.set(wasm.f64(oldA, 2 * old * old));
+      this.frontB.set(wasm.f64(oldB, 2 * old * old));
+    }
+    this.save = wasm.f64(this.wsSave, 2 * m);
+    this.rowList = wasm.i32(this.wsRows, m);
+    this.colList = wasm.i32(this.wsCols, m);
   }
 
   /**
@@ -194,7 +246,8 @@ export class SparseLuPlan {
       perm0 = nestedDissectionOrder(graph, options.sites);
     }
     const { perm, symbolic } = analyseFronts(graph, perm0, colPtr, rowIdx);
-    return new SparseLuPlan(n, colPtr[n], perm, symbolic, threshold);
+    const kernel = options.denseKernel ?? (wasmKernelAvailable() ? 'wasm' : 'typescript');
+    return new SparseLuPlan(n, colPtr[n], perm, symbolic, threshold, kernel);
   }
 
   /**
@@ -266,6 +319,11 @@ export class SparseLuPlan {
       const m = k + d + nfLen;
       const kFs = k + d;
       // Two front buffers in turn, so the previous front's Schur complement stays readable.
+      if (this.wasm && m > this.wsCap) {
+        const prevIsA = prevFront === this.frontA;
+        this.growWorkspace(m);
+        prevFront = prevIsA ? this.frontA : this.frontB;
+      }
       let F = prevFront === this.frontA ? this.frontB : this.frontA;
       if (F.length < 2 * m * m) {
         F = new Float64Array(2 * m * m);
@@ -347,8 +405,13 @@ export class SparseLuPlan {
       cbTop = firstChildStart;
       delayTop = firstDelayStart;
 
-      if (this.save.length < 2 * m) this.save = new Float64Array(2 * m);
-      const done = factorFront(F, m, kFs, this.threshold, rowList, colList, this.save);
+      let done: number;
+      if (this.wasm) {
+        done = this.wasm.factorFront(F === this.frontA ? this.wsA : this.wsB, m, kFs, this.threshold, this.wsRows, this.wsCols, this.wsSave);
+      } else {
+        if (this.save.length < 2 * m) this.save = new Float64Array(2 * m);
+        done = factorFront(F, m, kFs, this.threshold, rowList, colList, this.save);
+      }
       if (parent[s] < 0 && done < kFs) {
         const col = this.perm[colList[done]];
         throw new SingularMatrixError(col, `no nonzero pivot is left for column ${col} (front ${s} of ${ns}, ${done} of ${kFs} pivots eliminated)`);
