@@ -18,8 +18,14 @@ Run by the bench only when python3 with scipy is present:
   python3 scripts/lu-reference.py REPS FILE...
 """
 import json
+import os
 import sys
 import time
+
+# One thread, like the product's bench: SuperLU calls BLAS, whose own threads would
+# otherwise compete for the cores (and spin, inflating the CPU time).
+for name in ('OPENBLAS_NUM_THREADS', 'OMP_NUM_THREADS', 'MKL_NUM_THREADS'):
+    os.environ[name] = '1'
 
 import numpy as np
 from scipy.sparse import csc_matrix
