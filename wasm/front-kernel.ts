@@ -244,3 +244,34 @@ export function factorFront(f: usize, m: i32, kFs: i32, threshold: f64, rowList:
   }
   return p;
 }
+
+/**
+ * Extend-add of a child's contribution block into its parent front f (m rows): column
+ * jj of the block (mc columns, column stride ld doubles, at cb) goes to parent column
+ * map[jj], in nRuns contiguous stretches runs[3g..3g+2] = [block offset, parent
+ * offset, length], all in doubles (the runs SparseLuPlan.factor computes).
+ */
+export function extendAdd(f: usize, m: i32, cb: usize, ld: i32, mc: i32, map: usize, runs: usize, nRuns: i32): void {
+  let src = cb;
+  const stride = <usize>8 * <usize>ld;
+  for (let jj = 0; jj < mc; jj++) {
+    const dst = f + <usize>16 * <usize>load<i32>(map + <usize>4 * <usize>jj) * <usize>m;
+    for (let g = 0; g < nRuns; g++) {
+      const run = runs + <usize>12 * <usize>g;
+      const a = src + <usize>8 * <usize>load<i32>(run);
+      const o = dst + <usize>8 * <usize>load<i32>(run, 4);
+      const len = <usize>8 * <usize>load<i32>(run, 8);
+      for (let q: usize = 0; q < len; q += 16) v128.store(o + q, f64x2.add(v128.load(o + q), v128.load(a + q)));
+    }
+    src += stride;
+  }
+}
+
+/** Copies cols columns of rowBytes bytes each, from src (column stride srcStride bytes) to a packed block at dst. */
+export function copyColumns(dst: usize, src: usize, rowBytes: usize, cols: i32, srcStride: usize): void {
+  for (let c = 0; c < cols; c++) {
+    memory.copy(dst, src, rowBytes);
+    dst += rowBytes;
+    src += srcStride;
+  }
+}

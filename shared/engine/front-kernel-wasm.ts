@@ -27,6 +27,8 @@ interface FrontKernelExports {
   memory: WasmMemory;
   heapBase(): number;
   factorFront(f: number, m: number, kFs: number, threshold: number, rowList: number, colList: number, save: number, nb: number): number;
+  extendAdd(f: number, m: number, cb: number, ld: number, mc: number, map: number, runs: number, nRuns: number): void;
+  copyColumns(dst: number, src: number, rowBytes: number, cols: number, srcStride: number): void;
 }
 
 let compiled: object | null | undefined;
@@ -90,5 +92,20 @@ export class WasmFrontKernel {
    */
   factorFront(f: number, m: number, kFs: number, threshold: number, rowList: number, colList: number, save: number, nb = 32): number {
     return this.exports.factorFront(f, m, kFs, threshold, rowList, colList, save, nb);
+  }
+
+  /**
+   * Adds a child's contribution block (mc columns, stride ld doubles, at byte cb) into
+   * the front at f (m rows): column jj to column map[jj], in nRuns stretches
+   * runs[3g..3g+2] = [block offset, front offset, length] in doubles (map and runs are
+   * Int32 arrays at byte offsets in this memory). Same additions as the TypeScript loop.
+   */
+  extendAdd(f: number, m: number, cb: number, ld: number, mc: number, map: number, runs: number, nRuns: number): void {
+    this.exports.extendAdd(f, m, cb, ld, mc, map, runs, nRuns);
+  }
+
+  /** Copies cols columns of rowBytes bytes from src (column stride srcStride bytes) into a packed block at dst. */
+  copyColumns(dst: number, src: number, rowBytes: number, cols: number, srcStride: number): void {
+    this.exports.copyColumns(dst, src, rowBytes, cols, srcStride);
   }
 }

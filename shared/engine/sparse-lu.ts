@@ -125,8 +125,8 @@ export class SparseLuPlan {
   private readonly scratch = new SolveScratch();
   private cbStack: Float64Array;
   private delayStack: Int32Array;
-  private readonly map: Int32Array;
-  private readonly runs: Int32Array;
+  private map: Int32Array;
+  private runs: Int32Array;
   private save: Float64Array;
   private rowList: Int32Array;
   private colList: Int32Array;
@@ -141,6 +141,10 @@ export class SparseLuPlan {
   private wsRows = 0;
   private wsCols = 0;
   private wsCap = 0;
+  private wsMap = 0;
+  private wsRuns = 0;
+  private wsCb = 0;
+  private wsCbLength = 0;
 
   private constructor(n: number, nnz: number, perm: Int32Array, s: SymbolicFronts, threshold: number, kernel: 'wasm' | 'typescript') {
     this.n = n;
@@ -182,7 +186,15 @@ export class SparseLuPlan {
     this.rowList = new Int32Array(mx);
     this.colList = new Int32Array(mx);
     this.wasm = kernel === 'wasm' ? new WasmFrontKernel() : null;
-    if (this.wasm) this.growWorkspace(mx);
+    if (this.wasm) {
+      // The contribution-block stack, map and runs live in the kernel's memory too (extend-add runs there).
+      this.wsMap = this.wasm.reserve(4 * this.map.length);
+      this.wsRuns = this.wasm.reserve(4 * this.runs.length);
+      this.wsCbLength = this.cbStack.length;
+      this.wsCb = this.wasm.reserve(8 * this.wsCbLength);
+      this.cbStack = new Float64Array(0);
+      this.growWorkspace(mx);
+    }
   }
 
   /** Which dense kernel this plan's factorisations use. */
@@ -206,15 +218,37 @@ export class SparseLuPlan {
     this.wsRows = wasm.reserve(4 * m);
     this.wsCols = wasm.reserve(4 * m);
     this.wsCap = m;
+    if (old > 0) {
+      wasm.f64(this.wsA, 2 * old * old).set(wasm.f64(oldA, 2 * old * old));
+      wasm.f64(this.wsB, 2 * old * old).set(wasm.f64(oldB, 2 * old * old));
+    }
+    this.takeViews();
+  }
+
+  /** A larger contribution-block stack in the kernel's memory, keeping its first `keep` doubles. */
+  private growCbStack(need: number, keep: number): void {
+    const wasm = this.wasm!;
+    const length = Math.max(need, Math.ceil(this.wsCbLength * 1.5));
+    const old = this.wsCb;
+    this.wsCb = wasm.reserve(8 * length);
+    this.wsCbLength = length;
+    wasm.f64(this.wsCb, keep).set(wasm.f64(old, keep));
+    this.takeViews();
+  }
+
+  /** Fresh views of every buffer in the kernel's memory (growing it detaches the old ones). */
+  private takeViews(): void {
+    const wasm = this.wasm!;
+    const m = this.wsCap;
     this.frontA = wasm.f64(this.wsA, 2 * m * m);
     this.frontB = wasm.f64(this.wsB, 2 * m * m);
-    if (old > 0) {
-      this.frontA.set(wasm.f64(oldA, 2 * old * old));
-      this.frontB.set(wasm.f64(oldB, 2 * old * old));
-    }
     this.save = wasm.f64(this.wsSave, 2 * m);
     this.rowList = wasm.i32(this.wsRows, m);
     this.colList = wasm.i32(this.wsCols, m);
+    // (lengths as in the constructor: a detached view's length reads 0)
+    this.map = wasm.i32(this.wsMap, Math.max(1, this.n));
+    this.runs = wasm.i32(this.wsRuns, 3 * Math.max(1, this.n));
+    this.cbStack = wasm.f64(this.wsCb, this.wsCbLength);
   }
 
   /**
@@ -275,7 +309,8 @@ export class SparseLuPlan {
       }
     }
     const ns = this.frontCount;
-    const { first, parent, childPtr, childList, nonfsPtr, nonfs, relMap, asmPtr, asmEntry, asmRow, asmCol, map } = this;
+    const { first, parent, childPtr, childList, nonfsPtr, nonfs, relMap, asmPtr, asmEntry, asmRow, asmCol } = this;
+    const wasm = this.wasm;
     let valOff: Float64Array;
     let idxOff: Int32Array;
     let frontDim: Int32Array;
@@ -319,11 +354,14 @@ export class SparseLuPlan {
       const m = k + d + nfLen;
       const kFs = k + d;
       // Two front buffers in turn, so the previous front's Schur complement stays readable.
-      if (this.wasm && m > this.wsCap) {
+      // (the stack top only drops before this front's block is pushed: cbTop + m² doubles suffice)
+      if (wasm && (m > this.wsCap || cbTop + 2 * m * m > this.wsCbLength)) {
         const prevIsA = prevFront === this.frontA;
-        this.growWorkspace(m);
+        if (m > this.wsCap) this.growWorkspace(m);
+        if (cbTop + 2 * m * m > this.wsCbLength) this.growCbStack(cbTop + 2 * m * m, cbTop);
         prevFront = prevIsA ? this.frontA : this.frontB;
       }
+      const map = this.map;
       let F = prevFront === this.frontA ? this.frontB : this.frontA;
       if (F.length < 2 * m * m) {
         F = new Float64Array(2 * m * m);
@@ -389,6 +427,11 @@ export class SparseLuPlan {
           runs[3 * nRuns + 2] = 2 * len;
           nRuns++;
           ii += len;
+        }
+        if (wasm) {
+          const at = c === prevDirect ? (prevFront === this.frontA ? this.wsA : this.wsB) : this.wsCb;
+          wasm.extendAdd(F === this.frontA ? this.wsA : this.wsB, m, at + 8 * cbStart[c], ld, mc, this.wsMap, this.wsRuns, nRuns);
+          continue;
         }
         let src = cbStart[c];
         for (let jj = 0; jj < mc; jj++) {
@@ -459,15 +502,20 @@ export class SparseLuPlan {
       } else if (mc > 0) {
         cbStart[s] = cbTop;
         cbLd[s] = 2 * mc;
-        if (cbTop + 2 * mc * mc > this.cbStack.length) this.cbStack = growFloat(this.cbStack, cbTop + 2 * mc * mc);
-        const cb = this.cbStack;
-        let dst = cbTop;
-        for (let c = done; c < m; c++) {
-          const src = 2 * (c * m + done);
-          for (let q = 0; q < 2 * mc; q++) cb[dst + q] = F[src + q];
-          dst += 2 * mc;
+        if (wasm) {
+          wasm.copyColumns(this.wsCb + 8 * cbTop, (F === this.frontA ? this.wsA : this.wsB) + 16 * (done * m + done), 16 * mc, mc, 16 * m);
+          cbTop += 2 * mc * mc;
+        } else {
+          if (cbTop + 2 * mc * mc > this.cbStack.length) this.cbStack = growFloat(this.cbStack, cbTop + 2 * mc * mc);
+          const cb = this.cbStack;
+          let dst = cbTop;
+          for (let c = done; c < m; c++) {
+            const src = 2 * (c * m + done);
+            for (let q = 0; q < 2 * mc; q++) cb[dst + q] = F[src + q];
+            dst += 2 * mc;
+          }
+          cbTop = dst;
         }
-        cbTop = dst;
       } else {
         cbStart[s] = cbTop;
         cbLd[s] = 0;
