@@ -33,6 +33,8 @@ function scalingCavity(side: number): CavityModelInput {
 interface ScalingRow {
   sites: number;
   seconds: number;
+  /** CPU time of the search: on a loaded machine the wall time includes waiting for a core. */
+  cpuSeconds: number;
   poles: number;
   certified: boolean;
   factorisations: number;
@@ -45,17 +47,28 @@ function searchOnce(side: number): ScalingRow {
   const op = new EffectiveHamiltonian(buildCavitySystem(scalingCavity(side)));
   const t = op.hopping;
   const width = 0.027 * t * (10_000 / op.n);
+  const c0 = process.cpuUsage();
   const t0 = performance.now();
   const r = findPoles(op, { emin: 0.4 * t, emax: 0.4 * t + width, gammaMax: 2e-3 * t });
   return {
     sites: op.n,
     seconds: (performance.now() - t0) / 1000,
+    cpuSeconds: ((c => c.user + c.system)(process.cpuUsage(c0))) / 1e6,
     poles: r.poles.length,
     certified: r.certificate.certified,
     factorisations: r.stats.factorisations,
     maxRssMb: process.resourceUsage().maxRSS / 1024,
     loadAverage: loadavg()[0],
   };
+}
+
+/** Least-squares slope of log y against log x. */
+export function fittedExponent(x: number[], y: number[]): number {
+  const xs = x.map(Math.log);
+  const ys = y.map(Math.log);
+  const mx = xs.reduce((a, b) => a + b) / xs.length;
+  const my = ys.reduce((a, b) => a + b) / ys.length;
+  return xs.reduce((s, v, k) => s + (v - mx) * (ys[k] - my), 0) / xs.reduce((s, v) => s + (v - mx) ** 2, 0);
 }
 
 /** Runs each size in a child process and returns the printable figures. */
@@ -71,16 +84,12 @@ export function benchScaling(sides = [50, 100, 200, 316]): Record<string, number
   const figures: Record<string, number | string> = {};
   for (const r of rows) {
     figures[`${r.sites} sites`] =
-      `${r.seconds.toFixed(2)} s, ${r.factorisations} LUs, ${r.poles} poles, ${r.certified ? 'certified' : 'NOT certified'}, ` +
+      `${r.seconds.toFixed(2)} s (CPU ${r.cpuSeconds.toFixed(2)} s), ${r.factorisations} LUs, ${r.poles} poles, ${r.certified ? 'certified' : 'NOT certified'}, ` +
       `peak memory ${r.maxRssMb.toFixed(0)} MB, load ${r.loadAverage.toFixed(1)}`;
   }
   if (rows.length >= 2) {
-    const xs = rows.map((r) => Math.log(r.sites));
-    const ys = rows.map((r) => Math.log(r.seconds));
-    const mx = xs.reduce((a, b) => a + b) / xs.length;
-    const my = ys.reduce((a, b) => a + b) / ys.length;
-    figures['fitted exponent (time ∝ sites^p)'] =
-      xs.reduce((s, x, k) => s + (x - mx) * (ys[k] - my), 0) / xs.reduce((s, x) => s + (x - mx) ** 2, 0);
+    figures['fitted exponent (time ∝ sites^p)'] = fittedExponent(rows.map((r) => r.sites), rows.map((r) => r.seconds));
+    figures['fitted exponent on CPU time'] = fittedExponent(rows.map((r) => r.sites), rows.map((r) => r.cpuSeconds));
   }
   return figures;
 }
