@@ -50,10 +50,11 @@ function searchOnce(side: number): ScalingRow {
   const c0 = process.cpuUsage();
   const t0 = performance.now();
   const r = findPoles(op, { emin: 0.4 * t, emax: 0.4 * t + width, gammaMax: 2e-3 * t });
+  const cpu = process.cpuUsage(c0);
   return {
     sites: op.n,
     seconds: (performance.now() - t0) / 1000,
-    cpuSeconds: ((c => c.user + c.system)(process.cpuUsage(c0))) / 1e6,
+    cpuSeconds: (cpu.user + cpu.system) / 1e6,
     poles: r.poles.length,
     certified: r.certificate.certified,
     factorisations: r.stats.factorisations,
