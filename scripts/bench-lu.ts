@@ -197,7 +197,8 @@ export async function benchLuReference(rounds = 3, sides = [50, 100, 200]): Prom
       const plan = SparseLuPlan.analyse(a.n, a.colPtr, a.rowIdx, { sites });
       let factors = plan.factor(a.values);
       factors = plan.factor(a.values, factors);
-      const reps = side <= 50 ? 40 : side <= 100 ? 10 : 4;
+      // Many repetitions: on a loaded machine the minimum needs many tries to be steady.
+      const reps = side <= 50 ? 100 : side <= 100 ? 30 : 8;
       let product = Infinity;
       let productCpu = Infinity;
       let reference = Infinity;
