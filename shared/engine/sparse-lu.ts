@@ -37,6 +37,11 @@
  *
  * Result: P·A·Q = L·U with P, Q the row and column orders of the pivots (equal
  * unless pivoting exchanged rows or delayed columns).
+ *
+ * Kernels: by default the fronts, the extend-add and the contribution-block stack live
+ * in a WebAssembly module with SIMD (front-kernel-wasm.ts, built from wasm/front-kernel.ts);
+ * options.denseKernel = 'typescript' runs dense-complex.ts instead, the reference. Both
+ * perform the same floating-point operations in the same order.
  */
 import { assertCscPattern } from './complex-csc';
 import {
