@@ -471,12 +471,20 @@ export class SparseLuPlan {
       // The L panel is contiguous in F (one native copy); U12 is strided.
       const lLen = 2 * done * m;
       store.set(F.subarray(0, lLen), valTop);
-      let u = valTop + lLen;
       const uLen = 2 * done;
-      for (let c = done; c < m; c++) {
-        const src = 2 * c * m;
-        for (let q = 0; q < uLen; q++) store[u + q] = F[src + q];
-        u += uLen;
+      if (wasm && done > 0 && m > done) {
+        // U12 packed by the kernel into the free part of the block stack above its top
+        // (there is room: the stack was sized for cbTop + m² above), then one native copy.
+        const uCount = uLen * (m - done);
+        wasm.copyColumns(this.wsCb + 8 * cbTop, (F === this.frontA ? this.wsA : this.wsB) + 8 * lLen, 8 * uLen, m - done, 16 * m);
+        store.set(this.cbStack.subarray(cbTop, cbTop + uCount), valTop + lLen);
+      } else {
+        let u = valTop + lLen;
+        for (let c = done; c < m; c++) {
+          const src = 2 * c * m;
+          for (let q = 0; q < uLen; q++) store[u + q] = F[src + q];
+          u += uLen;
+        }
       }
       if (idxTop + 2 * m > index.length) index = growInt(index, idxTop + 2 * m);
       // Original unknowns (not labels), so solves need no permuted copy of b.
