@@ -5,15 +5,18 @@
  *
  * Run: npx tsx scripts/bench-lu.ts   (one thread; figures in ms unless named otherwise;
  * mflopPerS uses the predicted flops of the analysis, so delayed pivots are not counted)
- * Reference for comparison (from the brief, SciPy SuperLU on this machine): one LU in
- * 3.5 ms at 2,500 sites, 35–60 ms at 10,000, 0.28 s at 40,000.
+ * Against the reference: npx tsx scripts/bench-lu.ts --reference [--sides=50,100,200]
+ * (SciPy's SuperLU through scripts/lu-reference.py, when python3 with scipy is present).
  */
-import { loadavg } from 'node:os';
+import { execFileSync, spawnSync } from 'node:child_process';
+import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { loadavg, tmpdir } from 'node:os';
+import { join } from 'node:path';
 import { cscFromTriplets, cscMultiply, type ComplexCsc } from '../shared/engine/complex-csc';
 import { SparseLuPlan } from '../shared/engine/sparse-lu';
 
 /** A rectangle nx × ny with two side leads; hopping t = 1, z = 1.3 − 0.02i (inside the band, below the axis). */
-function benchMatrix(nx: number, ny: number): { a: ComplexCsc; sites: { i: Int32Array; j: Int32Array } } {
+export function benchMatrix(nx: number, ny: number): { a: ComplexCsc; sites: { i: Int32Array; j: Int32Array } } {
   let seed = 12345;
   const rnd = (): number => {
     seed = (seed * 16807) % 2147483647;
@@ -153,6 +156,90 @@ export async function benchLu(): Promise<Record<string, number>> {
   return out;
 }
 
+/** The bench matrix in the binary layout scripts/lu-reference.py reads. */
+function writeMatrix(path: string, a: ComplexCsc): void {
+  const nnz = a.colPtr[a.n];
+  const buf = Buffer.alloc(8 + 4 * (a.n + 1) + 4 * nnz + 16 * nnz);
+  buf.writeInt32LE(a.n, 0);
+  buf.writeInt32LE(nnz, 4);
+  Buffer.from(a.colPtr.buffer, a.colPtr.byteOffset, 4 * (a.n + 1)).copy(buf, 8);
+  Buffer.from(a.rowIdx.buffer, a.rowIdx.byteOffset, 4 * nnz).copy(buf, 8 + 4 * (a.n + 1));
+  Buffer.from(a.values.buffer, a.values.byteOffset, 16 * nnz).copy(buf, 8 + 4 * (a.n + 1) + 4 * nnz);
+  writeFileSync(path, buf);
+}
+
+/** True when python3 with scipy can run the reference script. */
+function referenceAvailable(): boolean {
+  const r = spawnSync('python3', ['-c', 'import scipy.sparse.linalg'], { stdio: 'ignore' });
+  return r.status === 0;
+}
+
+/**
+ * One LU at 2,500 / 10,000 / 40,000 sites next to SciPy's SuperLU (minimum-degree
+ * ordering of Aᵀ + A, scripts/lu-reference.py) on the same matrices, measured back to
+ * back: each round times the product, then the reference, size by size; the minimum
+ * over rounds of each is kept, so a burst of load from elsewhere hits both sides
+ * alike. The product's time is a factorisation with a reused plan and storage (as
+ * the sweeps and pole searches call it); the reference's includes its ordering, which
+ * SciPy cannot reuse across calls.
+ */
+export async function benchLuReference(rounds = 3, sides = [50, 100, 200]): Promise<Record<string, number | string>> {
+  const out: Record<string, number | string> = {};
+  if (!referenceAvailable()) {
+    out['reference'] = 'skipped: python3 with scipy not found (apt-get install python3-scipy, or pip install scipy)';
+  }
+  const dir = mkdtempSync(join(tmpdir(), 'poleward-lu-'));
+  try {
+    for (const side of sides) {
+      const { a, sites } = benchMatrix(side, side);
+      const file = join(dir, `rect-${side}.bin`);
+      writeMatrix(file, a);
+      const plan = SparseLuPlan.analyse(a.n, a.colPtr, a.rowIdx, { sites });
+      let factors = plan.factor(a.values);
+      factors = plan.factor(a.values, factors);
+      // Many repetitions: on a loaded machine the minimum needs many tries to be steady.
+      const reps = side <= 50 ? 100 : side <= 100 ? 30 : 8;
+      let product = Infinity;
+      let productCpu = Infinity;
+      let reference = Infinity;
+      let referenceCpu = Infinity;
+      const loads: number[] = [];
+      for (let r = 0; r < rounds; r++) {
+        for (let q = 0; q < reps; q++) {
+          const c0 = process.cpuUsage();
+          const t0 = performance.now();
+          factors = plan.factor(a.values, factors);
+          product = Math.min(product, performance.now() - t0);
+          const c = process.cpuUsage(c0);
+          productCpu = Math.min(productCpu, (c.user + c.system) / 1000);
+        }
+        loads.push(loadavg()[0]);
+        if (out['reference'] === undefined) {
+          const line = execFileSync('python3', [join(import.meta.dirname, 'lu-reference.py'), String(reps), file], { encoding: 'utf8' });
+          const ref = JSON.parse(line.trim().split('\n').pop()!) as { minMs: number; minCpuMs: number };
+          reference = Math.min(reference, ref.minMs);
+          referenceCpu = Math.min(referenceCpu, ref.minCpuMs);
+        }
+      }
+      const key = `${a.n} sites`;
+      out[`${key}: product ms (min wall / min CPU)`] = `${product.toFixed(2)} / ${productCpu.toFixed(2)}`;
+      if (out['reference'] === undefined) {
+        out[`${key}: reference ms (min wall / min CPU)`] = `${reference.toFixed(2)} / ${referenceCpu.toFixed(2)}`;
+        out[`${key}: ratio product/reference (wall / CPU)`] = `${(product / reference).toFixed(2)} / ${(productCpu / referenceCpu).toFixed(2)}`;
+      }
+      out[`${key}: load average 1m`] = loads.map((x) => x.toFixed(1)).join(' / ');
+    }
+  } finally {
+    rmSync(dir, { recursive: true, force: true });
+  }
+  return out;
+}
+
 if (import.meta.url === `file://${process.argv[1]}` || process.argv[1]?.endsWith('bench-lu.ts')) {
-  await benchLu();
+  if (process.argv.includes('--reference')) {
+    const sides = process.argv.find((x) => x.startsWith('--sides='))?.slice(8).split(',').map(Number);
+    for (const [k, v] of Object.entries(await benchLuReference(3, sides))) console.log(`${k.padEnd(40)} ${typeof v === 'number' ? v.toFixed(2) : v}`);
+  } else {
+    await benchLu();
+  }
 }

@@ -6,7 +6,8 @@ import { buildCavitySystem, EffectiveHamiltonian } from '../shared/engine/effect
 import { findPoles, findPolesWith, poleWorkSetup } from '../shared/engine/poles';
 import type { CavityModelInput } from '../shared/model/cavity-model';
 import { PoleThreadPool } from '../server/jobs/pole-pool';
-import { benchLu } from './bench-lu';
+import { benchLu, benchLuReference } from './bench-lu';
+import { benchScaling } from './bench-scaling';
 import { benchSweep1000, benchTransmission } from './bench-transmission';
 import { benchCatalogue } from './bench-catalogue';
 import { benchLoad } from './bench-load';
@@ -52,7 +53,10 @@ console.log(`Poleward bench on ${cpus().length} × ${cpus()[0]?.model ?? 'cpu'},
 console.log('Targets (half of a SciPy/SuperLU reference on this kind of machine): LU 1.75 / 17–30 / 140 ms at 2,500 / 10,000 / 40,000 sites;');
 console.log('1,000-energy sweep at 10,000 sites 23–35 s; certified pole search at 10,000 sites 8.5–11 s.');
 
-if (only.includes('lu')) print('sparse LU of z − H_eff (one thread)', await benchLu());
+if (only.includes('lu')) {
+  print('sparse LU of z − H_eff (one thread)', await benchLu());
+  print('one LU against SciPy/SuperLU (scripts/lu-reference.py), back to back, min of 3 rounds; target ratio ≤ 0.5', await benchLuReference());
+}
 if (only.includes('transmission')) print('transmission sweep at 10,000 sites (one thread)', await benchTransmission());
 if (only.includes('sweep')) print('1,000-energy transmission sweep at 10,000 sites: direct against interpolated (one thread)', await benchSweep1000());
 if (only.includes('poles')) {
@@ -87,17 +91,7 @@ if (only.includes('poles')) {
   });
 }
 if (only.includes('scaling')) {
-  const rows = [50, 71, 100].map((side) => searchOnce(side));
-  // Least-squares slope of log(seconds) against log(sites).
-  const xs = rows.map((r) => Math.log(r.sites));
-  const ys = rows.map((r) => Math.log(r.seconds));
-  const mx = xs.reduce((a, b) => a + b) / xs.length;
-  const my = ys.reduce((a, b) => a + b) / ys.length;
-  const slope = xs.reduce((s, x, k) => s + (x - mx) * (ys[k] - my), 0) / xs.reduce((s, x) => s + (x - mx) ** 2, 0);
-  const figures: Record<string, number | string> = {};
-  for (const r of rows) figures[`${r.sites} sites`] = `${r.seconds.toFixed(2)} s, ${r.poles} poles, ${r.certified ? 'certified' : 'NOT certified'}`;
-  figures['fitted exponent (time ∝ sites^p)'] = slope;
-  print('pole-search time against site count (windows scaled to hold similar pole counts)', figures);
+  print('pole-search time and peak memory against site count, 2,500–100,000 (windows scaled to hold similar pole counts)', benchScaling());
 }
 if (only.includes('catalogue')) print('catalogue search with 100,000 resonances, 20 concurrent clients', await benchCatalogue());
 if (only.includes('estimate')) {

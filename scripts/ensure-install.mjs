@@ -17,3 +17,6 @@ if (have !== wanted || !existsSync(join(root, 'node_modules', '.bin', 'tsx'))) {
   execSync('npm ci --no-audit --no-fund', { cwd: root, stdio: 'inherit' });
   writeFileSync(stamp, wanted + '\n');
 }
+
+// The WebAssembly front kernel of the sparse LU, rebuilt when its source changed.
+execSync('node scripts/build-wasm.mjs', { cwd: root, stdio: 'inherit' });

@@ -37,6 +37,11 @@
  *
  * Result: P·A·Q = L·U with P, Q the row and column orders of the pivots (equal
  * unless pivoting exchanged rows or delayed columns).
+ *
+ * Kernels: by default the fronts, the extend-add and the contribution-block stack live
+ * in a WebAssembly module with SIMD (front-kernel-wasm.ts, built from wasm/front-kernel.ts);
+ * options.denseKernel = 'typescript' runs dense-complex.ts instead, the reference. Both
+ * perform the same floating-point operations in the same order.
  */
 import { assertCscPattern } from './complex-csc';
 import {
@@ -48,6 +53,7 @@ import {
   upperSolveFrontPair,
   upperTransposeSolveFront,
 } from './dense-complex';
+import { WasmFrontKernel, wasmKernelAvailable } from './front-kernel-wasm';
 import { invertPermutation, nestedDissectionOrder, symmetricAdjacency, type Adjacency } from './ordering';
 
 export interface LuPlanOptions {
@@ -57,6 +63,12 @@ export interface LuPlanOptions {
   permutation?: ArrayLike<number>;
   /** Threshold u in (0, 1] of the pivot test |a_rp| ≥ u·max|a_·p| (default 0.1; 1 = partial pivoting within fronts). */
   pivotThreshold?: number;
+  /**
+   * Which dense front kernel factorises the fronts: 'wasm' (WebAssembly with SIMD,
+   * front-kernel-wasm.ts; the default where the runtime has it) or 'typescript'
+   * (dense-complex.ts, the reference). Both give the same factors to rounding.
+   */
+  denseKernel?: 'wasm' | 'typescript';
 }
 
 /** Thrown when a pivot column is exactly zero after elimination: the matrix is exactly singular. */
@@ -118,15 +130,28 @@ export class SparseLuPlan {
   private readonly scratch = new SolveScratch();
   private cbStack: Float64Array;
   private delayStack: Int32Array;
-  private readonly map: Int32Array;
-  private readonly runs: Int32Array;
+  private map: Int32Array;
+  private runs: Int32Array;
   private save: Float64Array;
   private rowList: Int32Array;
   private colList: Int32Array;
   private storeHint = 0;
   private indexHint = 0;
+  /** The WebAssembly kernel, whose memory holds frontA, frontB, save, rowList and colList; null for the TypeScript kernel. */
+  private readonly wasm: WasmFrontKernel | null;
+  /** Byte offsets of those buffers in the kernel's memory, and the front dimension they hold. */
+  private wsA = 0;
+  private wsB = 0;
+  private wsSave = 0;
+  private wsRows = 0;
+  private wsCols = 0;
+  private wsCap = 0;
+  private wsMap = 0;
+  private wsRuns = 0;
+  private wsCb = 0;
+  private wsCbLength = 0;
 
-  private constructor(n: number, nnz: number, perm: Int32Array, s: SymbolicFronts, threshold: number) {
+  private constructor(n: number, nnz: number, perm: Int32Array, s: SymbolicFronts, threshold: number, kernel: 'wasm' | 'typescript') {
     this.n = n;
     this.nnz = nnz;
     this.perm = perm;
@@ -148,8 +173,10 @@ export class SparseLuPlan {
     this.frontCount = s.first.length - 1;
     this.largestFront = s.maxFront;
     const mx = Math.max(1, s.maxFront);
-    this.frontA = new Float64Array(2 * mx * mx);
-    this.frontB = new Float64Array(2 * mx * mx);
+    // (with the WebAssembly kernel these live in its memory: growWorkspace below)
+    const dense = kernel === 'wasm' ? 0 : 2 * mx * mx;
+    this.frontA = new Float64Array(dense);
+    this.frontB = new Float64Array(dense);
     const ns = this.frontCount;
     this.cbDim = new Int32Array(ns);
     this.cbStart = new Float64Array(ns);
@@ -163,6 +190,70 @@ export class SparseLuPlan {
     this.save = new Float64Array(2 * mx);
     this.rowList = new Int32Array(mx);
     this.colList = new Int32Array(mx);
+    this.wasm = kernel === 'wasm' ? new WasmFrontKernel() : null;
+    if (this.wasm) {
+      // The contribution-block stack, map and runs live in the kernel's memory too (extend-add runs there).
+      this.wsMap = this.wasm.reserve(4 * this.map.length);
+      this.wsRuns = this.wasm.reserve(4 * this.runs.length);
+      this.wsCbLength = this.cbStack.length;
+      this.wsCb = this.wasm.reserve(8 * this.wsCbLength);
+      this.cbStack = new Float64Array(0);
+      this.growWorkspace(mx);
+    }
+  }
+
+  /** Which dense kernel this plan's factorisations use. */
+  get denseKernel(): 'wasm' | 'typescript' {
+    return this.wasm ? 'wasm' : 'typescript';
+  }
+
+  /**
+   * Places the front buffers in the WebAssembly kernel's memory for fronts up to m,
+   * keeping the contents of both front buffers (one may hold the Schur complement the
+   * next front reads). Growing detaches the old views, so all are taken again.
+   */
+  private growWorkspace(m: number): void {
+    const wasm = this.wasm!;
+    const old = this.wsCap;
+    const oldA = this.wsA;
+    const oldB = this.wsB;
+    this.wsA = wasm.reserve(16 * m * m);
+    this.wsB = wasm.reserve(16 * m * m);
+    this.wsSave = wasm.reserve(16 * m);
+    this.wsRows = wasm.reserve(4 * m);
+    this.wsCols = wasm.reserve(4 * m);
+    this.wsCap = m;
+    if (old > 0) {
+      wasm.f64(this.wsA, 2 * old * old).set(wasm.f64(oldA, 2 * old * old));
+      wasm.f64(this.wsB, 2 * old * old).set(wasm.f64(oldB, 2 * old * old));
+    }
+    this.takeViews();
+  }
+
+  /** A larger contribution-block stack in the kernel's memory, keeping its first `keep` doubles. */
+  private growCbStack(need: number, keep: number): void {
+    const wasm = this.wasm!;
+    const length = Math.max(need, Math.ceil(this.wsCbLength * 1.5));
+    const old = this.wsCb;
+    this.wsCb = wasm.reserve(8 * length);
+    this.wsCbLength = length;
+    wasm.f64(this.wsCb, keep).set(wasm.f64(old, keep));
+    this.takeViews();
+  }
+
+  /** Fresh views of every buffer in the kernel's memory (growing it detaches the old ones). */
+  private takeViews(): void {
+    const wasm = this.wasm!;
+    const m = this.wsCap;
+    this.frontA = wasm.f64(this.wsA, 2 * m * m);
+    this.frontB = wasm.f64(this.wsB, 2 * m * m);
+    this.save = wasm.f64(this.wsSave, 2 * m);
+    this.rowList = wasm.i32(this.wsRows, m);
+    this.colList = wasm.i32(this.wsCols, m);
+    // (lengths as in the constructor: a detached view's length reads 0)
+    this.map = wasm.i32(this.wsMap, Math.max(1, this.n));
+    this.runs = wasm.i32(this.wsRuns, 3 * Math.max(1, this.n));
+    this.cbStack = wasm.f64(this.wsCb, this.wsCbLength);
   }
 
   /**
@@ -194,7 +285,8 @@ export class SparseLuPlan {
       perm0 = nestedDissectionOrder(graph, options.sites);
     }
     const { perm, symbolic } = analyseFronts(graph, perm0, colPtr, rowIdx);
-    return new SparseLuPlan(n, colPtr[n], perm, symbolic, threshold);
+    const kernel = options.denseKernel ?? (wasmKernelAvailable() ? 'wasm' : 'typescript');
+    return new SparseLuPlan(n, colPtr[n], perm, symbolic, threshold, kernel);
   }
 
   /**
@@ -222,7 +314,8 @@ export class SparseLuPlan {
       }
     }
     const ns = this.frontCount;
-    const { first, parent, childPtr, childList, nonfsPtr, nonfs, relMap, asmPtr, asmEntry, asmRow, asmCol, map } = this;
+    const { first, parent, childPtr, childList, nonfsPtr, nonfs, relMap, asmPtr, asmEntry, asmRow, asmCol } = this;
+    const wasm = this.wasm;
     let valOff: Float64Array;
     let idxOff: Int32Array;
     let frontDim: Int32Array;
@@ -266,6 +359,14 @@ export class SparseLuPlan {
       const m = k + d + nfLen;
       const kFs = k + d;
       // Two front buffers in turn, so the previous front's Schur complement stays readable.
+      // (the stack top only drops before this front's block is pushed: cbTop + m² doubles suffice)
+      if (wasm && (m > this.wsCap || cbTop + 2 * m * m > this.wsCbLength)) {
+        const prevIsA = prevFront === this.frontA;
+        if (m > this.wsCap) this.growWorkspace(m);
+        if (cbTop + 2 * m * m > this.wsCbLength) this.growCbStack(cbTop + 2 * m * m, cbTop);
+        prevFront = prevIsA ? this.frontA : this.frontB;
+      }
+      const map = this.map;
       let F = prevFront === this.frontA ? this.frontB : this.frontA;
       if (F.length < 2 * m * m) {
         F = new Float64Array(2 * m * m);
@@ -332,6 +433,11 @@ export class SparseLuPlan {
           nRuns++;
           ii += len;
         }
+        if (wasm) {
+          const at = c === prevDirect ? (prevFront === this.frontA ? this.wsA : this.wsB) : this.wsCb;
+          wasm.extendAdd(F === this.frontA ? this.wsA : this.wsB, m, at + 8 * cbStart[c], ld, mc, this.wsMap, this.wsRuns, nRuns);
+          continue;
+        }
         let src = cbStart[c];
         for (let jj = 0; jj < mc; jj++) {
           const dst = 2 * map[jj] * m;
@@ -347,8 +453,13 @@ export class SparseLuPlan {
       cbTop = firstChildStart;
       delayTop = firstDelayStart;
 
-      if (this.save.length < 2 * m) this.save = new Float64Array(2 * m);
-      const done = factorFront(F, m, kFs, this.threshold, rowList, colList, this.save);
+      let done: number;
+      if (this.wasm) {
+        done = this.wasm.factorFront(F === this.frontA ? this.wsA : this.wsB, m, kFs, this.threshold, this.wsRows, this.wsCols, this.wsSave);
+      } else {
+        if (this.save.length < 2 * m) this.save = new Float64Array(2 * m);
+        done = factorFront(F, m, kFs, this.threshold, rowList, colList, this.save);
+      }
       if (parent[s] < 0 && done < kFs) {
         const col = this.perm[colList[done]];
         throw new SingularMatrixError(col, `no nonzero pivot is left for column ${col} (front ${s} of ${ns}, ${done} of ${kFs} pivots eliminated)`);
@@ -360,12 +471,20 @@ export class SparseLuPlan {
       // The L panel is contiguous in F (one native copy); U12 is strided.
       const lLen = 2 * done * m;
       store.set(F.subarray(0, lLen), valTop);
-      let u = valTop + lLen;
       const uLen = 2 * done;
-      for (let c = done; c < m; c++) {
-        const src = 2 * c * m;
-        for (let q = 0; q < uLen; q++) store[u + q] = F[src + q];
-        u += uLen;
+      if (wasm && done > 0 && m > done) {
+        // U12 packed by the kernel into the free part of the block stack above its top
+        // (there is room: the stack was sized for cbTop + m² above), then one native copy.
+        const uCount = uLen * (m - done);
+        wasm.copyColumns(this.wsCb + 8 * cbTop, (F === this.frontA ? this.wsA : this.wsB) + 8 * lLen, 8 * uLen, m - done, 16 * m);
+        store.set(this.cbStack.subarray(cbTop, cbTop + uCount), valTop + lLen);
+      } else {
+        let u = valTop + lLen;
+        for (let c = done; c < m; c++) {
+          const src = 2 * c * m;
+          for (let q = 0; q < uLen; q++) store[u + q] = F[src + q];
+          u += uLen;
+        }
       }
       if (idxTop + 2 * m > index.length) index = growInt(index, idxTop + 2 * m);
       // Original unknowns (not labels), so solves need no permuted copy of b.
@@ -396,15 +515,20 @@ export class SparseLuPlan {
       } else if (mc > 0) {
         cbStart[s] = cbTop;
         cbLd[s] = 2 * mc;
-        if (cbTop + 2 * mc * mc > this.cbStack.length) this.cbStack = growFloat(this.cbStack, cbTop + 2 * mc * mc);
-        const cb = this.cbStack;
-        let dst = cbTop;
-        for (let c = done; c < m; c++) {
-          const src = 2 * (c * m + done);
-          for (let q = 0; q < 2 * mc; q++) cb[dst + q] = F[src + q];
-          dst += 2 * mc;
+        if (wasm) {
+          wasm.copyColumns(this.wsCb + 8 * cbTop, (F === this.frontA ? this.wsA : this.wsB) + 16 * (done * m + done), 16 * mc, mc, 16 * m);
+          cbTop += 2 * mc * mc;
+        } else {
+          if (cbTop + 2 * mc * mc > this.cbStack.length) this.cbStack = growFloat(this.cbStack, cbTop + 2 * mc * mc);
+          const cb = this.cbStack;
+          let dst = cbTop;
+          for (let c = done; c < m; c++) {
+            const src = 2 * (c * m + done);
+            for (let q = 0; q < 2 * mc; q++) cb[dst + q] = F[src + q];
+            dst += 2 * mc;
+          }
+          cbTop = dst;
         }
-        cbTop = dst;
       } else {
         cbStart[s] = cbTop;
         cbLd[s] = 0;

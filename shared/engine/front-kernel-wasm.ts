@@ -1,0 +1,111 @@
+/**
+ * The WebAssembly front kernel: factorFront of dense-complex.ts compiled from
+ * wasm/front-kernel.ts (AssemblyScript, 128-bit SIMD) by scripts/build-wasm.mjs.
+ * The TypeScript kernel stays the reference: tests compare the two on random fronts
+ * and whole factorisations (tests/engine/front-kernel-wasm.test.ts).
+ *
+ * The bytes come from a generated TypeScript module (base64), so this loads in Node,
+ * worker threads and browsers alike, without Node APIs. Each WasmFrontKernel is one
+ * instance with its own linear memory; the caller's front buffers live in that memory
+ * (views from f64()/i32()), so the kernel works on them without copies.
+ */
+import { FRONT_KERNEL_WASM_BASE64 } from './front-kernel-wasm-bytes';
+
+// The few WebAssembly JS API members used here, typed locally: the server's TypeScript
+// library set (ES2023 + Node types) does not declare the WebAssembly namespace's classes.
+interface WasmMemory {
+  readonly buffer: ArrayBuffer;
+  grow(pages: number): number;
+}
+interface WasmApi {
+  Module: new (bytes: Uint8Array) => object;
+  Instance: new (module: object, imports: object) => { exports: unknown };
+}
+const wasmApi = (globalThis as { WebAssembly?: WasmApi }).WebAssembly;
+
+interface FrontKernelExports {
+  memory: WasmMemory;
+  heapBase(): number;
+  factorFront(f: number, m: number, kFs: number, threshold: number, rowList: number, colList: number, save: number, nb: number): number;
+  extendAdd(f: number, m: number, cb: number, ld: number, mc: number, map: number, runs: number, nRuns: number): void;
+  copyColumns(dst: number, src: number, rowBytes: number, cols: number, srcStride: number): void;
+}
+
+let compiled: object | null | undefined;
+
+/** The compiled module, or null where WebAssembly or its SIMD instructions are missing. */
+function frontKernelModule(): object | null {
+  if (compiled !== undefined) return compiled;
+  if (!wasmApi) return (compiled = null);
+  try {
+    const text = atob(FRONT_KERNEL_WASM_BASE64);
+    const bytes = new Uint8Array(text.length);
+    for (let q = 0; q < text.length; q++) bytes[q] = text.charCodeAt(q);
+    compiled = new wasmApi.Module(bytes);
+  } catch {
+    compiled = null;
+  }
+  return compiled;
+}
+
+/** True when this runtime can run the WebAssembly kernel (else the TypeScript kernel is used). */
+export function wasmKernelAvailable(): boolean {
+  return frontKernelModule() !== null;
+}
+
+const PAGE = 65536;
+
+export class WasmFrontKernel {
+  private readonly exports: FrontKernelExports;
+  private top: number;
+
+  constructor() {
+    const module = frontKernelModule();
+    if (!module || !wasmApi) throw new Error('WasmFrontKernel: WebAssembly with SIMD is not available in this runtime');
+    this.exports = new wasmApi.Instance(module, {}).exports as FrontKernelExports;
+    this.top = this.exports.heapBase();
+  }
+
+  /**
+   * Reserves `bytes` of linear memory (16-byte aligned) and returns its byte offset.
+   * Growing the memory detaches every view handed out before: take them again.
+   */
+  reserve(bytes: number): number {
+    const at = this.top;
+    this.top = (at + bytes + 15) & ~15;
+    const memory = this.exports.memory;
+    if (this.top > memory.buffer.byteLength) memory.grow(Math.ceil((this.top - memory.buffer.byteLength) / PAGE));
+    return at;
+  }
+
+  f64(offset: number, length: number): Float64Array {
+    return new Float64Array(this.exports.memory.buffer, offset, length);
+  }
+
+  i32(offset: number, length: number): Int32Array {
+    return new Int32Array(this.exports.memory.buffer, offset, length);
+  }
+
+  /**
+   * factorFront (dense-complex.ts) on the front at byte offset f; rowList, colList
+   * (Int32, m entries) and save (16·m bytes) are byte offsets in this memory too.
+   */
+  factorFront(f: number, m: number, kFs: number, threshold: number, rowList: number, colList: number, save: number, nb = 32): number {
+    return this.exports.factorFront(f, m, kFs, threshold, rowList, colList, save, nb);
+  }
+
+  /**
+   * Adds a child's contribution block (mc columns, stride ld doubles, at byte cb) into
+   * the front at f (m rows): column jj to column map[jj], in nRuns stretches
+   * runs[3g..3g+2] = [block offset, front offset, length] in doubles (map and runs are
+   * Int32 arrays at byte offsets in this memory). Same additions as the TypeScript loop.
+   */
+  extendAdd(f: number, m: number, cb: number, ld: number, mc: number, map: number, runs: number, nRuns: number): void {
+    this.exports.extendAdd(f, m, cb, ld, mc, map, runs, nRuns);
+  }
+
+  /** Copies cols columns of rowBytes bytes from src (column stride srcStride bytes) into a packed block at dst. */
+  copyColumns(dst: number, src: number, rowBytes: number, cols: number, srcStride: number): void {
+    this.exports.copyColumns(dst, src, rowBytes, cols, srcStride);
+  }
+}

@@ -1,0 +1,277 @@
+// AssemblyScript source of the WebAssembly front kernel (compiled by scripts/build-wasm.mjs
+// into shared/engine/front-kernel-wasm-bytes.ts). It is a port of factorFront in
+// shared/engine/dense-complex.ts, which stays the reference the tests compare it with:
+// same blocking, same pivot rule, same delays, and the same floating-point operations in
+// the same order (so the same factors, bit for bit, but for the sign of a zero); the
+// updates use 128-bit SIMD, one complex number per f64x2.
+//
+// All pointers are byte addresses in this module's linear memory. A front of m rows is
+// column-major, interleaved (re, im): element (r, c) at f + 16·(c·m + r).
+
+/** First free byte of linear memory (the caller allocates its buffers from here up). */
+export function heapBase(): usize {
+  return (__heap_base + 15) & ~(<usize>15);
+}
+
+// x · u on one interleaved complex number as (xr, xr) ⊙ (ur, ui) + (xi, xi) ⊙ (−ui, ur):
+// lane by lane the same products, added in the same order, as the TypeScript kernel
+// (xr·ur − xi·ui, xr·ui + xi·ur), so both give bit-identical fronts.
+// @ts-ignore: decorator
+@inline function rot(u: v128): v128 {
+  return f64x2.mul(v128.shuffle<f64>(u, u, 1, 0), f64x2.replace_lane(f64x2.splat(1.0), 0, -1.0));
+}
+// @ts-ignore: decorator
+@inline function lo(x: v128): v128 {
+  return v128.shuffle<f64>(x, x, 0, 0);
+}
+// @ts-ignore: decorator
+@inline function hi(x: v128): v128 {
+  return v128.shuffle<f64>(x, x, 1, 1);
+}
+
+/** Unit lower 4×4 triangle of pivots q..q+3 applied to rows q+1..q+3 of the column at cj (scalar, sequential). */
+function triangle4(f: usize, m: i32, cj: usize, q: i32): void {
+  const c0 = f + <usize>16 * <usize>q * <usize>m;
+  const c1 = c0 + <usize>16 * <usize>m;
+  const c2 = c1 + <usize>16 * <usize>m;
+  const a0 = cj + <usize>16 * <usize>q;
+  const u0r = load<f64>(a0), u0i = load<f64>(a0, 8);
+  let l = c0 + <usize>16 * <usize>(q + 1);
+  const u1r = load<f64>(a0, 16) - (load<f64>(l) * u0r - load<f64>(l, 8) * u0i);
+  const u1i = load<f64>(a0, 24) - (load<f64>(l) * u0i + load<f64>(l, 8) * u0r);
+  store<f64>(a0, u1r, 16);
+  store<f64>(a0, u1i, 24);
+  l = c0 + <usize>16 * <usize>(q + 2);
+  let l2 = c1 + <usize>16 * <usize>(q + 2);
+  const u2r = load<f64>(a0, 32) - (load<f64>(l) * u0r - load<f64>(l, 8) * u0i) - (load<f64>(l2) * u1r - load<f64>(l2, 8) * u1i);
+  const u2i = load<f64>(a0, 40) - (load<f64>(l) * u0i + load<f64>(l, 8) * u0r) - (load<f64>(l2) * u1i + load<f64>(l2, 8) * u1r);
+  store<f64>(a0, u2r, 32);
+  store<f64>(a0, u2i, 40);
+  l = c0 + <usize>16 * <usize>(q + 3);
+  l2 = c1 + <usize>16 * <usize>(q + 3);
+  const l3 = c2 + <usize>16 * <usize>(q + 3);
+  store<f64>(a0, load<f64>(a0, 48) - (load<f64>(l) * u0r - load<f64>(l, 8) * u0i + (load<f64>(l2) * u1r - load<f64>(l2, 8) * u1i) + (load<f64>(l3) * u2r - load<f64>(l3, 8) * u2i)), 48);
+  store<f64>(a0, load<f64>(a0, 56) - (load<f64>(l) * u0i + load<f64>(l, 8) * u0r + (load<f64>(l2) * u1i + load<f64>(l2, 8) * u1r) + (load<f64>(l3) * u2i + load<f64>(l3, 8) * u2r)), 56);
+}
+
+/** Column j −= Σ_{q0 ≤ q < q1} L[·, q]·U[q, j] below each pivot (eliminateColumn of dense-complex.ts). */
+function eliminateColumn(f: usize, m: i32, j: i32, q0: i32, q1: i32): void {
+  const mm = <usize>16 * <usize>m;
+  const cj = f + <usize>j * mm;
+  let q = q0;
+  for (; q + 4 <= q1; q += 4) {
+    triangle4(f, m, cj, q);
+    const c0 = f + <usize>q * mm;
+    const c1 = c0 + mm;
+    const c2 = c1 + mm;
+    const c3 = c2 + mm;
+    const a = cj + <usize>16 * <usize>q;
+    const u0 = v128.load(a), u1 = v128.load(a, 16), u2 = v128.load(a, 32), u3 = v128.load(a, 48);
+    if (!v128.any_true(v128.or(v128.or(u0, u1), v128.or(u2, u3)))) continue;
+    const b0 = rot(u0), b1 = rot(u1), b2 = rot(u2), b3 = rot(u3);
+    for (let r = <usize>16 * <usize>(q + 4); r < mm; r += 16) {
+      const x0 = v128.load(c0 + r), x1 = v128.load(c1 + r), x2 = v128.load(c2 + r), x3 = v128.load(c3 + r);
+      let s = f64x2.mul(lo(x0), u0);
+      s = f64x2.add(s, f64x2.mul(hi(x0), b0));
+      s = f64x2.add(s, f64x2.mul(lo(x1), u1));
+      s = f64x2.add(s, f64x2.mul(hi(x1), b1));
+      s = f64x2.add(s, f64x2.mul(lo(x2), u2));
+      s = f64x2.add(s, f64x2.mul(hi(x2), b2));
+      s = f64x2.add(s, f64x2.mul(lo(x3), u3));
+      s = f64x2.add(s, f64x2.mul(hi(x3), b3));
+      v128.store(cj + r, f64x2.sub(v128.load(cj + r), s));
+    }
+  }
+  for (; q < q1; q++) {
+    const c0 = f + <usize>q * mm;
+    const u = v128.load(cj + <usize>16 * <usize>q);
+    if (!v128.any_true(u)) continue;
+    const b0 = rot(u);
+    for (let r = <usize>16 * <usize>(q + 1); r < mm; r += 16) {
+      const x0 = v128.load(c0 + r);
+      const s = f64x2.add(f64x2.mul(lo(x0), u), f64x2.mul(hi(x0), b0));
+      v128.store(cj + r, f64x2.sub(v128.load(cj + r), s));
+    }
+  }
+}
+
+/** eliminateColumn on columns j and j+1 at once: each multiplier loaded serves two columns. */
+function eliminateColumnPair(f: usize, m: i32, j: i32, q0: i32, q1: i32): void {
+  const mm = <usize>16 * <usize>m;
+  const cj = f + <usize>j * mm;
+  const ck = cj + mm;
+  let q = q0;
+  for (; q + 4 <= q1; q += 4) {
+    triangle4(f, m, cj, q);
+    triangle4(f, m, ck, q);
+    const c0 = f + <usize>q * mm;
+    const c1 = c0 + mm;
+    const c2 = c1 + mm;
+    const c3 = c2 + mm;
+    const a = cj + <usize>16 * <usize>q;
+    const b = ck + <usize>16 * <usize>q;
+    const u0 = v128.load(a), u1 = v128.load(a, 16), u2 = v128.load(a, 32), u3 = v128.load(a, 48);
+    const v0 = v128.load(b), v1 = v128.load(b, 16), v2 = v128.load(b, 32), v3 = v128.load(b, 48);
+    if (!v128.any_true(v128.or(v128.or(v128.or(u0, u1), v128.or(u2, u3)), v128.or(v128.or(v0, v1), v128.or(v2, v3))))) continue;
+    const ub0 = rot(u0), ub1 = rot(u1), ub2 = rot(u2), ub3 = rot(u3);
+    const vb0 = rot(v0), vb1 = rot(v1), vb2 = rot(v2), vb3 = rot(v3);
+    for (let r = <usize>16 * <usize>(q + 4); r < mm; r += 16) {
+      const x0 = v128.load(c0 + r), x1 = v128.load(c1 + r), x2 = v128.load(c2 + r), x3 = v128.load(c3 + r);
+      const l0 = lo(x0), h0 = hi(x0), l1 = lo(x1), h1 = hi(x1);
+      let s = f64x2.mul(l0, u0);
+      let t = f64x2.mul(l0, v0);
+      s = f64x2.add(s, f64x2.mul(h0, ub0));
+      t = f64x2.add(t, f64x2.mul(h0, vb0));
+      s = f64x2.add(s, f64x2.mul(l1, u1));
+      t = f64x2.add(t, f64x2.mul(l1, v1));
+      s = f64x2.add(s, f64x2.mul(h1, ub1));
+      t = f64x2.add(t, f64x2.mul(h1, vb1));
+      const l2 = lo(x2), h2 = hi(x2), l3 = lo(x3), h3 = hi(x3);
+      s = f64x2.add(s, f64x2.mul(l2, u2));
+      t = f64x2.add(t, f64x2.mul(l2, v2));
+      s = f64x2.add(s, f64x2.mul(h2, ub2));
+      t = f64x2.add(t, f64x2.mul(h2, vb2));
+      s = f64x2.add(s, f64x2.mul(l3, u3));
+      t = f64x2.add(t, f64x2.mul(l3, v3));
+      s = f64x2.add(s, f64x2.mul(h3, ub3));
+      t = f64x2.add(t, f64x2.mul(h3, vb3));
+      v128.store(cj + r, f64x2.sub(v128.load(cj + r), s));
+      v128.store(ck + r, f64x2.sub(v128.load(ck + r), t));
+    }
+  }
+  if (q < q1) {
+    eliminateColumn(f, m, j, q, q1);
+    eliminateColumn(f, m, j + 1, q, q1);
+  }
+}
+
+function swapRows(f: usize, m: i32, a: i32, b: i32, rowList: usize): void {
+  const pa = rowList + <usize>4 * <usize>a;
+  const pb = rowList + <usize>4 * <usize>b;
+  const t = load<i32>(pa);
+  store<i32>(pa, load<i32>(pb));
+  store<i32>(pb, t);
+  const mm = <usize>16 * <usize>m;
+  let ia = f + <usize>16 * <usize>a;
+  let ib = f + <usize>16 * <usize>b;
+  for (let c = 0; c < m; c++) {
+    const x = v128.load(ia);
+    v128.store(ia, v128.load(ib));
+    v128.store(ib, x);
+    ia += mm;
+    ib += mm;
+  }
+}
+
+function swapColumns(f: usize, m: i32, a: i32, b: i32, colList: usize): void {
+  const pa = colList + <usize>4 * <usize>a;
+  const pb = colList + <usize>4 * <usize>b;
+  const t = load<i32>(pa);
+  store<i32>(pa, load<i32>(pb));
+  store<i32>(pb, t);
+  const mm = <usize>16 * <usize>m;
+  const ca = f + <usize>a * mm;
+  const cb = f + <usize>b * mm;
+  for (let r: usize = 0; r < mm; r += 16) {
+    const x = v128.load(ca + r);
+    v128.store(ca + r, v128.load(cb + r));
+    v128.store(cb + r, x);
+  }
+}
+
+/**
+ * Partial LU of a front with threshold partial pivoting among the fully-summed rows
+ * and delayed pivots: factorFront of shared/engine/dense-complex.ts (its JSDoc states
+ * the method and sources). save holds 16·m bytes. Returns the pivots eliminated.
+ */
+export function factorFront(f: usize, m: i32, kFs: i32, threshold: f64, rowList: usize, colList: usize, save: usize, nb: i32): i32 {
+  const u2 = threshold * threshold;
+  const mm = <usize>16 * <usize>m;
+  let p = 0;
+  let kEnd = kFs;
+  while (p < kEnd) {
+    const b0 = p;
+    while (p < kEnd && p - b0 < nb) {
+      const cp = f + <usize>p * mm;
+      if (p > b0) {
+        memory.copy(save, cp + <usize>16 * <usize>b0, <usize>16 * <usize>(m - b0));
+        eliminateColumn(f, m, p, b0, p);
+      }
+      let best = -1;
+      let bestMag = 0.0;
+      for (let r = p; r < kFs; r++) {
+        const xr = load<f64>(cp + <usize>16 * <usize>r), xi = load<f64>(cp + <usize>16 * <usize>r, 8);
+        const mag = xr * xr + xi * xi;
+        if (mag > bestMag) {
+          bestMag = mag;
+          best = r;
+        }
+      }
+      let colMag = bestMag;
+      for (let r = kFs; r < m; r++) {
+        const xr = load<f64>(cp + <usize>16 * <usize>r), xi = load<f64>(cp + <usize>16 * <usize>r, 8);
+        const mag = xr * xr + xi * xi;
+        if (mag > colMag) colMag = mag;
+      }
+      const dr = load<f64>(cp + <usize>16 * <usize>p), di = load<f64>(cp + <usize>16 * <usize>p, 8);
+      const diagMag = dr * dr + di * di;
+      let piv = -1;
+      if (diagMag > 0 && diagMag >= u2 * colMag) piv = p;
+      else if (bestMag > 0 && bestMag >= u2 * colMag) piv = best;
+      if (piv < 0) {
+        if (p > b0) memory.copy(cp + <usize>16 * <usize>b0, save, <usize>16 * <usize>(m - b0));
+        kEnd--;
+        if (kEnd != p) swapColumns(f, m, p, kEnd, colList);
+        continue;
+      }
+      if (piv != p) swapRows(f, m, p, piv, rowList);
+      const pr = load<f64>(cp + <usize>16 * <usize>p), pi = load<f64>(cp + <usize>16 * <usize>p, 8);
+      const den = pr * pr + pi * pi;
+      const ir = pr / den, ii = -pi / den;
+      const a = f64x2.replace_lane(f64x2.splat(ir), 1, ii);
+      const b = rot(a);
+      for (let r = <usize>16 * <usize>(p + 1); r < mm; r += 16) {
+        const x = v128.load(cp + r);
+        v128.store(cp + r, f64x2.add(f64x2.mul(lo(x), a), f64x2.mul(hi(x), b)));
+      }
+      p++;
+    }
+    if (p > b0) {
+      let j = p;
+      for (; j + 1 < m; j += 2) eliminateColumnPair(f, m, j, b0, p);
+      if (j < m) eliminateColumn(f, m, j, b0, p);
+    }
+  }
+  return p;
+}
+
+/**
+ * Extend-add of a child's contribution block into its parent front f (m rows): column
+ * jj of the block (mc columns, column stride ld doubles, at cb) goes to parent column
+ * map[jj], in nRuns contiguous stretches runs[3g..3g+2] = [block offset, parent
+ * offset, length], all in doubles (the runs SparseLuPlan.factor computes).
+ */
+export function extendAdd(f: usize, m: i32, cb: usize, ld: i32, mc: i32, map: usize, runs: usize, nRuns: i32): void {
+  let src = cb;
+  const stride = <usize>8 * <usize>ld;
+  for (let jj = 0; jj < mc; jj++) {
+    const dst = f + <usize>16 * <usize>load<i32>(map + <usize>4 * <usize>jj) * <usize>m;
+    for (let g = 0; g < nRuns; g++) {
+      const run = runs + <usize>12 * <usize>g;
+      const a = src + <usize>8 * <usize>load<i32>(run);
+      const o = dst + <usize>8 * <usize>load<i32>(run, 4);
+      const len = <usize>8 * <usize>load<i32>(run, 8);
+      for (let q: usize = 0; q < len; q += 16) v128.store(o + q, f64x2.add(v128.load(o + q), v128.load(a + q)));
+    }
+    src += stride;
+  }
+}
+
+/** Copies cols columns of rowBytes bytes each, from src (column stride srcStride bytes) to a packed block at dst. */
+export function copyColumns(dst: usize, src: usize, rowBytes: usize, cols: i32, srcStride: usize): void {
+  for (let c = 0; c < cols; c++) {
+    memory.copy(dst, src, rowBytes);
+    dst += rowBytes;
+    src += srcStride;
+  }
+}
