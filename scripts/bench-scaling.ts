@@ -12,23 +12,8 @@ import { execFileSync } from 'node:child_process';
 import { loadavg } from 'node:os';
 import { buildCavitySystem, EffectiveHamiltonian } from '../shared/engine/effective-hamiltonian';
 import { findPoles } from '../shared/engine/poles';
-import type { CavityModelInput } from '../shared/model/cavity-model';
+import { benchCavity } from './bench-cavity';
 
-/** The pole-search bench cavity (the same as scripts/bench.ts's): an n×n rectangle with two 10-site leads. */
-function scalingCavity(side: number): CavityModelInput {
-  return {
-    name: `bench rectangle ${side}×${side}`,
-    spacing: 5,
-    material: { effectiveMass: 0.067 },
-    grid: { nx: side, ny: side },
-    shape: { kind: 'rectangle', x0: 0, y0: 0, width: 5 * side, height: 5 * side },
-    potential: [{ kind: 'disorder', strength: 0.5, seed: 11 }],
-    leads: [
-      { side: 'left', start: Math.round(0.2 * side), width: 10 },
-      { side: 'right', start: Math.round(0.65 * side), width: 10 },
-    ],
-  };
-}
 
 interface ScalingRow {
   sites: number;
@@ -44,7 +29,7 @@ interface ScalingRow {
 
 /** One certified search in this process (window between channels 2 and 3, width ∝ 1/sites). */
 function searchOnce(side: number): ScalingRow {
-  const op = new EffectiveHamiltonian(buildCavitySystem(scalingCavity(side)));
+  const op = new EffectiveHamiltonian(buildCavitySystem(benchCavity(side)));
   const t = op.hopping;
   const width = 0.027 * t * (10_000 / op.n);
   const c0 = process.cpuUsage();

@@ -4,13 +4,13 @@
 import { cpus, loadavg } from 'node:os';
 import { buildCavitySystem, EffectiveHamiltonian } from '../shared/engine/effective-hamiltonian';
 import { findPoles, findPolesWith, poleWorkSetup } from '../shared/engine/poles';
-import type { CavityModelInput } from '../shared/model/cavity-model';
 import { PoleThreadPool } from '../server/jobs/pole-pool';
 import { benchLu, benchLuReference } from './bench-lu';
 import { benchScaling } from './bench-scaling';
 import { benchSweep1000, benchTransmission } from './bench-transmission';
 import { benchCatalogue } from './bench-catalogue';
 import { benchLoad } from './bench-load';
+import { benchCavity } from './bench-cavity';
 
 const only = (process.argv.find((a) => a.startsWith('--only='))?.slice(7) ?? 'lu,transmission,sweep,poles,scaling,catalogue,estimate,load').split(',');
 const print = (title: string, figures: Record<string, number | string>) => {
@@ -18,22 +18,6 @@ const print = (title: string, figures: Record<string, number | string>) => {
   for (const [k, v] of Object.entries(figures)) console.log(`  ${k.padEnd(40)} ${typeof v === 'number' && !Number.isInteger(v) ? v.toPrecision(4) : v}`);
 };
 
-/** The pole-search bench cavity: an n×n GaAs rectangle (a = 5 nm) with weak disorder and two 10-site leads. */
-function benchCavity(side: number): CavityModelInput {
-  return {
-    name: `bench rectangle ${side}×${side}`,
-    spacing: 5,
-    material: { effectiveMass: 0.067 },
-    grid: { nx: side, ny: side },
-    shape: { kind: 'rectangle', x0: 0, y0: 0, width: 5 * side, height: 5 * side },
-    // weak disorder breaks the rectangle's degeneracies, as in a real dot
-    potential: [{ kind: 'disorder', strength: 0.5, seed: 11 }],
-    leads: [
-      { side: 'left', start: Math.round(0.2 * side), width: 10 },
-      { side: 'right', start: Math.round(0.65 * side), width: 10 },
-    ],
-  };
-}
 
 /** A window between the thresholds of channels 2 and 3 of the 10-site leads, scaled so it holds a similar number of poles at every size. */
 function benchWindow(t: number, sites: number) {

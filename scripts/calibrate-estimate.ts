@@ -22,7 +22,7 @@ import { ENGINE_VERSION, runEngineTask, type EngineTask } from '../server/jobs/e
 import { POLE_SEARCH_SPECTRUM_POINTS } from '../server/jobs/run-job';
 import { predictRunSeconds, runCostFeatures, runCostModel, type RunCostFeatures, type RunCostModel } from '../server/runs/run-estimate';
 import { buildCavitySystem, EffectiveHamiltonian } from '../shared/engine/effective-hamiltonian';
-import type { CavityModelInput } from '../shared/model/cavity-model';
+import { benchCavity } from './bench-cavity';
 
 const root = join(fileURLToPath(import.meta.url), '..', '..');
 
@@ -32,21 +32,6 @@ export interface EstimateCase {
   request: { kind: 'pole-search'; window: { emin: number; emax: number; gammaMax: number } } | { kind: 'transmission'; window: { emin: number; emax: number; points: number } };
 }
 
-/** The pole-search bench cavity of scripts/bench.ts: an n×n GaAs rectangle with weak disorder and two 10-site leads. */
-function benchCavity(side: number): CavityModelInput {
-  return {
-    name: `bench rectangle ${side}×${side}`,
-    spacing: 5,
-    material: { effectiveMass: 0.067 },
-    grid: { nx: side, ny: side },
-    shape: { kind: 'rectangle', x0: 0, y0: 0, width: 5 * side, height: 5 * side },
-    potential: [{ kind: 'disorder', strength: 0.5, seed: 11 }],
-    leads: [
-      { side: 'left', start: Math.round(0.2 * side), width: 10 },
-      { side: 'right', start: Math.round(0.65 * side), width: 10 },
-    ],
-  };
-}
 
 /** The bench cavities (windows as in bench.ts's scaling section) and the demo devices with their seeded windows. */
 export function estimateCases(): EstimateCase[] {
