@@ -1,6 +1,7 @@
 /**
  * The `peak-fit` queue: large fits computed by the worker processes, one at a time per
- * process, in a worker thread, with progress written to the fit row (the client polls it).
+ * process, in a worker thread, with progress written to the fit row and announced on the
+ * `run_events` channel (the fit's event stream follows it).
  * Idempotent: each try claims the fit with attempt + 1 and writes only while the attempt is
  * its own, replacing the fit's catalogue rows.
  */
@@ -9,6 +10,7 @@ import type PgBoss from 'pg-boss';
 import type { Db } from '../db/client.js';
 import { peakFits } from '../db/schema/fits.js';
 import { FIT_QUEUE } from '../jobs/queues.js';
+import { notifyFit } from './fit-notify.js';
 import { failFit, FitService, writeFitResult, type FitQueue, type FitRequest } from './fit-service.js';
 import { runFitInThread } from './fit-thread-runner.js';
 
@@ -30,6 +32,7 @@ export async function handleFitJob(db: Db, fitId: string, log: (m: string) => vo
     .where(and(eq(peakFits.id, fitId), inArray(peakFits.status, ['queued', 'running'])))
     .returning({ attempt: peakFits.attempt, groupId: peakFits.groupId, request: peakFits.request });
   if (!claimed) return; // finished or gone: nothing to do
+  await notifyFit(db, fitId);
   const service = new FitService(db, null);
   let task;
   try {
@@ -47,6 +50,7 @@ export async function handleFitJob(db: Db, fitId: string, log: (m: string) => vo
       .update(peakFits)
       .set({ progressFraction: Math.min(0.99, fraction) })
       .where(and(eq(peakFits.id, fitId), eq(peakFits.attempt, claimed.attempt)))
+      .then(() => notifyFit(db, fitId))
       .catch(() => {});
   }).catch(async (err: Error) => {
     await failFit(db, [fitId], err.message);
@@ -55,6 +59,7 @@ export async function handleFitJob(db: Db, fitId: string, log: (m: string) => vo
   });
   if (!result) return;
   await db.transaction((tx) => writeFitResult(tx, fitId, claimed.attempt, result));
+  await notifyFit(db, fitId);
 }
 
 /** Subscribes this process to the `peak-fit` queue. */

@@ -11,7 +11,6 @@ import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatSelectModule } from '@angular/material/select';
 import { Router, RouterLink } from '@angular/router';
 import { NgxEchartsDirective } from 'ngx-echarts';
-import { interval, switchMap, takeWhile } from 'rxjs';
 import { ErrorReport } from '../core/errors/error-report';
 import { CurrentGroup } from '../core/group/current-group';
 import { significant } from '../catalogue/energy-format';
@@ -157,20 +156,18 @@ export class FitWorkspace {
           this.rangeFrom.set(src.from);
           this.rangeTo.set(src.to);
         }
-        if (f.status === 'queued' || f.status === 'running') this.poll(groupId, fitId);
+        if (f.status === 'queued' || f.status === 'running') this.follow(groupId, fitId);
       },
       error: (err) => this.errors.show(err),
     });
   }
 
-  private poll(groupId: string, fitId: string) {
-    interval(1000)
-      .pipe(
-        switchMap(() => this.api.fit(groupId, fitId)),
-        takeWhile((f) => f.status === 'queued' || f.status === 'running', true),
-        takeUntilDestroyed(this.destroyRef),
-      )
-      .subscribe((f) => this.fit.set(f));
+  /** A queued or running fit: its progress as the server streams it, then the finished fit. */
+  private follow(groupId: string, fitId: string) {
+    this.api
+      .follow(groupId, fitId)
+      .pipe(takeUntilDestroyed(this.destroyRef))
+      .subscribe({ next: (u) => this.fit.update((f) => (f ? { ...f, ...u } : f)), error: (err) => this.errors.show(err) });
   }
 
   /** The slider under the chart moved: its values are the range to fit. */
