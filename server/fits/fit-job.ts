@@ -14,6 +14,9 @@ import { notifyFit } from './fit-notify.js';
 import { failFit, FitService, writeFitResult, type FitQueue, type FitRequest } from './fit-service.js';
 import { runFitInThread } from './fit-thread-runner.js';
 
+/** How often a computing fit beats its heartbeat (well inside the shortest stale time, 2 s). */
+const FIT_HEARTBEAT_MS = 500;
+
 export function fitQueue(boss: PgBoss): FitQueue {
   return {
     async enqueue(fitId) {
@@ -28,7 +31,7 @@ export function fitQueue(boss: PgBoss): FitQueue {
 export async function handleFitJob(db: Db, fitId: string, log: (m: string) => void = () => {}): Promise<void> {
   const [claimed] = await db
     .update(peakFits)
-    .set({ status: 'running', attempt: sql`${peakFits.attempt} + 1`, progressFraction: 0, error: null })
+    .set({ status: 'running', attempt: sql`${peakFits.attempt} + 1`, progressFraction: 0, error: null, heartbeatAt: new Date() })
     .where(and(eq(peakFits.id, fitId), inArray(peakFits.status, ['queued', 'running'])))
     .returning({ attempt: peakFits.attempt, groupId: peakFits.groupId, request: peakFits.request });
   if (!claimed) return; // finished or gone: nothing to do
@@ -41,6 +44,14 @@ export async function handleFitJob(db: Db, fitId: string, log: (m: string) => vo
     await failFit(db, [fitId], err instanceof Error ? err.message : String(err));
     return;
   }
+  // The heartbeat tells the fit supervisor (server/jobs/fit-supervisor.ts) this worker lives.
+  const heartbeat = setInterval(() => {
+    void db
+      .update(peakFits)
+      .set({ heartbeatAt: new Date() })
+      .where(and(eq(peakFits.id, fitId), eq(peakFits.attempt, claimed.attempt), eq(peakFits.status, 'running')))
+      .catch(() => {});
+  }, FIT_HEARTBEAT_MS);
   let lastWrite = 0;
   const result = await runFitInThread(task, (fraction) => {
     const now = Date.now();
@@ -56,7 +67,7 @@ export async function handleFitJob(db: Db, fitId: string, log: (m: string) => vo
     await failFit(db, [fitId], err.message);
     log(`fit ${fitId} failed: ${err.message}`);
     return null;
-  });
+  }).finally(() => clearInterval(heartbeat));
   if (!result) return;
   await db.transaction((tx) => writeFitResult(tx, fitId, claimed.attempt, result));
   await notifyFit(db, fitId);

@@ -10,7 +10,10 @@ import { resonances } from '../../server/db/schema/catalogue.js';
 import { measuredTraces, peakFits } from '../../server/db/schema/fits.js';
 import { cavityModels, modelVersions } from '../../server/db/schema/models.js';
 import { runs, spectra } from '../../server/db/schema/runs.js';
-import { handleFitJob } from '../../server/fits/fit-job.js';
+import { fitQueue, handleFitJob } from '../../server/fits/fit-job.js';
+import { startBoss } from '../../server/jobs/boss.js';
+import { superviseFits } from '../../server/jobs/fit-supervisor.js';
+import { FIT_QUEUE } from '../../server/jobs/queues.js';
 import { RunEvents } from '../../server/runs/run-events.js';
 import { createLab, type Lab } from './lab-fixture.js';
 import { signInAs, type SignedIn } from './sign-in-as.js';
@@ -282,6 +285,48 @@ describe('measured traces', () => {
     it('answers 404 to the event stream of a fit that is not the group\'s', async () => {
       const other = await viewer.get(`/api/groups/${lab.groupId}/fits/00000000-0000-4000-8000-000000000000/events`);
       expect(other.status).toBe(404);
+    });
+
+    it('puts a running fit whose worker died back in the queue, and a later worker finishes it', async () => {
+      const boss = await startBoss({ databaseUrl: testDatabaseUrl() });
+      try {
+        const db = app.handle.db;
+        const res = await designer.post(`/api/groups/${lab.groupId}/fits`, { source: { kind: 'trace', traceId }, lineshape: 'thermal-fano', temperatureMK: 100, peaks: 3, background: 'linear' });
+        expect(res.status, JSON.stringify(res.body)).toBe(202);
+        const fit = res.body.id as string;
+        // Queued on the real peak-fit queue, and fetched by a worker that then dies mid-fit:
+        // the job is active, the fit running under attempt 1, its heartbeat a minute old.
+        const jobId = await fitQueue(boss).enqueue(fit);
+        await db.update(peakFits).set({ jobId }).where(eq(peakFits.id, fit));
+        const [fetched] = await boss.fetch(FIT_QUEUE.name, { batchSize: 10 });
+        expect(fetched).toBeDefined();
+        await db.update(peakFits).set({ status: 'running', attempt: 1, progressFraction: 0.3, heartbeatAt: new Date(Date.now() - 60_000) }).where(eq(peakFits.id, fit));
+        // A fit of the same group whose worker beats its heartbeat is left alone.
+        const alive = await designer.post(`/api/groups/${lab.groupId}/fits`, { source: { kind: 'trace', traceId }, lineshape: 'thermal-fano', temperatureMK: 100, peaks: 3, background: 'linear' });
+        await db.update(peakFits).set({ status: 'running', attempt: 1, heartbeatAt: new Date() }).where(eq(peakFits.id, alive.body.id));
+
+        const report = await superviseFits({ db, boss, staleAfterSeconds: 30, groupId: lab.groupId });
+        expect(report).toEqual({ handedOn: 1, failed: 0 });
+        const [back] = await db.select().from(peakFits).where(eq(peakFits.id, fit));
+        expect(back!.status).toBe('queued');
+        expect(back!.error).toContain('the worker of attempt 1 stopped answering');
+        const job = await boss.getJobById(FIT_QUEUE.name, jobId);
+        expect(job?.state).toBe('retry');
+        const [untouched] = await db.select({ status: peakFits.status }).from(peakFits).where(eq(peakFits.id, alive.body.id));
+        expect(untouched!.status).toBe('running');
+        // A second pass finds nothing more to do.
+        expect(await superviseFits({ db, boss, staleAfterSeconds: 30, groupId: lab.groupId })).toEqual({ handedOn: 0, failed: 0 });
+
+        // The retry's worker claims attempt 2, beats the heartbeat and finishes the fit.
+        await handleFitJob(db, fit);
+        const [done] = await db.select().from(peakFits).where(eq(peakFits.id, fit));
+        expect(done!.status).toBe('completed');
+        expect(done!.attempt).toBe(2);
+        expect(done!.heartbeatAt!.getTime()).toBeGreaterThan(Date.now() - 30_000);
+        await db.update(peakFits).set({ status: 'failed' }).where(eq(peakFits.id, alive.body.id));
+      } finally {
+        await boss.stop({ graceful: false, wait: true }).catch(() => {});
+      }
     });
   });
 });
