@@ -159,7 +159,7 @@ export function createApp(deps: AppDeps): Express {
   api.use('/groups/:groupId', backupRoutes({ db }));
   api.use('/groups/:groupId', catalogueRoutes({ db }));
   api.use('/groups/:groupId', modeMapRoutes(new ModeMapService(db, deps.modeMapQueue ?? null)));
-  api.use('/groups/:groupId', fitRoutes(new FitService(db, deps.fitQueue ?? null)));
+  api.use('/groups/:groupId', fitRoutes(new FitService(db, deps.fitQueue ?? null), deps.runEvents ?? null));
   api.use('/tokens', apiTokenRoutes(db));
   api.use('/outbox', outboxRoutes(db, config.mailStandIn));
   deps.mountFeatures?.(api);

@@ -1,6 +1,7 @@
 /**
  * The `peak-fit` queue: large fits computed by the worker processes, one at a time per
- * process, in a worker thread, with progress written to the fit row (the client polls it).
+ * process, in a worker thread, with progress written to the fit row and announced on the
+ * `run_events` channel (the fit's event stream follows it).
  * Idempotent: each try claims the fit with attempt + 1 and writes only while the attempt is
  * its own, replacing the fit's catalogue rows.
  */
@@ -9,8 +10,12 @@ import type PgBoss from 'pg-boss';
 import type { Db } from '../db/client.js';
 import { peakFits } from '../db/schema/fits.js';
 import { FIT_QUEUE } from '../jobs/queues.js';
+import { notifyFit } from './fit-notify.js';
 import { failFit, FitService, writeFitResult, type FitQueue, type FitRequest } from './fit-service.js';
 import { runFitInThread } from './fit-thread-runner.js';
+
+/** How often a computing fit beats its heartbeat (well inside the shortest stale time, 2 s). */
+const FIT_HEARTBEAT_MS = 500;
 
 export function fitQueue(boss: PgBoss): FitQueue {
   return {
@@ -26,10 +31,11 @@ export function fitQueue(boss: PgBoss): FitQueue {
 export async function handleFitJob(db: Db, fitId: string, log: (m: string) => void = () => {}): Promise<void> {
   const [claimed] = await db
     .update(peakFits)
-    .set({ status: 'running', attempt: sql`${peakFits.attempt} + 1`, progressFraction: 0, error: null })
+    .set({ status: 'running', attempt: sql`${peakFits.attempt} + 1`, progressFraction: 0, error: null, heartbeatAt: new Date() })
     .where(and(eq(peakFits.id, fitId), inArray(peakFits.status, ['queued', 'running'])))
     .returning({ attempt: peakFits.attempt, groupId: peakFits.groupId, request: peakFits.request });
   if (!claimed) return; // finished or gone: nothing to do
+  await notifyFit(db, fitId);
   const service = new FitService(db, null);
   let task;
   try {
@@ -38,6 +44,14 @@ export async function handleFitJob(db: Db, fitId: string, log: (m: string) => vo
     await failFit(db, [fitId], err instanceof Error ? err.message : String(err));
     return;
   }
+  // The heartbeat tells the fit supervisor (server/jobs/fit-supervisor.ts) this worker lives.
+  const heartbeat = setInterval(() => {
+    void db
+      .update(peakFits)
+      .set({ heartbeatAt: new Date() })
+      .where(and(eq(peakFits.id, fitId), eq(peakFits.attempt, claimed.attempt), eq(peakFits.status, 'running')))
+      .catch(() => {});
+  }, FIT_HEARTBEAT_MS);
   let lastWrite = 0;
   const result = await runFitInThread(task, (fraction) => {
     const now = Date.now();
@@ -47,14 +61,16 @@ export async function handleFitJob(db: Db, fitId: string, log: (m: string) => vo
       .update(peakFits)
       .set({ progressFraction: Math.min(0.99, fraction) })
       .where(and(eq(peakFits.id, fitId), eq(peakFits.attempt, claimed.attempt)))
+      .then(() => notifyFit(db, fitId))
       .catch(() => {});
   }).catch(async (err: Error) => {
     await failFit(db, [fitId], err.message);
     log(`fit ${fitId} failed: ${err.message}`);
     return null;
-  });
+  }).finally(() => clearInterval(heartbeat));
   if (!result) return;
   await db.transaction((tx) => writeFitResult(tx, fitId, claimed.attempt, result));
+  await notifyFit(db, fitId);
 }
 
 /** Subscribes this process to the `peak-fit` queue. */

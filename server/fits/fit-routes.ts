@@ -5,6 +5,7 @@ import { requireRole } from '../auth/require-role.js';
 import { validate } from '../http/validate.js';
 import { LINESHAPES } from '../../shared/engine/fit-lineshapes.js';
 import { X_UNITS, Y_UNITS } from '../../shared/engine/fit-trace.js';
+import type { RunEvents } from '../runs/run-events.js';
 import type { FitRequest, FitService } from './fit-service.js';
 import { uploadText } from './fit-service.js';
 import { traceUpload } from './trace-upload.js';
@@ -12,6 +13,9 @@ import { traceUpload } from './trace-upload.js';
 const blankIsAbsent = (v: unknown) => (v === '' || v === undefined || v === null ? undefined : v);
 const optionalNumber = z.preprocess(blankIsAbsent, z.coerce.number().refine(Number.isFinite, 'must be a number').optional());
 const noNul = /^[^\u0000]*$/;
+/** How often a fit's event stream reads the row: without notifications, and beside them. */
+const FIT_STREAM_POLL_MS = 1000;
+const FIT_STREAM_BACKSTOP_MS = 5000;
 
 export const traceParams = z.object({ groupId: z.uuid(), traceId: z.uuid() });
 export const fitParams = z.object({ groupId: z.uuid(), fitId: z.uuid() });
@@ -54,7 +58,7 @@ export const fitBody = z.object({
 });
 
 /** /api/groups/:groupId/traces and /fits — reading: any member; uploading and fitting: designer or reviewer (admin passes). */
-export function fitRoutes(fits: FitService): Router {
+export function fitRoutes(fits: FitService, events: RunEvents | null = null): Router {
   const router = Router({ mergeParams: true });
 
   router.get('/traces', requireRole(), async (req, res) => {
@@ -104,6 +108,58 @@ export function fitRoutes(fits: FitService): Router {
   router.get('/fits/:fitId', requireRole(), validate({ params: fitParams }), async (req, res) => {
     const { fitId } = req.valid.params as z.infer<typeof fitParams>;
     res.json(await fits.detail(req.membership!.groupId, fitId));
+  });
+
+  // Server-sent events: the fit's status and progress on every change, then `done`.
+  router.get('/fits/:fitId/events', requireRole(), validate({ params: fitParams }), async (req, res) => {
+    const { fitId } = req.valid.params as z.infer<typeof fitParams>;
+    const groupId = req.membership!.groupId;
+    const first = await fits.progress(groupId, fitId);
+    res.writeHead(200, { 'Content-Type': 'text/event-stream', 'Cache-Control': 'no-cache', Connection: 'keep-alive', 'X-Accel-Buffering': 'no' });
+    let ended = false;
+    let last = '';
+    const send = (view: Awaited<ReturnType<FitService['progress']>>) => {
+      if (ended) return;
+      const data = JSON.stringify(view);
+      if (data !== last) res.write(`event: progress\ndata: ${data}\n\n`);
+      last = data;
+      if (view.status === 'completed' || view.status === 'failed') {
+        res.write(`event: done\ndata: ${JSON.stringify({ status: view.status })}\n\n`);
+        end();
+      }
+    };
+    // Notifications carry each change at once; the slow poll is the backstop for a lost
+    // notification, a re-queued fit or an API without the LISTEN connection.
+    const poll = setInterval(() => void refresh(), events ? FIT_STREAM_BACKSTOP_MS : FIT_STREAM_POLL_MS);
+    const keepAlive = setInterval(() => res.write(': keep-alive\n\n'), 15_000);
+    let unsubscribe = () => {};
+    const end = () => {
+      if (ended) return;
+      ended = true;
+      clearInterval(poll);
+      clearInterval(keepAlive);
+      unsubscribe();
+      res.end();
+    };
+    req.on('close', end);
+    let busy = false;
+    let again = false;
+    const refresh = async () => {
+      if (busy) return void (again = true);
+      busy = true;
+      try {
+        do {
+          again = false;
+          send(await fits.progress(groupId, fitId));
+        } while (again && !ended);
+      } catch {
+        end();
+      } finally {
+        busy = false;
+      }
+    };
+    if (events) unsubscribe = events.subscribe(fitId, () => void refresh());
+    send(first);
   });
 
   return router;

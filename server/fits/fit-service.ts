@@ -27,6 +27,7 @@ import {
   polesNear,
   runWithSpectrum,
 } from './fit-repository.js';
+import { notifyFit } from './fit-notify.js';
 import { FitThreadError, runFitInThread } from './fit-thread-runner.js';
 import type { FitTask } from './fit-thread.js';
 
@@ -299,6 +300,16 @@ export class FitService {
     return { ...row, createdAt: row.createdAt.toISOString(), finishedAt: row.finishedAt?.toISOString() ?? null, catalogueIds: catalogue.map((c) => c.id) };
   }
 
+  /** The fit's state for its event stream: small, read on every change. */
+  async progress(groupId: string, id: string) {
+    const [row] = await this.db
+      .select({ id: peakFits.id, status: peakFits.status, progressFraction: peakFits.progressFraction, attempt: peakFits.attempt, error: peakFits.error })
+      .from(peakFits)
+      .where(and(eq(peakFits.id, id), eq(peakFits.groupId, groupId)));
+    if (!row) throw fitNotFound();
+    return row;
+  }
+
   /** The inputs of a queued fit, for the worker. */
   async taskOf(fitId: string, groupId: string, request: FitRequest): Promise<FitTask> {
     return this.task(await this.inputs(this.db, groupId, request), request);
@@ -416,4 +427,5 @@ async function versionOfRun(q: Queryable, runId: string): Promise<string | undef
 export async function failFit(db: Db, fitIds: string[], message: string): Promise<void> {
   if (fitIds.length === 0) return;
   await db.update(peakFits).set({ status: 'failed', error: message, finishedAt: new Date() }).where(inArray(peakFits.id, fitIds));
+  for (const id of fitIds) await notifyFit(db, id);
 }

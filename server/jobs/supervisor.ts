@@ -3,6 +3,7 @@ import type PgBoss from 'pg-boss';
 import type { Db, Queryable } from '../db/client.js';
 import { bossDb, jobsAffected } from './boss-in-transaction.js';
 import { sendRunJob } from './boss.js';
+import { superviseFits } from './fit-supervisor.js';
 import { RUN_QUEUES, type RunKind } from './queues.js';
 
 export interface SupervisorOptions {
@@ -138,12 +139,14 @@ async function failRun(tx: Queryable, runId: string, error: string) {
   await tx.execute(sql`update runs set status = 'failed', finished_at = now(), error = ${error} where id = ${runId}`);
 }
 
+/** Every intervalSeconds: one pass over the runs, then one over the fits (fit-supervisor.ts). */
 export function startSupervisor(o: SupervisorOptions): () => void {
   let busy = false;
   const timer = setInterval(() => {
     if (busy) return;
     busy = true;
     superviseRuns(o)
+      .then(() => superviseFits(o))
       .catch((e) => o.log?.(`supervisor: ${e.message}`))
       .finally(() => (busy = false));
   }, o.intervalSeconds * 1000);

@@ -100,6 +100,10 @@ const eventStream = z.string().meta({
   description: 'Server-sent events: `progress` with { id, status, progress, attempts, error, resonanceCount } on every change, then `done` with { status }.',
 });
 
+const fitEventStream = z.string().meta({
+  description: 'Server-sent events: `progress` with { id, status, progressFraction, attempt, error } on every change, then `done` with { status } (completed or failed).',
+});
+
 const json = (status: number, description: string, schema: z.ZodType): Answer => ({ status, description, schema });
 const empty = (status: number, description: string): Answer => ({ status, description });
 
@@ -146,6 +150,16 @@ const operations: Operation[] = [
     body: fitBody.meta({ id: 'FitRequest' }),
     success: json(201, 'The fit (202 when queued)', fitAnswers.fitDetailSchema),
     errors: { 409: 'The run has no spectrum yet' },
+  },
+  {
+    id: 'fitEvents',
+    method: 'get',
+    path: '/groups/{groupId}/fits/{fitId}/events',
+    tag: 'fits',
+    summary: 'Live status and progress of a fit',
+    access: 'member',
+    params: fitParams,
+    success: { status: 200, description: 'An event stream that ends after `done`', schema: fitEventStream, mediaType: 'text/event-stream' },
   },
   { id: 'getFit', method: 'get', path: '/groups/{groupId}/fits/{fitId}', tag: 'fits', summary: 'A fit with its result, comparison and catalogue rows', access: 'member', params: fitParams, success: json(200, 'The fit', fitAnswers.fitDetailSchema) },
   { id: 'health', method: 'get', path: '/health', tag: 'meta', summary: 'Is the server up, and which version', access: 'public', success: json(200, 'Up', answers.healthSchema) },

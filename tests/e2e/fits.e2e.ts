@@ -109,4 +109,24 @@ describe('fitting a measured trace against the computed poles', () => {
     expect(Number(await page.locator('[data-test="range-from"]').inputValue())).toBeGreaterThan(3);
     await screenshot(page, 'fit-this-peak');
   });
+
+  it('a drag across the data sets the range fields', async () => {
+    const from = () => page.locator('[data-test="range-from"]').inputValue().then(Number);
+    const to = () => page.locator('[data-test="range-to"]').inputValue().then(Number);
+    const [from0, to0] = [await from(), await to()];
+    const box = (await page.locator('.chart').first().boundingBox())!;
+    // Inside the upper plot (grid 0: 70 px from the left, 24 from the right, from 36 px down).
+    const left = box.x + 70 + 0.3 * (box.width - 94);
+    const right = box.x + 70 + 0.6 * (box.width - 94);
+    const y = box.y + 36 + 0.25 * box.height;
+    await page.mouse.move(left, y);
+    await page.mouse.down();
+    await page.mouse.move((left + right) / 2, y, { steps: 5 });
+    await page.mouse.move(right, y, { steps: 5 });
+    await page.mouse.up();
+    // The dragged band lies inside the range shown before, and is narrower.
+    await expect.poll(async () => (await to()) - (await from()), { timeout: 5_000 }).toBeLessThan(0.5 * (to0 - from0));
+    expect(await from()).toBeGreaterThan(from0);
+    expect(await to()).toBeLessThan(to0);
+  });
 });

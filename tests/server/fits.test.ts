@@ -10,10 +10,14 @@ import { resonances } from '../../server/db/schema/catalogue.js';
 import { measuredTraces, peakFits } from '../../server/db/schema/fits.js';
 import { cavityModels, modelVersions } from '../../server/db/schema/models.js';
 import { runs, spectra } from '../../server/db/schema/runs.js';
-import { handleFitJob } from '../../server/fits/fit-job.js';
+import { fitQueue, handleFitJob } from '../../server/fits/fit-job.js';
+import { startBoss } from '../../server/jobs/boss.js';
+import { superviseFits } from '../../server/jobs/fit-supervisor.js';
+import { FIT_QUEUE } from '../../server/jobs/queues.js';
+import { RunEvents } from '../../server/runs/run-events.js';
 import { createLab, type Lab } from './lab-fixture.js';
 import { signInAs, type SignedIn } from './sign-in-as.js';
-import { startTestApp, type TestApp } from './test-app.js';
+import { startTestApp, testDatabaseUrl, type TestApp } from './test-app.js';
 
 const trace = readFileSync(new URL('../../catalogue/traces/hl-rect-r3-100mK.csv', import.meta.url));
 /** The pole of catalogue/hl-rect-r3.json the trace was computed around (engine output, `npm run engine -- poles`). */
@@ -23,6 +27,7 @@ const E2H_US = 38.7404614;
 
 let app: TestApp;
 let lab: Lab;
+let runEvents: RunEvents;
 let designer: SignedIn;
 let viewer: SignedIn;
 let modelId: string;
@@ -46,7 +51,9 @@ function upload(file: Buffer | string, name: string, fields: Record<string, stri
 const energyFields = { deviceName: 'R3 cooldown 7', temperatureMK: 100, x: 'energy_ueV', xUnit: 'ueV', y: 'G_uS', yUnit: 'uS' };
 
 beforeAll(async () => {
-  app = await startTestApp({ fitQueue: { enqueue: async (id) => (queued.push(id), `job-${id}`) } });
+  runEvents = new RunEvents(testDatabaseUrl());
+  await runEvents.start();
+  app = await startTestApp({ fitQueue: { enqueue: async (id) => (queued.push(id), `job-${id}`) }, runEvents });
   const db = app.handle.db;
   lab = await createLab(db, ['admin', 'designer', 'viewer']);
   const [model] = await db.insert(cavityModels).values({ groupId: lab.groupId, name: 'HL tunnel-coupled rectangle R3' }).returning();
@@ -72,6 +79,7 @@ beforeAll(async () => {
 
 afterAll(async () => {
   await app?.close();
+  await runEvents?.close();
 });
 
 describe('measured traces', () => {
@@ -237,6 +245,88 @@ describe('measured traces', () => {
       expect(list.body.map((f: { id: string }) => f.id)).toEqual(expect.arrayContaining([fitId, res.body.id]));
       const [fitRow] = await app.handle.db.select({ attempt: peakFits.attempt }).from(peakFits).where(eq(peakFits.id, res.body.id));
       expect(fitRow!.attempt).toBe(1);
+    });
+
+    it('streams a queued fit\'s status and progress as server-sent events until it is done', async () => {
+      const res = await designer.post(`/api/groups/${lab.groupId}/fits`, { source: { kind: 'trace', traceId }, lineshape: 'thermal-fano', temperatureMK: 100, peaks: 3, background: 'linear' });
+      expect(res.status, JSON.stringify(res.body)).toBe(202);
+      const fit = res.body.id as string;
+      let opened!: () => void;
+      const isOpen = new Promise<void>((resolve) => (opened = resolve));
+      const stream = viewer.agent
+        .get(`/api/groups/${lab.groupId}/fits/${fit}/events`)
+        .buffer(true)
+        .parse((r, done) => {
+          let text = '';
+          r.on('data', (chunk: Buffer) => {
+            text += chunk.toString();
+            opened();
+          });
+          r.on('end', () => done(null, text));
+        })
+        .then((r) => r);
+      await isOpen; // the first event (queued) is out before the worker starts
+      await handleFitJob(app.handle.db, fit);
+      const answer = await stream;
+      expect(answer.status).toBe(200);
+      expect(answer.headers['content-type']).toMatch(/^text\/event-stream/);
+      const events = (answer.body as string)
+        .split('\n\n')
+        .filter((block) => block.startsWith('event: '))
+        .map((block) => ({ name: block.split('\n')[0]!.slice(7), data: JSON.parse(block.split('\n')[1]!.slice(6)) as { status: string; progressFraction: number | null } }));
+      const statuses = events.filter((e) => e.name === 'progress').map((e) => e.data.status);
+      expect(statuses[0]).toBe('queued');
+      expect(statuses).toContain('running');
+      expect(statuses.at(-1)).toBe('completed');
+      expect(events.filter((e) => e.name === 'progress').at(-1)!.data.progressFraction).toBe(1);
+      expect(events.at(-1)).toEqual({ name: 'done', data: { status: 'completed' } });
+    });
+
+    it('answers 404 to the event stream of a fit that is not the group\'s', async () => {
+      const other = await viewer.get(`/api/groups/${lab.groupId}/fits/00000000-0000-4000-8000-000000000000/events`);
+      expect(other.status).toBe(404);
+    });
+
+    it('puts a running fit whose worker died back in the queue, and a later worker finishes it', async () => {
+      const boss = await startBoss({ databaseUrl: testDatabaseUrl() });
+      try {
+        const db = app.handle.db;
+        const res = await designer.post(`/api/groups/${lab.groupId}/fits`, { source: { kind: 'trace', traceId }, lineshape: 'thermal-fano', temperatureMK: 100, peaks: 3, background: 'linear' });
+        expect(res.status, JSON.stringify(res.body)).toBe(202);
+        const fit = res.body.id as string;
+        // Queued on the real peak-fit queue, and fetched by a worker that then dies mid-fit:
+        // the job is active, the fit running under attempt 1, its heartbeat a minute old.
+        const jobId = await fitQueue(boss).enqueue(fit);
+        await db.update(peakFits).set({ jobId }).where(eq(peakFits.id, fit));
+        const [fetched] = await boss.fetch(FIT_QUEUE.name, { batchSize: 10 });
+        expect(fetched).toBeDefined();
+        await db.update(peakFits).set({ status: 'running', attempt: 1, progressFraction: 0.3, heartbeatAt: new Date(Date.now() - 60_000) }).where(eq(peakFits.id, fit));
+        // A fit of the same group whose worker beats its heartbeat is left alone.
+        const alive = await designer.post(`/api/groups/${lab.groupId}/fits`, { source: { kind: 'trace', traceId }, lineshape: 'thermal-fano', temperatureMK: 100, peaks: 3, background: 'linear' });
+        await db.update(peakFits).set({ status: 'running', attempt: 1, heartbeatAt: new Date() }).where(eq(peakFits.id, alive.body.id));
+
+        const report = await superviseFits({ db, boss, staleAfterSeconds: 30, groupId: lab.groupId });
+        expect(report).toEqual({ handedOn: 1, failed: 0 });
+        const [back] = await db.select().from(peakFits).where(eq(peakFits.id, fit));
+        expect(back!.status).toBe('queued');
+        expect(back!.error).toContain('the worker of attempt 1 stopped answering');
+        const job = await boss.getJobById(FIT_QUEUE.name, jobId);
+        expect(job?.state).toBe('retry');
+        const [untouched] = await db.select({ status: peakFits.status }).from(peakFits).where(eq(peakFits.id, alive.body.id));
+        expect(untouched!.status).toBe('running');
+        // A second pass finds nothing more to do.
+        expect(await superviseFits({ db, boss, staleAfterSeconds: 30, groupId: lab.groupId })).toEqual({ handedOn: 0, failed: 0 });
+
+        // The retry's worker claims attempt 2, beats the heartbeat and finishes the fit.
+        await handleFitJob(db, fit);
+        const [done] = await db.select().from(peakFits).where(eq(peakFits.id, fit));
+        expect(done!.status).toBe('completed');
+        expect(done!.attempt).toBe(2);
+        expect(done!.heartbeatAt!.getTime()).toBeGreaterThan(Date.now() - 30_000);
+        await db.update(peakFits).set({ status: 'failed' }).where(eq(peakFits.id, alive.body.id));
+      } finally {
+        await boss.stop({ graceful: false, wait: true }).catch(() => {});
+      }
     });
   });
 });

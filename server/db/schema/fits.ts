@@ -60,6 +60,8 @@ export const peakFits = pgTable(
     status: text('status').$type<FitStatus>().notNull().default('queued'),
     progressFraction: doublePrecision('progress_fraction'),
     attempt: integer('attempt').notNull().default(0),
+    /** Beaten by the worker while the fit computes; a running fit without it for POLEWARD_RUN_STALE_SECONDS lost its worker. */
+    heartbeatAt: timestamp('heartbeat_at', { withTimezone: true }),
     jobId: text('job_id'),
     error: text('error'),
     result: jsonb('result'),

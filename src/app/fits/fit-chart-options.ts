@@ -4,8 +4,9 @@ import type { FitResult } from './fits-api';
 
 /**
  * The fit workspace chart: the data (points), the fitted curve and each peak on the
- * background (lines) on top, the residuals underneath on the same energy axis, and a
- * slider under both that chooses the range to fit (the range brush).
+ * background (lines) on top, the residuals underneath on the same energy axis. The range
+ * to fit is chosen by dragging across the data (a lineX brush on the upper energy axis) or
+ * with the slider under both; the view follows the range.
  */
 export function fitChartOptions(
   data: { x: number[]; y: number[] },
@@ -52,6 +53,15 @@ export function fitChartOptions(
       { type: 'value', gridIndex: 0, scale: true, name: 'transmission T', nameLocation: 'middle', nameGap: 50, axisLabel: { color: c.onSurfaceVariant }, splitLine: { lineStyle: { color: c.outlineVariant } } },
       { type: 'value', gridIndex: 1, scale: true, name: 'residual', nameLocation: 'middle', nameGap: 50, axisLabel: { color: c.onSurfaceVariant }, splitLine: { show: false } },
     ],
+    brush: {
+      xAxisIndex: 0,
+      brushType: 'lineX',
+      brushMode: 'single',
+      transformable: false,
+      throttleType: 'debounce',
+      brushStyle: { color: 'rgba(120,120,120,0.15)', borderColor: c.primary, borderWidth: 1 },
+      outOfBrush: { colorAlpha: 1 },
+    },
     dataZoom: [
       {
         type: 'slider',

@@ -11,20 +11,27 @@ import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatSelectModule } from '@angular/material/select';
 import { Router, RouterLink } from '@angular/router';
 import { NgxEchartsDirective } from 'ngx-echarts';
-import { interval, switchMap, takeWhile } from 'rxjs';
 import { ErrorReport } from '../core/errors/error-report';
 import { CurrentGroup } from '../core/group/current-group';
 import { significant } from '../catalogue/energy-format';
 import { chartColours } from '../runs/chart-colours';
+import { brushRange } from './brush-range';
 import { fitChartOptions } from './fit-chart-options';
 import { FitsApi, type FitDetail, type FitRequest, type Lineshape } from './fits-api';
+
+/** The parts of the echarts instance the workspace calls. */
+interface FitChart {
+  getOption(): { dataZoom?: { startValue?: number; endValue?: number }[] };
+  dispatchAction(action: Record<string, unknown>): void;
+}
 
 /** kT per mK in meV (CODATA 2018 k_B = 8.617333262e-5 eV/K). */
 const KT_PER_MK = 8.617333262e-5;
 
 /**
- * The fit workspace: the data (a range of a run's spectrum, or a measured trace), a slider
- * under the chart that chooses the range, the lineshape, the fitted curve with its
+ * The fit workspace: the data (a range of a run's spectrum, or a measured trace), a drag
+ * across the chart (lineX brush) or the slider under it that chooses the range (the range
+ * fields follow), the lineshape, the fitted curve with its
  * components and residuals, the parameters with their uncertainties, and the nearest
  * computed pole with the agreement. Opened empty (/fits/new?runId=… or ?traceId=…) or on a
  * saved fit (/fits/:fitId).
@@ -88,6 +95,9 @@ export class FitWorkspace {
 
   constructor() {
     effect(() => {
+      if (this.chartOptions()) untracked(() => this.armBrush());
+    });
+    effect(() => {
       const groupId = this.group.id();
       const fitId = this.fitId();
       const runId = this.runId();
@@ -146,24 +156,22 @@ export class FitWorkspace {
           this.rangeFrom.set(src.from);
           this.rangeTo.set(src.to);
         }
-        if (f.status === 'queued' || f.status === 'running') this.poll(groupId, fitId);
+        if (f.status === 'queued' || f.status === 'running') this.follow(groupId, fitId);
       },
       error: (err) => this.errors.show(err),
     });
   }
 
-  private poll(groupId: string, fitId: string) {
-    interval(1000)
-      .pipe(
-        switchMap(() => this.api.fit(groupId, fitId)),
-        takeWhile((f) => f.status === 'queued' || f.status === 'running', true),
-        takeUntilDestroyed(this.destroyRef),
-      )
-      .subscribe((f) => this.fit.set(f));
+  /** A queued or running fit: its progress as the server streams it, then the finished fit. */
+  private follow(groupId: string, fitId: string) {
+    this.api
+      .follow(groupId, fitId)
+      .pipe(takeUntilDestroyed(this.destroyRef))
+      .subscribe({ next: (u) => this.fit.update((f) => (f ? { ...f, ...u } : f)), error: (err) => this.errors.show(err) });
   }
 
   /** The slider under the chart moved: its values are the range to fit. */
-  protected onZoom(event: unknown, chart: { getOption(): { dataZoom?: { startValue?: number; endValue?: number }[] } } | null) {
+  protected onZoom(event: unknown, chart: FitChart | null) {
     const dz = chart?.getOption().dataZoom?.[0];
     if (dz && typeof dz.startValue === 'number' && typeof dz.endValue === 'number') {
       this.rangeFrom.set(dz.startValue);
@@ -172,9 +180,31 @@ export class FitWorkspace {
     void event;
   }
 
-  protected chart: { getOption(): { dataZoom?: { startValue?: number; endValue?: number }[] } } | null = null;
+  protected chart: FitChart | null = null;
   protected onChartInit(instance: unknown) {
-    this.chart = instance as typeof this.chart;
+    this.chart = instance as FitChart;
+    this.armBrush();
+  }
+
+  /**
+   * Dragging over the plot draws a lineX brush at once, with no toolbox button to press.
+   * The chart directive replaces the whole option (and so the brush's state) on every
+   * change and only after chartInit, hence re-armed a turn after each new option.
+   */
+  private armBrush() {
+    setTimeout(() => this.chart?.dispatchAction({ type: 'takeGlobalCursor', key: 'brush', brushOption: { brushType: 'lineX', brushMode: 'single' } }));
+  }
+
+  /**
+   * A drag across the data ended: its ends are the range to fit. The range fields and the
+   * slider follow; the drawn band is cleared because the view then zooms to the range.
+   */
+  protected onBrush(event: unknown) {
+    const range = brushRange(event);
+    if (!range) return;
+    this.rangeFrom.set(range.from);
+    this.rangeTo.set(range.to);
+    this.chart?.dispatchAction({ type: 'brush', areas: [] });
   }
 
   protected setRange(which: 'from' | 'to', value: string) {

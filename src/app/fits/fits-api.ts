@@ -1,6 +1,7 @@
 import { HttpClient } from '@angular/common/http';
 import { Injectable, inject } from '@angular/core';
-import type { Observable } from 'rxjs';
+import { Observable, of, switchMap, takeWhile, timer } from 'rxjs';
+import type { EventSourceFactory } from '../runs/runs-api';
 
 export type Lineshape = 'bw' | 'fano' | 'thermal' | 'thermal-fano';
 
@@ -115,12 +116,27 @@ export interface FitRequest {
   hints?: { energy: number; width?: number }[];
 }
 
+/** One message of a fit's event stream (GET /fits/:id/events). */
+export interface FitProgress {
+  id: string;
+  status: FitDetail['status'];
+  progressFraction: number | null;
+  attempt: number;
+  error: string | null;
+}
+
+const finished = (status: FitDetail['status']) => status === 'completed' || status === 'failed';
+const pollPeriodMs = 1000;
+
 const base = (groupId: string) => `/api/groups/${encodeURIComponent(groupId)}`;
 
 /** HTTP for measured traces and peak fits. */
 @Injectable({ providedIn: 'root' })
 export class FitsApi {
   private readonly http = inject(HttpClient);
+  /** Replaced in specs; null when the browser has no EventSource, which means polling. */
+  eventSourceFactory: EventSourceFactory | null =
+    typeof EventSource === 'function' ? (url) => new EventSource(url, { withCredentials: true }) : null;
 
   traces(groupId: string): Observable<TraceSummary[]> {
     return this.http.get<TraceSummary[]>(`${base(groupId)}/traces`);
@@ -153,5 +169,52 @@ export class FitsApi {
 
   create(groupId: string, request: FitRequest): Observable<FitDetail> {
     return this.http.post<FitDetail>(`${base(groupId)}/fits`, request);
+  }
+
+  /**
+   * Live state of a queued or running fit, like a run's: its progress from the server's event
+   * stream, then (after `done`) the whole fit with its result from one GET. When the stream
+   * fails or the browser has none, GET /fits/:id every second instead. Completes after the
+   * finished fit.
+   */
+  follow(groupId: string, id: string): Observable<FitProgress | FitDetail> {
+    const poll = (): Observable<FitDetail> =>
+      timer(0, pollPeriodMs).pipe(
+        switchMap(() => this.fit(groupId, id)),
+        takeWhile((f) => !finished(f.status), true),
+      );
+    const factory = this.eventSourceFactory;
+    if (!factory) return poll();
+    return this.stream(factory, `${base(groupId)}/fits/${encodeURIComponent(id)}/events`).pipe(
+      switchMap((event) => (event === 'poll' ? poll() : of(event))),
+      takeWhile((u) => !finished(u.status), true),
+    );
+  }
+
+  /**
+   * The event stream as updates, ending in 'poll'. A finished status is not passed on: the
+   * stream's `done` follows it and the GET after it brings the result.
+   */
+  private stream(factory: EventSourceFactory, url: string): Observable<FitProgress | 'poll'> {
+    return new Observable<FitProgress | 'poll'>((subscriber) => {
+      const source = factory(url);
+      const handOver = () => {
+        source.close();
+        subscriber.next('poll');
+        subscriber.complete();
+      };
+      source.addEventListener('progress', (e: Event) => {
+        let data: FitProgress;
+        try {
+          data = JSON.parse((e as MessageEvent<string>).data) as FitProgress;
+        } catch {
+          return; // A malformed message is skipped; the next one or the final GET corrects it.
+        }
+        if (!finished(data.status)) subscriber.next(data);
+      });
+      source.addEventListener('done', handOver);
+      source.addEventListener('error', handOver);
+      return () => source.close();
+    });
   }
 }

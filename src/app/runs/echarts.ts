@@ -1,9 +1,11 @@
 /**
- * The parts of echarts the run and catalogue charts use, loaded lazily through
+ * The parts of echarts the run, catalogue and fit charts use (the brush is the fit
+ * workspace's range selection), loaded lazily through
  * provideEchartsCore so the initial bundle stays small (stack.md).
  */
 import { LineChart, ScatterChart } from 'echarts/charts';
 import {
+  BrushComponent,
   DataZoomComponent,
   GridComponent,
   LegendComponent,
@@ -23,6 +25,7 @@ echarts.use([
   MarkLineComponent,
   MarkAreaComponent,
   DataZoomComponent,
+  BrushComponent,
   CanvasRenderer,
   SVGRenderer,
 ]);

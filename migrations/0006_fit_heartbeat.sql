@@ -1,0 +1,1 @@
+ALTER TABLE "peak_fits" ADD COLUMN "heartbeat_at" timestamp with time zone;
