@@ -9,6 +9,7 @@ import type { RunEvents } from '../runs/run-events.js';
 import type { FitRequest, FitService } from './fit-service.js';
 import { uploadText } from './fit-service.js';
 import { traceUpload } from './trace-upload.js';
+import { streamProgress } from '../http/progress-stream.js';
 
 const blankIsAbsent = (v: unknown) => (v === '' || v === undefined || v === null ? undefined : v);
 const optionalNumber = z.preprocess(blankIsAbsent, z.coerce.number().refine(Number.isFinite, 'must be a number').optional());
@@ -115,51 +116,15 @@ export function fitRoutes(fits: FitService, events: RunEvents | null = null): Ro
     const { fitId } = req.valid.params as z.infer<typeof fitParams>;
     const groupId = req.membership!.groupId;
     const first = await fits.progress(groupId, fitId);
-    res.writeHead(200, { 'Content-Type': 'text/event-stream', 'Cache-Control': 'no-cache', Connection: 'keep-alive', 'X-Accel-Buffering': 'no' });
-    let ended = false;
-    let last = '';
-    const send = (view: Awaited<ReturnType<FitService['progress']>>) => {
-      if (ended) return;
-      const data = JSON.stringify(view);
-      if (data !== last) res.write(`event: progress\ndata: ${data}\n\n`);
-      last = data;
-      if (view.status === 'completed' || view.status === 'failed') {
-        res.write(`event: done\ndata: ${JSON.stringify({ status: view.status })}\n\n`);
-        end();
-      }
-    };
     // Notifications carry each change at once; the slow poll is the backstop for a lost
     // notification, a re-queued fit or an API without the LISTEN connection.
-    const poll = setInterval(() => void refresh(), events ? FIT_STREAM_BACKSTOP_MS : FIT_STREAM_POLL_MS);
-    const keepAlive = setInterval(() => res.write(': keep-alive\n\n'), 15_000);
-    let unsubscribe = () => {};
-    const end = () => {
-      if (ended) return;
-      ended = true;
-      clearInterval(poll);
-      clearInterval(keepAlive);
-      unsubscribe();
-      res.end();
-    };
-    req.on('close', end);
-    let busy = false;
-    let again = false;
-    const refresh = async () => {
-      if (busy) return void (again = true);
-      busy = true;
-      try {
-        do {
-          again = false;
-          send(await fits.progress(groupId, fitId));
-        } while (again && !ended);
-      } catch {
-        end();
-      } finally {
-        busy = false;
-      }
-    };
-    if (events) unsubscribe = events.subscribe(fitId, () => void refresh());
-    send(first);
+    streamProgress(req, res, first, {
+      read: () => fits.progress(groupId, fitId),
+      progress: (view) => view,
+      finished: (view) => view.status === 'completed' || view.status === 'failed',
+      subscribe: events ? (onChange) => events.subscribe(fitId, onChange) : undefined,
+      pollMs: events ? FIT_STREAM_BACKSTOP_MS : FIT_STREAM_POLL_MS,
+    });
   });
 
   return router;

@@ -8,6 +8,7 @@ import { RUN_KINDS } from '../jobs/queues.js';
 import type { RunEvents } from './run-events.js';
 import type { RunService } from './run-service.js';
 import { runRequestSchema, type RunRequest } from './run-window.js';
+import { streamProgress } from '../http/progress-stream.js';
 
 export const listQuery = z.object({
   status: z.enum(['queued', 'running', 'completed', 'failed', 'cancelled']).optional(),
@@ -56,48 +57,14 @@ export function runRoutes(runsService: RunService, events: RunEvents | null): Ro
     const { runId } = req.valid.params as z.infer<typeof runParams>;
     const groupId = req.membership!.groupId;
     const first = await runsService.view(groupId, runId);
-    res.writeHead(200, { 'Content-Type': 'text/event-stream', 'Cache-Control': 'no-cache', Connection: 'keep-alive', 'X-Accel-Buffering': 'no' });
-    let ended = false;
-    const send = (view: Awaited<ReturnType<RunService['view']>>) => {
-      if (ended) return;
-      res.write(`event: progress\ndata: ${JSON.stringify({ id: view.id, status: view.status, progress: view.progress, attempts: view.attempts, error: view.error, resonanceCount: view.resonanceCount })}\n\n`);
-      if (TERMINAL.has(view.status)) {
-        res.write(`event: done\ndata: ${JSON.stringify({ status: view.status })}\n\n`);
-        end();
-      }
-    };
-    let unsubscribe = () => {};
-    const keepAlive = setInterval(() => res.write(': keep-alive\n\n'), 15_000);
-    const end = () => {
-      if (ended) return;
-      ended = true;
-      clearInterval(keepAlive);
-      unsubscribe();
-      res.end();
-    };
-    req.on('close', end);
-    let busy = false;
-    let again = false;
-    const refresh = async () => {
-      if (busy) return void (again = true);
-      busy = true;
-      try {
-        do {
-          again = false;
-          send(await runsService.view(groupId, runId));
-        } while (again && !ended);
-      } catch {
-        end();
-      } finally {
-        busy = false;
-      }
-    };
-    if (events) unsubscribe = events.subscribe(runId, () => void refresh());
-    else {
-      const poll = setInterval(() => void refresh(), 2000);
-      unsubscribe = () => clearInterval(poll);
-    }
-    send(first);
+    streamProgress(req, res, first, {
+      read: () => runsService.view(groupId, runId),
+      progress: (view) => ({ id: view.id, status: view.status, progress: view.progress, attempts: view.attempts, error: view.error, resonanceCount: view.resonanceCount }),
+      finished: (view) => TERMINAL.has(view.status),
+      // Without notifications (no LISTEN connection) the database is read every 2 s.
+      subscribe: events ? (onChange) => events.subscribe(runId, onChange) : undefined,
+      pollMs: events ? undefined : 2000,
+    });
   });
 
   return router;
