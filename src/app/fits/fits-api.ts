@@ -1,7 +1,8 @@
 import { HttpClient } from '@angular/common/http';
 import { Injectable, inject } from '@angular/core';
 import { Observable, of, switchMap, takeWhile, timer } from 'rxjs';
-import type { EventSourceFactory } from '../runs/runs-api';
+import type { FittedPeak } from '../../../shared/engine/fit';
+import { browserEventSource, progressEvents, type EventSourceFactory } from '../core/events/progress-events';
 
 export type Lineshape = 'bw' | 'fano' | 'thermal' | 'thermal-fano';
 
@@ -43,21 +44,8 @@ export interface FittedParameter {
   atBound: 'lower' | 'upper' | null;
 }
 
-export interface FittedPeak {
-  energy: number;
-  energyError: number | null;
-  width: number;
-  widthError: number | null;
-  lifetimePs: number;
-  lifetimeError: number | null;
-  quality: number;
-  qualityError: number | null;
-  amplitude: number;
-  amplitudeError: number | null;
-  q: number | null;
-  qError: number | null;
-  fwhm: number | null;
-}
+/** One fitted peak with its standard errors: the engine's own type (shared/engine/fit.ts). */
+export type { FittedPeak } from '../../../shared/engine/fit';
 
 export interface FitResult {
   lineshape: Lineshape;
@@ -136,7 +124,7 @@ export class FitsApi {
   private readonly http = inject(HttpClient);
   /** Replaced in specs; null when the browser has no EventSource, which means polling. */
   eventSourceFactory: EventSourceFactory | null =
-    typeof EventSource === 'function' ? (url) => new EventSource(url, { withCredentials: true }) : null;
+    browserEventSource;
 
   traces(groupId: string): Observable<TraceSummary[]> {
     return this.http.get<TraceSummary[]>(`${base(groupId)}/traces`);
@@ -185,36 +173,11 @@ export class FitsApi {
       );
     const factory = this.eventSourceFactory;
     if (!factory) return poll();
-    return this.stream(factory, `${base(groupId)}/fits/${encodeURIComponent(id)}/events`).pipe(
+    // A finished status is not passed on: the stream's `done` follows it and the GET after it brings the result.
+    const url = `${base(groupId)}/fits/${encodeURIComponent(id)}/events`;
+    return progressEvents<FitProgress>(factory, url, (data) => !finished(data.status)).pipe(
       switchMap((event) => (event === 'poll' ? poll() : of(event))),
       takeWhile((u) => !finished(u.status), true),
     );
-  }
-
-  /**
-   * The event stream as updates, ending in 'poll'. A finished status is not passed on: the
-   * stream's `done` follows it and the GET after it brings the result.
-   */
-  private stream(factory: EventSourceFactory, url: string): Observable<FitProgress | 'poll'> {
-    return new Observable<FitProgress | 'poll'>((subscriber) => {
-      const source = factory(url);
-      const handOver = () => {
-        source.close();
-        subscriber.next('poll');
-        subscriber.complete();
-      };
-      source.addEventListener('progress', (e: Event) => {
-        let data: FitProgress;
-        try {
-          data = JSON.parse((e as MessageEvent<string>).data) as FitProgress;
-        } catch {
-          return; // A malformed message is skipped; the next one or the final GET corrects it.
-        }
-        if (!finished(data.status)) subscriber.next(data);
-      });
-      source.addEventListener('done', handOver);
-      source.addEventListener('error', handOver);
-      return () => source.close();
-    });
   }
 }

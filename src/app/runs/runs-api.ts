@@ -1,3 +1,4 @@
+import { browserEventSource, progressEvents, type EventSourceFactory } from '../core/events/progress-events';
 import { HttpClient, HttpParams } from '@angular/common/http';
 import { DestroyRef, Injectable, inject } from '@angular/core';
 import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
@@ -117,9 +118,6 @@ export const finishedStatuses: ReadonlySet<RunStatus> = new Set(['completed', 'f
 /** Polling period of the run list, and of the run page when its event stream is unavailable (the contract says 2 s). */
 export const pollPeriodMs = 2000;
 
-/** Creates an EventSource; a seam so specs can hand in a fake one (jsdom has none). */
-export type EventSourceFactory = (url: string) => EventSource;
-
 /** HTTP for runs: estimate, launch, list, detail, cancel and live progress. */
 @Injectable({ providedIn: 'root' })
 export class RunsApi {
@@ -128,7 +126,7 @@ export class RunsApi {
   private readonly destroyRef = inject(DestroyRef);
   /** Replaced in specs; null when the browser has no EventSource, which means polling. */
   eventSourceFactory: EventSourceFactory | null =
-    typeof EventSource === 'function' ? (url) => new EventSource(url, { withCredentials: true }) : null;
+    browserEventSource;
 
   estimate(groupId: string, request: Omit<RunRequest, 'note'>): Observable<RunEstimate> {
     return this.http.post<RunEstimate>(`${base(groupId)}/runs/estimate`, request);
@@ -170,39 +168,11 @@ export class RunsApi {
     const factory = this.eventSourceFactory;
     if (!factory) return poll().pipe(takeUntilDestroyed(this.destroyRef));
     const url = `${base(groupId)}/runs/${encodeURIComponent(runId)}/events`;
-    return this.stream(factory, url).pipe(
+    return progressEvents<RunUpdate>(factory, url).pipe(
       switchMap((event) => (event === 'poll' ? poll() : of(event))),
       takeWhile((u) => !finishedStatuses.has(u.status), true),
       takeUntilDestroyed(this.destroyRef),
     );
-  }
-
-  /**
-   * The SSE stream as an observable of updates, ending in 'poll': after 'done' one
-   * GET fetches the exact final status (completed / failed / cancelled), and after a
-   * stream error polling takes over, so both cases end the same way.
-   */
-  private stream(factory: EventSourceFactory, url: string): Observable<RunUpdate | 'poll'> {
-    return new Observable<RunUpdate | 'poll'>((subscriber) => {
-      const source = factory(url);
-      const handOver = () => {
-        source.close();
-        subscriber.next('poll');
-        subscriber.complete();
-      };
-      source.addEventListener('progress', (e: Event) => {
-        let data: RunUpdate;
-        try {
-          data = JSON.parse((e as MessageEvent<string>).data) as RunUpdate;
-        } catch {
-          return; // A malformed message is skipped; the next one or the final GET corrects it.
-        }
-        subscriber.next(data);
-      });
-      source.addEventListener('done', handOver);
-      source.addEventListener('error', handOver);
-      return () => source.close();
-    });
   }
 }
 

@@ -1,0 +1,37 @@
+import { Observable } from 'rxjs';
+
+/** Creates an EventSource; a seam so specs can hand in a fake one (jsdom has none). */
+export type EventSourceFactory = (url: string) => EventSource;
+
+/** The browser's EventSource with credentials, or null when it has none (then features poll). */
+export const browserEventSource: EventSourceFactory | null =
+  typeof EventSource === 'function' ? (url) => new EventSource(url, { withCredentials: true }) : null;
+
+/**
+ * A long job's server-sent event stream (server/http/progress-stream.ts) as an observable
+ * of its `progress` payloads, ending in 'poll': after `done` one GET fetches the exact final
+ * state, and after a stream error polling takes over, so both cases end the same way.
+ * `pass` decides which payloads go on (a fit leaves its final one to that GET).
+ */
+export function progressEvents<T>(factory: EventSourceFactory, url: string, pass: (data: T) => boolean = () => true): Observable<T | 'poll'> {
+  return new Observable<T | 'poll'>((subscriber) => {
+    const source = factory(url);
+    const handOver = () => {
+      source.close();
+      subscriber.next('poll');
+      subscriber.complete();
+    };
+    source.addEventListener('progress', (e: Event) => {
+      let data: T;
+      try {
+        data = JSON.parse((e as MessageEvent<string>).data) as T;
+      } catch {
+        return; // A malformed message is skipped; the next one or the final GET corrects it.
+      }
+      if (pass(data)) subscriber.next(data);
+    });
+    source.addEventListener('done', handOver);
+    source.addEventListener('error', handOver);
+    return () => source.close();
+  });
+}
