@@ -11,6 +11,7 @@ import { measuredTraces } from '../db/schema/fits.js';
 import { memberships } from '../db/schema/groups.js';
 import { cavityModels, modelVersions } from '../db/schema/models.js';
 import { runs, spectra } from '../db/schema/runs.js';
+import { runStore } from '../runs/run-store.js';
 import { users } from '../db/schema/users.js';
 import { ApiError, type FieldIssue } from '../http/error-handler.js';
 import { coreRecord, MAX_RESTORE_BYTES, type CoreRecord, type RecordOf } from './backup-format.js';
@@ -244,7 +245,7 @@ export async function restoreGroup(db: Db, groupId: string, actorId: string, b: 
       ),
     );
     await insertAll(b.core.run, 200, (slice) =>
-      tx.insert(runs).values(
+      runStore.restore(tx, 
         slice.map(({ type: _t, id, modelVersionId, createdBy, createdAt, startedAt, finishedAt, status, ...r }) => {
           const unfinished = status === 'queued' || status === 'running';
           return {

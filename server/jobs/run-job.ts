@@ -1,8 +1,9 @@
-import { and, eq, inArray, isNull, or, sql } from 'drizzle-orm';
+import { eq } from 'drizzle-orm';
 import type { Db, Queryable } from '../db/client.js';
 import { writeAudit } from '../audit/audit-log.js';
 import { cavityModels, modelVersions } from '../db/schema/models.js';
 import { runs } from '../db/schema/runs.js';
+import { runStore } from '../runs/run-store.js';
 import type { EngineTask, EngineTaskResult } from './engine-task.js';
 import { HEARTBEAT_SECONDS } from './queues.js';
 import { writeRunResults, type RunContext } from './run-results.js';
@@ -43,10 +44,6 @@ export interface RunJobInfo {
  */
 export type RunJobOutcome = 'completed' | 'failed' | 'cancelled' | 'retry' | 'superseded' | 'skipped';
 
-async function notify(db: Queryable, runId: string) {
-  await db.execute(sql`select pg_notify('run_events', ${runId})`);
-}
-
 const notSettled: JobSettler = async () => {};
 
 /**
@@ -73,75 +70,40 @@ export async function handleRunJob(deps: RunJobDeps, job: RunJobInfo): Promise<R
   }
   if (run.cancelRequested) {
     await db.transaction(async (tx) => {
-      await tx.update(runs).set({ status: 'cancelled', finishedAt: new Date(), progressStage: 'cancelled' }).where(eq(runs.id, run.id));
+      await runStore.cancelled(tx, run.id);
       await settle(tx, 'complete', { cancelled: true });
-      await notify(tx, run.id);
     });
     return 'cancelled';
   }
-  // The claim takes over from an attempt that pg-boss or the supervisor gave up on,
-  // but never from another live job of the same run (a duplicate delivery).
-  const [claimed] = await db
-    .update(runs)
-    .set({
-      status: 'running',
-      attempt: sql`${runs.attempt} + 1`,
-      jobId: job.jobId ?? sql`${runs.jobId}`,
-      startedAt: sql`coalesce(${runs.startedAt}, now())`,
-      heartbeatAt: new Date(),
-      progressStage: 'starting',
-      progressFraction: 0,
-      error: null,
-    })
-    .where(
-      and(
-        eq(runs.id, run.id),
-        inArray(runs.status, ['queued', 'running']),
-        job.jobId ? or(isNull(runs.jobId), eq(runs.jobId, job.jobId)) : undefined,
-      ),
-    )
-    .returning({ attempt: runs.attempt });
-  if (!claimed) {
+  const attempt = await runStore.startAttempt(db, run.id, job.jobId);
+  if (attempt === null) {
     log(`run ${run.id}: not claimed (it ended, or another job of it is live); dropping job ${job.jobId ?? ''}`);
     await settle(db, 'complete', { dropped: 'the run ended or has another live job' });
     return 'skipped';
   }
-  const attempt = claimed.attempt;
-  await notify(db, run.id);
   let subject = `run ${run.id}`;
 
   /** Writes the end of a failed or cancelled attempt, if the attempt still owns the run. */
   const endWithError = async (err: unknown): Promise<RunJobOutcome> => {
     if (err instanceof EngineTaskCancelled) {
       const ended = await db.transaction(async (tx) => {
-        const [row] = await tx
-          .update(runs)
-          .set({ status: 'cancelled', finishedAt: new Date(), progressStage: 'cancelled' })
-          .where(and(eq(runs.id, run.id), eq(runs.attempt, attempt), eq(runs.status, 'running'), eq(runs.cancelRequested, true)))
-          .returning({ id: runs.id });
-        if (row) await settle(tx, 'complete', { cancelled: true });
-        return !!row;
+        const done = await runStore.cancelled(tx, run.id, attempt);
+        if (done) await settle(tx, 'complete', { cancelled: true });
+        return done;
       });
-      if (!ended) return 'superseded';
-      await notify(db, run.id);
-      return 'cancelled';
+      return ended ? 'cancelled' : 'superseded';
     }
     const message = err instanceof Error ? err.message : String(err);
     const final = (err instanceof EngineTaskError && err.invalidModel) || job.retryCount >= job.retryLimit || attempt > job.retryLimit;
     const ended = await db.transaction(async (tx) => {
-      const [row] = await tx
-        .update(runs)
-        .set(final ? { status: 'failed', error: message, finishedAt: new Date() } : { status: 'queued', progressStage: 'waiting for a retry', error: `attempt ${attempt} failed, retrying: ${message}` })
-        .where(and(eq(runs.id, run.id), eq(runs.attempt, attempt), eq(runs.status, 'running')))
-        .returning({ id: runs.id });
-      if (!row) return false;
+      const owned = final ? await runStore.fail(tx, run.id, message, attempt) : await runStore.retry(tx, run.id, attempt, `attempt ${attempt} failed, retrying: ${message}`);
+      if (!owned) return false;
       if (final) {
         await writeAudit(tx, { groupId: run.groupId, actorId: run.createdBy, action: 'run.failed', subject, details: { runId: run.id, error: message } });
         await settle(tx, 'complete', { failed: message });
       } else {
         await settle(tx, 'fail', { message });
       }
-      await notify(tx, run.id);
       return true;
     });
     if (!ended) return 'superseded';
@@ -161,14 +123,9 @@ export async function handleRunJob(deps: RunJobDeps, job: RunJobInfo): Promise<R
     if (deps.heartbeatPaused?.()) return;
     const p = pending;
     pending = null;
-    const [row] = await db
-      .update(runs)
-      .set({ heartbeatAt: new Date(), ...(p ? { progressStage: p.stage, progressFraction: p.fraction } : {}) })
-      .where(and(eq(runs.id, run.id), eq(runs.attempt, attempt), eq(runs.status, 'running')))
-      .returning({ cancel: runs.cancelRequested });
+    const row = await runStore.beat(db, run.id, attempt, p);
     if (!row) abort.abort(); // another attempt took over this run, or the supervisor gave it up
-    else if (row.cancel) abort.abort();
-    if (p) await notify(db, run.id);
+    else if (row.cancelRequested) abort.abort();
   };
   const progressTimer = setInterval(() => void beat().catch((e) => log(`heartbeat failed: ${e.message}`)), Math.min(1000, (deps.heartbeatSeconds ?? HEARTBEAT_SECONDS) * 1000));
 

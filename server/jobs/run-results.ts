@@ -1,11 +1,12 @@
 import { createHash } from 'node:crypto';
-import { and, eq, sql } from 'drizzle-orm';
+import { eq } from 'drizzle-orm';
 import type { Db, Queryable } from '../db/client.js';
 import { writeAudit } from '../audit/audit-log.js';
 import { modeImages, resonanceModes, resonances } from '../db/schema/catalogue.js';
 import { resonanceCurrents } from '../db/schema/mode-maps.js';
 import { bytesOf, maskBits } from '../modemaps/pole-currents.js';
-import { runs, spectra } from '../db/schema/runs.js';
+import { spectra } from '../db/schema/runs.js';
+import { runStore } from '../runs/run-store.js';
 import { renderModePng } from '../catalogue/mode-image.js';
 import type { EngineTaskResult } from './engine-task.js';
 import type { Pole } from '../../shared/engine/pole-types.js';
@@ -72,12 +73,7 @@ export async function writeRunResults(
     return { thumb, full };
   });
   return db.transaction(async (tx) => {
-    const [current] = await tx
-      .select({ attempt: runs.attempt, status: runs.status })
-      .from(runs)
-      .where(eq(runs.id, ctx.runId))
-      .for('update');
-    if (!current || current.attempt !== ctx.attempt || current.status !== 'running') return false;
+    if (!(await runStore.lockAttempt(tx, ctx.runId, ctx.attempt))) return false;
     await tx.delete(resonances).where(eq(resonances.runId, ctx.runId));
     await tx.delete(spectra).where(eq(spectra.runId, ctx.runId));
     for (let k = 0; k < result.poles.length; k++) {
@@ -142,21 +138,13 @@ export async function writeRunResults(
       }
     }
     await tx.insert(spectra).values({ runId: ctx.runId, groupId: ctx.groupId, ...result.spectrum });
-    await tx
-      .update(runs)
-      .set({
-        status: 'completed',
-        progressStage: 'done',
-        progressFraction: 1,
-        finishedAt: new Date(),
-        error: null,
-        engineVersion: result.engineVersion,
-        thresholds: result.thresholds,
-        certificate: result.certificate,
-        stats: result.stats,
-        resonanceCount: result.poles.length,
-      })
-      .where(and(eq(runs.id, ctx.runId), eq(runs.attempt, ctx.attempt)));
+    await runStore.complete(tx, ctx.runId, ctx.attempt, {
+      engineVersion: result.engineVersion,
+      thresholds: result.thresholds,
+      certificate: result.certificate,
+      stats: result.stats,
+      resonanceCount: result.poles.length,
+    });
     await writeAudit(tx, {
       groupId: ctx.groupId,
       actorId: ctx.actorId,
@@ -165,7 +153,6 @@ export async function writeRunResults(
       details: { runId: ctx.runId, resonances: result.poles.length, certified: result.certificate?.certified ?? null },
     });
     await inTransaction?.(tx);
-    await tx.execute(sql`select pg_notify('run_events', ${ctx.runId})`);
     return true;
   });
 }

@@ -5,6 +5,7 @@ import { bossDb, jobsAffected } from './boss-in-transaction.js';
 import { sendRunJob } from './boss.js';
 import { superviseFits } from './fit-supervisor.js';
 import { RUN_QUEUES, type RunKind } from './queues.js';
+import { runStore } from '../runs/run-store.js';
 
 export interface SupervisorOptions {
   db: Db;
@@ -58,13 +59,9 @@ export async function superviseRuns(o: Omit<SupervisorOptions, 'intervalSeconds'
     select id from runs where status = 'running' and heartbeat_at < now() - make_interval(secs => ${stale}) and ${scope}`);
   for (const { id } of lost.rows) {
     await guarded(o, id, () => o.db.transaction(async (tx) => {
-      const claimed = await tx.execute<RunRef>(sql`
-        update runs set status = 'queued', progress_stage = 'waiting for another worker',
-          error = 'the worker of attempt ' || attempt || ' stopped answering; the run was put back in the queue'
-        where id = ${id} and status = 'running' and heartbeat_at < now() - make_interval(secs => ${stale})
-        returning id, job_id, kind, attempt`);
-      const run = claimed.rows[0];
-      if (!run) return; // another supervisor, or the attempt itself, got there first
+      const lostRun = await runStore.requeueLost(tx, id, stale);
+      if (!lostRun) return; // another supervisor, or the attempt itself, got there first
+      const run: RunRef = { id: lostRun.id, job_id: lostRun.jobId, kind: lostRun.kind as RunKind, attempt: lostRun.attempt };
       report.handedOn++;
       const queue = RUN_QUEUES[run.kind]?.name;
       if (!queue) return;
@@ -81,7 +78,6 @@ export async function superviseRuns(o: Omit<SupervisorOptions, 'intervalSeconds'
       } else {
         o.log?.(`run ${run.id}: worker lost during attempt ${run.attempt}; job ${run.job_id} will be retried`);
       }
-      await tx.execute(sql`select pg_notify('run_events', ${run.id})`);
     }));
   }
 
@@ -128,15 +124,14 @@ async function replaceJob(o: Omit<SupervisorOptions, 'intervalSeconds'>, tx: Que
     o.log?.(`run ${run.id}: ${why}; attempts used up, the run failed`);
   } else {
     const jobId = await sendRunJob(o.boss, run.kind, run.id, { db: bossDb(tx) });
-    await tx.execute(sql`update runs set job_id = ${jobId}, progress_stage = 'queued again' where id = ${run.id}`);
+    await runStore.attachJob(tx, run.id, jobId, true);
     report.resent++;
     o.log?.(`run ${run.id}: ${why}; sent again as job ${jobId}`);
   }
-  await tx.execute(sql`select pg_notify('run_events', ${run.id})`);
 }
 
 async function failRun(tx: Queryable, runId: string, error: string) {
-  await tx.execute(sql`update runs set status = 'failed', finished_at = now(), error = ${error} where id = ${runId}`);
+  await runStore.fail(tx, runId, error);
 }
 
 /** Every intervalSeconds: one pass over the runs, then one over the fits (fit-supervisor.ts). */

@@ -1,7 +1,6 @@
-import { and, eq, isNull, sql } from 'drizzle-orm';
 import type { Db } from '../db/client.js';
 import { writeAudit } from '../audit/audit-log.js';
-import { runs } from '../db/schema/runs.js';
+import { IllegalTransition } from '../jobs/job-lifecycle.js';
 import { ApiError } from '../http/error-handler.js';
 import type { RunQueue } from '../jobs/boss.js';
 import type { RunKind } from '../jobs/queues.js';
@@ -12,6 +11,7 @@ import type { Compute } from '../compute/compute-pool.js';
 import { checkRunSize, checkRunSlots, type RunLimits } from './run-limits.js';
 import { runNotice } from './run-notice.js';
 import * as repo from './run-repository.js';
+import { isFinished, runStore } from './run-store.js';
 import type { RunRequest } from './run-window.js';
 
 export function runNotFound(): ApiError {
@@ -93,36 +93,23 @@ export class RunService {
     if (this.limits) checkRunSize(estimate, req, this.limits);
     const runId = await this.db.transaction(async (tx) => {
       if (this.limits) await checkRunSlots(tx, groupId, userId, this.limits);
-      const [row] = await tx
-        .insert(runs)
-        .values({
-          groupId,
-          modelVersionId: v.id,
-          kind: req.kind,
-          window: req.window,
-          note: req.note ?? '',
-          estimate,
-          createdBy: userId,
-          progressStage: 'queued',
-          progressFraction: 0,
-        })
-        .returning({ id: runs.id });
+      const id = await runStore.create(tx, { groupId, modelVersionId: v.id, kind: req.kind, window: req.window, note: req.note ?? '', estimate, createdBy: userId });
       await writeAudit(tx, {
         groupId,
         actorId: userId,
         action: 'run.queued',
         subject: `${v.modelName} v${v.version}`,
-        details: { runId: row.id, kind: req.kind, window: req.window },
+        details: { runId: id, kind: req.kind, window: req.window },
       });
-      return row.id;
+      return id;
     });
     // Queued after the commit, so a worker never sees a job whose run row is not there yet.
     try {
       const jobId = await this.queue.enqueue(req.kind as RunKind, runId);
       // A worker may have claimed the run with this job already; never overwrite another job.
-      await this.db.update(runs).set({ jobId }).where(and(eq(runs.id, runId), isNull(runs.jobId)));
+      await runStore.attachJob(this.db, runId, jobId);
     } catch (err) {
-      await this.db.update(runs).set({ status: 'failed', error: 'the run could not be queued' }).where(eq(runs.id, runId));
+      await runStore.fail(this.db, runId, 'the run could not be queued');
       throw err;
     }
     return this.view(groupId, runId);
@@ -173,22 +160,21 @@ export class RunService {
     if (r.run.createdBy !== userId && role !== 'admin') {
       throw new ApiError(403, 'forbidden', 'Only the person who launched this run, or a group admin, can cancel it.');
     }
-    if (['completed', 'failed', 'cancelled'].includes(r.run.status)) {
-      throw new ApiError(409, 'run_finished', `This run has already ${r.run.status === 'completed' ? 'completed' : r.run.status === 'failed' ? 'failed' : 'been cancelled'}.`);
-    }
-    await this.db.transaction(async (tx) => {
-      await tx
-        .update(runs)
-        .set(
-          r.run.status === 'queued'
-            ? { cancelRequested: true, status: 'cancelled', finishedAt: new Date(), progressStage: 'cancelled' }
-            : { cancelRequested: true },
-        )
-        .where(and(eq(runs.id, runId), eq(runs.groupId, groupId)));
+    const finished = (status: string) =>
+      new ApiError(409, 'run_finished', `This run has already ${status === 'completed' ? 'completed' : status === 'failed' ? 'failed' : 'been cancelled'}.`);
+    if (isFinished(r.run.status)) throw finished(r.run.status);
+    const outcome = await this.db.transaction(async (tx) => {
+      let how;
+      try {
+        how = await runStore.requestCancel(tx, runId);
+      } catch (err) {
+        if (err instanceof IllegalTransition) throw finished(err.from);
+        throw err;
+      }
       await writeAudit(tx, { groupId, actorId: userId, action: 'run.cancelled', subject: `${r.modelName} v${r.modelVersion}`, details: { runId } });
-      await tx.execute(sql`select pg_notify('run_events', ${runId})`);
+      return how;
     });
-    if (r.run.status === 'queued' && r.run.jobId) await this.queue.cancel(r.run.kind as RunKind, r.run.jobId).catch(() => {});
+    if (outcome === 'cancelled' && r.run.jobId) await this.queue.cancel(r.run.kind as RunKind, r.run.jobId).catch(() => {});
   }
 }
 
