@@ -55,7 +55,8 @@ export const DEFAULT_STALE_AFTER_SECONDS = 30;
 
 /**
  * Mode maps (server/modemaps): scattering states and Husimi maps computed on demand.
- * Short jobs (seconds); a lost worker's job comes back when its expiry runs out.
+ * Short jobs (seconds); a lost worker's map is handed on by the supervisor like a run
+ * (mode-map-supervisor.ts), and the expiry is only the backstop.
  */
 export const MODE_MAP_QUEUE = {
   name: 'mode-map',

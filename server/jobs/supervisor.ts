@@ -4,6 +4,7 @@ import type { Db, Queryable } from '../db/client.js';
 import { bossDb, jobsAffected } from './boss-in-transaction.js';
 import { sendRunJob } from './boss.js';
 import { superviseFits } from './fit-supervisor.js';
+import { superviseModeMaps } from './mode-map-supervisor.js';
 import { RUN_QUEUES, type RunKind } from './queues.js';
 import { runStore } from '../runs/run-store.js';
 
@@ -134,7 +135,7 @@ async function failRun(tx: Queryable, runId: string, error: string) {
   await runStore.fail(tx, runId, error);
 }
 
-/** Every intervalSeconds: one pass over the runs, then one over the fits (fit-supervisor.ts). */
+/** Every intervalSeconds: one pass over the runs, then the fits (fit-supervisor.ts), then the mode maps (mode-map-supervisor.ts). */
 export function startSupervisor(o: SupervisorOptions): () => void {
   let busy = false;
   const timer = setInterval(() => {
@@ -142,6 +143,7 @@ export function startSupervisor(o: SupervisorOptions): () => void {
     busy = true;
     superviseRuns(o)
       .then(() => superviseFits(o))
+      .then(() => superviseModeMaps(o))
       .catch((e) => o.log?.(`supervisor: ${e.message}`))
       .finally(() => (busy = false));
   }, o.intervalSeconds * 1000);

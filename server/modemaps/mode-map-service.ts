@@ -12,6 +12,7 @@ import { cavityModelSchema, modelMassRatio } from '../../shared/model/cavity-mod
 import { channelFlags, leadChannels } from '../../shared/engine/leads.js';
 import { hoppingEnergy } from '../../shared/units/constants.js';
 import type { ModeMapQueue } from './mode-map-queue.js';
+import { modeMapStore } from './mode-map-store.js';
 import type { ModeMapRequest } from './mode-map-request.js';
 import { base64Float32, type ModeMapPayload } from './mode-map-task.js';
 
@@ -131,28 +132,20 @@ export class ModeMapService {
     }
     const params = { source, husimi: req.husimi };
     const cacheKey = modeMapCacheKey(ENGINE_VERSION, modelVersionId, params);
-    const [inserted] = await this.db
-      .insert(modeMaps)
-      .values({ groupId, modelVersionId, resonanceId, params, cacheKey, createdBy: userId, progressStage: 'queued', progressFraction: 0 })
-      .onConflictDoNothing()
-      .returning();
+    const inserted = await modeMapStore.create(this.db, { groupId, modelVersionId, resonanceId, params, cacheKey, createdBy: userId });
     let row = inserted;
     if (!row) {
-      [row] = await this.db.select().from(modeMaps).where(and(eq(modeMaps.groupId, groupId), eq(modeMaps.cacheKey, cacheKey)));
+      const [cached] = await this.db.select().from(modeMaps).where(and(eq(modeMaps.groupId, groupId), eq(modeMaps.cacheKey, cacheKey)));
       // A failed map is tried again when asked again; anything else is the cached answer.
-      if (row.status !== 'failed') return { created: false, view: toModeMapView(row) };
-      [row] = await this.db
-        .update(modeMaps)
-        .set({ status: 'queued', error: null, progressStage: 'queued', progressFraction: 0, finishedAt: null })
-        .where(and(eq(modeMaps.id, row.id), eq(modeMaps.status, 'failed')))
-        .returning();
-      if (!row) return { created: false, view: await this.view(groupId, inserted?.id ?? '') };
+      if (cached.status !== 'failed') return { created: false, view: toModeMapView(cached) };
+      row = await modeMapStore.askAgain(this.db, cached.id);
+      if (!row) return { created: false, view: await this.view(groupId, cached.id) };
     }
     try {
       const jobId = await this.queue.enqueue(row.id);
-      await this.db.update(modeMaps).set({ jobId }).where(eq(modeMaps.id, row.id));
+      await modeMapStore.attachJob(this.db, row.id, jobId);
     } catch (err) {
-      await this.db.update(modeMaps).set({ status: 'failed', error: 'the map could not be queued' }).where(eq(modeMaps.id, row.id));
+      await modeMapStore.fail(this.db, row.id, 'the map could not be queued');
       throw err;
     }
     return { created: true, view: toModeMapView(row) };

@@ -51,6 +51,8 @@ export const modeMaps = pgTable(
     progressStage: text('progress_stage'),
     progressFraction: doublePrecision('progress_fraction'),
     attempt: integer('attempt').notNull().default(0),
+    /** Beaten by the computing worker; the supervisor hands a map with an old one to another worker. */
+    heartbeatAt: timestamp('heartbeat_at', { withTimezone: true }),
     jobId: text('job_id'),
     error: text('error'),
     engineVersion: text('engine_version'),
@@ -62,6 +64,7 @@ export const modeMaps = pgTable(
   (t) => [
     unique('mode_maps_group_key').on(t.groupId, t.cacheKey),
     index('mode_maps_resonance').on(t.resonanceId),
+    index('mode_maps_status_heartbeat').on(t.status, t.heartbeatAt),
     check('mode_maps_status_known', sql`${t.status} in ('queued','running','completed','failed')`),
   ],
 );
