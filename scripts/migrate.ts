@@ -5,13 +5,17 @@ import { fileURLToPath } from 'node:url';
 import { drizzle } from 'drizzle-orm/node-postgres';
 import { migrate as runMigrations } from 'drizzle-orm/node-postgres/migrator';
 import pg from 'pg';
+import { backfillDerivedFigures } from '../server/models/model-backfill.js';
 
 const migrationsFolder = join(dirname(fileURLToPath(import.meta.url)), '..', 'migrations');
 
 export async function migrate(databaseUrl: string): Promise<void> {
   const pool = new pg.Pool({ connectionString: databaseUrl, max: 1 });
   try {
-    await runMigrations(drizzle(pool), { migrationsFolder });
+    const db = drizzle(pool);
+    await runMigrations(db, { migrationsFolder });
+    // Data the migrations cannot compute in SQL (derived figures of older model versions).
+    await backfillDerivedFigures(db);
   } finally {
     await pool.end();
   }

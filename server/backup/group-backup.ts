@@ -62,7 +62,8 @@ export async function* groupBackupRecords(q: Queryable, groupId: string, include
   const versions = await q.select().from(modelVersions).where(eq(modelVersions.groupId, groupId));
   versions.sort((a, b) => modelOrder.get(a.modelId)! - modelOrder.get(b.modelId)! || a.version - b.version);
   for (const v of versions) {
-    const { groupId: _g, createdBy, createdAt, document, ...rest } = v;
+    // The derived figures are not in the archive: the restore computes them from the document.
+    const { groupId: _g, createdBy, createdAt, document, derived: _d, ...rest } = v;
     count('modelVersion');
     yield { type: 'modelVersion', ...rest, document: document as Record<string, unknown>, createdBy: await emailOf(createdBy), createdAt: iso(createdAt)! };
   }

@@ -10,6 +10,7 @@ import { modeImages, resonanceModes, resonances } from '../db/schema/catalogue.j
 import { measuredTraces } from '../db/schema/fits.js';
 import { memberships } from '../db/schema/groups.js';
 import { cavityModels, modelVersions } from '../db/schema/models.js';
+import { figuresOfStored } from '../models/model-figures.js';
 import { runs, spectra } from '../db/schema/runs.js';
 import { runStore } from '../runs/run-store.js';
 import { users } from '../db/schema/users.js';
@@ -151,7 +152,11 @@ function checkReferences(core: Core, sections: Map<string, { type: string }[]>, 
   const need = (where: string, kind: IdKind, id: string) => {
     if (!known[kind].has(id)) issue(where, `refers to ${kind.replace(/s$/, '').replace(/V/, ' v')} ${id}, which is not in the archive`);
   };
-  for (const v of core.modelVersion) need(`modelVersion ${v.id} modelId`, 'models', v.modelId);
+  for (const v of core.modelVersion) {
+    need(`modelVersion ${v.id} modelId`, 'models', v.modelId);
+    // Its derived figures are computed again on restore, not taken from the file.
+    if (!figuresOfStored(v.document, v.siteCount)) issue(`modelVersion ${v.id} document`, 'is not a valid cavity model (its name, spacing, material, field or leads)');
+  }
   for (const r of core.run) need(`run ${r.id} modelVersionId`, 'modelVersions', r.modelVersionId);
   for (const s of core.spectrum) need(`spectrum of run ${s.runId}`, 'runs', s.runId);
   for (const r of core.resonance) {
@@ -241,7 +246,15 @@ export async function restoreGroup(db: Db, groupId: string, actorId: string, b: 
     );
     await insertAll(b.core.modelVersion, 200, (slice) =>
       tx.insert(modelVersions).values(
-        slice.map(({ type: _t, id, modelId, createdBy, createdAt, ...v }) => ({ ...v, id: ids.modelVersions.get(id)!, modelId: ids.models.get(modelId)!, groupId, createdBy: person(createdBy), createdAt: date(createdAt)! })),
+        slice.map(({ type: _t, id, modelId, createdBy, createdAt, ...v }) => ({
+          ...v,
+          derived: figuresOfStored(v.document, v.siteCount),
+          id: ids.modelVersions.get(id)!,
+          modelId: ids.models.get(modelId)!,
+          groupId,
+          createdBy: person(createdBy),
+          createdAt: date(createdAt)!,
+        })),
       ),
     );
     await insertAll(b.core.run, 200, (slice) =>

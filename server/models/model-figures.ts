@@ -1,4 +1,4 @@
-import { validateCavityModel, type CavityModel, type ModelIssue, type Shape } from '../../shared/model/cavity-model.js';
+import { cavityModelSchema, validateCavityModel, type CavityModel, type ModelIssue, type Shape } from '../../shared/model/cavity-model.js';
 import { deriveFigures, type DerivedFigures } from '../../shared/model/derived-figures.js';
 import { ApiError } from '../http/error-handler.js';
 import { formatIssuePath } from '../../shared/model/cavity-model.js';
@@ -115,4 +115,18 @@ function maskBox(mask: Uint8Array, nx: number, ny: number) {
     }
   }
   return imax < 0 ? null : { imin, imax, jmin, jmax };
+}
+
+/** The fields of a document the derived figures read (not the shape or the potential). */
+const figureFields = cavityModelSchema.pick({ name: true, spacing: true, material: true, field: true, leads: true });
+
+/**
+ * Derived figures of a stored document from its stored site count (nothing rasterised):
+ * for versions saved before the figures were stored with them (the back-fill,
+ * model-backfill.ts) and for restored versions. Null when the document's figure fields
+ * do not validate.
+ */
+export function figuresOfStored(document: unknown, siteCount: number): DerivedFigures | null {
+  const v = figureFields.safeParse(document);
+  return v.success ? deriveFigures(v.data as CavityModel, siteCount) : null;
 }

@@ -3,7 +3,7 @@ import type { Queryable } from '../db/client.js';
 import { cavityModels, modelVersions } from '../db/schema/models.js';
 import { runs } from '../db/schema/runs.js';
 import { users } from '../db/schema/users.js';
-import type { ModelColumns } from './model-figures.js';
+import type { CheckedModel } from './model-figures.js';
 
 export interface ModelListFilter {
   search?: string;
@@ -83,6 +83,7 @@ export async function findVersion(q: Queryable, groupId: string, modelId: string
       radiusNm: modelVersions.radiusNm,
       lengthNm: modelVersions.lengthNm,
       keyDimensions: modelVersions.keyDimensions,
+      derived: modelVersions.derived,
     })
     .from(modelVersions)
     .innerJoin(cavityModels, eq(cavityModels.id, modelVersions.modelId))
@@ -125,10 +126,9 @@ export async function insertVersion(
   modelId: string,
   version: number,
   userId: string,
-  document: unknown,
-  columns: ModelColumns,
+  checked: Pick<CheckedModel, 'model' | 'columns' | 'derived'>,
 ) {
-  await q.insert(modelVersions).values({ groupId, modelId, version, createdBy: userId, document, ...columns });
+  await q.insert(modelVersions).values({ groupId, modelId, version, createdBy: userId, document: checked.model, derived: checked.derived, ...checked.columns });
   await q
     .update(cavityModels)
     .set({ latestVersion: version, updatedAt: new Date() })

@@ -3,8 +3,8 @@ import { writeAudit } from '../audit/audit-log.js';
 import { ApiError } from '../http/error-handler.js';
 import type { Compute } from '../compute/compute-pool.js';
 import * as repo from './model-repository.js';
-import { deriveFigures } from '../../shared/model/derived-figures.js';
-import { cavityModelSchema, type CavityModel } from '../../shared/model/cavity-model.js';
+import type { DerivedFigures } from '../../shared/model/derived-figures.js';
+import { figuresOfStored } from './model-figures.js';
 
 export function modelNotFound(): ApiError {
   return new ApiError(404, 'not_found', 'No such cavity model in this group.');
@@ -55,7 +55,7 @@ export class ModelService {
     return {
       ...toSummary(summary),
       document: version!.document,
-      derived: derivedOf(version!.document, version!.siteCount),
+      derived: storedFigures(version!),
       versions: versions.map((v) => ({
         version: v.version,
         createdAt: v.createdAt,
@@ -68,14 +68,14 @@ export class ModelService {
   async version(groupId: string, modelId: string, version: number) {
     const v = await repo.findVersion(this.db, groupId, modelId, version);
     if (!v) throw new ApiError(404, 'not_found', `This model has no version ${version}.`);
-    return { version: v.version, document: v.document, derived: derivedOf(v.document, v.siteCount), createdAt: v.createdAt };
+    return { version: v.version, document: v.document, derived: storedFigures(v), createdAt: v.createdAt };
   }
 
   async create(groupId: string, userId: string, document: unknown, referenceKey: string | null = null, signal?: AbortSignal) {
     const checked = await this.check(document, signal);
     const id = await this.db.transaction(async (tx) => {
       const modelId = await repo.insertModel(tx, groupId, userId, checked.model.name, referenceKey);
-      await repo.insertVersion(tx, groupId, modelId, 1, userId, checked.model, checked.columns);
+      await repo.insertVersion(tx, groupId, modelId, 1, userId, checked);
       await writeAudit(tx, { groupId, actorId: userId, action: 'model.created', subject: checked.model.name, details: { modelId } });
       return modelId;
     });
@@ -88,7 +88,7 @@ export class ModelService {
       const current = await repo.lockModel(tx, groupId, modelId);
       if (!current) throw modelNotFound();
       const version = current.latestVersion + 1;
-      await repo.insertVersion(tx, groupId, modelId, version, userId, checked.model, checked.columns);
+      await repo.insertVersion(tx, groupId, modelId, version, userId, checked);
       if (checked.model.name !== current.name) await repo.renameModel(tx, modelId, checked.model.name);
       await writeAudit(tx, {
         groupId,
@@ -102,15 +102,14 @@ export class ModelService {
   }
 }
 
-/** The fields of a document the derived figures read (not the shape or the potential). */
-const figureFields = cavityModelSchema.pick({ name: true, spacing: true, material: true, field: true, leads: true });
-
 /**
- * Derived figures of a stored (already valid) document, from its stored site count:
- * nothing is rasterised, so reading a model costs O(leads) on the API thread.
+ * A version's derived figures as stored when it was saved (versions never change, so
+ * they are computed once, in the compute pool). A version the back-fill has not reached
+ * (written by an older server while this one started) gets them from its stored site
+ * count, without rasterising.
  */
-export function derivedOf(document: unknown, siteCount: number) {
-  const v = figureFields.safeParse(document);
-  if (!v.success) throw new ApiError(500, 'stored_model_invalid', 'A stored model version no longer validates; please report this.');
-  return deriveFigures(v.data as CavityModel, siteCount);
+export function storedFigures(v: { derived: DerivedFigures | null; document: unknown; siteCount: number }): DerivedFigures {
+  const figures = v.derived ?? figuresOfStored(v.document, v.siteCount);
+  if (!figures) throw new ApiError(500, 'stored_model_invalid', 'A stored model version no longer validates; please report this.');
+  return figures;
 }

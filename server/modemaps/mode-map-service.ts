@@ -6,11 +6,9 @@ import { modeMaps, resonanceCurrents } from '../db/schema/mode-maps.js';
 import { ApiError } from '../http/error-handler.js';
 import { ENGINE_VERSION } from '../jobs/engine-task.js';
 import { findVersion } from '../models/model-repository.js';
-import { modelNotFound } from '../models/model-service.js';
+import { modelNotFound, storedFigures } from '../models/model-service.js';
+import type { DerivedFigures } from '../../shared/model/derived-figures.js';
 import { resonanceNotFound } from '../catalogue/catalogue-service.js';
-import { cavityModelSchema, modelMassRatio } from '../../shared/model/cavity-model.js';
-import { channelFlags, leadChannels } from '../../shared/engine/leads.js';
-import { hoppingEnergy } from '../../shared/units/constants.js';
 import type { ModeMapQueue } from './mode-map-queue.js';
 import { modeMapStore } from './mode-map-store.js';
 import type { ModeMapRequest } from './mode-map-request.js';
@@ -126,7 +124,7 @@ export class ModeMapService {
     } else {
       const v = await findVersion(this.db, groupId, req.modelId!, req.version);
       if (!v) throw req.version ? new ApiError(404, 'not_found', `This model has no version ${req.version}.`) : modelNotFound();
-      checkChannel(v.document, req.energy!, req.lead!, req.channel!);
+      checkChannel(storedFigures(v), req.energy!, req.lead!, req.channel!);
       modelVersionId = v.id;
       source = { kind: 'energy', energy: req.energy, lead: req.lead, channel: req.channel };
     }
@@ -171,23 +169,20 @@ export class ModeMapService {
 
 /**
  * The lead and channel must exist and the channel be open at E (contract, "Leads": open for
- * ε_m − 2t < E < ε_m + 2t). Checked from the document alone (no lattice is built here).
+ * ε_m − 2t < E < ε_m + 2t, strict, as the engine's channelFlags). Read from the version's
+ * stored derived figures (no document parsed, no lattice built here).
  */
-function checkChannel(document: unknown, energy: number, lead: number, channel: number): void {
-  const parsed = cavityModelSchema.safeParse(document);
-  if (!parsed.success) throw new ApiError(500, 'stored_model_invalid', 'A stored model version no longer validates; please report this.');
-  const model = parsed.data;
-  const l = model.leads[lead];
+function checkChannel(figures: DerivedFigures, energy: number, lead: number, channel: number): void {
+  const l = figures.leads[lead];
   if (!l) {
     throw new ApiError(400, 'validation_failed', 'There is no such lead.', [
-      { path: 'lead', message: model.leads.length ? `the model has leads 0 to ${model.leads.length - 1}` : 'the model has no leads' },
+      { path: 'lead', message: figures.leads.length ? `the model has leads 0 to ${figures.leads.length - 1}` : 'the model has no leads' },
     ]);
   }
-  const t = hoppingEnergy(model.spacing, modelMassRatio(model));
-  const flags = channelFlags(leadChannels(l.width, t, l.offset), energy);
+  const flags = l.thresholds.map((t) => energy > t.opens && energy < t.closes);
   const open = flags.flatMap((f, m) => (f ? [m + 1] : []));
   if (!flags[channel - 1]) {
-    throw new ApiError(400, 'validation_failed', `Channel ${channel} of lead ${l.name ?? `${l.side}${lead}`} is not open at ${energy} meV.`, [
+    throw new ApiError(400, 'validation_failed', `Channel ${channel} of lead ${l.name} is not open at ${energy} meV.`, [
       { path: 'channel', message: open.length ? `open channels at this energy: ${open.join(', ')}` : 'no channel of this lead is open at this energy' },
     ]);
   }

@@ -5,7 +5,8 @@ import { ApiError } from '../http/error-handler.js';
 import type { RunQueue } from '../jobs/boss.js';
 import type { RunKind } from '../jobs/queues.js';
 import { findVersion } from '../models/model-repository.js';
-import { derivedOf, modelNotFound } from '../models/model-service.js';
+import { modelNotFound, storedFigures } from '../models/model-service.js';
+import type { DerivedFigures } from '../../shared/model/derived-figures.js';
 import { toResonanceRow } from '../catalogue/resonance-row.js';
 import type { Compute } from '../compute/compute-pool.js';
 import { checkRunSize, checkRunSlots, type RunLimits } from './run-limits.js';
@@ -134,10 +135,10 @@ export class RunService {
       repo.runSpectrum(this.db, groupId, runId),
     ]);
     const v = await findVersion(this.db, groupId, r.modelId, r.modelVersion);
-    const derived = v ? derivedOf(v.document, v.siteCount) : null;
+    const derived = v ? storedFigures(v) : null;
     return {
       ...toRunView(r),
-      thresholds: r.run.thresholds ?? estimateThresholds(v, r.run.window),
+      thresholds: r.run.thresholds ?? thresholdsInWindow(derived, r.run.window),
       poles: poles.map(toResonanceRow),
       spectrum,
       // Lead names in engine order: the spectrum's pairs index into this list.
@@ -178,9 +179,9 @@ export class RunService {
   }
 }
 
-/** Channel thresholds (meV) of a stored model inside a window, from its derived figures (no LU needed). */
-function estimateThresholds(v: { document: unknown; siteCount: number } | null, window: Record<string, number>): number[] {
-  if (!v) return [];
-  const all = derivedOf(v.document, v.siteCount).leads.flatMap((l) => l.thresholds.flatMap((t) => [t.opens, t.closes]));
+/** Channel thresholds (meV) of a stored model inside a window, from its stored derived figures (no LU needed). */
+function thresholdsInWindow(derived: DerivedFigures | null, window: Record<string, number>): number[] {
+  if (!derived) return [];
+  const all = derived.leads.flatMap((l) => l.thresholds.flatMap((t) => [t.opens, t.closes]));
   return [...new Set(all)].filter((e) => e >= window.emin && e <= window.emax).sort((a, b) => a - b);
 }

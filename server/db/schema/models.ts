@@ -1,4 +1,5 @@
 import { doublePrecision, index, integer, jsonb, pgTable, text, timestamp, unique, uuid } from 'drizzle-orm/pg-core';
+import type { DerivedFigures } from '../../../shared/model/derived-figures.js';
 import { researchGroups } from './groups.js';
 import { users } from './users.js';
 
@@ -58,6 +59,12 @@ export const modelVersions = pgTable(
     radiusNm: doublePrecision('radius_nm'),
     lengthNm: doublePrecision('length_nm'),
     keyDimensions: jsonb('key_dimensions').$type<Record<string, number>>().notNull(),
+    /**
+     * Site count, hopping, channel thresholds, validity ceilings and field scales, computed
+     * once when the version is saved (shared/model/derived-figures.ts), so reading a version
+     * or a run re-validates nothing. Null only until the start-up back-fill reaches an older row.
+     */
+    derived: jsonb('derived').$type<DerivedFigures>(),
     createdBy: uuid('created_by').references(() => users.id, { onDelete: 'set null' }),
     createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
   },

@@ -1,0 +1,112 @@
+// A model version's derived figures are computed once, when the version is saved, and
+// stored with it (issue 8, part 4): reading a model, a version or a run does no geometry
+// or figure work. Counted with spies on the functions that do it (validation, the
+// rasteriser, the derived figures), wrapped around the real ones. The app computes
+// in-process here (inlineCompute), so the save's own calls are seen too.
+import { eq, sql } from 'drizzle-orm';
+import { afterAll, beforeAll, beforeEach, describe, expect, it, vi } from 'vitest';
+import { inlineCompute } from '../../server/compute/compute-pool.js';
+import { modelVersions } from '../../server/db/schema/models.js';
+import { backfillDerivedFigures } from '../../server/models/model-backfill.js';
+import * as cavityModel from '../../shared/model/cavity-model.js';
+import * as derivedFigures from '../../shared/model/derived-figures.js';
+import * as geometry from '../../shared/model/geometry.js';
+import { createLab, type Lab } from './lab-fixture.js';
+import { signInAs, type SignedIn } from './sign-in-as.js';
+import { recordingQueue, startTestApp, type TestApp } from './test-app.js';
+import { smallRectangle, smallWindow } from './fixtures/small-cavity.js';
+
+vi.mock('../../shared/model/derived-figures.js', async (importOriginal) => {
+  const real = await importOriginal<typeof import('../../shared/model/derived-figures.js')>();
+  return { ...real, deriveFigures: vi.fn(real.deriveFigures) };
+});
+vi.mock('../../shared/model/geometry.js', async (importOriginal) => {
+  const real = await importOriginal<typeof import('../../shared/model/geometry.js')>();
+  return { ...real, rasteriseShape: vi.fn(real.rasteriseShape) };
+});
+vi.mock('../../shared/model/cavity-model.js', async (importOriginal) => {
+  const real = await importOriginal<typeof import('../../shared/model/cavity-model.js')>();
+  return { ...real, validateCavityModel: vi.fn(real.validateCavityModel) };
+});
+
+const spies = () => ({
+  deriveFigures: vi.mocked(derivedFigures.deriveFigures).mock.calls.length,
+  rasteriseShape: vi.mocked(geometry.rasteriseShape).mock.calls.length,
+  validateCavityModel: vi.mocked(cavityModel.validateCavityModel).mock.calls.length,
+});
+const none = { deriveFigures: 0, rasteriseShape: 0, validateCavityModel: 0 };
+
+let app: TestApp;
+let lab: Lab;
+let designer: SignedIn;
+let modelId: string;
+let runId: string;
+let saved: { derived: Record<string, unknown> };
+
+beforeAll(async () => {
+  app = await startTestApp({ queue: recordingQueue(), compute: inlineCompute });
+  lab = await createLab(app.handle.db, ['designer']);
+  designer = await signInAs(app, lab.as('designer').email);
+});
+afterAll(async () => app?.close());
+beforeEach(() => vi.clearAllMocks());
+
+const base = () => `/api/groups/${lab.groupId}`;
+
+describe('derived figures stored with the version', () => {
+  it('saving validates, rasterises and derives once, and stores the figures with the version', async () => {
+    const res = await designer.post(`${base()}/models`, { document: smallRectangle('Stored figures') });
+    expect(res.status).toBe(201);
+    modelId = res.body.id;
+    saved = res.body;
+    // The spies see the server's calls: the save's check did the work.
+    const counts = spies();
+    expect(counts.validateCavityModel).toBe(1);
+    expect(counts.rasteriseShape).toBeGreaterThanOrEqual(1);
+    expect(counts.deriveFigures).toBeGreaterThanOrEqual(1);
+    const [row] = await app.handle.db.select({ derived: modelVersions.derived, siteCount: modelVersions.siteCount }).from(modelVersions).where(eq(modelVersions.modelId, modelId));
+    expect(row!.derived).not.toBeNull();
+    expect(row!.derived!.siteCount).toBe(row!.siteCount);
+    expect(JSON.parse(JSON.stringify(row!.derived))).toEqual(res.body.derived);
+    const run = await designer.post(`${base()}/runs`, { kind: 'pole-search', modelId, window: smallWindow });
+    expect(run.status).toBe(201);
+    runId = run.body.id;
+  });
+
+  it('GET of the model, its version, the run and the run list do no geometry or figure work', async () => {
+    const model = await designer.get(`${base()}/models/${modelId}`);
+    const version = await designer.get(`${base()}/models/${modelId}/versions/1`);
+    const run = await designer.get(`${base()}/runs/${runId}`);
+    const list = await designer.get(`${base()}/runs`);
+    expect([model.status, version.status, run.status, list.status]).toEqual([200, 200, 200, 200]);
+    expect(spies()).toEqual(none);
+    // Same figures as when saved; the run's lead names and in-window thresholds come from them.
+    expect(model.body.derived).toEqual(saved.derived);
+    expect(version.body.derived).toEqual(saved.derived);
+    const leads = saved.derived.leads as { name: string; side: string; width: number; thresholds: { opens: number; closes: number }[] }[];
+    expect(run.body.leads).toEqual(leads.map((l) => ({ name: l.name, side: l.side, width: l.width })));
+    const inWindow = [...new Set(leads.flatMap((l) => l.thresholds.flatMap((t) => [t.opens, t.closes])))].filter((e) => e >= smallWindow.emin && e <= smallWindow.emax);
+    expect(run.body.thresholds).toHaveLength(inWindow.length);
+  });
+
+  it('an older version without stored figures is back-filled at start-up, from its stored site count', async () => {
+    await app.handle.db.execute(sql`update model_versions set derived = null where model_id = ${modelId}`);
+    // Until the back-fill reaches it, a read derives the figures (no rasterisation): the spy sees it.
+    const before = await designer.get(`${base()}/models/${modelId}/versions/1`);
+    expect(before.body.derived).toEqual(saved.derived);
+    expect(spies()).toMatchObject({ deriveFigures: 1, rasteriseShape: 0, validateCavityModel: 0 });
+    vi.clearAllMocks();
+
+    const { filled } = await backfillDerivedFigures(app.handle.db);
+    expect(filled).toBeGreaterThanOrEqual(1);
+    expect(spies().rasteriseShape).toBe(0);
+    const [row] = await app.handle.db.select({ derived: modelVersions.derived }).from(modelVersions).where(eq(modelVersions.modelId, modelId));
+    expect(JSON.parse(JSON.stringify(row!.derived))).toEqual(saved.derived);
+    expect((await backfillDerivedFigures(app.handle.db)).filled).toBe(0);
+
+    vi.clearAllMocks();
+    const after = await designer.get(`${base()}/models/${modelId}/versions/1`);
+    expect(after.body.derived).toEqual(saved.derived);
+    expect(spies()).toEqual(none);
+  });
+});
