@@ -6,9 +6,8 @@ import type { AuthService } from './auth-service.js';
 import { signedInUser } from './authenticate.js';
 import { checkCsrf } from './csrf.js';
 import { emailField } from './email-field.js';
-import { openSession } from './open-session.js';
 import { newPasswordSchema } from './password.js';
-import { sessionOf } from './session.js';
+import { SessionService } from './session-service.js';
 import { clearSessionCookies, csrfCookie, setCsrfCookie } from './session-cookies.js';
 import { accountAndIpLimiters, attemptLimiter, type AttemptLimit, type AttemptLimits } from './sign-in-limit.js';
 
@@ -29,14 +28,14 @@ export interface AuthRouteDeps {
 
 export function authRoutes(d: AuthRouteDeps): Router {
   const router = Router();
-  const cookieOpts = { jwtSecret: d.jwtSecret, secureCookies: d.secureCookies };
+  const sessions = new SessionService(d.db, { jwtSecret: d.jwtSecret, secureCookies: d.secureCookies });
 
   // Failed sign-ins only are counted, per account and per IP apart.
   router.post('/sign-in', ...accountAndIpLimiters(d.signInLimits, 'failed sign-in', true), validate({ body: signInBody }), async (req, res) => {
     const { email, password } = req.valid.body as z.infer<typeof signInBody>;
     const user = await d.auth.signIn(email, password, req.ip);
-    const csrf = await openSession(d.db, req, res, user.id, cookieOpts);
-    res.json(await sessionOf(d.db, user, csrf));
+    const csrf = await sessions.open(req, res, user.id);
+    res.json(await sessions.describe(user, csrf));
   });
 
   router.post('/sign-out', async (req, res) => {
@@ -54,7 +53,7 @@ export function authRoutes(d: AuthRouteDeps): Router {
       // A lost or stale pw_csrf cookie would make every later POST fail: set it again.
       if ((req.cookies as Record<string, string | undefined>)[csrfCookie] !== csrf) setCsrfCookie(res, csrf, d.secureCookies);
     }
-    res.json(await sessionOf(d.db, user, csrf));
+    res.json(await sessions.describe(user, csrf));
   });
 
   // Answers first, then looks the e-mail up and mails: known and unknown e-mails take the same time.

@@ -1,16 +1,13 @@
 import { Transform } from 'node:stream';
-import { pipeline } from 'node:stream/promises';
 import { Router } from 'express';
 import { z } from 'zod';
-import { writeAudit } from '../audit/audit-log.js';
 import { signedInUser } from '../auth/authenticate.js';
 import { requireRole } from '../auth/require-role.js';
 import type { Db } from '../db/client.js';
 import { ApiError } from '../http/error-handler.js';
 import { validate } from '../http/validate.js';
 import { MAX_UPLOAD_BYTES } from './backup-format.js';
-import { groupBackupStream } from './group-backup.js';
-import { readBackup, restoreGroup } from './group-restore.js';
+import { BackupService } from './backup-service.js';
 
 export const backupQuery = z.object({
   members: z.enum(['true', 'false'], { error: 'must be true or false' }).default('true'),
@@ -22,23 +19,22 @@ export const backupQuery = z.object({
  * the request body (Content-Type application/gzip) into an empty group.
  */
 export function backupRoutes(d: { db: Db }): Router {
+  const backups = new BackupService(d.db);
   const router = Router({ mergeParams: true });
 
   router.get('/backup', requireRole('admin'), validate({ query: backupQuery }), async (req, res) => {
     const m = req.membership!;
     const members = (req.valid.query as z.infer<typeof backupQuery>).members === 'true';
-    await writeAudit(d.db, { groupId: m.groupId, actorId: signedInUser(req).id, action: 'group.backup_downloaded', subject: m.groupName, details: { members } });
+    await backups.recordDownload(m.groupId, m.groupName, signedInUser(req).id, members);
     res.setHeader('Content-Type', 'application/gzip');
     res.setHeader('Content-Disposition', `attachment; filename="poleward-${m.groupSlug}-${new Date().toISOString().slice(0, 10)}.jsonl.gz"`);
     res.setHeader('Cache-Control', 'no-store');
     // One read-only snapshot, so a run finishing meanwhile cannot leave half of itself in the file.
-    await d.db
-      .transaction((tx) => pipeline(groupBackupStream(tx, m.groupId, members), res), { isolationLevel: 'repeatable read', accessMode: 'read only' })
-      .catch((err) => {
+    await backups.stream(m.groupId, members, res).catch((err) => {
         // The headers are gone: all that can be done is to cut the download short.
-        if (res.headersSent) res.destroy(err as Error);
-        else throw err;
-      });
+      if (res.headersSent) res.destroy(err as Error);
+      else throw err;
+    });
   });
 
   router.post('/restore', requireRole('admin'), async (req, res) => {
@@ -57,8 +53,7 @@ export function backupRoutes(d: { db: Db }): Router {
       },
     });
     req.on('error', (e) => cap.destroy(e));
-    const parsed = await readBackup(req.pipe(cap));
-    const summary = await restoreGroup(d.db, req.membership!.groupId, signedInUser(req).id, parsed);
+    const summary = await backups.restore(req.membership!.groupId, signedInUser(req).id, req.pipe(cap));
     res.status(201).json({ restored: summary });
   });
 

@@ -1,6 +1,5 @@
 import { Router } from 'express';
 import type { z } from 'zod';
-import { writeAudit } from '../audit/audit-log.js';
 import { requireRole } from '../auth/require-role.js';
 import type { Db } from '../db/client.js';
 import { validate } from '../http/validate.js';
@@ -27,15 +26,8 @@ export function catalogueRoutes(deps: { db: Db; service?: CatalogueService }): R
     router.get(`/catalogue/export.${format}`, requireRole(), validate({ query: catalogueFilterSchema }), async (req, res) => {
       const filter = toCatalogueFilter(req.valid.query as z.infer<typeof catalogueFilterSchema>);
       // Exports take the group's data away whole: recorded before the first byte goes out.
-      await writeAudit(deps.db, {
-        groupId: req.membership!.groupId,
-        actorId: req.auth!.user.id,
-        accountId: req.auth!.user.id,
-        action: 'catalogue.exported',
-        subject: `catalogue.${format}`,
-        details: { filter: req.valid.query as Record<string, unknown> },
-      });
-      await sendCatalogueExport(res, format, service.exportSource(req.membership!.groupId, filter));
+      const source = await service.exportFor(req.membership!.groupId, req.auth!.user.id, format, filter, req.valid.query as Record<string, unknown>);
+      await sendCatalogueExport(res, format, source);
     });
   }
 

@@ -126,6 +126,12 @@ export class CatalogueService {
     return { rows: rows.slice(0, size), page: pageNo, hasNext: rows.length > size, hasPrev: pageNo > 1 && rows.length > 0 };
   }
 
+  /** Records the export (with its filter as asked), then answers its row source. */
+  async exportFor(groupId: string, actorId: string, format: string, filter: CatalogueFilter, asked: Record<string, unknown>): Promise<RowSource> {
+    await writeAudit(this.db, { groupId, actorId, accountId: actorId, action: 'catalogue.exported', subject: `catalogue.${format}`, details: { filter: asked } });
+    return this.exportSource(groupId, filter);
+  }
+
   /** A row source for sendCatalogueExport: one snapshot, read in keyset batches. */
   exportSource(groupId: string, filter: CatalogueFilter): RowSource {
     return (onBatch) =>

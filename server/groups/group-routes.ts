@@ -1,16 +1,13 @@
 import { Router } from 'express';
 import { z } from 'zod';
-import { groupActivity } from '../audit/activity.js';
 import { signedInUser } from '../auth/authenticate.js';
 import { emailField } from '../auth/email-field.js';
 import { requireAuth } from '../auth/require-auth.js';
 import { requireRole } from '../auth/require-role.js';
-import { groupsOfUser } from '../auth/user-repository.js';
 import type { Db } from '../db/client.js';
 import { membershipRole } from '../db/schema/groups.js';
 import { validate } from '../http/validate.js';
 import type { InvitationService } from '../invitations/invitation-service.js';
-import { memberCount, membersOf } from './group-repository.js';
 import type { GroupService } from './group-service.js';
 
 export const role = z.enum(membershipRole.enumValues);
@@ -25,22 +22,21 @@ export function groupRoutes(d: { db: Db; groups: GroupService; invitations: Invi
   const router = Router();
 
   router.get('/', requireAuth, async (req, res) => {
-    res.json(await groupsOfUser(d.db, signedInUser(req).id));
+    res.json(await d.groups.groupsOf(signedInUser(req).id));
   });
 
   router.get('/:groupId', requireRole(), async (req, res) => {
-    const m = req.membership!;
-    res.json({ id: m.groupId, name: m.groupName, slug: m.groupSlug, role: m.role, memberCount: await memberCount(d.db, m.groupId) });
+    res.json(await d.groups.summary(req.membership!));
   });
 
   router.get('/:groupId/members', requireRole(), async (req, res) => {
-    res.json(await membersOf(d.db, req.membership!.groupId));
+    res.json(await d.groups.members(req.membership!.groupId));
   });
 
   router.patch('/:groupId/members/:userId', requireRole('admin'), validate({ params: memberParams, body: roleBody }), async (req, res) => {
     const { userId } = req.valid.params as z.infer<typeof memberParams>;
     await d.groups.changeRole(signedInUser(req).id, req.membership!.groupId, userId, (req.valid.body as { role: z.infer<typeof role> }).role);
-    res.json((await membersOf(d.db, req.membership!.groupId)).find((m) => m.userId === userId));
+    res.json(await d.groups.member(req.membership!.groupId, userId));
   });
 
   router.delete('/:groupId/members/:userId', requireRole('admin'), validate({ params: memberParams }), async (req, res) => {
@@ -66,7 +62,7 @@ export function groupRoutes(d: { db: Db; groups: GroupService; invitations: Invi
 
   router.get('/:groupId/activity', requireRole(), validate({ query: activityQuery }), async (req, res) => {
     const { limit } = req.valid.query as z.infer<typeof activityQuery>;
-    res.json(await groupActivity(d.db, req.membership!.groupId, limit, { withSecurity: req.membership!.role === 'admin' }));
+    res.json(await d.groups.activity(req.membership!.groupId, limit, req.membership!.role === 'admin'));
   });
 
   return router;

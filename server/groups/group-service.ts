@@ -2,8 +2,9 @@ import { writeAudit } from '../audit/audit-log.js';
 import type { Db } from '../db/client.js';
 import type { MembershipRole } from '../db/schema/groups.js';
 import { ApiError } from '../http/error-handler.js';
-import { findUserById } from '../auth/user-repository.js';
-import { deleteMembership, lockMemberships, setMemberRole } from './group-repository.js';
+import { groupActivity } from '../audit/activity.js';
+import { findUserById, groupsOfUser } from '../auth/user-repository.js';
+import { deleteMembership, lockMemberships, memberCount, membersOf, setMemberRole } from './group-repository.js';
 
 function noSuchMember(): ApiError {
   return new ApiError(404, 'not_found', 'No such member in this group.');
@@ -23,6 +24,28 @@ function lastAdmin(): ApiError {
 /** Membership rules: role changes and removals, never leaving a group without an admin. */
 export class GroupService {
   constructor(private readonly db: Db) {}
+
+  /** The groups the person belongs to, with their role in each. */
+  groupsOf(userId: string) {
+    return groupsOfUser(this.db, userId);
+  }
+
+  async summary(m: { groupId: string; groupName: string; groupSlug: string; role: MembershipRole }) {
+    return { id: m.groupId, name: m.groupName, slug: m.groupSlug, role: m.role, memberCount: await memberCount(this.db, m.groupId) };
+  }
+
+  members(groupId: string) {
+    return membersOf(this.db, groupId);
+  }
+
+  async member(groupId: string, userId: string) {
+    return (await membersOf(this.db, groupId)).find((m) => m.userId === userId);
+  }
+
+  /** The group's recent audit entries; security entries only for admins. */
+  activity(groupId: string, limit: number, withSecurity: boolean) {
+    return groupActivity(this.db, groupId, limit, { withSecurity });
+  }
 
   async changeRole(actorId: string, groupId: string, userId: string, role: MembershipRole): Promise<void> {
     await this.db.transaction(async (tx) => {

@@ -1,8 +1,7 @@
 import { Router } from 'express';
 import { z } from 'zod';
-import { openSession } from '../auth/open-session.js';
 import { newPasswordSchema } from '../auth/password.js';
-import { sessionOf } from '../auth/session.js';
+import { SessionService } from '../auth/session-service.js';
 import { attemptLimiter, type AttemptLimit } from '../auth/sign-in-limit.js';
 import type { Db } from '../db/client.js';
 import { validate } from '../http/validate.js';
@@ -19,6 +18,7 @@ export function invitationRoutes(d: {
   secureCookies: boolean;
   linkLimit: AttemptLimit;
 }): Router {
+  const sessions = new SessionService(d.db, { jwtSecret: d.jwtSecret, secureCookies: d.secureCookies });
   const router = Router();
 
   router.get('/:token', validate({ params: tokenParams }), async (req, res) => {
@@ -34,8 +34,8 @@ export function invitationRoutes(d: {
       const { token } = req.valid.params as z.infer<typeof tokenParams>;
       const { name, password } = req.valid.body as z.infer<typeof acceptBody>;
       const user = await d.invitations.accept(token, name, password);
-      const csrf = await openSession(d.db, req, res, user.id, { jwtSecret: d.jwtSecret, secureCookies: d.secureCookies });
-      res.status(201).json(await sessionOf(d.db, user, csrf));
+      const csrf = await sessions.open(req, res, user.id);
+      res.status(201).json(await sessions.describe(user, csrf));
     },
   );
 

@@ -1,12 +1,10 @@
 import { Router } from 'express';
 import { z } from 'zod';
-import { writeAudit } from '../audit/audit-log.js';
 import { signedInUser } from '../auth/authenticate.js';
-import { findUserByEmail } from '../auth/user-repository.js';
 import type { Db } from '../db/client.js';
 import { ApiError } from '../http/error-handler.js';
 import { validate } from '../http/validate.js';
-import { findOutboxMessage, recentOutboxMessages } from './outbox-repository.js';
+import { OutboxService } from './outbox-service.js';
 
 export const messageParams = z.object({ id: z.uuid() });
 
@@ -19,6 +17,7 @@ const hidden = () => new ApiError(404, 'not_found', 'There is no outbox: mail go
  * is recorded (or refused), and shown to the account the mail was addressed to.
  */
 export function outboxRoutes(db: Db, standInIsTransport: boolean): Router {
+  const outbox = new OutboxService(db);
   const router = Router();
   router.use((req, _res, next) => {
     const user = signedInUser(req);
@@ -26,27 +25,11 @@ export function outboxRoutes(db: Db, standInIsTransport: boolean): Router {
     next();
   });
   router.get('/', async (req, res) => {
-    const user = signedInUser(req);
-    const messages = await recentOutboxMessages(db);
-    await writeAudit(db, { groupId: null, actorId: user.id, accountId: user.id, action: 'outbox.listed', subject: `${messages.length} messages` });
-    res.json(messages);
+    res.json(await outbox.list(signedInUser(req).id));
   });
   router.get('/:id', validate({ params: messageParams }), async (req, res) => {
-    const user = signedInUser(req);
     const { id } = req.valid.params as { id: string };
-    const message = await findOutboxMessage(db, id);
-    if (!message) throw new ApiError(404, 'not_found', 'No such message in the outbox.');
-    const recipient = await findUserByEmail(db, message.to);
-    // Recorded before the answer, and a failure to record refuses the read: no unrecorded reads.
-    await writeAudit(db, {
-      groupId: null,
-      actorId: user.id,
-      accountId: recipient?.id ?? null,
-      action: 'outbox.read',
-      subject: message.subject,
-      details: { messageId: id, to: message.to },
-    });
-    res.json(message);
+    res.json(await outbox.read(signedInUser(req).id, id));
   });
   return router;
 }

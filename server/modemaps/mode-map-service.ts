@@ -1,8 +1,6 @@
 import { createHash } from 'node:crypto';
-import { and, eq, sql } from 'drizzle-orm';
 import type { Db } from '../db/client.js';
-import { resonanceModes, resonances } from '../db/schema/catalogue.js';
-import { modeMaps, resonanceCurrents } from '../db/schema/mode-maps.js';
+import type { modeMaps } from '../db/schema/mode-maps.js';
 import { ApiError } from '../http/error-handler.js';
 import { ENGINE_VERSION } from '../jobs/engine-task.js';
 import { findVersion } from '../models/model-repository.js';
@@ -10,6 +8,7 @@ import { modelNotFound, storedFigures } from '../models/model-service.js';
 import type { DerivedFigures } from '../../shared/model/derived-figures.js';
 import { resonanceNotFound } from '../catalogue/catalogue-service.js';
 import type { ModeMapQueue } from './mode-map-queue.js';
+import * as repo from './mode-map-repository.js';
 import { modeMapStore } from './mode-map-store.js';
 import type { ModeMapRequest } from './mode-map-request.js';
 import { base64Float32, type ModeMapPayload } from './mode-map-task.js';
@@ -61,26 +60,9 @@ export class ModeMapService {
 
   /** The current of a catalogued pole as its run stored it, with the mode for the density image. */
   async poleCurrent(groupId: string, resonanceId: string): Promise<ModeMapPayload> {
-    const [row] = await this.db
-      .select({
-        energy: resonances.energy,
-        width: resonances.width,
-        bound: resonances.bound,
-        spacingNm: resonances.spacingNm,
-        nx: resonanceCurrents.nx,
-        ny: resonanceCurrents.ny,
-        mask: resonanceCurrents.mask,
-        vectors: resonanceCurrents.vectors,
-        leads: resonanceCurrents.leadCurrents,
-        mode: resonanceModes.vector,
-      })
-      .from(resonances)
-      .innerJoin(resonanceCurrents, eq(resonanceCurrents.resonanceId, resonances.id))
-      .innerJoin(resonanceModes, eq(resonanceModes.resonanceId, resonances.id))
-      .where(and(eq(resonances.id, resonanceId), eq(resonances.groupId, groupId)));
+    const row = await repo.findPoleCurrent(this.db, groupId, resonanceId);
     if (!row) {
-      const [exists] = await this.db.select({ id: resonances.id }).from(resonances).where(and(eq(resonances.id, resonanceId), eq(resonances.groupId, groupId)));
-      if (!exists) throw resonanceNotFound();
+      if (!(await repo.findResonanceForMap(this.db, groupId, resonanceId))) throw resonanceNotFound();
       throw new ApiError(404, 'no_current', 'This resonance was catalogued before current maps were stored; compute its map on demand (POST mode-maps).');
     }
     const mode = new Float64Array(row.mode.buffer.slice(row.mode.byteOffset, row.mode.byteOffset + row.mode.byteLength));
@@ -111,11 +93,7 @@ export class ModeMapService {
     let resonanceId: string | null = null;
     let source: Record<string, unknown>;
     if (req.resonanceId) {
-      const [r] = await this.db
-        .select({ id: resonances.id, modelVersionId: resonances.modelVersionId, hasMode: resonanceModes.resonanceId })
-        .from(resonances)
-        .leftJoin(resonanceModes, eq(resonanceModes.resonanceId, resonances.id))
-        .where(and(eq(resonances.id, req.resonanceId), eq(resonances.groupId, groupId)));
+      const r = await repo.findResonanceForMap(this.db, groupId, req.resonanceId);
       if (!r) throw resonanceNotFound();
       if (!r.hasMode) throw new ApiError(409, 'no_mode', 'This resonance has no stored mode vector to map.');
       modelVersionId = r.modelVersionId;
@@ -133,7 +111,7 @@ export class ModeMapService {
     const inserted = await modeMapStore.create(this.db, { groupId, modelVersionId, resonanceId, params, cacheKey, createdBy: userId });
     let row = inserted;
     if (!row) {
-      const [cached] = await this.db.select().from(modeMaps).where(and(eq(modeMaps.groupId, groupId), eq(modeMaps.cacheKey, cacheKey)));
+      const cached = (await repo.findMapByKey(this.db, groupId, cacheKey))!;
       // A failed map is tried again when asked again; anything else is the cached answer.
       if (cached.status !== 'failed') return { created: false, view: toModeMapView(cached) };
       row = await modeMapStore.askAgain(this.db, cached.id);
@@ -150,19 +128,14 @@ export class ModeMapService {
   }
 
   async view(groupId: string, id: string) {
-    const [row] = await this.db.select().from(modeMaps).where(and(eq(modeMaps.id, id), eq(modeMaps.groupId, groupId)));
+    const row = await repo.findMap(this.db, groupId, id);
     if (!row) throw mapNotFound();
     return toModeMapView(row);
   }
 
   /** The maps already asked for a resonance (newest first), so the page can show them again. */
   async forResonance(groupId: string, resonanceId: string) {
-    const rows = await this.db
-      .select()
-      .from(modeMaps)
-      .where(and(eq(modeMaps.groupId, groupId), eq(modeMaps.resonanceId, resonanceId)))
-      .orderBy(sql`${modeMaps.createdAt} desc`)
-      .limit(20);
+    const rows = await repo.mapsOfResonance(this.db, groupId, resonanceId, 20);
     return rows.map((r) => ({ ...toModeMapView(r), result: null }));
   }
 }
