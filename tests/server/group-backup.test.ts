@@ -7,7 +7,7 @@ import { inlineCompute } from '../../server/compute/compute-pool.js';
 import { gzipSync, gunzipSync } from 'node:zlib';
 import { count, eq } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { cavityModels } from '../../server/db/schema/models.js';
+import { cavityModels, modelVersions } from '../../server/db/schema/models.js';
 import { memberships } from '../../server/db/schema/groups.js';
 import { resonances } from '../../server/db/schema/catalogue.js';
 import { measuredTraces, peakFits } from '../../server/db/schema/fits.js';
@@ -169,6 +169,20 @@ describe('group backup and restore', () => {
     expect(res.body.restored).toMatchObject({ models: 2, modelVersions: 3, runs: 4, resonances: 3 * reference.poles.length, measuredTrace: 1, peakFit: 1, fittedResonance: 1, resonanceCurrent: 3 * poleCurrents, modeMap: 1 });
     // Row by row in the database too: the same counts, but for the queued map left out.
     expect(await groupRowCounts(target.groupId)).toEqual({ ...(await groupRowCounts(source.groupId)), maps: 1 });
+    // The derived figures stored with each version are not in the archive: the restore
+    // computes them again from the document, the same as the source's.
+    const figures = async (groupId: string) =>
+      (
+        await app.handle.db
+          .select({ name: cavityModels.name, version: modelVersions.version, derived: modelVersions.derived })
+          .from(modelVersions)
+          .innerJoin(cavityModels, eq(cavityModels.id, modelVersions.modelId))
+          .where(eq(modelVersions.groupId, groupId))
+      ).sort((x, y) => x.name.localeCompare(y.name) || x.version - y.version);
+    const restoredFigures = await figures(target.groupId);
+    expect(restoredFigures).toHaveLength(3);
+    expect(restoredFigures.every((f) => f.derived !== null)).toBe(true);
+    expect(restoredFigures).toEqual(await figures(source.groupId));
 
     const again = await download(targetAdmin, target);
     const a = normalised(archive);
