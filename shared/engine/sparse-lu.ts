@@ -10,7 +10,9 @@
  * log det, pivot ratio with a finished factorisation).
  *
  * Analysis (once per pattern, SparseLuPlan.analyse):
- *  1. nested-dissection ordering (ordering.ts), geometric when sites are given;
+ *  1. a fill-reducing ordering: nested dissection (ordering.ts, geometric when sites
+ *     are given) and approximate minimum degree (minimum-degree.ts), steps 2–4 run for
+ *     both and the one predicting fewer flops kept;
  *  2. elimination tree of the symmetric pattern (Liu 1986, ACM TOMS 12), postorder;
  *  3. column counts of L by row subtrees, fundamental supernodes, then relaxed
  *     amalgamation of small supernodes into their parents (fewer, larger dense
@@ -52,6 +54,7 @@ import { wasmKernelAvailable } from './front-kernel-wasm';
 import { NumericFactorisation } from './lu-numeric-factorisation';
 import type { SparseLuFactors } from './lu-solves';
 import { analyseFronts } from './lu-symbolic-analysis';
+import { minimumDegreeOrder } from './minimum-degree';
 import { invertPermutation, nestedDissectionOrder, symmetricAdjacency } from './ordering';
 
 export { SingularMatrixError } from './lu-numeric-factorisation';
@@ -60,8 +63,14 @@ export type { SparseLuFactors } from './lu-solves';
 export interface LuPlanOptions {
   /** Lattice coordinates (column i, row j) of every unknown → geometric nested dissection. */
   sites?: { i: Int32Array; j: Int32Array };
-  /** An elimination order to use instead of nested dissection: perm[k] = original index of the k-th pivot. */
+  /** An elimination order to use instead of computing one: perm[k] = original index of the k-th pivot. */
   permutation?: ArrayLike<number>;
+  /**
+   * Which fill-reducing ordering to compute (without a permutation): 'auto' (default)
+   * computes nested dissection and approximate minimum degree and keeps the one whose
+   * symbolic analysis predicts fewer flops; or one of them alone.
+   */
+  ordering?: 'auto' | 'nested-dissection' | 'minimum-degree';
   /** Threshold u in (0, 1] of the pivot test |a_rp| ≥ u·max|a_·p| (default 0.1; 1 = partial pivoting within fronts). */
   pivotThreshold?: number;
   /**
@@ -129,9 +138,23 @@ export class SparseLuPlan {
       perm0 = Int32Array.from(options.permutation);
       invertPermutation(perm0, 'SparseLuPlan.analyse: permutation');
     } else {
-      perm0 = nestedDissectionOrder(graph, options.sites);
+      perm0 = new Int32Array(0);
     }
-    const { perm, symbolic } = analyseFronts(graph, perm0, colPtr, rowIdx);
+    const ordering = options.ordering ?? 'auto';
+    if (!['auto', 'nested-dissection', 'minimum-degree'].includes(ordering)) {
+      throw new RangeError(`SparseLuPlan.analyse: ordering must be 'auto', 'nested-dissection' or 'minimum-degree', got ${String(ordering)}`);
+    }
+    let analysed: ReturnType<typeof analyseFronts>;
+    if (options.permutation) analysed = analyseFronts(graph, perm0, colPtr, rowIdx);
+    else {
+      // The analysis costs far less than the thousands of factorisations a plan serves,
+      // so with 'auto' both orderings are analysed and the one predicting fewer flops kept.
+      const candidates: ReturnType<typeof analyseFronts>[] = [];
+      if (ordering !== 'minimum-degree') candidates.push(analyseFronts(graph, nestedDissectionOrder(graph, options.sites), colPtr, rowIdx));
+      if (ordering !== 'nested-dissection') candidates.push(analyseFronts(graph, minimumDegreeOrder(graph), colPtr, rowIdx));
+      analysed = candidates.reduce((best, c) => (c.symbolic.factorFlops < best.symbolic.factorFlops ? c : best));
+    }
+    const { perm, symbolic } = analysed;
     const kernel = options.denseKernel ?? (wasmKernelAvailable() ? 'wasm' : 'typescript');
     const numeric = new NumericFactorisation(n, perm, symbolic, threshold, kernel);
     return new SparseLuPlan(n, colPtr[n], perm, numeric, {
