@@ -15,7 +15,7 @@
  * Complex M×M matrices are row-major interleaved Float64Arrays.
  * Cost: O(q·m²M³) for the fit with q samples, O(mM² + M³) per evaluation.
  */
-import { complexSvd } from './beyn';
+import { complexSvd } from './complex-svd';
 
 export interface BlockRational {
   /** Matrix size M. */

@@ -1,7 +1,7 @@
 /**
  * The rectangular contour of one piece of the pole window, as a closed chain of
  * straight panels, each carrying a q-point Gauss–Legendre rule. The same nodes
- * serve the contour integral (beyn.ts) and the argument-principle count
+ * serve the contour integral (contour-eigenvalues.ts) and the argument-principle count
  * (argument-principle.ts), so every LU factorisation is used twice.
  *
  * Composite Gauss–Legendre is used rather than the trapezoidal rule because the

@@ -1,7 +1,9 @@
 import { describe, expect, it } from 'vitest';
 import { gaussLegendre, rectangleContour, panelPoints, PANEL_ORDER, type Contour } from '../../shared/engine/contour';
 import { phaseSteps, settleWinding, wrapPhase } from '../../shared/engine/argument-principle';
-import { complexEigenvalues, complexSvd, contourEigenvalues } from '../../shared/engine/beyn';
+import { complexEigenvalues } from '../../shared/engine/complex-eigenvalues';
+import { complexSvd } from '../../shared/engine/complex-svd';
+import { contourEigenvalues } from '../../shared/engine/contour-eigenvalues';
 
 /** Deterministic pseudo-random numbers for the test matrices (common practice, no source). */
 function lcg(seed: number): () => number {

@@ -1,0 +1,455 @@
+/**
+ * Numeric factorisation of the multifrontal sparse LU (sparse-lu.ts), thousands of
+ * times per pattern: fronts in postorder; each is assembled from the matrix entries
+ * and its children's contribution blocks (extend-add), its fully-summed block is
+ * factorised by factorFront (dense-complex.ts, or its WebAssembly port), the Schur
+ * complement goes on a stack for the parent, except for a parent's last child
+ * (postorder puts the parent right after it): two front buffers alternate, so that
+ * block is extend-added in place. Pivoting and delays are described in sparse-lu.ts.
+ */
+import { factorFront } from './dense-complex';
+import { WasmFrontKernel } from './front-kernel-wasm';
+import { SolveScratch, SparseLuFactors } from './lu-solves';
+import type { SymbolicFronts } from './lu-symbolic-analysis';
+
+/** Thrown when a pivot column is exactly zero after elimination: the matrix is exactly singular. */
+export class SingularMatrixError extends Error {
+  /** Original index of the unknown whose column had no nonzero pivot. */
+  readonly column: number;
+  constructor(column: number, detail: string) {
+    super(`The matrix is exactly singular: ${detail}`);
+    this.name = 'SingularMatrixError';
+    this.column = column;
+  }
+}
+
+/**
+ * The numeric phase of one plan: its front structure and the work buffers every
+ * factorisation of the plan shares (factor() is synchronous, so one runs at a time).
+ */
+export class NumericFactorisation {
+  readonly n: number;
+  /** perm[k] = original index of the unknown with label k. */
+  private readonly perm: Int32Array;
+  private readonly threshold: number;
+  private readonly factorNonzeros: number;
+  // Supernodes, numbered in postorder; pivots of s are labels first[s]..first[s+1]-1.
+  private readonly first: Int32Array;
+  private readonly parent: Int32Array;
+  private readonly childPtr: Int32Array;
+  private readonly childList: Int32Array;
+  private readonly nonfsPtr: Int32Array;
+  private readonly nonfs: Int32Array;
+  /** For child c: position of each of its non-fully-summed indices in its parent's symbolic front. */
+  private readonly relMap: Int32Array;
+  private readonly asmPtr: Int32Array;
+  private readonly asmEntry: Int32Array;
+  private readonly asmRow: Int32Array;
+  private readonly asmCol: Int32Array;
+  // Scratch shared by factorisations (factor() is synchronous, so one at a time).
+  private frontA: Float64Array;
+  private frontB: Float64Array;
+  private readonly cbDim: Int32Array;
+  private readonly cbStart: Float64Array;
+  private readonly cbLd: Int32Array;
+  private readonly delayOut: Int32Array;
+  private readonly delayStart: Int32Array;
+  /** Work arrays of the solves, shared by every factorisation of this plan (solves are synchronous too). */
+  private readonly scratch = new SolveScratch();
+  private cbStack: Float64Array;
+  private delayStack: Int32Array;
+  private map: Int32Array;
+  private runs: Int32Array;
+  private save: Float64Array;
+  private rowList: Int32Array;
+  private colList: Int32Array;
+  private storeHint = 0;
+  private indexHint = 0;
+  /** The WebAssembly kernel, whose memory holds frontA, frontB, save, rowList and colList; null for the TypeScript kernel. */
+  private readonly wasm: WasmFrontKernel | null;
+  /** Byte offsets of those buffers in the kernel's memory, and the front dimension they hold. */
+  private wsA = 0;
+  private wsB = 0;
+  private wsSave = 0;
+  private wsRows = 0;
+  private wsCols = 0;
+  private wsCap = 0;
+  private wsMap = 0;
+  private wsRuns = 0;
+  private wsCb = 0;
+  private wsCbLength = 0;
+
+  private readonly frontCount: number;
+
+  constructor(n: number, perm: Int32Array, s: SymbolicFronts, threshold: number, kernel: 'wasm' | 'typescript') {
+    this.n = n;
+    this.perm = perm;
+    this.threshold = threshold;
+    this.first = s.first;
+    this.parent = s.parent;
+    this.childPtr = s.childPtr;
+    this.childList = s.childList;
+    this.nonfsPtr = s.nonfsPtr;
+    this.nonfs = s.nonfs;
+    this.relMap = s.relMap;
+    this.asmPtr = s.asmPtr;
+    this.asmEntry = s.asmEntry;
+    this.asmRow = s.asmRow;
+    this.asmCol = s.asmCol;
+    this.factorNonzeros = s.factorNonzeros;
+    this.frontCount = s.first.length - 1;
+    const mx = Math.max(1, s.maxFront);
+    // (with the WebAssembly kernel these live in its memory: growWorkspace below)
+    const dense = kernel === 'wasm' ? 0 : 2 * mx * mx;
+    this.frontA = new Float64Array(dense);
+    this.frontB = new Float64Array(dense);
+    const ns = this.frontCount;
+    this.cbDim = new Int32Array(ns);
+    this.cbStart = new Float64Array(ns);
+    this.cbLd = new Int32Array(ns);
+    this.delayOut = new Int32Array(ns);
+    this.delayStart = new Int32Array(ns);
+    this.cbStack = new Float64Array(2 * Math.max(1, s.stackPeak));
+    this.delayStack = new Int32Array(64);
+    this.map = new Int32Array(Math.max(1, n));
+    this.runs = new Int32Array(3 * Math.max(1, n));
+    this.save = new Float64Array(2 * mx);
+    this.rowList = new Int32Array(mx);
+    this.colList = new Int32Array(mx);
+    this.wasm = kernel === 'wasm' ? new WasmFrontKernel() : null;
+    if (this.wasm) {
+      // The contribution-block stack, map and runs live in the kernel's memory too (extend-add runs there).
+      this.wsMap = this.wasm.reserve(4 * this.map.length);
+      this.wsRuns = this.wasm.reserve(4 * this.runs.length);
+      this.wsCbLength = this.cbStack.length;
+      this.wsCb = this.wasm.reserve(8 * this.wsCbLength);
+      this.cbStack = new Float64Array(0);
+      this.growWorkspace(mx);
+    }
+  }
+
+
+  /** Which dense kernel this plan's factorisations use. */
+  get denseKernel(): 'wasm' | 'typescript' {
+    return this.wasm ? 'wasm' : 'typescript';
+  }
+
+  /**
+   * Places the front buffers in the WebAssembly kernel's memory for fronts up to m,
+   * keeping the contents of both front buffers (one may hold the Schur complement the
+   * next front reads). Growing detaches the old views, so all are taken again.
+   */
+  private growWorkspace(m: number): void {
+    const wasm = this.wasm!;
+    const old = this.wsCap;
+    const oldA = this.wsA;
+    const oldB = this.wsB;
+    this.wsA = wasm.reserve(16 * m * m);
+    this.wsB = wasm.reserve(16 * m * m);
+    this.wsSave = wasm.reserve(16 * m);
+    this.wsRows = wasm.reserve(4 * m);
+    this.wsCols = wasm.reserve(4 * m);
+    this.wsCap = m;
+    if (old > 0) {
+      wasm.f64(this.wsA, 2 * old * old).set(wasm.f64(oldA, 2 * old * old));
+      wasm.f64(this.wsB, 2 * old * old).set(wasm.f64(oldB, 2 * old * old));
+    }
+    this.takeViews();
+  }
+
+  /** A larger contribution-block stack in the kernel's memory, keeping its first `keep` doubles. */
+  private growCbStack(need: number, keep: number): void {
+    const wasm = this.wasm!;
+    const length = Math.max(need, Math.ceil(this.wsCbLength * 1.5));
+    const old = this.wsCb;
+    this.wsCb = wasm.reserve(8 * length);
+    this.wsCbLength = length;
+    wasm.f64(this.wsCb, keep).set(wasm.f64(old, keep));
+    this.takeViews();
+  }
+
+  /** Fresh views of every buffer in the kernel's memory (growing it detaches the old ones). */
+  private takeViews(): void {
+    const wasm = this.wasm!;
+    const m = this.wsCap;
+    this.frontA = wasm.f64(this.wsA, 2 * m * m);
+    this.frontB = wasm.f64(this.wsB, 2 * m * m);
+    this.save = wasm.f64(this.wsSave, 2 * m);
+    this.rowList = wasm.i32(this.wsRows, m);
+    this.colList = wasm.i32(this.wsCols, m);
+    // (lengths as in the constructor: a detached view's length reads 0)
+    this.map = wasm.i32(this.wsMap, Math.max(1, this.n));
+    this.runs = wasm.i32(this.wsRuns, 3 * Math.max(1, this.n));
+    this.cbStack = wasm.f64(this.wsCb, this.wsCbLength);
+  }
+
+  /**
+   * Numeric factorisation of the matrix with the analysed pattern and these CSC
+   * values (interleaved re, im, length 2·nnz). The result owns its storage, so
+   * several factorisations of one plan can be alive at once.
+   *
+   * reuse: a factorisation of this plan that the caller no longer needs; its
+   * storage is taken over (no fresh 16·factorNonzeros bytes to allocate and fault
+   * in) and it is released: its solve, solveTranspose, logDet and pivotRatio
+   * throw from then on. Results are the same with and without reuse.
+   * Cost: about factorFlops real flops, 16·factorNonzeros bytes. Values are
+   * checked by SparseLuPlan.factor.
+   * @throws Error for a reuse from another plan or already released
+   * @throws SingularMatrixError when a pivot column is exactly zero
+   */
+  factor(values: Float64Array, reuse?: SparseLuFactors): SparseLuFactors {
+    const ns = this.frontCount;
+    const { first, parent, childPtr, childList, nonfsPtr, nonfs, relMap, asmPtr, asmEntry, asmRow, asmCol } = this;
+    const wasm = this.wasm;
+    let valOff: Float64Array;
+    let idxOff: Int32Array;
+    let frontDim: Int32Array;
+    let pivots: Int32Array;
+    let store: Float64Array;
+    let index: Int32Array;
+    if (reuse) {
+      const taken = reuse.takeStorage(this.scratch);
+      ({ valOff, idxOff, frontDim, pivots, store, index } = taken);
+    } else {
+      valOff = new Float64Array(ns + 1);
+      idxOff = new Int32Array(ns + 1);
+      frontDim = new Int32Array(ns);
+      pivots = new Int32Array(ns);
+      // Delayed pivots enlarge fronts beyond the prediction; the plan remembers the largest
+      // storage any factorisation needed so later ones allocate once instead of growing.
+      store = new Float64Array(Math.max(this.storeHint, 2 * this.factorNonzeros));
+      index = new Int32Array(Math.max(this.indexHint, 2 * (this.nonfs.length + this.n)));
+    }
+    // Per supernode: its contribution block (where it starts, its column stride), how many of its rows/columns are delayed.
+    const { cbDim, cbStart, cbLd, delayOut, delayStart } = this;
+    let cbTop = 0;
+    let delayTop = 0;
+    let delayed = 0;
+    let valTop = 0;
+    let idxTop = 0;
+    // The front just finished, when its parent is the next front: its Schur complement
+    // is extend-added straight from there instead of going through the stack.
+    let prevFront: Float64Array = this.frontB;
+    let prevDirect = -1;
+
+    for (let s = 0; s < ns; s++) {
+      const f0 = first[s];
+      const k = first[s + 1] - f0;
+      const c0 = childPtr[s];
+      const c1 = childPtr[s + 1];
+      let d = 0;
+      for (let t = c0; t < c1; t++) d += delayOut[childList[t]];
+      const nf0 = nonfsPtr[s];
+      const nfLen = nonfsPtr[s + 1] - nf0;
+      const m = k + d + nfLen;
+      const kFs = k + d;
+      // Two front buffers in turn, so the previous front's Schur complement stays readable.
+      // (the stack top only drops before this front's block is pushed: cbTop + m² doubles suffice)
+      if (wasm && (m > this.wsCap || cbTop + 2 * m * m > this.wsCbLength)) {
+        const prevIsA = prevFront === this.frontA;
+        if (m > this.wsCap) this.growWorkspace(m);
+        if (cbTop + 2 * m * m > this.wsCbLength) this.growCbStack(cbTop + 2 * m * m, cbTop);
+        prevFront = prevIsA ? this.frontA : this.frontB;
+      }
+      const map = this.map;
+      let F = prevFront === this.frontA ? this.frontB : this.frontA;
+      if (F.length < 2 * m * m) {
+        F = new Float64Array(2 * m * m);
+        if (prevFront === this.frontA) this.frontB = F;
+        else this.frontA = F;
+      }
+      if (this.rowList.length < m) this.growLists(m);
+      const rowList = this.rowList;
+      const colList = this.colList;
+      F.fill(0, 0, 2 * m * m);
+      for (let q = 0; q < k; q++) {
+        rowList[q] = f0 + q;
+        colList[q] = f0 + q;
+      }
+      for (let q = 0; q < nfLen; q++) {
+        rowList[kFs + q] = nonfs[nf0 + q];
+        colList[kFs + q] = nonfs[nf0 + q];
+      }
+      // Matrix entries whose first eliminated index lies in this front.
+      for (let a = asmPtr[s]; a < asmPtr[s + 1]; a++) {
+        let lr = asmRow[a];
+        let lc = asmCol[a];
+        if (lr >= k) lr += d;
+        if (lc >= k) lc += d;
+        const e = asmEntry[a];
+        const o = 2 * (lc * m + lr);
+        F[o] += values[2 * e];
+        F[o + 1] += values[2 * e + 1];
+      }
+      // Extend-add of the children's contribution blocks (on top of the stack, in order,
+      // except the last child's when it is still in the other front buffer).
+      let off = 0;
+      // (a block read in place was never pushed, so it does not move the stack top)
+      const firstChildStart = c1 > c0 && childList[c0] !== prevDirect ? cbStart[childList[c0]] : cbTop;
+      const firstDelayStart = c1 > c0 ? delayStart[childList[c0]] : delayTop;
+      for (let t = c0; t < c1; t++) {
+        const c = childList[t];
+        const mc = cbDim[c];
+        const dc = delayOut[c];
+        const ds = delayStart[c];
+        for (let q = 0; q < dc; q++) {
+          map[q] = k + off + q;
+          rowList[k + off + q] = this.delayStack[ds + q];
+          colList[k + off + q] = this.delayStack[ds + dc + q];
+        }
+        const rp = nonfsPtr[c];
+        for (let q = dc; q < mc; q++) {
+          const rel = relMap[rp + q - dc];
+          map[q] = rel < k ? rel : rel + d;
+        }
+        off += dc;
+        const cb = c === prevDirect ? prevFront : this.cbStack;
+        const ld = cbLd[c];
+        // Runs of consecutive parent positions (separators are labelled contiguously), so
+        // each column is added in a few contiguous stretches: [child offset, parent offset, length]·2.
+        const runs = this.runs;
+        let nRuns = 0;
+        for (let ii = 0; ii < mc; ) {
+          let len = 1;
+          while (ii + len < mc && map[ii + len] === map[ii] + len) len++;
+          runs[3 * nRuns] = 2 * ii;
+          runs[3 * nRuns + 1] = 2 * map[ii];
+          runs[3 * nRuns + 2] = 2 * len;
+          nRuns++;
+          ii += len;
+        }
+        if (wasm) {
+          const at = c === prevDirect ? (prevFront === this.frontA ? this.wsA : this.wsB) : this.wsCb;
+          wasm.extendAdd(F === this.frontA ? this.wsA : this.wsB, m, at + 8 * cbStart[c], ld, mc, this.wsMap, this.wsRuns, nRuns);
+          continue;
+        }
+        let src = cbStart[c];
+        for (let jj = 0; jj < mc; jj++) {
+          const dst = 2 * map[jj] * m;
+          for (let g = 0; g < 3 * nRuns; g += 3) {
+            const a = src + runs[g];
+            const o = dst + runs[g + 1];
+            const len = runs[g + 2];
+            for (let q = 0; q < len; q++) F[o + q] += cb[a + q];
+          }
+          src += ld;
+        }
+      }
+      cbTop = firstChildStart;
+      delayTop = firstDelayStart;
+
+      let done: number;
+      if (this.wasm) {
+        done = this.wasm.factorFront(F === this.frontA ? this.wsA : this.wsB, m, kFs, this.threshold, this.wsRows, this.wsCols, this.wsSave);
+      } else {
+        if (this.save.length < 2 * m) this.save = new Float64Array(2 * m);
+        done = factorFront(F, m, kFs, this.threshold, rowList, colList, this.save);
+      }
+      if (parent[s] < 0 && done < kFs) {
+        const col = this.perm[colList[done]];
+        throw new SingularMatrixError(col, `no nonzero pivot is left for column ${col} (front ${s} of ${ns}, ${done} of ${kFs} pivots eliminated)`);
+      }
+
+      // Keep L (m×done) and U12 (done×(m−done)) of this front.
+      const need = valTop + 2 * done * (2 * m - done);
+      if (need > store.length) store = growFloat(store, need);
+      // The L panel is contiguous in F (one native copy); U12 is strided.
+      const lLen = 2 * done * m;
+      store.set(F.subarray(0, lLen), valTop);
+      const uLen = 2 * done;
+      if (wasm && done > 0 && m > done) {
+        // U12 packed by the kernel into the free part of the block stack above its top
+        // (there is room: the stack was sized for cbTop + m² above), then one native copy.
+        const uCount = uLen * (m - done);
+        wasm.copyColumns(this.wsCb + 8 * cbTop, (F === this.frontA ? this.wsA : this.wsB) + 8 * lLen, 8 * uLen, m - done, 16 * m);
+        store.set(this.cbStack.subarray(cbTop, cbTop + uCount), valTop + lLen);
+      } else {
+        let u = valTop + lLen;
+        for (let c = done; c < m; c++) {
+          const src = 2 * c * m;
+          for (let q = 0; q < uLen; q++) store[u + q] = F[src + q];
+          u += uLen;
+        }
+      }
+      if (idxTop + 2 * m > index.length) index = growInt(index, idxTop + 2 * m);
+      // Original unknowns (not labels), so solves need no permuted copy of b.
+      const perm = this.perm;
+      for (let q = 0; q < m; q++) {
+        index[idxTop + q] = perm[rowList[q]];
+        index[idxTop + m + q] = perm[colList[q]];
+      }
+      valOff[s] = valTop;
+      idxOff[s] = idxTop;
+      frontDim[s] = m;
+      pivots[s] = done;
+      valTop = need;
+      idxTop += 2 * m;
+
+      // The Schur complement and the delayed rows/columns for the parent.
+      const mc = m - done;
+      cbDim[s] = mc;
+      delayOut[s] = kFs - done;
+      delayStart[s] = delayTop;
+      prevFront = F;
+      prevDirect = -1;
+      if (mc > 0 && parent[s] === s + 1) {
+        // Postorder puts a parent right after its last child: read this block in place.
+        cbStart[s] = 2 * (done * m + done);
+        cbLd[s] = 2 * m;
+        prevDirect = s;
+      } else if (mc > 0) {
+        cbStart[s] = cbTop;
+        cbLd[s] = 2 * mc;
+        if (wasm) {
+          wasm.copyColumns(this.wsCb + 8 * cbTop, (F === this.frontA ? this.wsA : this.wsB) + 16 * (done * m + done), 16 * mc, mc, 16 * m);
+          cbTop += 2 * mc * mc;
+        } else {
+          if (cbTop + 2 * mc * mc > this.cbStack.length) this.cbStack = growFloat(this.cbStack, cbTop + 2 * mc * mc);
+          const cb = this.cbStack;
+          let dst = cbTop;
+          for (let c = done; c < m; c++) {
+            const src = 2 * (c * m + done);
+            for (let q = 0; q < 2 * mc; q++) cb[dst + q] = F[src + q];
+            dst += 2 * mc;
+          }
+          cbTop = dst;
+        }
+      } else {
+        cbStart[s] = cbTop;
+        cbLd[s] = 0;
+      }
+      const dOut = kFs - done;
+      delayed += dOut;
+      if (dOut > 0) {
+        if (delayTop + 2 * dOut > this.delayStack.length) this.delayStack = growInt(this.delayStack, delayTop + 2 * dOut);
+        for (let q = 0; q < dOut; q++) {
+          this.delayStack[delayTop + q] = rowList[done + q];
+          this.delayStack[delayTop + dOut + q] = colList[done + q];
+        }
+        delayTop += 2 * dOut;
+      }
+    }
+    valOff[ns] = valTop;
+    idxOff[ns] = idxTop;
+    if (valTop > this.storeHint) this.storeHint = valTop;
+    if (idxTop > this.indexHint) this.indexHint = idxTop;
+    return new SparseLuFactors(this.n, store, index, valOff, idxOff, frontDim, pivots, delayed, this.scratch);
+  }
+
+  private growLists(m: number): void {
+    this.rowList = new Int32Array(m);
+    this.colList = new Int32Array(m);
+  }
+}
+
+function growFloat(a: Float64Array, need: number): Float64Array<ArrayBuffer> {
+  const b = new Float64Array(Math.max(need, Math.ceil(a.length * 1.5)));
+  b.set(a);
+  return b;
+}
+
+function growInt(a: Int32Array, need: number): Int32Array<ArrayBuffer> {
+  const b = new Int32Array(Math.max(need, Math.ceil(a.length * 1.5)));
+  b.set(a);
+  return b;
+}
