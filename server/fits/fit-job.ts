@@ -5,12 +5,10 @@
  * Idempotent: each try claims the fit with attempt + 1 and writes only while the attempt is
  * its own, replacing the fit's catalogue rows.
  */
-import { and, eq, inArray, sql } from 'drizzle-orm';
 import type PgBoss from 'pg-boss';
 import type { Db } from '../db/client.js';
-import { peakFits } from '../db/schema/fits.js';
 import { FIT_QUEUE } from '../jobs/queues.js';
-import { notifyFit } from './fit-notify.js';
+import { fitStore } from './fit-store.js';
 import { failFit, FitService, writeFitResult, type FitQueue, type FitRequest } from './fit-service.js';
 import { runFitInThread } from './fit-thread-runner.js';
 
@@ -27,50 +25,43 @@ export function fitQueue(boss: PgBoss): FitQueue {
   };
 }
 
-/** Computes one queued fit. Throws when the computation failed (pg-boss retries it). */
+/**
+ * Computes one queued fit. Claims it (attempt + 1), beats its heartbeat while the thread
+ * computes, and writes its end (result or failure) only while the attempt still owns the
+ * fit (fit-store.ts): a worker that lost the fit to the supervisor and ends late writes nothing.
+ */
 export async function handleFitJob(db: Db, fitId: string, log: (m: string) => void = () => {}): Promise<void> {
-  const [claimed] = await db
-    .update(peakFits)
-    .set({ status: 'running', attempt: sql`${peakFits.attempt} + 1`, progressFraction: 0, error: null, heartbeatAt: new Date() })
-    .where(and(eq(peakFits.id, fitId), inArray(peakFits.status, ['queued', 'running'])))
-    .returning({ attempt: peakFits.attempt, groupId: peakFits.groupId, request: peakFits.request });
+  const claimed = await fitStore.startAttempt(db, fitId);
   if (!claimed) return; // finished or gone: nothing to do
-  await notifyFit(db, fitId);
+  const attempt = claimed.attempt;
   const service = new FitService(db, null);
   let task;
   try {
     task = await service.taskOf(fitId, claimed.groupId, claimed.request as unknown as FitRequest);
   } catch (err) {
-    await failFit(db, [fitId], err instanceof Error ? err.message : String(err));
+    await failFit(db, fitId, attempt, err instanceof Error ? err.message : String(err));
     return;
   }
   // The heartbeat tells the fit supervisor (server/jobs/fit-supervisor.ts) this worker lives.
+  let pending: number | undefined;
+  let lastProgress = 0;
   const heartbeat = setInterval(() => {
-    void db
-      .update(peakFits)
-      .set({ heartbeatAt: new Date() })
-      .where(and(eq(peakFits.id, fitId), eq(peakFits.attempt, claimed.attempt), eq(peakFits.status, 'running')))
-      .catch(() => {});
+    const fraction = pending;
+    pending = undefined;
+    void fitStore.beat(db, fitId, attempt, fraction).catch(() => {});
   }, FIT_HEARTBEAT_MS);
-  let lastWrite = 0;
   const result = await runFitInThread(task, (fraction) => {
     const now = Date.now();
-    if (now - lastWrite < 1000) return;
-    lastWrite = now;
-    void db
-      .update(peakFits)
-      .set({ progressFraction: Math.min(0.99, fraction) })
-      .where(and(eq(peakFits.id, fitId), eq(peakFits.attempt, claimed.attempt)))
-      .then(() => notifyFit(db, fitId))
-      .catch(() => {});
+    if (now - lastProgress < 1000) return;
+    lastProgress = now;
+    pending = Math.min(0.99, fraction);
   }).catch(async (err: Error) => {
-    await failFit(db, [fitId], err.message);
-    log(`fit ${fitId} failed: ${err.message}`);
+    if (await failFit(db, fitId, attempt, err.message)) log(`fit ${fitId} failed: ${err.message}`);
     return null;
   }).finally(() => clearInterval(heartbeat));
   if (!result) return;
-  await db.transaction((tx) => writeFitResult(tx, fitId, claimed.attempt, result));
-  await notifyFit(db, fitId);
+  const written = await db.transaction((tx) => writeFitResult(tx, fitId, attempt, result));
+  if (!written) log(`fit ${fitId}: attempt ${attempt} was superseded; its result was discarded`);
 }
 
 /** Subscribes this process to the `peak-fit` queue. */

@@ -27,7 +27,7 @@ import {
   polesNear,
   runWithSpectrum,
 } from './fit-repository.js';
-import { notifyFit } from './fit-notify.js';
+import { fitStore } from './fit-store.js';
 import { FitThreadError, runFitInThread } from './fit-thread-runner.js';
 import type { FitTask } from './fit-thread.js';
 
@@ -245,20 +245,7 @@ export class FitService {
         throw err;
       }
       const id = await this.db.transaction(async (tx) => {
-        const [row] = await tx
-          .insert(peakFits)
-          .values({
-            groupId,
-            runId: req.source.kind === 'run' ? req.source.runId : null,
-            traceId: req.source.kind === 'trace' ? req.source.traceId : null,
-            modelId: inputs.modelId,
-            modelVersionId: inputs.modelVersionId,
-            request: req as unknown as Record<string, unknown>,
-            status: 'running',
-            attempt: 1,
-            createdBy: actorId,
-          })
-          .returning({ id: peakFits.id });
+        const row = { id: await fitStore.create(tx, this.fitValues(groupId, actorId, req, inputs), true) };
         await writeAudit(tx, { groupId, actorId, action: 'fit.created', subject: `${req.lineshape} fit of ${inputs.origin}`, details: { fitId: row.id, queued: false } });
         await writeFitResult(tx, row.id, 1, result);
         return row.id;
@@ -266,26 +253,25 @@ export class FitService {
       return { status: 201, fit: await this.detail(groupId, id) };
     }
     const id = await this.db.transaction(async (tx) => {
-      const [row] = await tx
-        .insert(peakFits)
-        .values({
-          groupId,
-          runId: req.source.kind === 'run' ? req.source.runId : null,
-          traceId: req.source.kind === 'trace' ? req.source.traceId : null,
-          modelId: inputs.modelId,
-          modelVersionId: inputs.modelVersionId,
-          request: req as unknown as Record<string, unknown>,
-          status: 'queued',
-          progressFraction: 0,
-          createdBy: actorId,
-        })
-        .returning({ id: peakFits.id });
+      const row = { id: await fitStore.create(tx, this.fitValues(groupId, actorId, req, inputs), false) };
       await writeAudit(tx, { groupId, actorId, action: 'fit.created', subject: `${req.lineshape} fit of ${inputs.origin}`, details: { fitId: row.id, queued: true } });
       return row.id;
     });
     const jobId = await this.queue!.enqueue(id);
-    await this.db.update(peakFits).set({ jobId }).where(eq(peakFits.id, id));
+    await fitStore.attachJob(this.db, id, jobId);
     return { status: 202, fit: await this.detail(groupId, id) };
+  }
+
+  private fitValues(groupId: string, actorId: string, req: FitRequest, inputs: { modelId: string | null; modelVersionId: string | null }) {
+    return {
+      groupId,
+      runId: req.source.kind === 'run' ? req.source.runId : null,
+      traceId: req.source.kind === 'trace' ? req.source.traceId : null,
+      modelId: inputs.modelId,
+      modelVersionId: inputs.modelVersionId,
+      request: req as unknown as Record<string, unknown>,
+      createdBy: actorId,
+    };
   }
 
   async list(groupId: string) {
@@ -323,8 +309,8 @@ export class FitService {
  * replaced. Returns false when the attempt was stale.
  */
 export async function writeFitResult(tx: Queryable, fitId: string, attempt: number, result: FitResult): Promise<boolean> {
-  const [fit] = await tx.select().from(peakFits).where(eq(peakFits.id, fitId)).for('update');
-  if (!fit || fit.attempt !== attempt || fit.status !== 'running') return false;
+  const fit = await fitStore.lockAttempt(tx, fitId, attempt);
+  if (!fit) return false;
   const req = fit.request as unknown as FitRequest;
   let positionComparable = true;
   let origin = '';
@@ -350,10 +336,7 @@ export async function writeFitResult(tx: Queryable, fitId: string, attempt: numb
       versionId ??= (await latestVersionId(tx, fit.modelId)) ?? null;
     }
   }
-  await tx
-    .update(peakFits)
-    .set({ status: 'completed', progressFraction: 1, result, comparison, modelVersionId: versionId, finishedAt: new Date(), error: null })
-    .where(eq(peakFits.id, fitId));
+  await fitStore.complete(tx, fitId, attempt, { result, comparison, modelVersionId: versionId });
   await tx.delete(resonances).where(and(eq(resonances.fitId, fitId), eq(resonances.source, 'fitted')));
   if (!versionId) return true;
   const mv = await modelVersionColumns(tx, versionId);
@@ -423,9 +406,7 @@ async function versionOfRun(q: Queryable, runId: string): Promise<string | undef
   return (rows.rows[0] as { model_version_id?: string } | undefined)?.model_version_id;
 }
 
-/** Marks fits failed with a message (used by the worker). */
-export async function failFit(db: Db, fitIds: string[], message: string): Promise<void> {
-  if (fitIds.length === 0) return;
-  await db.update(peakFits).set({ status: 'failed', error: message, finishedAt: new Date() }).where(inArray(peakFits.id, fitIds));
-  for (const id of fitIds) await notifyFit(db, id);
+/** Ends a fit's attempt as failed (used by the worker); false when the attempt no longer owns the fit. */
+export async function failFit(db: Queryable, fitId: string, attempt: number, message: string): Promise<boolean> {
+  return fitStore.fail(db, fitId, message, attempt);
 }

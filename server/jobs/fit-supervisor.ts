@@ -1,7 +1,7 @@
 import { sql } from 'drizzle-orm';
 import type PgBoss from 'pg-boss';
 import type { Db, Queryable } from '../db/client.js';
-import { notifyFit } from '../fits/fit-notify.js';
+import { fitStore } from '../fits/fit-store.js';
 import { bossDb, jobsAffected } from './boss-in-transaction.js';
 import { FIT_QUEUE } from './queues.js';
 
@@ -43,13 +43,9 @@ export async function superviseFits(o: FitSupervisorOptions): Promise<FitSupervi
   for (const { id } of lost.rows) {
     try {
       await o.db.transaction(async (tx) => {
-        const claimed = await tx.execute<FitRef>(sql`
-          update peak_fits set status = 'queued',
-            error = 'the worker of attempt ' || attempt || ' stopped answering; the fit was put back in the queue'
-          where id = ${id} and status = 'running' and heartbeat_at < now() - make_interval(secs => ${stale})
-          returning id, job_id, attempt`);
-        const fit = claimed.rows[0];
-        if (!fit) return; // another supervisor, or the attempt itself, got there first
+        const lostFit = await fitStore.requeueLost(tx, id, stale);
+        if (!lostFit) return; // another supervisor, or the attempt itself, got there first
+        const fit: FitRef = { id: lostFit.id, job_id: lostFit.jobId, attempt: lostFit.attempt };
         report.handedOn++;
         const failed = fit.job_id ? jobsAffected(await o.boss.fail(FIT_QUEUE.name, fit.job_id, { reason: 'worker lost' }, { db: bossDb(tx) })) : 0;
         if (failed === 0) {
@@ -64,7 +60,6 @@ export async function superviseFits(o: FitSupervisorOptions): Promise<FitSupervi
             o.log?.(`fit ${fit.id}: worker lost during attempt ${fit.attempt}; job ${fit.job_id} will be retried`);
           }
         }
-        await notifyFit(tx, fit.id);
       });
     } catch (e) {
       o.log?.(`fit supervisor: fit ${id}: ${e instanceof Error ? e.message : String(e)}`);
@@ -81,10 +76,11 @@ async function sendAgain(o: FitSupervisorOptions, tx: Queryable, fit: FitRef, re
     return;
   }
   const jobId = await o.boss.send(FIT_QUEUE.name, { fitId: fit.id }, { retryLimit: FIT_QUEUE.retryLimit, retryDelay: FIT_QUEUE.retryDelaySeconds, expireInSeconds: FIT_QUEUE.expireInSeconds, db: bossDb(tx) });
-  await tx.execute(sql`update peak_fits set job_id = ${jobId} where id = ${fit.id}`);
+  if (!jobId) throw new Error(`the queue ${FIT_QUEUE.name} refused the job`);
+  await fitStore.attachJob(tx, fit.id, jobId, true);
   o.log?.(`fit ${fit.id}: its queue job had ended; sent again as job ${jobId}`);
 }
 
 async function failFitRow(tx: Queryable, fitId: string, error: string) {
-  await tx.execute(sql`update peak_fits set status = 'failed', finished_at = now(), error = ${error} where id = ${fitId}`);
+  await fitStore.fail(tx, fitId, error);
 }
