@@ -29,8 +29,12 @@ function searchOnce(side: number) {
   const op = new EffectiveHamiltonian(buildCavitySystem(benchCavity(side)));
   const window = benchWindow(op.hopping, op.n);
   const t0 = performance.now();
+  const c0 = process.cpuUsage();
   const r = findPoles(op, window);
-  return { sites: op.n, seconds: (performance.now() - t0) / 1000, poles: r.poles.length, certified: r.certificate.certified, factorisations: r.stats.factorisations, window };
+  const c = process.cpuUsage(c0);
+  // CPU time too: on a shared machine the wall time includes waiting for a core
+  const cpuSeconds = (c.user + c.system) / 1e6;
+  return { sites: op.n, seconds: (performance.now() - t0) / 1000, cpuSeconds, poles: r.poles.length, certified: r.certificate.certified, factorisations: r.stats.factorisations, window };
 }
 
 console.log(`Poleward bench on ${cpus().length} × ${cpus()[0]?.model ?? 'cpu'}, load average ${loadavg().map((x) => x.toFixed(1)).join(' ')}`);
@@ -52,6 +56,8 @@ if (only.includes('poles')) {
     certified: one.certified ? 'yes' : 'NO',
     factorisations: one.factorisations,
     seconds: one.seconds,
+    'CPU seconds': one.cpuSeconds,
+    'load average (1 min) after': loadavg()[0],
   });
   // The same search with its LUs on a pool of two worker threads: one search, one certificate.
   const op = new EffectiveHamiltonian(buildCavitySystem(benchCavity(100)));
@@ -60,7 +66,9 @@ if (only.includes('poles')) {
   const t0 = performance.now();
   const pool = await PoleThreadPool.start(benchCavity(100), poleWorkSetup({}), 2);
   const started = (performance.now() - t0) / 1000;
+  const c0 = process.cpuUsage();
   const two = await findPolesWith(op, window, {}, pool);
+  const poolCpu = process.cpuUsage(c0);
   await pool.close();
   const reference = findPoles(op, window);
   const samePoles = two.poles.length === reference.poles.length && two.poles.every((p, k) => Math.abs(p.energy - reference.poles[k].energy) <= 1e-12 * op.hopping);
@@ -70,6 +78,7 @@ if (only.includes('poles')) {
     'same poles and certificate as one thread': samePoles && two.certificate.certified === reference.certificate.certified ? 'yes' : 'NO',
     factorisations: two.stats.factorisations,
     'search seconds': two.stats.seconds,
+    'search CPU seconds (both threads and this one)': (poolCpu.user + poolCpu.system) / 1e6,
     'pool start seconds (threads build their operator)': started,
     'load average (1 min) at start': load,
   });
