@@ -8,6 +8,7 @@ import { sendCatalogueExport, type ExportFormat } from './catalogue-export.js';
 import { catalogueFilterSchema, catalogueQuerySchema, toCatalogueFilter, toCataloguePageRequest } from './catalogue-query.js';
 import { CatalogueService } from './catalogue-service.js';
 import { resonanceRoutes } from './resonance-routes.js';
+import { exportedModels } from '../fabrication/catalogue-import.js';
 
 /**
  * The group's resonance catalogue, mounted at /api/groups/:groupId: GET /catalogue (search),
@@ -35,7 +36,7 @@ export function catalogueRoutes(deps: { db: Db; service?: CatalogueService }): R
         subject: `catalogue.${format}`,
         details: { filter: req.valid.query as Record<string, unknown> },
       });
-      await sendCatalogueExport(res, format, service.exportSource(req.membership!.groupId, filter));
+      await sendCatalogueExport(res, format, service.exportSource(req.membership!.groupId, filter), new Date(), (ids) => exportedModels(deps.db, req.membership!.groupId, ids));
     });
   }
 

@@ -24,6 +24,7 @@ import { cavityModelDescription } from './cavity-model-description.js';
 import * as answers from './response-schemas.js';
 import * as fitAnswers from './fit-schemas.js';
 import { fitBody, fitParams, traceFields, traceParams } from '../fits/fit-routes.js';
+import { fabricationOperations } from './fabrication-operations.js';
 
 // The generator calls .openapi() on every path and query parameter. zod 4 copies prototype methods
 // onto each schema when it is built, so schemas imported above lack it: asParameters clones them.
@@ -37,7 +38,7 @@ function asParameters(o: z.ZodObject): z.ZodObject {
 // Component names come from zod's own .meta({ id }), which returns a copy: the routes' schemas stay untouched.
 const runRequest = runRequestSchema.meta({ id: 'RunRequest' });
 
-type Method = 'get' | 'post' | 'put' | 'patch' | 'delete';
+export type Method = 'get' | 'post' | 'put' | 'patch' | 'delete';
 
 /**
  * Who may call a route, as the route's middleware enforces it (requireAuth, requireRole, the
@@ -56,7 +57,7 @@ const accessText: Record<Access, string> = {
   operator: 'Only for the site operator, and only while the local mail stand-in is the transport; 404 otherwise (also to group admins).',
 };
 
-interface Answer {
+export interface Answer {
   status: number;
   description: string;
   /** JSON unless `mediaType` says otherwise; none for an empty answer. */
@@ -64,7 +65,7 @@ interface Answer {
   mediaType?: string;
 }
 
-interface Operation {
+export interface Operation {
   id: string;
   method: Method;
   /** Below /api, with {name} path parameters. */
@@ -587,6 +588,7 @@ const operations: Operation[] = [
 
   { id: 'listOutbox', method: 'get', path: '/outbox', tag: 'outbox', summary: 'Latest 100 messages the local mail stand-in received (no bodies; recorded)', access: 'operator', success: json(200, 'Messages, newest first', z.array(answers.outboxSummarySchema)) },
   { id: 'getOutboxMessage', method: 'get', path: '/outbox/{id}', tag: 'outbox', summary: 'One received message, with its body (each read recorded, and shown to the recipient)', access: 'operator', params: messageParams, success: json(200, 'The message', answers.outboxMessageSchema) },
+  ...fabricationOperations,
 ];
 
 const problemContent = { 'application/json': { schema: answers.problemSchema } };
@@ -691,6 +693,7 @@ export function buildOpenApiDocument(version: string): ReturnType<OpenApiGenerat
       { name: 'tokens', description: 'Personal API tokens' },
       { name: 'account', description: "The caller's own account: its activity" },
       { name: 'outbox', description: 'The local mail stand-in' },
+      { name: 'fabrication', description: 'Fabrication states, review, comments, packages, notifications, catalogue import' },
     ],
   });
 }

@@ -318,5 +318,11 @@ export const runDetailSchema = runSchema
   .meta({ id: 'RunDetail' });
 
 export const catalogueExportSchema = z
-  .object({ exportedAt: timestamp(), units: z.record(z.string(), z.string()), items: z.array(resonanceRowSchema) })
+  .object({
+    exportedAt: timestamp(),
+    units: z.record(z.string(), z.string()),
+    items: z.array(resonanceRowSchema),
+    /** The model versions the items came from, so POST /catalogue/import can rebuild them in another group. */
+    models: z.array(z.object({ modelId: z.uuid(), name: z.string(), version: z.number().int(), document: z.unknown() })),
+  })
   .meta({ id: 'CatalogueExport' });

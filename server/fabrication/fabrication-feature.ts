@@ -1,0 +1,20 @@
+import type { Router } from 'express';
+import type { Config } from '../config.js';
+import type { Compute } from '../compute/compute-pool.js';
+import type { Db } from '../db/client.js';
+import { CatalogueImport, catalogueImportRoutes } from './catalogue-import.js';
+import { FabricationPackages } from './fabrication-package.js';
+import { fabricationPackageRoutes, fabricationRoutes } from './fabrication-routes.js';
+import { FabricationService } from './fabrication-service.js';
+import type { NotificationQueue } from './notification-queue.js';
+import { failedNotificationRoutes, notificationSettingsRoutes } from './notification-settings.js';
+
+/** Mounts every route of the fabrication feature on the /api router (one line in app.ts). */
+export function fabricationFeature(api: Router, deps: { db: Db; config: Config; compute: Compute; notifications: NotificationQueue | null }): void {
+  const service = new FabricationService(deps.db, deps.config.publicUrl, deps.notifications);
+  api.use('/groups/:groupId', fabricationRoutes(service));
+  api.use('/groups/:groupId', fabricationPackageRoutes(deps.db, new FabricationPackages(deps.db, deps.compute)));
+  api.use('/groups/:groupId', failedNotificationRoutes(deps.db));
+  api.use('/groups/:groupId', catalogueImportRoutes(new CatalogueImport(deps.db, deps.compute)));
+  api.use('/account/notifications', notificationSettingsRoutes(deps.db));
+}
