@@ -8,6 +8,8 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { notifications } from '../../server/db/schema/fabrication.js';
 import { outboxMessages } from '../../server/db/schema/outbox.js';
 import { startNotificationWorker } from '../../server/fabrication/notification-job.js';
+import { notifyRunEnded } from '../../server/fabrication/run-notification.js';
+import { runs } from '../../server/db/schema/runs.js';
 import { notificationQueue } from '../../server/fabrication/notification-queue.js';
 import { startBoss } from '../../server/jobs/boss.js';
 import { createMailer, type Mailer } from '../../server/mail/mailer.js';
@@ -23,6 +25,7 @@ let mailer: Mailer;
 let worker: { stop: () => Promise<void> };
 let lab: Lab;
 let ids: string[];
+let fixture: Awaited<ReturnType<typeof insertResonances>>;
 const as: Record<string, SignedIn> = {};
 const fastRetries = { name: 'notification', retryLimit: 1, retryDelaySeconds: 1, expireInSeconds: 60 };
 
@@ -33,7 +36,7 @@ beforeAll(async () => {
   worker = await startNotificationWorker({ db: app.handle.db, boss, mailer, pollingIntervalSeconds: 0.5 });
   // Two reviewers: one keeps candidate e-mails, one turns them off.
   lab = await createLab(app.handle.db, ['admin', 'designer', 'reviewer', 'reviewer', 'viewer']);
-  ({ ids } = await insertResonances(app.handle.db, lab, [
+  ({ ids } = fixture = await insertResonances(app.handle.db, lab, [
     { energy: 4.2, width: 0.012 },
     { energy: 5.1, width: 0.03 },
   ]));
@@ -123,6 +126,30 @@ describe('e-mail notifications', () => {
     expect(designerMail).toHaveLength(1);
     expect(designerMail[0]!.textBody).toContain('Worth a look?');
     expect((await mailTo(lab.as('viewer').email)).filter((m) => m.subject.includes('mentioned you'))).toHaveLength(0);
+  });
+
+  it("a long run's owner hears when it finishes or fails; a short run sends nothing", async () => {
+    const db = app.handle.db;
+    const owner = lab.as('designer');
+    const queue = notificationQueue(boss, fastRetries);
+    const now = Date.now();
+    const [long] = await db
+      .insert(runs)
+      .values({ groupId: lab.groupId, modelVersionId: fixture.modelVersionId, kind: 'pole-search', status: 'failed', error: 'the contour met a pole', window: { emin: 1, emax: 2 }, createdBy: owner.id, createdAt: new Date(now - 300_000), finishedAt: new Date(now) })
+      .returning();
+    const [short] = await db
+      .insert(runs)
+      .values({ groupId: lab.groupId, modelVersionId: fixture.modelVersionId, kind: 'transmission', status: 'completed', window: { emin: 1, emax: 2, points: 10 }, createdBy: owner.id, createdAt: new Date(now - 5_000), finishedAt: new Date(now) })
+      .returning();
+    expect(await notifyRunEnded(db, queue, app.config.publicUrl, short!.id)).toEqual([]);
+    expect(await notifyRunEnded(db, queue, app.config.publicUrl, long!.id)).toHaveLength(1);
+    await settled();
+    const mail = (await mailTo(owner.email)).filter((m) => m.subject.includes('pole search'));
+    expect(mail).toHaveLength(1);
+    expect(mail[0]!.subject).toContain('failed');
+    expect(mail[0]!.textBody).toContain('the contour met a pole');
+    expect(mail[0]!.textBody).toContain('after 5 min');
+    expect(mail[0]!.textBody).toMatch(new RegExp(`/runs/${long!.id}`));
   });
 
   it('a send that keeps failing is retried, then listed to the admins as failed', async () => {
