@@ -10,15 +10,15 @@ import { and, eq, inArray, sql } from 'drizzle-orm';
 import type { RequestHandler } from 'express';
 import { Router } from 'express';
 import multer from 'multer';
-import { catalogueExportFileSchema, type CatalogueExportFile, type CatalogueImportResult } from '../../shared/api/fabrication.js';
+import { catalogueExportFileSchema, importCatalogueRoute, type CatalogueExportFile, type CatalogueImportResult } from '../../shared/api/fabrication.js';
 import { writeAudit } from '../audit/audit-log.js';
-import { requireRole } from '../auth/require-role.js';
 import type { Compute } from '../compute/compute-pool.js';
 import type { Db, Queryable } from '../db/client.js';
 import { resonances } from '../db/schema/catalogue.js';
 import { cavityModels, modelVersions } from '../db/schema/models.js';
 import { ApiError, type FieldIssue } from '../http/error-handler.js';
 import { clientGone } from '../http/client-gone.js';
+import { mountRoute } from '../http/mount-route.js';
 import { insertModel, insertVersion } from '../models/model-repository.js';
 import type { CheckedModel } from '../models/model-figures.js';
 
@@ -200,11 +200,16 @@ function importUpload(): RequestHandler {
 
 /** POST /api/groups/:groupId/catalogue/import (admin). */
 export function catalogueImportRoutes(service: CatalogueImport): Router {
-  const router = Router({ mergeParams: true });
-  router.post('/catalogue/import', requireRole('admin'), importUpload(), async (req, res) => {
-    const file = parseExportFile(req.file!.buffer);
-    const name = (req.file!.originalname || 'catalogue.json').slice(0, 200);
-    res.status(201).json(await service.run(req.membership!.groupId, req.auth!.user.id, name, file, clientGone(res)));
-  });
+  const router = Router();
+  mountRoute(
+    router,
+    importCatalogueRoute,
+    async (_input, req, res) => {
+      const file = parseExportFile(req.file!.buffer);
+      const name = (req.file!.originalname || 'catalogue.json').slice(0, 200);
+      return service.run(req.membership!.groupId, req.auth!.user.id, name, file, clientGone(res));
+    },
+    { before: [importUpload()] },
+  );
   return router;
 }

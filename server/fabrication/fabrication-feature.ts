@@ -12,9 +12,10 @@ import { failedNotificationRoutes, notificationSettingsRoutes } from './notifica
 /** Mounts every route of the fabrication feature on the /api router (one line in app.ts). */
 export function fabricationFeature(api: Router, deps: { db: Db; config: Config; compute: Compute; notifications: NotificationQueue | null }): void {
   const service = new FabricationService(deps.db, deps.config.publicUrl, deps.notifications);
-  api.use('/groups/:groupId', fabricationRoutes(service));
-  api.use('/groups/:groupId', fabricationPackageRoutes(deps.db, new FabricationPackages(deps.db, deps.compute)));
-  api.use('/groups/:groupId', failedNotificationRoutes(deps.db));
-  api.use('/groups/:groupId', catalogueImportRoutes(new CatalogueImport(deps.db, deps.compute)));
-  api.use('/account/notifications', notificationSettingsRoutes(deps.db));
+  // Declared routes (shared/api/fabrication.ts) carry their full paths below /api.
+  api.use(fabricationRoutes(service));
+  api.use(fabricationPackageRoutes(deps.db, new FabricationPackages(deps.db, deps.compute)));
+  api.use(failedNotificationRoutes(deps.db));
+  api.use(catalogueImportRoutes(new CatalogueImport(deps.db, deps.compute)));
+  api.use(notificationSettingsRoutes(deps.db));
 }

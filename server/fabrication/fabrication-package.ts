@@ -21,8 +21,8 @@ import { PACKAGE_STATES } from './fabrication-service.js';
 import type { LayoutFiles } from './layout-files.js';
 import { renderSpecSheet, STANDING_CAUTION, type SpecSheetInput } from './spec-sheet.js';
 import { compareFigure } from '../../shared/fabrication/measurement-comparison.js';
+import type { PackageFile } from '../../shared/api/fabrication.js';
 
-export type PackageFile = 'package.zip' | 'spec.pdf' | 'layout.gds' | 'layout.dxf' | 'layout.svg';
 
 export const PACKAGE_MEDIA_TYPES: Record<PackageFile, string> = {
   'package.zip': 'application/zip',

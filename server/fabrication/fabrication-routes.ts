@@ -1,26 +1,26 @@
 import { Router, type Request } from 'express';
-import type { z } from 'zod';
 import {
-  commentBodySchema,
-  fabricationListQuerySchema,
-  transitionBodySchema,
-  type CommentBody,
-  type TransitionBody,
+  addCommentRoute,
+  getFabricationRoute,
+  listCommentsRoute,
+  listFabricationRoute,
+  moveFabricationRoute,
+  packageFileRoutes,
+  PACKAGE_FILES,
 } from '../../shared/api/fabrication.js';
 import { writeAudit } from '../audit/audit-log.js';
-import { requireRole } from '../auth/require-role.js';
+import { resonanceNotFound } from '../catalogue/catalogue-service.js';
 import type { Db } from '../db/client.js';
 import { clientGone } from '../http/client-gone.js';
-import type { FabricationPackages, PackageFile } from './fabrication-package.js';
-import { resonanceNotFound } from '../catalogue/catalogue-service.js';
-import { validate } from '../http/validate.js';
+import { mountRoute } from '../http/mount-route.js';
+import type { FabricationPackages } from './fabrication-package.js';
 import type { Caller, FabricationService } from './fabrication-service.js';
 
 const uuidPattern = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 
-export function resonanceIdOf(req: Request): string {
-  const id = req.params.id;
-  if (typeof id !== 'string' || !uuidPattern.test(id)) throw resonanceNotFound();
+/** A malformed id cannot be one of the group's resonances: 404 like any other stranger's id. */
+export function resonanceIdOf(id: string): string {
+  if (!uuidPattern.test(id)) throw resonanceNotFound();
   return id.toLowerCase();
 }
 
@@ -29,50 +29,29 @@ export function callerOf(req: Request): Caller {
 }
 
 /**
- * Mounted at /api/groups/:groupId: the fabrication state of a resonance and its moves, the
- * review queue and Fabrication page lists, and comments. Any member reads; the state machine
- * decides who may take each step (403/409); comments need designer or reviewer.
+ * The fabrication state of a resonance and its moves, the review queue and Fabrication page
+ * lists, and comments (declarations in shared/api/fabrication.ts). Any member reads; the
+ * state machine decides who may take each step (403/409); comments need designer or reviewer.
  */
 export function fabricationRoutes(service: FabricationService): Router {
-  const router = Router({ mergeParams: true });
-
-  router.get('/fabrication', requireRole(), validate({ query: fabricationListQuerySchema }), async (req, res) => {
-    const { state } = req.valid.query as z.infer<typeof fabricationListQuerySchema>;
-    res.json({ items: await service.list(req.membership!.groupId, state) });
-  });
-
-  router.get('/resonances/:id/fabrication', requireRole(), async (req, res) => {
-    res.json(await service.record(req.membership!.groupId, resonanceIdOf(req), callerOf(req)));
-  });
-
-  router.post('/resonances/:id/fabrication', requireRole(), validate({ body: transitionBodySchema }), async (req, res) => {
-    const id = resonanceIdOf(req);
-    res.json(await service.transition(req.membership!.groupId, id, callerOf(req), req.valid.body as TransitionBody));
-  });
-
-  router.get('/resonances/:id/comments', requireRole(), async (req, res) => {
-    res.json({ items: await service.comments(req.membership!.groupId, resonanceIdOf(req)) });
-  });
-
-  router.post('/resonances/:id/comments', requireRole('designer', 'reviewer'), validate({ body: commentBodySchema }), async (req, res) => {
-    const id = resonanceIdOf(req);
-    res.status(201).json(await service.addComment(req.membership!.groupId, id, callerOf(req), req.valid.body as CommentBody));
-  });
-
+  const router = Router();
+  mountRoute(router, listFabricationRoute, async ({ query }, req) => ({ items: await service.list(req.membership!.groupId, query.state) }));
+  mountRoute(router, getFabricationRoute, ({ params }, req) => service.record(req.membership!.groupId, resonanceIdOf(params.id), callerOf(req)));
+  mountRoute(router, moveFabricationRoute, ({ params, body }, req) => service.transition(req.membership!.groupId, resonanceIdOf(params.id), callerOf(req), body));
+  mountRoute(router, listCommentsRoute, async ({ params }, req) => ({ items: await service.comments(req.membership!.groupId, resonanceIdOf(params.id)) }));
+  mountRoute(router, addCommentRoute, ({ params, body }, req) => service.addComment(req.membership!.groupId, resonanceIdOf(params.id), callerOf(req), body));
   return router;
 }
 
-const packageFiles: PackageFile[] = ['package.zip', 'spec.pdf', 'layout.gds', 'layout.dxf', 'layout.svg'];
-
 /**
- * The fabrication package downloads, mounted at /api/groups/:groupId: any member may download
- * (a fabrication partner is a viewer); each download is recorded in the group's activity.
+ * The fabrication package downloads: any member may download (a fabrication partner is a
+ * viewer); each download is recorded in the group's activity.
  */
 export function fabricationPackageRoutes(db: Db, packages: FabricationPackages): Router {
-  const router = Router({ mergeParams: true });
-  for (const which of packageFiles) {
-    router.get(`/resonances/:id/fabrication/${which}`, requireRole(), async (req, res) => {
-      const id = resonanceIdOf(req);
+  const router = Router();
+  for (const which of PACKAGE_FILES) {
+    mountRoute(router, packageFileRoutes[which], async ({ params }, req, res) => {
+      const id = resonanceIdOf(params.id);
       const file = await packages.file(req.membership!.groupId, id, which, clientGone(res));
       await writeAudit(db, {
         groupId: req.membership!.groupId,
@@ -82,7 +61,7 @@ export function fabricationPackageRoutes(db: Db, packages: FabricationPackages):
         details: { resonanceId: id, file: which },
       });
       res.setHeader('Content-Disposition', `attachment; filename="${file.fileName}"`);
-      res.type(file.mediaType).send(Buffer.from(file.bytes.buffer, file.bytes.byteOffset, file.bytes.byteLength));
+      res.status(200).type(file.mediaType).send(Buffer.from(file.bytes.buffer, file.bytes.byteOffset, file.bytes.byteLength));
     });
   }
   return router;

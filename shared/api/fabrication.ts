@@ -4,7 +4,8 @@
  * the client takes its types from them (z.infer), so there is one copy.
  */
 import { z } from 'zod';
-import { FABRICATION_ACTIONS, FABRICATION_STATES } from '../fabrication/fabrication-states';
+import { FABRICATION_ACTIONS, FABRICATION_STATES } from '../fabrication/fabrication-states.js';
+import { declareRoute, json, media } from './route.js';
 
 const noNul = /^[^\u0000]*$/;
 const text = (max: number, what: string) =>
@@ -250,3 +251,164 @@ export const catalogueExportFileSchema = z.object({
     .max(1000),
 });
 export type CatalogueExportFile = z.infer<typeof catalogueExportFileSchema>;
+
+// ---------------------------------------------------------------------------------------
+// Route declarations (shared/api/route.ts); the handlers are in server/fabrication.
+
+/** Resonance ids are checked by the handler: a malformed one answers 404 like a stranger's. */
+const resonanceParams = z.object({ groupId: z.string(), id: z.string() });
+const resonanceParamsDoc = z.object({ groupId: z.uuid(), id: z.uuid() });
+const groupParamsDoc = z.object({ groupId: z.uuid() });
+const download = (mediaType: string, text: string) => media(200, mediaType, text, z.string().meta({ format: 'binary' }));
+const packageNote = 'Only for an approved, sent or measured resonance (409 not_approved otherwise). Any member may download: the viewer role suits a fabrication partner. Each download is recorded in the group activity.';
+
+export const listFabricationRoute = declareRoute({
+  id: 'listFabrication',
+  method: 'get',
+  path: '/groups/{groupId}/fabrication',
+  tag: 'fabrication',
+  summary: 'Resonances by fabrication state (the review queue, the Fabrication page), newest change first',
+  access: 'member',
+  query: fabricationListQuerySchema,
+  described: { params: groupParamsDoc, query: z.object({ state: z.string().optional().meta({ description: 'Comma-separated states; all when absent' }) }) },
+  answer: json(200, 'The records with their figures and downloads', fabricationListSchema),
+});
+
+export const getFabricationRoute = declareRoute({
+  id: 'getFabrication',
+  method: 'get',
+  path: '/groups/{groupId}/resonances/{id}/fabrication',
+  tag: 'fabrication',
+  summary: "A resonance's fabrication record, what the caller may do next, and its history",
+  access: 'member',
+  params: resonanceParams,
+  described: { params: resonanceParamsDoc },
+  answer: json(200, 'The record (state null: not proposed)', fabricationRecordSchema),
+});
+
+export const moveFabricationRoute = declareRoute({
+  id: 'moveFabrication',
+  method: 'post',
+  path: '/groups/{groupId}/resonances/{id}/fabrication',
+  tag: 'fabrication',
+  summary: 'Take one step: propose, start_review, approve, reject, withdraw, send, measure',
+  access: 'member',
+  notes:
+    'Who may take which step is decided per action (shared/fabrication/fabrication-states.ts): propose and withdraw need designer; ' +
+    'start_review, approve and reject need reviewer and not the proposer; send and measure need designer or reviewer. ' +
+    '403 forbidden (role) or own_candidate (the proposer cannot approve their own); 409 illegal_transition says what is allowed from the current state.',
+  params: resonanceParams,
+  body: transitionBodySchema,
+  described: { params: resonanceParamsDoc },
+  answer: json(200, 'The record after the step', fabricationRecordSchema),
+  errors: { 403: 'forbidden or own_candidate', 409: 'illegal_transition, or fit_not_completed' },
+});
+
+export const listCommentsRoute = declareRoute({
+  id: 'listComments',
+  method: 'get',
+  path: '/groups/{groupId}/resonances/{id}/comments',
+  tag: 'fabrication',
+  summary: 'Comments on a resonance, oldest first',
+  access: 'member',
+  params: resonanceParams,
+  described: { params: resonanceParamsDoc },
+  answer: json(200, 'The comments', commentListSchema),
+});
+
+export const addCommentRoute = declareRoute({
+  id: 'addComment',
+  method: 'post',
+  path: '/groups/{groupId}/resonances/{id}/comments',
+  tag: 'fabrication',
+  summary: 'Comment on a resonance; mentioned members get an e-mail',
+  access: 'analyst',
+  params: resonanceParams,
+  body: commentBodySchema,
+  described: { params: resonanceParamsDoc },
+  answer: json(201, 'The comment', commentSchema),
+});
+
+export const PACKAGE_FILES = ['package.zip', 'spec.pdf', 'layout.gds', 'layout.dxf', 'layout.svg'] as const;
+export type PackageFile = (typeof PACKAGE_FILES)[number];
+
+const packageFileRoute = <const Id extends string, const File extends PackageFile>(id: Id, file: File, mediaType: string, summary: string) =>
+  declareRoute({
+    id,
+    method: 'get',
+    path: `/groups/{groupId}/resonances/{id}/fabrication/${file}`,
+    tag: 'fabrication',
+    summary,
+    access: 'member',
+    notes: packageNote,
+    params: resonanceParams,
+    described: { params: resonanceParamsDoc },
+    answer: download(mediaType, summary),
+    errors: { 409: 'not_approved' },
+  });
+
+export const packageFileRoutes = {
+  'package.zip': packageFileRoute('getFabricationPackage', 'package.zip', 'application/zip', 'The fabrication package as one ZIP archive: spec sheet, layout in GDSII, DXF and SVG, README, figures'),
+  'spec.pdf': packageFileRoute('getFabricationSpecSheet', 'spec.pdf', 'application/pdf', 'The spec sheet (PDF)'),
+  'layout.gds': packageFileRoute('getFabricationGdsii', 'layout.gds', 'application/octet-stream', 'The layout in GDSII (database unit 1 nm, user unit 1 µm; layer map in docs/api.md)'),
+  'layout.dxf': packageFileRoute('getFabricationDxf', 'layout.dxf', 'application/dxf', 'The layout in DXF (units nm, one DXF layer per layout layer)'),
+  'layout.svg': packageFileRoute('getFabricationSvg', 'layout.svg', 'image/svg+xml', 'The layout in SVG (user units nm, y up as in the model)'),
+} as const;
+
+export const listFailedNotificationsRoute = declareRoute({
+  id: 'listFailedNotifications',
+  method: 'get',
+  path: '/groups/{groupId}/notifications/failed',
+  tag: 'fabrication',
+  summary: 'E-mail notifications of the group that could not be sent after every retry',
+  access: 'admin',
+  described: { params: groupParamsDoc },
+  answer: json(200, 'The failed notifications, newest first', failedNotificationListSchema),
+});
+
+export const getNotificationSettingsRoute = declareRoute({
+  id: 'getNotificationSettings',
+  method: 'get',
+  path: '/account/notifications',
+  tag: 'account',
+  summary: 'Which kinds of e-mail the caller receives',
+  access: 'signed-in',
+  answer: json(200, 'Every kind with its setting', notificationSettingsSchema),
+});
+
+export const setNotificationSettingsRoute = declareRoute({
+  id: 'setNotificationSettings',
+  method: 'put',
+  path: '/account/notifications',
+  tag: 'account',
+  summary: 'Turn kinds of e-mail on or off (kinds not named keep their setting)',
+  access: 'signed-in',
+  body: notificationSettingsBodySchema,
+  answer: json(200, 'Every kind with its setting', notificationSettingsSchema),
+});
+
+export const importCatalogueRoute = declareRoute({
+  id: 'importCatalogue',
+  method: 'post',
+  path: '/groups/{groupId}/catalogue/import',
+  tag: 'fabrication',
+  summary: 'Import a catalogue JSON export (with its models) into this group; refused whole when anything is invalid',
+  access: 'admin',
+  described: { params: groupParamsDoc },
+  upload: { field: 'file', mediaType: 'application/json', description: 'The file of GET /catalogue/export.json, at most 20 MB.' },
+  answer: json(201, 'What was imported', catalogueImportResultSchema),
+  errors: { 409: 'already_imported', 413: 'payload_too_large' },
+});
+
+export const fabricationRoutes = [
+  listFabricationRoute,
+  getFabricationRoute,
+  moveFabricationRoute,
+  listCommentsRoute,
+  addCommentRoute,
+  ...Object.values(packageFileRoutes),
+  listFailedNotificationsRoute,
+  getNotificationSettingsRoute,
+  setNotificationSettingsRoute,
+  importCatalogueRoute,
+] as const;
