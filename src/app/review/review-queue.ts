@@ -14,6 +14,7 @@ import { Auth } from '../core/auth/auth';
 import { ErrorReport } from '../core/errors/error-report';
 import { CurrentGroup } from '../core/group/current-group';
 import { formatEnergy, formatLifetime, formatQuality, formatWidth } from '../catalogue/energy-format';
+import { materialLabel } from '../catalogue/material-label';
 import { FabricationApi } from '../fabrication/fabrication-api';
 import { STATE_ICONS, stateLabel } from '../fabrication/state-label';
 
@@ -42,6 +43,7 @@ export class ReviewQueue {
   protected readonly formatWidth = formatWidth;
   protected readonly formatLifetime = formatLifetime;
   protected readonly formatQuality = formatQuality;
+  protected readonly materialLabel = materialLabel;
 
   /** undefined while loading. */
   protected readonly items = signal<FabricationItem[] | undefined>(undefined);
