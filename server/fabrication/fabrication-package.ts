@@ -6,6 +6,7 @@
 import { and, eq } from 'drizzle-orm';
 import { zipSync, strToU8 } from 'fflate';
 import { cavityModelSchema, modelMassRatio } from '../../shared/model/cavity-model.js';
+import { findMaterial } from '../../shared/model/materials.js';
 import { deriveFigures } from '../../shared/model/derived-figures.js';
 import { stateWords, type FabricationState } from '../../shared/fabrication/fabrication-states.js';
 import type { Compute } from '../compute/compute-pool.js';
@@ -108,7 +109,7 @@ export class FabricationPackages {
       model: {
         name: r.modelName,
         version: r.modelVersion,
-        material: r.material,
+        material: findMaterial(r.material)?.label ?? r.material,
         massRatio,
         spacingNm: model.spacing,
         nx: model.grid.nx,

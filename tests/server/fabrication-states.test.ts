@@ -5,6 +5,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { auditLog } from '../../server/db/schema/audit.js';
 import { resonanceComments, resonanceFabrication } from '../../server/db/schema/fabrication.js';
 import { resonances } from '../../server/db/schema/catalogue.js';
+import { measuredTraces, peakFits } from '../../server/db/schema/fits.js';
 import { insertResonances } from './fabrication-fixture.js';
 import { createLab, type Lab } from './lab-fixture.js';
 import { signInAs, type SignedIn } from './sign-in-as.js';
@@ -174,13 +175,47 @@ describe('fabrication states', () => {
     expect(list.body.items.map((c: { body: string }) => c.body)).toEqual(['Can you check the gate?']);
   });
 
+  it('takes a measurement from a completed peak fit of a measured trace, with its σ', async () => {
+    const db = app.handle.db;
+    const [trace] = await db
+      .insert(measuredTraces)
+      .values({ groupId: lab.groupId, deviceName: 'HL-7 die 3', fileName: 'die3.csv', temperatureMK: 100, content: 'E,T\n1,0', columns: ['E', 'T'], selection: {}, energies: [1], transmission: [0] })
+      .returning();
+    const peaks = [{ energy: 6.29, energyError: 0.004, width: 0.25, widthError: 0.01 }];
+    const [fit] = await db.insert(peakFits).values({ groupId: lab.groupId, traceId: trace!.id, request: {}, status: 'completed', result: { peaks } }).returning();
+    const [failed] = await db.insert(peakFits).values({ groupId: lab.groupId, traceId: trace!.id, request: {}, status: 'failed', error: 'did not converge' }).returning();
+    // ids[2] was rejected above: propose again, approve, send.
+    await as.designer!.post(url(ids[2]!), { action: 'propose', reason: 'second try with a wider gate' }).expect(200);
+    await as.reviewer!.post(url(ids[2]!), { action: 'approve', reason: 'fine now' }).expect(200);
+    await as.reviewer!.post(url(ids[2]!), { action: 'send', batch: 'wafer HL-8' }).expect(200);
+    const before = await snapshot(ids[2]!);
+    const notDone = await as.designer!.post(url(ids[2]!), { action: 'measure', fitId: failed!.id });
+    expect(notDone.status).toBe(409);
+    expect(notDone.body.code).toBe('fit_not_completed');
+    const noPeak = await as.designer!.post(url(ids[2]!), { action: 'measure', fitId: fit!.id, peak: 3 });
+    expect(noPeak.status).toBe(400);
+    expect(noPeak.body.issues[0].path).toBe('peak');
+    expect(await snapshot(ids[2]!)).toEqual(before);
+    const res = await as.designer!.post(url(ids[2]!), { action: 'measure', fitId: fit!.id, peak: 0 });
+    expect(res.status, JSON.stringify(res.body)).toBe(200);
+    const m = res.body.measurement;
+    expect(m.source).toBe('fit');
+    expect(m.fitId).toBe(fit!.id);
+    // Predicted E = 6.3, Γ = 0.2 (fixture); ΔE = −0.01 meV = −0.159 % = −2.5 σ; ΔΓ = +0.05 meV = +25 % = +5 σ (arithmetic, no source).
+    expect(m.energyComparison.percent).toBeCloseTo((-100 * 0.01) / 6.3, 9);
+    expect(m.energyComparison.sigmas).toBeCloseTo(-2.5, 9);
+    expect(m.widthComparison.percent).toBeCloseTo(25, 9);
+    expect(m.widthComparison.sigmas).toBeCloseTo(5, 9);
+  });
+
   it('lists the review queue and the Fabrication page by state', async () => {
     const queue = await as.reviewer!.get(`/api/groups/${lab.groupId}/fabrication?state=candidate,under_review`);
     expect(queue.status).toBe(200);
     expect(queue.body.items.map((i: { resonanceId: string }) => i.resonanceId)).toEqual([ids[1]]);
     expect(queue.body.items[0].downloads).toBeNull();
     const fab = await as.viewer!.get(`/api/groups/${lab.groupId}/fabrication?state=approved,sent,measured`);
-    expect(fab.body.items.map((i: { resonanceId: string }) => i.resonanceId)).toEqual([ids[0]]);
+    // Newest change first: ids[2] was measured after ids[0].
+    expect(fab.body.items.map((i: { resonanceId: string }) => i.resonanceId)).toEqual([ids[2], ids[0]]);
     expect(fab.body.items[0].downloads.gdsii).toMatch(/layout\.gds$/);
     const bad = await as.viewer!.get(`/api/groups/${lab.groupId}/fabrication?state=shipped`);
     expect(bad.status).toBe(400);

@@ -4,6 +4,7 @@ import { type Observable, map } from 'rxjs';
 import type { z } from 'zod';
 import type {
   CatalogueImportResult,
+  failedNotificationListSchema,
   FabricationItem,
   FabricationRecord,
   NotificationKind,
@@ -44,6 +45,11 @@ export class FabricationApi {
 
   comment(groupId: string, resonanceId: string, body: string, mentions: string[]): Observable<ResonanceComment> {
     return this.http.post<ResonanceComment>(`${this.base(groupId)}/resonances/${encodeURIComponent(resonanceId)}/comments`, { body, mentions });
+  }
+
+  /** Admin only: e-mails that could not be sent after every retry. */
+  failedNotifications(groupId: string): Observable<z.infer<typeof failedNotificationListSchema>['items']> {
+    return this.http.get<z.infer<typeof failedNotificationListSchema>>(`${this.base(groupId)}/notifications/failed`).pipe(map((b) => b.items));
   }
 
   settings(): Observable<NotificationSettings> {

@@ -38,6 +38,8 @@ export class FabricationPage {
   protected readonly significant = significant;
 
   protected readonly items = signal<FabricationItem[] | undefined>(undefined);
+  /** Admins only: e-mails the queue gave up on. */
+  protected readonly failedMail = signal<{ id: string; to: string; subject: string; attempts: number; error: string | null; createdAt: string }[]>([]);
   protected readonly measured = computed(() => (this.items() ?? []).filter((i) => i.measurement !== null));
 
   constructor() {
@@ -56,6 +58,12 @@ export class FabricationPage {
   }
 
   private load(groupId: string): void {
+    if (this.group.isAdmin()) {
+      this.api
+        .failedNotifications(groupId)
+        .pipe(takeUntilDestroyed(this.destroyRef))
+        .subscribe({ next: (list) => this.failedMail.set(list), error: () => this.failedMail.set([]) });
+    }
     this.api
       .list(groupId, ['approved', 'sent', 'measured'])
       .pipe(takeUntilDestroyed(this.destroyRef))

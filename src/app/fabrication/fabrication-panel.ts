@@ -15,6 +15,7 @@ import { ErrorReport } from '../core/errors/error-report';
 import { CurrentGroup } from '../core/group/current-group';
 import { formatEnergy, formatWidth, significant } from '../catalogue/energy-format';
 import { MembersApi, type Member } from '../members/members-api';
+import { FitsApi } from '../fits/fits-api';
 import { FabricationApi, type TransitionRequest } from './fabrication-api';
 import { STATE_ICONS, stateLabel } from './state-label';
 
@@ -43,6 +44,7 @@ export class FabricationPanel {
 
   private readonly api = inject(FabricationApi);
   private readonly membersApi = inject(MembersApi);
+  private readonly fitsApi = inject(FitsApi);
   private readonly errors = inject(ErrorReport);
   private readonly snackBar = inject(MatSnackBar);
   private readonly destroyRef = inject(DestroyRef);
@@ -56,6 +58,8 @@ export class FabricationPanel {
   protected readonly record = signal<FabricationRecord | null>(null);
   protected readonly comments = signal<ResonanceComment[]>([]);
   protected readonly members = signal<Member[]>([]);
+  /** Peaks of the group's completed fits of measured traces, to take a measurement from. */
+  protected readonly fitPeaks = signal<{ value: string; label: string }[]>([]);
   protected readonly busy = signal(false);
   protected readonly canComment = computed(() => ['admin', 'designer', 'reviewer'].includes(this.group.group()?.role ?? ''));
   protected readonly allowed = computed(() => new Set(this.record()?.allowedActions ?? []));
@@ -82,6 +86,8 @@ export class FabricationPanel {
     width: new FormControl('', { nonNullable: true }),
     energySigma: new FormControl('', { nonNullable: true }),
     widthSigma: new FormControl('', { nonNullable: true }),
+    /** "fitId:peak", or '' to use the typed figures. */
+    fitPeak: new FormControl('', { nonNullable: true }),
   });
   protected readonly commentText = new FormControl('', { nonNullable: true });
   protected readonly mentions = new FormControl<string[]>([], { nonNullable: true });
@@ -121,6 +127,11 @@ export class FabricationPanel {
         body = { action, batch: v.batch.trim(), ...(reason ? { reason } : {}) };
         break;
       case 'measure': {
+        if (v.fitPeak) {
+          const [fitId, peak] = v.fitPeak.split(':');
+          body = { action, fitId: fitId!, peak: Number(peak) };
+          break;
+        }
         const sE = numberOf(v.energySigma);
         const sG = numberOf(v.widthSigma);
         body = {
@@ -143,6 +154,7 @@ export class FabricationPanel {
         next: (rec) => {
           this.busy.set(false);
           this.record.set(rec);
+          this.loadFitPeaks(gid, rec);
           this.form.reset();
           this.snackBar.open(`Now ${stateLabel(rec.state).toLowerCase()}.`, 'OK', { duration: 3000 });
         },
@@ -175,11 +187,38 @@ export class FabricationPanel {
       });
   }
 
+  private loadFitPeaks(groupId: string, r: FabricationRecord): void {
+    if (!r.allowedActions.includes('measure') || this.fitPeaks().length > 0) return;
+    this.fitsApi
+      .fits(groupId)
+      .pipe(takeUntilDestroyed(this.destroyRef))
+      .subscribe({
+        next: (fits) =>
+          this.fitPeaks.set(
+            fits
+              .filter((f) => f.status === 'completed' && f.traceId !== null)
+              .flatMap((f) =>
+                (f.peaks ?? []).map((p, k) => ({
+                  value: `${f.id}:${k}`,
+                  label: `${f.deviceName ?? 'trace'} (${f.createdAt.slice(0, 10)}), peak ${k + 1}: E = ${formatEnergy(p.energy, 5)}, Γ = ${formatWidth(p.width)}`,
+                })),
+              ),
+          ),
+        error: () => this.fitPeaks.set([]),
+      });
+  }
+
   private load(groupId: string, id: string): void {
     this.api
       .record(groupId, id)
       .pipe(takeUntilDestroyed(this.destroyRef))
-      .subscribe({ next: (r) => this.record.set(r), error: (err: unknown) => this.errors.show(err) });
+      .subscribe({
+        next: (r) => {
+          this.record.set(r);
+          this.loadFitPeaks(groupId, r);
+        },
+        error: (err: unknown) => this.errors.show(err),
+      });
     this.api
       .comments(groupId, id)
       .pipe(takeUntilDestroyed(this.destroyRef))
