@@ -28,7 +28,7 @@ import { invitationRoutes } from './invitations/invitation-routes.js';
 import { InvitationService } from './invitations/invitation-service.js';
 import type { Mailer } from './mail/mailer.js';
 import { outboxRoutes } from './mail/outbox-routes.js';
-import { openApiRoute } from './openapi/openapi-route.js';
+import { metaRoutes } from './openapi/meta-routes.js';
 import { backupRoutes } from './backup/backup-routes.js';
 import { catalogueRoutes } from './catalogue/catalogue-routes.js';
 import type { ModeMapQueue } from './modemaps/mode-map-queue.js';
@@ -43,6 +43,8 @@ import { runRoutes } from './runs/run-routes.js';
 import { fitRoutes } from './fits/fit-routes.js';
 import { FitService, type FitQueue } from './fits/fit-service.js';
 import { RunService } from './runs/run-service.js';
+import { fabricationFeature } from './fabrication/fabrication-feature.js';
+import type { NotificationQueue } from './fabrication/notification-queue.js';
 
 export interface AppDeps {
   db: Db;
@@ -67,6 +69,8 @@ export interface AppDeps {
   /** Where passwords are hashed (worker threads by default); tests count the calls. */
   passwords?: PasswordHasher;
   log?: (msg: string, err: unknown) => void;
+  /** Where e-mail notifications are queued (pg-boss); null records them without sending. */
+  notifications?: NotificationQueue | null;
   /** Runs geometry and estimates off the event loop; default a new pool (closed by closeApp). */
   compute?: Compute;
   /**
@@ -134,10 +138,7 @@ export function createApp(deps: AppDeps): Express {
     next();
   });
   api.use(authenticate(db, config.jwtSecret));
-  api.get('/health', (_req, res) => {
-    res.json({ ok: true, version: config.version });
-  });
-  api.get('/openapi.json', openApiRoute(config.version));
+  api.use(metaRoutes(config.version));
   api.use(
     '/auth',
     authRoutes({
@@ -152,6 +153,8 @@ export function createApp(deps: AppDeps): Express {
     }),
   );
   api.use('/invitations', invitationRoutes({ db, invitations, jwtSecret: config.jwtSecret, secureCookies, linkLimit }));
+  // Fabrication: states, review, comments, packages, notification settings, catalogue import.
+  fabricationFeature(api, { db, config, compute, notifications: deps.notifications ?? null });
   api.use('/account', accountRoutes(db));
   api.use('/groups', groupRoutes({ db, groups, invitations }));
   api.use('/groups/:groupId/models', modelRoutes(new ModelService(db, compute), compute));

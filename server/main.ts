@@ -12,6 +12,8 @@ import { runQueue, startBoss } from './jobs/boss.js';
 import { modeMapQueue } from './modemaps/mode-map-queue.js';
 import { fitQueue } from './fits/fit-job.js';
 import { RunEvents } from './runs/run-events.js';
+import { notificationQueue } from './fabrication/notification-queue.js';
+import { startNotificationWorker } from './fabrication/notification-job.js';
 
 async function main(): Promise<void> {
   let config;
@@ -52,7 +54,9 @@ async function main(): Promise<void> {
   const boss = await startBoss({ databaseUrl: config.databaseUrl });
   const runEvents = new RunEvents(config.databaseUrl);
   await runEvents.start();
-  const app = createApp({ db: handle.db, config, mailer, queue: runQueue(boss), modeMapQueue: modeMapQueue(boss), fitQueue: fitQueue(boss), runEvents });
+  const app = createApp({ db: handle.db, config, mailer, queue: runQueue(boss), modeMapQueue: modeMapQueue(boss), fitQueue: fitQueue(boss), runEvents, notifications: notificationQueue(boss) });
+  // The API process sends the e-mail notifications: it holds the mailer, and sending is light I/O.
+  const notificationWorker = await startNotificationWorker({ db: handle.db, boss, mailer });
   // createServer + 'listening' rather than app.listen: Express 5 calls listen's callback on errors too.
   const server: Server = createServer(app);
   server.once('error', (err) => {
@@ -73,6 +77,7 @@ async function main(): Promise<void> {
     // Stop taking requests, let running ones finish, then release the pool.
     await new Promise<void>((done) => server.close(() => done()));
     await closeApp(app);
+    await notificationWorker.stop();
     await standIn?.close();
     await runEvents.close();
     await boss.stop({ graceful: false, wait: false }).catch(() => {});

@@ -93,8 +93,16 @@ function exportFileName(format: ExportFormat, now: Date): string {
  * batch, so a failure before any row still answers a normal JSON error; a failure
  * after that cuts the connection, so a truncated file is never mistaken for a whole one.
  */
-export async function sendCatalogueExport(res: Response, format: ExportFormat, source: RowSource, now = new Date()): Promise<void> {
+export async function sendCatalogueExport(
+  res: Response,
+  format: ExportFormat,
+  source: RowSource,
+  now = new Date(),
+  /** The model versions the rows came from (JSON only), so an import can rebuild them. */
+  models?: (modelVersionIds: string[]) => Promise<unknown[]>,
+): Promise<void> {
   let started = false;
+  const versionIds = new Set<string>();
   let first = true;
   const start = async (): Promise<boolean> => {
     if (started) return true;
@@ -110,6 +118,7 @@ export async function sendCatalogueExport(res: Response, format: ExportFormat, s
   try {
     await source(async (records) => {
       if (!(await start())) return false;
+      for (const r of records) versionIds.add(r.modelVersionId);
       const rows = records.map(toResonanceRow);
       if (format === 'csv') return write(res, csvLines(rows, false));
       const body = rows.map((r) => JSON.stringify(r)).join(',\n');
@@ -118,7 +127,10 @@ export async function sendCatalogueExport(res: Response, format: ExportFormat, s
       return write(res, chunk);
     });
     if (!(await start())) return;
-    if (format === 'json') await write(res, '\n]}\n');
+    if (format === 'json') {
+      const trailer = models ? `,"models":${JSON.stringify(await models([...versionIds]))}` : '';
+      await write(res, `\n]${trailer}}\n`);
+    }
     res.end();
   } catch (err) {
     if (!started) throw err;

@@ -7,6 +7,7 @@ import { sendCatalogueExport, type ExportFormat } from './catalogue-export.js';
 import { catalogueFilterSchema, catalogueQuerySchema, toCatalogueFilter, toCataloguePageRequest } from './catalogue-query.js';
 import { CatalogueService } from './catalogue-service.js';
 import { resonanceRoutes } from './resonance-routes.js';
+import { exportedModels } from '../fabrication/catalogue-import.js';
 
 /**
  * The group's resonance catalogue, mounted at /api/groups/:groupId: GET /catalogue (search),
@@ -27,7 +28,7 @@ export function catalogueRoutes(deps: { db: Db; service?: CatalogueService }): R
       const filter = toCatalogueFilter(req.valid.query as z.infer<typeof catalogueFilterSchema>);
       // Exports take the group's data away whole: recorded before the first byte goes out.
       const source = await service.exportFor(req.membership!.groupId, req.auth!.user.id, format, filter, req.valid.query as Record<string, unknown>);
-      await sendCatalogueExport(res, format, source);
+      await sendCatalogueExport(res, format, source, new Date(), (ids) => exportedModels(deps.db, req.membership!.groupId, ids));
     });
   }
 

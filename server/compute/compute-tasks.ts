@@ -10,17 +10,20 @@ import { maskFromBitmap, type BitmapMask } from '../models/mask-from-bitmap.js';
 import { checkModel, type CheckedModel, invalidModel } from '../models/model-figures.js';
 import { estimateRun, type RunEstimate } from '../runs/run-estimate.js';
 import type { RunRequest } from '../runs/run-window.js';
+import { buildLayoutFiles, type LayoutFiles } from '../fabrication/layout-files.js';
 
 export type ComputeTask =
   | { kind: 'check-model'; document: unknown }
   | { kind: 'mask-from-bitmap'; file: Uint8Array; spacingNm: number; widthNm: number; maxSites: number }
-  | { kind: 'estimate-run'; document: unknown; request: Pick<RunRequest, 'kind' | 'window'> };
+  | { kind: 'estimate-run'; document: unknown; request: Pick<RunRequest, 'kind' | 'window'> }
+  | { kind: 'device-layout'; document: unknown; title: string; structureName: string; time: Date };
 
 /** What each task kind answers. */
 export interface ComputeAnswers {
   'check-model': CheckedModel;
   'mask-from-bitmap': BitmapMask;
   'estimate-run': RunEstimate;
+  'device-layout': LayoutFiles;
 }
 
 export interface ComputeProblem {
@@ -47,6 +50,8 @@ function compute(task: ComputeTask): unknown {
         if (err instanceof InvalidModelError) throw invalidModel(err.issues);
         throw err;
       }
+    case 'device-layout':
+      return buildLayoutFiles(task.document, task.title, task.structureName, task.time);
   }
 }
 

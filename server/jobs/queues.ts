@@ -64,3 +64,15 @@ export const MODE_MAP_QUEUE = {
   retryDelaySeconds: 2,
   expireInSeconds: 600,
 } as const satisfies QueueSpec;
+
+/**
+ * E-mail notifications (server/fabrication/notification-job.ts): one job per message. A
+ * failed send (the mail provider down) is retried with back-off, 5 times over about 10
+ * minutes; after the last try the notification is marked failed and listed to admins.
+ */
+export const NOTIFICATION_QUEUE = {
+  name: 'notification',
+  retryLimit: 5,
+  retryDelaySeconds: 10,
+  expireInSeconds: 120,
+} as const satisfies QueueSpec;

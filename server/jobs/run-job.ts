@@ -20,6 +20,8 @@ export interface RunJobDeps {
   log?: (msg: string) => void;
   /** Fault tests only: while this answers true the attempt beats no heartbeat, as a stalled process would. */
   heartbeatPaused?: () => boolean;
+  /** Told once a run has ended for good (completed, or failed after its last try); e.g. to e-mail its owner. Must not throw. */
+  onEnded?: (runId: string, outcome: 'completed' | 'failed') => Promise<void>;
 }
 
 /**
@@ -108,6 +110,7 @@ export async function handleRunJob(deps: RunJobDeps, job: RunJobInfo): Promise<R
     });
     if (!ended) return 'superseded';
     log(`run ${run.id} failed (attempt ${attempt}${final ? ', final' : ', will be retried'}): ${message}`);
+    if (final) await deps.onEnded?.(run.id, 'failed');
     return final ? 'failed' : 'retry';
   };
 
@@ -180,5 +183,6 @@ export async function handleRunJob(deps: RunJobDeps, job: RunJobInfo): Promise<R
     log(`run ${run.id}: attempt ${attempt} was superseded; its results were discarded and its job left to the live attempt`);
     return 'superseded';
   }
+  await deps.onEnded?.(run.id, 'completed');
   return 'completed';
 }

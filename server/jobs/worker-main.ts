@@ -6,6 +6,8 @@ import { runPartitioned } from './partitioned-run.js';
 import { startWorkerLoop } from './worker.js';
 import { startModeMapWorker } from '../modemaps/mode-map-worker.js';
 import { startFitWorker } from '../fits/fit-job.js';
+import { notificationQueue } from '../fabrication/notification-queue.js';
+import { runEndedNotifier } from '../fabrication/run-notification.js';
 
 const config = loadConfig();
 const handle = connectDb(config.databaseUrl, 4);
@@ -16,6 +18,7 @@ const worker = startWorkerLoop({
   compute: (task, onProgress, signal) => runPartitioned(task, config.threadsPerRun, onProgress, signal),
   staleAfterSeconds: config.runStaleSeconds,
   supervisorSeconds: Math.max(1, Math.min(10, Math.floor(config.runStaleSeconds / 3))),
+  onEnded: runEndedNotifier(handle.db, notificationQueue(boss), config.publicUrl),
 });
 const fitWorker = await startFitWorker({ db: handle.db, boss });
 const maps = startModeMapWorker({ db: handle.db, boss });

@@ -21,6 +21,8 @@ export interface WorkerLoopOptions {
   log?: (msg: string) => void;
   /** Fault tests only: see RunJobDeps.heartbeatPaused. */
   heartbeatPaused?: () => boolean;
+  /** Told once a run has ended for good (see RunJobDeps.onEnded). */
+  onEnded?: RunJobDeps['onEnded'];
   /** Fault tests only: told how each attempt of this loop ended. */
   onOutcome?: (runId: string, outcome: RunJobOutcome) => void;
 }
@@ -64,7 +66,7 @@ export function startWorkerLoop(o: WorkerLoopOptions): { stop: () => Promise<voi
         };
         try {
           const outcome = await handleRunJob(
-            { db: o.db, compute: o.compute, log, heartbeatPaused: o.heartbeatPaused },
+            { db: o.db, compute: o.compute, log, heartbeatPaused: o.heartbeatPaused, onEnded: o.onEnded },
             { runId: job.data.runId, retryCount: job.retryCount, retryLimit: job.retryLimit, jobId: job.id, settle },
           );
           o.onOutcome?.(job.data.runId, outcome);

@@ -3,16 +3,6 @@ import { authGuard } from './core/auth/auth-guard';
 import { groupGuard } from './core/group/group-guard';
 import { homeRedirect } from './core/group/home-redirect';
 
-const laterRelease = () => import('./core/shell/later-release').then((m) => m.LaterRelease);
-
-/** Areas planned for later releases: each shows a plain placeholder until its feature lands. */
-const later = (path: string, area: string) => ({
-  path,
-  loadComponent: laterRelease,
-  data: { area },
-  title: `${area} · Poleward`,
-});
-
 export const routes: Routes = [
   {
     path: 'sign-in',
@@ -54,7 +44,12 @@ export const routes: Routes = [
           { path: 'runs', loadChildren: () => import('./runs/runs.routes').then((m) => m.runsRoutes) },
           { path: 'catalogue', loadChildren: () => import('./catalogue/catalogue.routes').then((m) => m.catalogueRoutes) },
           { path: 'fits', loadChildren: () => import('./fits/fits.routes').then((m) => m.fitsRoutes) },
-          later('fabrication', 'Fabrication'),
+          {
+            path: 'fabrication',
+            loadComponent: () => import('./fabrication/fabrication-page').then((m) => m.FabricationPage),
+            title: 'Fabrication · Poleward',
+          },
+          { path: 'review', loadComponent: () => import('./review/review-queue').then((m) => m.ReviewQueue), title: 'Review · Poleward' },
         ],
       },
       {

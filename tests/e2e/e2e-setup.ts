@@ -15,6 +15,8 @@ import { startModeMapWorker } from '../../server/modemaps/mode-map-worker.js';
 import { startMailStandIn } from '../../server/mail/mail-stand-in.js';
 import { createMailer } from '../../server/mail/mailer.js';
 import { RunEvents } from '../../server/runs/run-events.js';
+import { notificationQueue } from '../../server/fabrication/notification-queue.js';
+import { startNotificationWorker } from '../../server/fabrication/notification-job.js';
 import { ensureDatabase } from '../../scripts/db.js';
 import { migrate } from '../../scripts/migrate.js';
 import { seedDemo } from '../../scripts/seed.js';
@@ -44,7 +46,8 @@ export default async function setup(project: TestProject): Promise<() => Promise
   const runEvents = new RunEvents(url);
   await runEvents.start();
   const mailer = createMailer(config.smtpUrl, config.mailFrom);
-  const app = createApp({ db: handle.db, config, mailer, queue: runQueue(boss), modeMapQueue: modeMapQueue(boss), runEvents, log: () => {} });
+  const app = createApp({ db: handle.db, config, mailer, queue: runQueue(boss), modeMapQueue: modeMapQueue(boss), runEvents, notifications: notificationQueue(boss), log: () => {} });
+  const notificationWorker = await startNotificationWorker({ db: handle.db, boss, mailer, pollingIntervalSeconds: 0.5 });
   const http = createServer(app);
   await new Promise<void>((done) => http.listen(0, '127.0.0.1', done));
   const { port } = http.address() as AddressInfo;
@@ -54,6 +57,7 @@ export default async function setup(project: TestProject): Promise<() => Promise
   return async () => {
     await worker.stop();
     await maps.stop();
+    await notificationWorker.stop();
     http.closeAllConnections();
     await new Promise<void>((done) => http.close(() => done()));
     await runEvents.close();

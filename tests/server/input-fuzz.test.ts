@@ -54,7 +54,7 @@ afterAll(async () => {
 
 /** Rows of every table a request could write, to check that a refused one wrote nothing. */
 async function tableCounts(): Promise<Record<string, number>> {
-  const tables = ['cavity_models', 'model_versions', 'runs', 'invitations', 'memberships', 'users', 'research_groups', 'resonances'];
+  const tables = ['cavity_models', 'model_versions', 'runs', 'invitations', 'memberships', 'users', 'research_groups', 'resonances', 'resonance_fabrication', 'resonance_comments', 'notifications'];
   const out: Record<string, number> = {};
   for (const t of tables) {
     const r = await app.handle.db.execute(sql.raw(`select count(*)::int as n from ${t}`));
@@ -148,6 +148,23 @@ describe('fuzzed input never gets a 5xx or a half-stored object', () => {
       bodies: fc.record({ kind: fc.constantFrom('pole-search', 'transmission', 'x'), window: mutate(smallWindow), note: fc.option(fc.string({ maxLength: 3000 }), { nil: undefined }) }).map((b) => ({ ...b, modelId })),
     },
     { name: 'PATCH resonances/:id (tags, notes)', who: () => designer, send: (b) => designer.agent.patch(`${g()}/resonances/${randomUUID()}`).set('X-CSRF-Token', designer.csrf).set('Content-Type', 'application/json').send(JSON.stringify(b) ?? 'null'), bodies: mutate({ tags: ['a'], notes: 'n' }) },
+    {
+      name: 'POST resonances/:id/fabrication',
+      who: () => designer,
+      send: (b) => post(designer, `${g()}/resonances/${randomUUID()}/fabrication`, b),
+      bodies: fc.oneof(
+        mutate({ action: 'propose', reason: 'r', tolerances: { energyMeV: 0.05, minQuality: 100 } }),
+        mutate({ action: 'measure', energy: 4.2, width: 0.01, energyUncertainty: 0.001 }),
+        mutate({ action: 'send', batch: 'w' }),
+      ),
+    },
+    { name: 'POST resonances/:id/comments', who: () => designer, send: (b) => post(designer, `${g()}/resonances/${randomUUID()}/comments`, b), bodies: mutate({ body: 'x', mentions: [randomUUID()] }) },
+    {
+      name: 'PUT account/notifications',
+      who: () => designer,
+      send: (b) => designer.agent.put('/api/account/notifications').set('X-CSRF-Token', designer.csrf).set('Content-Type', 'application/json').send(JSON.stringify(b) ?? 'null'),
+      bodies: fc.oneof(mutate({ enabled: { mentioned: false } }), fc.record({ enabled: mutate({ candidate_proposed: true, run_finished: false }) })),
+    },
     { name: 'POST groups/:id/invitations', who: () => admin, send: (b) => post(admin, `${g()}/invitations`, b), bodies: mutate({ email: 'someone@fixture.example', role: 'viewer' }).filter((b) => !(b && typeof b === 'object' && (b as { email?: unknown }).email === 'someone@fixture.example')) },
     { name: 'PATCH groups/:id/members/:userId', who: () => admin, send: (b) => admin.agent.patch(`${g()}/members/${randomUUID()}`).set('X-CSRF-Token', admin.csrf).set('Content-Type', 'application/json').send(JSON.stringify(b) ?? 'null'), bodies: mutate({ role: 'viewer' }) },
     { name: 'POST tokens', who: () => designer, send: (b) => post(designer, '/api/tokens', b), bodies: mutate({ name: 'x' }).filter((b) => !(b && typeof b === 'object' && typeof (b as { name?: unknown }).name === 'string')) },
@@ -179,6 +196,7 @@ describe('fuzzed input never gets a 5xx or a half-stored object', () => {
       ['/catalogue/export.csv', ['q', 'family', 'tags', 'emin', 'emax', 'sort']],
       ['/catalogue/export.json', ['q', 'family', 'tags', 'emin', 'emax', 'bound']],
       ['/activity', ['limit']],
+      ['/fabrication', ['state']],
     ];
     const requests = fc.constantFrom(...targets).chain(([path, keys]) => fc.tuple(fc.constant(path), queryStrings(keys)));
     await fc.assert(

@@ -29,6 +29,7 @@ describe('Account', () => {
     TestBed.inject(Auth).adopt(demoSession('admin'));
     const harness = await RouterTestingHarness.create();
     await harness.navigateByUrl('/account', Account);
+    (await nextRequest(mock, '/api/account/notifications')).flush({ kinds: [] });
     (await nextRequest(mock, '/api/account/activity?limit=50')).flush([
       { id: 'e4', at: '2026-12-01T10:04:00Z', actor: { id: 'u-op', name: 'Ada Marlow' }, action: 'outbox.read', subject: 'Reset your Poleward password', details: { messageId: 'm1' } },
       { id: 'e3', at: '2026-12-01T10:03:00Z', actor: { id: 'u-ada', name: 'Ada Marlow' }, action: 'auth.password_reset', subject: 'ada.admin@harrow-lake.example', details: { sessionsEnded: 2, tokensRevoked: 1 } },
@@ -55,6 +56,7 @@ describe('Account', () => {
     TestBed.inject(Auth).adopt(demoSession('viewer'));
     const harness = await RouterTestingHarness.create();
     await harness.navigateByUrl('/account', Account);
+    (await nextRequest(mock, '/api/account/notifications')).flush({ kinds: [] });
     (await nextRequest(mock, '/api/account/activity?limit=50')).flush([]);
     await settle();
     harness.detectChanges();

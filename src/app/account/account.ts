@@ -9,11 +9,12 @@ import { Auth } from '../core/auth/auth';
 import { ErrorReport } from '../core/errors/error-report';
 import { AccountApi } from './account-api';
 import { accountEvent } from './account-event';
+import { NotificationSettings } from '../fabrication/notification-settings';
 
 /** The signed-in person's account: what happened to it lately (sign-ins, failures, resets, tokens). */
 @Component({
   selector: 'pw-account',
-  imports: [DatePipe, RouterLink, MatIconModule, MatProgressBarModule],
+  imports: [DatePipe, RouterLink, MatIconModule, MatProgressBarModule, NotificationSettings],
   templateUrl: './account.html',
   styleUrl: './account.scss',
 })

@@ -22,6 +22,7 @@ import { materialLabel } from './material-label';
 import { PartialWidths } from './partial-widths';
 import { PhaseLegend } from './phase-legend';
 import { ModeMapPanel } from './mode-map-panel';
+import { FabricationPanel } from '../fabrication/fabrication-panel';
 
 /**
  * One catalogued resonance: its figures in units that fit, the partial widths per
@@ -44,6 +45,7 @@ import { ModeMapPanel } from './mode-map-panel';
     PhaseLegend,
     PolePlaneChart,
     ModeMapPanel,
+    FabricationPanel,
   ],
   templateUrl: './resonance-detail.html',
   styleUrl: './resonance-detail.scss',

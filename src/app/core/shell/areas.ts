@@ -12,6 +12,7 @@ export const areas: readonly Area[] = [
   { path: 'runs', label: 'Runs', icon: 'play_circle' },
   { path: 'catalogue', label: 'Catalogue', icon: 'library_books' },
   { path: 'fits', label: 'Fits', icon: 'ssid_chart' },
+  { path: 'review', label: 'Review', icon: 'rate_review' },
   { path: 'fabrication', label: 'Fabrication', icon: 'precision_manufacturing' },
   { path: 'members', label: 'Members', icon: 'group' },
 ];

@@ -53,6 +53,7 @@ describe('Shell', () => {
       '/g/harrow-lake/runs',
       '/g/harrow-lake/catalogue',
       '/g/harrow-lake/fits',
+      '/g/harrow-lake/review',
       '/g/harrow-lake/fabrication',
       '/g/harrow-lake/members',
     ]);
