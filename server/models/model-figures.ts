@@ -128,5 +128,10 @@ const figureFields = cavityModelSchema.pick({ name: true, spacing: true, materia
  */
 export function figuresOfStored(document: unknown, siteCount: number): DerivedFigures | null {
   const v = figureFields.safeParse(document);
-  return v.success ? deriveFigures(v.data as CavityModel, siteCount) : null;
+  if (!v.success) return null;
+  try {
+    return deriveFigures(v.data as CavityModel, siteCount);
+  } catch {
+    return null; // a value the form allows but the figures refuse (an unknown material name, say)
+  }
 }

@@ -97,10 +97,21 @@ describe('derived figures stored with the version', () => {
     expect(spies()).toMatchObject({ deriveFigures: 1, rasteriseShape: 0, validateCavityModel: 0 });
     vi.clearAllMocks();
 
-    const { filled } = await backfillDerivedFigures(app.handle.db);
+    // A row whose document the figures refuse (an unknown material) is skipped, not a failed start.
+    const [v1] = await app.handle.db.select().from(modelVersions).where(eq(modelVersions.modelId, modelId));
+    const { id: _id, createdAt: _c, ...copy } = v1!;
+    const [odd] = await app.handle.db
+      .insert(modelVersions)
+      .values({ ...copy, version: 2, document: { ...(v1!.document as Record<string, unknown>), material: 'unobtainium' }, derived: null })
+      .returning({ id: modelVersions.id });
+
+    const { filled, skipped } = await backfillDerivedFigures(app.handle.db);
     expect(filled).toBeGreaterThanOrEqual(1);
+    expect(skipped).toBeGreaterThanOrEqual(1);
+    const [oddAfter] = await app.handle.db.select({ derived: modelVersions.derived }).from(modelVersions).where(eq(modelVersions.id, odd!.id));
+    expect(oddAfter!.derived).toBeNull();
     expect(spies().rasteriseShape).toBe(0);
-    const [row] = await app.handle.db.select({ derived: modelVersions.derived }).from(modelVersions).where(eq(modelVersions.modelId, modelId));
+    const [row] = await app.handle.db.select({ derived: modelVersions.derived }).from(modelVersions).where(eq(modelVersions.id, v1!.id));
     expect(JSON.parse(JSON.stringify(row!.derived))).toEqual(saved.derived);
     expect((await backfillDerivedFigures(app.handle.db)).filled).toBe(0);
 
