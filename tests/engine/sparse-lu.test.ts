@@ -476,6 +476,9 @@ describe('sparse LU errors', () => {
     const bad = a.values.slice();
     bad[9] = NaN;
     expect(() => plan.factor(bad)).toThrow(/entry 4 of the values \(imaginary part\) is NaN/);
+    const infinite = a.values.slice();
+    infinite[2 * a.colPtr[a.n] - 2] = -Infinity;
+    expect(() => plan.factor(infinite)).toThrow(new RegExp(`entry ${a.colPtr[a.n] - 1} of the values \\(real part\\) is -Infinity`));
     expect(() => SparseLuPlan.analyse(a.n, a.colPtr, a.rowIdx, { sites: { i: new Int32Array(3), j: new Int32Array(3) } })).toThrow(
       /sites\.i and sites\.j must have length n = 25/,
     );
