@@ -10,6 +10,7 @@ import type { z } from 'zod';
 import type { Queryable } from '../db/client.js';
 import { fitsBackupSections } from './fits-backup-sections.js';
 import { modeMapsBackupSections } from './mode-maps-backup-sections.js';
+import { fabricationBackupSections, importedResonanceSections } from './fabrication-backup-sections.js';
 
 /** The kinds of archive ids a record can refer to. */
 export type IdKind = 'models' | 'modelVersions' | 'runs' | 'resonances' | 'traces' | 'fits';
@@ -46,4 +47,4 @@ export interface BackupSection<R extends { type: string } = { type: string }> {
 }
 
 /** Registered sections, in archive order: a record's links point only at core records or earlier sections. */
-export const backupSections: BackupSection[] = [...fitsBackupSections, ...modeMapsBackupSections] as unknown as BackupSection[];
+export const backupSections: BackupSection[] = [...fitsBackupSections, ...importedResonanceSections, ...modeMapsBackupSections, ...fabricationBackupSections] as unknown as BackupSection[];

@@ -82,7 +82,7 @@ export class ComputePool implements Compute {
  */
 export const inlineCompute: Compute = {
   async run(task) {
-    return unwrap(runComputeTask(task));
+    return unwrap(await runComputeTask(task));
   },
   async close() {},
 };

@@ -11,12 +11,14 @@ import { checkModel, type CheckedModel, invalidModel } from '../models/model-fig
 import { estimateRun, type RunEstimate } from '../runs/run-estimate.js';
 import type { RunRequest } from '../runs/run-window.js';
 import { buildLayoutFiles, type LayoutFiles } from '../fabrication/layout-files.js';
+import { renderSpecSheet, type SpecSheetInput } from '../fabrication/spec-sheet.js';
 
 export type ComputeTask =
   | { kind: 'check-model'; document: unknown }
   | { kind: 'mask-from-bitmap'; file: Uint8Array; spacingNm: number; widthNm: number; maxSites: number }
   | { kind: 'estimate-run'; document: unknown; request: Pick<RunRequest, 'kind' | 'window'> }
-  | { kind: 'device-layout'; document: unknown; title: string; structureName: string; time: Date };
+  | { kind: 'device-layout'; document: unknown; title: string; structureName: string; time: Date }
+  | { kind: 'spec-sheet'; input: SpecSheetInput };
 
 /** What each task kind answers. */
 export interface ComputeAnswers {
@@ -24,6 +26,7 @@ export interface ComputeAnswers {
   'mask-from-bitmap': BitmapMask;
   'estimate-run': RunEstimate;
   'device-layout': LayoutFiles;
+  'spec-sheet': Uint8Array;
 }
 
 export interface ComputeProblem {
@@ -52,13 +55,16 @@ function compute(task: ComputeTask): unknown {
       }
     case 'device-layout':
       return buildLayoutFiles(task.document, task.title, task.structureName, task.time);
+    case 'spec-sheet':
+      // Font parsing and subsetting take a second or two of CPU under load: never on the API thread.
+      return renderSpecSheet(task.input).then((pdf) => new Uint8Array(pdf.buffer, pdf.byteOffset, pdf.byteLength));
   }
 }
 
-/** Runs one task; ApiErrors become problems, anything else is thrown (a 500 on the API side). */
-export function runComputeTask(task: ComputeTask): ComputeOutcome {
+/** Runs one task (some, like the spec sheet, finish asynchronously); ApiErrors become problems, anything else is thrown (a 500 on the API side). */
+export async function runComputeTask(task: ComputeTask): Promise<ComputeOutcome> {
   try {
-    return { ok: true, value: compute(task) };
+    return { ok: true, value: await compute(task) };
   } catch (err) {
     if (err instanceof ApiError) {
       return { ok: false, problem: { status: err.status, code: err.code, message: err.message, issues: err.issues } };

@@ -20,7 +20,7 @@ import { resonanceNotFound } from '../catalogue/catalogue-service.js';
 import { userNames } from './fabrication-repository.js';
 import { PACKAGE_STATES } from './fabrication-service.js';
 import type { LayoutFiles } from './layout-files.js';
-import { renderSpecSheet, STANDING_CAUTION, type SpecSheetInput } from './spec-sheet.js';
+import { STANDING_CAUTION, type SpecSheetInput } from './spec-sheet.js';
 import { compareFigure } from '../../shared/fabrication/measurement-comparison.js';
 import type { PackageFile } from '../../shared/api/fabrication.js';
 
@@ -78,12 +78,12 @@ export class FabricationPackages {
     if (which === 'layout.gds') return { fileName: `${base}.gds`, mediaType: PACKAGE_MEDIA_TYPES[which], bytes: files.gds };
     if (which === 'layout.dxf') return { fileName: `${base}.dxf`, mediaType: PACKAGE_MEDIA_TYPES[which], bytes: strToU8(files.dxf) };
     if (which === 'layout.svg') return { fileName: `${base}.svg`, mediaType: PACKAGE_MEDIA_TYPES[which], bytes: strToU8(files.svg) };
-    const pdf = await renderSpecSheet(await this.sheetInput(s, files));
+    const pdf = await this.compute.run({ kind: 'spec-sheet', input: await this.sheetInput(s, files) }, signal);
     if (which === 'spec.pdf') return { fileName: `${base}-spec.pdf`, mediaType: PACKAGE_MEDIA_TYPES[which], bytes: pdf };
     const zip = zipSync(
       {
         [`${base}/README.txt`]: strToU8(this.readme(title, files)),
-        [`${base}/${base}-spec.pdf`]: [new Uint8Array(pdf), { level: 0 }],
+        [`${base}/${base}-spec.pdf`]: [pdf, { level: 0 }],
         [`${base}/${base}.gds`]: files.gds,
         [`${base}/${base}.dxf`]: strToU8(files.dxf),
         [`${base}/${base}.svg`]: strToU8(files.svg),

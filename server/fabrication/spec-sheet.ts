@@ -58,7 +58,8 @@ export interface SpecSheetInput {
   measurement: Measurement | null;
   layout: DeviceLayout;
   gdsRoundingNm: number;
-  modeImage: Buffer | null;
+  /** PNG bytes (a Buffer turns into a Uint8Array on its way to the compute thread). */
+  modeImage: Uint8Array | null;
 }
 
 const fmt = (v: number | null, digits = 6) => (v === null ? '∞' : Number(v.toPrecision(digits)).toString());
@@ -211,7 +212,7 @@ export function renderSpecSheet(input: SpecSheetInput): Promise<Buffer> {
   const top = doc.y + 4;
   const half = (doc.page.width - 96 - 16) / 2;
   if (input.modeImage) {
-    doc.image(input.modeImage, 48, top, { fit: [half, half] });
+    doc.image(Buffer.from(input.modeImage.buffer, input.modeImage.byteOffset, input.modeImage.byteLength), 48, top, { fit: [half, half] });
   } else {
     doc.font('Regular').text('No mode image is stored for this resonance.', 48, top, { width: half });
   }
