@@ -113,7 +113,7 @@ export class CatalogueImport {
           modelId = await insertModel(tx, groupId, userId, m.name, null);
           newModel.set(m.modelId, modelId);
         }
-        await insertVersion(tx, groupId, modelId, m.version, userId, m.document, c.columns);
+        await insertVersion(tx, groupId, modelId, m.version, userId, c);
         const [v] = await tx.select({ id: modelVersions.id }).from(modelVersions).where(and(eq(modelVersions.modelId, modelId), eq(modelVersions.version, m.version)));
         newVersion.set(k, { id: v!.id, spacingNm: c.columns.spacingNm });
       }
