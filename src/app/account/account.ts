@@ -9,11 +9,12 @@ import { Auth } from '../core/auth/auth';
 import { ErrorReport } from '../core/errors/error-report';
 import { AccountApi } from './account-api';
 import { accountEvent } from './account-event';
+import { AccountSettings } from './account-settings';
 
-/** The signed-in person's account: what happened to it lately (sign-ins, failures, resets, tokens). */
+/** The signed-in person's account: settings, and what happened to it lately (sign-ins, failures, resets, tokens). */
 @Component({
   selector: 'pw-account',
-  imports: [DatePipe, RouterLink, MatIconModule, MatProgressBarModule],
+  imports: [DatePipe, RouterLink, MatIconModule, MatProgressBarModule, AccountSettings],
   templateUrl: './account.html',
   styleUrl: './account.scss',
 })
