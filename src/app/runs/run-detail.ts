@@ -22,6 +22,7 @@ import { PolePlaneChart } from './pole-plane-chart';
 import { kindLabel, statusLabel, windowText } from './run-labels';
 import { type RunDetail as RunDetailData, RunsApi, finishedStatuses } from './runs-api';
 import { stageInWords } from './stage-words';
+import { runErrorTone } from './run-error-tone';
 import { TransmissionChart } from './transmission-chart';
 import { durationText, progressTimes } from './progress-times';
 import { exportFileName, polesCsv, polesJson, saveText, spectrumCsv, spectrumJson } from './run-export';
@@ -70,6 +71,7 @@ export class RunDetail {
   protected readonly kindLabel = kindLabel;
   protected readonly statusLabel = statusLabel;
   protected readonly windowText = windowText;
+  protected readonly errorTone = runErrorTone;
   protected readonly columns = ['index', 'energy', 'width', 'lifetime', 'quality', 'petermann', 'flags'];
 
   protected readonly run = signal<RunDetailData | null>(null);

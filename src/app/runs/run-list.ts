@@ -19,6 +19,7 @@ import { injectCanDesign } from '../models/design-permission';
 import { kindLabel, statusLabel, windowText } from './run-labels';
 import { type Run, type RunKind, type RunListQuery, type RunStatus, RunsApi, finishedStatuses, pollPeriodMs } from './runs-api';
 import { stageInWords } from './stage-words';
+import { runErrorTone } from './run-error-tone';
 import { durationText, progressTimes } from './progress-times';
 
 type RunPage = { items: Run[]; total: number };
@@ -61,6 +62,7 @@ export class RunList {
   protected readonly kindLabel = kindLabel;
   protected readonly statusLabel = statusLabel;
   protected readonly windowText = windowText;
+  protected readonly errorTone = runErrorTone;
   /** Up to two runs ticked for the comparison page, in the order ticked. */
   protected readonly picked = signal<string[]>([]);
 
