@@ -11,6 +11,7 @@ import { MatSnackBar } from '@angular/material/snack-bar';
 import { RouterLink } from '@angular/router';
 import { ErrorReport } from '../core/errors/error-report';
 import { CurrentGroup } from '../core/group/current-group';
+import { ModeImageScale } from './mode-image-scale';
 import { injectCanDesign } from '../models/design-permission';
 import { certificateInWords } from '../runs/certificate-words';
 import { PolePlaneChart } from '../runs/pole-plane-chart';
@@ -33,6 +34,7 @@ import { ModeMapPanel } from './mode-map-panel';
   changeDetection: ChangeDetectionStrategy.OnPush,
   imports: [
     ReactiveFormsModule,
+    ModeImageScale,
     RouterLink,
     MatButtonModule,
     MatCardModule,

@@ -47,7 +47,9 @@ export function overlaySpectraOptions(a: ComparedRun, b: ComparedRun, colours: C
           name: `${run.label}: ${curve.name}`,
           type: 'line',
           showSymbol: false,
-          lineStyle: { width: 1.5, type: k === 0 ? 'solid' : 'dashed' },
+          // A in the primary colour, B in the tertiary one, as in the pole overlay.
+          lineStyle: { width: 1.5, type: k === 0 ? 'solid' : 'dashed', color: k === 0 ? c.primary : c.tertiary },
+          itemStyle: { color: k === 0 ? c.primary : c.tertiary },
           data: run.spectrum!.energies.map((e, n) => [e, curve.values[n]]),
         }))
       : [],

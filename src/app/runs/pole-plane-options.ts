@@ -71,7 +71,8 @@ export function polePlaneOptions(input: PlaneInput): EChartsCoreOption {
       max: 0,
       // The whole window shows, its lower edge Im z = −Γmax/2 included.
       min: gammaMax != null ? -(gammaMax / 2) * 1.08 : undefined,
-      axisLabel: axisText,
+      // The padded minimum is no round number: its label would crowd the one above it.
+      axisLabel: { ...axisText, showMinLabel: gammaMax == null },
       nameTextStyle: axisText,
       splitLine: { lineStyle: { color: c.outlineVariant } },
     },

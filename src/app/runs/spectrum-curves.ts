@@ -12,9 +12,9 @@ export type ConductanceUnit = '2e2/h' | 'e2/h' | 'uS';
 export const E2_OVER_H_US = 1e6 / 25812.80745;
 
 export const conductanceUnitLabels: Record<ConductanceUnit, string> = {
-  '2e2/h': '2e²/h (spin-degenerate)',
-  'e2/h': 'e²/h (one spin)',
-  uS: 'µS (spin-degenerate)',
+  '2e2/h': '2e²/h, both spins',
+  'e2/h': 'e²/h, one spin',
+  uS: 'µS, both spins',
 };
 
 /** Factor from T to G in the unit: the engine's leads are spinless, so T counts one spin. */
