@@ -9,6 +9,7 @@ import { authRoutes } from './auth/auth-routes.js';
 import { AuthService } from './auth/auth-service.js';
 import { authenticate } from './auth/authenticate.js';
 import { accountRoutes } from './auth/account-routes.js';
+import { AccountService } from './auth/account-service.js';
 import { defaultPasswordCost } from './auth/password.js';
 import { threadPasswordHasher, type PasswordHasher } from './auth/password-hasher.js';
 import {
@@ -155,7 +156,7 @@ export function createApp(deps: AppDeps): Express {
   api.use('/invitations', invitationRoutes({ db, invitations, jwtSecret: config.jwtSecret, secureCookies, linkLimit }));
   // Fabrication: states, review, comments, packages, notification settings, catalogue import.
   fabricationFeature(api, { db, config, compute, notifications: deps.notifications ?? null });
-  api.use('/account', accountRoutes(db));
+  api.use('/account', accountRoutes({ db, account: new AccountService({ db, passwordCost, passwords }), jwtSecret: config.jwtSecret, secureCookies }));
   api.use('/groups', groupRoutes({ db, groups, invitations }));
   api.use('/groups/:groupId/models', modelRoutes(new ModelService(db, compute), compute));
   api.use('/groups/:groupId/runs', runRoutes(new RunService(db, deps.queue, compute, config.runLimits), deps.runEvents ?? null));

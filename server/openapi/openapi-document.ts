@@ -9,6 +9,7 @@ import { z } from 'zod';
 import { backupQuery } from '../backup/backup-routes.js';
 import { confirmBody, resetBody, signInBody } from '../auth/auth-routes.js';
 import { accountActivityQuery } from '../auth/account-routes.js';
+import * as accountApi from '../../shared/api/account.js';
 import { createBody as tokenBody, tokenParams as apiTokenParams } from '../auth/api-token-routes.js';
 import { catalogueFilterSchema, catalogueQuerySchema } from '../catalogue/catalogue-query.js';
 import { imageQuery, labelBody } from '../catalogue/resonance-routes.js';
@@ -559,6 +560,37 @@ const legacyOperations: Operation[] = [
   },
   { id: 'revokeApiToken', method: 'delete', path: '/tokens/{id}', tag: 'tokens', summary: 'Revoke a personal API token', access: 'signed-in', params: apiTokenParams, success: empty(204, 'Revoked') },
 
+  { id: 'getAccount', method: 'get', path: '/account', tag: 'account', summary: "The caller's own account: name and e-mail", access: 'signed-in', success: json(200, 'The account', accountApi.accountProfileSchema) },
+  {
+    id: 'renameAccount',
+    method: 'patch',
+    path: '/account',
+    tag: 'account',
+    summary: "Change the caller's own display name",
+    access: 'signed-in',
+    body: accountApi.accountRenameBody,
+    success: json(200, 'The account', accountApi.accountProfileSchema),
+  },
+  {
+    id: 'changePassword',
+    method: 'post',
+    path: '/account/password',
+    tag: 'account',
+    summary: "Change the caller's password, giving the current one; ends every session (a browser caller gets a new one)",
+    access: 'signed-in',
+    body: accountApi.passwordChangeBody,
+    success: empty(204, 'Changed'),
+    errors: { 400: 'wrong_password: the current password is wrong (issue at currentPassword); or validation_failed' },
+  },
+  {
+    id: 'signOutEverywhere',
+    method: 'post',
+    path: '/account/sign-out-everywhere',
+    tag: 'account',
+    summary: 'End every browser session of the account, this one included (API tokens stay)',
+    access: 'signed-in',
+    success: json(200, 'Sessions ended', accountApi.signOutEverywhereAnswer),
+  },
   {
     id: 'listAccountActivity',
     method: 'get',
@@ -716,7 +748,7 @@ export function buildOpenApiDocument(version: string): ReturnType<OpenApiGenerat
       { name: 'runs', description: 'Pole searches and transmission sweeps' },
       { name: 'catalogue', description: 'The resonance catalogue' },
       { name: 'tokens', description: 'Personal API tokens' },
-      { name: 'account', description: "The caller's own account: its activity" },
+      { name: 'account', description: "The caller's own account: name, password, sessions and activity" },
       { name: 'outbox', description: 'The local mail stand-in' },
       { name: 'fabrication', description: 'Fabrication states, review, comments, packages, notifications, catalogue import' },
     ],

@@ -60,7 +60,7 @@ export const routes: Routes = [
       {
         path: 'account',
         loadComponent: () => import('./account/account').then((m) => m.Account),
-        title: 'Account activity · Poleward',
+        title: 'Account · Poleward',
       },
       {
         path: 'outbox',

@@ -42,9 +42,12 @@ describe('a pole search from the editor to the catalogue', () => {
     await fill('Spacing a (nm)', 5);
     await fill('Columns Nx', 51);
     await fill('Rows Ny', 21);
-    await page.getByLabel('Shape', { exact: true }).click();
-    await page.getByRole('option', { name: /json/i }).click();
-    await page.getByLabel('Shape (JSON)').fill(JSON.stringify(stadium, null, 2));
+    // The stadium with its stubs goes in through the JSON view, which shows the whole document.
+    await page.locator('[data-test="view-json"] button').click();
+    const box = page.locator('[data-field="document.json"]');
+    const doc = JSON.parse(await box.inputValue()) as Record<string, unknown>;
+    await box.fill(JSON.stringify({ ...doc, shape: stadium }, null, 2));
+    await page.locator('[data-test="view-form"] button').click();
     const starts = page.getByLabel('First mouth site');
     const widths = page.getByLabel('Width (sites)');
     for (const k of [0, 1]) {

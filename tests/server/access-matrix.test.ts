@@ -105,7 +105,10 @@ async function call(route: string, caller: Caller): Promise<request.Response> {
   const agent = who?.agent ?? request(app.server);
   let req = (agent as unknown as Record<string, (url: string) => request.Test>)[method]!.call(agent, url).timeout(10_000);
   if (who && method !== 'get') req = req.set('X-CSRF-Token', who.csrf);
-  return method === 'get' || method === 'delete' ? req : req.send({});
+  const res = await (method === 'get' || method === 'delete' ? req : req.send({}));
+  // Signing out everywhere ends every session of the caller: sign in again for the rest of the matrix.
+  if (who && caller !== 'anonymous' && route === 'post /api/account/sign-out-everywhere') signedIn.set(caller, await signInAs(app, who.session.user.email));
+  return res;
 }
 
 describe('route × caller access matrix', () => {

@@ -3,6 +3,7 @@ import { Injectable, inject } from '@angular/core';
 import { Observable, map } from 'rxjs';
 // zod/mini: the classic build pulls ~450 kB (all locales) into the first chunk.
 import * as z from 'zod/mini';
+import type { AccountProfile } from '../../../shared/api/account';
 
 export const accountEntrySchema = z.object({
   id: z.string(),
@@ -18,6 +19,22 @@ export type AccountEntry = z.infer<typeof accountEntrySchema>;
 @Injectable({ providedIn: 'root' })
 export class AccountApi {
   private readonly http = inject(HttpClient);
+
+  profile(): Observable<AccountProfile> {
+    return this.http.get<AccountProfile>('/api/account');
+  }
+
+  rename(name: string): Observable<AccountProfile> {
+    return this.http.patch<AccountProfile>('/api/account', { name });
+  }
+
+  changePassword(currentPassword: string, newPassword: string): Observable<void> {
+    return this.http.post<void>('/api/account/password', { currentPassword, newPassword });
+  }
+
+  signOutEverywhere(): Observable<{ sessionsEnded: number }> {
+    return this.http.post<{ sessionsEnded: number }>('/api/account/sign-out-everywhere', {});
+  }
 
   activity(limit = 50): Observable<AccountEntry[]> {
     return this.http

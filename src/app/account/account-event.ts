@@ -33,6 +33,14 @@ export function accountEvent(e: AccountEntry): AccountEvent {
       return { text: `Refused: too many attempts (${e.subject})`, alert: true, ip };
     case 'security.csrf_refused':
       return { text: `Refused a request that lacked this session's CSRF value (${e.subject})`, alert: true, ip };
+    case 'account.renamed':
+      return { text: `Name changed from ${str(d['from']) ?? '?'} to ${str(d['to']) ?? '?'}`, alert: false, ip };
+    case 'account.password_changed':
+      return { text: `Password changed here; ${plural(num(d['sessionsEnded']), 'session', 'sessions')} ended`, alert: false, ip };
+    case 'account.password_change_refused':
+      return { text: 'Password change refused: the current password given was wrong', alert: true, ip };
+    case 'account.signed_out_everywhere':
+      return { text: `Signed out everywhere: ${plural(num(d['sessionsEnded']), 'session', 'sessions')} ended`, alert: false, ip };
     case 'auth.password_reset_requested':
       return { text: 'Password-reset link requested', alert: false, ip };
     case 'auth.password_reset':

@@ -10,11 +10,12 @@ import { ErrorReport } from '../core/errors/error-report';
 import { AccountApi } from './account-api';
 import { accountEvent } from './account-event';
 import { NotificationSettings } from '../fabrication/notification-settings';
+import { AccountSettings } from './account-settings';
 
-/** The signed-in person's account: what happened to it lately (sign-ins, failures, resets, tokens). */
+/** The signed-in person's account: settings, and what happened to it lately (sign-ins, failures, resets, tokens). */
 @Component({
   selector: 'pw-account',
-  imports: [DatePipe, RouterLink, MatIconModule, MatProgressBarModule, NotificationSettings],
+  imports: [DatePipe, RouterLink, MatIconModule, MatProgressBarModule, AccountSettings, NotificationSettings],
   templateUrl: './account.html',
   styleUrl: './account.scss',
 })

@@ -11,6 +11,7 @@ import { MatSnackBar } from '@angular/material/snack-bar';
 import { RouterLink } from '@angular/router';
 import { ErrorReport } from '../core/errors/error-report';
 import { CurrentGroup } from '../core/group/current-group';
+import { ModeImageScale } from './mode-image-scale';
 import { injectCanDesign } from '../models/design-permission';
 import { certificateInWords } from '../runs/certificate-words';
 import { PolePlaneChart } from '../runs/pole-plane-chart';
@@ -34,6 +35,7 @@ import { FabricationPanel } from '../fabrication/fabrication-panel';
   changeDetection: ChangeDetectionStrategy.OnPush,
   imports: [
     ReactiveFormsModule,
+    ModeImageScale,
     RouterLink,
     MatButtonModule,
     MatCardModule,

@@ -1,6 +1,7 @@
 import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
 import type { Lead } from '../../../shared/model/cavity-model';
 import { maskPath } from './lattice-mask-path';
+import { potentialOverlay } from './potential-overlay';
 
 /** Grids up to this many points draw one dot per site so the lattice itself is visible. */
 const DOT_LIMIT = 2500;
@@ -49,6 +50,23 @@ const GLYPH_WIDTH = 0.6;
         <text class="lead-label" [attr.x]="l.labelAt.x" [attr.y]="l.labelAt.y" [attr.font-size]="l.labelSize"
           text-anchor="middle" dominant-baseline="middle"><title>Lead {{ l.label }}</title>{{ l.label }}</text>
       }
+      @for (t of termDrawings(); track $index) {
+        @switch (t.kind) {
+          @case ('block') {
+            <rect class="term" [class.barrier]="t.positive" [class.well]="!t.positive" [attr.x]="t.x" [attr.y]="t.y" [attr.width]="t.w" [attr.height]="t.h"
+              [attr.stroke-width]="stroke()"><title>{{ t.label }}</title></rect>
+          }
+          @case ('gaussian') {
+            <circle class="term" [class.barrier]="t.positive" [class.well]="!t.positive" [attr.cx]="t.x" [attr.cy]="t.y" [attr.r]="t.r"
+              [attr.stroke-width]="stroke()"><title>{{ t.label }}</title></circle>
+            <circle class="term-halo" [attr.cx]="t.x" [attr.cy]="t.y" [attr.r]="t.r * 2" [attr.stroke-width]="stroke()" />
+          }
+        }
+        <text class="term-label" [attr.x]="t.labelAt.x" [attr.y]="t.labelAt.y" [attr.font-size]="fontSize() * 0.8" text-anchor="middle">{{ t.short }}</text>
+      }
+      @if (disorderText(); as d) {
+        <text class="term-label" [attr.x]="nx()" [attr.y]="-margin() * 0.3" [attr.font-size]="fontSize() * 0.8" text-anchor="end">{{ d }}</text>
+      }
       <g class="scale">
         <line [attr.x1]="0" [attr.x2]="scaleBar().sites" [attr.y1]="ny() + margin() * 0.55" [attr.y2]="ny() + margin() * 0.55"
           [attr.stroke-width]="stroke() * 2" />
@@ -67,6 +85,11 @@ const GLYPH_WIDTH = 0.6;
     .mouth { stroke: var(--mat-sys-tertiary); stroke-linecap: butt; }
     .lead-label, .scale text { fill: var(--mat-sys-on-surface); }
     .scale line { stroke: var(--mat-sys-on-surface); }
+    .term { fill-opacity: 0.28; vector-effect: non-scaling-stroke; }
+    .term.barrier { fill: var(--mat-sys-error); stroke: var(--mat-sys-error); }
+    .term.well { fill: var(--mat-sys-secondary); stroke: var(--mat-sys-secondary); }
+    .term-halo { fill: none; stroke: var(--mat-sys-outline); stroke-dasharray: 1 1; vector-effect: non-scaling-stroke; }
+    .term-label { fill: var(--mat-sys-on-surface); paint-order: stroke; stroke: var(--mat-sys-surface); stroke-width: 0.3; }
   `,
 })
 export class LatticePreview {
@@ -77,6 +100,15 @@ export class LatticePreview {
   /** Lattice spacing a (nm), for the scale bar. */
   readonly spacing = input.required<number>();
   readonly leads = input<readonly Lead[]>([]);
+  /** The model's potential terms (document values), drawn over the cavity. */
+  readonly potential = input<readonly Record<string, unknown>[]>([]);
+
+  /** Blocks and Gaussian bumps in SVG site units (site i at x = i + 0.5, row j at y = ny − j − 0.5). */
+  protected readonly termDrawings = computed(() => potentialOverlay(this.potential(), this.nx(), this.ny(), this.spacing()));
+  protected readonly disorderText = computed(() => {
+    const d = this.potential().filter((t) => t['kind'] === 'disorder');
+    return d.length ? d.map((t) => `disorder W = ${t['strength']} meV, seed ${t['seed']}`).join('; ') : '';
+  });
 
   /** Room around the grid for the lead ribbons and the scale bar, in sites. */
   protected readonly margin = computed(() => Math.max(3, Math.round(Math.max(this.nx(), this.ny()) * 0.14)));

@@ -36,6 +36,9 @@ function fieldOf(host: HTMLElement, path: string): HTMLElement {
   return input.closest('mat-form-field') as HTMLElement;
 }
 
+// The editor renders the whole form with Material fields: slow on a loaded 2-core machine.
+vi.setConfig({ testTimeout: 30_000 });
+
 describe('ModelEditor', () => {
   it('shows the field errors of a 400 next to the field they name', async () => {
     const { fixture, http, host } = setUp('designer');
@@ -64,10 +67,51 @@ describe('ModelEditor', () => {
     fixture.detectChanges();
     await fixture.whenStable();
 
-    expect(fieldOf(host, 'leads.1.start').textContent).toContain('mouth site (59, 45) of leads[1] (right) is outside the cavity');
+    // The long message goes under the lead, in full and naming the field; the narrow field only points to it.
+    expect(fieldOf(host, 'leads.1.start').textContent).toContain('See the message below.');
+    expect(host.querySelector('[data-lead="1"]')!.textContent).toContain(
+      'Lead 2, the first mouth site: mouth site (59, 45) of leads[1] (right) is outside the cavity',
+    );
     expect(fieldOf(host, 'leads.0.start').textContent).not.toContain('outside the cavity');
     expect(fieldOf(host, 'spacing').textContent).toContain('spacing must be positive');
     expect(host.querySelector('[data-lead="0"]')!.textContent).toContain('leads[0] (left) overlaps leads[1]');
+    http.match((r) => r.url.endsWith('/models/validate'));
+  });
+
+  it('shows the current document in the JSON view, and the form follows edits made there', async () => {
+    const { fixture, http, host } = setUp('designer');
+    (host.querySelector('[data-test="view-json"] button') as HTMLButtonElement).click();
+    fixture.detectChanges();
+    const box = host.querySelector<HTMLTextAreaElement>('[data-field="document.json"]')!;
+    const shown = JSON.parse(box.value);
+    expect(shown.shape).toEqual(starterModel.shape);
+    expect(shown.leads).toHaveLength(2);
+    box.value = JSON.stringify({ ...shown, shape: { kind: 'ellipse', cx: 150, cy: 100, rx: 140, ry: 95 } });
+    box.dispatchEvent(new Event('input'));
+    fixture.detectChanges();
+    (host.querySelector('[data-test="view-form"] button') as HTMLButtonElement).click();
+    fixture.detectChanges();
+    expect(host.querySelector<HTMLInputElement>('[data-field="shape.rx"]')!.value).toBe('140');
+    http.match((r) => r.url.endsWith('/models/validate'));
+  });
+
+  it('adds lead stubs to a curved cavity with one click each, so the leads validate', () => {
+    const { fixture, http, host } = setUp('designer');
+    (host.querySelector('[data-test="view-json"] button') as HTMLButtonElement).click();
+    fixture.detectChanges();
+    const box = host.querySelector<HTMLTextAreaElement>('[data-field="document.json"]')!;
+    const doc = { ...JSON.parse(box.value), name: 'Dot', shape: { kind: 'ellipse', cx: 150, cy: 100, rx: 110, ry: 80 } };
+    box.value = JSON.stringify(doc);
+    box.dispatchEvent(new Event('input'));
+    (host.querySelector('[data-test="view-form"] button') as HTMLButtonElement).click();
+    fixture.detectChanges();
+    expect(host.querySelector('[data-lead="0"]')!.textContent).toContain('outside the cavity');
+    (host.querySelector('[data-test="stub-0"]') as HTMLButtonElement).click();
+    (host.querySelector('[data-test="stub-1"]') as HTMLButtonElement).click();
+    fixture.detectChanges();
+    expect(host.querySelectorAll('[data-member]')).toHaveLength(3);
+    expect(host.querySelector('[data-lead="0"]')!.textContent).not.toContain('outside the cavity');
+    expect(host.querySelector('[data-lead="1"]')!.textContent).not.toContain('outside the cavity');
     http.match((r) => r.url.endsWith('/models/validate'));
   });
 

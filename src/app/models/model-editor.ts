@@ -3,8 +3,9 @@ import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, injec
 import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
 import { ReactiveFormsModule } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
+import { MatButtonToggleModule } from '@angular/material/button-toggle';
 import { MatCardModule } from '@angular/material/card';
-import { MatFormFieldModule } from '@angular/material/form-field';
+import { MAT_FORM_FIELD_DEFAULT_OPTIONS, MatFormFieldModule } from '@angular/material/form-field';
 import { MatIconModule } from '@angular/material/icon';
 import { MatInputModule } from '@angular/material/input';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
@@ -29,20 +30,12 @@ import type { ChannelThreshold, DerivedFigures } from '../../../shared/model/der
 import { injectCanDesign } from './design-permission';
 import { LatticePreview } from './lattice-preview';
 import { countSites } from './lattice-mask-path';
-import {
-  type LeadForm,
-  type ShapeMode,
-  customMaterial,
-  fillForm,
-  leadGroup,
-  materialChoices,
-  modelForm,
-  readForm,
-  shapeFields,
-  simpleShapeKinds,
-  starterModel,
-} from './model-form';
+import { issueInWords } from './issue-words';
+import { addLeadStub } from './lead-stub';
+import { type LeadForm, customMaterial, fillForm, leadGroup, materialChoices, modelForm, readForm, starterModel } from './model-form';
 import { type PlacedIssue, clearPlacedIssues, dottedPath, placeIssues } from './model-issues';
+import { PotentialEditor } from './potential-editor';
+import { ShapeEditor } from './shape-editor';
 import { type ModelDetail, ModelsApi } from './models-api';
 
 /** What the live drawing needs: the rasterised mask of the current form, or why there is none. */
@@ -68,6 +61,7 @@ interface Drawing {
     ReactiveFormsModule,
     RouterLink,
     MatButtonModule,
+    MatButtonToggleModule,
     MatCardModule,
     MatFormFieldModule,
     MatIconModule,
@@ -76,7 +70,11 @@ interface Drawing {
     MatSelectModule,
     MatTooltipModule,
     LatticePreview,
+    ShapeEditor,
+    PotentialEditor,
   ],
+  // Messages under a field take the room they need instead of running under the next row.
+  providers: [{ provide: MAT_FORM_FIELD_DEFAULT_OPTIONS, useValue: { subscriptSizing: 'dynamic' } }],
   templateUrl: './model-editor.html',
   styleUrl: './model-editor.scss',
 })
@@ -94,8 +92,6 @@ export class ModelEditor {
   protected readonly canDesign = injectCanDesign();
   protected readonly form = modelForm();
   protected readonly materialChoices = materialChoices;
-  protected readonly shapeKinds: ShapeMode[] = [...simpleShapeKinds, 'json'];
-  protected readonly shapeFields = shapeFields;
   protected readonly customMaterial = customMaterial;
   protected readonly fieldError = fieldError;
   protected readonly formatEnergy = formatEnergy;
@@ -114,7 +110,22 @@ export class ModelEditor {
   protected readonly leadsForPreview = computed(() =>
     this.value().leads.map((l) => ({ side: l.side, start: l.start ?? 0, width: l.width ?? 0, offset: l.offset ?? 0, name: l.name })),
   );
-  protected readonly shapeMode = computed(() => this.value().shape.kind);
+  /** The grid's extent (nm): where new shapes and potential terms are placed. */
+  protected readonly extent = computed(() => {
+    const v = this.value();
+    const a = v.spacing ?? 0;
+    return { widthNm: (v.grid.nx ?? 0) * a, heightNm: (v.grid.ny ?? 0) * a };
+  });
+  /** Issues under the shape tree and the potential terms: their editors show each by its field. */
+  protected readonly nestedIssues = signal<PlacedIssue[]>([]);
+  /** 'form' or 'json': the JSON view shows the whole current document, for experts. */
+  protected readonly view = signal<'form' | 'json'>('form');
+  protected readonly jsonDraft = signal('');
+  /** In the JSON view the field editors are hidden: their messages show under the text. */
+  protected readonly nestedMessages = computed(() => [...this.nestedIssues().map((i) => i.message), ...[...this.sectionIssues().values()].flat()]);
+  protected readonly jsonError = signal<string | null>(null);
+  /** Per lead: what the last lead-stub click said when it could not add one. */
+  protected readonly stubNotes = signal<Map<number, string>>(new Map());
   protected readonly isCustomMaterial = computed(() => this.value().material === customMaterial);
   protected readonly groupSlug = computed(() => this.group.slug());
   protected readonly title = computed(() => {
@@ -181,6 +192,55 @@ export class ModelEditor {
 
   protected readonly Math = Math;
 
+  protected setShape(shape: Record<string, unknown>): void {
+    this.form.controls.shape.setValue(shape);
+  }
+
+  protected setPotential(terms: Record<string, unknown>[]): void {
+    this.form.controls.potential.setValue(terms);
+  }
+
+  /** Adds the rectangle that joins lead k's mouth to the cavity (a union member). */
+  protected addStub(k: number): void {
+    const d = this.drawing();
+    const lead = this.value().leads[k];
+    const shape = shapeSchema.safeParse(this.document().shape);
+    const notes = new Map(this.stubNotes());
+    notes.delete(k);
+    if (!shape.success || !d.mask || !lead || lead.start == null || lead.width == null) {
+      notes.set(k, 'Complete the shape, the grid and this lead first.');
+    } else {
+      const result = addLeadStub(shape.data, { side: lead.side, start: lead.start, width: lead.width }, d.nx, d.ny, d.spacing);
+      if (result.ok) this.setShape(result.shape as unknown as Record<string, unknown>);
+      else notes.set(k, `No stub added: ${result.reason}.`);
+    }
+    this.stubNotes.set(notes);
+  }
+
+  protected showView(view: 'form' | 'json'): void {
+    if (view === 'json') {
+      this.jsonDraft.set(JSON.stringify(this.document(), null, 2));
+      this.jsonError.set(null);
+    }
+    this.view.set(view);
+  }
+
+  /** Typing in the JSON view: the form follows whenever the text parses as an object. */
+  protected editJson(text: string): void {
+    this.jsonDraft.set(text);
+    try {
+      const parsed = JSON.parse(text) as unknown;
+      if (!parsed || typeof parsed !== 'object' || Array.isArray(parsed)) {
+        this.jsonError.set('The document must be one JSON object ({ … }).');
+        return;
+      }
+      this.jsonError.set(null);
+      fillForm(this.form, parsed as CavityModelInput);
+    } catch (err) {
+      this.jsonError.set(`Not valid JSON yet: ${err instanceof Error ? err.message : String(err)}`);
+    }
+  }
+
   /** The opening energies ε_m − 2t of a lead's channels, the first few of them. */
   protected thresholdText(thresholds: readonly ChannelThreshold[]): string {
     if (!thresholds?.length) return '—';
@@ -209,7 +269,7 @@ export class ModelEditor {
       .pipe(takeUntilDestroyed(this.destroyRef))
       .subscribe({
         next: ({ shape }) => {
-          this.form.controls.shape.patchValue({ kind: 'json', json: JSON.stringify(shape, null, 2) });
+          this.setShape(shape as unknown as Record<string, unknown>);
           this.snackBar.open(`Outline read: ${shape.width} × ${shape.height} sites.`, 'OK', { duration: 4000 });
         },
         error: (err: unknown) => this.errors.show(err),
@@ -277,16 +337,47 @@ export class ModelEditor {
     const local = validateCavityModel(document);
     const all: PlacedIssue[] = [...issues, ...(local.ok ? [] : local.issues.map((i) => ({ path: dottedPath(i.path), message: i.message })))];
     this.showIssues(all);
+    if (this.stubNotes().size) this.stubNotes.set(new Map());
     // Viewers and reviewers cannot change the form; the loaded model already carries its figures.
     if (!issues.length && this.canDesign()) this.serverCheck.next(document);
   }
 
-  private showIssues(issues: readonly PlacedIssue[]): void {
+  /**
+   * Every message in words naming its field; shape and potential issues go to their
+   * editors, long ones (a lead mouth outside the cavity) to the line under their
+   * section instead of under a narrow field, where they overflowed.
+   */
+  private showIssues(raw: readonly PlacedIssue[]): void {
     clearPlacedIssues(this.form);
+    const doc = this.document();
+    const issues = raw.map((i) => {
+      const path = i.path.replace(/^document(\.|$)/, '');
+      const parts = path ? path.split('.').map((p) => (/^\d+$/.test(p) ? Number(p) : p)) : [];
+      return { path, message: issueInWords(parts, i.message, doc) };
+    });
+    const nested = issues.filter((i) => /^(shape|potential)\./.test(i.path));
+    this.nestedIssues.set(nested);
     const sections = ['', 'grid', 'material', 'shape', 'leads', 'potential', ...this.leads.controls.map((_, k) => `leads.${k}`)];
-    this.sectionIssues.set(placeIssues(this.form, issues, sections));
+    const placed: PlacedIssue[] = [];
+    const long: PlacedIssue[] = [];
+    for (const i of issues) {
+      if (nested.includes(i)) continue;
+      if (i.message.length > LONG_MESSAGE && this.form.get(i.path) && !('controls' in this.form.get(i.path)!)) {
+        placed.push({ path: i.path, message: 'See the message below.' });
+        long.push({ path: i.path.split('.').slice(0, -1).join('.'), message: i.message });
+      } else placed.push(i);
+    }
+    const bySection = placeIssues(this.form, placed, sections);
+    for (const i of long) {
+      const section = sections.includes(i.path) ? i.path : '';
+      bySection.set(section, [...(bySection.get(section) ?? []), i.message]);
+    }
+    this.sectionIssues.set(bySection);
   }
 }
+
+/** Messages longer than this do not fit under a form field; they go under the section. */
+const LONG_MESSAGE = 70;
 
 /** Rasterises the shape alone, so the drawing stays up while a lead is still wrong. */
 function drawingOf(doc: CavityModelInput): Drawing {

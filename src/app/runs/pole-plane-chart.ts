@@ -2,6 +2,7 @@ import { ChangeDetectionStrategy, Component, computed, input } from '@angular/co
 import { NgxEchartsDirective } from 'ngx-echarts';
 import { chartColours } from './chart-colours';
 import { type PlanePole, polePlaneOptions } from './pole-plane-options';
+import { poleWidthOptions } from './pole-width-options';
 
 /** The poles of a run in the complex energy plane, with thresholds and the searched window. */
 @Component({
@@ -19,9 +20,11 @@ export class PolePlaneChart {
   readonly thresholds = input<readonly number[]>([]);
   readonly window = input<{ emin: number; emax: number; gammaMax?: number } | null>(null);
   readonly highlightId = input<string | null>(null);
+  /** 'plane': Re z and Im z, linear; 'width': E and Γ on a log axis. */
+  readonly view = input<'plane' | 'width'>('plane');
 
   protected readonly options = computed(() =>
-    polePlaneOptions({
+    (this.view() === 'width' ? poleWidthOptions : polePlaneOptions)({
       poles: this.poles(),
       thresholds: this.thresholds(),
       window: this.window(),
@@ -30,6 +33,6 @@ export class PolePlaneChart {
     }),
   );
   protected readonly label = computed(
-    () => `Complex energy plane with ${this.poles().length} pole(s) and ${this.thresholds().length} channel threshold(s)`,
+    () => `${this.view() === 'width' ? 'Pole widths on a log axis' : 'Complex energy plane'} with ${this.poles().length} pole(s) and ${this.thresholds().length} channel threshold(s)`,
   );
 }

@@ -69,7 +69,10 @@ export function polePlaneOptions(input: PlaneInput): EChartsCoreOption {
       nameLocation: 'middle',
       nameGap: 52,
       max: 0,
-      axisLabel: axisText,
+      // The whole window shows, its lower edge Im z = −Γmax/2 included.
+      min: gammaMax != null ? -(gammaMax / 2) * 1.08 : undefined,
+      // The padded minimum is no round number: its label would crowd the one above it.
+      axisLabel: { ...axisText, showMinLabel: gammaMax == null },
       nameTextStyle: axisText,
       splitLine: { lineStyle: { color: c.outlineVariant } },
     },
@@ -85,7 +88,12 @@ export function polePlaneOptions(input: PlaneInput): EChartsCoreOption {
           symbol: 'none',
           label: { formatter: 'threshold', color: c.onSurfaceVariant, fontSize: 10 },
           lineStyle: { type: 'dashed', color: c.outline },
-          data: input.thresholds.map((x) => ({ xAxis: x })),
+          data: [
+            ...input.thresholds.map((x) => ({ xAxis: x })),
+            ...(gammaMax != null
+              ? [{ yAxis: -gammaMax / 2, label: { formatter: 'Γmax/2', color: c.primary, fontSize: 10, position: 'insideEndBottom' }, lineStyle: { type: 'solid', color: c.primary } }]
+              : []),
+          ],
         },
         markArea: {
           silent: true,

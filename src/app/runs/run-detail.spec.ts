@@ -55,4 +55,28 @@ describe('RunDetail', () => {
     expect(host.querySelector('[data-test="cancel"]')).toBeNull();
     http.verify();
   });
+
+  it('shows the launch note, and elapsed time and time left beside the progress', async () => {
+    TestBed.configureTestingModule({
+      providers: [provideHttpClient(), provideHttpClientTesting(), provideRouter([]), provideFakeCurrentGroup('viewer')],
+    });
+    TestBed.inject(RunsApi).eventSourceFactory = (url) => new FakeEventSource(url) as unknown as EventSource;
+    const http = TestBed.inject(HttpTestingController);
+    const fixture = TestBed.createComponent(RunDetail);
+    fixture.componentRef.setInput('runId', 'r1');
+    fixture.detectChanges();
+    await settle();
+    const startedAt = new Date(Date.now() - 40_000).toISOString();
+    http.expectOne('/api/groups/g1/runs/r1').flush({
+      ...detail, startedAt, note: 'ry scan, second point', estimate: { expectedSeconds: 100 }, progress: { stage: 'contour', fraction: 0.4 },
+    });
+    fixture.detectChanges();
+    const host = fixture.nativeElement as HTMLElement;
+    expect(host.querySelector('[data-test="note"]')!.textContent).toContain('ry scan, second point');
+    const stage = host.querySelector('[data-test="stage"]')!.textContent!;
+    // 40 % after 40 s: 60 s left by the progress so far (past 30 % the estimate no longer counts).
+    expect(stage).toMatch(/4\d s elapsed/);
+    expect(stage).toMatch(/about (59 s|1 min 0[01] s) left/);
+    http.match(() => true);
+  });
 });

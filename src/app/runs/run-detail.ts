@@ -1,12 +1,17 @@
 import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, inject, input, signal, untracked } from '@angular/core';
 import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
 import { MatButtonModule } from '@angular/material/button';
+import { MatButtonToggleModule } from '@angular/material/button-toggle';
+import { MatCheckboxModule } from '@angular/material/checkbox';
+import { MatMenuModule } from '@angular/material/menu';
+import { MatSelectModule } from '@angular/material/select';
 import { MatCardModule } from '@angular/material/card';
 import { MatIconModule } from '@angular/material/icon';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatTableModule } from '@angular/material/table';
 import { RouterLink } from '@angular/router';
-import type { Subscription } from 'rxjs';
+import { type Subscription, interval } from 'rxjs';
+import { toSignal } from '@angular/core/rxjs-interop';
 import { EnergyPipe, LifetimePipe, QualityPipe, WidthPipe } from '../catalogue/energy-format';
 import { Auth } from '../core/auth/auth';
 import { ErrorReport } from '../core/errors/error-report';
@@ -17,7 +22,13 @@ import { PolePlaneChart } from './pole-plane-chart';
 import { kindLabel, statusLabel, windowText } from './run-labels';
 import { type RunDetail as RunDetailData, RunsApi, finishedStatuses } from './runs-api';
 import { stageInWords } from './stage-words';
+import { runErrorTone } from './run-error-tone';
 import { TransmissionChart } from './transmission-chart';
+import { durationText, progressTimes } from './progress-times';
+import { exportFileName, polesCsv, polesJson, saveText, spectrumCsv, spectrumJson } from './run-export';
+import { type ConductanceUnit, type SpectrumQuantity, conductanceUnitLabels } from './spectrum-curves';
+import { spectrumWarnings } from './spectrum-warnings';
+import type { SpectrumView } from './transmission-options';
 
 /**
  * One run: live progress while it works; afterwards its poles in the complex
@@ -30,6 +41,10 @@ import { TransmissionChart } from './transmission-chart';
   imports: [
     RouterLink,
     MatButtonModule,
+    MatButtonToggleModule,
+    MatCheckboxModule,
+    MatMenuModule,
+    MatSelectModule,
     MatCardModule,
     MatIconModule,
     MatProgressBarModule,
@@ -56,9 +71,36 @@ export class RunDetail {
   protected readonly kindLabel = kindLabel;
   protected readonly statusLabel = statusLabel;
   protected readonly windowText = windowText;
+  protected readonly errorTone = runErrorTone;
   protected readonly columns = ['index', 'energy', 'width', 'lifetime', 'quality', 'petermann', 'flags'];
 
   protected readonly run = signal<RunDetailData | null>(null);
+  protected readonly quantity = signal<SpectrumQuantity>('transmission');
+  protected readonly unit = signal<ConductanceUnit>('2e2/h');
+  protected readonly showResidual = signal(false);
+  protected readonly unitLabels = conductanceUnitLabels;
+  protected readonly units = Object.keys(conductanceUnitLabels) as ConductanceUnit[];
+  protected readonly spectrumView = computed<SpectrumView>(() => ({ quantity: this.quantity(), unit: this.unit(), residual: this.showResidual() }));
+  protected readonly spectrumWarnings = computed(() => {
+    const r = this.run();
+    return r ? spectrumWarnings(r) : [];
+  });
+  protected readonly boundCount = computed(() => this.poles().filter((p) => p.bound || p.width <= 0).length);
+  /** A clock for the progress bar's times, once a second. */
+  private readonly now = toSignal(interval(1000), { initialValue: 0 });
+  protected readonly times = computed(() => {
+    this.now();
+    const r = this.run();
+    if (!r || r.status !== 'running') return null;
+    const t = progressTimes(r.startedAt, Date.now(), r.progress?.fraction ?? 0, r.estimate?.expectedSeconds);
+    if (!t) return null;
+    return { elapsed: durationText(t.elapsed), remaining: t.remaining === null ? null : durationText(t.remaining) };
+  });
+  protected readonly duration = computed(() => {
+    const r = this.run();
+    if (!r?.startedAt || !r.finishedAt) return null;
+    return durationText((Date.parse(r.finishedAt) - Date.parse(r.startedAt)) / 1000);
+  });
   protected readonly loadError = signal<string | null>(null);
   private live: Subscription | null = null;
 
@@ -96,6 +138,13 @@ export class RunDetail {
       untracked(() => this.load(id));
     });
     this.destroyRef.onDestroy(() => this.live?.unsubscribe());
+  }
+
+  protected download(what: 'poles' | 'spectrum', ext: 'csv' | 'json'): void {
+    const r = this.run();
+    if (!r) return;
+    const text = what === 'poles' ? (ext === 'csv' ? polesCsv(r) : polesJson(r)) : ext === 'csv' ? spectrumCsv(r) : spectrumJson(r);
+    saveText(text, exportFileName(r, what, ext), ext === 'csv' ? 'text/csv' : 'application/json');
   }
 
   protected cancel(): void {

@@ -17,6 +17,7 @@ import { fieldError } from '../core/errors/field-error';
 import { toProblem } from '../core/errors/problem';
 import { CurrentGroup } from '../core/group/current-group';
 import { type DerivedFigures, energyValidity } from '../../../shared/model/derived-figures';
+import { launcherWarnings } from './launcher-warnings';
 import { injectCanDesign } from '../models/design-permission';
 import { type ModelDetail, type ModelSummary, ModelsApi } from '../models/models-api';
 import { placeIssues } from '../models/model-issues';
@@ -111,6 +112,9 @@ export class RunLauncher {
     const lowestOffset = Math.min(0, ...(this.derived()?.leads ?? []).map((l) => l.offset));
     return t && spacing && emax != null && emax > 0 ? energyValidity(emax - lowestOffset, t, spacing) : null;
   });
+
+  /** Every warning once: the launcher's validity check and the estimate's other warnings. */
+  protected readonly warnings = computed(() => launcherWarnings(this.estimate()?.warnings ?? [], this.validity()?.warnings ?? []));
 
   private readonly estimates = new Subject<Omit<RunRequest, 'note'> | null>();
 

@@ -2,6 +2,7 @@ import { ChangeDetectionStrategy, Component, DestroyRef, computed, inject, input
 import { takeUntilDestroyed, toObservable } from '@angular/core/rxjs-interop';
 import { FormsModule } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
+import { MatCheckboxModule } from '@angular/material/checkbox';
 import { MatFormFieldModule } from '@angular/material/form-field';
 import { MatIconModule } from '@angular/material/icon';
 import { MatPaginatorModule, type PageEvent } from '@angular/material/paginator';
@@ -18,6 +19,8 @@ import { injectCanDesign } from '../models/design-permission';
 import { kindLabel, statusLabel, windowText } from './run-labels';
 import { type Run, type RunKind, type RunListQuery, type RunStatus, RunsApi, finishedStatuses, pollPeriodMs } from './runs-api';
 import { stageInWords } from './stage-words';
+import { runErrorTone } from './run-error-tone';
+import { durationText, progressTimes } from './progress-times';
 
 type RunPage = { items: Run[]; total: number };
 
@@ -35,6 +38,7 @@ type RunPage = { items: Run[]; total: number };
     FormsModule,
     RouterLink,
     MatButtonModule,
+    MatCheckboxModule,
     MatFormFieldModule,
     MatIconModule,
     MatPaginatorModule,
@@ -58,6 +62,29 @@ export class RunList {
   protected readonly kindLabel = kindLabel;
   protected readonly statusLabel = statusLabel;
   protected readonly windowText = windowText;
+  protected readonly errorTone = runErrorTone;
+  /** Up to two runs ticked for the comparison page, in the order ticked. */
+  protected readonly picked = signal<string[]>([]);
+
+  protected togglePick(id: string, on: boolean): void {
+    const now = this.picked().filter((x) => x !== id);
+    // A third tick replaces the older of the two.
+    this.picked.set(on ? [...now, id].slice(-2) : now);
+  }
+
+  /** How long a finished run took, from its start to its end. */
+  protected durationOf(run: Run): string | null {
+    if (!run.startedAt || !run.finishedAt) return null;
+    return durationText((Date.parse(run.finishedAt) - Date.parse(run.startedAt)) / 1000);
+  }
+
+  /** Elapsed time and time left of a running run (the list refreshes every 2 s while one runs). */
+  protected timesOf(run: Run): string {
+    if (run.status !== 'running') return '';
+    const t = progressTimes(run.startedAt, Date.now(), run.progress?.fraction ?? 0, run.estimate?.expectedSeconds);
+    if (!t) return '';
+    return ` · ${durationText(t.elapsed)} elapsed${t.remaining !== null ? ` · about ${durationText(t.remaining)} left` : ''}`;
+  }
   protected readonly statuses: RunStatus[] = ['queued', 'running', 'completed', 'failed', 'cancelled'];
 
   protected readonly status = signal<RunStatus | ''>('');

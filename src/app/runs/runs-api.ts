@@ -63,6 +63,12 @@ export interface Run {
   engineVersion: string;
   resonanceCount: number | null;
   certificate: RunCertificate | null;
+  /** The launcher's note, as typed. */
+  note?: string | null;
+  /** The launch estimate (expectedSeconds is what the progress bar's time left starts from). */
+  estimate?: { expectedSeconds?: number } | null;
+  /** Engine figures of the finished run (spectrumBudgetExhausted, seconds, …). */
+  stats?: Record<string, unknown> | null;
 }
 
 export interface Spectrum {

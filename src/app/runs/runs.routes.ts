@@ -15,6 +15,7 @@ export const runsRoutes: Routes = [
         loadComponent: () => import('./run-launcher').then((m) => m.RunLauncher),
         title: 'Launch a run · Poleward',
       },
+      { path: 'compare', loadComponent: () => import('./run-compare').then((m) => m.RunCompare), title: 'Compare · Poleward' },
       { path: ':runId', loadComponent: () => import('./run-detail').then((m) => m.RunDetail), title: 'Run · Poleward' },
     ],
   },

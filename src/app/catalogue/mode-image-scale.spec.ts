@@ -1,0 +1,24 @@
+import { provideHttpClient } from '@angular/common/http';
+import { HttpTestingController, provideHttpClientTesting } from '@angular/common/http/testing';
+import { TestBed } from '@angular/core/testing';
+import { settle } from '../testing/next-request';
+import { ModeImageScale } from './mode-image-scale';
+
+describe('ModeImageScale', () => {
+  it('draws a round length as its share of the image width (nx·a)', async () => {
+    TestBed.configureTestingModule({ providers: [provideHttpClient(), provideHttpClientTesting()] });
+    const fixture = TestBed.createComponent(ModeImageScale);
+    fixture.componentRef.setInput('groupId', 'g1');
+    fixture.componentRef.setInput('modelId', 'm1');
+    fixture.componentRef.setInput('version', 2);
+    fixture.detectChanges();
+    await settle();
+    // 60 columns at a = 5 nm: a 300 nm wide image; the bar is 50 nm, a sixth of it.
+    TestBed.inject(HttpTestingController).expectOne('/api/groups/g1/models/m1/versions/2').flush({ version: 2, document: { grid: { nx: 60, ny: 40 }, spacing: 5 } });
+    fixture.detectChanges();
+    const host = fixture.nativeElement as HTMLElement;
+    expect(host.textContent).toContain('50 nm · image 300 nm wide');
+    const bar = host.querySelector<HTMLElement>('.bar')!;
+    expect(parseFloat(bar.style.width)).toBeCloseTo(100 / 6, 6);
+  });
+});

@@ -1,0 +1,56 @@
+import { rasteriseShape } from '../../../shared/model/geometry';
+import { validateCavityModel } from '../../../shared/model/cavity-model';
+import { addLeadStub } from './lead-stub';
+
+// An ellipse dot in a 60 × 40 grid (a = 5 nm): it touches no grid edge, so leads need stubs.
+const ellipse = { kind: 'ellipse' as const, cx: 150, cy: 100, rx: 110, ry: 80 };
+const nx = 60;
+const ny = 40;
+const a = 5;
+
+describe('addLeadStub', () => {
+  it('joins a left lead to the ellipse so every mouth site is a cavity site and the model validates', () => {
+    const lead = { side: 'left' as const, start: 15, width: 10 };
+    const result = addLeadStub(ellipse, lead, nx, ny, a);
+    expect(result.ok).toBe(true);
+    if (!result.ok) return;
+    expect(result.stub).toMatchObject({ kind: 'rectangle', x0: 0, y0: 75, height: 50 });
+    const mask = rasteriseShape(result.shape, nx, ny, a);
+    for (let j = 15; j < 25; j++) expect(mask[0 * ny + j]).toBe(1);
+    const doc = { name: 'e', spacing: a, material: 'gaas', grid: { nx, ny }, shape: result.shape, leads: [{ side: 'left', start: 15, width: 10 }] };
+    expect(validateCavityModel(doc).ok).toBe(true);
+  });
+
+  it('builds both stubs of a two-lead dot as members of one union', () => {
+    const left = addLeadStub(ellipse, { side: 'left', start: 15, width: 10 }, nx, ny, a);
+    if (!left.ok) throw new Error(left.reason);
+    const right = addLeadStub(left.shape, { side: 'right', start: 15, width: 10 }, nx, ny, a);
+    if (!right.ok) throw new Error(right.reason);
+    expect(right.shape.kind).toBe('union');
+    expect(right.shape.kind === 'union' && right.shape.of.length).toBe(3);
+    // The right stub ends at the grid's right edge: x0 + width = nx·a.
+    expect(right.stub.x0 + right.stub.width).toBeCloseTo(nx * a, 9);
+    const doc = {
+      name: 'e', spacing: a, material: 'gaas', grid: { nx, ny }, shape: right.shape,
+      leads: [{ side: 'left', start: 15, width: 10 }, { side: 'right', start: 15, width: 10 }],
+    };
+    expect(validateCavityModel(doc).ok).toBe(true);
+  });
+
+  it('works on top and bottom leads too', () => {
+    const top = addLeadStub(ellipse, { side: 'top', start: 25, width: 10 }, nx, ny, a);
+    if (!top.ok) throw new Error(top.reason);
+    expect(top.stub.y0 + top.stub.height).toBeCloseTo(ny * a, 9);
+    const mask = rasteriseShape(top.shape, nx, ny, a);
+    for (let i = 25; i < 35; i++) expect(mask[i * ny + ny - 1]).toBe(1);
+  });
+
+  it('says so when no stub is needed or the lead runs off the edge', () => {
+    const rect = { kind: 'rectangle' as const, x0: 0, y0: 0, width: 300, height: 200 };
+    const none = addLeadStub(rect, { side: 'left', start: 5, width: 10 }, nx, ny, a);
+    expect(none.ok).toBe(false);
+    expect(!none.ok && none.reason).toContain('no stub needed');
+    const past = addLeadStub(ellipse, { side: 'left', start: 35, width: 10 }, nx, ny, a);
+    expect(!past.ok && past.reason).toContain('past the end');
+  });
+});

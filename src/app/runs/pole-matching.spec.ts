@@ -1,0 +1,20 @@
+import { matchPoles } from './pole-matching';
+
+describe('matchPoles', () => {
+  it('pairs each pole with its nearest partner once, closest pairs first, and keeps the lone ones', () => {
+    const a = [{ energy: 1, width: 0.01 }, { energy: 2, width: 0.02 }, { energy: 2.05, width: 0.02 }];
+    const b = [{ energy: 2.04, width: 0.03 }, { energy: 1.01, width: 0.012 }];
+    const rows = matchPoles(a, b);
+    expect(rows).toHaveLength(3);
+    expect(rows[0].a).toBe(a[0]);
+    expect(rows[0].b).toBe(b[1]);
+    expect(rows[0].dEnergy!).toBeCloseTo(0.01, 12);
+    expect(rows[0].dWidth!).toBeCloseTo(0.002, 12);
+    // 2.05 is nearer 2.04 than 2.00 is, so it takes B's pole and 2.00 stays alone.
+    const second = rows.find((r) => r.b === b[0])!;
+    expect(second.a).toBe(a[2]);
+    const lone = rows.find((r) => r.b === null)!;
+    expect(lone.a).toBe(a[1]);
+    expect(lone.dEnergy).toBeNull();
+  });
+});

@@ -1,0 +1,125 @@
+import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, inject, input, signal, untracked } from '@angular/core';
+import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
+import { MatButtonToggleModule } from '@angular/material/button-toggle';
+import { MatCardModule } from '@angular/material/card';
+import { MatIconModule } from '@angular/material/icon';
+import { MatProgressBarModule } from '@angular/material/progress-bar';
+import { RouterLink } from '@angular/router';
+import { NgxEchartsDirective } from 'ngx-echarts';
+import { forkJoin, map, of, switchMap } from 'rxjs';
+import { EnergyPipe, WidthPipe } from '../catalogue/energy-format';
+import { ErrorReport } from '../core/errors/error-report';
+import { CurrentGroup } from '../core/group/current-group';
+import { ModelsApi } from '../models/models-api';
+import { chartColours } from './chart-colours';
+import { type ComparedRun, overlayPolesOptions, overlaySpectraOptions } from './compare-options';
+import { documentDiff } from './document-diff';
+import { matchPoles } from './pole-matching';
+import { durationText } from './progress-times';
+import { kindLabel, windowText } from './run-labels';
+import { type RunDetail, RunsApi } from './runs-api';
+
+interface Side {
+  label: string;
+  run: RunDetail | null;
+  document: unknown;
+  title: string;
+}
+
+/**
+ * Two runs (?a=&b=) or two versions of a model (?model=&va=&vb=) side by side:
+ * their poles and spectra overlaid, the poles matched by nearest pole with ΔE and
+ * ΔΓ, and the diff of the two model documents.
+ */
+@Component({
+  selector: 'pw-run-compare',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  imports: [RouterLink, MatButtonToggleModule, MatCardModule, MatIconModule, MatProgressBarModule, NgxEchartsDirective, EnergyPipe, WidthPipe],
+  templateUrl: './run-compare.html',
+  styleUrl: './run-compare.scss',
+})
+export class RunCompare {
+  readonly a = input<string | undefined>(undefined);
+  readonly b = input<string | undefined>(undefined);
+  readonly model = input<string | undefined>(undefined);
+  readonly va = input<string | undefined>(undefined);
+  readonly vb = input<string | undefined>(undefined);
+
+  private readonly runs = inject(RunsApi);
+  private readonly models = inject(ModelsApi);
+  private readonly errors = inject(ErrorReport);
+  private readonly destroyRef = inject(DestroyRef);
+  protected readonly group = inject(CurrentGroup);
+  protected readonly kindLabel = kindLabel;
+  protected readonly windowText = windowText;
+
+  protected readonly sides = signal<[Side, Side] | null>(null);
+  protected readonly failed = signal<string | null>(null);
+  protected readonly poleView = signal<'width' | 'plane'>('width');
+
+  protected readonly compared = computed<[ComparedRun, ComparedRun] | null>(() => {
+    const s = this.sides();
+    if (!s || !s[0].run || !s[1].run) return null;
+    return s.map((side) => ({
+      label: side.label,
+      poles: side.run!.poles,
+      spectrum: side.run!.spectrum,
+      leadNames: side.run!.leads?.map((l) => l.name) ?? [],
+    })) as unknown as [ComparedRun, ComparedRun];
+  });
+  protected readonly polesOptions = computed(() => {
+    const c = this.compared();
+    return c ? overlayPolesOptions(c[0], c[1], chartColours(), this.poleView()) : null;
+  });
+  protected readonly spectraOptions = computed(() => {
+    const c = this.compared();
+    return c && (c[0].spectrum || c[1].spectrum) ? overlaySpectraOptions(c[0], c[1], chartColours()) : null;
+  });
+  protected readonly matched = computed(() => {
+    const s = this.sides();
+    return s?.[0].run && s[1].run ? matchPoles(s[0].run.poles, s[1].run.poles) : [];
+  });
+  protected readonly diff = computed(() => {
+    const s = this.sides();
+    return s ? documentDiff(s[0].document, s[1].document) : null;
+  });
+
+  constructor() {
+    effect(() => {
+      const ids = { a: this.a(), b: this.b(), model: this.model(), va: this.va(), vb: this.vb() };
+      untracked(() => this.load(ids));
+    });
+  }
+
+  protected durationOf(run: RunDetail): string {
+    return run.startedAt && run.finishedAt ? durationText((Date.parse(run.finishedAt) - Date.parse(run.startedAt)) / 1000) : '—';
+  }
+
+  private load(ids: { a?: string; b?: string; model?: string; va?: string; vb?: string }): void {
+    const groupId = this.group.id();
+    if (!groupId) return;
+    this.sides.set(null);
+    this.failed.set(null);
+    const done = {
+      next: (s: [Side, Side]) => this.sides.set(s),
+      error: (err: unknown) => this.failed.set(this.errors.show(err).message),
+    };
+    if (ids.a && ids.b) {
+      const side = (id: string, label: string) =>
+        this.runs.run(groupId, id).pipe(
+          switchMap((run) =>
+            this.models.version(groupId, run.modelId, run.modelVersion).pipe(
+              map((v): Side => ({ label, run, document: v.document, title: `${run.modelName} v${run.modelVersion}` })),
+            ),
+          ),
+        );
+      forkJoin([side(ids.a, 'A'), side(ids.b, 'B')]).pipe(takeUntilDestroyed(this.destroyRef)).subscribe(done);
+    } else if (ids.model && ids.va && ids.vb) {
+      const side = (v: number, label: string) =>
+        this.models.version(groupId, ids.model!, v).pipe(map((mv): Side => ({ label, run: null, document: mv.document, title: `version ${v}` })));
+      forkJoin([side(Number(ids.va), 'A'), side(Number(ids.vb), 'B')]).pipe(takeUntilDestroyed(this.destroyRef)).subscribe(done);
+    } else {
+      of(null).subscribe(() => this.failed.set('Pick two runs in the run list (or two versions of a model) to compare them.'));
+    }
+  }
+}

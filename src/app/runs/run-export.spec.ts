@@ -1,0 +1,49 @@
+import Papa from 'papaparse';
+import type { ResonanceRow } from '../catalogue/catalogue-api';
+import { exportFileName, polesCsv, polesJson, spectrumCsv, spectrumJson } from './run-export';
+import type { RunDetail } from './runs-api';
+
+const pole = (energy: number, width: number, extra: Partial<ResonanceRow> = {}): ResonanceRow => ({
+  id: `p${energy}`, runId: 'r1', source: 'computed', fitId: null, modelId: 'm1', modelName: 'Dot A', modelVersion: 2, family: 'ellipse',
+  keyDimensions: {}, material: 'gaas', fieldT: 0, energy, width, lifetimePs: width > 0 ? 0.658 / width : null, quality: width > 0 ? energy / width : null,
+  partialWidths: [{ lead: 'source', width: width / 2 }, { lead: 'drain', width: width / 2 }], petermann: 1.01, residual: 1e-12,
+  bound: width === 0, nearThreshold: false, overlapping: false, tags: [], notes: '=cmd', createdAt: '2026-12-02T10:00:00Z', thumbnailUrl: null, imageUrl: null,
+  ...extra,
+});
+
+const run = {
+  id: 'r1', kind: 'pole-search', status: 'completed', progress: null, window: { emin: 1, emax: 3, gammaMax: 0.5 }, modelId: 'm1', modelName: 'Dot A',
+  modelVersion: 2, createdBy: { id: 'u', name: 'Ada' }, createdAt: '', startedAt: null, finishedAt: '2026-12-02T10:01:00Z', attempts: 1, error: null,
+  engineVersion: 'e1', resonanceCount: 2, certificate: { pieces: [], certified: true, summary: '' }, thresholds: [],
+  poles: [pole(1.5, 0.01), pole(2.5, 0)],
+  spectrum: { energies: [1, 2], pairs: [{ from: 0, to: 1 }, { from: 1, to: 0 }], transmission: [[0.1, 0.2], [0.1, 0.2]], residual: [1e-13, 2e-13] },
+  leads: [{ name: 'source', side: 'left', width: 10 }, { name: 'drain', side: 'right', width: 10 }],
+  stats: { spectrumBudgetExhausted: true },
+} as unknown as RunDetail;
+
+describe('run downloads', () => {
+  it('writes the poles as CSV with units in the column names, bound states with empty lifetime and Q', () => {
+    const rows = Papa.parse<Record<string, string>>(polesCsv(run), { header: true, skipEmptyLines: true });
+    expect(rows.meta.fields!.slice(0, 4)).toEqual(['energy_meV', 'width_meV', 'lifetime_ps', 'quality']);
+    expect(rows.data).toHaveLength(2);
+    expect(Number(rows.data[0]['energy_meV'])).toBeCloseTo(1.5, 12);
+    expect(rows.data[0]['partial_widths_meV']).toBe('source=0.005; drain=0.005');
+    expect(rows.data[1]['lifetime_ps']).toBe('');
+    expect(rows.data[1]['bound']).toBe('true');
+    expect(polesCsv(run)).toContain('\r\n');
+  });
+
+  it('writes the spectrum as CSV, one column per lead pair, and says in JSON when the refinement ran out', () => {
+    const rows = Papa.parse<Record<string, string>>(spectrumCsv(run), { header: true, skipEmptyLines: true });
+    expect(rows.meta.fields).toEqual(['energy_meV', 'T_source_to_drain', 'T_drain_to_source', 'current_residual']);
+    expect(Number(rows.data[1]['T_source_to_drain'])).toBeCloseTo(0.2, 12);
+    const json = JSON.parse(spectrumJson(run));
+    expect(json.units.energies).toBe('meV');
+    expect(json.warnings[0]).toContain('refinement budget');
+    const poles = JSON.parse(polesJson(run));
+    expect(poles.count).toBe(2);
+    expect(poles.units.width).toBe('meV');
+    expect(poles.items[0].thumbnailUrl).toBeUndefined();
+    expect(exportFileName(run, 'poles', 'csv')).toBe('dot-a-v2-poles.csv');
+  });
+});
