@@ -5,6 +5,8 @@ import { fileURLToPath } from 'node:url';
 import { drizzle } from 'drizzle-orm/node-postgres';
 import { migrate as runMigrations } from 'drizzle-orm/node-postgres/migrator';
 import pg from 'pg';
+import { backfillDerivedColumns } from '../server/catalogue/derived-columns-backfill.js';
+import * as schema from '../server/db/schema/index.js';
 
 const migrationsFolder = join(dirname(fileURLToPath(import.meta.url)), '..', 'migrations');
 
@@ -12,6 +14,8 @@ export async function migrate(databaseUrl: string): Promise<void> {
   const pool = new pg.Pool({ connectionString: databaseUrl, max: 1 });
   try {
     await runMigrations(drizzle(pool), { migrationsFolder });
+    // Columns a migration added but only code can compute (dimensions, validity figures).
+    await backfillDerivedColumns(drizzle(pool, { schema }), (line) => console.log(line));
   } finally {
     await pool.end();
   }

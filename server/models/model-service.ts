@@ -19,6 +19,7 @@ export function toSummary(r: SummaryRow) {
     family: r.family,
     latestVersion: r.latestVersion,
     material: r.material,
+    physics: r.physics === 'microwave' ? ('microwave' as const) : ('electrons' as const),
     spacingNm: r.spacingNm,
     fieldT: r.fieldT,
     siteCount: r.siteCount,
@@ -103,7 +104,7 @@ export class ModelService {
 }
 
 /** The fields of a document the derived figures read (not the shape or the potential). */
-const figureFields = cavityModelSchema.pick({ name: true, spacing: true, material: true, field: true, leads: true });
+const figureFields = cavityModelSchema.pick({ name: true, physics: true, spacing: true, material: true, field: true, leads: true });
 
 /**
  * Derived figures of a stored (already valid) document, from its stored site count:

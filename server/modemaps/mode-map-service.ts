@@ -8,9 +8,8 @@ import { ENGINE_VERSION } from '../jobs/engine-task.js';
 import { findVersion } from '../models/model-repository.js';
 import { modelNotFound } from '../models/model-service.js';
 import { resonanceNotFound } from '../catalogue/catalogue-service.js';
-import { cavityModelSchema, modelMassRatio } from '../../shared/model/cavity-model.js';
+import { cavityModelSchema, modelHopping } from '../../shared/model/cavity-model.js';
 import { channelFlags, leadChannels } from '../../shared/engine/leads.js';
-import { hoppingEnergy } from '../../shared/units/constants.js';
 import type { ModeMapQueue } from './mode-map-queue.js';
 import type { ModeMapRequest } from './mode-map-request.js';
 import { base64Float32, type ModeMapPayload } from './mode-map-task.js';
@@ -190,7 +189,7 @@ function checkChannel(document: unknown, energy: number, lead: number, channel: 
       { path: 'lead', message: model.leads.length ? `the model has leads 0 to ${model.leads.length - 1}` : 'the model has no leads' },
     ]);
   }
-  const t = hoppingEnergy(model.spacing, modelMassRatio(model));
+  const t = modelHopping(model);
   const flags = channelFlags(leadChannels(l.width, t, l.offset), energy);
   const open = flags.flatMap((f, m) => (f ? [m + 1] : []));
   if (!flags[channel - 1]) {
