@@ -108,8 +108,11 @@ export function toResonanceRow(r: ResonanceRecord): ResonanceRow {
 
 /** Principal √(re + i·im). */
 function complexSqrt(re: number, im: number): { re: number; im: number } {
+  // The half-angle form loses Im √z to cancellation when |im| ≪ re (a narrow pole): take the
+  // larger part from it and the smaller from 2·Re√z·Im√z = im (Numerical Recipes §5.4).
   const m = Math.hypot(re, im);
-  const sr = Math.sqrt(Math.max(0, (m + re) / 2));
-  const si = Math.sqrt(Math.max(0, (m - re) / 2));
-  return { re: sr, im: im < 0 ? -si : si };
+  if (m === 0) return { re: 0, im: 0 };
+  const w = Math.sqrt((m + Math.abs(re)) / 2);
+  if (re >= 0) return { re: w, im: im / (2 * w) };
+  return { re: Math.abs(im) / (2 * w), im: im < 0 ? -w : w };
 }

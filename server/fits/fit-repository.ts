@@ -161,6 +161,7 @@ export async function modelVersionColumns(q: Queryable, modelVersionId: string) 
       document: modelVersions.document,
       family: modelVersions.family,
       physics: modelVersions.physics,
+      hoppingMeV: modelVersions.hoppingMeV,
       material: modelVersions.material,
       fieldT: modelVersions.fieldT,
       spacingNm: modelVersions.spacingNm,

@@ -360,7 +360,7 @@ export async function writeFitResult(tx: Queryable, fitId: string, attempt: numb
   if (!versionId) return true;
   const mv = await modelVersionColumns(tx, versionId);
   if (!mv) return true;
-  const physics = resonancePhysicsOfDocument(mv.document);
+  const physics = resonancePhysicsOfDocument(mv.document, { physics: mv.physics, hopping: mv.hoppingMeV });
   const shapeWords: Record<Lineshape, string> = { bw: 'Breit–Wigner', fano: 'Fano', thermal: 'thermally broadened Breit–Wigner', 'thermal-fano': 'thermally broadened Fano' };
   for (let k = 0; k < result.peaks.length; k++) {
     const pk = result.peaks[k];

@@ -38,9 +38,24 @@ export function resonancePhysicsOf(model: CavityModel): ResonancePhysics {
   };
 }
 
-/** The same from a stored (already validated) document. */
-export function resonancePhysicsOfDocument(document: unknown): ResonancePhysics {
-  return resonancePhysicsOf(cavityModelSchema.parse(document));
+/**
+ * The same from a stored document. When it no longer parses (a document kept from an older
+ * schema), the stored columns stand in: `fallback` gives the physics and t, the leads'
+ * offsets are read where present.
+ */
+export function resonancePhysicsOfDocument(document: unknown, fallback?: { physics: PhysicsKind; hopping: number }): ResonancePhysics {
+  const parsed = cavityModelSchema.safeParse(document);
+  if (parsed.success) return resonancePhysicsOf(parsed.data);
+  if (!fallback) throw parsed.error;
+  const leads = (document as { leads?: unknown } | null)?.leads;
+  const offsets = Array.isArray(leads) ? leads.map((l) => Number((l as { offset?: unknown })?.offset ?? 0)).filter(Number.isFinite) : [];
+  const micro = (document as { physics?: { kind?: string; permittivity?: number } } | null)?.physics;
+  return {
+    physics: fallback.physics,
+    hopping: fallback.hopping,
+    lowestOffset: Math.min(0, ...offsets),
+    permittivity: micro?.kind === 'microwave' && typeof micro.permittivity === 'number' ? micro.permittivity : 1,
+  };
 }
 
 /**

@@ -23,10 +23,13 @@ export interface MicrowaveFigures {
 
 /** √z, principal branch, for z = re + i·im. */
 function principalSqrt(re: number, im: number): { re: number; im: number } {
-  const r = Math.hypot(re, im);
-  const sr = Math.sqrt(Math.max(0, (r + re) / 2));
-  const si = Math.sqrt(Math.max(0, (r - re) / 2));
-  return { re: sr, im: im < 0 ? -si : si };
+  // The half-angle form loses Im √z to cancellation when |im| ≪ re (a narrow pole): take the
+  // larger part from it and the smaller from 2·Re√z·Im√z = im (Numerical Recipes §5.4).
+  const m = Math.hypot(re, im);
+  if (m === 0) return { re: 0, im: 0 };
+  const w = Math.sqrt((m + Math.abs(re)) / 2);
+  if (re >= 0) return { re: w, im: im / (2 * w) };
+  return { re: Math.abs(im) / (2 * w), im: im < 0 ? -w : w };
 }
 
 /**

@@ -288,8 +288,9 @@ describe('lattice validity stored with every resonance', () => {
       .update(resonances)
       .set({ validityLimit: null, wavelengthSpacings: null, aboveValidity: null, rxNm: null, ryNm: null, areaNm2: null })
       .where(eq(resonances.id, before.id));
+    // Other test files' rows (hand-made documents that do not validate) are read and skipped too.
     const done = await backfillDerivedColumns(db);
-    expect(done.resonances).toBe(1);
+    expect(done.resonances).toBeGreaterThanOrEqual(1);
     const [after] = await db.select().from(resonances).where(eq(resonances.id, before.id));
     expect(after!.validityLimit!).toBeCloseTo(before.validityLimit!, 12);
     expect(after!.wavelengthSpacings!).toBeCloseTo(before.wavelengthSpacings!, 12);
@@ -297,7 +298,9 @@ describe('lattice validity stored with every resonance', () => {
     expect(after!.rxNm).toBe(25);
     expect(after!.ryNm).toBe(45);
     expect(after!.areaNm2).toBe(before.areaNm2);
-    expect((await backfillDerivedColumns(db)).resonances).toBe(0);
+    const again = await backfillDerivedColumns(db);
+    expect(again.resonances).toBe(done.resonances - 1);
+    expect(again.skipped).toBe(done.skipped);
   });
 });
 
