@@ -14,6 +14,7 @@
  * --lead is a lead's name or its index (0-based, in the model's order); --channel is 1-based.
  * Energies and widths in meV, lifetimes in ps.
  */
+import { frequencyOfWavenumberSquared, microwaveFigures, twoDimensionalLimitGhz } from '../shared/units/microwave';
 import { readFileSync } from 'node:fs';
 import { buildCavitySystem, EffectiveHamiltonian, InvalidModelError, type CavitySystem } from '../shared/engine/effective-hamiltonian';
 import { resolveState, type StateRequest } from '../shared/engine/mode-state';
@@ -37,7 +38,9 @@ const USAGE = `usage:
   engine fit DATA.csv --x COLUMN --y COLUMN --shape bw|fano|thermal|thermal-fano
       [--x-unit meV|ueV|mV --lever-arm MEV_PER_MV] [--y-unit T|e2h|2e2h|uS] [--temperature-mK T]
       [--range A:B] [--lines FIRST:LAST] [--peaks N] [--background constant|linear] [--curve]
-(energies in meV, lengths in nm; --lead is a name or a 0-based index, --channel 1-based)`;
+(energies in meV, lengths in nm; --lead is a name or a 0-based index, --channel 1-based;
+ for a microwave model energies are k² in mm⁻² and lengths mm, and poles, transmission and
+ closed print frequencies in GHz, widths in MHz, lifetimes in ns and Q beside them)`;
 
 const STATE_FLAGS = ['pole-near', 'energy', 'channel', 'window', 'gmax'];
 
@@ -132,6 +135,14 @@ async function run(argv: string[]): Promise<unknown> {
     return { model: checked.model.name, ...deriveFigures(checked.model, checked.siteCount, numbers.energy), thresholds: new EffectiveHamiltonian(sys).thresholds };
   }
   const system = buildCavitySystem(doc);
+  // Microwave mode: every energy is k² (mm⁻²); frequencies in GHz are given beside them.
+  const physics = system.model.physics;
+  const eps = physics.kind === 'microwave' ? physics.permittivity : 1;
+  const ghz = (k2: number) => frequencyOfWavenumberSquared(k2, eps);
+  const microwave =
+    physics.kind === 'microwave'
+      ? { microwave: { permittivity: eps, heightMm: physics.height, twoDimensionalLimitGhz: twoDimensionalLimitGhz(physics.height, eps) } }
+      : {};
   if (command === 'closed') {
     const res = closedCavityEigenvalues(system.lattice, {
       target: numbers.target,
@@ -141,6 +152,7 @@ async function run(argv: string[]): Promise<unknown> {
     return {
       target: numbers.target,
       energies: res.energies,
+      ...(physics.kind === 'microwave' ? { frequenciesGhz: res.energies.map(ghz), units: { energy: 'mm⁻² (k²)', frequency: 'GHz' }, ...microwave } : {}),
       residuals: res.residuals,
       steps: res.steps,
       vectors: res.vectors?.map((v) => Array.from(v)),
@@ -175,7 +187,9 @@ async function run(argv: string[]): Promise<unknown> {
       budgetExhausted: sweep.budgetExhausted,
       directSolves: sweep.directSolves,
       ...(sweep.interpolation ? { interpolation: sweep.interpolation } : {}),
-      units: { energy: 'meV', conductance: '2e²/h' },
+      ...(physics.kind === 'microwave'
+        ? { frequenciesGhz: sweep.points.map((p) => ghz(p.energy)), units: { energy: 'mm⁻² (k²)', frequency: 'GHz', conductance: '2e²/h (not meaningful for microwaves: use transmission)' }, ...microwave }
+        : { units: { energy: 'meV', conductance: '2e²/h' } }),
     };
   }
   // poles
@@ -189,6 +203,26 @@ async function run(argv: string[]): Promise<unknown> {
       maxNodes: numbers['max-nodes'] === undefined ? undefined : integer(numbers, 'max-nodes', 1),
     },
   );
+  if (physics.kind === 'microwave') {
+    return {
+      ...result,
+      poles: result.poles.map((p) => {
+        const f = microwaveFigures(p.energy, p.width, eps);
+        return {
+          ...p,
+          // Q and τ of the complex frequency f = c√z/(2π√ε_r), not E/Γ and ħ/Γ.
+          quality: p.bound ? null : f.quality,
+          lifetimePs: p.bound ? null : f.lifetimeNs! * 1e3,
+          frequencyGhz: f.frequencyGhz,
+          widthMhz: p.bound ? 0 : f.widthMhz,
+          lifetimeNs: p.bound ? null : f.lifetimeNs,
+          mode: switches.has('modes') ? Array.from(p.mode) : undefined,
+        };
+      }),
+      ...microwave,
+      units: { energy: 'mm⁻² (k²)', width: 'mm⁻² (k²)', lifetime: 'ps', frequency: 'GHz', widthMhz: 'MHz (Γ_f = 2|Im f|)', lifetimeNs: 'ns (1/(2πΓ_f))', quality: 'Re f/Γ_f' },
+    };
+  }
   return {
     ...result,
     poles: result.poles.map((p) => ({

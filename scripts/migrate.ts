@@ -6,6 +6,8 @@ import { drizzle } from 'drizzle-orm/node-postgres';
 import { migrate as runMigrations } from 'drizzle-orm/node-postgres/migrator';
 import pg from 'pg';
 import { backfillDerivedFigures } from '../server/models/model-backfill.js';
+import { backfillDerivedColumns } from '../server/catalogue/derived-columns-backfill.js';
+import * as schema from '../server/db/schema/index.js';
 
 const migrationsFolder = join(dirname(fileURLToPath(import.meta.url)), '..', 'migrations');
 
@@ -14,8 +16,10 @@ export async function migrate(databaseUrl: string): Promise<void> {
   try {
     const db = drizzle(pool);
     await runMigrations(db, { migrationsFolder });
-    // Data the migrations cannot compute in SQL (derived figures of older model versions).
+    // Data the migrations cannot compute in SQL: derived figures of older model versions,
+    // then the columns only code can compute (dimensions, validity figures).
     await backfillDerivedFigures(db);
+    await backfillDerivedColumns(drizzle(pool, { schema }), (line) => console.log(line));
   } finally {
     await pool.end();
   }

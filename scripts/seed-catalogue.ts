@@ -15,6 +15,8 @@ import { projectRoot } from '../server/config.js';
 
 const referenceSchema = z.object({
   key: z.string().regex(/^[a-z0-9-]+$/),
+  /** The demo group the device belongs to (slug); the designer's lab when absent. */
+  group: z.string().regex(/^[a-z0-9-]+$/).optional(),
   description: z.string(),
   model: z.unknown(),
   poleSearch: z.object({ emin: z.number(), emax: z.number(), gammaMax: z.number() }),
@@ -32,19 +34,32 @@ export function readReferenceDevices(folder = join(projectRoot, 'catalogue')): R
     });
 }
 
-export async function seedCatalogue(db: Db, queue: RunQueue, groupId: string, userId: string, log = console.log): Promise<number> {
+/**
+ * `groupId`/`userId` take the devices without a `group`; `others` maps a group slug to the
+ * group and the member who files its devices (e.g. the microwave group's own devices).
+ */
+export async function seedCatalogue(
+  db: Db,
+  queue: RunQueue,
+  groupId: string,
+  userId: string,
+  log = console.log,
+  others: Record<string, { groupId: string; userId: string }> = {},
+): Promise<number> {
   // The seed is a command-line script: its geometry runs inline, and the demo runs are not limited.
   const models = new ModelService(db, inlineCompute);
   const runsService = new RunService(db, queue, inlineCompute);
   let queued = 0;
   for (const device of readReferenceDevices()) {
+    const owner = device.group === undefined ? { groupId, userId } : others[device.group];
+    if (!owner) continue;
     const [existing] = await db
       .select({ id: cavityModels.id })
       .from(cavityModels)
-      .where(and(eq(cavityModels.groupId, groupId), eq(cavityModels.referenceKey, device.key)));
+      .where(and(eq(cavityModels.groupId, owner.groupId), eq(cavityModels.referenceKey, device.key)));
     if (existing) continue;
-    const model = await models.create(groupId, userId, device.model, device.key);
-    await runsService.create(groupId, userId, {
+    const model = await models.create(owner.groupId, owner.userId, device.model, device.key);
+    await runsService.create(owner.groupId, owner.userId, {
       kind: 'pole-search',
       modelId: model.id,
       window: device.poleSearch,

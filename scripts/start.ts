@@ -22,7 +22,11 @@ const handle = connectDb(config.databaseUrl, 2);
 const seeded = await seedDemo(handle.db);
 const boss = await startBoss({ databaseUrl: config.databaseUrl });
 const designer = demoAccounts.find((a) => a.role === 'designer')!;
-await seedCatalogue(handle.db, runQueue(boss), seeded.groups[designer.group]!, seeded.users[designer.email]!);
+// The microwave group files its own demo devices (catalogue/qh-*.json) under its admin.
+const microwaveAdmin = demoAccounts.find((a) => a.group === 'quarry-hill')!;
+await seedCatalogue(handle.db, runQueue(boss), seeded.groups[designer.group]!, seeded.users[designer.email]!, console.log, {
+  'quarry-hill': { groupId: seeded.groups['quarry-hill']!, userId: seeded.users[microwaveAdmin.email]! },
+});
 await boss.stop({ graceful: false, wait: true });
 await handle.close();
 

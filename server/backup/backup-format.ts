@@ -54,6 +54,26 @@ export const modelRecord = z.object({
   updatedAt: when,
 });
 
+/**
+ * Columns added with the microwave mode and the per-family dimensions: optional, so a
+ * backup written before them still restores (the back-fill computes them after a restore).
+ */
+export const geometryFields = {
+  physics: z.enum(['electrons', 'microwave']).optional(),
+  rxNm: num.nullable().optional(),
+  ryNm: num.nullable().optional(),
+  innerNm: num.nullable().optional(),
+  outerNm: num.nullable().optional(),
+  areaNm2: num.nullable().optional(),
+};
+/** The lattice-validity and frequency columns of a resonance (optional for the same reason). */
+export const validityFields = {
+  validityLimit: num.nullable().optional(),
+  wavelengthSpacings: num.nullable().optional(),
+  aboveValidity: z.boolean().nullable().optional(),
+  frequencyGhz: num.nullable().optional(),
+};
+
 export const modelVersionRecord = z.object({
   type: z.literal('modelVersion'),
   id,
@@ -72,6 +92,7 @@ export const modelVersionRecord = z.object({
   heightNm: num.nullable(),
   radiusNm: num.nullable(),
   lengthNm: num.nullable(),
+  ...geometryFields,
   keyDimensions: z.record(z.string(), num),
   createdBy: email,
   createdAt: when,
@@ -141,6 +162,8 @@ export const resonanceRecord = z.object({
   heightNm: num.nullable(),
   radiusNm: num.nullable(),
   lengthNm: num.nullable(),
+  ...geometryFields,
+  ...validityFields,
   createdAt: when,
 });
 

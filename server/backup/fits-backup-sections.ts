@@ -13,6 +13,7 @@ import { measuredTraces, peakFits } from '../db/schema/fits.js';
 import { authorEmails } from './author-emails.js';
 import type { BackupSection, RestoredIds } from './backup-sections.js';
 import { remapJsonIds } from './remap-json-ids.js';
+import { geometryFields, validityFields } from './backup-format.js';
 
 const id = z.uuid();
 const when = z.iso.datetime({ offset: true });
@@ -87,6 +88,8 @@ export const fittedResonanceRecord = z.object({
   heightNm: num.nullable(),
   radiusNm: num.nullable(),
   lengthNm: num.nullable(),
+  ...geometryFields,
+  ...validityFields,
   createdAt: when,
 });
 

@@ -58,6 +58,9 @@ export function searchFingerprint(filter: CatalogueFilter): string {
     tags: filter.tags ? [...filter.tags].sort() : null,
     bound: filter.bound ?? null,
     ranges: Object.fromEntries(Object.entries(filter.ranges).sort(([a], [b]) => a.localeCompare(b))),
+    // Added only when given, so the fingerprints of earlier searches stay as they were.
+    ...(filter.aboveLimit !== undefined ? { aboveLimit: filter.aboveLimit } : {}),
+    ...(filter.physics ? { physics: [...filter.physics].sort() } : {}),
   };
   return createHash('sha256').update(JSON.stringify(canonical)).digest('base64url').slice(0, 16);
 }

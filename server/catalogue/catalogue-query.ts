@@ -95,7 +95,19 @@ const ranges = {
   dimHeight: { min: 'dim.height.min', max: 'dim.height.max', unit: 'nm' },
   dimRadius: { min: 'dim.radius.min', max: 'dim.radius.max', unit: 'nm' },
   dimLength: { min: 'dim.length.min', max: 'dim.length.max', unit: 'nm' },
+  dimRx: { min: 'dim.rx.min', max: 'dim.rx.max', unit: 'nm' },
+  dimRy: { min: 'dim.ry.min', max: 'dim.ry.max', unit: 'nm' },
+  dimInner: { min: 'dim.inner.min', max: 'dim.inner.max', unit: 'nm' },
+  dimOuter: { min: 'dim.outer.min', max: 'dim.outer.max', unit: 'nm' },
+  dimArea: { min: 'dim.area.min', max: 'dim.area.max', unit: 'nm²' },
+  frequency: { min: 'fmin', max: 'fmax', unit: 'GHz' },
+  wavelength: { min: 'lambdamin', max: 'lambdamax', unit: 'lattice spacings' },
 } as const;
+
+/** The dimension names `dim.NAME.min/max` accepts (server/models/model-figures.ts, GeometryColumns). */
+export const dimensionFilterNames = Object.values(ranges)
+  .map((r) => /^dim\.(\w+)\.min$/.exec(r.min)?.[1])
+  .filter((n): n is string => n !== undefined);
 type RangeName = keyof typeof ranges;
 
 const rangeShape = Object.fromEntries(
@@ -115,13 +127,17 @@ export const tagSchema = z
   .regex(/^[a-z0-9\-_ .]+$/, 'a tag may only contain a-z, 0-9, space, "-", "_" and "."');
 
 /** Filters without paging (the exports use this). */
-export const catalogueFilterSchema = z
+/** The filter's parameters, one by one (the OpenAPI document lists them from here). */
+export const catalogueFilterFields = z
   .object({
     family: listParam(z.string().max(40, 'a family name has at most 40 characters').regex(noNul, noNulMessage)),
     material: listParam(z.string().max(80, 'a material name has at most 80 characters').regex(noNul, noNulMessage)),
     q: textParam(200),
     tag: listParam(tagSchema),
     bound: booleanParam,
+    /** true: only resonances above their model's lattice-validity limit; false: only those within it. */
+    aboveLimit: booleanParam,
+    physics: listParam(z.enum(['electrons', 'microwave'], { error: 'must be electrons or microwave' }) as unknown as z.ZodString),
     source: z.preprocess(
       (v) => (v === undefined || v === '' ? undefined : v),
       z.enum(['computed', 'fitted'], { error: 'must be computed or fitted' }).optional(),
@@ -139,6 +155,20 @@ export const catalogueFilterSchema = z
       }
     }
   });
+
+export const catalogueFilterSchema = z
+  .record(z.string(), z.unknown())
+  // Names an unknown dimension (dim.xyz.min) instead of dropping it as an unknown key.
+  .superRefine((raw, ctx) => {
+    for (const key of Object.keys(raw)) {
+      if (!key.startsWith('dim.')) continue;
+      const m = /^dim\.([^.]*)\.(min|max)$/.exec(key);
+      if (!m || !dimensionFilterNames.includes(m[1]!)) {
+        ctx.addIssue({ code: 'custom', path: [key], message: `is not a dimension filter: use dim.NAME.min or dim.NAME.max with NAME one of ${dimensionFilterNames.join(', ')}` });
+      }
+    }
+  })
+  .pipe(catalogueFilterFields);
 
 /** Offset paging stops this many rows deep; deeper pages follow the keyset cursor. */
 export const maxOffsetRows = 10_000;
@@ -194,6 +224,9 @@ export interface CatalogueFilter {
   q?: string;
   tags?: string[];
   bound?: boolean;
+  /** Above (true) or within (false) the lattice-validity limit. */
+  aboveLimit?: boolean;
+  physics?: ('electrons' | 'microwave')[];
   /** Only computed poles, or only fitted resonances. */
   source?: 'computed' | 'fitted';
   ranges: Partial<Record<RangeName, { min?: number; max?: number }>>;
@@ -218,6 +251,8 @@ export function toCatalogueFilter(parsed: ParsedFilter): CatalogueFilter {
   if (parsed.q) out.q = parsed.q as string;
   if (parsed.tag) out.tags = [...new Set(parsed.tag as string[])];
   if (parsed.bound !== undefined) out.bound = parsed.bound as boolean;
+  if (parsed.aboveLimit !== undefined) out.aboveLimit = parsed.aboveLimit as boolean;
+  if (parsed.physics) out.physics = [...new Set(parsed.physics as ('electrons' | 'microwave')[])];
   if (parsed.source) out.source = parsed.source as 'computed' | 'fitted';
   for (const [name, r] of Object.entries(ranges) as [RangeName, (typeof ranges)[RangeName]][]) {
     const min = (parsed as Record<string, unknown>)[r.min] as number | undefined;
@@ -253,6 +288,14 @@ const rangeColumns: Record<RangeName, AnyColumn | SQL> = {
   dimHeight: resonances.heightNm,
   dimRadius: resonances.radiusNm,
   dimLength: resonances.lengthNm,
+  dimRx: resonances.rxNm,
+  dimRy: resonances.ryNm,
+  dimInner: resonances.innerNm,
+  dimOuter: resonances.outerNm,
+  dimArea: resonances.areaNm2,
+  frequency: resonances.frequencyGhz,
+  // Infinite λ (at or below the band bottom) is stored as null: it passes a lower bound only.
+  wavelength: nullAsInfinity(resonances.wavelengthSpacings),
 };
 
 /**
@@ -277,6 +320,8 @@ export function catalogueConditions(groupId: string, f: CatalogueFilter): SQL {
   if (f.family) conds.push(inArray(resonances.family, f.family));
   if (f.material) conds.push(inArray(resonances.material, f.material));
   if (f.bound !== undefined) conds.push(eq(resonances.bound, f.bound));
+  if (f.aboveLimit !== undefined) conds.push(eq(resonances.aboveValidity, f.aboveLimit));
+  if (f.physics) conds.push(inArray(resonances.physics, f.physics));
   if (f.source) conds.push(eq(resonances.source, f.source));
   if (f.tags) conds.push(arrayContains(resonances.tags, f.tags));
   if (f.q) {

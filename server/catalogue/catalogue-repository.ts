@@ -24,6 +24,16 @@ const rowColumns = {
   heightNm: resonances.heightNm,
   radiusNm: resonances.radiusNm,
   lengthNm: resonances.lengthNm,
+  rxNm: resonances.rxNm,
+  ryNm: resonances.ryNm,
+  innerNm: resonances.innerNm,
+  outerNm: resonances.outerNm,
+  areaNm2: resonances.areaNm2,
+  physics: resonances.physics,
+  frequencyGhz: resonances.frequencyGhz,
+  validityLimit: resonances.validityLimit,
+  wavelengthSpacings: resonances.wavelengthSpacings,
+  aboveValidity: resonances.aboveValidity,
   energy: resonances.energy,
   width: resonances.width,
   lifetimePs: resonances.lifetimePs,
@@ -57,6 +67,17 @@ export interface ResonanceRecord {
   heightNm: number | null;
   radiusNm: number | null;
   lengthNm: number | null;
+  rxNm: number | null;
+  ryNm: number | null;
+  innerNm: number | null;
+  outerNm: number | null;
+  areaNm2: number | null;
+  /** 'electrons' or 'microwave' (energy and width then in mm⁻², frequencyGhz set). */
+  physics: string;
+  frequencyGhz: number | null;
+  validityLimit: number | null;
+  wavelengthSpacings: number | null;
+  aboveValidity: boolean | null;
   energy: number;
   width: number;
   lifetimePs: number | null;

@@ -1,4 +1,5 @@
 import type { ResonanceRecord } from './catalogue-repository.js';
+import { keyDimensionsOf } from '../models/model-figures.js';
 
 /**
  * One catalogued resonance z = E − iΓ/2 as the API shows it. Energies and widths in meV,
@@ -16,7 +17,18 @@ export interface ResonanceRow {
   modelName: string;
   modelVersion: number;
   family: string;
-  keyDimensions: { width?: number; height?: number; radius?: number; length?: number };
+  /** The dimensions the family has, each by its own name, in nm (area in nm²); a microwave model's mm converted. */
+  keyDimensions: { width?: number; height?: number; radius?: number; length?: number; rx?: number; ry?: number; inner?: number; outer?: number; area?: number };
+  /** 'electrons' (E, Γ in meV) or 'microwave' (E, Γ are k² in mm⁻²; see `microwave`). */
+  physics: 'electrons' | 'microwave';
+  /** Microwave mode: the complex frequency's figures (GHz, MHz, ns, Q = Re f/Γ_f); null for electrons. */
+  microwave: { frequencyGhz: number; widthMhz: number; lifetimeNs: number | null; quality: number | null; validityLimitGhz: number | null } | null;
+  /**
+   * Lattice validity of this resonance's model: the energy below which the lattice is trusted
+   * (meV, or mm⁻² in the microwave mode), λ/a at this energy (null: infinite), and whether the
+   * resonance lies above the limit (null: not known, e.g. a fit on a gate-voltage axis).
+   */
+  validity: { limit: number | null; wavelengthSpacings: number | null; aboveLimit: boolean | null };
   material: string;
   fieldT: number;
   energy: number;
@@ -44,11 +56,23 @@ export function modeImageUrl(groupId: string, id: string, size: 'thumb' | 'full'
 
 /** Record → API row; only the key dimensions the family has are listed. */
 export function toResonanceRow(r: ResonanceRecord): ResonanceRow {
-  const keyDimensions: ResonanceRow['keyDimensions'] = {};
-  if (r.widthNm !== null) keyDimensions.width = r.widthNm;
-  if (r.heightNm !== null) keyDimensions.height = r.heightNm;
-  if (r.radiusNm !== null) keyDimensions.radius = r.radiusNm;
-  if (r.lengthNm !== null) keyDimensions.length = r.lengthNm;
+  const keyDimensions = keyDimensionsOf(r) as ResonanceRow['keyDimensions'];
+  const physics = r.physics === 'microwave' ? 'microwave' : 'electrons';
+  let microwave: ResonanceRow['microwave'] = null;
+  if (physics === 'microwave') {
+    // ε_r is not stored per row: the stored Re f = s·Re√z gives the scale s = c/(2π√ε_r), which
+    // converts Im√z to Γ_f = 2s|Im√z| and the k² limit to a frequency.
+    const root = complexSqrt(r.energy, -r.width / 2);
+    const f = r.frequencyGhz ?? 0;
+    const scale = root.re > 0 ? f / root.re : 0;
+    microwave = {
+      frequencyGhz: f,
+      widthMhz: 2 * scale * Math.abs(root.im) * 1e3,
+      lifetimeNs: r.lifetimePs === null ? null : r.lifetimePs / 1e3,
+      quality: r.quality,
+      validityLimitGhz: r.validityLimit === null ? null : scale * Math.sqrt(Math.max(0, r.validityLimit)),
+    };
+  }
   return {
     id: r.id,
     runId: r.runId,
@@ -59,6 +83,9 @@ export function toResonanceRow(r: ResonanceRecord): ResonanceRow {
     modelVersion: r.modelVersion,
     family: r.family,
     keyDimensions,
+    physics,
+    microwave,
+    validity: { limit: r.validityLimit, wavelengthSpacings: r.wavelengthSpacings, aboveLimit: r.aboveValidity },
     material: r.material,
     fieldT: r.fieldT,
     energy: r.energy,
@@ -77,4 +104,15 @@ export function toResonanceRow(r: ResonanceRecord): ResonanceRow {
     thumbnailUrl: r.source === 'fitted' ? null : modeImageUrl(r.groupId, r.id, 'thumb'),
     imageUrl: r.source === 'fitted' ? null : modeImageUrl(r.groupId, r.id, 'full'),
   };
+}
+
+/** Principal √(re + i·im). */
+function complexSqrt(re: number, im: number): { re: number; im: number } {
+  // The half-angle form loses Im √z to cancellation when |im| ≪ re (a narrow pole): take the
+  // larger part from it and the smaller from 2·Re√z·Im√z = im (Numerical Recipes §5.4).
+  const m = Math.hypot(re, im);
+  if (m === 0) return { re: 0, im: 0 };
+  const w = Math.sqrt((m + Math.abs(re)) / 2);
+  if (re >= 0) return { re: w, im: im / (2 * w) };
+  return { re: Math.abs(im) / (2 * w), im: im < 0 ? -w : w };
 }

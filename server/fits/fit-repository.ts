@@ -158,7 +158,10 @@ export async function modelVersionColumns(q: Queryable, modelVersionId: string) 
       modelId: modelVersions.modelId,
       name: cavityModels.name,
       version: modelVersions.version,
+      document: modelVersions.document,
       family: modelVersions.family,
+      physics: modelVersions.physics,
+      hoppingMeV: modelVersions.hoppingMeV,
       material: modelVersions.material,
       fieldT: modelVersions.fieldT,
       spacingNm: modelVersions.spacingNm,
@@ -166,6 +169,11 @@ export async function modelVersionColumns(q: Queryable, modelVersionId: string) 
       heightNm: modelVersions.heightNm,
       radiusNm: modelVersions.radiusNm,
       lengthNm: modelVersions.lengthNm,
+      rxNm: modelVersions.rxNm,
+      ryNm: modelVersions.ryNm,
+      innerNm: modelVersions.innerNm,
+      outerNm: modelVersions.outerNm,
+      areaNm2: modelVersions.areaNm2,
     })
     .from(modelVersions)
     .innerJoin(cavityModels, eq(cavityModels.id, modelVersions.modelId))

@@ -5,6 +5,8 @@
  * the catalogue in the same transaction as the fit's result.
  */
 import { and, eq, inArray, sql } from 'drizzle-orm';
+import { resonancePhysicsOfDocument, resonanceValidity, validityLimit, type ResonancePhysics } from '../../shared/model/resonance-validity.js';
+import { geometryOf } from '../models/model-figures.js';
 import { writeAudit } from '../audit/audit-log.js';
 import type { Db, Queryable } from '../db/client.js';
 import { resonances } from '../db/schema/catalogue.js';
@@ -341,6 +343,7 @@ export async function writeFitResult(tx: Queryable, fitId: string, attempt: numb
   if (!versionId) return true;
   const mv = await modelVersionColumns(tx, versionId);
   if (!mv) return true;
+  const physics = resonancePhysicsOfDocument(mv.document, { physics: mv.physics, hopping: mv.hoppingMeV });
   const shapeWords: Record<Lineshape, string> = { bw: 'Breit–Wigner', fano: 'Fano', thermal: 'thermally broadened Breit–Wigner', 'thermal-fano': 'thermally broadened Fano' };
   for (let k = 0; k < result.peaks.length; k++) {
     const pk = result.peaks[k];
@@ -365,6 +368,8 @@ export async function writeFitResult(tx: Queryable, fitId: string, attempt: numb
       bound: false,
       nearThreshold: false,
       overlapping,
+      // A fit's energy is on the model's axis only when it came from an energy trace.
+      ...fittedValidity(pk.energy, physics, positionComparable),
       details: {
         fit: {
           fitId,
@@ -392,13 +397,18 @@ export async function writeFitResult(tx: Queryable, fitId: string, attempt: numb
       material: mv.material,
       fieldT: mv.fieldT,
       spacingNm: mv.spacingNm,
-      widthNm: mv.widthNm,
-      heightNm: mv.heightNm,
-      radiusNm: mv.radiusNm,
-      lengthNm: mv.lengthNm,
+      physics: mv.physics,
+      ...geometryOf(mv),
     });
   }
   return true;
+}
+
+/** Validity columns of a fitted peak; none when its energy has an arbitrary zero (a gate-voltage axis). */
+function fittedValidity(energy: number, physics: ResonancePhysics, positionComparable: boolean) {
+  if (!positionComparable) return { validityLimit: validityLimit(physics.hopping, physics.lowestOffset), wavelengthSpacings: null, aboveValidity: null };
+  const v = resonanceValidity(energy, physics);
+  return { validityLimit: v.limit, wavelengthSpacings: v.wavelengthSpacings, aboveValidity: v.aboveLimit };
 }
 
 async function versionOfRun(q: Queryable, runId: string): Promise<string | undefined> {

@@ -143,6 +143,7 @@ export async function handleRunJob(deps: RunJobDeps, job: RunJobInfo): Promise<R
         version: modelVersions.version,
         document: modelVersions.document,
         family: modelVersions.family,
+        physics: modelVersions.physics,
         material: modelVersions.material,
         fieldT: modelVersions.fieldT,
         spacingNm: modelVersions.spacingNm,
@@ -150,6 +151,11 @@ export async function handleRunJob(deps: RunJobDeps, job: RunJobInfo): Promise<R
         heightNm: modelVersions.heightNm,
         radiusNm: modelVersions.radiusNm,
         lengthNm: modelVersions.lengthNm,
+        rxNm: modelVersions.rxNm,
+        ryNm: modelVersions.ryNm,
+        innerNm: modelVersions.innerNm,
+        outerNm: modelVersions.outerNm,
+        areaNm2: modelVersions.areaNm2,
       })
       .from(modelVersions)
       .innerJoin(cavityModels, eq(cavityModels.id, modelVersions.modelId))

@@ -10,6 +10,8 @@ import { runStore } from '../runs/run-store.js';
 import { renderModePng } from '../catalogue/mode-image.js';
 import type { EngineTaskResult } from './engine-task.js';
 import type { Pole } from '../../shared/engine/pole-types.js';
+import { resonanceFigures, resonancePhysicsOfDocument } from '../../shared/model/resonance-validity.js';
+import { geometryOf, type GeometryColumns } from '../models/model-figures.js';
 
 /** A Petermann factor above this marks non-orthogonal, overlapping modes (common practice, no source). */
 export const OVERLAP_PETERMANN = 1.2;
@@ -35,19 +37,18 @@ export interface RunContext {
   groupId: string;
   attempt: number;
   actorId: string | null;
-  model: {
+  model: GeometryColumns & {
     id: string;
     versionId: string;
     name: string;
     version: number;
+    /** The model version's document: its physics mode, hopping and leads give each pole's validity figures. */
+    document: unknown;
     family: string;
+    physics: 'electrons' | 'microwave';
     material: string;
     fieldT: number;
     spacingNm: number;
-    widthNm: number | null;
-    heightNm: number | null;
-    radiusNm: number | null;
-    lengthNm: number | null;
   };
 }
 
@@ -72,12 +73,14 @@ export async function writeRunResults(
     const full = renderModePng(lattice, p.mode, { maxSide: FULL_SIDE });
     return { thumb, full };
   });
+  const physics = resonancePhysicsOfDocument(ctx.model.document);
   return db.transaction(async (tx) => {
     if (!(await runStore.lockAttempt(tx, ctx.runId, ctx.attempt))) return false;
     await tx.delete(resonances).where(eq(resonances.runId, ctx.runId));
     await tx.delete(spectra).where(eq(spectra.runId, ctx.runId));
     for (let k = 0; k < result.poles.length; k++) {
       const p = result.poles[k];
+      const figures = resonanceFigures(p.energy, p.width, physics);
       const [row] = await tx
         .insert(resonances)
         .values({
@@ -88,14 +91,20 @@ export async function writeRunResults(
           idx: k,
           energy: p.energy,
           width: p.width,
-          lifetimePs: p.lifetimePs,
-          quality: p.quality,
+          // Microwave mode: τ = 1/(2πΓ_f) and Q = Re f/Γ_f from the complex frequency, not ħ/Γ and E/Γ.
+          lifetimePs: p.bound ? null : physics.physics === 'microwave' ? figures.lifetimePs : p.lifetimePs,
+          quality: p.bound ? null : physics.physics === 'microwave' ? figures.quality : p.quality,
           partialWidths: p.partialWidths.map((w, l) => ({ lead: result.leadNames[l] ?? `lead ${l}`, width: w })),
           petermann: p.petermann,
           residual: p.residual,
           bound: p.bound,
           nearThreshold: p.nearThreshold !== null,
           overlapping: isOverlapping(result.poles, k),
+          validityLimit: figures.validity.limit,
+          wavelengthSpacings: figures.validity.wavelengthSpacings,
+          aboveValidity: figures.validity.aboveLimit,
+          physics: figures.physics,
+          frequencyGhz: figures.frequencyGhz,
           details: { nearThreshold: p.nearThreshold, sheet: p.sheet, piece: p.piece },
           modelName: ctx.model.name,
           modelVersion: ctx.model.version,
@@ -103,10 +112,7 @@ export async function writeRunResults(
           material: ctx.model.material,
           fieldT: ctx.model.fieldT,
           spacingNm: ctx.model.spacingNm,
-          widthNm: ctx.model.widthNm,
-          heightNm: ctx.model.heightNm,
-          radiusNm: ctx.model.radiusNm,
-          lengthNm: ctx.model.lengthNm,
+          ...geometryOf(ctx.model),
         })
         .returning({ id: resonances.id });
       await tx.insert(resonanceModes).values({

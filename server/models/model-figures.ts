@@ -1,22 +1,47 @@
 import { cavityModelSchema, validateCavityModel, type CavityModel, type ModelIssue, type Shape } from '../../shared/model/cavity-model.js';
 import { deriveFigures, type DerivedFigures } from '../../shared/model/derived-figures.js';
+import { physicsUnits, type PhysicsKind } from '../../shared/model/physics-mode.js';
 import { ApiError } from '../http/error-handler.js';
 import { formatIssuePath } from '../../shared/model/cavity-model.js';
 
+/**
+ * The dimensions a geometry is searched by, every one in nm (a microwave model's mm are
+ * converted, so one filter means one length), null where the family lacks it:
+ * width/height: bounding box of the cavity sites ((columns, rows) × a; a rectangle's own);
+ * radius: disk, stadium; length: stadium; rx, ry: ellipse; inner, outer: annulus;
+ * area: cavity sites × a² (nm²), for every family.
+ */
+export interface GeometryColumns {
+  widthNm: number | null;
+  heightNm: number | null;
+  radiusNm: number | null;
+  lengthNm: number | null;
+  rxNm: number | null;
+  ryNm: number | null;
+  innerNm: number | null;
+  outerNm: number | null;
+  areaNm2: number | null;
+}
+
+/** The dimension names of GeometryColumns as the API lists them (keyDimensions) and the catalogue filters them (dim.NAME.min/max). */
+export const geometryDimensionNames = ['width', 'height', 'radius', 'length', 'rx', 'ry', 'inner', 'outer', 'area'] as const;
+export type GeometryDimension = (typeof geometryDimensionNames)[number];
+
 /** What the catalogue can search on, computed once per model version. */
-export interface ModelColumns {
+export interface ModelColumns extends GeometryColumns {
   family: string;
+  /** 'electrons' or 'microwave' (shared/model/physics-mode.ts). */
+  physics: PhysicsKind;
+  /** The material preset id, 'custom', or for a microwave model 'eps_r=<ε_r>'. */
   material: string;
+  /** m* / m_e; 0 for a microwave model (no mass). */
   effectiveMass: number;
   spacingNm: number;
   fieldT: number;
   siteCount: number;
   leadCount: number;
+  /** t in the model's energy unit: meV, or mm⁻² (1/a²) for a microwave model. */
   hoppingMeV: number;
-  widthNm: number | null;
-  heightNm: number | null;
-  radiusNm: number | null;
-  lengthNm: number | null;
   keyDimensions: Record<string, number>;
 }
 
@@ -39,35 +64,79 @@ export function checkModel(document: unknown): CheckedModel {
   if (!result.ok) throw invalidModel(result.issues);
   const { model, mask, siteCount } = result;
   const derived = deriveFigures(model, siteCount);
-  const box = maskBox(mask, model.grid.nx, model.grid.ny);
-  const a = model.spacing;
-  const width = box ? (box.imax - box.imin + 1) * a : null;
-  const height = box ? (box.jmax - box.jmin + 1) * a : null;
-  const shapeDims = shapeDimensions(model.shape);
-  const keyDimensions: Record<string, number> = {};
-  if (width !== null) keyDimensions['width'] = width;
-  if (height !== null) keyDimensions['height'] = height;
-  if (shapeDims.radius !== undefined) keyDimensions['radius'] = shapeDims.radius;
-  if (shapeDims.length !== undefined) keyDimensions['length'] = shapeDims.length;
+  const geometry = geometryColumns(model, mask, siteCount);
+  const microwave = model.physics.kind === 'microwave' ? model.physics : null;
   return {
     model,
     derived,
     columns: {
       family: shapeFamily(model.shape),
-      material: typeof model.material === 'string' ? model.material : 'custom',
-      effectiveMass: derived.massRatio,
-      spacingNm: a,
+      physics: model.physics.kind,
+      material: microwave ? `eps_r=${microwave.permittivity}` : typeof model.material === 'string' ? model.material : 'custom',
+      effectiveMass: microwave ? 0 : derived.massRatio,
+      spacingNm: model.spacing * physicsUnits(model.physics.kind).nmPerLength,
       fieldT: model.field,
       siteCount,
       leadCount: model.leads.length,
       hoppingMeV: derived.hopping,
-      widthNm: width,
-      heightNm: height,
-      radiusNm: shapeDims.radius ?? null,
-      lengthNm: shapeDims.length ?? null,
-      keyDimensions,
+      ...geometry,
+      keyDimensions: keyDimensionsOf(geometry),
     },
   };
+}
+
+/** The searchable dimensions of a validated model (see GeometryColumns). Cost O(nx·ny). */
+export function geometryColumns(model: CavityModel, mask: Uint8Array, siteCount: number): GeometryColumns {
+  const scale = physicsUnits(model.physics.kind).nmPerLength;
+  const a = model.spacing;
+  const box = maskBox(mask, model.grid.nx, model.grid.ny);
+  const body = bodyShape(model.shape);
+  const nm = (v: number | undefined) => (v === undefined ? null : v * scale);
+  const own = body === model.shape && body.kind === 'rectangle';
+  return {
+    widthNm: own ? body.width * scale : box ? (box.imax - box.imin + 1) * a * scale : null,
+    heightNm: own ? body.height * scale : box ? (box.jmax - box.jmin + 1) * a * scale : null,
+    radiusNm: nm(body.kind === 'disk' || body.kind === 'stadium' ? body.radius : undefined),
+    lengthNm: nm(body.kind === 'stadium' ? body.length : undefined),
+    rxNm: nm(body.kind === 'ellipse' ? body.rx : undefined),
+    ryNm: nm(body.kind === 'ellipse' ? body.ry : undefined),
+    innerNm: nm(body.kind === 'annulus' ? body.inner : undefined),
+    outerNm: nm(body.kind === 'annulus' ? body.outer : undefined),
+    areaNm2: siteCount * a * a * scale * scale,
+  };
+}
+
+/** The geometry columns of a row that has them (a resonance copies its model version's). */
+export function geometryOf(m: GeometryColumns): GeometryColumns {
+  return {
+    widthNm: m.widthNm,
+    heightNm: m.heightNm,
+    radiusNm: m.radiusNm,
+    lengthNm: m.lengthNm,
+    rxNm: m.rxNm,
+    ryNm: m.ryNm,
+    innerNm: m.innerNm,
+    outerNm: m.outerNm,
+    areaNm2: m.areaNm2,
+  };
+}
+
+/** The dimensions the family has, by name (nm; area nm²). */
+export function keyDimensionsOf(g: GeometryColumns): Record<string, number> {
+  const values: Record<GeometryDimension, number | null> = {
+    width: g.widthNm,
+    height: g.heightNm,
+    radius: g.radiusNm,
+    length: g.lengthNm,
+    rx: g.rxNm,
+    ry: g.ryNm,
+    inner: g.innerNm,
+    outer: g.outerNm,
+    area: g.areaNm2,
+  };
+  const out: Record<string, number> = {};
+  for (const name of geometryDimensionNames) if (values[name] !== null) out[name] = values[name];
+  return out;
 }
 
 /**
@@ -85,22 +154,6 @@ export function bodyShape(shape: Shape): Shape {
 export function shapeFamily(shape: Shape): string {
   const body = bodyShape(shape);
   return body.kind === 'union' || body.kind === 'subtract' ? 'composite' : body.kind;
-}
-
-function shapeDimensions(shape: Shape): { radius?: number; length?: number } {
-  const body = bodyShape(shape);
-  switch (body.kind) {
-    case 'disk':
-      return { radius: body.radius };
-    case 'stadium':
-      return { radius: body.radius, length: body.length };
-    case 'annulus':
-      return { radius: body.outer };
-    case 'ellipse':
-      return { radius: Math.max(body.rx, body.ry) };
-    default:
-      return {};
-  }
 }
 
 function maskBox(mask: Uint8Array, nx: number, ny: number) {

@@ -21,6 +21,7 @@ const summaryColumns = {
   createdByName: users.name,
   family: modelVersions.family,
   material: modelVersions.material,
+  physics: modelVersions.physics,
   spacingNm: modelVersions.spacingNm,
   fieldT: modelVersions.fieldT,
   siteCount: modelVersions.siteCount,

@@ -19,6 +19,7 @@ export function toSummary(r: SummaryRow) {
     family: r.family,
     latestVersion: r.latestVersion,
     material: r.material,
+    physics: r.physics === 'microwave' ? ('microwave' as const) : ('electrons' as const),
     spacingNm: r.spacingNm,
     fieldT: r.fieldT,
     siteCount: r.siteCount,

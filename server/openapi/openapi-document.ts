@@ -11,7 +11,7 @@ import { confirmBody, resetBody, signInBody } from '../auth/auth-routes.js';
 import { accountActivityQuery } from '../auth/account-routes.js';
 import * as accountApi from '../../shared/api/account.js';
 import { createBody as tokenBody, tokenParams as apiTokenParams } from '../auth/api-token-routes.js';
-import { catalogueFilterSchema, catalogueQuerySchema } from '../catalogue/catalogue-query.js';
+import { catalogueFilterFields, catalogueQuerySchema } from '../catalogue/catalogue-query.js';
 import { imageQuery, labelBody } from '../catalogue/resonance-routes.js';
 import { activityQuery, invitationParams, inviteBody, memberParams, roleBody } from '../groups/group-routes.js';
 import { acceptBody, tokenParams as invitationTokenParams } from '../invitations/invitation-routes.js';
@@ -83,7 +83,7 @@ const groupParams = z.object({ groupId: z.uuid() });
 // Resonance ids are checked in the route (a malformed one answers 404 like a stranger's).
 const resonanceParams = z.object({ groupId: z.uuid(), id: z.uuid() });
 // The catalogue query is an intersection (filters, then paging); parameters need one object.
-const catalogueParameters = z.object({ ...catalogueQuerySchema.def.left.shape, ...catalogueQuerySchema.def.right.shape });
+const catalogueParameters = z.object({ ...catalogueFilterFields.shape, ...catalogueQuerySchema.def.right.shape });
 // The routes accept any JSON as `document` and check it with validateCavityModel; this shows its form.
 const modelDocumentBody = documentBody.extend({ document: cavityModelDescription });
 const bitmapUpload = bitmapBody.extend({
@@ -430,7 +430,7 @@ const legacyOperations: Operation[] = [
     summary: 'Every resonance the filter keeps, as CSV',
     access: 'member',
     params: groupParams,
-    query: catalogueFilterSchema,
+    query: catalogueFilterFields,
     success: { status: 200, description: 'RFC 4180 CSV with a header line', schema: z.string(), mediaType: 'text/csv' },
   },
   {
@@ -441,7 +441,7 @@ const legacyOperations: Operation[] = [
     summary: 'Every resonance the filter keeps, as JSON with units',
     access: 'member',
     params: groupParams,
-    query: catalogueFilterSchema,
+    query: catalogueFilterFields,
     success: json(200, 'The export', answers.catalogueExportSchema),
   },
   {

@@ -109,10 +109,16 @@ export const derivedFiguresSchema = z
         warnings: z.array(z.string()),
       })
       .optional(),
+    physics: z.enum(['electrons', 'microwave']).optional().meta({ description: 'microwave: every energy above is k² (mm⁻²), hopping 1/a²' }),
+    permittivity: z.number().optional().meta({ description: 'Microwave: ε_r of the filling' }),
+    heightMm: z.number().optional().meta({ description: 'Microwave: height h of the resonator (mm)' }),
+    twoDimensionalLimitGhz: z.number().optional().meta({ description: 'Microwave: c/(2h√ε_r) (GHz), above which the 2D picture fails' }),
   })
   .meta({ id: 'DerivedFigures', description: 'Figures that follow from a model: hopping, thresholds, magnetic length (docs/physics-model.md).' });
 
-const modelKeyDimensions = z.record(z.string(), z.number()).meta({ description: 'width, height, radius, length of the cavity (nm), as the family has them' });
+const modelKeyDimensions = z
+  .record(z.string(), z.number())
+  .meta({ description: 'width, height, radius, length, rx, ry, inner, outer (nm) and area (nm²) of the cavity, as the family has them' });
 
 export const modelSummarySchema = z
   .object({
@@ -120,8 +126,9 @@ export const modelSummarySchema = z
     name: z.string(),
     family: z.string().meta({ description: 'The shape kind, or composite for union and subtract' }),
     latestVersion: z.number().int().min(1),
-    material: z.string().meta({ description: 'Preset id, or custom' }),
-    spacingNm: z.number(),
+    material: z.string().meta({ description: 'Preset id, or custom; eps_r=<ε_r> for a microwave model' }),
+    physics: z.enum(['electrons', 'microwave']),
+    spacingNm: z.number().meta({ description: 'Lattice spacing (nm; a microwave model\'s mm converted)' }),
     fieldT: z.number(),
     siteCount: z.number().int(),
     leadCount: z.number().int(),
@@ -165,6 +172,12 @@ export const modelCheckSchema = z
         heightNm: z.number().nullable(),
         radiusNm: z.number().nullable(),
         lengthNm: z.number().nullable(),
+        rxNm: z.number().nullable(),
+        ryNm: z.number().nullable(),
+        innerNm: z.number().nullable(),
+        outerNm: z.number().nullable(),
+        areaNm2: z.number().nullable(),
+        physics: z.string(),
         keyDimensions: modelKeyDimensions,
       })
       .meta({ description: 'What the catalogue will file the model under' }),
@@ -246,7 +259,37 @@ export const resonanceRowSchema = z
     modelName: z.string(),
     modelVersion: z.number().int().min(1),
     family: z.string(),
-    keyDimensions: z.object({ width: z.number().optional(), height: z.number().optional(), radius: z.number().optional(), length: z.number().optional() }),
+    keyDimensions: z
+      .object({
+        width: z.number().optional(),
+        height: z.number().optional(),
+        radius: z.number().optional(),
+        length: z.number().optional(),
+        rx: z.number().optional(),
+        ry: z.number().optional(),
+        inner: z.number().optional(),
+        outer: z.number().optional(),
+        area: z.number().optional(),
+      })
+      .meta({ description: 'The dimensions the family has, by their own names (nm; area nm²): width/height bounding box, radius (disk, stadium), length (stadium), rx/ry (ellipse), inner/outer (annulus), area (all)' }),
+    physics: z.enum(['electrons', 'microwave']).meta({ description: 'electrons: E, Γ in meV; microwave: E, Γ are k² in mm⁻², frequencies in `microwave`' }),
+    microwave: z
+      .object({
+        frequencyGhz: z.number().meta({ description: 'Re f = c·Re√z/(2π√ε_r) (GHz)' }),
+        widthMhz: z.number().meta({ description: 'Γ_f = 2|Im f| (MHz)' }),
+        lifetimeNs: z.number().nullable().meta({ description: 'τ = 1/(2πΓ_f) (ns); null when bound' }),
+        quality: z.number().nullable().meta({ description: 'Q = Re f/Γ_f; null when bound' }),
+        validityLimitGhz: z.number().nullable().meta({ description: 'The lattice-validity limit as a frequency (GHz)' }),
+      })
+      .nullable()
+      .meta({ description: 'The complex frequency of a microwave-mode resonance; null for electrons' }),
+    validity: z
+      .object({
+        limit: z.number().nullable().meta({ description: 'Energy below which the lattice is trusted (meV; mm⁻² for microwave)' }),
+        wavelengthSpacings: z.number().nullable().meta({ description: 'λ/a at this resonance (null: infinite)' }),
+        aboveLimit: z.boolean().nullable().meta({ description: 'true: above the limit, the lattice is not trusted here; null: unknown (a fit on a gate axis)' }),
+      })
+      .meta({ description: 'Lattice validity of the resonance (docs/physics-model.md)' }),
     material: z.string(),
     fieldT: z.number(),
     energy: z.number().meta({ description: 'E = Re z (meV)' }),

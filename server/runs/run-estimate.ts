@@ -1,3 +1,5 @@
+import type { PhysicsKind } from '../../shared/model/physics-mode.js';
+import { twoDimensionalLimitGhz, wavenumberSquared } from '../../shared/units/microwave.js';
 import { readFileSync } from 'node:fs';
 import { buildCavitySystem, EffectiveHamiltonian } from '../../shared/engine/effective-hamiltonian.js';
 import { SparseLuPlan } from '../../shared/engine/sparse-lu.js';
@@ -65,6 +67,10 @@ export interface RunCostFeatures {
   kind: RunRequest['kind'];
   hopping: number;
   spacing: number;
+  /** electrons (meV, nm) or microwave (k² in mm⁻², mm): the unit words of the warnings. */
+  physics: PhysicsKind;
+  /** Microwave: the 2D (TM0) limit c/(2h√ε_r) in GHz and as k² (mm⁻²); null for electrons. */
+  twoDimensionalLimit: { ghz: number; k2: number } | null;
   allThresholds: number[];
 }
 
@@ -95,6 +101,11 @@ export function runCostFeatures(document: unknown, req: Pick<RunRequest, 'kind' 
     kind: req.kind,
     hopping: op.hopping,
     spacing: system.spacing,
+    physics: system.model.physics.kind,
+    twoDimensionalLimit:
+      system.model.physics.kind === 'microwave'
+        ? { ghz: twoDimensionalLimitGhz(system.model.physics.height, system.model.physics.permittivity), k2: wavenumberSquared(twoDimensionalLimitGhz(system.model.physics.height, system.model.physics.permittivity), system.model.physics.permittivity) }
+        : null,
     allThresholds: [...op.thresholds],
   };
 }
@@ -135,7 +146,12 @@ export function estimateRun(document: unknown, req: Pick<RunRequest, 'kind' | 'w
   const p = predictRunSeconds(f, model);
   const { emax } = req.window;
   const warnings: string[] = [];
-  warnings.push(...energyValidity(emax, f.hopping, f.spacing).warnings);
+  warnings.push(...energyValidity(emax, f.hopping, f.spacing, f.physics).warnings);
+  if (f.twoDimensionalLimit && emax > f.twoDimensionalLimit.k2) {
+    warnings.push(
+      `The window reaches above the 2D limit c/(2h√ε_r) = ${f.twoDimensionalLimit.ghz.toPrecision(4)} GHz (k² = ${f.twoDimensionalLimit.k2.toPrecision(4)} mm⁻²): there the resonator's next vertical mode propagates and the 2D (TM0) model does not hold.`,
+    );
+  }
   if (f.thresholdsInWindow.length > 0) {
     warnings.push(
       `${f.thresholdsInWindow.length} channel threshold(s) lie inside the window; it is searched piece by piece, and poles within 3 widths of a threshold are flagged (their widths depend strongly on the exact threshold).`,

@@ -3,8 +3,8 @@
  * (docs/physics-model.md, "Observables"), built from a model document.
  * The pattern is H's plus one dense W×W block per lead mouth, fixed for all z.
  */
-import { hoppingEnergy, fluxPerPlaquette } from '../units/constants';
-import { validateCavityModel, modelMassRatio, formatIssuePath, type CavityModel, type LeadSide, type ModelIssue } from '../model/cavity-model';
+import { fluxPerPlaquette } from '../units/constants';
+import { validateCavityModel, modelHopping, modelMassRatio, formatIssuePath, type CavityModel, type LeadSide, type ModelIssue } from '../model/cavity-model';
 import { mouthSites } from '../model/geometry';
 import { evaluatePotential } from '../model/potential';
 import { buildLattice, hamiltonianEntries, addHamiltonian, indexSites, type CavityLattice } from './lattice';
@@ -44,12 +44,12 @@ export interface SystemLead {
 export interface CavitySystem {
   model: CavityModel;
   massRatio: number;
-  /** Lattice spacing a (nm). */
+  /** Lattice spacing a (nm; mm in the microwave mode). */
   spacing: number;
   mask: Uint8Array;
   lattice: CavityLattice;
   sites: { i: Int32Array; j: Int32Array };
-  /** t (meV). */
+  /** t (meV; mm⁻² in the microwave mode). */
   hopping: number;
   /** φ per plaquette. */
   flux: number;
@@ -67,7 +67,8 @@ export function buildCavitySystem(doc: unknown): CavitySystem {
   const { model, mask } = checked;
   const { nx, ny } = model.grid;
   const massRatio = modelMassRatio(model);
-  const hopping = hoppingEnergy(model.spacing, massRatio);
+  // meV for electrons, 1/a² (mm⁻²) for the microwave mode: the same operator either way.
+  const hopping = modelHopping(model);
   const flux = fluxPerPlaquette(model.field, model.spacing);
   const { siteIndex, sites } = indexSites(mask, nx, ny);
   const potential = evaluatePotential(model.potential, sites, siteIndex, ny, model.spacing);

@@ -8,6 +8,8 @@ import { z } from 'zod';
 import { findMaterial, MATERIAL_PRESETS } from './materials';
 import { DOCUMENT_LIMITS, checkDocumentLimits } from './document-limits';
 import { connectedComponents, mouthSites, rasteriseShape, rasterWork } from './geometry';
+import { physicsSchema } from './physics-mode';
+import { hoppingEnergy } from '../units/constants';
 
 /** Largest grid (nx·ny) a model may declare. */
 export const MAX_GRID_POINTS = 250_000;
@@ -198,9 +200,12 @@ export const materialSchema = z.union([
 export const cavityModelSchema = z.object({
   name: z.string().min(1, 'name is empty').max(200),
   notes: z.string().max(10_000).optional(),
-  /** Lattice spacing a (nm). */
+  /** Electrons in a 2DEG (default; lengths nm) or a flat microwave resonator (lengths mm). */
+  physics: physicsSchema,
+  /** Lattice spacing a (nm; mm in the microwave mode). */
   spacing: positive(),
-  material: materialSchema,
+  /** The 2DEG's material; required for electrons, absent in the microwave mode. */
+  material: materialSchema.optional(),
   grid: z.object({ nx: z.number().int().positive(), ny: z.number().int().positive() }),
   shape: shapeSchema,
   potential: z.array(potentialTermSchema).max(DOCUMENT_LIMITS.potentialTerms).default([]),
@@ -231,12 +236,42 @@ export function formatIssuePath(path: readonly (string | number)[]): string {
   return out || '(document)';
 }
 
-/** The mass ratio m* / m_e of a parsed model's material (throws on an unknown preset). */
+/** The mass ratio m* / m_e of a parsed model's material (throws on an unknown preset); 1 in the microwave mode (unused there). */
 export function modelMassRatio(model: CavityModel): number {
+  if (model.physics.kind === 'microwave') return 1;
+  if (model.material === undefined) throw new Error('the model has no material');
   if (typeof model.material !== 'string') return model.material.effectiveMass;
   const preset = findMaterial(model.material);
   if (!preset) throw new Error(`unknown material '${model.material}'`);
   return preset.effectiveMass;
+}
+
+/**
+ * The hopping t of the lattice operator: (ħ²/2m_e)/(m* / m_e)/a² in meV for electrons,
+ * 1/a² in mm⁻² for the microwave mode (docs/physics-model.md, "Physics modes"). Cost O(1).
+ */
+export function modelHopping(model: CavityModel): number {
+  if (model.physics.kind === 'microwave') return 1 / (model.spacing * model.spacing);
+  return hoppingEnergy(model.spacing, modelMassRatio(model));
+}
+
+/** The rules of the microwave mode: no material, field, potential or lead offset (none has a meaning there). */
+function checkPhysicsMode(model: CavityModel, doc: unknown, issues: ModelIssue[]): void {
+  if (model.physics.kind === 'electrons') {
+    if (model.material === undefined) issues.push({ path: ['material'], message: 'material is missing: give a preset id (e.g. "gaas") or { "effectiveMass": m* / m_e }' });
+    return;
+  }
+  const raw = doc as Record<string, unknown>;
+  if (raw['material'] !== undefined) {
+    issues.push({ path: ['material'], message: 'a microwave resonator has no material: remove it (the filling is physics.permittivity, ε_r)' });
+  }
+  if (model.field !== 0) issues.push({ path: ['field'], message: 'a magnetic field does not apply in the microwave mode: set it to 0 or remove it' });
+  if (model.potential.length > 0) {
+    issues.push({ path: ['potential'], message: 'potential terms do not apply in the microwave mode: draw metal posts by subtracting them from the shape' });
+  }
+  model.leads.forEach((lead, k) => {
+    if (lead.offset !== 0) issues.push({ path: ['leads', k, 'offset'], message: 'a lead offset does not apply in the microwave mode: the waveguides are empty, set it to 0' });
+  });
 }
 
 function leadLabel(lead: Lead, index: number): string {
@@ -294,6 +329,7 @@ export function validateCavityModel(doc: unknown): ModelValidation {
   const issues: ModelIssue[] = [];
   const { nx, ny } = model.grid;
 
+  checkPhysicsMode(model, doc, issues);
   if (typeof model.material === 'string' && !findMaterial(model.material)) {
     issues.push({
       path: ['material'],

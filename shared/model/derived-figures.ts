@@ -3,8 +3,10 @@
  * every channel threshold, field scales, and how far the lattice can be trusted
  * at a chosen energy (docs/physics-model.md, "Choices made in Poleward").
  */
-import { cyclotronEnergy, fluxPerPlaquette, hoppingEnergy, magneticLength } from '../units/constants';
-import { modelMassRatio, type CavityModel } from './cavity-model';
+import { cyclotronEnergy, fluxPerPlaquette, magneticLength } from '../units/constants';
+import { twoDimensionalLimitGhz } from '../units/microwave';
+import { modelHopping, modelMassRatio, type CavityModel } from './cavity-model';
+import type { PhysicsKind } from './physics-mode';
 
 /** Recommended ceiling of the kinetic energy, as a fraction of t (dispersion error about 4 %). */
 export const ENERGY_CEILING_OVER_T = 0.5;
@@ -48,6 +50,12 @@ export interface DerivedFigures {
   magneticLength: number;
   leads: { name: string; side: string; width: number; offset: number; thresholds: ChannelThreshold[] }[];
   validity?: EnergyValidity;
+  /** Which physics the lattice describes; in the microwave mode every energy above is k² (mm⁻²), every length mm. */
+  physics?: PhysicsKind;
+  /** Microwave mode: ε_r of the filling, the height h (mm) and the 2D limit c/(2h√ε_r) (GHz). */
+  permittivity?: number;
+  heightMm?: number;
+  twoDimensionalLimitGhz?: number;
 }
 
 /**
@@ -72,16 +80,21 @@ export function latticeWavelength(energy: number, hopping: number, spacing: numb
   return (2 * Math.PI * spacing) / Math.acos(c);
 }
 
-/** Validity of the lattice at energy E (meV) measured from the band bottom (minus the lead offsets). */
-export function energyValidity(energy: number, hopping: number, spacing: number): EnergyValidity {
+/**
+ * Validity of the lattice at energy E measured from the band bottom (minus the lead offsets):
+ * meV and nm for electrons, k² (mm⁻²) and mm in the microwave mode, where the same rule
+ * reads "at least 10 lattice spacings per wavelength".
+ */
+export function energyValidity(energy: number, hopping: number, spacing: number, physics: PhysicsKind = 'electrons'): EnergyValidity {
   const err = dispersionError(energy, hopping);
   const wl = latticeWavelength(energy, hopping, spacing);
   const warnings: string[] = [];
+  const [eUnit, lUnit, eName] = physics === 'microwave' ? ['mm⁻²', 'mm', 'k²'] : ['meV', 'nm', 'E'];
   if (energy > ENERGY_CEILING_OVER_T * hopping) {
-    warnings.push(`E = ${energy.toPrecision(4)} meV is above t/2 = ${(hopping / 2).toPrecision(4)} meV: the lattice dispersion is off the parabola by ${(100 * Math.abs(err)).toFixed(1)} %`);
+    warnings.push(`${eName} = ${energy.toPrecision(4)} ${eUnit} is above t/2 = ${(hopping / 2).toPrecision(4)} ${eUnit}: the lattice dispersion is off the parabola by ${(100 * Math.abs(err)).toFixed(1)} %`);
   }
   if (wl / spacing < MIN_WAVELENGTH_OVER_SPACING) {
-    warnings.push(`the wavelength ${wl.toPrecision(3)} nm is shorter than ${MIN_WAVELENGTH_OVER_SPACING} lattice spacings (${(MIN_WAVELENGTH_OVER_SPACING * spacing).toPrecision(3)} nm): refine the grid`);
+    warnings.push(`the wavelength ${wl.toPrecision(3)} ${lUnit} is shorter than ${MIN_WAVELENGTH_OVER_SPACING} lattice spacings (${(MIN_WAVELENGTH_OVER_SPACING * spacing).toPrecision(3)} ${lUnit}): refine the grid`);
   }
   return { energy, dispersionError: err, wavelength: wl, wavelengthOverSpacing: wl / spacing, warnings };
 }
@@ -89,7 +102,7 @@ export function energyValidity(energy: number, hopping: number, spacing: number)
 /** Derived figures of a parsed model; `energy` (meV) adds the validity block. Cost O(Σ W). */
 export function deriveFigures(model: CavityModel, siteCount: number, energy?: number): DerivedFigures {
   const massRatio = modelMassRatio(model);
-  const t = hoppingEnergy(model.spacing, massRatio);
+  const t = modelHopping(model);
   const leads = model.leads.map((lead, k) => {
     const thresholds: ChannelThreshold[] = [];
     for (let m = 1; m <= lead.width; m++) {
@@ -110,6 +123,10 @@ export function deriveFigures(model: CavityModel, siteCount: number, energy?: nu
     cyclotronEnergy: cyclotronEnergy(model.field, massRatio),
     magneticLength: magneticLength(model.field),
     leads,
-    validity: energy === undefined ? undefined : energyValidity(energy, t, model.spacing),
+    validity: energy === undefined ? undefined : energyValidity(energy, t, model.spacing, model.physics.kind),
+    physics: model.physics.kind,
+    ...(model.physics.kind === 'microwave'
+      ? { permittivity: model.physics.permittivity, heightMm: model.physics.height, twoDimensionalLimitGhz: twoDimensionalLimitGhz(model.physics.height, model.physics.permittivity) }
+      : {}),
   };
 }

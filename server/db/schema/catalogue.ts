@@ -69,6 +69,18 @@ export const resonances = pgTable(
     bound: boolean('bound').notNull(),
     nearThreshold: boolean('near_threshold').notNull(),
     overlapping: boolean('overlapping').notNull(),
+    /**
+     * Lattice validity (shared/model/resonance-validity.ts): the energy below which the model's
+     * lattice is trusted (its unit: meV, or mm⁻² in the microwave mode), the wavelength in lattice
+     * spacings at this resonance's energy (null: infinite) and whether the resonance lies above
+     * the limit. Null only until a back-fill reaches an old row.
+     */
+    validityLimit: doublePrecision('validity_limit'),
+    wavelengthSpacings: doublePrecision('wavelength_spacings'),
+    aboveValidity: boolean('above_validity'),
+    /** 'electrons' or 'microwave'; in the microwave mode energy and width are k² (mm⁻²) and frequency_ghz = Re f. */
+    physics: text('physics').$type<'electrons' | 'microwave'>().notNull().default('electrons'),
+    frequencyGhz: doublePrecision('frequency_ghz'),
     details: jsonb('details').$type<Record<string, unknown>>().notNull().default({}),
     tags: text('tags').array().notNull().default(sql`'{}'::text[]`),
     notes: text('notes').notNull().default(''),
@@ -83,6 +95,11 @@ export const resonances = pgTable(
     heightNm: doublePrecision('height_nm'),
     radiusNm: doublePrecision('radius_nm'),
     lengthNm: doublePrecision('length_nm'),
+    rxNm: doublePrecision('rx_nm'),
+    ryNm: doublePrecision('ry_nm'),
+    innerNm: doublePrecision('inner_nm'),
+    outerNm: doublePrecision('outer_nm'),
+    areaNm2: doublePrecision('area_nm2'),
     searchText: tsvector('search_text').generatedAlwaysAs(
       (): SQL => sql`to_tsvector('simple', ${resonances.modelName} || ' ' || ${resonances.notes})`,
     ),

@@ -46,6 +46,8 @@ export const modelVersions = pgTable(
     version: integer('version').notNull(),
     document: jsonb('document').notNull(),
     family: text('family').notNull(),
+    /** 'electrons' (2DEG: nm, meV) or 'microwave' (flat resonator: mm, k² in mm⁻²). */
+    physics: text('physics').$type<'electrons' | 'microwave'>().notNull().default('electrons'),
     material: text('material').notNull(),
     effectiveMass: doublePrecision('effective_mass').notNull(),
     spacingNm: doublePrecision('spacing_nm').notNull(),
@@ -53,11 +55,17 @@ export const modelVersions = pgTable(
     siteCount: integer('site_count').notNull(),
     leadCount: integer('lead_count').notNull(),
     hoppingMeV: doublePrecision('hopping_mev').notNull(),
-    /** Key dimensions in nm: width/height (bounding box), radius, length where the family has them. */
+    /** Key dimensions in nm (a microwave model's mm converted): width/height (bounding box), radius, length where the family has them. */
     widthNm: doublePrecision('width_nm'),
     heightNm: doublePrecision('height_nm'),
     radiusNm: doublePrecision('radius_nm'),
     lengthNm: doublePrecision('length_nm'),
+    /** Ellipse semi-axes, annulus radii (nm) and the cavity's area (nm²); server/models/model-figures.ts. */
+    rxNm: doublePrecision('rx_nm'),
+    ryNm: doublePrecision('ry_nm'),
+    innerNm: doublePrecision('inner_nm'),
+    outerNm: doublePrecision('outer_nm'),
+    areaNm2: doublePrecision('area_nm2'),
     keyDimensions: jsonb('key_dimensions').$type<Record<string, number>>().notNull(),
     /**
      * Site count, hopping, channel thresholds, validity ceilings and field scales, computed

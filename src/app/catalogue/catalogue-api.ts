@@ -35,6 +35,11 @@ export interface ResonanceRow {
   tags: string[];
   notes: string;
   createdAt: string;
+  /** electrons (E, Γ in meV) or microwave (E, Γ are k² in mm⁻²; frequencies in `microwave`). */
+  physics?: 'electrons' | 'microwave';
+  microwave?: { frequencyGhz: number; widthMhz: number; lifetimeNs: number | null; quality: number | null; validityLimitGhz: number | null } | null;
+  /** Lattice validity stored with the resonance: the trusted limit, λ/a here, and whether it lies above the limit. */
+  validity?: { limit: number | null; wavelengthSpacings: number | null; aboveLimit: boolean | null };
   /** null for fitted resonances (no mode image). */
   thumbnailUrl: string | null;
   imageUrl: string | null;

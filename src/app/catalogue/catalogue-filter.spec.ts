@@ -29,4 +29,11 @@ describe('catalogue filter in the URL', () => {
     expect(view.sort).toBe('');
     expect(view.page).toBe(1);
   });
+
+  it('carries the validity filter and the new dimension names (ry, area) to the API', () => {
+    const view = { filter: { ...emptyFilter, aboveLimit: 'true', dimKey: 'ry', dimMax: '10' }, sort: '' as const, dir: '' as const, page: 1, pageSize: 25, cursor: '' };
+    const query = viewToQuery(view);
+    expect(query).toEqual({ aboveLimit: 'true', 'dim.ry.max': '10' });
+    expect(queryToView(convertToParamMap(query))).toEqual(view);
+  });
 });

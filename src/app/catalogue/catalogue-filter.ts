@@ -18,6 +18,8 @@ export interface CatalogueFilter {
   taumax: string;
   bmin: string;
   bmax: string;
+  /** '' (any), 'true' (above the lattice-validity limit) or 'false' (within it). */
+  aboveLimit: string;
   /** Which key dimension the range applies to (width, height, radius, ...). */
   dimKey: string;
   dimMin: string;
@@ -52,13 +54,14 @@ export const emptyFilter: CatalogueFilter = {
   taumax: '',
   bmin: '',
   bmax: '',
+  aboveLimit: '',
   dimKey: 'width',
   dimMin: '',
   dimMax: '',
   tags: [],
 };
 
-const plainKeys = ['q', 'family', 'material', 'emin', 'emax', 'gmin', 'gmax', 'qmin', 'qmax', 'taumin', 'taumax', 'bmin', 'bmax'] as const;
+const plainKeys = ['q', 'family', 'material', 'emin', 'emax', 'gmin', 'gmax', 'qmin', 'qmax', 'taumin', 'taumax', 'bmin', 'bmax', 'aboveLimit'] as const;
 const sortKeys: readonly SortKey[] = ['energy', 'width', 'lifetime', 'quality', 'geometry', 'model', 'date', 'tags'];
 export const defaultPageSize = 25;
 

@@ -73,8 +73,8 @@ export class CatalogueTable {
   protected readonly group = inject(CurrentGroup);
   protected readonly families = modelFamilies;
   protected readonly materials = MATERIAL_PRESETS;
-  protected readonly dimensionKeys = ['width', 'height', 'radius', 'length', 'rx', 'ry', 'inner', 'outer'];
-  protected readonly columns = ['thumbnail', 'energy', 'width', 'lifetime', 'quality', 'flags', 'geometry', 'model', 'date', 'tags'];
+  protected readonly dimensionKeys = ['width', 'height', 'radius', 'length', 'rx', 'ry', 'inner', 'outer', 'area'];
+  protected readonly columns = ['thumbnail', 'energy', 'width', 'lifetime', 'quality', 'flags', 'validity', 'geometry', 'model', 'date', 'tags'];
 
   protected readonly form = new FormGroup<FilterControls>(
     Object.fromEntries(Object.keys(emptyFilter).map((k) => [k, new FormControl('', { nonNullable: true })])) as unknown as FilterControls,
