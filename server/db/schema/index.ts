@@ -11,3 +11,4 @@ export * from './runs.js';
 export * from './catalogue.js';
 export * from './mode-maps.js';
 export * from './fits.js';
+export * from './studies.js';
