@@ -28,7 +28,7 @@ import { invitationRoutes } from './invitations/invitation-routes.js';
 import { InvitationService } from './invitations/invitation-service.js';
 import type { Mailer } from './mail/mailer.js';
 import { outboxRoutes } from './mail/outbox-routes.js';
-import { openApiRoute } from './openapi/openapi-route.js';
+import { metaRoutes } from './openapi/meta-routes.js';
 import { backupRoutes } from './backup/backup-routes.js';
 import { catalogueRoutes } from './catalogue/catalogue-routes.js';
 import type { ModeMapQueue } from './modemaps/mode-map-queue.js';
@@ -134,10 +134,7 @@ export function createApp(deps: AppDeps): Express {
     next();
   });
   api.use(authenticate(db, config.jwtSecret));
-  api.get('/health', (_req, res) => {
-    res.json({ ok: true, version: config.version });
-  });
-  api.get('/openapi.json', openApiRoute(config.version));
+  api.use(metaRoutes(config.version));
   api.use(
     '/auth',
     authRoutes({

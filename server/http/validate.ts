@@ -1,46 +1,59 @@
-import type { RequestHandler } from 'express';
+import type { Request } from 'express';
 import type { z } from 'zod';
 import { ApiError, type FieldIssue } from './error-handler.js';
 
-interface Schemas {
+export interface RequestSchemas {
   params?: z.ZodType;
   query?: z.ZodType;
   body?: z.ZodType;
 }
 
-declare module 'express-serve-static-core' {
-  interface Request {
-    /** What validate() parsed; req.query is a getter in Express 5, so parsed values live here. */
-    valid: { params?: unknown; query?: unknown; body?: unknown };
-  }
+export interface ValidRequest {
+  params?: unknown;
+  query?: unknown;
+  body?: unknown;
 }
 
 /**
- * The one validation middleware. Body issues are named by the field path alone
+ * The one request validation. Body issues are named by the field path alone
  * ("email", "members.0.role") so a form can show them next to its inputs; query and
- * path parameters are prefixed ("query.limit", "params.id").
+ * path parameters are prefixed ("query.limit", "params.id"). Throws a 400
+ * validation_failed naming every bad field; mount-route.ts calls it for every route.
  */
-export function validate(schemas: Schemas): RequestHandler {
-  return (req, _res, next) => {
-    const issues: FieldIssue[] = [];
-    const valid: { params?: unknown; query?: unknown; body?: unknown } = {};
-    for (const where of ['params', 'query', 'body'] as const) {
-      const schema = schemas[where];
-      if (!schema) continue;
-      const result = schema.safeParse(where === 'body' ? (req.body ?? {}) : req[where]);
-      if (result.success) valid[where] = result.data;
-      else {
-        for (const issue of result.error.issues) {
-          const parts = issue.path.map(String);
-          const path = where === 'body' ? parts.join('.') : [where, ...parts].join('.');
-          issues.push({ path: path || where, message: issue.message });
-        }
+export function validateRequest(schemas: RequestSchemas, req: Request): ValidRequest {
+  const issues: FieldIssue[] = [];
+  const valid: ValidRequest = {};
+  for (const where of ['params', 'query', 'body'] as const) {
+    const schema = schemas[where];
+    if (!schema) continue;
+    const result = schema.safeParse(where === 'body' ? (req.body ?? {}) : req[where]);
+    if (result.success) valid[where] = result.data;
+    else {
+      for (const issue of result.error.issues) {
+        const parts = issue.path.map(String);
+        const path = where === 'body' ? parts.join('.') : [where, ...parts].join('.');
+        issues.push({ path: path || where, message: issue.message });
       }
     }
-    if (issues.length > 0) {
-      const named = issues.map((i) => `${i.path} (${i.message})`).join('; ');
-      return next(new ApiError(400, 'validation_failed', `Some fields are not valid: ${named}.`, issues));
-    }
+  }
+  if (issues.length > 0) {
+    const named = issues.map((i) => `${i.path} (${i.message})`).join('; ');
+    throw new ApiError(400, 'validation_failed', `Some fields are not valid: ${named}.`, issues);
+  }
+  return valid;
+}
+
+declare module 'express-serve-static-core' {
+  interface Request {
+    /** What validate() parsed; req.query is a getter in Express 5, so parsed values live here. */
+    valid: ValidRequest;
+  }
+}
+
+/** The middleware form, for routes not yet mounted from a declaration. */
+export function validate(schemas: RequestSchemas): import('express').RequestHandler {
+  return (req, _res, next) => {
+    const valid = validateRequest(schemas, req);
     req.valid = { ...req.valid, ...valid };
     if (valid.body !== undefined) req.body = valid.body;
     next();

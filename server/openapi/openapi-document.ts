@@ -22,6 +22,10 @@ import { modeMapRequestSchema } from '../modemaps/mode-map-request.js';
 import { modeMapPayloadSchema, modeMapViewSchema } from '../modemaps/mode-map-schemas.js';
 import { cavityModelDescription } from './cavity-model-description.js';
 import * as answers from './response-schemas.js';
+import { apiRoutes } from '../../shared/api/routes.js';
+import type { Access } from '../../shared/api/enums.js';
+import { problemSchema } from '../../shared/api/fields.js';
+import { empty as routeEmpty, json as routeJson, media, type Method, type RouteDeclaration } from '../../shared/api/route.js';
 import * as fitAnswers from './fit-schemas.js';
 import { fitBody, fitParams, traceFields, traceParams } from '../fits/fit-routes.js';
 
@@ -37,14 +41,6 @@ function asParameters(o: z.ZodObject): z.ZodObject {
 // Component names come from zod's own .meta({ id }), which returns a copy: the routes' schemas stay untouched.
 const runRequest = runRequestSchema.meta({ id: 'RunRequest' });
 
-type Method = 'get' | 'post' | 'put' | 'patch' | 'delete';
-
-/**
- * Who may call a route, as the route's middleware enforces it (requireAuth, requireRole, the
- * outbox guard). tests/server/access-matrix.test.ts calls every mounted route as every kind of
- * caller and checks the answer against this rule: a route without one fails there.
- */
-export type Access = 'public' | 'signed-in' | 'member' | 'designer' | 'analyst' | 'admin' | 'operator';
 
 const accessText: Record<Access, string> = {
   public: 'Public: no sign-in needed.',
@@ -107,7 +103,7 @@ const fitEventStream = z.string().meta({
 const json = (status: number, description: string, schema: z.ZodType): Answer => ({ status, description, schema });
 const empty = (status: number, description: string): Answer => ({ status, description });
 
-const operations: Operation[] = [
+const legacyOperations: Operation[] = [
   { id: 'listTraces', method: 'get', path: '/groups/{groupId}/traces', tag: 'fits', summary: "The group's measured traces, newest first", access: 'member', params: groupParams, success: json(200, 'The traces', z.array(fitAnswers.traceSummarySchema)) },
   {
     id: 'previewTrace',
@@ -162,16 +158,6 @@ const operations: Operation[] = [
     success: { status: 200, description: 'An event stream that ends after `done`', schema: fitEventStream, mediaType: 'text/event-stream' },
   },
   { id: 'getFit', method: 'get', path: '/groups/{groupId}/fits/{fitId}', tag: 'fits', summary: 'A fit with its result, comparison and catalogue rows', access: 'member', params: fitParams, success: json(200, 'The fit', fitAnswers.fitDetailSchema) },
-  { id: 'health', method: 'get', path: '/health', tag: 'meta', summary: 'Is the server up, and which version', access: 'public', success: json(200, 'Up', answers.healthSchema) },
-  {
-    id: 'openApiDocument',
-    method: 'get',
-    path: '/openapi.json',
-    tag: 'meta',
-    summary: 'This description of the API',
-    access: 'public',
-    success: { status: 200, description: 'The OpenAPI 3.1 document', schema: z.object({ openapi: z.string() }).loose() },
-  },
 
   {
     id: 'signIn',
@@ -589,34 +575,75 @@ const operations: Operation[] = [
   { id: 'getOutboxMessage', method: 'get', path: '/outbox/{id}', tag: 'outbox', summary: 'One received message, with its body (each read recorded, and shown to the recipient)', access: 'operator', params: messageParams, success: json(200, 'The message', answers.outboxMessageSchema) },
 ];
 
-const problemContent = { 'application/json': { schema: answers.problemSchema } };
+
+/** A route of the old table as a declaration (until every route is declared in shared/api). */
+function fromLegacy(op: Operation): RouteDeclaration {
+  const nonJsonBody = op.bodyMediaType !== undefined && op.bodyMediaType !== 'application/json';
+  const s = op.success;
+  return {
+    id: op.id,
+    method: op.method,
+    path: op.path,
+    tag: op.tag,
+    summary: op.summary,
+    access: op.access,
+    ...(op.notes ? { notes: op.notes } : {}),
+    ...(op.params ? { params: op.params } : {}),
+    ...(op.query ? { query: op.query } : {}),
+    ...(op.body && !nonJsonBody ? { body: op.body } : {}),
+    ...(nonJsonBody ? { rawBody: { mediaType: op.bodyMediaType!, description: '' }, described: { body: op.body } } : {}),
+    ...(op.errors ? { errors: op.errors } : {}),
+    answer: !s.schema ? routeEmpty(s.status, s.description) : s.mediaType ? media(s.status, s.mediaType, s.description, s.schema) : routeJson(s.status, s.description, s.schema),
+  };
+}
+
+/** Every route the document describes: the declared ones and the rest of the old table. */
+const routes: RouteDeclaration[] = [...apiRoutes, ...legacyOperations.map(fromLegacy)];
+
+const problemContent = { 'application/json': { schema: problemSchema } };
 
 /** Error answers every route of this access level and input can give, plus the route's own. */
-function errorAnswers(op: Operation): Record<number, string> {
+export function errorAnswers(op: RouteDeclaration): Record<number, string> {
   const out: Record<number, string> = {};
   if (op.params || op.query || op.body) out[400] = 'validation_failed: see issues';
   if (op.access !== 'public') out[401] = 'unauthenticated: not signed in, session expired, or unknown API token';
   if (op.method !== 'get' && op.access !== 'public') out[403] = 'csrf_failed: cookie request without a matching X-CSRF-Token';
-  if (op.access === 'designer' || op.access === 'admin') out[403] = 'forbidden: the role is missing; or csrf_failed';
-  if (op.access === 'member' || op.access === 'designer' || op.access === 'admin' || op.access === 'operator' || op.params) {
+  if (op.access === 'designer' || op.access === 'admin' || op.access === 'analyst') out[403] = 'forbidden: the role is missing; or csrf_failed';
+  if (op.access === 'member' || op.access === 'designer' || op.access === 'admin' || op.access === 'analyst' || op.access === 'operator' || op.params) {
     out[404] = 'not_found (also for objects of a group you are not in)';
   }
   return { ...out, ...op.errors };
 }
 
-const unsafe = (m: Method) => m !== 'get';
+/** The request body as the document shows it: JSON, multipart with the file, or the file itself. */
+function requestBody(op: RouteDeclaration): { mediaType: string; schema: z.ZodType } | null {
+  if (op.upload) {
+    const fields = (op.described?.body ?? op.body) as z.ZodObject | undefined;
+    const file = z.string().meta({ contentMediaType: op.upload.mediaType, description: op.upload.description });
+    return { mediaType: 'multipart/form-data', schema: (fields ? asParameters(fields) : z.object({})).extend({ [op.upload.field]: file }) };
+  }
+  if (op.rawBody) {
+    return { mediaType: op.rawBody.mediaType, schema: op.described?.body ?? z.string().meta({ format: 'binary', description: op.rawBody.description }) };
+  }
+  const body = op.described?.body ?? op.body;
+  return body ? { mediaType: 'application/json', schema: body } : null;
+}
 
-function routeConfig(op: Operation): RouteConfig {
+function routeConfig(op: RouteDeclaration): RouteConfig {
+  const a = op.answer;
   const responses: RouteConfig['responses'] = {
-    [op.success.status]: {
-      description: op.success.description,
-      ...(op.success.schema ? { content: { [op.success.mediaType ?? 'application/json']: { schema: op.success.schema } } } : {}),
+    [a.status]: {
+      description: a.description,
+      ...(a.kind === 'empty' ? {} : { content: { [a.kind === 'media' ? a.mediaType : 'application/json']: { schema: a.schema } } }),
     },
   };
   for (const [status, description] of Object.entries(errorAnswers(op))) {
     responses[status] = Number(status) === 304 ? { description } : { description, content: problemContent };
   }
   responses.default = { description: 'Any other error, as a problem (429 rate_limited, 413 payload_too_large, 500 internal...)', content: problemContent };
+  const params = op.described?.params ?? (op.params as z.ZodObject | undefined);
+  const query = op.described?.query ?? (op.query as z.ZodObject | undefined);
+  const body = requestBody(op);
 
   return {
     method: op.method,
@@ -628,20 +655,20 @@ function routeConfig(op: Operation): RouteConfig {
     security:
       op.access === 'public'
         ? []
-        : unsafe(op.method)
+        : op.method !== 'get'
           ? [{ sessionCookie: [], csrfHeader: [] }, { personalToken: [] }]
           : [{ sessionCookie: [] }, { personalToken: [] }],
     request: {
-      ...(op.params ? { params: asParameters(op.params) } : {}),
-      ...(op.query ? { query: asParameters(op.query) } : {}),
-      ...(op.body ? { body: { required: true, content: { [op.bodyMediaType ?? 'application/json']: { schema: op.body } } } } : {}),
+      ...(params ? { params: asParameters(params) } : {}),
+      ...(query ? { query: asParameters(query) } : {}),
+      ...(body ? { body: { required: true, content: { [body.mediaType]: { schema: body.schema } } } } : {}),
     },
     responses,
   };
 }
 
 /** Method, path (OpenAPI spelling, with /api) and access rule of every described route; the tests compare them with Express. */
-export const describedRoutes: readonly { method: Method; path: string; access: Access }[] = operations.map((op) => ({
+export const describedRoutes: readonly { method: Method; path: string; access: Access }[] = routes.map((op) => ({
   method: op.method,
   path: `/api${op.path}`,
   access: op.access,
@@ -667,7 +694,7 @@ export function buildOpenApiDocument(version: string): ReturnType<OpenApiGenerat
     scheme: 'bearer',
     description: 'A personal API token (pwt_…) from POST /api/tokens; no CSRF header needed.',
   });
-  for (const op of operations) registry.registerPath(routeConfig(op));
+  for (const op of routes) registry.registerPath(routeConfig(op));
 
   return new OpenApiGeneratorV31(registry.definitions).generateDocument({
     openapi: '3.1.0',

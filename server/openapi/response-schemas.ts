@@ -14,22 +14,9 @@ const timestamp = () => z.iso.datetime({ offset: true });
 /** Infinity (ℓ_B at B = 0, λ at E ≤ 0) leaves JSON.stringify as null. */
 const numberOrInfinite = () => z.number().nullable().meta({ description: 'null stands for infinity' });
 
-export const problemSchema = z
-  .object({
-    status: z.number().int().min(400).max(599),
-    code: z.string().meta({ description: 'Stable machine-readable reason, e.g. validation_failed, not_found, forbidden.' }),
-    message: z.string().meta({ description: 'A sentence for a person, naming what is wrong and where.' }),
-    issues: z
-      .array(z.object({ path: z.string().meta({ description: 'Body field path (leads.1.start) or query./params.-prefixed name.' }), message: z.string() }))
-      .optional()
-      .meta({ description: 'Only on validation_failed.' }),
-  })
-  .meta({ id: 'Problem', description: 'Every error answer of the API.' });
-
 export const roleSchema = z.enum(membershipRole.enumValues).meta({ id: 'Role' });
 const personRef = z.object({ id: z.uuid(), name: z.string() });
 
-export const healthSchema = z.object({ ok: z.literal(true), version: z.string() }).meta({ id: 'Health' });
 
 export const groupOfUserSchema = z.object({ id: z.uuid(), name: z.string(), slug: z.string(), role: roleSchema }).meta({ id: 'GroupOfUser' });
 

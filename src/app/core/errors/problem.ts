@@ -3,6 +3,7 @@ import { HttpErrorResponse } from '@angular/common/http';
 import * as z from 'zod/mini';
 // Named import: touching the `z.core` namespace would pull every locale into the bundle.
 import { $ZodError } from 'zod/v4/core';
+import { MalformedAnswer } from '../http/parse-answer';
 
 /** The JSON problem every API error answers: `{ status, code, message, issues? }`. */
 export const problemSchema = z.object({
@@ -30,6 +31,7 @@ export function toProblem(err: unknown): Problem {
       message: `The server answered ${err.status}${err.statusText ? ' ' + err.statusText : ''} without an explanation.`,
     };
   }
+  if (err instanceof MalformedAnswer) return { status: 0, code: 'bad_payload', message: err.message };
   if (err instanceof $ZodError) {
     const where = err.issues[0]?.path.join('.') || 'the body';
     return { status: 0, code: 'bad_payload', message: `The server's answer did not have the expected shape (at ${where}).` };
