@@ -12,6 +12,7 @@ import { runQueue, startBoss } from './jobs/boss.js';
 import { modeMapQueue } from './modemaps/mode-map-queue.js';
 import { fitQueue } from './fits/fit-job.js';
 import { RunEvents } from './runs/run-events.js';
+import { studyQueue } from './studies/study-queue.js';
 
 async function main(): Promise<void> {
   let config;
@@ -52,7 +53,7 @@ async function main(): Promise<void> {
   const boss = await startBoss({ databaseUrl: config.databaseUrl });
   const runEvents = new RunEvents(config.databaseUrl);
   await runEvents.start();
-  const app = createApp({ db: handle.db, config, mailer, queue: runQueue(boss), modeMapQueue: modeMapQueue(boss), fitQueue: fitQueue(boss), runEvents });
+  const app = createApp({ db: handle.db, config, mailer, queue: runQueue(boss), modeMapQueue: modeMapQueue(boss), fitQueue: fitQueue(boss), studyQueue: studyQueue(boss, config.studyStepExpireSeconds), runEvents });
   // createServer + 'listening' rather than app.listen: Express 5 calls listen's callback on errors too.
   const server: Server = createServer(app);
   server.once('error', (err) => {

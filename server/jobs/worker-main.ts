@@ -6,6 +6,7 @@ import { runPartitioned } from './partitioned-run.js';
 import { startWorkerLoop } from './worker.js';
 import { startModeMapWorker } from '../modemaps/mode-map-worker.js';
 import { startFitWorker } from '../fits/fit-job.js';
+import { startStudyWorker } from '../studies/study-worker.js';
 
 const config = loadConfig();
 const handle = connectDb(config.databaseUrl, 4);
@@ -19,7 +20,8 @@ const worker = startWorkerLoop({
 });
 const fitWorker = await startFitWorker({ db: handle.db, boss });
 const maps = startModeMapWorker({ db: handle.db, boss });
-console.log(`[worker ${process.pid}] waiting for runs, mode maps and fits`);
+const studySteps = startStudyWorker({ db: handle.db, boss });
+console.log(`[worker ${process.pid}] waiting for runs, mode maps, fits and study steps`);
 
 let stopping = false;
 async function shutdown(signal: string) {
@@ -28,6 +30,7 @@ async function shutdown(signal: string) {
   console.log(`[worker ${process.pid}] ${signal}: stopping`);
   await worker.stop();
   await maps.stop();
+  await studySteps.stop();
   await fitWorker.stop();
   await boss.stop({ graceful: false, wait: false }).catch(() => {});
   await handle.close().catch(() => {});

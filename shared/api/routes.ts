@@ -4,5 +4,6 @@
  */
 import type { RouteDeclaration } from './route.js';
 import { healthRoute, openApiDocumentRoute } from './meta.js';
+import { studyRoutesDeclared } from './studies.js';
 
-export const apiRoutes: readonly RouteDeclaration[] = [healthRoute, openApiDocumentRoute];
+export const apiRoutes: readonly RouteDeclaration[] = [healthRoute, openApiDocumentRoute, ...studyRoutesDeclared];
