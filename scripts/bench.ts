@@ -1,6 +1,6 @@
 // `npm run bench`: prints the speed figures of the engine and the catalogue on this
 // machine. Nothing here is asserted; compare the figures by eye with the targets in
-// DEVELOPERS.md. Sections: --only lu,transmission,sweep,poles,scaling,catalogue,estimate,load (default all).
+// DEVELOPERS.md. Sections: --only lu,transmission,sweep,poles,scaling,catalogue,estimate,load,studies (default all).
 import { cpus, loadavg } from 'node:os';
 import { buildCavitySystem, EffectiveHamiltonian } from '../shared/engine/effective-hamiltonian';
 import { findPoles, findPolesWith, poleWorkSetup } from '../shared/engine/poles';
@@ -11,8 +11,9 @@ import { benchSweep1000, benchTransmission } from './bench-transmission';
 import { benchCatalogue } from './bench-catalogue';
 import { benchLoad } from './bench-load';
 import { benchCavity } from './bench-cavity';
+import { benchStudies } from './bench-studies';
 
-const only = (process.argv.find((a) => a.startsWith('--only='))?.slice(7) ?? 'lu,transmission,sweep,poles,scaling,catalogue,estimate,load').split(',');
+const only = (process.argv.find((a) => a.startsWith('--only='))?.slice(7) ?? 'lu,transmission,sweep,poles,scaling,catalogue,estimate,load,studies').split(',');
 const print = (title: string, figures: Record<string, number | string>) => {
   console.log(`\n== ${title}`);
   for (const [k, v] of Object.entries(figures)) console.log(`  ${k.padEnd(40)} ${typeof v === 'number' && !Number.isInteger(v) ? v.toPrecision(4) : v}`);
@@ -94,4 +95,5 @@ if (only.includes('estimate')) {
   console.log('\n== run estimate against measured CPU time (cost model of server/runs/run-cost-model.json)');
   console.log(accuracyTable(measureAll(), runCostModel()));
 }
+if (only.includes('studies')) print('parameter study: 40-step field sweep of the 2,500-site bench rectangle, whole steps on 1, 2, 4 processes', await benchStudies());
 if (only.includes('load')) print('HTTP load on loopback: sign-in, catalogue, resonance, mode image, run launch (20 clients each)', await benchLoad());

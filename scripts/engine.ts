@@ -9,6 +9,7 @@
  *   npm run engine -- closed MODEL.json --target E --count K [--vectors]
  *   npm run engine -- current MODEL.json (--pole-near E | --energy E --lead L --channel M) [--window W] [--gmax G]
  *   npm run engine -- husimi MODEL.json (--pole-near E | --energy E --lead L --channel M) [--sigma-nm S] [--directions N] [--grid-nm G] [--threshold F]
+ *   npm run engine -- study MODEL.json (--param PATH --values FROM:TO:COUNT | --ensemble N …) --emin A --emax B --gmax G (scripts/engine-study.ts)
  *   npm run engine -- fit DATA.csv --x COLUMN --y COLUMN --shape bw|fano|thermal|thermal-fano [...] (scripts/engine-fit.ts)
  *
  * --lead is a lead's name or its index (0-based, in the model's order); --channel is 1-based.
@@ -25,6 +26,7 @@ import { validateCavityModel, formatIssuePath } from '../shared/model/cavity-mod
 import { deriveFigures } from '../shared/model/derived-figures';
 import { lifetimeFromWidth } from '../shared/units/constants';
 import { FitFileError, FitUsageError, runFitCommand } from './engine-fit';
+import { runStudyCommand, StudyUsageError } from './engine-study';
 
 class UsageError extends Error {}
 
@@ -35,6 +37,11 @@ const USAGE = `usage:
   engine closed MODEL.json --target E --count K [--vectors]
   engine current MODEL.json (--pole-near E | --energy E --lead L --channel M) [--window W] [--gmax G]
   engine husimi MODEL.json (--pole-near E | --energy E --lead L --channel M) [--sigma-nm S] [--directions N] [--grid-nm G] [--threshold F]
+  engine study MODEL.json --param PATH --values FROM:TO:COUNT|V1,V2,... --emin A --emax B --gmax G
+      [--param2 PATH --values2 ...] [--probes P] [--seed S] [--max-nodes M]
+  engine study MODEL.json --ensemble N --emin A --emax B --gmax G [--roughness-nm R --correlation-nm L]
+      [--seed S] [--follow E] [--jitter PATH:SIGMA[:dimension|lead-width|gate-offset]]... [--disorder]
+      [--tolerance-energy A:B] [--tolerance-width A:B] [--tolerance-q A:B] [--bins K]
   engine fit DATA.csv --x COLUMN --y COLUMN --shape bw|fano|thermal|thermal-fano
       [--x-unit meV|ueV|mV --lever-arm MEV_PER_MV] [--y-unit T|e2h|2e2h|uS] [--temperature-mK T]
       [--range A:B] [--lines FIRST:LAST] [--peaks N] [--background constant|linear] [--curve]
@@ -57,7 +64,7 @@ function parseArgs(argv: string[]): { command: string; file: string; numbers: Re
   const [command, file, ...rest] = argv;
   if (!command || command === '--help' || command === '-h') throw new UsageError('no command given');
   const spec = FLAGS[command];
-  if (!spec) throw new UsageError(`unknown command '${command}' (expected ${[...Object.keys(FLAGS), 'fit'].join(', ')})`);
+  if (!spec) throw new UsageError(`unknown command '${command}' (expected ${[...Object.keys(FLAGS), 'study', 'fit'].join(', ')})`);
   if (!file || file.startsWith('--')) throw new UsageError(`'${command}' needs a model file`);
   const numbers: Record<string, number> = {};
   const switches = new Set<string>();
@@ -126,6 +133,10 @@ function integer(numbers: Record<string, number>, name: string, min: number): nu
 
 async function run(argv: string[]): Promise<unknown> {
   if (argv[0] === 'fit') return runFitCommand(argv[1], argv.slice(2));
+  if (argv[0] === 'study') {
+    if (!argv[1] || argv[1].startsWith('--')) throw new StudyUsageError("'study' needs a model file");
+    return runStudyCommand(readModel(argv[1]), argv.slice(2));
+  }
   const { command, file, numbers, switches, strings } = parseArgs(argv);
   const doc = readModel(file);
   if (command === 'info') {
@@ -239,7 +250,7 @@ run(process.argv.slice(2)).then(
     process.stdout.write(JSON.stringify(out, null, 2) + '\n');
   },
   (err: unknown) => {
-    if (err instanceof UsageError || err instanceof FitUsageError) {
+    if (err instanceof UsageError || err instanceof FitUsageError || err instanceof StudyUsageError) {
       process.stderr.write(`engine: ${err.message}\n${USAGE}\n`);
       process.exitCode = 2;
     } else if (err instanceof FitFileError) {

@@ -46,6 +46,9 @@ import { FitService, type FitQueue } from './fits/fit-service.js';
 import { RunService } from './runs/run-service.js';
 import { fabricationFeature } from './fabrication/fabrication-feature.js';
 import type { NotificationQueue } from './fabrication/notification-queue.js';
+import type { StudyQueue } from './studies/study-queue.js';
+import { studyRoutes } from './studies/study-routes.js';
+import { StudyService } from './studies/study-service.js';
 
 export interface AppDeps {
   db: Db;
@@ -57,6 +60,8 @@ export interface AppDeps {
   modeMapQueue?: ModeMapQueue;
   /** Where large peak fits are queued; without it every fit runs in a worker thread of the API. */
   fitQueue?: FitQueue | null;
+  /** Where study steps are queued (one job per step); without it studies cannot be launched (503). */
+  studyQueue?: StudyQueue | null;
   /** Live run progress for server-sent events; null falls back to polling the database. */
   runEvents?: RunEvents | null;
   /** Failed sign-ins per account and per IP (defaults in auth/sign-in-limit.ts); tests pass small ones. */
@@ -164,6 +169,7 @@ export function createApp(deps: AppDeps): Express {
   api.use('/groups/:groupId', catalogueRoutes({ db }));
   api.use('/groups/:groupId', modeMapRoutes(new ModeMapService(db, deps.modeMapQueue ?? null)));
   api.use('/groups/:groupId', fitRoutes(new FitService(db, deps.fitQueue ?? null), deps.runEvents ?? null));
+  api.use(studyRoutes(new StudyService(db, deps.studyQueue ?? null, compute, new ModelService(db, compute))));
   api.use('/tokens', apiTokenRoutes(db));
   api.use('/outbox', outboxRoutes(db, config.mailStandIn));
   deps.mountFeatures?.(api);

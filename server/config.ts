@@ -34,6 +34,7 @@ const envSchema = z.object({
   POLEWARD_MAIL_FROM: z.string().min(3).default('Poleward <no-reply@poleward.invalid>'),
   POLEWARD_THREADS_PER_RUN: z.coerce.number().int().min(1).max(16).default(1),
   POLEWARD_RUN_STALE_SECONDS: z.coerce.number().int().min(2).max(3600).default(30),
+  POLEWARD_STUDY_STEP_EXPIRE_SECONDS: z.coerce.number().int().min(2).max(86_400).default(900),
   POLEWARD_WORKERS: z.coerce.number({ error: 'must be a whole number' }).int('must be a whole number').min(0).max(64).default(2),
   POLEWARD_COMPUTE_THREADS: z.coerce.number().int().min(1).max(64).optional(),
   POLEWARD_COMPUTE_TIMEOUT_SECONDS: z.coerce.number().int().min(1).max(3600).default(60),
@@ -63,6 +64,8 @@ export interface Config {
   threadsPerRun: number;
   /** A running run with no worker heartbeat for this long is put back in the queue. */
   runStaleSeconds: number;
+  /** Seconds after which a study step's job counts as lost and is retried (server/studies). */
+  studyStepExpireSeconds: number;
   /** Threads of the API's compute pool (geometry and estimates off the event loop); default cores − 1. */
   computeThreads: number | undefined;
   /** A request's computation running longer is stopped with a 503. */
@@ -107,6 +110,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     mailStandIn: local,
     workers: e.POLEWARD_WORKERS,
     runStaleSeconds: e.POLEWARD_RUN_STALE_SECONDS,
+    studyStepExpireSeconds: e.POLEWARD_STUDY_STEP_EXPIRE_SECONDS,
     threadsPerRun: e.POLEWARD_THREADS_PER_RUN,
     computeThreads: e.POLEWARD_COMPUTE_THREADS,
     computeTimeoutSeconds: e.POLEWARD_COMPUTE_TIMEOUT_SECONDS,

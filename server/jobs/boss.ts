@@ -1,5 +1,5 @@
 import PgBoss from 'pg-boss';
-import { FIT_QUEUE, MODE_MAP_QUEUE, NOTIFICATION_QUEUE, RUN_QUEUES, type RunKind } from './queues.js';
+import { FIT_QUEUE, MODE_MAP_QUEUE, NOTIFICATION_QUEUE, RUN_QUEUES, STUDY_STEP_QUEUE, type RunKind } from './queues.js';
 
 export interface BossOptions {
   databaseUrl: string;
@@ -16,7 +16,7 @@ export async function startBoss(opts: BossOptions): Promise<PgBoss> {
   });
   boss.on('error', (err) => console.error('[poleward] queue error:', err.message));
   await boss.start();
-  for (const spec of [...Object.values(RUN_QUEUES), MODE_MAP_QUEUE, FIT_QUEUE, NOTIFICATION_QUEUE]) {
+  for (const spec of [...Object.values(RUN_QUEUES), MODE_MAP_QUEUE, FIT_QUEUE, NOTIFICATION_QUEUE, STUDY_STEP_QUEUE]) {
     await boss.createQueue(spec.name, {
       name: spec.name,
       retryLimit: spec.retryLimit,

@@ -76,3 +76,16 @@ export const NOTIFICATION_QUEUE = {
   retryDelaySeconds: 10,
   expireInSeconds: 120,
 } as const satisfies QueueSpec;
+
+/**
+ * Steps of parameter studies and tolerance ensembles (server/studies): one job per
+ * step, so every worker process takes steps. A step whose worker dies comes back when
+ * its job expires (POLEWARD_STUDY_STEP_EXPIRE_SECONDS, default below) and is retried;
+ * the step's attempt counter keeps a late writer from storing it twice.
+ */
+export const STUDY_STEP_QUEUE = {
+  name: 'study-step',
+  retryLimit: 3,
+  retryDelaySeconds: 1,
+  expireInSeconds: 15 * 60,
+} as const satisfies QueueSpec;

@@ -8,6 +8,7 @@ import { startModeMapWorker } from '../modemaps/mode-map-worker.js';
 import { startFitWorker } from '../fits/fit-job.js';
 import { notificationQueue } from '../fabrication/notification-queue.js';
 import { runEndedNotifier } from '../fabrication/run-notification.js';
+import { startStudyWorker } from '../studies/study-worker.js';
 
 const config = loadConfig();
 const handle = connectDb(config.databaseUrl, 4);
@@ -22,7 +23,8 @@ const worker = startWorkerLoop({
 });
 const fitWorker = await startFitWorker({ db: handle.db, boss });
 const maps = startModeMapWorker({ db: handle.db, boss });
-console.log(`[worker ${process.pid}] waiting for runs, mode maps and fits`);
+const studySteps = startStudyWorker({ db: handle.db, boss });
+console.log(`[worker ${process.pid}] waiting for runs, mode maps, fits and study steps`);
 
 let stopping = false;
 async function shutdown(signal: string) {
@@ -31,6 +33,7 @@ async function shutdown(signal: string) {
   console.log(`[worker ${process.pid}] ${signal}: stopping`);
   await worker.stop();
   await maps.stop();
+  await studySteps.stop();
   await fitWorker.stop();
   await boss.stop({ graceful: false, wait: false }).catch(() => {});
   await handle.close().catch(() => {});

@@ -5,5 +5,6 @@
 import type { RouteDeclaration } from './route.js';
 import { healthRoute, openApiDocumentRoute } from './meta.js';
 import { fabricationRoutes } from './fabrication.js';
+import { studyRoutesDeclared } from './studies.js';
 
-export const apiRoutes: readonly RouteDeclaration[] = [healthRoute, openApiDocumentRoute, ...fabricationRoutes];
+export const apiRoutes: readonly RouteDeclaration[] = [healthRoute, openApiDocumentRoute, ...fabricationRoutes, ...studyRoutesDeclared];

@@ -12,3 +12,4 @@ export * from './catalogue.js';
 export * from './mode-maps.js';
 export * from './fits.js';
 export * from './fabrication.js';
+export * from './studies.js';

@@ -1,0 +1,98 @@
+// The study row of `npm run bench` (issue 14): steps per minute of a 40-step field sweep
+// of a 2,500-site dot computed by 1, 2 and 4 worker processes, and the fraction of steps
+// that needed the full search rather than continuation alone. Each process computes whole
+// steps (search + continuation, study-step.ts) handed out one at a time as the study-step
+// queue does, without the database round trips (a few ms per step). Expect near-linear
+// speed-up up to the machine's core count, and a flat line beyond it.
+// Sizes: BENCH_STUDY_SIDE (default 50: a 50×50 rectangle, 2,500 sites) and BENCH_STUDY_STEPS (40).
+import { fork, type ChildProcess } from 'node:child_process';
+import { fileURLToPath } from 'node:url';
+import { loadavg } from 'node:os';
+import { assembleStudy } from '../shared/engine/study/study-run';
+import { computeStep, type StepResult } from '../shared/engine/study/study-step';
+import { studyStepModel, studyStepPath, type StudyDefinition } from '../shared/engine/study/study-definition';
+import { rangeValues } from '../shared/engine/study/parameter-values';
+import { hoppingEnergy } from '../shared/units/constants';
+import { benchCavity } from './bench-cavity';
+
+export function benchStudyDefinition(side = Number(process.env.BENCH_STUDY_SIDE ?? 50), steps = Number(process.env.BENCH_STUDY_STEPS ?? 40)): StudyDefinition {
+  const model = benchCavity(side);
+  const t = hoppingEnergy(5, 0.067);
+  // The bench's pole window (scripts/bench.ts) at this size: about 16 poles.
+  const width = 0.027 * t * (10_000 / (side * side));
+  return {
+    model,
+    parameters: [{ path: 'field', values: rangeValues(0, 0.5, steps) }],
+    window: { emin: 0.4 * t, emax: 0.4 * t + width, gammaMax: 2e-3 * t },
+  };
+}
+
+/** Runs in each child: computes the steps it is sent and answers with the results. */
+function child() {
+  const def = benchStudyDefinition();
+  process.on('message', (index: number) => {
+    if (index < 0) process.exit(0);
+    const r = computeStep(studyStepModel(def, index), def.window, {}, studyStepPath(def, index));
+    process.send!({ index, result: r });
+  });
+  process.send!('ready');
+}
+
+async function withProcesses(count: number, def: StudyDefinition): Promise<{ seconds: number; results: StepResult[] }> {
+  const total = def.parameters[0].values.length;
+  const results: StepResult[] = new Array(total);
+  let next = 0;
+  let done = 0;
+  let ready = 0;
+  let t0 = 0;
+  await new Promise<void>((resolve, reject) => {
+    const kids: ChildProcess[] = [];
+    // The clock starts once every process has loaded (tsx start-up is not a step).
+    const feed = (kid: ChildProcess) => {
+      if (next < total) kid.send(next++);
+      else kid.send(-1);
+    };
+    for (let k = 0; k < count; k++) {
+      const kid = fork(fileURLToPath(import.meta.url), ['--child'], { execArgv: ['--import', 'tsx'], serialization: 'advanced' });
+      kid.on('message', (m: 'ready' | { index: number; result: StepResult }) => {
+        if (m === 'ready') {
+          if (++ready === count) {
+            t0 = performance.now();
+            kids.forEach(feed);
+          }
+          return;
+        }
+        results[m.index] = m.result;
+        if (++done === total) {
+          kids.forEach((c) => c.send(-1));
+          resolve();
+        } else feed(kid);
+      });
+      kid.on('error', reject);
+      kids.push(kid);
+    }
+  });
+  return { seconds: (performance.now() - t0) / 1000, results };
+}
+
+export async function benchStudies(): Promise<Record<string, number | string>> {
+  const def = benchStudyDefinition();
+  const steps = def.parameters[0].values.length;
+  const out: Record<string, number | string> = { steps, 'load average before': loadavg()[0].toFixed(1) };
+  let fraction = NaN;
+  for (const n of [1, 2, 4]) {
+    const { seconds, results } = await withProcesses(n, def);
+    out[`steps per minute, ${n} process${n > 1 ? 'es' : ''}`] = (60 * steps) / seconds;
+    if (Number.isNaN(fraction)) {
+      fraction = assembleStudy(def, results).fullSearchFraction;
+      out['sites'] = results[0].sites.i.length;
+      out['poles per step (mean)'] = results.reduce((s, r) => s + r.poles.length, 0) / steps;
+      out['steps certified'] = `${results.filter((r) => r.certified).length} of ${steps}`;
+    }
+  }
+  out['fraction needing a full search'] = fraction;
+  out['load average after'] = loadavg()[0].toFixed(1);
+  return out;
+}
+
+if (process.argv.includes('--child')) child();
