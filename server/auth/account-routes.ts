@@ -1,23 +1,14 @@
 import { Router } from 'express';
-import { z } from 'zod';
+import { accountActivityRoute } from '../../shared/api/account.js';
 import { accountActivity } from '../audit/activity.js';
 import type { Db } from '../db/client.js';
-import { validate } from '../http/validate.js';
+import { mountRoute } from '../http/mount-route.js';
 import { signedInUser } from './authenticate.js';
-import { requireAuth } from './require-auth.js';
-
-export const accountActivityQuery = z.object({ limit: z.coerce.number().int().min(1).max(200).default(30) });
 
 /** /api/account: what concerns the signed-in person's own account. */
 export function accountRoutes(db: Db): Router {
   const router = Router();
-  router.use(requireAuth);
-
   // Sign-ins (and failed ones), sign-outs, resets, tokens, role changes, mail of theirs the operator read.
-  router.get('/activity', validate({ query: accountActivityQuery }), async (req, res) => {
-    const { limit } = req.valid.query as z.infer<typeof accountActivityQuery>;
-    res.json(await accountActivity(db, signedInUser(req).id, limit));
-  });
-
+  mountRoute(router, accountActivityRoute, ({ query }, req) => accountActivity(db, signedInUser(req).id, query.limit));
   return router;
 }

@@ -1,3 +1,4 @@
+import type { CataloguePage as CatalogueAnswer, ResonanceDetail } from '../../shared/api/catalogue.js';
 import { writeAudit } from '../audit/audit-log.js';
 import type { Db } from '../db/client.js';
 import { ApiError } from '../http/error-handler.js';
@@ -17,28 +18,7 @@ import {
 } from './catalogue-repository.js';
 import { toResonanceRow, type ResonanceRow } from './resonance-row.js';
 
-export interface ResonanceDetail extends ResonanceRow {
-  /** Null for a fitted resonance of a measured trace. */
-  run: { id: string; kind: string; window: Record<string, number>; certificate: unknown; status: string } | null;
-  model: { id: string; name: string; version: number };
-  otherPoles: { id: string; energy: number; width: number }[];
-  thresholds: number[];
-  leads: { name: string; side: string; width: number }[];
-}
-
-/** One page of a catalogue search as GET /catalogue answers it (docs/api.md, "Catalogue"). */
-export interface CatalogueAnswer {
-  items: ResonanceRow[];
-  total: number;
-  totalKind: CountKind;
-  countedAt: string | null;
-  countAgeSeconds: number | null;
-  /** 1-based page number: exact with offsets, a label carried by the cursor otherwise. */
-  page: number;
-  pageSize: number;
-  nextCursor: string | null;
-  prevCursor: string | null;
-}
+export type { CataloguePage as CatalogueAnswer, ResonanceDetail } from '../../shared/api/catalogue.js';
 
 /** Rows per keyset batch in an export: a few hundred kB of JSON at a time. */
 const exportBatch = 1000;

@@ -1,15 +1,11 @@
 import { Router } from 'express';
-import { z } from 'zod';
+import { acceptInvitationRoute, previewInvitationRoute } from '../../shared/api/auth.js';
 import { openSession } from '../auth/open-session.js';
-import { newPasswordSchema } from '../auth/password.js';
 import { sessionOf } from '../auth/session.js';
 import { attemptLimiter, type AttemptLimit } from '../auth/sign-in-limit.js';
 import type { Db } from '../db/client.js';
-import { validate } from '../http/validate.js';
+import { mountRoute } from '../http/mount-route.js';
 import type { InvitationService } from './invitation-service.js';
-
-export const tokenParams = z.object({ token: z.string().min(1).max(200) });
-export const acceptBody = z.object({ name: z.string().trim().min(1, 'must not be empty').max(100), password: newPasswordSchema });
 
 /** The public side of invitations: the link's landing page and its accept button. */
 export function invitationRoutes(d: {
@@ -21,22 +17,18 @@ export function invitationRoutes(d: {
 }): Router {
   const router = Router();
 
-  router.get('/:token', validate({ params: tokenParams }), async (req, res) => {
-    res.json(await d.invitations.preview((req.valid.params as z.infer<typeof tokenParams>).token));
-  });
+  mountRoute(router, previewInvitationRoute, ({ params }) => d.invitations.preview(params.token));
 
   // Failed accepts (unknown link, wrong password of an existing account) are limited per IP.
-  router.post(
-    '/:token/accept',
-    attemptLimiter({ limit: d.linkLimit, what: 'invitation', per: 'ip', failuresOnly: true }),
-    validate({ params: tokenParams, body: acceptBody }),
-    async (req, res) => {
-      const { token } = req.valid.params as z.infer<typeof tokenParams>;
-      const { name, password } = req.valid.body as z.infer<typeof acceptBody>;
-      const user = await d.invitations.accept(token, name, password);
+  mountRoute(
+    router,
+    acceptInvitationRoute,
+    async ({ params, body }, req, res) => {
+      const user = await d.invitations.accept(params.token, body.name, body.password);
       const csrf = await openSession(d.db, req, res, user.id, { jwtSecret: d.jwtSecret, secureCookies: d.secureCookies });
-      res.status(201).json(await sessionOf(d.db, user, csrf));
+      return sessionOf(d.db, user, csrf);
     },
+    { before: [attemptLimiter({ limit: d.linkLimit, what: 'invitation', per: 'ip', failuresOnly: true })] },
   );
 
   return router;

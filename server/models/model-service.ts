@@ -54,7 +54,8 @@ export class ModelService {
     const versions = await repo.listVersions(this.db, groupId, modelId);
     return {
       ...toSummary(summary),
-      document: version!.document,
+      // Stored documents passed the model rules when saved (versions never change).
+      document: version!.document as CavityModel,
       derived: derivedOf(version!.document, version!.siteCount),
       versions: versions.map((v) => ({
         version: v.version,
@@ -68,7 +69,7 @@ export class ModelService {
   async version(groupId: string, modelId: string, version: number) {
     const v = await repo.findVersion(this.db, groupId, modelId, version);
     if (!v) throw new ApiError(404, 'not_found', `This model has no version ${version}.`);
-    return { version: v.version, document: v.document, derived: derivedOf(v.document, v.siteCount), createdAt: v.createdAt };
+    return { version: v.version, document: v.document as CavityModel, derived: derivedOf(v.document, v.siteCount), createdAt: v.createdAt };
   }
 
   async create(groupId: string, userId: string, document: unknown, referenceKey: string | null = null, signal?: AbortSignal) {

@@ -51,7 +51,7 @@ export async function handleModeMapJob(
     await writing;
     await db
       .update(modeMaps)
-      .set({ status: 'completed', result: result as unknown as Record<string, unknown>, engineVersion: result.engineVersion, progressStage: 'done', progressFraction: 1, finishedAt: new Date() })
+      .set({ status: 'completed', result, engineVersion: result.engineVersion, progressStage: 'done', progressFraction: 1, finishedAt: new Date() })
       .where(mine);
   } catch (err) {
     const message = err instanceof Error ? err.message : String(err);
