@@ -81,8 +81,8 @@ export interface AppDeps {
   compute?: Compute;
   /**
    * Mounts the other features' routers on the /api router (after authentication, before
-   * the JSON 404), e.g. `api => api.use('/groups/:groupId/models', modelRoutes(...))`.
-   * Their routers use requireRole(), which scopes every request to the caller's group.
+   * the JSON 404), e.g. `api => api.use(modelRoutes(...))`.
+   * Routes are mounted from their declarations in shared/api (server/http/mount-route.ts).
    */
   mountFeatures?: (api: Router) => void;
 }
@@ -146,7 +146,6 @@ export function createApp(deps: AppDeps): Express {
   api.use(authenticate(db, config.jwtSecret));
   api.use(metaRoutes(config.version));
   api.use(
-    '/auth',
     authRoutes({
       db,
       auth,
@@ -158,20 +157,20 @@ export function createApp(deps: AppDeps): Express {
       log,
     }),
   );
-  api.use('/invitations', invitationRoutes({ db, invitations, jwtSecret: config.jwtSecret, secureCookies, linkLimit }));
+  api.use(invitationRoutes({ db, invitations, jwtSecret: config.jwtSecret, secureCookies, linkLimit }));
   // Fabrication: states, review, comments, packages, notification settings, catalogue import.
   fabricationFeature(api, { db, config, compute, notifications: deps.notifications ?? null });
-  api.use('/account', accountRoutes({ db, account: new AccountService({ db, passwordCost, passwords }), jwtSecret: config.jwtSecret, secureCookies }));
-  api.use('/groups', groupRoutes({ db, groups, invitations }));
-  api.use('/groups/:groupId/models', modelRoutes(new ModelService(db, compute), compute));
-  api.use('/groups/:groupId/runs', runRoutes(new RunService(db, deps.queue, compute, config.runLimits), deps.runEvents ?? null));
-  api.use('/groups/:groupId', backupRoutes({ db }));
-  api.use('/groups/:groupId', catalogueRoutes({ db }));
-  api.use('/groups/:groupId', modeMapRoutes(new ModeMapService(db, deps.modeMapQueue ?? null)));
-  api.use('/groups/:groupId', fitRoutes(new FitService(db, deps.fitQueue ?? null), deps.runEvents ?? null));
+  api.use(accountRoutes({ db, account: new AccountService({ db, passwordCost, passwords }), jwtSecret: config.jwtSecret, secureCookies }));
+  api.use(groupRoutes({ db, groups, invitations }));
+  api.use(modelRoutes(new ModelService(db, compute), compute));
+  api.use(runRoutes(new RunService(db, deps.queue, compute, config.runLimits), deps.runEvents ?? null));
+  api.use(backupRoutes({ db }));
+  api.use(catalogueRoutes({ db }));
+  api.use(modeMapRoutes(new ModeMapService(db, deps.modeMapQueue ?? null)));
+  api.use(fitRoutes(new FitService(db, deps.fitQueue ?? null), deps.runEvents ?? null));
   api.use(studyRoutes(new StudyService(db, deps.studyQueue ?? null, compute, new ModelService(db, compute))));
-  api.use('/tokens', apiTokenRoutes(db));
-  api.use('/outbox', outboxRoutes(db, config.mailStandIn));
+  api.use(apiTokenRoutes(db));
+  api.use(outboxRoutes(db, config.mailStandIn));
   deps.mountFeatures?.(api);
   api.use(apiNotFound);
   app.use('/api', api);

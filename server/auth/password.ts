@@ -1,4 +1,3 @@
-import { z } from 'zod';
 import { threadPasswordHasher, type PasswordHasher } from './password-hasher.js';
 
 /**
@@ -7,12 +6,6 @@ import { threadPasswordHasher, type PasswordHasher } from './password-hasher.js'
  * per hash; 12 would make every sign-in take most of a second. Tests pass 4 for speed.
  */
 export const defaultPasswordCost = 10;
-
-/** bcrypt reads only the first 72 bytes, so longer passwords are refused instead of silently cut. */
-export const newPasswordSchema = z
-  .string()
-  .min(8, 'must be at least 8 characters')
-  .refine((p) => Buffer.byteLength(p, 'utf8') <= 72, 'must be at most 72 bytes (bcrypt ignores the rest)');
 
 /** Hashes in a worker thread (password-hasher.ts), so the caller's event loop stays free. */
 export function hashPassword(password: string, cost = defaultPasswordCost, hasher: PasswordHasher = threadPasswordHasher): Promise<string> {

@@ -11,6 +11,7 @@
  * records… as they arrive: see BackupSection), then `end` with the record counts,
  * so a truncated file is refused.
  */
+import { RUN_KINDS } from '../../shared/api/enums.js';
 import { z } from 'zod';
 
 export const BACKUP_FORMAT = 'poleward-group-backup';
@@ -102,7 +103,7 @@ export const runRecord = z.object({
   type: z.literal('run'),
   id,
   modelVersionId: id,
-  kind: z.string().min(1).max(40),
+  kind: z.enum(RUN_KINDS),
   status: z.enum(['queued', 'running', 'completed', 'failed', 'cancelled']),
   window: z.record(z.string(), num),
   note: z.string().max(10_000),

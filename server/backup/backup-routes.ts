@@ -1,30 +1,25 @@
 import { Transform } from 'node:stream';
 import { Router } from 'express';
-import { z } from 'zod';
 import { signedInUser } from '../auth/authenticate.js';
-import { requireRole } from '../auth/require-role.js';
 import type { Db } from '../db/client.js';
 import { ApiError } from '../http/error-handler.js';
-import { validate } from '../http/validate.js';
+import { mountRoute } from '../http/mount-route.js';
+import { backupGroupRoute, restoreGroupRoute } from '../../shared/api/backup.js';
 import { MAX_UPLOAD_BYTES } from './backup-format.js';
 import { BackupService } from './backup-service.js';
 
-export const backupQuery = z.object({
-  members: z.enum(['true', 'false'], { error: 'must be true or false' }).default('true'),
-});
-
 /**
- * Group backup and restore, mounted at /api/groups/:groupId, admins only:
+ * Group backup and restore below /api/groups/:groupId, admins only:
  * GET /backup streams the archive (backup-format.ts); POST /restore takes one as
  * the request body (Content-Type application/gzip) into an empty group.
  */
 export function backupRoutes(d: { db: Db }): Router {
   const backups = new BackupService(d.db);
-  const router = Router({ mergeParams: true });
+  const router = Router();
 
-  router.get('/backup', requireRole('admin'), validate({ query: backupQuery }), async (req, res) => {
+  mountRoute(router, backupGroupRoute, async ({ query }, req, res) => {
     const m = req.membership!;
-    const members = (req.valid.query as z.infer<typeof backupQuery>).members === 'true';
+    const members = query.members === 'true';
     await backups.recordDownload(m.groupId, m.groupName, signedInUser(req).id, members);
     res.setHeader('Content-Type', 'application/gzip');
     res.setHeader('Content-Disposition', `attachment; filename="poleward-${m.groupSlug}-${new Date().toISOString().slice(0, 10)}.jsonl.gz"`);
@@ -37,7 +32,7 @@ export function backupRoutes(d: { db: Db }): Router {
     });
   });
 
-  router.post('/restore', requireRole('admin'), async (req, res) => {
+  mountRoute(router, restoreGroupRoute, async (_input, req) => {
     const type = (req.headers['content-type'] ?? '').split(';')[0]!.trim();
     if (!['application/gzip', 'application/x-gzip', 'application/octet-stream'].includes(type)) {
       throw new ApiError(415, 'unsupported_media_type', 'Send the backup file itself as the request body, with Content-Type application/gzip.');
@@ -54,7 +49,7 @@ export function backupRoutes(d: { db: Db }): Router {
     });
     req.on('error', (e) => cap.destroy(e));
     const summary = await backups.restore(req.membership!.groupId, signedInUser(req).id, req.pipe(cap));
-    res.status(201).json({ restored: summary });
+    return { restored: summary };
   });
 
   return router;

@@ -5,6 +5,8 @@
  * records here, since they hang on a fit. Ids inside the JSON a fit keeps (its request,
  * its comparison with the nearest poles, a fitted resonance's details) are remapped.
  */
+import type { FitResult } from '../../shared/engine/fit.js';
+import type { PoleComparison } from '../fits/fit-comparison.js';
 import { asc, eq, and } from 'drizzle-orm';
 import { z } from 'zod';
 import type { Queryable } from '../db/client.js';
@@ -204,8 +206,8 @@ const fitSection: BackupSection<FitRecord> = {
             progressFraction: f.progressFraction,
             attempt: f.attempt,
             error: unfinished ? 'This fit was unfinished when the group was backed up; fit again.' : f.error,
-            result: f.result ?? null,
-            comparison: f.comparison === undefined ? null : remapJsonIds(f.comparison, ids),
+            result: (f.result ?? null) as FitResult | null,
+            comparison: (f.comparison === undefined ? null : remapJsonIds(f.comparison, ids)) as PoleComparison[] | null,
             createdBy: person(ids, f.createdBy),
             createdAt: date(f.createdAt)!,
             finishedAt: unfinished ? new Date() : date(f.finishedAt),

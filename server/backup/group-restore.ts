@@ -1,3 +1,4 @@
+import type { RunCertificate, RunEstimate } from '../../shared/api/runs.js';
 import { createInterface } from 'node:readline';
 import { Transform, type Readable } from 'node:stream';
 import { createGunzip } from 'node:zlib';
@@ -272,6 +273,9 @@ export async function restoreGroup(db: Db, groupId: string, actorId: string, b: 
             createdAt: date(createdAt)!,
             startedAt: date(startedAt),
             finishedAt: unfinished ? new Date() : date(finishedAt),
+            // The archive was checked record by record; these columns hold what the engine wrote.
+            certificate: r.certificate as RunCertificate | null,
+            estimate: r.estimate as RunEstimate | null,
           };
         }),
       ),

@@ -5,6 +5,7 @@
  * restored map gets the cache key of its new ids, so asking for the same map again
  * finds it instead of computing it once more.
  */
+import type { ModeMapPayload } from '../../shared/api/mode-maps.js';
 import { and, asc, eq, inArray } from 'drizzle-orm';
 import { z } from 'zod';
 import type { Queryable } from '../db/client.js';
@@ -171,7 +172,7 @@ const mapSection: BackupSection<MapRecord> = {
           progressFraction: m.progressFraction,
           attempt: m.attempt,
           engineVersion: m.engineVersion,
-          result: m.result,
+          result: m.result as ModeMapPayload | null,
           createdBy: m.createdBy ? (ids.people.get(m.createdBy.toLowerCase()) ?? null) : null,
           createdAt: new Date(m.createdAt),
           finishedAt: m.finishedAt ? new Date(m.finishedAt) : null,

@@ -1,36 +1,31 @@
-import { Router } from 'express';
-import type { z } from 'zod';
-import { requireRole } from '../auth/require-role.js';
+import { Router, type Request, type Response } from 'express';
+import { exportCatalogueCsvRoute, exportCatalogueJsonRoute, searchCatalogueRoute } from '../../shared/api/catalogue.js';
 import type { Db } from '../db/client.js';
-import { validate } from '../http/validate.js';
+import { mountRoute } from '../http/mount-route.js';
 import { sendCatalogueExport, type ExportFormat } from './catalogue-export.js';
-import { catalogueFilterSchema, catalogueQuerySchema, toCatalogueFilter, toCataloguePageRequest } from './catalogue-query.js';
+import { toCatalogueFilter, toCataloguePageRequest, type CatalogueFilter } from './catalogue-query.js';
 import { CatalogueService } from './catalogue-service.js';
 import { resonanceRoutes } from './resonance-routes.js';
-import { exportedModels } from '../fabrication/catalogue-import.js';
 
 /**
- * The group's resonance catalogue, mounted at /api/groups/:groupId: GET /catalogue (search),
- * /catalogue/export.csv and .json (the whole filtered set), and the /resonances/:id routes.
- * Any member reads; tags and notes need the designer role.
+ * The group's resonance catalogue: GET /catalogue (search), /catalogue/export.csv and .json
+ * (the whole filtered set), and the /resonances/:id routes. Any member reads; tags and notes
+ * need the designer role.
  */
 export function catalogueRoutes(deps: { db: Db; service?: CatalogueService }): Router {
   const service = deps.service ?? new CatalogueService(deps.db);
-  const router = Router({ mergeParams: true });
+  const router = Router();
 
-  router.get('/catalogue', requireRole(), validate({ query: catalogueQuerySchema }), async (req, res) => {
-    const request = toCataloguePageRequest(req.valid.query as z.infer<typeof catalogueQuerySchema>);
-    res.json(await service.search(req.membership!.groupId, request));
-  });
+  mountRoute(router, searchCatalogueRoute, ({ query }, req) => service.search(req.membership!.groupId, toCataloguePageRequest(query)));
 
-  for (const format of ['csv', 'json'] as ExportFormat[]) {
-    router.get(`/catalogue/export.${format}`, requireRole(), validate({ query: catalogueFilterSchema }), async (req, res) => {
-      const filter = toCatalogueFilter(req.valid.query as z.infer<typeof catalogueFilterSchema>);
-      // Exports take the group's data away whole: recorded before the first byte goes out.
-      const source = await service.exportFor(req.membership!.groupId, req.auth!.user.id, format, filter, req.valid.query as Record<string, unknown>);
-      await sendCatalogueExport(res, format, source, new Date(), (ids) => exportedModels(deps.db, req.membership!.groupId, ids));
-    });
+  // Exports take the group's data away whole: recorded before the first byte goes out.
+  async function exportAs(format: ExportFormat, query: Record<string, unknown>, filter: CatalogueFilter, req: Request, res: Response): Promise<void> {
+    const groupId = req.membership!.groupId;
+    const source = await service.exportFor(groupId, req.auth!.user.id, format, filter, query);
+    await sendCatalogueExport(res, format, source, new Date(), (ids) => service.exportedModels(groupId, ids));
   }
+  mountRoute(router, exportCatalogueCsvRoute, ({ query }, req, res) => exportAs('csv', query, toCatalogueFilter(query), req, res));
+  mountRoute(router, exportCatalogueJsonRoute, ({ query }, req, res) => exportAs('json', query, toCatalogueFilter(query), req, res));
 
   router.use(resonanceRoutes(service));
   return router;

@@ -1,4 +1,6 @@
+import type { CataloguePage as CatalogueAnswer, ResonanceDetail } from '../../shared/api/catalogue.js';
 import { writeAudit } from '../audit/audit-log.js';
+import { exportedModels } from '../fabrication/catalogue-import.js';
 import type { Db } from '../db/client.js';
 import { ApiError } from '../http/error-handler.js';
 import type { RowSource } from './catalogue-export.js';
@@ -17,28 +19,7 @@ import {
 } from './catalogue-repository.js';
 import { toResonanceRow, type ResonanceRow } from './resonance-row.js';
 
-export interface ResonanceDetail extends ResonanceRow {
-  /** Null for a fitted resonance of a measured trace. */
-  run: { id: string; kind: string; window: Record<string, number>; certificate: unknown; status: string } | null;
-  model: { id: string; name: string; version: number };
-  otherPoles: { id: string; energy: number; width: number }[];
-  thresholds: number[];
-  leads: { name: string; side: string; width: number }[];
-}
-
-/** One page of a catalogue search as GET /catalogue answers it (docs/api.md, "Catalogue"). */
-export interface CatalogueAnswer {
-  items: ResonanceRow[];
-  total: number;
-  totalKind: CountKind;
-  countedAt: string | null;
-  countAgeSeconds: number | null;
-  /** 1-based page number: exact with offsets, a label carried by the cursor otherwise. */
-  page: number;
-  pageSize: number;
-  nextCursor: string | null;
-  prevCursor: string | null;
-}
+export type { CataloguePage as CatalogueAnswer, ResonanceDetail } from '../../shared/api/catalogue.js';
 
 /** Rows per keyset batch in an export: a few hundred kB of JSON at a time. */
 const exportBatch = 1000;
@@ -130,6 +111,11 @@ export class CatalogueService {
   async exportFor(groupId: string, actorId: string, format: string, filter: CatalogueFilter, asked: Record<string, unknown>): Promise<RowSource> {
     await writeAudit(this.db, { groupId, actorId, accountId: actorId, action: 'catalogue.exported', subject: `catalogue.${format}`, details: { filter: asked } });
     return this.exportSource(groupId, filter);
+  }
+
+  /** The model versions exported rows came from (JSON export), so an import can rebuild them. */
+  exportedModels(groupId: string, versionIds: string[]) {
+    return exportedModels(this.db, groupId, versionIds);
   }
 
   /** A row source for sendCatalogueExport: one snapshot, read in keyset batches. */

@@ -1,35 +1,13 @@
-import { Router, type Request } from 'express';
-import { z } from 'zod';
+import { Router } from 'express';
+import { getResonanceRoute, labelResonanceRoute, modeImageRoute } from '../../shared/api/catalogue.js';
 import { signedInUser } from '../auth/authenticate.js';
-import { requireRole } from '../auth/require-role.js';
-import { validate } from '../http/validate.js';
-import { noNul, tagSchema } from './catalogue-query.js';
+import { mountRoute } from '../http/mount-route.js';
 import { resonanceNotFound, type CatalogueService } from './catalogue-service.js';
 
 const uuidPattern = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 
-export const labelBody = z
-  .strictObject({
-    tags: z
-      .array(tagSchema, { error: 'must be a list of tags' })
-      .max(20, 'at most 20 tags')
-      .transform((tags) => [...new Set(tags)])
-      .optional(),
-    notes: z
-      .string({ error: 'must be text' })
-      .max(4000, 'must be at most 4000 characters')
-      .regex(noNul, 'must not contain NUL characters')
-      .optional(),
-  })
-  .refine((b) => b.tags !== undefined || b.notes !== undefined, { message: 'send tags, notes or both' });
-
-export const imageQuery = z.object({
-  size: z.enum(['thumb', 'full'], { error: 'must be thumb or full' }).default('thumb'),
-});
-
 /** A malformed id cannot be one of the group's resonances: 404 like any other stranger's id. */
-function resonanceId(req: Request): string {
-  const id = req.params.id;
+export function resonanceId(id: string): string {
   if (typeof id !== 'string' || !uuidPattern.test(id)) throw resonanceNotFound();
   return id.toLowerCase();
 }
@@ -54,23 +32,18 @@ function heldEtags(header: string | undefined): { tags: string[]; any: boolean }
 
 /** /api/groups/:groupId/resonances/:id — detail, tags and notes, mode images. */
 export function resonanceRoutes(service: CatalogueService): Router {
-  const router = Router({ mergeParams: true });
+  const router = Router();
 
-  router.get('/resonances/:id', requireRole(), async (req, res) => {
-    res.json(await service.detail(req.membership!.groupId, resonanceId(req)));
-  });
+  mountRoute(router, getResonanceRoute, ({ params }, req) => service.detail(req.membership!.groupId, resonanceId(params.id)));
 
-  router.patch('/resonances/:id', requireRole('designer'), validate({ body: labelBody }), async (req, res) => {
-    const id = resonanceId(req);
-    const change = req.valid.body as z.infer<typeof labelBody>;
-    res.json(await service.label(req.membership!.groupId, signedInUser(req).id, id, change));
-  });
+  mountRoute(router, labelResonanceRoute, ({ params, body }, req) =>
+    service.label(req.membership!.groupId, signedInUser(req).id, resonanceId(params.id), body),
+  );
 
-  router.get('/resonances/:id/mode.png', requireRole(), validate({ query: imageQuery }), async (req, res) => {
-    const id = resonanceId(req);
-    const { size } = req.valid.query as z.infer<typeof imageQuery>;
+  mountRoute(router, modeImageRoute, async ({ params, query }, req, res) => {
+    const id = resonanceId(params.id);
     const held = heldEtags(req.get('if-none-match'));
-    const image = await service.modeImage(req.membership!.groupId, id, size, held.tags);
+    const image = await service.modeImage(req.membership!.groupId, id, query.size, held.tags);
     // Private: the image belongs to one group; immutable: a re-rendered image gets a new ETag.
     res.setHeader('Cache-Control', 'private, max-age=31536000, immutable');
     res.setHeader('ETag', quotedEtag(image.etag));

@@ -1,54 +1,8 @@
+import type { ResonanceRow } from '../../shared/api/resonance-row.js';
 import type { ResonanceRecord } from './catalogue-repository.js';
 import { keyDimensionsOf } from '../models/model-figures.js';
 
-/**
- * One catalogued resonance z = E − iΓ/2 as the API shows it. Energies and widths in meV,
- * lifetime τ = ħ/Γ in ps, field in T, key dimensions in nm; lifetime and Q are null for
- * bound states (infinite).
- */
-export interface ResonanceRow {
-  id: string;
-  /** Null for a fitted resonance of a measured trace. */
-  runId: string | null;
-  /** 'computed': a pole a run found; 'fitted': a peak fit (see fitId). */
-  source: 'computed' | 'fitted';
-  fitId: string | null;
-  modelId: string;
-  modelName: string;
-  modelVersion: number;
-  family: string;
-  /** The dimensions the family has, each by its own name, in nm (area in nm²); a microwave model's mm converted. */
-  keyDimensions: { width?: number; height?: number; radius?: number; length?: number; rx?: number; ry?: number; inner?: number; outer?: number; area?: number };
-  /** 'electrons' (E, Γ in meV) or 'microwave' (E, Γ are k² in mm⁻²; see `microwave`). */
-  physics: 'electrons' | 'microwave';
-  /** Microwave mode: the complex frequency's figures (GHz, MHz, ns, Q = Re f/Γ_f); null for electrons. */
-  microwave: { frequencyGhz: number; widthMhz: number; lifetimeNs: number | null; quality: number | null; validityLimitGhz: number | null } | null;
-  /**
-   * Lattice validity of this resonance's model: the energy below which the lattice is trusted
-   * (meV, or mm⁻² in the microwave mode), λ/a at this energy (null: infinite), and whether the
-   * resonance lies above the limit (null: not known, e.g. a fit on a gate-voltage axis).
-   */
-  validity: { limit: number | null; wavelengthSpacings: number | null; aboveLimit: boolean | null };
-  material: string;
-  fieldT: number;
-  energy: number;
-  width: number;
-  lifetimePs: number | null;
-  quality: number | null;
-  partialWidths: { lead: string; width: number }[];
-  /** Null for fitted resonances. */
-  petermann: number | null;
-  residual: number | null;
-  bound: boolean;
-  nearThreshold: boolean;
-  overlapping: boolean;
-  tags: string[];
-  notes: string;
-  createdAt: string;
-  /** Null for fitted resonances (they have no mode image). */
-  thumbnailUrl: string | null;
-  imageUrl: string | null;
-}
+export type { ResonanceRow };
 
 export function modeImageUrl(groupId: string, id: string, size: 'thumb' | 'full'): string {
   return `/api/groups/${groupId}/resonances/${id}/mode.png?size=${size}`;

@@ -1,3 +1,4 @@
+import type { FitResult } from '../../shared/engine/fit.js';
 import { and, asc, desc, eq, sql } from 'drizzle-orm';
 import type { Queryable } from '../db/client.js';
 import { resonances } from '../db/schema/catalogue.js';
@@ -90,7 +91,7 @@ const fitColumns = {
 
 export async function listFits(q: Queryable, groupId: string) {
   return q
-    .select({ ...fitColumns, peaks: sql<unknown>`${peakFits.result} -> 'peaks'`, warnings: sql<unknown>`${peakFits.result} -> 'warnings'` })
+    .select({ ...fitColumns, peaks: sql<FitResult['peaks'] | null>`${peakFits.result} -> 'peaks'`, warnings: sql<FitResult['warnings'] | null>`${peakFits.result} -> 'warnings'` })
     .from(peakFits)
     .leftJoin(cavityModels, eq(cavityModels.id, peakFits.modelId))
     .leftJoin(measuredTraces, eq(measuredTraces.id, peakFits.traceId))

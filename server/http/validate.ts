@@ -42,20 +42,3 @@ export function validateRequest(schemas: RequestSchemas, req: Request): ValidReq
   }
   return valid;
 }
-
-declare module 'express-serve-static-core' {
-  interface Request {
-    /** What validate() parsed; req.query is a getter in Express 5, so parsed values live here. */
-    valid: ValidRequest;
-  }
-}
-
-/** The middleware form, for routes not yet mounted from a declaration. */
-export function validate(schemas: RequestSchemas): import('express').RequestHandler {
-  return (req, _res, next) => {
-    const valid = validateRequest(schemas, req);
-    req.valid = { ...req.valid, ...valid };
-    if (valid.body !== undefined) req.body = valid.body;
-    next();
-  };
-}

@@ -4,6 +4,7 @@ import { ApiError } from '../http/error-handler.js';
 import type { Compute } from '../compute/compute-pool.js';
 import * as repo from './model-repository.js';
 import type { DerivedFigures } from '../../shared/model/derived-figures.js';
+import type { CavityModel } from '../../shared/model/cavity-model.js';
 import { figuresOfStored } from './model-figures.js';
 
 export function modelNotFound(): ApiError {
@@ -55,7 +56,8 @@ export class ModelService {
     const versions = await repo.listVersions(this.db, groupId, modelId);
     return {
       ...toSummary(summary),
-      document: version!.document,
+      // Stored documents passed the model rules when saved (versions never change).
+      document: version!.document as CavityModel,
       derived: storedFigures(version!),
       versions: versions.map((v) => ({
         version: v.version,
@@ -69,7 +71,7 @@ export class ModelService {
   async version(groupId: string, modelId: string, version: number) {
     const v = await repo.findVersion(this.db, groupId, modelId, version);
     if (!v) throw new ApiError(404, 'not_found', `This model has no version ${version}.`);
-    return { version: v.version, document: v.document, derived: storedFigures(v), createdAt: v.createdAt };
+    return { version: v.version, document: v.document as CavityModel, derived: storedFigures(v), createdAt: v.createdAt };
   }
 
   async create(groupId: string, userId: string, document: unknown, referenceKey: string | null = null, signal?: AbortSignal) {

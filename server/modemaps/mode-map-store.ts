@@ -102,7 +102,7 @@ export const modeMapStore = {
     return !!row;
   },
 
-  async complete(q: Queryable, id: string, attempt: number, result: Record<string, unknown>, engineVersion: string): Promise<boolean> {
+  async complete(q: Queryable, id: string, attempt: number, result: NonNullable<typeof modeMaps.$inferInsert.result>, engineVersion: string): Promise<boolean> {
     return !!(await unlessEnded(
       transition(q, id, 'completed', { attempt, set: { result, engineVersion, progressStage: 'done', progressFraction: 1, finishedAt: new Date() } }),
     ));

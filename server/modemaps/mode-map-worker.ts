@@ -75,7 +75,7 @@ export async function handleModeMapJob(
     const result = await (o.compute ?? runModeMapInThread)(task, (stage, fraction) => (pending = { stage, fraction }), abort.signal);
     clearInterval(timer);
     const ended = await db.transaction(async (tx) => {
-      const mine = await modeMapStore.complete(tx, map.id, attempt, result as unknown as Record<string, unknown>, result.engineVersion);
+      const mine = await modeMapStore.complete(tx, map.id, attempt, result, result.engineVersion);
       if (mine) await settle(tx, 'complete', { completed: true });
       return mine;
     });

@@ -1,3 +1,4 @@
+import type { RunKind } from '../../shared/api/enums.js';
 import { and, asc, count, desc, eq, type SQL } from 'drizzle-orm';
 import type { Queryable } from '../db/client.js';
 import { resonances } from '../db/schema/catalogue.js';
@@ -7,7 +8,7 @@ import { users } from '../db/schema/users.js';
 
 export interface RunListFilter {
   status?: RunStatus;
-  kind?: string;
+  kind?: RunKind;
   modelId?: string;
   page: number;
   pageSize: number;

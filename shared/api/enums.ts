@@ -2,7 +2,7 @@
  * The enumerations the HTTP contract, the database and the client share. Each list is
  * written here once; the database schema, the routes and the screens import it.
  */
-import { z } from 'zod';
+import * as z from 'zod';
 
 /** The life of a run: queued → running → completed | failed | cancelled (a lost run goes back to queued). */
 export const RUN_STATUSES = ['queued', 'running', 'completed', 'failed', 'cancelled'] as const;

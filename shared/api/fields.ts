@@ -1,5 +1,5 @@
 /** Field schemas many answers share. Units: energies meV, lifetimes ps, lengths nm, field T. */
-import { z } from 'zod';
+import * as z from 'zod';
 
 /** A point in time as the server sends it: ISO 8601 with an offset (JSON turns a Date into this). */
 export const timestamp = () => z.iso.datetime({ offset: true });

@@ -1,5 +1,5 @@
 /** Routes about the API itself: is it up, and its OpenAPI description. */
-import { z } from 'zod';
+import * as z from 'zod';
 import { declareRoute, json, media } from './route.js';
 
 export const healthSchema = z.object({ ok: z.literal(true), version: z.string() }).meta({ id: 'Health' });

@@ -4,7 +4,7 @@
  * `validateCavityModel` also checks the physics rules that need the rasterised
  * cavity (mouths inside the cavity, one connected piece, size caps).
  */
-import { z } from 'zod';
+import * as z from 'zod';
 import { findMaterial, MATERIAL_PRESETS } from './materials';
 import { DOCUMENT_LIMITS, checkDocumentLimits } from './document-limits';
 import { connectedComponents, mouthSites, rasteriseShape, rasterWork } from './geometry';

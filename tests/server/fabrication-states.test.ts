@@ -182,7 +182,7 @@ describe('fabrication states', () => {
       .values({ groupId: lab.groupId, deviceName: 'HL-7 die 3', fileName: 'die3.csv', temperatureMK: 100, content: 'E,T\n1,0', columns: ['E', 'T'], selection: {}, energies: [1], transmission: [0] })
       .returning();
     const peaks = [{ energy: 6.29, energyError: 0.004, width: 0.25, widthError: 0.01 }];
-    const [fit] = await db.insert(peakFits).values({ groupId: lab.groupId, traceId: trace!.id, request: {}, status: 'completed', result: { peaks } }).returning();
+    const [fit] = await db.insert(peakFits).values({ groupId: lab.groupId, traceId: trace!.id, request: {}, status: 'completed', result: { peaks } as never }).returning();
     const [failed] = await db.insert(peakFits).values({ groupId: lab.groupId, traceId: trace!.id, request: {}, status: 'failed', error: 'did not converge' }).returning();
     // ids[2] was rejected above: propose again, approve, send.
     await as.designer!.post(url(ids[2]!), { action: 'propose', reason: 'second try with a wider gate' }).expect(200);

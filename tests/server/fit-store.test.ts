@@ -55,7 +55,7 @@ describe('the fit transition table', () => {
     const live = await rowOf(before.id);
     expect(await failFit(handle.db, before.id, 1, 'the old thread crashed')).toBe(false);
     expect(await rowOf(before.id)).toEqual(live);
-    expect(await fitStore.complete(handle.db, before.id, 1, { result: {} })).toBe(false);
+    expect(await fitStore.complete(handle.db, before.id, 1, { result: {} as never })).toBe(false);
     expect(await rowOf(before.id)).toEqual(live);
     // The live attempt's end is written.
     expect(await failFit(handle.db, before.id, 2, 'bad input')).toBe(true);

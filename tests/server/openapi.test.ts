@@ -9,7 +9,7 @@ import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { resonances } from '../../server/db/schema/catalogue.js';
 import { runs } from '../../server/db/schema/runs.js';
-import { runRequestSchema } from '../../server/runs/run-window.js';
+import { runRequestSchema } from '../../shared/api/runs.js';
 import { cavityModelSchema } from '../../shared/model/cavity-model.js';
 import { createLab, type Lab } from './lab-fixture.js';
 import { smallRectangle, smallWindow } from './fixtures/small-cavity.js';

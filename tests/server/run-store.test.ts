@@ -146,7 +146,7 @@ describe('the run transition table', () => {
   });
 
   it('restores only finished runs', async () => {
-    const row = { groupId: lab.groupId, modelVersionId: versionId, kind: 'pole-search', window: {}, status: 'running' as const };
+    const row = { groupId: lab.groupId, modelVersionId: versionId, kind: 'pole-search' as const, window: {}, status: 'running' as const };
     await expect(runStore.restore(handle.db, [row])).rejects.toThrow(/must be finished/);
   });
 });

@@ -1,3 +1,5 @@
+import type { FitResult } from '../../../shared/engine/fit.js';
+import type { PoleComparison } from '../../fits/fit-comparison.js';
 import { sql } from 'drizzle-orm';
 import { check, doublePrecision, index, integer, jsonb, pgTable, text, timestamp, uuid } from 'drizzle-orm/pg-core';
 import { researchGroups } from './groups.js';
@@ -64,8 +66,8 @@ export const peakFits = pgTable(
     heartbeatAt: timestamp('heartbeat_at', { withTimezone: true }),
     jobId: text('job_id'),
     error: text('error'),
-    result: jsonb('result'),
-    comparison: jsonb('comparison'),
+    result: jsonb('result').$type<FitResult>(),
+    comparison: jsonb('comparison').$type<PoleComparison[]>(),
     createdBy: uuid('created_by').references(() => users.id, { onDelete: 'set null' }),
     createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
     finishedAt: timestamp('finished_at', { withTimezone: true }),

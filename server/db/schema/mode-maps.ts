@@ -1,3 +1,4 @@
+import type { ModeMapPayload } from '../../../shared/api/mode-maps.js';
 import { sql } from 'drizzle-orm';
 import { check, customType, doublePrecision, index, integer, jsonb, pgTable, text, timestamp, unique, uuid } from 'drizzle-orm/pg-core';
 import { resonances } from './catalogue.js';
@@ -56,7 +57,7 @@ export const modeMaps = pgTable(
     jobId: text('job_id'),
     error: text('error'),
     engineVersion: text('engine_version'),
-    result: jsonb('result').$type<Record<string, unknown>>(),
+    result: jsonb('result').$type<ModeMapPayload>(),
     createdBy: uuid('created_by').references(() => users.id, { onDelete: 'set null' }),
     createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
     finishedAt: timestamp('finished_at', { withTimezone: true }),

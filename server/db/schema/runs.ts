@@ -4,7 +4,10 @@ import { researchGroups } from './groups.js';
 import { modelVersions } from './models.js';
 import { users } from './users.js';
 
-export type RunStatus = 'queued' | 'running' | 'completed' | 'failed' | 'cancelled';
+import type { RunKind, RunStatus } from '../../../shared/api/enums.js';
+import type { RunCertificate, RunEstimate } from '../../../shared/api/runs.js';
+
+export type { RunStatus };
 
 /**
  * A computation on one model version: a pole search or a transmission sweep
@@ -22,7 +25,7 @@ export const runs = pgTable(
     modelVersionId: uuid('model_version_id')
       .notNull()
       .references(() => modelVersions.id, { onDelete: 'restrict' }),
-    kind: text('kind').notNull(),
+    kind: text('kind').$type<RunKind>().notNull(),
     status: text('status').$type<RunStatus>().notNull().default('queued'),
     /** The energy window and method parameters, as submitted (meV). */
     window: jsonb('window').$type<Record<string, number>>().notNull(),
@@ -36,9 +39,9 @@ export const runs = pgTable(
     error: text('error'),
     engineVersion: text('engine_version'),
     thresholds: jsonb('thresholds').$type<number[]>(),
-    certificate: jsonb('certificate'),
+    certificate: jsonb('certificate').$type<RunCertificate>(),
     stats: jsonb('stats'),
-    estimate: jsonb('estimate'),
+    estimate: jsonb('estimate').$type<RunEstimate>(),
     resonanceCount: integer('resonance_count'),
     createdBy: uuid('created_by').references(() => users.id, { onDelete: 'set null' }),
     createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),

@@ -1,4 +1,4 @@
-import { z } from 'zod';
+import * as z from 'zod';
 import {
   annulusSchema,
   bitmapSchema,
@@ -9,7 +9,8 @@ import {
   rectangleSchema,
   siteListSchema,
   stadiumSchema,
-} from '../../shared/model/cavity-model.js';
+  type Shape,
+} from '../model/cavity-model.js';
 
 /**
  * The shape tree as OpenAPI should show it. shared/model's shapeSchema first checks
@@ -17,7 +18,7 @@ import {
  * `{ kind: string }`; this lists the same primitive schemas as one tagged union. Only
  * the two recursive branches are restated here (the test compares both on samples).
  */
-export const shapeDescription: z.ZodType = z
+export const shapeDescription: z.ZodType<Shape> = z
   .lazy(() =>
     z.discriminatedUnion('kind', [
       rectangleSchema,
