@@ -17,6 +17,14 @@ export default defineConfig({
       },
       {
         test: {
+          // The shape of the code: no import loops, no feature folder importing another.
+          name: 'structure',
+          include: ['tests/structure/**/*.test.ts'],
+          environment: 'node',
+        },
+      },
+      {
+        test: {
           name: 'server',
           include: ['tests/server/**/*.test.ts'],
           environment: 'node',

@@ -11,7 +11,7 @@ import type { Queryable } from '../db/client.js';
 import { resonances } from '../db/schema/catalogue.js';
 import { measuredTraces, peakFits } from '../db/schema/fits.js';
 import { authorEmails } from './author-emails.js';
-import type { BackupSection, RestoredIds } from './backup-sections.js';
+import type { BackupSection, RestoredIds } from './backup-section.js';
 import { remapJsonIds } from './remap-json-ids.js';
 
 const id = z.uuid();

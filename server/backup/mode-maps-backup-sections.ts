@@ -14,7 +14,7 @@ import { runs } from '../db/schema/runs.js';
 import { peakFits } from '../db/schema/fits.js';
 import { modeMapCacheKey } from '../modemaps/mode-map-service.js';
 import { authorEmails } from './author-emails.js';
-import type { BackupSection } from './backup-sections.js';
+import type { BackupSection } from './backup-section.js';
 import { remapJsonIds } from './remap-json-ids.js';
 
 const id = z.uuid();

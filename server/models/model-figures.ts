@@ -1,4 +1,5 @@
-import { validateCavityModel, type CavityModel, type ModelIssue, type Shape } from '../../shared/model/cavity-model.js';
+import { type CavityModel, type ModelIssue, type Shape } from '../../shared/model/cavity-model.js';
+import { validateCavityModel } from '../../shared/model/model-validation.js';
 import { deriveFigures, type DerivedFigures } from '../../shared/model/derived-figures.js';
 import { ApiError } from '../http/error-handler.js';
 import { formatIssuePath } from '../../shared/model/cavity-model.js';
