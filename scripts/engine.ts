@@ -107,12 +107,12 @@ function readModel(file: string): unknown {
   try {
     text = readFileSync(file, 'utf8');
   } catch (err) {
-    throw new Error(`cannot read ${file}: ${(err as Error).message}`);
+    throw new Error(`cannot read ${file}: ${(err as Error).message}`, { cause: err });
   }
   try {
     return JSON.parse(text);
   } catch (err) {
-    throw new Error(`${file} is not valid JSON: ${(err as Error).message}`);
+    throw new Error(`${file} is not valid JSON: ${(err as Error).message}`, { cause: err });
   }
 }
 

@@ -7,7 +7,6 @@
  */
 import { asc, eq, and } from 'drizzle-orm';
 import { z } from 'zod';
-import type { Queryable } from '../db/client.js';
 import { resonances } from '../db/schema/catalogue.js';
 import { measuredTraces, peakFits } from '../db/schema/fits.js';
 import { authorEmails } from './author-emails.js';

@@ -7,7 +7,6 @@
  */
 import { and, asc, eq, inArray } from 'drizzle-orm';
 import { z } from 'zod';
-import type { Queryable } from '../db/client.js';
 import { resonances } from '../db/schema/catalogue.js';
 import { modeMaps, resonanceCurrents } from '../db/schema/mode-maps.js';
 import { runs } from '../db/schema/runs.js';

@@ -11,6 +11,7 @@ import { nullAsInfinity, resonances } from '../db/schema/catalogue.js';
 const decimal = /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/;
 
 /** PostgreSQL text cannot hold U+0000; refused here rather than failing in the database. */
+// eslint-disable-next-line no-control-regex -- the pattern exists to find U+0000
 export const noNul = /^[^\u0000]*$/;
 const noNulMessage = 'must not contain NUL characters';
 

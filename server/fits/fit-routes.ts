@@ -13,6 +13,7 @@ import { streamProgress } from '../http/progress-stream.js';
 
 const blankIsAbsent = (v: unknown) => (v === '' || v === undefined || v === null ? undefined : v);
 const optionalNumber = z.preprocess(blankIsAbsent, z.coerce.number().refine(Number.isFinite, 'must be a number').optional());
+// eslint-disable-next-line no-control-regex -- the pattern exists to find U+0000
 const noNul = /^[^\u0000]*$/;
 /** How often a fit's event stream reads the row: without notifications, and beside them. */
 const FIT_STREAM_POLL_MS = 1000;
