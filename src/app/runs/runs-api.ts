@@ -7,9 +7,6 @@ import type { ResonanceRow } from '../core/answers/resonance-row';
 import type { RunCertificate } from '../core/answers/run-certificate';
 import type { RunWindow } from '../core/answers/run-window';
 
-export type { CertificatePiece, RunCertificate } from '../core/answers/run-certificate';
-export type { PoleWindow, RunWindow, SweepWindow } from '../core/answers/run-window';
-
 export type RunKind = 'pole-search' | 'transmission';
 export type RunStatus = 'queued' | 'running' | 'completed' | 'failed' | 'cancelled';
 
