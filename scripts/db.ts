@@ -88,7 +88,7 @@ function startServer(port: number, fastUnsafe: boolean, log: (line: string) => v
     // A concurrent caller may have started it in the meantime; only fail if it is not up.
     if (!isReady(port)) {
       const stderr = (err as { stderr?: string }).stderr ?? String(err);
-      throw new Error(`PostgreSQL did not start on port ${port}: ${stderr.trim()} (see ${logFile})`);
+      throw new Error(`PostgreSQL did not start on port ${port}: ${stderr.trim()} (see ${logFile})`, { cause: err });
     }
   }
 }

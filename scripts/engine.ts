@@ -22,7 +22,8 @@ import { resolveState, type StateRequest } from '../shared/engine/mode-state';
 import { currentReport, husimiReport } from '../shared/engine/mode-maps';
 import { transmissionSweep } from '../shared/engine/transmission';
 import { closedCavityEigenvalues } from '../shared/engine/closed-cavity';
-import { validateCavityModel, formatIssuePath } from '../shared/model/cavity-model';
+import { formatIssuePath } from '../shared/model/cavity-model';
+import { validateCavityModel } from '../shared/model/model-validation';
 import { deriveFigures } from '../shared/model/derived-figures';
 import { lifetimeFromWidth } from '../shared/units/constants';
 import { FitFileError, FitUsageError, runFitCommand } from './engine-fit';
@@ -116,12 +117,12 @@ function readModel(file: string): unknown {
   try {
     text = readFileSync(file, 'utf8');
   } catch (err) {
-    throw new Error(`cannot read ${file}: ${(err as Error).message}`);
+    throw new Error(`cannot read ${file}: ${(err as Error).message}`, { cause: err });
   }
   try {
     return JSON.parse(text);
   } catch (err) {
-    throw new Error(`${file} is not valid JSON: ${(err as Error).message}`);
+    throw new Error(`${file} is not valid JSON: ${(err as Error).message}`, { cause: err });
   }
 }
 

@@ -1,10 +1,12 @@
 // `npm test`: the whole set-up (browser, PostgreSQL) and every test suite in turn:
-// typecheck, Angular component specs, engine + server + API tests, the production
-// build, and the browser tests. Ends with one line "tests: N passed, N failed".
+// typecheck, lint (ESLint, no warnings), format (Prettier --check), Angular component
+// specs, engine + structure + server + API tests with coverage, the production build,
+// and the browser tests. Ends with one line "tests: N passed, N failed".
 import { spawnSync } from 'node:child_process';
 import { existsSync, mkdirSync, readFileSync, rmSync } from 'node:fs';
 import { join } from 'node:path';
 import { projectRoot } from '../server/config.js';
+import { printCoverageByArea } from './coverage-summary.js';
 import { ensureDatabase } from './db.js';
 
 const out = join(projectRoot, 'test-output');
@@ -34,12 +36,17 @@ await ensureDatabase({ fastUnsafe: true, databases: [] });
 
 const results: Record<string, boolean> = {};
 results.typecheck = step('typecheck', 'npm', ['run', '--silent', 'typecheck']);
+results.lint = step('lint (ESLint, --max-warnings 0)', bin('eslint'), ['.', '--max-warnings', '0']);
+results.format = step('format (Prettier --check; `npm run format` fixes)', bin('prettier'), ['--check', '.', '--log-level', 'warn']);
 results.client = step('client component specs (ng test)', bin('ng'), [
   'test', '--watch=false', '--reporters=default', '--reporters=json', `--output-file=${join(out, 'reports', 'client.json')}`,
 ]);
-results.server = step('engine, server and API tests (vitest)', bin('vitest'), [
+rmSync(join(out, 'coverage'), { recursive: true, force: true });
+results.server = step('engine, structure, server and API tests (vitest, with coverage)', bin('vitest'), [
   'run', '--config', 'vitest.config.ts', '--reporter=default', '--reporter=json', `--outputFile.json=${join(out, 'reports', 'server.json')}`,
+  '--coverage',
 ]);
+printCoverageByArea(join(out, 'coverage', 'coverage-summary.json'), projectRoot);
 results.build = step('production build of the client', bin('ng'), ['build']);
 results.e2e = results.build && step('browser tests (Playwright + Debian chromium)', bin('vitest'), [
   'run', '--config', 'vitest.e2e.config.ts', '--reporter=default', '--reporter=json', `--outputFile.json=${join(out, 'reports', 'e2e.json')}`,

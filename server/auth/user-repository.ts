@@ -1,4 +1,4 @@
-import { and, eq, sql } from 'drizzle-orm';
+import { eq, sql } from 'drizzle-orm';
 import type { Queryable } from '../db/client.js';
 import { memberships, researchGroups, type MembershipRole } from '../db/schema/groups.js';
 import { users } from '../db/schema/users.js';
@@ -49,13 +49,4 @@ export async function groupsOfUser(q: Queryable, userId: string): Promise<GroupO
     .innerJoin(researchGroups, eq(researchGroups.id, memberships.groupId))
     .where(eq(memberships.userId, userId))
     .orderBy(researchGroups.name);
-}
-
-export async function isAdminSomewhere(q: Queryable, userId: string): Promise<boolean> {
-  const rows = await q
-    .select({ id: memberships.id })
-    .from(memberships)
-    .where(and(eq(memberships.userId, userId), eq(memberships.role, 'admin')))
-    .limit(1);
-  return rows.length > 0;
 }

@@ -9,11 +9,10 @@ import type { FitResult } from '../../shared/engine/fit.js';
 import type { PoleComparison } from '../fits/fit-comparison.js';
 import { asc, eq, and } from 'drizzle-orm';
 import { z } from 'zod';
-import type { Queryable } from '../db/client.js';
 import { resonances } from '../db/schema/catalogue.js';
 import { measuredTraces, peakFits } from '../db/schema/fits.js';
 import { authorEmails } from './author-emails.js';
-import type { BackupSection, RestoredIds } from './backup-sections.js';
+import type { BackupSection, RestoredIds } from './backup-section.js';
 import { remapJsonIds } from './remap-json-ids.js';
 import { geometryFields, validityFields } from './backup-format.js';
 

@@ -8,14 +8,13 @@
 import type { ModeMapPayload } from '../../shared/api/mode-maps.js';
 import { and, asc, eq, inArray } from 'drizzle-orm';
 import { z } from 'zod';
-import type { Queryable } from '../db/client.js';
 import { resonances } from '../db/schema/catalogue.js';
 import { modeMaps, resonanceCurrents } from '../db/schema/mode-maps.js';
 import { runs } from '../db/schema/runs.js';
 import { peakFits } from '../db/schema/fits.js';
 import { modeMapCacheKey } from '../modemaps/mode-map-service.js';
 import { authorEmails } from './author-emails.js';
-import type { BackupSection } from './backup-sections.js';
+import type { BackupSection } from './backup-section.js';
 import { remapJsonIds } from './remap-json-ids.js';
 
 const id = z.uuid();

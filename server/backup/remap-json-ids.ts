@@ -1,4 +1,4 @@
-import type { RestoredIds } from './backup-sections.js';
+import type { RestoredIds } from './backup-section.js';
 
 const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 

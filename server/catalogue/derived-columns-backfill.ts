@@ -2,7 +2,7 @@ import { eq, isNull, or } from 'drizzle-orm';
 import type { Db } from '../db/client.js';
 import { resonances } from '../db/schema/catalogue.js';
 import { modelVersions } from '../db/schema/models.js';
-import { validateCavityModel } from '../../shared/model/cavity-model.js';
+import { validateCavityModel } from '../../shared/model/model-validation.js';
 import { resonanceFigures, resonancePhysicsOf, type ResonancePhysics } from '../../shared/model/resonance-validity.js';
 import { geometryColumns, geometryOf, keyDimensionsOf, type GeometryColumns } from '../models/model-figures.js';
 

@@ -3,7 +3,8 @@
  * compute-pool thread (compute-tasks.ts 'device-layout'): rasterising and tracing is geometry
  * work and never runs on the API's event loop.
  */
-import { validateCavityModel, formatIssuePath } from '../../shared/model/cavity-model.js';
+import { formatIssuePath } from '../../shared/model/cavity-model.js';
+import { validateCavityModel } from '../../shared/model/model-validation.js';
 import { buildDeviceLayout, type DeviceLayout } from '../../shared/layout/device-layout.js';
 import { writeGdsii } from '../../shared/layout/gdsii-writer.js';
 import { ApiError } from '../http/error-handler.js';

@@ -112,12 +112,6 @@ export async function findFit(q: Queryable, groupId: string, id: string) {
   return row;
 }
 
-/** The fit row by id alone (the worker's view; the job carries no group). */
-export async function fitById(q: Queryable, id: string) {
-  const [row] = await q.select().from(peakFits).where(eq(peakFits.id, id));
-  return row;
-}
-
 /** Fitted resonances of a fit (catalogue ids), by energy. */
 export async function catalogueRowsOfFit(q: Queryable, fitId: string) {
   return q.select({ id: resonances.id, energy: resonances.energy }).from(resonances).where(eq(resonances.fitId, fitId)).orderBy(asc(resonances.energy));

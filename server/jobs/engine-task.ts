@@ -6,7 +6,7 @@
 import { buildCavitySystem, EffectiveHamiltonian } from '../../shared/engine/effective-hamiltonian.js';
 import type { WorkControl } from '../../shared/engine/operator.js';
 import { findPoles, findPolesWith, poleWorkSetup } from '../../shared/engine/poles.js';
-import type { CertificatePiece, Pole, PoleSearchOptions, PoleSearchResult } from '../../shared/engine/pole-types.js';
+import type { CertificatePiece, PoleSearchOptions, PoleSearchResult } from '../../shared/engine/pole-types.js';
 import { PoleThreadPool } from './pole-pool.js';
 import { transmissionSweep } from '../../shared/engine/transmission.js';
 import { withCurrents, type RunPole } from '../modemaps/pole-currents.js';

@@ -1,4 +1,5 @@
-import { cavityModelSchema, validateCavityModel, type CavityModel, type ModelIssue, type Shape } from '../../shared/model/cavity-model.js';
+import { cavityModelSchema, type CavityModel, type ModelIssue, type Shape } from '../../shared/model/cavity-model.js';
+import { validateCavityModel } from '../../shared/model/model-validation.js';
 import { deriveFigures, type DerivedFigures } from '../../shared/model/derived-figures.js';
 import { physicsUnits, type PhysicsKind } from '../../shared/model/physics-mode.js';
 import { ApiError } from '../http/error-handler.js';

@@ -108,8 +108,8 @@ export function complexEigenvalues(r: number, A: Float64Array): Float64Array {
     const discR = hr * hr - hI * hI + (br * cr - bi * ci);
     const discI = 2 * hr * hI + (br * ci + bi * cr);
     const mod = Math.hypot(discR, discI);
-    let sqR = Math.sqrt(Math.max(0, 0.5 * (mod + discR)));
-    let sqI = Math.sqrt(Math.max(0, 0.5 * (mod - discR))) * (discI < 0 ? -1 : 1);
+    const sqR = Math.sqrt(Math.max(0, 0.5 * (mod + discR)));
+    const sqI = Math.sqrt(Math.max(0, 0.5 * (mod - discR))) * (discI < 0 ? -1 : 1);
     // pick the eigenvalue d − (bc)/(h ± sqrt) closest to d: μ = (a+d)/2 ± sqrt, nearer d
     const m1r = 0.5 * (ar + dr) + sqR, m1i = 0.5 * (ai + di) + sqI;
     const m2r = 0.5 * (ar + dr) - sqR, m2i = 0.5 * (ai + di) - sqI;
@@ -119,7 +119,6 @@ export function complexEigenvalues(r: number, A: Float64Array): Float64Array {
       // exceptional shift to break cycles
       muR += abs(hi, hi - 1);
       muI += 0.5 * abs(hi, hi - 1);
-      sqR = sqI = 0;
     }
     for (let k = l; k <= hi; k++) {
       H[re(k, k)] -= muR;

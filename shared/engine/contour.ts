@@ -311,11 +311,10 @@ function gradedBreaks(y0: number, y1: number, gap: number, maxPanel: number): nu
       out.push(y);
       y *= 8;
     }
-    let last = out.length ? out[out.length - 1] : 0;
+    const last = out.length ? out[out.length - 1] : 0;
     if (last < len) {
       const rest = uniformBreaks(last, len, maxPanel);
       for (let k = 1; k < rest.length; k++) out.push(rest[k]);
-      last = len;
     }
     if (out.length === 0 || out[out.length - 1] < len) out.push(len);
     return out.map((v) => Math.sign(end) * v);

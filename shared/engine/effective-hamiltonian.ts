@@ -4,7 +4,8 @@
  * The pattern is H's plus one dense W×W block per lead mouth, fixed for all z.
  */
 import { fluxPerPlaquette } from '../units/constants';
-import { validateCavityModel, modelHopping, modelMassRatio, formatIssuePath, type CavityModel, type LeadSide, type ModelIssue } from '../model/cavity-model';
+import { modelHopping, modelMassRatio, formatIssuePath, type CavityModel, type LeadSide, type ModelIssue } from '../model/cavity-model';
+import { validateCavityModel } from '../model/model-validation';
 import { mouthSites } from '../model/geometry';
 import { evaluatePotential } from '../model/potential';
 import { buildLattice, hamiltonianEntries, addHamiltonian, indexSites, type CavityLattice } from './lattice';

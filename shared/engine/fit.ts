@@ -113,7 +113,10 @@ export class FitInputError extends Error {
   }
 }
 
-/** Full width at half maximum of a single-peak curve f on [a, b], by bisection around its sampled maximum; null when the half level is not crossed on both sides. */
+/**
+ * Full width at half maximum of a single-peak curve f on [a, b], by bisection around its
+ * sampled maximum; null when the half level is not crossed on both sides.
+ */
 function fwhmOf(f: (x: number) => number, center: number, a: number, b: number): number | null {
   const samples = 801;
   let best = center;
@@ -237,7 +240,7 @@ export function fitPeaks(xIn: ArrayLike<number>, yIn: ArrayLike<number>, options
     const d = free.map((k) => Math.sqrt(jtjAll.get(k, k)) || 1);
     const scaled = new Matrix(free.length, free.length);
     for (let a = 0; a < free.length; a++) for (let b = 0; b < free.length; b++) scaled.set(a, b, jtjAll.get(free[a], free[b]) / (d[a] * d[b]));
-    let inv: Matrix | null = null;
+    let inv: Matrix | null;
     try {
       inv = inverse(scaled);
     } catch {

@@ -19,7 +19,13 @@
  */
 import type { EffectiveHamiltonian } from './effective-hamiltonian';
 import { evaluateBlockRational, fitBlockRational, matMul, solveDense, type BlockRational } from './block-aaa';
-import { mouthOrder, pointFromMouth, type TransmissionPoint, type TransmissionSolver } from './transmission';
+import { mouthOrder, pointFromMouth, type TransmissionPoint } from './scattering-point';
+
+/** What the interpolation asks of a direct solver (TransmissionSolver in transmission.ts). */
+export interface MouthSolver {
+  at(energy: number): TransmissionPoint;
+  atMouth(energy: number): { point: TransmissionPoint; mouth: Float64Array };
+}
 
 /** Options of the interpolated evaluation. */
 export interface MouthInterpolationOptions {
@@ -79,7 +85,7 @@ export class MouthInterpolation {
 
   constructor(
     private readonly op: EffectiveHamiltonian,
-    private readonly solver: TransmissionSolver,
+    private readonly solver: MouthSolver,
     readonly energies: number[],
     options: MouthInterpolationOptions = {},
     private readonly onSolve: () => void = () => {},

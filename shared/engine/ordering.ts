@@ -235,17 +235,15 @@ class Dissector {
     const order = this.order;
     let root = order[lo];
     let depth = 0;
-    let reached = 0;
     // A few sweeps to the farthest vertex approximate a peripheral one (George & Liu 1979).
     for (let sweep = 0; sweep < 4; sweep++) {
       const res = this.bfs(root, stamp);
-      reached = res.count;
       if (sweep > 0 && res.depth <= depth) break;
       depth = res.depth;
       root = res.last;
     }
     const res = this.bfs(root, stamp);
-    reached = res.count;
+    const reached = res.count;
     depth = res.depth;
     const size = hi - lo;
     if (reached < size) {

@@ -5,7 +5,7 @@
  * shape tree nested 10,000 deep is refused with a 400 instead of overflowing the
  * stack of the schema check that follows.
  */
-import type { ModelIssue } from './cavity-model';
+import type { ModelIssue } from './model-issue';
 
 export const DOCUMENT_LIMITS = {
   /** Levels of union/subtract nesting in the shape tree (the top shape is level 1). */

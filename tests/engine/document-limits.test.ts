@@ -1,6 +1,7 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { validateCavityModel, type Shape } from '../../shared/model/cavity-model';
+import type { Shape } from '../../shared/model/cavity-model';
+import { validateCavityModel } from '../../shared/model/model-validation';
 import { DOCUMENT_LIMITS } from '../../shared/model/document-limits';
 import { rasteriseShape, rasterWork } from '../../shared/model/geometry';
 

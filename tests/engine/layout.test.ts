@@ -3,7 +3,7 @@
 import fc from 'fast-check';
 import { parseGDS, RecordType } from 'gdsii';
 import { describe, expect, it } from 'vitest';
-import { validateCavityModel } from '../../shared/model/cavity-model';
+import { validateCavityModel } from '../../shared/model/model-validation';
 import { buildDeviceLayout, LAYERS, LEAD_STUB_SPACINGS } from '../../shared/layout/device-layout';
 import { CHORD_TOLERANCE_NM, drawnOutline } from '../../shared/layout/drawn-outline';
 import { gdsiiReal, writeGdsii } from '../../shared/layout/gdsii-writer';

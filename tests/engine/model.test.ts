@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { validateCavityModel, formatIssuePath, type CavityModelInput, type ModelIssue } from '../../shared/model/cavity-model';
+import { formatIssuePath, type CavityModelInput, type ModelIssue } from '../../shared/model/cavity-model';
+import { validateCavityModel } from '../../shared/model/model-validation';
 import { rasteriseShape } from '../../shared/model/geometry';
 import { deriveFigures, dispersionError } from '../../shared/model/derived-figures';
 import { siteUniform } from '../../shared/model/site-noise';

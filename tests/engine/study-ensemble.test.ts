@@ -5,7 +5,7 @@ import { roughenMask } from '../../shared/engine/study/edge-roughness';
 import { distribution } from '../../shared/engine/study/ensemble-statistics';
 import { numberAtPath, withNumberAtPath } from '../../shared/engine/study/model-path';
 import { parseParameterValues } from '../../shared/engine/study/parameter-values';
-import { validateCavityModel } from '../../shared/model/cavity-model';
+import { validateCavityModel } from '../../shared/model/model-validation';
 import { rasteriseShape } from '../../shared/model/geometry';
 
 // A small dot (139 sites): a disk of 30 nm between two 4-site leads, GaAs, a = 5 nm.

@@ -153,8 +153,9 @@ describe('route × caller access matrix', () => {
     expect(groupRoutes.length).toBeGreaterThan(20);
     for (const route of groupRoutes) {
       const [method, path] = route.split(' ') as [string, string];
-      const foreign = await (admin.agent as unknown as Record<string, (u: string) => request.Test>)[method]!.call(admin.agent, concrete(path, other.groupId)).set('X-CSRF-Token', admin.csrf);
-      const missing = await (admin.agent as unknown as Record<string, (u: string) => request.Test>)[method]!.call(admin.agent, concrete(path, randomUUID())).set('X-CSRF-Token', admin.csrf);
+      const send = (admin.agent as unknown as Record<string, (u: string) => request.Test>)[method]!;
+      const foreign = await send.call(admin.agent, concrete(path, other.groupId)).set('X-CSRF-Token', admin.csrf);
+      const missing = await send.call(admin.agent, concrete(path, randomUUID())).set('X-CSRF-Token', admin.csrf);
       expect(foreign.status, route).toBe(404);
       expect(foreign.body, route).toEqual(missing.body);
     }

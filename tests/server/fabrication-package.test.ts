@@ -16,7 +16,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { modeImages } from '../../server/db/schema/catalogue.js';
 import { buildDeviceLayout, LAYERS } from '../../shared/layout/device-layout.js';
 import { signedArea } from '../../shared/layout/polygon.js';
-import { validateCavityModel } from '../../shared/model/cavity-model.js';
+import { validateCavityModel } from '../../shared/model/model-validation.js';
 import { fabricationModel, insertResonances } from './fabrication-fixture.js';
 import { createLab, type Lab } from './lab-fixture.js';
 import { signInAs, type SignedIn } from './sign-in-as.js';

@@ -1,6 +1,6 @@
 import { PNG } from 'pngjs';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { validateCavityModel } from '../../shared/model/cavity-model.js';
+import { validateCavityModel } from '../../shared/model/model-validation.js';
 import { createLab, type Lab } from './lab-fixture.js';
 import { signInAs, type SignedIn } from './sign-in-as.js';
 import { startTestApp, type TestApp } from './test-app.js';

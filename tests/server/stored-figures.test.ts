@@ -8,7 +8,7 @@ import { afterAll, beforeAll, beforeEach, describe, expect, it, vi } from 'vites
 import { inlineCompute } from '../../server/compute/compute-pool.js';
 import { modelVersions } from '../../server/db/schema/models.js';
 import { backfillDerivedFigures } from '../../server/models/model-backfill.js';
-import * as cavityModel from '../../shared/model/cavity-model.js';
+import * as cavityModel from '../../shared/model/model-validation.js';
 import * as derivedFigures from '../../shared/model/derived-figures.js';
 import * as geometry from '../../shared/model/geometry.js';
 import { createLab, type Lab } from './lab-fixture.js';
@@ -24,8 +24,8 @@ vi.mock('../../shared/model/geometry.js', async (importOriginal) => {
   const real = await importOriginal<typeof import('../../shared/model/geometry.js')>();
   return { ...real, rasteriseShape: vi.fn(real.rasteriseShape) };
 });
-vi.mock('../../shared/model/cavity-model.js', async (importOriginal) => {
-  const real = await importOriginal<typeof import('../../shared/model/cavity-model.js')>();
+vi.mock('../../shared/model/model-validation.js', async (importOriginal) => {
+  const real = await importOriginal<typeof import('../../shared/model/model-validation.js')>();
   return { ...real, validateCavityModel: vi.fn(real.validateCavityModel) };
 });
 

@@ -5,7 +5,6 @@ export * from './invitations.js';
 export * from './credentials.js';
 export * from './audit.js';
 export * from './outbox.js';
-export * from '../relations.js';
 export * from './models.js';
 export * from './runs.js';
 export * from './catalogue.js';

@@ -10,7 +10,8 @@
  * All random numbers of realisation r come from its seed realisationSeed(seed, r), so
  * a realisation is reproduced from (model, definition, r) alone.
  */
-import { validateCavityModel, type CavityModel } from '../../model/cavity-model';
+import { type CavityModel } from '../../model/cavity-model';
+import { validateCavityModel } from '../../model/model-validation';
 import type { PoleWindow } from '../pole-types';
 import { numberAtPath, withNumberAtPath } from './model-path';
 import { maskToBitmap, roughenMask, type RoughnessSpec } from './edge-roughness';

@@ -3,7 +3,7 @@ import { HttpTestingController, provideHttpClientTesting } from '@angular/common
 import { TestBed } from '@angular/core/testing';
 import { provideRouter } from '@angular/router';
 import { Auth } from '../core/auth/auth';
-import { demoSession } from '../testing/demo-session';
+import { demoSession } from '../core/testing/demo-session';
 import { AccountSettings } from './account-settings';
 
 function setUp() {

@@ -3,7 +3,7 @@ import { HttpTestingController, provideHttpClientTesting } from '@angular/common
 import { TestBed } from '@angular/core/testing';
 import { provideRouter, Router } from '@angular/router';
 import { RouterTestingHarness } from '@angular/router/testing';
-import { provideFakeCurrentGroup } from '../models/fake-current-group';
+import { provideFakeCurrentGroup } from '../core/testing/fake-current-group';
 import type { ResonanceRow } from './catalogue-api';
 import { CatalogueTable } from './catalogue-table';
 

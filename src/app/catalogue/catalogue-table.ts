@@ -16,7 +16,7 @@ import { catchError, combineLatest, debounceTime, map, of, switchMap } from 'rxj
 import { MATERIAL_PRESETS } from '../../../shared/model/materials';
 import { toProblem } from '../core/errors/problem';
 import { CurrentGroup } from '../core/group/current-group';
-import { modelFamilies } from '../models/model-list';
+import { modelFamilies } from '../core/api/model-families';
 import { type CataloguePage, CatalogueApi } from './catalogue-api';
 import { countLabel } from './count-label';
 import {
@@ -28,8 +28,8 @@ import {
   queryToView,
   viewToQuery,
 } from './catalogue-filter';
-import { EnergyPipe, LifetimePipe, QualityPipe, WidthPipe } from './energy-format';
-import { MaterialLabelPipe } from './material-label';
+import { EnergyPipe, LifetimePipe, QualityPipe, WidthPipe } from '../core/format/energy-format';
+import { MaterialLabelPipe } from '../core/format/material-label';
 
 type FilterControls = { [K in keyof Omit<CatalogueFilter, 'tags'>]: FormControl<string> } & { tags: FormControl<string> };
 

@@ -5,7 +5,7 @@ import { provideEchartsCore } from 'ngx-echarts';
 export const catalogueRoutes: Routes = [
   {
     path: '',
-    providers: [provideEchartsCore({ echarts: () => import('../runs/echarts') })],
+    providers: [provideEchartsCore({ echarts: () => import('../core/charts/echarts') })],
     children: [
       { path: '', loadComponent: () => import('./catalogue-table').then((m) => m.CatalogueTable), title: 'Catalogue · Poleward' },
       {

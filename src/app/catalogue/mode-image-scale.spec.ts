@@ -1,7 +1,7 @@
 import { provideHttpClient } from '@angular/common/http';
 import { HttpTestingController, provideHttpClientTesting } from '@angular/common/http/testing';
 import { TestBed } from '@angular/core/testing';
-import { settle } from '../testing/next-request';
+import { settle } from '../core/testing/next-request';
 import { ModeImageScale } from './mode-image-scale';
 
 describe('ModeImageScale', () => {

@@ -1,7 +1,7 @@
 import { ChangeDetectionStrategy, Component, computed, inject, input } from '@angular/core';
 import { toObservable, toSignal } from '@angular/core/rxjs-interop';
 import { catchError, of, switchMap } from 'rxjs';
-import { ModelsApi } from '../models/models-api';
+import { ModelsApi } from '../core/api/models-api';
 import { scaleBarLength } from './mode-map-data';
 
 /**

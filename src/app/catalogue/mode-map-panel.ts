@@ -14,7 +14,7 @@ import { ErrorReport } from '../core/errors/error-report';
 import { decodeModeMap, type ModeMapPayload } from './mode-map-data';
 import { ModeMapApi, type HusimiSettings, type ModeMapJob, type ModeMapRequest } from './mode-map-api';
 import { ModeMapView, type ModeMapLayers } from './mode-map-view';
-import { significant } from './energy-format';
+import { significant } from '../core/format/energy-format';
 
 type Source = 'mode' | 'scattering';
 

@@ -1,5 +1,5 @@
 import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
-import { formatWidth } from './energy-format';
+import { formatWidth } from '../core/format/energy-format';
 
 /** The partial widths Γ_ℓ of one resonance as a small bar list, each bar its share of Γ. */
 @Component({

@@ -5,8 +5,8 @@ import { provideRouter } from '@angular/router';
 import { RouterTestingHarness } from '@angular/router/testing';
 import { Auth } from '../core/auth/auth';
 import { authInterceptor } from '../core/auth/auth-interceptor';
-import { demoSession } from '../testing/demo-session';
-import { nextRequest, settle } from '../testing/next-request';
+import { demoSession } from '../core/testing/demo-session';
+import { nextRequest, settle } from '../core/testing/next-request';
 import { Dashboard } from './dashboard';
 
 describe('Dashboard', () => {

@@ -11,7 +11,7 @@ import { Auth } from '../core/auth/auth';
 import { roleLabel } from '../core/auth/role-label';
 import { ErrorReport } from '../core/errors/error-report';
 import { CurrentGroup } from '../core/group/current-group';
-import { MembersApi } from '../members/members-api';
+import { MembersApi } from '../core/api/members-api';
 import { actionDetail, actionLabel } from './action-label';
 import { DashboardApi } from './dashboard-api';
 

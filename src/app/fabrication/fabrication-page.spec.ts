@@ -3,8 +3,8 @@ import { HttpTestingController, provideHttpClientTesting } from '@angular/common
 import { TestBed } from '@angular/core/testing';
 import { provideRouter } from '@angular/router';
 import type { FabricationItem } from '../../../shared/api/fabrication';
-import { provideFakeCurrentGroup } from '../models/fake-current-group';
-import { settle } from '../testing/next-request';
+import { provideFakeCurrentGroup } from '../core/testing/fake-current-group';
+import { settle } from '../core/testing/next-request';
 import { FabricationPage } from './fabrication-page';
 
 const base = '/api/groups/g1/resonances/r1/fabrication';

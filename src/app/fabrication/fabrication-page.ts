@@ -8,7 +8,7 @@ import { RouterLink } from '@angular/router';
 import type { FabricationItem } from '../../../shared/api/fabrication';
 import { ErrorReport } from '../core/errors/error-report';
 import { CurrentGroup } from '../core/group/current-group';
-import { formatEnergy, formatQuality, formatWidth, significant } from '../catalogue/energy-format';
+import { formatEnergy, formatQuality, formatWidth, significant } from '../core/format/energy-format';
 import { CatalogueImportForm } from './catalogue-import-form';
 import { FabricationApi } from './fabrication-api';
 import { STATE_ICONS, stateLabel } from './state-label';

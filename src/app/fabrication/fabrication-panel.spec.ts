@@ -3,8 +3,8 @@ import { HttpTestingController, provideHttpClientTesting } from '@angular/common
 import { TestBed } from '@angular/core/testing';
 import type { FabricationRecord } from '../../../shared/api/fabrication';
 import type { Role } from '../core/auth/session';
-import { provideFakeCurrentGroup } from '../models/fake-current-group';
-import { settle } from '../testing/next-request';
+import { provideFakeCurrentGroup } from '../core/testing/fake-current-group';
+import { settle } from '../core/testing/next-request';
 import { FabricationPanel } from './fabrication-panel';
 
 const base = '/api/groups/g1/resonances/r1';

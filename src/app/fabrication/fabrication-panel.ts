@@ -13,8 +13,8 @@ import type { FabricationRecord, ResonanceComment } from '../../../shared/api/fa
 import { transitionOf, type FabricationAction } from '../../../shared/fabrication/fabrication-states';
 import { ErrorReport } from '../core/errors/error-report';
 import { CurrentGroup } from '../core/group/current-group';
-import { formatEnergy, formatWidth, significant } from '../catalogue/energy-format';
-import { MembersApi, type Member } from '../members/members-api';
+import { formatEnergy, formatWidth, significant } from '../core/format/energy-format';
+import { MembersApi, type Member } from '../core/api/members-api';
 import { FitsApi } from '../fits/fits-api';
 import { FabricationApi, type TransitionRequest } from './fabrication-api';
 import { STATE_ICONS, stateLabel } from './state-label';

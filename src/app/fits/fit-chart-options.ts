@@ -1,5 +1,5 @@
 import type { EChartsCoreOption } from 'echarts/core';
-import type { ChartColours } from '../runs/chart-colours';
+import type { ChartColours } from '../core/charts/chart-colours';
 import type { FitResult } from './fits-api';
 
 /**

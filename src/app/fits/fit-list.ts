@@ -10,7 +10,7 @@ import { MatSelectModule } from '@angular/material/select';
 import { Router, RouterLink } from '@angular/router';
 import { ErrorReport } from '../core/errors/error-report';
 import { CurrentGroup } from '../core/group/current-group';
-import { significant } from '../catalogue/energy-format';
+import { significant } from '../core/format/energy-format';
 import { FitsApi, type FitDetail, type TracePreview, type TraceSummary } from './fits-api';
 
 const LINESHAPE_WORDS: Record<string, string> = { bw: 'Breit–Wigner', fano: 'Fano', thermal: 'thermal Breit–Wigner', 'thermal-fano': 'thermal Fano' };

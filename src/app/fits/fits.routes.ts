@@ -5,7 +5,7 @@ import { provideEchartsCore } from 'ngx-echarts';
 export const fitsRoutes: Routes = [
   {
     path: '',
-    providers: [provideEchartsCore({ echarts: () => import('../runs/echarts') })],
+    providers: [provideEchartsCore({ echarts: () => import('../core/charts/echarts') })],
     children: [
       { path: '', loadComponent: () => import('./fit-list').then((m) => m.FitList), title: 'Fits · Poleward' },
       { path: 'new', loadComponent: () => import('./fit-workspace').then((m) => m.FitWorkspace), title: 'New fit · Poleward' },

@@ -6,7 +6,7 @@ import { Router, provideRouter, withComponentInputBinding } from '@angular/route
 import { RouterTestingHarness } from '@angular/router/testing';
 import { Auth } from '../core/auth/auth';
 import { authInterceptor } from '../core/auth/auth-interceptor';
-import { nextRequest, settle } from '../testing/next-request';
+import { nextRequest, settle } from '../core/testing/next-request';
 import { Invitation } from './invitation';
 
 @Component({ template: 'dashboard' })

@@ -3,7 +3,7 @@ import { HttpTestingController, provideHttpClientTesting } from '@angular/common
 import { TestBed } from '@angular/core/testing';
 import { MatDialog } from '@angular/material/dialog';
 import { of } from 'rxjs';
-import { provideFakeCurrentGroup } from '../models/fake-current-group';
+import { provideFakeCurrentGroup } from '../core/testing/fake-current-group';
 import { GroupBackup } from './group-backup';
 
 function setUp(confirm: boolean) {

@@ -6,8 +6,8 @@ import { RouterTestingHarness } from '@angular/router/testing';
 import { Auth } from '../core/auth/auth';
 import { authInterceptor } from '../core/auth/auth-interceptor';
 import type { Role } from '../core/auth/session';
-import { demoSession } from '../testing/demo-session';
-import { nextRequest, settle } from '../testing/next-request';
+import { demoSession } from '../core/testing/demo-session';
+import { nextRequest, settle } from '../core/testing/next-request';
 import { Members } from './members';
 
 const members = [

@@ -20,7 +20,7 @@ import { ErrorReport } from '../core/errors/error-report';
 import { fieldError } from '../core/errors/field-error';
 import { CurrentGroup } from '../core/group/current-group';
 import { GroupBackup } from './group-backup';
-import { type Member, MembersApi, type PendingInvitation } from './members-api';
+import { type Member, MembersApi, type PendingInvitation } from '../core/api/members-api';
 
 /**
  * The group's members. Admins invite by e-mail, change roles and remove people; everyone

@@ -1,4 +1,4 @@
-import { validateCavityModel } from '../../../shared/model/cavity-model';
+import { validateCavityModel } from '../../../shared/model/model-validation';
 import { fieldInWords, issueInWords } from './issue-words';
 
 describe('issueInWords', () => {

@@ -1,5 +1,5 @@
 import { rasteriseShape } from '../../../shared/model/geometry';
-import { validateCavityModel } from '../../../shared/model/cavity-model';
+import { validateCavityModel } from '../../../shared/model/model-validation';
 import { addLeadStub } from './lead-stub';
 
 // An ellipse dot in a 60 × 40 grid (a = 5 nm): it touches no grid edge, so leads need stubs.

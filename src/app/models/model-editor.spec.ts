@@ -2,10 +2,10 @@ import { provideHttpClient } from '@angular/common/http';
 import { HttpTestingController, provideHttpClientTesting } from '@angular/common/http/testing';
 import { TestBed } from '@angular/core/testing';
 import { provideRouter } from '@angular/router';
-import { provideFakeCurrentGroup } from './fake-current-group';
+import { provideFakeCurrentGroup } from '../core/testing/fake-current-group';
 import { ModelEditor } from './model-editor';
 import { starterModel } from './model-form';
-import type { ModelDetail } from './models-api';
+import type { ModelDetail } from '../core/api/models-api';
 
 /** A saved model as GET /models/:id answers, built on the editor's own starting document. */
 const saved: ModelDetail = {

@@ -18,25 +18,25 @@ import {
   type CavityModelInput,
   MAX_GRID_POINTS,
   shapeSchema,
-  validateCavityModel,
 } from '../../../shared/model/cavity-model';
+import { validateCavityModel } from '../../../shared/model/model-validation';
 import { rasteriseShape } from '../../../shared/model/geometry';
 import { CurrentGroup } from '../core/group/current-group';
 import { ErrorReport } from '../core/errors/error-report';
 import { fieldError } from '../core/errors/field-error';
 import { toProblem } from '../core/errors/problem';
-import { formatEnergy } from '../catalogue/energy-format';
+import { formatEnergy } from '../core/format/energy-format';
 import type { ChannelThreshold, DerivedFigures } from '../../../shared/model/derived-figures';
-import { injectCanDesign } from './design-permission';
+import { injectCanDesign } from '../core/group/design-permission';
 import { LatticePreview } from './lattice-preview';
 import { countSites } from './lattice-mask-path';
 import { issueInWords } from './issue-words';
 import { addLeadStub } from './lead-stub';
 import { type LeadForm, customMaterial, fillForm, leadGroup, materialChoices, modelForm, readForm, starterModel } from './model-form';
-import { type PlacedIssue, clearPlacedIssues, dottedPath, placeIssues } from './model-issues';
+import { type PlacedIssue, clearPlacedIssues, dottedPath, placeIssues } from '../core/errors/model-issues';
 import { PotentialEditor } from './potential-editor';
 import { ShapeEditor } from './shape-editor';
-import { type ModelDetail, ModelsApi } from './models-api';
+import { type ModelDetail, ModelsApi } from '../core/api/models-api';
 
 /** What the live drawing needs: the rasterised mask of the current form, or why there is none. */
 interface Drawing {

@@ -13,12 +13,11 @@ import { RouterLink } from '@angular/router';
 import { catchError, combineLatest, debounceTime, distinctUntilChanged, of, startWith, switchMap, tap } from 'rxjs';
 import { CurrentGroup } from '../core/group/current-group';
 import { toProblem } from '../core/errors/problem';
-import { formatLength } from '../catalogue/energy-format';
-import { MaterialLabelPipe } from '../catalogue/material-label';
-import { injectCanDesign } from './design-permission';
-import { type ModelSummary, ModelsApi } from './models-api';
-
-export const modelFamilies = ['rectangle', 'disk', 'ellipse', 'stadium', 'annulus', 'polygon', 'sites', 'bitmap', 'composite'];
+import { formatLength } from '../core/format/energy-format';
+import { MaterialLabelPipe } from '../core/format/material-label';
+import { injectCanDesign } from '../core/group/design-permission';
+import { modelFamilies } from '../core/api/model-families';
+import { type ModelSummary, ModelsApi } from '../core/api/models-api';
 
 /** The group's cavity models, searchable by name and filtered by geometry family. */
 @Component({

@@ -1,5 +1,5 @@
 import type { Routes } from '@angular/router';
-import { designerOnly } from './designer-only';
+import { designerOnly } from '../core/group/designer-only';
 
 /** Mounted at /g/:groupSlug/models. */
 export const modelsRoutes: Routes = [

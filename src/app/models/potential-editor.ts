@@ -5,7 +5,7 @@ import { MatIconModule } from '@angular/material/icon';
 import { MatInputModule } from '@angular/material/input';
 import { MatMenuModule } from '@angular/material/menu';
 import { MatTooltipModule } from '@angular/material/tooltip';
-import type { PlacedIssue } from './model-issues';
+import type { PlacedIssue } from '../core/errors/model-issues';
 import { type PotentialKind, defaultTerm, newSeed, potentialKindLabels, potentialNumberFields } from './potential-kinds';
 import type { GridExtent } from './shape-kinds';
 

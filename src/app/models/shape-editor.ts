@@ -5,7 +5,7 @@ import { MatIconModule } from '@angular/material/icon';
 import { MatInputModule } from '@angular/material/input';
 import { MatSelectModule } from '@angular/material/select';
 import { MatTooltipModule } from '@angular/material/tooltip';
-import type { PlacedIssue } from './model-issues';
+import type { PlacedIssue } from '../core/errors/model-issues';
 import { type GridExtent, type ShapeKind, defaultShape, shapeKindLabels, shapeKinds, shapeNumberFields } from './shape-kinds';
 
 type ShapeValue = Record<string, unknown>;

@@ -4,7 +4,7 @@ import { TestBed } from '@angular/core/testing';
 import { provideRouter, withComponentInputBinding } from '@angular/router';
 import { RouterTestingHarness } from '@angular/router/testing';
 import { authInterceptor } from '../core/auth/auth-interceptor';
-import { nextRequest, settle } from '../testing/next-request';
+import { nextRequest, settle } from '../core/testing/next-request';
 import { ResetPassword } from './reset-password';
 
 function fill(root: HTMLElement, name: string, value: string): void {

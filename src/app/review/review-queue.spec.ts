@@ -5,8 +5,8 @@ import { TestBed } from '@angular/core/testing';
 import { provideRouter } from '@angular/router';
 import type { FabricationItem } from '../../../shared/api/fabrication';
 import { Auth } from '../core/auth/auth';
-import { provideFakeCurrentGroup } from '../models/fake-current-group';
-import { settle } from '../testing/next-request';
+import { provideFakeCurrentGroup } from '../core/testing/fake-current-group';
+import { settle } from '../core/testing/next-request';
 import { ReviewQueue } from './review-queue';
 
 function item(id: string, proposer: string): FabricationItem {

@@ -13,8 +13,8 @@ import type { FabricationItem } from '../../../shared/api/fabrication';
 import { Auth } from '../core/auth/auth';
 import { ErrorReport } from '../core/errors/error-report';
 import { CurrentGroup } from '../core/group/current-group';
-import { formatEnergy, formatLifetime, formatQuality, formatWidth } from '../catalogue/energy-format';
-import { materialLabel } from '../catalogue/material-label';
+import { formatEnergy, formatLifetime, formatQuality, formatWidth } from '../core/format/energy-format';
+import { materialLabel } from '../core/format/material-label';
 import { FabricationApi } from '../fabrication/fabrication-api';
 import { STATE_ICONS, stateLabel } from '../fabrication/state-label';
 

@@ -1,7 +1,7 @@
 import type { EChartsCoreOption } from 'echarts/core';
-import type { ChartColours } from './chart-colours';
-import type { PlanePole } from './pole-plane-options';
-import { widthAxisRange } from './pole-width-options';
+import type { ChartColours } from '../core/charts/chart-colours';
+import type { PlanePole } from '../core/charts/pole-plane-options';
+import { widthAxisRange } from '../core/charts/pole-width-options';
 import type { Spectrum } from './runs-api';
 import { type SpectrumQuantity, spectrumCurves } from './spectrum-curves';
 

@@ -1,4 +1,6 @@
-import type { RunKind, RunStatus, RunWindow } from './runs-api';
+import type { RunKind, RunStatus } from './runs-api';
+
+export { windowText } from '../core/format/window-text';
 
 /** Words for run kinds and statuses, and the window in one line, shared by the run pages. */
 export const kindLabel: Record<RunKind, string> = {
@@ -13,9 +15,3 @@ export const statusLabel: Record<RunStatus, string> = {
   failed: 'Failed',
   cancelled: 'Cancelled',
 };
-
-export function windowText(window: RunWindow): string {
-  const range = `${window.emin}–${window.emax} meV`;
-  if ('points' in window) return `${range}, ${window.points} energies`;
-  return window.gammaMax != null ? `${range}, Γ ≤ ${window.gammaMax} meV` : range;
-}

@@ -3,7 +3,7 @@ import { HttpTestingController, provideHttpClientTesting } from '@angular/common
 import { TestBed } from '@angular/core/testing';
 import { provideRouter } from '@angular/router';
 import type { Role } from '../core/auth/session';
-import { provideFakeCurrentGroup } from '../models/fake-current-group';
+import { provideFakeCurrentGroup } from '../core/testing/fake-current-group';
 import { RunLauncher } from './run-launcher';
 
 async function render(role: Role) {

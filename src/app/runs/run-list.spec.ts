@@ -2,9 +2,9 @@ import { provideHttpClient } from '@angular/common/http';
 import { HttpTestingController, provideHttpClientTesting } from '@angular/common/http/testing';
 import { TestBed } from '@angular/core/testing';
 import { provideRouter } from '@angular/router';
-import { provideFakeCurrentGroup } from '../models/fake-current-group';
-import { FakeEventSource } from '../testing/fake-event-source';
-import { sampleRun } from '../testing/sample-run';
+import { provideFakeCurrentGroup } from '../core/testing/fake-current-group';
+import { FakeEventSource } from '../core/testing/fake-event-source';
+import { sampleRun } from './sample-run';
 import { RunList } from './run-list';
 import { type Run, RunsApi, pollPeriodMs } from './runs-api';
 

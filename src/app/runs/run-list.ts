@@ -15,7 +15,7 @@ import { Auth } from '../core/auth/auth';
 import { ErrorReport } from '../core/errors/error-report';
 import { toProblem } from '../core/errors/problem';
 import { CurrentGroup } from '../core/group/current-group';
-import { injectCanDesign } from '../models/design-permission';
+import { injectCanDesign } from '../core/group/design-permission';
 import { kindLabel, statusLabel, windowText } from './run-labels';
 import { type Run, type RunKind, type RunListQuery, type RunStatus, RunsApi, finishedStatuses, pollPeriodMs } from './runs-api';
 import { stageInWords } from './stage-words';

@@ -3,40 +3,12 @@ import { HttpClient, HttpParams } from '@angular/common/http';
 import { DestroyRef, Injectable, inject } from '@angular/core';
 import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
 import { Observable, map, of, switchMap, takeWhile, timer } from 'rxjs';
-import type { ResonanceRow } from '../catalogue/catalogue-api';
+import type { ResonanceRow } from '../core/answers/resonance-row';
+import type { RunCertificate } from '../core/answers/run-certificate';
+import type { RunWindow } from '../core/answers/run-window';
 
 export type RunKind = 'pole-search' | 'transmission';
 export type RunStatus = 'queued' | 'running' | 'completed' | 'failed' | 'cancelled';
-
-/** A pole search looks for poles with E in [emin, emax] meV and Γ ≤ gammaMax meV. */
-export interface PoleWindow {
-  emin: number;
-  emax: number;
-  gammaMax?: number;
-}
-/** A transmission sweep samples `points` real energies in [emin, emax] meV. */
-export interface SweepWindow {
-  emin: number;
-  emax: number;
-  points: number;
-}
-export type RunWindow = PoleWindow | SweepWindow;
-
-export interface CertificatePiece {
-  emin: number;
-  emax: number;
-  polesFound: number;
-  windingNumber: number;
-  certified: boolean;
-  nodes: number;
-  note?: string;
-}
-
-export interface RunCertificate {
-  pieces: CertificatePiece[];
-  certified: boolean;
-  summary: string;
-}
 
 export interface RunProgress {
   stage: string;

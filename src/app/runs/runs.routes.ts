@@ -1,12 +1,12 @@
 import type { Routes } from '@angular/router';
 import { provideEchartsCore } from 'ngx-echarts';
-import { designerOnly } from '../models/designer-only';
+import { designerOnly } from '../core/group/designer-only';
 
 /** Mounted at /g/:groupSlug/runs. echarts is loaded only when a chart first shows. */
 export const runsRoutes: Routes = [
   {
     path: '',
-    providers: [provideEchartsCore({ echarts: () => import('./echarts') })],
+    providers: [provideEchartsCore({ echarts: () => import('../core/charts/echarts') })],
     children: [
       { path: '', loadComponent: () => import('./run-list').then((m) => m.RunList), title: 'Runs · Poleward' },
       {

@@ -1,6 +1,6 @@
 import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
 import { NgxEchartsDirective } from 'ngx-echarts';
-import { chartColours } from './chart-colours';
+import { chartColours } from '../core/charts/chart-colours';
 import type { Spectrum } from './runs-api';
 import { type SpectrumView, transmissionOptions } from './transmission-options';
 

@@ -1,4 +1,4 @@
-import type { ChartColours } from './chart-colours';
+import type { ChartColours } from '../core/charts/chart-colours';
 import { labelledPoles, transmissionOptions } from './transmission-options';
 
 const colours = new Proxy({}, { get: () => '#000' }) as ChartColours;

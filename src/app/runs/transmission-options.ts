@@ -1,5 +1,5 @@
 import type { EChartsCoreOption } from 'echarts/core';
-import type { ChartColours } from './chart-colours';
+import type { ChartColours } from '../core/charts/chart-colours';
 import type { Spectrum } from './runs-api';
 import { type ConductanceUnit, type SpectrumQuantity, conductanceUnitLabels, spectrumCurves } from './spectrum-curves';
 

@@ -5,7 +5,7 @@ import { TestBed } from '@angular/core/testing';
 import { provideRouter } from '@angular/router';
 import { RouterTestingHarness } from '@angular/router/testing';
 import { authInterceptor } from '../core/auth/auth-interceptor';
-import { nextRequest, settle } from '../testing/next-request';
+import { nextRequest, settle } from '../core/testing/next-request';
 import { Tokens } from './tokens';
 
 @Component({ template: 'elsewhere' })

@@ -5,7 +5,7 @@ import { TestBed } from '@angular/core/testing';
 import { Router, provideRouter } from '@angular/router';
 import { authGuard } from './auth-guard';
 import { authInterceptor } from './auth-interceptor';
-import { nextRequest } from '../../testing/next-request';
+import { nextRequest } from '../testing/next-request';
 
 @Component({ selector: 'pw-secret-stub', template: 'secret page' })
 class Secret {}

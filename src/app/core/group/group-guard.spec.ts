@@ -3,7 +3,7 @@ import { provideHttpClientTesting } from '@angular/common/http/testing';
 import { Component } from '@angular/core';
 import { TestBed } from '@angular/core/testing';
 import { Router, provideRouter } from '@angular/router';
-import { demoSession } from '../../testing/demo-session';
+import { demoSession } from '../testing/demo-session';
 import { Auth } from '../auth/auth';
 import { CurrentGroup } from './current-group';
 import { groupGuard } from './group-guard';

@@ -1,5 +1,5 @@
 import { Pipe, type PipeTransform } from '@angular/core';
-import { MATERIAL_PRESETS } from '../../../shared/model/materials';
+import { MATERIAL_PRESETS } from '../../../../shared/model/materials';
 
 /** What the API writes for a model whose effective mass was given by hand (server/models/model-figures.ts). */
 const customMaterialId = 'custom';

@@ -1,4 +1,4 @@
-import type { Role, Session } from '../core/auth/session';
+import type { Role, Session } from '../auth/session';
 
 /** A session of the seed's Harrow Lake lab with the given role, for specs. */
 export function demoSession(role: Role, extraGroups: Session['groups'] = []): Session {

@@ -105,17 +105,3 @@ export class QualityPipe implements PipeTransform {
     return formatQuality(q, digits);
   }
 }
-
-@Pipe({ name: 'length' })
-export class LengthPipe implements PipeTransform {
-  transform(nm: number | null | undefined, digits?: number): string {
-    return formatLength(nm, digits);
-  }
-}
-
-@Pipe({ name: 'duration' })
-export class DurationPipe implements PipeTransform {
-  transform(seconds: number | null | undefined): string {
-    return formatDuration(seconds);
-  }
-}

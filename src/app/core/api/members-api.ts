@@ -3,8 +3,8 @@ import { Injectable, inject } from '@angular/core';
 import { Observable, map } from 'rxjs';
 // zod/mini: the classic build pulls ~450 kB (all locales) into the first chunk.
 import * as z from 'zod/mini';
-import { roleSchema } from '../core/auth/role-schema';
-import type { Role } from '../core/auth/session';
+import { roleSchema } from '../auth/role-schema';
+import type { Role } from '../auth/session';
 
 export const memberSchema = z.object({
   userId: z.string(),

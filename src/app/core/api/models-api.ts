@@ -1,8 +1,8 @@
 import { HttpClient, HttpParams } from '@angular/common/http';
 import { Injectable, inject } from '@angular/core';
 import type { Observable } from 'rxjs';
-import type { BitmapShape, CavityModelInput } from '../../../shared/model/cavity-model';
-import type { DerivedFigures } from '../../../shared/model/derived-figures';
+import type { BitmapShape, CavityModelInput } from '../../../../shared/model/cavity-model';
+import type { DerivedFigures } from '../../../../shared/model/derived-figures';
 
 export type ModelFamily = 'rectangle' | 'disk' | 'ellipse' | 'stadium' | 'annulus' | 'polygon' | 'sites' | 'bitmap' | 'composite';
 

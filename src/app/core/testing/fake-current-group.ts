@@ -1,6 +1,6 @@
 import { computed, signal } from '@angular/core';
-import type { Role } from '../core/auth/session';
-import { CurrentGroup } from '../core/group/current-group';
+import type { Role } from '../auth/session';
+import { CurrentGroup } from '../group/current-group';
 
 /**
  * A CurrentGroup provider for specs: a fixed group with the given role, so the

@@ -1,4 +1,4 @@
-import { MATERIAL_PRESETS } from '../../../shared/model/materials';
+import { MATERIAL_PRESETS } from '../../../../shared/model/materials';
 import { materialLabel } from './material-label';
 
 describe('materialLabel', () => {

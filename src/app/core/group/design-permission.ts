@@ -1,5 +1,5 @@
 import { type Signal, computed, inject } from '@angular/core';
-import { CurrentGroup } from '../core/group/current-group';
+import { CurrentGroup } from './current-group';
 
 /**
  * True when the signed-in user may create and change things in the current group

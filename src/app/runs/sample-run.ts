@@ -1,4 +1,4 @@
-import type { Run } from '../runs/runs-api';
+import type { Run } from './runs-api';
 
 /** A running pole search as the API lists it, for specs; vary it with a spread. */
 export const sampleRun: Run = {

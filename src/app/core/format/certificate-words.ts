@@ -1,4 +1,4 @@
-import type { RunCertificate } from './runs-api';
+import type { RunCertificate } from '../answers/run-certificate';
 
 /**
  * The run's certificate in plain words. A piece is certified when the winding

@@ -1,6 +1,6 @@
 import { inject } from '@angular/core';
 import { type CanActivateFn, Router } from '@angular/router';
-import { Auth } from '../core/auth/auth';
+import { Auth } from '../auth/auth';
 
 /**
  * Keeps viewers and reviewers off the create pages (new model, new run): they
