@@ -38,7 +38,8 @@ const csvColumns: [string, (r: ResonanceRow) => string | number | boolean | null
   ['height_nm', (r) => r.keyDimensions.height ?? null],
   ['radius_nm', (r) => r.keyDimensions.radius ?? null],
   ['length_nm', (r) => r.keyDimensions.length ?? null],
-  // Added with the lattice validity, the per-family dimensions and the microwave mode (between the dimensions and the tags; the first and last columns keep their places).
+  // Added with the lattice validity, the per-family dimensions and the microwave mode
+  // (between the dimensions and the tags; the first and last columns keep their places).
   ['physics', (r) => r.physics],
   ['frequency_GHz', (r) => r.microwave?.frequencyGhz ?? null],
   ['frequency_width_MHz', (r) => r.microwave?.widthMhz ?? null],

@@ -5,7 +5,7 @@ import type { Db } from '../db/client.js';
 import { ApiError } from '../http/error-handler.js';
 import type { RowSource } from './catalogue-export.js';
 import type { CatalogueFilter, CataloguePageRequest } from './catalogue-query.js';
-import { CatalogueCounter, type CountKind, type CountPolicy } from './catalogue-count.js';
+import { CatalogueCounter, type CountPolicy } from './catalogue-count.js';
 import { decodeCursor, encodeCursor, type CursorPosition } from './catalogue-cursor.js';
 import {
   findModeImage,

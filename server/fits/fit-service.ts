@@ -4,7 +4,7 @@
  * queued), comparison with the nearest computed pole, and the fitted resonances filed in
  * the catalogue in the same transaction as the fit's result.
  */
-import { and, eq, inArray, sql } from 'drizzle-orm';
+import { and, eq, sql } from 'drizzle-orm';
 import { resonancePhysicsOfDocument, resonanceValidity, validityLimit, type ResonancePhysics } from '../../shared/model/resonance-validity.js';
 import { geometryOf } from '../models/model-figures.js';
 import { writeAudit } from '../audit/audit-log.js';

@@ -8,7 +8,7 @@ import { extendZodWithOpenApi, OpenAPIRegistry, OpenApiGeneratorV31, type RouteC
 import * as z from 'zod';
 import type { Access } from '../../shared/api/enums.js';
 import { problemSchema } from '../../shared/api/fields.js';
-import type { Method, RouteDeclaration } from '../../shared/api/route.js';
+import type { RouteDeclaration } from '../../shared/api/route.js';
 import { apiRoutes } from '../../shared/api/routes.js';
 
 // The generator calls .openapi() on every path and query parameter. zod 4 copies prototype methods

@@ -8,6 +8,7 @@ import * as z from 'zod';
 const decimal = /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/;
 
 /** PostgreSQL text cannot hold U+0000; refused here rather than failing in the database. */
+// eslint-disable-next-line no-control-regex -- the pattern exists to find U+0000
 export const noNul = /^[^\u0000]*$/;
 const noNulMessage = 'must not contain NUL characters';
 

@@ -4,10 +4,10 @@
  * the client takes its types from them (z.infer), so there is one copy.
  */
 import { z } from 'zod';
+import { noNul } from './catalogue-query.js';
 import { FABRICATION_ACTIONS, FABRICATION_STATES } from '../fabrication/fabrication-states.js';
 import { declareRoute, json, media } from './route.js';
 
-const noNul = /^[^\u0000]*$/;
 const text = (max: number, what: string) =>
   z
     .string({ error: `${what} must be text` })

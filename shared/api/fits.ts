@@ -1,5 +1,6 @@
 /** Measured traces and peak fits: upload, preview, fit, compare with computed poles. */
 import * as z from 'zod';
+import { noNul } from './catalogue-query.js';
 import { LINESHAPES, type Lineshape } from '../engine/fit-lineshapes.js';
 import { X_UNITS, Y_UNITS } from '../engine/fit-trace.js';
 import { jobStatusSchema } from './enums.js';
@@ -8,7 +9,6 @@ import { declareRoute, json, media } from './route.js';
 
 const blankIsAbsent = (v: unknown) => (v === '' || v === undefined || v === null ? undefined : v);
 const optionalNumber = z.preprocess(blankIsAbsent, z.coerce.number().refine(Number.isFinite, 'must be a number').optional());
-const noNul = /^[^\u0000]*$/;
 
 export const traceParams = z.object({ groupId: z.uuid(), traceId: z.uuid() });
 export const fitParams = z.object({ groupId: z.uuid(), fitId: z.uuid() });

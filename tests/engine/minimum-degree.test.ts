@@ -20,7 +20,10 @@ function graphOf(n: number, edges: [number, number][]): Adjacency {
     rows.push(v);
     cols.push(v);
   }
-  for (const [a, b] of edges) rows.push(a, b), cols.push(b, a);
+  for (const [a, b] of edges) {
+    rows.push(a, b);
+    cols.push(b, a);
+  }
   const a = cscFromTriplets(n, rows, cols, rows.map(() => 1), rows.map(() => 0));
   return symmetricAdjacency(n, a.colPtr, a.rowIdx);
 }
@@ -119,8 +122,14 @@ describe('approximate minimum-degree ordering', () => {
     // a regular grid's fill under minimum degree is of the order of nested dissection's (George & Liu 1981, ch. 8)
     const rows: number[] = [];
     const cols: number[] = [];
-    for (let v = 0; v < g.n; v++) rows.push(v), cols.push(v);
-    for (const [a, b] of g.edges) rows.push(a, b), cols.push(b, a);
+    for (let v = 0; v < g.n; v++) {
+      rows.push(v);
+      cols.push(v);
+    }
+    for (const [a, b] of g.edges) {
+      rows.push(a, b);
+      cols.push(b, a);
+    }
     const a = cscFromTriplets(g.n, rows, cols, rows.map(() => 1), rows.map(() => 0));
     const nd = SparseLuPlan.analyse(g.n, a.colPtr, a.rowIdx, { ordering: 'nested-dissection' });
     expect(fillCount(graph, minimumDegreeOrder(graph))).toBe(md); // the same order each time
@@ -134,10 +143,17 @@ describe('approximate minimum-degree ordering', () => {
     const cols: number[] = [];
     const re: number[] = [];
     const im: number[] = [];
-    for (let v = 0; v < g.n; v++) rows.push(v), cols.push(v), re.push(4.2 - rnd()), im.push(-0.05);
+    for (let v = 0; v < g.n; v++) {
+      rows.push(v);
+      cols.push(v);
+      re.push(4.2 - rnd());
+      im.push(-0.05);
+    }
     for (const [a, b] of g.edges) {
-      rows.push(a, b), cols.push(b, a);
-      re.push(-1 + 0.1 * rnd(), -1 + 0.1 * rnd()), im.push(-0.1 * rnd(), -0.1 * rnd());
+      rows.push(a, b);
+      cols.push(b, a);
+      re.push(-1 + 0.1 * rnd(), -1 + 0.1 * rnd());
+      im.push(-0.1 * rnd(), -0.1 * rnd());
     }
     const a = cscFromTriplets(g.n, rows, cols, re, im);
     const plans = {
@@ -152,7 +168,10 @@ describe('approximate minimum-degree ordering', () => {
       const y = plan.factor(a.values).solve(b.slice());
       let err = 0;
       let norm = 0;
-      for (let k = 0; k < x.length; k++) (err += (y[k] - x[k]) ** 2), (norm += x[k] ** 2);
+      for (let k = 0; k < x.length; k++) {
+        err += (y[k] - x[k]) ** 2;
+        norm += x[k] ** 2;
+      }
       expect(Math.sqrt(err / norm)).toBeLessThan(1e-12);
     }
     expect(() => SparseLuPlan.analyse(g.n, a.colPtr, a.rowIdx, { ordering: 'fastest' as never })).toThrow(/ordering must be/);

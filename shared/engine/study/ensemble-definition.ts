@@ -72,7 +72,7 @@ export function checkEnsembleDefinition(def: EnsembleDefinition): void {
     try {
       numberAtPath(def.model, j.path);
     } catch (err) {
-      throw new RangeError(`jitter[${k}].path: ${(err as Error).message}`);
+      throw new RangeError(`jitter[${k}].path: ${(err as Error).message}`, { cause: err });
     }
     if (!(j.sigma >= 0) || !Number.isFinite(j.sigma)) throw new RangeError(`jitter[${k}].sigma: a number ≥ 0`);
   });

@@ -41,7 +41,7 @@ export function checkStudyDefinition(def: StudyDefinition): void {
     try {
       numberAtPath(def.model, p.path);
     } catch (err) {
-      throw new RangeError(`parameters[${k}].path: ${(err as Error).message}`);
+      throw new RangeError(`parameters[${k}].path: ${(err as Error).message}`, { cause: err });
     }
     if (p.values.length < 1) throw new RangeError(`parameters[${k}].values: no values`);
     if (p.values.some((v) => !Number.isFinite(v))) throw new RangeError(`parameters[${k}].values: every value must be a finite number`);

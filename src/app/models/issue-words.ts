@@ -91,7 +91,7 @@ export function issueInWords(path: readonly (string | number)[], message: string
     const what = said[1] === 'number' || said[1] === 'int' ? 'a number' : said[1] === 'array' ? 'a list' : said[1] === 'string' ? 'some text' : `a ${said[1]}`;
     return `${head} is ${said[2] === 'undefined' ? 'missing' : 'empty'}: enter ${what}.`;
   }
-  if ((said = m.match(/expected int, received number/))) return `${head} must be a whole number.`;
+  if (/expected int, received number/.test(m)) return `${head} must be a whole number.`;
   if ((said = m.match(/expected (\w+), received (\w+)/))) return `${head} must be ${said[1] === 'number' ? 'a number' : `a ${said[1]}`}, not a ${said[2]}.`;
   if ((said = m.match(/Too small: expected number to be >(=?)(-?[\d.e+]+)/))) {
     return said[1] ? `${head} must be ${said[2]} or more.` : `${head} must be greater than ${said[2]}.`;

@@ -1,5 +1,4 @@
 import type { EChartsCoreOption } from 'echarts/core';
-import type { ChartColours } from './chart-colours';
 import type { PlaneInput, PlanePole } from './pole-plane-options';
 
 /**
