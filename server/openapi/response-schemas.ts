@@ -244,6 +244,10 @@ export const spectrumSchema = z
     pairs: z.array(z.object({ from: z.number().int(), to: z.number().int() })).meta({ description: 'Lead pairs in the order of transmission rows' }),
     transmission: z.array(z.array(z.number())),
     residual: z.array(z.number()),
+    reflection: z
+      .array(z.array(z.number()))
+      .nullable()
+      .meta({ description: 'R per lead in the model\'s lead order: reflection[lead][energy], summed over the lead\'s open channels; null for runs computed before reflection was kept' }),
   })
   .meta({ id: 'Spectrum' });
 
