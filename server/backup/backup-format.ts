@@ -130,6 +130,8 @@ export const spectrumRecord = z.object({
   pairs: z.array(z.object({ from: z.number().int(), to: z.number().int() })),
   transmission: z.array(z.array(num)),
   residual: z.array(num),
+  /** R per lead; absent or null in backups of runs stored before it was kept. */
+  reflection: z.array(z.array(num)).nullish(),
   createdAt: when,
 });
 

@@ -98,7 +98,7 @@ export async function* groupBackupRecords(q: Queryable, groupId: string, include
     const [s] = await q.select().from(spectra).where(eq(spectra.runId, run.id));
     if (!s) continue;
     count('spectrum');
-    yield { type: 'spectrum', runId: s.runId, energies: s.energies, pairs: s.pairs, transmission: s.transmission, residual: s.residual, createdAt: iso(s.createdAt)! };
+    yield { type: 'spectrum', runId: s.runId, energies: s.energies, pairs: s.pairs, transmission: s.transmission, residual: s.residual, reflection: s.reflection, createdAt: iso(s.createdAt)! };
   }
 
   // Computed resonances run by run, then their modes and images in batches. Fitted ones (a

@@ -281,7 +281,7 @@ export async function restoreGroup(db: Db, groupId: string, actorId: string, b: 
       ),
     );
     await insertAll(b.core.spectrum, 20, (slice) =>
-      tx.insert(spectra).values(slice.map(({ type: _t, runId, createdAt, ...s }) => ({ ...s, runId: ids.runs.get(runId)!, groupId, createdAt: date(createdAt)! }))),
+      tx.insert(spectra).values(slice.map(({ type: _t, runId, createdAt, reflection, ...s }) => ({ ...s, reflection: reflection ?? null, runId: ids.runs.get(runId)!, groupId, createdAt: date(createdAt)! }))),
     );
     await insertAll(b.core.resonance, 500, (slice) =>
       tx.insert(resonances).values(

@@ -36,6 +36,8 @@ export interface EngineSpectrum {
   pairs: { from: number; to: number }[];
   transmission: number[][];
   residual: number[];
+  /** R_ℓ(E) per lead in engine order: reflection[lead][energy] (transmission.ts). */
+  reflection: number[][];
 }
 
 export interface EngineTaskResult {
@@ -153,7 +155,7 @@ function finishTask(ctx: TaskContext, task: EngineTask, search: PoleSearchResult
     };
   };
   // A part of a window split over several threads leaves the spectrum to another part.
-  if (points === 0) return result({ energies: [], pairs, transmission: pairs.map(() => []), residual: [] });
+  if (points === 0) return result({ energies: [], pairs, transmission: pairs.map(() => []), residual: [], reflection: system.leads.map(() => []) });
   const sweep = transmissionSweep(
     op,
     { emin, emax, points, refine: { maxPoints: (task.kind === 'transmission' ? task.maxPoints : undefined) ?? spectrumBudget(task.kind, points) } },
@@ -164,6 +166,7 @@ function finishTask(ctx: TaskContext, task: EngineTask, search: PoleSearchResult
     pairs,
     transmission: pairs.map(({ from, to }) => sweep.points.map((p) => p.transmission[from][to])),
     residual: sweep.points.map((p) => p.currentResidual),
+    reflection: system.leads.map((_, l) => sweep.points.map((p) => p.reflection[l])),
   };
   stats['spectrumPoints'] = sweep.points.length;
   stats['spectrumBudgetExhausted'] = sweep.budgetExhausted;

@@ -5,7 +5,7 @@ import { bossDb, jobsAffected } from './boss-in-transaction.js';
 import { sendRunJob } from './boss.js';
 import { superviseFits } from './fit-supervisor.js';
 import { superviseModeMaps } from './mode-map-supervisor.js';
-import { RUN_QUEUES, type RunKind } from './queues.js';
+import { HEARTBEAT_SECONDS, RUN_QUEUES, type RunKind } from './queues.js';
 import { runStore } from '../runs/run-store.js';
 
 export interface SupervisorOptions {
@@ -18,6 +18,16 @@ export interface SupervisorOptions {
   /** Supervise one group's runs only (tests that share a database with others). */
   groupId?: string;
 }
+
+/**
+ * At start-up a run whose heartbeat is this old has no live worker: a live attempt beats
+ * every second (run-job.ts), so it was interrupted by the previous shutdown and is
+ * queued again at once rather than after staleAfterSeconds.
+ */
+export const STARTUP_STALE_SECONDS = 2 * HEARTBEAT_SECONDS;
+
+/** What the run page shows (as "Resumes by itself: …") for a run interrupted by a shutdown: news, not a fault. */
+export const INTERRUPTED_NOTE = 'the workers were stopped while this run was computing; it starts again';
 
 export interface SupervisorReport {
   /** Running runs whose worker stopped answering, put back in the queue. */
@@ -49,10 +59,15 @@ const finishedJobStates = new Set(['completed', 'failed', 'cancelled']);
  *    retry, or active under a worker that claims it at once). A job that is
  *    missing, finished, or active for longer without a claim (the fetching worker
  *    died) is replaced: the run is sent again, or fails once its attempts are used up.
+ *
+ * With `startup` (the first passes of a starting worker, startSupervisor) both ages are
+ * STARTUP_STALE_SECONDS instead: what the previous shutdown left queued or running is
+ * handed on at once, with a neutral note (INTERRUPTED_NOTE) instead of a lost-worker error.
  */
-export async function superviseRuns(o: Omit<SupervisorOptions, 'intervalSeconds'>): Promise<SupervisorReport> {
+export async function superviseRuns(o: Omit<SupervisorOptions, 'intervalSeconds'> & { startup?: boolean }): Promise<SupervisorReport> {
   const report: SupervisorReport = { handedOn: 0, resent: 0, failed: 0 };
-  const stale = o.staleAfterSeconds;
+  // The first pass of a starting process: runs left by the previous shutdown go back at once.
+  const stale = o.startup ? Math.min(o.staleAfterSeconds, STARTUP_STALE_SECONDS) : o.staleAfterSeconds;
   // Job ids that are not pg-boss's (uuid) come from tests' recording queues.
   const scope = sql`(job_id is null or job_id ~* '^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$')
     ${o.groupId ? sql`and group_id = ${o.groupId}` : sql``}`;
@@ -60,7 +75,7 @@ export async function superviseRuns(o: Omit<SupervisorOptions, 'intervalSeconds'
     select id from runs where status = 'running' and heartbeat_at < now() - make_interval(secs => ${stale}) and ${scope}`);
   for (const { id } of lost.rows) {
     await guarded(o, id, () => o.db.transaction(async (tx) => {
-      const lostRun = await runStore.requeueLost(tx, id, stale);
+      const lostRun = await runStore.requeueLost(tx, id, stale, o.startup ? INTERRUPTED_NOTE : undefined);
       if (!lostRun) return; // another supervisor, or the attempt itself, got there first
       const run: RunRef = { id: lostRun.id, job_id: lostRun.jobId, kind: lostRun.kind as RunKind, attempt: lostRun.attempt };
       report.handedOn++;
@@ -76,6 +91,8 @@ export async function superviseRuns(o: Omit<SupervisorOptions, 'intervalSeconds'
         await failRun(tx, run.id, `the run's worker was lost on every attempt (${run.attempt})`);
         report.failed++;
         o.log?.(`run ${run.id}: worker lost during attempt ${run.attempt}; no retries left, the run failed`);
+      } else if (o.startup) {
+        o.log?.(`run ${run.id}: interrupted during attempt ${run.attempt} by the previous shutdown; queued again`);
       } else {
         o.log?.(`run ${run.id}: worker lost during attempt ${run.attempt}; job ${run.job_id} will be retried`);
       }
@@ -135,17 +152,27 @@ async function failRun(tx: Queryable, runId: string, error: string) {
   await runStore.fail(tx, runId, error);
 }
 
-/** Every intervalSeconds: one pass over the runs, then the fits (fit-supervisor.ts), then the mode maps (mode-map-supervisor.ts). */
+/**
+ * A start-up pass at once (and again once STARTUP_STALE_SECONDS have passed, for a run whose
+ * last beat came just before this start), then every intervalSeconds: one pass over the runs,
+ * then the fits (fit-supervisor.ts), then the mode maps (mode-map-supervisor.ts).
+ */
 export function startSupervisor(o: SupervisorOptions): () => void {
   let busy = false;
-  const timer = setInterval(() => {
+  const pass = (startup: boolean) => {
     if (busy) return;
     busy = true;
-    superviseRuns(o)
+    superviseRuns({ ...o, startup })
       .then(() => superviseFits(o))
       .then(() => superviseModeMaps(o))
       .catch((e) => o.log?.(`supervisor: ${e.message}`))
       .finally(() => (busy = false));
-  }, o.intervalSeconds * 1000);
-  return () => clearInterval(timer);
+  };
+  pass(true);
+  const again = setTimeout(() => pass(true), (STARTUP_STALE_SECONDS + 1) * 1000);
+  const timer = setInterval(() => pass(false), o.intervalSeconds * 1000);
+  return () => {
+    clearTimeout(again);
+    clearInterval(timer);
+  };
 }

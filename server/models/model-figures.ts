@@ -172,7 +172,7 @@ function maskBox(mask: Uint8Array, nx: number, ny: number) {
 }
 
 /** The fields of a document the derived figures read (not the shape or the potential). */
-const figureFields = cavityModelSchema.pick({ name: true, spacing: true, material: true, field: true, leads: true });
+const figureFields = cavityModelSchema.pick({ name: true, spacing: true, material: true, field: true, leads: true, physics: true });
 
 /**
  * Derived figures of a stored document from its stored site count (nothing rasterised):

@@ -68,7 +68,7 @@ export async function runResonances(q: Queryable, groupId: string, runId: string
 
 export async function runSpectrum(q: Queryable, groupId: string, runId: string) {
   const [row] = await q
-    .select({ energies: spectra.energies, pairs: spectra.pairs, transmission: spectra.transmission, residual: spectra.residual })
+    .select({ energies: spectra.energies, pairs: spectra.pairs, transmission: spectra.transmission, residual: spectra.residual, reflection: spectra.reflection })
     .from(spectra)
     .where(and(eq(spectra.groupId, groupId), eq(spectra.runId, runId)));
   return row ?? null;

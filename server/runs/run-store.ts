@@ -171,14 +171,14 @@ export const runStore = {
 
   /**
    * A running run whose heartbeat is older than `staleSeconds` lost its worker: back to the
-   * queue. Null when it is not (any more) such a run (another supervisor, or the attempt, got there first).
+   * queue, its error the lost-worker text or `note` (a run interrupted by a shutdown). Null when it is not (any more) such a run (another supervisor, or the attempt, got there first).
    */
-  async requeueLost(q: Queryable, runId: string, staleSeconds: number): Promise<RunRow | null> {
+  async requeueLost(q: Queryable, runId: string, staleSeconds: number, note?: string): Promise<RunRow | null> {
     return transition(q, runId, 'queued', {
       when: and(eq(runs.status, 'running'), sql`${runs.heartbeatAt} < now() - make_interval(secs => ${staleSeconds})`),
       set: {
-        progressStage: 'waiting for another worker',
-        error: sql`'the worker of attempt ' || ${runs.attempt} || ' stopped answering; the run was put back in the queue'`,
+        progressStage: note ? 'queued again' : 'waiting for another worker',
+        error: note ?? sql`'the worker of attempt ' || ${runs.attempt} || ' stopped answering; the run was put back in the queue'`,
       },
     }).catch((err) => {
       if (err instanceof IllegalTransition) return null; // it ended meanwhile

@@ -120,6 +120,10 @@ export const spectrumSchema = z
       .meta({ description: "Lead pairs (indices in the model's lead order) in the order of transmission rows" }),
     transmission: z.array(z.array(z.number())).meta({ description: 'transmission[pair][energy]' }),
     residual: z.array(z.number()),
+    reflection: z
+      .array(z.array(z.number()))
+      .nullable()
+      .meta({ description: "R per lead in the model's lead order: reflection[lead][energy], summed over the lead's open channels; null for runs computed before reflection was kept" }),
   })
   .meta({ id: 'Spectrum' });
 export type Spectrum = z.infer<typeof spectrumSchema>;

@@ -131,7 +131,7 @@ async function writePoles(modelId: string, energies: number[], width: number): P
     sites: { i: Int32Array.from([0]), j: Int32Array.from([0]) },
     poles: energies.map((e) => pole(e, width)),
     certificate: null,
-    spectrum: { energies: [], pairs: [], transmission: [], residual: [] },
+    spectrum: { energies: [], pairs: [], transmission: [], residual: [], reflection: [] },
     stats: {},
   };
   expect(await writeRunResults(db, ctx, result)).toBe(true);

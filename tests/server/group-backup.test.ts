@@ -164,6 +164,12 @@ describe('group backup and restore', () => {
     expect(before.filter((l) => l.startsWith('{"type":"resonance"')).every((l) => JSON.parse(l).runId)).toBe(true);
     expect(JSON.parse(before.find((l) => l.startsWith('{"type":"fittedResonance"'))!)).toMatchObject({ runId: null, tags: ['fitted'] });
 
+    // R per lead travels with each spectrum (two leads, one value per energy).
+    for (const l of before.filter((l) => l.startsWith('{"type":"spectrum"'))) {
+      const spectrum = JSON.parse(l);
+      expect(spectrum.reflection).toHaveLength(2);
+      for (const row of spectrum.reflection) expect(row).toHaveLength(spectrum.energies.length);
+    }
     const res = await restore(targetAdmin, target, archive);
     expect(res.status).toBe(201);
     expect(res.body.restored).toMatchObject({ models: 2, modelVersions: 3, runs: 4, resonances: 3 * reference.poles.length, measuredTrace: 1, peakFit: 1, fittedResonance: 1, resonanceCurrent: 3 * poleCurrents, modeMap: 1 });
@@ -241,6 +247,26 @@ describe('group backup and restore', () => {
     expect(res.status).toBe(409);
     expect(res.body.code).toBe('group_not_empty');
     expect(await groupRowCounts(source.groupId)).toEqual(before);
+  });
+
+  it('an archive of runs stored before reflection was kept restores, and their spectra answer reflection null', async () => {
+    const empty = await createLab(app.handle.db, ['admin']);
+    const admin = await signInAs(app, empty.as('admin').email);
+    const old = lines(await download(sourceAdmin, source)).map((l) => {
+      if (!l.startsWith('{"type":"spectrum"')) return l;
+      const { reflection: _r, ...rest } = JSON.parse(l);
+      return JSON.stringify(rest);
+    });
+    const res = await restore(admin, empty, gzipSync(old.join('\n')));
+    expect(res.status, JSON.stringify(res.body)).toBe(201);
+    const list = await admin.get(`/api/groups/${empty.groupId}/runs?status=completed`);
+    expect(list.status).toBe(200);
+    const completed = list.body.items.filter((r: { status: string }) => r.status === 'completed');
+    expect(completed.length).toBeGreaterThan(0);
+    const spectrum = await admin.get(`/api/groups/${empty.groupId}/runs/${completed[0].id}/spectrum`);
+    expect(spectrum.status).toBe(200);
+    expect(spectrum.body.energies.length).toBeGreaterThan(0);
+    expect(spectrum.body.reflection).toBeNull();
   });
 
   it('a bad archive is refused whole, saying what is wrong and where', async () => {

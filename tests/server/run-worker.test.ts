@@ -17,6 +17,7 @@ import { inlineCompute } from '../../server/compute/compute-pool.js';
 import { ModelService } from '../../server/models/model-service.js';
 import { RunService } from '../../server/runs/run-service.js';
 import { projectRoot } from '../../server/config.js';
+import { hoppingEnergy } from '../../shared/units/constants.js';
 import { createLab, type Lab } from './lab-fixture.js';
 import { testDatabaseUrl } from './test-app.js';
 import { smallRectangle, smallWindow } from './fixtures/small-cavity.js';
@@ -73,6 +74,45 @@ function startWorkerProcess(): ChildProcess {
 }
 
 describe('runs on the queue', () => {
+  it('a finished two-lead transmission run stores R per lead, with R + ΣT = open channels (unitarity)', async () => {
+    const model = await models.create(lab.groupId, lab.as('designer').id, smallRectangle('Reflection test'));
+    // 3–12 meV crosses the second channel of both width-8 leads (≈ 10.64 meV).
+    const run = await runService.create(lab.groupId, lab.as('designer').id, { kind: 'transmission', modelId: model.id, window: { emin: 3, emax: 12, points: 60 } });
+    const worker = startWorkerLoop({ db: handle.db, boss, compute: runInThread, pollSeconds: 0.2, log: () => {} });
+    try {
+      const done = await waitFor('the run to finish', async () => {
+        const r = await runRow(run.id);
+        return ['completed', 'failed'].includes(r.status) && r;
+      }, 120);
+      expect(done.error).toBeNull();
+      expect(done.status).toBe('completed');
+    } finally {
+      await worker.stop();
+    }
+    const [s] = await handle.db.select().from(spectra).where(eq(spectra.runId, run.id));
+    const reflection = s!.reflection!;
+    expect(reflection).toHaveLength(2);
+    for (const row of reflection) expect(row).toHaveLength(s!.energies.length);
+    // Open channels of a hard-wall lead W sites wide: E above 2t(1 − cos(mπ/(W+1))) on the square
+    // lattice (tight-binding band of a strip, common practice, no source); t from ħ²/(2m*a²), CODATA ħ²/2m_e.
+    const t = hoppingEnergy(5, 0.067);
+    const openChannels = (e: number) => [1, 2, 3, 4, 5, 6, 7, 8].filter((m) => e > 2 * t * (1 - Math.cos((m * Math.PI) / 9))).length;
+    let twoChannels = 0;
+    s!.energies.forEach((e, n) => {
+      const channels = openChannels(e);
+      if (channels === 2) twoChannels++;
+      for (let lead = 0; lead < 2; lead++) {
+        let sum = reflection[lead]![n]!;
+        s!.pairs.forEach((p, k) => {
+          if (p.from === lead) sum += s!.transmission[k]![n]!;
+        });
+        expect(Math.abs(sum - channels), `lead ${lead} at ${e} meV`).toBeLessThan(1e-10 * channels);
+        expect(reflection[lead]![n]!).toBeGreaterThanOrEqual(-1e-12);
+      }
+    });
+    expect(twoChannels).toBeGreaterThan(0);
+  });
+
   it('a worker computes a pole search and writes poles, mode images and the spectrum once', async () => {
     const model = await models.create(lab.groupId, lab.as('designer').id, smallRectangle('Worker test'));
     const run = await runService.create(lab.groupId, lab.as('designer').id, { kind: 'pole-search', modelId: model.id, window: smallWindow });

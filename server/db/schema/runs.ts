@@ -68,5 +68,7 @@ export const spectra = pgTable('spectra', {
   pairs: jsonb('pairs').$type<{ from: number; to: number }[]>().notNull(),
   transmission: jsonb('transmission').$type<number[][]>().notNull(),
   residual: jsonb('residual').$type<number[]>().notNull(),
+  /** R_ℓ(E): reflection[lead][energy], summed over the lead's open channels; null for runs stored before it was kept. */
+  reflection: jsonb('reflection').$type<number[][]>(),
   createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
 });

@@ -80,7 +80,20 @@ export class RunDetail {
   protected readonly showResidual = signal(false);
   protected readonly unitLabels = conductanceUnitLabels;
   protected readonly units = Object.keys(conductanceUnitLabels) as ConductanceUnit[];
-  protected readonly spectrumView = computed<SpectrumView>(() => ({ quantity: this.quantity(), unit: this.unit(), residual: this.showResidual() }));
+  protected readonly showReflection = signal(false);
+  protected readonly spectrumView = computed<SpectrumView>(() => ({
+    quantity: this.quantity(),
+    unit: this.unit(),
+    residual: this.showResidual(),
+    reflection: this.reflectionCurves(),
+  }));
+  /** R per lead, named by the lead, when asked for and stored; drawn beside T only (R has no conductance unit). */
+  private readonly reflectionCurves = computed(() => {
+    const stored = this.run()?.spectrum?.reflection;
+    if (!this.showReflection() || this.quantity() !== 'transmission' || !stored) return null;
+    const names = this.leadNames();
+    return stored.map((values, l) => ({ lead: names[l] ?? `lead ${l + 1}`, values }));
+  });
   protected readonly spectrumWarnings = computed(() => {
     const r = this.run();
     return r ? spectrumWarnings(r) : [];

@@ -50,6 +50,8 @@ export interface Spectrum {
   /** Lead indices in the model's lead order (server/jobs/engine-task.ts); a name is shown as it is. */
   pairs: { from: number | string; to: number | string }[];
   residual: number[];
+  /** R per lead in the model's lead order: reflection[lead][energy]; null for runs stored before it was kept. */
+  reflection?: number[][] | null;
 }
 
 export interface RunDetail extends Run {
