@@ -20,6 +20,8 @@ export class PolePlaneChart {
   readonly thresholds = input<readonly number[]>([]);
   readonly window = input<{ emin: number; emax: number; gammaMax?: number } | null>(null);
   readonly highlightId = input<string | null>(null);
+  /** The model's lattice-validity limit in the poles' unit; poles above it carry `aboveLimit`. */
+  readonly validityLimit = input<number | null>(null);
   /** 'plane': Re z and Im z, linear; 'width': E and Γ on a log axis. */
   readonly view = input<'plane' | 'width'>('plane');
 
@@ -29,6 +31,7 @@ export class PolePlaneChart {
       thresholds: this.thresholds(),
       window: this.window(),
       highlightId: this.highlightId(),
+      validityLimit: this.validityLimit(),
       colours: chartColours(),
     }),
   );

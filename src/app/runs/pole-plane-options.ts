@@ -1,5 +1,6 @@
 import type { EChartsCoreOption } from 'echarts/core';
 import type { ChartColours } from './chart-colours';
+import { validityOverlay } from './validity-overlay';
 
 /** One pole z = E − iΓ/2 to draw (meV), with the flags that change how it is drawn. */
 export interface PlanePole {
@@ -9,6 +10,8 @@ export interface PlanePole {
   bound?: boolean;
   nearThreshold?: boolean;
   overlapping?: boolean;
+  /** Above the model's lattice-validity limit: drawn with a ring. */
+  aboveLimit?: boolean;
 }
 
 export interface PlaneInput {
@@ -17,6 +20,8 @@ export interface PlaneInput {
   window: { emin: number; emax: number; gammaMax?: number } | null;
   /** The pole to single out (the resonance detail page). */
   highlightId?: string | null;
+  /** The model's lattice-validity limit in the poles' unit, drawn as a line; null: unknown. */
+  validityLimit?: number | null;
   colours: ChartColours;
 }
 
@@ -112,6 +117,7 @@ export function polePlaneOptions(input: PlaneInput): EChartsCoreOption {
         itemStyle: { color: c.error, borderColor: c.surface, borderWidth: 2 },
         data: highlighted.map(point),
       },
-    ].filter((s) => s.name === 'Resonances' || s.data.length > 0),
+      ...validityOverlay(input.poles, input.validityLimit, point, c),
+    ].filter((s) => s.name === 'Resonances' || s.name === 'Above the lattice limit' || (s['data'] as unknown[]).length > 0),
   };
 }

@@ -1,6 +1,7 @@
 import type { EChartsCoreOption } from 'echarts/core';
 import type { ChartColours } from './chart-colours';
 import type { PlaneInput, PlanePole } from './pole-plane-options';
+import { validityOverlay } from './validity-overlay';
 
 /**
  * The range of the log-width axis (meV): from a little below the smallest width in
@@ -110,6 +111,7 @@ export function poleWidthOptions(input: PlaneInput): EChartsCoreOption {
         itemStyle: { color: c.error, borderColor: c.surface, borderWidth: 2 },
         data: highlighted.map(point),
       },
-    ].filter((s) => s.name === 'Resonances' || s.data.length > 0),
+      ...validityOverlay(shown, input.validityLimit, point, c),
+    ].filter((s) => s.name === 'Resonances' || s.name === 'Above the lattice limit' || (s['data'] as unknown[]).length > 0),
   };
 }
