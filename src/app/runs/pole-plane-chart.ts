@@ -22,6 +22,8 @@ export class PolePlaneChart {
   readonly highlightId = input<string | null>(null);
   /** The model's lattice-validity limit in the poles' unit; poles above it carry `aboveLimit`. */
   readonly validityLimit = input<number | null>(null);
+  /** Unit of E and Γ: meV, or mm⁻² (k²) for a microwave model. */
+  readonly unit = input('meV');
   /** 'plane': Re z and Im z, linear; 'width': E and Γ on a log axis. */
   readonly view = input<'plane' | 'width'>('plane');
 
@@ -32,6 +34,7 @@ export class PolePlaneChart {
       window: this.window(),
       highlightId: this.highlightId(),
       validityLimit: this.validityLimit(),
+      unit: this.unit(),
       colours: chartColours(),
     }),
   );

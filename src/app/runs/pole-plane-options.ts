@@ -22,6 +22,8 @@ export interface PlaneInput {
   highlightId?: string | null;
   /** The model's lattice-validity limit in the poles' unit, drawn as a line; null: unknown. */
   validityLimit?: number | null;
+  /** Unit of E and Γ on the axes: meV, or mm⁻² (k²) for a microwave model. */
+  unit?: string;
   colours: ChartColours;
 }
 
@@ -32,6 +34,7 @@ export interface PlaneInput {
  */
 export function polePlaneOptions(input: PlaneInput): EChartsCoreOption {
   const c = input.colours;
+  const u = input.unit ?? 'meV';
   const point = (p: PlanePole) => ({ value: [p.energy, -p.width / 2], id: p.id });
   const isolated = input.poles.filter((p) => !p.bound && !p.nearThreshold && !p.overlapping && p.id !== input.highlightId);
   const nearThreshold = input.poles.filter((p) => !p.bound && p.nearThreshold && p.id !== input.highlightId);
@@ -54,11 +57,11 @@ export function polePlaneOptions(input: PlaneInput): EChartsCoreOption {
     tooltip: {
       trigger: 'item',
       formatter: (p: { value: [number, number]; seriesName: string }) =>
-        `${p.seriesName}<br>E = ${p.value[0].toPrecision(6)} meV<br>Γ/2 = ${(-p.value[1]).toPrecision(3)} meV`,
+        `${p.seriesName}<br>E = ${p.value[0].toPrecision(6)} ${u}<br>Γ/2 = ${(-p.value[1]).toPrecision(3)} ${u}`,
     },
     xAxis: {
       type: 'value',
-      name: 'Re z = E (meV)',
+      name: `Re z = E (${u})`,
       nameLocation: 'middle',
       nameGap: 32,
       scale: true,
@@ -70,7 +73,7 @@ export function polePlaneOptions(input: PlaneInput): EChartsCoreOption {
     },
     yAxis: {
       type: 'value',
-      name: 'Im z = −Γ/2 (meV)',
+      name: `Im z = −Γ/2 (${u})`,
       nameLocation: 'middle',
       nameGap: 52,
       max: 0,

@@ -51,4 +51,10 @@ describe('lattice validity on the run page', () => {
     expect(ring.data.map((d) => d.value[0])).toEqual([9.5]);
     expect(ring.markLine!.data[0]['xAxis']).toBe(8.69);
   });
+
+  it('names the axes in k² for a microwave model, meV otherwise', () => {
+    const name = (unit?: string) => (polePlaneOptions({ poles: [], thresholds: [], window: null, unit, colours }) as { xAxis: { name: string } }).xAxis.name;
+    expect(name('mm⁻² (k²)')).toBe('Re z = E (mm⁻² (k²))');
+    expect(name()).toBe('Re z = E (meV)');
+  });
 });

@@ -25,6 +25,7 @@ export function widthAxisRange(poles: readonly PlanePole[], gammaMax: number | u
  */
 export function poleWidthOptions(input: PlaneInput): EChartsCoreOption {
   const c = input.colours;
+  const u = input.unit ?? 'meV';
   const w = input.window;
   const range = widthAxisRange(input.poles, w?.gammaMax);
   const shown = input.poles.filter((p) => !p.bound && p.width > 0);
@@ -45,11 +46,11 @@ export function poleWidthOptions(input: PlaneInput): EChartsCoreOption {
     tooltip: {
       trigger: 'item',
       formatter: (p: { value: [number, number]; seriesName: string }) =>
-        `${p.seriesName}<br>E = ${p.value[0].toPrecision(6)} meV<br>Γ = ${p.value[1].toPrecision(3)} meV`,
+        `${p.seriesName}<br>E = ${p.value[0].toPrecision(6)} ${u}<br>Γ = ${p.value[1].toPrecision(3)} ${u}`,
     },
     xAxis: {
       type: 'value',
-      name: 'E (meV)',
+      name: `E (${u})`,
       nameLocation: 'middle',
       nameGap: 32,
       scale: true,
@@ -62,7 +63,7 @@ export function poleWidthOptions(input: PlaneInput): EChartsCoreOption {
     yAxis: {
       type: 'log',
       logBase: 10,
-      name: 'width Γ (meV, log)',
+      name: `width Γ (${u}, log)`,
       nameLocation: 'middle',
       nameGap: 60,
       min: range.min,

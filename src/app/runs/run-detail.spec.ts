@@ -21,6 +21,7 @@ class PlaneStub {
   readonly window = input<unknown>();
   readonly view = input<unknown>();
   readonly validityLimit = input<unknown>();
+  readonly unit = input<unknown>();
   readonly highlightId = input<unknown>();
 }
 @Component({ selector: 'pw-transmission-chart', template: '' })
@@ -163,5 +164,7 @@ describe('RunDetail', () => {
     const headers = Array.from(host.querySelectorAll('th')).map((h) => h.textContent!.trim());
     expect(headers).toContain('Frequency f (GHz)');
     expect(headers.some((h) => h.includes('meV') || h === 'Energy E')).toBe(false);
+    const plane = fixture.debugElement.query((d) => d.componentInstance instanceof PlaneStub).componentInstance as PlaneStub;
+    expect(plane.unit()).toBe('mm⁻² (k²)');
   });
 });
