@@ -165,4 +165,18 @@ describe('ModelEditor', () => {
     expect(host.querySelector('input[type="file"]')).not.toBeNull();
     http.match((r) => r.url.endsWith('/models/validate'));
   });
+
+  it('switches to a microwave resonator: ε_r and h shown, material, field, potential and offsets hidden, lengths in mm', async () => {
+    const { fixture, host, http } = setUp('designer');
+    expect(host.querySelector('[data-field="material"]')).not.toBeNull();
+    expect(host.querySelector('[data-field="physics.height"]')).toBeNull();
+    (fixture.componentInstance as unknown as { form: { controls: { physics: { setValue(v: string): void } } } }).form.controls.physics.setValue('microwave');
+    fixture.detectChanges();
+    expect(host.querySelector('[data-field="physics.permittivity"]')).not.toBeNull();
+    expect(host.querySelector('[data-field="physics.height"]')).not.toBeNull();
+    for (const gone of ['material', 'field', 'leads.0.offset']) expect(host.querySelector(`[data-field="${gone}"]`)).toBeNull();
+    expect(host.querySelector('[data-test="potential-card"]')).toBeNull();
+    expect(fieldOf(host, 'spacing').textContent).toContain('Spacing a (mm)');
+    http.match(() => true);
+  });
 });

@@ -32,6 +32,7 @@ import { LatticePreview } from './lattice-preview';
 import { countSites } from './lattice-mask-path';
 import { issueInWords } from './issue-words';
 import { addLeadStub } from './lead-stub';
+import { ceilingGhz, twoDimensionalLimitWarning } from './two-dimensional-limit';
 import { type LeadForm, customMaterial, fillForm, leadGroup, materialChoices, modelForm, readForm, starterModel } from './model-form';
 import { type PlacedIssue, clearPlacedIssues, dottedPath, placeIssues } from '../core/errors/model-issues';
 import { PotentialEditor } from './potential-editor';
@@ -126,6 +127,14 @@ export class ModelEditor {
   protected readonly jsonError = signal<string | null>(null);
   /** Per lead: what the last lead-stub click said when it could not add one. */
   protected readonly stubNotes = signal<Map<number, string>>(new Map());
+  /** A flat microwave resonator: lengths in mm, ε_r and h shown; material, field, potential and lead offsets hidden. */
+  protected readonly microwave = computed(() => this.value().physics === 'microwave');
+  protected readonly lengthUnit = computed(() => (this.microwave() ? 'mm' : 'nm'));
+  protected readonly limitWarning = computed(() => {
+    const d = this.derived();
+    return d ? twoDimensionalLimitWarning(d) : null;
+  });
+  protected readonly ceilingGhz = ceilingGhz;
   protected readonly isCustomMaterial = computed(() => this.value().material === customMaterial);
   protected readonly groupSlug = computed(() => this.group.slug());
   protected readonly title = computed(() => {

@@ -25,6 +25,11 @@ export function modelForm() {
   return new FormGroup({
     name: new FormControl<string>('', { nonNullable: true, validators: [Validators.required] }),
     notes: new FormControl<string>('', { nonNullable: true }),
+    /** electrons (2DEG: nm, meV, T) or microwave (flat resonator: mm, ε_r, h). */
+    physics: new FormControl<'electrons' | 'microwave'>('electrons', { nonNullable: true }),
+    /** Microwave mode: relative permittivity ε_r of the filling and the height h (mm) between the plates. */
+    permittivity: num(1),
+    height: num(null),
     spacing: num(5),
     material: new FormControl<string>('gaas', { nonNullable: true }),
     effectiveMass: num(0.067),
@@ -63,7 +68,9 @@ export const starterModel: CavityModelInput = {
 
 /** Fills the form from a document (leads rebuilt). */
 export function fillForm(form: ModelForm, doc: CavityModelInput): void {
-  const custom = typeof doc.material !== 'string';
+  const custom = doc.material != null && typeof doc.material !== 'string';
+  const physics = doc.physics as { kind?: string; permittivity?: number; height?: number } | undefined;
+  const microwave = physics?.kind === 'microwave';
   const leads = form.controls.leads;
   leads.clear({ emitEvent: false });
   for (const lead of doc.leads ?? []) leads.push(leadGroup(lead), { emitEvent: false });
@@ -71,8 +78,11 @@ export function fillForm(form: ModelForm, doc: CavityModelInput): void {
     {
       name: doc.name ?? '',
       notes: doc.notes ?? '',
+      physics: microwave ? 'microwave' : 'electrons',
+      permittivity: microwave ? (physics?.permittivity ?? 1) : 1,
+      height: microwave ? (physics?.height ?? null) : null,
       spacing: doc.spacing ?? null,
-      material: custom ? customMaterial : ((doc.material as string) ?? 'gaas'),
+      material: custom ? customMaterial : ((doc.material as string | undefined) ?? 'gaas'),
       effectiveMass: custom ? ((doc.material as { effectiveMass: number }).effectiveMass ?? null) : null,
       grid: { nx: doc.grid?.nx ?? null, ny: doc.grid?.ny ?? null },
       field: doc.field ?? 0,
@@ -97,6 +107,7 @@ export interface FormReadIssue {
 export function readForm(form: ModelForm): { document: CavityModelInput; issues: FormReadIssue[] } {
   const v = form.getRawValue();
   const issues: FormReadIssue[] = [];
+  if (v.physics === 'microwave') return { document: microwaveDocument(v), issues };
   const document = {
     name: v.name.trim(),
     ...(v.notes.trim() ? { notes: v.notes } : {}),
@@ -115,4 +126,20 @@ export function readForm(form: ModelForm): { document: CavityModelInput; issues:
     })),
   } as unknown as CavityModelInput;
   return { document, issues };
+}
+
+/**
+ * A microwave resonator's document: physics with ε_r and h, and none of the fields the
+ * schema refuses there (material, field, potential terms, lead offsets).
+ */
+function microwaveDocument(v: ReturnType<ModelForm['getRawValue']>): CavityModelInput {
+  return {
+    name: v.name.trim(),
+    ...(v.notes.trim() ? { notes: v.notes } : {}),
+    physics: { kind: 'microwave', permittivity: v.permittivity, height: v.height },
+    spacing: v.spacing,
+    grid: { nx: v.grid.nx, ny: v.grid.ny },
+    shape: v.shape,
+    leads: v.leads.map((l) => ({ side: l.side, start: l.start, width: l.width, offset: 0, ...(l.name.trim() ? { name: l.name.trim() } : {}) })),
+  } as unknown as CavityModelInput;
 }

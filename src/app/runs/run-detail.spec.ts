@@ -10,7 +10,53 @@ import { sampleRun } from './sample-run';
 import { settle } from '../core/testing/next-request';
 import { RunDetail } from './run-detail';
 import { RunsApi } from './runs-api';
+import { Component, input } from '@angular/core';
+import { PolePlaneChart } from '../core/charts/pole-plane-chart';
 import { TransmissionChart } from './transmission-chart';
+import type { ResonanceRow } from '../core/answers/resonance-row';
+
+/** Stand-ins for the charts (echarts needs a canvas): they keep the inputs the page binds. */
+@Component({ selector: 'pw-pole-plane-chart', template: '' })
+class PlaneStub {
+  readonly poles = input<unknown>();
+  readonly thresholds = input<unknown>();
+  readonly window = input<unknown>();
+  readonly view = input<unknown>();
+  readonly validityLimit = input<unknown>();
+  readonly unit = input<unknown>();
+  readonly highlightId = input<unknown>();
+}
+@Component({ selector: 'pw-transmission-chart', template: '' })
+class TransmissionStub {
+  readonly spectrum = input<unknown>();
+  readonly poles = input<unknown>();
+  readonly thresholds = input<unknown>();
+  readonly leadNames = input<unknown>();
+  readonly view = input<unknown>();
+}
+
+const pole = (over: Partial<ResonanceRow>): ResonanceRow =>
+  ({
+    id: 'p', runId: 'r1', source: 'computed', fitId: null, modelId: 'm1', modelName: 'Dot A', modelVersion: 2, family: 'rectangle',
+    keyDimensions: {}, material: 'GaAs', fieldT: 0, energy: 8, width: 0.01, lifetimePs: 0.0658, quality: 800, partialWidths: [],
+    petermann: 1.01, residual: 1e-12, bound: false, nearThreshold: false, overlapping: false, tags: [], notes: '', createdAt: '2025-01-01T10:00:00Z',
+    thumbnailUrl: null, imageUrl: null, ...over,
+  }) as ResonanceRow;
+
+async function completedPage(poles: ResonanceRow[]) {
+  TestBed.configureTestingModule({
+    providers: [provideHttpClient(), provideHttpClientTesting(), provideRouter([]), provideFakeCurrentGroup('viewer')],
+  });
+  TestBed.overrideComponent(RunDetail, { remove: { imports: [PolePlaneChart, TransmissionChart] }, add: { imports: [PlaneStub, TransmissionStub] } });
+  const http = TestBed.inject(HttpTestingController);
+  const fixture = TestBed.createComponent(RunDetail);
+  fixture.componentRef.setInput('runId', 'r1');
+  fixture.detectChanges();
+  await settle();
+  http.expectOne('/api/groups/g1/runs/r1').flush({ ...detail, status: 'completed', progress: null, finishedAt: '2025-01-01T10:01:00Z', poles });
+  fixture.detectChanges();
+  return fixture;
+}
 
 const detail = { ...sampleRun, thresholds: [], poles: [], spectrum: null };
 
@@ -81,6 +127,47 @@ describe('RunDetail', () => {
     expect(stage).toMatch(/4\d s elapsed/);
     expect(stage).toMatch(/about (59 s|1 min 0[01] s) left/);
     http.match(() => true);
+  });
+
+  it('marks the poles above the lattice-validity limit and says how many, in the table and on the charts', async () => {
+    const v = { limit: 8.69, wavelengthSpacings: 9.1 };
+    const fixture = await completedPage([
+      pole({ id: 'a', energy: 7.8, validity: { ...v, aboveLimit: false } }),
+      pole({ id: 'b', energy: 9.2, validity: { ...v, aboveLimit: true } }),
+      pole({ id: 'c', energy: 9.9, validity: { ...v, aboveLimit: true } }),
+    ]);
+    const host = fixture.nativeElement as HTMLElement;
+    expect(host.querySelector('[data-test="validity-line"]')!.textContent).toContain('2 of 3 poles lie above the energy where the lattice is trusted (8.690 meV)');
+    const cells = Array.from(host.querySelectorAll('[data-test="validity-cell"]'));
+    expect(cells.map((c) => !!c.querySelector('[data-test="above-limit"]'))).toEqual([false, true, true]);
+    expect(cells[1].querySelector('[data-test="above-limit"]')!.getAttribute('aria-label')).toContain('fewer than 10 lattice spacings');
+    // The electron table keeps its meV columns and shows no frequencies.
+    expect(host.querySelector('[data-test="frequency"]')).toBeNull();
+    const plane = fixture.debugElement.query((d) => d.componentInstance instanceof PlaneStub).componentInstance as PlaneStub;
+    expect(plane.validityLimit()).toBe(8.69);
+    expect((plane.poles() as { aboveLimit: boolean }[]).map((p) => p.aboveLimit)).toEqual([false, true, true]);
+  });
+
+  it('shows a microwave run\'s poles as frequency, width, lifetime and Q from their stored figures', async () => {
+    const fixture = await completedPage([
+      pole({
+        id: 'm', physics: 'microwave', energy: 1.234, width: 2e-4,
+        validity: { limit: 3.3, wavelengthSpacings: 22, aboveLimit: false },
+        microwave: { frequencyGhz: 5.30123456, widthMhz: 0.87654, lifetimeNs: 0.18157, quality: 6047.9, validityLimitGhz: 8.75 },
+      }),
+    ]);
+    const host = fixture.nativeElement as HTMLElement;
+    const text = (t: string) => host.querySelector(`[data-test="${t}"]`)!.textContent!.trim();
+    expect(text('frequency')).toBe('5.301235 GHz');
+    expect(text('frequency-width')).toBe('0.8765 MHz');
+    expect(text('lifetime-ns')).toBe('0.1816 ns');
+    expect(text('quality-mw')).toBe('6048');
+    expect(text('validity-line')).toContain('0 of 1 pole lie above the frequency where the lattice is trusted (8.750 GHz)');
+    const headers = Array.from(host.querySelectorAll('th')).map((h) => h.textContent!.trim());
+    expect(headers).toContain('Frequency f (GHz)');
+    expect(headers.some((h) => h.includes('meV') || h === 'Energy E')).toBe(false);
+    const plane = fixture.debugElement.query((d) => d.componentInstance instanceof PlaneStub).componentInstance as PlaneStub;
+    expect(plane.unit()).toBe('mm⁻² (k²)');
   });
 });
 

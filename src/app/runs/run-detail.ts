@@ -9,6 +9,7 @@ import { MatCardModule } from '@angular/material/card';
 import { MatIconModule } from '@angular/material/icon';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatTableModule } from '@angular/material/table';
+import { MatTooltipModule } from '@angular/material/tooltip';
 import { RouterLink } from '@angular/router';
 import { type Subscription, interval } from 'rxjs';
 import { toSignal } from '@angular/core/rxjs-interop';
@@ -28,6 +29,7 @@ import { durationText, progressTimes } from './progress-times';
 import { exportFileName, polesCsv, polesJson, saveText, spectrumCsv, spectrumJson } from './run-export';
 import { type ConductanceUnit, type SpectrumQuantity, conductanceUnitLabels } from './spectrum-curves';
 import { spectrumWarnings } from './spectrum-warnings';
+import { aboveLimitMeaning, microwaveCells, validitySummary } from './pole-validity';
 import type { SpectrumView } from './transmission-options';
 
 /**
@@ -49,6 +51,7 @@ import type { SpectrumView } from './transmission-options';
     MatIconModule,
     MatProgressBarModule,
     MatTableModule,
+    MatTooltipModule,
     EnergyPipe,
     WidthPipe,
     LifetimePipe,
@@ -72,7 +75,8 @@ export class RunDetail {
   protected readonly statusLabel = statusLabel;
   protected readonly windowText = windowText;
   protected readonly errorTone = runErrorTone;
-  protected readonly columns = ['index', 'energy', 'width', 'lifetime', 'quality', 'petermann', 'flags'];
+  protected readonly aboveLimitMeaning = aboveLimitMeaning;
+  protected readonly microwaveCells = microwaveCells;
 
   protected readonly run = signal<RunDetailData | null>(null);
   protected readonly quantity = signal<SpectrumQuantity>('transmission');
@@ -129,6 +133,18 @@ export class RunDetail {
   protected readonly certificate = computed(() => certificateInWords(this.run()?.certificate ?? null));
   protected readonly uncertified = computed(() => this.run()?.certificate?.pieces.filter((p) => !p.certified) ?? []);
   protected readonly poles = computed(() => this.run()?.poles ?? []);
+  /** A microwave model's run: poles as frequencies (GHz, MHz, ns, Q) from the rows' `microwave` block. */
+  protected readonly microwave = computed(() => this.poles().some((p) => p.physics === 'microwave' && p.microwave));
+  protected readonly columns = computed(() =>
+    this.microwave()
+      ? ['index', 'frequency', 'frequencyWidth', 'lifetimeNs', 'qualityMw', 'petermann', 'validity', 'flags']
+      : ['index', 'energy', 'width', 'lifetime', 'quality', 'petermann', 'validity', 'flags'],
+  );
+  protected readonly validityLine = computed(() => validitySummary(this.poles()));
+  /** The poles as the charts draw them, with their validity mark. */
+  protected readonly planePoles = computed(() => this.poles().map((p) => ({ ...p, aboveLimit: p.validity?.aboveLimit === true })));
+  /** The lattice-validity limit in the poles' own unit (meV, or k² in mm⁻²), drawn on the charts. */
+  protected readonly validityLimit = computed(() => this.poles().find((p) => p.validity?.limit != null)?.validity?.limit ?? null);
   /** Lead names in engine order, from the run's model version (the spectrum names its pairs by index). */
   protected readonly leadNames = computed(() => this.run()?.leads?.map((l) => l.name) ?? this.poles()[0]?.partialWidths.map((w) => w.lead) ?? []);
   protected readonly flagCounts = computed(() => {

@@ -20,6 +20,10 @@ export class PolePlaneChart {
   readonly thresholds = input<readonly number[]>([]);
   readonly window = input<{ emin: number; emax: number; gammaMax?: number } | null>(null);
   readonly highlightId = input<string | null>(null);
+  /** The model's lattice-validity limit in the poles' unit; poles above it carry `aboveLimit`. */
+  readonly validityLimit = input<number | null>(null);
+  /** Unit of E and Γ: meV, or mm⁻² (k²) for a microwave model. */
+  readonly unit = input('meV');
   /** 'plane': Re z and Im z, linear; 'width': E and Γ on a log axis. */
   readonly view = input<'plane' | 'width'>('plane');
 
@@ -29,6 +33,8 @@ export class PolePlaneChart {
       thresholds: this.thresholds(),
       window: this.window(),
       highlightId: this.highlightId(),
+      validityLimit: this.validityLimit(),
+      unit: this.unit(),
       colours: chartColours(),
     }),
   );

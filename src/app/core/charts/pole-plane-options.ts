@@ -1,5 +1,6 @@
 import type { EChartsCoreOption } from 'echarts/core';
 import type { ChartColours } from './chart-colours';
+import { validityOverlay } from './validity-overlay';
 
 /** One pole z = E − iΓ/2 to draw (meV), with the flags that change how it is drawn. */
 export interface PlanePole {
@@ -9,6 +10,8 @@ export interface PlanePole {
   bound?: boolean;
   nearThreshold?: boolean;
   overlapping?: boolean;
+  /** Above the model's lattice-validity limit: drawn with a ring. */
+  aboveLimit?: boolean;
 }
 
 export interface PlaneInput {
@@ -17,6 +20,10 @@ export interface PlaneInput {
   window: { emin: number; emax: number; gammaMax?: number } | null;
   /** The pole to single out (the resonance detail page). */
   highlightId?: string | null;
+  /** The model's lattice-validity limit in the poles' unit, drawn as a line; null: unknown. */
+  validityLimit?: number | null;
+  /** Unit of E and Γ on the axes: meV, or mm⁻² (k²) for a microwave model. */
+  unit?: string;
   colours: ChartColours;
 }
 
@@ -27,6 +34,7 @@ export interface PlaneInput {
  */
 export function polePlaneOptions(input: PlaneInput): EChartsCoreOption {
   const c = input.colours;
+  const u = input.unit ?? 'meV';
   const point = (p: PlanePole) => ({ value: [p.energy, -p.width / 2], id: p.id });
   const isolated = input.poles.filter((p) => !p.bound && !p.nearThreshold && !p.overlapping && p.id !== input.highlightId);
   const nearThreshold = input.poles.filter((p) => !p.bound && p.nearThreshold && p.id !== input.highlightId);
@@ -49,11 +57,11 @@ export function polePlaneOptions(input: PlaneInput): EChartsCoreOption {
     tooltip: {
       trigger: 'item',
       formatter: (p: { value: [number, number]; seriesName: string }) =>
-        `${p.seriesName}<br>E = ${p.value[0].toPrecision(6)} meV<br>Γ/2 = ${(-p.value[1]).toPrecision(3)} meV`,
+        `${p.seriesName}<br>E = ${p.value[0].toPrecision(6)} ${u}<br>Γ/2 = ${(-p.value[1]).toPrecision(3)} ${u}`,
     },
     xAxis: {
       type: 'value',
-      name: 'Re z = E (meV)',
+      name: `Re z = E (${u})`,
       nameLocation: 'middle',
       nameGap: 32,
       scale: true,
@@ -65,7 +73,7 @@ export function polePlaneOptions(input: PlaneInput): EChartsCoreOption {
     },
     yAxis: {
       type: 'value',
-      name: 'Im z = −Γ/2 (meV)',
+      name: `Im z = −Γ/2 (${u})`,
       nameLocation: 'middle',
       nameGap: 52,
       max: 0,
@@ -112,6 +120,7 @@ export function polePlaneOptions(input: PlaneInput): EChartsCoreOption {
         itemStyle: { color: c.error, borderColor: c.surface, borderWidth: 2 },
         data: highlighted.map(point),
       },
-    ].filter((s) => s.name === 'Resonances' || s.data.length > 0),
+      ...validityOverlay(input.poles, input.validityLimit, point, c),
+    ].filter((s) => s.name === 'Resonances' || s.name === 'Above the lattice limit' || (s['data'] as unknown[]).length > 0),
   };
 }

@@ -1,5 +1,6 @@
 import type { EChartsCoreOption } from 'echarts/core';
 import type { PlaneInput, PlanePole } from './pole-plane-options';
+import { validityOverlay } from './validity-overlay';
 
 /**
  * The range of the log-width axis (meV): from a little below the smallest width in
@@ -23,6 +24,7 @@ export function widthAxisRange(poles: readonly PlanePole[], gammaMax: number | u
  */
 export function poleWidthOptions(input: PlaneInput): EChartsCoreOption {
   const c = input.colours;
+  const u = input.unit ?? 'meV';
   const w = input.window;
   const range = widthAxisRange(input.poles, w?.gammaMax);
   const shown = input.poles.filter((p) => !p.bound && p.width > 0);
@@ -43,11 +45,11 @@ export function poleWidthOptions(input: PlaneInput): EChartsCoreOption {
     tooltip: {
       trigger: 'item',
       formatter: (p: { value: [number, number]; seriesName: string }) =>
-        `${p.seriesName}<br>E = ${p.value[0].toPrecision(6)} meV<br>Γ = ${p.value[1].toPrecision(3)} meV`,
+        `${p.seriesName}<br>E = ${p.value[0].toPrecision(6)} ${u}<br>Γ = ${p.value[1].toPrecision(3)} ${u}`,
     },
     xAxis: {
       type: 'value',
-      name: 'E (meV)',
+      name: `E (${u})`,
       nameLocation: 'middle',
       nameGap: 32,
       scale: true,
@@ -60,7 +62,7 @@ export function poleWidthOptions(input: PlaneInput): EChartsCoreOption {
     yAxis: {
       type: 'log',
       logBase: 10,
-      name: 'width Γ (meV, log)',
+      name: `width Γ (${u}, log)`,
       nameLocation: 'middle',
       nameGap: 60,
       min: range.min,
@@ -109,6 +111,7 @@ export function poleWidthOptions(input: PlaneInput): EChartsCoreOption {
         itemStyle: { color: c.error, borderColor: c.surface, borderWidth: 2 },
         data: highlighted.map(point),
       },
-    ].filter((s) => s.name === 'Resonances' || s.data.length > 0),
+      ...validityOverlay(shown, input.validityLimit, point, c),
+    ].filter((s) => s.name === 'Resonances' || s.name === 'Above the lattice limit' || (s['data'] as unknown[]).length > 0),
   };
 }
