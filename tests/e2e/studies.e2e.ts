@@ -76,6 +76,7 @@ describe('a field study from the launcher to a saved version', () => {
     expect(await panel.locator('pw-density-image canvas').count()).toBeGreaterThan(0);
     await panel.locator('[data-test="save-step"]').click();
     await expect.poll(() => page.locator('[data-test="saved"]').textContent(), { timeout: 15_000 }).toContain('Saved as version 2');
+    await page.locator('[data-test="step-panel"]').scrollIntoViewIfNeeded();
     await screenshot(page, 'study-step-saved');
     // The new version holds the step's field.
     const field = await page.evaluate(async (id) => {

@@ -116,10 +116,10 @@ export class StudyLauncher {
   /** What the values field stands for, or what is wrong with it. */
   protected readonly valuesNote = computed(() => {
     const parsed = parseParameterValues(this.value().sweep.values);
-    if ('error' in parsed) return { error: parsed.error };
+    if ('error' in parsed) return { error: parsed.error, text: null };
     const values = expandValues(parsed.values);
     const shown = values.slice(0, 6).map((x) => Number(x.toPrecision(4)));
-    return { text: `${values.length} step(s): ${shown.join(', ')}${values.length > 6 ? ', …' : ''}` };
+    return { error: null, text: `${values.length} step(s): ${shown.join(', ')}${values.length > 6 ? ', …' : ''}` };
   });
 
   private readonly estimates = new Subject<StudyRequest | null>();
