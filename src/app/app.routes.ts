@@ -43,6 +43,7 @@ export const routes: Routes = [
           { path: 'models', loadChildren: () => import('./models/models.routes').then((m) => m.modelsRoutes) },
           { path: 'runs', loadChildren: () => import('./runs/runs.routes').then((m) => m.runsRoutes) },
           { path: 'catalogue', loadChildren: () => import('./catalogue/catalogue.routes').then((m) => m.catalogueRoutes) },
+          { path: 'studies', loadChildren: () => import('./studies/studies.routes').then((m) => m.studiesRoutes) },
           { path: 'fits', loadChildren: () => import('./fits/fits.routes').then((m) => m.fitsRoutes) },
           {
             path: 'fabrication',

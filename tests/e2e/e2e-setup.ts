@@ -17,6 +17,8 @@ import { createMailer } from '../../server/mail/mailer.js';
 import { RunEvents } from '../../server/runs/run-events.js';
 import { notificationQueue } from '../../server/fabrication/notification-queue.js';
 import { startNotificationWorker } from '../../server/fabrication/notification-job.js';
+import { studyQueue } from '../../server/studies/study-queue.js';
+import { startStudyWorker } from '../../server/studies/study-worker.js';
 import { ensureDatabase } from '../../scripts/db.js';
 import { migrate } from '../../scripts/migrate.js';
 import { seedDemo } from '../../scripts/seed.js';
@@ -46,17 +48,20 @@ export default async function setup(project: TestProject): Promise<() => Promise
   const runEvents = new RunEvents(url);
   await runEvents.start();
   const mailer = createMailer(config.smtpUrl, config.mailFrom);
-  const app = createApp({ db: handle.db, config, mailer, queue: runQueue(boss), modeMapQueue: modeMapQueue(boss), runEvents, notifications: notificationQueue(boss), log: () => {} });
+  const app = createApp({ db: handle.db, config, mailer, queue: runQueue(boss), modeMapQueue: modeMapQueue(boss), runEvents, notifications: notificationQueue(boss), studyQueue: studyQueue(boss), log: () => {} });
   const notificationWorker = await startNotificationWorker({ db: handle.db, boss, mailer, pollingIntervalSeconds: 0.5 });
   const http = createServer(app);
   await new Promise<void>((done) => http.listen(0, '127.0.0.1', done));
   const { port } = http.address() as AddressInfo;
   const worker = startWorkerLoop({ db: handle.db, boss, compute: runInThread, pollSeconds: 0.5, log: () => {} });
   const maps = startModeMapWorker({ db: handle.db, boss, pollSeconds: 0.5, log: () => {} });
+  // Study steps (parameter studies, tolerance ensembles) run in a worker thread each, as under `npm run worker`.
+  const studySteps = startStudyWorker({ db: handle.db, boss, pollSeconds: 0.5, log: () => {} });
   project.provide('baseUrl', `http://127.0.0.1:${port}`);
   return async () => {
     await worker.stop();
     await maps.stop();
+    await studySteps.stop();
     await notificationWorker.stop();
     http.closeAllConnections();
     await new Promise<void>((done) => http.close(() => done()));

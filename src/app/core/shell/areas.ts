@@ -10,6 +10,7 @@ export const areas: readonly Area[] = [
   { path: 'dashboard', label: 'Dashboard', icon: 'space_dashboard' },
   { path: 'models', label: 'Models', icon: 'grid_on' },
   { path: 'runs', label: 'Runs', icon: 'play_circle' },
+  { path: 'studies', label: 'Studies', icon: 'timeline' },
   { path: 'catalogue', label: 'Catalogue', icon: 'library_books' },
   { path: 'fits', label: 'Fits', icon: 'ssid_chart' },
   { path: 'review', label: 'Review', icon: 'rate_review' },

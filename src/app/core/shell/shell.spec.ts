@@ -51,6 +51,7 @@ describe('Shell', () => {
       '/g/harrow-lake/dashboard',
       '/g/harrow-lake/models',
       '/g/harrow-lake/runs',
+      '/g/harrow-lake/studies',
       '/g/harrow-lake/catalogue',
       '/g/harrow-lake/fits',
       '/g/harrow-lake/review',

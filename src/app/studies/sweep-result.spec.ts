@@ -1,0 +1,69 @@
+import { provideHttpClient } from '@angular/common/http';
+import { HttpTestingController, provideHttpClientTesting } from '@angular/common/http/testing';
+import { TestBed } from '@angular/core/testing';
+import { provideRouter } from '@angular/router';
+import { provideEchartsCore } from 'ngx-echarts';
+import { provideFakeCurrentGroup } from '../models/fake-current-group';
+import { sampleStep, sampleSweepOutcome } from '../testing/sample-study';
+import { settle } from '../testing/next-request';
+import { SweepResult } from './sweep-result';
+
+const studyId = '7b0c1f3e-2d4a-4b6c-8e9f-0a1b2c3d4e5f';
+const stepUrl = `/api/groups/g1/studies/${studyId}/steps/1`;
+
+function setUp(role: 'designer' | 'viewer' = 'designer') {
+  TestBed.configureTestingModule({
+    providers: [provideHttpClient(), provideHttpClientTesting(), provideRouter([]), provideFakeCurrentGroup(role), provideEchartsCore({ echarts: () => import('./echarts') })],
+  });
+  const http = TestBed.inject(HttpTestingController);
+  const fixture = TestBed.createComponent(SweepResult);
+  fixture.componentRef.setInput('studyId', studyId);
+  fixture.componentRef.setInput('outcome', sampleSweepOutcome);
+  fixture.detectChanges();
+  return { http, fixture, host: fixture.nativeElement as HTMLElement };
+}
+
+describe('SweepResult', () => {
+  it('warns about the uncertified step and lists the avoided crossing', () => {
+    const { host } = setUp();
+    expect(host.querySelector('[data-test=uncertified]')!.textContent).toContain('1 of 3 step(s) are not certified');
+    expect(host.querySelector('[data-test=uncertified]')!.textContent).toContain('may have missed poles');
+    const row = host.querySelector('[data-test=marks] tbody tr')!;
+    expect(row.textContent).toContain('Avoided crossing');
+    expect(row.textContent).toContain('0 and 1');
+    expect(host.querySelector('[data-step="2"]')!.textContent).toContain('uncertified');
+    expect(host.querySelector('[data-step="0"]')!.textContent).not.toContain('uncertified');
+  });
+
+  it('opens a step with its mode densities and saves it as a model version', async () => {
+    const { http, fixture, host } = setUp();
+    host.querySelector<HTMLButtonElement>('[data-step="1"]')!.click();
+    fixture.detectChanges();
+    await settle();
+    http.expectOne(stepUrl).flush(sampleStep);
+    fixture.detectChanges();
+    const panel = host.querySelector('[data-test=step-panel]')!;
+    expect(panel.textContent).toContain('field = 0.5');
+    expect(panel.querySelectorAll('pw-density-image')).toHaveLength(2);
+    expect(panel.querySelector('[data-pole="0"] figcaption')!.textContent).toContain('E = 3.2');
+
+    panel.querySelector<HTMLButtonElement>('[data-test=save-step]')!.click();
+    const save = http.expectOne(`${stepUrl}/save`);
+    expect(save.request.method).toBe('POST');
+    save.flush({ modelId: '5f0c1f3e-2d4a-4b6c-8e9f-0a1b2c3d4e5f', version: 3 });
+    fixture.detectChanges();
+    expect(host.querySelector('[data-test=saved]')!.textContent).toContain('Saved as version 3');
+    expect(host.querySelector<HTMLButtonElement>('[data-test=save-step]')!.disabled).toBe(true);
+  });
+
+  it('offers no saving to a viewer', async () => {
+    const { http, fixture, host } = setUp('viewer');
+    host.querySelector<HTMLButtonElement>('[data-step="1"]')!.click();
+    fixture.detectChanges();
+    await settle();
+    http.expectOne(stepUrl).flush(sampleStep);
+    fixture.detectChanges();
+    expect(host.querySelector('[data-test=step-panel]')).not.toBeNull();
+    expect(host.querySelector('[data-test=save-step]')).toBeNull();
+  });
+});
