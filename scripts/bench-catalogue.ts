@@ -57,7 +57,13 @@ function requestOf(query: string): CataloguePageRequest {
 async function explainMs(db: Db, q: { getSQL(): unknown }, label: string): Promise<number> {
   const result = await db.execute(sql`explain (analyze, buffers) ${q}`);
   const lines = (result.rows as { 'QUERY PLAN': string }[]).map((r) => r['QUERY PLAN']);
-  if (process.env.BENCH_PLANS === '1') console.log(`  -- ${label}\n${lines.filter((l) => !/^\s*Buffers|Planning:|Planning Time/.test(l)).map((l) => `     ${l}`).join('\n')}`);
+  if (process.env.BENCH_PLANS === '1')
+    console.log(
+      `  -- ${label}\n${lines
+        .filter((l) => !/^\s*Buffers|Planning:|Planning Time/.test(l))
+        .map((l) => `     ${l}`)
+        .join('\n')}`,
+    );
   return Number(/([\d.]+) ms/.exec(lines.find((l) => l.startsWith('Execution Time')) ?? '')?.[1] ?? NaN);
 }
 
@@ -98,7 +104,11 @@ async function drain(pool: { totalCount: number; idleCount: number; waitingCount
 
 export async function benchCatalogue(): Promise<Record<string, number>> {
   const figures: Record<string, number> = {};
-  console.log(`[bench] catalogue: machine load average ${loadavg().map((x) => x.toFixed(1)).join(' ')} on ${availableParallelism()} cores before the run`);
+  console.log(
+    `[bench] catalogue: machine load average ${loadavg()
+      .map((x) => x.toFixed(1))
+      .join(' ')} on ${availableParallelism()} cores before the run`,
+  );
   // BENCH_REUSE=1 keeps the database of the previous run (the load takes a minute or two).
   const reuse = process.env.BENCH_REUSE === '1';
   // Its own name per checkout, so two benches on one PostgreSQL do not drop each other's data.
@@ -115,7 +125,10 @@ export async function benchCatalogue(): Promise<Record<string, number>> {
     let t0 = performance.now();
     let main: { groupId: string; userId: string };
     if (reuse && existing!.n > 0) {
-      const [row] = await db.select({ groupId: researchGroups.id }).from(researchGroups).where(sql`${researchGroups.slug} = 'bench-main'`);
+      const [row] = await db
+        .select({ groupId: researchGroups.id })
+        .from(researchGroups)
+        .where(sql`${researchGroups.slug} = 'bench-main'`);
       main = { groupId: row!.groupId, userId: '' };
       console.log('[bench] reusing the resonances of the previous run (BENCH_REUSE=1)');
     } else {
@@ -180,11 +193,19 @@ export async function benchCatalogue(): Promise<Record<string, number>> {
       figures[`explain_${name}_page_ms`] = ms.page;
       figures[`explain_${name}_estimate_ms`] = ms.estimate;
       figures[`explain_${name}_count_ms`] = ms.count;
-      console.log(`  ${name.padEnd(18)} ${ms.page.toFixed(2).padStart(8)} ${ms.estimate.toFixed(2).padStart(8)} ${ms.count.toFixed(2).padStart(8)}   ?${query.slice(0, 70)}`);
+      console.log(
+        `  ${name.padEnd(18)} ${ms.page.toFixed(2).padStart(8)} ${ms.estimate.toFixed(2).padStart(8)} ${ms.count.toFixed(2).padStart(8)}   ?${query.slice(0, 70)}`,
+      );
     }
     const deepReq = requestOf(deepSearch);
-    figures.explain_deepPageByOffset_page_ms = await explainMs(db, pageQuery(db, main.groupId, deepReq, { offset: (deepPageNumber - 1) * 100 }, 101), 'deep page by offset');
-    console.log(`  the same deep page by OFFSET 19,900 (no longer served: numbered pages stop 10,000 rows deep): ${figures.explain_deepPageByOffset_page_ms.toFixed(2)} ms`);
+    figures.explain_deepPageByOffset_page_ms = await explainMs(
+      db,
+      pageQuery(db, main.groupId, deepReq, { offset: (deepPageNumber - 1) * 100 }, 101),
+      'deep page by offset',
+    );
+    console.log(
+      `  the same deep page by OFFSET 19,900 (no longer served: numbered pages stop 10,000 rows deep): ${figures.explain_deepPageByOffset_page_ms.toFixed(2)} ms`,
+    );
     if (process.env.BENCH_ONLY_EXPLAIN === '1') return figures;
 
     console.log('[bench] one client, 40 requests per search (ms: p50 / p95 / max; the total as answered):');
@@ -226,8 +247,11 @@ export async function benchCatalogue(): Promise<Record<string, number>> {
           headers: { cookie },
           requests: paths.map((p) => ({ method: 'GET', path: p.path })),
         };
-        execFile(process.execPath, [join(dirname(fileURLToPath(import.meta.url)), 'load-client.mjs'), JSON.stringify(options)], { maxBuffer: 1 << 20 }, (err, stdout) =>
-          err ? reject(err) : resolve(JSON.parse(stdout.trim().split('\n').pop()!)),
+        execFile(
+          process.execPath,
+          [join(dirname(fileURLToPath(import.meta.url)), 'load-client.mjs'), JSON.stringify(options)],
+          { maxBuffer: 1 << 20 },
+          (err, stdout) => (err ? reject(err) : resolve(JSON.parse(stdout.trim().split('\n').pop()!))),
         );
       },
     );

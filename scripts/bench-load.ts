@@ -66,7 +66,9 @@ function freePort(): Promise<number> {
 function autocannon(options: object): Promise<LoadResult> {
   const client = join(dirname(fileURLToPath(import.meta.url)), 'load-client.mjs');
   return new Promise((resolve, reject) =>
-    execFile(process.execPath, [client, JSON.stringify(options)], { maxBuffer: 1 << 20 }, (err, stdout) => (err ? reject(err) : resolve(JSON.parse(stdout.trim().split('\n').pop()!)))),
+    execFile(process.execPath, [client, JSON.stringify(options)], { maxBuffer: 1 << 20 }, (err, stdout) =>
+      err ? reject(err) : resolve(JSON.parse(stdout.trim().split('\n').pop()!)),
+    ),
   );
 }
 
@@ -108,7 +110,10 @@ export async function benchLoad(): Promise<Record<string, number | string>> {
   // One group, one designer, three computed runs (their resonances carry mode images).
   const [group] = await db.insert(researchGroups).values({ name: 'Bench load lab', slug: 'bench-load' }).returning();
   const email = 'bench.load@bench.example';
-  const [user] = await db.insert(users).values({ email, name: 'Bench Load', passwordHash: await hashPassword(password) }).returning();
+  const [user] = await db
+    .insert(users)
+    .values({ email, name: 'Bench Load', passwordHash: await hashPassword(password) })
+    .returning();
   await db.insert(memberships).values({ groupId: group!.id, userId: user!.id, role: 'admin' });
   const models = new ModelService(db, inlineCompute);
   const noQueue = { enqueue: async () => 'bench', cancel: async () => {} };
@@ -149,7 +154,11 @@ export async function benchLoad(): Promise<Record<string, number | string>> {
       if (k > 300) throw new Error(`the app did not start within 60 s:\n${appLog}`);
       await new Promise((r) => setTimeout(r, 200));
     }
-    const signIn = await fetch(`${base}/api/auth/sign-in`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ email, password }) });
+    const signIn = await fetch(`${base}/api/auth/sign-in`, {
+      method: 'POST',
+      headers: { 'content-type': 'application/json' },
+      body: JSON.stringify({ email, password }),
+    });
     if (!signIn.ok) throw new Error(`bench sign-in failed: ${signIn.status}`);
     const session = (await signIn.json()) as { csrfToken: string };
     const cookie = signIn.headers
@@ -158,8 +167,14 @@ export async function benchLoad(): Promise<Record<string, number | string>> {
       .join('; ');
     const g = `/api/groups/${group!.id}`;
     const scenarios: { name: string; request: Record<string, unknown> }[] = [
-      { name: 'sign-in', request: { method: 'POST', path: '/api/auth/sign-in', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ email, password }) } },
-      { name: 'catalogue search', request: { method: 'GET', path: `${g}/catalogue?emin=3&emax=6&sort=quality&dir=desc&page=1&pageSize=25`, headers: { cookie } } },
+      {
+        name: 'sign-in',
+        request: { method: 'POST', path: '/api/auth/sign-in', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ email, password }) },
+      },
+      {
+        name: 'catalogue search',
+        request: { method: 'GET', path: `${g}/catalogue?emin=3&emax=6&sort=quality&dir=desc&page=1&pageSize=25`, headers: { cookie } },
+      },
       { name: 'resonance detail', request: { method: 'GET', path: `${g}/resonances/${pole!.id}`, headers: { cookie } } },
       { name: 'mode image (full)', request: { method: 'GET', path: `${g}/resonances/${pole!.id}/mode.png?size=full`, headers: { cookie } } },
       {
@@ -198,7 +213,9 @@ export async function benchLoad(): Promise<Record<string, number | string>> {
     }
     figures.machine_loadavg_1min = loadavg()[0]!;
     figures.cores = availableParallelism();
-    console.log(`[bench] machine load average ${loadavg()[0]!.toFixed(1)} on ${availableParallelism()} cores (other work on the machine shows in every figure)`);
+    console.log(
+      `[bench] machine load average ${loadavg()[0]!.toFixed(1)} on ${availableParallelism()} cores (other work on the machine shows in every figure)`,
+    );
     console.log('[bench] non-2xx of sign-in and run launch include the rate and queue limits doing their job (429), not only failures.');
     return figures;
   } finally {

@@ -101,14 +101,22 @@ export async function benchLu(): Promise<Record<string, number>> {
     let factors = plan.factor(a.values);
     // CPU time is printed too: on a shared machine the wall time includes waiting for a core.
     const cpu = [0];
-    const factorMs = time(() => {
-      factors = plan.factor(a.values);
-    }, reps, cpu);
+    const factorMs = time(
+      () => {
+        factors = plan.factor(a.values);
+      },
+      reps,
+      cpu,
+    );
     // The same with the previous factorisation's storage taken over (how sweeps call it).
     const cpuReuse = [0];
-    const factorReuseMs = time(() => {
-      factors = plan.factor(a.values, factors);
-    }, reps, cpuReuse);
+    const factorReuseMs = time(
+      () => {
+        factors = plan.factor(a.values, factors);
+      },
+      reps,
+      cpuReuse,
+    );
     const x = new Float64Array(2 * n);
     for (let q = 0; q < x.length; q++) x[q] = Math.sin(0.37 * q);
     const b = cscMultiply(a, x);
@@ -135,7 +143,11 @@ export async function benchLu(): Promise<Record<string, number>> {
     out[`lu.${key}.relError`] = Math.sqrt(err / nrm);
     if (side === 100) {
       // Right-hand sides as the callers have them: 1 (Newton), 6 (contour probes), 32 (many channels).
-      for (const [nrhs, solveReps] of [[1, 21], [6, 11], [32, 5]]) {
+      for (const [nrhs, solveReps] of [
+        [1, 21],
+        [6, 11],
+        [32, 5],
+      ]) {
         const bk = new Float64Array(2 * n * nrhs);
         for (let q = 0; q < bk.length; q++) bk[q] = Math.cos(0.11 * q);
         const ok = new Float64Array(bk.length);
@@ -237,7 +249,11 @@ export async function benchLuReference(rounds = 3, sides = [50, 100, 200]): Prom
 
 if (import.meta.url === `file://${process.argv[1]}` || process.argv[1]?.endsWith('bench-lu.ts')) {
   if (process.argv.includes('--reference')) {
-    const sides = process.argv.find((x) => x.startsWith('--sides='))?.slice(8).split(',').map(Number);
+    const sides = process.argv
+      .find((x) => x.startsWith('--sides='))
+      ?.slice(8)
+      .split(',')
+      .map(Number);
     for (const [k, v] of Object.entries(await benchLuReference(3, sides))) console.log(`${k.padEnd(40)} ${typeof v === 'number' ? v.toFixed(2) : v}`);
   } else {
     await benchLu();

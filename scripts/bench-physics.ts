@@ -57,9 +57,7 @@ for (const ny of [30, 60, 100, 160]) {
   const [, point] = time(() => {
     for (let k = 0; k < 3; k++) solver.at(0.1 * t + k * 1e-3 * t);
   });
-  const [sweep, sweepMs] = time(() =>
-    transmissionSweep(op, { emin: 0.05 * t, emax: 0.15 * t, points: 40, refine: { maxPoints: 200 } }),
-  );
+  const [sweep, sweepMs] = time(() => transmissionSweep(op, { emin: 0.05 * t, emax: 0.15 * t, points: 40, refine: { maxPoints: 200 } }));
   const [, closedMs] = time(() => closedCavityEigenvalues(op.system.lattice, { target: 0.1 * t, count: 6 }));
   console.log(
     [

@@ -14,7 +14,6 @@ import { buildCavitySystem, EffectiveHamiltonian } from '../shared/engine/effect
 import { findPoles } from '../shared/engine/poles';
 import { benchCavity } from './bench-cavity';
 
-
 interface ScalingRow {
   sites: number;
   seconds: number;
@@ -74,8 +73,14 @@ export function benchScaling(sides = [50, 100, 200, 316]): Record<string, number
       `peak memory ${r.maxRssMb.toFixed(0)} MB, load ${r.loadAverage.toFixed(1)}`;
   }
   if (rows.length >= 2) {
-    figures['fitted exponent (time ∝ sites^p)'] = fittedExponent(rows.map((r) => r.sites), rows.map((r) => r.seconds));
-    figures['fitted exponent on CPU time'] = fittedExponent(rows.map((r) => r.sites), rows.map((r) => r.cpuSeconds));
+    figures['fitted exponent (time ∝ sites^p)'] = fittedExponent(
+      rows.map((r) => r.sites),
+      rows.map((r) => r.seconds),
+    );
+    figures['fitted exponent on CPU time'] = fittedExponent(
+      rows.map((r) => r.sites),
+      rows.map((r) => r.cpuSeconds),
+    );
   }
   return figures;
 }
@@ -84,6 +89,10 @@ const one = process.argv.find((a) => a.startsWith('--one='));
 if (one) {
   console.log(JSON.stringify(searchOnce(Number(one.slice(6)))));
 } else if (process.argv[1]?.endsWith('bench-scaling.ts')) {
-  const sides = process.argv.find((a) => a.startsWith('--sides='))?.slice(8).split(',').map(Number);
+  const sides = process.argv
+    .find((a) => a.startsWith('--sides='))
+    ?.slice(8)
+    .split(',')
+    .map(Number);
   for (const [k, v] of Object.entries(benchScaling(sides))) console.log(`${k.padEnd(36)} ${typeof v === 'number' ? v.toFixed(3) : v}`);
 }

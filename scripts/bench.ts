@@ -19,7 +19,6 @@ const print = (title: string, figures: Record<string, number | string>) => {
   for (const [k, v] of Object.entries(figures)) console.log(`  ${k.padEnd(40)} ${typeof v === 'number' && !Number.isInteger(v) ? v.toPrecision(4) : v}`);
 };
 
-
 /** A window between the thresholds of channels 2 and 3 of the 10-site leads, scaled so it holds a similar number of poles at every size. */
 function benchWindow(t: number, sites: number) {
   const width = 0.027 * t * (10_000 / sites);
@@ -35,10 +34,22 @@ function searchOnce(side: number) {
   const c = process.cpuUsage(c0);
   // CPU time too: on a shared machine the wall time includes waiting for a core
   const cpuSeconds = (c.user + c.system) / 1e6;
-  return { sites: op.n, seconds: (performance.now() - t0) / 1000, cpuSeconds, poles: r.poles.length, certified: r.certificate.certified, factorisations: r.stats.factorisations, window };
+  return {
+    sites: op.n,
+    seconds: (performance.now() - t0) / 1000,
+    cpuSeconds,
+    poles: r.poles.length,
+    certified: r.certificate.certified,
+    factorisations: r.stats.factorisations,
+    window,
+  };
 }
 
-console.log(`Poleward bench on ${cpus().length} × ${cpus()[0]?.model ?? 'cpu'}, load average ${loadavg().map((x) => x.toFixed(1)).join(' ')}`);
+console.log(
+  `Poleward bench on ${cpus().length} × ${cpus()[0]?.model ?? 'cpu'}, load average ${loadavg()
+    .map((x) => x.toFixed(1))
+    .join(' ')}`,
+);
 console.log('Targets (half of a SciPy/SuperLU reference on this kind of machine): LU 1.75 / 17–30 / 140 ms at 2,500 / 10,000 / 40,000 sites;');
 console.log('1,000-energy sweep at 10,000 sites 23–35 s; certified pole search at 10,000 sites 8.5–11 s.');
 
@@ -72,7 +83,8 @@ if (only.includes('poles')) {
   const poolCpu = process.cpuUsage(c0);
   await pool.close();
   const reference = findPoles(op, window);
-  const samePoles = two.poles.length === reference.poles.length && two.poles.every((p, k) => Math.abs(p.energy - reference.poles[k].energy) <= 1e-12 * op.hopping);
+  const samePoles =
+    two.poles.length === reference.poles.length && two.poles.every((p, k) => Math.abs(p.energy - reference.poles[k].energy) <= 1e-12 * op.hopping);
   print('certified pole search at 10,000 sites, pool of two worker threads (one search, one certificate)', {
     poles: two.poles.length,
     certified: two.certificate.certified ? 'yes' : 'NO',
@@ -95,5 +107,6 @@ if (only.includes('estimate')) {
   console.log('\n== run estimate against measured CPU time (cost model of server/runs/run-cost-model.json)');
   console.log(accuracyTable(measureAll(), runCostModel()));
 }
-if (only.includes('studies')) print('parameter study: 40-step field sweep of the 2,500-site bench rectangle, whole steps on 1, 2, 4 processes', await benchStudies());
+if (only.includes('studies'))
+  print('parameter study: 40-step field sweep of the 2,500-site bench rectangle, whole steps on 1, 2, 4 processes', await benchStudies());
 if (only.includes('load')) print('HTTP load on loopback: sign-in, catalogue, resonance, mode image, run launch (20 clients each)', await benchLoad());

@@ -29,9 +29,10 @@ const root = join(fileURLToPath(import.meta.url), '..', '..');
 export interface EstimateCase {
   name: string;
   document: unknown;
-  request: { kind: 'pole-search'; window: { emin: number; emax: number; gammaMax: number } } | { kind: 'transmission'; window: { emin: number; emax: number; points: number } };
+  request:
+    | { kind: 'pole-search'; window: { emin: number; emax: number; gammaMax: number } }
+    | { kind: 'transmission'; window: { emin: number; emax: number; points: number } };
 }
-
 
 /** The bench cavities (windows as in bench.ts's scaling section) and the demo devices with their seeded windows. */
 export function estimateCases(): EstimateCase[] {
@@ -41,16 +42,30 @@ export function estimateCases(): EstimateCase[] {
     const op = new EffectiveHamiltonian(buildCavitySystem(doc));
     const t = op.hopping;
     const width = 0.027 * t * (10_000 / op.n);
-    cases.push({ name: `bench rectangle ${op.n} sites`, document: doc, request: { kind: 'pole-search', window: { emin: 0.4 * t, emax: 0.4 * t + width, gammaMax: 2e-3 * t } } });
+    cases.push({
+      name: `bench rectangle ${op.n} sites`,
+      document: doc,
+      request: { kind: 'pole-search', window: { emin: 0.4 * t, emax: 0.4 * t + width, gammaMax: 2e-3 * t } },
+    });
   }
   {
     const doc = benchCavity(71);
     const t = new EffectiveHamiltonian(buildCavitySystem(doc)).hopping;
-    cases.push({ name: 'bench rectangle 5041 sites, sweep', document: doc, request: { kind: 'transmission', window: { emin: 0.3 * t, emax: 0.45 * t, points: 300 } } });
+    cases.push({
+      name: 'bench rectangle 5041 sites, sweep',
+      document: doc,
+      request: { kind: 'transmission', window: { emin: 0.3 * t, emax: 0.45 * t, points: 300 } },
+    });
   }
   const dir = join(root, 'catalogue');
-  for (const file of readdirSync(dir).filter((f) => f.endsWith('.json')).sort()) {
-    const device = JSON.parse(readFileSync(join(dir, file), 'utf8')) as { key: string; model: unknown; poleSearch: { emin: number; emax: number; gammaMax: number } };
+  for (const file of readdirSync(dir)
+    .filter((f) => f.endsWith('.json'))
+    .sort()) {
+    const device = JSON.parse(readFileSync(join(dir, file), 'utf8')) as {
+      key: string;
+      model: unknown;
+      poleSearch: { emin: number; emax: number; gammaMax: number };
+    };
     cases.push({ name: `demo ${device.key}`, document: device.model, request: { kind: 'pole-search', window: device.poleSearch } });
   }
   const r3 = JSON.parse(readFileSync(join(dir, 'hl-rect-r3.json'), 'utf8')) as { model: unknown };
@@ -160,10 +175,18 @@ export function fitCostModel(ms: CaseMeasurement[]): RunCostModel {
     poles.map((m) => 1 / m.poleLUs ** 2),
   );
   const poleStepY = poles.map((m) => m.poleSeconds / m.poleLUs);
-  const [pf, pn, ps] = fitNonNegative(poles.map((m) => stepRow(m.features)), poleStepY, poleStepY.map((v) => 1 / v ** 2));
+  const [pf, pn, ps] = fitNonNegative(
+    poles.map((m) => stepRow(m.features)),
+    poleStepY,
+    poleStepY.map((v) => 1 / v ** 2),
+  );
   const sweeps = ms.filter((m) => m.energies > 0);
   const sweepY = sweeps.map((m) => m.sweepSeconds / m.energies);
-  const [sf, sn, ss] = fitNonNegative(sweeps.map((m) => stepRow(m.features)), sweepY, sweepY.map((v) => 1 / v ** 2));
+  const [sf, sn, ss] = fitNonNegative(
+    sweeps.map((m) => stepRow(m.features)),
+    sweepY,
+    sweepY.map((v) => 1 / v ** 2),
+  );
   const ratio = (kind: string) => {
     const r = sweeps.filter((m) => m.features.kind === kind).map((m) => m.energies / m.features.spectrumPoints);
     return r.length ? median(r) : 1;
@@ -197,9 +220,15 @@ export function accuracyTable(ms: CaseMeasurement[], model: RunCostModel): strin
     const r = p.total / m.seconds;
     worst = Math.max(worst, r, 1 / r);
     const lus = `${p.poleLUs + p.energies}/${m.poleLUs + m.energies}`;
-    lines.push(`${m.name.padEnd(36)} ${String(m.features.sites).padStart(6)} ${lus.padStart(13)} ${p.total.toFixed(2).padStart(10)} ${m.seconds.toFixed(2).padStart(10)} ${r.toFixed(2).padStart(6)}`);
+    lines.push(
+      `${m.name.padEnd(36)} ${String(m.features.sites).padStart(6)} ${lus.padStart(13)} ${p.total.toFixed(2).padStart(10)} ${m.seconds.toFixed(2).padStart(10)} ${r.toFixed(2).padStart(6)}`,
+    );
   }
-  lines.push(`worst factor ${worst.toFixed(2)} (target ≤ 1.5); load average now ${loadavg().map((l) => l.toFixed(2)).join(' ')}`);
+  lines.push(
+    `worst factor ${worst.toFixed(2)} (target ≤ 1.5); load average now ${loadavg()
+      .map((l) => l.toFixed(2))
+      .join(' ')}`,
+  );
   return lines.join('\n');
 }
 
@@ -221,7 +250,11 @@ if (isMain) {
     if (ms.length === 0) throw new Error('the stored cost model holds no measurements to refit');
     console.log(`Fitting again to the ${ms.length} stored measurements`);
   } else {
-    console.log(`Measuring ${estimateCases().length} runs (one thread each); load average ${loadavg().map((l) => l.toFixed(2)).join(' ')}`);
+    console.log(
+      `Measuring ${estimateCases().length} runs (one thread each); load average ${loadavg()
+        .map((l) => l.toFixed(2))
+        .join(' ')}`,
+    );
     ms = measureAll(console.log);
   }
   if (check) {

@@ -24,8 +24,25 @@ import type { StudyDefinition } from '../shared/engine/study/study-definition';
 export class StudyUsageError extends Error {}
 
 const VALUE_FLAGS = [
-  'param', 'values', 'param2', 'values2', 'emin', 'emax', 'gmax', 'probes', 'seed', 'max-nodes',
-  'ensemble', 'roughness-nm', 'correlation-nm', 'follow', 'jitter', 'tolerance-energy', 'tolerance-width', 'tolerance-q', 'bins',
+  'param',
+  'values',
+  'param2',
+  'values2',
+  'emin',
+  'emax',
+  'gmax',
+  'probes',
+  'seed',
+  'max-nodes',
+  'ensemble',
+  'roughness-nm',
+  'correlation-nm',
+  'follow',
+  'jitter',
+  'tolerance-energy',
+  'tolerance-width',
+  'tolerance-q',
+  'bins',
 ];
 const JITTER_KINDS: JitterKind[] = ['dimension', 'lead-width', 'gate-offset'];
 
@@ -47,7 +64,8 @@ function range(flags: Map<string, string[]>, name: string): Range | undefined {
   const out: Range = {};
   if (m[1] !== '') out.min = Number(m[1]);
   if (m[2] !== '') out.max = Number(m[2]);
-  if ((out.min !== undefined && !Number.isFinite(out.min)) || (out.max !== undefined && !Number.isFinite(out.max))) throw new StudyUsageError(`--${name}: '${text}' is not MIN:MAX`);
+  if ((out.min !== undefined && !Number.isFinite(out.min)) || (out.max !== undefined && !Number.isFinite(out.max)))
+    throw new StudyUsageError(`--${name}: '${text}' is not MIN:MAX`);
   return out;
 }
 

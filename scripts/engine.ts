@@ -144,7 +144,11 @@ async function run(argv: string[]): Promise<unknown> {
     const checked = validateCavityModel(doc);
     if (!checked.ok) throw new InvalidModelError(checked.issues);
     const sys = buildCavitySystem(doc);
-    return { model: checked.model.name, ...deriveFigures(checked.model, checked.siteCount, numbers.energy), thresholds: new EffectiveHamiltonian(sys).thresholds };
+    return {
+      model: checked.model.name,
+      ...deriveFigures(checked.model, checked.siteCount, numbers.energy),
+      thresholds: new EffectiveHamiltonian(sys).thresholds,
+    };
   }
   const system = buildCavitySystem(doc);
   // Microwave mode: every energy is k² (mm⁻²); frequencies in GHz are given beside them.
@@ -200,7 +204,11 @@ async function run(argv: string[]): Promise<unknown> {
       directSolves: sweep.directSolves,
       ...(sweep.interpolation ? { interpolation: sweep.interpolation } : {}),
       ...(physics.kind === 'microwave'
-        ? { frequenciesGhz: sweep.points.map((p) => ghz(p.energy)), units: { energy: 'mm⁻² (k²)', frequency: 'GHz', conductance: '2e²/h (not meaningful for microwaves: use transmission)' }, ...microwave }
+        ? {
+            frequenciesGhz: sweep.points.map((p) => ghz(p.energy)),
+            units: { energy: 'mm⁻² (k²)', frequency: 'GHz', conductance: '2e²/h (not meaningful for microwaves: use transmission)' },
+            ...microwave,
+          }
         : { units: { energy: 'meV', conductance: '2e²/h' } }),
     };
   }
@@ -232,7 +240,15 @@ async function run(argv: string[]): Promise<unknown> {
         };
       }),
       ...microwave,
-      units: { energy: 'mm⁻² (k²)', width: 'mm⁻² (k²)', lifetime: 'ps', frequency: 'GHz', widthMhz: 'MHz (Γ_f = 2|Im f|)', lifetimeNs: 'ns (1/(2πΓ_f))', quality: 'Re f/Γ_f' },
+      units: {
+        energy: 'mm⁻² (k²)',
+        width: 'mm⁻² (k²)',
+        lifetime: 'ps',
+        frequency: 'GHz',
+        widthMhz: 'MHz (Γ_f = 2|Im f|)',
+        lifetimeNs: 'ns (1/(2πΓ_f))',
+        quality: 'Re f/Γ_f',
+      },
     };
   }
   return {

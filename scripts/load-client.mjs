@@ -14,7 +14,18 @@ const instance = autocannon(opts, (err, result) => {
   }
   samples.sort((a, b) => a - b);
   const pct = (p) => samples[Math.min(samples.length - 1, Math.floor((p / 100) * samples.length))] ?? NaN;
-  console.log(JSON.stringify({ rps: result.requests.average, requests: samples.length, non2xx, errors: result.errors + result.timeouts, p50: pct(50), p95: pct(95), p99: pct(99), duration: result.duration }));
+  console.log(
+    JSON.stringify({
+      rps: result.requests.average,
+      requests: samples.length,
+      non2xx,
+      errors: result.errors + result.timeouts,
+      p50: pct(50),
+      p95: pct(95),
+      p99: pct(99),
+      duration: result.duration,
+    }),
+  );
 });
 instance.on('response', (_client, status, _bytes, ms) => {
   samples.push(ms);

@@ -16,7 +16,10 @@ import { projectRoot } from '../server/config.js';
 const referenceSchema = z.object({
   key: z.string().regex(/^[a-z0-9-]+$/),
   /** The demo group the device belongs to (slug); the designer's lab when absent. */
-  group: z.string().regex(/^[a-z0-9-]+$/).optional(),
+  group: z
+    .string()
+    .regex(/^[a-z0-9-]+$/)
+    .optional(),
   description: z.string(),
   model: z.unknown(),
   poleSearch: z.object({ emin: z.number(), emax: z.number(), gammaMax: z.number() }),

@@ -45,10 +45,7 @@ export async function seedDemo(db: Db, opts: { passwordCost?: number } = {}): Pr
       await tx.insert(users).values({ email: a.email, name: a.name, passwordHash }).onConflictDoNothing({ target: users.email });
       const [row] = await tx.select({ id: users.id }).from(users).where(eqEmail(a.email));
       userIds[a.email] = row!.id;
-      await tx
-        .insert(memberships)
-        .values({ groupId: groupIds[a.group]!, userId: row!.id, role: a.role })
-        .onConflictDoNothing();
+      await tx.insert(memberships).values({ groupId: groupIds[a.group]!, userId: row!.id, role: a.role }).onConflictDoNothing();
     }
     // The demo's first admin runs the local set-up: she alone reads the mail outbox.
     await ensureSiteOperator(tx, demoAccounts[0]!.email);

@@ -35,9 +35,13 @@ buildClientIfStale();
 const services = startServices({ workers: config.workers });
 stopOnSignals(services);
 
-console.log(`\n[poleward] open ${config.publicUrl} — API and client on port ${config.port}, PostgreSQL on 127.0.0.1:${config.dbPort}, ${config.workers} worker process(es)`);
+console.log(
+  `\n[poleward] open ${config.publicUrl} — API and client on port ${config.port}, PostgreSQL on 127.0.0.1:${config.dbPort}, ${config.workers} worker process(es)`,
+);
 printDemoAccounts();
-console.log('[poleward] a process that dies is restarted (1 s, 2 s, 4 s … up to 30 s apart); Ctrl-C stops the app and the workers (PostgreSQL keeps running; `npm run db:stop` stops it).\n');
+console.log(
+  '[poleward] a process that dies is restarted (1 s, 2 s, 4 s … up to 30 s apart); Ctrl-C stops the app and the workers (PostgreSQL keeps running; `npm run db:stop` stops it).\n',
+);
 
 /** Builds the Angular client when there is no build yet or a source file is newer than it. */
 function buildClientIfStale() {

@@ -23,7 +23,23 @@ const families = [
 ];
 const materials = ['GaAs', 'InAs', 'InSb', 'Si'];
 const tagWords = ['candidate', 'fabricate', 'check width', 'high-q', 'bic', 'reviewed', 'symmetric', 'edge mode'];
-const noteWords = ['whispering', 'gallery', 'bouncing', 'ball', 'scar', 'doublet', 'split', 'by', 'field', 'near', 'threshold', 'lead', 'coupling', 'weak', 'strong'];
+const noteWords = [
+  'whispering',
+  'gallery',
+  'bouncing',
+  'ball',
+  'scar',
+  'doublet',
+  'split',
+  'by',
+  'field',
+  'near',
+  'threshold',
+  'lead',
+  'coupling',
+  'weak',
+  'strong',
+];
 const nameWords = ['harrow', 'quarry', 'billiard', 'dot', 'ring', 'stadium', 'bowtie', 'notch', 'wide', 'narrow', 'tapered'];
 
 let seed = 0x2545f491;
@@ -42,7 +58,17 @@ function words(list: readonly string[], n: number): string {
 }
 
 async function insertParents(db: Db, groupId: string, userId: string, rows: number, label: string) {
-  const models: { id: string; name: string; family: string; material: string; fieldT: number; spacingNm: number; dims: Record<string, number>; versionId: string; version: number }[] = [];
+  const models: {
+    id: string;
+    name: string;
+    family: string;
+    material: string;
+    fieldT: number;
+    spacingNm: number;
+    dims: Record<string, number>;
+    versionId: string;
+    version: number;
+  }[] = [];
   const modelCount = Math.max(4, Math.round(rows / 2500));
   for (let m = 0; m < modelCount; m++) {
     const fam = families[m % families.length]!;
@@ -163,8 +189,14 @@ export async function insertResonances(db: Db, groupId: string, userId: string, 
 
 /** A group with one admin member (who signs in with `passwordHash`'s password). */
 export async function makeGroup(db: Db, slug: string, email: string, passwordHash: string): Promise<{ groupId: string; userId: string }> {
-  const [group] = await db.insert(researchGroups).values({ slug, name: `Bench ${slug}` }).returning({ id: researchGroups.id });
-  const [user] = await db.insert(users).values({ email, name: `Bench ${slug}`, passwordHash }).returning({ id: users.id });
+  const [group] = await db
+    .insert(researchGroups)
+    .values({ slug, name: `Bench ${slug}` })
+    .returning({ id: researchGroups.id });
+  const [user] = await db
+    .insert(users)
+    .values({ email, name: `Bench ${slug}`, passwordHash })
+    .returning({ id: users.id });
   await db.insert(memberships).values({ groupId: group!.id, userId: user!.id, role: 'admin' });
   return { groupId: group!.id, userId: user!.id };
 }

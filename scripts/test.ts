@@ -27,7 +27,9 @@ function step(name: string, cmd: string, args: string[]): boolean {
 function ensureChromium() {
   if (existsSync('/usr/bin/chromium')) return;
   console.log('[test] installing Debian chromium for the browser tests…');
-  const r = spawnSync('sh', ['-c', 'apt-get update -qq && DEBIAN_FRONTEND=noninteractive apt-get install -y -qq --no-install-recommends chromium'], { stdio: 'inherit' });
+  const r = spawnSync('sh', ['-c', 'apt-get update -qq && DEBIAN_FRONTEND=noninteractive apt-get install -y -qq --no-install-recommends chromium'], {
+    stdio: 'inherit',
+  });
   if (r.status !== 0) throw new Error('could not install chromium with apt-get');
 }
 
@@ -39,18 +41,34 @@ results.typecheck = step('typecheck', 'npm', ['run', '--silent', 'typecheck']);
 results.lint = step('lint (ESLint, --max-warnings 0)', bin('eslint'), ['.', '--max-warnings', '0']);
 results.format = step('format (Prettier --check; `npm run format` fixes)', bin('prettier'), ['--check', '.', '--log-level', 'warn']);
 results.client = step('client component specs (ng test)', bin('ng'), [
-  'test', '--watch=false', '--reporters=default', '--reporters=json', `--output-file=${join(out, 'reports', 'client.json')}`,
+  'test',
+  '--watch=false',
+  '--reporters=default',
+  '--reporters=json',
+  `--output-file=${join(out, 'reports', 'client.json')}`,
 ]);
 rmSync(join(out, 'coverage'), { recursive: true, force: true });
 results.server = step('engine, structure, server and API tests (vitest, with coverage)', bin('vitest'), [
-  'run', '--config', 'vitest.config.ts', '--reporter=default', '--reporter=json', `--outputFile.json=${join(out, 'reports', 'server.json')}`,
+  'run',
+  '--config',
+  'vitest.config.ts',
+  '--reporter=default',
+  '--reporter=json',
+  `--outputFile.json=${join(out, 'reports', 'server.json')}`,
   '--coverage',
 ]);
 printCoverageByArea(join(out, 'coverage', 'coverage-summary.json'), projectRoot);
 results.build = step('production build of the client', bin('ng'), ['build']);
-results.e2e = results.build && step('browser tests (Playwright + Debian chromium)', bin('vitest'), [
-  'run', '--config', 'vitest.e2e.config.ts', '--reporter=default', '--reporter=json', `--outputFile.json=${join(out, 'reports', 'e2e.json')}`,
-]);
+results.e2e =
+  results.build &&
+  step('browser tests (Playwright + Debian chromium)', bin('vitest'), [
+    'run',
+    '--config',
+    'vitest.e2e.config.ts',
+    '--reporter=default',
+    '--reporter=json',
+    `--outputFile.json=${join(out, 'reports', 'e2e.json')}`,
+  ]);
 
 let passed = 0;
 let failed = 0;
@@ -61,7 +79,9 @@ for (const report of ['client', 'server', 'e2e']) {
   passed += r.numPassedTests;
   failed += r.numFailedTests;
 }
-const failedSteps = Object.entries(results).filter(([, ok]) => !ok).map(([name]) => name);
+const failedSteps = Object.entries(results)
+  .filter(([, ok]) => !ok)
+  .map(([name]) => name);
 console.log(`\n[test] steps: ${Object.keys(results).length - failedSteps.length} ok${failedSteps.length ? `, failed: ${failedSteps.join(', ')}` : ''}`);
 console.log(`tests: ${passed} passed, ${failed} failed`);
 process.exit(failedSteps.length === 0 && failed === 0 ? 0 : 1);

@@ -12,13 +12,7 @@ import { accountRoutes } from './auth/account-routes.js';
 import { AccountService } from './auth/account-service.js';
 import { defaultPasswordCost } from './auth/password.js';
 import { threadPasswordHasher, type PasswordHasher } from './auth/password-hasher.js';
-import {
-  defaultLinkLimit,
-  defaultResetRequestLimits,
-  defaultSignInLimits,
-  type AttemptLimit,
-  type AttemptLimits,
-} from './auth/sign-in-limit.js';
+import { defaultLinkLimit, defaultResetRequestLimits, defaultSignInLimits, type AttemptLimit, type AttemptLimits } from './auth/sign-in-limit.js';
 import { refusalAudit } from './audit/refusal-audit.js';
 import type { Config } from './config.js';
 import type { Db } from './db/client.js';

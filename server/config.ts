@@ -7,8 +7,7 @@ import { z } from 'zod';
 /** The project root (one folder above server/), used for .data/, migrations/ and dist/. */
 export const projectRoot = join(dirname(fileURLToPath(import.meta.url)), '..');
 
-const port = (fallback: number) =>
-  z.coerce.number({ error: 'must be a port number' }).int('must be a port number').min(0).max(65535).default(fallback);
+const port = (fallback: number) => z.coerce.number({ error: 'must be a port number' }).int('must be a port number').min(0).max(65535).default(fallback);
 
 const envSchema = z.object({
   NODE_ENV: z.enum(['development', 'production', 'test']).default('development'),

@@ -55,7 +55,17 @@ async function main(): Promise<void> {
   const boss = await startBoss({ databaseUrl: config.databaseUrl });
   const runEvents = new RunEvents(config.databaseUrl);
   await runEvents.start();
-  const app = createApp({ db: handle.db, config, mailer, queue: runQueue(boss), modeMapQueue: modeMapQueue(boss), fitQueue: fitQueue(boss), runEvents, notifications: notificationQueue(boss), studyQueue: studyQueue(boss, config.studyStepExpireSeconds) });
+  const app = createApp({
+    db: handle.db,
+    config,
+    mailer,
+    queue: runQueue(boss),
+    modeMapQueue: modeMapQueue(boss),
+    fitQueue: fitQueue(boss),
+    runEvents,
+    notifications: notificationQueue(boss),
+    studyQueue: studyQueue(boss, config.studyStepExpireSeconds),
+  });
   // The API process sends the e-mail notifications: it holds the mailer, and sending is light I/O.
   const notificationWorker = await startNotificationWorker({ db: handle.db, boss, mailer });
   // createServer + 'listening' rather than app.listen: Express 5 calls listen's callback on errors too.

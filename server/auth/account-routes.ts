@@ -1,11 +1,5 @@
 import { Router } from 'express';
-import {
-  accountActivityRoute,
-  accountProfileRoute,
-  accountRenameRoute,
-  passwordChangeRoute,
-  signOutEverywhereRoute,
-} from '../../shared/api/account.js';
+import { accountActivityRoute, accountProfileRoute, accountRenameRoute, passwordChangeRoute, signOutEverywhereRoute } from '../../shared/api/account.js';
 import type { Db } from '../db/client.js';
 import { mountRoute } from '../http/mount-route.js';
 import type { AccountService } from './account-service.js';

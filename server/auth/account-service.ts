@@ -29,7 +29,14 @@ export class AccountService {
       const before = await findUserById(tx, userId);
       if (!before) throw new ApiError(401, 'unauthenticated', 'This account no longer exists.');
       const [row] = await tx.update(users).set({ name }).where(eq(users.id, userId)).returning();
-      await writeAudit(tx, { groupId: null, actorId: userId, accountId: userId, action: 'account.renamed', subject: row!.email, details: { from: before.name, to: name } });
+      await writeAudit(tx, {
+        groupId: null,
+        actorId: userId,
+        accountId: userId,
+        action: 'account.renamed',
+        subject: row!.email,
+        details: { from: before.name, to: name },
+      });
       return { id: row!.id, email: row!.email, name: row!.name };
     });
   }
@@ -45,13 +52,22 @@ export class AccountService {
     if (!user) throw new ApiError(401, 'unauthenticated', 'This account no longer exists.');
     if (!(await verifyPassword(currentPassword, user.passwordHash, passwords))) {
       await writeAudit(db, { groupId: null, actorId: userId, accountId: userId, action: 'account.password_change_refused', subject: user.email, details: {} });
-      throw new ApiError(400, 'wrong_password', 'The current password is wrong; nothing was changed.', [{ path: 'currentPassword', message: 'the current password is wrong' }]);
+      throw new ApiError(400, 'wrong_password', 'The current password is wrong; nothing was changed.', [
+        { path: 'currentPassword', message: 'the current password is wrong' },
+      ]);
     }
     const hash = await hashPassword(newPassword, passwordCost, passwords);
     await db.transaction(async (tx) => {
       await updatePasswordHash(tx, userId, hash);
       const sessionsEnded = await revokeAllSessions(tx, userId);
-      await writeAudit(tx, { groupId: null, actorId: userId, accountId: userId, action: 'account.password_changed', subject: user.email, details: { sessionsEnded } });
+      await writeAudit(tx, {
+        groupId: null,
+        actorId: userId,
+        accountId: userId,
+        action: 'account.password_changed',
+        subject: user.email,
+        details: { sessionsEnded },
+      });
     });
   }
 
@@ -60,7 +76,14 @@ export class AccountService {
     return this.deps.db.transaction(async (tx) => {
       const user = await findUserById(tx, userId);
       const sessionsEnded = await revokeAllSessions(tx, userId);
-      await writeAudit(tx, { groupId: null, actorId: userId, accountId: userId, action: 'account.signed_out_everywhere', subject: user?.email ?? userId, details: { sessionsEnded } });
+      await writeAudit(tx, {
+        groupId: null,
+        actorId: userId,
+        accountId: userId,
+        action: 'account.signed_out_everywhere',
+        subject: user?.email ?? userId,
+        details: { sessionsEnded },
+      });
       return { sessionsEnded };
     });
   }

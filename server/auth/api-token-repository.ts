@@ -36,7 +36,10 @@ export async function findActiveApiToken(q: Queryable, tokenHash: string): Promi
 }
 
 export async function touchApiToken(q: Queryable, id: string): Promise<void> {
-  await q.update(apiTokens).set({ lastUsedAt: sql`now()` }).where(eq(apiTokens.id, id));
+  await q
+    .update(apiTokens)
+    .set({ lastUsedAt: sql`now()` })
+    .where(eq(apiTokens.id, id));
 }
 
 /** Revokes every personal token of the user (password reset); returns how many. */

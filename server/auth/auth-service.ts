@@ -46,7 +46,11 @@ export class AuthService {
     const user = await findUserByEmail(db, email);
     const ok = await verifyPassword(password, user?.passwordHash ?? (await dummyPasswordHash(passwordCost, passwords)), passwords);
     if (!user || !ok) {
-      await recordSecurityEvent(db, { groupId: null, actorId: null, accountId: user?.id ?? null, action: 'auth.sign_in_failed', subject: email, details: { ip } }, log);
+      await recordSecurityEvent(
+        db,
+        { groupId: null, actorId: null, accountId: user?.id ?? null, action: 'auth.sign_in_failed', subject: email, details: { ip } },
+        log,
+      );
       throw new ApiError(401, 'invalid_credentials', 'E-mail or password is wrong.');
     }
     await writeAudit(db, { groupId: null, actorId: user.id, accountId: user.id, action: 'auth.signed_in', subject: user.email, details: { ip } });

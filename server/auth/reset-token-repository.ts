@@ -14,11 +14,7 @@ export async function findResetToken(q: Queryable, tokenHash: string) {
 
 /** Locks the row so two confirmations racing with the same link cannot both succeed. */
 export async function lockResetToken(q: Queryable, tokenHash: string) {
-  const [row] = await q
-    .select()
-    .from(passwordResetTokens)
-    .where(eq(passwordResetTokens.tokenHash, tokenHash))
-    .for('update');
+  const [row] = await q.select().from(passwordResetTokens).where(eq(passwordResetTokens.tokenHash, tokenHash)).for('update');
   return row;
 }
 

@@ -42,12 +42,7 @@ export function bodyEmail(req: Request): string {
  * forgives). `failuresOnly` counts only answers of 400 and above. The 429 says when to
  * come back (also in Retry-After); the error handler records it in the audit log.
  */
-export function attemptLimiter(opts: {
-  limit: AttemptLimit;
-  what: string;
-  per: LimitKey;
-  failuresOnly: boolean;
-}): RequestHandler {
+export function attemptLimiter(opts: { limit: AttemptLimit; what: string; per: LimitKey; failuresOnly: boolean }): RequestHandler {
   const { limit, what, per } = opts;
   return rateLimit({
     windowMs: limit.windowMs,

@@ -17,7 +17,10 @@ export function normaliseEmail(email: string): string {
 }
 
 export async function findUserByEmail(q: Queryable, email: string): Promise<UserRow | undefined> {
-  const [row] = await q.select().from(users).where(eq(users.email, normaliseEmail(email)));
+  const [row] = await q
+    .select()
+    .from(users)
+    .where(eq(users.email, normaliseEmail(email)));
   return row;
 }
 
@@ -26,10 +29,7 @@ export async function findUserById(q: Queryable, id: string): Promise<UserRow | 
   return row;
 }
 
-export async function insertUser(
-  q: Queryable,
-  values: { email: string; name: string; passwordHash: string },
-): Promise<UserRow> {
+export async function insertUser(q: Queryable, values: { email: string; name: string; passwordHash: string }): Promise<UserRow> {
   const [row] = await q
     .insert(users)
     .values({ ...values, email: normaliseEmail(values.email) })
@@ -39,7 +39,10 @@ export async function insertUser(
 
 /** Also moves password_changed_at, which ends every session issued before. */
 export async function updatePasswordHash(q: Queryable, userId: string, passwordHash: string): Promise<void> {
-  await q.update(users).set({ passwordHash, passwordChangedAt: sql`now()` }).where(eq(users.id, userId));
+  await q
+    .update(users)
+    .set({ passwordHash, passwordChangedAt: sql`now()` })
+    .where(eq(users.id, userId));
 }
 
 export async function groupsOfUser(q: Queryable, userId: string): Promise<GroupOfUser[]> {

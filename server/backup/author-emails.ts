@@ -8,7 +8,10 @@ export function authorEmails(q: Queryable): (userId: string | null) => Promise<s
   return async (userId) => {
     if (!userId) return null;
     if (!known.has(userId)) {
-      const [u] = await q.select({ email: users.email }).from(users).where(inArray(users.id, [userId]));
+      const [u] = await q
+        .select({ email: users.email })
+        .from(users)
+        .where(inArray(users.id, [userId]));
       known.set(userId, u?.email ?? null);
     }
     return known.get(userId) ?? null;

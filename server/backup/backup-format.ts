@@ -31,7 +31,9 @@ const base64 = z.string().regex(/^[A-Za-z0-9+/]*={0,2}$/, 'must be base64');
 export const headerRecord = z.object({
   type: z.literal('header'),
   format: z.literal(BACKUP_FORMAT, { error: `must be "${BACKUP_FORMAT}" (this is not a Poleward group backup)` }),
-  version: z.union([z.literal(1), z.literal(BACKUP_FORMAT_VERSION)], { error: `this server reads versions 1 to ${BACKUP_FORMAT_VERSION} of the backup format` }),
+  version: z.union([z.literal(1), z.literal(BACKUP_FORMAT_VERSION)], {
+    error: `this server reads versions 1 to ${BACKUP_FORMAT_VERSION} of the backup format`,
+  }),
   createdAt: when,
   engineVersion: z.string().optional(),
   group: z.object({ name: z.string(), slug: z.string() }),

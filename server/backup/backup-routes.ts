@@ -26,7 +26,7 @@ export function backupRoutes(d: { db: Db }): Router {
     res.setHeader('Cache-Control', 'no-store');
     // One read-only snapshot, so a run finishing meanwhile cannot leave half of itself in the file.
     await backups.stream(m.groupId, members, res).catch((err) => {
-        // The headers are gone: all that can be done is to cut the download short.
+      // The headers are gone: all that can be done is to cut the download short.
       if (res.headersSent) res.destroy(err as Error);
       else throw err;
     });

@@ -14,4 +14,9 @@ import { fabricationBackupSections, importedResonanceSections } from './fabricat
 export type { BackupSection, IdKind, RestoredIds } from './backup-section.js';
 
 /** Registered sections, in archive order: a record's links point only at core records or earlier sections. */
-export const backupSections: BackupSection[] = [...fitsBackupSections, ...importedResonanceSections, ...modeMapsBackupSections, ...fabricationBackupSections] as unknown as BackupSection[];
+export const backupSections: BackupSection[] = [
+  ...fitsBackupSections,
+  ...importedResonanceSections,
+  ...modeMapsBackupSections,
+  ...fabricationBackupSections,
+] as unknown as BackupSection[];

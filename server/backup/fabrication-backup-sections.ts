@@ -144,7 +144,16 @@ const importedSection: BackupSection<ImportedRecord> = {
       const { type: _type, id: oldId, createdAt, ...row } = r;
       const [inserted] = await tx
         .insert(resonances)
-        .values({ ...row, groupId, runId: null, fitId: null, idx: null, modelId: ids.models.get(r.modelId)!, modelVersionId: ids.modelVersions.get(r.modelVersionId)!, createdAt: new Date(createdAt) })
+        .values({
+          ...row,
+          groupId,
+          runId: null,
+          fitId: null,
+          idx: null,
+          modelId: ids.models.get(r.modelId)!,
+          modelVersionId: ids.modelVersions.get(r.modelVersionId)!,
+          createdAt: new Date(createdAt),
+        })
         .returning({ id: resonances.id });
       ids.resonances.set(oldId, inserted!.id);
     }
@@ -233,7 +242,14 @@ const commentSection: BackupSection<CommentRecord> = {
         const e = await email(m);
         if (e) mentions.push(e);
       }
-      yield { type: 'resonanceComment' as const, resonanceId: c.resonanceId, author: await email(c.authorId), body: c.body, mentions, createdAt: c.createdAt.toISOString() };
+      yield {
+        type: 'resonanceComment' as const,
+        resonanceId: c.resonanceId,
+        author: await email(c.authorId),
+        body: c.body,
+        mentions,
+        createdAt: c.createdAt.toISOString(),
+      };
     }
   },
   label: (c) => `resonanceComment on ${c.resonanceId}`,

@@ -109,7 +109,11 @@ const traceSection: BackupSection<TraceRecord> = {
   schema: measuredTraceRecord,
   async *records(q, groupId) {
     const emailOf = authorEmails(q);
-    const rows = await q.select({ id: measuredTraces.id }).from(measuredTraces).where(eq(measuredTraces.groupId, groupId)).orderBy(asc(measuredTraces.createdAt), asc(measuredTraces.fileName));
+    const rows = await q
+      .select({ id: measuredTraces.id })
+      .from(measuredTraces)
+      .where(eq(measuredTraces.groupId, groupId))
+      .orderBy(asc(measuredTraces.createdAt), asc(measuredTraces.fileName));
     // One trace at a time: a trace keeps its whole file.
     for (const { id: traceId } of rows) {
       const [t] = await q.select().from(measuredTraces).where(eq(measuredTraces.id, traceId));

@@ -23,10 +23,20 @@ export async function* groupBackupRecords(q: Queryable, groupId: string, include
   const [group] = await q.select().from(researchGroups).where(eq(researchGroups.id, groupId));
   const counts: Record<string, number> = {};
   const count = (type: string) => (counts[type] = (counts[type] ?? 0) + 1);
-  yield { type: 'header', format: BACKUP_FORMAT, version: BACKUP_FORMAT_VERSION, createdAt: new Date().toISOString(), group: { name: group!.name, slug: group!.slug } };
+  yield {
+    type: 'header',
+    format: BACKUP_FORMAT,
+    version: BACKUP_FORMAT_VERSION,
+    createdAt: new Date().toISOString(),
+    group: { name: group!.name, slug: group!.slug },
+  };
 
   const people = new Map<string, string>();
-  for (const u of await q.select({ id: users.id, email: users.email, name: users.name }).from(users).innerJoin(memberships, eq(memberships.userId, users.id)).where(eq(memberships.groupId, groupId))) {
+  for (const u of await q
+    .select({ id: users.id, email: users.email, name: users.name })
+    .from(users)
+    .innerJoin(memberships, eq(memberships.userId, users.id))
+    .where(eq(memberships.groupId, groupId))) {
     people.set(u.id, u.email);
   }
   const emailOf = async (userId: string | null) => {
@@ -57,7 +67,16 @@ export async function* groupBackupRecords(q: Queryable, groupId: string, include
   const modelOrder = new Map(groupModels.map((m, k) => [m.id, k]));
   for (const m of groupModels) {
     count('model');
-    yield { type: 'model', id: m.id, name: m.name, latestVersion: m.latestVersion, referenceKey: m.referenceKey, createdBy: await emailOf(m.createdBy), createdAt: iso(m.createdAt)!, updatedAt: iso(m.updatedAt)! };
+    yield {
+      type: 'model',
+      id: m.id,
+      name: m.name,
+      latestVersion: m.latestVersion,
+      referenceKey: m.referenceKey,
+      createdBy: await emailOf(m.createdBy),
+      createdAt: iso(m.createdAt)!,
+      updatedAt: iso(m.updatedAt)!,
+    };
   }
   const versions = await q.select().from(modelVersions).where(eq(modelVersions.groupId, groupId));
   versions.sort((a, b) => modelOrder.get(a.modelId)! - modelOrder.get(b.modelId)! || a.version - b.version);
@@ -98,13 +117,26 @@ export async function* groupBackupRecords(q: Queryable, groupId: string, include
     const [s] = await q.select().from(spectra).where(eq(spectra.runId, run.id));
     if (!s) continue;
     count('spectrum');
-    yield { type: 'spectrum', runId: s.runId, energies: s.energies, pairs: s.pairs, transmission: s.transmission, residual: s.residual, reflection: s.reflection, createdAt: iso(s.createdAt)! };
+    yield {
+      type: 'spectrum',
+      runId: s.runId,
+      energies: s.energies,
+      pairs: s.pairs,
+      transmission: s.transmission,
+      residual: s.residual,
+      reflection: s.reflection,
+      createdAt: iso(s.createdAt)!,
+    };
   }
 
   // Computed resonances run by run, then their modes and images in batches. Fitted ones (a
   // fit of a run's spectrum also names the run) hang on their fit: see fits-backup-sections.ts.
   for (const run of groupRuns) {
-    const rows = await q.select().from(resonances).where(and(eq(resonances.runId, run.id), eq(resonances.source, 'computed'))).orderBy(asc(resonances.idx));
+    const rows = await q
+      .select()
+      .from(resonances)
+      .where(and(eq(resonances.runId, run.id), eq(resonances.source, 'computed')))
+      .orderBy(asc(resonances.idx));
     for (const r of rows) {
       const { groupId: _g, searchText: _s, source: _src, fitId: _f, createdAt, ...rest } = r;
       count('resonance');

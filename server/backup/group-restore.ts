@@ -45,7 +45,18 @@ function invalid(issues: FieldIssue[]): ApiError {
  * ("line 12 (resonance) energy: …"), or a 413 past MAX_RESTORE_BYTES.
  */
 export async function readBackup(input: Readable, maxBytes = MAX_RESTORE_BYTES): Promise<ParsedBackup> {
-  const core = { header: [], member: [], model: [], modelVersion: [], run: [], spectrum: [], resonance: [], mode: [], modeImage: [], end: [] } as unknown as Core;
+  const core = {
+    header: [],
+    member: [],
+    model: [],
+    modelVersion: [],
+    run: [],
+    spectrum: [],
+    resonance: [],
+    mode: [],
+    modeImage: [],
+    end: [],
+  } as unknown as Core;
   const sections = new Map<string, { type: string }[]>(backupSections.map((s) => [s.type, []]));
   const issues: FieldIssue[] = [];
   const issue = (path: string, message: string) => {
@@ -55,7 +66,8 @@ export async function readBackup(input: Readable, maxBytes = MAX_RESTORE_BYTES):
   const cap = new Transform({
     transform(chunk: Buffer, _enc, done) {
       bytes += chunk.length;
-      if (bytes > maxBytes) done(new ApiError(413, 'backup_too_large', `The backup is larger than ${maxBytes / 1024 / 1024} MB once decompressed; it cannot be restored here.`));
+      if (bytes > maxBytes)
+        done(new ApiError(413, 'backup_too_large', `The backup is larger than ${maxBytes / 1024 / 1024} MB once decompressed; it cannot be restored here.`));
       else done(null, chunk);
     },
   });
@@ -104,7 +116,8 @@ export async function readBackup(input: Readable, maxBytes = MAX_RESTORE_BYTES):
   } catch (err) {
     if (err instanceof ApiError) throw err;
     const code = (err as { code?: string }).code;
-    if (code === 'Z_DATA_ERROR' || code === 'Z_BUF_ERROR') throw invalid([{ path: 'file', message: 'is not a gzip file (a group backup is a .jsonl.gz archive)' }]);
+    if (code === 'Z_DATA_ERROR' || code === 'Z_BUF_ERROR')
+      throw invalid([{ path: 'file', message: 'is not a gzip file (a group backup is a .jsonl.gz archive)' }]);
     throw err;
   }
   if (n === 0) issue('file', 'is empty');
@@ -121,7 +134,8 @@ function checkCounts(core: Core, sections: Map<string, { type: string }[]>, issu
   for (const [type, list] of Object.entries(core)) if (type !== 'header' && type !== 'end' && list.length) found[type] = list.length;
   for (const [type, list] of sections) if (list.length) found[type] = list.length;
   for (const type of new Set([...Object.keys(counts), ...Object.keys(found)])) {
-    if ((counts[type] ?? 0) !== (found[type] ?? 0)) issue(`end.counts.${type}`, `says ${counts[type] ?? 0} record(s) but the archive holds ${found[type] ?? 0}`);
+    if ((counts[type] ?? 0) !== (found[type] ?? 0))
+      issue(`end.counts.${type}`, `says ${counts[type] ?? 0} record(s) but the archive holds ${found[type] ?? 0}`);
   }
 }
 
@@ -156,7 +170,8 @@ function checkReferences(core: Core, sections: Map<string, { type: string }[]>, 
   for (const v of core.modelVersion) {
     need(`modelVersion ${v.id} modelId`, 'models', v.modelId);
     // Its derived figures are computed again on restore, not taken from the file.
-    if (!figuresOfStored(v.document, v.siteCount)) issue(`modelVersion ${v.id} document`, 'is not a valid cavity model (its name, spacing, material, field or leads)');
+    if (!figuresOfStored(v.document, v.siteCount))
+      issue(`modelVersion ${v.id} document`, 'is not a valid cavity model (its name, spacing, material, field or leads)');
   }
   for (const r of core.run) need(`run ${r.id} modelVersionId`, 'modelVersions', r.modelVersionId);
   for (const s of core.spectrum) need(`spectrum of run ${s.runId}`, 'runs', s.runId);
@@ -167,11 +182,13 @@ function checkReferences(core: Core, sections: Map<string, { type: string }[]>, 
   }
   for (const m of core.mode) {
     need(`mode of resonance ${m.resonanceId}`, 'resonances', m.resonanceId);
-    if (Buffer.byteLength(m.vector, 'base64') !== m.sites * 16) issue(`mode of resonance ${m.resonanceId} vector`, `must hold ${m.sites} complex values (${m.sites * 16} bytes)`);
+    if (Buffer.byteLength(m.vector, 'base64') !== m.sites * 16)
+      issue(`mode of resonance ${m.resonanceId} vector`, `must hold ${m.sites} complex values (${m.sites * 16} bytes)`);
   }
   for (const i of core.modeImage) {
     need(`modeImage of resonance ${i.resonanceId}`, 'resonances', i.resonanceId);
-    if (!Buffer.from(i.png.slice(0, 12), 'base64').subarray(0, 8).equals(PNG_SIGNATURE)) issue(`modeImage of resonance ${i.resonanceId} png`, 'is not a PNG image');
+    if (!Buffer.from(i.png.slice(0, 12), 'base64').subarray(0, 8).equals(PNG_SIGNATURE))
+      issue(`modeImage of resonance ${i.resonanceId} png`, 'is not a PNG image');
   }
   for (const section of backupSections) {
     for (const r of sections.get(section.type) ?? []) {
@@ -217,7 +234,11 @@ export async function restoreGroup(db: Db, groupId: string, actorId: string, b: 
       );
     }
     const people = new Map<string, string>();
-    for (const m of await tx.select({ id: users.id, email: users.email }).from(memberships).innerJoin(users, eq(users.id, memberships.userId)).where(eq(memberships.groupId, groupId))) {
+    for (const m of await tx
+      .select({ id: users.id, email: users.email })
+      .from(memberships)
+      .innerJoin(users, eq(users.id, memberships.userId))
+      .where(eq(memberships.groupId, groupId))) {
       people.set(m.email.toLowerCase(), m.id);
     }
     const person = (email: string | null) => (email ? (people.get(email.toLowerCase()) ?? null) : null);
@@ -242,7 +263,16 @@ export async function restoreGroup(db: Db, groupId: string, actorId: string, b: 
 
     await insertAll(b.core.model, 500, (slice) =>
       tx.insert(cavityModels).values(
-        slice.map((m) => ({ id: ids.models.get(m.id)!, groupId, name: m.name, latestVersion: m.latestVersion, referenceKey: m.referenceKey, createdBy: person(m.createdBy), createdAt: date(m.createdAt)!, updatedAt: date(m.updatedAt)! })),
+        slice.map((m) => ({
+          id: ids.models.get(m.id)!,
+          groupId,
+          name: m.name,
+          latestVersion: m.latestVersion,
+          referenceKey: m.referenceKey,
+          createdBy: person(m.createdBy),
+          createdAt: date(m.createdAt)!,
+          updatedAt: date(m.updatedAt)!,
+        })),
       ),
     );
     await insertAll(b.core.modelVersion, 200, (slice) =>
@@ -259,7 +289,8 @@ export async function restoreGroup(db: Db, groupId: string, actorId: string, b: 
       ),
     );
     await insertAll(b.core.run, 200, (slice) =>
-      runStore.restore(tx, 
+      runStore.restore(
+        tx,
         slice.map(({ type: _t, id, modelVersionId, createdBy, createdAt, startedAt, finishedAt, status, ...r }) => {
           const unfinished = status === 'queued' || status === 'running';
           return {
@@ -281,7 +312,15 @@ export async function restoreGroup(db: Db, groupId: string, actorId: string, b: 
       ),
     );
     await insertAll(b.core.spectrum, 20, (slice) =>
-      tx.insert(spectra).values(slice.map(({ type: _t, runId, createdAt, reflection, ...s }) => ({ ...s, reflection: reflection ?? null, runId: ids.runs.get(runId)!, groupId, createdAt: date(createdAt)! }))),
+      tx.insert(spectra).values(
+        slice.map(({ type: _t, runId, createdAt, reflection, ...s }) => ({
+          ...s,
+          reflection: reflection ?? null,
+          runId: ids.runs.get(runId)!,
+          groupId,
+          createdAt: date(createdAt)!,
+        })),
+      ),
     );
     await insertAll(b.core.resonance, 500, (slice) =>
       tx.insert(resonances).values(
@@ -297,11 +336,20 @@ export async function restoreGroup(db: Db, groupId: string, actorId: string, b: 
       ),
     );
     await insertAll(b.core.mode, 50, (slice) =>
-      tx.insert(resonanceModes).values(slice.map((m) => ({ resonanceId: ids.resonances.get(m.resonanceId)!, sites: m.sites, vector: Buffer.from(m.vector, 'base64') }))),
+      tx
+        .insert(resonanceModes)
+        .values(slice.map((m) => ({ resonanceId: ids.resonances.get(m.resonanceId)!, sites: m.sites, vector: Buffer.from(m.vector, 'base64') }))),
     );
     await insertAll(b.core.modeImage, 50, (slice) =>
       tx.insert(modeImages).values(
-        slice.map((i) => ({ resonanceId: ids.resonances.get(i.resonanceId)!, size: i.size, width: i.width, height: i.height, etag: i.etag, png: Buffer.from(i.png, 'base64') })),
+        slice.map((i) => ({
+          resonanceId: ids.resonances.get(i.resonanceId)!,
+          size: i.size,
+          width: i.width,
+          height: i.height,
+          etag: i.etag,
+          png: Buffer.from(i.png, 'base64'),
+        })),
       ),
     );
     const summary: RestoreSummary = {

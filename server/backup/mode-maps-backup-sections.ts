@@ -75,14 +75,30 @@ const currentSection: BackupSection<CurrentRecord> = {
       .leftJoin(runs, eq(runs.id, resonances.runId))
       .leftJoin(peakFits, eq(peakFits.id, resonances.fitId))
       .where(eq(resonances.groupId, groupId))
-      .orderBy(asc(resonances.source), asc(runs.createdAt), asc(runs.kind), asc(runs.note), asc(resonances.idx), asc(peakFits.createdAt), asc(resonances.energy));
+      .orderBy(
+        asc(resonances.source),
+        asc(runs.createdAt),
+        asc(runs.kind),
+        asc(runs.note),
+        asc(resonances.idx),
+        asc(peakFits.createdAt),
+        asc(resonances.energy),
+      );
     for (let k = 0; k < order.length; k += BATCH) {
       const ids = order.slice(k, k + BATCH).map((r) => r.id);
       const at = new Map(ids.map((x, n) => [x, n]));
       const rows = await q.select().from(resonanceCurrents).where(inArray(resonanceCurrents.resonanceId, ids));
       rows.sort((a, b) => at.get(a.resonanceId)! - at.get(b.resonanceId)!);
       for (const c of rows) {
-        yield { type: 'resonanceCurrent', resonanceId: c.resonanceId, nx: c.nx, ny: c.ny, mask: c.mask.toString('base64'), vectors: c.vectors.toString('base64'), leadCurrents: c.leadCurrents };
+        yield {
+          type: 'resonanceCurrent',
+          resonanceId: c.resonanceId,
+          nx: c.nx,
+          ny: c.ny,
+          mask: c.mask.toString('base64'),
+          vectors: c.vectors.toString('base64'),
+          leadCurrents: c.leadCurrents,
+        };
       }
     }
   },
@@ -96,7 +112,8 @@ const currentSection: BackupSection<CurrentRecord> = {
     else {
       const sites = popcount(mask);
       const bytes = Buffer.byteLength(c.vectors, 'base64');
-      if (bytes !== sites * 8) issues.push({ field: 'vectors', message: `must hold a float32 pair for each of the mask's ${sites} sites (${sites * 8} bytes), holds ${bytes} bytes` });
+      if (bytes !== sites * 8)
+        issues.push({ field: 'vectors', message: `must hold a float32 pair for each of the mask's ${sites} sites (${sites * 8} bytes), holds ${bytes} bytes` });
     }
     return issues;
   },

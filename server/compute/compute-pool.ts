@@ -56,7 +56,13 @@ export class ComputePool implements Compute {
     } catch (err) {
       if (err instanceof ApiError) throw err;
       if (timeout.aborted) {
-        throw new ApiError(503, 'computation_timeout', `The computation took longer than ${this.timeoutMs / 1000} s and was stopped; try a smaller model or window.`, undefined, 30);
+        throw new ApiError(
+          503,
+          'computation_timeout',
+          `The computation took longer than ${this.timeoutMs / 1000} s and was stopped; try a smaller model or window.`,
+          undefined,
+          30,
+        );
       }
       if (signal?.aborted) throw new ApiError(499, 'client_closed', 'The request was abandoned by the client.');
       if (err instanceof Error && /queue is at limit/i.test(err.message)) {

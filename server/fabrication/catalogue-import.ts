@@ -51,7 +51,9 @@ export function parseExportFile(bytes: Buffer): CatalogueExportFile {
     const message = err instanceof Error ? err.message : String(err);
     const at = /position (\d+)/.exec(message);
     const where = at ? (({ line, column }) => ` at line ${line}, column ${column}`)(lineOf(text, Number(at[1]))) : '';
-    throw new ApiError(400, 'invalid_file', `The file is not valid JSON${where}: ${message}. Nothing was imported.`, [{ path: 'file', message: `not JSON${where}` }]);
+    throw new ApiError(400, 'invalid_file', `The file is not valid JSON${where}: ${message}. Nothing was imported.`, [
+      { path: 'file', message: `not JSON${where}` },
+    ]);
   }
   const parsed = catalogueExportFileSchema.safeParse(raw);
   if (!parsed.success) {
@@ -74,7 +76,8 @@ export class CatalogueImport {
     const models = new Map(file.models.map((m, k) => [key(m.modelId, m.version), { ...m, index: k }]));
     const issues: FieldIssue[] = [];
     file.items.forEach((r, k) => {
-      if (!models.has(key(r.modelId, r.modelVersion))) issues.push({ path: `file.items.${k}.modelVersion`, message: `model ${r.modelId} version ${r.modelVersion} is not in the file's models` });
+      if (!models.has(key(r.modelId, r.modelVersion)))
+        issues.push({ path: `file.items.${k}.modelVersion`, message: `model ${r.modelId} version ${r.modelVersion} is not in the file's models` });
     });
     const checked = new Map<string, CheckedModel>();
     for (const [k, m] of models) {
@@ -86,8 +89,16 @@ export class CatalogueImport {
       }
     }
     if (issues.length) {
-      const named = issues.slice(0, 10).map((i) => `${i.path} (${i.message})`).join('; ');
-      throw new ApiError(400, 'invalid_file', `The file cannot be imported: ${named}${issues.length > 10 ? '; …' : ''}. Nothing was imported.`, issues.slice(0, 50));
+      const named = issues
+        .slice(0, 10)
+        .map((i) => `${i.path} (${i.message})`)
+        .join('; ');
+      throw new ApiError(
+        400,
+        'invalid_file',
+        `The file cannot be imported: ${named}${issues.length > 10 ? '; …' : ''}. Nothing was imported.`,
+        issues.slice(0, 50),
+      );
     }
 
     return this.db.transaction(async (tx) => {
@@ -99,7 +110,11 @@ export class CatalogueImport {
             .where(and(eq(resonances.groupId, groupId), sql`${resonances.details}->'provenance'->>'sourceResonanceId' = any(${sql.param(sourceIds)}::text[])`))
         : [];
       if (already.length) {
-        throw new ApiError(409, 'already_imported', `${already.length} of these resonances were imported into this group before (e.g. ${already[0]!.source}). Nothing was imported.`);
+        throw new ApiError(
+          409,
+          'already_imported',
+          `${already.length} of these resonances were imported into this group before (e.g. ${already[0]!.source}). Nothing was imported.`,
+        );
       }
       const importedAt = new Date();
       // One new model per source model, with the source's version numbers (ascending, so the last is the latest).
@@ -114,7 +129,10 @@ export class CatalogueImport {
           newModel.set(m.modelId, modelId);
         }
         await insertVersion(tx, groupId, modelId, m.version, userId, c);
-        const [v] = await tx.select({ id: modelVersions.id }).from(modelVersions).where(and(eq(modelVersions.modelId, modelId), eq(modelVersions.version, m.version)));
+        const [v] = await tx
+          .select({ id: modelVersions.id })
+          .from(modelVersions)
+          .where(and(eq(modelVersions.modelId, modelId), eq(modelVersions.version, m.version)));
         newVersion.set(k, { id: v!.id, spacingNm: c.columns.spacingNm });
       }
       const ids: string[] = [];
@@ -188,11 +206,13 @@ function importUpload(): RequestHandler {
   return (req, res, next) => {
     single(req, res, (err: unknown) => {
       if (err instanceof multer.MulterError) {
-        if (err.code === 'LIMIT_FILE_SIZE') return next(new ApiError(413, 'payload_too_large', `The file is larger than the limit of ${IMPORT_MAX_BYTES} bytes. Nothing was imported.`));
+        if (err.code === 'LIMIT_FILE_SIZE')
+          return next(new ApiError(413, 'payload_too_large', `The file is larger than the limit of ${IMPORT_MAX_BYTES} bytes. Nothing was imported.`));
         return next(new ApiError(400, 'validation_failed', `The upload was refused: ${err.message}.`, [{ path: err.field ?? 'file', message: err.message }]));
       }
       if (err) return next(err);
-      if (!req.file) return next(new ApiError(400, 'validation_failed', 'Attach the catalogue export (JSON) in the field "file".', [{ path: 'file', message: 'missing' }]));
+      if (!req.file)
+        return next(new ApiError(400, 'validation_failed', 'Attach the catalogue export (JSON) in the field "file".', [{ path: 'file', message: 'missing' }]));
       next();
     });
   };

@@ -24,7 +24,6 @@ import { STANDING_CAUTION, type SpecSheetInput } from './spec-sheet.js';
 import { compareFigure } from '../../shared/fabrication/measurement-comparison.js';
 import type { PackageFile } from '../../shared/api/fabrication.js';
 
-
 export const PACKAGE_MEDIA_TYPES: Record<PackageFile, string> = {
   'package.zip': 'application/zip',
   'spec.pdf': 'application/pdf',
@@ -40,7 +39,14 @@ export interface PackageAnswer {
 }
 
 function slug(text: string): string {
-  return text.normalize('NFKD').replace(/[^A-Za-z0-9]+/g, '-').replace(/^-+|-+$/g, '').toLowerCase().slice(0, 40) || 'device';
+  return (
+    text
+      .normalize('NFKD')
+      .replace(/[^A-Za-z0-9]+/g, '-')
+      .replace(/^-+|-+$/g, '')
+      .toLowerCase()
+      .slice(0, 40) || 'device'
+  );
 }
 
 export class FabricationPackages {
@@ -100,7 +106,10 @@ export class FabricationPackages {
     const massRatio = modelMassRatio(model);
     const derived = deriveFigures(model, files.layout.siteCount, r.energy);
     const names = await userNames(this.db, [s.f.proposedBy, s.f.reviewedBy, s.f.measuredBy]);
-    const [image] = await this.db.select({ png: modeImages.png }).from(modeImages).where(and(eq(modeImages.resonanceId, r.id), eq(modeImages.size, 'full')));
+    const [image] = await this.db
+      .select({ png: modeImages.png })
+      .from(modeImages)
+      .where(and(eq(modeImages.resonanceId, r.id), eq(modeImages.size, 'full')));
     const f = s.f;
     return {
       groupName: s.groupName,
@@ -177,7 +186,13 @@ export class FabricationPackages {
         siteCount: files.layout.siteCount,
         cavityAreaNm2: files.layout.cavityAreaNm2,
         cavityBox: files.layout.cavityBox,
-        layers: files.layout.layers.map((l) => ({ layer: l.layer, datatype: l.datatype, name: l.name, description: l.description, polygons: l.polygons.length })),
+        layers: files.layout.layers.map((l) => ({
+          layer: l.layer,
+          datatype: l.datatype,
+          name: l.name,
+          description: l.description,
+          polygons: l.polygons.length,
+        })),
         notDrawn: files.layout.notDrawn,
       },
     };
@@ -204,7 +219,9 @@ export class FabricationPackages {
       'Layer map (GDSII layer / datatype)',
       ...L.layers.map((l) => `  ${String(l.layer).padStart(3)} / ${l.datatype}  ${l.name}: ${l.description}`),
       ...L.notDrawn.map((n) => `  not drawn: ${n}`),
-      ...(files.gdsRoundingNm > 0 ? ['', `GDSII coordinates are rounded to 1 nm (largest shift ${files.gdsRoundingNm.toPrecision(3)} nm); DXF and SVG keep the exact values.`] : []),
+      ...(files.gdsRoundingNm > 0
+        ? ['', `GDSII coordinates are rounded to 1 nm (largest shift ${files.gdsRoundingNm.toPrecision(3)} nm); DXF and SVG keep the exact values.`]
+        : []),
       '',
     ].join('\n');
   }

@@ -37,7 +37,9 @@ export function fabricationRoutes(service: FabricationService): Router {
   const router = Router();
   mountRoute(router, listFabricationRoute, async ({ query }, req) => ({ items: await service.list(req.membership!.groupId, query.state) }));
   mountRoute(router, getFabricationRoute, ({ params }, req) => service.record(req.membership!.groupId, resonanceIdOf(params.id), callerOf(req)));
-  mountRoute(router, moveFabricationRoute, ({ params, body }, req) => service.transition(req.membership!.groupId, resonanceIdOf(params.id), callerOf(req), body));
+  mountRoute(router, moveFabricationRoute, ({ params, body }, req) =>
+    service.transition(req.membership!.groupId, resonanceIdOf(params.id), callerOf(req), body),
+  );
   mountRoute(router, listCommentsRoute, async ({ params }, req) => ({ items: await service.comments(req.membership!.groupId, resonanceIdOf(params.id)) }));
   mountRoute(router, addCommentRoute, ({ params, body }, req) => service.addComment(req.membership!.groupId, resonanceIdOf(params.id), callerOf(req), body));
   return router;
@@ -61,7 +63,10 @@ export function fabricationPackageRoutes(db: Db, packages: FabricationPackages):
         details: { resonanceId: id, file: which },
       });
       res.setHeader('Content-Disposition', `attachment; filename="${file.fileName}"`);
-      res.status(200).type(file.mediaType).send(Buffer.from(file.bytes.buffer, file.bytes.byteOffset, file.bytes.byteLength));
+      res
+        .status(200)
+        .type(file.mediaType)
+        .send(Buffer.from(file.bytes.buffer, file.bytes.byteOffset, file.bytes.byteLength));
     });
   }
   return router;

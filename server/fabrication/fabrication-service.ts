@@ -18,15 +18,7 @@ import { peakFits } from '../db/schema/fits.js';
 import { memberships } from '../db/schema/groups.js';
 import { users } from '../db/schema/users.js';
 import { ApiError } from '../http/error-handler.js';
-import {
-  fabricationHistory,
-  findFabrication,
-  listComments,
-  listFabrication,
-  lockResonance,
-  userNames,
-  type FabricationRow,
-} from './fabrication-repository.js';
+import { fabricationHistory, findFabrication, listComments, listFabrication, lockResonance, userNames, type FabricationRow } from './fabrication-repository.js';
 import type { NotificationQueue } from './notification-queue.js';
 import { groupMembers, recordNotifications, userById } from './notifications.js';
 
@@ -158,7 +150,9 @@ export class FabricationService {
           details.batch = body.batch;
           break;
         case 'measure': {
-          const m = body.fitId ? await this.measurementFromFit(tx, groupId, body.fitId, body.peak) : { energy: body.energy!, width: body.width!, energySigma: body.energyUncertainty ?? null, widthSigma: body.widthUncertainty ?? null };
+          const m = body.fitId
+            ? await this.measurementFromFit(tx, groupId, body.fitId, body.peak)
+            : { energy: body.energy!, width: body.width!, energySigma: body.energyUncertainty ?? null, widthSigma: body.widthUncertainty ?? null };
           await this.update(tx, resonanceId, {
             state: 'measured',
             measuredEnergy: m.energy,
@@ -192,12 +186,18 @@ export class FabricationService {
   }
 
   private async measurementFromFit(q: Queryable, groupId: string, fitId: string, peak: number) {
-    const [fit] = await q.select({ status: peakFits.status, result: peakFits.result }).from(peakFits).where(and(eq(peakFits.id, fitId), eq(peakFits.groupId, groupId)));
+    const [fit] = await q
+      .select({ status: peakFits.status, result: peakFits.result })
+      .from(peakFits)
+      .where(and(eq(peakFits.id, fitId), eq(peakFits.groupId, groupId)));
     if (!fit) throw new ApiError(404, 'not_found', 'No such peak fit in this group (fitId).', [{ path: 'fitId', message: 'no such peak fit in this group' }]);
     if (fit.status !== 'completed') throw new ApiError(409, 'fit_not_completed', `The peak fit is ${fit.status}; only a completed fit gives a measurement.`);
-    const peaks = ((fit.result as { peaks?: { energy: number; width: number; energyError: number | null; widthError: number | null }[] } | null)?.peaks ?? []);
+    const peaks = (fit.result as { peaks?: { energy: number; width: number; energyError: number | null; widthError: number | null }[] } | null)?.peaks ?? [];
     const p = peaks[peak];
-    if (!p) throw new ApiError(400, 'validation_failed', `The fit has ${peaks.length} peak(s); peak ${peak} does not exist.`, [{ path: 'peak', message: `must be below ${peaks.length}` }]);
+    if (!p)
+      throw new ApiError(400, 'validation_failed', `The fit has ${peaks.length} peak(s); peak ${peak} does not exist.`, [
+        { path: 'peak', message: `must be below ${peaks.length}` },
+      ]);
     return { energy: p.energy, width: p.width, energySigma: p.energyError, widthSigma: p.widthError };
   }
 
@@ -253,9 +253,7 @@ export class FabricationService {
           actorId: caller.id,
           subject: `[${r.groupName}] ${body.action === 'send' ? `Sent to fabrication (${body.batch})` : 'Measured'}: ${r.modelName} at ${r.energy.toPrecision(5)} meV`,
           lines: [
-            body.action === 'send'
-              ? `${who} sent ${figures(r)} to fabrication in batch ${body.batch}.`
-              : `${who} recorded the measurement of ${figures(r)}.`,
+            body.action === 'send' ? `${who} sent ${figures(r)} to fabrication in batch ${body.batch}.` : `${who} recorded the measurement of ${figures(r)}.`,
           ],
           link: this.link(r.groupSlug, 'fabrication'),
           linkLabel: 'Open the Fabrication page',
@@ -269,7 +267,10 @@ export class FabricationService {
   /** Approved, sent, measured (the Fabrication page) or candidates (the review queue). */
   async list(groupId: string, states: FabricationState[]): Promise<FabricationItem[]> {
     const rows = await listFabrication(this.db, groupId, states);
-    const names = await userNames(this.db, rows.map((r) => r.f.measuredBy));
+    const names = await userNames(
+      this.db,
+      rows.map((r) => r.f.measuredBy),
+    );
     return rows.map((r) => ({
       resonanceId: r.f.resonanceId,
       state: r.f.state as FabricationState,
@@ -298,7 +299,10 @@ export class FabricationService {
   async comments(groupId: string, resonanceId: string): Promise<ResonanceComment[]> {
     await predictedFigures(this.db, groupId, resonanceId);
     const rows = await listComments(this.db, groupId, resonanceId);
-    const names = await userNames(this.db, rows.flatMap((r) => r.c.mentions));
+    const names = await userNames(
+      this.db,
+      rows.flatMap((r) => r.c.mentions),
+    );
     return rows.map((r) => ({
       id: r.c.id,
       body: r.c.body,
@@ -323,7 +327,9 @@ export class FabricationService {
         : [];
       const missing = mentioned.findIndex((id) => !members.some((m) => m.id === id));
       if (missing >= 0) {
-        throw new ApiError(400, 'validation_failed', 'Only members of this group can be mentioned.', [{ path: `mentions.${missing}`, message: 'not a member of this group' }]);
+        throw new ApiError(400, 'validation_failed', 'Only members of this group can be mentioned.', [
+          { path: `mentions.${missing}`, message: 'not a member of this group' },
+        ]);
       }
       const [row] = await tx.insert(resonanceComments).values({ groupId, resonanceId, authorId: caller.id, body: body.body, mentions: mentioned }).returning();
       await writeAudit(tx, {

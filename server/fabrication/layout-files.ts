@@ -22,7 +22,10 @@ export interface LayoutFiles {
 
 /** GDSII names: printable ASCII, at most 32 characters by convention. */
 function gdsName(text: string): string {
-  const clean = text.normalize('NFKD').replace(/[^A-Za-z0-9_]+/g, '_').replace(/^_+|_+$/g, '');
+  const clean = text
+    .normalize('NFKD')
+    .replace(/[^A-Za-z0-9_]+/g, '_')
+    .replace(/^_+|_+$/g, '');
   return (clean || 'DEVICE').slice(0, 32).toUpperCase();
 }
 
@@ -30,7 +33,11 @@ export function buildLayoutFiles(document: unknown, title: string, structureName
   const checked = validateCavityModel(document);
   if (!checked.ok) {
     const first = checked.issues[0]!;
-    throw new ApiError(422, 'invalid_model', `The model of this resonance is no longer valid (${formatIssuePath(first.path)}: ${first.message}); no layout can be drawn.`);
+    throw new ApiError(
+      422,
+      'invalid_model',
+      `The model of this resonance is no longer valid (${formatIssuePath(first.path)}: ${first.message}); no layout can be drawn.`,
+    );
   }
   const layout = buildDeviceLayout(checked.model, checked.mask);
   let gdsRoundingNm = 0;
@@ -46,6 +53,13 @@ export function buildLayoutFiles(document: unknown, title: string, structureName
       }),
     })),
   );
-  const gds = writeGdsii({ libraryName: 'POLEWARD', structureName: gdsName(structureName), userUnitsPerDatabaseUnit: 1e-3, metresPerDatabaseUnit: 1e-9, boundaries, time });
+  const gds = writeGdsii({
+    libraryName: 'POLEWARD',
+    structureName: gdsName(structureName),
+    userUnitsPerDatabaseUnit: 1e-3,
+    metresPerDatabaseUnit: 1e-9,
+    boundaries,
+    time,
+  });
   return { layout, gds, dxf: layoutDxf(layout), svg: layoutSvg(layout, title), gdsRoundingNm };
 }

@@ -16,9 +16,7 @@ export function layoutSvg(layout: DeviceLayout, title: string): string {
   const groups = layout.layers.map((l) => {
     const fill = fills[l.name] ?? 'none';
     const colour = l.name.startsWith('gate') ? '#c0392b' : l.name === 'cavity-drawn' ? '#111111' : '#333333';
-    const paths = l.polygons
-      .map((ring) => `<path d="M ${ring.map(([x, y]) => `${+x.toFixed(3)} ${+y.toFixed(3)}`).join(' L ')} Z"/>`)
-      .join('');
+    const paths = l.polygons.map((ring) => `<path d="M ${ring.map(([x, y]) => `${+x.toFixed(3)} ${+y.toFixed(3)}`).join(' L ')} Z"/>`).join('');
     return (
       `<g id="layer-${l.layer}" data-layer="${l.layer}" data-datatype="${l.datatype}" fill="${fill}" fill-opacity="0.45" fill-rule="evenodd" stroke="${colour}" stroke-width="${stroke}">` +
       `<title>${escapeHtml(`layer ${l.layer}: ${l.description}`)}</title>${paths}</g>`
@@ -26,7 +24,7 @@ export function layoutSvg(layout: DeviceLayout, title: string): string {
   });
   return (
     `<?xml version="1.0" encoding="UTF-8"?>\n` +
-    `<svg xmlns="http://www.w3.org/2000/svg" width="${+(w).toFixed(3)}nm" height="${+(h).toFixed(3)}nm" viewBox="${+(xmin - pad).toFixed(3)} ${+(-ymax - pad).toFixed(3)} ${+w.toFixed(3)} ${+h.toFixed(3)}">\n` +
+    `<svg xmlns="http://www.w3.org/2000/svg" width="${+w.toFixed(3)}nm" height="${+h.toFixed(3)}nm" viewBox="${+(xmin - pad).toFixed(3)} ${+(-ymax - pad).toFixed(3)} ${+w.toFixed(3)} ${+h.toFixed(3)}">\n` +
     `<title>${escapeHtml(title)}</title>\n` +
     `<desc>${escapeHtml(`Poleward layout, units nm, y up. Cavity outline: ${layout.outline}. Simulated geometry: check it against the fabrication line's own design rules.`)}</desc>\n` +
     `<g transform="scale(1,-1)">\n${groups.join('\n')}\n</g>\n</svg>\n`

@@ -32,8 +32,19 @@ export function notificationSettingsRoutes(db: Db): Router {
       const on = entries.filter(([, v]) => v).map(([k]) => k);
       const off = entries.filter(([, v]) => !v).map(([k]) => k);
       if (on.length) await tx.delete(notificationOptOuts).where(and(eq(notificationOptOuts.userId, user.id), inArray(notificationOptOuts.kind, on)));
-      if (off.length) await tx.insert(notificationOptOuts).values(off.map((kind) => ({ userId: user.id, kind }))).onConflictDoNothing();
-      await writeAudit(tx, { groupId: null, actorId: user.id, accountId: user.id, action: 'notifications.changed', subject: 'e-mail notification settings', details: { enabled: body.enabled } });
+      if (off.length)
+        await tx
+          .insert(notificationOptOuts)
+          .values(off.map((kind) => ({ userId: user.id, kind })))
+          .onConflictDoNothing();
+      await writeAudit(tx, {
+        groupId: null,
+        actorId: user.id,
+        accountId: user.id,
+        action: 'notifications.changed',
+        subject: 'e-mail notification settings',
+        details: { enabled: body.enabled },
+      });
       return notificationSettings(tx, user.id);
     });
   });
@@ -51,7 +62,15 @@ export function failedNotificationRoutes(db: Db): Router {
       .orderBy(desc(notifications.createdAt))
       .limit(200);
     return {
-      items: rows.map((r) => ({ id: r.id, kind: r.kind, to: r.toAddress, subject: r.subject, attempts: r.attempts, error: r.error, createdAt: r.createdAt.toISOString() })),
+      items: rows.map((r) => ({
+        id: r.id,
+        kind: r.kind,
+        to: r.toAddress,
+        subject: r.subject,
+        attempts: r.attempts,
+        error: r.error,
+        createdAt: r.createdAt.toISOString(),
+      })),
     };
   });
   return router;

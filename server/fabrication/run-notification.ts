@@ -15,7 +15,13 @@ import { recordNotifications, userById } from './notifications.js';
 /** From submission to end; shorter runs send no e-mail. */
 export const LONG_RUN_SECONDS = 60;
 
-export async function notifyRunEnded(db: Db, queue: NotificationQueue | null, publicUrl: string, runId: string, longAfterSeconds = LONG_RUN_SECONDS): Promise<string[]> {
+export async function notifyRunEnded(
+  db: Db,
+  queue: NotificationQueue | null,
+  publicUrl: string,
+  runId: string,
+  longAfterSeconds = LONG_RUN_SECONDS,
+): Promise<string[]> {
   const [run] = await db
     .select({
       id: runs.id,
@@ -50,9 +56,7 @@ export async function notifyRunEnded(db: Db, queue: NotificationQueue | null, pu
       recipients: [owner],
       actorId: null,
       subject: `[${run.groupName}] Your ${what} ${run.status === 'completed' ? 'finished' : 'failed'}`,
-      lines: [
-        run.status === 'completed' ? `Your ${what} finished after ${took}.` : `Your ${what} failed after ${took}: ${run.error ?? 'no reason recorded'}.`,
-      ],
+      lines: [run.status === 'completed' ? `Your ${what} finished after ${took}.` : `Your ${what} failed after ${took}: ${run.error ?? 'no reason recorded'}.`],
       link: `${publicUrl}/g/${run.slug}/runs/${run.id}`,
       linkLabel: 'Open the run',
     }),
@@ -62,6 +66,8 @@ export async function notifyRunEnded(db: Db, queue: NotificationQueue | null, pu
 /** The worker's onEnded hook: queue the e-mail, log (never throw) when that fails. */
 export function runEndedNotifier(db: Db, queue: NotificationQueue, publicUrl: string, log: (m: string) => void = (m) => console.error(m)) {
   return async (runId: string) => {
-    await notifyRunEnded(db, queue, publicUrl, runId).catch((err: Error) => log(`[worker] run ${runId}: the e-mail to its owner could not be queued: ${err.message}`));
+    await notifyRunEnded(db, queue, publicUrl, runId).catch((err: Error) =>
+      log(`[worker] run ${runId}: the e-mail to its owner could not be queued: ${err.message}`),
+    );
   };
 }

@@ -38,7 +38,18 @@ export interface SpecSheetInput {
   groupName: string;
   resonanceId: string;
   generatedAt: Date;
-  model: { name: string; version: number; material: string; massRatio: number; spacingNm: number; nx: number; ny: number; siteCount: number; fieldT: number; leads: string[] };
+  model: {
+    name: string;
+    version: number;
+    material: string;
+    massRatio: number;
+    spacingNm: number;
+    nx: number;
+    ny: number;
+    siteCount: number;
+    fieldT: number;
+    leads: string[];
+  };
   figures: {
     energy: number;
     width: number;
@@ -125,11 +136,24 @@ function drawLayout(doc: PDFKit.PDFDocument, layout: DeviceLayout, x0: number, y
   // Width below, height to the right, with extension ticks.
   const yb = Y(ymin) + 12;
   doc.lineWidth(0.5).moveTo(X(box.xmin), yb).lineTo(X(box.xmax), yb).stroke();
-  doc.moveTo(X(box.xmin), yb - 3).lineTo(X(box.xmin), yb + 3).moveTo(X(box.xmax), yb - 3).lineTo(X(box.xmax), yb + 3).stroke();
-  doc.font('Regular').fontSize(8).text(`${fmt(wNm, 5)} nm`, X(box.xmin), yb + 3, { width: X(box.xmax) - X(box.xmin), align: 'center' });
+  doc
+    .moveTo(X(box.xmin), yb - 3)
+    .lineTo(X(box.xmin), yb + 3)
+    .moveTo(X(box.xmax), yb - 3)
+    .lineTo(X(box.xmax), yb + 3)
+    .stroke();
+  doc
+    .font('Regular')
+    .fontSize(8)
+    .text(`${fmt(wNm, 5)} nm`, X(box.xmin), yb + 3, { width: X(box.xmax) - X(box.xmin), align: 'center' });
   const xr = X(xmax) + 8;
   doc.moveTo(xr, Y(box.ymin)).lineTo(xr, Y(box.ymax)).stroke();
-  doc.moveTo(xr - 3, Y(box.ymin)).lineTo(xr + 3, Y(box.ymin)).moveTo(xr - 3, Y(box.ymax)).lineTo(xr + 3, Y(box.ymax)).stroke();
+  doc
+    .moveTo(xr - 3, Y(box.ymin))
+    .lineTo(xr + 3, Y(box.ymin))
+    .moveTo(xr - 3, Y(box.ymax))
+    .lineTo(xr + 3, Y(box.ymax))
+    .stroke();
   doc.text(`${fmt(hNm, 5)} nm`, xr + 4, (Y(box.ymin) + Y(box.ymax)) / 2 - 4, { lineBreak: false });
 }
 
@@ -138,7 +162,11 @@ export function renderSpecSheet(input: SpecSheetInput): Promise<Buffer> {
   const doc = new PDFDocument({
     size: 'A4',
     margin: 48,
-    info: { Title: `Spec sheet: ${input.model.name} v${input.model.version}, E = ${fmt(input.figures.energy)} meV`, Author: 'Poleward', Subject: `Resonance ${input.resonanceId}` },
+    info: {
+      Title: `Spec sheet: ${input.model.name} v${input.model.version}, E = ${fmt(input.figures.energy)} meV`,
+      Author: 'Poleward',
+      Subject: `Resonance ${input.resonanceId}`,
+    },
   });
   doc.registerFont('Regular', FONTS.regular);
   doc.registerFont('Bold', FONTS.bold);
@@ -161,7 +189,10 @@ export function renderSpecSheet(input: SpecSheetInput): Promise<Buffer> {
   say(doc, `${input.groupName} · resonance ${input.resonanceId} · generated ${input.generatedAt.toISOString().slice(0, 16).replace('T', ' ')} UTC by Poleward`);
   doc.fillColor('black');
 
-  doc.moveDown(0.5).rect(doc.x, doc.y, doc.page.width - 96, 46).fillAndStroke('#fff4e5', '#b26a00');
+  doc
+    .moveDown(0.5)
+    .rect(doc.x, doc.y, doc.page.width - 96, 46)
+    .fillAndStroke('#fff4e5', '#b26a00');
   doc.fillColor('#5a3500').fontSize(8.5);
   const cautionY = doc.y + 5;
   doc.y = cautionY;
@@ -175,10 +206,24 @@ export function renderSpecSheet(input: SpecSheetInput): Promise<Buffer> {
   row(doc, 'Energy E', `${fmt(f.energy)} meV${input.tolerances.energyMeV !== null ? `  (tolerance ± ${fmt(input.tolerances.energyMeV, 4)} meV)` : ''}`);
   row(doc, 'Width Γ', `${fmt(f.width)} meV`);
   row(doc, 'Lifetime τ = ħ/Γ', `${fmt(f.lifetimePs)} ps`);
-  row(doc, 'Quality factor Q = E/Γ', `${fmt(f.quality, 5)}${input.tolerances.minQuality !== null ? `  (at least ${fmt(input.tolerances.minQuality, 5)} needed)` : ''}`);
+  row(
+    doc,
+    'Quality factor Q = E/Γ',
+    `${fmt(f.quality, 5)}${input.tolerances.minQuality !== null ? `  (at least ${fmt(input.tolerances.minQuality, 5)} needed)` : ''}`,
+  );
   row(doc, 'Partial widths', f.partialWidths.map((p) => `${p.lead} ${fmt(p.width, 4)} meV`).join(', ') || 'none');
-  row(doc, 'Petermann factor K', f.petermann === null ? 'not computed' : `${fmt(f.petermann, 4)}${f.petermann > 1.1 ? ' (non-orthogonal mode: a Breit-Wigner reading of the peak misleads)' : ''}`);
-  const flags = [f.bound ? 'bound state (Γ = 0 to rounding)' : null, f.nearThreshold ? 'near a channel threshold' : null, f.overlapping ? 'overlaps a neighbouring resonance' : null].filter(Boolean);
+  row(
+    doc,
+    'Petermann factor K',
+    f.petermann === null
+      ? 'not computed'
+      : `${fmt(f.petermann, 4)}${f.petermann > 1.1 ? ' (non-orthogonal mode: a Breit-Wigner reading of the peak misleads)' : ''}`,
+  );
+  const flags = [
+    f.bound ? 'bound state (Γ = 0 to rounding)' : null,
+    f.nearThreshold ? 'near a channel threshold' : null,
+    f.overlapping ? 'overlaps a neighbouring resonance' : null,
+  ].filter(Boolean);
   row(doc, 'Flags', flags.length ? flags.join('; ') : 'none');
 
   heading(doc, 'Model');
@@ -197,13 +242,21 @@ export function renderSpecSheet(input: SpecSheetInput): Promise<Buffer> {
 
   heading(doc, 'Decision');
   row(doc, 'Proposed by', `${input.proposal.by}, ${input.proposal.at.toISOString().slice(0, 10)}: ${input.proposal.reason}`);
-  row(doc, 'Approved by', `${input.review.by}${input.review.at ? `, ${input.review.at.toISOString().slice(0, 10)}` : ''}${input.review.reason ? `: ${input.review.reason}` : ''}`);
+  row(
+    doc,
+    'Approved by',
+    `${input.review.by}${input.review.at ? `, ${input.review.at.toISOString().slice(0, 10)}` : ''}${input.review.reason ? `: ${input.review.reason}` : ''}`,
+  );
   if (input.batch) row(doc, 'Sent to fabrication', input.batch);
   if (input.measurement) {
     const e = input.measurement.energyComparison;
     const g = input.measurement.widthComparison;
     const sig = (s: number | null) => (s === null ? '' : `, ${fmt(s, 3)} σ`);
-    row(doc, 'Measured', `E = ${fmt(e.measured)} meV (${e.percent === null ? '' : `${fmt(e.percent, 3)} %`}${sig(e.sigmas)}); Γ = ${fmt(g.measured)} meV (${g.percent === null ? '' : `${fmt(g.percent, 3)} %`}${sig(g.sigmas)})`);
+    row(
+      doc,
+      'Measured',
+      `E = ${fmt(e.measured)} meV (${e.percent === null ? '' : `${fmt(e.percent, 3)} %`}${sig(e.sigmas)}); Γ = ${fmt(g.measured)} meV (${g.percent === null ? '' : `${fmt(g.percent, 3)} %`}${sig(g.sigmas)})`,
+    );
   }
 
   // Second page: mode image and outline.
@@ -234,7 +287,12 @@ export function renderSpecSheet(input: SpecSheetInput): Promise<Buffer> {
   for (const n of L.notDrawn) row(doc, 'not drawn', n);
   if (input.gdsRoundingNm > 0) {
     doc.moveDown(0.3);
-    say(doc, `GDSII coordinates are rounded to the 1 nm database unit; the largest shift is ${fmt(input.gdsRoundingNm, 3)} nm. DXF and SVG keep the exact values.`, false, { width: doc.page.width - 96 });
+    say(
+      doc,
+      `GDSII coordinates are rounded to the 1 nm database unit; the largest shift is ${fmt(input.gdsRoundingNm, 3)} nm. DXF and SVG keep the exact values.`,
+      false,
+      { width: doc.page.width - 96 },
+    );
   }
   doc.end();
   return done;

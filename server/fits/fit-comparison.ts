@@ -50,7 +50,9 @@ export function comparePeaks(peaks: FittedPeak[], poles: CandidatePole[], positi
       return { peak: k, pole: null, energyPercent: null, energySigmas: null, widthPercent: null, widthSigmas: null, positionComparable, warnings };
     }
     if (!positionComparable)
-      warnings.push('The trace is in gate voltage: its energy zero is arbitrary, so only the width is compared (the nearest pole is the one of nearest width).');
+      warnings.push(
+        'The trace is in gate voltage: its energy zero is arbitrary, so only the width is compared (the nearest pole is the one of nearest width).',
+      );
     if (best.overlapping || (best.petermann !== null && best.petermann > OVERLAP_PETERMANN))
       warnings.push(
         `The nearest pole overlaps its neighbours (Petermann factor ${best.petermann?.toFixed(3) ?? 'unknown'}${best.overlapping ? ', a neighbour within the mean of the widths' : ''}): a Breit–Wigner width is not meaningful for it; compare with care.`,

@@ -18,7 +18,11 @@ const FIT_HEARTBEAT_MS = 500;
 export function fitQueue(boss: PgBoss): FitQueue {
   return {
     async enqueue(fitId) {
-      const id = await boss.send(FIT_QUEUE.name, { fitId }, { retryLimit: FIT_QUEUE.retryLimit, retryDelay: FIT_QUEUE.retryDelaySeconds, expireInSeconds: FIT_QUEUE.expireInSeconds });
+      const id = await boss.send(
+        FIT_QUEUE.name,
+        { fitId },
+        { retryLimit: FIT_QUEUE.retryLimit, retryDelay: FIT_QUEUE.retryDelaySeconds, expireInSeconds: FIT_QUEUE.expireInSeconds },
+      );
       if (!id) throw new Error(`the queue ${FIT_QUEUE.name} refused the job`);
       return id;
     },
@@ -55,10 +59,12 @@ export async function handleFitJob(db: Db, fitId: string, log: (m: string) => vo
     if (now - lastProgress < 1000) return;
     lastProgress = now;
     pending = Math.min(0.99, fraction);
-  }).catch(async (err: Error) => {
-    if (await failFit(db, fitId, attempt, err.message)) log(`fit ${fitId} failed: ${err.message}`);
-    return null;
-  }).finally(() => clearInterval(heartbeat));
+  })
+    .catch(async (err: Error) => {
+      if (await failFit(db, fitId, attempt, err.message)) log(`fit ${fitId} failed: ${err.message}`);
+      return null;
+    })
+    .finally(() => clearInterval(heartbeat));
   if (!result) return;
   const written = await db.transaction((tx) => writeFitResult(tx, fitId, attempt, result));
   if (!written) log(`fit ${fitId}: attempt ${attempt} was superseded; its result was discarded`);

@@ -91,7 +91,11 @@ const fitColumns = {
 
 export async function listFits(q: Queryable, groupId: string) {
   return q
-    .select({ ...fitColumns, peaks: sql<FitResult['peaks'] | null>`${peakFits.result} -> 'peaks'`, warnings: sql<FitResult['warnings'] | null>`${peakFits.result} -> 'warnings'` })
+    .select({
+      ...fitColumns,
+      peaks: sql<FitResult['peaks'] | null>`${peakFits.result} -> 'peaks'`,
+      warnings: sql<FitResult['warnings'] | null>`${peakFits.result} -> 'warnings'`,
+    })
     .from(peakFits)
     .leftJoin(cavityModels, eq(cavityModels.id, peakFits.modelId))
     .leftJoin(measuredTraces, eq(measuredTraces.id, peakFits.traceId))
@@ -121,7 +125,14 @@ export async function catalogueRowsOfFit(q: Queryable, fitId: string) {
  * Computed, non-bound poles of a model (any version, or one version), nearest in energy
  * first, at most 200 within `window` meV of `energy`.
  */
-export async function polesNear(q: Queryable, groupId: string, modelId: string, energy: number, window: number, modelVersionId?: string): Promise<CandidatePole[]> {
+export async function polesNear(
+  q: Queryable,
+  groupId: string,
+  modelId: string,
+  energy: number,
+  window: number,
+  modelVersionId?: string,
+): Promise<CandidatePole[]> {
   const conds = [
     eq(resonances.groupId, groupId),
     eq(resonances.modelId, modelId),

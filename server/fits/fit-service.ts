@@ -178,7 +178,9 @@ export class FitService {
       if (!run.energies || !run.transmission || !run.pairs)
         throw new ApiError(409, 'no_spectrum', 'This run has no computed spectrum yet (it is not finished, or computed none).');
       if (pair < 0 || pair >= run.pairs.length)
-        throw new ApiError(400, 'validation_failed', `The run's spectrum has ${run.pairs.length} lead pairs; pair ${pair} does not exist.`, [{ path: 'source.pair', message: 'no such lead pair' }]);
+        throw new ApiError(400, 'validation_failed', `The run's spectrum has ${run.pairs.length} lead pairs; pair ${pair} does not exist.`, [
+          { path: 'source.pair', message: 'no such lead pair' },
+        ]);
       const lo = Math.min(from, to);
       const hi = Math.max(from, to);
       const x: number[] = [];
@@ -189,7 +191,14 @@ export class FitService {
           y.push(run.transmission![pair][i]);
         }
       });
-      return { x, y, modelId: run.modelId, modelVersionId: run.modelVersionId, positionComparable: true, origin: `run ${runId.slice(0, 8)}, ${lo.toPrecision(6)}–${hi.toPrecision(6)} meV` };
+      return {
+        x,
+        y,
+        modelId: run.modelId,
+        modelVersionId: run.modelVersionId,
+        positionComparable: true,
+        origin: `run ${runId.slice(0, 8)}, ${lo.toPrecision(6)}–${hi.toPrecision(6)} meV`,
+      };
     }
     const trace = await findTrace(q, groupId, req.source.traceId);
     if (!trace) throw new ApiError(404, 'not_found', 'No such trace in this group.');
@@ -230,25 +239,37 @@ export class FitService {
    */
   async create(groupId: string, actorId: string, req: FitRequest): Promise<{ status: number; fit: Awaited<ReturnType<FitService['detail']>> }> {
     if (isThermal(req.lineshape) && !(req.temperatureMK && req.temperatureMK > 0))
-      throw new ApiError(400, 'validation_failed', 'A thermally broadened lineshape needs a temperature.', [{ path: 'temperatureMK', message: 'required above 0 mK for a thermal lineshape' }]);
+      throw new ApiError(400, 'validation_failed', 'A thermally broadened lineshape needs a temperature.', [
+        { path: 'temperatureMK', message: 'required above 0 mK for a thermal lineshape' },
+      ]);
     const inputs = await this.inputs(this.db, groupId, req);
     const p = (req.background === 'linear' ? 2 : 1) + req.peaks * (hasAsymmetry(req.lineshape) ? 4 : 3);
     if (inputs.x.length < p + 2)
-      throw new ApiError(400, 'too_few_points', `The chosen range holds ${inputs.x.length} points; ${p + 2} are needed for ${p} parameters. Widen the range or fit fewer peaks.`, [
-        { path: 'source', message: `${inputs.x.length} points in the range` },
-      ]);
+      throw new ApiError(
+        400,
+        'too_few_points',
+        `The chosen range holds ${inputs.x.length} points; ${p + 2} are needed for ${p} parameters. Widen the range or fit fewer peaks.`,
+        [{ path: 'source', message: `${inputs.x.length} points in the range` }],
+      );
     const small = fitCost(inputs.x.length, req) <= SMALL_FIT_COST || !this.queue;
     if (small) {
       let result: FitResult;
       try {
         result = await runFitInThread(this.task(inputs, req), () => {}, 60_000);
       } catch (err) {
-        if (err instanceof FitThreadError && err.badInput) throw new ApiError(400, 'validation_failed', err.message, [{ path: 'source', message: err.message }]);
+        if (err instanceof FitThreadError && err.badInput)
+          throw new ApiError(400, 'validation_failed', err.message, [{ path: 'source', message: err.message }]);
         throw err;
       }
       const id = await this.db.transaction(async (tx) => {
         const row = { id: await fitStore.create(tx, this.fitValues(groupId, actorId, req, inputs), true) };
-        await writeAudit(tx, { groupId, actorId, action: 'fit.created', subject: `${req.lineshape} fit of ${inputs.origin}`, details: { fitId: row.id, queued: false } });
+        await writeAudit(tx, {
+          groupId,
+          actorId,
+          action: 'fit.created',
+          subject: `${req.lineshape} fit of ${inputs.origin}`,
+          details: { fitId: row.id, queued: false },
+        });
         await writeFitResult(tx, row.id, 1, result);
         return row.id;
       });
@@ -256,7 +277,13 @@ export class FitService {
     }
     const id = await this.db.transaction(async (tx) => {
       const row = { id: await fitStore.create(tx, this.fitValues(groupId, actorId, req, inputs), false) };
-      await writeAudit(tx, { groupId, actorId, action: 'fit.created', subject: `${req.lineshape} fit of ${inputs.origin}`, details: { fitId: row.id, queued: true } });
+      await writeAudit(tx, {
+        groupId,
+        actorId,
+        action: 'fit.created',
+        subject: `${req.lineshape} fit of ${inputs.origin}`,
+        details: { fitId: row.id, queued: true },
+      });
       return row.id;
     });
     const jobId = await this.queue!.enqueue(id);
@@ -317,7 +344,15 @@ export async function writeFitResult(tx: Queryable, fitId: string, attempt: numb
   let positionComparable = true;
   let origin = '';
   if (fit.traceId) {
-    const [trace] = await tx.select({ selection: measuredTraces.selection, deviceName: measuredTraces.deviceName, fileName: measuredTraces.fileName, temperatureMK: measuredTraces.temperatureMK }).from(measuredTraces).where(eq(measuredTraces.id, fit.traceId));
+    const [trace] = await tx
+      .select({
+        selection: measuredTraces.selection,
+        deviceName: measuredTraces.deviceName,
+        fileName: measuredTraces.fileName,
+        temperatureMK: measuredTraces.temperatureMK,
+      })
+      .from(measuredTraces)
+      .where(eq(measuredTraces.id, fit.traceId));
     positionComparable = (trace?.selection as { xUnit?: string } | undefined)?.xUnit !== 'mV';
     origin = trace ? `trace "${trace.deviceName}" (${trace.fileName}, ${trace.temperatureMK} mK)` : 'a trace';
   } else if (req.source.kind === 'run') {
@@ -344,7 +379,12 @@ export async function writeFitResult(tx: Queryable, fitId: string, attempt: numb
   const mv = await modelVersionColumns(tx, versionId);
   if (!mv) return true;
   const physics = resonancePhysicsOfDocument(mv.document, { physics: mv.physics, hopping: mv.hoppingMeV });
-  const shapeWords: Record<Lineshape, string> = { bw: 'Breit–Wigner', fano: 'Fano', thermal: 'thermally broadened Breit–Wigner', 'thermal-fano': 'thermally broadened Fano' };
+  const shapeWords: Record<Lineshape, string> = {
+    bw: 'Breit–Wigner',
+    fano: 'Fano',
+    thermal: 'thermally broadened Breit–Wigner',
+    'thermal-fano': 'thermally broadened Fano',
+  };
   for (let k = 0; k < result.peaks.length; k++) {
     const pk = result.peaks[k];
     const cmp = comparison[k];

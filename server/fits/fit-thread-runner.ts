@@ -3,7 +3,10 @@ import type { FitResult } from '../../shared/engine/fit.js';
 import type { FitTask, FitThreadMessage } from './fit-thread.js';
 
 export class FitThreadError extends Error {
-  constructor(message: string, readonly badInput: boolean) {
+  constructor(
+    message: string,
+    readonly badInput: boolean,
+  ) {
     super(message);
     this.name = 'FitThreadError';
   }
@@ -21,7 +24,10 @@ export function runFitInThread(task: FitTask, onProgress: (fraction: number) => 
       void worker.terminate();
       fn();
     };
-    const timer = setTimeout(() => finish(() => reject(new FitThreadError(`the fit took longer than ${Math.round(timeoutMs / 1000)} s and was stopped`, false))), timeoutMs);
+    const timer = setTimeout(
+      () => finish(() => reject(new FitThreadError(`the fit took longer than ${Math.round(timeoutMs / 1000)} s and was stopped`, false))),
+      timeoutMs,
+    );
     worker.on('message', (msg: FitThreadMessage) => {
       if (msg.type === 'progress') onProgress(msg.fraction);
       else if (msg.type === 'result') finish(() => resolve(msg.result));

@@ -12,9 +12,7 @@ export interface FitTask {
 }
 
 export type FitThreadMessage =
-  | { type: 'progress'; fraction: number }
-  | { type: 'result'; result: FitResult }
-  | { type: 'error'; message: string; badInput: boolean };
+  { type: 'progress'; fraction: number } | { type: 'result'; result: FitResult } | { type: 'error'; message: string; badInput: boolean };
 
 const port = parentPort!;
 try {
@@ -31,5 +29,9 @@ try {
   });
   port.postMessage({ type: 'result', result } satisfies FitThreadMessage);
 } catch (err) {
-  port.postMessage({ type: 'error', message: err instanceof Error ? err.message : String(err), badInput: err instanceof FitInputError } satisfies FitThreadMessage);
+  port.postMessage({
+    type: 'error',
+    message: err instanceof Error ? err.message : String(err),
+    badInput: err instanceof FitInputError,
+  } satisfies FitThreadMessage);
 }

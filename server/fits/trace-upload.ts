@@ -26,7 +26,10 @@ export function traceUpload(): RequestHandler {
         return next(new ApiError(400, 'validation_failed', `The upload was refused: ${err.message}.`, [{ path: err.field ?? 'file', message: err.message }]));
       }
       if (err) return next(err);
-      if (!req.file) return next(new ApiError(400, 'validation_failed', 'Attach the trace as a CSV or TSV file in the field "file".', [{ path: 'file', message: 'missing' }]));
+      if (!req.file)
+        return next(
+          new ApiError(400, 'validation_failed', 'Attach the trace as a CSV or TSV file in the field "file".', [{ path: 'file', message: 'missing' }]),
+        );
       if (!TEXT_TYPES.test(req.file.mimetype))
         return next(new ApiError(415, 'unsupported_media_type', `A ${req.file.mimetype} file is not a CSV or TSV table. Nothing was stored.`));
       next();

@@ -31,15 +31,14 @@ export async function membersOf(q: Queryable, groupId: string): Promise<Member[]
  * transaction, so two admins demoting each other at once cannot leave no admin.
  */
 export async function lockMemberships(q: Queryable, groupId: string) {
-  return q
-    .select({ userId: memberships.userId, role: memberships.role })
-    .from(memberships)
-    .where(eq(memberships.groupId, groupId))
-    .for('update');
+  return q.select({ userId: memberships.userId, role: memberships.role }).from(memberships).where(eq(memberships.groupId, groupId)).for('update');
 }
 
 export async function setMemberRole(q: Queryable, groupId: string, userId: string, role: MembershipRole): Promise<void> {
-  await q.update(memberships).set({ role }).where(and(eq(memberships.groupId, groupId), eq(memberships.userId, userId)));
+  await q
+    .update(memberships)
+    .set({ role })
+    .where(and(eq(memberships.groupId, groupId), eq(memberships.userId, userId)));
 }
 
 export async function deleteMembership(q: Queryable, groupId: string, userId: string): Promise<void> {

@@ -4,7 +4,12 @@
  * starting, too many connections. Drizzle wraps the driver's error in `cause`.
  */
 const outageCodes = new Set(['ECONNREFUSED', 'ECONNRESET', 'ETIMEDOUT', 'EPIPE', 'EHOSTUNREACH', 'ENOTFOUND', '57P01', '57P02', '57P03', '53300']);
-const outageMessages = [/Connection terminated/i, /timeout exceeded when trying to connect/i, /Client has encountered a connection error/i, /the database system is (starting up|shutting down)/i];
+const outageMessages = [
+  /Connection terminated/i,
+  /timeout exceeded when trying to connect/i,
+  /Client has encountered a connection error/i,
+  /the database system is (starting up|shutting down)/i,
+];
 
 export function isDatabaseOutage(err: unknown): boolean {
   for (let e = err, depth = 0; e && depth < 6; e = (e as { cause?: unknown }).cause, depth++) {

@@ -57,7 +57,11 @@ export function errorHandler(log: (msg: string, err: unknown) => void = console.
       // Not a bug: the database is down or restarting. Nothing was half-written (each
       // change is one transaction); the client may simply try again.
       log(`[poleward] ${req.method} ${req.originalUrl}: database unavailable:`, (err as Error)?.message ?? err);
-      problem = new ApiError(503, 'database_unavailable', `The database cannot be reached right now; nothing was changed. Try again in ${outageRetrySeconds} seconds.`);
+      problem = new ApiError(
+        503,
+        'database_unavailable',
+        `The database cannot be reached right now; nothing was changed. Try again in ${outageRetrySeconds} seconds.`,
+      );
       if (!res.headersSent) res.setHeader('Retry-After', String(outageRetrySeconds));
     } else {
       log(`[poleward] ${req.method} ${req.originalUrl} failed:`, err);

@@ -49,11 +49,8 @@ export type Wire<T> = T extends string
 type Awaitable<T> = T | Promise<T>;
 
 /** What the handler of route D returns: the answer for JSON routes, nothing when it writes the answer itself. */
-export type HandlerResult<D extends RouteDeclaration> = D['answer'] extends JsonAnswer<infer S>
-  ? Wire<z.input<S>> | WithStatus<Wire<z.input<S>>>
-  : D['answer'] extends EmptyAnswer | MediaAnswer
-    ? void
-    : never;
+export type HandlerResult<D extends RouteDeclaration> =
+  D['answer'] extends JsonAnswer<infer S> ? Wire<z.input<S>> | WithStatus<Wire<z.input<S>>> : D['answer'] extends EmptyAnswer | MediaAnswer ? void : never;
 
 export type RouteHandler<D extends RouteDeclaration> = (input: RouteInput<D>, req: Request, res: Response) => Awaitable<HandlerResult<D>>;
 
@@ -100,7 +97,10 @@ export function mountRoute<const D extends RouteDeclaration>(router: Router, rou
       if (status !== answer.status && !answer.alsoStatus?.includes(status)) {
         throw new Error(`${route.id} answered ${status}, which its declaration does not list`);
       }
-      res.status(status).type('application/json').send(checkedJson(route, answer.schema, body, log));
+      res
+        .status(status)
+        .type('application/json')
+        .send(checkedJson(route, answer.schema, body, log));
     } else if (answer.kind === 'empty') {
       if (!res.headersSent) res.status(answer.status).end();
     }

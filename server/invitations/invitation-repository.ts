@@ -80,5 +80,8 @@ export async function invitationByTokenHash(q: Queryable, tokenHash: string, loc
 }
 
 export async function markInvitationAccepted(q: Queryable, id: string): Promise<void> {
-  await q.update(invitations).set({ acceptedAt: sql`now()` }).where(eq(invitations.id, id));
+  await q
+    .update(invitations)
+    .set({ acceptedAt: sql`now()` })
+    .where(eq(invitations.id, id));
 }

@@ -7,13 +7,7 @@ import { mountRoute } from '../http/mount-route.js';
 import type { InvitationService } from './invitation-service.js';
 
 /** The public side of invitations: the link's landing page and its accept button. */
-export function invitationRoutes(d: {
-  db: Db;
-  invitations: InvitationService;
-  jwtSecret: string;
-  secureCookies: boolean;
-  linkLimit: AttemptLimit;
-}): Router {
+export function invitationRoutes(d: { db: Db; invitations: InvitationService; jwtSecret: string; secureCookies: boolean; linkLimit: AttemptLimit }): Router {
   const sessions = new SessionService(d.db, { jwtSecret: d.jwtSecret, secureCookies: d.secureCookies });
   const router = Router();
 

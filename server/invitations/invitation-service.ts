@@ -94,7 +94,11 @@ export class InvitationService {
     try {
       await mailer.send(invitationMail({ to: address, inviterName: actor.name, groupName: group.groupName, role, link, expiresAt }));
     } catch (err) {
-      throw new ApiError(502, 'mail_failed', `The invitation was saved but the e-mail to ${address} could not be sent (${(err as Error).message}); invite again to retry.`);
+      throw new ApiError(
+        502,
+        'mail_failed',
+        `The invitation was saved but the e-mail to ${address} could not be sent (${(err as Error).message}); invite again to retry.`,
+      );
     }
     return {
       id: row.id,

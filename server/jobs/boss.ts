@@ -37,7 +37,11 @@ export interface RunQueue {
 /** Sends one run's job with its queue's policy; `options.db` sends it inside a transaction. */
 export async function sendRunJob(boss: PgBoss, kind: RunKind, runId: string, options: PgBoss.ConnectionOptions = {}): Promise<string> {
   const spec = RUN_QUEUES[kind];
-  const id = await boss.send(spec.name, { runId }, { retryLimit: spec.retryLimit, retryDelay: spec.retryDelaySeconds, expireInSeconds: spec.expireInSeconds, ...options });
+  const id = await boss.send(
+    spec.name,
+    { runId },
+    { retryLimit: spec.retryLimit, retryDelay: spec.retryDelaySeconds, expireInSeconds: spec.expireInSeconds, ...options },
+  );
   if (!id) throw new Error(`the queue ${spec.name} refused the job`);
   return id;
 }

@@ -82,7 +82,7 @@ export const POOL_MIN_SITES = 2000;
  * Cavities under POOL_MIN_SITES sites are searched on this thread.
  */
 export async function runEngineTaskWithPool(task: EngineTask, control: WorkControl = {}): Promise<EngineTaskResult> {
-  const threads = task.kind === 'pole-search' ? task.threads ?? 1 : 1;
+  const threads = task.kind === 'pole-search' ? (task.threads ?? 1) : 1;
   if (task.kind !== 'pole-search' || threads <= 1) return runEngineTask(task, control);
   const ctx = startTask(task);
   if (ctx.op.n < POOL_MIN_SITES) return finishTask(ctx, { ...task, threads: 1 }, findPoles(ctx.op, task.window, poleOptions(task, control)), control);

@@ -75,7 +75,11 @@ async function sendAgain(o: FitSupervisorOptions, tx: Queryable, fit: FitRef, re
     report.failed++;
     return;
   }
-  const jobId = await o.boss.send(FIT_QUEUE.name, { fitId: fit.id }, { retryLimit: FIT_QUEUE.retryLimit, retryDelay: FIT_QUEUE.retryDelaySeconds, expireInSeconds: FIT_QUEUE.expireInSeconds, db: bossDb(tx) });
+  const jobId = await o.boss.send(
+    FIT_QUEUE.name,
+    { fitId: fit.id },
+    { retryLimit: FIT_QUEUE.retryLimit, retryDelay: FIT_QUEUE.retryDelaySeconds, expireInSeconds: FIT_QUEUE.expireInSeconds, db: bossDb(tx) },
+  );
   if (!jobId) throw new Error(`the queue ${FIT_QUEUE.name} refused the job`);
   await fitStore.attachJob(tx, fit.id, jobId, true);
   o.log?.(`fit ${fit.id}: its queue job had ended; sent again as job ${jobId}`);

@@ -73,7 +73,11 @@ async function sendAgain(o: ModeMapSupervisorOptions, tx: Queryable, map: ModeMa
     return;
   }
   const q = MODE_MAP_QUEUE;
-  const jobId = await o.boss.send(q.name, { mapId: map.id }, { retryLimit: q.retryLimit, retryDelay: q.retryDelaySeconds, expireInSeconds: q.expireInSeconds, db: bossDb(tx) });
+  const jobId = await o.boss.send(
+    q.name,
+    { mapId: map.id },
+    { retryLimit: q.retryLimit, retryDelay: q.retryDelaySeconds, expireInSeconds: q.expireInSeconds, db: bossDb(tx) },
+  );
   if (!jobId) throw new Error(`the queue ${q.name} refused the job`);
   await modeMapStore.attachJob(tx, map.id, jobId, true);
   o.log?.(`map ${map.id}: its queue job had ended; sent again as job ${jobId}`);

@@ -25,7 +25,10 @@ port.on('message', (msg: PoolRequest) => {
   try {
     if (msg.kind === 'nodes') {
       const answers = work.nodesSync(msg.requests);
-      port.postMessage({ id: msg.id, kind: 'nodes', answers } satisfies PoolReply, answers.map((a) => a.probed.buffer as ArrayBuffer));
+      port.postMessage(
+        { id: msg.id, kind: 'nodes', answers } satisfies PoolReply,
+        answers.map((a) => a.probed.buffer as ArrayBuffer),
+      );
     } else {
       const answers = work.refineSync(msg.requests);
       const transfer: ArrayBuffer[] = [];

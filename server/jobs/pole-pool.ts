@@ -64,7 +64,10 @@ export class PoleThreadPool implements PoleWork {
   }
 
   async refine(requests: RefineRequest[]): Promise<RefineOutcome[]> {
-    const answers = await this.spread(requests.map((r) => [r]), (id, chunk): PoolRequest => ({ id, kind: 'refine', requests: chunk }));
+    const answers = await this.spread(
+      requests.map((r) => [r]),
+      (id, chunk): PoolRequest => ({ id, kind: 'refine', requests: chunk }),
+    );
     return answers.flatMap((a) => (a.kind === 'refine' ? a.answers : []));
   }
 

@@ -98,7 +98,9 @@ export async function handleRunJob(deps: RunJobDeps, job: RunJobInfo): Promise<R
     const message = err instanceof Error ? err.message : String(err);
     const final = (err instanceof EngineTaskError && err.invalidModel) || job.retryCount >= job.retryLimit || attempt > job.retryLimit;
     const ended = await db.transaction(async (tx) => {
-      const owned = final ? await runStore.fail(tx, run.id, message, attempt) : await runStore.retry(tx, run.id, attempt, `attempt ${attempt} failed, retrying: ${message}`);
+      const owned = final
+        ? await runStore.fail(tx, run.id, message, attempt)
+        : await runStore.retry(tx, run.id, attempt, `attempt ${attempt} failed, retrying: ${message}`);
       if (!owned) return false;
       if (final) {
         await writeAudit(tx, { groupId: run.groupId, actorId: run.createdBy, action: 'run.failed', subject, details: { runId: run.id, error: message } });
@@ -127,10 +129,14 @@ export async function handleRunJob(deps: RunJobDeps, job: RunJobInfo): Promise<R
     const p = pending;
     pending = null;
     const row = await runStore.beat(db, run.id, attempt, p);
-    if (!row) abort.abort(); // another attempt took over this run, or the supervisor gave it up
+    if (!row)
+      abort.abort(); // another attempt took over this run, or the supervisor gave it up
     else if (row.cancelRequested) abort.abort();
   };
-  const progressTimer = setInterval(() => void beat().catch((e) => log(`heartbeat failed: ${e.message}`)), Math.min(1000, (deps.heartbeatSeconds ?? HEARTBEAT_SECONDS) * 1000));
+  const progressTimer = setInterval(
+    () => void beat().catch((e) => log(`heartbeat failed: ${e.message}`)),
+    Math.min(1000, (deps.heartbeatSeconds ?? HEARTBEAT_SECONDS) * 1000),
+  );
 
   let result: EngineTaskResult;
   let ctx: RunContext;
@@ -165,7 +171,12 @@ export async function handleRunJob(deps: RunJobDeps, job: RunJobInfo): Promise<R
     const task: EngineTask =
       run.kind === 'transmission'
         ? { kind: 'transmission', document: mv.document, window: { emin: w.emin, emax: w.emax, points: w.points } }
-        : { kind: 'pole-search', document: mv.document, window: { emin: w.emin, emax: w.emax, gammaMax: w.gammaMax }, spectrumPoints: POLE_SEARCH_SPECTRUM_POINTS };
+        : {
+            kind: 'pole-search',
+            document: mv.document,
+            window: { emin: w.emin, emax: w.emax, gammaMax: w.gammaMax },
+            spectrumPoints: POLE_SEARCH_SPECTRUM_POINTS,
+          };
     ctx = {
       runId: run.id,
       groupId: run.groupId,

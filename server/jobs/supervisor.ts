@@ -74,52 +74,56 @@ export async function superviseRuns(o: Omit<SupervisorOptions, 'intervalSeconds'
   const lost = await o.db.execute<{ id: string }>(sql`
     select id from runs where status = 'running' and heartbeat_at < now() - make_interval(secs => ${stale}) and ${scope}`);
   for (const { id } of lost.rows) {
-    await guarded(o, id, () => o.db.transaction(async (tx) => {
-      const lostRun = await runStore.requeueLost(tx, id, stale, o.startup ? INTERRUPTED_NOTE : undefined);
-      if (!lostRun) return; // another supervisor, or the attempt itself, got there first
-      const run: RunRef = { id: lostRun.id, job_id: lostRun.jobId, kind: lostRun.kind as RunKind, attempt: lostRun.attempt };
-      report.handedOn++;
-      const queue = RUN_QUEUES[run.kind]?.name;
-      if (!queue) return;
-      const failed = run.job_id ? jobsAffected(await o.boss.fail(queue, run.job_id, { reason: 'worker lost' }, { db: bossDb(tx) })) : 0;
-      if (failed === 0) {
-        await replaceJob(o, tx, run, report, 'its queue job had already ended');
-        return;
-      }
-      const job = await o.boss.getJobById(queue, run.job_id!, { db: bossDb(tx), includeArchive: false });
-      if (job?.state === 'failed') {
-        await failRun(tx, run.id, `the run's worker was lost on every attempt (${run.attempt})`);
-        report.failed++;
-        o.log?.(`run ${run.id}: worker lost during attempt ${run.attempt}; no retries left, the run failed`);
-      } else if (o.startup) {
-        o.log?.(`run ${run.id}: interrupted during attempt ${run.attempt} by the previous shutdown; queued again`);
-      } else {
-        o.log?.(`run ${run.id}: worker lost during attempt ${run.attempt}; job ${run.job_id} will be retried`);
-      }
-    }));
+    await guarded(o, id, () =>
+      o.db.transaction(async (tx) => {
+        const lostRun = await runStore.requeueLost(tx, id, stale, o.startup ? INTERRUPTED_NOTE : undefined);
+        if (!lostRun) return; // another supervisor, or the attempt itself, got there first
+        const run: RunRef = { id: lostRun.id, job_id: lostRun.jobId, kind: lostRun.kind as RunKind, attempt: lostRun.attempt };
+        report.handedOn++;
+        const queue = RUN_QUEUES[run.kind]?.name;
+        if (!queue) return;
+        const failed = run.job_id ? jobsAffected(await o.boss.fail(queue, run.job_id, { reason: 'worker lost' }, { db: bossDb(tx) })) : 0;
+        if (failed === 0) {
+          await replaceJob(o, tx, run, report, 'its queue job had already ended');
+          return;
+        }
+        const job = await o.boss.getJobById(queue, run.job_id!, { db: bossDb(tx), includeArchive: false });
+        if (job?.state === 'failed') {
+          await failRun(tx, run.id, `the run's worker was lost on every attempt (${run.attempt})`);
+          report.failed++;
+          o.log?.(`run ${run.id}: worker lost during attempt ${run.attempt}; no retries left, the run failed`);
+        } else if (o.startup) {
+          o.log?.(`run ${run.id}: interrupted during attempt ${run.attempt} by the previous shutdown; queued again`);
+        } else {
+          o.log?.(`run ${run.id}: worker lost during attempt ${run.attempt}; job ${run.job_id} will be retried`);
+        }
+      }),
+    );
   }
 
   const waiting = await o.db.execute<{ id: string }>(sql`
     select id from runs where status = 'queued' and created_at < now() - make_interval(secs => ${stale}) and ${scope}`);
   for (const { id } of waiting.rows) {
-    await guarded(o, id, () => o.db.transaction(async (tx) => {
-      const locked = await tx.execute<RunRef>(sql`
+    await guarded(o, id, () =>
+      o.db.transaction(async (tx) => {
+        const locked = await tx.execute<RunRef>(sql`
         select id, job_id, kind, attempt from runs where id = ${id} and status = 'queued' for update skip locked`);
-      const run = locked.rows[0];
-      if (!run) return;
-      const queue = RUN_QUEUES[run.kind]?.name;
-      if (!queue) return;
-      const job = run.job_id ? await o.boss.getJobById(queue, run.job_id, { db: bossDb(tx), includeArchive: true }) : null;
-      if (!job || finishedJobStates.has(job.state)) {
-        await replaceJob(o, tx, run, report, job ? `its queue job had ${job.state}` : 'it had no queue job');
-        return;
-      }
-      if (job.state === 'active' && job.startedOn && Date.now() - new Date(job.startedOn).getTime() > stale * 1000) {
-        // Fetched but never claimed: the fetching worker died in between.
-        await o.boss.fail(queue, job.id, { reason: 'fetched but never started' }, { db: bossDb(tx) });
-        o.log?.(`run ${run.id}: job ${job.id} was fetched but never started; it will be retried`);
-      }
-    }));
+        const run = locked.rows[0];
+        if (!run) return;
+        const queue = RUN_QUEUES[run.kind]?.name;
+        if (!queue) return;
+        const job = run.job_id ? await o.boss.getJobById(queue, run.job_id, { db: bossDb(tx), includeArchive: true }) : null;
+        if (!job || finishedJobStates.has(job.state)) {
+          await replaceJob(o, tx, run, report, job ? `its queue job had ${job.state}` : 'it had no queue job');
+          return;
+        }
+        if (job.state === 'active' && job.startedOn && Date.now() - new Date(job.startedOn).getTime() > stale * 1000) {
+          // Fetched but never claimed: the fetching worker died in between.
+          await o.boss.fail(queue, job.id, { reason: 'fetched but never started' }, { db: bossDb(tx) });
+          o.log?.(`run ${run.id}: job ${job.id} was fetched but never started; it will be retried`);
+        }
+      }),
+    );
   }
   return report;
 }

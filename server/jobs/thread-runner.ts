@@ -3,7 +3,10 @@ import type { EngineTask, EngineTaskResult } from './engine-task.js';
 import type { ThreadMessage } from './engine-thread.js';
 
 export class EngineTaskError extends Error {
-  constructor(message: string, readonly invalidModel: boolean) {
+  constructor(
+    message: string,
+    readonly invalidModel: boolean,
+  ) {
     super(message);
     this.name = 'EngineTaskError';
   }
@@ -21,11 +24,7 @@ export class EngineTaskCancelled extends Error {
  * bootstrap, so it works the same under npm start, vitest and plain node).
  * `signal` terminates the thread at once.
  */
-export function runInThread(
-  task: EngineTask,
-  onProgress: (stage: string, fraction: number) => void,
-  signal?: AbortSignal,
-): Promise<EngineTaskResult> {
+export function runInThread(task: EngineTask, onProgress: (stage: string, fraction: number) => void, signal?: AbortSignal): Promise<EngineTaskResult> {
   return new Promise((resolve, reject) => {
     const worker = new Worker(new URL('./engine-thread-bootstrap.mjs', import.meta.url), { workerData: task });
     let settled = false;

@@ -61,7 +61,10 @@ export function startWorkerLoop(o: WorkerLoopOptions): { stop: () => Promise<voi
         if (!job) continue;
         worked = true;
         const settle: JobSettler = async (tx, how, output) => {
-          const r = how === 'complete' ? await o.boss.complete(queue, job.id, output, { db: bossDb(tx) }) : await o.boss.fail(queue, job.id, output, { db: bossDb(tx) });
+          const r =
+            how === 'complete'
+              ? await o.boss.complete(queue, job.id, output, { db: bossDb(tx) })
+              : await o.boss.fail(queue, job.id, output, { db: bossDb(tx) });
           if (jobsAffected(r) === 0) log(`run ${job.data.runId}: job ${job.id} was no longer active when its attempt ended`);
         };
         try {

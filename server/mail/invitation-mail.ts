@@ -2,14 +2,7 @@ import { escapeHtml } from './escape-html.js';
 import type { MailMessage } from './mailer.js';
 
 /** The invitation e-mail; the link carries the one-time token. */
-export function invitationMail(p: {
-  to: string;
-  inviterName: string;
-  groupName: string;
-  role: string;
-  link: string;
-  expiresAt: Date;
-}): MailMessage {
+export function invitationMail(p: { to: string; inviterName: string; groupName: string; role: string; link: string; expiresAt: Date }): MailMessage {
   const until = p.expiresAt.toUTCString();
   return {
     to: p.to,

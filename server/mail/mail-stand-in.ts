@@ -39,7 +39,10 @@ export function startMailStandIn(opts: { port: number; db: Db; host?: string }):
             htmlBody: typeof mail.html === 'string' ? mail.html : null,
           }),
         )
-        .then(() => callback(), (err: Error) => callback(err));
+        .then(
+          () => callback(),
+          (err: Error) => callback(err),
+        );
     },
   });
   return new Promise((resolve, reject) => {

@@ -4,8 +4,7 @@ import type { MailMessage } from './mailer.js';
 /** The password-reset e-mail; the link works once, for one hour. */
 export function passwordResetMail(p: { to: string; name: string; link: string }): MailMessage {
   const consequence =
-    'Choosing a new password signs out every session of your account and revokes your personal API tokens; ' +
-    'scripts and notebooks then need a new token.';
+    'Choosing a new password signs out every session of your account and revokes your personal API tokens; ' + 'scripts and notebooks then need a new token.';
   return {
     to: p.to,
     subject: 'Reset your Poleward password',

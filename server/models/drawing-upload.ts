@@ -15,15 +15,21 @@ const upload = multer({
 function uploadProblem(err: multer.MulterError): ApiError {
   switch (err.code) {
     case 'LIMIT_FILE_SIZE':
-      return new ApiError(413, 'payload_too_large', `The drawing is larger than ${MAX_DRAWING_BYTES / 1024 / 1024} MiB; save it smaller (a black-and-white PNG of the outline is enough).`, [
-        { path: 'file', message: `larger than ${MAX_DRAWING_BYTES} bytes` },
-      ]);
+      return new ApiError(
+        413,
+        'payload_too_large',
+        `The drawing is larger than ${MAX_DRAWING_BYTES / 1024 / 1024} MiB; save it smaller (a black-and-white PNG of the outline is enough).`,
+        [{ path: 'file', message: `larger than ${MAX_DRAWING_BYTES} bytes` }],
+      );
     case 'LIMIT_FILE_COUNT':
       return new ApiError(400, 'validation_failed', 'Upload one drawing at a time, in the field "file".', [{ path: 'file', message: 'more than one file' }]);
     case 'LIMIT_UNEXPECTED_FILE':
-      return new ApiError(400, 'validation_failed', `The upload has a file in the field "${err.field ?? '?'}"; send the drawing in the field "file", and only one file.`, [
-        { path: err.field ?? 'file', message: 'unexpected file field' },
-      ]);
+      return new ApiError(
+        400,
+        'validation_failed',
+        `The upload has a file in the field "${err.field ?? '?'}"; send the drawing in the field "file", and only one file.`,
+        [{ path: err.field ?? 'file', message: 'unexpected file field' }],
+      );
     case 'LIMIT_FIELD_VALUE':
     case 'LIMIT_FIELD_KEY':
     case 'LIMIT_FIELD_COUNT':

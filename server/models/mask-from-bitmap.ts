@@ -31,9 +31,12 @@ export function checkDrawingHeader(file: Uint8Array): { width: number; height: n
     throw new ApiError(400, 'validation_failed', `The PNG declares a ${width}×${height} image; it has no pixels.`, [{ path: 'file', message: 'empty image' }]);
   }
   if (width > MAX_DRAWING_SIDE || height > MAX_DRAWING_SIDE || width * height > MAX_DRAWING_PIXELS) {
-    throw new ApiError(413, 'image_too_large', `The drawing is ${width}×${height} pixels; at most ${MAX_DRAWING_SIDE}×${MAX_DRAWING_SIDE} are accepted. Scale it down and upload it again.`, [
-      { path: 'file', message: `image larger than ${MAX_DRAWING_SIDE}×${MAX_DRAWING_SIDE} pixels` },
-    ]);
+    throw new ApiError(
+      413,
+      'image_too_large',
+      `The drawing is ${width}×${height} pixels; at most ${MAX_DRAWING_SIDE}×${MAX_DRAWING_SIDE} are accepted. Scale it down and upload it again.`,
+      [{ path: 'file', message: `image larger than ${MAX_DRAWING_SIDE}×${MAX_DRAWING_SIDE} pixels` }],
+    );
   }
   return header;
 }
@@ -51,9 +54,12 @@ export function maskFromBitmap(file: Buffer, spacingNm: number, widthNm: number,
   const nx = Math.round(widthNm / spacingNm);
   const ny = Math.round((widthNm * header.height) / header.width / spacingNm);
   if (nx < 3 || ny < 3) {
-    throw new ApiError(400, 'validation_failed', `At ${spacingNm} nm spacing a ${widthNm} nm wide drawing gives a ${nx}×${ny} grid; it needs at least 3×3 sites.`, [
-      { path: 'widthNm', message: 'too small for this spacing' },
-    ]);
+    throw new ApiError(
+      400,
+      'validation_failed',
+      `At ${spacingNm} nm spacing a ${widthNm} nm wide drawing gives a ${nx}×${ny} grid; it needs at least 3×3 sites.`,
+      [{ path: 'widthNm', message: 'too small for this spacing' }],
+    );
   }
   if (nx * ny > maxSites * 2.5) {
     throw new ApiError(400, 'validation_failed', `A ${nx}×${ny} grid is too large; use a coarser spacing or a smaller width.`, [

@@ -15,11 +15,13 @@ export async function backfillDerivedFigures(db: NodePgDatabase<Record<string, u
   let filled = 0;
   const skippedIds = new Set<string>();
   for (;;) {
-    const rows = (await db
-      .select({ id: modelVersions.id, document: modelVersions.document, siteCount: modelVersions.siteCount })
-      .from(modelVersions)
-      .where(isNull(modelVersions.derived))
-      .limit(batch + skippedIds.size)).filter((r) => !skippedIds.has(r.id));
+    const rows = (
+      await db
+        .select({ id: modelVersions.id, document: modelVersions.document, siteCount: modelVersions.siteCount })
+        .from(modelVersions)
+        .where(isNull(modelVersions.derived))
+        .limit(batch + skippedIds.size)
+    ).filter((r) => !skippedIds.has(r.id));
     if (rows.length === 0) return { filled, skipped: skippedIds.size };
     for (const r of rows) {
       const figures = figuresOfStored(r.document, r.siteCount);

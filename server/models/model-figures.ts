@@ -158,7 +158,10 @@ export function shapeFamily(shape: Shape): string {
 }
 
 function maskBox(mask: Uint8Array, nx: number, ny: number) {
-  let imin = nx, imax = -1, jmin = ny, jmax = -1;
+  let imin = nx,
+    imax = -1,
+    jmin = ny,
+    jmax = -1;
   for (let i = 0; i < nx; i++) {
     for (let j = 0; j < ny; j++) {
       if (!mask[i * ny + j]) continue;

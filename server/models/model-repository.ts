@@ -45,7 +45,10 @@ export async function listModels(q: Queryable, groupId: string, f: ModelListFilt
     .innerJoin(modelVersions, and(eq(modelVersions.modelId, cavityModels.id), eq(modelVersions.version, cavityModels.latestVersion)))
     .leftJoin(users, eq(users.id, cavityModels.createdBy))
     .where(where);
-  const rows = await base.orderBy(desc(cavityModels.updatedAt)).limit(f.pageSize).offset((f.page - 1) * f.pageSize);
+  const rows = await base
+    .orderBy(desc(cavityModels.updatedAt))
+    .limit(f.pageSize)
+    .offset((f.page - 1) * f.pageSize);
   const [{ total }] = await q
     .select({ total: count() })
     .from(cavityModels)
@@ -114,10 +117,7 @@ export async function listVersions(q: Queryable, groupId: string, modelId: strin
 }
 
 export async function insertModel(q: Queryable, groupId: string, userId: string, name: string, referenceKey: string | null) {
-  const [row] = await q
-    .insert(cavityModels)
-    .values({ groupId, name, createdBy: userId, referenceKey, latestVersion: 1 })
-    .returning({ id: cavityModels.id });
+  const [row] = await q.insert(cavityModels).values({ groupId, name, createdBy: userId, referenceKey, latestVersion: 1 }).returning({ id: cavityModels.id });
   return row.id;
 }
 
@@ -130,10 +130,7 @@ export async function insertVersion(
   checked: Pick<CheckedModel, 'model' | 'columns' | 'derived'>,
 ) {
   await q.insert(modelVersions).values({ groupId, modelId, version, createdBy: userId, document: checked.model, derived: checked.derived, ...checked.columns });
-  await q
-    .update(cavityModels)
-    .set({ latestVersion: version, updatedAt: new Date() })
-    .where(eq(cavityModels.id, modelId));
+  await q.update(cavityModels).set({ latestVersion: version, updatedAt: new Date() }).where(eq(cavityModels.id, modelId));
 }
 
 /** Locks the model row so two concurrent edits cannot both write version n+1. */

@@ -15,7 +15,11 @@ export function modeMapQueue(boss: PgBoss): ModeMapQueue {
   return {
     async enqueue(mapId) {
       const q = MODE_MAP_QUEUE;
-      const id = await boss.send(q.name, { mapId } satisfies ModeMapJobData, { retryLimit: q.retryLimit, retryDelay: q.retryDelaySeconds, expireInSeconds: q.expireInSeconds });
+      const id = await boss.send(q.name, { mapId } satisfies ModeMapJobData, {
+        retryLimit: q.retryLimit,
+        retryDelay: q.retryDelaySeconds,
+        expireInSeconds: q.expireInSeconds,
+      });
       if (!id) throw new Error(`the queue ${q.name} refused the job`);
       return id;
     },

@@ -38,12 +38,18 @@ export async function findResonanceForMap(q: Queryable, groupId: string, resonan
 }
 
 export async function findMap(q: Queryable, groupId: string, id: string) {
-  const [row] = await q.select().from(modeMaps).where(and(eq(modeMaps.id, id), eq(modeMaps.groupId, groupId)));
+  const [row] = await q
+    .select()
+    .from(modeMaps)
+    .where(and(eq(modeMaps.id, id), eq(modeMaps.groupId, groupId)));
   return row ?? null;
 }
 
 export async function findMapByKey(q: Queryable, groupId: string, cacheKey: string) {
-  const [row] = await q.select().from(modeMaps).where(and(eq(modeMaps.groupId, groupId), eq(modeMaps.cacheKey, cacheKey)));
+  const [row] = await q
+    .select()
+    .from(modeMaps)
+    .where(and(eq(modeMaps.groupId, groupId), eq(modeMaps.cacheKey, cacheKey)));
   return row ?? null;
 }
 

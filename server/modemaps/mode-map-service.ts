@@ -34,14 +34,19 @@ function canonical(value: unknown): string {
   if (Array.isArray(value)) return `[${value.map(canonical).join(',')}]`;
   if (value && typeof value === 'object') {
     const entries = Object.entries(value as Record<string, unknown>).filter(([, v]) => v !== undefined);
-    return `{${entries.sort(([a], [b]) => a.localeCompare(b)).map(([k, v]) => `${JSON.stringify(k)}:${canonical(v)}`).join(',')}}`;
+    return `{${entries
+      .sort(([a], [b]) => a.localeCompare(b))
+      .map(([k, v]) => `${JSON.stringify(k)}:${canonical(v)}`)
+      .join(',')}}`;
   }
   return JSON.stringify(value);
 }
 
 /** The cache key of a map: equal requests of one model version and engine give equal keys. */
 export function modeMapCacheKey(engineVersion: string, modelVersionId: string, params: Record<string, unknown>): string {
-  return createHash('sha256').update(canonical({ engine: engineVersion, modelVersionId, ...params })).digest('hex');
+  return createHash('sha256')
+    .update(canonical({ engine: engineVersion, modelVersionId, ...params }))
+    .digest('hex');
 }
 
 function mapNotFound(): ApiError {

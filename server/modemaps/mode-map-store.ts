@@ -25,7 +25,12 @@ export const MODE_MAP_TRANSITIONS: Transitions<ModeMapStatus> = {
 export type ModeMapRow = typeof modeMaps.$inferSelect;
 type Changes = Omit<PgUpdateSetSource<typeof modeMaps>, 'id' | 'groupId' | 'status'>;
 
-async function transition(q: Queryable, id: string, to: ModeMapStatus, guard: { attempt?: number; when?: SQL; set?: Changes } = {}): Promise<ModeMapRow | null> {
+async function transition(
+  q: Queryable,
+  id: string,
+  to: ModeMapStatus,
+  guard: { attempt?: number; when?: SQL; set?: Changes } = {},
+): Promise<ModeMapRow | null> {
   const owned = guard.attempt !== undefined ? and(eq(modeMaps.attempt, guard.attempt), eq(modeMaps.status, 'running')) : undefined;
   const [row] = await q
     .update(modeMaps)
@@ -54,7 +59,10 @@ export const modeMapStore = {
   transition,
 
   /** A new queued map; null when one with the same cache key exists. */
-  async create(q: Queryable, values: Pick<typeof modeMaps.$inferInsert, 'groupId' | 'modelVersionId' | 'resonanceId' | 'params' | 'cacheKey' | 'createdBy'>): Promise<ModeMapRow | null> {
+  async create(
+    q: Queryable,
+    values: Pick<typeof modeMaps.$inferInsert, 'groupId' | 'modelVersionId' | 'resonanceId' | 'params' | 'cacheKey' | 'createdBy'>,
+  ): Promise<ModeMapRow | null> {
     const [row] = await q
       .insert(modeMaps)
       .values({ ...values, status: 'queued', progressStage: 'queued', progressFraction: 0 })
@@ -86,7 +94,14 @@ export const modeMapStore = {
     const row = await unlessEnded(
       transition(q, id, 'running', {
         when: jobId ? or(isNull(modeMaps.jobId), eq(modeMaps.jobId, jobId)) : undefined,
-        set: { attempt: sql`${modeMaps.attempt} + 1`, jobId: jobId ?? sql`${modeMaps.jobId}`, heartbeatAt: new Date(), progressStage: 'starting', progressFraction: 0, error: null },
+        set: {
+          attempt: sql`${modeMaps.attempt} + 1`,
+          jobId: jobId ?? sql`${modeMaps.jobId}`,
+          heartbeatAt: new Date(),
+          progressStage: 'starting',
+          progressFraction: 0,
+          error: null,
+        },
       }),
     );
     return row?.attempt ?? null;

@@ -6,9 +6,7 @@ import { parentPort, workerData } from 'node:worker_threads';
 import { runModeMapTask, type ModeMapPayload, type ModeMapTask } from './mode-map-task.js';
 
 export type MapThreadMessage =
-  | { type: 'progress'; stage: string; fraction: number }
-  | { type: 'result'; result: ModeMapPayload }
-  | { type: 'error'; message: string };
+  { type: 'progress'; stage: string; fraction: number } | { type: 'result'; result: ModeMapPayload } | { type: 'error'; message: string };
 
 const port = parentPort!;
 try {

@@ -85,7 +85,9 @@ export async function handleModeMapJob(
     const message = err instanceof Error ? err.message : String(err);
     const final = err instanceof ModeMapError || job.retryCount >= job.retryLimit || attempt > job.retryLimit;
     const ended = await db.transaction(async (tx) => {
-      const mine = final ? await modeMapStore.fail(tx, map.id, message, attempt) : await modeMapStore.retry(tx, map.id, attempt, `attempt ${attempt} failed, retrying: ${message}`);
+      const mine = final
+        ? await modeMapStore.fail(tx, map.id, message, attempt)
+        : await modeMapStore.retry(tx, map.id, attempt, `attempt ${attempt} failed, retrying: ${message}`);
       if (mine) await settle(tx, final ? 'complete' : 'fail', { message });
       return mine;
     });
@@ -133,12 +135,14 @@ export function startModeMapWorker(o: ModeMapWorkerOptions): { stop: () => Promi
       }
       const settle: MapJobSettler = async (tx, how, output) => {
         const queue = MODE_MAP_QUEUE.name;
-        const r = how === 'complete' ? await o.boss.complete(queue, job.id, output, { db: bossDb(tx) }) : await o.boss.fail(queue, job.id, output, { db: bossDb(tx) });
+        const r =
+          how === 'complete' ? await o.boss.complete(queue, job.id, output, { db: bossDb(tx) }) : await o.boss.fail(queue, job.id, output, { db: bossDb(tx) });
         if (jobsAffected(r) === 0) log(`map ${job.data.mapId}: job ${job.id} was no longer active when its attempt ended`);
       };
       try {
         const outcome = await handleModeMapJob(o, { mapId: job.data.mapId, retryCount: job.retryCount, retryLimit: job.retryLimit, jobId: job.id, settle });
-        if (outcome === 'retry' || outcome === 'failed') log(`map ${job.data.mapId}: attempt ended ${outcome === 'retry' ? 'and will be retried' : 'as failed'}`);
+        if (outcome === 'retry' || outcome === 'failed')
+          log(`map ${job.data.mapId}: attempt ended ${outcome === 'retry' ? 'and will be retried' : 'as failed'}`);
         o.onOutcome?.(job.data.mapId, outcome);
       } catch (err) {
         // Nothing was recorded (the database is unreachable, say): the job stays active

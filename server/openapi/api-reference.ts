@@ -47,7 +47,8 @@ function typeOf(s: Json | undefined, depth = 0): string {
   if (s.allOf) return typeOf((s.allOf as Json[])[0], depth + 1);
   const t = s.type;
   if (Array.isArray(t)) return t.join(' | ');
-  if (t === 'array') return `${typeOf(s.items as Json, depth + 1).includes(' ') ? `(${typeOf(s.items as Json, depth + 1)})` : typeOf(s.items as Json, depth + 1)}[]`;
+  if (t === 'array')
+    return `${typeOf(s.items as Json, depth + 1).includes(' ') ? `(${typeOf(s.items as Json, depth + 1)})` : typeOf(s.items as Json, depth + 1)}[]`;
   if (t === 'string') return (s.format as string | undefined) ?? (s.contentMediaType ? `file (${s.contentMediaType as string})` : 'string');
   if (t === 'object') return s.properties ? 'object' : 'map';
   return (t as string | undefined) ?? 'any';
@@ -79,7 +80,12 @@ function answerLine(route: RouteDeclaration): string {
 }
 
 function entry(route: RouteDeclaration): string {
-  const lines = [`#### \`${route.method.toUpperCase()} /api${route.path}\` (${route.id})`, '', `${route.summary}. ${accessText[route.access]}${route.notes ? ` ${route.notes}` : ''}`, ''];
+  const lines = [
+    `#### \`${route.method.toUpperCase()} /api${route.path}\` (${route.id})`,
+    '',
+    `${route.summary}. ${accessText[route.access]}${route.notes ? ` ${route.notes}` : ''}`,
+    '',
+  ];
   const params = route.described?.params ?? route.params;
   const query = route.described?.query ?? route.query;
   const body = route.described?.body ?? route.body;
@@ -99,7 +105,14 @@ function entry(route: RouteDeclaration): string {
 export function renderApiReference(routes: readonly RouteDeclaration[]): string {
   const byTag = new Map<string, RouteDeclaration[]>();
   for (const r of routes) byTag.set(r.tag, [...(byTag.get(r.tag) ?? []), r]);
-  const out = [referenceStart, '', '## Route reference', '', 'Every route under `/api`, as declared in `shared/api` (the server, the client and the OpenAPI document read the same declarations). Field types are those the request accepts and the answer carries; `?` marks an optional field.', ''];
+  const out = [
+    referenceStart,
+    '',
+    '## Route reference',
+    '',
+    'Every route under `/api`, as declared in `shared/api` (the server, the client and the OpenAPI document read the same declarations). Field types are those the request accepts and the answer carries; `?` marks an optional field.',
+    '',
+  ];
   for (const [tag, list] of byTag) {
     out.push(`### ${areaTitles[tag] ?? tag}`, '');
     for (const r of list) out.push(entry(r));

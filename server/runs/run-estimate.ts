@@ -104,7 +104,10 @@ export function runCostFeatures(document: unknown, req: Pick<RunRequest, 'kind' 
     physics: system.model.physics.kind,
     twoDimensionalLimit:
       system.model.physics.kind === 'microwave'
-        ? { ghz: twoDimensionalLimitGhz(system.model.physics.height, system.model.physics.permittivity), k2: wavenumberSquared(twoDimensionalLimitGhz(system.model.physics.height, system.model.physics.permittivity), system.model.physics.permittivity) }
+        ? {
+            ghz: twoDimensionalLimitGhz(system.model.physics.height, system.model.physics.permittivity),
+            k2: wavenumberSquared(twoDimensionalLimitGhz(system.model.physics.height, system.model.physics.permittivity), system.model.physics.permittivity),
+          }
         : null,
     allThresholds: [...op.thresholds],
   };
@@ -116,7 +119,9 @@ const stepSeconds = (c: RunCostModel['poleStep'], f: RunCostFeatures) => c.perFl
 export function predictRunSeconds(f: RunCostFeatures, m: RunCostModel) {
   const L = f.expectedLevels;
   const poleLUs =
-    f.kind === 'pole-search' ? Math.round(m.poleLUs.base + m.poleLUs.perPiece * f.pieces + m.poleLUs.perLevel * L + (m.poleLUs.perLevelSquared ?? 0) * L * L) : 0;
+    f.kind === 'pole-search'
+      ? Math.round(m.poleLUs.base + m.poleLUs.perPiece * f.pieces + m.poleLUs.perLevel * L + (m.poleLUs.perLevelSquared ?? 0) * L * L)
+      : 0;
   const perPoint = f.kind === 'transmission' ? m.energiesPerPoint.transmission : m.energiesPerPoint.poleSearch;
   const energies = Math.min(spectrumBudget(f.kind, f.spectrumPoints), Math.round(perPoint * f.spectrumPoints));
   const poleStep = stepSeconds(m.poleStep, f);
@@ -161,7 +166,9 @@ export function estimateRun(document: unknown, req: Pick<RunRequest, 'kind' | 'w
     warnings.push('No lead channel is open anywhere in the window: only bound states can be found there.');
   }
   if (model.engineVersion !== ENGINE_VERSION) {
-    warnings.push(`The time is estimated with figures measured on ${model.engineVersion}, not the running ${ENGINE_VERSION}; it may be off until the cost model is calibrated again.`);
+    warnings.push(
+      `The time is estimated with figures measured on ${model.engineVersion}, not the running ${ENGINE_VERSION}; it may be off until the cost model is calibrated again.`,
+    );
   }
   if (p.total > 600) warnings.push('This run is expected to take more than ten minutes.');
   return {

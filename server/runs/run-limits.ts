@@ -15,8 +15,7 @@ export interface RunLimits {
   perUser: number;
 }
 
-const formatDuration = (s: number) =>
-  s < 90 ? `${Math.round(s)} s` : s < 5400 ? `${Math.round(s / 60)} min` : `${(s / 3600).toFixed(1)} h`;
+const formatDuration = (s: number) => (s < 90 ? `${Math.round(s)} s` : s < 5400 ? `${Math.round(s / 60)} min` : `${(s / 3600).toFixed(1)} h`);
 
 /** 422 when the estimate is above the limit, saying what to shrink and by how much. */
 export function checkRunSize(estimate: RunEstimate, req: RunRequest, limits: RunLimits): void {
@@ -52,9 +51,7 @@ async function retryAfter(q: Queryable, scope: ReturnType<typeof and>): Promise<
     .from(runs)
     .where(and(scope, eq(runs.status, 'running')));
   const now = Date.now();
-  const ends = rows
-    .filter((r) => r.startedAt && r.expected !== null)
-    .map((r) => (r.startedAt!.getTime() + 1000 * Number(r.expected) - now) / 1000);
+  const ends = rows.filter((r) => r.startedAt && r.expected !== null).map((r) => (r.startedAt!.getTime() + 1000 * Number(r.expected) - now) / 1000);
   if (ends.length === 0) return 60;
   return Math.min(3600, Math.max(10, Math.ceil(Math.min(...ends))));
 }

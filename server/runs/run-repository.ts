@@ -45,11 +45,7 @@ export async function listRuns(q: Queryable, groupId: string, f: RunListFilter) 
     .orderBy(desc(runs.createdAt))
     .limit(f.pageSize)
     .offset((f.page - 1) * f.pageSize);
-  const [{ total }] = await q
-    .select({ total: count() })
-    .from(runs)
-    .innerJoin(modelVersions, eq(modelVersions.id, runs.modelVersionId))
-    .where(where);
+  const [{ total }] = await q.select({ total: count() }).from(runs).innerJoin(modelVersions, eq(modelVersions.id, runs.modelVersionId)).where(where);
   return { rows, total };
 }
 
@@ -68,7 +64,13 @@ export async function runResonances(q: Queryable, groupId: string, runId: string
 
 export async function runSpectrum(q: Queryable, groupId: string, runId: string) {
   const [row] = await q
-    .select({ energies: spectra.energies, pairs: spectra.pairs, transmission: spectra.transmission, residual: spectra.residual, reflection: spectra.reflection })
+    .select({
+      energies: spectra.energies,
+      pairs: spectra.pairs,
+      transmission: spectra.transmission,
+      residual: spectra.residual,
+      reflection: spectra.reflection,
+    })
     .from(spectra)
     .where(and(eq(spectra.groupId, groupId), eq(spectra.runId, runId)));
   return row ?? null;

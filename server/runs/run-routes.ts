@@ -42,7 +42,14 @@ export function runRoutes(runsService: RunService, events: RunEvents | null): Ro
     const first = await runsService.view(groupId, params.runId);
     streamProgress(req, res, first, {
       read: () => runsService.view(groupId, params.runId),
-      progress: (view): RunProgressEvent => ({ id: view.id, status: view.status, progress: view.progress, attempts: view.attempts, error: view.error, resonanceCount: view.resonanceCount }),
+      progress: (view): RunProgressEvent => ({
+        id: view.id,
+        status: view.status,
+        progress: view.progress,
+        attempts: view.attempts,
+        error: view.error,
+        resonanceCount: view.resonanceCount,
+      }),
       finished: (view) => FINISHED_RUN_STATUSES.includes(view.status),
       // Without notifications (no LISTEN connection) the database is read every 2 s.
       subscribe: events ? (onChange) => events.subscribe(params.runId, onChange) : undefined,

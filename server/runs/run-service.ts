@@ -94,7 +94,15 @@ export class RunService {
     if (this.limits) checkRunSize(estimate, req, this.limits);
     const runId = await this.db.transaction(async (tx) => {
       if (this.limits) await checkRunSlots(tx, groupId, userId, this.limits);
-      const id = await runStore.create(tx, { groupId, modelVersionId: v.id, kind: req.kind, window: req.window, note: req.note ?? '', estimate, createdBy: userId });
+      const id = await runStore.create(tx, {
+        groupId,
+        modelVersionId: v.id,
+        kind: req.kind,
+        window: req.window,
+        note: req.note ?? '',
+        estimate,
+        createdBy: userId,
+      });
       await writeAudit(tx, {
         groupId,
         actorId: userId,
@@ -130,10 +138,7 @@ export class RunService {
   async detail(groupId: string, runId: string) {
     const r = await repo.findRun(this.db, groupId, runId);
     if (!r) throw runNotFound();
-    const [poles, spectrum] = await Promise.all([
-      repo.runResonances(this.db, groupId, runId),
-      repo.runSpectrum(this.db, groupId, runId),
-    ]);
+    const [poles, spectrum] = await Promise.all([repo.runResonances(this.db, groupId, runId), repo.runSpectrum(this.db, groupId, runId)]);
     const v = await findVersion(this.db, groupId, r.modelId, r.modelVersion);
     const derived = v ? storedFigures(v) : null;
     return {

@@ -81,7 +81,10 @@ export const runStore = {
   transition,
 
   /** A new run, queued. Answers its id. */
-  async create(q: Queryable, values: Pick<typeof runs.$inferInsert, 'groupId' | 'modelVersionId' | 'kind' | 'window' | 'note' | 'estimate' | 'createdBy'>): Promise<string> {
+  async create(
+    q: Queryable,
+    values: Pick<typeof runs.$inferInsert, 'groupId' | 'modelVersionId' | 'kind' | 'window' | 'note' | 'estimate' | 'createdBy'>,
+  ): Promise<string> {
     const [row] = await q
       .insert(runs)
       .values({ ...values, status: 'queued', progressStage: 'queued', progressFraction: 0 })
@@ -151,7 +154,12 @@ export const runStore = {
   },
 
   /** The attempt's results are written: the run completed. */
-  async complete(q: Queryable, runId: string, attempt: number, results: Pick<RunChanges, 'engineVersion' | 'thresholds' | 'certificate' | 'stats' | 'resonanceCount'>): Promise<boolean> {
+  async complete(
+    q: Queryable,
+    runId: string,
+    attempt: number,
+    results: Pick<RunChanges, 'engineVersion' | 'thresholds' | 'certificate' | 'stats' | 'resonanceCount'>,
+  ): Promise<boolean> {
     const row = await transition(q, runId, 'completed', {
       attempt,
       set: { ...results, progressStage: 'done', progressFraction: 1, finishedAt: new Date(), error: null },
@@ -171,7 +179,8 @@ export const runStore = {
 
   /**
    * A running run whose heartbeat is older than `staleSeconds` lost its worker: back to the
-   * queue, its error the lost-worker text or `note` (a run interrupted by a shutdown). Null when it is not (any more) such a run (another supervisor, or the attempt, got there first).
+   * queue, its error the lost-worker text or `note` (a run interrupted by a shutdown). Null when
+   * it is not (any more) such a run (another supervisor, or the attempt, got there first).
    */
   async requeueLost(q: Queryable, runId: string, staleSeconds: number, note?: string): Promise<RunRow | null> {
     return transition(q, runId, 'queued', {
@@ -207,7 +216,11 @@ export const runStore = {
       set: { cancelRequested: true, finishedAt: new Date(), progressStage: 'cancelled' },
     });
     if (queued) return 'cancelled';
-    const [flagged] = await q.update(runs).set({ cancelRequested: true }).where(and(eq(runs.id, runId), eq(runs.status, 'running'))).returning({ id: runs.id });
+    const [flagged] = await q
+      .update(runs)
+      .set({ cancelRequested: true })
+      .where(and(eq(runs.id, runId), eq(runs.status, 'running')))
+      .returning({ id: runs.id });
     if (flagged) {
       await notify(q, runId);
       return 'requested';

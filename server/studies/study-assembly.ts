@@ -22,7 +22,14 @@ export interface EndedStep {
   error: string | null;
 }
 
-const EMPTY: StepSearch = { poles: [], sites: { i: new Int32Array(0), j: new Int32Array(0), nx: 1, ny: 1, flux: 0 }, certified: false, summary: 'not computed', factorisations: 0, seconds: 0 };
+const EMPTY: StepSearch = {
+  poles: [],
+  sites: { i: new Int32Array(0), j: new Int32Array(0), nx: 1, ny: 1, flux: 0 },
+  certified: false,
+  summary: 'not computed',
+  factorisations: 0,
+  seconds: 0,
+};
 
 export function assembleOutcome(def: StudyDefinitionStored, steps: EndedStep[]): Record<string, unknown> {
   const byIndex = new Map(steps.map((s) => [s.index, s]));
@@ -33,7 +40,12 @@ export function assembleOutcome(def: StudyDefinitionStored, steps: EndedStep[]):
       const s = byIndex.get(k);
       const search = s?.search ? decodeSearch(s.search) : EMPTY;
       const c = s?.continuation ? decodeContinuation(s.continuation) : null;
-      results.push({ ...search, continued: c ? c.continued : null, continuationFailures: c?.failures ?? 0, continuationFactorisations: c?.factorisations ?? 0 });
+      results.push({
+        ...search,
+        continued: c ? c.continued : null,
+        continuationFailures: c?.failures ?? 0,
+        continuationFactorisations: c?.factorisations ?? 0,
+      });
     }
     const report = studyReport(def.study, assembleStudy(def.study, results));
     return { kind: 'sweep', ...report, steps: report.steps.map((s) => ({ ...s, status: byIndex.get(s.index)?.status ?? 'queued' })) };
@@ -45,7 +57,10 @@ export function assembleOutcome(def: StudyDefinitionStored, steps: EndedStep[]):
   for (let r = 1; r <= def.ensemble.realisations; r++) {
     const s = byIndex.get(r);
     // The realised document stays on the step row (opened with the step), not in every sample.
-    const { document: _document, ...drawn } = (s?.record ?? { realisation: r, seed: 0, jitter: [], roughness: null, disorderSeeds: [] }) as Record<string, unknown>;
+    const { document: _document, ...drawn } = (s?.record ?? { realisation: r, seed: 0, jitter: [], roughness: null, disorderSeeds: [] }) as Record<
+      string,
+      unknown
+    >;
     const record = drawn as unknown as RealisationRecord;
     outcomes.push({ record, search: s?.search ? decodeSearch(s.search) : null, error: s?.search ? null : (s?.error ?? `step ${s?.status ?? 'missing'}`) });
   }

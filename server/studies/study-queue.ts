@@ -19,11 +19,12 @@ export function studyQueue(boss: PgBoss, expireInSeconds: number = STUDY_STEP_QU
     async send(studyId, indices, options = {}) {
       const ids: string[] = [];
       for (const index of indices) {
-        const id = await boss.send(
-          STUDY_STEP_QUEUE.name,
-          { studyId, index } satisfies StudyStepJobData,
-          { retryLimit: STUDY_STEP_QUEUE.retryLimit, retryDelay: STUDY_STEP_QUEUE.retryDelaySeconds, expireInSeconds, ...options },
-        );
+        const id = await boss.send(STUDY_STEP_QUEUE.name, { studyId, index } satisfies StudyStepJobData, {
+          retryLimit: STUDY_STEP_QUEUE.retryLimit,
+          retryDelay: STUDY_STEP_QUEUE.retryDelaySeconds,
+          expireInSeconds,
+          ...options,
+        });
         if (!id) throw new Error(`the queue ${STUDY_STEP_QUEUE.name} refused a step job`);
         ids.push(id);
       }

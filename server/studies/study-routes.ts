@@ -29,7 +29,9 @@ export function studyRoutes(service: StudyService): Router {
   mountRoute(router, studyDetailRoute, ({ params }) => service.detail(params.groupId, params.studyId) as never);
   mountRoute(router, cancelStudyRoute, async ({ params }, req) => (await service.cancel(params.groupId, signedInUser(req).id, params.studyId)) as never);
   mountRoute(router, studyStepRoute, ({ params }) => service.step(params.groupId, params.studyId, Number(params.index)) as never);
-  mountRoute(router, saveStudyStepRoute, ({ params }, req, res) => service.save(params.groupId, signedInUser(req).id, params.studyId, Number(params.index), clientGone(res)));
+  mountRoute(router, saveStudyStepRoute, ({ params }, req, res) =>
+    service.save(params.groupId, signedInUser(req).id, params.studyId, Number(params.index), clientGone(res)),
+  );
   mountRoute(router, exportStudyRoute, async ({ params, query }, _req, res) => {
     const out = await service.exportRows(params.groupId, params.studyId);
     const name = `study-${params.studyId.slice(0, 8)}`;
@@ -39,7 +41,10 @@ export function studyRoutes(service: StudyService): Router {
       return;
     }
     // Where a figure can mislead, the export says so in its first lines.
-    const notes = ['# Poleward study export. Energies and widths in meV.', '# Rows of uncertified steps (certified=false) may miss poles; see docs/physics-model.md.'];
+    const notes = [
+      '# Poleward study export. Energies and widths in meV.',
+      '# Rows of uncertified steps (certified=false) may miss poles; see docs/physics-model.md.',
+    ];
     res.setHeader('Content-Disposition', `attachment; filename="${name}.csv"`);
     res.type('text/csv').send([...notes, out.header.join(','), ...out.rows.map((r) => r.map(csvCell).join(','))].join('\n') + '\n');
   });

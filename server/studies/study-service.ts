@@ -51,7 +51,10 @@ export class StudyService {
       if (req.kind === 'sweep') {
         const study: StudyDefinition = {
           model: document,
-          parameters: req.parameters.map((p) => ({ path: p.path, values: 'list' in p.values ? p.values.list : rangeValues(p.values.from, p.values.to, p.values.count) })),
+          parameters: req.parameters.map((p) => ({
+            path: p.path,
+            values: 'list' in p.values ? p.values.list : rangeValues(p.values.from, p.values.to, p.values.count),
+          })),
           window: req.window,
           search,
         };
@@ -76,7 +79,9 @@ export class StudyService {
     } catch (err) {
       if (!(err instanceof RangeError)) throw err;
       const [field, ...rest] = err.message.split(': ');
-      throw new ApiError(400, 'validation_failed', err.message, [{ path: rest.length ? field.replace(/\[(\d+)\]/g, '.$1') : '(body)', message: rest.length ? rest.join(': ') : err.message }]);
+      throw new ApiError(400, 'validation_failed', err.message, [
+        { path: rest.length ? field.replace(/\[(\d+)\]/g, '.$1') : '(body)', message: rest.length ? rest.join(': ') : err.message },
+      ]);
     }
   }
 
@@ -113,13 +118,25 @@ export class StudyService {
         })
         .returning({ id: studies.id });
       await tx.insert(studySteps).values(Array.from({ length: count }, (_, index) => ({ studyId: row.id, index })));
-      await writeAudit(tx, { groupId, actorId: userId, action: 'study.queued', subject: `${v.modelName} v${v.version}`, details: { studyId: row.id, kind: req.kind, steps: count } });
+      await writeAudit(tx, {
+        groupId,
+        actorId: userId,
+        action: 'study.queued',
+        subject: `${v.modelName} v${v.version}`,
+        details: { studyId: row.id, kind: req.kind, steps: count },
+      });
       return row.id;
     });
     // Queued after the commit, so a worker never sees a step whose row is not there yet.
-    const ids = await this.queue.send(studyId, Array.from({ length: count }, (_, k) => k));
+    const ids = await this.queue.send(
+      studyId,
+      Array.from({ length: count }, (_, k) => k),
+    );
     for (let k = 0; k < ids.length; k++) {
-      await this.db.update(studySteps).set({ jobId: ids[k] }).where(and(eq(studySteps.studyId, studyId), eq(studySteps.index, k), eq(studySteps.status, 'queued')));
+      await this.db
+        .update(studySteps)
+        .set({ jobId: ids[k] })
+        .where(and(eq(studySteps.studyId, studyId), eq(studySteps.index, k), eq(studySteps.status, 'queued')));
     }
     return this.detail(groupId, studyId);
   }
@@ -139,7 +156,12 @@ export class StudyService {
     const counts = await this.db
       .select({ studyId: studySteps.studyId, status: studySteps.status, reused: studySteps.reused, n: sql<number>`count(*)::int` })
       .from(studySteps)
-      .where(inArray(studySteps.studyId, rows.map((r) => r.study.id)))
+      .where(
+        inArray(
+          studySteps.studyId,
+          rows.map((r) => r.study.id),
+        ),
+      )
       .groupBy(studySteps.studyId, studySteps.status, studySteps.reused);
     return rows.map((r) => {
       const mine = counts.filter((c) => c.studyId === r.study.id);
@@ -167,7 +189,10 @@ export class StudyService {
 
   async list(groupId: string, page: number, pageSize: number) {
     const items = await this.summaries(groupId, sql`true` as never, pageSize, (page - 1) * pageSize);
-    const [{ total }] = await this.db.select({ total: sql<number>`count(*)::int` }).from(studies).where(eq(studies.groupId, groupId));
+    const [{ total }] = await this.db
+      .select({ total: sql<number>`count(*)::int` })
+      .from(studies)
+      .where(eq(studies.groupId, groupId));
     return { items: items.map(({ row: _row, ...s }) => s), total };
   }
 
@@ -280,7 +305,18 @@ export class StudyService {
     if (!outcome) throw new ApiError(409, 'not_ready', 'The study has not ended yet: its trajectories or statistics are assembled when the last step ends.');
     if (outcome.kind === 'sweep') {
       const o = outcome as unknown as import('../../shared/api/studies.js').SweepOutcome;
-      const header = ['line', 'line_value', 'trajectory', 'step', ...o.parameters.slice(0, 1).map((p) => p.path), 'energy_meV', 'width_meV', 'link', 'overlap', 'certified'];
+      const header = [
+        'line',
+        'line_value',
+        'trajectory',
+        'step',
+        ...o.parameters.slice(0, 1).map((p) => p.path),
+        'energy_meV',
+        'width_meV',
+        'link',
+        'overlap',
+        'certified',
+      ];
       const rows: (string | number | boolean | null)[][] = [];
       o.lines.forEach((l, li) => {
         for (const t of l.trajectories) {
@@ -290,7 +326,19 @@ export class StudyService {
       return { header, rows, json: outcome };
     }
     const o = outcome as unknown as import('../../shared/api/studies.js').EnsembleOutcome;
-    const header = ['realisation', 'seed', 'followed', 'reason', 'energy_meV', 'width_meV', 'quality', 'within_tolerances', 'certified', 'sites_added', 'sites_removed'];
+    const header = [
+      'realisation',
+      'seed',
+      'followed',
+      'reason',
+      'energy_meV',
+      'width_meV',
+      'quality',
+      'within_tolerances',
+      'certified',
+      'sites_added',
+      'sites_removed',
+    ];
     const rows = (o.statistics?.samples ?? []).map((s) => [
       s.realisation,
       s.seed,

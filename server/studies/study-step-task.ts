@@ -54,7 +54,13 @@ export function runStudyStepTask(task: StudyStepTask, signal?: AbortSignal): Stu
     search = task.reuse ? decodeSearch(task.reuse) : searchStep(model, inner.window, inner.search ?? {}, { signal });
   } catch (err) {
     if (err instanceof InvalidModelError && task.definition.kind === 'ensemble') {
-      return { search: null, continuation: null, record, invalid: err.issues.map((i) => `${i.path.join('.')}: ${i.message}`).join('; '), seconds: (performance.now() - started) / 1000 };
+      return {
+        search: null,
+        continuation: null,
+        record,
+        invalid: err.issues.map((i) => `${i.path.join('.')}: ${i.message}`).join('; '),
+        seconds: (performance.now() - started) / 1000,
+      };
     }
     throw err;
   }

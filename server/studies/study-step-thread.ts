@@ -9,5 +9,9 @@ const port = parentPort!;
 try {
   port.postMessage({ type: 'result', output: runStudyStepTask(workerData as StudyStepTask) } satisfies StudyThreadMessage);
 } catch (err) {
-  port.postMessage({ type: 'error', message: err instanceof Error ? err.message : String(err), invalidModel: err instanceof InvalidModelError } satisfies StudyThreadMessage);
+  port.postMessage({
+    type: 'error',
+    message: err instanceof Error ? err.message : String(err),
+    invalidModel: err instanceof InvalidModelError,
+  } satisfies StudyThreadMessage);
 }

@@ -49,21 +49,38 @@ export async function handleStudyStepJob(
   const [study] = await db.select().from(studies).where(eq(studies.id, job.studyId));
   if (!study) return 'skipped';
   if (job.index < 0) return (await finishStudy(db, study.id)) ? 'assembled' : 'skipped';
-  const [step] = await db.select().from(studySteps).where(and(eq(studySteps.studyId, study.id), eq(studySteps.index, job.index)));
+  const [step] = await db
+    .select()
+    .from(studySteps)
+    .where(and(eq(studySteps.studyId, study.id), eq(studySteps.index, job.index)));
   if (!step || ENDED.includes(step.status)) return 'skipped';
   if (study.cancelRequested) {
-    await db.update(studySteps).set({ status: 'cancelled', finishedAt: new Date() }).where(and(eq(studySteps.studyId, study.id), eq(studySteps.index, job.index), eq(studySteps.attempt, step.attempt)));
+    await db
+      .update(studySteps)
+      .set({ status: 'cancelled', finishedAt: new Date() })
+      .where(and(eq(studySteps.studyId, study.id), eq(studySteps.index, job.index), eq(studySteps.attempt, step.attempt)));
     await finishStudy(db, study.id);
     return 'cancelled';
   }
   const [claimed] = await db
     .update(studySteps)
     .set({ status: 'running', attempt: step.attempt + 1, startedAt: new Date(), worker: `${hostname()}:${process.pid}`, error: null })
-    .where(and(eq(studySteps.studyId, study.id), eq(studySteps.index, job.index), eq(studySteps.attempt, step.attempt), inArray(studySteps.status, ['queued', 'running'])))
+    .where(
+      and(
+        eq(studySteps.studyId, study.id),
+        eq(studySteps.index, job.index),
+        eq(studySteps.attempt, step.attempt),
+        inArray(studySteps.status, ['queued', 'running']),
+      ),
+    )
     .returning({ attempt: studySteps.attempt });
   if (!claimed) return 'superseded';
   const mine = and(eq(studySteps.studyId, study.id), eq(studySteps.index, job.index), eq(studySteps.attempt, claimed.attempt));
-  if (study.status === 'queued') await db.update(studies).set({ status: 'running' }).where(and(eq(studies.id, study.id), eq(studies.status, 'queued')));
+  if (study.status === 'queued')
+    await db
+      .update(studies)
+      .set({ status: 'running' })
+      .where(and(eq(studies.id, study.id), eq(studies.status, 'queued')));
   await notify(db, study.id);
 
   const definition = study.definition as unknown as StudyDefinitionStored;
@@ -92,7 +109,10 @@ export async function handleStudyStepJob(
     const output = await (o.compute ?? runStudyStepInThread)({ definition, index: job.index, reuse }, controller.signal);
     const ended = await db.transaction(async (tx) => {
       if (output.search && key && !reuse) {
-        await tx.insert(studyStepResults).values({ key, engineVersion: ENGINE_VERSION, search: output.search as unknown as Record<string, unknown> }).onConflictDoNothing();
+        await tx
+          .insert(studyStepResults)
+          .values({ key, engineVersion: ENGINE_VERSION, search: output.search as unknown as Record<string, unknown> })
+          .onConflictDoNothing();
       }
       return tx
         .update(studySteps)
@@ -123,7 +143,11 @@ export async function handleStudyStepJob(
     const final = (err instanceof StudyStepError && err.invalidModel) || job.retryCount >= job.retryLimit;
     await db
       .update(studySteps)
-      .set(final ? { status: 'failed', error: message, finishedAt: new Date() } : { status: 'queued', error: `attempt ${claimed.attempt} failed, retrying: ${message}` })
+      .set(
+        final
+          ? { status: 'failed', error: message, finishedAt: new Date() }
+          : { status: 'queued', error: `attempt ${claimed.attempt} failed, retrying: ${message}` },
+      )
       .where(mine);
     if (final) {
       await finishStudy(db, study.id);
@@ -153,7 +177,14 @@ export async function finishStudy(db: Db, studyId: string): Promise<boolean> {
     const n = (s: string) => counts.find((c) => c.status === s)?.n ?? 0;
     if (n('queued') + n('running') > 0) return false;
     const rows = await tx
-      .select({ index: studySteps.index, status: studySteps.status, search: studyStepResults.search, continuation: studySteps.continuation, record: studySteps.record, error: studySteps.error })
+      .select({
+        index: studySteps.index,
+        status: studySteps.status,
+        search: studyStepResults.search,
+        continuation: studySteps.continuation,
+        record: studySteps.record,
+        error: studySteps.error,
+      })
       .from(studySteps)
       .leftJoin(studyStepResults, eq(studyStepResults.key, studySteps.resultKey))
       .where(eq(studySteps.studyId, studyId));

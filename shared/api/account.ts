@@ -8,9 +8,7 @@ export const activityEntrySchema = z
   .meta({ id: 'ActivityEntry' });
 export type ActivityEntry = z.infer<typeof activityEntrySchema>;
 
-export const apiTokenSchema = z
-  .object({ id: z.uuid(), name: z.string(), createdAt: timestamp(), lastUsedAt: timestamp().nullable() })
-  .meta({ id: 'ApiToken' });
+export const apiTokenSchema = z.object({ id: z.uuid(), name: z.string(), createdAt: timestamp(), lastUsedAt: timestamp().nullable() }).meta({ id: 'ApiToken' });
 export type ApiToken = z.infer<typeof apiTokenSchema>;
 
 export const createdApiTokenSchema = z
@@ -34,7 +32,8 @@ export const accountActivityRoute = declareRoute({
   tag: 'account',
   summary: "Audit entries about the caller's own account, newest first",
   access: 'signed-in',
-  notes: 'Sign-ins and failed ones, sign-outs, rate-limit and CSRF refusals, password resets, tokens, role changes, and reads of mail addressed to the account.',
+  notes:
+    'Sign-ins and failed ones, sign-outs, rate-limit and CSRF refusals, password resets, tokens, role changes, and reads of mail addressed to the account.',
   query: accountActivityQuery,
   answer: json(200, 'Entries', z.array(activityEntrySchema)),
 });

@@ -118,5 +118,10 @@ export const acceptInvitationRoute = declareRoute({
   params: invitationTokenParams,
   body: acceptBody,
   answer: json(201, 'Member of the group, signed in', sessionSchema),
-  errors: { 401: 'invalid_credentials (existing account)', 404: 'unknown token', 410: 'invitation_gone', 429: 'rate_limited: too many failed attempts from this address' },
+  errors: {
+    401: 'invalid_credentials (existing account)',
+    404: 'unknown token',
+    410: 'invitation_gone',
+    429: 'rate_limited: too many failed attempts from this address',
+  },
 });

@@ -28,26 +28,18 @@ function numberParam(unit: string) {
 
 /** A parameter that may repeat (`tag=a&tag=b`) or carry a comma list (`tag=a,b`); empty parts are dropped. */
 function listParam(item: z.ZodString) {
-  return z.preprocess(
-    (v) => {
-      if (v === undefined) return undefined;
-      const parts = (Array.isArray(v) ? v : [v]).flatMap((s) => (typeof s === 'string' ? s.split(',') : [s]));
-      const kept = parts.map((s) => (typeof s === 'string' ? s.trim() : s)).filter((s) => s !== '');
-      return kept.length > 0 ? kept : undefined;
-    },
-    z.array(item).max(20, 'at most 20 values').optional(),
-  );
+  return z.preprocess((v) => {
+    if (v === undefined) return undefined;
+    const parts = (Array.isArray(v) ? v : [v]).flatMap((s) => (typeof s === 'string' ? s.split(',') : [s]));
+    const kept = parts.map((s) => (typeof s === 'string' ? s.trim() : s)).filter((s) => s !== '');
+    return kept.length > 0 ? kept : undefined;
+  }, z.array(item).max(20, 'at most 20 values').optional());
 }
 
 function textParam(max: number) {
   return z.preprocess(
     (v) => (v === undefined || (typeof v === 'string' && v.trim() === '') ? undefined : v),
-    z
-      .string({ error: 'must be given once, as text' })
-      .trim()
-      .max(max, `must be at most ${max} characters`)
-      .regex(noNul, noNulMessage)
-      .optional(),
+    z.string({ error: 'must be given once, as text' }).trim().max(max, `must be at most ${max} characters`).regex(noNul, noNulMessage).optional(),
   );
 }
 
@@ -162,7 +154,11 @@ export const catalogueFilterSchema = z
       if (!key.startsWith('dim.')) continue;
       const m = /^dim\.([^.]*)\.(min|max)$/.exec(key);
       if (!m || !dimensionFilterNames.includes(m[1]!)) {
-        ctx.addIssue({ code: 'custom', path: [key], message: `is not a dimension filter: use dim.NAME.min or dim.NAME.max with NAME one of ${dimensionFilterNames.join(', ')}` });
+        ctx.addIssue({
+          code: 'custom',
+          path: [key],
+          message: `is not a dimension filter: use dim.NAME.min or dim.NAME.max with NAME one of ${dimensionFilterNames.join(', ')}`,
+        });
       }
     }
   })
@@ -212,4 +208,3 @@ export const catalogueQuerySchema = z.intersection(
       }
     }),
 );
-

@@ -14,9 +14,9 @@ export const cataloguePageSchema = z
   .object({
     items: z.array(resonanceRowSchema),
     total: z.number().int().nonnegative().meta({ description: 'Number of matches, obtained as totalKind says' }),
-    totalKind: z
-      .enum(TOTAL_KINDS)
-      .meta({ description: "exact: counted for this answer; cached: counted exactly countAgeSeconds ago; estimated: the database planner's estimate (ask count=exact)" }),
+    totalKind: z.enum(TOTAL_KINDS).meta({
+      description: "exact: counted for this answer; cached: counted exactly countAgeSeconds ago; estimated: the database planner's estimate (ask count=exact)",
+    }),
     countedAt: timestamp().nullable().meta({ description: 'When the exact count was taken; null for an estimate' }),
     countAgeSeconds: z.number().int().nonnegative().nullable(),
     page: z.number().int().min(1).meta({ description: 'Page number: exact with page=, carried as a label by cursors' }),
@@ -30,7 +30,13 @@ export type CataloguePage = z.infer<typeof cataloguePageSchema>;
 export const resonanceDetailSchema = resonanceRowSchema
   .extend({
     run: z
-      .object({ id: z.uuid(), kind: runKindSchema, window: z.record(z.string(), z.number()), certificate: runCertificateSchema.nullable(), status: runStatusSchema })
+      .object({
+        id: z.uuid(),
+        kind: runKindSchema,
+        window: z.record(z.string(), z.number()),
+        certificate: runCertificateSchema.nullable(),
+        status: runStatusSchema,
+      })
       .nullable()
       .meta({ description: 'The run that found the pole; null for a fitted resonance' }),
     model: z.object({ id: z.uuid(), name: z.string(), version: z.number().int() }),
@@ -59,11 +65,7 @@ export const labelBody = z
       .max(20, 'at most 20 tags')
       .transform((tags) => [...new Set(tags)])
       .optional(),
-    notes: z
-      .string({ error: 'must be text' })
-      .max(4000, 'must be at most 4000 characters')
-      .regex(noNul, 'must not contain NUL characters')
-      .optional(),
+    notes: z.string({ error: 'must be text' }).max(4000, 'must be at most 4000 characters').regex(noNul, 'must not contain NUL characters').optional(),
   })
   .refine((b) => b.tags !== undefined || b.notes !== undefined, { message: 'send tags, notes or both' });
 

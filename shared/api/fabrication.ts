@@ -15,8 +15,16 @@ const text = (max: number, what: string) =>
     .min(1, `${what} is empty`)
     .max(max, `${what} must be at most ${max} characters`)
     .regex(noNul, `${what} must not contain NUL characters`);
-const positive = (what: string) => z.number({ error: `${what} must be a number` }).finite(`${what} must be finite`).positive(`${what} must be positive`);
-const nonNegative = (what: string) => z.number({ error: `${what} must be a number` }).finite(`${what} must be finite`).nonnegative(`${what} must not be negative`);
+const positive = (what: string) =>
+  z
+    .number({ error: `${what} must be a number` })
+    .finite(`${what} must be finite`)
+    .positive(`${what} must be positive`);
+const nonNegative = (what: string) =>
+  z
+    .number({ error: `${what} must be a number` })
+    .finite(`${what} must be finite`)
+    .nonnegative(`${what} must not be negative`);
 
 export const fabricationStateSchema = z.enum(FABRICATION_STATES);
 export const fabricationActionSchema = z.enum(FABRICATION_ACTIONS);
@@ -36,20 +44,22 @@ export const transitionBodySchema = z.discriminatedUnion(
     z.strictObject({ action: z.literal('reject'), reason: text(2000, 'reason') }),
     z.strictObject({ action: z.literal('withdraw'), reason: text(2000, 'reason') }),
     z.strictObject({ action: z.literal('send'), batch: text(200, 'batch'), reason: text(2000, 'reason').optional() }),
-    z.strictObject({
-      action: z.literal('measure'),
-      reason: text(2000, 'reason').optional(),
-      /** Typed in (meV) with optional standard uncertainties ... */
-      energy: positive('energy').optional(),
-      width: nonNegative('width').optional(),
-      energyUncertainty: nonNegative('energyUncertainty').optional(),
-      widthUncertainty: nonNegative('widthUncertainty').optional(),
-      /** ... or taken from a completed peak fit of the group (peak index, 0-based). */
-      fitId: z.uuid('fitId must be an id').optional(),
-      peak: z.number().int().nonnegative().default(0),
-    }).refine((b) => (b.fitId !== undefined) !== (b.energy !== undefined && b.width !== undefined), {
-      message: 'give either fitId (a completed peak fit) or both energy and width (meV)',
-    }),
+    z
+      .strictObject({
+        action: z.literal('measure'),
+        reason: text(2000, 'reason').optional(),
+        /** Typed in (meV) with optional standard uncertainties ... */
+        energy: positive('energy').optional(),
+        width: nonNegative('width').optional(),
+        energyUncertainty: nonNegative('energyUncertainty').optional(),
+        widthUncertainty: nonNegative('widthUncertainty').optional(),
+        /** ... or taken from a completed peak fit of the group (peak index, 0-based). */
+        fitId: z.uuid('fitId must be an id').optional(),
+        peak: z.number().int().nonnegative().default(0),
+      })
+      .refine((b) => (b.fitId !== undefined) !== (b.energy !== undefined && b.width !== undefined), {
+        message: 'give either fitId (a completed peak fit) or both energy and width (meV)',
+      }),
   ],
   { error: `action must be one of ${FABRICATION_ACTIONS.join(', ')}` },
 );
@@ -98,7 +108,14 @@ export const fabricationRecordSchema = z.object({
   /** What the caller may do from here (the buttons to show). */
   allowedActions: z.array(fabricationActionSchema),
   history: z.array(
-    z.object({ at: z.string(), action: z.string(), actor: z.string().nullable(), from: z.string().nullable(), to: z.string().nullable(), reason: z.string().nullable() }),
+    z.object({
+      at: z.string(),
+      action: z.string(),
+      actor: z.string().nullable(),
+      from: z.string().nullable(),
+      to: z.string().nullable(),
+      reason: z.string().nullable(),
+    }),
   ),
 });
 export type FabricationRecord = z.infer<typeof fabricationRecordSchema>;
@@ -126,9 +143,7 @@ export const fabricationItemSchema = z.object({
   thumbnailUrl: z.string().nullable(),
   measurement: measurementSchema.nullable(),
   /** Download links when a package exists (approved, sent, measured). */
-  downloads: z
-    .object({ archive: z.string(), specSheet: z.string(), gdsii: z.string(), dxf: z.string(), svg: z.string() })
-    .nullable(),
+  downloads: z.object({ archive: z.string(), specSheet: z.string(), gdsii: z.string(), dxf: z.string(), svg: z.string() }).nullable(),
 });
 export type FabricationItem = z.infer<typeof fabricationItemSchema>;
 
@@ -260,7 +275,8 @@ const resonanceParams = z.object({ groupId: z.string(), id: z.string() });
 const resonanceParamsDoc = z.object({ groupId: z.uuid(), id: z.uuid() });
 const groupParamsDoc = z.object({ groupId: z.uuid() });
 const download = (mediaType: string, text: string) => media(200, mediaType, text, z.string().meta({ format: 'binary' }));
-const packageNote = 'Only for an approved, sent or measured resonance (409 not_approved otherwise). Any member may download: the viewer role suits a fabrication partner. Each download is recorded in the group activity.';
+const packageNote =
+  'Only for an approved, sent or measured resonance (409 not_approved otherwise). Any member may download: the viewer role suits a fabrication partner. Each download is recorded in the group activity.';
 
 export const listFabricationRoute = declareRoute({
   id: 'listFabrication',
@@ -348,9 +364,19 @@ const packageFileRoute = <const Id extends string, const File extends PackageFil
   });
 
 export const packageFileRoutes = {
-  'package.zip': packageFileRoute('getFabricationPackage', 'package.zip', 'application/zip', 'The fabrication package as one ZIP archive: spec sheet, layout in GDSII, DXF and SVG, README, figures'),
+  'package.zip': packageFileRoute(
+    'getFabricationPackage',
+    'package.zip',
+    'application/zip',
+    'The fabrication package as one ZIP archive: spec sheet, layout in GDSII, DXF and SVG, README, figures',
+  ),
   'spec.pdf': packageFileRoute('getFabricationSpecSheet', 'spec.pdf', 'application/pdf', 'The spec sheet (PDF)'),
-  'layout.gds': packageFileRoute('getFabricationGdsii', 'layout.gds', 'application/octet-stream', 'The layout in GDSII (database unit 1 nm, user unit 1 µm; layer map in docs/api.md)'),
+  'layout.gds': packageFileRoute(
+    'getFabricationGdsii',
+    'layout.gds',
+    'application/octet-stream',
+    'The layout in GDSII (database unit 1 nm, user unit 1 µm; layer map in docs/api.md)',
+  ),
   'layout.dxf': packageFileRoute('getFabricationDxf', 'layout.dxf', 'application/dxf', 'The layout in DXF (units nm, one DXF layer per layout layer)'),
   'layout.svg': packageFileRoute('getFabricationSvg', 'layout.svg', 'image/svg+xml', 'The layout in SVG (user units nm, y up as in the model)'),
 } as const;

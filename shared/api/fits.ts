@@ -31,28 +31,32 @@ export const traceFields = z
     rangeTo: optionalNumber,
   })
   .superRefine((f, ctx) => {
-    if (f.xUnit === 'mV' && f.leverArm === undefined) ctx.addIssue({ code: 'custom', path: ['leverArm'], message: 'a gate-voltage column needs a lever arm (meV/mV)' });
-    if ((f.rangeFrom === undefined) !== (f.rangeTo === undefined)) ctx.addIssue({ code: 'custom', path: ['rangeTo'], message: 'give both ends of the range or neither' });
+    if (f.xUnit === 'mV' && f.leverArm === undefined)
+      ctx.addIssue({ code: 'custom', path: ['leverArm'], message: 'a gate-voltage column needs a lever arm (meV/mV)' });
+    if ((f.rangeFrom === undefined) !== (f.rangeTo === undefined))
+      ctx.addIssue({ code: 'custom', path: ['rangeTo'], message: 'give both ends of the range or neither' });
   });
 
 const finite = z.number().refine(Number.isFinite, 'must be a finite number');
 
 export const fitBody = z
   .object({
-  source: z.discriminatedUnion('kind', [
-    z.object({ kind: z.literal('run'), runId: z.uuid(), pair: z.number().int().min(0).default(0), from: finite, to: finite }),
-    z.object({ kind: z.literal('trace'), traceId: z.uuid(), from: finite.optional(), to: finite.optional() }),
-  ]),
-  lineshape: z.enum(LINESHAPES as [Lineshape, ...Lineshape[]], { error: `must be one of ${LINESHAPES.join(', ')}` }),
-  background: z.enum(['constant', 'linear']).default('constant'),
-  peaks: z.number().int().min(1).max(10).default(1),
-  temperatureMK: z.number().positive().max(1e6).optional(),
-  modelId: z.uuid().optional(),
-  hints: z.array(z.object({ energy: finite, width: z.number().positive().optional() })).max(10).optional(),
+    source: z.discriminatedUnion('kind', [
+      z.object({ kind: z.literal('run'), runId: z.uuid(), pair: z.number().int().min(0).default(0), from: finite, to: finite }),
+      z.object({ kind: z.literal('trace'), traceId: z.uuid(), from: finite.optional(), to: finite.optional() }),
+    ]),
+    lineshape: z.enum(LINESHAPES as [Lineshape, ...Lineshape[]], { error: `must be one of ${LINESHAPES.join(', ')}` }),
+    background: z.enum(['constant', 'linear']).default('constant'),
+    peaks: z.number().int().min(1).max(10).default(1),
+    temperatureMK: z.number().positive().max(1e6).optional(),
+    modelId: z.uuid().optional(),
+    hints: z
+      .array(z.object({ energy: finite, width: z.number().positive().optional() }))
+      .max(10)
+      .optional(),
   })
   .meta({ id: 'FitRequest' });
 export type FitRequestBody = z.infer<typeof fitBody>;
-
 
 export const traceSummarySchema = z
   .object({
@@ -213,7 +217,13 @@ export const fitDetailSchema = fitSchema
 export type FitDetail = z.infer<typeof fitDetailSchema>;
 
 /** One `progress` event of a fit's event stream. */
-export const fitProgressSchema = z.object({ id: z.uuid(), status: jobStatusSchema, progressFraction: z.number().nullable(), attempt: z.number().int(), error: z.string().nullable() });
+export const fitProgressSchema = z.object({
+  id: z.uuid(),
+  status: jobStatusSchema,
+  progressFraction: z.number().nullable(),
+  attempt: z.number().int(),
+  error: z.string().nullable(),
+});
 export type FitProgress = z.infer<typeof fitProgressSchema>;
 
 const traceFile = { field: 'file', mediaType: 'text/csv', description: 'The trace: CSV or TSV, UTF-8, at most 2 MB.' };
@@ -305,7 +315,10 @@ export const fitEventsRoute = declareRoute({
     200,
     'text/event-stream',
     'An event stream that ends after `done`',
-    z.string().meta({ description: 'Server-sent events: `progress` with { id, status, progressFraction, attempt, error } on every change, then `done` with { status } (completed or failed).' }),
+    z.string().meta({
+      description:
+        'Server-sent events: `progress` with { id, status, progressFraction, attempt, error } on every change, then `done` with { status } (completed or failed).',
+    }),
   ),
 });
 

@@ -9,9 +9,7 @@ import { declareRoute, empty, json } from './route.js';
 export const groupDetailSchema = groupOfUserSchema.extend({ memberCount: z.number().int().nonnegative() }).meta({ id: 'GroupDetail' });
 export type GroupDetail = z.infer<typeof groupDetailSchema>;
 
-export const memberSchema = z
-  .object({ userId: z.uuid(), email: z.string(), name: z.string(), role: roleSchema, joinedAt: timestamp() })
-  .meta({ id: 'Member' });
+export const memberSchema = z.object({ userId: z.uuid(), email: z.string(), name: z.string(), role: roleSchema, joinedAt: timestamp() }).meta({ id: 'Member' });
 export type Member = z.infer<typeof memberSchema>;
 
 export const INVITATION_STATUSES = ['pending', 'expired'] as const;

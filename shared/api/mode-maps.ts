@@ -31,7 +31,8 @@ export const modeMapRequestSchema = z
   .superRefine((b, ctx) => {
     if (b.resonanceId) {
       for (const f of ['modelId', 'version', 'energy', 'lead', 'channel'] as const) {
-        if (b[f] !== undefined) ctx.addIssue({ code: 'custom', path: [f], message: 'give either resonanceId or a model with energy, lead and channel, not both' });
+        if (b[f] !== undefined)
+          ctx.addIssue({ code: 'custom', path: [f], message: 'give either resonanceId or a model with energy, lead and channel, not both' });
       }
       return;
     }
@@ -42,7 +43,6 @@ export const modeMapRequestSchema = z
 
 export type ModeMapRequest = z.infer<typeof modeMapRequestSchema>;
 export type HusimiRequest = z.infer<typeof husimiSchema>;
-
 
 const b64 = (what: string) => z.string().meta({ description: `${what}, base64 of little-endian float32` });
 

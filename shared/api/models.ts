@@ -21,9 +21,7 @@ export const derivedFiguresSchema = z
     fluxPerPlaquette: z.number(),
     cyclotronEnergy: z.number().meta({ description: 'ħω_c (meV), 0 at B = 0' }),
     magneticLength: numberOrInfinite(),
-    leads: z.array(
-      z.object({ name: z.string(), side: z.string(), width: z.number().int(), offset: z.number(), thresholds: z.array(channelThreshold) }),
-    ),
+    leads: z.array(z.object({ name: z.string(), side: z.string(), width: z.number().int(), offset: z.number(), thresholds: z.array(channelThreshold) })),
     validity: z
       .object({
         energy: z.number(),
@@ -187,7 +185,10 @@ export const maskFromBitmapRoute = declareRoute({
   body: bitmapBody,
   upload: { field: 'file', mediaType: 'image/png', description: 'The drawing: dark pixels are inside the cavity.' },
   answer: json(200, 'The mask', bitmapMaskSchema),
-  errors: { 413: 'payload_too_large (file over 8 MiB) or image_too_large (over 4096×4096 pixels, read from the header)', 415: 'unsupported_media_type: not a PNG' },
+  errors: {
+    413: 'payload_too_large (file over 8 MiB) or image_too_large (over 4096×4096 pixels, read from the header)',
+    415: 'unsupported_media_type: not a PNG',
+  },
 });
 
 export const getModelRoute = declareRoute({

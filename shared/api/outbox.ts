@@ -3,9 +3,7 @@ import * as z from 'zod';
 import { timestamp } from './fields.js';
 import { declareRoute, json } from './route.js';
 
-export const outboxSummarySchema = z
-  .object({ id: z.uuid(), to: z.string(), subject: z.string(), receivedAt: timestamp() })
-  .meta({ id: 'OutboxSummary' });
+export const outboxSummarySchema = z.object({ id: z.uuid(), to: z.string(), subject: z.string(), receivedAt: timestamp() }).meta({ id: 'OutboxSummary' });
 export type OutboxSummary = z.infer<typeof outboxSummarySchema>;
 
 export const outboxMessageSchema = z

@@ -49,7 +49,9 @@ export const resonanceRowSchema = z
     modelName: z.string(),
     modelVersion: z.number().int().min(1),
     family: z.string(),
-    keyDimensions: keyDimensionsSchema.meta({ description: 'Only the dimensions the family has, each by its own name (nm; area nm²); a microwave model\'s mm converted' }),
+    keyDimensions: keyDimensionsSchema.meta({
+      description: "Only the dimensions the family has, each by its own name (nm; area nm²); a microwave model's mm converted",
+    }),
     physics: z.enum(PHYSICS_KINDS).meta({ description: 'electrons (E, Γ in meV) or microwave (E, Γ are k² in mm⁻²; see microwave)' }),
     microwave: microwaveFiguresSchema.nullable().meta({ description: 'Microwave mode only; null for electrons' }),
     validity: resonanceValiditySchema,

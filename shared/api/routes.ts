@@ -30,4 +30,6 @@ function declarationsOf(area: Record<string, unknown>): RouteDeclaration[] {
     .sort((a, b) => (a.path === b.path ? methodOrder.indexOf(a.method) - methodOrder.indexOf(b.method) : a.path < b.path ? -1 : 1));
 }
 
-export const apiRoutes: readonly RouteDeclaration[] = [meta, auth, groups, models, runs, catalogue, modeMaps, backup, fits, account, outbox].flatMap(declarationsOf).concat(fabricationRoutes, studyRoutesDeclared);
+export const apiRoutes: readonly RouteDeclaration[] = [meta, auth, groups, models, runs, catalogue, modeMaps, backup, fits, account, outbox]
+  .flatMap(declarationsOf)
+  .concat(fabricationRoutes, studyRoutesDeclared);

@@ -99,10 +99,15 @@ export const runSchema = z
     finishedAt: timestamp().nullable(),
     attempts: z.number().int().nonnegative(),
     error: z.string().nullable(),
-    notice: z.string().nullable().meta({ description: 'Set while the run looks stuck (queued with no worker taking it, or its worker silent): what is happening and what to do' }),
+    notice: z
+      .string()
+      .nullable()
+      .meta({ description: 'Set while the run looks stuck (queued with no worker taking it, or its worker silent): what is happening and what to do' }),
     engineVersion: z.string().nullable(),
     resonanceCount: z.number().int().nullable(),
-    certificate: runCertificateSchema.nullable().meta({ description: 'Pole searches: how far the pole count is certified, per window piece; null otherwise or before the end' }),
+    certificate: runCertificateSchema
+      .nullable()
+      .meta({ description: 'Pole searches: how far the pole count is certified, per window piece; null otherwise or before the end' }),
     estimate: runEstimateSchema.nullable(),
     stats: z.unknown().meta({ description: 'Engine counters (LU factorisations, Newton steps...), or null' }),
   })
@@ -120,10 +125,10 @@ export const spectrumSchema = z
       .meta({ description: "Lead pairs (indices in the model's lead order) in the order of transmission rows" }),
     transmission: z.array(z.array(z.number())).meta({ description: 'transmission[pair][energy]' }),
     residual: z.array(z.number()),
-    reflection: z
-      .array(z.array(z.number()))
-      .nullable()
-      .meta({ description: "R per lead in the model's lead order: reflection[lead][energy], summed over the lead's open channels; null for runs computed before reflection was kept" }),
+    reflection: z.array(z.array(z.number())).nullable().meta({
+      description:
+        "R per lead in the model's lead order: reflection[lead][energy], summed over the lead's open channels; null for runs computed before reflection was kept",
+    }),
   })
   .meta({ id: 'Spectrum' });
 export type Spectrum = z.infer<typeof spectrumSchema>;
@@ -160,7 +165,6 @@ export const runListQuery = z.object({
 });
 export const runParams = z.object({ groupId: z.uuid(), runId: z.uuid() });
 
-
 export const estimateRunRoute = declareRoute({
   id: 'estimateRun',
   method: 'post',
@@ -183,7 +187,10 @@ export const launchRunRoute = declareRoute({
   params: groupParams,
   body: runRequestSchema,
   answer: json(201, 'Queued', runSchema),
-  errors: { 422: 'run_too_large: estimated above POLEWARD_RUN_MAX_SECONDS; the message says what to shrink', 429: 'too_many_runs: queued + running runs at the limit; see Retry-After' },
+  errors: {
+    422: 'run_too_large: estimated above POLEWARD_RUN_MAX_SECONDS; the message says what to shrink',
+    429: 'too_many_runs: queued + running runs at the limit; see Retry-After',
+  },
 });
 
 export const listRunsRoute = declareRoute({
@@ -244,6 +251,9 @@ export const runEventsRoute = declareRoute({
     200,
     'text/event-stream',
     'An event stream that ends after `done`',
-    z.string().meta({ description: 'Server-sent events: `progress` with { id, status, progress, attempts, error, resonanceCount } on every change, then `done` with { status }.' }),
+    z.string().meta({
+      description:
+        'Server-sent events: `progress` with { id, status, progress, attempts, error, resonanceCount } on every change, then `done` with { status }.',
+    }),
   ),
 });

@@ -64,7 +64,10 @@ export const ensembleRequestSchema = z.object({
   search: searchOptions,
   realisations: z.number().int().min(1).max(1000),
   seed: z.number().int().min(0).max(0xffffffff),
-  roughness: z.object({ rmsNm: z.number().finite().min(0).max(100), correlationNm: z.number().finite().min(0).max(10_000) }).nullable().optional(),
+  roughness: z
+    .object({ rmsNm: z.number().finite().min(0).max(100), correlationNm: z.number().finite().min(0).max(10_000) })
+    .nullable()
+    .optional(),
   jitter: z
     .array(z.object({ kind: z.enum(['dimension', 'lead-width', 'gate-offset']), path: modelPath, sigma: z.number().finite().min(0) }))
     .max(20)
@@ -90,7 +93,13 @@ export const studyEstimateSchema = z.object({
 });
 export type StudyEstimate = z.infer<typeof studyEstimateSchema>;
 
-const stepCounts = z.object({ queued: z.number().int(), running: z.number().int(), completed: z.number().int(), failed: z.number().int(), cancelled: z.number().int() });
+const stepCounts = z.object({
+  queued: z.number().int(),
+  running: z.number().int(),
+  completed: z.number().int(),
+  failed: z.number().int(),
+  cancelled: z.number().int(),
+});
 
 export const studySummarySchema = z.object({
   id: z.uuid(),
@@ -234,7 +243,14 @@ export const ensembleOutcomeSchema = z.object({
       width: distributionSchema,
       quality: distributionSchema,
       sensitivities: z.array(
-        z.object({ path: z.string(), kind: z.string(), energySlope: z.number().nullable(), widthSlope: z.number().nullable(), energySpread: z.number().nullable(), widthSpread: z.number().nullable() }),
+        z.object({
+          path: z.string(),
+          kind: z.string(),
+          energySlope: z.number().nullable(),
+          widthSlope: z.number().nullable(),
+          energySpread: z.number().nullable(),
+          widthSpread: z.number().nullable(),
+        }),
       ),
       residualSpread: z.object({ energy: z.number().nullable(), width: z.number().nullable() }),
       yield: z.object({ fraction: z.number(), within: z.number().int(), total: z.number().int() }).nullable(),
@@ -339,7 +355,7 @@ export const studyStepRoute = declareRoute({
   path: '/groups/{groupId}/studies/{studyId}/steps/{index}',
   access: 'member',
   tag: 'studies',
-  summary: "One step: its model, its poles and their mode images",
+  summary: 'One step: its model, its poles and their mode images',
   params: stepParams,
   answer: json(200, 'The step', studyStepDetailSchema),
 });

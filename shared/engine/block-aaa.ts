@@ -34,13 +34,7 @@ export interface BlockRational {
  * Fits the weights for the given support samples, using the other samples for the
  * least-squares condition (needs at least as many other samples as support points).
  */
-export function fitBlockRational(
-  size: number,
-  supportZ: Float64Array,
-  supportF: Float64Array[],
-  otherZ: Float64Array,
-  otherF: Float64Array[],
-): BlockRational {
+export function fitBlockRational(size: number, supportZ: Float64Array, supportF: Float64Array[], otherZ: Float64Array, otherF: Float64Array[]): BlockRational {
   const M = size;
   const m = supportF.length;
   const q = otherF.length;
@@ -96,7 +90,13 @@ export function fitBlockRational(
 }
 
 /** R(z) into out (M×M); also returns the scalar-free pieces D(z) and N(z) when asked. */
-export function evaluateBlockRational(r: BlockRational, zRe: number, zIm: number, out: Float64Array, parts?: { D: Float64Array; N: Float64Array }): Float64Array {
+export function evaluateBlockRational(
+  r: BlockRational,
+  zRe: number,
+  zIm: number,
+  out: Float64Array,
+  parts?: { D: Float64Array; N: Float64Array },
+): Float64Array {
   const M = r.size;
   const m = r.weights.length;
   for (let j = 0; j < m; j++) {
@@ -270,9 +270,10 @@ function householderR(rows: number, cols: number, A0: Float64Array): Float64Arra
     }
   }
   const R = new Float64Array(2 * cols * cols);
-  for (let i = 0; i < cols; i++) for (let j = i; j < cols; j++) {
-    R[2 * (i * cols + j)] = A[2 * (i * cols + j)];
-    R[2 * (i * cols + j) + 1] = A[2 * (i * cols + j) + 1];
-  }
+  for (let i = 0; i < cols; i++)
+    for (let j = i; j < cols; j++) {
+      R[2 * (i * cols + j)] = A[2 * (i * cols + j)];
+      R[2 * (i * cols + j) + 1] = A[2 * (i * cols + j) + 1];
+    }
   return R;
 }

@@ -206,7 +206,17 @@ export function closedCavityEigenvalues(lattice: CavityLattice, options: ClosedC
       start = new Float64Array(2 * n);
       for (let k = 0; k < 2 * n; k++) start[k] = siteUniform(seed + 7919 * rounds, k, 17) - 0.5;
     }
-    const round = lanczosRound(lu, n, start, locked.map((p) => p.vector), count, maxBasis, tolerance, options, counter);
+    const round = lanczosRound(
+      lu,
+      n,
+      start,
+      locked.map((p) => p.vector),
+      count,
+      maxBasis,
+      tolerance,
+      options,
+      counter,
+    );
     rounds++;
     const kth = locked.length >= count ? Math.abs([...locked].sort((a, b) => Math.abs(b.theta) - Math.abs(a.theta))[count - 1].theta) : 0;
     const best = round.converged.reduce((m, p) => Math.max(m, Math.abs(p.theta)), 0);

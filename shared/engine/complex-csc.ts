@@ -20,19 +20,11 @@ export interface ComplexCsc {
  *
  * Cost: O(n + k) time and memory for k triplets (two counting sorts).
  */
-export function cscFromTriplets(
-  n: number,
-  rows: ArrayLike<number>,
-  cols: ArrayLike<number>,
-  re: ArrayLike<number>,
-  im: ArrayLike<number>,
-): ComplexCsc {
+export function cscFromTriplets(n: number, rows: ArrayLike<number>, cols: ArrayLike<number>, re: ArrayLike<number>, im: ArrayLike<number>): ComplexCsc {
   if (!Number.isInteger(n) || n < 0) throw new RangeError(`cscFromTriplets: n must be a non-negative integer, got ${n}`);
   const k = rows.length;
   if (cols.length !== k || re.length !== k || im.length !== k) {
-    throw new RangeError(
-      `cscFromTriplets: rows, cols, re and im must have the same length (got ${k}, ${cols.length}, ${re.length}, ${im.length})`,
-    );
+    throw new RangeError(`cscFromTriplets: rows, cols, re and im must have the same length (got ${k}, ${cols.length}, ${re.length}, ${im.length})`);
   }
   for (let t = 0; t < k; t++) {
     const r = rows[t];

@@ -98,10 +98,14 @@ export function complexEigenvalues(r: number, A: Float64Array): Float64Array {
     }
     if (++iter > 300) throw new Error(`complexEigenvalues: QR did not converge (size ${r})`);
     // Wilkinson shift from the trailing 2×2 block
-    const ar = H[re(hi - 1, hi - 1)], ai = H[re(hi - 1, hi - 1) + 1];
-    const br = H[re(hi - 1, hi)], bi = H[re(hi - 1, hi) + 1];
-    const cr = H[re(hi, hi - 1)], ci = H[re(hi, hi - 1) + 1];
-    const dr = H[re(hi, hi)], di = H[re(hi, hi) + 1];
+    const ar = H[re(hi - 1, hi - 1)],
+      ai = H[re(hi - 1, hi - 1) + 1];
+    const br = H[re(hi - 1, hi)],
+      bi = H[re(hi - 1, hi) + 1];
+    const cr = H[re(hi, hi - 1)],
+      ci = H[re(hi, hi - 1) + 1];
+    const dr = H[re(hi, hi)],
+      di = H[re(hi, hi) + 1];
     const hr = 0.5 * (ar - dr);
     const hI = 0.5 * (ai - di);
     // disc = h² + bc
@@ -111,8 +115,10 @@ export function complexEigenvalues(r: number, A: Float64Array): Float64Array {
     const sqR = Math.sqrt(Math.max(0, 0.5 * (mod + discR)));
     const sqI = Math.sqrt(Math.max(0, 0.5 * (mod - discR))) * (discI < 0 ? -1 : 1);
     // pick the eigenvalue d − (bc)/(h ± sqrt) closest to d: μ = (a+d)/2 ± sqrt, nearer d
-    const m1r = 0.5 * (ar + dr) + sqR, m1i = 0.5 * (ai + di) + sqI;
-    const m2r = 0.5 * (ar + dr) - sqR, m2i = 0.5 * (ai + di) - sqI;
+    const m1r = 0.5 * (ar + dr) + sqR,
+      m1i = 0.5 * (ai + di) + sqI;
+    const m2r = 0.5 * (ar + dr) - sqR,
+      m2i = 0.5 * (ai + di) - sqI;
     let muR = Math.hypot(m1r - dr, m1i - di) < Math.hypot(m2r - dr, m2i - di) ? m1r : m2r;
     let muI = Math.hypot(m1r - dr, m1i - di) < Math.hypot(m2r - dr, m2i - di) ? m1i : m2i;
     if (iter % 10 === 0) {
@@ -125,11 +131,15 @@ export function complexEigenvalues(r: number, A: Float64Array): Float64Array {
       H[re(k, k) + 1] -= muI;
     }
     for (let k = l; k < hi; k++) {
-      const xr = H[re(k, k)], xi = H[re(k, k) + 1];
-      const yr = H[re(k + 1, k)], yi = H[re(k + 1, k) + 1];
+      const xr = H[re(k, k)],
+        xi = H[re(k, k) + 1];
+      const yr = H[re(k + 1, k)],
+        yi = H[re(k + 1, k) + 1];
       const xa = Math.hypot(xr, xi);
       const nrm = Math.hypot(xa, Math.hypot(yr, yi));
-      let c = 0, sR = 1, sI = 0;
+      let c = 0,
+        sR = 1,
+        sI = 0;
       if (nrm > 0) {
         if (xa === 0) {
           c = 0;
@@ -138,7 +148,8 @@ export function complexEigenvalues(r: number, A: Float64Array): Float64Array {
         } else {
           c = xa / nrm;
           // s = (x/|x|)·conj(y)/nrm
-          const ur = xr / xa, ui = xi / xa;
+          const ur = xr / xa,
+            ui = xi / xa;
           sR = (ur * yr + ui * yi) / nrm;
           sI = (ui * yr - ur * yi) / nrm;
         }
@@ -147,8 +158,10 @@ export function complexEigenvalues(r: number, A: Float64Array): Float64Array {
       snr[k] = sR;
       sni[k] = sI;
       for (let j = k; j <= hi; j++) {
-        const pr = H[re(k, j)], pi = H[re(k, j) + 1];
-        const qr = H[re(k + 1, j)], qi = H[re(k + 1, j) + 1];
+        const pr = H[re(k, j)],
+          pi = H[re(k, j) + 1];
+        const qr = H[re(k + 1, j)],
+          qi = H[re(k + 1, j) + 1];
         // row k: c·p + s·q ; row k+1: −conj(s)·p + c·q
         H[re(k, j)] = c * pr + (sR * qr - sI * qi);
         H[re(k, j) + 1] = c * pi + (sR * qi + sI * qr);
@@ -157,11 +170,15 @@ export function complexEigenvalues(r: number, A: Float64Array): Float64Array {
       }
     }
     for (let k = l; k < hi; k++) {
-      const c = cs[k], sR = snr[k], sI = sni[k];
+      const c = cs[k],
+        sR = snr[k],
+        sI = sni[k];
       const top = Math.min(k + 2, hi);
       for (let i = l; i <= top; i++) {
-        const xr = H[re(i, k)], xi = H[re(i, k) + 1];
-        const yr = H[re(i, k + 1)], yi = H[re(i, k + 1) + 1];
+        const xr = H[re(i, k)],
+          xi = H[re(i, k) + 1];
+        const yr = H[re(i, k + 1)],
+          yi = H[re(i, k + 1) + 1];
         // col k: x·c + y·conj(s) ; col k+1: −x·s + y·c
         H[re(i, k)] = xr * c + (yr * sR + yi * sI);
         H[re(i, k) + 1] = xi * c + (yi * sR - yr * sI);

@@ -33,12 +33,7 @@ export interface ContourEigenvalues {
  * @param moments K, Hankel blocks per side (ℓK ≥ the expected count + margin)
  * @param rankTolerance singular values below rankTolerance·σ_1 are treated as noise
  */
-export function contourEigenvalues(
-  contour: Contour,
-  probes: number,
-  moments: number,
-  rankTolerance = 1e-9,
-): ContourEigenvalues {
+export function contourEigenvalues(contour: Contour, probes: number, moments: number, rankTolerance = 1e-9): ContourEigenvalues {
   const l = probes;
   const K = moments;
   const cRe = 0.5 * (contour.x0 + contour.x1);

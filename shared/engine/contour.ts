@@ -184,9 +184,7 @@ export function verticalEdge(x: number, y0: number, y1: number, grading: EdgeGra
     for (let k = 0; k + 1 < above.length; k++) up.push(freshPanel(x, above[k], x, above[k + 1], k === 0 ? 'a' : undefined));
     return referenceVertical(up, downward);
   }
-  const breaks = grading.branchGap !== undefined
-    ? gradedBreaks(y0, y1, grading.branchGap, grading.maxPanel)
-    : uniformBreaks(y0, y1, grading.maxPanel);
+  const breaks = grading.branchGap !== undefined ? gradedBreaks(y0, y1, grading.branchGap, grading.maxPanel) : uniformBreaks(y0, y1, grading.maxPanel);
   const up: Panel[] = [];
   for (let k = 0; k + 1 < breaks.length; k++) up.push(freshPanel(x, breaks[k], x, breaks[k + 1]));
   return referenceVertical(up, downward);
@@ -209,8 +207,14 @@ export function splitRef(ref: PanelRef): [PanelRef, PanelRef] {
   const first = freshPanel(p.aRe, p.aIm, mRe, mIm, p.branch === 'a' ? 'a' : undefined);
   const second = freshPanel(mRe, mIm, p.bRe, p.bIm, p.branch === 'b' ? 'b' : undefined);
   return ref.reversed
-    ? [{ panel: second, reversed: true }, { panel: first, reversed: true }]
-    : [{ panel: first, reversed: false }, { panel: second, reversed: false }];
+    ? [
+        { panel: second, reversed: true },
+        { panel: first, reversed: true },
+      ]
+    : [
+        { panel: first, reversed: false },
+        { panel: second, reversed: false },
+      ];
 }
 
 /** Splits the panel of ref into k equal parts, returned in traversal order. */

@@ -26,24 +26,36 @@ export function eliminateColumn(f: Float64Array, m: number, j: number, q0: numbe
     const c2 = c1 + 2 * m;
     const c3 = c2 + 2 * m;
     const a = cj + 2 * q;
-    const u0r = f[a], u0i = f[a + 1], u1r = f[a + 2], u1i = f[a + 3];
-    const u2r = f[a + 4], u2i = f[a + 5], u3r = f[a + 6], u3i = f[a + 7];
+    const u0r = f[a],
+      u0i = f[a + 1],
+      u1r = f[a + 2],
+      u1i = f[a + 3];
+    const u2r = f[a + 4],
+      u2i = f[a + 5],
+      u3r = f[a + 6],
+      u3i = f[a + 7];
     if (u0r === 0 && u0i === 0 && u1r === 0 && u1i === 0 && u2r === 0 && u2i === 0 && u3r === 0 && u3i === 0) continue;
     for (let r = 2 * (q + 4); r < end; r += 2) {
-      const x0r = f[c0 + r], x0i = f[c0 + r + 1];
-      const x1r = f[c1 + r], x1i = f[c1 + r + 1];
-      const x2r = f[c2 + r], x2i = f[c2 + r + 1];
-      const x3r = f[c3 + r], x3i = f[c3 + r + 1];
+      const x0r = f[c0 + r],
+        x0i = f[c0 + r + 1];
+      const x1r = f[c1 + r],
+        x1i = f[c1 + r + 1];
+      const x2r = f[c2 + r],
+        x2i = f[c2 + r + 1];
+      const x3r = f[c3 + r],
+        x3i = f[c3 + r + 1];
       f[cj + r] -= x0r * u0r - x0i * u0i + x1r * u1r - x1i * u1i + x2r * u2r - x2i * u2i + x3r * u3r - x3i * u3i;
       f[cj + r + 1] -= x0r * u0i + x0i * u0r + x1r * u1i + x1i * u1r + x2r * u2i + x2i * u2r + x3r * u3i + x3i * u3r;
     }
   }
   for (; q < q1; q++) {
     const c0 = 2 * q * m;
-    const ur = f[cj + 2 * q], ui = f[cj + 2 * q + 1];
+    const ur = f[cj + 2 * q],
+      ui = f[cj + 2 * q + 1];
     if (ur === 0 && ui === 0) continue;
     for (let r = 2 * (q + 1); r < end; r += 2) {
-      const xr = f[c0 + r], xi = f[c0 + r + 1];
+      const xr = f[c0 + r],
+        xi = f[c0 + r + 1];
       f[cj + r] -= xr * ur - xi * ui;
       f[cj + r + 1] -= xr * ui + xi * ur;
     }
@@ -69,19 +81,50 @@ export function eliminateColumnPair(f: Float64Array, m: number, j: number, q0: n
     const c3 = c2 + 2 * m;
     const a = cj + 2 * q;
     const b = ck + 2 * q;
-    const u0r = f[a], u0i = f[a + 1], u1r = f[a + 2], u1i = f[a + 3];
-    const u2r = f[a + 4], u2i = f[a + 5], u3r = f[a + 6], u3i = f[a + 7];
-    const v0r = f[b], v0i = f[b + 1], v1r = f[b + 2], v1i = f[b + 3];
-    const v2r = f[b + 4], v2i = f[b + 5], v3r = f[b + 6], v3i = f[b + 7];
+    const u0r = f[a],
+      u0i = f[a + 1],
+      u1r = f[a + 2],
+      u1i = f[a + 3];
+    const u2r = f[a + 4],
+      u2i = f[a + 5],
+      u3r = f[a + 6],
+      u3i = f[a + 7];
+    const v0r = f[b],
+      v0i = f[b + 1],
+      v1r = f[b + 2],
+      v1i = f[b + 3];
+    const v2r = f[b + 4],
+      v2i = f[b + 5],
+      v3r = f[b + 6],
+      v3i = f[b + 7];
     if (
-      u0r === 0 && u0i === 0 && u1r === 0 && u1i === 0 && u2r === 0 && u2i === 0 && u3r === 0 && u3i === 0 &&
-      v0r === 0 && v0i === 0 && v1r === 0 && v1i === 0 && v2r === 0 && v2i === 0 && v3r === 0 && v3i === 0
-    ) continue;
+      u0r === 0 &&
+      u0i === 0 &&
+      u1r === 0 &&
+      u1i === 0 &&
+      u2r === 0 &&
+      u2i === 0 &&
+      u3r === 0 &&
+      u3i === 0 &&
+      v0r === 0 &&
+      v0i === 0 &&
+      v1r === 0 &&
+      v1i === 0 &&
+      v2r === 0 &&
+      v2i === 0 &&
+      v3r === 0 &&
+      v3i === 0
+    )
+      continue;
     for (let r = 2 * (q + 4); r < end; r += 2) {
-      const x0r = f[c0 + r], x0i = f[c0 + r + 1];
-      const x1r = f[c1 + r], x1i = f[c1 + r + 1];
-      const x2r = f[c2 + r], x2i = f[c2 + r + 1];
-      const x3r = f[c3 + r], x3i = f[c3 + r + 1];
+      const x0r = f[c0 + r],
+        x0i = f[c0 + r + 1];
+      const x1r = f[c1 + r],
+        x1i = f[c1 + r + 1];
+      const x2r = f[c2 + r],
+        x2i = f[c2 + r + 1];
+      const x3r = f[c3 + r],
+        x3i = f[c3 + r + 1];
       f[cj + r] -= x0r * u0r - x0i * u0i + x1r * u1r - x1i * u1i + x2r * u2r - x2i * u2i + x3r * u3r - x3i * u3i;
       f[cj + r + 1] -= x0r * u0i + x0i * u0r + x1r * u1i + x1i * u1r + x2r * u2i + x2i * u2r + x3r * u3i + x3i * u3r;
       f[ck + r] -= x0r * v0r - x0i * v0i + x1r * v1r - x1i * v1i + x2r * v2r - x2i * v2i + x3r * v3r - x3i * v3i;
@@ -103,7 +146,8 @@ function triangle4(f: Float64Array, m: number, cj: number, q: number): void {
   const c1 = c0 + 2 * m;
   const c2 = c1 + 2 * m;
   const a0 = cj + 2 * q;
-  const u0r = f[a0], u0i = f[a0 + 1];
+  const u0r = f[a0],
+    u0i = f[a0 + 1];
   let l = c0 + 2 * (q + 1);
   const u1r = f[a0 + 2] - (f[l] * u0r - f[l + 1] * u0i);
   const u1i = f[a0 + 3] - (f[l] * u0i + f[l + 1] * u0r);
@@ -168,7 +212,8 @@ export function factorFront(
       let best = -1;
       let bestMag = 0;
       for (let r = p; r < kFs; r++) {
-        const xr = f[cp + 2 * r], xi = f[cp + 2 * r + 1];
+        const xr = f[cp + 2 * r],
+          xi = f[cp + 2 * r + 1];
         const mag = xr * xr + xi * xi;
         if (mag > bestMag) {
           bestMag = mag;
@@ -177,11 +222,13 @@ export function factorFront(
       }
       let colMag = bestMag;
       for (let r = kFs; r < m; r++) {
-        const xr = f[cp + 2 * r], xi = f[cp + 2 * r + 1];
+        const xr = f[cp + 2 * r],
+          xi = f[cp + 2 * r + 1];
         const mag = xr * xr + xi * xi;
         if (mag > colMag) colMag = mag;
       }
-      const dr = f[cp + 2 * p], di = f[cp + 2 * p + 1];
+      const dr = f[cp + 2 * p],
+        di = f[cp + 2 * p + 1];
       const diagMag = dr * dr + di * di;
       let piv = -1;
       if (diagMag > 0 && diagMag >= u2 * colMag) piv = p;
@@ -195,11 +242,14 @@ export function factorFront(
       }
       if (piv !== p) swapRows(f, m, p, piv, rowList);
       // Multipliers: column p below the pivot times 1/pivot.
-      const pr = f[cp + 2 * p], pi = f[cp + 2 * p + 1];
+      const pr = f[cp + 2 * p],
+        pi = f[cp + 2 * p + 1];
       const den = pr * pr + pi * pi;
-      const ir = pr / den, ii = -pi / den;
+      const ir = pr / den,
+        ii = -pi / den;
       for (let r = 2 * (p + 1); r < 2 * m; r += 2) {
-        const xr = f[cp + r], xi = f[cp + r + 1];
+        const xr = f[cp + r],
+          xi = f[cp + r + 1];
         f[cp + r] = xr * ir - xi * ii;
         f[cp + r + 1] = xr * ii + xi * ir;
       }
@@ -223,7 +273,8 @@ function swapRows(f: Float64Array, m: number, a: number, b: number, rowList: Int
   for (let c = 0; c < m; c++) {
     const ia = 2 * (c * m + a);
     const ib = 2 * (c * m + b);
-    const xr = f[ia], xi = f[ia + 1];
+    const xr = f[ia],
+      xi = f[ia + 1];
     f[ia] = f[ib];
     f[ia + 1] = f[ib + 1];
     f[ib] = xr;
@@ -260,7 +311,8 @@ function swapColumns(f: Float64Array, m: number, a: number, b: number, colList: 
 
 /** Unit lower 4×4 triangle of pivots t..t+3 (l0 = 2t; c0, c1, c2 their columns) applied to x[p..p+7] in place. */
 function lowerTriangle4(f: Float64Array, c0: number, c1: number, c2: number, l0: number, x: Float64Array, p: number): void {
-  const a0r = x[p], a0i = x[p + 1];
+  const a0r = x[p],
+    a0i = x[p + 1];
   let l = l0 + 2;
   const a1r = x[p + 2] - (f[c0 + l] * a0r - f[c0 + l + 1] * a0i);
   const a1i = x[p + 3] - (f[c0 + l] * a0i + f[c0 + l + 1] * a0r);
@@ -281,22 +333,27 @@ function lowerTriangle4(f: Float64Array, c0: number, c1: number, c2: number, l0:
  * solved in place on x[p..p+7], last unknown first.
  */
 function upperTriangle4(f: Float64Array, c0: number, c1: number, c2: number, c3: number, d: number, x: Float64Array, p: number): void {
-  let br = x[p + 6], bi = x[p + 7];
-  let dr = f[c3 + d + 6], di = f[c3 + d + 7];
+  let br = x[p + 6],
+    bi = x[p + 7];
+  let dr = f[c3 + d + 6],
+    di = f[c3 + d + 7];
   let den = dr * dr + di * di;
-  const x3r = (br * dr + bi * di) / den, x3i = (bi * dr - br * di) / den;
+  const x3r = (br * dr + bi * di) / den,
+    x3i = (bi * dr - br * di) / den;
   br = x[p + 4] - (f[c3 + d + 4] * x3r - f[c3 + d + 5] * x3i);
   bi = x[p + 5] - (f[c3 + d + 4] * x3i + f[c3 + d + 5] * x3r);
   dr = f[c2 + d + 4];
   di = f[c2 + d + 5];
   den = dr * dr + di * di;
-  const x2r = (br * dr + bi * di) / den, x2i = (bi * dr - br * di) / den;
+  const x2r = (br * dr + bi * di) / den,
+    x2i = (bi * dr - br * di) / den;
   br = x[p + 2] - (f[c3 + d + 2] * x3r - f[c3 + d + 3] * x3i) - (f[c2 + d + 2] * x2r - f[c2 + d + 3] * x2i);
   bi = x[p + 3] - (f[c3 + d + 2] * x3i + f[c3 + d + 3] * x3r) - (f[c2 + d + 2] * x2i + f[c2 + d + 3] * x2r);
   dr = f[c1 + d + 2];
   di = f[c1 + d + 3];
   den = dr * dr + di * di;
-  const x1r = (br * dr + bi * di) / den, x1i = (bi * dr - br * di) / den;
+  const x1r = (br * dr + bi * di) / den,
+    x1i = (bi * dr - br * di) / den;
   br = x[p] - (f[c3 + d] * x3r - f[c3 + d + 1] * x3i) - (f[c2 + d] * x2r - f[c2 + d + 1] * x2i) - (f[c1 + d] * x1r - f[c1 + d + 1] * x1i);
   bi = x[p + 1] - (f[c3 + d] * x3i + f[c3 + d + 1] * x3r) - (f[c2 + d] * x2i + f[c2 + d + 1] * x2r) - (f[c1 + d] * x1i + f[c1 + d + 1] * x1r);
   dr = f[c0 + d];
@@ -314,8 +371,10 @@ function upperTriangle4(f: Float64Array, c0: number, c1: number, c2: number, c3:
 
 /** x[p..p+1] ← x[p..p+1] / (f[c] + i·f[c+1]). */
 function divideBy(f: Float64Array, c: number, x: Float64Array, p: number): void {
-  const br = x[p], bi = x[p + 1];
-  const dr = f[c], di = f[c + 1];
+  const br = x[p],
+    bi = x[p + 1];
+  const dr = f[c],
+    di = f[c + 1];
   const den = dr * dr + di * di;
   x[p] = (br * dr + bi * di) / den;
   x[p + 1] = (bi * dr - br * di) / den;
@@ -336,22 +395,41 @@ export function lowerSolveFront(f: Float64Array, v: number, m: number, k: number
     const c3 = c2 + 2 * m;
     const p = xo + 2 * t;
     lowerTriangle4(f, c0, c1, c2, 2 * t, x, p);
-    const a0r = x[p], a0i = x[p + 1], a1r = x[p + 2], a1i = x[p + 3];
-    const a2r = x[p + 4], a2i = x[p + 5], a3r = x[p + 6], a3i = x[p + 7];
+    const a0r = x[p],
+      a0i = x[p + 1],
+      a1r = x[p + 2],
+      a1i = x[p + 3];
+    const a2r = x[p + 4],
+      a2i = x[p + 5],
+      a3r = x[p + 6],
+      a3i = x[p + 7];
     // Right-hand sides are often zero on most of the lattice (coupling columns, probes on a mouth).
     if (a0r === 0 && a0i === 0 && a1r === 0 && a1i === 0 && a2r === 0 && a2i === 0 && a3r === 0 && a3i === 0) continue;
     for (let r = 2 * t + 8; r < end; r += 2) {
       x[xo + r] -=
-        f[c0 + r] * a0r - f[c0 + r + 1] * a0i + f[c1 + r] * a1r - f[c1 + r + 1] * a1i +
-        f[c2 + r] * a2r - f[c2 + r + 1] * a2i + f[c3 + r] * a3r - f[c3 + r + 1] * a3i;
+        f[c0 + r] * a0r -
+        f[c0 + r + 1] * a0i +
+        f[c1 + r] * a1r -
+        f[c1 + r + 1] * a1i +
+        f[c2 + r] * a2r -
+        f[c2 + r + 1] * a2i +
+        f[c3 + r] * a3r -
+        f[c3 + r + 1] * a3i;
       x[xo + r + 1] -=
-        f[c0 + r] * a0i + f[c0 + r + 1] * a0r + f[c1 + r] * a1i + f[c1 + r + 1] * a1r +
-        f[c2 + r] * a2i + f[c2 + r + 1] * a2r + f[c3 + r] * a3i + f[c3 + r + 1] * a3r;
+        f[c0 + r] * a0i +
+        f[c0 + r + 1] * a0r +
+        f[c1 + r] * a1i +
+        f[c1 + r + 1] * a1r +
+        f[c2 + r] * a2i +
+        f[c2 + r + 1] * a2r +
+        f[c3 + r] * a3i +
+        f[c3 + r + 1] * a3r;
     }
   }
   for (; t < k; t++) {
     const c0 = v + 2 * t * m;
-    const ar = x[xo + 2 * t], ai = x[xo + 2 * t + 1];
+    const ar = x[xo + 2 * t],
+      ai = x[xo + 2 * t + 1];
     if (ar === 0 && ai === 0) continue;
     for (let r = 2 * t + 2; r < end; r += 2) {
       x[xo + r] -= f[c0 + r] * ar - f[c0 + r + 1] * ai;
@@ -373,13 +451,31 @@ export function lowerSolveFrontPair(f: Float64Array, v: number, m: number, k: nu
     const q = yo + 2 * t;
     lowerTriangle4(f, c0, c1, c2, 2 * t, x, p);
     lowerTriangle4(f, c0, c1, c2, 2 * t, x, q);
-    const a0r = x[p], a0i = x[p + 1], a1r = x[p + 2], a1i = x[p + 3];
-    const a2r = x[p + 4], a2i = x[p + 5], a3r = x[p + 6], a3i = x[p + 7];
-    const b0r = x[q], b0i = x[q + 1], b1r = x[q + 2], b1i = x[q + 3];
-    const b2r = x[q + 4], b2i = x[q + 5], b3r = x[q + 6], b3i = x[q + 7];
+    const a0r = x[p],
+      a0i = x[p + 1],
+      a1r = x[p + 2],
+      a1i = x[p + 3];
+    const a2r = x[p + 4],
+      a2i = x[p + 5],
+      a3r = x[p + 6],
+      a3i = x[p + 7];
+    const b0r = x[q],
+      b0i = x[q + 1],
+      b1r = x[q + 2],
+      b1i = x[q + 3];
+    const b2r = x[q + 4],
+      b2i = x[q + 5],
+      b3r = x[q + 6],
+      b3i = x[q + 7];
     for (let r = 2 * t + 8; r < end; r += 2) {
-      const l0r = f[c0 + r], l0i = f[c0 + r + 1], l1r = f[c1 + r], l1i = f[c1 + r + 1];
-      const l2r = f[c2 + r], l2i = f[c2 + r + 1], l3r = f[c3 + r], l3i = f[c3 + r + 1];
+      const l0r = f[c0 + r],
+        l0i = f[c0 + r + 1],
+        l1r = f[c1 + r],
+        l1i = f[c1 + r + 1];
+      const l2r = f[c2 + r],
+        l2i = f[c2 + r + 1],
+        l3r = f[c3 + r],
+        l3i = f[c3 + r + 1];
       x[xo + r] -= l0r * a0r - l0i * a0i + l1r * a1r - l1i * a1i + l2r * a2r - l2i * a2i + l3r * a3r - l3i * a3i;
       x[xo + r + 1] -= l0r * a0i + l0i * a0r + l1r * a1i + l1i * a1r + l2r * a2i + l2i * a2r + l3r * a3i + l3i * a3r;
       x[yo + r] -= l0r * b0r - l0i * b0i + l1r * b1r - l1i * b1i + l2r * b2r - l2i * b2i + l3r * b3r - l3i * b3i;
@@ -388,10 +484,13 @@ export function lowerSolveFrontPair(f: Float64Array, v: number, m: number, k: nu
   }
   for (; t < k; t++) {
     const c0 = v + 2 * t * m;
-    const ar = x[xo + 2 * t], ai = x[xo + 2 * t + 1];
-    const br = x[yo + 2 * t], bi = x[yo + 2 * t + 1];
+    const ar = x[xo + 2 * t],
+      ai = x[xo + 2 * t + 1];
+    const br = x[yo + 2 * t],
+      bi = x[yo + 2 * t + 1];
     for (let r = 2 * t + 2; r < end; r += 2) {
-      const lr = f[c0 + r], li = f[c0 + r + 1];
+      const lr = f[c0 + r],
+        li = f[c0 + r + 1];
       x[xo + r] -= lr * ar - li * ai;
       x[xo + r + 1] -= lr * ai + li * ar;
       x[yo + r] -= lr * br - li * bi;
@@ -415,22 +514,41 @@ export function upperSolveFront(f: Float64Array, v: number, m: number, k: number
     const c2 = c1 + kk;
     const c3 = c2 + kk;
     const p = xo + kk + 2 * j;
-    const z0r = x[p], z0i = x[p + 1], z1r = x[p + 2], z1i = x[p + 3];
-    const z2r = x[p + 4], z2i = x[p + 5], z3r = x[p + 6], z3i = x[p + 7];
+    const z0r = x[p],
+      z0i = x[p + 1],
+      z1r = x[p + 2],
+      z1i = x[p + 3];
+    const z2r = x[p + 4],
+      z2i = x[p + 5],
+      z3r = x[p + 6],
+      z3i = x[p + 7];
     if (z0r === 0 && z0i === 0 && z1r === 0 && z1i === 0 && z2r === 0 && z2i === 0 && z3r === 0 && z3i === 0) continue;
     for (let r = 0; r < kk; r += 2) {
       x[xo + r] -=
-        f[c0 + r] * z0r - f[c0 + r + 1] * z0i + f[c1 + r] * z1r - f[c1 + r + 1] * z1i +
-        f[c2 + r] * z2r - f[c2 + r + 1] * z2i + f[c3 + r] * z3r - f[c3 + r + 1] * z3i;
+        f[c0 + r] * z0r -
+        f[c0 + r + 1] * z0i +
+        f[c1 + r] * z1r -
+        f[c1 + r + 1] * z1i +
+        f[c2 + r] * z2r -
+        f[c2 + r + 1] * z2i +
+        f[c3 + r] * z3r -
+        f[c3 + r + 1] * z3i;
       x[xo + r + 1] -=
-        f[c0 + r] * z0i + f[c0 + r + 1] * z0r + f[c1 + r] * z1i + f[c1 + r + 1] * z1r +
-        f[c2 + r] * z2i + f[c2 + r + 1] * z2r + f[c3 + r] * z3i + f[c3 + r + 1] * z3r;
+        f[c0 + r] * z0i +
+        f[c0 + r + 1] * z0r +
+        f[c1 + r] * z1i +
+        f[c1 + r + 1] * z1r +
+        f[c2 + r] * z2i +
+        f[c2 + r + 1] * z2r +
+        f[c3 + r] * z3i +
+        f[c3 + r + 1] * z3r;
     }
   }
   for (; j < rest; j++) {
     const c0 = u0 + j * kk;
     const p = xo + kk + 2 * j;
-    const zr = x[p], zi = x[p + 1];
+    const zr = x[p],
+      zi = x[p + 1];
     if (zr === 0 && zi === 0) continue;
     for (let r = 0; r < kk; r += 2) {
       x[xo + r] -= f[c0 + r] * zr - f[c0 + r + 1] * zi;
@@ -448,23 +566,42 @@ export function upperSolveFront(f: Float64Array, v: number, m: number, k: number
     const c3 = c2 + m2;
     const p = xo + d;
     upperTriangle4(f, c0, c1, c2, c3, d, x, p);
-    const x0r = x[p], x0i = x[p + 1], x1r = x[p + 2], x1i = x[p + 3];
-    const x2r = x[p + 4], x2i = x[p + 5], x3r = x[p + 6], x3i = x[p + 7];
+    const x0r = x[p],
+      x0i = x[p + 1],
+      x1r = x[p + 2],
+      x1i = x[p + 3];
+    const x2r = x[p + 4],
+      x2i = x[p + 5],
+      x3r = x[p + 6],
+      x3i = x[p + 7];
     if (x0r === 0 && x0i === 0 && x1r === 0 && x1i === 0 && x2r === 0 && x2i === 0 && x3r === 0 && x3i === 0) continue;
     for (let r = 0; r < d; r += 2) {
       x[xo + r] -=
-        f[c0 + r] * x0r - f[c0 + r + 1] * x0i + f[c1 + r] * x1r - f[c1 + r + 1] * x1i +
-        f[c2 + r] * x2r - f[c2 + r + 1] * x2i + f[c3 + r] * x3r - f[c3 + r + 1] * x3i;
+        f[c0 + r] * x0r -
+        f[c0 + r + 1] * x0i +
+        f[c1 + r] * x1r -
+        f[c1 + r + 1] * x1i +
+        f[c2 + r] * x2r -
+        f[c2 + r + 1] * x2i +
+        f[c3 + r] * x3r -
+        f[c3 + r + 1] * x3i;
       x[xo + r + 1] -=
-        f[c0 + r] * x0i + f[c0 + r + 1] * x0r + f[c1 + r] * x1i + f[c1 + r + 1] * x1r +
-        f[c2 + r] * x2i + f[c2 + r + 1] * x2r + f[c3 + r] * x3i + f[c3 + r + 1] * x3r;
+        f[c0 + r] * x0i +
+        f[c0 + r + 1] * x0r +
+        f[c1 + r] * x1i +
+        f[c1 + r + 1] * x1r +
+        f[c2 + r] * x2i +
+        f[c2 + r + 1] * x2r +
+        f[c3 + r] * x3i +
+        f[c3 + r + 1] * x3r;
     }
   }
   for (; t > 0; t--) {
     const q = t - 1;
     const c = v + q * m2;
     divideBy(f, c + 2 * q, x, xo + 2 * q);
-    const ar = x[xo + 2 * q], ai = x[xo + 2 * q + 1];
+    const ar = x[xo + 2 * q],
+      ai = x[xo + 2 * q + 1];
     if (ar === 0 && ai === 0) continue;
     for (let r = 0; r < 2 * q; r += 2) {
       x[xo + r] -= f[c + r] * ar - f[c + r + 1] * ai;
@@ -486,13 +623,31 @@ export function upperSolveFrontPair(f: Float64Array, v: number, m: number, k: nu
     const c3 = c2 + kk;
     const p = xo + kk + 2 * j;
     const q = yo + kk + 2 * j;
-    const a0r = x[p], a0i = x[p + 1], a1r = x[p + 2], a1i = x[p + 3];
-    const a2r = x[p + 4], a2i = x[p + 5], a3r = x[p + 6], a3i = x[p + 7];
-    const b0r = x[q], b0i = x[q + 1], b1r = x[q + 2], b1i = x[q + 3];
-    const b2r = x[q + 4], b2i = x[q + 5], b3r = x[q + 6], b3i = x[q + 7];
+    const a0r = x[p],
+      a0i = x[p + 1],
+      a1r = x[p + 2],
+      a1i = x[p + 3];
+    const a2r = x[p + 4],
+      a2i = x[p + 5],
+      a3r = x[p + 6],
+      a3i = x[p + 7];
+    const b0r = x[q],
+      b0i = x[q + 1],
+      b1r = x[q + 2],
+      b1i = x[q + 3];
+    const b2r = x[q + 4],
+      b2i = x[q + 5],
+      b3r = x[q + 6],
+      b3i = x[q + 7];
     for (let r = 0; r < kk; r += 2) {
-      const l0r = f[c0 + r], l0i = f[c0 + r + 1], l1r = f[c1 + r], l1i = f[c1 + r + 1];
-      const l2r = f[c2 + r], l2i = f[c2 + r + 1], l3r = f[c3 + r], l3i = f[c3 + r + 1];
+      const l0r = f[c0 + r],
+        l0i = f[c0 + r + 1],
+        l1r = f[c1 + r],
+        l1i = f[c1 + r + 1];
+      const l2r = f[c2 + r],
+        l2i = f[c2 + r + 1],
+        l3r = f[c3 + r],
+        l3i = f[c3 + r + 1];
       x[xo + r] -= l0r * a0r - l0i * a0i + l1r * a1r - l1i * a1i + l2r * a2r - l2i * a2i + l3r * a3r - l3i * a3i;
       x[xo + r + 1] -= l0r * a0i + l0i * a0r + l1r * a1i + l1i * a1r + l2r * a2i + l2i * a2r + l3r * a3i + l3i * a3r;
       x[yo + r] -= l0r * b0r - l0i * b0i + l1r * b1r - l1i * b1i + l2r * b2r - l2i * b2i + l3r * b3r - l3i * b3i;
@@ -501,10 +656,13 @@ export function upperSolveFrontPair(f: Float64Array, v: number, m: number, k: nu
   }
   for (; j < rest; j++) {
     const c0 = u0 + j * kk;
-    const ar = x[xo + kk + 2 * j], ai = x[xo + kk + 2 * j + 1];
-    const br = x[yo + kk + 2 * j], bi = x[yo + kk + 2 * j + 1];
+    const ar = x[xo + kk + 2 * j],
+      ai = x[xo + kk + 2 * j + 1];
+    const br = x[yo + kk + 2 * j],
+      bi = x[yo + kk + 2 * j + 1];
     for (let r = 0; r < kk; r += 2) {
-      const lr = f[c0 + r], li = f[c0 + r + 1];
+      const lr = f[c0 + r],
+        li = f[c0 + r + 1];
       x[xo + r] -= lr * ar - li * ai;
       x[xo + r + 1] -= lr * ai + li * ar;
       x[yo + r] -= lr * br - li * bi;
@@ -523,13 +681,31 @@ export function upperSolveFrontPair(f: Float64Array, v: number, m: number, k: nu
     const q = yo + d;
     upperTriangle4(f, c0, c1, c2, c3, d, x, p);
     upperTriangle4(f, c0, c1, c2, c3, d, x, q);
-    const a0r = x[p], a0i = x[p + 1], a1r = x[p + 2], a1i = x[p + 3];
-    const a2r = x[p + 4], a2i = x[p + 5], a3r = x[p + 6], a3i = x[p + 7];
-    const b0r = x[q], b0i = x[q + 1], b1r = x[q + 2], b1i = x[q + 3];
-    const b2r = x[q + 4], b2i = x[q + 5], b3r = x[q + 6], b3i = x[q + 7];
+    const a0r = x[p],
+      a0i = x[p + 1],
+      a1r = x[p + 2],
+      a1i = x[p + 3];
+    const a2r = x[p + 4],
+      a2i = x[p + 5],
+      a3r = x[p + 6],
+      a3i = x[p + 7];
+    const b0r = x[q],
+      b0i = x[q + 1],
+      b1r = x[q + 2],
+      b1i = x[q + 3];
+    const b2r = x[q + 4],
+      b2i = x[q + 5],
+      b3r = x[q + 6],
+      b3i = x[q + 7];
     for (let r = 0; r < d; r += 2) {
-      const l0r = f[c0 + r], l0i = f[c0 + r + 1], l1r = f[c1 + r], l1i = f[c1 + r + 1];
-      const l2r = f[c2 + r], l2i = f[c2 + r + 1], l3r = f[c3 + r], l3i = f[c3 + r + 1];
+      const l0r = f[c0 + r],
+        l0i = f[c0 + r + 1],
+        l1r = f[c1 + r],
+        l1i = f[c1 + r + 1];
+      const l2r = f[c2 + r],
+        l2i = f[c2 + r + 1],
+        l3r = f[c3 + r],
+        l3i = f[c3 + r + 1];
       x[xo + r] -= l0r * a0r - l0i * a0i + l1r * a1r - l1i * a1i + l2r * a2r - l2i * a2i + l3r * a3r - l3i * a3i;
       x[xo + r + 1] -= l0r * a0i + l0i * a0r + l1r * a1i + l1i * a1r + l2r * a2i + l2i * a2r + l3r * a3i + l3i * a3r;
       x[yo + r] -= l0r * b0r - l0i * b0i + l1r * b1r - l1i * b1i + l2r * b2r - l2i * b2i + l3r * b3r - l3i * b3i;
@@ -541,10 +717,13 @@ export function upperSolveFrontPair(f: Float64Array, v: number, m: number, k: nu
     const c = v + q * m2;
     divideBy(f, c + 2 * q, x, xo + 2 * q);
     divideBy(f, c + 2 * q, x, yo + 2 * q);
-    const ar = x[xo + 2 * q], ai = x[xo + 2 * q + 1];
-    const br = x[yo + 2 * q], bi = x[yo + 2 * q + 1];
+    const ar = x[xo + 2 * q],
+      ai = x[xo + 2 * q + 1];
+    const br = x[yo + 2 * q],
+      bi = x[yo + 2 * q + 1];
     for (let r = 0; r < 2 * q; r += 2) {
-      const lr = f[c + r], li = f[c + r + 1];
+      const lr = f[c + r],
+        li = f[c + r + 1];
       x[xo + r] -= lr * ar - li * ai;
       x[xo + r + 1] -= lr * ai + li * ar;
       x[yo + r] -= lr * br - li * bi;
@@ -568,9 +747,17 @@ export function upperTransposeSolveFront(f: Float64Array, v: number, m: number, 
     const c3 = c2 + m2;
     const d = 2 * t;
     // s_p = Σ_{i<t} U[i, t+p] x_i for the four columns at once.
-    let s0r = 0, s0i = 0, s1r = 0, s1i = 0, s2r = 0, s2i = 0, s3r = 0, s3i = 0;
+    let s0r = 0,
+      s0i = 0,
+      s1r = 0,
+      s1i = 0,
+      s2r = 0,
+      s2i = 0,
+      s3r = 0,
+      s3i = 0;
     for (let r = 0; r < d; r += 2) {
-      const ar = x[xo + r], ai = x[xo + r + 1];
+      const ar = x[xo + r],
+        ai = x[xo + r + 1];
       s0r += f[c0 + r] * ar - f[c0 + r + 1] * ai;
       s0i += f[c0 + r] * ai + f[c0 + r + 1] * ar;
       s1r += f[c1 + r] * ar - f[c1 + r + 1] * ai;
@@ -581,22 +768,27 @@ export function upperTransposeSolveFront(f: Float64Array, v: number, m: number, 
       s3i += f[c3 + r] * ai + f[c3 + r + 1] * ar;
     }
     const p = xo + d;
-    let br = x[p] - s0r, bi = x[p + 1] - s0i;
-    let dr = f[c0 + d], di = f[c0 + d + 1];
+    let br = x[p] - s0r,
+      bi = x[p + 1] - s0i;
+    let dr = f[c0 + d],
+      di = f[c0 + d + 1];
     let den = dr * dr + di * di;
-    const x0r = (br * dr + bi * di) / den, x0i = (bi * dr - br * di) / den;
+    const x0r = (br * dr + bi * di) / den,
+      x0i = (bi * dr - br * di) / den;
     br = x[p + 2] - s1r - (f[c1 + d] * x0r - f[c1 + d + 1] * x0i);
     bi = x[p + 3] - s1i - (f[c1 + d] * x0i + f[c1 + d + 1] * x0r);
     dr = f[c1 + d + 2];
     di = f[c1 + d + 3];
     den = dr * dr + di * di;
-    const x1r = (br * dr + bi * di) / den, x1i = (bi * dr - br * di) / den;
+    const x1r = (br * dr + bi * di) / den,
+      x1i = (bi * dr - br * di) / den;
     br = x[p + 4] - s2r - (f[c2 + d] * x0r - f[c2 + d + 1] * x0i) - (f[c2 + d + 2] * x1r - f[c2 + d + 3] * x1i);
     bi = x[p + 5] - s2i - (f[c2 + d] * x0i + f[c2 + d + 1] * x0r) - (f[c2 + d + 2] * x1i + f[c2 + d + 3] * x1r);
     dr = f[c2 + d + 4];
     di = f[c2 + d + 5];
     den = dr * dr + di * di;
-    const x2r = (br * dr + bi * di) / den, x2i = (bi * dr - br * di) / den;
+    const x2r = (br * dr + bi * di) / den,
+      x2i = (bi * dr - br * di) / den;
     br = x[p + 6] - s3r - (f[c3 + d] * x0r - f[c3 + d + 1] * x0i) - (f[c3 + d + 2] * x1r - f[c3 + d + 3] * x1i) - (f[c3 + d + 4] * x2r - f[c3 + d + 5] * x2i);
     bi = x[p + 7] - s3i - (f[c3 + d] * x0i + f[c3 + d + 1] * x0r) - (f[c3 + d + 2] * x1i + f[c3 + d + 3] * x1r) - (f[c3 + d + 4] * x2i + f[c3 + d + 5] * x2r);
     dr = f[c3 + d + 6];
@@ -613,14 +805,18 @@ export function upperTransposeSolveFront(f: Float64Array, v: number, m: number, 
   }
   for (; t < k; t++) {
     const c = v + t * m2;
-    let sr = 0, si = 0;
+    let sr = 0,
+      si = 0;
     for (let r = 0; r < 2 * t; r += 2) {
-      const ar = x[xo + r], ai = x[xo + r + 1];
+      const ar = x[xo + r],
+        ai = x[xo + r + 1];
       sr += f[c + r] * ar - f[c + r + 1] * ai;
       si += f[c + r] * ai + f[c + r + 1] * ar;
     }
-    const br = x[xo + 2 * t] - sr, bi = x[xo + 2 * t + 1] - si;
-    const dr = f[c + 2 * t], di = f[c + 2 * t + 1];
+    const br = x[xo + 2 * t] - sr,
+      bi = x[xo + 2 * t + 1] - si;
+    const dr = f[c + 2 * t],
+      di = f[c + 2 * t + 1];
     const den = dr * dr + di * di;
     x[xo + 2 * t] = (br * dr + bi * di) / den;
     x[xo + 2 * t + 1] = (bi * dr - br * di) / den;
@@ -634,9 +830,17 @@ export function upperTransposeSolveFront(f: Float64Array, v: number, m: number, 
     const c1 = c0 + kk;
     const c2 = c1 + kk;
     const c3 = c2 + kk;
-    let s0r = 0, s0i = 0, s1r = 0, s1i = 0, s2r = 0, s2i = 0, s3r = 0, s3i = 0;
+    let s0r = 0,
+      s0i = 0,
+      s1r = 0,
+      s1i = 0,
+      s2r = 0,
+      s2i = 0,
+      s3r = 0,
+      s3i = 0;
     for (let r = 0; r < kk; r += 2) {
-      const ar = x[xo + r], ai = x[xo + r + 1];
+      const ar = x[xo + r],
+        ai = x[xo + r + 1];
       s0r += f[c0 + r] * ar - f[c0 + r + 1] * ai;
       s0i += f[c0 + r] * ai + f[c0 + r + 1] * ar;
       s1r += f[c1 + r] * ar - f[c1 + r + 1] * ai;
@@ -658,9 +862,11 @@ export function upperTransposeSolveFront(f: Float64Array, v: number, m: number, 
   }
   for (; j < rest; j++) {
     const c = u0 + j * kk;
-    let sr = 0, si = 0;
+    let sr = 0,
+      si = 0;
     for (let r = 0; r < kk; r += 2) {
-      const ar = x[xo + r], ai = x[xo + r + 1];
+      const ar = x[xo + r],
+        ai = x[xo + r + 1];
       sr += f[c + r] * ar - f[c + r + 1] * ai;
       si += f[c + r] * ai + f[c + r + 1] * ar;
     }
@@ -685,9 +891,17 @@ export function lowerTransposeSolveFront(f: Float64Array, v: number, m: number, 
     const c3 = c2 + m2;
     const d = 2 * q0;
     // s_p = Σ_{i ≥ q0+4} L[i, q0+p] x_i, the part below the 4×4 triangle.
-    let s0r = 0, s0i = 0, s1r = 0, s1i = 0, s2r = 0, s2i = 0, s3r = 0, s3i = 0;
+    let s0r = 0,
+      s0i = 0,
+      s1r = 0,
+      s1i = 0,
+      s2r = 0,
+      s2i = 0,
+      s3r = 0,
+      s3i = 0;
     for (let r = d + 8; r < m2; r += 2) {
-      const ar = x[xo + r], ai = x[xo + r + 1];
+      const ar = x[xo + r],
+        ai = x[xo + r + 1];
       s0r += f[c0 + r] * ar - f[c0 + r + 1] * ai;
       s0i += f[c0 + r] * ai + f[c0 + r + 1] * ar;
       s1r += f[c1 + r] * ar - f[c1 + r + 1] * ai;
@@ -698,7 +912,8 @@ export function lowerTransposeSolveFront(f: Float64Array, v: number, m: number, 
       s3i += f[c3 + r] * ai + f[c3 + r + 1] * ar;
     }
     const p = xo + d;
-    const x3r = x[p + 6] - s3r, x3i = x[p + 7] - s3i;
+    const x3r = x[p + 6] - s3r,
+      x3i = x[p + 7] - s3i;
     const x2r = x[p + 4] - s2r - (f[c2 + d + 6] * x3r - f[c2 + d + 7] * x3i);
     const x2i = x[p + 5] - s2i - (f[c2 + d + 6] * x3i + f[c2 + d + 7] * x3r);
     const x1r = x[p + 2] - s1r - (f[c1 + d + 6] * x3r - f[c1 + d + 7] * x3i) - (f[c1 + d + 4] * x2r - f[c1 + d + 5] * x2i);
@@ -715,9 +930,11 @@ export function lowerTransposeSolveFront(f: Float64Array, v: number, m: number, 
   for (; t > 0; t--) {
     const q = t - 1;
     const c = v + q * m2;
-    let sr = 0, si = 0;
+    let sr = 0,
+      si = 0;
     for (let r = 2 * q + 2; r < m2; r += 2) {
-      const ar = x[xo + r], ai = x[xo + r + 1];
+      const ar = x[xo + r],
+        ai = x[xo + r + 1];
       sr += f[c + r] * ar - f[c + r + 1] * ai;
       si += f[c + r] * ai + f[c + r + 1] * ar;
     }

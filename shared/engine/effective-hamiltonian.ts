@@ -129,10 +129,11 @@ export class EffectiveHamiltonian implements NonlinearOperator {
     this.leadCount = system.leads.length;
     const { rows, cols } = hamiltonianEntries(lattice);
     for (const lead of system.leads) {
-      for (const p of lead.mouth) for (const q of lead.mouth) {
-        rows.push(p);
-        cols.push(q);
-      }
+      for (const p of lead.mouth)
+        for (const q of lead.mouth) {
+          rows.push(p);
+          cols.push(q);
+        }
     }
     const pattern = buildPattern(this.n, rows, cols);
     this.colPtr = pattern.colPtr;
@@ -274,7 +275,8 @@ export class EffectiveHamiltonian implements NonlinearOperator {
     if (out.length < 2 * this.rowIdx.length) throw new RangeError(`${where}: out has length ${out.length}, expected 2·nnz = ${2 * this.rowIdx.length}`);
     if (sheet.length !== this.leadCount) throw new RangeError(`${where}: sheet has flags for ${sheet.length} leads, the cavity has ${this.leadCount}`);
     this.system.leads.forEach((l, k) => {
-      if (sheet[k].length !== l.mouth.length) throw new RangeError(`${where}: sheet[${k}] has ${sheet[k].length} flags, lead ${k} has ${l.mouth.length} channels`);
+      if (sheet[k].length !== l.mouth.length)
+        throw new RangeError(`${where}: sheet[${k}] has ${sheet[k].length} flags, lead ${k} has ${l.mouth.length} channels`);
     });
   }
 

@@ -84,12 +84,7 @@ export interface FitStart {
  * range (and of kT) and four times the range; q within ±1e4; amplitudes and background
  * free up to 1e6 times the spread of y.
  */
-export function startingValues(
-  spec: FitModelSpec,
-  x: ArrayLike<number>,
-  y: ArrayLike<number>,
-  hints: { energy: number; width?: number }[] = [],
-): FitStart {
+export function startingValues(spec: FitModelSpec, x: ArrayLike<number>, y: ArrayLike<number>, hints: { energy: number; width?: number }[] = []): FitStart {
   const n = x.length;
   const range = x[n - 1] - x[0];
   let ymin = Infinity;

@@ -91,7 +91,8 @@ export function parseTable(text: string): ParsedTable {
   if (text.includes('\u0000')) throw new TraceError({ line: null, column: null, message: 'the file is not text (it contains NUL bytes)' });
   const parsed = Papa.parse<string[]>(text.replace(/^\uFEFF/, ''), { skipEmptyLines: false, delimitersToGuess: [',', '\t', ';'] });
   const quoteError = parsed.errors.find((e) => e.type === 'Quotes');
-  if (quoteError) throw new TraceError({ line: (quoteError.row ?? 0) + 1, column: null, message: `line ${(quoteError.row ?? 0) + 1}: ${quoteError.message.toLowerCase()}` });
+  if (quoteError)
+    throw new TraceError({ line: (quoteError.row ?? 0) + 1, column: null, message: `line ${(quoteError.row ?? 0) + 1}: ${quoteError.message.toLowerCase()}` });
   const lines = parsed.data.map((cells, i) => ({ line: i + 1, cells: cells.map((c) => c.trim()) }));
   const content = lines.filter((l) => !(l.cells.length === 1 && l.cells[0] === '') && !l.cells[0]?.startsWith('#'));
   if (content.length === 0) throw new TraceError({ line: null, column: null, message: 'the file has no data rows' });

@@ -157,14 +157,14 @@ export function fitPeaks(xIn: ArrayLike<number>, yIn: ArrayLike<number>, options
   const peaks = options.peaks ?? 1;
   if (!Number.isInteger(peaks) || peaks < 1 || peaks > 20) throw new FitInputError(`the number of peaks must be a whole number from 1 to 20, got ${peaks}`);
   const temperatureMK = options.temperatureMK ?? null;
-  if (isThermal(lineshape) && !(temperatureMK !== null && temperatureMK > 0)) throw new FitInputError('a thermally broadened lineshape needs a temperature above 0 mK');
+  if (isThermal(lineshape) && !(temperatureMK !== null && temperatureMK > 0))
+    throw new FitInputError('a thermally broadened lineshape needs a temperature above 0 mK');
   const kT = isThermal(lineshape) ? (temperatureMK as number) * BOLTZMANN_MEV_PER_MK : 0;
   if (yIn.length !== n) throw new FitInputError('x and y must have the same length');
   const order = Array.from({ length: n }, (_, i) => i).sort((a, b) => xIn[a] - xIn[b]);
   const x = order.map((i) => xIn[i]);
   const y = order.map((i) => yIn[i]);
-  for (let i = 0; i < n; i++)
-    if (!Number.isFinite(x[i]) || !Number.isFinite(y[i])) throw new FitInputError(`point ${i + 1} is not a finite number`);
+  for (let i = 0; i < n; i++) if (!Number.isFinite(x[i]) || !Number.isFinite(y[i])) throw new FitInputError(`point ${i + 1} is not a finite number`);
   for (let i = 1; i < n; i++) if (x[i] === x[i - 1]) throw new FitInputError(`two points share x = ${x[i]}`);
   const spec: FitModelSpec = { lineshape, background, peaks, kT, xCenter: (x[0] + x[n - 1]) / 2 };
   const p = parameterCount(spec);
@@ -299,10 +299,7 @@ export function fitPeaks(xIn: ArrayLike<number>, yIn: ArrayLike<number>, options
     const sE = errorOf(o);
     const sG = errorOf(o + 1);
     const covEG = covariance[o][o + 1];
-    const qualityError =
-      sE !== null && sG !== null
-        ? Math.sqrt(Math.max(0, (sE / g) ** 2 + ((e0 * sG) / (g * g)) ** 2 - (2 * e0 * covEG) / g ** 3))
-        : null;
+    const qualityError = sE !== null && sG !== null ? Math.sqrt(Math.max(0, (sE / g) ** 2 + ((e0 * sG) / (g * g)) ** 2 - (2 * e0 * covEG) / g ** 3)) : null;
     const single = (xv: number) => componentValue(spec, values, k, xv);
     const halfSpan = Math.max(4 * g, isThermal(lineshape) ? 6 * THERMAL_FWHM_PER_KT * kT : 0);
     fittedPeaks.push({
@@ -339,7 +336,8 @@ export function fitPeaks(xIn: ArrayLike<number>, yIn: ArrayLike<number>, options
   if (undetermined)
     warnings.push({
       code: 'undetermined',
-      message: 'Some parameters are not fixed by the data (the covariance matrix is nearly singular): their uncertainties are unreliable. Fewer peaks, a narrower lineshape choice or a wider range may help.',
+      message:
+        'Some parameters are not fixed by the data (the covariance matrix is nearly singular): their uncertainties are unreliable. Fewer peaks, a narrower lineshape choice or a wider range may help.',
     });
   if (temperatureMK !== null && temperatureMK > 0) {
     const kTm = temperatureMK * BOLTZMANN_MEV_PER_MK;
@@ -368,8 +366,7 @@ export function fitPeaks(xIn: ArrayLike<number>, yIn: ArrayLike<number>, options
           message: `Peaks ${a + 1} and ${b + 1} overlap (|ΔE| < (Γ₁ + Γ₂)/2): their widths and heights are strongly correlated, and a sum of Breit–Wigner peaks may not describe overlapping resonances.`,
         });
     }
-  if (n < 5 * p)
-    warnings.push({ code: 'few_points', message: `Only ${n} points for ${p} parameters: the uncertainties rest on few degrees of freedom.` });
+  if (n < 5 * p) warnings.push({ code: 'few_points', message: `Only ${n} points for ${p} parameters: the uncertainties rest on few degrees of freedom.` });
   options.onProgress?.(1);
 
   return {

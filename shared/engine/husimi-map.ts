@@ -121,16 +121,22 @@ export function husimiMap(lattice: CavityLattice, spacing: number, psi: Float64A
 
   // Sample points (lattice units): a grid centred on the cavity's bounding box, kept where the nearest site is in the cavity.
   const { i: si, j: sj } = lattice.sites;
-  let imin = Infinity, imax = -Infinity, jmin = Infinity, jmax = -Infinity;
+  let imin = Infinity,
+    imax = -Infinity,
+    jmin = Infinity,
+    jmax = -Infinity;
   for (let s = 0; s < n; s++) {
-    imin = Math.min(imin, si[s]); imax = Math.max(imax, si[s]);
-    jmin = Math.min(jmin, sj[s]); jmax = Math.max(jmax, sj[s]);
+    imin = Math.min(imin, si[s]);
+    imax = Math.max(imax, si[s]);
+    jmin = Math.min(jmin, sj[s]);
+    jmax = Math.max(jmax, sj[s]);
   }
   const g = gridNm / a;
   const cols = Math.floor((imax - imin) / g) + 1;
   const rows = Math.floor((jmax - jmin) / g) + 1;
   const maxPoints = options.maxPoints ?? 4000;
-  if (cols * rows > 4 * maxPoints) throw new RangeError(`husimi: a grid of ${gridNm} nm gives about ${cols * rows} sample points; use a coarser grid (at most ${maxPoints} points)`);
+  if (cols * rows > 4 * maxPoints)
+    throw new RangeError(`husimi: a grid of ${gridNm} nm gives about ${cols * rows} sample points; use a coarser grid (at most ${maxPoints} points)`);
   const i0s: number[] = [];
   const j0s: number[] = [];
   const near: number[] = [];
@@ -151,7 +157,8 @@ export function husimiMap(lattice: CavityLattice, spacing: number, psi: Float64A
     }
   }
   const points = i0s.length;
-  if (points > maxPoints) throw new RangeError(`husimi: a grid of ${gridNm} nm gives ${points} sample points; use a coarser grid (at most ${maxPoints} points)`);
+  if (points > maxPoints)
+    throw new RangeError(`husimi: a grid of ${gridNm} nm gives ${points} sample points; use a coarser grid (at most ${maxPoints} points)`);
 
   const angles = Float64Array.from({ length: nDir }, (_, d) => (2 * Math.PI * d) / nDir);
   const cosA = angles.map(Math.cos);

@@ -46,14 +46,7 @@ export function indexSites(mask: Uint8Array, nx: number, ny: number): { siteInde
  * Builds the lattice of a mask. Cost O(nx·ny).
  * @param potential V(s) in meV per unknown (lexicographic order), or undefined for V = 0
  */
-export function buildLattice(
-  mask: Uint8Array,
-  nx: number,
-  ny: number,
-  hopping: number,
-  flux: number,
-  potential?: Float64Array,
-): CavityLattice {
+export function buildLattice(mask: Uint8Array, nx: number, ny: number, hopping: number, flux: number, potential?: Float64Array): CavityLattice {
   const { siteIndex, sites } = indexSites(mask, nx, ny);
   const n = sites.i.length;
   const onsite = new Float64Array(n);

@@ -128,7 +128,6 @@ export class NumericFactorisation {
     }
   }
 
-
   /** Which dense kernel this plan's factorisations use. */
   get denseKernel(): 'wasm' | 'typescript' {
     return this.wasm ? 'wasm' : 'typescript';
@@ -309,7 +308,7 @@ export class NumericFactorisation {
         // each column is added in a few contiguous stretches: [child offset, parent offset, length]·2.
         const runs = this.runs;
         let nRuns = 0;
-        for (let ii = 0; ii < mc; ) {
+        for (let ii = 0; ii < mc;) {
           let len = 1;
           while (ii + len < mc && map[ii + len] === map[ii] + len) len++;
           runs[3 * nRuns] = 2 * ii;

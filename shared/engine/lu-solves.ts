@@ -102,8 +102,10 @@ export class SparseLuFactors {
     const colOrder = new Int32Array(this.n);
     let t = 0;
     this.forEachPivot((re, im, row, col) => {
-      const a = Math.abs(re), b = Math.abs(im);
-      const big = Math.max(a, b), small = Math.min(a, b);
+      const a = Math.abs(re),
+        b = Math.abs(im);
+      const big = Math.max(a, b),
+        small = Math.min(a, b);
       const ratio = small / big;
       logAbs += Math.log(big) + 0.5 * Math.log1p(ratio * ratio);
       arg += Math.atan2(im, re);

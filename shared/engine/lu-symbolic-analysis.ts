@@ -42,12 +42,7 @@ export interface SymbolicFronts {
  * Returns the final order (a postorder of the amalgamated tree, equivalent to perm0
  * in fill) and the front structure in its labels.
  */
-export function analyseFronts(
-  graph: Adjacency,
-  perm0: Int32Array,
-  colPtr: Int32Array,
-  rowIdx: Int32Array,
-): { perm: Int32Array; symbolic: SymbolicFronts } {
+export function analyseFronts(graph: Adjacency, perm0: Int32Array, colPtr: Int32Array, rowIdx: Int32Array): { perm: Int32Array; symbolic: SymbolicFronts } {
   const n = graph.n;
   const { ptr, adj } = graph;
   const inv0 = invertPermutation(perm0);

@@ -195,15 +195,7 @@ export function minimumDegreeOrder(graph: Adjacency): Int32Array {
 }
 
 /** True when variables i and j have the same element and variable lists, each other aside. */
-function sameAdjacency(
-  i: number,
-  j: number,
-  varAdj: Int32Array[],
-  varAdjLen: Int32Array,
-  elemAdj: number[][],
-  mark: Int32Array,
-  stamp: number,
-): boolean {
+function sameAdjacency(i: number, j: number, varAdj: Int32Array[], varAdjLen: Int32Array, elemAdj: number[][], mark: Int32Array, stamp: number): boolean {
   const ei = elemAdj[i];
   const ej = elemAdj[j];
   if (ei.length !== ej.length) return false;

@@ -90,7 +90,9 @@ export function resolveState(system: CavitySystem, op: EffectiveHamiltonian, req
   const gammaMax = req.gammaMax ?? 0.1 * t;
   const found = findPoles(op, { emin: req.near - half, emax: req.near + half, gammaMax });
   if (found.poles.length === 0) {
-    throw new RangeError(`no pole within ${half.toPrecision(3)} meV of ${req.near} meV with Γ ≤ ${gammaMax.toPrecision(3)} meV; widen the window or the width limit`);
+    throw new RangeError(
+      `no pole within ${half.toPrecision(3)} meV of ${req.near} meV with Γ ≤ ${gammaMax.toPrecision(3)} meV; widen the window or the width limit`,
+    );
   }
   const pole = found.poles.reduce((best, p) => (Math.abs(p.energy - req.near) < Math.abs(best.energy - req.near) ? p : best));
   return resolveState(system, op, { kind: 'mode', energy: pole.energy, width: pole.width, mode: pole.mode, sheet: pole.sheet });

@@ -56,10 +56,11 @@ export function mouthSelfEnergy(op: EffectiveHamiltonian, zRe: number, zIm: numb
   for (let l = 0; l < op.leadCount; l++) {
     const w = op.mouthSites(l).length;
     const block = op.selfEnergy(l, { re: zRe, im: zIm }, sheet);
-    for (let p = 0; p < w; p++) for (let q = 0; q < w; q++) {
-      out[2 * ((off + p) * M + off + q)] = block[2 * (p * w + q)];
-      out[2 * ((off + p) * M + off + q) + 1] = block[2 * (p * w + q) + 1];
-    }
+    for (let p = 0; p < w; p++)
+      for (let q = 0; q < w; q++) {
+        out[2 * ((off + p) * M + off + q)] = block[2 * (p * w + q)];
+        out[2 * ((off + p) * M + off + q) + 1] = block[2 * (p * w + q) + 1];
+      }
     off += w;
   }
   return out;
@@ -147,7 +148,13 @@ export class MouthInterpolation {
     };
     let rational: BlockRational;
     try {
-      rational = fitBlockRational(M, z(support), support.map((s) => s.g), z(others), others.map((s) => s.g));
+      rational = fitBlockRational(
+        M,
+        z(support),
+        support.map((s) => s.g),
+        z(others),
+        others.map((s) => s.g),
+      );
     } catch {
       return this.directBlock(lo, hi);
     }

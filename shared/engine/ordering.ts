@@ -168,7 +168,9 @@ class Dissector {
    * slightly larger but balanced separator wins over a lopsided one.
    */
   private score(lo: number, hi: number): number {
-    let na = 0, nb = 0, ns = 0;
+    let na = 0,
+      nb = 0,
+      ns = 0;
     for (let q = lo; q < hi; q++) {
       const s = this.side[this.order[q]];
       if (s === SIDE_A) na++;
@@ -184,10 +186,14 @@ class Dissector {
     const ci = this.ci!;
     const cj = this.cj!;
     const order = this.order;
-    let i0 = Infinity, i1 = -Infinity, j0 = Infinity, j1 = -Infinity;
+    let i0 = Infinity,
+      i1 = -Infinity,
+      j0 = Infinity,
+      j1 = -Infinity;
     for (let q = lo; q < hi; q++) {
       const v = order[q];
-      const a = ci[v], b = cj[v];
+      const a = ci[v],
+        b = cj[v];
       if (a < i0) i0 = a;
       if (a > i1) i1 = a;
       if (b < j0) j0 = b;
@@ -214,7 +220,8 @@ class Dissector {
     if (mid === 0) mid = 1;
     if (mid === ext - 1) mid = ext - 2;
     const cut = c0 + mid;
-    let na = 0, nb = 0;
+    let na = 0,
+      nb = 0;
     for (let q = lo; q < hi; q++) {
       const v = order[q];
       const c = coord[v];
@@ -286,7 +293,8 @@ class Dissector {
     const mark = this.bfsMark;
     const tag = ++this.bfsStamp;
     const { queue, level, ptr, adj, region } = this;
-    let head = 0, tail = 0;
+    let head = 0,
+      tail = 0;
     queue[tail++] = root;
     mark[root] = tag;
     level[root] = 0;
@@ -350,7 +358,8 @@ class Dissector {
     for (let q = lo; q < hi; q++) {
       const v = order[q];
       if (side[v] !== SIDE_S) continue;
-      let hasA = false, hasB = false;
+      let hasA = false,
+        hasB = false;
       for (let e = ptr[v]; e < ptr[v + 1]; e++) {
         const u = adj[e];
         if (region[u] !== stamp) continue;
@@ -365,14 +374,17 @@ class Dissector {
   /** Reorders order[lo..hi) as [A | B | S] (stable); returns [|A|, |B|] or null if a side is empty. */
   private partition(lo: number, hi: number): [number, number] | null {
     const { order, side, tmp } = this;
-    let na = 0, nb = 0;
+    let na = 0,
+      nb = 0;
     for (let q = lo; q < hi; q++) {
       const s = side[order[q]];
       if (s === SIDE_A) na++;
       else if (s === SIDE_B) nb++;
     }
     if (na === 0 || nb === 0) return null;
-    let pa = 0, pb = na, ps = na + nb;
+    let pa = 0,
+      pb = na,
+      ps = na + nb;
     for (let q = lo; q < hi; q++) {
       const v = order[q];
       const s = side[v];

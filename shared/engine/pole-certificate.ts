@@ -53,7 +53,8 @@ export function assembleCertificate(
   let summary = certified
     ? `${poles.length} pole(s) in ${certPieces.length} piece(s); every count confirmed by the argument principle`
     : `${poles.length} pole(s) in ${certPieces.length} piece(s); ${bad} piece(s) not certified`;
-  if (cuts.length) summary += `; the contours run through ${cuts.length} channel threshold(s) (square-root panels at each branch point), so no strip is left out`;
+  if (cuts.length)
+    summary += `; the contours run through ${cuts.length} channel threshold(s) (square-root panels at each branch point), so no strip is left out`;
   if (skipped.length) summary += `; intervals too narrow to search: ${skipped.join(', ')}`;
   return { poles, certificate: { pieces: certPieces, certified, summary } };
 }
@@ -127,11 +128,11 @@ export function modeImage(op: NonlinearOperator, psi: Float64Array): Float64Arra
   const cr = out[2 * pick] / a;
   const ci = -out[2 * pick + 1] / a;
   for (let s = 0; s < op.n; s++) {
-    const xr = out[2 * s], xi = out[2 * s + 1];
+    const xr = out[2 * s],
+      xi = out[2 * s + 1];
     out[2 * s] = xr * cr - xi * ci;
     out[2 * s + 1] = xr * ci + xi * cr;
   }
   out[2 * pick + 1] = 0;
   return out;
 }
-

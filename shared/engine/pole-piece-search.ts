@@ -194,9 +194,7 @@ function* refineCandidates(
  * pole) are each kept, as the argument principle counts the pole that many times.
  */
 function addPole(found: FoundPole[], p: FoundPole, t: number): boolean {
-  const same = found.filter(
-    (q) => q.strip === p.strip && Math.hypot(q.zRe - p.zRe, q.zIm - p.zIm) <= 1e-9 * (t + Math.hypot(p.zRe, p.zIm)),
-  );
+  const same = found.filter((q) => q.strip === p.strip && Math.hypot(q.zRe - p.zRe, q.zIm - p.zIm) <= 1e-9 * (t + Math.hypot(p.zRe, p.zIm)));
   if (same.length) {
     // Gram–Schmidt of the held modes, then the part of p's mode outside their span
     const basis: Float64Array[] = [];
@@ -228,4 +226,3 @@ function subtractProjection(v: Float64Array, b: Float64Array): void {
     v[i + 1] -= b[i] * im + b[i + 1] * re;
   }
 }
-

@@ -172,4 +172,3 @@ export function cutPiece(piece: Piece, found: FoundPole[], gammaMax: number): [P
   });
   return [make(leftRefs, c.x0, x), make(rightRefs, x, c.x1)];
 }
-

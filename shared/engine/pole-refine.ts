@@ -82,7 +82,10 @@ export function refinePole(s: RefineSetting, z0Re: number, z0Im: number, start: 
     let dRe = 0;
     let dIm = 0;
     for (let i = 0; i < n; i++) {
-      const ar = x[2 * i], ai = x[2 * i + 1], br = xt[2 * i], bi = xt[2 * i + 1];
+      const ar = x[2 * i],
+        ai = x[2 * i + 1],
+        br = xt[2 * i],
+        bi = xt[2 * i + 1];
       dRe += ar * br + ai * bi;
       dIm += ar * bi - ai * br;
     }
@@ -123,14 +126,7 @@ export function refinePole(s: RefineSetting, z0Re: number, z0Im: number, start: 
  * exactly singular (SingularMatrixError); it is then moved by 1e-13·t along Re z,
  * far below any tolerance and too little to change a count or a moment.
  */
-export function factorNear(
-  op: NonlinearOperator,
-  plan: PoleFactorPlan,
-  zRe: number,
-  zIm: number,
-  sheet: SheetFlags,
-  values: Float64Array,
-): PoleFactors {
+export function factorNear(op: NonlinearOperator, plan: PoleFactorPlan, zRe: number, zIm: number, sheet: SheetFlags, values: Float64Array): PoleFactors {
   for (let k = 0; ; k++) {
     op.assemble({ re: zRe + k * 1e-13 * op.hopping, im: zIm }, sheet, values);
     try {
@@ -177,10 +173,12 @@ export function cscMultiply(op: NonlinearOperator, values: Float64Array, x: Floa
   out.fill(0);
   const { colPtr, rowIdx } = op;
   for (let j = 0; j < op.n; j++) {
-    const xr = x[2 * j], xi = x[2 * j + 1];
+    const xr = x[2 * j],
+      xi = x[2 * j + 1];
     for (let p = colPtr[j]; p < colPtr[j + 1]; p++) {
       const i = rowIdx[p];
-      const ar = values[2 * p], ai = values[2 * p + 1];
+      const ar = values[2 * p],
+        ai = values[2 * p + 1];
       out[2 * i] += ar * xr - ai * xi;
       out[2 * i + 1] += ar * xi + ai * xr;
     }

@@ -184,7 +184,10 @@ function project(n: number, l: number, U: Float64Array, X: Float64Array): Float6
       let re = 0;
       let im = 0;
       for (let i = 0; i < 2 * n; i += 2) {
-        const ur = U[ua + i], ui = U[ua + i + 1], xr = X[xb + i], xi = X[xb + i + 1];
+        const ur = U[ua + i],
+          ui = U[ua + i + 1],
+          xr = X[xb + i],
+          xi = X[xb + i + 1];
         re += ur * xr + ui * xi;
         im += ur * xi - ui * xr;
       }

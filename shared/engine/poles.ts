@@ -144,7 +144,8 @@ function validate(op: NonlinearOperator, w: PoleWindow, o: PoleSearchOptions): v
   const where = 'findPoles';
   if (!w || typeof w !== 'object') throw new RangeError(`${where}: window must be an object { emin, emax, gammaMax }`);
   for (const key of ['emin', 'emax', 'gammaMax'] as const) {
-    if (typeof w[key] !== 'number' || !Number.isFinite(w[key])) throw new RangeError(`${where}: window.${key} must be a finite number (meV), got ${String(w[key])}`);
+    if (typeof w[key] !== 'number' || !Number.isFinite(w[key]))
+      throw new RangeError(`${where}: window.${key} must be a finite number (meV), got ${String(w[key])}`);
   }
   if (!(w.emax > w.emin)) throw new RangeError(`${where}: window.emax (${w.emax}) must exceed window.emin (${w.emin})`);
   if (!(w.gammaMax > 0)) throw new RangeError(`${where}: window.gammaMax must be positive (meV), got ${w.gammaMax}`);

@@ -47,41 +47,44 @@ export function pointFromMouth(op: EffectiveHamiltonian, energy: number, mouth: 
   const w = op.couplingColumns(energy);
   const count = w.count;
   const wm = new Float64Array(2 * M * count);
-  for (let c = 0; c < count; c++) for (let p = 0; p < M; p++) {
-    wm[2 * (c * M + p)] = w.values[2 * (c * n + sites[p])];
-    wm[2 * (c * M + p) + 1] = w.values[2 * (c * n + sites[p]) + 1];
-  }
+  for (let c = 0; c < count; c++)
+    for (let p = 0; p < M; p++) {
+      wm[2 * (c * M + p)] = w.values[2 * (c * n + sites[p])];
+      wm[2 * (c * M + p) + 1] = w.values[2 * (c * n + sites[p]) + 1];
+    }
   // X = G_mouth W (M × count, column-major)
   const x = new Float64Array(2 * M * count);
-  for (let c = 0; c < count; c++) for (let r = 0; r < M; r++) {
-    let re = 0;
-    let im = 0;
-    for (let q = 0; q < M; q++) {
-      const gr = mouth[2 * (r * M + q)];
-      const gi = mouth[2 * (r * M + q) + 1];
-      const vr = wm[2 * (c * M + q)];
-      const vi = wm[2 * (c * M + q) + 1];
-      re += gr * vr - gi * vi;
-      im += gr * vi + gi * vr;
+  for (let c = 0; c < count; c++)
+    for (let r = 0; r < M; r++) {
+      let re = 0;
+      let im = 0;
+      for (let q = 0; q < M; q++) {
+        const gr = mouth[2 * (r * M + q)];
+        const gi = mouth[2 * (r * M + q) + 1];
+        const vr = wm[2 * (c * M + q)];
+        const vi = wm[2 * (c * M + q) + 1];
+        re += gr * vr - gi * vi;
+        im += gr * vi + gi * vr;
+      }
+      x[2 * (c * M + r)] = re;
+      x[2 * (c * M + r) + 1] = im;
     }
-    x[2 * (c * M + r)] = re;
-    x[2 * (c * M + r) + 1] = im;
-  }
   const s = new Float64Array(2 * count * count);
-  for (let a = 0; a < count; a++) for (let b = 0; b < count; b++) {
-    let re = 0;
-    let im = 0;
-    for (let p = 0; p < M; p++) {
-      const wr = wm[2 * (a * M + p)];
-      const wi = wm[2 * (a * M + p) + 1];
-      const xr = x[2 * (b * M + p)];
-      const xi = x[2 * (b * M + p) + 1];
-      re += wr * xr + wi * xi;
-      im += wr * xi - wi * xr;
+  for (let a = 0; a < count; a++)
+    for (let b = 0; b < count; b++) {
+      let re = 0;
+      let im = 0;
+      for (let p = 0; p < M; p++) {
+        const wr = wm[2 * (a * M + p)];
+        const wi = wm[2 * (a * M + p) + 1];
+        const xr = x[2 * (b * M + p)];
+        const xi = x[2 * (b * M + p) + 1];
+        re += wr * xr + wi * xi;
+        im += wr * xi - wi * xr;
+      }
+      s[2 * (a * count + b)] = -im - (a === b ? 1 : 0);
+      s[2 * (a * count + b) + 1] = re;
     }
-    s[2 * (a * count + b)] = -im - (a === b ? 1 : 0);
-    s[2 * (a * count + b) + 1] = re;
-  }
   return scatteringPoint(energy, s, w, op.leadCount, detPhase, withS);
 }
 

@@ -96,7 +96,13 @@ export class SparseLuPlan {
   readonly nnz: number;
   private readonly numeric: NumericFactorisation;
 
-  private constructor(n: number, nnz: number, perm: Int32Array, numeric: NumericFactorisation, s: { factorNonzeros: number; factorFlops: number; frontCount: number; largestFront: number }) {
+  private constructor(
+    n: number,
+    nnz: number,
+    perm: Int32Array,
+    numeric: NumericFactorisation,
+    s: { factorNonzeros: number; factorFlops: number; frontCount: number; largestFront: number },
+  ) {
     this.n = n;
     this.nnz = nnz;
     this.perm = perm;
@@ -125,9 +131,7 @@ export class SparseLuPlan {
       throw new RangeError(`SparseLuPlan.analyse: pivotThreshold must be in (0, 1], got ${threshold}`);
     }
     if (options.sites && (options.sites.i.length !== n || options.sites.j.length !== n)) {
-      throw new RangeError(
-        `SparseLuPlan.analyse: sites.i and sites.j must have length n = ${n} (got ${options.sites.i.length}, ${options.sites.j.length})`,
-      );
+      throw new RangeError(`SparseLuPlan.analyse: sites.i and sites.j must have length n = ${n} (got ${options.sites.i.length}, ${options.sites.j.length})`);
     }
     const graph = symmetricAdjacency(n, colPtr, rowIdx);
     let perm0: Int32Array;

@@ -23,7 +23,10 @@ export class TransmissionSolver {
   /** The last energy's LU, finished with: the next factorisation takes over its storage. */
   private spare: SparseLuFactors | undefined;
 
-  constructor(readonly op: EffectiveHamiltonian, plan?: SparseLuPlan) {
+  constructor(
+    readonly op: EffectiveHamiltonian,
+    plan?: SparseLuPlan,
+  ) {
     this.plan = plan ?? SparseLuPlan.analyse(op.n, op.colPtr, op.rowIdx, { sites: op.sites });
     this.values = new Float64Array(2 * op.rowIdx.length);
   }
@@ -102,10 +105,11 @@ export class TransmissionSolver {
     sites.forEach((site, c) => (rhs[2 * (c * n + site)] = 1));
     lu.solve(rhs, M);
     const mouth = new Float64Array(2 * M * M);
-    for (let c = 0; c < M; c++) for (let r = 0; r < M; r++) {
-      mouth[2 * (r * M + c)] = rhs[2 * (c * n + sites[r])];
-      mouth[2 * (r * M + c) + 1] = rhs[2 * (c * n + sites[r]) + 1];
-    }
+    for (let c = 0; c < M; c++)
+      for (let r = 0; r < M; r++) {
+        mouth[2 * (r * M + c)] = rhs[2 * (c * n + sites[r])];
+        mouth[2 * (r * M + c) + 1] = rhs[2 * (c * n + sites[r]) + 1];
+      }
     const point = pointFromMouth(op, energy, mouth, lu.logDet().arg);
     this.spare = lu;
     return { point, mouth };

@@ -76,20 +76,13 @@ export function actionsFor(state: FabricationState | null, role: MemberRole, cal
     .map((t) => t.action);
 }
 
-export type TransitionRefusal =
-  | { ok: true; transition: FabricationTransition }
-  | { ok: false; status: 403 | 409; code: string; message: string };
+export type TransitionRefusal = { ok: true; transition: FabricationTransition } | { ok: false; status: 403 | 409; code: string; message: string };
 
 /**
  * Whether `action` may be taken now: the role first (403), then the state (409, saying what
  * is allowed from here), then the four-eyes rule (403).
  */
-export function checkTransition(
-  state: FabricationState | null,
-  action: FabricationAction,
-  role: MemberRole,
-  callerIsProposer: boolean,
-): TransitionRefusal {
+export function checkTransition(state: FabricationState | null, action: FabricationAction, role: MemberRole, callerIsProposer: boolean): TransitionRefusal {
   const t = transitionOf(action);
   if (!roleMayTake(role, t)) {
     const wanted = t.roles.length === 1 ? `the ${t.roles[0]} role` : `one of the roles ${t.roles.join(', ')}`;

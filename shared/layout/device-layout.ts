@@ -48,11 +48,17 @@ export interface DeviceLayout {
 }
 
 function boxOf(rings: Ring[]) {
-  let xmin = Infinity, ymin = Infinity, xmax = -Infinity, ymax = -Infinity;
-  for (const r of rings) for (const [x, y] of r) {
-    xmin = Math.min(xmin, x); xmax = Math.max(xmax, x);
-    ymin = Math.min(ymin, y); ymax = Math.max(ymax, y);
-  }
+  let xmin = Infinity,
+    ymin = Infinity,
+    xmax = -Infinity,
+    ymax = -Infinity;
+  for (const r of rings)
+    for (const [x, y] of r) {
+      xmin = Math.min(xmin, x);
+      xmax = Math.max(xmax, x);
+      ymin = Math.min(ymin, y);
+      ymax = Math.max(ymax, y);
+    }
   return { xmin, ymin, xmax, ymax };
 }
 
@@ -65,25 +71,48 @@ export function buildDeviceLayout(model: CavityModel, mask: Uint8Array): DeviceL
   const traced = traceMaskOutline(mask, nx, ny, a);
   const cavity = traced.parts.map((p) => bridgeHoles(p.outer, p.holes));
   const layers: LayoutLayer[] = [
-    { layer: LAYERS.cavityTraced, datatype: 0, name: 'cavity-traced', description: `cavity traced from the site mask: the union of ${siteCount} lattice cells of ${a} nm`, polygons: cavity },
+    {
+      layer: LAYERS.cavityTraced,
+      datatype: 0,
+      name: 'cavity-traced',
+      description: `cavity traced from the site mask: the union of ${siteCount} lattice cells of ${a} nm`,
+      polygons: cavity,
+    },
   ];
   const drawn = drawnOutline(model.shape, a);
-  if (drawn) layers.push({ layer: LAYERS.cavityDrawn, datatype: 0, name: 'cavity-drawn', description: `cavity as drawn (${model.shape.kind}), which the lattice approximates`, polygons: drawn });
+  if (drawn)
+    layers.push({
+      layer: LAYERS.cavityDrawn,
+      datatype: 0,
+      name: 'cavity-drawn',
+      description: `cavity as drawn (${model.shape.kind}), which the lattice approximates`,
+      polygons: drawn,
+    });
 
   const L = LEAD_STUB_SPACINGS * a;
   const leads = model.leads.map((lead) => {
     const lo = lead.start * a;
     const hi = (lead.start + lead.width) * a;
     switch (lead.side) {
-      case 'left': return rectangleRing(-L, lo, 0, hi);
-      case 'right': return rectangleRing(nx * a, lo, nx * a + L, hi);
-      case 'bottom': return rectangleRing(lo, -L, hi, 0);
-      case 'top': return rectangleRing(lo, ny * a, hi, ny * a + L);
+      case 'left':
+        return rectangleRing(-L, lo, 0, hi);
+      case 'right':
+        return rectangleRing(nx * a, lo, nx * a + L, hi);
+      case 'bottom':
+        return rectangleRing(lo, -L, hi, 0);
+      case 'top':
+        return rectangleRing(lo, ny * a, hi, ny * a + L);
     }
   });
   if (leads.length) {
     const names = model.leads.map((l, k) => `${l.name ?? `lead ${k}`} (${l.side}, ${l.width} sites)`).join(', ');
-    layers.push({ layer: LAYERS.leads, datatype: 0, name: 'leads', description: `lead stubs ${LEAD_STUB_SPACINGS}·a long (the modelled leads are semi-infinite): ${names}`, polygons: leads });
+    layers.push({
+      layer: LAYERS.leads,
+      datatype: 0,
+      name: 'leads',
+      description: `lead stubs ${LEAD_STUB_SPACINGS}·a long (the modelled leads are semi-infinite): ${names}`,
+      polygons: leads,
+    });
   }
 
   const notDrawn: string[] = [];
@@ -92,18 +121,26 @@ export function buildDeviceLayout(model: CavityModel, mask: Uint8Array): DeviceL
     const layer = LAYERS.firstGate + k;
     if (term.kind === 'block') {
       layers.push({
-        layer, datatype: 0, name: `gate-${k}`,
+        layer,
+        datatype: 0,
+        name: `gate-${k}`,
         description: `gate ${k}: block potential ${term.value} meV`,
         polygons: [rectangleRing(term.x0 + d, term.y0 + d, term.x0 + term.width + d, term.y0 + term.height + d)],
       });
     } else if (term.kind === 'gaussian') {
       layers.push({
-        layer, datatype: 0, name: `gate-${k}`,
+        layer,
+        datatype: 0,
+        name: `gate-${k}`,
         description: `gate ${k}: Gaussian potential, peak ${term.amplitude} meV, drawn at its 1σ circle (σ = ${term.sigma} nm)`,
         polygons: [ellipseRing(term.cx + d, term.cy + d, term.sigma, term.sigma, segmentsFor(term.sigma))],
       });
     } else {
-      notDrawn.push(term.kind === 'disorder' ? `potential ${k}: disorder of strength ${term.strength} meV (no outline)` : `potential ${k}: ${term.values.length} per-site values (no outline)`);
+      notDrawn.push(
+        term.kind === 'disorder'
+          ? `potential ${k}: disorder of strength ${term.strength} meV (no outline)`
+          : `potential ${k}: ${term.values.length} per-site values (no outline)`,
+      );
     }
   });
 

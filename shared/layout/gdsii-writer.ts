@@ -140,7 +140,10 @@ export function writeGdsii(lib: GdsiiLibrary): Uint8Array {
     const xy = new Uint8Array(points.length * 8);
     const view = new DataView(xy.buffer);
     points.forEach(([x, y], k) => {
-      for (const [v, o] of [[x, 0], [y, 4]] as const) {
+      for (const [v, o] of [
+        [x, 0],
+        [y, 4],
+      ] as const) {
         if (!Number.isInteger(v) || v < -(2 ** 31) || v >= 2 ** 31) throw new Error(`boundary ${n}: coordinate ${v} is not a 32-bit integer of database units`);
         view.setInt32(8 * k + o, v);
       }

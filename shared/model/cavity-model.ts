@@ -96,16 +96,7 @@ export interface SubtractShape {
   remove: Shape[];
 }
 export type Shape =
-  | RectangleShape
-  | DiskShape
-  | EllipseShape
-  | StadiumShape
-  | AnnulusShape
-  | PolygonShape
-  | SiteListShape
-  | BitmapShape
-  | UnionShape
-  | SubtractShape;
+  RectangleShape | DiskShape | EllipseShape | StadiumShape | AnnulusShape | PolygonShape | SiteListShape | BitmapShape | UnionShape | SubtractShape;
 
 const SHAPE_KINDS = ['rectangle', 'disk', 'ellipse', 'stadium', 'annulus', 'polygon', 'sites', 'bitmap', 'union', 'subtract'];
 
@@ -132,7 +123,10 @@ export const shapeSchema: z.ZodType<Shape> = z.lazy(() =>
         bitmapSchema,
         z.object({
           kind: z.literal('union'),
-          of: z.array(shapeSchema).min(1, 'a union needs at least one shape').max(DOCUMENT_LIMITS.shapeMembers, `at most ${DOCUMENT_LIMITS.shapeMembers} shapes`),
+          of: z
+            .array(shapeSchema)
+            .min(1, 'a union needs at least one shape')
+            .max(DOCUMENT_LIMITS.shapeMembers, `at most ${DOCUMENT_LIMITS.shapeMembers} shapes`),
         }),
         z.object({
           kind: z.literal('subtract'),
@@ -171,12 +165,7 @@ export const sitePotentialSchema = z.object({
   /** Explicit [i, j, V (meV)] entries, added to the other terms. */
   values: z.array(z.tuple([siteIndex(), siteIndex(), finite()])).min(1),
 });
-export const potentialTermSchema = z.discriminatedUnion('kind', [
-  blockPotentialSchema,
-  gaussianPotentialSchema,
-  disorderPotentialSchema,
-  sitePotentialSchema,
-]);
+export const potentialTermSchema = z.discriminatedUnion('kind', [blockPotentialSchema, gaussianPotentialSchema, disorderPotentialSchema, sitePotentialSchema]);
 export type PotentialTerm = z.infer<typeof potentialTermSchema>;
 
 export const leadSideSchema = z.enum(['left', 'right', 'bottom', 'top']);
@@ -193,10 +182,7 @@ export const leadSchema = z.object({
 });
 export type Lead = z.infer<typeof leadSchema>;
 
-export const materialSchema = z.union([
-  z.string().min(1),
-  z.object({ effectiveMass: positive() }),
-]);
+export const materialSchema = z.union([z.string().min(1), z.object({ effectiveMass: positive() })]);
 
 export const cavityModelSchema = z.object({
   name: z.string().min(1, 'name is empty').max(200),
@@ -236,4 +222,3 @@ export function modelHopping(model: CavityModel): number {
   if (model.physics.kind === 'microwave') return 1 / (model.spacing * model.spacing);
   return hoppingEnergy(model.spacing, modelMassRatio(model));
 }
-

@@ -91,10 +91,14 @@ export function energyValidity(energy: number, hopping: number, spacing: number,
   const warnings: string[] = [];
   const [eUnit, lUnit, eName] = physics === 'microwave' ? ['mm⁻²', 'mm', 'k²'] : ['meV', 'nm', 'E'];
   if (energy > ENERGY_CEILING_OVER_T * hopping) {
-    warnings.push(`${eName} = ${energy.toPrecision(4)} ${eUnit} is above t/2 = ${(hopping / 2).toPrecision(4)} ${eUnit}: the lattice dispersion is off the parabola by ${(100 * Math.abs(err)).toFixed(1)} %`);
+    warnings.push(
+      `${eName} = ${energy.toPrecision(4)} ${eUnit} is above t/2 = ${(hopping / 2).toPrecision(4)} ${eUnit}: the lattice dispersion is off the parabola by ${(100 * Math.abs(err)).toFixed(1)} %`,
+    );
   }
   if (wl / spacing < MIN_WAVELENGTH_OVER_SPACING) {
-    warnings.push(`the wavelength ${wl.toPrecision(3)} ${lUnit} is shorter than ${MIN_WAVELENGTH_OVER_SPACING} lattice spacings (${(MIN_WAVELENGTH_OVER_SPACING * spacing).toPrecision(3)} ${lUnit}): refine the grid`);
+    warnings.push(
+      `the wavelength ${wl.toPrecision(3)} ${lUnit} is shorter than ${MIN_WAVELENGTH_OVER_SPACING} lattice spacings (${(MIN_WAVELENGTH_OVER_SPACING * spacing).toPrecision(3)} ${lUnit}): refine the grid`,
+    );
   }
   return { energy, dispersionError: err, wavelength: wl, wavelengthOverSpacing: wl / spacing, warnings };
 }
@@ -126,7 +130,11 @@ export function deriveFigures(model: CavityModel, siteCount: number, energy?: nu
     validity: energy === undefined ? undefined : energyValidity(energy, t, model.spacing, model.physics.kind),
     physics: model.physics.kind,
     ...(model.physics.kind === 'microwave'
-      ? { permittivity: model.physics.permittivity, heightMm: model.physics.height, twoDimensionalLimitGhz: twoDimensionalLimitGhz(model.physics.height, model.physics.permittivity) }
+      ? {
+          permittivity: model.physics.permittivity,
+          heightMm: model.physics.height,
+          twoDimensionalLimitGhz: twoDimensionalLimitGhz(model.physics.height, model.physics.permittivity),
+        }
       : {}),
   };
 }

@@ -56,7 +56,10 @@ export function checkDocumentLimits(doc: unknown): ModelIssue[] {
     if (!isObject(node)) continue;
     nodes++;
     if (nodes > L.shapeNodes) {
-      issues.push({ path: ['shape'], message: `the shape tree has more than ${L.shapeNodes} shapes, the limit; merge them (e.g. one polygon or one bitmap mask)` });
+      issues.push({
+        path: ['shape'],
+        message: `the shape tree has more than ${L.shapeNodes} shapes, the limit; merge them (e.g. one polygon or one bitmap mask)`,
+      });
       break;
     }
     const kind = node['kind'];
@@ -76,7 +79,10 @@ export function checkDocumentLimits(doc: unknown): ModelIssue[] {
       }
       if (kind === 'subtract') stack.push({ node: node['from'], path: [...path, 'from'], depth: depth + 1 });
     } else if (kind === 'polygon' && Array.isArray(node['vertices']) && node['vertices'].length > L.polygonVertices) {
-      issues.push({ path: [...path, 'vertices'], message: `the polygon has ${node['vertices'].length} vertices, above the limit of ${L.polygonVertices}; simplify the outline or use a bitmap mask` });
+      issues.push({
+        path: [...path, 'vertices'],
+        message: `the polygon has ${node['vertices'].length} vertices, above the limit of ${L.polygonVertices}; simplify the outline or use a bitmap mask`,
+      });
     } else if (kind === 'sites' && Array.isArray(node['list'])) {
       explicitSites += node['list'].length;
       if (explicitSites > L.explicitSites) {

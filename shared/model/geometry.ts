@@ -77,7 +77,10 @@ function fillPolygon(mask: Uint8Array, nx: number, ny: number, a: number, vertic
     const y = j * a;
     let m = 0;
     for (let k = 0, l = n - 1; k < n; l = k++) {
-      const xk = vx[k], yk = vy[k], xl = vx[l], yl = vy[l];
+      const xk = vx[k],
+        yk = vy[k],
+        xl = vx[l],
+        yl = vy[l];
       if (yk > y !== yl > y) crossings[m++] = ((xl - xk) * (y - yk)) / (yl - yk) + xk;
     }
     if (m === 0) continue;
@@ -110,10 +113,15 @@ function shapeBox(shape: Shape): [number, number, number, number] | null {
     case 'annulus':
       return [shape.cx - shape.outer, shape.cy - shape.outer, shape.cx + shape.outer, shape.cy + shape.outer];
     case 'polygon': {
-      let minX = Infinity, minY = Infinity, maxX = -Infinity, maxY = -Infinity;
+      let minX = Infinity,
+        minY = Infinity,
+        maxX = -Infinity,
+        maxY = -Infinity;
       for (const [x, y] of shape.vertices) {
-        minX = Math.min(minX, x); maxX = Math.max(maxX, x);
-        minY = Math.min(minY, y); maxY = Math.max(maxY, y);
+        minX = Math.min(minX, x);
+        maxX = Math.max(maxX, x);
+        minY = Math.min(minY, y);
+        maxY = Math.max(maxY, y);
       }
       return [minX, minY, maxX, maxY];
     }
@@ -304,10 +312,22 @@ export function mouthSites(lead: Pick<Lead, 'side' | 'start' | 'width'>, nx: num
   for (let p = 0; p < lead.width; p++) {
     const along = lead.start + p;
     switch (lead.side) {
-      case 'left': i[p] = 0; j[p] = along; break;
-      case 'right': i[p] = nx - 1; j[p] = along; break;
-      case 'bottom': i[p] = along; j[p] = 0; break;
-      case 'top': i[p] = along; j[p] = ny - 1; break;
+      case 'left':
+        i[p] = 0;
+        j[p] = along;
+        break;
+      case 'right':
+        i[p] = nx - 1;
+        j[p] = along;
+        break;
+      case 'bottom':
+        i[p] = along;
+        j[p] = 0;
+        break;
+      case 'top':
+        i[p] = along;
+        j[p] = ny - 1;
+        break;
     }
   }
   return { i, j };

@@ -9,14 +9,13 @@ import { connectedComponents, mouthSites, rasteriseShape, rasterWork } from './g
 import { findMaterial, MATERIAL_PRESETS } from './materials';
 import type { ModelIssue } from './model-issue';
 
-export type ModelValidation =
-  | { ok: true; model: CavityModel; issues: []; mask: Uint8Array; siteCount: number }
-  | { ok: false; issues: ModelIssue[] };
+export type ModelValidation = { ok: true; model: CavityModel; issues: []; mask: Uint8Array; siteCount: number } | { ok: false; issues: ModelIssue[] };
 
 /** The rules of the microwave mode: no material, field, potential or lead offset (none has a meaning there). */
 function checkPhysicsMode(model: CavityModel, doc: unknown, issues: ModelIssue[]): void {
   if (model.physics.kind === 'electrons') {
-    if (model.material === undefined) issues.push({ path: ['material'], message: 'material is missing: give a preset id (e.g. "gaas") or { "effectiveMass": m* / m_e }' });
+    if (model.material === undefined)
+      issues.push({ path: ['material'], message: 'material is missing: give a preset id (e.g. "gaas") or { "effectiveMass": m* / m_e }' });
     return;
   }
   const raw = doc as Record<string, unknown>;
@@ -28,7 +27,8 @@ function checkPhysicsMode(model: CavityModel, doc: unknown, issues: ModelIssue[]
     issues.push({ path: ['potential'], message: 'potential terms do not apply in the microwave mode: draw metal posts by subtracting them from the shape' });
   }
   model.leads.forEach((lead, k) => {
-    if (lead.offset !== 0) issues.push({ path: ['leads', k, 'offset'], message: 'a lead offset does not apply in the microwave mode: the waveguides are empty, set it to 0' });
+    if (lead.offset !== 0)
+      issues.push({ path: ['leads', k, 'offset'], message: 'a lead offset does not apply in the microwave mode: the waveguides are empty, set it to 0' });
   });
 }
 
@@ -52,7 +52,11 @@ function checkShapeBounds(shape: Shape, path: (string | number)[], nx: number, n
       }
       const expected = Math.ceil(shape.width / 8) * shape.height;
       const bytes = Math.floor((shape.data.replace(/=+$/, '').length * 3) / 4);
-      if (bytes !== expected) issues.push({ path: [...path, 'data'], message: `data holds ${bytes} bytes, expected ${expected} (${shape.height} rows of ${Math.ceil(shape.width / 8)} bytes)` });
+      if (bytes !== expected)
+        issues.push({
+          path: [...path, 'data'],
+          message: `data holds ${bytes} bytes, expected ${expected} (${shape.height} rows of ${Math.ceil(shape.width / 8)} bytes)`,
+        });
       break;
     }
     case 'union':

@@ -14,14 +14,20 @@ import { filter } from 'rxjs';
     <div class="page">
       <router-outlet />
     </div>
-    <footer class="footer-note">
-      Simulated figures are no substitute for measurement or for the fabrication line's own design
-      rules.
-    </footer>
+    <footer class="footer-note">Simulated figures are no substitute for measurement or for the fabrication line's own design rules.</footer>
   `,
   styles: `
-    :host { display: flex; flex-direction: column; height: 100vh; outline: none; }
-    .page { flex: 1; min-height: 0; overflow: auto; }
+    :host {
+      display: flex;
+      flex-direction: column;
+      height: 100vh;
+      outline: none;
+    }
+    .page {
+      flex: 1;
+      min-height: 0;
+      overflow: auto;
+    }
     .footer-note {
       padding: 6px 16px;
       font: var(--mat-sys-body-small);

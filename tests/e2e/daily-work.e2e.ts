@@ -31,7 +31,13 @@ describe('the daily job without JSON', () => {
     await field('grid.ny').fill('24');
     await field('shape.kind').click();
     await page.getByRole('option', { name: 'Ellipse', exact: true }).click();
-    for (const [key, value] of [['cx', 100], ['cy', 60], ['rx', 70], ['ry', 45]] as const) await field(`shape.${key}`).fill(String(value));
+    for (const [key, value] of [
+      ['cx', 100],
+      ['cy', 60],
+      ['rx', 70],
+      ['ry', 45],
+    ] as const)
+      await field(`shape.${key}`).fill(String(value));
     for (const k of [0, 1]) {
       await field(`leads.${k}.start`).fill('8');
       await field(`leads.${k}.width`).fill('8');
@@ -55,7 +61,16 @@ describe('the daily job without JSON', () => {
     await page.getByRole('menuitem', { name: 'Gaussian bump' }).click();
     await field('potential.0.amplitude').fill('0.5');
     await expect.poll(() => page.locator('pw-lattice-preview circle.term').count()).toBe(1);
-    await expect.poll(() => page.getByText(/22\.7\d? meV/).first().isVisible(), { timeout: 15_000 }).toBe(true);
+    await expect
+      .poll(
+        () =>
+          page
+            .getByText(/22\.7\d? meV/)
+            .first()
+            .isVisible(),
+        { timeout: 15_000 },
+      )
+      .toBe(true);
     await screenshot(page, 'editor-ellipse-stubs');
 
     // The JSON view shows the document just built, never an empty box.
@@ -79,7 +94,16 @@ describe('the daily job without JSON', () => {
     await page.getByLabel('E max (meV)').fill('6');
     await page.getByLabel('Largest width Γ (meV)').fill('1');
     await page.getByLabel(/note/i).first().fill('first look at the ellipse dot');
-    await expect.poll(() => page.getByText(/pieces?/i).first().isVisible(), { timeout: 20_000 }).toBe(true);
+    await expect
+      .poll(
+        () =>
+          page
+            .getByText(/pieces?/i)
+            .first()
+            .isVisible(),
+        { timeout: 20_000 },
+      )
+      .toBe(true);
     await screenshot(page, 'launcher-warnings');
     await page.locator('[data-test="launch"]').click();
     await page.waitForURL(/\/runs\/[0-9a-f-]{36}/, { timeout: 15_000 });
@@ -90,7 +114,16 @@ describe('the daily job without JSON', () => {
     expect(await page.locator('[data-test="width-view"]').textContent()).toMatch(/log axis/);
     await page.locator('[data-test="show-conductance"] button').click();
     await page.locator('[aria-label="Conductance spectrum"]').waitFor({ timeout: 10_000 });
-    await expect.poll(() => page.getByText(/conductance G \(2e²\/h/).first().isVisible(), { timeout: 10_000 }).toBe(true);
+    await expect
+      .poll(
+        () =>
+          page
+            .getByText(/conductance G \(2e²\/h/)
+            .first()
+            .isVisible(),
+        { timeout: 10_000 },
+      )
+      .toBe(true);
     await screenshot(page, 'run-result-daily');
   });
 
@@ -120,7 +153,11 @@ describe('the daily job without JSON', () => {
       const group = session.groups.find((g: { slug: string }) => g.slug === 'harrow-lake');
       const headers = { 'Content-Type': 'application/json', 'X-CSRF-Token': session.csrfToken };
       const run = await (
-        await fetch(`/api/groups/${group.id}/runs`, { method: 'POST', headers, body: JSON.stringify({ modelId: id, kind: 'pole-search', window: { emin: 3, emax: 5, gammaMax: 1 } }) })
+        await fetch(`/api/groups/${group.id}/runs`, {
+          method: 'POST',
+          headers,
+          body: JSON.stringify({ modelId: id, kind: 'pole-search', window: { emin: 3, emax: 5, gammaMax: 1 } }),
+        })
       ).json();
       for (let i = 0; i < 170; i++) {
         const now = await (await fetch(`/api/groups/${group.id}/runs/${run.id}`)).json();

@@ -48,7 +48,17 @@ export default async function setup(project: TestProject): Promise<() => Promise
   const runEvents = new RunEvents(url);
   await runEvents.start();
   const mailer = createMailer(config.smtpUrl, config.mailFrom);
-  const app = createApp({ db: handle.db, config, mailer, queue: runQueue(boss), modeMapQueue: modeMapQueue(boss), runEvents, notifications: notificationQueue(boss), studyQueue: studyQueue(boss), log: () => {} });
+  const app = createApp({
+    db: handle.db,
+    config,
+    mailer,
+    queue: runQueue(boss),
+    modeMapQueue: modeMapQueue(boss),
+    runEvents,
+    notifications: notificationQueue(boss),
+    studyQueue: studyQueue(boss),
+    log: () => {},
+  });
   const notificationWorker = await startNotificationWorker({ db: handle.db, boss, mailer, pollingIntervalSeconds: 0.5 });
   const http = createServer(app);
   await new Promise<void>((done) => http.listen(0, '127.0.0.1', done));

@@ -41,7 +41,11 @@ describe('fabrication in the browser', () => {
       const headers = { 'Content-Type': 'application/json', 'X-CSRF-Token': session.csrfToken };
       const m = await (await fetch(`/api/groups/${group.id}/models`, { method: 'POST', headers, body: JSON.stringify({ document: doc }) })).json();
       const run = await (
-        await fetch(`/api/groups/${group.id}/runs`, { method: 'POST', headers, body: JSON.stringify({ kind: 'pole-search', modelId: m.id, window: { emin: 3, emax: 7, gammaMax: 1.5 } }) })
+        await fetch(`/api/groups/${group.id}/runs`, {
+          method: 'POST',
+          headers,
+          body: JSON.stringify({ kind: 'pole-search', modelId: m.id, window: { emin: 3, emax: 7, gammaMax: 1.5 } }),
+        })
       ).json();
       for (let k = 0; k < 300; k++) {
         const r = await (await fetch(`/api/groups/${group.id}/runs/${run.id}`)).json();
@@ -86,10 +90,15 @@ describe('fabrication in the browser', () => {
     const page = await pageAs('ada.admin@harrow-lake.example');
     await page.goto(`${baseUrl}/outbox`);
     const message = page.locator('a.message-link').filter({ hasText: 'Your candidate was approved' });
-    await expect.poll(async () => {
-      await page.reload();
-      return message.count();
-    }, { timeout: 30_000 }).toBeGreaterThan(0);
+    await expect
+      .poll(
+        async () => {
+          await page.reload();
+          return message.count();
+        },
+        { timeout: 30_000 },
+      )
+      .toBeGreaterThan(0);
     await message.first().click();
     await expect.poll(() => page.locator('body').textContent()).toContain(`/catalogue/resonances/${resonanceId}`);
     expect(await page.locator('body').textContent()).toContain('dev.designer@harrow-lake.example');

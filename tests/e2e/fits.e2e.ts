@@ -24,24 +24,27 @@ describe('fitting a measured trace against the computed poles', () => {
   it('files device R3 and computes its poles near the measured peak', async () => {
     await signIn(page, baseUrl, 'dev.designer@harrow-lake.example');
     await page.waitForURL(/\/g\/harrow-lake/);
-    const status = await page.evaluate(
-      async (model) => {
-        const session = await (await fetch('/api/auth/session')).json();
-        const group = session.groups.find((g: { slug: string }) => g.slug === 'harrow-lake');
-        const headers = { 'Content-Type': 'application/json', 'X-CSRF-Token': session.csrfToken };
-        const created = await (await fetch(`/api/groups/${group.id}/models`, { method: 'POST', headers, body: JSON.stringify({ document: { ...model, name: 'E2E R3' } }) })).json();
-        const run = await (
-          await fetch(`/api/groups/${group.id}/runs`, { method: 'POST', headers, body: JSON.stringify({ kind: 'pole-search', modelId: created.id, window: { emin: 3.2, emax: 3.3, gammaMax: 0.1 } }) })
-        ).json();
-        for (let k = 0; k < 240; k++) {
-          const now = await (await fetch(`/api/groups/${group.id}/runs/${run.id}`)).json();
-          if (now.status !== 'queued' && now.status !== 'running') return now.status;
-          await new Promise((r) => setTimeout(r, 1000));
-        }
-        return 'timeout';
-      },
-      r3.model,
-    );
+    const status = await page.evaluate(async (model) => {
+      const session = await (await fetch('/api/auth/session')).json();
+      const group = session.groups.find((g: { slug: string }) => g.slug === 'harrow-lake');
+      const headers = { 'Content-Type': 'application/json', 'X-CSRF-Token': session.csrfToken };
+      const created = await (
+        await fetch(`/api/groups/${group.id}/models`, { method: 'POST', headers, body: JSON.stringify({ document: { ...model, name: 'E2E R3' } }) })
+      ).json();
+      const run = await (
+        await fetch(`/api/groups/${group.id}/runs`, {
+          method: 'POST',
+          headers,
+          body: JSON.stringify({ kind: 'pole-search', modelId: created.id, window: { emin: 3.2, emax: 3.3, gammaMax: 0.1 } }),
+        })
+      ).json();
+      for (let k = 0; k < 240; k++) {
+        const now = await (await fetch(`/api/groups/${group.id}/runs/${run.id}`)).json();
+        if (now.status !== 'queued' && now.status !== 'running') return now.status;
+        await new Promise((r) => setTimeout(r, 1000));
+      }
+      return 'timeout';
+    }, r3.model);
     expect(status).toBe('completed');
   });
 

@@ -43,7 +43,11 @@ describe('current and Husimi maps on the resonance page', () => {
       const headers = { 'Content-Type': 'application/json', 'X-CSRF-Token': session.csrfToken };
       const m = await (await fetch(`/api/groups/${group.id}/models`, { method: 'POST', headers, body: JSON.stringify({ document: doc }) })).json();
       const run = await (
-        await fetch(`/api/groups/${group.id}/runs`, { method: 'POST', headers, body: JSON.stringify({ kind: 'pole-search', modelId: m.id, window: { emin: 3, emax: 7, gammaMax: 1.5 } }) })
+        await fetch(`/api/groups/${group.id}/runs`, {
+          method: 'POST',
+          headers,
+          body: JSON.stringify({ kind: 'pole-search', modelId: m.id, window: { emin: 3, emax: 7, gammaMax: 1.5 } }),
+        })
       ).json();
       for (let k = 0; k < 240; k++) {
         const r = await (await fetch(`/api/groups/${group.id}/runs/${run.id}`)).json();
@@ -109,7 +113,12 @@ describe('current and Husimi maps on the resonance page', () => {
     // A valid, standalone SVG: the browser's own XML parser accepts it and finds the layers.
     const parsed = await page.evaluate((t) => {
       const doc = new DOMParser().parseFromString(t, 'image/svg+xml');
-      return { error: doc.getElementsByTagName('parsererror').length, root: doc.documentElement.nodeName, lines: doc.querySelectorAll('line').length, image: doc.querySelectorAll('image').length };
+      return {
+        error: doc.getElementsByTagName('parsererror').length,
+        root: doc.documentElement.nodeName,
+        lines: doc.querySelectorAll('line').length,
+        image: doc.querySelectorAll('image').length,
+      };
     }, text);
     expect(parsed).toMatchObject({ error: 0, root: 'svg', image: 1 });
     expect(parsed.lines).toBeGreaterThan(4);

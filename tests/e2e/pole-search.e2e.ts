@@ -55,8 +55,26 @@ describe('a pole search from the editor to the catalogue', () => {
       await widths.nth(k).fill('7');
     }
     // The live drawing and the derived figures (t of GaAs at a = 5 nm is about 22.7 meV).
-    await expect.poll(() => page.getByText(/cavity sites/i).first().isVisible(), { timeout: 15_000 }).toBe(true);
-    await expect.poll(() => page.getByText(/22\.7\d? meV/).first().isVisible(), { timeout: 15_000 }).toBe(true);
+    await expect
+      .poll(
+        () =>
+          page
+            .getByText(/cavity sites/i)
+            .first()
+            .isVisible(),
+        { timeout: 15_000 },
+      )
+      .toBe(true);
+    await expect
+      .poll(
+        () =>
+          page
+            .getByText(/22\.7\d? meV/)
+            .first()
+            .isVisible(),
+        { timeout: 15_000 },
+      )
+      .toBe(true);
     expect(await page.locator('svg').filter({ hasText: /nm/ }).count()).toBeGreaterThan(0);
     await screenshot(page, 'model-editor-stadium');
     await page.locator('[data-test="save"]').click();
@@ -70,7 +88,16 @@ describe('a pole search from the editor to the catalogue', () => {
     await fill('E min (meV)', 3);
     await fill('E max (meV)', 6);
     await fill('Largest width Γ (meV)', 1);
-    await expect.poll(() => page.getByText(/pieces?/i).first().isVisible(), { timeout: 20_000 }).toBe(true);
+    await expect
+      .poll(
+        () =>
+          page
+            .getByText(/pieces?/i)
+            .first()
+            .isVisible(),
+        { timeout: 20_000 },
+      )
+      .toBe(true);
     await screenshot(page, 'run-launcher');
     await page.locator('[data-test="launch"]').click();
     await page.waitForURL(/\/runs\/[0-9a-f-]{36}/, { timeout: 15_000 });
@@ -79,7 +106,10 @@ describe('a pole search from the editor to the catalogue', () => {
       .locator('mat-progress-bar')
       .first()
       .waitFor({ timeout: 20_000 })
-      .then(() => true, () => false);
+      .then(
+        () => true,
+        () => false,
+      );
     const certificate = page.locator('[data-test="certificate"]');
     await certificate.waitFor({ timeout: 150_000 });
     expect(sawProgress || (await certificate.isVisible())).toBe(true);
@@ -96,7 +126,14 @@ describe('a pole search from the editor to the catalogue', () => {
     const img = page.locator('img[alt^="Mode image"]');
     await img.waitFor({ timeout: 15_000 });
     await expect.poll(() => img.evaluate((el: HTMLImageElement) => el.complete && el.naturalWidth > 0), { timeout: 15_000 }).toBe(true);
-    await expect.poll(() => page.getByText(/no substitute for measurement/i).first().isVisible()).toBe(true);
+    await expect
+      .poll(() =>
+        page
+          .getByText(/no substitute for measurement/i)
+          .first()
+          .isVisible(),
+      )
+      .toBe(true);
     await screenshot(page, 'resonance-detail');
   });
 
@@ -118,7 +155,16 @@ describe('a pole search from the editor to the catalogue', () => {
       expect(await page.locator('[data-test="save"]').count()).toBe(0);
       expect(await page.getByRole('link', { name: /launch a run/i }).count()).toBe(0);
       await page.goto(`${baseUrl}/g/harrow-lake/runs`);
-      await expect.poll(() => page.getByText(/E2E stadium dot/).first().isVisible(), { timeout: 15_000 }).toBe(true);
+      await expect
+        .poll(
+          () =>
+            page
+              .getByText(/E2E stadium dot/)
+              .first()
+              .isVisible(),
+          { timeout: 15_000 },
+        )
+        .toBe(true);
       expect(await page.getByRole('button', { name: /launch/i }).count()).toBe(0);
       expect(await page.getByRole('link', { name: /launch/i }).count()).toBe(0);
       await page.goto(resonanceUrl);

@@ -23,7 +23,7 @@ describe('sign-in and dashboard in a real browser', () => {
     await screenshot(page, 'sign-in');
   });
 
-  it('a wrong password shows the server\'s message', async () => {
+  it("a wrong password shows the server's message", async () => {
     await signIn(page, baseUrl, 'dev.designer@harrow-lake.example', 'not-the-password');
     await expect.poll(() => page.getByText('E-mail or password is wrong.').isVisible(), { timeout: 10_000 }).toBe(true);
   });

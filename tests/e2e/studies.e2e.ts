@@ -30,7 +30,9 @@ describe('a field study from the launcher to a saved version', () => {
       const session = await (await fetch('/api/auth/session')).json();
       const group = session.groups.find((g: { slug: string }) => g.slug === 'harrow-lake');
       const headers = { 'Content-Type': 'application/json', 'X-CSRF-Token': session.csrfToken };
-      const created = await (await fetch(`/api/groups/${group.id}/models`, { method: 'POST', headers, body: JSON.stringify({ document: { ...model, name: 'E2E study dot' } }) })).json();
+      const created = await (
+        await fetch(`/api/groups/${group.id}/models`, { method: 'POST', headers, body: JSON.stringify({ document: { ...model, name: 'E2E study dot' } }) })
+      ).json();
       return created.id as string;
     }, smallDot());
     expect(modelId).toMatch(/^[0-9a-f-]{36}$/);
@@ -57,7 +59,10 @@ describe('a field study from the launcher to a saved version', () => {
     // The page shows every step at once, with its state, while the study runs or after it.
     await page.locator('[data-test="step-list"] li').first().waitFor({ timeout: 15_000 });
     expect(await page.locator('[data-test="step-list"] li').count()).toBe(3);
-    await page.locator('[data-test="status"]').filter({ hasText: /Completed|Failed|Cancelled/ }).waitFor({ timeout: 180_000 });
+    await page
+      .locator('[data-test="status"]')
+      .filter({ hasText: /Completed|Failed|Cancelled/ })
+      .waitFor({ timeout: 180_000 });
     expect(await page.locator('[data-test="status"]').textContent()).toContain('Completed');
     expect(await page.locator('[data-test="progress"]').textContent()).toContain('3 of 3 steps done');
     await page.locator('[data-test="plane-chart"] svg').waitFor({ timeout: 15_000 });

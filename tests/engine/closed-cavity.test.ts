@@ -10,28 +10,36 @@ describe('closed-cavity eigenvalues', () => {
   it('finds the rectangle levels nearest a target, with multiplicity', () => {
     // E_nm = 2t(2 − cos(nπ/(Nx+1)) − cos(mπ/(Ny+1))) (contract, exact). A square has
     // E_nm = E_mn: pairs of exactly degenerate levels that one Krylov space cannot both hold.
-    const nx = 30, ny = 30, t = 1;
+    const nx = 30,
+      ny = 30,
+      t = 1;
     const mask = rasteriseShape({ kind: 'rectangle', x0: 0, y0: 0, width: nx, height: ny }, nx, ny, 1);
     const lattice = buildLattice(mask, nx, ny, t, 0);
     const exact: number[] = [];
-    for (let n = 1; n <= nx; n++) for (let m = 1; m <= ny; m++) exact.push(2 * t * (2 - Math.cos((n * Math.PI) / (nx + 1)) - Math.cos((m * Math.PI) / (ny + 1))));
+    for (let n = 1; n <= nx; n++)
+      for (let m = 1; m <= ny; m++) exact.push(2 * t * (2 - Math.cos((n * Math.PI) / (nx + 1)) - Math.cos((m * Math.PI) / (ny + 1))));
     const target = 0.731 * t;
     const count = 9;
-    const nearest = [...exact].sort((a, b) => Math.abs(a - target) - Math.abs(b - target)).slice(0, count).sort((a, b) => a - b);
+    const nearest = [...exact]
+      .sort((a, b) => Math.abs(a - target) - Math.abs(b - target))
+      .slice(0, count)
+      .sort((a, b) => a - b);
     const res = closedCavityEigenvalues(lattice, { target, count, vectors: true });
     expect(res.energies).toHaveLength(count);
     res.energies.forEach((e, k) => expect(Math.abs(e - nearest[k])).toBeLessThan(1e-9 * t));
     res.residuals.forEach((r) => expect(r).toBeLessThan(1e-7 * t));
     // Eigenvectors of distinct or degenerate levels come out orthonormal.
     const v = res.vectors!;
-    for (let a = 0; a < count; a++) for (let b = 0; b <= a; b++) {
-      let re = 0, im = 0;
-      for (let k = 0; k < v[a].length; k += 2) {
-        re += v[a][k] * v[b][k] + v[a][k + 1] * v[b][k + 1];
-        im += v[a][k] * v[b][k + 1] - v[a][k + 1] * v[b][k];
+    for (let a = 0; a < count; a++)
+      for (let b = 0; b <= a; b++) {
+        let re = 0,
+          im = 0;
+        for (let k = 0; k < v[a].length; k += 2) {
+          re += v[a][k] * v[b][k] + v[a][k + 1] * v[b][k + 1];
+          im += v[a][k] * v[b][k + 1] - v[a][k + 1] * v[b][k];
+        }
+        expect(Math.hypot(re - (a === b ? 1 : 0), im)).toBeLessThan(1e-8);
       }
-      expect(Math.hypot(re - (a === b ? 1 : 0), im)).toBeLessThan(1e-8);
-    }
   });
 
   it('approaches the continuum disk levels t·(j a/R)² as a/R falls', () => {

@@ -100,7 +100,8 @@ describe('probability current of scattering states', () => {
         const b = point.sChannels!.findIndex((c) => c.lead === st.lead && c.channel === st.channel);
         let back = 0;
         point.sChannels!.forEach((c, a) => {
-          if (c.lead === st.lead) back += point.sMatrix![2 * (a * point.sChannels!.length + b)] ** 2 + point.sMatrix![2 * (a * point.sChannels!.length + b) + 1] ** 2;
+          if (c.lead === st.lead)
+            back += point.sMatrix![2 * (a * point.sChannels!.length + b)] ** 2 + point.sMatrix![2 * (a * point.sChannels!.length + b) + 1] ** 2;
         });
         expect(Math.abs(map.leadCurrents[st.lead] - (back - 1))).toBeLessThan(1e-10);
       }
@@ -160,7 +161,13 @@ describe('probability current of poles', () => {
 
 describe('current of closed cavities, fields and gauges', () => {
   it('vanishes on every bond of a closed-rectangle eigenstate (B = 0)', () => {
-    const sys = buildCavitySystem({ name: 'box', spacing, material, grid: { nx: 30, ny: 20 }, shape: { kind: 'rectangle', x0: 0, y0: 0, width: 150, height: 100 } });
+    const sys = buildCavitySystem({
+      name: 'box',
+      spacing,
+      material,
+      grid: { nx: 30, ny: 20 },
+      shape: { kind: 'rectangle', x0: 0, y0: 0, width: 150, height: 100 },
+    });
     const t = sys.hopping;
     const res = closedCavityEigenvalues(sys.lattice, { target: 0.3 * t, count: 3, vectors: true });
     for (const v of res.vectors!) {

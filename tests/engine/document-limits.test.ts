@@ -37,7 +37,10 @@ describe('document limits, checked before any geometry work', () => {
   });
 
   it('a polygon of 20,000 vertices is refused at its vertices, before rasterising', () => {
-    const vertices = Array.from({ length: 20_000 }, (_, k) => [100 + 90 * Math.cos((2 * Math.PI * k) / 20_000), 100 + 90 * Math.sin((2 * Math.PI * k) / 20_000)]);
+    const vertices = Array.from({ length: 20_000 }, (_, k) => [
+      100 + 90 * Math.cos((2 * Math.PI * k) / 20_000),
+      100 + 90 * Math.sin((2 * Math.PI * k) / 20_000),
+    ]);
     const issues = issuesOf(base({ kind: 'polygon', vertices }, { nx: 500, ny: 500 }));
     expect(issues[0].path).toEqual(['shape', 'vertices']);
     expect(issues[0].message).toMatch(/20000 vertices, above the limit of 4096/);
@@ -86,7 +89,9 @@ describe('polygon rasterisation by rows', () => {
     const vertex = fc.tuple(fc.oneof(coord, onLattice), fc.oneof(coord, onLattice));
     fc.assert(
       fc.property(fc.array(vertex, { minLength: 3, maxLength: 12 }), (vertices) => {
-        const nx = 25, ny = 22, a = 5;
+        const nx = 25,
+          ny = 22,
+          a = 5;
         const mask = rasteriseShape({ kind: 'polygon', vertices } as Shape, nx, ny, a);
         for (let i = 0; i < nx; i++) {
           for (let j = 0; j < ny; j++) {

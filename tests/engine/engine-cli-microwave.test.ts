@@ -73,7 +73,7 @@ describe('engine command line, microwave mode', () => {
     close(out.microwave.twoDimensionalLimitGhz, C_MM_PER_NS / (2 * HEIGHT_MM * Math.sqrt(EPS)));
   });
 
-  it('prints the closed resonator\'s frequenciesGhz beside its k² eigenvalues', () => {
+  it("prints the closed resonator's frequenciesGhz beside its k² eigenvalues", () => {
     const r = engine('closed', model, '--target', '0.4', '--count', '3');
     expect(r.status, r.stderr).toBe(0);
     const out = JSON.parse(r.stdout) as { energies: number[]; frequenciesGhz: number[] };

@@ -17,7 +17,24 @@ function engine(...args: string[]) {
 
 describe('engine fit', () => {
   it('fits the demo trace (gate voltage with a lever arm, conductance in µS) and prints parameters, errors, χ² and covariance', () => {
-    const r = engine('fit', demo, '--x', 'gate_mV', '--x-unit', 'mV', '--lever-arm', '0.08', '--y', 'G_uS', '--y-unit', 'uS', '--shape', 'thermal', '--temperature-mK', '100');
+    const r = engine(
+      'fit',
+      demo,
+      '--x',
+      'gate_mV',
+      '--x-unit',
+      'mV',
+      '--lever-arm',
+      '0.08',
+      '--y',
+      'G_uS',
+      '--y-unit',
+      'uS',
+      '--shape',
+      'thermal',
+      '--temperature-mK',
+      '100',
+    );
     expect(r.status, r.stderr).toBe(0);
     const out = JSON.parse(r.stdout);
     expect(out.points).toBe(241);
@@ -33,7 +50,7 @@ describe('engine fit', () => {
     expect(out.chiSquare).toBeGreaterThan(0);
   });
 
-  it('gives the same range of rows with --range (in the file\'s x unit) and --lines', () => {
+  it("gives the same range of rows with --range (in the file's x unit) and --lines", () => {
     const r = engine('fit', demo, '--x', 'energy_ueV', '--x-unit', 'ueV', '--y', 'G_uS', '--y-unit', 'uS', '--shape', 'bw', '--range', '3200:3300');
     expect(r.status, r.stderr).toBe(0);
     const out = JSON.parse(r.stdout);

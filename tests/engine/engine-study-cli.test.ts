@@ -50,7 +50,26 @@ describe('engine study command', () => {
   });
 
   it('prints the samples and statistics of an ensemble', () => {
-    const r = engine('study', file, '--ensemble', '3', '--roughness-nm', '0', '--correlation-nm', '5', '--seed', '4', '--emin', '24', '--emax', '27', '--gmax', '1', '--tolerance-width', '0:');
+    const r = engine(
+      'study',
+      file,
+      '--ensemble',
+      '3',
+      '--roughness-nm',
+      '0',
+      '--correlation-nm',
+      '5',
+      '--seed',
+      '4',
+      '--emin',
+      '24',
+      '--emax',
+      '27',
+      '--gmax',
+      '1',
+      '--tolerance-width',
+      '0:',
+    );
     expect(r.status).toBe(0);
     const out = JSON.parse(r.stdout);
     expect(out.realisations).toHaveLength(3);

@@ -34,7 +34,12 @@ describe('trigamma', () => {
 
   it('matches the defining series Σ 1/(n + z)² at complex z (summed to 1e5 terms plus the Euler–Maclaurin tail 1/(N + z) + 1/(2(N + z)²))', () => {
     const out = new Float64Array(2);
-    for (const [re, im] of [[0.5, 3], [2.3, -7], [0.5, 0.01], [30, 40]]) {
+    for (const [re, im] of [
+      [0.5, 3],
+      [2.3, -7],
+      [0.5, 0.01],
+      [30, 40],
+    ]) {
       let sr = 0;
       let si = 0;
       const N = 100000;
@@ -59,7 +64,11 @@ describe('trigamma', () => {
 describe('lineshapes', () => {
   it('the thermal closed form equals the Lorentzian averaged over −∂f/∂E by quadrature (definition of the thermal average)', () => {
     const pair = new Float64Array(2);
-    for (const [gamma, kT] of [[0.02, 0.001], [0.01, 0.01], [0.001, 0.02]]) {
+    for (const [gamma, kT] of [
+      [0.02, 0.001],
+      [0.01, 0.01],
+      [0.001, 0.02],
+    ]) {
       for (const mu of [-0.05, -0.003, 0, 0.004, 0.03]) {
         // Simpson's rule over ±40 kT around μ and ±200 Γ around E0, on a fine grid.
         const lo = Math.min(mu - 40 * kT, -200 * gamma);
@@ -177,7 +186,7 @@ describe('fitPeaks', () => {
     expect(Math.abs(fano.peaks[0].energy - bw.peaks[0].energy)).toBeLessThan(0.02 / (2 * Math.abs(fano.peaks[0].q!)) + 3 * bw.peaks[0].energyError!);
   });
 
-  it('thermal data: kT ≪ Γ gives back the Breit–Wigner width; kT ≫ Γ gives a fitted peak of FWHM 3.5255·kT and says the width is the temperature\'s', () => {
+  it("thermal data: kT ≪ Γ gives back the Breit–Wigner width; kT ≫ Γ gives a fitted peak of FWHM 3.5255·kT and says the width is the temperature's", () => {
     const noise = normalSource(5);
     const temperatureMK = 100;
     const kT = temperatureMK * BOLTZMANN_MEV_PER_MK; // 8.6 µeV
@@ -226,7 +235,7 @@ describe('fitPeaks', () => {
 });
 
 describe('a peak the engine computed', () => {
-  it('fits to a width within 1% of its pole\'s Γ and a position within 1% of Γ (an isolated pole: Breit–Wigner, Breit & Wigner, Phys. Rev. 49 (1936) 519)', () => {
+  it("fits to a width within 1% of its pole's Γ and a position within 1% of Γ (an isolated pole: Breit–Wigner, Breit & Wigner, Phys. Rev. 49 (1936) 519)", () => {
     // A chain with two strong barriers: a weakly coupled 1D cavity with narrow, isolated resonances.
     const doc: CavityModelInput = {
       name: 'double barrier',
@@ -234,14 +243,25 @@ describe('a peak the engine computed', () => {
       material: { effectiveMass: 0.067 },
       grid: { nx: 40, ny: 1 },
       shape: { kind: 'rectangle', x0: 0, y0: 0, width: 200, height: 5 },
-      potential: [{ kind: 'sites', values: [[4, 0, 1], [31, 0, 1]] }],
+      potential: [
+        {
+          kind: 'sites',
+          values: [
+            [4, 0, 1],
+            [31, 0, 1],
+          ],
+        },
+      ],
       leads: [
         { side: 'left', start: 0, width: 1 },
         { side: 'right', start: 0, width: 1 },
       ],
     };
     const t = new EffectiveHamiltonian(buildCavitySystem(doc)).hopping;
-    (doc.potential![0] as { values: [number, number, number][] }).values = [[4, 0, 6 * t], [31, 0, 6 * t]];
+    (doc.potential![0] as { values: [number, number, number][] }).values = [
+      [4, 0, 6 * t],
+      [31, 0, 6 * t],
+    ];
     const op = new EffectiveHamiltonian(buildCavitySystem(doc));
     const found = findPoles(op, { emin: 2.25 * t, emax: 2.45 * t, gammaMax: 0.02 * t }, { plan: new DenseLuPlan(op) });
     const pole = found.poles.filter((p) => !p.bound).sort((a, b) => a.petermann - b.petermann)[0];

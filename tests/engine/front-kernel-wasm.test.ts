@@ -77,11 +77,13 @@ function luResidual(f0: Float64Array, r: FrontResult, m: number): number {
   let worst = 0;
   for (let i = 0; i < m; i++) {
     for (let j = 0; j < m; j++) {
-      let sr = 0, si = 0;
+      let sr = 0,
+        si = 0;
       for (let t = 0; t <= Math.min(i, j); t++) {
         const lr = t === i ? 1 : r.f[2 * (t * m + i)];
         const li = t === i ? 0 : r.f[2 * (t * m + i) + 1];
-        const ur = r.f[2 * (j * m + t)], ui = r.f[2 * (j * m + t) + 1];
+        const ur = r.f[2 * (j * m + t)],
+          ui = r.f[2 * (j * m + t) + 1];
         sr += lr * ur - li * ui;
         si += lr * ui + li * ur;
       }
@@ -147,14 +149,18 @@ describe.runIf(wasmKernelAvailable())('WebAssembly front kernel against the Type
 function lattice(nx: number, ny: number, zeroDiagonal: boolean, seed: number): { a: ComplexCsc; sites: { i: Int32Array; j: Int32Array } } {
   const rnd = rng(seed);
   const n = nx * ny;
-  const rows: number[] = [], cols: number[] = [], re: number[] = [], im: number[] = [];
+  const rows: number[] = [],
+    cols: number[] = [],
+    re: number[] = [],
+    im: number[] = [];
   const add = (r: number, c: number, x: number, y: number): void => {
     rows.push(r);
     cols.push(c);
     re.push(x);
     im.push(y);
   };
-  const si = new Int32Array(n), sj = new Int32Array(n);
+  const si = new Int32Array(n),
+    sj = new Int32Array(n);
   for (let j = 0; j < ny; j++) {
     for (let i = 0; i < nx; i++) {
       const v = j * nx + i;
@@ -202,7 +208,9 @@ describe.runIf(wasmKernelAvailable())('sparse LU with the WebAssembly kernel', (
       const b = cscMultiply(a, x);
       const yTs = luTs.solve(b, 1, new Float64Array(b.length));
       const yWasm = luWasm.solve(b, 1, new Float64Array(b.length));
-      let err = 0, diff = 0, nrm = 0;
+      let err = 0,
+        diff = 0,
+        nrm = 0;
       for (let q = 0; q < x.length; q++) {
         err = Math.max(err, Math.abs(yWasm[q] - x[q]));
         diff = Math.max(diff, Math.abs(yWasm[q] - yTs[q]));

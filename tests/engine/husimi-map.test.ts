@@ -32,7 +32,7 @@ function interior(points: Float64Array, nx: number, ny: number, margin: number):
 }
 
 describe('Husimi direction maps', () => {
-  it('peaks at a plane wave\'s direction within the stated angular resolution', () => {
+  it("peaks at a plane wave's direction within the stated angular resolution", () => {
     const sys = box(90, 80);
     const t = sys.hopping;
     const theta = 0.5;

@@ -29,7 +29,12 @@ function noCollinear(ring: Ring): boolean {
 
 describe('outline traced from the site mask', () => {
   it('a full rectangle of sites is one 4-vertex rectangle of N·a by M·a', () => {
-    const t = traceMaskOutline(maskOf(7, 4, () => true), 7, 4, 5);
+    const t = traceMaskOutline(
+      maskOf(7, 4, () => true),
+      7,
+      4,
+      5,
+    );
     expect(t.parts).toHaveLength(1);
     expect(t.parts[0]!.outer).toEqual([
       [0, 0],
@@ -62,23 +67,29 @@ describe('outline traced from the site mask', () => {
 
   it('for any mask the traced area is sites·a², boundaries are CCW, holes CW, no collinear points (property)', () => {
     fc.assert(
-      fc.property(fc.integer({ min: 1, max: 9 }), fc.integer({ min: 1, max: 9 }), fc.double({ min: 0.5, max: 20, noNaN: true }), fc.array(fc.boolean(), { minLength: 81, maxLength: 81 }), (nx, ny, a, bits) => {
-        const mask = maskOf(nx, ny, (i, j) => bits[i * 9 + j]!);
-        const t = traceMaskOutline(mask, nx, ny, a);
-        const expected = count(mask) * a * a;
-        expect(Math.abs(t.area - expected)).toBeLessThanOrEqual(1e-9 * Math.max(1, expected));
-        for (const p of t.parts) {
-          expect(signedArea(p.outer)).toBeGreaterThan(0);
-          expect(noCollinear(p.outer)).toBe(true);
-          for (const h of p.holes) {
-            expect(signedArea(h)).toBeLessThan(0);
-            expect(noCollinear(h)).toBe(true);
+      fc.property(
+        fc.integer({ min: 1, max: 9 }),
+        fc.integer({ min: 1, max: 9 }),
+        fc.double({ min: 0.5, max: 20, noNaN: true }),
+        fc.array(fc.boolean(), { minLength: 81, maxLength: 81 }),
+        (nx, ny, a, bits) => {
+          const mask = maskOf(nx, ny, (i, j) => bits[i * 9 + j]!);
+          const t = traceMaskOutline(mask, nx, ny, a);
+          const expected = count(mask) * a * a;
+          expect(Math.abs(t.area - expected)).toBeLessThanOrEqual(1e-9 * Math.max(1, expected));
+          for (const p of t.parts) {
+            expect(signedArea(p.outer)).toBeGreaterThan(0);
+            expect(noCollinear(p.outer)).toBe(true);
+            for (const h of p.holes) {
+              expect(signedArea(h)).toBeLessThan(0);
+              expect(noCollinear(h)).toBe(true);
+            }
+            const bridged = bridgeHoles(p.outer, p.holes);
+            const partArea = signedArea(p.outer) + p.holes.reduce((s, h) => s + signedArea(h), 0);
+            expect(Math.abs(signedArea(bridged) - partArea)).toBeLessThanOrEqual(1e-9 * Math.max(1, expected));
           }
-          const bridged = bridgeHoles(p.outer, p.holes);
-          const partArea = signedArea(p.outer) + p.holes.reduce((s, h) => s + signedArea(h), 0);
-          expect(Math.abs(signedArea(bridged) - partArea)).toBeLessThanOrEqual(1e-9 * Math.max(1, expected));
-        }
-      }),
+        },
+      ),
       { numRuns: 300 },
     );
   });
@@ -127,8 +138,17 @@ describe('device layout and GDSII', () => {
   });
 
   it('the GDSII file, read back by the independent gdsii parser, gives the same polygons in nm on the same layers', () => {
-    const boundaries = layout.layers.flatMap((l) => l.polygons.map((ring) => ({ layer: l.layer, datatype: l.datatype, ring: ring.map(([x, y]) => [Math.round(x), Math.round(y)] as const) })));
-    const bytes = writeGdsii({ libraryName: 'POLEWARD', structureName: 'DEVICE', userUnitsPerDatabaseUnit: 1e-3, metresPerDatabaseUnit: 1e-9, boundaries, time: new Date(Date.UTC(2026, 11, 2, 7, 0, 0)) });
+    const boundaries = layout.layers.flatMap((l) =>
+      l.polygons.map((ring) => ({ layer: l.layer, datatype: l.datatype, ring: ring.map(([x, y]) => [Math.round(x), Math.round(y)] as const) })),
+    );
+    const bytes = writeGdsii({
+      libraryName: 'POLEWARD',
+      structureName: 'DEVICE',
+      userUnitsPerDatabaseUnit: 1e-3,
+      metresPerDatabaseUnit: 1e-9,
+      boundaries,
+      time: new Date(Date.UTC(2026, 11, 2, 7, 0, 0)),
+    });
     const records = [...parseGDS(new Uint8Array(bytes))];
     const units = records.find((r) => r.tag === RecordType.UNITS)!.data as { userUnit: number; metersPerUnit: number };
     expect(units.userUnit).toBeCloseTo(1e-3, 15);
@@ -186,7 +206,22 @@ describe('device layout and GDSII', () => {
 
   it('refuses a coordinate that is not a whole database unit, and a boundary over 8190 vertices', () => {
     const base = { libraryName: 'X', structureName: 'Y', userUnitsPerDatabaseUnit: 1e-3, metresPerDatabaseUnit: 1e-9, time: new Date() };
-    expect(() => writeGdsii({ ...base, boundaries: [{ layer: 1, datatype: 0, ring: [[0, 0], [1.5, 0], [1, 1]] }] })).toThrow(/not a 32-bit integer/);
+    expect(() =>
+      writeGdsii({
+        ...base,
+        boundaries: [
+          {
+            layer: 1,
+            datatype: 0,
+            ring: [
+              [0, 0],
+              [1.5, 0],
+              [1, 1],
+            ],
+          },
+        ],
+      }),
+    ).toThrow(/not a 32-bit integer/);
     const big: Ring = Array.from({ length: 8191 }, (_, k) => [k, k % 2] as const);
     expect(() => writeGdsii({ ...base, boundaries: [{ layer: 1, datatype: 0, ring: big }] })).toThrow(/8190/);
   });

@@ -10,28 +10,37 @@ function invert(n: number, a: Float64Array): Float64Array {
   for (let i = 0; i < n; i++) inv[2 * (i * n + i)] = 1;
   for (let c = 0; c < n; c++) {
     let piv = c;
-    for (let r = c + 1; r < n; r++) if (Math.hypot(m[2 * (r * n + c)], m[2 * (r * n + c) + 1]) > Math.hypot(m[2 * (piv * n + c)], m[2 * (piv * n + c) + 1])) piv = r;
-    for (const x of [m, inv]) for (let k = 0; k < 2 * n; k++) {
-      const t = x[2 * piv * n + k];
-      x[2 * piv * n + k] = x[2 * c * n + k];
-      x[2 * c * n + k] = t;
-    }
-    const pr = m[2 * (c * n + c)], pi = m[2 * (c * n + c) + 1];
+    for (let r = c + 1; r < n; r++)
+      if (Math.hypot(m[2 * (r * n + c)], m[2 * (r * n + c) + 1]) > Math.hypot(m[2 * (piv * n + c)], m[2 * (piv * n + c) + 1])) piv = r;
+    for (const x of [m, inv])
+      for (let k = 0; k < 2 * n; k++) {
+        const t = x[2 * piv * n + k];
+        x[2 * piv * n + k] = x[2 * c * n + k];
+        x[2 * c * n + k] = t;
+      }
+    const pr = m[2 * (c * n + c)],
+      pi = m[2 * (c * n + c) + 1];
     const d = pr * pr + pi * pi;
-    const ir = pr / d, ii = -pi / d;
-    for (const x of [m, inv]) for (let k = 0; k < n; k++) {
-      const re = x[2 * (c * n + k)], im = x[2 * (c * n + k) + 1];
-      x[2 * (c * n + k)] = re * ir - im * ii;
-      x[2 * (c * n + k) + 1] = re * ii + im * ir;
-    }
+    const ir = pr / d,
+      ii = -pi / d;
+    for (const x of [m, inv])
+      for (let k = 0; k < n; k++) {
+        const re = x[2 * (c * n + k)],
+          im = x[2 * (c * n + k) + 1];
+        x[2 * (c * n + k)] = re * ir - im * ii;
+        x[2 * (c * n + k) + 1] = re * ii + im * ir;
+      }
     for (let r = 0; r < n; r++) {
       if (r === c) continue;
-      const fr = m[2 * (r * n + c)], fi = m[2 * (r * n + c) + 1];
-      for (const x of [m, inv]) for (let k = 0; k < n; k++) {
-        const re = x[2 * (c * n + k)], im = x[2 * (c * n + k) + 1];
-        x[2 * (r * n + k)] -= fr * re - fi * im;
-        x[2 * (r * n + k) + 1] -= fr * im + fi * re;
-      }
+      const fr = m[2 * (r * n + c)],
+        fi = m[2 * (r * n + c) + 1];
+      for (const x of [m, inv])
+        for (let k = 0; k < n; k++) {
+          const re = x[2 * (c * n + k)],
+            im = x[2 * (c * n + k) + 1];
+          x[2 * (r * n + k)] -= fr * re - fi * im;
+          x[2 * (r * n + k) + 1] -= fr * im + fi * re;
+        }
     }
   }
   return inv;
@@ -62,10 +71,15 @@ describe('lead channels and self-energy', () => {
     channelLambda(eps - 0.7 * t, -0.1 * t, eps, t, true, out, 0);
     expect(Math.hypot(out[0], out[1])).toBeGreaterThan(1);
     // Closed on both sides of the band: |λ| < 1, and λ solves λ² − 2wλ + 1 = 0.
-    for (const [re, im] of [[eps - 2.5 * t, -0.2 * t], [eps + 2.3 * t, -0.05 * t], [eps - 3 * t, 0]]) {
+    for (const [re, im] of [
+      [eps - 2.5 * t, -0.2 * t],
+      [eps + 2.3 * t, -0.05 * t],
+      [eps - 3 * t, 0],
+    ]) {
       channelLambda(re, im, eps, t, false, out, 0);
       expect(Math.hypot(out[0], out[1])).toBeLessThan(1);
-      const wr = (eps - re) / (2 * t), wi = -im / (2 * t);
+      const wr = (eps - re) / (2 * t),
+        wi = -im / (2 * t);
       const qr = out[0] ** 2 - out[1] ** 2 - 2 * (wr * out[0] - wi * out[1]) + 1;
       const qi = 2 * out[0] * out[1] - 2 * (wr * out[1] + wi * out[0]);
       expect(Math.hypot(qr, qi)).toBeLessThan(1e-13);
@@ -74,11 +88,12 @@ describe('lead channels and self-energy', () => {
 
   it('has orthonormal transverse modes', () => {
     const ch = leadChannels(7, t, 0);
-    for (let m = 0; m < 7; m++) for (let n = 0; n < 7; n++) {
-      let dot = 0;
-      for (let p = 0; p < 7; p++) dot += ch.chi[m * 7 + p] * ch.chi[n * 7 + p];
-      expect(Math.abs(dot - (m === n ? 1 : 0))).toBeLessThan(1e-14);
-    }
+    for (let m = 0; m < 7; m++)
+      for (let n = 0; n < 7; n++) {
+        let dot = 0;
+        for (let p = 0; p < 7; p++) dot += ch.chi[m * 7 + p] * ch.chi[n * 7 + p];
+        expect(Math.abs(dot - (m === n ? 1 : 0))).toBeLessThan(1e-14);
+      }
   });
 
   it('matches the surface Green function of a semi-infinite ribbon found by iteration', () => {
@@ -111,14 +126,19 @@ describe('lead channels and self-energy', () => {
     const op = new EffectiveHamiltonian(buildCavitySystem(ribbonModel(5, 0.7, 'top')));
     const tt = op.hopping;
     const nnz = op.rowIdx.length;
-    const plus = new Float64Array(2 * nnz), minus = new Float64Array(2 * nnz), deriv = new Float64Array(2 * nnz);
+    const plus = new Float64Array(2 * nnz),
+      minus = new Float64Array(2 * nnz),
+      deriv = new Float64Array(2 * nnz);
     for (const re of [0.5 * tt, 1.9 * tt, 3.1 * tt]) {
       const sheet = op.sheetAt(re);
       // Lower half plane, where poles live, and on the real axis.
       for (const im of [-0.2 * tt, 0]) {
         const z = { re, im };
         op.assembleDerivative(z, sheet, deriv);
-        for (const dir of [{ re: 1, im: 0 }, { re: 0, im: 1 }]) {
+        for (const dir of [
+          { re: 1, im: 0 },
+          { re: 0, im: 1 },
+        ]) {
           const h = 1e-5 * tt;
           op.assemble({ re: re + h * dir.re, im: im + h * dir.im }, sheet, plus);
           op.assemble({ re: re - h * dir.re, im: im - h * dir.im }, sheet, minus);
@@ -147,32 +167,40 @@ describe('lead channels and self-energy', () => {
     expect(w.count).toBe(op.openChannels(0, e).length);
     expect(w.count).toBeGreaterThan(0);
     expect(w.count).toBeLessThan(5);
-    for (let p = 0; p < 5; p++) for (let q = 0; q < 5; q++) {
-      // Γ[p,q] = i(Σ[p,q] − conj Σ[q,p])
-      const dr = sigma[2 * (p * 5 + q)] - sigma[2 * (q * 5 + p)];
-      const di = sigma[2 * (p * 5 + q) + 1] + sigma[2 * (q * 5 + p) + 1];
-      const gr = -di, gi = dr;
-      let wr = 0, wi = 0;
-      for (let c = 0; c < w.count; c++) {
-        const a = 2 * (c * op.n + mouth[p]), b = 2 * (c * op.n + mouth[q]);
-        wr += w.values[a] * w.values[b] + w.values[a + 1] * w.values[b + 1];
-        wi += w.values[a + 1] * w.values[b] - w.values[a] * w.values[b + 1];
+    for (let p = 0; p < 5; p++)
+      for (let q = 0; q < 5; q++) {
+        // Γ[p,q] = i(Σ[p,q] − conj Σ[q,p])
+        const dr = sigma[2 * (p * 5 + q)] - sigma[2 * (q * 5 + p)];
+        const di = sigma[2 * (p * 5 + q) + 1] + sigma[2 * (q * 5 + p) + 1];
+        const gr = -di,
+          gi = dr;
+        let wr = 0,
+          wi = 0;
+        for (let c = 0; c < w.count; c++) {
+          const a = 2 * (c * op.n + mouth[p]),
+            b = 2 * (c * op.n + mouth[q]);
+          wr += w.values[a] * w.values[b] + w.values[a + 1] * w.values[b + 1];
+          wi += w.values[a + 1] * w.values[b] - w.values[a] * w.values[b + 1];
+        }
+        expect(Math.abs(gr - wr)).toBeLessThan(1e-12 * tt);
+        expect(Math.abs(gi - wi)).toBeLessThan(1e-12 * tt);
       }
-      expect(Math.abs(gr - wr)).toBeLessThan(1e-12 * tt);
-      expect(Math.abs(gi - wi)).toBeLessThan(1e-12 * tt);
-    }
     const psi = new Float64Array(2 * op.n);
     for (let k = 0; k < psi.length; k++) psi[k] = Math.sin(1.7 * k + 0.3);
     const z = { re: e, im: -0.1 * tt };
     const s = op.selfEnergy(0, z, op.sheetAt(e));
     let im = 0;
-    for (let p = 0; p < 5; p++) for (let q = 0; q < 5; q++) {
-      const a = 2 * mouth[p], b = 2 * mouth[q];
-      const sr = s[2 * (p * 5 + q)], si = s[2 * (p * 5 + q) + 1];
-      // Im(conj(ψ_p)·Σ[p,q]·ψ_q)
-      const xr = sr * psi[b] - si * psi[b + 1], xi = sr * psi[b + 1] + si * psi[b];
-      im += psi[a] * xi - psi[a + 1] * xr;
-    }
+    for (let p = 0; p < 5; p++)
+      for (let q = 0; q < 5; q++) {
+        const a = 2 * mouth[p],
+          b = 2 * mouth[q];
+        const sr = s[2 * (p * 5 + q)],
+          si = s[2 * (p * 5 + q) + 1];
+        // Im(conj(ψ_p)·Σ[p,q]·ψ_q)
+        const xr = sr * psi[b] - si * psi[b + 1],
+          xi = sr * psi[b + 1] + si * psi[b];
+        im += psi[a] * xi - psi[a + 1] * xr;
+      }
     expect(op.leadWidthForm(z, op.sheetAt(e), 0, psi) / (-2 * im)).toBeCloseTo(1, 12);
   });
 

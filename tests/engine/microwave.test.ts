@@ -10,7 +10,14 @@ import { currentMap, leadCouplings } from '../../shared/engine/current-map';
 import { husimiMap } from '../../shared/engine/husimi-map';
 import { type CavityModelInput } from '../../shared/model/cavity-model';
 import { validateCavityModel } from '../../shared/model/model-validation';
-import { C_MM_PER_NS, frequencyOfWavenumberSquared, microwaveFigures, microwaveWindow, twoDimensionalLimitGhz, wavenumberSquared } from '../../shared/units/microwave';
+import {
+  C_MM_PER_NS,
+  frequencyOfWavenumberSquared,
+  microwaveFigures,
+  microwaveWindow,
+  twoDimensionalLimitGhz,
+  wavenumberSquared,
+} from '../../shared/units/microwave';
 import { deriveFigures } from '../../shared/model/derived-figures';
 import { resonanceFigures, resonancePhysicsOf } from '../../shared/model/resonance-validity';
 import { HBAR_MEV_PS } from '../../shared/units/constants';
@@ -40,7 +47,12 @@ describe('the microwave model document', () => {
     const paths = bad.ok ? [] : bad.issues.map((i) => i.path.join('.'));
     expect(paths).toEqual(expect.arrayContaining(['material', 'field', 'potential', 'leads.0.offset']));
     // Electrons still need their material, and say so by name.
-    const noMaterial = validateCavityModel({ name: 'x', spacing: 5, grid: { nx: 4, ny: 4 }, shape: { kind: 'rectangle', x0: 0, y0: 0, width: 20, height: 20 } });
+    const noMaterial = validateCavityModel({
+      name: 'x',
+      spacing: 5,
+      grid: { nx: 4, ny: 4 },
+      shape: { kind: 'rectangle', x0: 0, y0: 0, width: 20, height: 20 },
+    });
     expect(noMaterial.ok ? [] : noMaterial.issues.map((i) => i.path.join('.'))).toContain('material');
   });
 

@@ -24,7 +24,13 @@ function graphOf(n: number, edges: [number, number][]): Adjacency {
     rows.push(a, b);
     cols.push(b, a);
   }
-  const a = cscFromTriplets(n, rows, cols, rows.map(() => 1), rows.map(() => 0));
+  const a = cscFromTriplets(
+    n,
+    rows,
+    cols,
+    rows.map(() => 1),
+    rows.map(() => 0),
+  );
   return symmetricAdjacency(n, a.colPtr, a.rowIdx);
 }
 
@@ -43,7 +49,8 @@ function fillCount(g: Adjacency, perm: Int32Array): number {
     const later = [...nb[v]].filter((u) => !gone[u]);
     for (let x = 0; x < later.length; x++) {
       for (let y = x + 1; y < later.length; y++) {
-        const a = later[x], b = later[y];
+        const a = later[x],
+          b = later[y];
         if (!nb[a].has(b)) {
           nb[a].add(b);
           nb[b].add(a);
@@ -93,7 +100,19 @@ describe('approximate minimum-degree ordering', () => {
     const clique: [number, number][] = [];
     for (let a = 0; a < 7; a++) for (let b = a + 1; b < 7; b++) clique.push([a, b]);
     expectPermutation(minimumDegreeOrder(graphOf(7, clique)), 7);
-    expectPermutation(minimumDegreeOrder(graphOf(9, [[0, 1], [1, 2], [4, 5], [6, 7], [7, 8], [8, 6]])), 9);
+    expectPermutation(
+      minimumDegreeOrder(
+        graphOf(9, [
+          [0, 1],
+          [1, 2],
+          [4, 5],
+          [6, 7],
+          [7, 8],
+          [8, 6],
+        ]),
+      ),
+      9,
+    );
     const g = gridWithMouths(23, 17, 6, 3);
     expectPermutation(minimumDegreeOrder(graphOf(g.n, g.edges)), g.n);
   });
@@ -117,7 +136,10 @@ describe('approximate minimum-degree ordering', () => {
     const graph = graphOf(g.n, g.edges);
     const md = fillCount(graph, minimumDegreeOrder(graph));
     // the order of the (shuffled) labels: the natural order of an unstructured numbering
-    const natural = fillCount(graph, Int32Array.from({ length: g.n }, (_, k) => k));
+    const natural = fillCount(
+      graph,
+      Int32Array.from({ length: g.n }, (_, k) => k),
+    );
     expect(md).toBeLessThan(natural / 2);
     // a regular grid's fill under minimum degree is of the order of nested dissection's (George & Liu 1981, ch. 8)
     const rows: number[] = [];
@@ -130,7 +152,13 @@ describe('approximate minimum-degree ordering', () => {
       rows.push(a, b);
       cols.push(b, a);
     }
-    const a = cscFromTriplets(g.n, rows, cols, rows.map(() => 1), rows.map(() => 0));
+    const a = cscFromTriplets(
+      g.n,
+      rows,
+      cols,
+      rows.map(() => 1),
+      rows.map(() => 0),
+    );
     const nd = SparseLuPlan.analyse(g.n, a.colPtr, a.rowIdx, { ordering: 'nested-dissection' });
     expect(fillCount(graph, minimumDegreeOrder(graph))).toBe(md); // the same order each time
     expect(md).toBeLessThan(2 * fillCount(graph, nd.perm));

@@ -136,7 +136,13 @@ describe('model document', () => {
     expect(issuesOf(spacing)[0].path).toEqual(['spacing']);
 
     const site = base();
-    site.shape = { kind: 'sites', list: [[0, 0], [25, 3]] };
+    site.shape = {
+      kind: 'sites',
+      list: [
+        [0, 0],
+        [25, 3],
+      ],
+    };
     site.leads = [];
     const [s] = issuesOf(site);
     expect(formatIssuePath(s.path)).toBe('shape.list[1]');
@@ -154,7 +160,21 @@ describe('model document', () => {
     // Annulus 0 < r ≤ 10 removes only the centre.
     expect(count(rasteriseShape({ kind: 'annulus', cx: 15, cy: 15, inner: 0, outer: 10 }, 31, 31, 1))).toBe(316);
     // Triangle (0,0),(10,0),(0,10) in half-open even-odd: points with i, j ≥ 0, i + j < 10 → 55, boundary hypotenuse excluded.
-    const tri = count(rasteriseShape({ kind: 'polygon', vertices: [[-0.5, -0.5], [10, -0.5], [-0.5, 10]] }, 30, 30, 1));
+    const tri = count(
+      rasteriseShape(
+        {
+          kind: 'polygon',
+          vertices: [
+            [-0.5, -0.5],
+            [10, -0.5],
+            [-0.5, 10],
+          ],
+        },
+        30,
+        30,
+        1,
+      ),
+    );
     expect(tri).toBe(55);
   });
 

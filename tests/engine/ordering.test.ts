@@ -26,7 +26,8 @@ function maskPattern(nx: number, ny: number, inside: (i: number, j: number) => b
   for (let v = 0; v < n; v++) {
     rows.push(v);
     cols.push(v);
-    const i = si[v], j = sj[v];
+    const i = si[v],
+      j = sj[v];
     if (i + 1 < nx && id[(i + 1) * ny + j] >= 0) link(v, id[(i + 1) * ny + j]);
     if (j + 1 < ny && id[i * ny + j + 1] >= 0) link(v, id[i * ny + j + 1]);
   }
@@ -35,7 +36,8 @@ function maskPattern(nx: number, ny: number, inside: (i: number, j: number) => b
     for (const i of [0, nx - 1]) {
       for (let p = 0; p < mouth; p++) {
         for (let q = 0; q < mouth; q++) {
-          const a = id[i * ny + j0 + p], b = id[i * ny + j0 + q];
+          const a = id[i * ny + j0 + p],
+            b = id[i * ny + j0 + q];
           if (a >= 0 && b >= 0) {
             rows.push(a);
             cols.push(b);
@@ -44,7 +46,13 @@ function maskPattern(nx: number, ny: number, inside: (i: number, j: number) => b
       }
     }
   }
-  const a = cscFromTriplets(n, rows, cols, rows.map(() => 1), rows.map(() => 0));
+  const a = cscFromTriplets(
+    n,
+    rows,
+    cols,
+    rows.map(() => 1),
+    rows.map(() => 0),
+  );
   return { a, sites: { i: Int32Array.from(si), j: Int32Array.from(sj) } };
 }
 

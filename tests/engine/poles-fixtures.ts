@@ -43,18 +43,20 @@ export class StripWithLeads implements NonlinearOperator {
     this.n = n;
     const I = new Int32Array(n);
     const J = new Int32Array(n);
-    for (let i = 0; i < nx; i++) for (let j = 0; j < ny; j++) {
-      I[i * ny + j] = i;
-      J[i * ny + j] = j;
-    }
+    for (let i = 0; i < nx; i++)
+      for (let j = 0; j < ny; j++) {
+        I[i * ny + j] = i;
+        J[i * ny + j] = j;
+      }
     this.sites = { i: I, j: J };
     const H = new Float64Array(n * n);
-    for (let i = 0; i < nx; i++) for (let j = 0; j < ny; j++) {
-      const s = i * ny + j;
-      H[s * n + s] = 4 * t + (spec.potential?.(i, j) ?? 0);
-      if (i + 1 < nx) H[s * n + s + ny] = H[(s + ny) * n + s] = -t;
-      if (j + 1 < ny) H[s * n + s + 1] = H[(s + 1) * n + s] = -t;
-    }
+    for (let i = 0; i < nx; i++)
+      for (let j = 0; j < ny; j++) {
+        const s = i * ny + j;
+        H[s * n + s] = 4 * t + (spec.potential?.(i, j) ?? 0);
+        if (i + 1 < nx) H[s * n + s + ny] = H[(s + ny) * n + s] = -t;
+        if (j + 1 < ny) H[s * n + s + 1] = H[(s + 1) * n + s] = -t;
+      }
     this.H = H;
     this.eps = new Float64Array(ny);
     this.chi = new Float64Array(ny * ny);
@@ -85,7 +87,7 @@ export class StripWithLeads implements NonlinearOperator {
 
   private mouthPair(r: number, c: number): boolean {
     const a = this.mouthLead(r);
-    return a >= 0 && a === this.mouthLead(c) || (this.nx === 1 && a >= 0);
+    return (a >= 0 && a === this.mouthLead(c)) || (this.nx === 1 && a >= 0);
   }
 
   sheetAt(reE: number): SheetFlags {
@@ -129,12 +131,13 @@ export class StripWithLeads implements NonlinearOperator {
         cr = -this.hopping * l.re;
         ci = -this.hopping * l.im;
       }
-      for (let p = 0; p < ny; p++) for (let q = 0; q < ny; q++) {
-        const w = this.chi[m * ny + p] * this.chi[m * ny + q];
-        const k = 2 * ((i0 * ny + p) * n + (i0 * ny + q));
-        out[k] += w * cr;
-        out[k + 1] += w * ci;
-      }
+      for (let p = 0; p < ny; p++)
+        for (let q = 0; q < ny; q++) {
+          const w = this.chi[m * ny + p] * this.chi[m * ny + q];
+          const k = 2 * ((i0 * ny + p) * n + (i0 * ny + q));
+          out[k] += w * cr;
+          out[k + 1] += w * ci;
+        }
     }
     return out;
   }
@@ -179,14 +182,19 @@ export class StripWithLeads implements NonlinearOperator {
     const S = this.selfEnergy(z, sheet, lead);
     const n = this.n;
     let im = 0;
-    for (let r = 0; r < n; r++) for (let c = 0; c < n; c++) {
-      const sr = S[2 * (r * n + c)], si = S[2 * (r * n + c) + 1];
-      if (sr === 0 && si === 0) continue;
-      const xr = psi[2 * c], xi = psi[2 * c + 1];
-      const yr = psi[2 * r], yi = -psi[2 * r + 1];
-      const ar = sr * xr - si * xi, ai = sr * xi + si * xr;
-      im += yr * ai + yi * ar;
-    }
+    for (let r = 0; r < n; r++)
+      for (let c = 0; c < n; c++) {
+        const sr = S[2 * (r * n + c)],
+          si = S[2 * (r * n + c) + 1];
+        if (sr === 0 && si === 0) continue;
+        const xr = psi[2 * c],
+          xi = psi[2 * c + 1];
+        const yr = psi[2 * r],
+          yi = -psi[2 * r + 1];
+        const ar = sr * xr - si * xi,
+          ai = sr * xi + si * xr;
+        im += yr * ai + yi * ar;
+      }
     return -2 * im;
   }
 }
@@ -206,11 +214,12 @@ export class DenseLuPlan implements PoleFactorPlan {
     this.factorisations++;
     const n = this.op.n;
     const A = new Float64Array(2 * n * n);
-    for (let c = 0; c < n; c++) for (let p = this.op.colPtr[c]; p < this.op.colPtr[c + 1]; p++) {
-      const r = this.op.rowIdx[p];
-      A[2 * (r * n + c)] = values[2 * p];
-      A[2 * (r * n + c) + 1] = values[2 * p + 1];
-    }
+    for (let c = 0; c < n; c++)
+      for (let p = this.op.colPtr[c]; p < this.op.colPtr[c + 1]; p++) {
+        const r = this.op.rowIdx[p];
+        A[2 * (r * n + c)] = values[2 * p];
+        A[2 * (r * n + c) + 1] = values[2 * p + 1];
+      }
     return denseLu(n, A);
   }
 }
@@ -243,18 +252,21 @@ export function denseLu(n: number, A: Float64Array): PoleFactors {
       perm[k] = perm[piv];
       perm[piv] = t;
     }
-    const pr = A[2 * (k * n + k)], pi = A[2 * (k * n + k) + 1];
+    const pr = A[2 * (k * n + k)],
+      pi = A[2 * (k * n + k) + 1];
     const d = pr * pr + pi * pi;
     if (d === 0) continue;
     for (let r = k + 1; r < n; r++) {
-      const ar = A[2 * (r * n + k)], ai = A[2 * (r * n + k) + 1];
+      const ar = A[2 * (r * n + k)],
+        ai = A[2 * (r * n + k) + 1];
       const lr = (ar * pr + ai * pi) / d;
       const li = (ai * pr - ar * pi) / d;
       A[2 * (r * n + k)] = lr;
       A[2 * (r * n + k) + 1] = li;
       if (lr === 0 && li === 0) continue;
       for (let c = k + 1; c < n; c++) {
-        const ur = A[2 * (k * n + c)], ui = A[2 * (k * n + c) + 1];
+        const ur = A[2 * (k * n + c)],
+          ui = A[2 * (k * n + c) + 1];
         A[2 * (r * n + c)] -= lr * ur - li * ui;
         A[2 * (r * n + c) + 1] -= lr * ui + li * ur;
       }
@@ -266,19 +278,24 @@ export function denseLu(n: number, A: Float64Array): PoleFactors {
       y[2 * i] = b[off + 2 * perm[i]];
       y[2 * i + 1] = b[off + 2 * perm[i] + 1];
     }
-    for (let i = 0; i < n; i++) for (let c = 0; c < i; c++) {
-      const lr = A[2 * (i * n + c)], li = A[2 * (i * n + c) + 1];
-      y[2 * i] -= lr * y[2 * c] - li * y[2 * c + 1];
-      y[2 * i + 1] -= lr * y[2 * c + 1] + li * y[2 * c];
-    }
+    for (let i = 0; i < n; i++)
+      for (let c = 0; c < i; c++) {
+        const lr = A[2 * (i * n + c)],
+          li = A[2 * (i * n + c) + 1];
+        y[2 * i] -= lr * y[2 * c] - li * y[2 * c + 1];
+        y[2 * i + 1] -= lr * y[2 * c + 1] + li * y[2 * c];
+      }
     for (let i = n - 1; i >= 0; i--) {
-      let sr = y[2 * i], si = y[2 * i + 1];
+      let sr = y[2 * i],
+        si = y[2 * i + 1];
       for (let c = i + 1; c < n; c++) {
-        const ur = A[2 * (i * n + c)], ui = A[2 * (i * n + c) + 1];
+        const ur = A[2 * (i * n + c)],
+          ui = A[2 * (i * n + c) + 1];
         sr -= ur * y[2 * c] - ui * y[2 * c + 1];
         si -= ur * y[2 * c + 1] + ui * y[2 * c];
       }
-      const pr = A[2 * (i * n + i)], pi = A[2 * (i * n + i) + 1];
+      const pr = A[2 * (i * n + i)],
+        pi = A[2 * (i * n + i) + 1];
       const d = pr * pr + pi * pi;
       y[2 * i] = (sr * pr + si * pi) / d;
       y[2 * i + 1] = (si * pr - sr * pi) / d;
@@ -289,32 +306,39 @@ export function denseLu(n: number, A: Float64Array): PoleFactors {
   const solveTOne = (b: Float64Array, off: number, out: Float64Array): void => {
     const y = Float64Array.from(b.subarray(off, off + 2 * n));
     for (let i = 0; i < n; i++) {
-      let sr = y[2 * i], si = y[2 * i + 1];
+      let sr = y[2 * i],
+        si = y[2 * i + 1];
       for (let c = 0; c < i; c++) {
-        const ur = A[2 * (c * n + i)], ui = A[2 * (c * n + i) + 1];
+        const ur = A[2 * (c * n + i)],
+          ui = A[2 * (c * n + i) + 1];
         sr -= ur * y[2 * c] - ui * y[2 * c + 1];
         si -= ur * y[2 * c + 1] + ui * y[2 * c];
       }
-      const pr = A[2 * (i * n + i)], pi = A[2 * (i * n + i) + 1];
+      const pr = A[2 * (i * n + i)],
+        pi = A[2 * (i * n + i) + 1];
       const d = pr * pr + pi * pi;
       y[2 * i] = (sr * pr + si * pi) / d;
       y[2 * i + 1] = (si * pr - sr * pi) / d;
     }
-    for (let i = n - 1; i >= 0; i--) for (let c = i + 1; c < n; c++) {
-      const lr = A[2 * (c * n + i)], li = A[2 * (c * n + i) + 1];
-      y[2 * i] -= lr * y[2 * c] - li * y[2 * c + 1];
-      y[2 * i + 1] -= lr * y[2 * c + 1] + li * y[2 * c];
-    }
+    for (let i = n - 1; i >= 0; i--)
+      for (let c = i + 1; c < n; c++) {
+        const lr = A[2 * (c * n + i)],
+          li = A[2 * (c * n + i) + 1];
+        y[2 * i] -= lr * y[2 * c] - li * y[2 * c + 1];
+        y[2 * i + 1] -= lr * y[2 * c + 1] + li * y[2 * c];
+      }
     for (let i = 0; i < n; i++) {
       out[off + 2 * perm[i]] = y[2 * i];
       out[off + 2 * perm[i] + 1] = y[2 * i + 1];
     }
   };
-  const many = (one: typeof solveOne) => (b: Float64Array, nrhs = 1, out?: Float64Array): Float64Array => {
-    const o = out ?? b; // in place unless out is given, like SparseLuFactors
-    for (let k = 0; k < nrhs; k++) one(b, 2 * n * k, o);
-    return o;
-  };
+  const many =
+    (one: typeof solveOne) =>
+    (b: Float64Array, nrhs = 1, out?: Float64Array): Float64Array => {
+      const o = out ?? b; // in place unless out is given, like SparseLuFactors
+      for (let k = 0; k < nrhs; k++) one(b, 2 * n * k, o);
+      return o;
+    };
   return {
     solve: many(solveOne),
     solveTranspose: many(solveTOne),
@@ -348,13 +372,14 @@ export function transmission(op: StripWithLeads, E: number): number {
   const gamma = (lead: number): Float64Array => {
     const S = op.selfEnergy(z, sheet, lead);
     const out = new Float64Array(2 * n * n);
-    for (let r = 0; r < n; r++) for (let c = 0; c < n; c++) {
-      // i(S − S†)
-      const ar = S[2 * (r * n + c)] - S[2 * (c * n + r)];
-      const ai = S[2 * (r * n + c) + 1] + S[2 * (c * n + r) + 1];
-      out[2 * (r * n + c)] = -ai;
-      out[2 * (r * n + c) + 1] = ar;
-    }
+    for (let r = 0; r < n; r++)
+      for (let c = 0; c < n; c++) {
+        // i(S − S†)
+        const ar = S[2 * (r * n + c)] - S[2 * (c * n + r)];
+        const ai = S[2 * (r * n + c) + 1] + S[2 * (c * n + r) + 1];
+        out[2 * (r * n + c)] = -ai;
+        out[2 * (r * n + c) + 1] = ar;
+      }
     return out;
   };
   const gl = gamma(0);
@@ -369,14 +394,17 @@ export function transmission(op: StripWithLeads, E: number): number {
     if (i === 0) mouth0.push(s);
     if (i === op.nx - 1) mouth1.push(s);
   }
-  for (const a of mouth1) for (const b of mouth1) for (const c of mouth0) for (const d of mouth0) {
-    const x = { re: gr[2 * (a * n + b)], im: gr[2 * (a * n + b) + 1] };
-    const y = g(b, c);
-    const w = { re: gl[2 * (c * n + d)], im: gl[2 * (c * n + d) + 1] };
-    const v = g(a, d);
-    const xy = { re: x.re * y.re - x.im * y.im, im: x.re * y.im + x.im * y.re };
-    const xyw = { re: xy.re * w.re - xy.im * w.im, im: xy.re * w.im + xy.im * w.re };
-    tr += xyw.re * v.re + xyw.im * v.im;
-  }
+  for (const a of mouth1)
+    for (const b of mouth1)
+      for (const c of mouth0)
+        for (const d of mouth0) {
+          const x = { re: gr[2 * (a * n + b)], im: gr[2 * (a * n + b) + 1] };
+          const y = g(b, c);
+          const w = { re: gl[2 * (c * n + d)], im: gl[2 * (c * n + d) + 1] };
+          const v = g(a, d);
+          const xy = { re: x.re * y.re - x.im * y.im, im: x.re * y.im + x.im * y.re };
+          const xyw = { re: xy.re * w.re - xy.im * w.im, im: xy.re * w.im + xy.im * w.re };
+          tr += xyw.re * v.re + xyw.im * v.im;
+        }
   return tr;
 }

@@ -42,29 +42,33 @@ describe('dense complex kernels of the contour method', () => {
     const A = new Float64Array(2 * m * m).map(() => r());
     const { U, sigma, V } = complexSvd(m, A);
     for (let k = 1; k < m; k++) expect(sigma[k]).toBeLessThanOrEqual(sigma[k - 1]);
-    for (let i = 0; i < m; i++) for (let j = 0; j < m; j++) {
-      let re = 0;
-      let im = 0;
-      for (let k = 0; k < m; k++) {
-        // U[i,k] σ_k conj(V[j,k])
-        const ur = U[2 * (i * m + k)], ui = U[2 * (i * m + k) + 1];
-        const vr = V[2 * (j * m + k)], vi = -V[2 * (j * m + k) + 1];
-        re += sigma[k] * (ur * vr - ui * vi);
-        im += sigma[k] * (ur * vi + ui * vr);
+    for (let i = 0; i < m; i++)
+      for (let j = 0; j < m; j++) {
+        let re = 0;
+        let im = 0;
+        for (let k = 0; k < m; k++) {
+          // U[i,k] σ_k conj(V[j,k])
+          const ur = U[2 * (i * m + k)],
+            ui = U[2 * (i * m + k) + 1];
+          const vr = V[2 * (j * m + k)],
+            vi = -V[2 * (j * m + k) + 1];
+          re += sigma[k] * (ur * vr - ui * vi);
+          im += sigma[k] * (ur * vi + ui * vr);
+        }
+        expect(Math.abs(re - A[2 * (i * m + j)])).toBeLessThan(1e-13);
+        expect(Math.abs(im - A[2 * (i * m + j) + 1])).toBeLessThan(1e-13);
       }
-      expect(Math.abs(re - A[2 * (i * m + j)])).toBeLessThan(1e-13);
-      expect(Math.abs(im - A[2 * (i * m + j) + 1])).toBeLessThan(1e-13);
-    }
-    for (let a = 0; a < m; a++) for (let b = 0; b < m; b++) {
-      let re = 0;
-      let im = 0;
-      for (let k = 0; k < m; k++) {
-        re += U[2 * (k * m + a)] * U[2 * (k * m + b)] + U[2 * (k * m + a) + 1] * U[2 * (k * m + b) + 1];
-        im += U[2 * (k * m + a)] * U[2 * (k * m + b) + 1] - U[2 * (k * m + a) + 1] * U[2 * (k * m + b)];
+    for (let a = 0; a < m; a++)
+      for (let b = 0; b < m; b++) {
+        let re = 0;
+        let im = 0;
+        for (let k = 0; k < m; k++) {
+          re += U[2 * (k * m + a)] * U[2 * (k * m + b)] + U[2 * (k * m + a) + 1] * U[2 * (k * m + b) + 1];
+          im += U[2 * (k * m + a)] * U[2 * (k * m + b) + 1] - U[2 * (k * m + a) + 1] * U[2 * (k * m + b)];
+        }
+        expect(Math.abs(re - (a === b ? 1 : 0))).toBeLessThan(1e-13);
+        expect(Math.abs(im)).toBeLessThan(1e-13);
       }
-      expect(Math.abs(re - (a === b ? 1 : 0))).toBeLessThan(1e-13);
-      expect(Math.abs(im)).toBeLessThan(1e-13);
-    }
   });
 
   it('finds the eigenvalues of S·D·S⁻¹ for a known complex diagonal D', () => {
@@ -88,8 +92,10 @@ describe('dense complex kernels of the contour method', () => {
         let re = 0;
         let im = 0;
         for (let k = i + 1; k <= j; k++) {
-          const ar = S[2 * (i * m + k)], ai = S[2 * (i * m + k) + 1];
-          const br = Si[2 * (k * m + j)], bi = Si[2 * (k * m + j) + 1];
+          const ar = S[2 * (i * m + k)],
+            ai = S[2 * (i * m + k) + 1];
+          const br = Si[2 * (k * m + j)],
+            bi = Si[2 * (k * m + j) + 1];
           re -= ar * br - ai * bi;
           im -= ar * bi + ai * br;
         }
@@ -98,19 +104,23 @@ describe('dense complex kernels of the contour method', () => {
       }
     }
     const A = new Float64Array(2 * m * m);
-    for (let i = 0; i < m; i++) for (let j = 0; j < m; j++) {
-      let re = 0;
-      let im = 0;
-      for (let k = 0; k < m; k++) {
-        const sr = S[2 * (i * m + k)], si = S[2 * (i * m + k) + 1];
-        const dr = sr * d[k].re - si * d[k].im, di = sr * d[k].im + si * d[k].re;
-        const tr = Si[2 * (k * m + j)], ti = Si[2 * (k * m + j) + 1];
-        re += dr * tr - di * ti;
-        im += dr * ti + di * tr;
+    for (let i = 0; i < m; i++)
+      for (let j = 0; j < m; j++) {
+        let re = 0;
+        let im = 0;
+        for (let k = 0; k < m; k++) {
+          const sr = S[2 * (i * m + k)],
+            si = S[2 * (i * m + k) + 1];
+          const dr = sr * d[k].re - si * d[k].im,
+            di = sr * d[k].im + si * d[k].re;
+          const tr = Si[2 * (k * m + j)],
+            ti = Si[2 * (k * m + j) + 1];
+          re += dr * tr - di * ti;
+          im += dr * ti + di * tr;
+        }
+        A[2 * (i * m + j)] = re;
+        A[2 * (i * m + j) + 1] = im;
       }
-      A[2 * (i * m + j)] = re;
-      A[2 * (i * m + j) + 1] = im;
-    }
     const e = complexEigenvalues(m, A);
     for (const want of d) {
       let best = Infinity;
@@ -130,32 +140,38 @@ function diagonalProblem(zeros: { re: number; im: number }[], l: number) {
     const pts = panelPoints(panel);
     panel.nodes = [];
     for (let q = 0; q < PANEL_ORDER; q++) {
-      const zr = pts[2 * q], zi = pts[2 * q + 1];
+      const zr = pts[2 * q],
+        zi = pts[2 * q + 1];
       let logAbs = 0;
       let arg = 0;
       const inv: { re: number; im: number }[] = [];
       for (const a of zeros) {
-        const dr = zr - a.re, di = zi - a.im;
+        const dr = zr - a.re,
+          di = zi - a.im;
         logAbs += Math.log(Math.hypot(dr, di));
         arg += Math.atan2(di, dr);
         const d2 = dr * dr + di * di;
         inv.push({ re: dr / d2, im: -di / d2 });
       }
       const probed = new Float64Array(2 * l * l);
-      for (let x = 0; x < l; x++) for (let y = 0; y < l; y++) {
-        let re = 0;
-        let im = 0;
-        for (let k = 0; k < n; k++) {
-          // conj(U[k,x]) · inv_k · V[k,y]
-          const ur = U[2 * (x * n + k)], ui = -U[2 * (x * n + k) + 1];
-          const vr = V[2 * (y * n + k)], vi = V[2 * (y * n + k) + 1];
-          const ar = ur * inv[k].re - ui * inv[k].im, ai = ur * inv[k].im + ui * inv[k].re;
-          re += ar * vr - ai * vi;
-          im += ar * vi + ai * vr;
+      for (let x = 0; x < l; x++)
+        for (let y = 0; y < l; y++) {
+          let re = 0;
+          let im = 0;
+          for (let k = 0; k < n; k++) {
+            // conj(U[k,x]) · inv_k · V[k,y]
+            const ur = U[2 * (x * n + k)],
+              ui = -U[2 * (x * n + k) + 1];
+            const vr = V[2 * (y * n + k)],
+              vi = V[2 * (y * n + k) + 1];
+            const ar = ur * inv[k].re - ui * inv[k].im,
+              ai = ur * inv[k].im + ui * inv[k].re;
+            re += ar * vr - ai * vi;
+            im += ar * vi + ai * vr;
+          }
+          probed[2 * (x * l + y)] = re;
+          probed[2 * (x * l + y) + 1] = im;
         }
-        probed[2 * (x * l + y)] = re;
-        probed[2 * (x * l + y) + 1] = im;
-      }
       panel.nodes.push({ zRe: zr, zIm: zi, logAbs, arg: wrapPhase(arg), probed });
     }
     return true;

@@ -36,14 +36,15 @@ function selfConsistentPole(op: StripWithLeads, start: number, sheet: SheetFlags
     const T = op.denseT(z, sheet);
     // H_eff = z − T
     const M = new Matrix(2 * n, 2 * n);
-    for (let r = 0; r < n; r++) for (let c = 0; c < n; c++) {
-      const a = (r === c ? z.re : 0) - T[2 * (r * n + c)];
-      const b = (r === c ? z.im : 0) - T[2 * (r * n + c) + 1];
-      M.set(r, c, a);
-      M.set(r + n, c + n, a);
-      M.set(r, c + n, -b);
-      M.set(r + n, c, b);
-    }
+    for (let r = 0; r < n; r++)
+      for (let c = 0; c < n; c++) {
+        const a = (r === c ? z.re : 0) - T[2 * (r * n + c)];
+        const b = (r === c ? z.im : 0) - T[2 * (r * n + c) + 1];
+        M.set(r, c, a);
+        M.set(r + n, c + n, a);
+        M.set(r, c + n, -b);
+        M.set(r + n, c, b);
+      }
     const e = new EigenvalueDecomposition(M);
     let best: Complex | null = null;
     for (let k = 0; k < 2 * n; k++) {

@@ -89,7 +89,8 @@ function residual(a: ComplexCsc, x: Float64Array, b: Float64Array, transpose = f
     for (let c = 0; c < a.n; c++) {
       for (let e = a.colPtr[c]; e < a.colPtr[c + 1]; e++) {
         const r = a.rowIdx[e];
-        const vr = a.values[2 * e], vi = a.values[2 * e + 1];
+        const vr = a.values[2 * e],
+          vi = a.values[2 * e + 1];
         ax[2 * c] += vr * x[2 * r] - vi * x[2 * r + 1];
         ax[2 * c + 1] += vr * x[2 * r + 1] + vi * x[2 * r];
       }
@@ -130,7 +131,8 @@ function denseLogDet(m: { re: number[][]; im: number[][] }): { logAbs: number; a
       [ai[p], ai[k]] = [ai[k], ai[p]];
       arg += Math.PI;
     }
-    const dr = ar[k][k], di = ai[k][k];
+    const dr = ar[k][k],
+      di = ai[k][k];
     logAbs += Math.log(Math.hypot(dr, di));
     arg += Math.atan2(di, dr);
     const den = dr * dr + di * di;
@@ -168,7 +170,8 @@ describe('complex CSC builders', () => {
     const x = randomVector(2 * a.n, 3);
     const y = cscMultiply(a, x);
     for (let r = 0; r < a.n; r++) {
-      let sr = 0, si = 0;
+      let sr = 0,
+        si = 0;
       for (let c = 0; c < a.n; c++) {
         sr += d.re[r][c] * x[2 * c] - d.im[r][c] * x[2 * c + 1];
         si += d.re[r][c] * x[2 * c + 1] + d.im[r][c] * x[2 * c];
@@ -368,14 +371,18 @@ describe('sparse LU log-determinant', () => {
     const rnd = rng(99);
     const re = Array.from({ length: 4 }, () => Array.from({ length: 4 }, () => rnd()));
     const im = Array.from({ length: 4 }, () => Array.from({ length: 4 }, () => rnd()));
-    let dr = 0, di = 0;
-    const perms = (xs: number[]): number[][] => (xs.length <= 1 ? [xs] : xs.flatMap((x, k) => perms([...xs.slice(0, k), ...xs.slice(k + 1)]).map((p) => [x, ...p])));
+    let dr = 0,
+      di = 0;
+    const perms = (xs: number[]): number[][] =>
+      xs.length <= 1 ? [xs] : xs.flatMap((x, k) => perms([...xs.slice(0, k), ...xs.slice(k + 1)]).map((p) => [x, ...p]));
     for (const p of perms([0, 1, 2, 3])) {
       let inv = 0;
       for (let a = 0; a < 4; a++) for (let b = a + 1; b < 4; b++) if (p[a] > p[b]) inv++;
-      let pr = inv % 2 ? -1 : 1, pi = 0;
+      let pr = inv % 2 ? -1 : 1,
+        pi = 0;
       for (let r = 0; r < 4; r++) {
-        const xr = re[r][p[r]], xi = im[r][p[r]];
+        const xr = re[r][p[r]],
+          xi = im[r][p[r]];
         [pr, pi] = [pr * xr - pi * xi, pr * xi + pi * xr];
       }
       dr += pr;
@@ -426,7 +433,13 @@ describe('sparse LU log-determinant', () => {
     // det of a transposition is −1, of a 3-cycle +1 (definition of the permutation sign);
     // scaling every entry by e^{iφ} multiplies det by e^{inφ}.
     const phi = 0.3;
-    const swap = cscFromTriplets(4, [0, 1, 2, 3], [1, 0, 2, 3], [1, 1, 1, 1].map(() => Math.cos(phi)), [1, 1, 1, 1].map(() => Math.sin(phi)));
+    const swap = cscFromTriplets(
+      4,
+      [0, 1, 2, 3],
+      [1, 0, 2, 3],
+      [1, 1, 1, 1].map(() => Math.cos(phi)),
+      [1, 1, 1, 1].map(() => Math.sin(phi)),
+    );
     const d1 = SparseLuPlan.analyse(4, swap.colPtr, swap.rowIdx).factor(swap.values).logDet();
     expect(Math.abs(d1.logAbs)).toBeLessThan(1e-14);
     expect(angleGap(d1.arg, Math.PI + 4 * phi)).toBeLessThan(1e-13);

@@ -33,7 +33,11 @@ const base: EnsembleDefinition = { model: dot, window: { emin: 20, emax: 30, gam
 
 describe('tolerance ensembles', () => {
   it('has zero spread with zero roughness and no jitter', () => {
-    const out = runEnsemble({ ...base, roughness: { rmsNm: 0, correlationNm: 10 }, jitter: [{ kind: 'gate-offset', path: 'potential.0.amplitude', sigma: 0 }] });
+    const out = runEnsemble({
+      ...base,
+      roughness: { rmsNm: 0, correlationNm: 10 },
+      jitter: [{ kind: 'gate-offset', path: 'potential.0.amplitude', sigma: 0 }],
+    });
     expect(out.statistics.followed).toBe(4);
     const e = out.statistics.energy;
     expect(e.std!).toBeLessThanOrEqual(1e-12 * e.mean!);
@@ -42,7 +46,12 @@ describe('tolerance ensembles', () => {
   });
 
   it('reproduces the same samples from the same seeds, and other samples from another seed', () => {
-    const def: EnsembleDefinition = { ...base, roughness: { rmsNm: 2, correlationNm: 10 }, jitter: [{ kind: 'gate-offset', path: 'potential.0.amplitude', sigma: 0.5 }], bins: 4 };
+    const def: EnsembleDefinition = {
+      ...base,
+      roughness: { rmsNm: 2, correlationNm: 10 },
+      jitter: [{ kind: 'gate-offset', path: 'potential.0.amplitude', sigma: 0.5 }],
+      bins: 4,
+    };
     const a = runEnsemble(def).statistics;
     const b = runEnsemble(def).statistics;
     expect(a.samples.map((s) => s.seed)).toEqual(b.samples.map((s) => s.seed));
@@ -75,7 +84,14 @@ describe('tolerance ensembles', () => {
     // Closed disk: E ∝ R⁻² (continuum, A&S Table 9.5 zeros), so dE/dR ≈ −2E/R. Lattice disk
     // of radius 40 nm (a = 5 nm, 197 sites), lowest level; jitter of 1 nm in the radius.
     const disk = { name: 'disk', spacing: 5, material: 'gaas', grid: { nx: 19, ny: 19 }, shape: { kind: 'disk', cx: 45, cy: 45, radius: 42.5 } };
-    const out = runEnsemble({ model: disk, window: { emin: 0.5, emax: 3, gammaMax: 0.1 }, realisations: 12, seed: 3, follow: { energy: 1 }, jitter: [{ kind: 'dimension', path: 'shape.radius', sigma: 2.5 }] });
+    const out = runEnsemble({
+      model: disk,
+      window: { emin: 0.5, emax: 3, gammaMax: 0.1 },
+      realisations: 12,
+      seed: 3,
+      follow: { energy: 1 },
+      jitter: [{ kind: 'dimension', path: 'shape.radius', sigma: 2.5 }],
+    });
     expect(out.statistics.followed).toBe(12);
     const e0 = out.statistics.nominal!.energy;
     const slope = out.statistics.sensitivities[0].energySlope!;
@@ -96,7 +112,9 @@ describe('tolerance ensembles', () => {
 });
 
 describe('edge roughness', () => {
-  const nx = 40, ny = 40, a = 2;
+  const nx = 40,
+    ny = 40,
+    a = 2;
   const mask = rasteriseShape({ kind: 'disk', cx: 40, cy: 40, radius: 30 }, nx, ny, a);
   it('leaves the cavity alone at zero amplitude and moves only edge sites otherwise', () => {
     expect(roughenMask(mask, nx, ny, a, [], { rmsNm: 0, correlationNm: 5 }, 1).mask).toEqual(mask);
@@ -120,7 +138,9 @@ describe('edge roughness', () => {
     const small = [1, 2, 3, 4].reduce((s, seed) => s + count(0.5, seed), 0);
     const large = [1, 2, 3, 4].reduce((s, seed) => s + count(3, seed), 0);
     expect(large).toBeGreaterThan(2 * small);
-    expect(roughenMask(mask, nx, ny, a, [], { rmsNm: 2, correlationNm: 6 }, 9).mask).toEqual(roughenMask(mask, nx, ny, a, [], { rmsNm: 2, correlationNm: 6 }, 9).mask);
+    expect(roughenMask(mask, nx, ny, a, [], { rmsNm: 2, correlationNm: 6 }, 9).mask).toEqual(
+      roughenMask(mask, nx, ny, a, [], { rmsNm: 2, correlationNm: 6 }, 9).mask,
+    );
   });
 
   it('keeps the mouth sites of the leads and one connected piece', () => {

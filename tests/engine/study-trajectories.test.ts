@@ -6,7 +6,15 @@ import { cyclotronEnergy, hoppingEnergy } from '../../shared/units/constants';
 // A closed lattice disk of radius 10 sites (317 sites), GaAs, a = 5 nm.
 const R = 10;
 function disk(potential: unknown[] = []): Record<string, unknown> {
-  return { name: 'disk', spacing: 5, material: 'gaas', grid: { nx: 2 * R + 1, ny: 2 * R + 1 }, shape: { kind: 'disk', cx: R * 5, cy: R * 5, radius: R * 5 }, field: 0, potential };
+  return {
+    name: 'disk',
+    spacing: 5,
+    material: 'gaas',
+    grid: { nx: 2 * R + 1, ny: 2 * R + 1 },
+    shape: { kind: 'disk', cx: R * 5, cy: R * 5, radius: R * 5 },
+    field: 0,
+    potential,
+  };
 }
 
 /**
@@ -71,14 +79,28 @@ describe('parameter study trajectories', () => {
 
   it('follows the same pair through an avoided crossing when a bump breaks the symmetry', () => {
     // An off-centre Gaussian bump (1.5 meV, σ = 8 nm) mixes the two classes: the levels repel.
-    const out = runStudy({ model: disk([{ kind: 'gaussian', cx: 68, cy: 57, sigma: 8, amplitude: 1.5 }]), parameters: [{ path: 'field', values: fields }], window });
+    const out = runStudy({
+      model: disk([{ kind: 'gaussian', cx: 68, cy: 57, sigma: 8, amplitude: 1.5 }]),
+      parameters: [{ path: 'field', values: fields }],
+      window,
+    });
     const both = out.lines[0].trajectories.filter((tr) => tr.points[0].step === 0);
     expect(both.length).toBe(2);
     const [a, b] = both;
     // Common steps keep their E order: the lower level stays lower (adiabatic following).
     const common = a.points.filter((p) => b.points.some((q) => q.step === p.step)).map((p) => p.step);
     expect(common.length).toBeGreaterThanOrEqual(7);
-    const sign = (s: number) => Math.sign(pole(out, a.points.find((p) => p.step === s)!).energy - pole(out, b.points.find((p) => p.step === s)!).energy);
+    const sign = (s: number) =>
+      Math.sign(
+        pole(
+          out,
+          a.points.find((p) => p.step === s)!,
+        ).energy -
+          pole(
+            out,
+            b.points.find((p) => p.step === s)!,
+          ).energy,
+      );
     common.forEach((s) => expect(sign(s)).toBe(sign(common[0])));
     const mark = out.lines[0].marks.find((m) => m.trajectories.includes(a.id) && m.trajectories.includes(b.id));
     expect(mark?.kind).toBe('avoided-crossing');
@@ -138,7 +160,14 @@ describe('parameter study trajectories', () => {
     // perturbation in the quartic term of the band): E_n ≈ ħω_c(n + ½) − (ħω_c)²(2n² + 2n + 1)/(32t).
     // ħω_c = ħeB/m* (Ashcroft & Mermin ch. 14; constants CODATA 2018). Disk of 12 sites radius, a = 5 nm.
     const r = 12;
-    const model = { name: 'disk', spacing: 5, material: 'gaas', grid: { nx: 2 * r + 1, ny: 2 * r + 1 }, shape: { kind: 'disk', cx: r * 5, cy: r * 5, radius: r * 5 }, field: 0 };
+    const model = {
+      name: 'disk',
+      spacing: 5,
+      material: 'gaas',
+      grid: { nx: 2 * r + 1, ny: 2 * r + 1 },
+      shape: { kind: 'disk', cx: r * 5, cy: r * 5, radius: r * 5 },
+      field: 0,
+    };
     const t = hoppingEnergy(5, 0.067);
     const level = (b: number, n: number) => {
       const hw = cyclotronEnergy(b, 0.067);
@@ -147,7 +176,9 @@ describe('parameter study trajectories', () => {
     const fields = [2, 3, 4, 5, 6];
     const out = runStudy({ model, parameters: [{ path: 'field', values: fields }], window: { emin: 0.5, emax: 5.5, gammaMax: 0.1 } });
     // The lowest trajectory (the centre state of the lowest level) runs through every step.
-    const lowest = out.lines[0].trajectories.find((tr) => tr.points.length === fields.length && tr.points.every((p) => pole(out, p).energy === Math.min(...out.steps[p.step].poles.map((x) => x.energy))));
+    const lowest = out.lines[0].trajectories.find(
+      (tr) => tr.points.length === fields.length && tr.points.every((p) => pole(out, p).energy === Math.min(...out.steps[p.step].poles.map((x) => x.energy))),
+    );
     expect(lowest).toBeDefined();
     const dev = lowest!.points.map((p, k) => {
       const e = pole(out, p).energy;
@@ -165,12 +196,23 @@ describe('parameter study trajectories', () => {
 
   it('finds the second Landau level at 6 T where the corrected formula puts it', () => {
     const r = 12;
-    const model = { name: 'disk', spacing: 5, material: 'gaas', grid: { nx: 2 * r + 1, ny: 2 * r + 1 }, shape: { kind: 'disk', cx: r * 5, cy: r * 5, radius: r * 5 }, field: 0 };
+    const model = {
+      name: 'disk',
+      spacing: 5,
+      material: 'gaas',
+      grid: { nx: 2 * r + 1, ny: 2 * r + 1 },
+      shape: { kind: 'disk', cx: r * 5, cy: r * 5, radius: r * 5 },
+      field: 0,
+    };
     const t = hoppingEnergy(5, 0.067);
     const hw = cyclotronEnergy(6, 0.067);
     const plain = 1.5 * hw;
     const corrected = plain - (5 * hw * hw) / (32 * t);
-    const out = runStudy({ model, parameters: [{ path: 'field', values: [6] }], window: { emin: corrected - 0.1 * hw, emax: corrected + 0.1 * hw, gammaMax: 0.1 } });
+    const out = runStudy({
+      model,
+      parameters: [{ path: 'field', values: [6] }],
+      window: { emin: corrected - 0.1 * hw, emax: corrected + 0.1 * hw, gammaMax: 0.1 },
+    });
     const nearest = out.steps[0].poles.map((p) => p.energy).sort((x, y) => Math.abs(x - corrected) - Math.abs(y - corrected))[0];
     expect(Math.abs(nearest / corrected - 1)).toBeLessThan(2e-3);
     expect(Math.abs(nearest / plain - 1)).toBeGreaterThan(0.03);

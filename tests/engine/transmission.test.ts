@@ -37,14 +37,25 @@ function doubleBarrier(): EffectiveHamiltonian {
     material,
     grid: { nx: 40, ny: 1 },
     shape: { kind: 'rectangle', x0: 0, y0: 0, width: 200, height: 5 },
-    potential: [{ kind: 'sites', values: [[4, 0, 1], [31, 0, 1]] }],
+    potential: [
+      {
+        kind: 'sites',
+        values: [
+          [4, 0, 1],
+          [31, 0, 1],
+        ],
+      },
+    ],
     leads: [
       { side: 'left', start: 0, width: 1 },
       { side: 'right', start: 0, width: 1 },
     ],
   };
   const t = operator(doc).hopping;
-  (doc.potential![0] as { values: [number, number, number][] }).values = [[4, 0, 40 * t], [31, 0, 40 * t]];
+  (doc.potential![0] as { values: [number, number, number][] }).values = [
+    [4, 0, 40 * t],
+    [31, 0, 40 * t],
+  ];
   return operator(doc);
 }
 
@@ -154,21 +165,24 @@ describe('transmission', () => {
   });
 
   it('is reciprocal at B = 0 with three leads: T(a→b) = T(b→a)', () => {
-    const op = operator(irregular(0, [
-      { side: 'left', start: 2, width: 5 },
-      { side: 'right', start: 1, width: 4 },
-      { side: 'top', start: 3, width: 6 },
-    ]));
+    const op = operator(
+      irregular(0, [
+        { side: 'left', start: 2, width: 5 },
+        { side: 'right', start: 1, width: 4 },
+        { side: 'top', start: 3, width: 6 },
+      ]),
+    );
     const t = op.hopping;
     const solver = new TransmissionSolver(op);
     let nontrivial = 0;
     for (const u of [0.07, 0.23, 0.41, 0.66, 0.95]) {
       const p = solver.at(u * t);
-      for (let a = 0; a < 3; a++) for (let b = 0; b < 3; b++) {
-        // Onsager-Büttiker reciprocity T_ab(B) = T_ba(−B) (Büttiker, PRL 57, 1761 (1986)).
-        expect(Math.abs(p.transmission[a][b] - p.transmission[b][a])).toBeLessThan(1e-10 * (1 + p.transmission[a][b]));
-        if (p.transmission[a][b] > 0.05) nontrivial++;
-      }
+      for (let a = 0; a < 3; a++)
+        for (let b = 0; b < 3; b++) {
+          // Onsager-Büttiker reciprocity T_ab(B) = T_ba(−B) (Büttiker, PRL 57, 1761 (1986)).
+          expect(Math.abs(p.transmission[a][b] - p.transmission[b][a])).toBeLessThan(1e-10 * (1 + p.transmission[a][b]));
+          if (p.transmission[a][b] > 0.05) nontrivial++;
+        }
     }
     expect(nontrivial).toBeGreaterThan(5);
   });
@@ -192,10 +206,11 @@ describe('transmission', () => {
       expect(Math.abs(gp - gm)).toBeLessThan(1e-10 * (1 + gp));
       const p = plus3.at(u * t);
       const m = minus3.at(u * t);
-      for (let a = 0; a < 3; a++) for (let b = 0; b < 3; b++) {
-        expect(Math.abs(p.transmission[a][b] - m.transmission[b][a])).toBeLessThan(1e-10 * (1 + p.transmission[a][b]));
-        if (Math.abs(p.transmission[a][b] - p.transmission[b][a]) > 0.01) asymmetric++;
-      }
+      for (let a = 0; a < 3; a++)
+        for (let b = 0; b < 3; b++) {
+          expect(Math.abs(p.transmission[a][b] - m.transmission[b][a])).toBeLessThan(1e-10 * (1 + p.transmission[a][b]));
+          if (Math.abs(p.transmission[a][b] - p.transmission[b][a]) > 0.01) asymmetric++;
+        }
     }
     // The field really breaks T_ab = T_ba with three leads, so the check above is not empty.
     expect(asymmetric).toBeGreaterThan(0);
@@ -269,14 +284,25 @@ describe('transmission', () => {
       material,
       grid: { nx: 4, ny: 1 },
       shape: { kind: 'rectangle', x0: 0, y0: 0, width: 20, height: 5 },
-      potential: [{ kind: 'sites', values: [[0, 0, 1], [3, 0, 1]] }],
+      potential: [
+        {
+          kind: 'sites',
+          values: [
+            [0, 0, 1],
+            [3, 0, 1],
+          ],
+        },
+      ],
       leads: [
         { side: 'left', start: 0, width: 1 },
         { side: 'right', start: 0, width: 1 },
       ],
     };
     const t = operator(doc).hopping;
-    (doc.potential![0] as { values: [number, number, number][] }).values = [[0, 0, 30 * t], [3, 0, 30 * t]];
+    (doc.potential![0] as { values: [number, number, number][] }).values = [
+      [0, 0, 30 * t],
+      [3, 0, 30 * t],
+    ];
     const op = operator(doc);
     const request = { emin: 2.6 * t, emax: 5.4 * t, points: 2 };
     const withProbe = peaksOf(transmissionSweep(op, { ...request, refine: { maxPoints: 600 } }).points, t);
@@ -289,7 +315,12 @@ describe('transmission', () => {
   });
 
   it('stops on cancellation and rejects a bad request', () => {
-    const op = operator(irregular(0, [{ side: 'left', start: 2, width: 5 }, { side: 'right', start: 1, width: 4 }]));
+    const op = operator(
+      irregular(0, [
+        { side: 'left', start: 2, width: 5 },
+        { side: 'right', start: 1, width: 4 },
+      ]),
+    );
     const ctl = new AbortController();
     ctl.abort();
     expect(() => transmissionSweep(op, { emin: 0, emax: 1, points: 10 }, { signal: ctl.signal })).toThrow(WorkCancelled);

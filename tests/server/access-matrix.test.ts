@@ -140,7 +140,8 @@ describe('route × caller access matrix', () => {
         const got = outcomeOf(res);
         const want = expected(access, caller);
         checked++;
-        if (got !== want) mismatches.push(`${route} [${access}] as ${caller}: expected ${want}, got ${got} (${res.status} ${JSON.stringify(res.body).slice(0, 120)})`);
+        if (got !== want)
+          mismatches.push(`${route} [${access}] as ${caller}: expected ${want}, got ${got} (${res.status} ${JSON.stringify(res.body).slice(0, 120)})`);
       }
     }
     expect(checked).toBe(apiRoutesOf(running).length * callers.length);

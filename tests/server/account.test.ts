@@ -79,7 +79,9 @@ describe('/api/account', () => {
     expect(res.body.sessionsEnded).toBeGreaterThanOrEqual(2);
     expect((await a.get('/api/account')).status).toBe(401);
     expect((await b.get('/api/account')).status).toBe(401);
-    const audit = await app.handle.pool.query("select count(*)::int as n from audit_log where action = 'account.signed_out_everywhere' and account_id = $1", [lab.as('reviewer').id]);
+    const audit = await app.handle.pool.query("select count(*)::int as n from audit_log where action = 'account.signed_out_everywhere' and account_id = $1", [
+      lab.as('reviewer').id,
+    ]);
     expect(audit.rows[0].n).toBe(1);
   });
 });

@@ -35,23 +35,96 @@ interface Case {
 }
 
 const cases: Case[] = [
-  { key: 'rect', document: base('g rect', { kind: 'rectangle', x0: 0, y0: 0, width: 100, height: 60 }, { nx: 20, ny: 12 }), family: 'rectangle', dims: { width: 100, height: 60, area: 100 * 60 } },
-  { key: 'disk', document: base('g disk', { kind: 'disk', cx: 50, cy: 50, radius: 40 }, { nx: 21, ny: 21 }), family: 'disk', dims: { radius: 40, width: 85, height: 85 } },
-  { key: 'ellipse-flat', document: base('g ellipse flat', { kind: 'ellipse', cx: 50, cy: 30, rx: 40, ry: 20 }, { nx: 21, ny: 13 }), family: 'ellipse', dims: { rx: 40, ry: 20 } },
-  { key: 'ellipse-tall', document: base('g ellipse tall', { kind: 'ellipse', cx: 30, cy: 50, rx: 25, ry: 45 }, { nx: 13, ny: 21 }), family: 'ellipse', dims: { rx: 25, ry: 45 } },
-  { key: 'annulus', document: base('g annulus', { kind: 'annulus', cx: 50, cy: 50, inner: 20, outer: 45 }, { nx: 21, ny: 21 }), family: 'annulus', dims: { inner: 20, outer: 45 } },
-  { key: 'stadium', document: base('g stadium', { kind: 'stadium', cx: 80, cy: 40, length: 60, radius: 30 }, { nx: 33, ny: 17 }), family: 'stadium', dims: { length: 60, radius: 30 } },
+  {
+    key: 'rect',
+    document: base('g rect', { kind: 'rectangle', x0: 0, y0: 0, width: 100, height: 60 }, { nx: 20, ny: 12 }),
+    family: 'rectangle',
+    dims: { width: 100, height: 60, area: 100 * 60 },
+  },
+  {
+    key: 'disk',
+    document: base('g disk', { kind: 'disk', cx: 50, cy: 50, radius: 40 }, { nx: 21, ny: 21 }),
+    family: 'disk',
+    dims: { radius: 40, width: 85, height: 85 },
+  },
+  {
+    key: 'ellipse-flat',
+    document: base('g ellipse flat', { kind: 'ellipse', cx: 50, cy: 30, rx: 40, ry: 20 }, { nx: 21, ny: 13 }),
+    family: 'ellipse',
+    dims: { rx: 40, ry: 20 },
+  },
+  {
+    key: 'ellipse-tall',
+    document: base('g ellipse tall', { kind: 'ellipse', cx: 30, cy: 50, rx: 25, ry: 45 }, { nx: 13, ny: 21 }),
+    family: 'ellipse',
+    dims: { rx: 25, ry: 45 },
+  },
+  {
+    key: 'annulus',
+    document: base('g annulus', { kind: 'annulus', cx: 50, cy: 50, inner: 20, outer: 45 }, { nx: 21, ny: 21 }),
+    family: 'annulus',
+    dims: { inner: 20, outer: 45 },
+  },
+  {
+    key: 'stadium',
+    document: base('g stadium', { kind: 'stadium', cx: 80, cy: 40, length: 60, radius: 30 }, { nx: 33, ny: 17 }),
+    family: 'stadium',
+    dims: { length: 60, radius: 30 },
+  },
   {
     key: 'polygon',
-    document: base('g polygon', { kind: 'polygon', vertices: [[0, 0], [90, 0], [0, 60]] }, { nx: 20, ny: 14 }),
+    document: base(
+      'g polygon',
+      {
+        kind: 'polygon',
+        vertices: [
+          [0, 0],
+          [90, 0],
+          [0, 60],
+        ],
+      },
+      { nx: 20, ny: 14 },
+    ),
     family: 'polygon',
     dims: {},
   },
-  { key: 'sites', document: base('g sites', { kind: 'sites', list: [[0, 0], [1, 0], [2, 0], [2, 1]] }, { nx: 4, ny: 3 }), family: 'sites', dims: { width: 3 * a, height: 2 * a, area: 4 * a * a } },
-  { key: 'bitmap', document: base('g bitmap', { kind: 'bitmap', width: 8, height: 4, data: ones(4) }, { nx: 10, ny: 6 }), family: 'bitmap', dims: { width: 8 * a, height: 4 * a, area: 32 * a * a } },
+  {
+    key: 'sites',
+    document: base(
+      'g sites',
+      {
+        kind: 'sites',
+        list: [
+          [0, 0],
+          [1, 0],
+          [2, 0],
+          [2, 1],
+        ],
+      },
+      { nx: 4, ny: 3 },
+    ),
+    family: 'sites',
+    dims: { width: 3 * a, height: 2 * a, area: 4 * a * a },
+  },
+  {
+    key: 'bitmap',
+    document: base('g bitmap', { kind: 'bitmap', width: 8, height: 4, data: ones(4) }, { nx: 10, ny: 6 }),
+    family: 'bitmap',
+    dims: { width: 8 * a, height: 4 * a, area: 32 * a * a },
+  },
   {
     key: 'union',
-    document: base('g union', { kind: 'union', of: [{ kind: 'ellipse', cx: 50, cy: 50, rx: 30, ry: 15 }, { kind: 'rectangle', x0: 0, y0: 45, width: 50, height: 10 }] }, { nx: 21, ny: 21 }),
+    document: base(
+      'g union',
+      {
+        kind: 'union',
+        of: [
+          { kind: 'ellipse', cx: 50, cy: 50, rx: 30, ry: 15 },
+          { kind: 'rectangle', x0: 0, y0: 45, width: 50, height: 10 },
+        ],
+      },
+      { nx: 21, ny: 21 },
+    ),
     family: 'ellipse',
     dims: { rx: 30, ry: 15 },
   },
@@ -203,10 +276,16 @@ describe('geometry columns of every family', () => {
       const bounds = [values[0]! - 1, ...values, values.at(-1)! + 1];
       for (const bound of bounds) {
         const upTo = await search({ [`dim.${name}.max`]: String(bound) });
-        const expectedMax = rows.filter((r) => r.keyDimensions[name] !== undefined && r.keyDimensions[name]! <= bound).map((r) => r.id).sort();
+        const expectedMax = rows
+          .filter((r) => r.keyDimensions[name] !== undefined && r.keyDimensions[name]! <= bound)
+          .map((r) => r.id)
+          .sort();
         expect(upTo.map((r) => r.id).sort(), `dim.${name}.max=${bound}`).toEqual(expectedMax);
         const from = await search({ [`dim.${name}.min`]: String(bound) });
-        const expectedMin = rows.filter((r) => r.keyDimensions[name] !== undefined && r.keyDimensions[name]! >= bound).map((r) => r.id).sort();
+        const expectedMin = rows
+          .filter((r) => r.keyDimensions[name] !== undefined && r.keyDimensions[name]! >= bound)
+          .map((r) => r.id)
+          .sort();
         expect(from.map((r) => r.id).sort(), `dim.${name}.min=${bound}`).toEqual(expectedMin);
       }
     }

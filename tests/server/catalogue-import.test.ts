@@ -29,7 +29,9 @@ beforeAll(async () => {
   as.sourceDesigner = await signInAs(app, source.as('designer').email);
   as.admin = await signInAs(app, target.as('admin').email);
   as.designer = await signInAs(app, target.as('designer').email);
-  await as.sourceDesigner!.patch(`/api/groups/${source.groupId}/resonances/${ids[1]}`, { tags: ['fabricate', 'scar'], notes: 'bouncing-ball mode, cf. run notes' }).expect(200);
+  await as
+    .sourceDesigner!.patch(`/api/groups/${source.groupId}/resonances/${ids[1]}`, { tags: ['fabricate', 'scar'], notes: 'bouncing-ball mode, cf. run notes' })
+    .expect(200);
 });
 afterAll(() => app?.close());
 
@@ -44,13 +46,39 @@ function upload(who: SignedIn, groupId: string, content: string | Buffer, name =
 }
 
 async function counts(groupId: string) {
-  const [r] = await app.handle.db.select({ n: sql<number>`count(*)::int` }).from(resonances).where(eq(resonances.groupId, groupId));
-  const [m] = await app.handle.db.select({ n: sql<number>`count(*)::int` }).from(cavityModels).where(eq(cavityModels.groupId, groupId));
+  const [r] = await app.handle.db
+    .select({ n: sql<number>`count(*)::int` })
+    .from(resonances)
+    .where(eq(resonances.groupId, groupId));
+  const [m] = await app.handle.db
+    .select({ n: sql<number>`count(*)::int` })
+    .from(cavityModels)
+    .where(eq(cavityModels.groupId, groupId));
   return { resonances: r!.n, models: m!.n };
 }
 
 /** The fields that must survive an exchange unchanged (ids, run, fit and dates are the new group's own). */
-const kept = ['source', 'modelName', 'modelVersion', 'family', 'keyDimensions', 'material', 'fieldT', 'energy', 'width', 'lifetimePs', 'quality', 'partialWidths', 'petermann', 'residual', 'bound', 'nearThreshold', 'overlapping', 'tags', 'notes'];
+const kept = [
+  'source',
+  'modelName',
+  'modelVersion',
+  'family',
+  'keyDimensions',
+  'material',
+  'fieldT',
+  'energy',
+  'width',
+  'lifetimePs',
+  'quality',
+  'partialWidths',
+  'petermann',
+  'residual',
+  'bound',
+  'nearThreshold',
+  'overlapping',
+  'tags',
+  'notes',
+];
 
 describe('catalogue import', () => {
   it('the JSON export carries the model versions its rows came from', async () => {

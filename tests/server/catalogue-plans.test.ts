@@ -46,7 +46,9 @@ async function planOf(q: { getSQL(): unknown }): Promise<PlanNode[]> {
 }
 
 function describePlan(plan: PlanNode[]): string {
-  return plan.map((n) => `${n['Node Type']}${n['Index Name'] ? ` using ${n['Index Name']}` : ''}${n['Relation Name'] ? ` on ${n['Relation Name']}` : ''}`).join(' → ');
+  return plan
+    .map((n) => `${n['Node Type']}${n['Index Name'] ? ` using ${n['Index Name']}` : ''}${n['Relation Name'] ? ` on ${n['Relation Name']}` : ''}`)
+    .join(' → ');
 }
 
 /** A cursor position after (or before) the row at `offset` of the search, taken from the data. */
@@ -83,9 +85,18 @@ describe('query plans on a catalogue of some size (EXPLAIN, after ANALYZE)', () 
     const req = request(`sort=${sort}&dir=${dir}&pageSize=25`);
     const first = await planOf(pageQuery(handle.db, main.groupId, req, { offset: 0 }, 26));
     const index = `resonances_group_${sort === 'date' ? 'created' : sort}_key`;
-    expect(first.map((n) => n['Node Type']), describePlan(first)).not.toContain('Sort');
-    expect(first.some((n) => n['Node Type'] === 'Seq Scan' && n['Relation Name'] === 'resonances'), describePlan(first)).toBe(false);
-    expect(first.some((n) => n['Index Name'] === index), describePlan(first)).toBe(true);
+    expect(
+      first.map((n) => n['Node Type']),
+      describePlan(first),
+    ).not.toContain('Sort');
+    expect(
+      first.some((n) => n['Node Type'] === 'Seq Scan' && n['Relation Name'] === 'resonances'),
+      describePlan(first),
+    ).toBe(false);
+    expect(
+      first.some((n) => n['Index Name'] === index),
+      describePlan(first),
+    ).toBe(true);
 
     for (const toward of ['after', 'before'] as const) {
       const position = await positionAt(req, 3000, toward);
@@ -94,7 +105,10 @@ describe('query plans on a catalogue of some size (EXPLAIN, after ANALYZE)', () 
       expect(scan, describePlan(deep)).toBeDefined();
       // The cursor bounds the scan (an index condition), it does not filter rows read from the start.
       expect(scan!['Index Cond'] ?? '').toMatch(/ROW\(/);
-      expect(deep.map((n) => n['Node Type']), describePlan(deep)).not.toContain('Sort');
+      expect(
+        deep.map((n) => n['Node Type']),
+        describePlan(deep),
+      ).not.toContain('Sort');
     }
   });
 
@@ -111,9 +125,19 @@ describe('query plans on a catalogue of some size (EXPLAIN, after ANALYZE)', () 
     ['material=GaAs&bmin=0.5&sort=date&dir=desc', false],
   ])('?%s: no Seq Scan on resonances (and no Sort: %s)', async (query, sortFree) => {
     const plan = await planOf(pageQuery(handle.db, main.groupId, request(`${query}&pageSize=25`), { offset: 0 }, 26));
-    expect(plan.some((n) => n['Node Type'] === 'Seq Scan' && n['Relation Name'] === 'resonances'), describePlan(plan)).toBe(false);
-    expect(plan.some((n) => n['Relation Name'] === 'resonances'), describePlan(plan)).toBe(true);
-    if (sortFree) expect(plan.map((n) => n['Node Type']), describePlan(plan)).not.toContain('Sort');
+    expect(
+      plan.some((n) => n['Node Type'] === 'Seq Scan' && n['Relation Name'] === 'resonances'),
+      describePlan(plan),
+    ).toBe(false);
+    expect(
+      plan.some((n) => n['Relation Name'] === 'resonances'),
+      describePlan(plan),
+    ).toBe(true);
+    if (sortFree)
+      expect(
+        plan.map((n) => n['Node Type']),
+        describePlan(plan),
+      ).not.toContain('Sort');
   });
 
   it('bound=false is checked in the Q index, not by fetching the bound rows that lead a descending Q order', async () => {
@@ -175,7 +199,11 @@ describe('keyset paging walks', () => {
   it('refuses a cursor of another search, and one that is not a cursor, naming query.cursor', async () => {
     const service = new CatalogueService(handle.db);
     const { nextCursor } = await service.search(main.groupId, request('family=disk&sort=energy'));
-    for (const query of [`family=stadium&sort=energy&cursor=${nextCursor}`, `family=disk&sort=width&cursor=${nextCursor}`, `family=disk&sort=energy&dir=desc&cursor=${nextCursor}`]) {
+    for (const query of [
+      `family=stadium&sort=energy&cursor=${nextCursor}`,
+      `family=disk&sort=width&cursor=${nextCursor}`,
+      `family=disk&sort=energy&dir=desc&cursor=${nextCursor}`,
+    ]) {
       await expect(service.search(main.groupId, request(query))).rejects.toMatchObject({ status: 400, issues: [{ path: 'query.cursor' }] });
     }
     // A well-formed cursor whose key has the wrong type for the sort.
@@ -240,7 +268,7 @@ describe('totals: exact, cached with its age, or estimated', () => {
     await service.settled();
   });
 
-  it('count=exact counts now; a label change forgets the group\'s cached counts', async () => {
+  it("count=exact counts now; a label change forgets the group's cached counts", async () => {
     const service = new CatalogueService(handle.db, { ...policy, countBelow: 100 });
     const req = request('tag=candidate&count=exact');
     const exact = await service.search(main.groupId, req);

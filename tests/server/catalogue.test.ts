@@ -36,11 +36,72 @@ interface Fixture {
 
 // Q = E/Γ and τ = ħ/Γ follow from these; a bound state (Γ = 0) has neither.
 const fixtures: Fixture[] = [
-  { key: 'r1', family: 'rectangle', material: 'GaAs', fieldT: 0, dims: { widthNm: 300, heightNm: 200 }, energy: 1.0, width: 0.01, tags: ['candidate'], notes: 'whispering gallery mode', modelName: 'Harrow notch dot', day: 1 },
-  { key: 'r2', family: 'disk', material: 'InAs', fieldT: 1.0, dims: { radiusNm: 150 }, energy: 2.5, width: 0.0005, tags: ['candidate', 'fabricate'], notes: '', modelName: 'Quarry ring', day: 3 },
-  { key: 'r3', family: 'disk', material: 'GaAs', fieldT: 0.5, dims: { radiusNm: 250 }, energy: 4.0, width: 0.4, tags: [], notes: 'bouncing ball orbit', modelName: 'Quarry ring', day: 2 },
-  { key: 'r4', family: 'stadium', material: 'GaAs', fieldT: 0, dims: { lengthNm: 400, radiusNm: 100 }, energy: 3.0, width: 0, tags: ['bic'], notes: '', modelName: 'Long stadium', day: 5 },
-  { key: 'r5', family: 'rectangle', material: 'GaAs', fieldT: 0, dims: { widthNm: 600, heightNm: 400 }, energy: 6.0, width: 0.06, tags: [], notes: 'scar close to the channel edge', modelName: 'Harrow notch dot', day: 4, nearThreshold: true },
+  {
+    key: 'r1',
+    family: 'rectangle',
+    material: 'GaAs',
+    fieldT: 0,
+    dims: { widthNm: 300, heightNm: 200 },
+    energy: 1.0,
+    width: 0.01,
+    tags: ['candidate'],
+    notes: 'whispering gallery mode',
+    modelName: 'Harrow notch dot',
+    day: 1,
+  },
+  {
+    key: 'r2',
+    family: 'disk',
+    material: 'InAs',
+    fieldT: 1.0,
+    dims: { radiusNm: 150 },
+    energy: 2.5,
+    width: 0.0005,
+    tags: ['candidate', 'fabricate'],
+    notes: '',
+    modelName: 'Quarry ring',
+    day: 3,
+  },
+  {
+    key: 'r3',
+    family: 'disk',
+    material: 'GaAs',
+    fieldT: 0.5,
+    dims: { radiusNm: 250 },
+    energy: 4.0,
+    width: 0.4,
+    tags: [],
+    notes: 'bouncing ball orbit',
+    modelName: 'Quarry ring',
+    day: 2,
+  },
+  {
+    key: 'r4',
+    family: 'stadium',
+    material: 'GaAs',
+    fieldT: 0,
+    dims: { lengthNm: 400, radiusNm: 100 },
+    energy: 3.0,
+    width: 0,
+    tags: ['bic'],
+    notes: '',
+    modelName: 'Long stadium',
+    day: 5,
+  },
+  {
+    key: 'r5',
+    family: 'rectangle',
+    material: 'GaAs',
+    fieldT: 0,
+    dims: { widthNm: 600, heightNm: 400 },
+    energy: 6.0,
+    width: 0.06,
+    tags: [],
+    notes: 'scar close to the channel edge',
+    modelName: 'Harrow notch dot',
+    day: 4,
+    nearThreshold: true,
+  },
 ];
 
 async function insertFixtures(db: Db, lab: Lab, rows: Fixture[]): Promise<{ ids: Record<string, string>; runId: string; modelId: string }> {
@@ -51,7 +112,12 @@ async function insertFixtures(db: Db, lab: Lab, rows: Fixture[]): Promise<{ ids:
       modelId: model!.id,
       groupId: lab.groupId,
       version: 1,
-      document: { leads: [{ side: 'left', start: 2, width: 4, name: 'source' }, { side: 'top', start: 5, width: 3 }] },
+      document: {
+        leads: [
+          { side: 'left', start: 2, width: 4, name: 'source' },
+          { side: 'top', start: 5, width: 3 },
+        ],
+      },
       family: 'rectangle',
       material: 'GaAs',
       effectiveMass: 0.067,
@@ -65,7 +131,14 @@ async function insertFixtures(db: Db, lab: Lab, rows: Fixture[]): Promise<{ ids:
     .returning();
   const [run] = await db
     .insert(runs)
-    .values({ groupId: lab.groupId, modelVersionId: version!.id, kind: 'pole-search', status: 'completed', window: { emin: 0.5, emax: 7 }, thresholds: [2.2, 5.9] })
+    .values({
+      groupId: lab.groupId,
+      modelVersionId: version!.id,
+      kind: 'pole-search',
+      status: 'completed',
+      window: { emin: 0.5, emax: 7 },
+      thresholds: [2.2, 5.9],
+    })
     .returning();
   const ids: Record<string, string> = {};
   for (const [idx, f] of rows.entries()) {
@@ -125,7 +198,11 @@ function keysOf(items: { id: string }[]): string[] {
   return items.map((i) => byId[i.id] ?? `foreign:${i.id}`);
 }
 
-async function search(query: string): Promise<{ keys: string[]; total: number; body: { items: Record<string, unknown>[]; total: number; page: number; pageSize: number; [more: string]: unknown } }> {
+async function search(query: string): Promise<{
+  keys: string[];
+  total: number;
+  body: { items: Record<string, unknown>[]; total: number; page: number; pageSize: number; [more: string]: unknown };
+}> {
   const res = await viewer.get(`/api/groups/${lab.groupId}/catalogue?${query}`);
   expect(res.status, JSON.stringify(res.body)).toBe(200);
   return { keys: keysOf(res.body.items), total: res.body.total, body: res.body };
@@ -150,7 +227,7 @@ afterAll(async () => {
 });
 
 describe('GET /catalogue filters', () => {
-  it('lists only the group\'s resonances, by energy ascending by default', async () => {
+  it("lists only the group's resonances, by energy ascending by default", async () => {
     const { keys, total } = await search('');
     expect(keys).toEqual(['r1', 'r2', 'r4', 'r3', 'r5']);
     expect(total).toBe(5);
@@ -192,7 +269,36 @@ describe('GET /catalogue filters', () => {
   });
 
   it('never fails on odd free text: any mix of tsquery operators, quotes, accents and control characters', async () => {
-    const unit = fc.constantFrom('a', 'Q', '7', '-', '_', '.', ':', '*', '&', '|', '!', '(', ')', "'", '"', '\\', '<', '>', ' ', '\t', 'é', 'ß', '中', '@', '%', '+', '/', '—');
+    const unit = fc.constantFrom(
+      'a',
+      'Q',
+      '7',
+      '-',
+      '_',
+      '.',
+      ':',
+      '*',
+      '&',
+      '|',
+      '!',
+      '(',
+      ')',
+      "'",
+      '"',
+      '\\',
+      '<',
+      '>',
+      ' ',
+      '\t',
+      'é',
+      'ß',
+      '中',
+      '@',
+      '%',
+      '+',
+      '/',
+      '—',
+    );
     await fc.assert(
       fc.asyncProperty(fc.string({ unit, maxLength: 16 }), async (text) => {
         const res = await viewer.get(`/api/groups/${lab.groupId}/catalogue?q=${encodeURIComponent(text)}`);
@@ -355,7 +461,7 @@ describe('GET /resonances/:id', () => {
     expect(keysOf(others)).toEqual(['r1', 'r2', 'r4', 'r5']);
   });
 
-  it('answers 404 for another group\'s resonance, a stranger, and a malformed id', async () => {
+  it("answers 404 for another group's resonance, a stranger, and a malformed id", async () => {
     expect((await viewer.get(`/api/groups/${lab.groupId}/resonances/${otherIds.o1}`)).status).toBe(404);
     expect((await stranger.get(`/api/groups/${lab.groupId}/resonances/${ids.r1}`)).status).toBe(404);
     expect((await stranger.get(`/api/groups/${otherLab.groupId}/resonances/${ids.r1}`)).status).toBe(404);
@@ -411,7 +517,7 @@ describe('PATCH /resonances/:id', () => {
     expect(res.body.issues.map((i: { path: string }) => i.path)).toContain(path);
   });
 
-  it('answers 404 for another group\'s resonance', async () => {
+  it("answers 404 for another group's resonance", async () => {
     const res = await designer.patch(`/api/groups/${lab.groupId}/resonances/${otherIds.o1}`, { tags: ['mine'] });
     expect(res.status).toBe(404);
     const strangerRes = await stranger.patch(`/api/groups/${otherLab.groupId}/resonances/${ids.r1}`, { tags: ['mine'] });

@@ -26,7 +26,10 @@ describe('CSRF double-submit', () => {
 
   it('refuses a header that does not match the pw_csrf cookie', async () => {
     const me = await signInAs(app, lab.as('designer').email);
-    const res = await me.agent.post('/api/tokens').set('X-CSRF-Token', 'x' + me.csrf.slice(1)).send({ name: 'laptop' });
+    const res = await me.agent
+      .post('/api/tokens')
+      .set('X-CSRF-Token', 'x' + me.csrf.slice(1))
+      .send({ name: 'laptop' });
     expect(res.status).toBe(403);
     expect(res.body.code).toBe('csrf_failed');
   });

@@ -25,7 +25,8 @@ beforeAll(async () => {
   lab = await createLab(app.handle.db, ['admin', 'designer', 'reviewer']);
   target = await createLab(app.handle.db, ['admin']);
   // The designer and the reviewer are members of the target group too.
-  for (const role of ['designer', 'reviewer'] as const) await app.handle.db.insert(memberships).values({ groupId: target.groupId, userId: lab.as(role).id, role });
+  for (const role of ['designer', 'reviewer'] as const)
+    await app.handle.db.insert(memberships).values({ groupId: target.groupId, userId: lab.as(role).id, role });
   ({ ids } = await insertResonances(app.handle.db, lab, [{ energy: 4.2, width: 0.012 }]));
   await insertResonances(app.handle.db, source, [{ energy: 5.5, width: 0.05 }]);
   as.source = await signInAs(app, source.as('admin').email);
@@ -40,25 +41,40 @@ describe('fabrication in the group backup', () => {
   it('keeps imported resonances, fabrication records and comments across a backup and restore', async () => {
     // An imported resonance in the lab.
     const exported = await as.source!.get(`/api/groups/${source.groupId}/catalogue/export.json`);
-    await as.admin!.agent.post(`/api/groups/${lab.groupId}/catalogue/import`).set('X-CSRF-Token', as.admin!.csrf).attach('file', Buffer.from(exported.text), 'source.json').expect(201);
+    await as
+      .admin!.agent.post(`/api/groups/${lab.groupId}/catalogue/import`)
+      .set('X-CSRF-Token', as.admin!.csrf)
+      .attach('file', Buffer.from(exported.text), 'source.json')
+      .expect(201);
     // A record and a comment on the lab's own resonance.
     const url = `/api/groups/${lab.groupId}/resonances/${ids[0]}`;
     await as.designer!.post(`${url}/fabrication`, { action: 'propose', reason: 'isolated', tolerances: { energyMeV: 0.05 } }).expect(200);
     await as.reviewer!.post(`${url}/fabrication`, { action: 'approve', reason: 'fits' }).expect(200);
     await as.reviewer!.post(`${url}/comments`, { body: 'check the gate', mentions: [lab.as('designer').id] }).expect(201);
 
-    const backup = await as.admin!.get(`/api/groups/${lab.groupId}/backup?members=false`).buffer(true).parse((r, cb) => {
-      const chunks: Buffer[] = [];
-      r.on('data', (c: Buffer) => chunks.push(c));
-      r.on('end', () => cb(null, Buffer.concat(chunks)));
-    });
+    const backup = await as
+      .admin!.get(`/api/groups/${lab.groupId}/backup?members=false`)
+      .buffer(true)
+      .parse((r, cb) => {
+        const chunks: Buffer[] = [];
+        r.on('data', (c: Buffer) => chunks.push(c));
+        r.on('end', () => cb(null, Buffer.concat(chunks)));
+      });
     expect(backup.status).toBe(200);
-    const types = gunzipSync(backup.body as Buffer).toString('utf8').split('\n').filter(Boolean).map((l) => JSON.parse(l).type as string);
+    const types = gunzipSync(backup.body as Buffer)
+      .toString('utf8')
+      .split('\n')
+      .filter(Boolean)
+      .map((l) => JSON.parse(l).type as string);
     expect(types.filter((t) => t === 'importedResonance')).toHaveLength(1);
     expect(types.filter((t) => t === 'fabricationRecord')).toHaveLength(1);
     expect(types.filter((t) => t === 'resonanceComment')).toHaveLength(1);
 
-    const res = await as.target!.agent.post(`/api/groups/${target.groupId}/restore`).set('X-CSRF-Token', as.target!.csrf).set('Content-Type', 'application/gzip').send(backup.body as Buffer);
+    const res = await as
+      .target!.agent.post(`/api/groups/${target.groupId}/restore`)
+      .set('X-CSRF-Token', as.target!.csrf)
+      .set('Content-Type', 'application/gzip')
+      .send(backup.body as Buffer);
     expect(res.status, JSON.stringify(res.body)).toBe(201);
     expect(res.body.restored).toMatchObject({ importedResonance: 1, fabricationRecord: 1, resonanceComment: 1 });
 

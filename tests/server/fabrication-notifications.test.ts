@@ -63,7 +63,10 @@ async function settled(): Promise<void> {
   await waitFor(
     'the queued notifications to be sent',
     async () => {
-      const queued = await app.handle.db.select().from(notifications).where(and(eq(notifications.groupId, lab.groupId), eq(notifications.status, 'queued')));
+      const queued = await app.handle.db
+        .select()
+        .from(notifications)
+        .where(and(eq(notifications.groupId, lab.groupId), eq(notifications.status, 'queued')));
       return queued.length === 0;
     },
     20,
@@ -75,11 +78,17 @@ describe('e-mail notifications', () => {
     const before = await as.quietReviewer!.get('/api/account/notifications');
     expect(before.status).toBe(200);
     expect(before.body.kinds.every((k: { enabled: boolean }) => k.enabled)).toBe(true);
-    const put = await as.quietReviewer!.agent.put('/api/account/notifications').set('X-CSRF-Token', as.quietReviewer!.csrf).send({ enabled: { candidate_proposed: false } });
+    const put = await as
+      .quietReviewer!.agent.put('/api/account/notifications')
+      .set('X-CSRF-Token', as.quietReviewer!.csrf)
+      .send({ enabled: { candidate_proposed: false } });
     expect(put.status, JSON.stringify(put.body)).toBe(200);
     const kinds = Object.fromEntries(put.body.kinds.map((k: { kind: string; enabled: boolean }) => [k.kind, k.enabled]));
     expect(kinds).toMatchObject({ candidate_proposed: false, candidate_decided: true, fabrication_progress: true });
-    const bad = await as.quietReviewer!.agent.put('/api/account/notifications').set('X-CSRF-Token', as.quietReviewer!.csrf).send({ enabled: { candidate_proposed: 'no' } });
+    const bad = await as
+      .quietReviewer!.agent.put('/api/account/notifications')
+      .set('X-CSRF-Token', as.quietReviewer!.csrf)
+      .send({ enabled: { candidate_proposed: 'no' } });
     expect(bad.status).toBe(400);
   });
 
@@ -119,7 +128,11 @@ describe('e-mail notifications', () => {
   });
 
   it('a mentioned member gets an e-mail; one who turned mentions off does not', async () => {
-    await as.viewer!.agent.put('/api/account/notifications').set('X-CSRF-Token', as.viewer!.csrf).send({ enabled: { mentioned: false } }).expect(200);
+    await as
+      .viewer!.agent.put('/api/account/notifications')
+      .set('X-CSRF-Token', as.viewer!.csrf)
+      .send({ enabled: { mentioned: false } })
+      .expect(200);
     await as.reviewer!.post(url(ids[1]!, 'comments'), { body: 'Worth a look?', mentions: [lab.as('designer').id, lab.as('viewer').id] }).expect(201);
     await settled();
     const designerMail = (await mailTo(lab.as('designer').email)).filter((m) => m.subject.includes('mentioned you'));
@@ -135,11 +148,30 @@ describe('e-mail notifications', () => {
     const now = Date.now();
     const [long] = await db
       .insert(runs)
-      .values({ groupId: lab.groupId, modelVersionId: fixture.modelVersionId, kind: 'pole-search', status: 'failed', error: 'the contour met a pole', window: { emin: 1, emax: 2 }, createdBy: owner.id, createdAt: new Date(now - 300_000), finishedAt: new Date(now) })
+      .values({
+        groupId: lab.groupId,
+        modelVersionId: fixture.modelVersionId,
+        kind: 'pole-search',
+        status: 'failed',
+        error: 'the contour met a pole',
+        window: { emin: 1, emax: 2 },
+        createdBy: owner.id,
+        createdAt: new Date(now - 300_000),
+        finishedAt: new Date(now),
+      })
       .returning();
     const [short] = await db
       .insert(runs)
-      .values({ groupId: lab.groupId, modelVersionId: fixture.modelVersionId, kind: 'transmission', status: 'completed', window: { emin: 1, emax: 2, points: 10 }, createdBy: owner.id, createdAt: new Date(now - 5_000), finishedAt: new Date(now) })
+      .values({
+        groupId: lab.groupId,
+        modelVersionId: fixture.modelVersionId,
+        kind: 'transmission',
+        status: 'completed',
+        window: { emin: 1, emax: 2, points: 10 },
+        createdBy: owner.id,
+        createdAt: new Date(now - 5_000),
+        finishedAt: new Date(now),
+      })
       .returning();
     expect(await notifyRunEnded(db, queue, app.config.publicUrl, short!.id)).toEqual([]);
     expect(await notifyRunEnded(db, queue, app.config.publicUrl, long!.id)).toHaveLength(1);
@@ -161,7 +193,10 @@ describe('e-mail notifications', () => {
       await waitFor(
         'a notification marked failed',
         async () => {
-          const rows = await app.handle.db.select().from(notifications).where(and(eq(notifications.groupId, lab.groupId), eq(notifications.status, 'failed')));
+          const rows = await app.handle.db
+            .select()
+            .from(notifications)
+            .where(and(eq(notifications.groupId, lab.groupId), eq(notifications.status, 'failed')));
           return rows.length > 0;
         },
         30,

@@ -37,7 +37,9 @@ function binary(res: request.Response, cb: (err: Error | null, body: Buffer) => 
 }
 
 async function download(who: SignedIn, id: string, file: string): Promise<request.Response & { body: Buffer }> {
-  return (await who.agent.get(`/api/groups/${lab.groupId}/resonances/${id}/fabrication/${file}`).buffer(true).parse(binary)) as request.Response & { body: Buffer };
+  return (await who.agent.get(`/api/groups/${lab.groupId}/resonances/${id}/fabrication/${file}`).buffer(true).parse(binary)) as request.Response & {
+    body: Buffer;
+  };
 }
 
 function hasTool(name: string): boolean {
@@ -102,7 +104,11 @@ describe('fabrication package', () => {
     expect(res.status).toBe(200);
     const dxf = new DxfParser().parseSync(res.body.toString('utf8'))!;
     expect((dxf.header as Record<string, unknown>)['$INSUNITS']).toBe(12); // 12 = nanometres (DXF reference, HEADER section)
-    const polylines = dxf.entities.filter((e) => e.type === 'LWPOLYLINE') as unknown as { layer: string; shape: boolean; vertices: { x: number; y: number }[] }[];
+    const polylines = dxf.entities.filter((e) => e.type === 'LWPOLYLINE') as unknown as {
+      layer: string;
+      shape: boolean;
+      vertices: { x: number; y: number }[];
+    }[];
     expect(polylines.map((p) => p.layer)).toEqual(['L1-cavity-traced', 'L3-leads', 'L3-leads', 'L10-gate-0', 'L11-gate-1']);
     expect(polylines.every((p) => p.shape)).toBe(true);
     const cavity = expectedLayout.layers[0]!.polygons[0]!;
@@ -112,7 +118,9 @@ describe('fabrication package', () => {
       expect(x).toBeCloseTo(cavity[k]![0], 6);
       expect(y).toBeCloseTo(cavity[k]![1], 6);
     });
-    expect(Object.keys((dxf.tables as { layer: { layers: Record<string, unknown> } }).layer.layers)).toEqual(expect.arrayContaining(['L1-cavity-traced', 'L3-leads', 'L10-gate-0', 'L11-gate-1']));
+    expect(Object.keys((dxf.tables as { layer: { layers: Record<string, unknown> } }).layer.layers)).toEqual(
+      expect.arrayContaining(['L1-cavity-traced', 'L3-leads', 'L10-gate-0', 'L11-gate-1']),
+    );
   });
 
   it('SVG is well-formed XML with one group per layer and one path per polygon', async () => {
@@ -169,7 +177,14 @@ describe('fabrication package', () => {
     expect(res.status).toBe(200);
     const files = unzipSync(new Uint8Array(res.body));
     const names = Object.keys(files).map((n) => n.split('/')[1]);
-    expect(names.sort()).toEqual(['README.txt', 'poleward-fabrication-fixture-dot-v1-E4.2meV-spec.pdf', 'poleward-fabrication-fixture-dot-v1-E4.2meV.dxf', 'poleward-fabrication-fixture-dot-v1-E4.2meV.gds', 'poleward-fabrication-fixture-dot-v1-E4.2meV.svg', 'resonance.json']);
+    expect(names.sort()).toEqual([
+      'README.txt',
+      'poleward-fabrication-fixture-dot-v1-E4.2meV-spec.pdf',
+      'poleward-fabrication-fixture-dot-v1-E4.2meV.dxf',
+      'poleward-fabrication-fixture-dot-v1-E4.2meV.gds',
+      'poleward-fabrication-fixture-dot-v1-E4.2meV.svg',
+      'resonance.json',
+    ]);
     const json = JSON.parse(new TextDecoder().decode(Object.entries(files).find(([n]) => n.endsWith('resonance.json'))![1]));
     expect(json.energy).toBe(4.2);
     expect(json.layout.outline).toBe('traced');

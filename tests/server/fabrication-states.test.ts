@@ -51,7 +51,11 @@ describe('fabrication states', () => {
     expect(fresh.body.state).toBeNull();
     expect(fresh.body.allowedActions).toEqual(['propose']);
 
-    const proposed = await as.designer!.post(url(id), { action: 'propose', reason: 'narrowest mode below the second channel', tolerances: { energyMeV: 0.05, minQuality: 200 } });
+    const proposed = await as.designer!.post(url(id), {
+      action: 'propose',
+      reason: 'narrowest mode below the second channel',
+      tolerances: { energyMeV: 0.05, minQuality: 200 },
+    });
     expect(proposed.status, JSON.stringify(proposed.body)).toBe(200);
     expect(proposed.body.state).toBe('candidate');
     expect(proposed.body.tolerances).toEqual({ energyMeV: 0.05, minQuality: 200 });
@@ -81,8 +85,17 @@ describe('fabrication states', () => {
     expect(w.sigmas).toBeCloseTo(3, 9);
 
     const history = measured.body.history.map((h: { action: string; from: string | null; to: string | null }) => `${h.action}:${h.from}->${h.to}`);
-    expect(history).toEqual(['propose:null->candidate', 'start_review:candidate->under_review', 'approve:under_review->approved', 'send:approved->sent', 'measure:sent->measured']);
-    const audits = await app.handle.db.select().from(auditLog).where(and(eq(auditLog.groupId, lab.groupId), eq(auditLog.action, 'fabrication.approve')));
+    expect(history).toEqual([
+      'propose:null->candidate',
+      'start_review:candidate->under_review',
+      'approve:under_review->approved',
+      'send:approved->sent',
+      'measure:sent->measured',
+    ]);
+    const audits = await app.handle.db
+      .select()
+      .from(auditLog)
+      .where(and(eq(auditLog.groupId, lab.groupId), eq(auditLog.action, 'fabrication.approve')));
     expect(audits).toHaveLength(1);
     expect(audits[0]!.actorId).toBe(lab.as('reviewer').id);
     expect(audits[0]!.details).toMatchObject({ resonanceId: id, from: 'under_review', to: 'approved', reason: 'Q and tolerances fit the process' });
@@ -179,11 +192,27 @@ describe('fabrication states', () => {
     const db = app.handle.db;
     const [trace] = await db
       .insert(measuredTraces)
-      .values({ groupId: lab.groupId, deviceName: 'HL-7 die 3', fileName: 'die3.csv', temperatureMK: 100, content: 'E,T\n1,0', columns: ['E', 'T'], selection: {}, energies: [1], transmission: [0] })
+      .values({
+        groupId: lab.groupId,
+        deviceName: 'HL-7 die 3',
+        fileName: 'die3.csv',
+        temperatureMK: 100,
+        content: 'E,T\n1,0',
+        columns: ['E', 'T'],
+        selection: {},
+        energies: [1],
+        transmission: [0],
+      })
       .returning();
     const peaks = [{ energy: 6.29, energyError: 0.004, width: 0.25, widthError: 0.01 }];
-    const [fit] = await db.insert(peakFits).values({ groupId: lab.groupId, traceId: trace!.id, request: {}, status: 'completed', result: { peaks } as never }).returning();
-    const [failed] = await db.insert(peakFits).values({ groupId: lab.groupId, traceId: trace!.id, request: {}, status: 'failed', error: 'did not converge' }).returning();
+    const [fit] = await db
+      .insert(peakFits)
+      .values({ groupId: lab.groupId, traceId: trace!.id, request: {}, status: 'completed', result: { peaks } as never })
+      .returning();
+    const [failed] = await db
+      .insert(peakFits)
+      .values({ groupId: lab.groupId, traceId: trace!.id, request: {}, status: 'failed', error: 'did not converge' })
+      .returning();
     // ids[2] was rejected above: propose again, approve, send.
     await as.designer!.post(url(ids[2]!), { action: 'propose', reason: 'second try with a wider gate' }).expect(200);
     await as.reviewer!.post(url(ids[2]!), { action: 'approve', reason: 'fine now' }).expect(200);

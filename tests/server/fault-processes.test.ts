@@ -32,17 +32,25 @@ async function runRow(h: DbHandle, id: string) {
 }
 
 async function waitRunning(h: DbHandle, id: string) {
-  await waitFor('the run to be computing', async () => {
-    const r = await runRow(h, id).catch(() => null);
-    return r?.status === 'running' && (r.progressFraction ?? 0) > 0;
-  }, 120);
+  await waitFor(
+    'the run to be computing',
+    async () => {
+      const r = await runRow(h, id).catch(() => null);
+      return r?.status === 'running' && (r.progressFraction ?? 0) > 0;
+    },
+    120,
+  );
 }
 
 async function waitFinished(h: DbHandle, id: string, seconds = 150) {
-  return waitFor('the run to finish', async () => {
-    const r = await runRow(h, id).catch(() => null);
-    return r && ['completed', 'failed', 'cancelled'].includes(r.status) && r;
-  }, seconds);
+  return waitFor(
+    'the run to finish',
+    async () => {
+      const r = await runRow(h, id).catch(() => null);
+      return r && ['completed', 'failed', 'cancelled'].includes(r.status) && r;
+    },
+    seconds,
+  );
 }
 
 /** The rows one completed run must own exactly once. */
@@ -55,7 +63,11 @@ async function expectCompletedOnce(h: DbHandle, lab: Lab, id: string) {
   const rows = await h.db.select({ idx: resonances.idx }).from(resonances).where(eq(resonances.runId, id));
   expect(rows.length).toBe(n);
   expect(new Set(rows.map((r) => r.idx)).size).toBe(n);
-  const [images] = await h.db.select({ n: count() }).from(modeImages).innerJoin(resonances, eq(resonances.id, modeImages.resonanceId)).where(eq(resonances.runId, id));
+  const [images] = await h.db
+    .select({ n: count() })
+    .from(modeImages)
+    .innerJoin(resonances, eq(resonances.id, modeImages.resonanceId))
+    .where(eq(resonances.runId, id));
   expect(images!.n).toBe(2 * n);
   const [spectrum] = await h.db.select({ n: count() }).from(spectra).where(eq(spectra.runId, id));
   expect(spectrum!.n).toBe(1);
@@ -93,11 +105,19 @@ describe('the app under its supervisor (npm start)', () => {
     // The API answers at once: it does not depend on the worker.
     expect(await app.health()).toBe(200);
     expect((await designer.get(`/api/groups/${lab.groupId}/runs/${runId}`)).status).toBe(200);
-    await waitFor('the supervisor to log the death and the restart', async () => /worker 1 \(pid \d+\) stopped \(signal SIGKILL\) after [\d.]+ s; restarting in 0\.5 s/.test(app.output()), 30);
-    const second = await waitFor('a new worker process', async () => {
-      const pid = app.childPid('worker-main.ts');
-      return pid !== undefined && pid !== first && pid;
-    }, 30);
+    await waitFor(
+      'the supervisor to log the death and the restart',
+      async () => /worker 1 \(pid \d+\) stopped \(signal SIGKILL\) after [\d.]+ s; restarting in 0\.5 s/.test(app.output()),
+      30,
+    );
+    const second = await waitFor(
+      'a new worker process',
+      async () => {
+        const pid = app.childPid('worker-main.ts');
+        return pid !== undefined && pid !== first && pid;
+      },
+      30,
+    );
     expect(second).not.toBe(first);
     const done = await waitFinished(handle, runId);
     expect(done.status).toBe('completed');
@@ -135,7 +155,7 @@ describe('the app under its supervisor (npm start)', () => {
   }, 60_000);
 });
 
-describe('PostgreSQL restarted in the middle of a run (a server of the test\'s own)', () => {
+describe("PostgreSQL restarted in the middle of a run (a server of the test's own)", () => {
   let pg: ThrowawayPostgres;
   let handle: DbHandle;
   let app: AppProcess;

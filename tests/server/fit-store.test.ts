@@ -20,7 +20,17 @@ beforeAll(async () => {
   lab = await createLab(handle.db, ['designer']);
   const [trace] = await handle.db
     .insert(measuredTraces)
-    .values({ groupId: lab.groupId, deviceName: 'D1', fileName: 't.csv', temperatureMK: 20, content: '', columns: ['E', 'T'], selection: {}, energies: [1, 2, 3], transmission: [0.1, 0.5, 0.1] })
+    .values({
+      groupId: lab.groupId,
+      deviceName: 'D1',
+      fileName: 't.csv',
+      temperatureMK: 20,
+      content: '',
+      columns: ['E', 'T'],
+      selection: {},
+      energies: [1, 2, 3],
+      transmission: [0.1, 0.5, 0.1],
+    })
     .returning({ id: measuredTraces.id });
   traceId = trace!.id;
 });
@@ -29,7 +39,10 @@ afterAll(async () => handle?.close());
 /** A fit put straight into `status` (the test writes the row itself to reach every state). */
 async function fitIn(status: FitStatus) {
   const id = await fitStore.create(handle.db, { groupId: lab.groupId, traceId, request: {}, createdBy: lab.as('designer').id }, false);
-  await handle.db.update(peakFits).set({ status, attempt: status === 'queued' ? 0 : 1 }).where(eq(peakFits.id, id));
+  await handle.db
+    .update(peakFits)
+    .set({ status, attempt: status === 'queued' ? 0 : 1 })
+    .where(eq(peakFits.id, id));
   return rowOf(id);
 }
 

@@ -60,19 +60,72 @@ beforeAll(async () => {
   modelId = model!.id;
   const [version] = await db
     .insert(modelVersions)
-    .values({ modelId, groupId: lab.groupId, version: 1, document: { leads: [] }, family: 'rectangle', material: 'GaAs', effectiveMass: 0.067, spacingNm: 5, fieldT: 0, siteCount: 2400, leadCount: 2, hoppingMeV: 22.7, widthNm: 300, heightNm: 200, keyDimensions: { width: 300, height: 200 } })
+    .values({
+      modelId,
+      groupId: lab.groupId,
+      version: 1,
+      document: { leads: [] },
+      family: 'rectangle',
+      material: 'GaAs',
+      effectiveMass: 0.067,
+      spacingNm: 5,
+      fieldT: 0,
+      siteCount: 2400,
+      leadCount: 2,
+      hoppingMeV: 22.7,
+      widthNm: 300,
+      heightNm: 200,
+      keyDimensions: { width: 300, height: 200 },
+    })
     .returning();
-  const [run] = await db.insert(runs).values({ groupId: lab.groupId, modelVersionId: version!.id, kind: 'pole-search', status: 'completed', window: { emin: 3.2, emax: 3.3, gammaMax: 0.1 } }).returning();
+  const [run] = await db
+    .insert(runs)
+    .values({ groupId: lab.groupId, modelVersionId: version!.id, kind: 'pole-search', status: 'completed', window: { emin: 3.2, emax: 3.3, gammaMax: 0.1 } })
+    .returning();
   runId = run!.id;
   const [row] = await db
     .insert(resonances)
-    .values({ groupId: lab.groupId, runId, modelId, modelVersionId: version!.id, idx: 0, energy: pole.energy, width: pole.width, lifetimePs: 0.6582119569 / pole.width, quality: pole.energy / pole.width, partialWidths: [], petermann: pole.petermann, residual: 1e-12, bound: false, nearThreshold: false, overlapping: false, modelName: model!.name, modelVersion: 1, family: 'rectangle', material: 'GaAs', fieldT: 0, spacingNm: 5, widthNm: 300, heightNm: 200 })
+    .values({
+      groupId: lab.groupId,
+      runId,
+      modelId,
+      modelVersionId: version!.id,
+      idx: 0,
+      energy: pole.energy,
+      width: pole.width,
+      lifetimePs: 0.6582119569 / pole.width,
+      quality: pole.energy / pole.width,
+      partialWidths: [],
+      petermann: pole.petermann,
+      residual: 1e-12,
+      bound: false,
+      nearThreshold: false,
+      overlapping: false,
+      modelName: model!.name,
+      modelVersion: 1,
+      family: 'rectangle',
+      material: 'GaAs',
+      fieldT: 0,
+      spacingNm: 5,
+      widthNm: 300,
+      heightNm: 200,
+    })
     .returning({ id: resonances.id });
   poleId = row!.id;
   // A computed spectrum: a Breit–Wigner peak of the pole (T = 1 at E0) on 201 energies.
   const energies = Array.from({ length: 201 }, (_, i) => 3.2 + (0.1 * i) / 200);
-  const t = energies.map((e) => 1 / (1 + (2 * (e - pole.energy) / pole.width) ** 2));
-  await db.insert(spectra).values({ runId, groupId: lab.groupId, energies, pairs: [{ from: 0, to: 1 }, { from: 1, to: 0 }], transmission: [t, t], residual: energies.map(() => 0) });
+  const t = energies.map((e) => 1 / (1 + ((2 * (e - pole.energy)) / pole.width) ** 2));
+  await db.insert(spectra).values({
+    runId,
+    groupId: lab.groupId,
+    energies,
+    pairs: [
+      { from: 0, to: 1 },
+      { from: 1, to: 0 },
+    ],
+    transmission: [t, t],
+    residual: energies.map(() => 0),
+  });
   designer = await signInAs(app, lab.as('designer').email);
   viewer = await signInAs(app, lab.as('viewer').email);
 });
@@ -89,7 +142,14 @@ describe('measured traces', () => {
     const res = await upload(trace, 'hl-rect-r3-100mK.csv', { ...energyFields, notes: 'lock-in, 2 µV', modelId });
     expect(res.status, JSON.stringify(res.body)).toBe(201);
     traceId = res.body.id;
-    expect(res.body).toMatchObject({ deviceName: 'R3 cooldown 7', temperatureMK: 100, notes: 'lock-in, 2 µV', modelId, points: 241, createdBy: lab.as('designer').name });
+    expect(res.body).toMatchObject({
+      deviceName: 'R3 cooldown 7',
+      temperatureMK: 100,
+      notes: 'lock-in, 2 µV',
+      modelId,
+      points: 241,
+      createdBy: lab.as('designer').name,
+    });
     expect(res.body.columns).toEqual(['gate_mV', 'energy_ueV', 'G_uS']);
     // First data row of the file is line 5: energy 3180 µeV; G/(2e²/h) = T.
     const firstLine = trace.toString().split('\n')[4]!.split(',');
@@ -216,7 +276,7 @@ describe('measured traces', () => {
       expect(res.body.result.warnings.map((w: { code: string }) => w.code)).toContain('thermal_width');
     });
 
-    it('fits a range of a run\'s computed spectrum and refuses a range with too few points', async () => {
+    it("fits a range of a run's computed spectrum and refuses a range with too few points", async () => {
       const res = await designer.post(`/api/groups/${lab.groupId}/fits`, { source: { kind: 'run', runId, pair: 0, from: 3.21, to: 3.3 }, lineshape: 'bw' });
       expect(res.status, JSON.stringify(res.body)).toBe(201);
       const [peak] = res.body.result.peaks;
@@ -228,7 +288,13 @@ describe('measured traces', () => {
     });
 
     it('queues a large multi-peak fit; the worker computes it with progress and files it once even when run twice', async () => {
-      const res = await designer.post(`/api/groups/${lab.groupId}/fits`, { source: { kind: 'trace', traceId }, lineshape: 'thermal-fano', temperatureMK: 100, peaks: 3, background: 'linear' });
+      const res = await designer.post(`/api/groups/${lab.groupId}/fits`, {
+        source: { kind: 'trace', traceId },
+        lineshape: 'thermal-fano',
+        temperatureMK: 100,
+        peaks: 3,
+        background: 'linear',
+      });
       expect(res.status, JSON.stringify(res.body)).toBe(202);
       expect(res.body.status).toBe('queued');
       expect(queued).toContain(res.body.id);
@@ -247,8 +313,14 @@ describe('measured traces', () => {
       expect(fitRow!.attempt).toBe(1);
     });
 
-    it('streams a queued fit\'s status and progress as server-sent events until it is done', async () => {
-      const res = await designer.post(`/api/groups/${lab.groupId}/fits`, { source: { kind: 'trace', traceId }, lineshape: 'thermal-fano', temperatureMK: 100, peaks: 3, background: 'linear' });
+    it("streams a queued fit's status and progress as server-sent events until it is done", async () => {
+      const res = await designer.post(`/api/groups/${lab.groupId}/fits`, {
+        source: { kind: 'trace', traceId },
+        lineshape: 'thermal-fano',
+        temperatureMK: 100,
+        peaks: 3,
+        background: 'linear',
+      });
       expect(res.status, JSON.stringify(res.body)).toBe(202);
       const fit = res.body.id as string;
       let opened!: () => void;
@@ -273,7 +345,10 @@ describe('measured traces', () => {
       const events = (answer.body as string)
         .split('\n\n')
         .filter((block) => block.startsWith('event: '))
-        .map((block) => ({ name: block.split('\n')[0]!.slice(7), data: JSON.parse(block.split('\n')[1]!.slice(6)) as { status: string; progressFraction: number | null } }));
+        .map((block) => ({
+          name: block.split('\n')[0]!.slice(7),
+          data: JSON.parse(block.split('\n')[1]!.slice(6)) as { status: string; progressFraction: number | null },
+        }));
       const statuses = events.filter((e) => e.name === 'progress').map((e) => e.data.status);
       expect(statuses[0]).toBe('queued');
       expect(statuses).toContain('running');
@@ -282,7 +357,7 @@ describe('measured traces', () => {
       expect(events.at(-1)).toEqual({ name: 'done', data: { status: 'completed' } });
     });
 
-    it('answers 404 to the event stream of a fit that is not the group\'s', async () => {
+    it("answers 404 to the event stream of a fit that is not the group's", async () => {
       const other = await viewer.get(`/api/groups/${lab.groupId}/fits/00000000-0000-4000-8000-000000000000/events`);
       expect(other.status).toBe(404);
     });
@@ -291,7 +366,13 @@ describe('measured traces', () => {
       const boss = await startBoss({ databaseUrl: testDatabaseUrl() });
       try {
         const db = app.handle.db;
-        const res = await designer.post(`/api/groups/${lab.groupId}/fits`, { source: { kind: 'trace', traceId }, lineshape: 'thermal-fano', temperatureMK: 100, peaks: 3, background: 'linear' });
+        const res = await designer.post(`/api/groups/${lab.groupId}/fits`, {
+          source: { kind: 'trace', traceId },
+          lineshape: 'thermal-fano',
+          temperatureMK: 100,
+          peaks: 3,
+          background: 'linear',
+        });
         expect(res.status, JSON.stringify(res.body)).toBe(202);
         const fit = res.body.id as string;
         // Queued on the real peak-fit queue, and fetched by a worker that then dies mid-fit:
@@ -300,9 +381,18 @@ describe('measured traces', () => {
         await db.update(peakFits).set({ jobId }).where(eq(peakFits.id, fit));
         const [fetched] = await boss.fetch(FIT_QUEUE.name, { batchSize: 10 });
         expect(fetched).toBeDefined();
-        await db.update(peakFits).set({ status: 'running', attempt: 1, progressFraction: 0.3, heartbeatAt: new Date(Date.now() - 60_000) }).where(eq(peakFits.id, fit));
+        await db
+          .update(peakFits)
+          .set({ status: 'running', attempt: 1, progressFraction: 0.3, heartbeatAt: new Date(Date.now() - 60_000) })
+          .where(eq(peakFits.id, fit));
         // A fit of the same group whose worker beats its heartbeat is left alone.
-        const alive = await designer.post(`/api/groups/${lab.groupId}/fits`, { source: { kind: 'trace', traceId }, lineshape: 'thermal-fano', temperatureMK: 100, peaks: 3, background: 'linear' });
+        const alive = await designer.post(`/api/groups/${lab.groupId}/fits`, {
+          source: { kind: 'trace', traceId },
+          lineshape: 'thermal-fano',
+          temperatureMK: 100,
+          peaks: 3,
+          background: 'linear',
+        });
         await db.update(peakFits).set({ status: 'running', attempt: 1, heartbeatAt: new Date() }).where(eq(peakFits.id, alive.body.id));
 
         const report = await superviseFits({ db, boss, staleAfterSeconds: 30, groupId: lab.groupId });

@@ -48,7 +48,7 @@ describe('group scoping', () => {
     expect(notUuid.body).toEqual(foreign.body);
   });
 
-  it("cannot change, remove or invite in another group even as an admin elsewhere", async () => {
+  it('cannot change, remove or invite in another group even as an admin elsewhere', async () => {
     const viewerB = labB.as('viewer').id;
     expect((await adminA.patch(`/api/groups/${labB.groupId}/members/${viewerB}`, { role: 'admin' })).status).toBe(404);
     expect((await adminA.delete(`/api/groups/${labB.groupId}/members/${viewerB}`)).status).toBe(404);
@@ -81,7 +81,13 @@ describe('roles', () => {
       const patch = await me.patch(`/api/groups/${labA.groupId}/members/${labA.as('viewer').id}`, { role: 'designer' });
       expect(patch.status, role).toBe(403);
     }
-    const members = (await adminA.get(`/api/groups/${labA.groupId}/members`)).body as { userId: string; role: string; email: string; name: string; joinedAt: string }[];
+    const members = (await adminA.get(`/api/groups/${labA.groupId}/members`)).body as {
+      userId: string;
+      role: string;
+      email: string;
+      name: string;
+      joinedAt: string;
+    }[];
     expect(members.find((m) => m.userId === labA.as('viewer').id)).toEqual({
       userId: labA.as('viewer').id,
       email: labA.as('viewer').email,

@@ -53,11 +53,14 @@ function normalised(archive: Buffer): string[] {
 }
 
 async function download(user: SignedIn, lab: Lab, members = false): Promise<Buffer> {
-  const res = await user.get(`/api/groups/${lab.groupId}/backup?members=${members}`).buffer(true).parse((r, cb) => {
-    const chunks: Buffer[] = [];
-    r.on('data', (c: Buffer) => chunks.push(c));
-    r.on('end', () => cb(null, Buffer.concat(chunks)));
-  });
+  const res = await user
+    .get(`/api/groups/${lab.groupId}/backup?members=${members}`)
+    .buffer(true)
+    .parse((r, cb) => {
+      const chunks: Buffer[] = [];
+      r.on('data', (c: Buffer) => chunks.push(c));
+      r.on('end', () => cb(null, Buffer.concat(chunks)));
+    });
   expect(res.status).toBe(200);
   expect(res.headers['content-type']).toBe('application/gzip');
   expect(res.headers['content-disposition']).toMatch(/attachment; filename="poleward-fixture-[0-9a-f]+-\d{4}-\d\d-\d\d\.jsonl\.gz"/);
@@ -78,7 +81,11 @@ async function groupRowCounts(groupId: string) {
   const [s] = await app.handle.db.select({ n: count() }).from(resonances).where(eq(resonances.groupId, groupId));
   const [t] = await app.handle.db.select({ n: count() }).from(measuredTraces).where(eq(measuredTraces.groupId, groupId));
   const [f] = await app.handle.db.select({ n: count() }).from(peakFits).where(eq(peakFits.groupId, groupId));
-  const [c] = await app.handle.db.select({ n: count() }).from(resonanceCurrents).innerJoin(resonances, eq(resonances.id, resonanceCurrents.resonanceId)).where(eq(resonances.groupId, groupId));
+  const [c] = await app.handle.db
+    .select({ n: count() })
+    .from(resonanceCurrents)
+    .innerJoin(resonances, eq(resonances.id, resonanceCurrents.resonanceId))
+    .where(eq(resonances.groupId, groupId));
   const [k] = await app.handle.db.select({ n: count() }).from(modeMaps).where(eq(modeMaps.groupId, groupId));
   return { models: m!.n, runs: r!.n, resonances: s!.n, traces: t!.n, fits: f!.n, currents: c!.n, maps: k!.n };
 }
@@ -96,14 +103,23 @@ beforeAll(async () => {
   const models = new ModelService(db, inlineCompute);
   const runService = new RunService(db, recordingQueue(), inlineCompute);
   const a = await models.create(source.groupId, designer, smallRectangle('Backup dot A'));
-  await models.update(source.groupId, designer, a.id, smallRectangle('Backup dot A', {
+  await models.update(
+    source.groupId,
+    designer,
+    a.id,
+    smallRectangle('Backup dot A', {
       leads: [
         { side: 'left', start: 6, width: 8, name: 'source' },
         { side: 'right', start: 6, width: 8, name: 'drain' },
       ],
-    }));
+    }),
+  );
   const b = await models.create(source.groupId, designer, smallRectangle('Backup dot B'));
-  for (const [modelId, version] of [[a.id, 1], [a.id, 2], [b.id, 1]] as const) {
+  for (const [modelId, version] of [
+    [a.id, 1],
+    [a.id, 2],
+    [b.id, 1],
+  ] as const) {
     const run = await runService.create(source.groupId, designer, { kind: 'pole-search', modelId, version, window: smallWindow });
     await handleRunJob({ db, compute: async () => reference }, { runId: run.id, retryCount: 0, retryLimit: 3 });
   }
@@ -131,7 +147,11 @@ beforeAll(async () => {
     .field('modelId', a.id)
     .attach('file', traceFile, { filename: 'dot-a-100mK.csv', contentType: 'text/csv' });
   expect(trace.status, JSON.stringify(trace.body)).toBe(201);
-  const fit = await member.post(`/api/groups/${source.groupId}/fits`, { source: { kind: 'trace', traceId: trace.body.id }, lineshape: 'thermal', temperatureMK: 100 });
+  const fit = await member.post(`/api/groups/${source.groupId}/fits`, {
+    source: { kind: 'trace', traceId: trace.body.id },
+    lineshape: 'thermal',
+    temperatureMK: 100,
+  });
   expect(fit.status, JSON.stringify(fit.body)).toBe(201);
   expect(fit.body.catalogueIds).toHaveLength(1);
 
@@ -153,10 +173,27 @@ describe('group backup and restore', () => {
     const archive = await download(sourceAdmin, source);
     const before = lines(archive);
     expect(JSON.parse(before[0]!)).toMatchObject({ type: 'header', format: 'poleward-group-backup', version: 2 });
-    expect(JSON.parse(before.at(-1)!)).toMatchObject({ type: 'end', counts: { model: 2, modelVersion: 3, run: 4, spectrum: 3, resonance: 3 * reference.poles.length, mode: 3 * reference.poles.length, modeImage: 6 * reference.poles.length } });
+    expect(JSON.parse(before.at(-1)!)).toMatchObject({
+      type: 'end',
+      counts: {
+        model: 2,
+        modelVersion: 3,
+        run: 4,
+        spectrum: 3,
+        resonance: 3 * reference.poles.length,
+        mode: 3 * reference.poles.length,
+        modeImage: 6 * reference.poles.length,
+      },
+    });
     const poleCurrents = reference.poles.filter((p) => p.current).length;
     expect(poleCurrents).toBe(reference.poles.length);
-    expect(JSON.parse(before.at(-1)!).counts).toMatchObject({ measuredTrace: 1, peakFit: 1, fittedResonance: 1, resonanceCurrent: 3 * poleCurrents, modeMap: 1 });
+    expect(JSON.parse(before.at(-1)!).counts).toMatchObject({
+      measuredTrace: 1,
+      peakFit: 1,
+      fittedResonance: 1,
+      resonanceCurrent: 3 * poleCurrents,
+      modeMap: 1,
+    });
     // Only the completed map: the one still queued is asked for again after a restore.
     expect(before.some((l) => l.includes(completedMapId))).toBe(true);
     expect(before.some((l) => l.includes(queuedMapId))).toBe(false);
@@ -172,7 +209,17 @@ describe('group backup and restore', () => {
     }
     const res = await restore(targetAdmin, target, archive);
     expect(res.status).toBe(201);
-    expect(res.body.restored).toMatchObject({ models: 2, modelVersions: 3, runs: 4, resonances: 3 * reference.poles.length, measuredTrace: 1, peakFit: 1, fittedResonance: 1, resonanceCurrent: 3 * poleCurrents, modeMap: 1 });
+    expect(res.body.restored).toMatchObject({
+      models: 2,
+      modelVersions: 3,
+      runs: 4,
+      resonances: 3 * reference.poles.length,
+      measuredTrace: 1,
+      peakFit: 1,
+      fittedResonance: 1,
+      resonanceCurrent: 3 * poleCurrents,
+      modeMap: 1,
+    });
     // Row by row in the database too: the same counts, but for the queued map left out.
     expect(await groupRowCounts(target.groupId)).toEqual({ ...(await groupRowCounts(source.groupId)), maps: 1 });
     // The derived figures stored with each version are not in the archive: the restore
@@ -200,8 +247,14 @@ describe('group backup and restore', () => {
     expect(restoredQueued.status).toBe('cancelled');
     expect(restoredQueued.error).toMatch(/unfinished when the group was backed up/);
     // New ids: nothing of the source's ids is in the restored group.
-    const sourceIds = new Set(lines(archive).slice(1).flatMap((l) => l.match(uuid) ?? []));
-    const targetIds = lines(again).slice(1).flatMap((l) => l.match(uuid) ?? []);
+    const sourceIds = new Set(
+      lines(archive)
+        .slice(1)
+        .flatMap((l) => l.match(uuid) ?? []),
+    );
+    const targetIds = lines(again)
+      .slice(1)
+      .flatMap((l) => l.match(uuid) ?? []);
     expect(targetIds.some((id) => sourceIds.has(id))).toBe(false);
 
     // The restored catalogue answers like the source's, tags and notes included.
@@ -235,7 +288,10 @@ describe('group backup and restore', () => {
     const map = restoredLines.find((r) => r.type === 'modeMap');
     const current = await targetAdmin.get(`/api/groups/${target.groupId}/resonances/${map.resonanceId}/current`);
     expect(current.status).toBe(200);
-    const asked = await new ModeMapService(app.handle.db, mapQueue).create(target.groupId, target.as('admin').id, { resonanceId: map.resonanceId, husimi: null });
+    const asked = await new ModeMapService(app.handle.db, mapQueue).create(target.groupId, target.as('admin').id, {
+      resonanceId: map.resonanceId,
+      husimi: null,
+    });
     expect(asked.created).toBe(false);
     expect(asked.view.status).toBe('completed');
   });
@@ -324,7 +380,12 @@ describe('group backup and restore', () => {
     short[currentAt] = JSON.stringify({ ...current, vectors: Buffer.from(current.vectors, 'base64').subarray(8).toString('base64') });
     const res2 = await restore(admin, empty, gzipSync(short.join('\n')));
     expect(res2.status).toBe(400);
-    expect(res2.body.issues).toEqual([{ path: `resonanceCurrent of resonance ${current.resonanceId} vectors`, message: expect.stringMatching(/must hold a float32 pair for each of the mask's \d+ sites/) }]);
+    expect(res2.body.issues).toEqual([
+      {
+        path: `resonanceCurrent of resonance ${current.resonanceId} vectors`,
+        message: expect.stringMatching(/must hold a float32 pair for each of the mask's \d+ sites/),
+      },
+    ]);
 
     expect(await groupRowCounts(empty.groupId)).toEqual({ models: 0, runs: 0, resonances: 0, traces: 0, fits: 0, currents: 0, maps: 0 });
   });

@@ -79,7 +79,11 @@ describe('database outage', () => {
 
   it('tells an outage from a bad query', () => {
     expect(isDatabaseOutage(Object.assign(new Error('connect ECONNREFUSED 127.0.0.1:9'), { code: 'ECONNREFUSED' }))).toBe(true);
-    expect(isDatabaseOutage(new Error('Failed query', { cause: Object.assign(new Error('terminating connection due to administrator command'), { code: '57P01' }) }))).toBe(true);
+    expect(
+      isDatabaseOutage(
+        new Error('Failed query', { cause: Object.assign(new Error('terminating connection due to administrator command'), { code: '57P01' }) }),
+      ),
+    ).toBe(true);
     expect(isDatabaseOutage(new Error('Connection terminated unexpectedly'))).toBe(true);
     expect(isDatabaseOutage(Object.assign(new Error('duplicate key value violates unique constraint'), { code: '23505' }))).toBe(false);
     expect(isDatabaseOutage(new TypeError('x is undefined'))).toBe(false);
@@ -103,9 +107,14 @@ describe('bind address', () => {
     expect(() => loadConfig({ ...secret, POLEWARD_TRUST_PROXY: 'everyone' })).toThrow(/POLEWARD_TRUST_PROXY/);
     // Without a trusted proxy a forged X-Forwarded-For does not change the address the limits count.
     const lab = await createLab(app.handle.db, ['viewer']);
-    const forged = await request(app.server).post('/api/auth/sign-in').set('X-Forwarded-For', '198.51.100.9').send({ email: lab.as('viewer').email, password: 'wrong-password' });
+    const forged = await request(app.server)
+      .post('/api/auth/sign-in')
+      .set('X-Forwarded-For', '198.51.100.9')
+      .send({ email: lab.as('viewer').email, password: 'wrong-password' });
     expect(forged.status).toBe(401);
-    const { rows } = await app.handle.pool.query("select details from audit_log where account_id = $1 and action = 'auth.sign_in_failed'", [lab.as('viewer').id]);
+    const { rows } = await app.handle.pool.query("select details from audit_log where account_id = $1 and action = 'auth.sign_in_failed'", [
+      lab.as('viewer').id,
+    ]);
     expect(rows[0].details.ip).not.toBe('198.51.100.9');
   });
 });

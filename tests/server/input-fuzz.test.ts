@@ -54,7 +54,19 @@ afterAll(async () => {
 
 /** Rows of every table a request could write, to check that a refused one wrote nothing. */
 async function tableCounts(): Promise<Record<string, number>> {
-  const tables = ['cavity_models', 'model_versions', 'runs', 'invitations', 'memberships', 'users', 'research_groups', 'resonances', 'resonance_fabrication', 'resonance_comments', 'notifications'];
+  const tables = [
+    'cavity_models',
+    'model_versions',
+    'runs',
+    'invitations',
+    'memberships',
+    'users',
+    'research_groups',
+    'resonances',
+    'resonance_fabrication',
+    'resonance_comments',
+    'notifications',
+  ];
   const out: Record<string, number> = {};
   for (const t of tables) {
     const r = await app.handle.db.execute(sql.raw(`select count(*)::int as n from ${t}`));
@@ -118,13 +130,22 @@ const documentBodies: fc.Arbitrary<unknown> = fc.oneof(
 );
 
 const queryStrings = (keys: string[]) =>
-  fc.dictionary(fc.oneof(fc.constantFrom(...keys), fc.string({ maxLength: 8 })), fc.oneof(fc.string({ maxLength: 40 }), fc.constantFrom('-1', '0', '1e309', 'NaN', '99999999999', "' or 1=1 --", '%', '[]')), { maxKeys: 4 });
+  fc.dictionary(
+    fc.oneof(fc.constantFrom(...keys), fc.string({ maxLength: 8 })),
+    fc.oneof(fc.string({ maxLength: 40 }), fc.constantFrom('-1', '0', '1e309', 'NaN', '99999999999', "' or 1=1 --", '%', '[]')),
+    { maxKeys: 4 },
+  );
 
 const uuidOrJunk = fc.oneof(fc.uuid(), fc.string({ maxLength: 40 }).map(encodeURIComponent));
 
 describe('fuzzed input never gets a 5xx or a half-stored object', () => {
   const g = () => `/api/groups/${lab.groupId}`;
-  const post = (who: SignedIn, url: string, body: unknown) => who.agent.post(url).set('X-CSRF-Token', who.csrf).set('Content-Type', 'application/json').send(JSON.stringify(body) ?? 'null');
+  const post = (who: SignedIn, url: string, body: unknown) =>
+    who.agent
+      .post(url)
+      .set('X-CSRF-Token', who.csrf)
+      .set('Content-Type', 'application/json')
+      .send(JSON.stringify(body) ?? 'null');
 
   const jsonRoutes: { name: string; who: () => SignedIn; send: (body: unknown) => Promise<Answer>; bodies: fc.Arbitrary<unknown> }[] = [
     { name: 'POST models', who: () => designer, send: (b) => post(designer, `${g()}/models`, b), bodies: documentBodies },
@@ -132,22 +153,50 @@ describe('fuzzed input never gets a 5xx or a half-stored object', () => {
     {
       name: 'PUT models/:id',
       who: () => designer,
-      send: (b) => designer.agent.put(`${g()}/models/${modelId}`).set('X-CSRF-Token', designer.csrf).set('Content-Type', 'application/json').send(JSON.stringify(b) ?? 'null'),
+      send: (b) =>
+        designer.agent
+          .put(`${g()}/models/${modelId}`)
+          .set('X-CSRF-Token', designer.csrf)
+          .set('Content-Type', 'application/json')
+          .send(JSON.stringify(b) ?? 'null'),
       bodies: documentBodies,
     },
     {
       name: 'POST runs/estimate',
       who: () => designer,
       send: (b) => post(designer, `${g()}/runs/estimate`, b),
-      bodies: fc.oneof(mutate({ kind: 'pole-search', modelId: '', window: smallWindow }).map((b) => (b && typeof b === 'object' && !Array.isArray(b) && (b as { modelId?: unknown }).modelId === '' ? { ...b, modelId } : b)), fc.record({ kind: fc.constant('transmission'), modelId: fc.constant('M'), window: mutate({ emin: 1, emax: 5, points: 100 }) }).map((b) => ({ ...b, modelId }))),
+      bodies: fc.oneof(
+        mutate({ kind: 'pole-search', modelId: '', window: smallWindow }).map((b) =>
+          b && typeof b === 'object' && !Array.isArray(b) && (b as { modelId?: unknown }).modelId === '' ? { ...b, modelId } : b,
+        ),
+        fc
+          .record({ kind: fc.constant('transmission'), modelId: fc.constant('M'), window: mutate({ emin: 1, emax: 5, points: 100 }) })
+          .map((b) => ({ ...b, modelId })),
+      ),
     },
     {
       name: 'POST runs',
       who: () => designer,
       send: (b) => post(designer, `${g()}/runs`, b),
-      bodies: fc.record({ kind: fc.constantFrom('pole-search', 'transmission', 'x'), window: mutate(smallWindow), note: fc.option(fc.string({ maxLength: 3000 }), { nil: undefined }) }).map((b) => ({ ...b, modelId })),
+      bodies: fc
+        .record({
+          kind: fc.constantFrom('pole-search', 'transmission', 'x'),
+          window: mutate(smallWindow),
+          note: fc.option(fc.string({ maxLength: 3000 }), { nil: undefined }),
+        })
+        .map((b) => ({ ...b, modelId })),
     },
-    { name: 'PATCH resonances/:id (tags, notes)', who: () => designer, send: (b) => designer.agent.patch(`${g()}/resonances/${randomUUID()}`).set('X-CSRF-Token', designer.csrf).set('Content-Type', 'application/json').send(JSON.stringify(b) ?? 'null'), bodies: mutate({ tags: ['a'], notes: 'n' }) },
+    {
+      name: 'PATCH resonances/:id (tags, notes)',
+      who: () => designer,
+      send: (b) =>
+        designer.agent
+          .patch(`${g()}/resonances/${randomUUID()}`)
+          .set('X-CSRF-Token', designer.csrf)
+          .set('Content-Type', 'application/json')
+          .send(JSON.stringify(b) ?? 'null'),
+      bodies: mutate({ tags: ['a'], notes: 'n' }),
+    },
     {
       name: 'POST resonances/:id/fabrication',
       who: () => designer,
@@ -158,34 +207,113 @@ describe('fuzzed input never gets a 5xx or a half-stored object', () => {
         mutate({ action: 'send', batch: 'w' }),
       ),
     },
-    { name: 'POST resonances/:id/comments', who: () => designer, send: (b) => post(designer, `${g()}/resonances/${randomUUID()}/comments`, b), bodies: mutate({ body: 'x', mentions: [randomUUID()] }) },
+    {
+      name: 'POST resonances/:id/comments',
+      who: () => designer,
+      send: (b) => post(designer, `${g()}/resonances/${randomUUID()}/comments`, b),
+      bodies: mutate({ body: 'x', mentions: [randomUUID()] }),
+    },
     {
       name: 'PUT account/notifications',
       who: () => designer,
-      send: (b) => designer.agent.put('/api/account/notifications').set('X-CSRF-Token', designer.csrf).set('Content-Type', 'application/json').send(JSON.stringify(b) ?? 'null'),
+      send: (b) =>
+        designer.agent
+          .put('/api/account/notifications')
+          .set('X-CSRF-Token', designer.csrf)
+          .set('Content-Type', 'application/json')
+          .send(JSON.stringify(b) ?? 'null'),
       bodies: fc.oneof(mutate({ enabled: { mentioned: false } }), fc.record({ enabled: mutate({ candidate_proposed: true, run_finished: false }) })),
     },
-    { name: 'POST groups/:id/invitations', who: () => admin, send: (b) => post(admin, `${g()}/invitations`, b), bodies: mutate({ email: 'someone@fixture.example', role: 'viewer' }).filter((b) => !(b && typeof b === 'object' && (b as { email?: unknown }).email === 'someone@fixture.example')) },
-    { name: 'PATCH groups/:id/members/:userId', who: () => admin, send: (b) => admin.agent.patch(`${g()}/members/${randomUUID()}`).set('X-CSRF-Token', admin.csrf).set('Content-Type', 'application/json').send(JSON.stringify(b) ?? 'null'), bodies: mutate({ role: 'viewer' }) },
-    { name: 'POST tokens', who: () => designer, send: (b) => post(designer, '/api/tokens', b), bodies: mutate({ name: 'x' }).filter((b) => !(b && typeof b === 'object' && typeof (b as { name?: unknown }).name === 'string')) },
-    { name: 'PATCH account (name)', who: () => designer, send: (b) => designer.agent.patch('/api/account').set('X-CSRF-Token', designer.csrf).set('Content-Type', 'application/json').send(JSON.stringify(b) ?? 'null'), bodies: mutate({ name: 'Fuzzed Name' }) },
+    {
+      name: 'POST groups/:id/invitations',
+      who: () => admin,
+      send: (b) => post(admin, `${g()}/invitations`, b),
+      bodies: mutate({ email: 'someone@fixture.example', role: 'viewer' }).filter(
+        (b) => !(b && typeof b === 'object' && (b as { email?: unknown }).email === 'someone@fixture.example'),
+      ),
+    },
+    {
+      name: 'PATCH groups/:id/members/:userId',
+      who: () => admin,
+      send: (b) =>
+        admin.agent
+          .patch(`${g()}/members/${randomUUID()}`)
+          .set('X-CSRF-Token', admin.csrf)
+          .set('Content-Type', 'application/json')
+          .send(JSON.stringify(b) ?? 'null'),
+      bodies: mutate({ role: 'viewer' }),
+    },
+    {
+      name: 'POST tokens',
+      who: () => designer,
+      send: (b) => post(designer, '/api/tokens', b),
+      bodies: mutate({ name: 'x' }).filter((b) => !(b && typeof b === 'object' && typeof (b as { name?: unknown }).name === 'string')),
+    },
+    {
+      name: 'PATCH account (name)',
+      who: () => designer,
+      send: (b) =>
+        designer.agent
+          .patch('/api/account')
+          .set('X-CSRF-Token', designer.csrf)
+          .set('Content-Type', 'application/json')
+          .send(JSON.stringify(b) ?? 'null'),
+      bodies: mutate({ name: 'Fuzzed Name' }),
+    },
     // The current password is never the right one, so no fuzzed body changes it.
-    { name: 'POST account/password', who: () => designer, send: (b) => post(designer, '/api/account/password', b), bodies: mutate({ currentPassword: 'not-the-password', newPassword: 'a-new-password-123' }) },
-    { name: 'POST auth/sign-in', who: () => designer, send: (b) => request(app.server).post('/api/auth/sign-in').set('Content-Type', 'application/json').send(JSON.stringify(b) ?? 'null'), bodies: mutate({ email: 'nobody@fixture.example', password: 'wrong' }) },
-    { name: 'POST auth/password-reset/confirm', who: () => designer, send: (b) => request(app.server).post('/api/auth/password-reset/confirm').set('Content-Type', 'application/json').send(JSON.stringify(b) ?? 'null'), bodies: mutate({ token: 'not-a-token', password: 'a-new-password-123' }) },
-    { name: 'POST invitations/:token/accept', who: () => designer, send: (b) => request(app.server).post(`/api/invitations/${randomUUID()}/accept`).set('Content-Type', 'application/json').send(JSON.stringify(b) ?? 'null'), bodies: mutate({ name: 'N', password: 'a-new-password-123' }) },
+    {
+      name: 'POST account/password',
+      who: () => designer,
+      send: (b) => post(designer, '/api/account/password', b),
+      bodies: mutate({ currentPassword: 'not-the-password', newPassword: 'a-new-password-123' }),
+    },
+    {
+      name: 'POST auth/sign-in',
+      who: () => designer,
+      send: (b) =>
+        request(app.server)
+          .post('/api/auth/sign-in')
+          .set('Content-Type', 'application/json')
+          .send(JSON.stringify(b) ?? 'null'),
+      bodies: mutate({ email: 'nobody@fixture.example', password: 'wrong' }),
+    },
+    {
+      name: 'POST auth/password-reset/confirm',
+      who: () => designer,
+      send: (b) =>
+        request(app.server)
+          .post('/api/auth/password-reset/confirm')
+          .set('Content-Type', 'application/json')
+          .send(JSON.stringify(b) ?? 'null'),
+      bodies: mutate({ token: 'not-a-token', password: 'a-new-password-123' }),
+    },
+    {
+      name: 'POST invitations/:token/accept',
+      who: () => designer,
+      send: (b) =>
+        request(app.server)
+          .post(`/api/invitations/${randomUUID()}/accept`)
+          .set('Content-Type', 'application/json')
+          .send(JSON.stringify(b) ?? 'null'),
+      bodies: mutate({ name: 'N', password: 'a-new-password-123' }),
+    },
   ];
 
   for (const route of jsonRoutes) {
     it(`${route.name}: any JSON body`, async () => {
-      await fc.assert(fc.asyncProperty(route.bodies, (body) => checkAnswer(`${route.name} ${JSON.stringify(body)?.slice(0, 200)}`, () => route.send(body))), { numRuns: RUNS });
+      await fc.assert(
+        fc.asyncProperty(route.bodies, (body) => checkAnswer(`${route.name} ${JSON.stringify(body)?.slice(0, 200)}`, () => route.send(body))),
+        { numRuns: RUNS },
+      );
     });
   }
 
   it('bodies that are not JSON at all', async () => {
     await fc.assert(
       fc.asyncProperty(fc.string({ maxLength: 200 }), fc.constantFrom('/models', '/models/validate', '/runs', '/runs/estimate'), (text, path) =>
-        checkAnswer(`POST ${path} raw ${text.slice(0, 50)}`, () => designer.agent.post(`${g()}${path}`).set('X-CSRF-Token', designer.csrf).set('Content-Type', 'application/json').send(text)),
+        checkAnswer(`POST ${path} raw ${text.slice(0, 50)}`, () =>
+          designer.agent.post(`${g()}${path}`).set('X-CSRF-Token', designer.csrf).set('Content-Type', 'application/json').send(text),
+        ),
       ),
       { numRuns: RUNS },
     );
@@ -195,7 +323,10 @@ describe('fuzzed input never gets a 5xx or a half-stored object', () => {
     const targets: [string, string[]][] = [
       ['/models', ['search', 'family', 'page', 'pageSize']],
       ['/runs', ['status', 'kind', 'modelId', 'page', 'pageSize']],
-      ['/catalogue', ['q', 'page', 'pageSize', 'sort', 'dir', 'qmin', 'qmax', 'emin', 'emax', 'gmin', 'taumax', 'dim.width.min', 'family', 'material', 'tags', 'bound']],
+      [
+        '/catalogue',
+        ['q', 'page', 'pageSize', 'sort', 'dir', 'qmin', 'qmax', 'emin', 'emax', 'gmin', 'taumax', 'dim.width.min', 'family', 'material', 'tags', 'bound'],
+      ],
       ['/catalogue/export.csv', ['q', 'family', 'tags', 'emin', 'emax', 'sort']],
       ['/catalogue/export.json', ['q', 'family', 'tags', 'emin', 'emax', 'bound']],
       ['/activity', ['limit']],
@@ -221,18 +352,28 @@ describe('fuzzed input never gets a 5xx or a half-stored object', () => {
   });
 
   it('uploads of drawings: any bytes, any field names, any numbers', async () => {
-    const fields = fc.dictionary(fc.oneof(fc.constantFrom('spacingNm', 'widthNm'), fc.string({ minLength: 1, maxLength: 8 })), fc.oneof(fc.constantFrom('5', '400', '0', '-1', '1e9', 'x', ''), fc.string({ maxLength: 20 })), { maxKeys: 4 });
+    const fields = fc.dictionary(
+      fc.oneof(fc.constantFrom('spacingNm', 'widthNm'), fc.string({ minLength: 1, maxLength: 8 })),
+      fc.oneof(fc.constantFrom('5', '400', '0', '-1', '1e9', 'x', ''), fc.string({ maxLength: 20 })),
+      { maxKeys: 4 },
+    );
     await fc.assert(
-      fc.asyncProperty(fc.uint8Array({ maxLength: 2000 }), fc.constantFrom('file', 'drawing', 'file[]'), fields, fc.boolean(), async (bytes, field, extra, withSignature) => {
-        // Half the time the bytes start like a PNG, so the header parser sees odd headers.
-        const head = withSignature ? Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a, 0, 0, 0, 13, 0x49, 0x48, 0x44, 0x52]) : Buffer.alloc(0);
-        const file = Buffer.concat([head, Buffer.from(bytes)]);
-        return checkAnswer(`upload ${field} ${file.length} bytes ${JSON.stringify(extra)}`, () => {
-          let req = designer.agent.post(`${g()}/models/mask-from-bitmap`).set('X-CSRF-Token', designer.csrf);
-          for (const [k, v] of Object.entries(extra)) req = req.field(k, v);
-          return req.attach(field, file, 'drawing.png');
-        });
-      }),
+      fc.asyncProperty(
+        fc.uint8Array({ maxLength: 2000 }),
+        fc.constantFrom('file', 'drawing', 'file[]'),
+        fields,
+        fc.boolean(),
+        async (bytes, field, extra, withSignature) => {
+          // Half the time the bytes start like a PNG, so the header parser sees odd headers.
+          const head = withSignature ? Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a, 0, 0, 0, 13, 0x49, 0x48, 0x44, 0x52]) : Buffer.alloc(0);
+          const file = Buffer.concat([head, Buffer.from(bytes)]);
+          return checkAnswer(`upload ${field} ${file.length} bytes ${JSON.stringify(extra)}`, () => {
+            let req = designer.agent.post(`${g()}/models/mask-from-bitmap`).set('X-CSRF-Token', designer.csrf);
+            for (const [k, v] of Object.entries(extra)) req = req.field(k, v);
+            return req.attach(field, file, 'drawing.png');
+          });
+        },
+      ),
       { numRuns: RUNS * 2 },
     );
   });

@@ -62,8 +62,13 @@ const largest = () =>
 
 describe('model documents are capped before geometry work (defects 2 and 6)', () => {
   it('a viewer validating a 20,000-vertex polygon gets a 400 naming the vertices and the limit', async () => {
-    const vertices = Array.from({ length: 20_000 }, (_, k) => [1250 + 1200 * Math.cos((2 * Math.PI * k) / 20_000), 1250 + 1200 * Math.sin((2 * Math.PI * k) / 20_000)]);
-    const res = await viewer.post(`${models()}/validate`, { document: smallRectangle('Polygon', { grid: { nx: 500, ny: 500 }, shape: { kind: 'polygon', vertices }, leads: [] }) });
+    const vertices = Array.from({ length: 20_000 }, (_, k) => [
+      1250 + 1200 * Math.cos((2 * Math.PI * k) / 20_000),
+      1250 + 1200 * Math.sin((2 * Math.PI * k) / 20_000),
+    ]);
+    const res = await viewer.post(`${models()}/validate`, {
+      document: smallRectangle('Polygon', { grid: { nx: 500, ny: 500 }, shape: { kind: 'polygon', vertices }, leads: [] }),
+    });
     expect(res.status).toBe(400);
     expect(res.body.issues[0].path).toBe('document.shape.vertices');
     expect(res.body.message).toMatch(/20000 vertices, above the limit of 4096/);
@@ -97,9 +102,9 @@ describe('model documents are capped before geometry work (defects 2 and 6)', ()
     const delay = monitorEventLoopDelay({ resolution: 10 });
     const healthTimes: number[] = [];
     let heavyDone = false;
-    const heavy = Promise.all(
-      [0, 1].map(() => designer.post(`${runsUrl()}/estimate`, { kind: 'pole-search', modelId: model.body.id, window })),
-    ).finally(() => (heavyDone = true));
+    const heavy = Promise.all([0, 1].map(() => designer.post(`${runsUrl()}/estimate`, { kind: 'pole-search', modelId: model.body.id, window }))).finally(
+      () => (heavyDone = true),
+    );
     delay.enable();
     while (!heavyDone) {
       const t0 = performance.now();
@@ -148,7 +153,12 @@ function pngBomb(width: number, height: number): Buffer {
   ihdr[8] = 1; // bit depth
   ihdr[9] = 0; // greyscale
   const raw = Buffer.alloc(height * (1 + Math.ceil(width / 8))); // filter byte 0 + zero pixels per row
-  return Buffer.concat([Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]), chunk('IHDR', ihdr), chunk('IDAT', deflateSync(raw, { level: 9 })), chunk('IEND', Buffer.alloc(0))]);
+  return Buffer.concat([
+    Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]),
+    chunk('IHDR', ihdr),
+    chunk('IDAT', deflateSync(raw, { level: 9 })),
+    chunk('IEND', Buffer.alloc(0)),
+  ]);
 }
 
 describe('drawings and uploads (defects 3 and 7)', () => {

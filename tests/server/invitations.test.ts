@@ -109,7 +109,10 @@ describe('invitations', () => {
     expect(right.status).toBe(201);
     expect(right.body.user).toEqual({ id: existing.id, email: existing.email, name: existing.name });
     expect(right.body.groups.map((g: { id: string; role: string }) => [g.id, g.role]).sort()).toEqual(
-      [[lab.groupId, 'designer'], [other.groupId, 'viewer']].sort(),
+      [
+        [lab.groupId, 'designer'],
+        [other.groupId, 'viewer'],
+      ].sort(),
     );
   });
 
@@ -140,10 +143,14 @@ describe('invitation acceptance against anonymous abuse', () => {
     const hasher = countingHasher();
     const counted = await startTestApp({ passwords: hasher });
     try {
-      const unknown = await request(counted.server).post('/api/invitations/no-such-link-token/accept').send({ name: 'Mallory', password: 'long-enough-password' });
+      const unknown = await request(counted.server)
+        .post('/api/invitations/no-such-link-token/accept')
+        .send({ name: 'Mallory', password: 'long-enough-password' });
       expect(unknown.status).toBe(404);
       const { token } = await inviteAndReadMail(newAddress(), 'viewer');
-      expect((await request(counted.server).post(`/api/invitations/${token}/accept`).send({ name: 'First', password: 'long-enough-password' })).status).toBe(201);
+      expect((await request(counted.server).post(`/api/invitations/${token}/accept`).send({ name: 'First', password: 'long-enough-password' })).status).toBe(
+        201,
+      );
       expect(hasher.calls).toEqual({ hash: 1, verify: 0 });
       const reused = await request(counted.server).post(`/api/invitations/${token}/accept`).send({ name: 'Second', password: 'long-enough-password' });
       expect(reused.status).toBe(410);
@@ -160,10 +167,18 @@ describe('invitation acceptance against anonymous abuse', () => {
       const { token } = await inviteAndReadMail(other.as('viewer').email, 'viewer');
       const statuses: number[] = [];
       for (let i = 0; i < 3; i++) {
-        statuses.push((await request(limited.server).post(`/api/invitations/${token}/accept`).send({ name: 'X', password: `guess-number-${i}` })).status);
+        statuses.push(
+          (
+            await request(limited.server)
+              .post(`/api/invitations/${token}/accept`)
+              .send({ name: 'X', password: `guess-number-${i}` })
+          ).status,
+        );
       }
       expect(statuses).toEqual([401, 401, 429]);
-      const failed = await app.handle.pool.query("select group_id from audit_log where account_id = $1 and action = 'auth.sign_in_failed'", [other.as('viewer').id]);
+      const failed = await app.handle.pool.query("select group_id from audit_log where account_id = $1 and action = 'auth.sign_in_failed'", [
+        other.as('viewer').id,
+      ]);
       expect(failed.rows).toEqual([{ group_id: lab.groupId }, { group_id: lab.groupId }]);
     } finally {
       await limited.close();

@@ -32,7 +32,10 @@ export async function createLab(db: Db, roles: MembershipRole[]): Promise<Lab> {
   const passwordHash = await hash;
   const tag = randomUUID().slice(0, 8);
   const name = `Fixture Lab ${tag}`;
-  const [group] = await db.insert(researchGroups).values({ name, slug: `fixture-${tag}` }).returning();
+  const [group] = await db
+    .insert(researchGroups)
+    .values({ name, slug: `fixture-${tag}` })
+    .returning();
   const members: LabUser[] = [];
   for (const [i, role] of roles.entries()) {
     const email = `${role}${i}.${tag}@fixture.example`;

@@ -53,7 +53,11 @@ beforeAll(async () => {
   outsider = await signInAs(app, other.as('designer').email);
   const model = await new ModelService(app.handle.db, inlineCompute).create(lab.groupId, lab.as('designer').id, smallRectangle('Map test', { field: 0.5 }));
   modelId = model.id;
-  const run = await new RunService(app.handle.db, recordingQueue(), inlineCompute).create(lab.groupId, lab.as('designer').id, { kind: 'pole-search', modelId, window: smallWindow });
+  const run = await new RunService(app.handle.db, recordingQueue(), inlineCompute).create(lab.groupId, lab.as('designer').id, {
+    kind: 'pole-search',
+    modelId,
+    window: smallWindow,
+  });
   runId = run.id;
   await handleRunJob(
     { db: app.handle.db, compute: (task, onProgress) => Promise.resolve(runEngineTask(task, { onProgress })) },
@@ -170,7 +174,13 @@ describe('maps through the queue', () => {
     const q = modeMapQueue(boss);
     const [row] = await app.handle.db
       .insert(modeMaps)
-      .values({ groupId: lab.groupId, modelVersionId: r!.modelVersionId, resonanceId: r!.id, params: { source: { kind: 'resonance', resonanceId: r!.id }, husimi: { directions: 12, gridNm: 25 } }, cacheKey: `queue-test-${Date.now()}` })
+      .values({
+        groupId: lab.groupId,
+        modelVersionId: r!.modelVersionId,
+        resonanceId: r!.id,
+        params: { source: { kind: 'resonance', resonanceId: r!.id }, husimi: { directions: 12, gridNm: 25 } },
+        cacheKey: `queue-test-${Date.now()}`,
+      })
       .returning();
     await q.enqueue(row!.id);
     const worker = startModeMapWorker({ db: app.handle.db, boss, pollSeconds: 0.2, log: () => {} });

@@ -46,7 +46,10 @@ describe('cavity models', () => {
     const denied = await viewer.post(models(lab), { document: smallRectangle('Viewer try') });
     expect(denied.status).toBe(403);
     expect(denied.body.code).toBe('forbidden');
-    const put = await viewer.agent.put(`${models(lab)}/${created.body.id}`).set('X-CSRF-Token', viewer.csrf).send({ document: smallRectangle('x') });
+    const put = await viewer.agent
+      .put(`${models(lab)}/${created.body.id}`)
+      .set('X-CSRF-Token', viewer.csrf)
+      .send({ document: smallRectangle('x') });
     expect(put.status).toBe(403);
     const read = await viewer.get(`${models(lab)}/${created.body.id}`);
     expect(read.status).toBe(200);

@@ -24,7 +24,15 @@ const itemRoute = declareRoute({
   answer: json(201, 'the item', itemSchema, [202]),
 });
 
-const goneRoute = declareRoute({ id: 'testGone', method: 'delete', path: '/things/{thingId}', access: 'public', tag: 'test', summary: 'test only', answer: empty(204, 'gone') });
+const goneRoute = declareRoute({
+  id: 'testGone',
+  method: 'delete',
+  path: '/things/{thingId}',
+  access: 'public',
+  tag: 'test',
+  summary: 'test only',
+  answer: empty(204, 'gone'),
+});
 
 function appWith(handler: RouteHandler<typeof itemRoute>): { app: express.Express; logged: unknown[] } {
   const logged: unknown[] = [];
@@ -83,22 +91,32 @@ describe('mountRoute', () => {
 
   it('answers 500 answer_mismatch when the handler omits a required field or sends a wrong type', async () => {
     const { id: _omitted, ...withoutId } = good;
-    const missing = await request(appWith(() => withoutId as never).app).post('/api/things/abc/items').send({ size: 1 });
+    const missing = await request(appWith(() => withoutId as never).app)
+      .post('/api/things/abc/items')
+      .send({ size: 1 });
     expect(missing.status).toBe(500);
     expect(missing.body.code).toBe('answer_mismatch');
     expect(missing.body.message).toContain('id');
     // undefined vanishes in JSON: the client would miss the field, so it counts as missing.
-    const undef = await request(appWith(() => ({ ...good, size: undefined }) as never).app).post('/api/things/abc/items').send({ size: 1 });
+    const undef = await request(appWith(() => ({ ...good, size: undefined }) as never).app)
+      .post('/api/things/abc/items')
+      .send({ size: 1 });
     expect(undef.status).toBe(500);
-    const wrong = await request(appWith(() => ({ ...good, at: 'yesterday' })).app).post('/api/things/abc/items').send({ size: 1 });
+    const wrong = await request(appWith(() => ({ ...good, at: 'yesterday' })).app)
+      .post('/api/things/abc/items')
+      .send({ size: 1 });
     expect(wrong.status).toBe(500);
     expect(wrong.body.message).toContain('at');
   });
 
   it('allows the other declared statuses only', async () => {
-    const queued = await request(appWith(() => withStatus(202, good)).app).post('/api/things/abc/items').send({ size: 1 });
+    const queued = await request(appWith(() => withStatus(202, good)).app)
+      .post('/api/things/abc/items')
+      .send({ size: 1 });
     expect(queued.status).toBe(202);
-    const undeclared = await request(appWith(() => withStatus(200, good)).app).post('/api/things/abc/items').send({ size: 1 });
+    const undeclared = await request(appWith(() => withStatus(200, good)).app)
+      .post('/api/things/abc/items')
+      .send({ size: 1 });
     expect(undeclared.status).toBe(500);
   });
 

@@ -143,15 +143,19 @@ describe('GET /api/openapi.json', () => {
 
   it('describes every route Express has mounted under /api, and no route it does not have', () => {
     const running = app.server.listeners('request')[0] as Express;
-    const mounted = mountedRoutes((running as unknown as { router: { stack: Layer[] } }).router.stack).filter((r) =>
-      r.split(' ')[1]!.startsWith('/api/'),
-    );
+    const mounted = mountedRoutes((running as unknown as { router: { stack: Layer[] } }).router.stack).filter((r) => r.split(' ')[1]!.startsWith('/api/'));
     // The walk itself must see the nested routers (catalogue → resonance routes), or the comparison proves nothing.
     expect(mounted).toContain('get /api/groups/{groupId}/resonances/{id}/mode.png');
     const described = operations().map(({ method, path }) => `${method} ${path}`);
     expect(new Set(mounted).size).toBe(mounted.length);
-    expect(mounted.filter((r) => !described.includes(r)), 'mounted but not described').toEqual([]);
-    expect(described.filter((r) => !mounted.includes(r)), 'described but not mounted').toEqual([]);
+    expect(
+      mounted.filter((r) => !described.includes(r)),
+      'mounted but not described',
+    ).toEqual([]);
+    expect(
+      described.filter((r) => !mounted.includes(r)),
+      'described but not mounted',
+    ).toEqual([]);
   });
 
   it('says who may call each route and how to authenticate', () => {
@@ -178,12 +182,45 @@ describe('request schemas in the document', () => {
   const base = smallRectangle('Sample');
   const modelSamples: [string, unknown][] = [
     ['the rectangle of the API tests', base],
-    ['a disk with a hole cut out of a union', { ...base, shape: { kind: 'subtract', from: { kind: 'union', of: [{ kind: 'disk', cx: 70, cy: 50, radius: 40 }, base.shape] }, remove: [{ kind: 'ellipse', cx: 70, cy: 50, rx: 5, ry: 3, angleDeg: 30 }] } }],
-    ['a custom effective mass, a field and potential terms', { ...base, material: { effectiveMass: 0.05 }, field: 0.5, potential: [{ kind: 'gaussian', cx: 50, cy: 50, sigma: 10, amplitude: -2 }, { kind: 'disorder', strength: 1, seed: 7 }] }],
+    [
+      'a disk with a hole cut out of a union',
+      {
+        ...base,
+        shape: {
+          kind: 'subtract',
+          from: { kind: 'union', of: [{ kind: 'disk', cx: 70, cy: 50, radius: 40 }, base.shape] },
+          remove: [{ kind: 'ellipse', cx: 70, cy: 50, rx: 5, ry: 3, angleDeg: 30 }],
+        },
+      },
+    ],
+    [
+      'a custom effective mass, a field and potential terms',
+      {
+        ...base,
+        material: { effectiveMass: 0.05 },
+        field: 0.5,
+        potential: [
+          { kind: 'gaussian', cx: 50, cy: 50, sigma: 10, amplitude: -2 },
+          { kind: 'disorder', strength: 1, seed: 7 },
+        ],
+      },
+    ],
     ['no name', { ...base, name: undefined }],
     ['a negative spacing', { ...base, spacing: -5 }],
     ['a shape kind that does not exist', { ...base, shape: { kind: 'hexagon', size: 3 } }],
-    ['a polygon with two vertices', { ...base, shape: { kind: 'polygon', vertices: [[0, 0], [1, 1]] } }],
+    [
+      'a polygon with two vertices',
+      {
+        ...base,
+        shape: {
+          kind: 'polygon',
+          vertices: [
+            [0, 0],
+            [1, 1],
+          ],
+        },
+      },
+    ],
     ['an empty union', { ...base, shape: { kind: 'union', of: [] } }],
     ['a bad disk deep inside a subtraction', { ...base, shape: { kind: 'subtract', from: base.shape, remove: [{ kind: 'disk', cx: 1, cy: 1, radius: 0 }] } }],
     ['a lead on a side that does not exist', { ...base, leads: [{ side: 'front', start: 0, width: 3 }] }],
@@ -251,7 +288,14 @@ describe('answer schemas in the document', () => {
     check('get', '/api/groups/{groupId}/models', await designer.get(`${g}/models`));
     check('post', '/api/groups/{groupId}/models/validate', await designer.post(`${g}/models/validate`, { document: smallRectangle('Checked') }));
     check('get', '/api/groups/{groupId}/models/{modelId}/versions/{version}', await designer.get(`${g}/models/${modelId}/versions/1`));
-    check('put', '/api/groups/{groupId}/models/{modelId}', await designer.agent.put(`${g}/models/${modelId}`).set('X-CSRF-Token', designer.csrf).send({ document: smallRectangle('Described', { field: 1 }) }));
+    check(
+      'put',
+      '/api/groups/{groupId}/models/{modelId}',
+      await designer.agent
+        .put(`${g}/models/${modelId}`)
+        .set('X-CSRF-Token', designer.csrf)
+        .send({ document: smallRectangle('Described', { field: 1 }) }),
+    );
 
     const runBody = { kind: 'pole-search', modelId, window: smallWindow };
     check('post', '/api/groups/{groupId}/runs/estimate', await designer.post(`${g}/runs/estimate`, runBody));
@@ -274,7 +318,10 @@ describe('answer schemas in the document', () => {
       // τ = ħ/Γ with ħ = 0.6582119569 meV·ps (CODATA 2018); Q = E/Γ. Only the shape of the answer is checked here.
       lifetimePs: width > 0 ? 0.6582119569 / width : null,
       quality: width > 0 ? energy / width : null,
-      partialWidths: [{ lead: 'source', width: width / 2 }, { lead: 'drain', width: width / 2 }],
+      partialWidths: [
+        { lead: 'source', width: width / 2 },
+        { lead: 'drain', width: width / 2 },
+      ],
       petermann: 1.02,
       residual: 1e-12,
       bound: width === 0,
@@ -289,13 +336,20 @@ describe('answer schemas in the document', () => {
       widthNm: 150,
       heightNm: 100,
     });
-    const [decaying] = await app.handle.db.insert(resonances).values([pole(0, 3.5, 0.02), pole(1, 4.2, 0)]).returning({ id: resonances.id });
+    const [decaying] = await app.handle.db
+      .insert(resonances)
+      .values([pole(0, 3.5, 0.02), pole(1, 4.2, 0)])
+      .returning({ id: resonances.id });
     const page = await designer.get(`${g}/catalogue?emin=1&sort=width`);
     expect(page.body.items).toHaveLength(2);
     check('get', '/api/groups/{groupId}/catalogue', page);
     check('get', '/api/groups/{groupId}/catalogue/export.json', await designer.get(`${g}/catalogue/export.json?bound=false`));
     check('get', '/api/groups/{groupId}/resonances/{id}', await designer.get(`${g}/resonances/${decaying!.id}`));
-    check('patch', '/api/groups/{groupId}/resonances/{id}', await designer.patch(`${g}/resonances/${decaying!.id}`, { tags: ['candidate'], notes: 'from the notebook' }));
+    check(
+      'patch',
+      '/api/groups/{groupId}/resonances/{id}',
+      await designer.patch(`${g}/resonances/${decaying!.id}`, { tags: ['candidate'], notes: 'from the notebook' }),
+    );
     check('get', '/api/groups/{groupId}/runs/{runId}', await designer.get(`${g}/runs/${run.body.id}`));
 
     check('post', '/api/tokens', await designer.post('/api/tokens', { name: 'notebook' }));

@@ -61,10 +61,17 @@ describe('outbox roles', () => {
     await operator.get('/api/outbox');
     await operator.get(`/api/outbox/${messageId}`);
     const me = await signInAs(app, recipient.email);
-    const activity = (await me.get('/api/account/activity')).body as { action: string; subject: string; actor: { name: string } | null; details: { messageId?: string } }[];
+    const activity = (await me.get('/api/account/activity')).body as {
+      action: string;
+      subject: string;
+      actor: { name: string } | null;
+      details: { messageId?: string };
+    }[];
     const read = activity.find((e) => e.action === 'outbox.read' && e.details.messageId === messageId);
     expect(read).toMatchObject({ subject: 'Reset your Poleward password', actor: { name: expect.stringContaining('Admin') } });
-    const listed = await app.handle.pool.query("select count(*)::int as n from audit_log where action = 'outbox.listed' and actor_id = $1", [operator.session.user.id]);
+    const listed = await app.handle.pool.query("select count(*)::int as n from audit_log where action = 'outbox.listed' and actor_id = $1", [
+      operator.session.user.id,
+    ]);
     expect(listed.rows[0].n).toBeGreaterThanOrEqual(2);
   });
 

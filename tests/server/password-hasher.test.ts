@@ -29,7 +29,9 @@ describe('password hashing off the event loop', () => {
     const elapsed = performance.now() - started;
     clearInterval(timer);
     delay.disable();
-    console.log(`[password-hasher] 4 hashes at cost 12: ${elapsed.toFixed(0)} ms, ${ticks} timer ticks, event-loop delay max ${(delay.max / 1e6).toFixed(1)} ms`);
+    console.log(
+      `[password-hasher] 4 hashes at cost 12: ${elapsed.toFixed(0)} ms, ${ticks} timer ticks, event-loop delay max ${(delay.max / 1e6).toFixed(1)} ms`,
+    );
     // Loose on purpose (a shared, loaded machine): the loop ran through most of the work.
     expect(ticks).toBeGreaterThan(elapsed / 10 / 4);
   });

@@ -117,7 +117,9 @@ describe('password-reset confirmation against anonymous abuse', () => {
     const hasher = countingHasher();
     const counted = await startTestApp({ passwords: hasher });
     try {
-      const res = await request(counted.server).post('/api/auth/password-reset/confirm').send({ token: 'not-a-real-link-token', password: 'some-new-password' });
+      const res = await request(counted.server)
+        .post('/api/auth/password-reset/confirm')
+        .send({ token: 'not-a-real-link-token', password: 'some-new-password' });
       expect(res.status).toBe(400);
       expect(res.body.code).toBe('token_invalid');
       expect(hasher.calls).toEqual({ hash: 0, verify: 0 });
@@ -131,7 +133,13 @@ describe('password-reset confirmation against anonymous abuse', () => {
     try {
       const statuses: number[] = [];
       for (let i = 0; i < 3; i++) {
-        statuses.push((await request(limited.server).post('/api/auth/password-reset/confirm').send({ token: `guess-${i}`, password: 'some-new-password' })).status);
+        statuses.push(
+          (
+            await request(limited.server)
+              .post('/api/auth/password-reset/confirm')
+              .send({ token: `guess-${i}`, password: 'some-new-password' })
+          ).status,
+        );
       }
       expect(statuses).toEqual([400, 400, 429]);
     } finally {

@@ -24,7 +24,9 @@ describe('the notice of a run that looks stuck', () => {
   it('warns when a running run has a silent worker, and not before the stale age', () => {
     const beat = new Date(at(0));
     expect(runNotice({ status: 'running', createdAt: t0, heartbeatAt: beat }, at(10), 30)).toBeNull();
-    expect(runNotice({ status: 'running', createdAt: t0, heartbeatAt: beat }, at(45), 30)).toMatch(/has not reported for 45 s; the run will be handed to another worker/);
+    expect(runNotice({ status: 'running', createdAt: t0, heartbeatAt: beat }, at(45), 30)).toMatch(
+      /has not reported for 45 s; the run will be handed to another worker/,
+    );
   });
 
   it('says nothing for a finished run', () => {

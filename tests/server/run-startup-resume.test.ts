@@ -52,12 +52,20 @@ async function runRow(id: string) {
  */
 async function interruptedRun(name: string, silentSeconds: number) {
   const model = await models.create(lab.groupId, lab.as('designer').id, smallRectangle(name));
-  const run = await runService.create(lab.groupId, lab.as('designer').id, { kind: 'transmission', modelId: model.id, window: { emin: 3, emax: 6, points: 20 } });
+  const run = await runService.create(lab.groupId, lab.as('designer').id, {
+    kind: 'transmission',
+    modelId: model.id,
+    window: { emin: 3, emax: 6, points: 20 },
+  });
   const jobId = (await runRow(run.id)).jobId!;
-  const [job] = await waitFor('the job to be fetched', async () => {
-    const jobs = await boss.fetch(queue, { batchSize: 1 });
-    return jobs.length > 0 && jobs.some((j) => j.id === jobId) && jobs;
-  }, 10);
+  const [job] = await waitFor(
+    'the job to be fetched',
+    async () => {
+      const jobs = await boss.fetch(queue, { batchSize: 1 });
+      return jobs.length > 0 && jobs.some((j) => j.id === jobId) && jobs;
+    },
+    10,
+  );
   expect(job!.id).toBe(jobId);
   expect(await runStore.startAttempt(handle.db, run.id, jobId)).toBe(1);
   await handle.db.execute(sql`update runs set heartbeat_at = now() - make_interval(secs => ${silentSeconds}) where id = ${run.id}`);
@@ -90,12 +98,24 @@ describe('runs interrupted by the previous shutdown', () => {
     const logs: string[] = [];
     const started = Date.now();
     // The everyday passes come only every 10 minutes here: only the start-up pass can hand the run on.
-    const worker = startWorkerLoop({ db: handle.db, boss, compute: runInThread, pollSeconds: 0.2, supervisorSeconds: 600, staleAfterSeconds: stale, log: (m) => logs.push(m) });
+    const worker = startWorkerLoop({
+      db: handle.db,
+      boss,
+      compute: runInThread,
+      pollSeconds: 0.2,
+      supervisorSeconds: 600,
+      staleAfterSeconds: stale,
+      log: (m) => logs.push(m),
+    });
     try {
-      const done = await waitFor('the run to finish', async () => {
-        const r = await runRow(runId);
-        return ['completed', 'failed'].includes(r.status) && r;
-      }, 60);
+      const done = await waitFor(
+        'the run to finish',
+        async () => {
+          const r = await runRow(runId);
+          return ['completed', 'failed'].includes(r.status) && r;
+        },
+        60,
+      );
       expect(done).toMatchObject({ status: 'completed', attempt: 2, error: null });
       // Well before the everyday rule would even have noticed it.
       expect((Date.now() - started) / 1000).toBeLessThan(stale);

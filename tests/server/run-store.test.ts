@@ -70,8 +70,19 @@ describe('the run transition table', () => {
 
   /** A run put straight into `status` (the test writes the row itself to reach every state). */
   async function runIn(status: RunStatus) {
-    const id = await runStore.create(handle.db, { groupId: lab.groupId, modelVersionId: versionId, kind: 'pole-search', window: { emin: 3, emax: 6, gammaMax: 1 }, note: '', estimate: null, createdBy: lab.as('designer').id });
-    await handle.db.update(runs).set({ status, attempt: status === 'queued' ? 0 : 1 }).where(eq(runs.id, id));
+    const id = await runStore.create(handle.db, {
+      groupId: lab.groupId,
+      modelVersionId: versionId,
+      kind: 'pole-search',
+      window: { emin: 3, emax: 6, gammaMax: 1 },
+      note: '',
+      estimate: null,
+      createdBy: lab.as('designer').id,
+    });
+    await handle.db
+      .update(runs)
+      .set({ status, attempt: status === 'queued' ? 0 : 1 })
+      .where(eq(runs.id, id));
     const [row] = await handle.db.select().from(runs).where(eq(runs.id, id));
     return row!;
   }

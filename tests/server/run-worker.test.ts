@@ -77,13 +77,21 @@ describe('runs on the queue', () => {
   it('a finished two-lead transmission run stores R per lead, with R + ΣT = open channels (unitarity)', async () => {
     const model = await models.create(lab.groupId, lab.as('designer').id, smallRectangle('Reflection test'));
     // 3–12 meV crosses the second channel of both width-8 leads (≈ 10.64 meV).
-    const run = await runService.create(lab.groupId, lab.as('designer').id, { kind: 'transmission', modelId: model.id, window: { emin: 3, emax: 12, points: 60 } });
+    const run = await runService.create(lab.groupId, lab.as('designer').id, {
+      kind: 'transmission',
+      modelId: model.id,
+      window: { emin: 3, emax: 12, points: 60 },
+    });
     const worker = startWorkerLoop({ db: handle.db, boss, compute: runInThread, pollSeconds: 0.2, log: () => {} });
     try {
-      const done = await waitFor('the run to finish', async () => {
-        const r = await runRow(run.id);
-        return ['completed', 'failed'].includes(r.status) && r;
-      }, 120);
+      const done = await waitFor(
+        'the run to finish',
+        async () => {
+          const r = await runRow(run.id);
+          return ['completed', 'failed'].includes(r.status) && r;
+        },
+        120,
+      );
       expect(done.error).toBeNull();
       expect(done.status).toBe('completed');
     } finally {
@@ -119,11 +127,15 @@ describe('runs on the queue', () => {
     const worker = startWorkerLoop({ db: handle.db, boss, compute: runInThread, pollSeconds: 0.2, log: () => {} });
     const seen: number[] = [];
     try {
-      const done = await waitFor('the run to finish', async () => {
-        const r = await runRow(run.id);
-        if (r.progressFraction !== null) seen.push(r.progressFraction);
-        return ['completed', 'failed'].includes(r.status) && r;
-      }, 120);
+      const done = await waitFor(
+        'the run to finish',
+        async () => {
+          const r = await runRow(run.id);
+          if (r.progressFraction !== null) seen.push(r.progressFraction);
+          return ['completed', 'failed'].includes(r.status) && r;
+        },
+        120,
+      );
       expect(done.error).toBeNull();
       expect(done.status).toBe('completed');
       expect(done.attempt).toBe(1);
@@ -158,19 +170,27 @@ describe('runs on the queue', () => {
     const run = await runService.create(lab.groupId, lab.as('designer').id, { kind: 'pole-search', modelId: model.id, window: smallWindow });
 
     const first = startWorkerProcess();
-    await waitFor('the first worker to start computing', async () => {
-      const r = await runRow(run.id);
-      return r.status === 'running' && (r.progressFraction ?? 0) > 0 && r;
-    }, 60);
+    await waitFor(
+      'the first worker to start computing',
+      async () => {
+        const r = await runRow(run.id);
+        return r.status === 'running' && (r.progressFraction ?? 0) > 0 && r;
+      },
+      60,
+    );
     first.kill('SIGKILL');
     await new Promise((r) => first.once('exit', r));
     expect((await runRow(run.id)).status).toBe('running'); // nobody has noticed yet
 
     startWorkerProcess();
-    const done = await waitFor('the retried run to finish', async () => {
-      const r = await runRow(run.id);
-      return ['completed', 'failed'].includes(r.status) && r;
-    }, 150);
+    const done = await waitFor(
+      'the retried run to finish',
+      async () => {
+        const r = await runRow(run.id);
+        return ['completed', 'failed'].includes(r.status) && r;
+      },
+      150,
+    );
     expect(done.status).toBe('completed');
     expect(done.attempt).toBeGreaterThanOrEqual(2);
     const rows = await handle.db

@@ -26,7 +26,6 @@ beforeAll(async () => {
 });
 afterAll(() => app.close());
 
-
 describe('account activity', () => {
   it("lists the caller's own sign-ins, sign-outs and token changes, and nobody else's", async () => {
     const designer = lab.as('designer');
@@ -47,7 +46,7 @@ describe('account activity', () => {
     expect((await request(app.server).get('/api/account/activity')).status).toBe(401);
   });
 
-  it("shows a member that an admin changed their role", async () => {
+  it('shows a member that an admin changed their role', async () => {
     const target = lab.as('viewer');
     expect((await admin.patch(`/api/groups/${lab.groupId}/members/${target.id}`, { role: 'reviewer' })).status).toBe(200);
     await admin.patch(`/api/groups/${lab.groupId}/members/${target.id}`, { role: 'viewer' });

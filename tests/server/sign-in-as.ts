@@ -30,8 +30,16 @@ export function wrapAgent(agent: ReturnType<typeof request.agent>, session: Sess
     session,
     csrf,
     get: (url) => agent.get(url),
-    post: (url, body) => agent.post(url).set('X-CSRF-Token', csrf).send(body ?? {}),
-    patch: (url, body) => agent.patch(url).set('X-CSRF-Token', csrf).send(body ?? {}),
+    post: (url, body) =>
+      agent
+        .post(url)
+        .set('X-CSRF-Token', csrf)
+        .send(body ?? {}),
+    patch: (url, body) =>
+      agent
+        .patch(url)
+        .set('X-CSRF-Token', csrf)
+        .send(body ?? {}),
     delete: (url) => agent.delete(url).set('X-CSRF-Token', csrf),
   };
 }

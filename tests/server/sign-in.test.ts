@@ -21,7 +21,9 @@ function cookieHeader(res: request.Response): string[] {
 
 describe('sign-in', () => {
   it('answers 401 invalid_credentials with the clear message on a wrong password', async () => {
-    const res = await request(app.server).post('/api/auth/sign-in').send({ email: lab.as('viewer').email, password: 'not-the-password' });
+    const res = await request(app.server)
+      .post('/api/auth/sign-in')
+      .send({ email: lab.as('viewer').email, password: 'not-the-password' });
     expect(res.status).toBe(401);
     expect(res.body).toEqual({ status: 401, code: 'invalid_credentials', message: 'E-mail or password is wrong.' });
     expect(cookieHeader(res)).toEqual([]);
@@ -36,7 +38,9 @@ describe('sign-in', () => {
   it('sets an httpOnly session cookie and a readable CSRF cookie, both SameSite=Lax on /', async () => {
     const viewer = lab.as('viewer');
     // Case and spaces in the e-mail do not matter: addresses are stored lower-case.
-    const res = await request(app.server).post('/api/auth/sign-in').send({ email: `  ${viewer.email.toUpperCase()}`, password: fixturePassword });
+    const res = await request(app.server)
+      .post('/api/auth/sign-in')
+      .send({ email: `  ${viewer.email.toUpperCase()}`, password: fixturePassword });
     expect(res.status).toBe(200);
     expect(res.body.user).toEqual({ id: viewer.id, email: viewer.email, name: viewer.name });
     expect(res.body.groups).toEqual([{ id: lab.groupId, name: lab.name, slug: expect.any(String), role: 'viewer' }]);
@@ -72,8 +76,13 @@ describe('sign-in', () => {
 
 describe('session tokens', () => {
   async function sessionCookie(): Promise<string> {
-    const res = await request(app.server).post('/api/auth/sign-in').send({ email: lab.as('viewer').email, password: fixturePassword });
-    return cookieHeader(res).find((c) => c.startsWith('pw_session='))!.split(';')[0]!.slice('pw_session='.length);
+    const res = await request(app.server)
+      .post('/api/auth/sign-in')
+      .send({ email: lab.as('viewer').email, password: fixturePassword });
+    return cookieHeader(res)
+      .find((c) => c.startsWith('pw_session='))!
+      .split(';')[0]!
+      .slice('pw_session='.length);
   }
   const claimsOf = (token: string) => JSON.parse(Buffer.from(token.split('.')[1]!, 'base64url').toString()) as { sub: string; jti: string };
   const asCookie = (token: string) => request(app.server).get('/api/auth/session').set('Cookie', `pw_session=${token}`);
@@ -137,7 +146,9 @@ describe('session tokens', () => {
 
 describe('sign-out', () => {
   it('ends the session on the server: a copy of the old cookie answers 401 afterwards', async () => {
-    const res = await request(app.server).post('/api/auth/sign-in').send({ email: lab.as('viewer').email, password: fixturePassword });
+    const res = await request(app.server)
+      .post('/api/auth/sign-in')
+      .send({ email: lab.as('viewer').email, password: fixturePassword });
     const cookies = cookieHeader(res).map((c) => c.split(';')[0]!);
     const copied = cookies.join('; ');
     expect((await request(app.server).get('/api/auth/session').set('Cookie', copied)).status).toBe(200);
@@ -150,7 +161,7 @@ describe('sign-out', () => {
     expect(row.rowCount).toBeGreaterThanOrEqual(1);
   });
 
-  it('a sign-in clears the person\'s sessions that ended more than a day ago, and keeps the rest', async () => {
+  it("a sign-in clears the person's sessions that ended more than a day ago, and keeps the rest", async () => {
     const own = await createLab(app.handle.db, ['viewer']);
     const id = own.as('viewer').id;
     await app.handle.pool.query(
@@ -174,8 +185,12 @@ describe('sign-out', () => {
 describe('CSRF value bound to the session', () => {
   it("refuses another session's CSRF value, even when the pw_csrf cookie repeats it", async () => {
     const a = await signInAs(app, lab.as('admin').email);
-    const b = await request(app.server).post('/api/auth/sign-in').send({ email: lab.as('admin').email, password: fixturePassword });
-    const bSession = cookieHeader(b).find((c) => c.startsWith('pw_session='))!.split(';')[0]!;
+    const b = await request(app.server)
+      .post('/api/auth/sign-in')
+      .send({ email: lab.as('admin').email, password: fixturePassword });
+    const bSession = cookieHeader(b)
+      .find((c) => c.startsWith('pw_session='))!
+      .split(';')[0]!;
     expect(b.body.csrfToken).not.toBe(a.csrf);
     // Session B's cookie, with session A's CSRF value planted as both the cookie and the header.
     const res = await request(app.server)
@@ -190,8 +205,12 @@ describe('CSRF value bound to the session', () => {
   });
 
   it('GET /session sets the pw_csrf cookie again when it was lost, with the same value', async () => {
-    const signIn = await request(app.server).post('/api/auth/sign-in').send({ email: lab.as('viewer').email, password: fixturePassword });
-    const sessionOnly = cookieHeader(signIn).find((c) => c.startsWith('pw_session='))!.split(';')[0]!;
+    const signIn = await request(app.server)
+      .post('/api/auth/sign-in')
+      .send({ email: lab.as('viewer').email, password: fixturePassword });
+    const sessionOnly = cookieHeader(signIn)
+      .find((c) => c.startsWith('pw_session='))!
+      .split(';')[0]!;
     const res = await request(app.server).get('/api/auth/session').set('Cookie', sessionOnly);
     expect(res.status).toBe(200);
     expect(res.body.csrfToken).toBe(signIn.body.csrfToken);
@@ -211,7 +230,13 @@ describe('sign-in rate limit', () => {
         expect(res.status, `good sign-in ${i + 1}`).toBe(200);
       }
       for (let i = 0; i < 3; i++) {
-        expect((await request(limited.server).post('/api/auth/sign-in').send({ email, password: `wrong-${i}` })).status).toBe(401);
+        expect(
+          (
+            await request(limited.server)
+              .post('/api/auth/sign-in')
+              .send({ email, password: `wrong-${i}` })
+          ).status,
+        ).toBe(401);
       }
       const blocked = await request(limited.server).post('/api/auth/sign-in').send({ email, password: fixturePassword });
       expect(blocked.status).toBe(429);
@@ -219,7 +244,9 @@ describe('sign-in rate limit', () => {
       expect(blocked.body.message).toMatch(/Too many failed sign-in attempts for this account; try again in \d+ minutes?/);
       expect(blocked.headers['retry-after']).toMatch(/^\d+$/);
       // Another account from the same address has its own budget.
-      const other = await request(limited.server).post('/api/auth/sign-in').send({ email: lab.as('admin').email, password: fixturePassword });
+      const other = await request(limited.server)
+        .post('/api/auth/sign-in')
+        .send({ email: lab.as('admin').email, password: fixturePassword });
       expect(other.status).toBe(200);
     } finally {
       await limited.close();
@@ -231,7 +258,9 @@ describe('sign-in rate limit', () => {
     try {
       const statuses: number[] = [];
       for (let i = 0; i < 6; i++) {
-        const res = await request(limited.server).post('/api/auth/sign-in').send({ email: `sprayed${i}@fixture.example`, password: 'Summer2026!' });
+        const res = await request(limited.server)
+          .post('/api/auth/sign-in')
+          .send({ email: `sprayed${i}@fixture.example`, password: 'Summer2026!' });
         statuses.push(res.status);
         if (res.status === 429) expect(res.body.message).toMatch(/from your address/);
       }

@@ -64,7 +64,10 @@ describe('derived figures stored with the version', () => {
     expect(counts.validateCavityModel).toBe(1);
     expect(counts.rasteriseShape).toBeGreaterThanOrEqual(1);
     expect(counts.deriveFigures).toBeGreaterThanOrEqual(1);
-    const [row] = await app.handle.db.select({ derived: modelVersions.derived, siteCount: modelVersions.siteCount }).from(modelVersions).where(eq(modelVersions.modelId, modelId));
+    const [row] = await app.handle.db
+      .select({ derived: modelVersions.derived, siteCount: modelVersions.siteCount })
+      .from(modelVersions)
+      .where(eq(modelVersions.modelId, modelId));
     expect(row!.derived).not.toBeNull();
     expect(row!.derived!.siteCount).toBe(row!.siteCount);
     expect(JSON.parse(JSON.stringify(row!.derived))).toEqual(res.body.derived);
@@ -85,7 +88,9 @@ describe('derived figures stored with the version', () => {
     expect(version.body.derived).toEqual(saved.derived);
     const leads = saved.derived.leads as { name: string; side: string; width: number; thresholds: { opens: number; closes: number }[] }[];
     expect(run.body.leads).toEqual(leads.map((l) => ({ name: l.name, side: l.side, width: l.width })));
-    const inWindow = [...new Set(leads.flatMap((l) => l.thresholds.flatMap((t) => [t.opens, t.closes])))].filter((e) => e >= smallWindow.emin && e <= smallWindow.emax);
+    const inWindow = [...new Set(leads.flatMap((l) => l.thresholds.flatMap((t) => [t.opens, t.closes])))].filter(
+      (e) => e >= smallWindow.emin && e <= smallWindow.emax,
+    );
     expect(run.body.thresholds).toHaveLength(inWindow.length);
   });
 

@@ -114,12 +114,20 @@ describe('studies API', () => {
 
   it('cancels the steps not started and keeps the finished ones', async () => {
     await stopWorker();
-    const created = await designer.post(`/api/groups/${lab.groupId}/studies`, { kind: 'sweep', modelId, version: 1, parameters: [{ path: 'field', values: { list: [0.1, 0.2, 0.3] } }], window: dotWindow });
+    const created = await designer.post(`/api/groups/${lab.groupId}/studies`, {
+      kind: 'sweep',
+      modelId,
+      version: 1,
+      parameters: [{ path: 'field', values: { list: [0.1, 0.2, 0.3] } }],
+      window: dotWindow,
+    });
     expect(created.status).toBe(201);
     // One step computed by hand as a worker would, then the rest cancelled before any worker runs.
     const id = created.body.id as string;
     const { handleStudyStepJob } = await import('../../server/studies/study-worker.js');
-    expect(await handleStudyStepJob({ db: app.handle.db, compute: async (t) => runStudyStepTask(t) }, { studyId: id, index: 0, retryCount: 0, retryLimit: 3 })).toBe('completed');
+    expect(
+      await handleStudyStepJob({ db: app.handle.db, compute: async (t) => runStudyStepTask(t) }, { studyId: id, index: 0, retryCount: 0, retryLimit: 3 }),
+    ).toBe('completed');
     const cancelled = await designer.post(`/api/groups/${lab.groupId}/studies/${id}/cancel`);
     expect(cancelled.status).toBe(202);
     expect(cancelled.body.steps.cancelled).toBe(2);
@@ -129,7 +137,10 @@ describe('studies API', () => {
     expect(done.steps.completed).toBe(1);
     expect(done.outcome.steps[0].status).toBe('completed');
     expect(done.outcome.steps[0].poles.length).toBeGreaterThan(0);
-    const [kept] = await app.handle.db.select().from(studySteps).where(and(eq(studySteps.studyId, id), eq(studySteps.index, 0)));
+    const [kept] = await app.handle.db
+      .select()
+      .from(studySteps)
+      .where(and(eq(studySteps.studyId, id), eq(studySteps.index, 0)));
     expect(kept!.status).toBe('completed');
   });
 
@@ -159,7 +170,11 @@ describe('studies API', () => {
   });
 
   it('refuses a path that is not a number of the model, naming it', async () => {
-    const bad = await designer.post(`/api/groups/${lab.groupId}/studies`, { ...sweep, modelId, parameters: [{ path: 'potential.4.amplitude', values: { list: [1] } }] });
+    const bad = await designer.post(`/api/groups/${lab.groupId}/studies`, {
+      ...sweep,
+      modelId,
+      parameters: [{ path: 'potential.4.amplitude', values: { list: [1] } }],
+    });
     expect(bad.status).toBe(400);
     expect(JSON.stringify(bad.body.issues)).toMatch(/parameters\.0\.path/);
     expect(bad.body.message).toMatch(/potential\.4/);

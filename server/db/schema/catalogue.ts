@@ -82,7 +82,10 @@ export const resonances = pgTable(
     physics: text('physics').$type<'electrons' | 'microwave'>().notNull().default('electrons'),
     frequencyGhz: doublePrecision('frequency_ghz'),
     details: jsonb('details').$type<Record<string, unknown>>().notNull().default({}),
-    tags: text('tags').array().notNull().default(sql`'{}'::text[]`),
+    tags: text('tags')
+      .array()
+      .notNull()
+      .default(sql`'{}'::text[]`),
     notes: text('notes').notNull().default(''),
     // Copied from the model version for one-table searches.
     modelName: text('model_name').notNull(),
@@ -100,9 +103,7 @@ export const resonances = pgTable(
     innerNm: doublePrecision('inner_nm'),
     outerNm: doublePrecision('outer_nm'),
     areaNm2: doublePrecision('area_nm2'),
-    searchText: tsvector('search_text').generatedAlwaysAs(
-      (): SQL => sql`to_tsvector('simple', ${resonances.modelName} || ' ' || ${resonances.notes})`,
-    ),
+    searchText: tsvector('search_text').generatedAlwaysAs((): SQL => sql`to_tsvector('simple', ${resonances.modelName} || ' ' || ${resonances.notes})`),
     createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
   },
   (t) => [

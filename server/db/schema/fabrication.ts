@@ -59,7 +59,10 @@ export const resonanceComments = pgTable(
       .references(() => resonances.id, { onDelete: 'cascade' }),
     authorId: uuid('author_id').references(() => users.id, { onDelete: 'set null' }),
     body: text('body').notNull(),
-    mentions: uuid('mentions').array().notNull().default(sql`'{}'::uuid[]`),
+    mentions: uuid('mentions')
+      .array()
+      .notNull()
+      .default(sql`'{}'::uuid[]`),
     createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
   },
   (t) => [index('resonance_comments_resonance').on(t.groupId, t.resonanceId, t.createdAt)],

@@ -23,10 +23,7 @@ export const cavityModels = pgTable(
     createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
     updatedAt: timestamp('updated_at', { withTimezone: true }).notNull().defaultNow(),
   },
-  (t) => [
-    index('cavity_models_group_updated').on(t.groupId, t.updatedAt.desc()),
-    unique('cavity_models_group_reference').on(t.groupId, t.referenceKey),
-  ],
+  (t) => [index('cavity_models_group_updated').on(t.groupId, t.updatedAt.desc()), unique('cavity_models_group_reference').on(t.groupId, t.referenceKey)],
 );
 
 /**

@@ -31,7 +31,15 @@ export interface RoughMask {
   droppedIslands: number;
 }
 
-export function roughenMask(mask: Uint8Array, nx: number, ny: number, spacing: number, leads: readonly Pick<Lead, 'side' | 'start' | 'width'>[], spec: RoughnessSpec, seed: number): RoughMask {
+export function roughenMask(
+  mask: Uint8Array,
+  nx: number,
+  ny: number,
+  spacing: number,
+  leads: readonly Pick<Lead, 'side' | 'start' | 'width'>[],
+  spec: RoughnessSpec,
+  seed: number,
+): RoughMask {
   if (!(spec.rmsNm >= 0) || !(spec.correlationNm >= 0)) throw new RangeError('roughness: rmsNm and correlationNm must be ≥ 0');
   const out = new Uint8Array(mask);
   if (spec.rmsNm === 0) return { mask: out, added: 0, removed: 0, droppedIslands: 0 };
@@ -137,7 +145,12 @@ function keepLeadPart(mask: Uint8Array, nx: number, ny: number, leads: readonly 
     const s = stack.pop()!;
     const i = Math.floor(s / ny);
     const j = s - i * ny;
-    for (const [ii, jj] of [[i - 1, j], [i + 1, j], [i, j - 1], [i, j + 1]]) {
+    for (const [ii, jj] of [
+      [i - 1, j],
+      [i + 1, j],
+      [i, j - 1],
+      [i, j + 1],
+    ]) {
       if (ii < 0 || ii >= nx || jj < 0 || jj >= ny) continue;
       const t = ii * ny + jj;
       if (mask[t] && !keep[t]) {
@@ -157,7 +170,11 @@ function keepLeadPart(mask: Uint8Array, nx: number, ny: number, leads: readonly 
 }
 
 /** The mask as the model's bitmap shape over the whole grid (rows bottom first, most significant bit leftmost). */
-export function maskToBitmap(mask: Uint8Array, nx: number, ny: number): { kind: 'bitmap'; i0: number; j0: number; width: number; height: number; data: string } {
+export function maskToBitmap(
+  mask: Uint8Array,
+  nx: number,
+  ny: number,
+): { kind: 'bitmap'; i0: number; j0: number; width: number; height: number; data: string } {
   const rowBytes = Math.ceil(nx / 8);
   const bytes = new Uint8Array(rowBytes * ny);
   for (let j = 0; j < ny; j++) {

@@ -76,7 +76,8 @@ export function checkEnsembleDefinition(def: EnsembleDefinition): void {
     }
     if (!(j.sigma >= 0) || !Number.isFinite(j.sigma)) throw new RangeError(`jitter[${k}].sigma: a number ≥ 0`);
   });
-  if (def.roughness && (!(def.roughness.rmsNm >= 0) || !(def.roughness.correlationNm >= 0))) throw new RangeError('roughness: rmsNm and correlationNm must be ≥ 0');
+  if (def.roughness && (!(def.roughness.rmsNm >= 0) || !(def.roughness.correlationNm >= 0)))
+    throw new RangeError('roughness: rmsNm and correlationNm must be ≥ 0');
   const w = def.window;
   if (!(w.emax > w.emin)) throw new RangeError('window.emax must be above window.emin');
   if (!(w.gammaMax > 0)) throw new RangeError('window.gammaMax must be positive');

@@ -33,7 +33,8 @@ export function computeRealisation(def: EnsembleDefinition, r: number, control?:
   try {
     return { record, search: searchStep(model, def.window, def.search ?? {}, control), error: null };
   } catch (err) {
-    if (err instanceof InvalidModelError) return { record, search: null, error: `invalid realisation: ${err.issues.map((i) => `${i.path.join('.')}: ${i.message}`).join('; ')}` };
+    if (err instanceof InvalidModelError)
+      return { record, search: null, error: `invalid realisation: ${err.issues.map((i) => `${i.path.join('.')}: ${i.message}`).join('; ')}` };
     throw err;
   }
 }

@@ -73,15 +73,32 @@ export function ensembleStatistics(def: EnsembleDefinition, nominal: StepSearch,
   const samples: EnsembleSample[] = outcomes.map((o) => followInto(def, nominal, target, o));
   const got = samples.filter((s) => s.followed);
   const bins = def.bins ?? Math.min(30, Math.max(5, Math.ceil(Math.sqrt(Math.max(1, got.length)))));
-  const energy = distribution(got.map((s) => s.energy!), bins);
-  const width = distribution(got.map((s) => s.width!), bins);
-  const quality = distribution(got.flatMap((s) => (s.quality === null ? [] : [s.quality])), bins);
+  const energy = distribution(
+    got.map((s) => s.energy!),
+    bins,
+  );
+  const width = distribution(
+    got.map((s) => s.width!),
+    bins,
+  );
+  const quality = distribution(
+    got.flatMap((s) => (s.quality === null ? [] : [s.quality])),
+    bins,
+  );
   const { sensitivities, residual } = sensitivitiesOf(def, got);
   const tol = def.tolerances;
   const anyTolerance = !!tol && [tol.energy, tol.width, tol.quality].some((r) => r && (r.min !== undefined || r.max !== undefined));
   const within = samples.filter((s) => s.withinTolerances).length;
   return {
-    nominal: target === null ? null : { pole: target, energy: nominal.poles[target].energy, width: nominal.poles[target].width, quality: qualityOf(nominal.poles[target].energy, nominal.poles[target].width) },
+    nominal:
+      target === null
+        ? null
+        : {
+            pole: target,
+            energy: nominal.poles[target].energy,
+            width: nominal.poles[target].width,
+            quality: qualityOf(nominal.poles[target].energy, nominal.poles[target].width),
+          },
     samples,
     followed: got.length,
     notFollowed: samples.length - got.length,
@@ -114,7 +131,18 @@ function inRange(v: number | null, r: { min?: number; max?: number } | undefined
 
 function followInto(def: EnsembleDefinition, nominal: StepSearch, target: number | null, o: RealisationOutcome): EnsembleSample {
   const base = { realisation: o.record.realisation, seed: o.record.seed, record: o.record };
-  const fail = (reason: string): EnsembleSample => ({ ...base, followed: false, reason, pole: null, overlap: null, energy: null, width: null, quality: null, certified: o.search?.certified ?? null, withinTolerances: false });
+  const fail = (reason: string): EnsembleSample => ({
+    ...base,
+    followed: false,
+    reason,
+    pole: null,
+    overlap: null,
+    energy: null,
+    width: null,
+    quality: null,
+    certified: o.search?.certified ?? null,
+    withinTolerances: false,
+  });
   if (target === null) return fail('the nominal model has no pole in the window');
   if (o.error !== null || o.search === null) return fail(o.error ?? 'not computed');
   let best = -1;
@@ -133,7 +161,18 @@ function followInto(def: EnsembleDefinition, nominal: StepSearch, target: number
   // A bound pole has Q = ∞: it meets a lower bound on Q and no upper one.
   const qualityOk = !tol?.quality || (quality === null ? tol.quality.max === undefined : inRange(quality, tol.quality));
   const withinTolerances = inRange(p.energy, tol?.energy) && inRange(p.width, tol?.width) && qualityOk;
-  return { ...base, followed: true, reason: null, pole: best, overlap: bestOverlap, energy: p.energy, width: p.width, quality, certified: o.search.certified, withinTolerances };
+  return {
+    ...base,
+    followed: true,
+    reason: null,
+    pole: best,
+    overlap: bestOverlap,
+    energy: p.energy,
+    width: p.width,
+    quality,
+    certified: o.search.certified,
+    withinTolerances,
+  };
 }
 
 /** Mean, sample standard deviation, extremes and a histogram of `bins` equal bins over [min, max]. */
@@ -151,7 +190,10 @@ export function distribution(values: readonly number[], bins: number): Distribut
   return { count: n, mean, std, min, max, histogram: { edges, counts } };
 }
 
-function sensitivitiesOf(def: EnsembleDefinition, got: EnsembleSample[]): { sensitivities: Sensitivity[]; residual: { energy: number | null; width: number | null } } {
+function sensitivitiesOf(
+  def: EnsembleDefinition,
+  got: EnsembleSample[],
+): { sensitivities: Sensitivity[]; residual: { energy: number | null; width: number | null } } {
   const jit = def.jitter ?? [];
   const k = jit.length;
   const empty = { energySlope: null, widthSlope: null, energySpread: null, widthSpread: null };
@@ -163,8 +205,14 @@ function sensitivitiesOf(def: EnsembleDefinition, got: EnsembleSample[]): { sens
     };
   }
   const rows = got.map((s) => [1, ...jit.map((j) => s.record.jitter.find((x) => x.path === j.path)?.delta ?? 0)]);
-  const fitE = leastSquares(rows, got.map((s) => s.energy!));
-  const fitG = leastSquares(rows, got.map((s) => s.width!));
+  const fitE = leastSquares(
+    rows,
+    got.map((s) => s.energy!),
+  );
+  const fitG = leastSquares(
+    rows,
+    got.map((s) => s.width!),
+  );
   const sensitivities = jit.map((j, c) => ({
     path: j.path,
     kind: j.kind,

@@ -32,7 +32,10 @@ export function inSymmetricGauge(mode: ArrayLike<number>, sites: SiteList, inver
   const out = new Float64Array(2 * sites.i.length);
   for (let s = 0; s < sites.i.length; s++) {
     const g = (inverse ? -1 : 1) * symmetricGaugePhase(sites, s);
-    const c = Math.cos(g), d = Math.sin(g), re = mode[2 * s], im = mode[2 * s + 1];
+    const c = Math.cos(g),
+      d = Math.sin(g),
+      re = mode[2 * s],
+      im = mode[2 * s + 1];
     out[2 * s] = c * re - d * im;
     out[2 * s + 1] = d * re + c * im;
   }
@@ -69,7 +72,10 @@ export function modeOverlap(a: ArrayLike<number>, sitesA: SiteList, b: ArrayLike
   let nb = 0;
   for (let s = 0; s < sitesA.i.length; s++) na += a[2 * s] ** 2 + a[2 * s + 1] ** 2;
   for (let s = 0; s < sitesB.i.length; s++) {
-    const ar = moved[2 * s], ai = moved[2 * s + 1], br = b[2 * s], bi = b[2 * s + 1];
+    const ar = moved[2 * s],
+      ai = moved[2 * s + 1],
+      br = b[2 * s],
+      bi = b[2 * s + 1];
     nb += br * br + bi * bi;
     re += ar * br + ai * bi;
     im += ar * bi - ai * br;

@@ -61,7 +61,12 @@ export function ensembleStatisticsReport(stats: EnsembleStatistics) {
 export function ensembleReport(out: EnsembleOutcome) {
   return {
     nominal: { certified: out.nominal.certified, poles: out.nominal.poles.map(poleReport) },
-    realisations: out.realisations.map((r) => ({ ...r.record, certified: r.search?.certified ?? null, error: r.error, poles: r.search ? r.search.poles.map(poleReport) : [] })),
+    realisations: out.realisations.map((r) => ({
+      ...r.record,
+      certified: r.search?.certified ?? null,
+      error: r.error,
+      poles: r.search ? r.search.poles.map(poleReport) : [],
+    })),
     statistics: ensembleStatisticsReport(out.statistics),
     units: { energy: 'meV', width: 'meV', roughness: 'nm' },
   };

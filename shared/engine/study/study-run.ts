@@ -4,7 +4,15 @@
  * queue jobs (server/studies) and assembles the same answer with `assembleStudy`.
  */
 import type { WorkControl } from '../operator';
-import { checkStudyDefinition, studyStepCount, studyStepModel, studyStepPath, studyStepSpec, type StudyDefinition, type StudyStepSpec } from './study-definition';
+import {
+  checkStudyDefinition,
+  studyStepCount,
+  studyStepModel,
+  studyStepPath,
+  studyStepSpec,
+  type StudyDefinition,
+  type StudyStepSpec,
+} from './study-definition';
 import { computeStep, type StepResult } from './study-step';
 import { linkTrajectories, type Trajectory } from './trajectory-linking';
 import { trajectoryMarks, type TrajectoryMark } from './trajectory-marks';
@@ -48,7 +56,10 @@ export function assembleStudy(def: StudyDefinition, results: readonly StepResult
     const linking = linkTrajectories(idx.map((k) => results[k]));
     linking.coveredByContinuation.forEach((c, k) => (covered[idx[k]] = c));
     const trajectories = linking.trajectories.map((t) => ({ ...t, points: t.points.map((p) => ({ ...p, step: idx[p.step] })) }));
-    const marks = trajectoryMarks(linking.trajectories, idx.map((k) => results[k].poles)).map((m) => ({ ...m, step: idx[m.step], from: idx[m.from], to: idx[m.to] }));
+    const marks = trajectoryMarks(
+      linking.trajectories,
+      idx.map((k) => results[k].poles),
+    ).map((m) => ({ ...m, step: idx[m.step], from: idx[m.from], to: idx[m.to] }));
     lines.push({ value: def.parameters.length === 2 ? def.parameters[1].values[line] : null, steps: idx, trajectories, marks });
   }
   const later = results.length - lineCount;

@@ -103,7 +103,11 @@ const MAX_HALVINGS = 3;
  * A pole that still cannot be carried, or leaves its strip, is left out and counted:
  * the next step's certified search is what then decides whether it left the window.
  */
-export function continuePoles(search: StepSearch, path: ModelPath, control?: WorkControl): { continued: ContinuedPole[]; failures: number; factorisations: number } {
+export function continuePoles(
+  search: StepSearch,
+  path: ModelPath,
+  control?: WorkControl,
+): { continued: ContinuedPole[]; failures: number; factorisations: number } {
   const counter = { factorisations: 0 };
   const cache = new Map<number, Continuation>();
   const at = (f: number): Continuation => {
@@ -172,7 +176,14 @@ function newtonInto(p: Carried, target: Continuation, counter: { factorisations:
 }
 
 /** A step: the search, then the continuation into the next model when there is one. */
-export function computeStep(model: unknown, window: PoleWindow, options: StepSearchOptions, path: ModelPath | null, control?: WorkControl, reuse?: StepSearch): StepResult {
+export function computeStep(
+  model: unknown,
+  window: PoleWindow,
+  options: StepSearchOptions,
+  path: ModelPath | null,
+  control?: WorkControl,
+  reuse?: StepSearch,
+): StepResult {
   const search = reuse ?? searchStep(model, window, options, control);
   if (path === null) return { ...search, continued: null, continuationFailures: 0, continuationFactorisations: 0 };
   const c = continuePoles(search, path, control);

@@ -37,8 +37,6 @@ export class AccountApi {
   }
 
   activity(limit = 50): Observable<AccountEntry[]> {
-    return this.http
-      .get('/api/account/activity', { params: { limit } })
-      .pipe(map((body) => z.array(accountEntrySchema).parse(body)));
+    return this.http.get('/api/account/activity', { params: { limit } }).pipe(map((body) => z.array(accountEntrySchema).parse(body)));
   }
 }

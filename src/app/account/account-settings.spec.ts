@@ -48,7 +48,12 @@ describe('AccountSettings', () => {
     const req = http.expectOne('/api/account/password');
     expect(req.request.body).toEqual({ currentPassword: 'not-it', newPassword: 'brand-new-pass' });
     req.flush(
-      { status: 400, code: 'wrong_password', message: 'The current password is wrong; nothing was changed.', issues: [{ path: 'currentPassword', message: 'the current password is wrong' }] },
+      {
+        status: 400,
+        code: 'wrong_password',
+        message: 'The current password is wrong; nothing was changed.',
+        issues: [{ path: 'currentPassword', message: 'the current password is wrong' }],
+      },
       { status: 400, statusText: 'Bad Request' },
     );
     fixture.detectChanges();

@@ -14,11 +14,7 @@ describe('Account', () => {
 
   beforeEach(() => {
     TestBed.configureTestingModule({
-      providers: [
-        provideHttpClient(withInterceptors([authInterceptor])),
-        provideHttpClientTesting(),
-        provideRouter([{ path: 'account', component: Account }]),
-      ],
+      providers: [provideHttpClient(withInterceptors([authInterceptor])), provideHttpClientTesting(), provideRouter([{ path: 'account', component: Account }])],
     });
     mock = TestBed.inject(HttpTestingController);
   });
@@ -31,10 +27,38 @@ describe('Account', () => {
     await harness.navigateByUrl('/account', Account);
     (await nextRequest(mock, '/api/account/notifications')).flush({ kinds: [] });
     (await nextRequest(mock, '/api/account/activity?limit=50')).flush([
-      { id: 'e4', at: '2026-12-01T10:04:00Z', actor: { id: 'u-op', name: 'Ada Marlow' }, action: 'outbox.read', subject: 'Reset your Poleward password', details: { messageId: 'm1' } },
-      { id: 'e3', at: '2026-12-01T10:03:00Z', actor: { id: 'u-ada', name: 'Ada Marlow' }, action: 'auth.password_reset', subject: 'ada.admin@harrow-lake.example', details: { sessionsEnded: 2, tokensRevoked: 1 } },
-      { id: 'e2', at: '2026-12-01T10:02:00Z', actor: null, action: 'auth.sign_in_failed', subject: 'ada.admin@harrow-lake.example', details: { ip: '192.0.2.7' } },
-      { id: 'e1', at: '2026-12-01T10:01:00Z', actor: { id: 'u-ada', name: 'Ada Marlow' }, action: 'auth.signed_in', subject: 'ada.admin@harrow-lake.example', details: { ip: '127.0.0.1' } },
+      {
+        id: 'e4',
+        at: '2026-12-01T10:04:00Z',
+        actor: { id: 'u-op', name: 'Ada Marlow' },
+        action: 'outbox.read',
+        subject: 'Reset your Poleward password',
+        details: { messageId: 'm1' },
+      },
+      {
+        id: 'e3',
+        at: '2026-12-01T10:03:00Z',
+        actor: { id: 'u-ada', name: 'Ada Marlow' },
+        action: 'auth.password_reset',
+        subject: 'ada.admin@harrow-lake.example',
+        details: { sessionsEnded: 2, tokensRevoked: 1 },
+      },
+      {
+        id: 'e2',
+        at: '2026-12-01T10:02:00Z',
+        actor: null,
+        action: 'auth.sign_in_failed',
+        subject: 'ada.admin@harrow-lake.example',
+        details: { ip: '192.0.2.7' },
+      },
+      {
+        id: 'e1',
+        at: '2026-12-01T10:01:00Z',
+        actor: { id: 'u-ada', name: 'Ada Marlow' },
+        action: 'auth.signed_in',
+        subject: 'ada.admin@harrow-lake.example',
+        details: { ip: '127.0.0.1' },
+      },
     ]);
     await settle();
     harness.detectChanges();

@@ -30,9 +30,7 @@ export class DashboardApi {
   private readonly http = inject(HttpClient);
 
   group(groupId: string): Observable<GroupDetail> {
-    return this.http
-      .get(`/api/groups/${encodeURIComponent(groupId)}`)
-      .pipe(map((body) => groupDetailSchema.parse(body)));
+    return this.http.get(`/api/groups/${encodeURIComponent(groupId)}`).pipe(map((body) => groupDetailSchema.parse(body)));
   }
 
   activity(groupId: string, limit = 20): Observable<ActivityEntry[]> {

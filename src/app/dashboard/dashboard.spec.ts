@@ -30,7 +30,14 @@ describe('Dashboard', () => {
     const harness = await RouterTestingHarness.create();
     await harness.navigateByUrl('/g/harrow-lake/dashboard', Dashboard);
     (await nextRequest(mock, '/api/groups/g-harrow/activity?limit=20')).flush([
-      { id: 'a2', at: '2026-11-30T14:05:00Z', actor: { id: 'u-ada', name: 'Ada Marlow' }, action: 'member.role_changed', subject: 'Rae Lindqvist', details: { userId: 'u-rae', from: 'designer', to: 'reviewer' } },
+      {
+        id: 'a2',
+        at: '2026-11-30T14:05:00Z',
+        actor: { id: 'u-ada', name: 'Ada Marlow' },
+        action: 'member.role_changed',
+        subject: 'Rae Lindqvist',
+        details: { userId: 'u-rae', from: 'designer', to: 'reviewer' },
+      },
       { id: 'a1', at: '2026-11-29T08:00:00Z', actor: null, action: 'invitation.created', subject: 'someone@harrow-lake.example', details: {} },
     ]);
     (await nextRequest(mock, '/api/groups/g-harrow/members')).flush([

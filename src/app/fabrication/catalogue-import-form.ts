@@ -15,17 +15,29 @@ import { FabricationApi } from './fabrication-api';
     <section class="import">
       <h2>Import resonances from another group</h2>
       <p class="muted">
-        A catalogue export (JSON, from the Catalogue page of another group) with its models. The file is checked whole: if anything in
-        it is invalid, nothing is imported. Imported resonances keep their figures and record where they came from.
+        A catalogue export (JSON, from the Catalogue page of another group) with its models. The file is checked whole: if anything in it is invalid, nothing is
+        imported. Imported resonances keep their figures and record where they came from.
       </p>
       <input #file type="file" accept="application/json,.json" hidden (change)="pick(file.files?.[0] ?? null); file.value = ''" />
-      <button mat-stroked-button type="button" (click)="file.click()" [disabled]="busy()" data-test="import-catalogue"><mat-icon>upload_file</mat-icon> Choose a JSON export…</button>
+      <button mat-stroked-button type="button" (click)="file.click()" [disabled]="busy()" data-test="import-catalogue">
+        <mat-icon>upload_file</mat-icon> Choose a JSON export…
+      </button>
       @if (result(); as r) {
         <p role="status">Imported {{ r.imported }} resonances and {{ r.models }} models.</p>
       }
     </section>
   `,
-  styles: `.import { margin-top: 24px; } .muted { color: var(--mat-sys-on-surface-variant); } h2 { font: var(--mat-sys-title-large); }`,
+  styles: `
+    .import {
+      margin-top: 24px;
+    }
+    .muted {
+      color: var(--mat-sys-on-surface-variant);
+    }
+    h2 {
+      font: var(--mat-sys-title-large);
+    }
+  `,
 })
 export class CatalogueImportForm {
   private readonly api = inject(FabricationApi);

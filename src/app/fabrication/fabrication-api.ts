@@ -40,7 +40,9 @@ export class FabricationApi {
   }
 
   comments(groupId: string, resonanceId: string): Observable<ResonanceComment[]> {
-    return this.http.get<{ items: ResonanceComment[] }>(`${this.base(groupId)}/resonances/${encodeURIComponent(resonanceId)}/comments`).pipe(map((b) => b.items));
+    return this.http
+      .get<{ items: ResonanceComment[] }>(`${this.base(groupId)}/resonances/${encodeURIComponent(resonanceId)}/comments`)
+      .pipe(map((b) => b.items));
   }
 
   comment(groupId: string, resonanceId: string, body: string, mentions: string[]): Observable<ResonanceComment> {

@@ -40,7 +40,13 @@ const item: FabricationItem = {
     measuredBy: 'Dee',
     measuredAt: '2026-12-02T10:00:00Z',
   },
-  downloads: { archive: `${base}/package.zip`, specSheet: `${base}/spec.pdf`, gdsii: `${base}/layout.gds`, dxf: `${base}/layout.dxf`, svg: `${base}/layout.svg` },
+  downloads: {
+    archive: `${base}/package.zip`,
+    specSheet: `${base}/spec.pdf`,
+    gdsii: `${base}/layout.gds`,
+    dxf: `${base}/layout.dxf`,
+    svg: `${base}/layout.svg`,
+  },
 };
 
 describe('FabricationPage', () => {
@@ -49,7 +55,11 @@ describe('FabricationPage', () => {
     const fixture = TestBed.createComponent(FabricationPage);
     fixture.detectChanges();
     const http = TestBed.inject(HttpTestingController);
-    http.expectOne('/api/groups/g1/notifications/failed').flush({ items: [{ id: 'n1', kind: 'mentioned', to: 'x@lab.example', subject: 'Hello', attempts: 6, error: '554 relay denied', createdAt: '2026-12-02T09:00:00Z' }] });
+    http.expectOne('/api/groups/g1/notifications/failed').flush({
+      items: [
+        { id: 'n1', kind: 'mentioned', to: 'x@lab.example', subject: 'Hello', attempts: 6, error: '554 relay denied', createdAt: '2026-12-02T09:00:00Z' },
+      ],
+    });
     http.expectOne('/api/groups/g1/fabrication?state=approved,sent,measured').flush({ items: [item] });
     await settle();
     fixture.detectChanges();

@@ -60,7 +60,15 @@ describe('FabricationPanel', () => {
     const req = http.expectOne(`${base}/fabrication`);
     expect(req.request.method).toBe('POST');
     expect(req.request.body).toEqual({ action: 'approve', reason: 'fits the process window' });
-    req.flush(record({ state: 'approved', allowedActions: ['send'], reviewedBy: { id: 'u-ada', name: 'Ada Marlow' }, reviewedAt: '2026-12-02T10:00:00Z', reviewReason: 'fits the process window' }));
+    req.flush(
+      record({
+        state: 'approved',
+        allowedActions: ['send'],
+        reviewedBy: { id: 'u-ada', name: 'Ada Marlow' },
+        reviewedAt: '2026-12-02T10:00:00Z',
+        reviewReason: 'fits the process window',
+      }),
+    );
     await settle();
     fixture.detectChanges();
     expect(host.querySelector('[data-test="fabrication-state"]')!.textContent).toContain('Approved');

@@ -25,7 +25,23 @@ import { FabricationApi } from './fabrication-api';
       }
     </section>
   `,
-  styles: `.settings { margin: 16px 0 24px; } ul { list-style: none; padding: 0; display: grid; gap: 8px; } h2 { font: var(--mat-sys-title-large); } .muted { color: var(--mat-sys-on-surface-variant); }`,
+  styles: `
+    .settings {
+      margin: 16px 0 24px;
+    }
+    ul {
+      list-style: none;
+      padding: 0;
+      display: grid;
+      gap: 8px;
+    }
+    h2 {
+      font: var(--mat-sys-title-large);
+    }
+    .muted {
+      color: var(--mat-sys-on-surface-variant);
+    }
+  `,
 })
 export class NotificationSettings {
   private readonly api = inject(FabricationApi);

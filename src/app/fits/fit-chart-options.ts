@@ -20,7 +20,16 @@ export function fitChartOptions(
   ];
   if (result) {
     const { x, fit, background, components, residuals } = result.curve;
-    series.push({ name: 'fit', type: 'line', showSymbol: false, data: x.map((v, i) => [v, fit[i]]), lineStyle: { color: c.primary, width: 2 }, itemStyle: { color: c.primary }, xAxisIndex: 0, yAxisIndex: 0 });
+    series.push({
+      name: 'fit',
+      type: 'line',
+      showSymbol: false,
+      data: x.map((v, i) => [v, fit[i]]),
+      lineStyle: { color: c.primary, width: 2 },
+      itemStyle: { color: c.primary },
+      xAxisIndex: 0,
+      yAxisIndex: 0,
+    });
     components.forEach((comp, k) =>
       series.push({
         name: `peak ${k + 1}`,
@@ -33,7 +42,15 @@ export function fitChartOptions(
         yAxisIndex: 0,
       }),
     );
-    series.push({ name: 'residuals', type: 'scatter', symbolSize: 3, data: x.map((v, i) => [v, residuals[i]]), itemStyle: { color: c.error }, xAxisIndex: 1, yAxisIndex: 1 });
+    series.push({
+      name: 'residuals',
+      type: 'scatter',
+      symbolSize: 3,
+      data: x.map((v, i) => [v, residuals[i]]),
+      itemStyle: { color: c.error },
+      xAxisIndex: 1,
+      yAxisIndex: 1,
+    });
   }
   const xmin = data.x.length ? Math.min(...data.x) : 0;
   const xmax = data.x.length ? Math.max(...data.x) : 1;
@@ -47,11 +64,39 @@ export function fitChartOptions(
     ],
     xAxis: [
       { type: 'value', min: xmin, max: xmax, gridIndex: 0, axisLabel: { show: false }, axisLine: { lineStyle: { color: c.outline } } },
-      { type: 'value', min: xmin, max: xmax, gridIndex: 1, name: 'energy E (meV)', nameLocation: 'middle', nameGap: 26, axisLine: { lineStyle: { color: c.outline } }, axisLabel: { color: c.onSurfaceVariant } },
+      {
+        type: 'value',
+        min: xmin,
+        max: xmax,
+        gridIndex: 1,
+        name: 'energy E (meV)',
+        nameLocation: 'middle',
+        nameGap: 26,
+        axisLine: { lineStyle: { color: c.outline } },
+        axisLabel: { color: c.onSurfaceVariant },
+      },
     ],
     yAxis: [
-      { type: 'value', gridIndex: 0, scale: true, name: 'transmission T', nameLocation: 'middle', nameGap: 50, axisLabel: { color: c.onSurfaceVariant }, splitLine: { lineStyle: { color: c.outlineVariant } } },
-      { type: 'value', gridIndex: 1, scale: true, name: 'residual', nameLocation: 'middle', nameGap: 50, axisLabel: { color: c.onSurfaceVariant }, splitLine: { show: false } },
+      {
+        type: 'value',
+        gridIndex: 0,
+        scale: true,
+        name: 'transmission T',
+        nameLocation: 'middle',
+        nameGap: 50,
+        axisLabel: { color: c.onSurfaceVariant },
+        splitLine: { lineStyle: { color: c.outlineVariant } },
+      },
+      {
+        type: 'value',
+        gridIndex: 1,
+        scale: true,
+        name: 'residual',
+        nameLocation: 'middle',
+        nameGap: 50,
+        axisLabel: { color: c.onSurfaceVariant },
+        splitLine: { show: false },
+      },
     ],
     brush: {
       xAxisIndex: 0,

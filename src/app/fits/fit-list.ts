@@ -44,7 +44,19 @@ export class FitList {
   protected readonly uploading = signal(false);
   protected readonly canWrite = computed(() => ['admin', 'designer', 'reviewer'].includes(this.group.group()?.role ?? ''));
   private file: File | null = null;
-  protected form = { deviceName: '', temperatureMK: '', notes: '', modelId: '', x: '', y: '', xUnit: 'meV', yUnit: 'T', leverArm: '', firstLine: '', lastLine: '' };
+  protected form = {
+    deviceName: '',
+    temperatureMK: '',
+    notes: '',
+    modelId: '',
+    x: '',
+    y: '',
+    xUnit: 'meV',
+    yUnit: 'T',
+    leverArm: '',
+    firstLine: '',
+    lastLine: '',
+  };
 
   constructor() {
     effect(() => {
@@ -53,7 +65,9 @@ export class FitList {
       untracked(() => {
         this.api.fits(groupId).subscribe({ next: (f) => this.fits.set(f), error: (e) => this.errors.show(e) });
         this.api.traces(groupId).subscribe({ next: (t) => this.traces.set(t), error: (e) => this.errors.show(e) });
-        this.http.get<{ items: { id: string; name: string }[] }>(`/api/groups/${groupId}/models?pageSize=200`).subscribe({ next: (m) => this.models.set(m.items) });
+        this.http
+          .get<{ items: { id: string; name: string }[] }>(`/api/groups/${groupId}/models?pageSize=200`)
+          .subscribe({ next: (m) => this.models.set(m.items) });
       });
     });
   }
@@ -90,7 +104,9 @@ export class FitList {
       error: (err) => {
         this.uploading.set(false);
         const issues = (err?.error?.issues ?? []) as { path: string; message: string }[];
-        this.problem.set([err?.error?.message ?? 'The upload failed.', ...issues.filter((i) => i.path !== 'file').map((i) => `${i.path}: ${i.message}`)].join(' '));
+        this.problem.set(
+          [err?.error?.message ?? 'The upload failed.', ...issues.filter((i) => i.path !== 'file').map((i) => `${i.path}: ${i.message}`)].join(' '),
+        );
       },
     });
   }

@@ -22,7 +22,18 @@ describe('brushRange', () => {
   it('ignores a cleared brush and a click with no width', () => {
     expect(brushRange({ type: 'brushEnd', areas: [] })).toBeNull();
     expect(brushRange(brushEnd(3.3, 3.3))).toBeNull();
-    expect(brushRange({ areas: [{ coordRange: [[1, 2], [3, 4]] }] })).toBeNull();
+    expect(
+      brushRange({
+        areas: [
+          {
+            coordRange: [
+              [1, 2],
+              [3, 4],
+            ],
+          },
+        ],
+      }),
+    ).toBeNull();
     expect(brushRange(null)).toBeNull();
   });
 });

@@ -39,7 +39,18 @@ const KT_PER_MK = 8.617333262e-5;
 @Component({
   selector: 'pw-fit-workspace',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [FormsModule, RouterLink, MatButtonModule, MatCardModule, MatFormFieldModule, MatIconModule, MatInputModule, MatProgressBarModule, MatSelectModule, NgxEchartsDirective],
+  imports: [
+    FormsModule,
+    RouterLink,
+    MatButtonModule,
+    MatCardModule,
+    MatFormFieldModule,
+    MatIconModule,
+    MatInputModule,
+    MatProgressBarModule,
+    MatSelectModule,
+    NgxEchartsDirective,
+  ],
   templateUrl: './fit-workspace.html',
   styleUrl: './fit-workspace.scss',
 })
@@ -90,7 +101,9 @@ export class FitWorkspace {
   });
   protected readonly thermalNote = computed(() => {
     const t = this.fit()?.result?.temperatureMK ?? this.temperatureMK;
-    return t ? `kT = ${significant(t * KT_PER_MK * 1000, 3)} µeV at ${t} mK; thermal width 3.53·kT = ${significant(3.5255 * t * KT_PER_MK * 1000, 3)} µeV` : null;
+    return t
+      ? `kT = ${significant(t * KT_PER_MK * 1000, 3)} µeV at ${t} mK; thermal width 3.53·kT = ${significant(3.5255 * t * KT_PER_MK * 1000, 3)} µeV`
+      : null;
   });
 
   constructor() {
@@ -222,12 +235,15 @@ export class FitWorkspace {
     const energy = Number(this.energy());
     const width = Number(this.width());
     const request: FitRequest = {
-      source: this.source.kind === 'run' ? { kind: 'run', runId: this.source.runId, pair: 0, from, to } : { kind: 'trace', traceId: this.source.traceId, from, to },
+      source:
+        this.source.kind === 'run' ? { kind: 'run', runId: this.source.runId, pair: 0, from, to } : { kind: 'trace', traceId: this.source.traceId, from, to },
       lineshape: this.lineshape,
       background: this.background,
       peaks: this.peaks,
       ...(this.temperatureMK ? { temperatureMK: this.temperatureMK } : {}),
-      ...(this.peaks === 1 && this.energy() && Number.isFinite(energy) && energy >= from && energy <= to ? { hints: [{ energy, ...(width > 0 ? { width } : {}) }] } : {}),
+      ...(this.peaks === 1 && this.energy() && Number.isFinite(energy) && energy >= from && energy <= to
+        ? { hints: [{ energy, ...(width > 0 ? { width } : {}) }] }
+        : {}),
     };
     this.busy.set(true);
     this.problem.set(null);
@@ -249,6 +265,8 @@ export class FitWorkspace {
 
   protected pm(value: number | null | undefined, error: number | null | undefined, digits = 4): string {
     if (value === null || value === undefined) return '—';
-    return error === null || error === undefined ? `${significant(value, digits)} (no uncertainty)` : `${significant(value, digits)} ± ${significant(error, 2)}`;
+    return error === null || error === undefined
+      ? `${significant(value, digits)} (no uncertainty)`
+      : `${significant(value, digits)} ± ${significant(error, 2)}`;
   }
 }

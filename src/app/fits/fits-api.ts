@@ -123,8 +123,7 @@ const base = (groupId: string) => `/api/groups/${encodeURIComponent(groupId)}`;
 export class FitsApi {
   private readonly http = inject(HttpClient);
   /** Replaced in specs; null when the browser has no EventSource, which means polling. */
-  eventSourceFactory: EventSourceFactory | null =
-    browserEventSource;
+  eventSourceFactory: EventSourceFactory | null = browserEventSource;
 
   traces(groupId: string): Observable<TraceSummary[]> {
     return this.http.get<TraceSummary[]>(`${base(groupId)}/traces`);

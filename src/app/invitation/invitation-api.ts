@@ -21,14 +21,10 @@ export class InvitationApi {
   private readonly http = inject(HttpClient);
 
   offer(token: string): Observable<InvitationOffer> {
-    return this.http
-      .get(`/api/invitations/${encodeURIComponent(token)}`)
-      .pipe(map((body) => invitationOfferSchema.parse(body)));
+    return this.http.get(`/api/invitations/${encodeURIComponent(token)}`).pipe(map((body) => invitationOfferSchema.parse(body)));
   }
 
   accept(token: string, name: string, password: string): Observable<Session> {
-    return this.http
-      .post(`/api/invitations/${encodeURIComponent(token)}/accept`, { name, password })
-      .pipe(map((body) => readSession(body)));
+    return this.http.post(`/api/invitations/${encodeURIComponent(token)}/accept`, { name, password }).pipe(map((body) => readSession(body)));
   }
 }

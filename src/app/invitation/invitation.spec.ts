@@ -78,10 +78,7 @@ describe('Invitation', () => {
 
   it('explains a used or expired link (410) instead of showing the form', async () => {
     await harness.navigateByUrl('/invitation?token=old', Invitation);
-    (await nextRequest(mock, '/api/invitations/old')).flush(
-      { status: 410, code: 'gone', message: 'gone' },
-      { status: 410, statusText: 'Gone' },
-    );
+    (await nextRequest(mock, '/api/invitations/old')).flush({ status: 410, code: 'gone', message: 'gone' }, { status: 410, statusText: 'Gone' });
     await settle();
     harness.detectChanges();
     const root = harness.routeNativeElement!;

@@ -28,15 +28,7 @@ function goneMessage(err: unknown): string {
 /** Landing page of an e-mailed invitation: shows group and role, asks for name and password. */
 @Component({
   selector: 'pw-invitation',
-  imports: [
-    ReactiveFormsModule,
-    RouterLink,
-    MatButtonModule,
-    MatFormFieldModule,
-    MatIconModule,
-    MatInputModule,
-    MatProgressBarModule,
-  ],
+  imports: [ReactiveFormsModule, RouterLink, MatButtonModule, MatFormFieldModule, MatIconModule, MatInputModule, MatProgressBarModule],
   templateUrl: './invitation.html',
 })
 export class Invitation {

@@ -51,7 +51,12 @@ describe('GroupBackup', () => {
     expect(req.request.headers.get('Content-Type')).toBe('application/gzip');
     expect(req.request.body).toBe(file);
     req.flush(
-      { status: 400, code: 'invalid_backup', message: 'The backup was not restored: 1 problem(s) found. Nothing was written.', issues: [{ path: 'line 12 (resonance) energy', message: 'Expected number' }] },
+      {
+        status: 400,
+        code: 'invalid_backup',
+        message: 'The backup was not restored: 1 problem(s) found. Nothing was written.',
+        issues: [{ path: 'line 12 (resonance) energy', message: 'Expected number' }],
+      },
       { status: 400, statusText: 'Bad Request' },
     );
     await fixture.whenStable();

@@ -55,11 +55,9 @@ export class GroupBackup {
     this.busy.set(true);
     try {
       const summary = await firstValueFrom(this.api.restore(groupId, file));
-      this.snackBar.open(
-        `Restored ${summary['models'] ?? 0} model(s), ${summary['runs'] ?? 0} run(s) and ${summary['resonances'] ?? 0} resonance(s).`,
-        'OK',
-        { duration: 8000 },
-      );
+      this.snackBar.open(`Restored ${summary['models'] ?? 0} model(s), ${summary['runs'] ?? 0} run(s) and ${summary['resonances'] ?? 0} resonance(s).`, 'OK', {
+        duration: 8000,
+      });
     } catch (err) {
       this.problem.set(toProblem(err));
     } finally {

@@ -97,8 +97,6 @@ describe('Members', () => {
     );
     await settle();
     harness.detectChanges();
-    expect(root.querySelector('[data-testid=invite-section] mat-error')?.textContent).toContain(
-      'This address is already a member (server says).',
-    );
+    expect(root.querySelector('[data-testid=invite-section] mat-error')?.textContent).toContain('This address is already a member (server says).');
   });
 });

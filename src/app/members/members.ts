@@ -66,20 +66,14 @@ export class Members {
 
   /** `undefined` while loading, `null` after a failure (reported by snackbar). */
   protected readonly members = toSignal(
-    this.key$.pipe(
-      switchMap(([id]) =>
-        id ? this.api.members(id).pipe(catchError((err: unknown) => this.failed(err))) : of(undefined),
-      ),
-    ),
+    this.key$.pipe(switchMap(([id]) => (id ? this.api.members(id).pipe(catchError((err: unknown) => this.failed(err))) : of(undefined)))),
   );
 
   /** Only admins may list invitations; others never ask. */
   protected readonly invitations = toSignal(
     this.key$.pipe(
       filter(() => this.isAdmin()),
-      switchMap(([id]) =>
-        id ? this.api.invitations(id).pipe(catchError((err: unknown) => this.failed(err))) : of(undefined),
-      ),
+      switchMap(([id]) => (id ? this.api.invitations(id).pipe(catchError((err: unknown) => this.failed(err))) : of(undefined))),
     ),
   );
 

@@ -3,7 +3,10 @@ import { fieldInWords, issueInWords } from './issue-words';
 
 describe('issueInWords', () => {
   const doc = {
-    name: 'x', spacing: 0, material: 'gaas', grid: { nx: 60, ny: 40 },
+    name: 'x',
+    spacing: 0,
+    material: 'gaas',
+    grid: { nx: 60, ny: 40 },
     shape: { kind: 'union', of: [{ kind: 'ellipse', cx: 1, cy: 2, rx: 3 }] },
     potential: [{ kind: 'gaussian', cx: 1, cy: 2, amplitude: 1 }],
     leads: [],

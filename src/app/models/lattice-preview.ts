@@ -29,12 +29,7 @@ const GLYPH_WIDTH = 0.6;
   selector: 'pw-lattice-preview',
   changeDetection: ChangeDetectionStrategy.OnPush,
   template: `
-    <svg
-      [attr.viewBox]="viewBox()"
-      preserveAspectRatio="xMidYMid meet"
-      role="img"
-      [attr.aria-label]="description()"
-    >
+    <svg [attr.viewBox]="viewBox()" preserveAspectRatio="xMidYMid meet" role="img" [attr.aria-label]="description()">
       <rect class="grid" x="0" y="0" [attr.width]="nx()" [attr.height]="ny()" />
       @if (dots(); as list) {
         @for (d of list; track $index) {
@@ -45,20 +40,40 @@ const GLYPH_WIDTH = 0.6;
       }
       @for (l of leadDrawings(); track $index) {
         <rect class="lead" [attr.x]="l.ribbon.x" [attr.y]="l.ribbon.y" [attr.width]="l.ribbon.w" [attr.height]="l.ribbon.h" />
-        <line class="mouth" [attr.x1]="l.mouth.x1" [attr.y1]="l.mouth.y1" [attr.x2]="l.mouth.x2" [attr.y2]="l.mouth.y2"
-          [attr.stroke-width]="stroke() * 2.5" />
-        <text class="lead-label" [attr.x]="l.labelAt.x" [attr.y]="l.labelAt.y" [attr.font-size]="l.labelSize"
-          text-anchor="middle" dominant-baseline="middle"><title>Lead {{ l.label }}</title>{{ l.label }}</text>
+        <line class="mouth" [attr.x1]="l.mouth.x1" [attr.y1]="l.mouth.y1" [attr.x2]="l.mouth.x2" [attr.y2]="l.mouth.y2" [attr.stroke-width]="stroke() * 2.5" />
+        <text class="lead-label" [attr.x]="l.labelAt.x" [attr.y]="l.labelAt.y" [attr.font-size]="l.labelSize" text-anchor="middle" dominant-baseline="middle">
+          <title>Lead {{ l.label }}</title>
+          {{ l.label }}
+        </text>
       }
       @for (t of termDrawings(); track $index) {
         @switch (t.kind) {
           @case ('block') {
-            <rect class="term" [class.barrier]="t.positive" [class.well]="!t.positive" [attr.x]="t.x" [attr.y]="t.y" [attr.width]="t.w" [attr.height]="t.h"
-              [attr.stroke-width]="stroke()"><title>{{ t.label }}</title></rect>
+            <rect
+              class="term"
+              [class.barrier]="t.positive"
+              [class.well]="!t.positive"
+              [attr.x]="t.x"
+              [attr.y]="t.y"
+              [attr.width]="t.w"
+              [attr.height]="t.h"
+              [attr.stroke-width]="stroke()"
+            >
+              <title>{{ t.label }}</title>
+            </rect>
           }
           @case ('gaussian') {
-            <circle class="term" [class.barrier]="t.positive" [class.well]="!t.positive" [attr.cx]="t.x" [attr.cy]="t.y" [attr.r]="t.r"
-              [attr.stroke-width]="stroke()"><title>{{ t.label }}</title></circle>
+            <circle
+              class="term"
+              [class.barrier]="t.positive"
+              [class.well]="!t.positive"
+              [attr.cx]="t.x"
+              [attr.cy]="t.y"
+              [attr.r]="t.r"
+              [attr.stroke-width]="stroke()"
+            >
+              <title>{{ t.label }}</title>
+            </circle>
             <circle class="term-halo" [attr.cx]="t.x" [attr.cy]="t.y" [attr.r]="t.r * 2" [attr.stroke-width]="stroke()" />
           }
         }
@@ -68,8 +83,13 @@ const GLYPH_WIDTH = 0.6;
         <text class="term-label" [attr.x]="nx()" [attr.y]="-margin() * 0.3" [attr.font-size]="fontSize() * 0.8" text-anchor="end">{{ d }}</text>
       }
       <g class="scale">
-        <line [attr.x1]="0" [attr.x2]="scaleBar().sites" [attr.y1]="ny() + margin() * 0.55" [attr.y2]="ny() + margin() * 0.55"
-          [attr.stroke-width]="stroke() * 2" />
+        <line
+          [attr.x1]="0"
+          [attr.x2]="scaleBar().sites"
+          [attr.y1]="ny() + margin() * 0.55"
+          [attr.y2]="ny() + margin() * 0.55"
+          [attr.stroke-width]="stroke() * 2"
+        />
         <text [attr.x]="scaleBar().sites / 2" [attr.y]="ny() + margin() * 0.9" [attr.font-size]="fontSize()" text-anchor="middle">
           {{ scaleBar().label }}
         </text>
@@ -77,19 +97,65 @@ const GLYPH_WIDTH = 0.6;
     </svg>
   `,
   styles: `
-    :host { display: block; }
-    svg { width: 100%; height: 100%; max-height: 60vh; display: block; }
-    .grid { fill: var(--mat-sys-surface-container-low); stroke: var(--mat-sys-outline-variant); stroke-width: 0.2%; vector-effect: non-scaling-stroke; }
-    .mask, .site { fill: var(--mat-sys-primary); }
-    .lead { fill: var(--mat-sys-tertiary-container); stroke: var(--mat-sys-tertiary); vector-effect: non-scaling-stroke; }
-    .mouth { stroke: var(--mat-sys-tertiary); stroke-linecap: butt; }
-    .lead-label, .scale text { fill: var(--mat-sys-on-surface); }
-    .scale line { stroke: var(--mat-sys-on-surface); }
-    .term { fill-opacity: 0.28; vector-effect: non-scaling-stroke; }
-    .term.barrier { fill: var(--mat-sys-error); stroke: var(--mat-sys-error); }
-    .term.well { fill: var(--mat-sys-secondary); stroke: var(--mat-sys-secondary); }
-    .term-halo { fill: none; stroke: var(--mat-sys-outline); stroke-dasharray: 1 1; vector-effect: non-scaling-stroke; }
-    .term-label { fill: var(--mat-sys-on-surface); paint-order: stroke; stroke: var(--mat-sys-surface); stroke-width: 0.3; }
+    :host {
+      display: block;
+    }
+    svg {
+      width: 100%;
+      height: 100%;
+      max-height: 60vh;
+      display: block;
+    }
+    .grid {
+      fill: var(--mat-sys-surface-container-low);
+      stroke: var(--mat-sys-outline-variant);
+      stroke-width: 0.2%;
+      vector-effect: non-scaling-stroke;
+    }
+    .mask,
+    .site {
+      fill: var(--mat-sys-primary);
+    }
+    .lead {
+      fill: var(--mat-sys-tertiary-container);
+      stroke: var(--mat-sys-tertiary);
+      vector-effect: non-scaling-stroke;
+    }
+    .mouth {
+      stroke: var(--mat-sys-tertiary);
+      stroke-linecap: butt;
+    }
+    .lead-label,
+    .scale text {
+      fill: var(--mat-sys-on-surface);
+    }
+    .scale line {
+      stroke: var(--mat-sys-on-surface);
+    }
+    .term {
+      fill-opacity: 0.28;
+      vector-effect: non-scaling-stroke;
+    }
+    .term.barrier {
+      fill: var(--mat-sys-error);
+      stroke: var(--mat-sys-error);
+    }
+    .term.well {
+      fill: var(--mat-sys-secondary);
+      stroke: var(--mat-sys-secondary);
+    }
+    .term-halo {
+      fill: none;
+      stroke: var(--mat-sys-outline);
+      stroke-dasharray: 1 1;
+      vector-effect: non-scaling-stroke;
+    }
+    .term-label {
+      fill: var(--mat-sys-on-surface);
+      paint-order: stroke;
+      stroke: var(--mat-sys-surface);
+      stroke-width: 0.3;
+    }
   `,
 })
 export class LatticePreview {
@@ -149,16 +215,40 @@ export class LatticePreview {
       switch (lead.side) {
         case 'left': {
           const y = ny - s - w;
-          return { label, labelSize: fit(label, len), ribbon: { x: -len, y, w: len, h: w }, mouth: { x1: 0, y1: y, x2: 0, y2: y + w }, labelAt: { x: -len / 2, y: y + w / 2 } };
+          return {
+            label,
+            labelSize: fit(label, len),
+            ribbon: { x: -len, y, w: len, h: w },
+            mouth: { x1: 0, y1: y, x2: 0, y2: y + w },
+            labelAt: { x: -len / 2, y: y + w / 2 },
+          };
         }
         case 'right': {
           const y = ny - s - w;
-          return { label, labelSize: fit(label, len), ribbon: { x: nx, y, w: len, h: w }, mouth: { x1: nx, y1: y, x2: nx, y2: y + w }, labelAt: { x: nx + len / 2, y: y + w / 2 } };
+          return {
+            label,
+            labelSize: fit(label, len),
+            ribbon: { x: nx, y, w: len, h: w },
+            mouth: { x1: nx, y1: y, x2: nx, y2: y + w },
+            labelAt: { x: nx + len / 2, y: y + w / 2 },
+          };
         }
         case 'bottom':
-          return { label, labelSize: fit(label, w), ribbon: { x: s, y: ny, w, h: len }, mouth: { x1: s, y1: ny, x2: s + w, y2: ny }, labelAt: { x: s + w / 2, y: ny + len / 2 } };
+          return {
+            label,
+            labelSize: fit(label, w),
+            ribbon: { x: s, y: ny, w, h: len },
+            mouth: { x1: s, y1: ny, x2: s + w, y2: ny },
+            labelAt: { x: s + w / 2, y: ny + len / 2 },
+          };
         case 'top':
-          return { label, labelSize: fit(label, w), ribbon: { x: s, y: -len, w, h: len }, mouth: { x1: s, y1: 0, x2: s + w, y2: 0 }, labelAt: { x: s + w / 2, y: -len / 2 } };
+          return {
+            label,
+            labelSize: fit(label, w),
+            ribbon: { x: s, y: -len, w, h: len },
+            mouth: { x1: s, y1: 0, x2: s + w, y2: 0 },
+            labelAt: { x: s + w / 2, y: -len / 2 },
+          };
       }
     });
   });

@@ -31,8 +31,15 @@ describe('addLeadStub', () => {
     // The right stub ends at the grid's right edge: x0 + width = nx·a.
     expect(right.stub.x0 + right.stub.width).toBeCloseTo(nx * a, 9);
     const doc = {
-      name: 'e', spacing: a, material: 'gaas', grid: { nx, ny }, shape: right.shape,
-      leads: [{ side: 'left', start: 15, width: 10 }, { side: 'right', start: 15, width: 10 }],
+      name: 'e',
+      spacing: a,
+      material: 'gaas',
+      grid: { nx, ny },
+      shape: right.shape,
+      leads: [
+        { side: 'left', start: 15, width: 10 },
+        { side: 'right', start: 15, width: 10 },
+      ],
     };
     expect(validateCavityModel(doc).ok).toBe(true);
   });

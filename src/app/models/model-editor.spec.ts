@@ -9,13 +9,30 @@ import type { ModelDetail } from '../core/api/models-api';
 
 /** A saved model as GET /models/:id answers, built on the editor's own starting document. */
 const saved: ModelDetail = {
-  id: 'm1', name: 'Dot A', family: 'rectangle', latestVersion: 2, material: 'gaas', spacingNm: 5, fieldT: 0, siteCount: 2400,
-  leadCount: 2, keyDimensions: { width: 300, height: 200 }, updatedAt: '2025-01-01T10:00:00Z', createdBy: { id: 'u1', name: 'Ada' },
+  id: 'm1',
+  name: 'Dot A',
+  family: 'rectangle',
+  latestVersion: 2,
+  material: 'gaas',
+  spacingNm: 5,
+  fieldT: 0,
+  siteCount: 2400,
+  leadCount: 2,
+  keyDimensions: { width: 300, height: 200 },
+  updatedAt: '2025-01-01T10:00:00Z',
+  createdBy: { id: 'u1', name: 'Ada' },
   document: { ...starterModel, name: 'Dot A' },
   versions: [{ version: 2, createdAt: '2025-01-01T10:00:00Z', createdBy: { id: 'u1', name: 'Ada' }, usedByRuns: 1 }],
   derived: {
-    siteCount: 2400, hopping: 22.75, massRatio: 0.067, energyCeiling: 11.4, wavelengthCeiling: 8.9, fluxPerPlaquette: 0,
-    cyclotronEnergy: 0, magneticLength: Infinity, leads: [],
+    siteCount: 2400,
+    hopping: 22.75,
+    massRatio: 0.067,
+    energyCeiling: 11.4,
+    wavelengthCeiling: 8.9,
+    fluxPerPlaquette: 0,
+    cyclotronEnergy: 0,
+    magneticLength: Infinity,
+    leads: [],
   },
 };
 

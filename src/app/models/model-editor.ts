@@ -14,11 +14,7 @@ import { MatSnackBar } from '@angular/material/snack-bar';
 import { MatTooltipModule } from '@angular/material/tooltip';
 import { Router, RouterLink } from '@angular/router';
 import { Subject, catchError, debounceTime, map, of, switchMap } from 'rxjs';
-import {
-  type CavityModelInput,
-  MAX_GRID_POINTS,
-  shapeSchema,
-} from '../../../shared/model/cavity-model';
+import { type CavityModelInput, MAX_GRID_POINTS, shapeSchema } from '../../../shared/model/cavity-model';
 import { validateCavityModel } from '../../../shared/model/model-validation';
 import { rasteriseShape } from '../../../shared/model/geometry';
 import { CurrentGroup } from '../core/group/current-group';
@@ -406,4 +402,3 @@ function drawingOf(doc: CavityModelInput): Drawing {
     return empty(err instanceof Error ? err.message : String(err));
   }
 }
-

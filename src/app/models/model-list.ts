@@ -69,7 +69,9 @@ import { type ModelSummary, ModelsApi } from '../core/api/models-api';
     <table mat-table [dataSource]="items()">
       <ng-container matColumnDef="name">
         <th mat-header-cell *matHeaderCellDef>Name</th>
-        <td mat-cell *matCellDef="let m"><a [routerLink]="['/g', group.slug(), 'models', m.id]">{{ m.name }}</a></td>
+        <td mat-cell *matCellDef="let m">
+          <a [routerLink]="['/g', group.slug(), 'models', m.id]">{{ m.name }}</a>
+        </td>
       </ng-container>
       <ng-container matColumnDef="family">
         <th mat-header-cell *matHeaderCellDef>Geometry</th>
@@ -104,14 +106,33 @@ import { type ModelSummary, ModelsApi } from '../core/api/models-api';
     <mat-paginator [length]="total()" [pageSize]="pageSize()" [pageIndex]="page() - 1" [pageSizeOptions]="[10, 25, 50]" (page)="onPage($event)" />
   `,
   styles: `
-    :host { display: block; }
-    .page-head { display: flex; align-items: center; }
-    .page-head h1 { font: var(--mat-sys-headline-small); }
-    .spacer { flex: 1; }
-    .filters { display: flex; gap: 12px; flex-wrap: wrap; }
-    .issue { color: var(--mat-sys-error); }
-    .empty { padding: 16px; }
-    .num { white-space: nowrap; }
+    :host {
+      display: block;
+    }
+    .page-head {
+      display: flex;
+      align-items: center;
+    }
+    .page-head h1 {
+      font: var(--mat-sys-headline-small);
+    }
+    .spacer {
+      flex: 1;
+    }
+    .filters {
+      display: flex;
+      gap: 12px;
+      flex-wrap: wrap;
+    }
+    .issue {
+      color: var(--mat-sys-error);
+    }
+    .empty {
+      padding: 16px;
+    }
+    .num {
+      white-space: nowrap;
+    }
   `,
 })
 export class ModelList {
@@ -133,8 +154,16 @@ export class ModelList {
 
   constructor() {
     combineLatest([
-      this.search.valueChanges.pipe(startWith(''), debounceTime(300), distinctUntilChanged(), tap(() => this.page.set(1))),
-      this.family.valueChanges.pipe(startWith(''), tap(() => this.page.set(1))),
+      this.search.valueChanges.pipe(
+        startWith(''),
+        debounceTime(300),
+        distinctUntilChanged(),
+        tap(() => this.page.set(1)),
+      ),
+      this.family.valueChanges.pipe(
+        startWith(''),
+        tap(() => this.page.set(1)),
+      ),
       toObservable(this.paging),
       toObservable(this.group.id),
     ])

@@ -29,15 +29,23 @@ type TermValue = Record<string, unknown>;
             @for (f of fields; track f.key) {
               <mat-form-field subscriptSizing="dynamic">
                 <mat-label>{{ f.label }}</mat-label>
-                <input matInput type="number" [value]="numberOf(t, f.key)" (input)="setNumber(k, f.key, $event)" [readonly]="readonly()"
-                  [attr.data-field]="'potential.' + k + '.' + f.key" />
+                <input
+                  matInput
+                  type="number"
+                  [value]="numberOf(t, f.key)"
+                  (input)="setNumber(k, f.key, $event)"
+                  [readonly]="readonly()"
+                  [attr.data-field]="'potential.' + k + '.' + f.key"
+                />
                 @if (issueAt('potential.' + k + '.' + f.key); as m) {
                   <mat-hint class="field-issue">{{ m }}</mat-hint>
                 }
               </mat-form-field>
             }
             @if (t['kind'] === 'disorder' && !readonly()) {
-              <button mat-icon-button type="button" (click)="reseed(k)" aria-label="New seed" matTooltip="New seed: another disorder realisation"><mat-icon>casino</mat-icon></button>
+              <button mat-icon-button type="button" (click)="reseed(k)" aria-label="New seed" matTooltip="New seed: another disorder realisation">
+                <mat-icon>casino</mat-icon>
+              </button>
             }
           } @else {
             <mat-form-field class="wide" subscriptSizing="dynamic">
@@ -46,7 +54,9 @@ type TermValue = Record<string, unknown>;
             </mat-form-field>
           }
           @if (!readonly()) {
-            <button mat-icon-button type="button" (click)="remove(k)" [attr.aria-label]="'Remove term ' + (k + 1)" matTooltip="Remove this term"><mat-icon>delete</mat-icon></button>
+            <button mat-icon-button type="button" (click)="remove(k)" [attr.aria-label]="'Remove term ' + (k + 1)" matTooltip="Remove this term">
+              <mat-icon>delete</mat-icon>
+            </button>
           }
         </div>
         @for (m of otherIssues(k); track $index) {
@@ -66,15 +76,44 @@ type TermValue = Record<string, unknown>;
     }
   `,
   styles: `
-    :host { display: block; }
-    .term { border: 1px solid var(--mat-sys-outline-variant); border-radius: 8px; margin: 0 0 8px; padding: 4px 12px 8px; }
-    .row { display: flex; flex-wrap: wrap; gap: 8px 12px; align-items: flex-start; }
-    .row mat-form-field { width: 150px; }
-    .row .wide { width: 100%; flex: 1 1 100%; }
-    .code { font-family: ui-monospace, monospace; font-size: 12px; }
-    .field-issue { color: var(--mat-sys-error); white-space: normal; }
-    .issue { color: var(--mat-sys-error); margin: 4px 0; overflow-wrap: anywhere; }
-    .muted { color: var(--mat-sys-on-surface-variant); }
+    :host {
+      display: block;
+    }
+    .term {
+      border: 1px solid var(--mat-sys-outline-variant);
+      border-radius: 8px;
+      margin: 0 0 8px;
+      padding: 4px 12px 8px;
+    }
+    .row {
+      display: flex;
+      flex-wrap: wrap;
+      gap: 8px 12px;
+      align-items: flex-start;
+    }
+    .row mat-form-field {
+      width: 150px;
+    }
+    .row .wide {
+      width: 100%;
+      flex: 1 1 100%;
+    }
+    .code {
+      font-family: ui-monospace, monospace;
+      font-size: 12px;
+    }
+    .field-issue {
+      color: var(--mat-sys-error);
+      white-space: normal;
+    }
+    .issue {
+      color: var(--mat-sys-error);
+      margin: 4px 0;
+      overflow-wrap: anywhere;
+    }
+    .muted {
+      color: var(--mat-sys-on-surface-variant);
+    }
   `,
 })
 export class PotentialEditor {

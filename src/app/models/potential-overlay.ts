@@ -25,7 +25,17 @@ export function potentialOverlay(terms: readonly Record<string, unknown>[], nx: 
       const top = ny - (by + bh) / a;
       const h = bh / a;
       const short = `${k + 1}: ${signed(v)} meV`;
-      out.push({ kind: 'block', x, y: top, w, h, positive: v >= 0, label: `Term ${k + 1}: block, V = ${v} meV`, short, labelAt: { x: x + w / 2, y: Math.max(top - 0.6, -nx * 0.02) } });
+      out.push({
+        kind: 'block',
+        x,
+        y: top,
+        w,
+        h,
+        positive: v >= 0,
+        label: `Term ${k + 1}: block, V = ${v} meV`,
+        short,
+        labelAt: { x: x + w / 2, y: Math.max(top - 0.6, -nx * 0.02) },
+      });
     } else if (t['kind'] === 'gaussian') {
       const { cx, cy, sigma, amplitude } = t as Record<string, unknown>;
       if (![cx, cy, sigma, amplitude].every(isNum)) return;
@@ -33,7 +43,16 @@ export function potentialOverlay(terms: readonly Record<string, unknown>[], nx: 
       const y = ny - (cy as number) / a - 0.5;
       const r = (sigma as number) / a;
       const v = amplitude as number;
-      out.push({ kind: 'gaussian', x, y, r, positive: v >= 0, label: `Term ${k + 1}: Gaussian, A = ${v} meV, σ = ${sigma} nm`, short: `${k + 1}: ${signed(v)} meV`, labelAt: { x, y: y - r - 0.6 } });
+      out.push({
+        kind: 'gaussian',
+        x,
+        y,
+        r,
+        positive: v >= 0,
+        label: `Term ${k + 1}: Gaussian, A = ${v} meV, σ = ${sigma} nm`,
+        short: `${k + 1}: ${signed(v)} meV`,
+        labelAt: { x, y: y - r - 0.6 },
+      });
     }
   });
   void nx;

@@ -54,10 +54,9 @@ describe('ShapeEditor', () => {
   });
 
   it('shows an issue under the field it names, inside the member', () => {
-    const { host } = mount(
-      { kind: 'union', of: [{ kind: 'ellipse', cx: 1, cy: 2, rx: 3 }] },
-      [{ path: 'shape.of.0.ry', message: 'Shape, member 1 of the union, semi-axis y (ry) is missing: enter a number.' }],
-    );
+    const { host } = mount({ kind: 'union', of: [{ kind: 'ellipse', cx: 1, cy: 2, rx: 3 }] }, [
+      { path: 'shape.of.0.ry', message: 'Shape, member 1 of the union, semi-axis y (ry) is missing: enter a number.' },
+    ]);
     const field = host.querySelector('[data-field="shape.of.0.ry"]')!.closest('mat-form-field')!;
     expect(field.textContent).toContain('semi-axis y (ry) is missing');
   });

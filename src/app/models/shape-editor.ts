@@ -88,7 +88,10 @@ export class ShapeEditor {
   protected setVertices(event: Event): void {
     const lines = (event.target as HTMLTextAreaElement).value.split('\n').filter((l) => l.trim());
     const vertices = lines.map((l) => {
-      const nums = l.split(/[,;\s]+/).filter(Boolean).map(Number);
+      const nums = l
+        .split(/[,;\s]+/)
+        .filter(Boolean)
+        .map(Number);
       return nums.length === 2 && nums.every(Number.isFinite) ? nums : l.trim();
     });
     this.shapeChange.emit({ ...this.shape(), vertices });

@@ -61,7 +61,15 @@ export const shapeNumberFields: Partial<Record<ShapeKind, ShapeNumberField[]>> =
 export function shapeFieldLabel(kind: string, key: string): string | null {
   const f = shapeNumberFields[kind as ShapeKind]?.find((x) => x.key === key);
   if (f) return f.label;
-  const others: Record<string, string> = { vertices: 'Vertices', list: 'Site list', of: 'Members', from: 'Base shape', remove: 'Removed shapes', data: 'Bitmap data', kind: 'Shape kind' };
+  const others: Record<string, string> = {
+    vertices: 'Vertices',
+    list: 'Site list',
+    of: 'Members',
+    from: 'Base shape',
+    remove: 'Removed shapes',
+    data: 'Bitmap data',
+    kind: 'Shape kind',
+  };
   return others[key] ?? null;
 }
 
@@ -94,7 +102,14 @@ export function defaultShape(kind: ShapeKind, extent: GridExtent, previous?: Rec
     case 'annulus':
       return { kind, cx, cy, inner: round(r * 0.5), outer: r };
     case 'polygon':
-      return { kind, vertices: [[round(w * 0.1), round(h * 0.1)], [round(w * 0.9), round(h * 0.1)], [round(w / 2), round(h * 0.9)]] };
+      return {
+        kind,
+        vertices: [
+          [round(w * 0.1), round(h * 0.1)],
+          [round(w * 0.9), round(h * 0.1)],
+          [round(w / 2), round(h * 0.9)],
+        ],
+      };
     case 'union':
       return { kind, of: [previous && isShape(previous) ? (previous as unknown as Shape) : defaultShape('disk', extent)] };
     case 'subtract':

@@ -8,12 +8,23 @@ const C = 299.792458;
 const k2 = (fGhz: number, eps: number) => ((2 * Math.PI * fGhz * Math.sqrt(eps)) / C) ** 2;
 
 const figures = (over: Partial<DerivedFigures>): DerivedFigures => ({
-  siteCount: 1000, hopping: 4, massRatio: 1, energyCeiling: 2, wavelengthCeiling: 2, fluxPerPlaquette: 0, cyclotronEnergy: 0,
-  magneticLength: Infinity, leads: [], physics: 'microwave', permittivity: 2.2, heightMm: 4, twoDimensionalLimitGhz: C / (2 * 4 * Math.sqrt(2.2)),
+  siteCount: 1000,
+  hopping: 4,
+  massRatio: 1,
+  energyCeiling: 2,
+  wavelengthCeiling: 2,
+  fluxPerPlaquette: 0,
+  cyclotronEnergy: 0,
+  magneticLength: Infinity,
+  leads: [],
+  physics: 'microwave',
+  permittivity: 2.2,
+  heightMm: 4,
+  twoDimensionalLimitGhz: C / (2 * 4 * Math.sqrt(2.2)),
   ...over,
 });
 
-describe('the editor\'s 2D-limit warning (microwave mode)', () => {
+describe("the editor's 2D-limit warning (microwave mode)", () => {
   const limit = C / (2 * 4 * Math.sqrt(2.2)); // 25.26 GHz for h = 4 mm, ε_r = 2.2
 
   it('warns when the trusted lattice ceiling lies above c/(2h√ε_r)', () => {
@@ -24,7 +35,11 @@ describe('the editor\'s 2D-limit warning (microwave mode)', () => {
 
   it('counts lead thresholds above the limit and stays quiet below it', () => {
     const t = (f: number) => ({ channel: 1, transverse: 0, opens: k2(f, 2.2), closes: 0 });
-    const below = figures({ energyCeiling: k2(20, 2.2), wavelengthCeiling: k2(20, 2.2), leads: [{ name: 'P1', side: 'left', width: 10, offset: 0, thresholds: [t(5), t(12)] }] });
+    const below = figures({
+      energyCeiling: k2(20, 2.2),
+      wavelengthCeiling: k2(20, 2.2),
+      leads: [{ name: 'P1', side: 'left', width: 10, offset: 0, thresholds: [t(5), t(12)] }],
+    });
     expect(twoDimensionalLimitWarning(below)).toBeNull();
     const above = { ...below, leads: [{ ...below.leads[0], thresholds: [t(5), t(26), t(40)] }] };
     expect(twoDimensionalLimitWarning(above)).toContain('2 lead channel threshold(s) lie above it, from 26.00 GHz');

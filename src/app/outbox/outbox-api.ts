@@ -29,8 +29,6 @@ export class OutboxApi {
   }
 
   message(id: string): Observable<OutboxMessageData> {
-    return this.http
-      .get(`/api/outbox/${encodeURIComponent(id)}`)
-      .pipe(map((body) => outboxMessageSchema.parse(body)));
+    return this.http.get(`/api/outbox/${encodeURIComponent(id)}`).pipe(map((body) => outboxMessageSchema.parse(body)));
   }
 }

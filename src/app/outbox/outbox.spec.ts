@@ -46,15 +46,10 @@ describe('Outbox', () => {
 
   it('explains the 404 anyone but the site operator, or a real mail host, gets', async () => {
     await harness.navigateByUrl('/outbox', Outbox);
-    (await nextRequest(mock, '/api/outbox')).flush(
-      { status: 404, code: 'not_found', message: 'Not found.' },
-      { status: 404, statusText: 'Not Found' },
-    );
+    (await nextRequest(mock, '/api/outbox')).flush({ status: 404, code: 'not_found', message: 'Not found.' }, { status: 404, statusText: 'Not Found' });
     await settle();
     harness.detectChanges();
-    expect(harness.routeNativeElement!.querySelector('[data-testid=outbox-unavailable]')?.textContent).toContain(
-      'only the site operator',
-    );
+    expect(harness.routeNativeElement!.querySelector('[data-testid=outbox-unavailable]')?.textContent).toContain('only the site operator');
   });
 
   it('shows a message with its links clickable', async () => {

@@ -19,15 +19,7 @@ import { ResetPasswordApi } from './reset-password-api';
  */
 @Component({
   selector: 'pw-reset-password',
-  imports: [
-    ReactiveFormsModule,
-    RouterLink,
-    MatButtonModule,
-    MatFormFieldModule,
-    MatIconModule,
-    MatInputModule,
-    MatProgressBarModule,
-  ],
+  imports: [ReactiveFormsModule, RouterLink, MatButtonModule, MatFormFieldModule, MatIconModule, MatInputModule, MatProgressBarModule],
   templateUrl: './reset-password.html',
 })
 export class ResetPassword {

@@ -82,7 +82,9 @@ export class ReviewQueue {
         next: () => {
           this.busy.set(null);
           this.items.update((list) => list?.filter((i) => i.resonanceId !== item.resonanceId));
-          this.snackBar.open(action === 'approve' ? 'Approved: the proposer is told by e-mail.' : 'Rejected: the proposer is told by e-mail.', 'OK', { duration: 4000 });
+          this.snackBar.open(action === 'approve' ? 'Approved: the proposer is told by e-mail.' : 'Rejected: the proposer is told by e-mail.', 'OK', {
+            duration: 4000,
+          });
         },
         error: (err: unknown) => {
           this.busy.set(null);

@@ -24,15 +24,42 @@ export function overlayPolesOptions(a: ComparedRun, b: ComparedRun, colours: Cha
     animation: false,
     grid: { left: 80, right: 24, top: 40, bottom: 56 },
     legend: { top: 4, textStyle: { color: c.onSurface } },
-    tooltip: { trigger: 'item', formatter: (p: { seriesName: string; value: number[] }) => `${p.seriesName}<br>E = ${p.value[0].toPrecision(6)} meV<br>${view === 'width' ? 'Γ' : 'Im z'} = ${p.value[1].toPrecision(3)} meV` },
+    tooltip: {
+      trigger: 'item',
+      formatter: (p: { seriesName: string; value: number[] }) =>
+        `${p.seriesName}<br>E = ${p.value[0].toPrecision(6)} meV<br>${view === 'width' ? 'Γ' : 'Im z'} = ${p.value[1].toPrecision(3)} meV`,
+    },
     xAxis: { type: 'value', name: 'E (meV)', nameLocation: 'middle', nameGap: 32, scale: true, axisLabel: axisText, nameTextStyle: axisText },
     yAxis:
       view === 'width'
-        ? { type: 'log', name: 'width Γ (meV, log)', nameLocation: 'middle', nameGap: 60, min: range.min, max: range.max, axisLabel: { ...axisText, formatter: (v: number) => v.toExponential(0) }, nameTextStyle: axisText }
+        ? {
+            type: 'log',
+            name: 'width Γ (meV, log)',
+            nameLocation: 'middle',
+            nameGap: 60,
+            min: range.min,
+            max: range.max,
+            axisLabel: { ...axisText, formatter: (v: number) => v.toExponential(0) },
+            nameTextStyle: axisText,
+          }
         : { type: 'value', name: 'Im z = −Γ/2 (meV)', nameLocation: 'middle', nameGap: 60, max: 0, axisLabel: axisText, nameTextStyle: axisText },
     series: [
-      { name: a.label, type: 'scatter', symbol: 'circle', symbolSize: 10, itemStyle: { color: c.primary, opacity: 0.8 }, data: a.poles.filter(keep).map((p) => [p.energy, y(p)]) },
-      { name: b.label, type: 'scatter', symbol: 'diamond', symbolSize: 11, itemStyle: { color: c.tertiary, opacity: 0.8 }, data: b.poles.filter(keep).map((p) => [p.energy, y(p)]) },
+      {
+        name: a.label,
+        type: 'scatter',
+        symbol: 'circle',
+        symbolSize: 10,
+        itemStyle: { color: c.primary, opacity: 0.8 },
+        data: a.poles.filter(keep).map((p) => [p.energy, y(p)]),
+      },
+      {
+        name: b.label,
+        type: 'scatter',
+        symbol: 'diamond',
+        symbolSize: 11,
+        itemStyle: { color: c.tertiary, opacity: 0.8 },
+        data: b.poles.filter(keep).map((p) => [p.energy, y(p)]),
+      },
     ],
   };
 }
@@ -62,7 +89,15 @@ export function overlaySpectraOptions(a: ComparedRun, b: ComparedRun, colours: C
     tooltip: { trigger: 'axis' },
     dataZoom: [{ type: 'inside' }],
     xAxis: { type: 'value', name: 'E (meV)', nameLocation: 'middle', nameGap: 30, scale: true, axisLabel: axisText, nameTextStyle: axisText },
-    yAxis: { type: 'value', name: quantity === 'conductance' ? 'G (2e²/h)' : 'transmission T', nameLocation: 'middle', nameGap: 40, min: 0, axisLabel: axisText, nameTextStyle: axisText },
+    yAxis: {
+      type: 'value',
+      name: quantity === 'conductance' ? 'G (2e²/h)' : 'transmission T',
+      nameLocation: 'middle',
+      nameGap: 40,
+      min: 0,
+      axisLabel: axisText,
+      nameTextStyle: axisText,
+    },
     series,
   };
 }

@@ -40,27 +40,72 @@ const RIGHT = 16;
       <text class="unit" [attr.x]="width - right" y="70" text-anchor="end">E (meV)</text>
     </svg>
     <p class="legend">
-      <span class="key band-key"></span> window
-      <span class="key threshold-key"></span> channel thresholds ({{ visible().length }} shown{{ hidden() ? ', ' + hidden() + ' beyond the axis' : '' }})
+      <span class="key band-key"></span> window <span class="key threshold-key"></span> channel thresholds ({{ visible().length }} shown{{
+        hidden() ? ', ' + hidden() + ' beyond the axis' : ''
+      }})
       @if (hopping()) {
         <span class="key hopping-key"></span> hopping t
       }
     </p>
   `,
   styles: `
-    :host { display: block; }
-    svg { width: 100%; height: auto; display: block; }
-    .band { fill: var(--mat-sys-primary-container); stroke: var(--mat-sys-primary); }
-    .axis, .tick { stroke: var(--mat-sys-on-surface-variant); }
-    .tick-label, .unit { font-size: 10px; fill: var(--mat-sys-on-surface-variant); }
-    .threshold { stroke: var(--mat-sys-tertiary); stroke-width: 1.5; }
-    .hopping { stroke: var(--mat-sys-error); stroke-dasharray: 3 2; }
-    .hopping-label { font-size: 10px; fill: var(--mat-sys-error); }
-    .legend { font: var(--mat-sys-body-small); color: var(--mat-sys-on-surface-variant); margin: 2px 0; }
-    .key { display: inline-block; width: 12px; height: 10px; margin: 0 4px 0 10px; vertical-align: middle; }
-    .band-key { background: var(--mat-sys-primary-container); border: 1px solid var(--mat-sys-primary); }
-    .threshold-key { border-left: 2px solid var(--mat-sys-tertiary); width: 0; }
-    .hopping-key { border-left: 2px dashed var(--mat-sys-error); width: 0; }
+    :host {
+      display: block;
+    }
+    svg {
+      width: 100%;
+      height: auto;
+      display: block;
+    }
+    .band {
+      fill: var(--mat-sys-primary-container);
+      stroke: var(--mat-sys-primary);
+    }
+    .axis,
+    .tick {
+      stroke: var(--mat-sys-on-surface-variant);
+    }
+    .tick-label,
+    .unit {
+      font-size: 10px;
+      fill: var(--mat-sys-on-surface-variant);
+    }
+    .threshold {
+      stroke: var(--mat-sys-tertiary);
+      stroke-width: 1.5;
+    }
+    .hopping {
+      stroke: var(--mat-sys-error);
+      stroke-dasharray: 3 2;
+    }
+    .hopping-label {
+      font-size: 10px;
+      fill: var(--mat-sys-error);
+    }
+    .legend {
+      font: var(--mat-sys-body-small);
+      color: var(--mat-sys-on-surface-variant);
+      margin: 2px 0;
+    }
+    .key {
+      display: inline-block;
+      width: 12px;
+      height: 10px;
+      margin: 0 4px 0 10px;
+      vertical-align: middle;
+    }
+    .band-key {
+      background: var(--mat-sys-primary-container);
+      border: 1px solid var(--mat-sys-primary);
+    }
+    .threshold-key {
+      border-left: 2px solid var(--mat-sys-tertiary);
+      width: 0;
+    }
+    .hopping-key {
+      border-left: 2px dashed var(--mat-sys-error);
+      width: 0;
+    }
   `,
 })
 export class EnergyAxis {

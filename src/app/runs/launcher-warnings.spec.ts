@@ -8,9 +8,6 @@ describe('launcherWarnings', () => {
       'This run is expected to take more than ten minutes.',
     ];
     const out = launcherWarnings(estimate, validity);
-    expect(out.map((w) => w.text)).toEqual([
-      `Model validity at E max: ${validity[0]}`,
-      'This run is expected to take more than ten minutes.',
-    ]);
+    expect(out.map((w) => w.text)).toEqual([`Model validity at E max: ${validity[0]}`, 'This run is expected to take more than ten minutes.']);
   });
 });

@@ -2,8 +2,15 @@ import { matchPoles } from './pole-matching';
 
 describe('matchPoles', () => {
   it('pairs each pole with its nearest partner once, closest pairs first, and keeps the lone ones', () => {
-    const a = [{ energy: 1, width: 0.01 }, { energy: 2, width: 0.02 }, { energy: 2.05, width: 0.02 }];
-    const b = [{ energy: 2.04, width: 0.03 }, { energy: 1.01, width: 0.012 }];
+    const a = [
+      { energy: 1, width: 0.01 },
+      { energy: 2, width: 0.02 },
+      { energy: 2.05, width: 0.02 },
+    ];
+    const b = [
+      { energy: 2.04, width: 0.03 },
+      { energy: 1.01, width: 0.012 },
+    ];
     const rows = matchPoles(a, b);
     expect(rows).toHaveLength(3);
     expect(rows[0].a).toBe(a[0]);

@@ -1,6 +1,6 @@
 import type { ResonanceRow } from '../catalogue/catalogue-api';
-import type { ChartColours } from './chart-colours';
-import { polePlaneOptions } from './pole-plane-options';
+import type { ChartColours } from '../core/charts/chart-colours';
+import { polePlaneOptions } from '../core/charts/pole-plane-options';
 import { microwaveCells, validitySummary } from './pole-validity';
 
 const colours = new Proxy({}, { get: () => '#000' }) as ChartColours;

@@ -106,18 +106,24 @@ export class RunCompare {
     };
     if (ids.a && ids.b) {
       const side = (id: string, label: string) =>
-        this.runs.run(groupId, id).pipe(
-          switchMap((run) =>
-            this.models.version(groupId, run.modelId, run.modelVersion).pipe(
-              map((v): Side => ({ label, run, document: v.document, title: `${run.modelName} v${run.modelVersion}` })),
+        this.runs
+          .run(groupId, id)
+          .pipe(
+            switchMap((run) =>
+              this.models
+                .version(groupId, run.modelId, run.modelVersion)
+                .pipe(map((v): Side => ({ label, run, document: v.document, title: `${run.modelName} v${run.modelVersion}` }))),
             ),
-          ),
-        );
-      forkJoin([side(ids.a, 'A'), side(ids.b, 'B')]).pipe(takeUntilDestroyed(this.destroyRef)).subscribe(done);
+          );
+      forkJoin([side(ids.a, 'A'), side(ids.b, 'B')])
+        .pipe(takeUntilDestroyed(this.destroyRef))
+        .subscribe(done);
     } else if (ids.model && ids.va && ids.vb) {
       const side = (v: number, label: string) =>
         this.models.version(groupId, ids.model!, v).pipe(map((mv): Side => ({ label, run: null, document: mv.document, title: `version ${v}` })));
-      forkJoin([side(Number(ids.va), 'A'), side(Number(ids.vb), 'B')]).pipe(takeUntilDestroyed(this.destroyRef)).subscribe(done);
+      forkJoin([side(Number(ids.va), 'A'), side(Number(ids.vb), 'B')])
+        .pipe(takeUntilDestroyed(this.destroyRef))
+        .subscribe(done);
     } else {
       of(null).subscribe(() => this.failed.set('Pick two runs in the run list (or two versions of a model) to compare them.'));
     }

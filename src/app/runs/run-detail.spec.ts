@@ -37,10 +37,33 @@ class TransmissionStub {
 
 const pole = (over: Partial<ResonanceRow>): ResonanceRow =>
   ({
-    id: 'p', runId: 'r1', source: 'computed', fitId: null, modelId: 'm1', modelName: 'Dot A', modelVersion: 2, family: 'rectangle',
-    keyDimensions: {}, material: 'GaAs', fieldT: 0, energy: 8, width: 0.01, lifetimePs: 0.0658, quality: 800, partialWidths: [],
-    petermann: 1.01, residual: 1e-12, bound: false, nearThreshold: false, overlapping: false, tags: [], notes: '', createdAt: '2025-01-01T10:00:00Z',
-    thumbnailUrl: null, imageUrl: null, ...over,
+    id: 'p',
+    runId: 'r1',
+    source: 'computed',
+    fitId: null,
+    modelId: 'm1',
+    modelName: 'Dot A',
+    modelVersion: 2,
+    family: 'rectangle',
+    keyDimensions: {},
+    material: 'GaAs',
+    fieldT: 0,
+    energy: 8,
+    width: 0.01,
+    lifetimePs: 0.0658,
+    quality: 800,
+    partialWidths: [],
+    petermann: 1.01,
+    residual: 1e-12,
+    bound: false,
+    nearThreshold: false,
+    overlapping: false,
+    tags: [],
+    notes: '',
+    createdAt: '2025-01-01T10:00:00Z',
+    thumbnailUrl: null,
+    imageUrl: null,
+    ...over,
   }) as ResonanceRow;
 
 async function completedPage(poles: ResonanceRow[]) {
@@ -64,12 +87,7 @@ describe('RunDetail', () => {
   it('follows its run on the event stream, in plain words, and loads the run again when it ends', async () => {
     FakeEventSource.made = [];
     TestBed.configureTestingModule({
-      providers: [
-        provideHttpClient(),
-        provideHttpClientTesting(),
-        provideRouter([]),
-        provideFakeCurrentGroup('viewer'),
-      ],
+      providers: [provideHttpClient(), provideHttpClientTesting(), provideRouter([]), provideFakeCurrentGroup('viewer')],
     });
     TestBed.inject(RunsApi).eventSourceFactory = (url) => new FakeEventSource(url) as unknown as EventSource;
     const http = TestBed.inject(HttpTestingController);
@@ -117,7 +135,11 @@ describe('RunDetail', () => {
     await settle();
     const startedAt = new Date(Date.now() - 40_000).toISOString();
     http.expectOne('/api/groups/g1/runs/r1').flush({
-      ...detail, startedAt, note: 'ry scan, second point', estimate: { expectedSeconds: 100 }, progress: { stage: 'contour', fraction: 0.4 },
+      ...detail,
+      startedAt,
+      note: 'ry scan, second point',
+      estimate: { expectedSeconds: 100 },
+      progress: { stage: 'contour', fraction: 0.4 },
     });
     fixture.detectChanges();
     const host = fixture.nativeElement as HTMLElement;
@@ -137,7 +159,9 @@ describe('RunDetail', () => {
       pole({ id: 'c', energy: 9.9, validity: { ...v, aboveLimit: true } }),
     ]);
     const host = fixture.nativeElement as HTMLElement;
-    expect(host.querySelector('[data-test="validity-line"]')!.textContent).toContain('2 of 3 poles lie above the energy where the lattice is trusted (8.690 meV)');
+    expect(host.querySelector('[data-test="validity-line"]')!.textContent).toContain(
+      '2 of 3 poles lie above the energy where the lattice is trusted (8.690 meV)',
+    );
     const cells = Array.from(host.querySelectorAll('[data-test="validity-cell"]'));
     expect(cells.map((c) => !!c.querySelector('[data-test="above-limit"]'))).toEqual([false, true, true]);
     expect(cells[1].querySelector('[data-test="above-limit"]')!.getAttribute('aria-label')).toContain('fewer than 10 lattice spacings');
@@ -148,10 +172,13 @@ describe('RunDetail', () => {
     expect((plane.poles() as { aboveLimit: boolean }[]).map((p) => p.aboveLimit)).toEqual([false, true, true]);
   });
 
-  it('shows a microwave run\'s poles as frequency, width, lifetime and Q from their stored figures', async () => {
+  it("shows a microwave run's poles as frequency, width, lifetime and Q from their stored figures", async () => {
     const fixture = await completedPage([
       pole({
-        id: 'm', physics: 'microwave', energy: 1.234, width: 2e-4,
+        id: 'm',
+        physics: 'microwave',
+        energy: 1.234,
+        width: 2e-4,
         validity: { limit: 3.3, wavelengthSpacings: 22, aboveLimit: false },
         microwave: { frequencyGhz: 5.30123456, widthMhz: 0.87654, lifetimeNs: 0.18157, quality: 6047.9, validityLimitGhz: 8.75 },
       }),
@@ -174,10 +201,19 @@ describe('RunDetail', () => {
 describe('RunDetail reflection toggle', () => {
   const spectrum = {
     energies: [3, 4, 5],
-    pairs: [{ from: 0, to: 1 }, { from: 1, to: 0 }],
-    transmission: [[0.2, 0.5, 0.9], [0.2, 0.5, 0.9]],
+    pairs: [
+      { from: 0, to: 1 },
+      { from: 1, to: 0 },
+    ],
+    transmission: [
+      [0.2, 0.5, 0.9],
+      [0.2, 0.5, 0.9],
+    ],
     residual: [1e-14, 1e-14, 1e-14],
-    reflection: [[0.8, 0.5, 0.1], [0.8, 0.5, 0.1]],
+    reflection: [
+      [0.8, 0.5, 0.1],
+      [0.8, 0.5, 0.1],
+    ],
   };
   const leads = [
     { name: 'source', side: 'left', width: 8 },

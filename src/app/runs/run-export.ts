@@ -102,7 +102,10 @@ function runHead(run: RunDetail) {
 
 /** A file name from the model's name: "dot-a-v2-poles.csv". */
 export function exportFileName(run: RunDetail, what: 'poles' | 'spectrum', ext: 'csv' | 'json'): string {
-  const base = `${run.modelName}-v${run.modelVersion}`.toLowerCase().replace(/[^a-z0-9]+/g, '-').replace(/^-|-$/g, '');
+  const base = `${run.modelName}-v${run.modelVersion}`
+    .toLowerCase()
+    .replace(/[^a-z0-9]+/g, '-')
+    .replace(/^-|-$/g, '');
   return `${base || 'run'}-${what}.${ext}`;
 }
 

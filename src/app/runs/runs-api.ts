@@ -105,8 +105,7 @@ export class RunsApi {
   /** The app's (or a spec's) root injector: live updates end with it, so no poll fires into a destroyed injector. */
   private readonly destroyRef = inject(DestroyRef);
   /** Replaced in specs; null when the browser has no EventSource, which means polling. */
-  eventSourceFactory: EventSourceFactory | null =
-    browserEventSource;
+  eventSourceFactory: EventSourceFactory | null = browserEventSource;
 
   estimate(groupId: string, request: Omit<RunRequest, 'note'>): Observable<RunEstimate> {
     return this.http.post<RunEstimate>(`${base(groupId)}/runs/estimate`, request);
@@ -159,4 +158,3 @@ export class RunsApi {
 function base(groupId: string): string {
   return `/api/groups/${encodeURIComponent(groupId)}`;
 }
-

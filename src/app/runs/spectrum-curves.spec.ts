@@ -4,14 +4,34 @@ const base = { energies: [1, 2, 3], residual: [0, 0, 0] };
 
 describe('spectrumCurves', () => {
   it('draws a two-terminal pair that is equal both ways as one curve', () => {
-    const s = { ...base, pairs: [{ from: 0, to: 1 }, { from: 1, to: 0 }], transmission: [[0.1, 0.5, 0.9], [0.1, 0.5 + 1e-12, 0.9]] };
+    const s = {
+      ...base,
+      pairs: [
+        { from: 0, to: 1 },
+        { from: 1, to: 0 },
+      ],
+      transmission: [
+        [0.1, 0.5, 0.9],
+        [0.1, 0.5 + 1e-12, 0.9],
+      ],
+    };
     const { curves, merged } = spectrumCurves(s, ['source', 'drain']);
     expect(merged).toBe(1);
     expect(curves.map((c) => c.name)).toEqual(['T(source ↔ drain)']);
   });
 
   it('keeps both curves where the two directions differ', () => {
-    const s = { ...base, pairs: [{ from: 0, to: 1 }, { from: 1, to: 0 }], transmission: [[0.1, 0.5, 0.9], [0.1, 0.4, 0.9]] };
+    const s = {
+      ...base,
+      pairs: [
+        { from: 0, to: 1 },
+        { from: 1, to: 0 },
+      ],
+      transmission: [
+        [0.1, 0.5, 0.9],
+        [0.1, 0.4, 0.9],
+      ],
+    };
     const { curves, merged } = spectrumCurves(s, ['a', 'b']);
     expect(merged).toBe(0);
     expect(curves.map((c) => c.name)).toEqual(['T(a → b)', 'T(b → a)']);

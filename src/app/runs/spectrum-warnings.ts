@@ -11,7 +11,9 @@ export function spectrumWarnings(run: Pick<RunDetail, 'stats' | 'spectrum' | 'ki
   if (run.stats?.['spectrumBudgetExhausted'] === true) {
     out.push(
       'The spectrum ran out of its refinement budget: narrow resonances may be missing from the curve or drawn too low.' +
-        (run.kind === 'pole-search' ? ' The poles listed are complete; check a narrow one with a transmission run around it.' : ' Run a narrower window for the full curve.'),
+        (run.kind === 'pole-search'
+          ? ' The poles listed are complete; check a narrow one with a transmission run around it.'
+          : ' Run a narrower window for the full curve.'),
     );
   }
   return out;

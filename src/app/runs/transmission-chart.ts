@@ -11,8 +11,13 @@ import { type SpectrumView, transmissionOptions } from './transmission-options';
   imports: [NgxEchartsDirective],
   template: `<div class="chart" echarts [options]="options()" [initOpts]="{ renderer: 'svg' }" role="img" [attr.aria-label]="label()"></div>`,
   styles: `
-    :host { display: block; }
-    .chart { height: 340px; width: 100%; }
+    :host {
+      display: block;
+    }
+    .chart {
+      height: 340px;
+      width: 100%;
+    }
   `,
 })
 export class TransmissionChart {

@@ -11,7 +11,18 @@ describe('transmission chart options', () => {
   });
 
   it('names the curves by lead name, falling back to a 1-based lead number, one curve for a symmetric pair', () => {
-    const spectrum = { energies: [1, 2], transmission: [[0.1, 0.2], [0.1, 0.2]], pairs: [{ from: 0, to: 1 }, { from: 1, to: 0 }], residual: [0, 0] };
+    const spectrum = {
+      energies: [1, 2],
+      transmission: [
+        [0.1, 0.2],
+        [0.1, 0.2],
+      ],
+      pairs: [
+        { from: 0, to: 1 },
+        { from: 1, to: 0 },
+      ],
+      residual: [0, 0],
+    };
     const named = transmissionOptions(spectrum, [], [], colours, ['source', 'drain']) as { series: { name: string }[] };
     expect(named.series.map((s) => s.name)).toEqual(['T(source ↔ drain)']);
     const bare = transmissionOptions(spectrum, [], [], colours) as { series: { name: string }[] };

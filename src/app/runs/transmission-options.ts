@@ -36,7 +36,11 @@ export function transmissionOptions(
   const emax = spectrum.energies[spectrum.energies.length - 1];
   const inside = (e: number) => e >= emin && e <= emax;
   const axisText = { color: c.onSurfaceVariant };
-  const labelled = labelledPoles(poles.map((p) => p.energy), emin, emax);
+  const labelled = labelledPoles(
+    poles.map((p) => p.energy),
+    emin,
+    emax,
+  );
   return {
     animation: false,
     color: palette,
@@ -66,38 +70,47 @@ export function transmissionOptions(
         splitLine: { lineStyle: { color: c.outlineVariant } },
       },
       ...(view.residual
-        ? [{ type: 'log', name: 'current residual', nameLocation: 'middle', nameGap: 44, position: 'right', axisLabel: axisText, nameTextStyle: axisText, splitLine: { show: false } }]
+        ? [
+            {
+              type: 'log',
+              name: 'current residual',
+              nameLocation: 'middle',
+              nameGap: 44,
+              position: 'right',
+              axisLabel: axisText,
+              nameTextStyle: axisText,
+              splitLine: { show: false },
+            },
+          ]
         : []),
     ],
     series: [
       ...curves.map((curve, k) => ({
-      name: curve.name,
-      type: 'line',
-      showSymbol: false,
-      lineStyle: { width: 1.5 },
-      data: spectrum.energies.map((e, n) => [e, curve.values[n]]),
-      ...(k === 0
-        ? {
-            markLine: {
-              silent: true,
-              symbol: 'none',
-              data: [
-                ...poles
-                  .map((p, n) => ({ p, n }))
-                  .filter(({ p }) => inside(p.energy))
-                  .map(({ p, n }) => ({
-                    xAxis: p.energy,
-                    label: labelled.has(n) ? { formatter: `${n + 1}`, color: c.error, fontSize: 10 } : { show: false },
-                    lineStyle: { type: 'dotted', color: c.error },
-                  })),
-                ...thresholds
-                  .filter(inside)
-                  .map((x) => ({ xAxis: x, label: { show: false }, lineStyle: { type: 'dashed', color: c.outline } })),
-              ],
-            },
-          }
-        : {}),
-    })),
+        name: curve.name,
+        type: 'line',
+        showSymbol: false,
+        lineStyle: { width: 1.5 },
+        data: spectrum.energies.map((e, n) => [e, curve.values[n]]),
+        ...(k === 0
+          ? {
+              markLine: {
+                silent: true,
+                symbol: 'none',
+                data: [
+                  ...poles
+                    .map((p, n) => ({ p, n }))
+                    .filter(({ p }) => inside(p.energy))
+                    .map(({ p, n }) => ({
+                      xAxis: p.energy,
+                      label: labelled.has(n) ? { formatter: `${n + 1}`, color: c.error, fontSize: 10 } : { show: false },
+                      lineStyle: { type: 'dotted', color: c.error },
+                    })),
+                  ...thresholds.filter(inside).map((x) => ({ xAxis: x, label: { show: false }, lineStyle: { type: 'dashed', color: c.outline } })),
+                ],
+              },
+            }
+          : {}),
+      })),
       ...(view.reflection ?? []).map((r) => ({
         name: `R(${r.lead})`,
         type: 'line',

@@ -13,15 +13,7 @@ import { toProblem } from '../core/errors/problem';
 /** E-mail and password; the server's own wording of a failure is shown above the form. */
 @Component({
   selector: 'pw-sign-in',
-  imports: [
-    ReactiveFormsModule,
-    RouterLink,
-    MatFormFieldModule,
-    MatInputModule,
-    MatButtonModule,
-    MatIconModule,
-    MatProgressBarModule,
-  ],
+  imports: [ReactiveFormsModule, RouterLink, MatFormFieldModule, MatInputModule, MatButtonModule, MatIconModule, MatProgressBarModule],
   templateUrl: './sign-in.html',
 })
 export class SignIn {
@@ -59,8 +51,6 @@ export class SignIn {
   /** Only paths inside this app: a returnUrl is user-controlled and must not lead elsewhere. */
   private safeReturnUrl(): string {
     const wanted = this.route.snapshot.queryParamMap.get('returnUrl');
-    return wanted && wanted.startsWith('/') && !wanted.startsWith('//') && !wanted.startsWith('/sign-in')
-      ? wanted
-      : '/';
+    return wanted && wanted.startsWith('/') && !wanted.startsWith('//') && !wanted.startsWith('/sign-in') ? wanted : '/';
   }
 }

@@ -15,7 +15,16 @@ const maxWidth = 320;
   selector: 'pw-density-image',
   changeDetection: ChangeDetectionStrategy.OnPush,
   template: `<canvas #canvas role="img" [attr.aria-label]="label()"></canvas>`,
-  styles: `:host { display: inline-block; } canvas { image-rendering: pixelated; border: 1px solid var(--mat-sys-outline-variant); max-width: 100%; }`,
+  styles: `
+    :host {
+      display: inline-block;
+    }
+    canvas {
+      image-rendering: pixelated;
+      border: 1px solid var(--mat-sys-outline-variant);
+      max-width: 100%;
+    }
+  `,
 })
 export class DensityImage {
   readonly grid = input.required<{ nx: number; ny: number }>();

@@ -8,7 +8,18 @@ import { GridComponent, LegendComponent, MarkLineComponent, TooltipComponent, Vi
 import * as echarts from 'echarts/core';
 import { CanvasRenderer, SVGRenderer } from 'echarts/renderers';
 
-echarts.use([BarChart, LineChart, ScatterChart, GridComponent, LegendComponent, MarkLineComponent, TooltipComponent, VisualMapComponent, CanvasRenderer, SVGRenderer]);
+echarts.use([
+  BarChart,
+  LineChart,
+  ScatterChart,
+  GridComponent,
+  LegendComponent,
+  MarkLineComponent,
+  TooltipComponent,
+  VisualMapComponent,
+  CanvasRenderer,
+  SVGRenderer,
+]);
 
 export default echarts;
 export * from 'echarts/core';

@@ -3,13 +3,19 @@ import { provideHttpClientTesting } from '@angular/common/http/testing';
 import { TestBed } from '@angular/core/testing';
 import { provideRouter } from '@angular/router';
 import { provideEchartsCore } from 'ngx-echarts';
-import { provideFakeCurrentGroup } from '../models/fake-current-group';
-import { sampleEnsembleOutcome } from '../testing/sample-study';
+import { provideFakeCurrentGroup } from '../core/testing/fake-current-group';
+import { sampleEnsembleOutcome } from '../core/testing/sample-study';
 import { EnsembleResult } from './ensemble-result';
 
 function render(outcome = sampleEnsembleOutcome) {
   TestBed.configureTestingModule({
-    providers: [provideHttpClient(), provideHttpClientTesting(), provideRouter([]), provideFakeCurrentGroup('designer'), provideEchartsCore({ echarts: () => import('./echarts') })],
+    providers: [
+      provideHttpClient(),
+      provideHttpClientTesting(),
+      provideRouter([]),
+      provideFakeCurrentGroup('designer'),
+      provideEchartsCore({ echarts: () => import('./echarts') }),
+    ],
   });
   const fixture = TestBed.createComponent(EnsembleResult);
   fixture.componentRef.setInput('studyId', 'x');

@@ -2,8 +2,8 @@ import { ChangeDetectionStrategy, Component, computed, input, signal } from '@an
 import { MatButtonModule } from '@angular/material/button';
 import { NgxEchartsDirective } from 'ngx-echarts';
 import type { EnsembleOutcome } from '../../../shared/api/studies';
-import { formatEnergy, formatQuality, formatWidth } from '../catalogue/energy-format';
-import { chartColours } from '../runs/chart-colours';
+import { formatEnergy, formatQuality, formatWidth } from '../core/format/energy-format';
+import { chartColours } from '../core/charts/chart-colours';
 import { StudyStepPanel } from './study-step-panel';
 import { histogramOptions } from './trajectory-options';
 
@@ -36,9 +36,30 @@ export class EnsembleResult {
     if (!s) return [];
     const c = chartColours();
     return [
-      { key: 'energy', title: 'E (meV)', d: s.energy, text: formatEnergy, nominal: s.nominal?.energy ?? null, options: histogramOptions(s.energy.histogram, 'E (meV)', c) },
-      { key: 'width', title: 'Γ (meV)', d: s.width, text: formatWidth, nominal: s.nominal?.width ?? null, options: histogramOptions(s.width.histogram, 'Γ (meV)', c) },
-      { key: 'quality', title: 'Q', d: s.quality, text: formatQuality, nominal: s.nominal?.quality ?? null, options: histogramOptions(s.quality.histogram, 'Q', c) },
+      {
+        key: 'energy',
+        title: 'E (meV)',
+        d: s.energy,
+        text: formatEnergy,
+        nominal: s.nominal?.energy ?? null,
+        options: histogramOptions(s.energy.histogram, 'E (meV)', c),
+      },
+      {
+        key: 'width',
+        title: 'Γ (meV)',
+        d: s.width,
+        text: formatWidth,
+        nominal: s.nominal?.width ?? null,
+        options: histogramOptions(s.width.histogram, 'Γ (meV)', c),
+      },
+      {
+        key: 'quality',
+        title: 'Q',
+        d: s.quality,
+        text: formatQuality,
+        nominal: s.nominal?.quality ?? null,
+        options: histogramOptions(s.quality.histogram, 'Q', c),
+      },
     ];
   });
 }

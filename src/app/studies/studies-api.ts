@@ -52,7 +52,9 @@ export class StudiesApi {
   }
 
   saveStep(groupId: string, studyId: string, index: number): Observable<SavedStep> {
-    return this.http.post(`${base(groupId)}/studies/${encodeURIComponent(studyId)}/steps/${index}/save`, {}).pipe(parseAnswer(savedStepSchema, 'saved version'));
+    return this.http
+      .post(`${base(groupId)}/studies/${encodeURIComponent(studyId)}/steps/${index}/save`, {})
+      .pipe(parseAnswer(savedStepSchema, 'saved version'));
   }
 
   /** The export link (a plain GET the browser downloads with the session cookie). */

@@ -1,6 +1,6 @@
 import type { Routes } from '@angular/router';
 import { provideEchartsCore } from 'ngx-echarts';
-import { designerOnly } from '../models/designer-only';
+import { designerOnly } from '../core/group/designer-only';
 
 /** Mounted at /g/:groupSlug/studies. echarts is loaded only when a chart first shows. */
 export const studiesRoutes: Routes = [

@@ -2,8 +2,8 @@ import { provideHttpClient } from '@angular/common/http';
 import { HttpTestingController, provideHttpClientTesting } from '@angular/common/http/testing';
 import { TestBed } from '@angular/core/testing';
 import { Router, provideRouter } from '@angular/router';
-import { provideFakeCurrentGroup } from '../models/fake-current-group';
-import { runningStudy } from '../testing/sample-study';
+import { provideFakeCurrentGroup } from '../core/testing/fake-current-group';
+import { runningStudy } from '../core/testing/sample-study';
 import { StudyLauncher } from './study-launcher';
 
 const modelId = '5f0c1f3e-2d4a-4b6c-8e9f-0a1b2c3d4e5f';
@@ -13,7 +13,10 @@ const model = {
   family: 'disk',
   latestVersion: 2,
   siteCount: 400,
-  versions: [{ version: 1, createdAt: '2026-12-01T00:00:00Z' }, { version: 2, createdAt: '2026-12-02T00:00:00Z' }],
+  versions: [
+    { version: 1, createdAt: '2026-12-01T00:00:00Z' },
+    { version: 2, createdAt: '2026-12-02T00:00:00Z' },
+  ],
   document: { name: 'Dot A', field: 0.25, potential: [{ kind: 'gate', value: 1.5 }] },
   derived: {},
 };
@@ -79,18 +82,27 @@ describe('StudyLauncher', () => {
     fixture.detectChanges();
     host.querySelector<HTMLButtonElement>('[data-test=launch]')!.click();
     const create = http.expectOne('/api/groups/g1/studies');
-    expect(create.request.body).toMatchObject({ kind: 'ensemble', realisations: 20, seed: 1, roughness: { rmsNm: 2, correlationNm: 20 }, follow: { energy: 3.1 } });
+    expect(create.request.body).toMatchObject({
+      kind: 'ensemble',
+      realisations: 20,
+      seed: 1,
+      roughness: { rmsNm: 2, correlationNm: 20 },
+      follow: { energy: 3.1 },
+    });
   });
 
   it('shows the server’s reason when the launch is refused', async () => {
     const { http, fixture, host } = await setUp('sweep');
     host.querySelector<HTMLButtonElement>('[data-test=launch]')!.click();
-    http
-      .expectOne('/api/groups/g1/studies')
-      .flush(
-        { status: 400, code: 'invalid_request', message: 'The request has errors.', issues: [{ path: 'parameters.0.path', message: 'field does not lead to a number' }] },
-        { status: 400, statusText: 'Bad Request' },
-      );
+    http.expectOne('/api/groups/g1/studies').flush(
+      {
+        status: 400,
+        code: 'invalid_request',
+        message: 'The request has errors.',
+        issues: [{ path: 'parameters.0.path', message: 'field does not lead to a number' }],
+      },
+      { status: 400, statusText: 'Bad Request' },
+    );
     fixture.detectChanges();
     expect(host.querySelector('[data-test=form-error]')!.textContent).toContain('field does not lead to a number');
   });

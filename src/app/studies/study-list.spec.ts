@@ -2,8 +2,8 @@ import { provideHttpClient } from '@angular/common/http';
 import { HttpTestingController, provideHttpClientTesting } from '@angular/common/http/testing';
 import { TestBed } from '@angular/core/testing';
 import { provideRouter } from '@angular/router';
-import { provideFakeCurrentGroup } from '../models/fake-current-group';
-import { completedStudy, runningStudy } from '../testing/sample-study';
+import { provideFakeCurrentGroup } from '../core/testing/fake-current-group';
+import { completedStudy, runningStudy } from '../core/testing/sample-study';
 import { studyPollMs } from './studies-api';
 import { StudyList } from './study-list';
 

@@ -6,10 +6,10 @@ import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { RouterLink } from '@angular/router';
 import { type Subscription, timer } from 'rxjs';
 import { FINISHED_STUDY_STATUSES, type StudySummary } from '../../../shared/api/studies';
-import { formatDuration } from '../catalogue/energy-format';
+import { formatDuration } from '../core/format/energy-format';
 import { ErrorReport } from '../core/errors/error-report';
 import { CurrentGroup } from '../core/group/current-group';
-import { injectCanDesign } from '../models/design-permission';
+import { injectCanDesign } from '../core/group/design-permission';
 import { StudiesApi, studyPollMs } from './studies-api';
 import { studyPercent, studyProgressText, studyStatusLabels } from './study-progress';
 

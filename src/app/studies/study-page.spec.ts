@@ -3,8 +3,8 @@ import { HttpTestingController, provideHttpClientTesting } from '@angular/common
 import { TestBed } from '@angular/core/testing';
 import { provideRouter } from '@angular/router';
 import { provideEchartsCore } from 'ngx-echarts';
-import { provideFakeCurrentGroup } from '../models/fake-current-group';
-import { completedStudy, runningStudy } from '../testing/sample-study';
+import { provideFakeCurrentGroup } from '../core/testing/fake-current-group';
+import { completedStudy, runningStudy } from '../core/testing/sample-study';
 import { studyPollMs } from './studies-api';
 import { StudyPage } from './study-page';
 

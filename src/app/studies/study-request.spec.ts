@@ -24,7 +24,13 @@ describe('studyRequest', () => {
   it('builds a sweep request the shared schema accepts', () => {
     const built = studyRequest(base);
     expect(built).toEqual({
-      request: { kind: 'sweep', modelId: base.modelId, version: 2, window: { emin: 1, emax: 10, gammaMax: 1 }, parameters: [{ path: 'field', values: { from: 0, to: 1, count: 3 } }] },
+      request: {
+        kind: 'sweep',
+        modelId: base.modelId,
+        version: 2,
+        window: { emin: 1, emax: 10, gammaMax: 1 },
+        parameters: [{ path: 'field', values: { from: 0, to: 1, count: 3 } }],
+      },
     });
     expect(studyRequestSchema.safeParse((built as { request: unknown }).request).success).toBe(true);
   });

@@ -5,10 +5,10 @@ import { MatIconModule } from '@angular/material/icon';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { RouterLink } from '@angular/router';
 import type { StudyStepDetail } from '../../../shared/api/studies';
-import { formatEnergy, formatQuality, formatWidth } from '../catalogue/energy-format';
+import { formatEnergy, formatQuality, formatWidth } from '../core/format/energy-format';
 import { ErrorReport } from '../core/errors/error-report';
 import { CurrentGroup } from '../core/group/current-group';
-import { injectCanDesign } from '../models/design-permission';
+import { injectCanDesign } from '../core/group/design-permission';
 import { DensityImage } from './density-image';
 import { type SavedStep, StudiesApi } from './studies-api';
 

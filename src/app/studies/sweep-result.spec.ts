@@ -3,9 +3,9 @@ import { HttpTestingController, provideHttpClientTesting } from '@angular/common
 import { TestBed } from '@angular/core/testing';
 import { provideRouter } from '@angular/router';
 import { provideEchartsCore } from 'ngx-echarts';
-import { provideFakeCurrentGroup } from '../models/fake-current-group';
-import { sampleStep, sampleSweepOutcome } from '../testing/sample-study';
-import { settle } from '../testing/next-request';
+import { provideFakeCurrentGroup } from '../core/testing/fake-current-group';
+import { sampleStep, sampleSweepOutcome } from '../core/testing/sample-study';
+import { settle } from '../core/testing/next-request';
 import { SweepResult } from './sweep-result';
 
 const studyId = '7b0c1f3e-2d4a-4b6c-8e9f-0a1b2c3d4e5f';
@@ -13,7 +13,13 @@ const stepUrl = `/api/groups/g1/studies/${studyId}/steps/1`;
 
 function setUp(role: 'designer' | 'viewer' = 'designer') {
   TestBed.configureTestingModule({
-    providers: [provideHttpClient(), provideHttpClientTesting(), provideRouter([]), provideFakeCurrentGroup(role), provideEchartsCore({ echarts: () => import('./echarts') })],
+    providers: [
+      provideHttpClient(),
+      provideHttpClientTesting(),
+      provideRouter([]),
+      provideFakeCurrentGroup(role),
+      provideEchartsCore({ echarts: () => import('./echarts') }),
+    ],
   });
   const http = TestBed.inject(HttpTestingController);
   const fixture = TestBed.createComponent(SweepResult);

@@ -4,8 +4,8 @@ import { MatButtonToggleModule } from '@angular/material/button-toggle';
 import { MatSelectModule } from '@angular/material/select';
 import { NgxEchartsDirective } from 'ngx-echarts';
 import type { SweepOutcome } from '../../../shared/api/studies';
-import { formatEnergy, formatWidth } from '../catalogue/energy-format';
-import { chartColours } from '../runs/chart-colours';
+import { formatEnergy, formatWidth } from '../core/format/energy-format';
+import { chartColours } from '../core/charts/chart-colours';
 import { StudyStepPanel } from './study-step-panel';
 import { markLabels, markPoint, trajectoryPlaneOptions, trajectoryValueOptions } from './trajectory-options';
 
@@ -34,7 +34,9 @@ export class SweepResult {
 
   protected readonly parameter = computed(() => this.outcome().parameters[0]?.path ?? 'p');
   protected readonly second = computed(() => this.outcome().parameters[1]?.path ?? null);
-  protected readonly line = computed(() => this.outcome().lines[Math.min(this.lineIndex(), this.outcome().lines.length - 1)] ?? { value: null, trajectories: [], marks: [] });
+  protected readonly line = computed(
+    () => this.outcome().lines[Math.min(this.lineIndex(), this.outcome().lines.length - 1)] ?? { value: null, trajectories: [], marks: [] },
+  );
   protected readonly uncertified = computed(() => this.outcome().steps.filter((s) => !s.certified));
 
   protected readonly planeOptions = computed(() => trajectoryPlaneOptions(this.line(), this.parameter(), chartColours()));

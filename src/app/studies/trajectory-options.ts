@@ -1,6 +1,6 @@
 import type { EChartsCoreOption } from 'echarts/core';
 import type { Trajectory, TrajectoryMark } from '../../../shared/api/studies';
-import type { ChartColours } from '../runs/chart-colours';
+import type { ChartColours } from '../core/charts/chart-colours';
 
 export interface TrajectoryLine {
   trajectories: Trajectory[];
@@ -151,7 +151,11 @@ export function histogramOptions(histogram: { edges: number[]; counts: number[] 
   return {
     animation: false,
     grid: { left: 56, right: 16, top: 16, bottom: 56 },
-    tooltip: { trigger: 'item', formatter: (item: { dataIndex: number; value: number }) => `${fmt(histogram.edges[item.dataIndex] ?? 0)} – ${fmt(histogram.edges[item.dataIndex + 1] ?? 0)}: ${item.value}` },
+    tooltip: {
+      trigger: 'item',
+      formatter: (item: { dataIndex: number; value: number }) =>
+        `${fmt(histogram.edges[item.dataIndex] ?? 0)} – ${fmt(histogram.edges[item.dataIndex + 1] ?? 0)}: ${item.value}`,
+    },
     xAxis: { type: 'category', data: bins, name: label, nameLocation: 'middle', nameGap: 32 },
     yAxis: { type: 'value', name: 'Realisations', minInterval: 1 },
     series: [{ type: 'bar', data: histogram.counts, barCategoryGap: '8%', itemStyle: { color: colours.primary } }],

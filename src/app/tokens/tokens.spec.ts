@@ -46,10 +46,7 @@ describe('Tokens', () => {
     const req = await nextRequest(mock, '/api/tokens');
     expect(req.request.method).toBe('POST');
     expect(req.request.body).toEqual({ name: 'sweep script' });
-    req.flush(
-      { id: 't1', name: 'sweep script', token: 'pwt_secret123', createdAt: '2026-12-01T10:00:00Z' },
-      { status: 201, statusText: 'Created' },
-    );
+    req.flush({ id: 't1', name: 'sweep script', token: 'pwt_secret123', createdAt: '2026-12-01T10:00:00Z' }, { status: 201, statusText: 'Created' });
     (await nextRequest(mock, '/api/tokens')).flush([{ id: 't1', name: 'sweep script', createdAt: '2026-12-01T10:00:00Z' }]);
     await settle();
     harness.detectChanges();

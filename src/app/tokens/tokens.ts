@@ -20,15 +20,7 @@ import { type ApiToken, type CreatedToken, TokensApi } from './tokens-api';
 /** Personal API tokens for scripts: create (the secret is shown once), list, revoke. */
 @Component({
   selector: 'pw-tokens',
-  imports: [
-    DatePipe,
-    ReactiveFormsModule,
-    MatButtonModule,
-    MatFormFieldModule,
-    MatIconModule,
-    MatInputModule,
-    MatProgressBarModule,
-  ],
+  imports: [DatePipe, ReactiveFormsModule, MatButtonModule, MatFormFieldModule, MatIconModule, MatInputModule, MatProgressBarModule],
   templateUrl: './tokens.html',
   styleUrl: './tokens.scss',
 })

@@ -33,16 +33,11 @@ export class MembersApi {
   private readonly http = inject(HttpClient);
 
   members(groupId: string): Observable<Member[]> {
-    return this.http
-      .get(`/api/groups/${encodeURIComponent(groupId)}/members`)
-      .pipe(map((body) => z.array(memberSchema).parse(body)));
+    return this.http.get(`/api/groups/${encodeURIComponent(groupId)}/members`).pipe(map((body) => z.array(memberSchema).parse(body)));
   }
 
   changeRole(groupId: string, userId: string, role: Role): Observable<unknown> {
-    return this.http.patch(
-      `/api/groups/${encodeURIComponent(groupId)}/members/${encodeURIComponent(userId)}`,
-      { role },
-    );
+    return this.http.patch(`/api/groups/${encodeURIComponent(groupId)}/members/${encodeURIComponent(userId)}`, { role });
   }
 
   remove(groupId: string, userId: string): Observable<unknown> {
@@ -50,9 +45,7 @@ export class MembersApi {
   }
 
   invitations(groupId: string): Observable<PendingInvitation[]> {
-    return this.http
-      .get(`/api/groups/${encodeURIComponent(groupId)}/invitations`)
-      .pipe(map((body) => z.array(pendingInvitationSchema).parse(body)));
+    return this.http.get(`/api/groups/${encodeURIComponent(groupId)}/invitations`).pipe(map((body) => z.array(pendingInvitationSchema).parse(body)));
   }
 
   invite(groupId: string, email: string, role: Role): Observable<unknown> {
@@ -60,8 +53,6 @@ export class MembersApi {
   }
 
   revokeInvitation(groupId: string, invitationId: string): Observable<unknown> {
-    return this.http.delete(
-      `/api/groups/${encodeURIComponent(groupId)}/invitations/${encodeURIComponent(invitationId)}`,
-    );
+    return this.http.delete(`/api/groups/${encodeURIComponent(groupId)}/invitations/${encodeURIComponent(invitationId)}`);
   }
 }

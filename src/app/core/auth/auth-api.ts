@@ -14,9 +14,7 @@ export class AuthApi {
   }
 
   signIn(email: string, password: string): Observable<Session> {
-    return this.http
-      .post('/api/auth/sign-in', { email, password })
-      .pipe(map((body) => readSession(body)));
+    return this.http.post('/api/auth/sign-in', { email, password }).pipe(map((body) => readSession(body)));
   }
 
   signOut(): Observable<void> {

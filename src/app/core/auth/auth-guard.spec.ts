@@ -35,7 +35,10 @@ describe('authGuard', () => {
 
   it('redirects to sign-in, keeping the wanted address, when the server says nobody is signed in', async () => {
     const navigation = router.navigateByUrl('/tokens');
-    (await nextRequest(mock, '/api/auth/session')).flush({ status: 401, code: 'unauthenticated', message: 'Not signed in.' }, { status: 401, statusText: 'Unauthorized' });
+    (await nextRequest(mock, '/api/auth/session')).flush(
+      { status: 401, code: 'unauthenticated', message: 'Not signed in.' },
+      { status: 401, statusText: 'Unauthorized' },
+    );
     await navigation;
     expect(router.url).toBe('/sign-in?returnUrl=%2Ftokens');
   });

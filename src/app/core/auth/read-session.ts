@@ -2,7 +2,10 @@ import { type GroupMembership, type Role, type Session, roles } from './session'
 
 /** A Session answer that does not have the contract's shape; names the first wrong field. */
 export class SessionShapeError extends Error {
-  constructor(readonly path: string, expected: string) {
+  constructor(
+    readonly path: string,
+    expected: string,
+  ) {
     super(`The server's session answer is not as expected: ${path} should be ${expected}.`);
     this.name = 'SessionShapeError';
   }

@@ -4,15 +4,7 @@
  * provideEchartsCore so the initial bundle stays small (stack.md).
  */
 import { LineChart, ScatterChart } from 'echarts/charts';
-import {
-  BrushComponent,
-  DataZoomComponent,
-  GridComponent,
-  LegendComponent,
-  MarkAreaComponent,
-  MarkLineComponent,
-  TooltipComponent,
-} from 'echarts/components';
+import { BrushComponent, DataZoomComponent, GridComponent, LegendComponent, MarkAreaComponent, MarkLineComponent, TooltipComponent } from 'echarts/components';
 import * as echarts from 'echarts/core';
 import { CanvasRenderer, SVGRenderer } from 'echarts/renderers';
 

@@ -11,8 +11,13 @@ import { poleWidthOptions } from './pole-width-options';
   imports: [NgxEchartsDirective],
   template: `<div class="chart" echarts [options]="options()" [initOpts]="{ renderer: 'svg' }" role="img" [attr.aria-label]="label()"></div>`,
   styles: `
-    :host { display: block; }
-    .chart { height: 340px; width: 100%; }
+    :host {
+      display: block;
+    }
+    .chart {
+      height: 340px;
+      width: 100%;
+    }
   `,
 })
 export class PolePlaneChart {
@@ -39,6 +44,7 @@ export class PolePlaneChart {
     }),
   );
   protected readonly label = computed(
-    () => `${this.view() === 'width' ? 'Pole widths on a log axis' : 'Complex energy plane'} with ${this.poles().length} pole(s) and ${this.thresholds().length} channel threshold(s)`,
+    () =>
+      `${this.view() === 'width' ? 'Pole widths on a log axis' : 'Complex energy plane'} with ${this.poles().length} pole(s) and ${this.thresholds().length} channel threshold(s)`,
   );
 }

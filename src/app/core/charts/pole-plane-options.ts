@@ -45,7 +45,12 @@ export function polePlaneOptions(input: PlaneInput): EChartsCoreOption {
   const gammaMax = w?.gammaMax;
   const windowArea =
     w && gammaMax != null
-      ? [[{ xAxis: w.emin, yAxis: -gammaMax / 2 }, { xAxis: w.emax, yAxis: 0 }]]
+      ? [
+          [
+            { xAxis: w.emin, yAxis: -gammaMax / 2 },
+            { xAxis: w.emax, yAxis: 0 },
+          ],
+        ]
       : w
         ? [[{ xAxis: w.emin }, { xAxis: w.emax }]]
         : [];
@@ -99,7 +104,13 @@ export function polePlaneOptions(input: PlaneInput): EChartsCoreOption {
           data: [
             ...input.thresholds.map((x) => ({ xAxis: x })),
             ...(gammaMax != null
-              ? [{ yAxis: -gammaMax / 2, label: { formatter: 'Γmax/2', color: c.primary, fontSize: 10, position: 'insideEndBottom' }, lineStyle: { type: 'solid', color: c.primary } }]
+              ? [
+                  {
+                    yAxis: -gammaMax / 2,
+                    label: { formatter: 'Γmax/2', color: c.primary, fontSize: 10, position: 'insideEndBottom' },
+                    lineStyle: { type: 'solid', color: c.primary },
+                  },
+                ]
               : []),
           ],
         },

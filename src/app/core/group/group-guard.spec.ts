@@ -24,12 +24,10 @@ describe('groupGuard and CurrentGroup', () => {
         ]),
       ],
     });
-    TestBed.inject(Auth).adopt(
-      demoSession('viewer', [{ id: 'g-quarry', name: 'Quarry Hill Microwave Group', slug: 'quarry-hill', role: 'admin' }]),
-    );
+    TestBed.inject(Auth).adopt(demoSession('viewer', [{ id: 'g-quarry', name: 'Quarry Hill Microwave Group', slug: 'quarry-hill', role: 'admin' }]));
   });
 
-  it("shows a group the user is not in exactly like a missing page", async () => {
+  it('shows a group the user is not in exactly like a missing page', async () => {
     const router = TestBed.inject(Router);
     await router.navigateByUrl('/g/some-other-lab/dashboard');
     expect(router.url).toBe('/not-found');

@@ -8,7 +8,9 @@ export class MalformedAnswer extends Error {
     what: string,
   ) {
     const first = issues[0];
-    super(`The server's ${what} did not have the expected form${first ? ` (at ${first.path || 'the top'}: ${first.message})` : ''}. Reload the page; if it stays, tell the site operator.`);
+    super(
+      `The server's ${what} did not have the expected form${first ? ` (at ${first.path || 'the top'}: ${first.message})` : ''}. Reload the page; if it stays, tell the site operator.`,
+    );
     this.name = 'MalformedAnswer';
   }
 }

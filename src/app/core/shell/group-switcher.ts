@@ -14,25 +14,14 @@ import { CurrentGroup } from '../group/current-group';
   imports: [MatButtonModule, MatIconModule, MatMenuModule],
   template: `
     @if (current(); as group) {
-      <button
-        mat-button
-        type="button"
-        class="trigger"
-        [matMenuTriggerFor]="menu"
-        [attr.aria-label]="'Group: ' + group.name + '. Switch group'"
-      >
+      <button mat-button type="button" class="trigger" [matMenuTriggerFor]="menu" [attr.aria-label]="'Group: ' + group.name + '. Switch group'">
         <mat-icon aria-hidden="true">groups</mat-icon>
         <span class="name">{{ group.name }}</span>
         <mat-icon iconPositionEnd aria-hidden="true">arrow_drop_down</mat-icon>
       </button>
       <mat-menu #menu="matMenu">
         @for (g of groups(); track g.id) {
-          <button
-            mat-menu-item
-            type="button"
-            (click)="switchTo(g)"
-            [attr.aria-current]="g.id === group.id ? 'true' : null"
-          >
+          <button mat-menu-item type="button" (click)="switchTo(g)" [attr.aria-current]="g.id === group.id ? 'true' : null">
             <mat-icon aria-hidden="true">{{ g.id === group.id ? 'check' : 'groups' }}</mat-icon>
             <span class="item">
               <span class="item-name">{{ g.name }}</span>
@@ -44,11 +33,26 @@ import { CurrentGroup } from '../group/current-group';
     }
   `,
   styles: `
-    .trigger { max-width: 420px; }
-    .name { overflow: hidden; text-overflow: ellipsis; white-space: nowrap; }
-    .item { display: flex; flex-direction: column; padding: 4px 0; }
-    .item-name { white-space: nowrap; }
-    .role { font: var(--mat-sys-body-small); color: var(--mat-sys-on-surface-variant); }
+    .trigger {
+      max-width: 420px;
+    }
+    .name {
+      overflow: hidden;
+      text-overflow: ellipsis;
+      white-space: nowrap;
+    }
+    .item {
+      display: flex;
+      flex-direction: column;
+      padding: 4px 0;
+    }
+    .item-name {
+      white-space: nowrap;
+    }
+    .role {
+      font: var(--mat-sys-body-small);
+      color: var(--mat-sys-on-surface-variant);
+    }
   `,
 })
 export class GroupSwitcher {

@@ -13,8 +13,17 @@ import { MatIconModule } from '@angular/material/icon';
     </p>
   `,
   styles: `
-    h1 { font: var(--mat-sys-headline-medium); margin: 0 0 16px; }
-    .note { display: flex; align-items: center; gap: 8px; color: var(--mat-sys-on-surface-variant); font: var(--mat-sys-body-large); }
+    h1 {
+      font: var(--mat-sys-headline-medium);
+      margin: 0 0 16px;
+    }
+    .note {
+      display: flex;
+      align-items: center;
+      gap: 8px;
+      color: var(--mat-sys-on-surface-variant);
+      font: var(--mat-sys-body-large);
+    }
   `,
 })
 export class LaterRelease {

@@ -11,6 +11,11 @@ import { RouterLink } from '@angular/router';
     <p>There is nothing at this address, or it belongs to a group you are not a member of.</p>
     <a mat-flat-button routerLink="/">Go to your dashboard</a>
   `,
-  styles: `h1 { font: var(--mat-sys-headline-medium); margin: 0 0 16px; }`,
+  styles: `
+    h1 {
+      font: var(--mat-sys-headline-medium);
+      margin: 0 0 16px;
+    }
+  `,
 })
 export class NotFound {}

@@ -36,9 +36,7 @@ describe('Shell', () => {
         ),
       ],
     });
-    TestBed.inject(Auth).adopt(
-      demoSession('admin', [{ id: 'g-quarry', name: 'Quarry Hill Microwave Group', slug: 'quarry-hill', role: 'viewer' }]),
-    );
+    TestBed.inject(Auth).adopt(demoSession('admin', [{ id: 'g-quarry', name: 'Quarry Hill Microwave Group', slug: 'quarry-hill', role: 'viewer' }]));
     harness = await RouterTestingHarness.create();
   });
 

@@ -46,10 +46,21 @@ import { ErrorReport } from '../errors/error-report';
     }
   `,
   styles: `
-    .who { padding: 8px 16px 12px; }
-    .who-name { font: var(--mat-sys-title-small); }
-    .who-email { font: var(--mat-sys-body-small); color: var(--mat-sys-on-surface-variant); }
-    @media (max-width: 799.98px) { .name { display: none; } }
+    .who {
+      padding: 8px 16px 12px;
+    }
+    .who-name {
+      font: var(--mat-sys-title-small);
+    }
+    .who-email {
+      font: var(--mat-sys-body-small);
+      color: var(--mat-sys-on-surface-variant);
+    }
+    @media (max-width: 799.98px) {
+      .name {
+        display: none;
+      }
+    }
   `,
 })
 export class UserMenu {

@@ -1,4 +1,4 @@
-import type { EnsembleOutcome, StudyDetail, StudyStepDetail, SweepOutcome } from '../../../shared/api/studies';
+import type { EnsembleOutcome, StudyDetail, StudyStepDetail, SweepOutcome } from '../../../../shared/api/studies';
 
 const pole = (energy: number, width: number) => ({
   energy,
@@ -34,13 +34,29 @@ export const sampleSweepOutcome: SweepOutcome = {
           id: 0,
           entered: false,
           left: false,
-          points: [0, 1, 2].map((step) => ({ step, value: step * 0.5, pole: 0, energy: 3 + step * 0.2, width: 0.1, link: step ? ('continuation' as const) : ('start' as const), overlap: step ? 0.98 : null })),
+          points: [0, 1, 2].map((step) => ({
+            step,
+            value: step * 0.5,
+            pole: 0,
+            energy: 3 + step * 0.2,
+            width: 0.1,
+            link: step ? ('continuation' as const) : ('start' as const),
+            overlap: step ? 0.98 : null,
+          })),
         },
         {
           id: 1,
           entered: false,
           left: false,
-          points: [0, 1, 2].map((step) => ({ step, value: step * 0.5, pole: 1, energy: 3.6 - step * 0.2, width: 0.05 + step * 0.02, link: step ? ('continuation' as const) : ('start' as const), overlap: step ? 0.97 : null })),
+          points: [0, 1, 2].map((step) => ({
+            step,
+            value: step * 0.5,
+            pole: 1,
+            energy: 3.6 - step * 0.2,
+            width: 0.05 + step * 0.02,
+            link: step ? ('continuation' as const) : ('start' as const),
+            overlap: step ? 0.97 : null,
+          })),
         },
       ],
       marks: [{ kind: 'avoided-crossing', trajectories: [0, 1], step: 1, distance: 0.2, from: 0, to: 2, petermann: 4.5, widthSums: [0.15, 0.17, 0.19] }],
