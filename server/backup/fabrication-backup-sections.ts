@@ -12,7 +12,7 @@ import type { Queryable } from '../db/client.js';
 import { resonances } from '../db/schema/catalogue.js';
 import { resonanceComments, resonanceFabrication } from '../db/schema/fabrication.js';
 import { authorEmails } from './author-emails.js';
-import type { BackupSection } from './backup-sections.js';
+import type { BackupSection } from './backup-section.js';
 
 const id = z.uuid();
 const when = z.iso.datetime({ offset: true });

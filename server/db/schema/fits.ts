@@ -1,5 +1,5 @@
 import type { FitResult } from '../../../shared/engine/fit.js';
-import type { PoleComparison } from '../../fits/fit-comparison.js';
+import type { PoleComparison } from '../../../shared/api/fits.js';
 import { sql } from 'drizzle-orm';
 import { check, doublePrecision, index, integer, jsonb, pgTable, text, timestamp, uuid } from 'drizzle-orm/pg-core';
 import { researchGroups } from './groups.js';

@@ -15,7 +15,7 @@ import { confirmAction } from '../core/confirm/confirm-dialog';
 import { ErrorReport } from '../core/errors/error-report';
 import { fieldError } from '../core/errors/field-error';
 import { toProblem } from '../core/errors/problem';
-import { passwordsMatch } from '../reset-password/passwords-match';
+import { passwordsMatch } from '../core/forms/passwords-match';
 import { AccountApi } from './account-api';
 
 /**

@@ -9,7 +9,7 @@ import { Auth } from '../core/auth/auth';
 import { ErrorReport } from '../core/errors/error-report';
 import { AccountApi } from './account-api';
 import { accountEvent } from './account-event';
-import { NotificationSettings } from '../fabrication/notification-settings';
+import { NotificationSettings } from '../core/fabrication/notification-settings';
 import { AccountSettings } from './account-settings';
 
 /** The signed-in person's account: settings, and what happened to it lately (sign-ins, failures, resets, tokens). */

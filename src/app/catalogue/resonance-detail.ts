@@ -23,7 +23,7 @@ import { materialLabel } from '../core/format/material-label';
 import { PartialWidths } from './partial-widths';
 import { PhaseLegend } from './phase-legend';
 import { ModeMapPanel } from './mode-map-panel';
-import { FabricationPanel } from '../fabrication/fabrication-panel';
+import { FabricationPanel } from '../core/fabrication/fabrication-panel';
 
 /**
  * One catalogued resonance: its figures in units that fit, the partial widths per

@@ -4,7 +4,7 @@ import { MatIconModule } from '@angular/material/icon';
 import type { CatalogueImportResult } from '../../../shared/api/fabrication';
 import { ErrorReport } from '../core/errors/error-report';
 import { CurrentGroup } from '../core/group/current-group';
-import { FabricationApi } from './fabrication-api';
+import { FabricationApi } from '../core/fabrication/fabrication-api';
 
 /** For a group's admin: import a catalogue JSON export of another group; a bad file is refused whole. */
 @Component({

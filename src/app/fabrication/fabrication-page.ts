@@ -10,8 +10,8 @@ import { ErrorReport } from '../core/errors/error-report';
 import { CurrentGroup } from '../core/group/current-group';
 import { formatEnergy, formatQuality, formatWidth, significant } from '../core/format/energy-format';
 import { CatalogueImportForm } from './catalogue-import-form';
-import { FabricationApi } from './fabrication-api';
-import { STATE_ICONS, stateLabel } from './state-label';
+import { FabricationApi } from '../core/fabrication/fabrication-api';
+import { STATE_ICONS, stateLabel } from '../core/fabrication/state-label';
 
 /**
  * The Fabrication page: approved, sent and measured resonances with their package downloads

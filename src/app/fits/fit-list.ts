@@ -11,7 +11,7 @@ import { Router, RouterLink } from '@angular/router';
 import { ErrorReport } from '../core/errors/error-report';
 import { CurrentGroup } from '../core/group/current-group';
 import { significant } from '../core/format/energy-format';
-import { FitsApi, type FitDetail, type TracePreview, type TraceSummary } from './fits-api';
+import { FitsApi, type FitDetail, type TracePreview, type TraceSummary } from '../core/api/fits-api';
 
 const LINESHAPE_WORDS: Record<string, string> = { bw: 'Breit–Wigner', fano: 'Fano', thermal: 'thermal Breit–Wigner', 'thermal-fano': 'thermal Fano' };
 

@@ -8,7 +8,7 @@ import { settle } from '../core/testing/next-request';
 import { brushRange } from './brush-range';
 import { fitChartOptions } from './fit-chart-options';
 import { FitWorkspace } from './fit-workspace';
-import { FitsApi, type FitDetail } from './fits-api';
+import { FitsApi, type FitDetail } from '../core/api/fits-api';
 
 /** A brushEnd event as echarts emits it for a lineX brush bound to x axis 0. */
 const brushEnd = (a: number, b: number) => ({ type: 'brushEnd', areas: [{ brushType: 'lineX', range: [120, 340], coordRange: [a, b], xAxisIndex: 0 }] });

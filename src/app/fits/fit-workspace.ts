@@ -17,7 +17,7 @@ import { significant } from '../core/format/energy-format';
 import { chartColours } from '../core/charts/chart-colours';
 import { brushRange } from './brush-range';
 import { fitChartOptions } from './fit-chart-options';
-import { FitsApi, type FitDetail, type FitRequest, type Lineshape } from './fits-api';
+import { FitsApi, type FitDetail, type FitRequest, type Lineshape } from '../core/api/fits-api';
 
 /** The parts of the echarts instance the workspace calls. */
 interface FitChart {

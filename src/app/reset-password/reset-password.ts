@@ -10,7 +10,7 @@ import { firstValueFrom } from 'rxjs';
 import { ErrorReport } from '../core/errors/error-report';
 import { fieldError } from '../core/errors/field-error';
 import { toProblem } from '../core/errors/problem';
-import { passwordsMatch } from './passwords-match';
+import { passwordsMatch } from '../core/forms/passwords-match';
 import { ResetPasswordApi } from './reset-password-api';
 
 /**

@@ -15,8 +15,8 @@ import { ErrorReport } from '../core/errors/error-report';
 import { CurrentGroup } from '../core/group/current-group';
 import { formatEnergy, formatLifetime, formatQuality, formatWidth } from '../core/format/energy-format';
 import { materialLabel } from '../core/format/material-label';
-import { FabricationApi } from '../fabrication/fabrication-api';
-import { STATE_ICONS, stateLabel } from '../fabrication/state-label';
+import { FabricationApi } from '../core/fabrication/fabrication-api';
+import { STATE_ICONS, stateLabel } from '../core/fabrication/state-label';
 
 /**
  * The reviewers' queue: candidates for fabrication with their figures, mode images and the

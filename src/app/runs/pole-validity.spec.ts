@@ -1,4 +1,4 @@
-import type { ResonanceRow } from '../catalogue/catalogue-api';
+import type { ResonanceRow } from '../core/answers/resonance-row';
 import type { ChartColours } from '../core/charts/chart-colours';
 import { polePlaneOptions } from '../core/charts/pole-plane-options';
 import { microwaveCells, validitySummary } from './pole-validity';

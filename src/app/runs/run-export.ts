@@ -1,5 +1,5 @@
 import Papa from 'papaparse';
-import type { ResonanceRow } from '../catalogue/catalogue-api';
+import type { ResonanceRow } from '../core/answers/resonance-row';
 import type { RunDetail } from './runs-api';
 import { spectrumWarnings } from './spectrum-warnings';
 

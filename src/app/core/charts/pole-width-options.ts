@@ -1,6 +1,6 @@
 import type { EChartsCoreOption } from 'echarts/core';
 import type { PlaneInput, PlanePole } from './pole-plane-options';
-import { validityOverlay } from './validity-overlay';
+import { validityOverlay } from './pole-plane-options';
 
 /**
  * The range of the log-width axis (meV): from a little below the smallest width in

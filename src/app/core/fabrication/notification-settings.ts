@@ -1,7 +1,7 @@
 import { ChangeDetectionStrategy, Component, inject, signal } from '@angular/core';
 import { MatSlideToggleModule } from '@angular/material/slide-toggle';
-import type { NotificationKind, NotificationSettings as Settings } from '../../../shared/api/fabrication';
-import { ErrorReport } from '../core/errors/error-report';
+import type { NotificationKind, NotificationSettings as Settings } from '../../../../shared/api/fabrication';
+import { ErrorReport } from '../errors/error-report';
 import { FabricationApi } from './fabrication-api';
 
 /** The account page's e-mail settings: each kind of notification on or off, saved at once. */

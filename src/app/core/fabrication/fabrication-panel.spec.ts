@@ -1,10 +1,10 @@
 import { provideHttpClient } from '@angular/common/http';
 import { HttpTestingController, provideHttpClientTesting } from '@angular/common/http/testing';
 import { TestBed } from '@angular/core/testing';
-import type { FabricationRecord } from '../../../shared/api/fabrication';
-import type { Role } from '../core/auth/session';
-import { provideFakeCurrentGroup } from '../core/testing/fake-current-group';
-import { settle } from '../core/testing/next-request';
+import type { FabricationRecord } from '../../../../shared/api/fabrication';
+import type { Role } from '../auth/session';
+import { provideFakeCurrentGroup } from '../testing/fake-current-group';
+import { settle } from '../testing/next-request';
 import { FabricationPanel } from './fabrication-panel';
 
 const base = '/api/groups/g1/resonances/r1';

@@ -1,8 +1,8 @@
 import { HttpClient } from '@angular/common/http';
 import { Injectable, inject } from '@angular/core';
 import { Observable, of, switchMap, takeWhile, timer } from 'rxjs';
-import type { FittedPeak } from '../../../shared/engine/fit';
-import { browserEventSource, progressEvents, type EventSourceFactory } from '../core/events/progress-events';
+import type { FittedPeak } from '../../../../shared/engine/fit';
+import { browserEventSource, progressEvents, type EventSourceFactory } from '../events/progress-events';
 
 export type Lineshape = 'bw' | 'fano' | 'thermal' | 'thermal-fano';
 
@@ -45,7 +45,7 @@ export interface FittedParameter {
 }
 
 /** One fitted peak with its standard errors: the engine's own type (shared/engine/fit.ts). */
-export type { FittedPeak } from '../../../shared/engine/fit';
+export type { FittedPeak } from '../../../../shared/engine/fit';
 
 export interface FitResult {
   lineshape: Lineshape;

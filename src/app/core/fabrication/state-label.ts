@@ -1,4 +1,4 @@
-import { stateWords, type FabricationState } from '../../../shared/fabrication/fabrication-states';
+import { stateWords, type FabricationState } from '../../../../shared/fabrication/fabrication-states';
 
 /** The icon of a fabrication state, beside its words (colour is never the only cue). */
 export const STATE_ICONS: Record<FabricationState, string> = {

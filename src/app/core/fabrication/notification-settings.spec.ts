@@ -1,7 +1,7 @@
 import { provideHttpClient } from '@angular/common/http';
 import { HttpTestingController, provideHttpClientTesting } from '@angular/common/http/testing';
 import { TestBed } from '@angular/core/testing';
-import { settle } from '../core/testing/next-request';
+import { settle } from '../testing/next-request';
 import { NotificationSettings } from './notification-settings';
 
 const kinds = (off: string[]) => ({

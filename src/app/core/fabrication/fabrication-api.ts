@@ -11,8 +11,8 @@ import type {
   NotificationSettings,
   ResonanceComment,
   transitionBodySchema,
-} from '../../../shared/api/fabrication';
-import type { FabricationState } from '../../../shared/fabrication/fabrication-states';
+} from '../../../../shared/api/fabrication';
+import type { FabricationState } from '../../../../shared/fabrication/fabrication-states';
 
 /** What a move sends (defaults may be left out). */
 export type TransitionRequest = z.input<typeof transitionBodySchema>;
