@@ -377,9 +377,11 @@ describe('lattice validity stored with every resonance', () => {
     expect(after!.rxNm).toBe(25);
     expect(after!.ryNm).toBe(45);
     expect(after!.areaNm2).toBe(before.areaNm2);
-    const again = await backfillDerivedColumns(db);
-    expect(again.resonances).toBe(done.resonances - 1);
-    expect(again.skipped).toBe(done.skipped);
+    // A second pass leaves the filled row as it is. (Counts are not compared: other test files
+    // write rows into the same database while this one runs.)
+    await backfillDerivedColumns(db);
+    const [twice] = await db.select().from(resonances).where(eq(resonances.id, before.id));
+    expect(twice).toEqual(after);
   });
 });
 
