@@ -1,3 +1,4 @@
+import { writeAudit } from '../audit/audit-log.js';
 /**
  * The fabrication package of an approved (sent, measured) resonance: the spec sheet, the
  * layout in GDSII, DXF and SVG, a README with the layer map, and the figures as JSON; one
@@ -54,6 +55,11 @@ export class FabricationPackages {
     private readonly db: Db,
     private readonly compute: Compute,
   ) {}
+
+  /** Each download is recorded in the group's activity. */
+  async recordDownload(groupId: string, actorId: string, fileName: string, resonanceId: string, which: string): Promise<void> {
+    await writeAudit(this.db, { groupId, actorId, action: 'fabrication.downloaded', subject: fileName, details: { resonanceId, file: which } });
+  }
 
   private async source(groupId: string, resonanceId: string) {
     const [r] = await this.db

@@ -8,7 +8,6 @@ import {
   packageFileRoutes,
   PACKAGE_FILES,
 } from '../../shared/api/fabrication.js';
-import { writeAudit } from '../audit/audit-log.js';
 import { resonanceNotFound } from '../catalogue/catalogue-service.js';
 import type { Db } from '../db/client.js';
 import { clientGone } from '../http/client-gone.js';
@@ -55,13 +54,7 @@ export function fabricationPackageRoutes(db: Db, packages: FabricationPackages):
     mountRoute(router, packageFileRoutes[which], async ({ params }, req, res) => {
       const id = resonanceIdOf(params.id);
       const file = await packages.file(req.membership!.groupId, id, which, clientGone(res));
-      await writeAudit(db, {
-        groupId: req.membership!.groupId,
-        actorId: req.auth!.user.id,
-        action: 'fabrication.downloaded',
-        subject: file.fileName,
-        details: { resonanceId: id, file: which },
-      });
+      await packages.recordDownload(req.membership!.groupId, req.auth!.user.id, file.fileName, id, which);
       res.setHeader('Content-Disposition', `attachment; filename="${file.fileName}"`);
       res
         .status(200)
