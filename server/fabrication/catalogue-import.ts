@@ -128,7 +128,7 @@ export class CatalogueImport {
           modelId = await insertModel(tx, groupId, userId, m.name, null);
           newModel.set(m.modelId, modelId);
         }
-        await insertVersion(tx, groupId, modelId, m.version, userId, c);
+        await insertVersion(tx, groupId, modelId, m.version, userId, { ...c, model: m.document as typeof c.model });
         const [v] = await tx
           .select({ id: modelVersions.id })
           .from(modelVersions)
