@@ -9,7 +9,7 @@ import { and, eq, inArray, isNull, sql, type SQL } from 'drizzle-orm';
 import type { PgUpdateSetSource } from 'drizzle-orm/pg-core';
 import type { Queryable } from '../db/client.js';
 import { peakFits, type FitStatus } from '../db/schema/fits.js';
-import { canTransition, IllegalTransition, sourcesOf, type Transitions } from '../jobs/job-lifecycle.js';
+import { canTransition, IllegalTransition, unlessEnded, sourcesOf, type Transitions } from '../jobs/job-lifecycle.js';
 import { notifyFit } from './fit-notify.js';
 
 /**
@@ -42,16 +42,6 @@ async function transition(q: Queryable, id: string, to: FitStatus, guard: { atte
   if (guard.attempt !== undefined && (now.attempt !== guard.attempt || now.status !== 'running')) return null;
   if (!canTransition(FIT_TRANSITIONS, now.status, to)) throw new IllegalTransition('fit', id, now.status, to);
   return null;
-}
-
-/** For workers and the supervisor a fit that ended meanwhile is no error. */
-async function unlessEnded<T>(p: Promise<T>): Promise<T | null> {
-  try {
-    return await p;
-  } catch (err) {
-    if (err instanceof IllegalTransition) return null;
-    throw err;
-  }
 }
 
 export const fitStore = {

@@ -27,3 +27,16 @@ export class IllegalTransition extends Error {
     this.name = 'IllegalTransition';
   }
 }
+
+/**
+ * Null instead of IllegalTransition: for workers and the supervisor, a job row that ended
+ * meanwhile (cancelled, handed to another attempt) is no error.
+ */
+export async function unlessEnded<T>(p: Promise<T>): Promise<T | null> {
+  try {
+    return await p;
+  } catch (err) {
+    if (err instanceof IllegalTransition) return null;
+    throw err;
+  }
+}

@@ -8,7 +8,7 @@ import { and, eq, inArray, isNull, or, sql, type SQL } from 'drizzle-orm';
 import type { PgUpdateSetSource } from 'drizzle-orm/pg-core';
 import type { Queryable } from '../db/client.js';
 import { modeMaps, type ModeMapStatus } from '../db/schema/mode-maps.js';
-import { canTransition, IllegalTransition, sourcesOf, type Transitions } from '../jobs/job-lifecycle.js';
+import { canTransition, IllegalTransition, unlessEnded, sourcesOf, type Transitions } from '../jobs/job-lifecycle.js';
 
 /**
  * queued → running (a worker claims it), failed (it could not be queued);
@@ -43,16 +43,6 @@ async function transition(
   if (guard.attempt !== undefined && (now.attempt !== guard.attempt || now.status !== 'running')) return null;
   if (!canTransition(MODE_MAP_TRANSITIONS, now.status, to)) throw new IllegalTransition('map', id, now.status, to);
   return null;
-}
-
-/** Null instead of IllegalTransition: for workers and the supervisor, a map that ended meanwhile is no error. */
-async function unlessEnded<T>(p: Promise<T>): Promise<T | null> {
-  try {
-    return await p;
-  } catch (err) {
-    if (err instanceof IllegalTransition) return null;
-    throw err;
-  }
 }
 
 export const modeMapStore = {
