@@ -1,10 +1,9 @@
-import { and, desc, eq, inArray } from 'drizzle-orm';
+import { and, eq, inArray } from 'drizzle-orm';
 import { Router } from 'express';
 import {
   NOTIFICATION_KINDS,
   NOTIFICATION_KIND_WORDS,
   getNotificationSettingsRoute,
-  listFailedNotificationsRoute,
   setNotificationSettingsRoute,
   type NotificationKind,
   type NotificationSettings,
@@ -12,7 +11,7 @@ import {
 import { writeAudit } from '../audit/audit-log.js';
 import { signedInUser } from '../auth/authenticate.js';
 import type { Db, Queryable } from '../db/client.js';
-import { notificationOptOuts, notifications } from '../db/schema/fabrication.js';
+import { notificationOptOuts } from '../db/schema/fabrication.js';
 import { mountRoute } from '../http/mount-route.js';
 
 export async function notificationSettings(q: Queryable, userId: string): Promise<NotificationSettings> {
@@ -47,31 +46,6 @@ export function notificationSettingsRoutes(db: Db): Router {
       });
       return notificationSettings(tx, user.id);
     });
-  });
-  return router;
-}
-
-/** /api/groups/:groupId/notifications/failed: what could not be sent, for the group's admins. */
-export function failedNotificationRoutes(db: Db): Router {
-  const router = Router();
-  mountRoute(router, listFailedNotificationsRoute, async (_input, req) => {
-    const rows = await db
-      .select()
-      .from(notifications)
-      .where(and(eq(notifications.groupId, req.membership!.groupId), eq(notifications.status, 'failed')))
-      .orderBy(desc(notifications.createdAt))
-      .limit(200);
-    return {
-      items: rows.map((r) => ({
-        id: r.id,
-        kind: r.kind,
-        to: r.toAddress,
-        subject: r.subject,
-        attempts: r.attempts,
-        error: r.error,
-        createdAt: r.createdAt.toISOString(),
-      })),
-    };
   });
   return router;
 }

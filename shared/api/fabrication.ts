@@ -213,6 +213,7 @@ export const failedNotificationSchema = z.object({
   error: z.string().nullable(),
   createdAt: z.string(),
 });
+export type FailedNotification = z.infer<typeof failedNotificationSchema>;
 export const failedNotificationListSchema = z.object({ items: z.array(failedNotificationSchema) });
 
 /** The answer of a catalogue import. */
@@ -392,6 +393,20 @@ export const listFailedNotificationsRoute = declareRoute({
   answer: json(200, 'The failed notifications, newest first', failedNotificationListSchema),
 });
 
+export const retryFailedNotificationRoute = declareRoute({
+  id: 'retryFailedNotification',
+  method: 'post',
+  path: '/groups/{groupId}/notifications/{id}/retry',
+  tag: 'fabrication',
+  summary: 'Send a failed e-mail notification again (after the mail settings were fixed)',
+  access: 'admin',
+  notes:
+    'The notification is queued again with a fresh set of retries; 404 when the group has no such notification, 409 not_failed when it is not marked failed.',
+  params: z.object({ groupId: z.uuid(), id: z.uuid({ error: 'must be the id of a notification' }) }),
+  described: { params: z.object({ groupId: z.uuid(), id: z.uuid() }) },
+  answer: json(200, 'The notification, queued again', z.object({ id: z.string(), status: z.literal('queued') })),
+});
+
 export const getNotificationSettingsRoute = declareRoute({
   id: 'getNotificationSettings',
   method: 'get',
@@ -434,6 +449,7 @@ export const fabricationRoutes = [
   addCommentRoute,
   ...Object.values(packageFileRoutes),
   listFailedNotificationsRoute,
+  retryFailedNotificationRoute,
   getNotificationSettingsRoute,
   setNotificationSettingsRoute,
   importCatalogueRoute,

@@ -212,4 +212,30 @@ describe('e-mail notifications', () => {
       worker = await startNotificationWorker({ db: app.handle.db, boss, mailer, pollingIntervalSeconds: 0.5 });
     }
   });
+
+  it('an admin sends a failed notification again once the mail works; it arrives once and leaves the list', async () => {
+    const failedUrl = `/api/groups/${lab.groupId}/notifications/failed`;
+    const [failed] = (await as.admin!.get(failedUrl).expect(200)).body.items as { id: string; to: string; subject: string }[];
+    expect(failed, 'the previous test leaves a failed notification').toBeDefined();
+    const retryUrl = `/api/groups/${lab.groupId}/notifications/${failed!.id}/retry`;
+    expect((await as.designer!.post(retryUrl, {})).status).toBe(403);
+    const before = (await mailTo(failed!.to)).filter((m) => m.subject === failed!.subject).length;
+
+    const res = await as.admin!.post(retryUrl, {});
+    expect(res.status, JSON.stringify(res.body)).toBe(200);
+    expect(res.body).toEqual({ id: failed!.id, status: 'queued' });
+    await settled();
+    const [row] = await app.handle.db.select().from(notifications).where(eq(notifications.id, failed!.id));
+    expect(row!.status).toBe('sent');
+    expect((await mailTo(failed!.to)).filter((m) => m.subject === failed!.subject)).toHaveLength(before + 1);
+    expect(((await as.admin!.get(failedUrl).expect(200)).body.items as { id: string }[]).map((i) => i.id)).not.toContain(failed!.id);
+
+    const again = await as.admin!.post(retryUrl, {});
+    expect(again.status).toBe(409);
+    expect(again.body.code).toBe('not_failed');
+    expect((await as.admin!.post(`/api/groups/${lab.groupId}/notifications/00000000-0000-4000-8000-000000000000/retry`, {})).status).toBe(404);
+    const malformed = await as.admin!.post(`/api/groups/${lab.groupId}/notifications/not-an-id/retry`, {});
+    expect(malformed.status).toBe(400);
+    expect(JSON.stringify(malformed.body)).toContain('must be the id of a notification');
+  });
 });

@@ -73,5 +73,15 @@ describe('FabricationPage', () => {
     expect(comparison).toContain('no σ given');
     expect(comparison).toContain('peak fit');
     expect(host.querySelector('[data-test="failed-mail"]')!.textContent).toContain('554 relay denied');
+
+    // "Send again" queues it afresh and takes it off the list.
+    (host.querySelector('[data-test="retry-mail"]') as HTMLButtonElement).click();
+    const retry = http.expectOne('/api/groups/g1/notifications/n1/retry');
+    expect(retry.request.method).toBe('POST');
+    retry.flush({ id: 'n1', status: 'queued' });
+    await settle();
+    fixture.detectChanges();
+    expect(host.querySelector('[data-test="failed-mail"]')).toBeNull();
+    http.verify();
   });
 });

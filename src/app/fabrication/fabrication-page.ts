@@ -5,7 +5,7 @@ import { MatButtonModule } from '@angular/material/button';
 import { MatIconModule } from '@angular/material/icon';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { RouterLink } from '@angular/router';
-import type { FabricationItem } from '../../../shared/api/fabrication';
+import type { FabricationItem, FailedNotification } from '../../../shared/api/fabrication';
 import { ErrorReport } from '../core/errors/error-report';
 import { CurrentGroup } from '../core/group/current-group';
 import { formatEnergy, formatQuality, formatWidth, significant } from '../core/format/energy-format';
@@ -39,7 +39,9 @@ export class FabricationPage {
 
   protected readonly items = signal<FabricationItem[] | undefined>(undefined);
   /** Admins only: e-mails the queue gave up on. */
-  protected readonly failedMail = signal<{ id: string; to: string; subject: string; attempts: number; error: string | null; createdAt: string }[]>([]);
+  protected readonly failedMail = signal<FailedNotification[]>([]);
+  /** The failed e-mail being queued again, if any. */
+  protected readonly retrying = signal<string | null>(null);
   protected readonly measured = computed(() => (this.items() ?? []).filter((i) => i.measurement !== null));
 
   constructor() {
@@ -55,6 +57,26 @@ export class FabricationPage {
 
   protected percent(p: number | null): string {
     return p === null ? '–' : `${significant(p, 3)} %`;
+  }
+
+  /** Queues a failed e-mail again; it leaves the list (the queue retries it afresh). */
+  protected retryMail(id: string): void {
+    const gid = this.group.id();
+    if (!gid) return;
+    this.retrying.set(id);
+    this.api
+      .retryNotification(gid, id)
+      .pipe(takeUntilDestroyed(this.destroyRef))
+      .subscribe({
+        next: () => {
+          this.retrying.set(null);
+          this.failedMail.update((list) => list.filter((f) => f.id !== id));
+        },
+        error: (err: unknown) => {
+          this.retrying.set(null);
+          this.errors.show(err);
+        },
+      });
   }
 
   private load(groupId: string): void {

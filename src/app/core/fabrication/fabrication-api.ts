@@ -54,6 +54,11 @@ export class FabricationApi {
     return this.http.get<z.infer<typeof failedNotificationListSchema>>(`${this.base(groupId)}/notifications/failed`).pipe(map((b) => b.items));
   }
 
+  /** Admin only: queue a failed e-mail again (after the server's mail settings were fixed). */
+  retryNotification(groupId: string, notificationId: string): Observable<{ id: string; status: 'queued' }> {
+    return this.http.post<{ id: string; status: 'queued' }>(`${this.base(groupId)}/notifications/${encodeURIComponent(notificationId)}/retry`, {});
+  }
+
   settings(): Observable<NotificationSettings> {
     return this.http.get<NotificationSettings>('/api/account/notifications');
   }
