@@ -105,7 +105,9 @@ export function complexSchur(n: number, a: Float64Array): ComplexSchur {
     while (l > 0) {
       const sub = abs(l, l - 1);
       const diag = abs(l, l) + abs(l - 1, l - 1);
-      if (sub <= Number.EPSILON * (diag > 0 ? diag : scale) || sub <= tiny) break;
+      // Relative test, or normwise (backward stable, and needed for multiple zero
+      // eigenvalues such as λ = ∞ of a singular lead hopping, where the relative test stalls).
+      if (sub <= Number.EPSILON * diag || sub <= Number.EPSILON * scale || sub <= tiny) break;
       l--;
     }
     if (l > 0) {

@@ -126,6 +126,8 @@ export function leadBandEdges(cell: LeadCell, samples = 128): BandEdge[] {
       const isMin = e1 <= e0 && e1 < e2;
       const isMax = e1 >= e0 && e1 > e2;
       if (!isMin && !isMax) continue;
+      // A flat stretch (a Landau level's plateau) holds many rounding-level extrema: refine one.
+      if (edges.some((e) => e.band === b && Math.abs(e.energy - e1) <= 1e-10 * scale)) continue;
       const h = (2 * Math.PI) / samples;
       let lo = ks[i] - h;
       let hi = ks[i] + h;
@@ -133,8 +135,13 @@ export function leadBandEdges(cell: LeadCell, samples = 128): BandEdge[] {
       const fLo = slopeAndCurvature(cell, lo, b).slope;
       let k = ks[i];
       let found: BandEdge | undefined;
-      for (let it = 0; it < 100; it++) {
+      for (let it = 0; it < 60; it++) {
         const s = slopeAndCurvature(cell, k, b);
+        if (s.gap <= 1e-9 * scale) {
+          // (Nearly) degenerate: an edge only if every velocity on the degenerate pair vanishes.
+          if (degenerateVelocity(cell, k, s.energy, 1e-9 * scale) <= 1e-9 * scale) found = { band: b, k: wrap(k), energy: s.energy };
+          break;
+        }
         if (Math.abs(s.slope) <= 1e-12 * scale) {
           if (s.gap > 1e-9 * scale || degenerateVelocity(cell, k, s.energy, 1e-9 * scale) <= 1e-9 * scale) found = { band: b, k: wrap(k), energy: s.energy };
           break;

@@ -1,0 +1,198 @@
+/**
+ * Small test systems for the numerical leads, built here with dense matrices and
+ * independent of the engine's lattice: a square-lattice ribbon cell (optionally in a
+ * field, Landau gauge A = (−B·y, 0) as in docs/physics-model.md), a zigzag graphene
+ * ribbon cell, and a two-terminal scattering problem through a piece of ribbon.
+ */
+import { denseLu, denseLuSolve } from '../../shared/engine/dense-solve';
+import type { LeadCell } from '../../shared/engine/numerical-lead-modes';
+import { NumericalLead } from '../../shared/engine/numerical-lead';
+
+/**
+ * Column of a square-lattice ribbon, W sites (row r = 0..W−1, y = r·a), for a lead
+ * along +x: H0 = 4t + V on the diagonal, −t between rows; H1 = H[(c, r), (c+1, r)] =
+ * −t·e^{−2πiφr} (the contract's bond phase θ((c,r)→(c+1,r)) = 2πφr, conjugated since
+ * H1 is the block from column c+1 into column c).
+ */
+export function squareRibbonCell(width: number, t: number, flux = 0, onsite: (r: number) => number = () => 0): LeadCell {
+  const n = width;
+  const h0 = new Float64Array(2 * n * n);
+  const h1 = new Float64Array(2 * n * n);
+  for (let r = 0; r < n; r++) {
+    h0[2 * (r * n + r)] = 4 * t + onsite(r);
+    if (r + 1 < n) {
+      h0[2 * (r * n + r + 1)] = -t;
+      h0[2 * ((r + 1) * n + r)] = -t;
+    }
+    h1[2 * (r * n + r)] = -t * Math.cos(2 * Math.PI * flux * r);
+    h1[2 * (r * n + r) + 1] = -t * Math.sin(-2 * Math.PI * flux * r);
+  }
+  return { size: n, h0, h1 };
+}
+
+/**
+ * Zigzag graphene ribbon of N zigzag chains, 2N sites per cell (period √3·a_CC):
+ * site 2m is A_m, 2m+1 is B_m; bonds A_m(j)–B_m(j) and B_m(j)–A_{m+1}(j) inside the
+ * cell and B_m(j)–A_m(j+1) to the next cell, all −t. Edge sites A_0 and B_{N−1} have
+ * two neighbours (zigzag edges). H1 has rank N: it is singular.
+ */
+export function zigzagRibbonCell(chains: number, t: number): LeadCell {
+  const n = 2 * chains;
+  const h0 = new Float64Array(2 * n * n);
+  const h1 = new Float64Array(2 * n * n);
+  const set = (m: Float64Array, i: number, j: number, v: number) => {
+    m[2 * (i * n + j)] = v;
+  };
+  for (let m = 0; m < chains; m++) {
+    set(h0, 2 * m, 2 * m + 1, -t);
+    set(h0, 2 * m + 1, 2 * m, -t);
+    if (m + 1 < chains) {
+      set(h0, 2 * m + 1, 2 * m + 2, -t);
+      set(h0, 2 * m + 2, 2 * m + 1, -t);
+    }
+    // H1 = H_{j,j+1}: row B_m of cell j, column A_m of cell j+1
+    set(h1, 2 * m + 1, 2 * m, -t);
+  }
+  return { size: n, h0, h1 };
+}
+
+/** The cell's Hermitian conjugate hopping: the cell of the same ribbon seen as a lead along −x. */
+export function reversedCell(cell: LeadCell): LeadCell {
+  const n = cell.size;
+  const h1 = new Float64Array(2 * n * n);
+  for (let i = 0; i < n; i++)
+    for (let j = 0; j < n; j++) {
+      h1[2 * (i * n + j)] = cell.h1[2 * (j * n + i)];
+      h1[2 * (i * n + j) + 1] = -cell.h1[2 * (j * n + i) + 1];
+    }
+  return { size: n, h0: cell.h0, h1 };
+}
+
+/** A piece of L cells of a ribbon (cells 0..L−1 along +x) with extra on-site energies, and its two leads. */
+export interface RibbonDevice {
+  n: number;
+  h: Float64Array;
+  leads: { lead: NumericalLead; mouth: number[] }[];
+}
+
+/**
+ * The ribbon piece: H = block tridiagonal with H0 (+ potential(cell, site)) and H1
+ * between neighbouring cells; lead 0 on the left (cells along −x: H1 → H1†, coupling
+ * V = H1 from its first cell into cell 0), lead 1 on the right (coupling V = H1† into
+ * cell L−1).
+ */
+export function ribbonDevice(cell: LeadCell, length: number, potential: (c: number, s: number) => number = () => 0, kSamples = 128): RibbonDevice {
+  const w = cell.size;
+  const n = w * length;
+  const h = new Float64Array(2 * n * n);
+  for (let c = 0; c < length; c++)
+    for (let i = 0; i < w; i++) {
+      for (let j = 0; j < w; j++) {
+        h[2 * ((c * w + i) * n + c * w + j)] = cell.h0[2 * (i * w + j)];
+        h[2 * ((c * w + i) * n + c * w + j) + 1] = cell.h0[2 * (i * w + j) + 1];
+        if (c + 1 < length) {
+          h[2 * ((c * w + i) * n + (c + 1) * w + j)] = cell.h1[2 * (i * w + j)];
+          h[2 * ((c * w + i) * n + (c + 1) * w + j) + 1] = cell.h1[2 * (i * w + j) + 1];
+          h[2 * (((c + 1) * w + j) * n + c * w + i)] = cell.h1[2 * (i * w + j)];
+          h[2 * (((c + 1) * w + j) * n + c * w + i) + 1] = -cell.h1[2 * (i * w + j) + 1];
+        }
+      }
+      h[2 * ((c * w + i) * n + c * w + i)] += potential(c, i);
+    }
+  const left = reversedCell(cell);
+  const leftLead = new NumericalLead({ cell: left, mouthSize: w, coupling: cell.h1 }, { kSamples });
+  const rightLead = new NumericalLead({ cell, mouthSize: w, coupling: left.h1 }, { kSamples });
+  const range = (o: number) => Array.from({ length: w }, (_, i) => o + i);
+  return {
+    n,
+    h,
+    leads: [
+      { lead: leftLead, mouth: range(0) },
+      { lead: rightLead, mouth: range((length - 1) * w) },
+    ],
+  };
+}
+
+/** S-matrix, transmissions and residuals at a real energy (contract's S = −1 + i·W†GW). */
+export interface DeviceScattering {
+  open: number[];
+  s: Float64Array;
+  transmission: number;
+  reflection: number;
+  unitarity: number;
+}
+
+/** Solves the device at E with dense matrices. */
+export function deviceScattering(dev: RibbonDevice, energy: number): DeviceScattering {
+  const { n, h } = dev;
+  const a = new Float64Array(2 * n * n);
+  for (let e = 0; e < a.length; e++) a[e] = -h[e];
+  for (let i = 0; i < n; i++) a[2 * (i * n + i)] += energy;
+  const cols: { lead: number; w: Float64Array }[] = [];
+  const open: number[] = [];
+  dev.leads.forEach(({ lead, mouth }, l) => {
+    const m = mouth.length;
+    const sigma = lead.selfEnergy(energy, 0);
+    for (let p = 0; p < m; p++)
+      for (let q = 0; q < m; q++) {
+        a[2 * (mouth[p] * n + mouth[q])] -= sigma[2 * (p * m + q)];
+        a[2 * (mouth[p] * n + mouth[q]) + 1] -= sigma[2 * (p * m + q) + 1];
+      }
+    const ch = lead.channels(energy);
+    open.push(ch.count);
+    for (let c = 0; c < ch.count; c++) {
+      const w = new Float64Array(2 * n);
+      for (let p = 0; p < m; p++) {
+        w[2 * mouth[p]] = ch.columns[2 * (p * ch.count + c)];
+        w[2 * mouth[p] + 1] = ch.columns[2 * (p * ch.count + c) + 1];
+      }
+      cols.push({ lead: l, w });
+    }
+  });
+  const nc = cols.length;
+  const wm = new Float64Array(2 * n * nc);
+  cols.forEach((c, k) => {
+    for (let i = 0; i < n; i++) {
+      wm[2 * (i * nc + k)] = c.w[2 * i];
+      wm[2 * (i * nc + k) + 1] = c.w[2 * i + 1];
+    }
+  });
+  const gw = denseLuSolve(denseLu(n, a), wm, nc);
+  const s = new Float64Array(2 * nc * nc);
+  for (let x = 0; x < nc; x++)
+    for (let y = 0; y < nc; y++) {
+      let re = 0;
+      let im = 0;
+      for (let i = 0; i < n; i++) {
+        const wr = wm[2 * (i * nc + x)];
+        const wi = -wm[2 * (i * nc + x) + 1];
+        re += wr * gw[2 * (i * nc + y)] - wi * gw[2 * (i * nc + y) + 1];
+        im += wr * gw[2 * (i * nc + y) + 1] + wi * gw[2 * (i * nc + y)];
+      }
+      // S = −1 + i·(W†GW)
+      s[2 * (x * nc + y)] = -im - (x === y ? 1 : 0);
+      s[2 * (x * nc + y) + 1] = re;
+    }
+  let transmission = 0;
+  let reflection = 0;
+  for (let x = 0; x < nc; x++)
+    for (let y = 0; y < nc; y++) {
+      const p = s[2 * (x * nc + y)] ** 2 + s[2 * (x * nc + y) + 1] ** 2;
+      if (cols[y].lead === 0 && cols[x].lead === 1) transmission += p;
+      if (cols[y].lead === 0 && cols[x].lead === 0) reflection += p;
+    }
+  let unitarity = 0;
+  for (let x = 0; x < nc; x++)
+    for (let y = 0; y < nc; y++) {
+      let re = 0;
+      let im = 0;
+      for (let k = 0; k < nc; k++) {
+        const ar = s[2 * (k * nc + x)];
+        const ai = -s[2 * (k * nc + x) + 1];
+        re += ar * s[2 * (k * nc + y)] - ai * s[2 * (k * nc + y) + 1];
+        im += ar * s[2 * (k * nc + y) + 1] + ai * s[2 * (k * nc + y)];
+      }
+      unitarity = Math.max(unitarity, Math.hypot(re - (x === y ? 1 : 0), im));
+    }
+  return { open, s, transmission, reflection, unitarity };
+}
