@@ -216,6 +216,50 @@ describe('numerical leads of other cells', () => {
     }
   });
 
+  it('below the axis Σ is the analytic continuation of the retarded Σ (Cauchy integral across the real axis)', () => {
+    // Cauchy's integral formula on a circle centred on the piece's real segment: it holds
+    // only if the values below the axis continue those above it analytically (complex
+    // analysis, common practice). The neighbouring piece's sheet, continued from the
+    // wrong segment, fails it.
+    for (const cell of [squareRibbonCell(6, 1, 0.04), zigzagRibbonCell(4, 1)]) {
+      const n = cell.size;
+      const coupling = new Float64Array(2 * n * n);
+      for (let p = 0; p < n; p++) coupling[2 * (p * n + p)] = -1;
+      const lead = new NumericalLead({ cell, mouthSize: n, coupling }, { kSamples: 64 });
+      const thr = lead.thresholds;
+      for (const p of [1, Math.floor(thr.length / 2) + 1]) {
+        const xc = 0.5 * (thr[p - 1] + thr[p]);
+        const r = 0.3 * (thr[p] - thr[p - 1]);
+        const z0 = { re: xc + 0.2 * r, im: -0.6 * r };
+        const cauchy = (sheet: boolean[]) => {
+          const samples = 128;
+          const acc = new Float64Array(2 * n * n);
+          for (let k = 0; k < samples; k++) {
+            const a = (2 * Math.PI * (k + 0.5)) / samples;
+            const zr = xc + r * Math.cos(a);
+            const zi = r * Math.sin(a);
+            const f = lead.selfEnergy(zr, zi, sheet);
+            // (1/2πi)∮ f/(z − z0) dz with dz = i·r·e^{ia}da
+            const dr = zr - z0.re;
+            const di = zi - z0.im;
+            const d = dr * dr + di * di;
+            const wr = r * Math.cos(a);
+            const wi = r * Math.sin(a);
+            const qr = (wr * dr + wi * di) / d / samples;
+            const qi = (wi * dr - wr * di) / d / samples;
+            for (let e = 0; e < acc.length; e += 2) {
+              acc[e] += f[e] * qr - f[e + 1] * qi;
+              acc[e + 1] += f[e] * qi + f[e + 1] * qr;
+            }
+          }
+          return maxDiff(acc, lead.selfEnergy(z0.re, z0.im, sheet));
+        };
+        expect(cauchy(lead.sheetAt(xc))).toBeLessThan(1e-12);
+        expect(cauchy(lead.sheetAt(0.5 * (thr[p] + thr[p + 1])))).toBeGreaterThan(1e-6);
+      }
+    }
+  });
+
   it('Γ = i(Σ − Σ†) = W·W† with the flux-normalised columns, in a field and for zigzag graphene', () => {
     for (const cell of [squareRibbonCell(7, 1, 0.03), zigzagRibbonCell(5, 1)]) {
       const n = cell.size;
