@@ -2,7 +2,7 @@
  * Bands E_b(k) of a lead cell and its thresholds (band edges), found numerically
  * (docs/physics-model.md, "Numerical leads"). With ψ_j = e^{ikj}φ,
  *   H(k) = H0 + e^{ik}H1 + e^{−ik}H1†,
- * Hermitian for real k; its sorted eigenvalues are the bands. A threshold is an
+ * (H1 here the block H[cell k, cell k+1] = forwardHopping(cell)), Hermitian for real k; its sorted eigenvalues are the bands. A threshold is an
  * energy where dE_b/dk = 0: sampled on a k grid over [−π, π), every local extremum of a
  * sorted band is refined by safeguarded Newton on f(k) = dE_b/dk with
  *   f  = φ_b†H′φ_b                                    (Hellmann–Feynman),
@@ -12,22 +12,23 @@
  * does not vanish on the degenerate pair).
  */
 import { hermitianEigen } from './hermitian-eigen';
-import type { LeadCell } from './numerical-lead-modes';
+import { forwardHopping, type LeadCellBlocks } from './numerical-lead-modes';
 
 /** H(k) (n×n, interleaved) of a cell, or H′(k) (order 1) or H″(k) (order 2). */
-export function blochHamiltonian(cell: LeadCell, k: number, order = 0): Float64Array {
+export function blochHamiltonian(cell: LeadCellBlocks, k: number, order = 0): Float64Array {
   const n = cell.size;
+  const h1f = forwardHopping(cell);
   const out = new Float64Array(2 * n * n);
   const c = Math.cos(k);
   const s = Math.sin(k);
   for (let i = 0; i < n; i++)
     for (let j = 0; j < n; j++) {
       const e = 2 * (i * n + j);
-      const ar = cell.h1[e];
-      const ai = cell.h1[e + 1];
+      const ar = h1f[e];
+      const ai = h1f[e + 1];
       const d = 2 * (j * n + i);
-      const br = cell.h1[d];
-      const bi = -cell.h1[d + 1]; // (H1†)[i,j]
+      const br = h1f[d];
+      const bi = -h1f[d + 1]; // (H1†)[i,j]
       // p = e^{ik}H1, q = e^{−ik}H1†
       const pr = c * ar - s * ai;
       const pi = c * ai + s * ar;
@@ -49,11 +50,11 @@ export function blochHamiltonian(cell: LeadCell, k: number, order = 0): Float64A
 }
 
 /** Sorted band energies at k (meV). Cost O(n³). */
-export function leadBands(cell: LeadCell, k: number): Float64Array {
+export function leadBands(cell: LeadCellBlocks, k: number): Float64Array {
   return hermitianEigen(cell.size, blochHamiltonian(cell, k)).values;
 }
 
-function slopeAndCurvature(cell: LeadCell, k: number, band: number): { energy: number; slope: number; curvature: number; gap: number } {
+function slopeAndCurvature(cell: LeadCellBlocks, k: number, band: number): { energy: number; slope: number; curvature: number; gap: number } {
   const n = cell.size;
   const { values, vectors } = hermitianEigen(n, blochHamiltonian(cell, k));
   const h1 = blochHamiltonian(cell, k, 1);
@@ -111,7 +112,7 @@ export interface BandEdge {
  * |dE/dk| ≤ 1e-12·scale (scale = the largest |band energy|, at least 1). Edges at the
  * same energy (to 1e-12·scale) are merged. Cost O(samples·n³).
  */
-export function leadBandEdges(cell: LeadCell, samples = 128): BandEdge[] {
+export function leadBandEdges(cell: LeadCellBlocks, samples = 128): BandEdge[] {
   const n = cell.size;
   const ks = Array.from({ length: samples }, (_, i) => -Math.PI + (2 * Math.PI * i) / samples);
   const bands = ks.map((k) => leadBands(cell, k));
@@ -163,7 +164,7 @@ export function leadBandEdges(cell: LeadCell, samples = 128): BandEdge[] {
 }
 
 /** The largest |velocity| among the bands within tol of energy at k (the velocity matrix on that degenerate subspace). */
-function degenerateVelocity(cell: LeadCell, k: number, energy: number, tol: number): number {
+function degenerateVelocity(cell: LeadCellBlocks, k: number, energy: number, tol: number): number {
   const n = cell.size;
   const { values, vectors } = hermitianEigen(n, blochHamiltonian(cell, k));
   const cols: number[] = [];

@@ -2,8 +2,10 @@
  * Modes of a lead of any cross-section (docs/physics-model.md, "Numerical leads").
  *
  * A lead is the semi-infinite repetition of a unit cell of n sites: cells j = 0, 1, 2, …
- * counted away from the cavity, H0 the Hamiltonian inside a cell and H1 = H_{j,j+1}
- * the block with rows in cell j and columns in cell j+1. A Bloch solution ψ_j = λ^j φ
+ * counted away from the cavity, H0 the Hamiltonian inside a cell and, in the formulas of
+ * this module, H1 = H_{j,j+1} the block with rows in cell j and columns in cell j+1: the
+ * adjoint of the cell's own h1 = H[cell j+1, cell j] (LeadCellBlocks, forwardHopping).
+ * A Bloch solution ψ_j = λ^j φ
  * at energy z solves the quadratic eigenproblem
  *   (H0 − z + λ·H1 + λ⁻¹·H1†) φ = 0,
  * linearised with x = (φ, λφ) as the 2n×2n pencil A x = λ B x,
@@ -25,11 +27,38 @@ import { complexSchur, schurEigenvalues, type ComplexSchur } from './complex-sch
 import { denseLu, denseLuSolve } from './dense-solve';
 import { hermitianEigen } from './hermitian-eigen';
 
-/** The unit cell of a lead: n sites, H0 (n×n Hermitian) and H1 = H_{j,j+1} (n×n), row-major interleaved. */
-export interface LeadCell {
+/**
+ * The blocks of a lead cell: n sites, H0 = H[cell k, cell k] (n×n Hermitian) and
+ * H1 = H[cell k+1, cell k] (n×n: rows in the cell farther from the cavity), row-major
+ * interleaved. The same convention as the lattice's lead cells (lead-cell.ts), which
+ * satisfy this interface.
+ */
+export interface LeadCellBlocks {
   size: number;
   h0: Float64Array;
   h1: Float64Array;
+}
+
+const forward = new WeakMap<Float64Array, Float64Array>();
+
+/**
+ * H[cell k, cell k+1] = H1† (rows in the cell nearer the cavity): the block the
+ * formulas of this module call H1 (the mode equation (H0 − z + λ·H1† + λ⁻¹·H1)φ = 0 in
+ * the cell's own H1). Cached per H1 array. Cost O(n²) once.
+ */
+export function forwardHopping(cell: LeadCellBlocks): Float64Array {
+  let f = forward.get(cell.h1);
+  if (!f) {
+    const n = cell.size;
+    f = new Float64Array(2 * n * n);
+    for (let i = 0; i < n; i++)
+      for (let j = 0; j < n; j++) {
+        f[2 * (i * n + j)] = cell.h1[2 * (j * n + i)];
+        f[2 * (i * n + j) + 1] = -cell.h1[2 * (j * n + i) + 1];
+      }
+    forward.set(cell.h1, f);
+  }
+  return f;
 }
 
 /** The shift-inverted pencil at z and its Schur form; lambda/modulus per Schur diagonal entry. */
@@ -54,8 +83,9 @@ const SHIFT_PHASES = [0.9, 2.3, 4.1, 5.6, 1.6, 3.3, 0.3];
  * Builds the 2n×2n pencil at z, shift-inverts it and takes its Schur form.
  * Cost O(n³) (about 200n³ real flops).
  */
-export function leadPencil(cell: LeadCell, zRe: number, zIm: number): LeadPencil {
+export function leadPencil(cell: LeadCellBlocks, zRe: number, zIm: number): LeadPencil {
   const n = cell.size;
+  const h1 = forwardHopping(cell);
   const m = 2 * n;
   let best: { lu: ReturnType<typeof denseLu>; sr: number; si: number } | undefined;
   for (const phase of SHIFT_PHASES) {
@@ -70,10 +100,10 @@ export function leadPencil(cell: LeadCell, zRe: number, zIm: number): LeadPencil
     for (let i = 0; i < n; i++)
       for (let j = 0; j < n; j++) {
         // row n+i: [−H1†, z − H0 − σH1]
-        a[2 * ((n + i) * m + j)] = -cell.h1[2 * (j * n + i)];
-        a[2 * ((n + i) * m + j) + 1] = cell.h1[2 * (j * n + i) + 1];
-        const hr = cell.h1[2 * (i * n + j)];
-        const hi = cell.h1[2 * (i * n + j) + 1];
+        a[2 * ((n + i) * m + j)] = -h1[2 * (j * n + i)];
+        a[2 * ((n + i) * m + j) + 1] = h1[2 * (j * n + i) + 1];
+        const hr = h1[2 * (i * n + j)];
+        const hi = h1[2 * (i * n + j) + 1];
         a[2 * ((n + i) * m + n + j)] = -cell.h0[2 * (i * n + j)] - (sr * hr - si * hi);
         a[2 * ((n + i) * m + n + j) + 1] = -cell.h0[2 * (i * n + j) + 1] - (sr * hi + si * hr);
       }
@@ -90,8 +120,8 @@ export function leadPencil(cell: LeadCell, zRe: number, zIm: number): LeadPencil
   for (let i = 0; i < n; i++) {
     b[2 * (i * m + i)] = 1;
     for (let j = 0; j < n; j++) {
-      b[2 * ((n + i) * m + n + j)] = cell.h1[2 * (i * n + j)];
-      b[2 * ((n + i) * m + n + j) + 1] = cell.h1[2 * (i * n + j) + 1];
+      b[2 * ((n + i) * m + n + j)] = h1[2 * (i * n + j)];
+      b[2 * ((n + i) * m + n + j) + 1] = h1[2 * (i * n + j) + 1];
     }
   }
   const c = denseLuSolve(lu, b, m);
@@ -152,8 +182,9 @@ export const UNIT_CIRCLE_TOLERANCE = 1e-7;
  * λ holds both signs of velocity (the choice would split a Schur entry) or when the
  * count is not n. Cost O(n³) per distinct propagating λ.
  */
-export function realModes(cell: LeadCell, energy: number, pencil = leadPencil(cell, energy, 0)): RealModes {
+export function realModes(cell: LeadCellBlocks, energy: number, pencil = leadPencil(cell, energy, 0)): RealModes {
   const n = cell.size;
+  const h1 = forwardHopping(cell);
   const m = 2 * n;
   const onCircle: number[] = [];
   for (let k = 0; k < m; k++) if (Math.abs(pencil.modulus[k] - 1) < UNIT_CIRCLE_TOLERANCE) onCircle.push(k);
@@ -180,12 +211,12 @@ export function realModes(cell: LeadCell, energy: number, pencil = leadPencil(ce
     for (let i = 0; i < n; i++)
       for (let j = 0; j < n; j++) {
         const e = 2 * (i * n + j);
-        const h1r = cell.h1[e];
-        const h1i = cell.h1[e + 1];
+        const h1r = h1[e];
+        const h1i = h1[e + 1];
         // (H1†)[i,j] = conj(H1[j,i])
         const d = 2 * (j * n + i);
-        const hdr = cell.h1[d];
-        const hdi = -cell.h1[d + 1];
+        const hdr = h1[d];
+        const hdi = -h1[d + 1];
         mm[e] = cell.h0[e] + (lr * h1r - li * h1i) + (lr * hdr + li * hdi);
         mm[e + 1] = cell.h0[e + 1] + (lr * h1i + li * h1r) + (lr * hdi - li * hdr);
       }
@@ -205,7 +236,7 @@ export function realModes(cell: LeadCell, energy: number, pencil = leadPencil(ce
     });
     // velocity matrix V_ab = φ_a†(iλH1 − iλ̄H1†)φ_b = 2·Re-Hermitian part of (iλ φ_a†H1φ_b)
     const vel = new Float64Array(2 * d * d);
-    const h1phi = phis.map((p) => multiplyVector(n, cell.h1, p));
+    const h1phi = phis.map((p) => multiplyVector(n, h1, p));
     for (let a = 0; a < d; a++)
       for (let b = 0; b < d; b++) {
         // X_ab = φ_a†H1φ_b, Y_ab = φ_a†H1†φ_b = conj(X_ba)

@@ -21,7 +21,7 @@
  * A piece with no propagating mode (below all bands, above them, or in a gap) needs
  * no tracking: its continuation is |λ| < 1 everywhere.
  */
-import { leadPencil, realModes, type LeadCell, type LeadPencil } from './numerical-lead-modes';
+import { leadPencil, realModes, type LeadCellBlocks, type LeadPencil } from './numerical-lead-modes';
 
 /** A threshold piece (lo, hi) of the real axis; ±Infinity at the ends. */
 export interface LeadPiece {
@@ -51,7 +51,7 @@ interface Tracked {
  * modes (400 steps). Cost: one pencil (O(n³)) above the axis; one more per tracking
  * step below it (typically 2–6).
  */
-export function retardedChoice(cell: LeadCell, zRe: number, zIm: number, piece: LeadPiece): RetardedChoice {
+export function retardedChoice(cell: LeadCellBlocks, zRe: number, zIm: number, piece: LeadPiece): RetardedChoice {
   const n = cell.size;
   const checkCount = (select: boolean[], where: string) => {
     const count = select.filter(Boolean).length;

@@ -6,11 +6,12 @@
  * Cell site r is the lead site next to mouth site p = r (mouth order of
  * model/geometry.ts: ascending along the edge). The cavity uses the Landau gauge
  * A = (−B·y, 0), bond phase θ((i,j)→(i+1,j)) = 2πφj (charge −e).
+ * Cells as in numerical-lead-modes.ts: H1 = H[cell k+1, cell k].
  * - Field-free lead: H1 = −t·1, and the mouth bonds carry the contract's phases θ_p
  *   (top/bottom: −2πφ·j0·i_p; left/right: 0), V[p,p] = H[lead, mouth] = −t·e^{iθ_p}.
  * - Field in the lead: every plaquette, in the lead and at the mouth, holds the flux φ.
  *   Left and right leads run along x, along which A = (−B·y, 0) is already
- *   translation-invariant: they keep the cavity's gauge (H1 = −t·e^{∓2πiφj}, mouth bond
+ *   translation-invariant: they keep the cavity's gauge (H1 = −t·e^{±2πiφj}, mouth bond
  *   θ = 2πφj along +x). Top and bottom leads run along y and use A′ = (0, B·x) =
  *   A + ∇(B·x·y): the lead's sites are multiplied by e^{iχ}, χ(i, j) = −2πφ·i·j, an exact
  *   gauge transformation of the whole system restricted to the lead, so the vertical
@@ -56,25 +57,26 @@ export function squareLatticeLead(g: SquareLeadGeometry): NumericalLeadSpec {
     }
     const i = g.mouthI[r];
     const j = g.mouthJ[r];
-    // phase of H1[r,r] and of V[r,r] (= H[lead site, mouth site] = −t·e^{iθ(mouth→lead)})
+    // phase of H1[r,r] = H[cell k+1, cell k] = −t·e^{iθ(cell k → cell k+1)} and of
+    // V[r,r] = H[lead site, mouth site] = −t·e^{iθ(mouth → lead)}
     let hop = 0;
     let mouth = theta[r];
     if (g.fieldInLead) {
       switch (g.side) {
         case 'right':
-          hop = -twoPiPhi * j;
+          hop = twoPiPhi * j;
           mouth = twoPiPhi * j;
           break;
         case 'left':
-          hop = twoPiPhi * j;
+          hop = -twoPiPhi * j;
           mouth = -twoPiPhi * j;
           break;
         case 'top':
-          hop = twoPiPhi * i;
+          hop = -twoPiPhi * i;
           mouth = -twoPiPhi * i * (j + 1);
           break;
         case 'bottom':
-          hop = -twoPiPhi * i;
+          hop = twoPiPhi * i;
           mouth = -twoPiPhi * i * (j - 1);
           break;
       }

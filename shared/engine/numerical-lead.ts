@@ -4,7 +4,8 @@
  * open channels, all from the modes of numerical-lead-modes.ts with the retarded
  * choice (and its continuation) of numerical-lead-sheet.ts.
  *
- * With F = Φ Λ Φ⁻¹ the transfer matrix of the n chosen modes (ψ_{j+1} = F ψ_j), taken
+ * Below, H1 is the block H[cell k, cell k+1] (forwardHopping: the adjoint of the cell's
+ * own h1 = H[cell k+1, cell k]). With F = Φ Λ Φ⁻¹ the transfer matrix of the n chosen modes (ψ_{j+1} = F ψ_j), taken
  * from the leading Schur vectors as F = Z21·Z11⁻¹, the surface Green function of the
  * semi-infinite lead and the self-energy on the M mouth sites are
  *   g(z) = (z − H0 − H1·F)⁻¹,   Σ(z) = V†·g·V,
@@ -18,12 +19,12 @@
 import { complexSchur, reorderSchur } from './complex-schur';
 import { conjugateTranspose, denseLu, denseLuSolve, denseMultiply } from './dense-solve';
 import { leadBandEdges, type BandEdge } from './numerical-lead-bands';
-import { realModes, type LeadCell } from './numerical-lead-modes';
+import { forwardHopping, realModes, type LeadCellBlocks } from './numerical-lead-modes';
 import { retardedChoice, type LeadPiece, type RetardedChoice } from './numerical-lead-sheet';
 
 /** A lead given by its cell and its coupling to the cavity. */
 export interface NumericalLeadSpec {
-  cell: LeadCell;
+  cell: LeadCellBlocks;
   /** Number M of cavity sites the lead's first cell touches (the mouth). */
   mouthSize: number;
   /** V, n×M row-major interleaved: V[r, p] = H[site r of lead cell 0, mouth site p]. */
@@ -50,7 +51,7 @@ export interface NumericalLeadOptions {
 }
 
 export class NumericalLead {
-  readonly cell: LeadCell;
+  readonly cell: LeadCellBlocks;
   readonly mouthSize: number;
   readonly coupling: Float64Array;
   /** Band edges of the cell, sorted by energy. */
@@ -129,7 +130,7 @@ export class NumericalLead {
   surfaceGreen(zRe: number, zIm: number, sheet?: readonly boolean[]): Float64Array {
     const n = this.cell.size;
     const f = this.transfer(zRe, zIm, sheet);
-    const k = denseMultiply(n, n, n, this.cell.h1, f);
+    const k = denseMultiply(n, n, n, forwardHopping(this.cell), f);
     for (let e = 0; e < 2 * n * n; e++) k[e] = -this.cell.h0[e] - k[e];
     for (let i = 0; i < n; i++) {
       k[2 * (i * n + i)] += zRe;
@@ -147,8 +148,9 @@ export class NumericalLead {
   selfEnergyWithDerivative(zRe: number, zIm: number, sheet?: readonly boolean[]): { sigma: Float64Array; derivative: Float64Array } {
     const n = this.cell.size;
     const g = this.surfaceGreen(zRe, zIm, sheet);
-    const a = denseMultiply(n, n, n, g, this.cell.h1);
-    const b = denseMultiply(n, n, n, conjugateTranspose(n, n, this.cell.h1), g);
+    // H1 of the formulas is H[cell k, cell k+1] = forwardHopping; its adjoint is the cell's own h1.
+    const a = denseMultiply(n, n, n, g, forwardHopping(this.cell));
+    const b = denseMultiply(n, n, n, this.cell.h1, g);
     const c = denseMultiply(n, n, n, g, g);
     for (let e = 0; e < c.length; e++) c[e] = -c[e];
     return { sigma: this.project(g), derivative: this.project(solveStein(n, a, b, c)) };

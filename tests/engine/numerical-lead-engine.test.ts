@@ -98,8 +98,8 @@ describe('a field in the leads (numerical-lead-square.ts)', () => {
     for (let r = 0; r < w; r++) {
       // mouth → lead: V[r,r] = H[lead, mouth] = −t·e^{iθ(mouth→lead)}
       bond(`${mouthI[r]},${mouthJ[r]}`, site(r, 0), arg(spec.coupling, r, r));
-      // cell c → cell c+1: H1[r,r] = H[cell c, cell c+1] = −t·e^{iθ(c+1 → c)}
-      bond(site(r, 1), site(r, 0), arg(spec.cell.h1, r, r));
+      // cell 0 → cell 1: H1[r,r] = H[cell 1, cell 0] = −t·e^{iθ(cell 0 → cell 1)}
+      bond(site(r, 0), site(r, 1), arg(spec.cell.h1, r, r));
       for (const c of [0, 1]) if (r + 1 < w) bond(site(r, c), site(r + 1, c), arg(spec.cell.h0, r + 1, r));
     }
     const out: number[] = [];

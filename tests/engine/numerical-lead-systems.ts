@@ -5,16 +5,15 @@
  * ribbon cell, and a two-terminal scattering problem through a piece of ribbon.
  */
 import { denseLu, denseLuSolve } from '../../shared/engine/dense-solve';
-import type { LeadCell } from '../../shared/engine/numerical-lead-modes';
+import { forwardHopping, type LeadCellBlocks } from '../../shared/engine/numerical-lead-modes';
 import { NumericalLead } from '../../shared/engine/numerical-lead';
 
 /**
  * Column of a square-lattice ribbon, W sites (row r = 0..W−1, y = r·a), for a lead
- * along +x: H0 = 4t + V on the diagonal, −t between rows; H1 = H[(c, r), (c+1, r)] =
- * −t·e^{−2πiφr} (the contract's bond phase θ((c,r)→(c+1,r)) = 2πφr, conjugated since
- * H1 is the block from column c+1 into column c).
+ * along +x: H0 = 4t + V on the diagonal, −t between rows; H1 = H[(c+1, r), (c, r)] =
+ * −t·e^{2πiφr} (the contract's bond phase θ((c,r)→(c+1,r)) = 2πφr).
  */
-export function squareRibbonCell(width: number, t: number, flux = 0, onsite: (r: number) => number = () => 0): LeadCell {
+export function squareRibbonCell(width: number, t: number, flux = 0, onsite: (r: number) => number = () => 0): LeadCellBlocks {
   const n = width;
   const h0 = new Float64Array(2 * n * n);
   const h1 = new Float64Array(2 * n * n);
@@ -25,7 +24,7 @@ export function squareRibbonCell(width: number, t: number, flux = 0, onsite: (r:
       h0[2 * ((r + 1) * n + r)] = -t;
     }
     h1[2 * (r * n + r)] = -t * Math.cos(2 * Math.PI * flux * r);
-    h1[2 * (r * n + r) + 1] = -t * Math.sin(-2 * Math.PI * flux * r);
+    h1[2 * (r * n + r) + 1] = -t * Math.sin(2 * Math.PI * flux * r);
   }
   return { size: n, h0, h1 };
 }
@@ -33,10 +32,10 @@ export function squareRibbonCell(width: number, t: number, flux = 0, onsite: (r:
 /**
  * Zigzag graphene ribbon of N zigzag chains, 2N sites per cell (period √3·a_CC):
  * site 2m is A_m, 2m+1 is B_m; bonds A_m(j)–B_m(j) and B_m(j)–A_{m+1}(j) inside the
- * cell and B_m(j)–A_m(j+1) to the next cell, all −t. Edge sites A_0 and B_{N−1} have
+ * cell and B_m(j)–A_m(j+1) to the next cell (H1[A_m, B_m] = H[cell j+1, cell j]), all −t. Edge sites A_0 and B_{N−1} have
  * two neighbours (zigzag edges). H1 has rank N: it is singular.
  */
-export function zigzagRibbonCell(chains: number, t: number): LeadCell {
+export function zigzagRibbonCell(chains: number, t: number): LeadCellBlocks {
   const n = 2 * chains;
   const h0 = new Float64Array(2 * n * n);
   const h1 = new Float64Array(2 * n * n);
@@ -50,14 +49,14 @@ export function zigzagRibbonCell(chains: number, t: number): LeadCell {
       set(h0, 2 * m + 1, 2 * m + 2, -t);
       set(h0, 2 * m + 2, 2 * m + 1, -t);
     }
-    // H1 = H_{j,j+1}: row B_m of cell j, column A_m of cell j+1
-    set(h1, 2 * m + 1, 2 * m, -t);
+    // H1 = H[cell j+1, cell j]: row A_m of cell j+1, column B_m of cell j
+    set(h1, 2 * m, 2 * m + 1, -t);
   }
   return { size: n, h0, h1 };
 }
 
 /** The cell's Hermitian conjugate hopping: the cell of the same ribbon seen as a lead along −x. */
-export function reversedCell(cell: LeadCell): LeadCell {
+export function reversedCell(cell: LeadCellBlocks): LeadCellBlocks {
   const n = cell.size;
   const h1 = new Float64Array(2 * n * n);
   for (let i = 0; i < n; i++)
@@ -76,32 +75,33 @@ export interface RibbonDevice {
 }
 
 /**
- * The ribbon piece: H = block tridiagonal with H0 (+ potential(cell, site)) and H1
- * between neighbouring cells; lead 0 on the left (cells along −x: H1 → H1†, coupling
- * V = H1 from its first cell into cell 0), lead 1 on the right (coupling V = H1† into
- * cell L−1).
+ * The ribbon piece: H = block tridiagonal with H0 (+ potential(cell, site)), H1 =
+ * H[cell c+1, cell c] and its adjoint; lead 0 on the left (cells along −x: H1 → H1†,
+ * coupling V = H[column −1, column 0] = H1†), lead 1 on the right (V = H[column L,
+ * column L−1] = H1).
  */
-export function ribbonDevice(cell: LeadCell, length: number, potential: (c: number, s: number) => number = () => 0, kSamples = 128): RibbonDevice {
+export function ribbonDevice(cell: LeadCellBlocks, length: number, potential: (c: number, s: number) => number = () => 0, kSamples = 128): RibbonDevice {
   const w = cell.size;
   const n = w * length;
   const h = new Float64Array(2 * n * n);
+  const fwd = forwardHopping(cell); // H[cell c, cell c+1]
   for (let c = 0; c < length; c++)
     for (let i = 0; i < w; i++) {
       for (let j = 0; j < w; j++) {
         h[2 * ((c * w + i) * n + c * w + j)] = cell.h0[2 * (i * w + j)];
         h[2 * ((c * w + i) * n + c * w + j) + 1] = cell.h0[2 * (i * w + j) + 1];
         if (c + 1 < length) {
-          h[2 * ((c * w + i) * n + (c + 1) * w + j)] = cell.h1[2 * (i * w + j)];
-          h[2 * ((c * w + i) * n + (c + 1) * w + j) + 1] = cell.h1[2 * (i * w + j) + 1];
-          h[2 * (((c + 1) * w + j) * n + c * w + i)] = cell.h1[2 * (i * w + j)];
-          h[2 * (((c + 1) * w + j) * n + c * w + i) + 1] = -cell.h1[2 * (i * w + j) + 1];
+          h[2 * ((c * w + i) * n + (c + 1) * w + j)] = fwd[2 * (i * w + j)];
+          h[2 * ((c * w + i) * n + (c + 1) * w + j) + 1] = fwd[2 * (i * w + j) + 1];
+          h[2 * (((c + 1) * w + j) * n + c * w + i)] = fwd[2 * (i * w + j)];
+          h[2 * (((c + 1) * w + j) * n + c * w + i) + 1] = -fwd[2 * (i * w + j) + 1];
         }
       }
       h[2 * ((c * w + i) * n + c * w + i)] += potential(c, i);
     }
   const left = reversedCell(cell);
-  const leftLead = new NumericalLead({ cell: left, mouthSize: w, coupling: cell.h1 }, { kSamples });
-  const rightLead = new NumericalLead({ cell, mouthSize: w, coupling: left.h1 }, { kSamples });
+  const leftLead = new NumericalLead({ cell: left, mouthSize: w, coupling: fwd }, { kSamples });
+  const rightLead = new NumericalLead({ cell, mouthSize: w, coupling: cell.h1 }, { kSamples });
   const range = (o: number) => Array.from({ length: w }, (_, i) => o + i);
   return {
     n,
