@@ -138,6 +138,24 @@ describe('a field in the leads (numerical-lead-square.ts)', () => {
     }
   });
 
+  it('the pole search certifies its window with the field in the leads (sheets continued numerically)', () => {
+    const system = buildCavitySystem(cavity(1.5, 4));
+    const op = new EffectiveHamiltonian(withNumericalLeads(system, { fieldInLeads: true, kSamples: 64 }));
+    const t = op.hopping;
+    const window = { emin: 0.3 * t, emax: 1.5 * t, gammaMax: 0.1 * t };
+    const inside = op.thresholds.filter((e) => e > window.emin && e < window.emax);
+    expect(inside.length).toBeGreaterThanOrEqual(2);
+    const r = findPoles(op, window);
+    expect(r.certificate.certified).toBe(true);
+    expect(r.poles.length).toBeGreaterThanOrEqual(3);
+    for (const p of r.poles) {
+      expect(p.residual).toBeLessThan(1e-12);
+      // partial widths from ψ†Γ_ℓψ sum to Γ (the contract's test; H Hermitian)
+      const sum = p.partialWidths.reduce((a, b) => a + b, 0);
+      expect(Math.abs(sum - p.width)).toBeLessThan(1e-9 * p.width + 1e-13 * t);
+    }
+  });
+
   it('mirror symmetry T(left→top, B) = T(left→bottom, −B) with the field in the leads (no spurious flux at the mouths)', () => {
     const doc = (field: number): CavityModelInput => ({
       name: 'cross',
