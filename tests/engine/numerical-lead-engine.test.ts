@@ -6,6 +6,9 @@ import { withNumericalLeads } from '../../shared/engine/numerical-lead-system';
 import { transmissionAt } from '../../shared/engine/transmission';
 import type { CavityModelInput } from '../../shared/model/cavity-model';
 import type { LeadSide } from '../../shared/model/cavity-model';
+import { complexSvd } from '../../shared/engine/complex-svd';
+import { DeviceOperator, ribbonDevice, zigzagRibbonCell } from './numerical-lead-systems';
+import { DenseLuPlan } from './poles-fixtures';
 
 const spacing = 5;
 const material = { effectiveMass: 0.067 };
@@ -183,6 +186,37 @@ describe('a field in the leads (numerical-lead-square.ts)', () => {
       expect(Math.abs(a.transmission[0][2] - b.transmission[0][1])).toBeLessThan(1e-10);
       // and the field matters: the two outputs differ at +B
       expect(Math.abs(a.transmission[0][1] - a.transmission[0][2])).toBeGreaterThan(1e-3);
+    }
+  });
+});
+
+describe('the pole search on numerical leads of a singular cell (zigzag graphene)', () => {
+  it('certifies a window across a threshold, and each pole is a singular point of the dense T(z)', () => {
+    // A zigzag ribbon piece of 6 cells between two barrier cells (on-site +1.2t), zigzag leads.
+    const t = 1;
+    const dev = ribbonDevice(zigzagRibbonCell(4, t), 6, (c) => (c === 0 || c === 5 ? 1.2 * t : 0), 64);
+    const op = new DeviceOperator(dev, t);
+    const window = { emin: 0.1 * t, emax: 1.1 * t, gammaMax: 0.1 * t };
+    expect(op.thresholds.filter((e) => e > window.emin && e < window.emax).length).toBe(1);
+    const r = findPoles(op, window, { plan: new DenseLuPlan(op) });
+    expect(r.certificate.certified).toBe(true);
+    expect(r.certificate.pieces.length).toBe(2);
+    expect(r.poles.length).toBeGreaterThanOrEqual(3);
+    const n = op.n;
+    const values = new Float64Array(2 * n * n);
+    for (const p of r.poles) {
+      // independent check: the smallest singular value of T(z) (one-sided Jacobi SVD) vanishes
+      op.assemble({ re: p.energy, im: -p.width / 2 }, op.sheetAt(p.energy), values);
+      const a = new Float64Array(2 * n * n);
+      for (let c = 0; c < n; c++)
+        for (let row = 0; row < n; row++) {
+          a[2 * (row * n + c)] = values[2 * (c * n + row)];
+          a[2 * (row * n + c) + 1] = values[2 * (c * n + row) + 1];
+        }
+      const sigma = complexSvd(n, a).sigma;
+      expect(sigma[n - 1] / sigma[0]).toBeLessThan(1e-13);
+      const sum = p.partialWidths.reduce((x, y) => x + y, 0);
+      expect(Math.abs(sum - p.width)).toBeLessThan(1e-9 * p.width);
     }
   });
 });

@@ -7,6 +7,7 @@
 import { denseLu, denseLuSolve } from '../../shared/engine/dense-solve';
 import { forwardHopping, type LeadCellBlocks } from '../../shared/engine/numerical-lead-modes';
 import { NumericalLead } from '../../shared/engine/numerical-lead';
+import type { Complex, NonlinearOperator, SheetFlags } from '../../shared/engine/operator';
 
 /**
  * Column of a square-lattice ribbon, W sites (row r = 0..W−1, y = r·a), for a lead
@@ -195,4 +196,83 @@ export function deviceScattering(dev: RibbonDevice, energy: number): DeviceScatt
       unitarity = Math.max(unitarity, Math.hypot(re - (x === y ? 1 : 0), im));
     }
   return { open, s, transmission, reflection, unitarity };
+}
+
+/**
+ * The device as the engine's nonlinear operator T(z) = z − H − Σ_ℓ(z) with a dense
+ * pattern (every entry stored), so the pole search runs on numerical leads of any cell.
+ * Sites are labelled (cell, site in cell) for the search's geometric ordering.
+ */
+export class DeviceOperator implements NonlinearOperator {
+  readonly n: number;
+  readonly colPtr: Int32Array;
+  readonly rowIdx: Int32Array;
+  readonly sites: { i: Int32Array; j: Int32Array };
+  readonly thresholds: readonly number[];
+  readonly leadCount: number;
+  readonly hopping: number;
+
+  constructor(
+    readonly device: RibbonDevice,
+    hopping: number,
+  ) {
+    const n = device.n;
+    this.n = n;
+    this.hopping = hopping;
+    this.leadCount = device.leads.length;
+    this.colPtr = Int32Array.from({ length: n + 1 }, (_, c) => c * n);
+    this.rowIdx = Int32Array.from({ length: n * n }, (_, e) => e % n);
+    const w = device.leads[0].mouth.length;
+    this.sites = { i: Int32Array.from({ length: n }, (_, s) => Math.floor(s / w)), j: Int32Array.from({ length: n }, (_, s) => s % w) };
+    const all = device.leads.flatMap((l) => [...l.lead.thresholds]).sort((x, y) => x - y);
+    this.thresholds = all.filter((e, k) => k === 0 || e - all[k - 1] > 1e-12 * Math.max(1, hopping));
+  }
+
+  sheetAt(reE: number): SheetFlags {
+    return this.device.leads.map((l) => l.lead.sheetAt(reE));
+  }
+
+  /** Values in CSC order: entry (r, c) at slot c·n + r. */
+  assemble(z: Complex, sheet: SheetFlags, out: Float64Array): void {
+    const n = this.n;
+    for (let c = 0; c < n; c++)
+      for (let r = 0; r < n; r++) {
+        out[2 * (c * n + r)] = -this.device.h[2 * (r * n + c)] + (r === c ? z.re : 0);
+        out[2 * (c * n + r) + 1] = -this.device.h[2 * (r * n + c) + 1] + (r === c ? z.im : 0);
+      }
+    this.device.leads.forEach((l, k) => this.subtract(l.mouth, l.lead.selfEnergy(z.re, z.im, sheet[k]), out));
+  }
+
+  assembleDerivative(z: Complex, sheet: SheetFlags, out: Float64Array): void {
+    const n = this.n;
+    out.fill(0);
+    for (let s = 0; s < n; s++) out[2 * (s * n + s)] = 1;
+    this.device.leads.forEach((l, k) => this.subtract(l.mouth, l.lead.selfEnergyDerivative(z.re, z.im, sheet[k]), out));
+  }
+
+  leadWidthForm(z: Complex, sheet: SheetFlags, lead: number, psi: Float64Array): number {
+    const { mouth, lead: l } = this.device.leads[lead];
+    const sigma = l.selfEnergy(z.re, z.im, sheet[lead]);
+    const m = mouth.length;
+    let im = 0;
+    for (let p = 0; p < m; p++)
+      for (let q = 0; q < m; q++) {
+        const sr = sigma[2 * (p * m + q)];
+        const si = sigma[2 * (p * m + q) + 1];
+        const xr = sr * psi[2 * mouth[q]] - si * psi[2 * mouth[q] + 1];
+        const xi = sr * psi[2 * mouth[q] + 1] + si * psi[2 * mouth[q]];
+        im += psi[2 * mouth[p]] * xi - psi[2 * mouth[p] + 1] * xr;
+      }
+    return -2 * im;
+  }
+
+  private subtract(mouth: number[], block: Float64Array, out: Float64Array): void {
+    const n = this.n;
+    const m = mouth.length;
+    for (let p = 0; p < m; p++)
+      for (let q = 0; q < m; q++) {
+        out[2 * (mouth[q] * n + mouth[p])] -= block[2 * (p * m + q)];
+        out[2 * (mouth[q] * n + mouth[p]) + 1] -= block[2 * (p * m + q) + 1];
+      }
+  }
 }
