@@ -8,8 +8,9 @@
  *   f  = φ_b†H′φ_b                                    (Hellmann–Feynman),
  *   f′ = φ_b†H″φ_b + 2·Σ_{c≠b} |φ_c†H′φ_b|²/(E_b − E_c)  (second-order perturbation),
  * H′ = i(e^{ik}H1 − e^{−ik}H1†), H″ = −(e^{ik}H1 + e^{−ik}H1†). A kink where two
- * sorted bands cross with non-zero slopes is not a threshold and is dropped (there f
- * does not vanish on the degenerate pair).
+ * sorted bands cross with non-zero slopes is not a threshold and is dropped (no velocity
+ * on the degenerate subspace vanishes there); a degenerate point where one of them does
+ * (an extremum touching crossing bands) is kept.
  */
 import { hermitianEigen } from './hermitian-eigen';
 import { forwardHopping, type LeadCellBlocks } from './numerical-lead-modes';
@@ -139,8 +140,9 @@ export function leadBandEdges(cell: LeadCellBlocks, samples = 128): BandEdge[] {
       for (let it = 0; it < 60; it++) {
         const s = slopeAndCurvature(cell, k, b);
         if (s.gap <= 1e-9 * scale) {
-          // (Nearly) degenerate: an edge only if every velocity on the degenerate pair vanishes.
-          if (degenerateVelocity(cell, k, s.energy, 1e-9 * scale) <= 1e-9 * scale) found = { band: b, k: wrap(k), energy: s.energy };
+          // (Nearly) degenerate: an edge when one of the velocities on the degenerate subspace
+          // vanishes (a band extremum touching other bands); a plain crossing has none.
+          if (degenerateVelocity(cell, k, s.energy, 1e-9 * scale) <= 1e-7 * scale) found = { band: b, k: wrap(k), energy: s.energy };
           break;
         }
         if (Math.abs(s.slope) <= 1e-12 * scale) {
@@ -163,7 +165,7 @@ export function leadBandEdges(cell: LeadCellBlocks, samples = 128): BandEdge[] {
   return merged;
 }
 
-/** The largest |velocity| among the bands within tol of energy at k (the velocity matrix on that degenerate subspace). */
+/** The smallest |velocity| among the bands within tol of energy at k (the velocity matrix on that degenerate subspace). */
 function degenerateVelocity(cell: LeadCellBlocks, k: number, energy: number, tol: number): number {
   const n = cell.size;
   const { values, vectors } = hermitianEigen(n, blochHamiltonian(cell, k));
@@ -194,7 +196,7 @@ function degenerateVelocity(cell: LeadCellBlocks, k: number, energy: number, tol
       v[2 * (a * d + b) + 1] = im;
     }
   const vals = hermitianEigen(d, v).values;
-  return Math.max(...Array.from(vals, Math.abs));
+  return Math.min(...Array.from(vals, Math.abs));
 }
 
 function wrap(k: number): number {

@@ -70,8 +70,21 @@ export function retardedChoice(cell: LeadCellBlocks, zRe: number, zIm: number, p
   }
   const width = piece.hi - piece.lo;
   const delta = Math.min(0.25 * width, Math.max(Math.abs(zIm), 1e-6 * width));
-  const x0 = Math.min(Math.max(zRe, piece.lo + delta), piece.hi - delta);
-  const ref = realModes(cell, x0);
+  let x0 = Math.min(Math.max(zRe, piece.lo + delta), piece.hi - delta);
+  let ref: ReturnType<typeof realModes> | undefined;
+  // The continuation does not depend on where in the piece it starts: step aside from an
+  // exact band crossing with opposite velocities (a degenerate λ the choice cannot split).
+  for (const shift of [0, 0.01, -0.01, 0.03, -0.03]) {
+    const x = Math.min(Math.max(x0 + shift * width, piece.lo + 0.5 * delta), piece.hi - 0.5 * delta);
+    try {
+      ref = realModes(cell, x);
+      x0 = x;
+      break;
+    } catch (e) {
+      if (!(e instanceof Error && /move both ways|retarded modes at/.test(e.message)) || shift === -0.03) throw e;
+    }
+  }
+  if (!ref) throw new Error('retardedChoice: no reference energy in the piece');
   if (ref.propagating.length === 0) {
     const pencil = leadPencil(cell, zRe, zIm);
     const select = pencil.inside.slice();

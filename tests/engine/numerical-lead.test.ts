@@ -260,6 +260,19 @@ describe('numerical leads of other cells', () => {
     }
   });
 
+  it('finds the zigzag band edges at E = ±t, where several bands meet at k = π and one has its extremum', () => {
+    // At k = π the intra-chain hoppings of a zigzag cell cancel: it falls into N − 1 dimers
+    // (±t) and two edge sites (0) (derived here from the cell). The band through E = t with
+    // dE/dk = 0 there opens two channels (seen: 10 propagating modes just below t, 12 above).
+    const cell = zigzagRibbonCell(6, 1);
+    const n = cell.size;
+    const coupling = new Float64Array(2 * n * n);
+    for (let p = 0; p < n; p++) coupling[2 * (p * n + p)] = -1;
+    const lead = new NumericalLead({ cell, mouthSize: n, coupling }, { kSamples: 64 });
+    for (const e of [-1, 1]) expect(Math.min(...lead.thresholds.map((x) => Math.abs(x - e)))).toBeLessThan(1e-9);
+    expect(realModes(cell, 1 + 1e-4).propagating.length - realModes(cell, 1 - 1e-4).propagating.length).toBe(2);
+  });
+
   it('Γ = i(Σ − Σ†) = W·W† with the flux-normalised columns, in a field and for zigzag graphene', () => {
     for (const cell of [squareRibbonCell(7, 1, 0.03), zigzagRibbonCell(5, 1)]) {
       const n = cell.size;
