@@ -19,6 +19,7 @@ import {
   selfEnergyDerivativeCoefficients,
   type LeadChannels,
 } from './leads';
+import type { NumericalLead } from './numerical-lead';
 import { buildPattern, patternSlot } from './sparsity-pattern';
 import type { Complex, NonlinearOperator, SheetFlags } from './operator';
 
@@ -39,6 +40,13 @@ export interface SystemLead {
   mouth: Int32Array;
   /** Phase θ_p of each lead-cavity bond. */
   theta: Float64Array;
+  /**
+   * When set, the lead is computed from its unit cell (numerical-lead.ts) instead of the
+   * closed form: its sheet flags are one per threshold of the lead (E above it), its
+   * channels are numbered 1..N by the numerical modes, and `channels`/`theta` are unused
+   * for Σ. Set by withNumericalLeads (numerical-lead-system.ts).
+   */
+  numerical?: NumericalLead;
 }
 
 /** Everything the operator needs, derived once from a model. */
@@ -119,6 +127,7 @@ export class EffectiveHamiltonian implements NonlinearOperator {
   private readonly blockSlots: Int32Array[];
   private readonly coef: Float64Array;
   private readonly block: Float64Array;
+  private readonly numericalCache: ({ key: string; sigma: Float64Array; derivative: Float64Array } | undefined)[];
 
   constructor(system: CavitySystem) {
     this.system = system;
@@ -153,7 +162,8 @@ export class EffectiveHamiltonian implements NonlinearOperator {
     this.coef = new Float64Array(2 * widest);
     this.block = new Float64Array(2 * widest * widest);
 
-    const all = system.leads.flatMap((l) => leadThresholds(l.channels)).sort((x, y) => x - y);
+    this.numericalCache = system.leads.map(() => undefined);
+    const all = system.leads.flatMap((l) => (l.numerical ? [...l.numerical.thresholds] : leadThresholds(l.channels))).sort((x, y) => x - y);
     const merged: number[] = [];
     const tol = 1e-12 * Math.max(1, system.hopping);
     for (const e of all) if (!merged.length || e - merged[merged.length - 1] > tol) merged.push(e);
@@ -162,7 +172,7 @@ export class EffectiveHamiltonian implements NonlinearOperator {
 
   /** Open flags of every channel of every lead for the threshold interval containing reE. */
   sheetAt(reE: number): SheetFlags {
-    return this.system.leads.map((l) => channelFlags(l.channels, reE));
+    return this.system.leads.map((l) => (l.numerical ? l.numerical.sheetAt(reE) : channelFlags(l.channels, reE)));
   }
 
   assemble(z: Complex, sheet: SheetFlags, out: Float64Array): void {
@@ -173,6 +183,7 @@ export class EffectiveHamiltonian implements NonlinearOperator {
       out[2 * this.diagSlot[s] + 1] += z.im;
     }
     this.system.leads.forEach((lead, l) => {
+      if (lead.numerical) return this.subtractNumerical(l, this.numericalBlocks(l, z, sheet).sigma, out);
       selfEnergyCoefficients(lead.channels, z.re, z.im, sheet[l], this.coef);
       this.subtractBlock(l, out);
     });
@@ -183,6 +194,7 @@ export class EffectiveHamiltonian implements NonlinearOperator {
     out.fill(0);
     for (let s = 0; s < this.n; s++) out[2 * this.diagSlot[s]] = 1;
     this.system.leads.forEach((lead, l) => {
+      if (lead.numerical) return this.subtractNumerical(l, this.numericalBlocks(l, z, sheet).derivative, out);
       selfEnergyDerivativeCoefficients(lead.channels, z.re, z.im, sheet[l], this.coef);
       this.subtractBlock(l, out);
     });
@@ -193,6 +205,23 @@ export class EffectiveHamiltonian implements NonlinearOperator {
     const l = this.system.leads[lead];
     if (!l) throw new RangeError(`leadWidthForm: lead ${lead} does not exist (the cavity has ${this.leadCount} leads)`);
     if (psi.length < 2 * this.n) throw new RangeError(`leadWidthForm: psi has length ${psi.length}, expected 2·n = ${2 * this.n}`);
+    if (l.numerical) {
+      // −2·Im(ψ_m†Σψ_m) over the mouth
+      const sigma = this.numericalBlocks(lead, z, sheet).sigma;
+      const w = l.mouth.length;
+      let im = 0;
+      for (let p = 0; p < w; p++)
+        for (let q = 0; q < w; q++) {
+          const a = l.mouth[p];
+          const b = l.mouth[q];
+          const sr = sigma[2 * (p * w + q)];
+          const si = sigma[2 * (p * w + q) + 1];
+          const xr = sr * psi[2 * b] - si * psi[2 * b + 1];
+          const xi = sr * psi[2 * b + 1] + si * psi[2 * b];
+          im += psi[2 * a] * xi - psi[2 * a + 1] * xr;
+        }
+      return -2 * im;
+    }
     const ch = l.channels;
     const w = ch.width;
     selfEnergyCoefficients(ch, z.re, z.im, sheet[lead], this.coef);
@@ -222,6 +251,8 @@ export class EffectiveHamiltonian implements NonlinearOperator {
   /** 1-based indices of lead ℓ's open channels at a real energy E (meV). */
   openChannels(lead: number, energy: number): number[] {
     const out: number[] = [];
+    const numerical = this.system.leads[lead].numerical;
+    if (numerical) return Array.from({ length: numerical.channels(energy).count }, (_, c) => c + 1);
     channelFlags(this.system.leads[lead].channels, energy).forEach((open, m) => open && out.push(m + 1));
     return out;
   }
@@ -230,6 +261,7 @@ export class EffectiveHamiltonian implements NonlinearOperator {
   selfEnergy(lead: number, z: Complex, sheet: SheetFlags = this.sheetAt(z.re)): Float64Array {
     const l = this.system.leads[lead];
     const w = l.mouth.length;
+    if (l.numerical) return this.numericalBlocks(lead, z, sheet).sigma.slice();
     const coef = new Float64Array(2 * w);
     selfEnergyCoefficients(l.channels, z.re, z.im, sheet[lead], coef);
     return mouthBlock(l.channels, l.theta, coef, new Float64Array(2 * w * w));
@@ -255,8 +287,18 @@ export class EffectiveHamiltonian implements NonlinearOperator {
     }
     const count = leadOf.length;
     const values = new Float64Array(2 * this.n * count);
+    const numericalColumns = this.system.leads.map((l) => (l.numerical ? l.numerical.channels(energy) : undefined));
     for (let c = 0; c < count; c++) {
       const l = this.system.leads[leadOf[c]];
+      const num = numericalColumns[leadOf[c]];
+      if (num) {
+        for (let p = 0; p < l.mouth.length; p++) {
+          const s = l.mouth[p];
+          values[2 * (c * this.n + s)] = num.columns[2 * (p * num.count + channelOf[c] - 1)];
+          values[2 * (c * this.n + s) + 1] = num.columns[2 * (p * num.count + channelOf[c] - 1) + 1];
+        }
+        continue;
+      }
       const ch = l.channels;
       const m = channelOf[c] - 1;
       const w = (ch.energies[m] - energy) / (2 * t);
@@ -275,9 +317,33 @@ export class EffectiveHamiltonian implements NonlinearOperator {
     if (out.length < 2 * this.rowIdx.length) throw new RangeError(`${where}: out has length ${out.length}, expected 2·nnz = ${2 * this.rowIdx.length}`);
     if (sheet.length !== this.leadCount) throw new RangeError(`${where}: sheet has flags for ${sheet.length} leads, the cavity has ${this.leadCount}`);
     this.system.leads.forEach((l, k) => {
+      if (l.numerical) {
+        if (sheet[k].length !== l.numerical.thresholds.length)
+          throw new RangeError(`${where}: sheet[${k}] has ${sheet[k].length} flags, numerical lead ${k} has ${l.numerical.thresholds.length} thresholds`);
+        return;
+      }
       if (sheet[k].length !== l.mouth.length)
         throw new RangeError(`${where}: sheet[${k}] has ${sheet[k].length} flags, lead ${k} has ${l.mouth.length} channels`);
     });
+  }
+
+  /** Σ and dΣ/dz of a numerical lead at (z, sheet), cached for the last point (assemble and its derivative share it). */
+  private numericalBlocks(lead: number, z: Complex, sheet: SheetFlags): { sigma: Float64Array; derivative: Float64Array } {
+    const key = `${z.re},${z.im},${sheet[lead].map(Number).join('')}`;
+    const cached = this.numericalCache[lead];
+    if (cached?.key === key) return cached;
+    const fresh = { key, ...this.system.leads[lead].numerical!.selfEnergyWithDerivative(z.re, z.im, sheet[lead]) };
+    this.numericalCache[lead] = fresh;
+    return fresh;
+  }
+
+  private subtractNumerical(lead: number, block: Float64Array, out: Float64Array): void {
+    const w = this.system.leads[lead].mouth.length;
+    const slots = this.blockSlots[lead];
+    for (let e = 0; e < w * w; e++) {
+      out[2 * slots[e]] -= block[2 * e];
+      out[2 * slots[e] + 1] -= block[2 * e + 1];
+    }
   }
 
   private subtractBlock(lead: number, out: Float64Array): void {
