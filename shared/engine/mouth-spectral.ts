@@ -95,6 +95,8 @@ interface NearPair {
   energy: number;
   /** P ψ (M complex, interleaved). */
   u: Float64Array;
+  /** ψ itself (2n, interleaved), kept only for eigenvalues next to a Chebyshev node. */
+  psi?: Float64Array;
 }
 
 interface SliceResult {
@@ -121,6 +123,7 @@ function sliceEigenpairs(
   normBound: number,
   seed: number,
   check: () => void,
+  keepVector: (energy: number) => boolean,
 ): SliceResult {
   const p = 2;
   const maxBasis = 400;
@@ -325,7 +328,21 @@ function sliceEigenpairs(
         }
         // ‖Hx − εx‖ ≤ ‖H − σ‖·‖(H − σ)⁻¹x − θx‖/|θ|
         residualBound = Math.max(residualBound, (normBound * q.residual) / Math.abs(q.theta));
-        return { energy: sigma + 1 / q.theta, u };
+        const energy = sigma + 1 / q.theta;
+        if (!keepVector(energy)) return { energy, u };
+        const psi = new Float64Array(2 * n);
+        for (let c = 0; c < m; c++) {
+          const yr = q.y[2 * c];
+          const yi = q.y[2 * c + 1];
+          const v = basis[c];
+          if (real) for (let e = 0; e < psi.length; e += 2) psi[e] += v[e] * yr;
+          else
+            for (let e = 0; e < psi.length; e += 2) {
+              psi[e] += v[e] * yr - v[e + 1] * yi;
+              psi[e + 1] += v[e] * yi + v[e + 1] * yr;
+            }
+        }
+        return { energy, u, psi };
       });
       return { pairs: out, residualBound, ok, steps: m };
     }
@@ -361,6 +378,8 @@ export class MouthSpectral {
   private readonly a: number;
   private readonly b: number;
   private readonly closeWidth: number;
+  /** Pairs nearer a node than this are projected out of its solve (their vectors are kept). */
+  private readonly closeToNode: number;
 
   constructor(
     private readonly op: EffectiveHamiltonian,
@@ -375,6 +394,7 @@ export class MouthSpectral {
     this.b = energies[energies.length - 1];
     const width = this.b - this.a;
     this.closeWidth = 1e-3 * width;
+    this.closeToNode = 0.006 * width;
     const tolerance = options.tolerance ?? 1e-11;
     if (!(width > 0) || this.M === 0) {
       this.reason = 'window of zero width or no lead mouth';
@@ -455,13 +475,29 @@ export class MouthSpectral {
     return this.closedPlan.factor(values, spare);
   }
 
-  /** g(σ) = −P (H − σ)⁻¹ Pᵀ from an LU of H − σ. */
-  private mouthResolvent(lu: SparseLuFactors): Float64Array {
+  /**
+   * g(σ) = −P (H − σ)⁻¹ Pᵀ from an LU of H − σ, less the pole terms of the pairs in
+   * `deflate`: the right-hand sides and the solutions are projected off their vectors,
+   * so that an eigenvalue next to σ (a large, badly rounded term) never enters.
+   */
+  private mouthResolvent(lu: SparseLuFactors, deflate: NearPair[] = []): Float64Array {
     const n = this.op.n;
     const M = this.M;
     const rhs = new Float64Array(2 * n * M);
     this.sites.forEach((s, c) => (rhs[2 * (c * n + s)] = 1));
+    const project = (x: Float64Array) => {
+      for (let c = 0; c < M; c++) {
+        const col = x.subarray(2 * n * c, 2 * n * (c + 1));
+        for (let pass = 0; pass < 2; pass++)
+          for (const d of deflate) {
+            const [re, im] = dot(d.psi!, col, false);
+            axpy(col, d.psi!, re, im, false);
+          }
+      }
+    };
+    if (deflate.length) project(rhs);
     lu.solve(rhs, M);
+    if (deflate.length) project(rhs);
     const g = new Float64Array(2 * M * M);
     for (let c = 0; c < M; c++)
       for (let r = 0; r < M; r++) {
@@ -471,7 +507,20 @@ export class MouthSpectral {
     return g;
   }
 
-  private rawNodeValues: Float64Array[] = [];
+  /** The near pairs whose pole term at x would lose digits: those within closeToNode of x. */
+  private deflationAt(x: number): NearPair[] {
+    return this.near.filter((p) => p.psi && Math.abs(p.energy - x) < this.closeToNode);
+  }
+
+  /** R(x) = g(x) − near sum, from an LU of H − x. */
+  private remainderFrom(lu: SparseLuFactors, x: number): Float64Array {
+    const deflate = this.deflationAt(x);
+    const g = this.mouthResolvent(lu, deflate);
+    const skip = new Set(deflate.map((d) => this.near.indexOf(d)));
+    this.addNear(g, x, 0, -1, skip);
+    return g;
+  }
+
 
   /** Nodes, near eigenpairs (one Lanczos per slice) and the remainder at the nodes. */
   private build(margin: number, count: number, check: () => void): boolean {
@@ -487,32 +536,48 @@ export class MouthSpectral {
     const lo = this.a - margin;
     const hi = this.b + margin;
     this.nodes = chebyshevNodes(this.a, this.b, count);
-    // Lanczos shifts: nodes no closer than a sixteenth of the window, plus shifts in the margins
-    const spacing = (this.b - this.a) / 16;
-    const shifts: { sigma: number; node: number }[] = [];
+    // every node is a Lanczos shift (its LU serves both); the margins get shifts at the middle spacing
+    const spacing = ((this.b - this.a) * Math.PI) / (2 * (count - 1));
+    const shifts: { sigma: number; node: number }[] = this.nodes.map((x, k) => ({ sigma: x, node: k }));
     for (let e = this.a - spacing; e > lo - 0.5 * spacing; e -= spacing) shifts.push({ sigma: e, node: -1 });
-    let last = -Infinity;
-    this.nodes.forEach((x, k) => {
-      if (x - last >= spacing || k === this.nodes.length - 1) {
-        shifts.push({ sigma: x, node: k });
-        last = x;
-      }
-    });
     for (let e = this.b + spacing; e < hi + 0.5 * spacing; e += spacing) shifts.push({ sigma: e, node: -1 });
     shifts.sort((x, y) => x.sigma - y.sigma);
-    const values: (Float64Array | undefined)[] = this.nodes.map(() => undefined);
+    // vectors kept for eigenvalues next to a node of this set or of the doubled one
+    const refined = chebyshevNodes(this.a, this.b, 2 * count - 1);
+    const keep = (e: number) => {
+      let j = 0;
+      let hiIdx = refined.length - 1;
+      while (hiIdx - j > 1) {
+        const mid = (j + hiIdx) >> 1;
+        if (refined[mid] <= e) j = mid;
+        else hiIdx = mid;
+      }
+      return Math.min(Math.abs(e - refined[j]), Math.abs(e - refined[hiIdx])) < this.closeToNode;
+    };
     const near: NearPair[] = [];
+    this.near = near;
     let worstRes = 0;
+    const partial: { g: Float64Array; deflate: NearPair[] }[] = [];
+    // A node's remainder waits until every pair within closeToNode of it is known (its LU
+    // is kept until then; a few at most, where the nodes cluster at the ends).
+    const pending: { node: number; lu: SparseLuFactors }[] = [];
+    const flush = (upTo: number) => {
+      while (pending.length && (this.nodes[pending[0].node] + this.closeToNode <= upTo || upTo === Infinity)) {
+        const { node, lu } = pending.shift()!;
+        // the deflated g now; the near sum (all slices) is subtracted at the end
+        const deflate = this.deflationAt(this.nodes[node]);
+        partial[node] = { g: this.mouthResolvent(lu, deflate), deflate };
+        this.spare = lu;
+      }
+    };
     for (let s = 0; s < shifts.length; s++) {
       check();
       const { sigma, node } = shifts[s];
       const from = s === 0 ? lo : 0.5 * (shifts[s - 1].sigma + sigma);
       const to = s === shifts.length - 1 ? hi : 0.5 * (sigma + shifts[s + 1].sigma);
       const lu = this.factorClosed(sigma);
-      if (node >= 0) values[node] = this.mouthResolvent(lu);
       const t0 = performance.now();
-      const slice = sliceEigenpairs(lu, n, real, sigma, Math.max(from, lo), Math.min(to, hi), this.sites, hNorm + Math.abs(sigma), 7 + 13 * s, check);
-      this.spare = lu;
+      const slice = sliceEigenpairs(lu, n, real, sigma, Math.max(from, lo), Math.min(to, hi), this.sites, hNorm + Math.abs(sigma), 7 + 13 * s, check, keep);
       if (process.env.SPECTRAL_DEBUG) console.log('slice', sigma, from, to, slice.pairs.length, slice.ok, slice.steps, (performance.now() - t0).toFixed(0), 'ms');
       if (!slice.ok) {
         this.reason = `eigenpairs near ${sigma.toPrecision(6)} meV did not converge`;
@@ -520,21 +585,18 @@ export class MouthSpectral {
       }
       near.push(...slice.pairs);
       worstRes = Math.max(worstRes, slice.residualBound);
+      if (node >= 0) pending.push({ node, lu });
+      else this.spare = lu;
+      flush(s === shifts.length - 1 ? Infinity : to);
     }
     near.sort((x, y) => x.energy - y.energy);
-    this.near = near;
     this.realVectors = real;
     this.worstEigenResidual = worstRes;
-    for (let k = 0; k < this.nodes.length; k++) {
-      if (!values[k]) {
-        check();
-        const lu = this.factorClosed(this.nodes[k]);
-        values[k] = this.mouthResolvent(lu);
-        this.spare = lu;
-      }
-    }
-    this.rawNodeValues = values as Float64Array[];
-    this.remainder = this.rawNodeValues.map((g, k) => this.subtractNear(g, this.nodes[k]));
+    this.remainder = partial.map(({ g, deflate }, k) => {
+      const skip = new Set(deflate.map((d) => near.indexOf(d)));
+      this.addNear(g, this.nodes[k], 0, -1, skip);
+      return g;
+    });
     return true;
   }
 
@@ -543,22 +605,15 @@ export class MouthSpectral {
     const next = chebyshevNodes(this.a, this.b, count);
     const values: Float64Array[] = [];
     next.forEach((x, k) => {
-      if (k % 2 === 0) values.push(this.rawNodeValues[k / 2]);
+      if (k % 2 === 0) values.push(this.remainder[k / 2]);
       else {
         const lu = this.factorClosed(x);
-        values.push(this.mouthResolvent(lu));
+        values.push(this.remainderFrom(lu, x));
         this.spare = lu;
       }
     });
     this.nodes = next;
-    this.rawNodeValues = values;
-    this.remainder = values.map((g, k) => this.subtractNear(g, next[k]));
-  }
-
-  private subtractNear(g: Float64Array, x: number): Float64Array {
-    const out = Float64Array.from(g);
-    this.addNear(out, x, 0, -1, null);
-    return out;
+    this.remainder = values;
   }
 
   /** out += sign·Σ u uᴴ/(z − ε) over the near pairs, skipping those in `skip`. */
