@@ -64,12 +64,12 @@ export interface MouthSpectralSummary {
 
 type Vec = Float64Array;
 
-/** conj(a)·b over interleaved complex vectors; `real` skips the imaginary lanes. */
+/** conj(a)·b over interleaved complex vectors, or plain real vectors when `real`. */
 function dot(a: Vec, b: Vec, real: boolean): [number, number] {
   let re = 0;
   let im = 0;
   if (real) {
-    for (let k = 0; k < a.length; k += 2) re += a[k] * b[k];
+    for (let k = 0; k < a.length; k++) re += a[k] * b[k];
     return [re, 0];
   }
   for (let k = 0; k < a.length; k += 2) {
@@ -82,7 +82,7 @@ function dot(a: Vec, b: Vec, real: boolean): [number, number] {
 /** w −= (re + i·im)·q. */
 function axpy(w: Vec, q: Vec, re: number, im: number, real: boolean): void {
   if (real) {
-    for (let k = 0; k < w.length; k += 2) w[k] -= re * q[k];
+    for (let k = 0; k < w.length; k++) w[k] -= re * q[k];
     return;
   }
   for (let k = 0; k < w.length; k += 2) {
@@ -132,10 +132,15 @@ function sliceEigenpairs(
   // T[j] = coefficients of Op·v_j in the basis (column j), grown as vectors are added.
   const cols: Float64Array[] = [];
   let block: Vec[] = [];
+  // Lanczos vectors: n reals for a real H (the solves keep them real), else 2n interleaved
   for (let b = 0; b < p; b++) {
-    const v = new Float64Array(2 * n);
-    for (let k = 0; k < n; k++) v[2 * k] = siteUniform(seed + 101 * b, k, 23) - 0.5;
-    if (!real) for (let k = 0; k < n; k++) v[2 * k + 1] = siteUniform(seed + 101 * b, k, 29) - 0.5;
+    const v = new Float64Array(real ? n : 2 * n);
+    if (real) for (let k = 0; k < n; k++) v[k] = siteUniform(seed + 101 * b, k, 23) - 0.5;
+    else
+      for (let k = 0; k < n; k++) {
+        v[2 * k] = siteUniform(seed + 101 * b, k, 23) - 0.5;
+        v[2 * k + 1] = siteUniform(seed + 101 * b, k, 29) - 0.5;
+      }
     block.push(v);
   }
   // orthonormalise the start block
@@ -162,11 +167,18 @@ function sliceEigenpairs(
     check();
     const first = basis.length - block.length;
     rhs.fill(0);
-    block.forEach((v, b) => rhs.set(v, 2 * n * b));
+    block.forEach((v, b) => {
+      if (real) for (let k = 0; k < n; k++) rhs[2 * (n * b + k)] = v[k];
+      else rhs.set(v, 2 * n * b);
+    });
     lu.solve(rhs, block.length, out);
     const fresh: Vec[] = [];
     block.forEach((_, b) => {
-      const w = out.slice(2 * n * b, 2 * n * (b + 1));
+      let w: Float64Array;
+      if (real) {
+        w = new Float64Array(n);
+        for (let k = 0; k < n; k++) w[k] = out[2 * (n * b + k)];
+      } else w = out.slice(2 * n * b, 2 * n * (b + 1));
       const coef = new Float64Array(2 * (basis.length + p));
       for (let pass = 0; pass < 2; pass++) {
         for (let j = 0; j < basis.length; j++) {
@@ -298,8 +310,13 @@ function sliceEigenpairs(
       }
     }
     // Ritz values within 1.3 × the reach must be converged; count those in the slice
-    const watched = pairs.filter((q) => Math.abs(1 / q.theta) <= 1.3 * reach);
-    const converged = watched.every((q) => q.residual <= tolOf(q.theta));
+    // in the slice: converged to the full tolerance; just outside it (to 1.2 times the
+    // reach): converged enough that its Ritz value (error ≤ residual²/gap) is surely outside
+    const watched = pairs.filter((q) => Math.abs(1 / q.theta) <= 1.2 * reach);
+    const converged = watched.every((q) => {
+      const e = sigma + 1 / q.theta;
+      return q.residual <= (e >= lo && e < hi ? tolOf(q.theta) : 1e-8 * Math.abs(q.theta));
+    });
     const inSlice = pairs.filter((q) => {
       const e = sigma + 1 / q.theta;
       return e >= lo && e < hi;
@@ -318,8 +335,8 @@ function sliceEigenpairs(
           let re = 0;
           let im = 0;
           for (let c = 0; c < m; c++) {
-            const vr = basis[c][2 * mouth[r]];
-            const vi = basis[c][2 * mouth[r] + 1];
+            const vr = real ? basis[c][mouth[r]] : basis[c][2 * mouth[r]];
+            const vi = real ? 0 : basis[c][2 * mouth[r] + 1];
             re += vr * q.y[2 * c] - vi * q.y[2 * c + 1];
             im += vr * q.y[2 * c + 1] + vi * q.y[2 * c];
           }
@@ -335,7 +352,7 @@ function sliceEigenpairs(
           const yr = q.y[2 * c];
           const yi = q.y[2 * c + 1];
           const v = basis[c];
-          if (real) for (let e = 0; e < psi.length; e += 2) psi[e] += v[e] * yr;
+          if (real) for (let k = 0; k < n; k++) psi[2 * k] += v[k] * yr;
           else
             for (let e = 0; e < psi.length; e += 2) {
               psi[e] += v[e] * yr - v[e + 1] * yi;
@@ -429,7 +446,6 @@ export class MouthSpectral {
           }
           worst = Math.max(worst, largestDifference(mine.point, point));
           const dp = point.detPhase - mine.phase - this.phaseOffset;
-          if (process.env.SPECTRAL_DEBUG) console.log('held', E, largestDifference(mine.point, point), dp);
           if (Math.abs(Math.atan2(Math.sin(dp), Math.cos(dp))) > 1e-6) phaseOff = true;
         }
         if (phaseOff) worst = Math.max(worst, Infinity);
@@ -521,7 +537,6 @@ export class MouthSpectral {
     return g;
   }
 
-
   /** Nodes, near eigenpairs (one Lanczos per slice) and the remainder at the nodes. */
   private build(margin: number, count: number, check: () => void): boolean {
     const lattice = this.op.system.lattice;
@@ -576,9 +591,7 @@ export class MouthSpectral {
       const from = s === 0 ? lo : 0.5 * (shifts[s - 1].sigma + sigma);
       const to = s === shifts.length - 1 ? hi : 0.5 * (sigma + shifts[s + 1].sigma);
       const lu = this.factorClosed(sigma);
-      const t0 = performance.now();
       const slice = sliceEigenpairs(lu, n, real, sigma, Math.max(from, lo), Math.min(to, hi), this.sites, hNorm + Math.abs(sigma), 7 + 13 * s, check, keep);
-      if (process.env.SPECTRAL_DEBUG) console.log('slice', sigma, from, to, slice.pairs.length, slice.ok, slice.steps, (performance.now() - t0).toFixed(0), 'ms');
       if (!slice.ok) {
         this.reason = `eigenpairs near ${sigma.toPrecision(6)} meV did not converge`;
         return false;

@@ -258,8 +258,8 @@ export function transmissionSweep(op: EffectiveHamiltonian, request: SweepReques
   const interpolation = spectral
     ? spectral
     : request.interpolate
-    ? new MouthInterpolation(op, solver, grid, request.interpolate === true ? {} : request.interpolate, () => checkCancelled(control))
-    : null;
+      ? new MouthInterpolation(op, solver, grid, request.interpolate === true ? {} : request.interpolate, () => checkCancelled(control))
+      : null;
   const evaluate = (E: number): TransmissionPoint => {
     if (interpolation) return interpolation.at(E);
     directSolves++;
