@@ -52,19 +52,23 @@ export async function benchTransmission(points = 200): Promise<Record<string, nu
  * `count` energies spread over the window; returns the mean (ms) per energy, or null
  * when python3 with scipy is missing.
  */
-function referencePerEnergy(op: EffectiveHamiltonian, energies: number[], dir: string): number | null {
+function referencePerEnergy(op: EffectiveHamiltonian, energies: number[], dir: string): { wall: number; cpu: number } | null {
   if (!referenceAvailable()) return null;
   const values = new Float64Array(2 * op.rowIdx.length);
   let total = 0;
+  let cpu = 0;
   for (const [k, E] of energies.entries()) {
     op.assemble({ re: E, im: 0 }, op.sheetAt(E), values);
     const file = join(dir, `sweep-${k}.bin`);
     writeMatrix(file, { n: op.n, colPtr: op.colPtr, rowIdx: op.rowIdx, values });
     const nrhs = Math.max(1, op.couplingColumns(E).count);
-    const line = execFileSync('python3', [join(import.meta.dirname, 'lu-reference.py'), `--solve=${nrhs}`, '1', file], { encoding: 'utf8' });
-    total += (JSON.parse(line.trim().split('\n').pop()!) as { minMs: number }).minMs;
+    // min of 3 calls per energy: wall times at high load scatter by 3× from call to call
+    const line = execFileSync('python3', [join(import.meta.dirname, 'lu-reference.py'), `--solve=${nrhs}`, '3', file], { encoding: 'utf8' });
+    const r = JSON.parse(line.trim().split('\n').pop()!) as { minMs: number; minCpuMs: number };
+    total += r.minMs;
+    cpu += r.minCpuMs;
   }
-  return total / energies.length;
+  return { wall: total / energies.length, cpu: cpu / energies.length };
 }
 
 /**
@@ -85,28 +89,38 @@ export async function benchSweep1000(points = 1000, side = 100): Promise<Record<
     const loads = [loadavg()[0]];
     const before = referencePerEnergy(op, sample(0.25), dir);
     loads.push(loadavg()[0]);
+    const cpuSeconds = (c0: NodeJS.CpuUsage) => {
+      const c = process.cpuUsage(c0);
+      return (c.user + c.system) / 1e6;
+    };
     let started = performance.now();
+    let c0 = process.cpuUsage();
     const spectral = transmissionSweep(op, { ...request, spectral: true });
     const spectralSeconds = (performance.now() - started) / 1000;
+    const spectralCpu = cpuSeconds(c0);
     loads.push(loadavg()[0]);
     const after = referencePerEnergy(op, sample(0.75), dir);
     loads.push(loadavg()[0]);
     started = performance.now();
+    c0 = process.cpuUsage();
     const direct = transmissionSweep(op, request);
     const directSeconds = (performance.now() - started) / 1000;
+    const directCpu = cpuSeconds(c0);
     loads.push(loadavg()[0]);
     let worst = 0;
     direct.points.forEach((p, k) => (worst = Math.max(worst, largestDifference(p, spectral.points[k]))));
     const s = spectral.spectral!;
-    out['spectral: seconds'] = spectralSeconds;
+    out['spectral: seconds (wall / CPU)'] = `${spectralSeconds.toFixed(1)} / ${spectralCpu.toFixed(1)}`;
     out['spectral: used / eigenpairs / nodes'] = `${s.used ? 'yes' : `NO (${s.reason})`} / ${s.eigenpairs} / ${s.nodes}`;
     out['spectral: factorisations (closed cavity + direct)'] = spectral.directSolves;
-    out['direct (one LU per energy): seconds'] = directSeconds;
+    out['direct (one LU per energy): seconds (wall / CPU)'] = `${directSeconds.toFixed(1)} / ${directCpu.toFixed(1)}`;
     if (before !== null && after !== null) {
-      const reference = (points * 0.5 * (before + after)) / 1000;
-      out['reference (SuperLU per energy, 2×20 timed, ×1000/20): seconds'] = reference;
-      out['ratio spectral / reference (target ≤ 0.15)'] = spectralSeconds / reference;
-      out['ratio direct / reference'] = directSeconds / reference;
+      const reference = (points * 0.5 * (before.wall + after.wall)) / 1000;
+      const referenceCpu = (points * 0.5 * (before.cpu + after.cpu)) / 1000;
+      out[`reference (SuperLU per energy, 2×20 energies, ×${points}/20): seconds (wall / CPU)`] = `${reference.toFixed(1)} / ${referenceCpu.toFixed(1)}`;
+      out['ratio spectral / reference, wall / CPU (target ≤ 0.15)'] =
+        `${(spectralSeconds / reference).toFixed(3)} / ${(spectralCpu / referenceCpu).toFixed(3)}`;
+      out['ratio direct / reference, wall / CPU'] = `${(directSeconds / reference).toFixed(3)} / ${(directCpu / referenceCpu).toFixed(3)}`;
     } else out['reference'] = 'skipped: python3 with scipy not found (apt-get install python3-scipy, or pip install scipy)';
     out['max |ΔT| spectral against direct, every energy (target < 1e-10)'] = worst;
     out['load average 1m (start / ref / spectral / ref / direct)'] = loads.map((x) => x.toFixed(1)).join(' / ');
