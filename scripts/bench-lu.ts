@@ -169,7 +169,7 @@ export async function benchLu(): Promise<Record<string, number>> {
 }
 
 /** The bench matrix in the binary layout scripts/lu-reference.py reads. */
-function writeMatrix(path: string, a: ComplexCsc): void {
+export function writeMatrix(path: string, a: ComplexCsc): void {
   const nnz = a.colPtr[a.n];
   const buf = Buffer.alloc(8 + 4 * (a.n + 1) + 4 * nnz + 16 * nnz);
   buf.writeInt32LE(a.n, 0);
@@ -181,7 +181,7 @@ function writeMatrix(path: string, a: ComplexCsc): void {
 }
 
 /** True when python3 with scipy can run the reference script. */
-function referenceAvailable(): boolean {
+export function referenceAvailable(): boolean {
   const r = spawnSync('python3', ['-c', 'import scipy.sparse.linalg'], { stdio: 'ignore' });
   return r.status === 0;
 }

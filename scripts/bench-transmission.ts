@@ -8,7 +8,11 @@
 import { buildCavitySystem, EffectiveHamiltonian } from '../shared/engine/effective-hamiltonian';
 import { transmissionSweep } from '../shared/engine/transmission';
 import { largestDifference } from '../shared/engine/mouth-interpolation';
-import { loadavg } from 'node:os';
+import { execFileSync } from 'node:child_process';
+import { mkdtempSync, rmSync } from 'node:fs';
+import { loadavg, tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { referenceAvailable, writeMatrix } from './bench-lu';
 import type { CavityModelInput } from '../shared/model/cavity-model';
 
 export function rectangleModel(side: number): CavityModelInput {
@@ -43,37 +47,96 @@ export async function benchTransmission(points = 200): Promise<Record<string, nu
 }
 
 /**
- * A 1,000-energy sweep at 10,000 sites, by one LU per energy and by the interpolated
- * mouth resolvent (mouth-interpolation.ts): time, factorisations, and the largest
- * |ΔT| between the two over every energy.
+ * SciPy/SuperLU's time for one energy of a sweep (factorisation of T(E) plus a solve
+ * with the open channels' right-hand sides), by scripts/lu-reference.py --solve, at
+ * `count` energies spread over the window; returns the mean (ms) per energy, or null
+ * when python3 with scipy is missing.
  */
-export async function benchSweep1000(points = 1000): Promise<Record<string, number | string>> {
-  const op = new EffectiveHamiltonian(buildCavitySystem(rectangleModel(100)));
-  const t = op.hopping;
-  const request = { emin: 0.05 * t, emax: 0.45 * t, points };
-  const load = loadavg()[0];
-  let started = performance.now();
-  const direct = transmissionSweep(op, request);
-  const directSeconds = (performance.now() - started) / 1000;
-  started = performance.now();
-  const interpolated = transmissionSweep(op, { ...request, interpolate: true });
-  const interpolatedSeconds = (performance.now() - started) / 1000;
-  let worst = 0;
-  direct.points.forEach((p, k) => (worst = Math.max(worst, largestDifference(p, interpolated.points[k]))));
-  return {
-    sites: op.n,
-    energies: points,
-    'direct: seconds': directSeconds,
-    'direct: factorisations': direct.directSolves,
-    'interpolated: seconds': interpolatedSeconds,
-    'interpolated: factorisations': interpolated.directSolves,
-    'interpolated: blocks solved directly': `${interpolated.interpolation?.fallbackBlocks} of ${interpolated.interpolation?.blocks}`,
-    'max |ΔT| over all energies': worst,
-    'load average (1 min) at start': load,
-  };
+function referencePerEnergy(op: EffectiveHamiltonian, energies: number[], dir: string): { wall: number; cpu: number } | null {
+  if (!referenceAvailable()) return null;
+  const values = new Float64Array(2 * op.rowIdx.length);
+  let total = 0;
+  let cpu = 0;
+  for (const [k, E] of energies.entries()) {
+    op.assemble({ re: E, im: 0 }, op.sheetAt(E), values);
+    const file = join(dir, `sweep-${k}.bin`);
+    writeMatrix(file, { n: op.n, colPtr: op.colPtr, rowIdx: op.rowIdx, values });
+    const nrhs = Math.max(1, op.couplingColumns(E).count);
+    // min of 3 calls per energy: wall times at high load scatter by 3× from call to call
+    const line = execFileSync('python3', [join(import.meta.dirname, 'lu-reference.py'), `--solve=${nrhs}`, '3', file], { encoding: 'utf8' });
+    const r = JSON.parse(line.trim().split('\n').pop()!) as { minMs: number; minCpuMs: number };
+    total += r.minMs;
+    cpu += r.minCpuMs;
+  }
+  return { wall: total / energies.length, cpu: cpu / energies.length };
 }
 
-if (import.meta.url === `file://${process.argv[1]}`) {
+/**
+ * A 1,000-energy sweep at 10,000 sites: the product's spectral sweep (mouth-spectral.ts)
+ * against the reference (one SuperLU factorisation and solve per energy, timed at 20
+ * energies before and 20 after the product's run and scaled to 1,000, so that load from
+ * elsewhere hits both alike), then the product's direct sweep (one LU per energy) for the
+ * largest |ΔT| over every energy.
+ */
+export async function benchSweep1000(points = 1000, side = 100): Promise<Record<string, number | string>> {
+  const op = new EffectiveHamiltonian(buildCavitySystem(rectangleModel(side)));
+  const t = op.hopping;
+  const request = { emin: 0.05 * t, emax: 0.45 * t, points };
+  const dir = mkdtempSync(join(tmpdir(), 'poleward-sweep-'));
+  const out: Record<string, number | string> = { sites: op.n, energies: points };
+  try {
+    const sample = (shift: number) => Array.from({ length: 20 }, (_, k) => request.emin + ((request.emax - request.emin) * (k + shift)) / 20);
+    const loads = [loadavg()[0]];
+    const before = referencePerEnergy(op, sample(0.25), dir);
+    loads.push(loadavg()[0]);
+    const cpuSeconds = (c0: NodeJS.CpuUsage) => {
+      const c = process.cpuUsage(c0);
+      return (c.user + c.system) / 1e6;
+    };
+    let started = performance.now();
+    let c0 = process.cpuUsage();
+    const spectral = transmissionSweep(op, { ...request, spectral: true });
+    const spectralSeconds = (performance.now() - started) / 1000;
+    const spectralCpu = cpuSeconds(c0);
+    loads.push(loadavg()[0]);
+    const after = referencePerEnergy(op, sample(0.75), dir);
+    loads.push(loadavg()[0]);
+    started = performance.now();
+    c0 = process.cpuUsage();
+    const direct = transmissionSweep(op, request);
+    const directSeconds = (performance.now() - started) / 1000;
+    const directCpu = cpuSeconds(c0);
+    loads.push(loadavg()[0]);
+    let worst = 0;
+    direct.points.forEach((p, k) => (worst = Math.max(worst, largestDifference(p, spectral.points[k]))));
+    const s = spectral.spectral!;
+    out['spectral: seconds (wall / CPU)'] = `${spectralSeconds.toFixed(1)} / ${spectralCpu.toFixed(1)}`;
+    out['spectral: used / eigenpairs / nodes'] = `${s.used ? 'yes' : `NO (${s.reason})`} / ${s.eigenpairs} / ${s.nodes}`;
+    out['spectral: factorisations (closed cavity + direct)'] = spectral.directSolves;
+    out['direct (one LU per energy): seconds (wall / CPU)'] = `${directSeconds.toFixed(1)} / ${directCpu.toFixed(1)}`;
+    if (before !== null && after !== null) {
+      const reference = (points * 0.5 * (before.wall + after.wall)) / 1000;
+      const referenceCpu = (points * 0.5 * (before.cpu + after.cpu)) / 1000;
+      out[`reference (SuperLU per energy, 2×20 energies, ×${points}/20): seconds (wall / CPU)`] = `${reference.toFixed(1)} / ${referenceCpu.toFixed(1)}`;
+      out['ratio spectral / reference, wall / CPU (target ≤ 0.15)'] =
+        `${(spectralSeconds / reference).toFixed(3)} / ${(spectralCpu / referenceCpu).toFixed(3)}`;
+      out['ratio direct / reference, wall / CPU'] = `${(directSeconds / reference).toFixed(3)} / ${(directCpu / referenceCpu).toFixed(3)}`;
+    } else out['reference'] = 'skipped: python3 with scipy not found (apt-get install python3-scipy, or pip install scipy)';
+    out['max |ΔT| spectral against direct, every energy (target < 1e-10)'] = worst;
+    out['load average 1m (start / ref / spectral / ref / direct)'] = loads.map((x) => x.toFixed(1)).join(' / ');
+  } finally {
+    rmSync(dir, { recursive: true, force: true });
+  }
+  return out;
+}
+
+if (process.argv.includes('--sweep') && process.argv[1]?.endsWith('bench-transmission.ts')) {
+  const side = Number(process.argv.find((x) => x.startsWith('--side='))?.slice(7) ?? 100);
+  const points = Number(process.argv.find((x) => x.startsWith('--points='))?.slice(9) ?? 1000);
+  for (const [k, v] of Object.entries(await benchSweep1000(points, side))) console.log(`${k.padEnd(66)} ${typeof v === 'number' ? v.toPrecision(4) : v}`);
+}
+
+if (import.meta.url === `file://${process.argv[1]}` && !process.argv.includes('--sweep')) {
   const f = await benchTransmission();
   for (const [k, v] of Object.entries(f)) console.log(`${k.padEnd(34)} ${Number.isInteger(v) ? v : v.toPrecision(4)}`);
 }

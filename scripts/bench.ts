@@ -58,7 +58,8 @@ if (only.includes('lu')) {
   print('one LU against SciPy/SuperLU (scripts/lu-reference.py), back to back, min of 3 rounds; target ratio ≤ 0.5', await benchLuReference());
 }
 if (only.includes('transmission')) print('transmission sweep at 10,000 sites (one thread)', await benchTransmission());
-if (only.includes('sweep')) print('1,000-energy transmission sweep at 10,000 sites: direct against interpolated (one thread)', await benchSweep1000());
+if (only.includes('sweep'))
+  print('1,000-energy transmission sweep at 10,000 sites: spectral against SciPy/SuperLU per energy, then direct (one thread)', await benchSweep1000());
 if (only.includes('poles')) {
   const one = searchOnce(100);
   print('certified pole search at 10,000 sites, one thread', {

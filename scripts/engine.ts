@@ -4,7 +4,7 @@
  * status (2: bad command or flag, 1: bad file, invalid model, failed computation).
  *
  *   npm run engine -- info MODEL.json [--energy E]
- *   npm run engine -- transmission MODEL.json --emin X --emax Y --points N [--refine MAXPOINTS] [--tolerance T] [--interpolate]
+ *   npm run engine -- transmission MODEL.json --emin X --emax Y --points N [--refine MAXPOINTS] [--tolerance T] [--interpolate] [--spectral]
  *   npm run engine -- poles MODEL.json --emin X --emax Y --gmax Z [--probes P] [--seed S] [--max-nodes M] [--modes]
  *   npm run engine -- closed MODEL.json --target E --count K [--vectors]
  *   npm run engine -- current MODEL.json (--pole-near E | --energy E --lead L --channel M) [--window W] [--gmax G]
@@ -33,7 +33,7 @@ class UsageError extends Error {}
 
 const USAGE = `usage:
   engine info MODEL.json [--energy E]
-  engine transmission MODEL.json --emin X --emax Y --points N [--refine MAXPOINTS] [--tolerance T] [--interpolate]
+  engine transmission MODEL.json --emin X --emax Y --points N [--refine MAXPOINTS] [--tolerance T] [--interpolate] [--spectral]
   engine poles MODEL.json --emin X --emax Y --gmax Z [--probes P] [--seed S] [--max-nodes M] [--modes]
   engine closed MODEL.json --target E --count K [--vectors]
   engine current MODEL.json (--pole-near E | --energy E --lead L --channel M) [--window W] [--gmax G]
@@ -54,7 +54,7 @@ const STATE_FLAGS = ['pole-near', 'energy', 'channel', 'window', 'gmax'];
 
 const FLAGS: Record<string, { numbers: string[]; switches: string[]; required: string[]; strings?: string[] }> = {
   info: { numbers: ['energy'], switches: [], required: [] },
-  transmission: { numbers: ['emin', 'emax', 'points', 'refine', 'tolerance'], switches: ['interpolate'], required: ['emin', 'emax', 'points'] },
+  transmission: { numbers: ['emin', 'emax', 'points', 'refine', 'tolerance'], switches: ['interpolate', 'spectral'], required: ['emin', 'emax', 'points'] },
   poles: { numbers: ['emin', 'emax', 'gmax', 'probes', 'seed', 'max-nodes'], switches: ['modes'], required: ['emin', 'emax', 'gmax'] },
   closed: { numbers: ['target', 'count'], switches: ['vectors'], required: ['target', 'count'] },
   current: { numbers: STATE_FLAGS, switches: [], required: [], strings: ['lead'] },
@@ -189,7 +189,14 @@ async function run(argv: string[]): Promise<unknown> {
   if (command === 'transmission') {
     const points = integer(numbers, 'points', 2);
     const refine = numbers.refine === undefined ? undefined : { maxPoints: integer(numbers, 'refine', points), tolerance: numbers.tolerance };
-    const sweep = transmissionSweep(op, { emin: numbers.emin, emax: numbers.emax, points, refine, interpolate: switches.has('interpolate') });
+    const sweep = transmissionSweep(op, {
+      emin: numbers.emin,
+      emax: numbers.emax,
+      points,
+      refine,
+      interpolate: switches.has('interpolate'),
+      spectral: switches.has('spectral'),
+    });
     return {
       leads: system.leads.map((l) => ({ name: l.name, side: l.side, width: l.mouth.length })),
       energies: sweep.points.map((p) => p.energy),
@@ -203,6 +210,7 @@ async function run(argv: string[]): Promise<unknown> {
       budgetExhausted: sweep.budgetExhausted,
       directSolves: sweep.directSolves,
       ...(sweep.interpolation ? { interpolation: sweep.interpolation } : {}),
+      ...(sweep.spectral ? { spectral: sweep.spectral } : {}),
       ...(physics.kind === 'microwave'
         ? {
             frequenciesGhz: sweep.points.map((p) => ghz(p.energy)),

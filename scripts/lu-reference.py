@@ -16,6 +16,9 @@ int32 rowIdx[nnz], float64 values[2*nnz] (interleaved re, im).
 
 Run by the bench only when python3 with scipy is present:
   python3 scripts/lu-reference.py REPS FILE...
+With --solve=NRHS first, each timed call is a factorisation plus a solve with NRHS
+right-hand sides (what one energy of a transmission sweep costs: the sweep reference of
+scripts/bench-transmission.ts).
 """
 import json
 import os
@@ -44,9 +47,18 @@ def read_matrix(path):
 
 
 def main():
-    reps = int(sys.argv[1])
-    for path in sys.argv[2:]:
+    args = sys.argv[1:]
+    nrhs = 0
+    if args and args[0].startswith('--solve='):
+        nrhs = int(args[0][len('--solve='):])
+        args = args[1:]
+    reps = int(args[0])
+    for path in args[1:]:
         a = read_matrix(path)
+        rhs = None
+        if nrhs > 0:
+            k = np.arange(a.shape[0] * nrhs).reshape(a.shape[0], nrhs)
+            rhs = np.sin(0.37 * k) + 1j * np.cos(0.21 * k)
         lu = None
         times = []
         cpu = []
@@ -55,6 +67,8 @@ def main():
             c0 = time.process_time()
             t0 = time.perf_counter()
             lu = splu(a, permc_spec='MMD_AT_PLUS_A', diag_pivot_thresh=0.1, options=dict(SymmetricMode=True))
+            if rhs is not None:
+                lu.solve(rhs)
             dt = (time.perf_counter() - t0) * 1e3
             dc = (time.process_time() - c0) * 1e3
             if r > 0:

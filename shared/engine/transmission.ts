@@ -12,6 +12,7 @@ import { checkCancelled, type WorkControl } from './operator';
 import { SparseLuPlan, type SparseLuFactors } from './sparse-lu';
 import type { EffectiveHamiltonian } from './effective-hamiltonian';
 import { MouthInterpolation, type MouthInterpolationOptions } from './mouth-interpolation';
+import { MouthSpectral, type MouthSpectralOptions, type MouthSpectralSummary } from './mouth-spectral';
 import { mouthOrder, pointFromMouth, scatteringPoint, type TransmissionPoint } from './scattering-point';
 
 export { mouthOrder, pointFromMouth, type TransmissionPoint } from './scattering-point';
@@ -154,6 +155,13 @@ export interface SweepRequest {
    * direct solves wherever the check fails; default off (one LU per energy).
    */
   interpolate?: boolean | MouthInterpolationOptions;
+  /**
+   * Evaluate the closed cavity's mouth resolvent from its eigenpairs near the window plus
+   * a Chebyshev remainder (mouth-spectral.ts), checked against direct solves at held-out
+   * energies, with one direct solve per energy if the check fails; default off. Takes
+   * precedence over `interpolate`.
+   */
+  spectral?: boolean | MouthSpectralOptions;
 }
 
 export interface TransmissionSweep {
@@ -167,8 +175,10 @@ export interface TransmissionSweep {
   /** Largest current-conservation and unitarity residuals over all samples. */
   worstCurrentResidual: number;
   worstUnitarityResidual: number;
-  /** LU factorisations spent (one per direct solve, upper probes included). */
+  /** LU factorisations spent (one per direct solve, upper probes included; with `spectral`, the closed cavity's too). */
   directSolves: number;
+  /** With `spectral`: whether it served the sweep, eigenpairs, nodes, held-out |ΔT|. */
+  spectral?: MouthSpectralSummary;
   /** With interpolation: blocks, blocks computed directly, and the largest |ΔT| at held-out energies. */
   interpolation?: { blocks: number; fallbackBlocks: number; worstHeldOut: number };
 }
@@ -242,9 +252,14 @@ export function transmissionSweep(op: EffectiveHamiltonian, request: SweepReques
 
   let directSolves = 0;
   const grid = Array.from({ length: points }, (_, k) => emin + ((emax - emin) * k) / (points - 1));
-  const interpolation = request.interpolate
-    ? new MouthInterpolation(op, solver, grid, request.interpolate === true ? {} : request.interpolate, () => checkCancelled(control))
+  const spectral = request.spectral
+    ? new MouthSpectral(op, solver, grid, request.spectral === true ? {} : request.spectral, () => checkCancelled(control))
     : null;
+  const interpolation = spectral
+    ? spectral
+    : request.interpolate
+      ? new MouthInterpolation(op, solver, grid, request.interpolate === true ? {} : request.interpolate, () => checkCancelled(control))
+      : null;
   const evaluate = (E: number): TransmissionPoint => {
     if (interpolation) return interpolation.at(E);
     directSolves++;
@@ -333,6 +348,7 @@ export function transmissionSweep(op: EffectiveHamiltonian, request: SweepReques
     worstUnitarityResidual = Math.max(worstUnitarityResidual, p.unitarityResidual);
   }
   if (interpolation) directSolves += interpolation.directSolves;
+  if (spectral) directSolves += spectral.closedFactorisations;
   return {
     points: samples,
     gridPoints: points,
@@ -341,6 +357,6 @@ export function transmissionSweep(op: EffectiveHamiltonian, request: SweepReques
     worstCurrentResidual,
     worstUnitarityResidual,
     directSolves,
-    ...(interpolation ? { interpolation: interpolation.summary() } : {}),
+    ...(spectral ? { spectral: spectral.summary() } : interpolation instanceof MouthInterpolation ? { interpolation: interpolation.summary() } : {}),
   };
 }

@@ -40,6 +40,12 @@ describe('engine command line', () => {
     // One impurity V = 5 meV at E = 4t (k = π/2): T = 1/(1 + (V/2t)²) (closed form, see transmission.test.ts).
     expect(out.transmission[2][0][1] / (1 / (1 + (5 / (2 * t)) ** 2))).toBeCloseTo(1, 9);
     expect(out.currentResidual).toBeLessThan(1e-10);
+    // --spectral: the same transmissions to 1e-10, with the spectral summary in the output
+    const s = engine('transmission', good, '--emin', String(3 * t), '--emax', String(5 * t), '--points', '5', '--spectral');
+    expect(s.status).toBe(0);
+    const spectral = JSON.parse(s.stdout);
+    expect(spectral.spectral.used).toBe(true);
+    spectral.transmission.forEach((m: number[][], k: number) => expect(Math.abs(m[0][1] - out.transmission[k][0][1])).toBeLessThan(1e-10));
   });
 
   it('reports bad flags, files and models on stderr with a non-zero status', () => {
