@@ -207,11 +207,11 @@ export class CatalogueTable {
   protected geometryLine(r: ResonanceRow): string {
     if (r.physics !== 'microwave') return '';
     // Stored in nm so one filter means one length (1 mm = 10⁶ nm; area 10¹² nm² per mm²).
-    const dims = Object.entries(r.keyDimensions ?? {})
-      .map(([k, v]) => (k === 'area' ? `area ${significant(v / 1e12, 4)} mm²` : `${k} ${significant(v / 1e6, 4)}`))
-      .join(' · ');
+    const entries = Object.entries(r.keyDimensions ?? {});
+    const lengths = entries.filter(([k]) => k !== 'area').map(([k, v]) => `${k} ${significant(v / 1e6, 4)}`);
+    const area = entries.filter(([k]) => k === 'area').map(([, v]) => `area ${significant(v / 1e12, 4)} mm²`);
     const eps = /^eps_r=(.*)$/.exec(r.material)?.[1];
-    return `${dims} mm · ε_r = ${eps ?? r.material} · field not applicable`;
+    return [lengths.length ? `${lengths.join(' · ')} mm` : '', ...area, `ε_r = ${eps ?? r.material}`, 'field not applicable'].filter(Boolean).join(' · ');
   }
 
   /** Sorts by the dimension chosen in the filter (sort=dim.NAME); again flips the direction. */
