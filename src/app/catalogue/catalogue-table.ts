@@ -197,10 +197,12 @@ export class CatalogueTable {
     this.navigate({ ...this.view(), filter: emptyFilter, page: 1, cursor: '' });
   }
 
+  /** The dimensions of an electron row: lengths in nm, the area in nm². */
   protected dimensions(dims: Record<string, number>): string {
-    return Object.entries(dims ?? {})
-      .map(([k, v]) => `${k} ${Math.round(v)}`)
-      .join(' · ');
+    const entries = Object.entries(dims ?? {});
+    const lengths = entries.filter(([k]) => k !== 'area').map(([k, v]) => `${k} ${Math.round(v)}`);
+    const area = entries.filter(([k]) => k === 'area').map(([, v]) => `area ${Math.round(v)} nm²`);
+    return [lengths.length ? `${lengths.join(' · ')} nm` : '', ...area].filter(Boolean).join(' · ');
   }
 
   /** The geometry line of a row in its own units: nm and T, or mm, ε_r and "field not applicable" for a microwave resonator. */
