@@ -13,14 +13,30 @@ const HBAR_MEV_PS = 0.6582119569;
 const POLES_PER_RUN = 200;
 const BATCH = 1000;
 
+/** Each family's own dimensions (as the model check files them: server/models/model-figures.ts), bounding box and area. */
 const families = [
-  { family: 'rectangle', dims: () => ({ widthNm: pick([200, 300, 400, 600]), heightNm: pick([150, 250, 400]) }) },
-  { family: 'disk', dims: () => ({ radiusNm: pick([100, 150, 250, 400]) }) },
-  { family: 'ellipse', dims: () => ({ widthNm: pick([300, 500]), heightNm: pick([200, 350]) }) },
-  { family: 'stadium', dims: () => ({ lengthNm: pick([200, 400, 600]), radiusNm: pick([100, 200]) }) },
-  { family: 'annulus', dims: () => ({ radiusNm: pick([200, 300]), widthNm: pick([60, 100]) }) },
-  { family: 'polygon', dims: () => ({ widthNm: pick([250, 450]), heightNm: pick([250, 450]) }) },
+  { family: 'rectangle', dims: () => withArea({ widthNm: pick([200, 300, 400, 600]), heightNm: pick([150, 250, 400]) }, 1) },
+  { family: 'disk', dims: () => disk(pick([100, 150, 250, 400])) },
+  { family: 'ellipse', dims: () => ellipse(pick([150, 250]), pick([100, 175])) },
+  { family: 'stadium', dims: () => stadium(pick([200, 400, 600]), pick([100, 200])) },
+  { family: 'annulus', dims: () => annulus(pick([100, 150]), pick([200, 300])) },
+  { family: 'polygon', dims: () => withArea({ widthNm: pick([250, 450]), heightNm: pick([250, 450]) }, 0.5) },
 ];
+function withArea<T extends { widthNm: number; heightNm: number }>(box: T, filled: number): T & { areaNm2: number } {
+  return { ...box, areaNm2: box.widthNm * box.heightNm * filled };
+}
+function disk(r: number) {
+  return { radiusNm: r, widthNm: 2 * r, heightNm: 2 * r, areaNm2: Math.PI * r * r };
+}
+function ellipse(rx: number, ry: number) {
+  return { rxNm: rx, ryNm: ry, widthNm: 2 * rx, heightNm: 2 * ry, areaNm2: Math.PI * rx * ry };
+}
+function stadium(length: number, r: number) {
+  return { lengthNm: length, radiusNm: r, widthNm: length + 2 * r, heightNm: 2 * r, areaNm2: 2 * r * length + Math.PI * r * r };
+}
+function annulus(inner: number, outer: number) {
+  return { innerNm: inner, outerNm: outer, widthNm: 2 * outer, heightNm: 2 * outer, areaNm2: Math.PI * (outer * outer - inner * inner) };
+}
 const materials = ['GaAs', 'InAs', 'InSb', 'Si'];
 const tagWords = ['candidate', 'fabricate', 'check width', 'high-q', 'bic', 'reviewed', 'symmetric', 'edge mode'];
 const noteWords = [
@@ -69,7 +85,7 @@ async function insertParents(db: Db, groupId: string, userId: string, rows: numb
     versionId: string;
     version: number;
   }[] = [];
-  const modelCount = Math.max(4, Math.round(rows / 2500));
+  const modelCount = Math.max(families.length, Math.round(rows / 2500));
   for (let m = 0; m < modelCount; m++) {
     const fam = families[m % families.length]!;
     const name = `${label} ${words(nameWords, 2)} ${fam.family} ${m}`;
@@ -106,7 +122,7 @@ async function insertParents(db: Db, groupId: string, userId: string, rows: numb
         leadCount: 2,
         hoppingMeV: 38.09982 / 0.067 / spacingNm ** 2,
         ...dims,
-        keyDimensions: Object.fromEntries(Object.entries(dims).map(([k, v]) => [k.replace(/Nm$/, ''), v])),
+        keyDimensions: Object.fromEntries(Object.entries(dims).map(([k, v]) => [k.replace(/Nm2?$/, ''), v])),
         createdBy: userId,
       })
       .returning({ id: modelVersions.id });

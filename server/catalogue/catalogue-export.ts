@@ -1,6 +1,7 @@
 import type { Response } from 'express';
 import Papa from 'papaparse';
 import type { ResonanceRecord } from './catalogue-repository.js';
+import { resonanceCsvColumns, resonanceCsvHeader, resonanceJsonUnits } from '../../shared/api/resonance-columns.js';
 import { toResonanceRow, type ResonanceRow } from './resonance-row.js';
 
 export type ExportFormat = 'csv' | 'json';
@@ -8,79 +9,10 @@ export type ExportFormat = 'csv' | 'json';
 /** Hands batches of matching rows to `onBatch` until it returns false; resolves to the number of rows read. */
 export type RowSource = (onBatch: (rows: ResonanceRecord[]) => Promise<boolean>) => Promise<number>;
 
-/**
- * CSV columns: the header names the unit of every dimensional quantity. Empty lifetime
- * and quality cells mean infinite (bound states). Lists (partial widths, tags) are
- * "; "-separated inside one cell so every resonance stays one line.
- */
-const mw = (r: ResonanceRow) => r.physics === 'microwave';
-/**
- * Electron rows fill the meV columns; microwave rows (physics = microwave) leave them empty
- * and fill the k², GHz, MHz and ns columns instead, so no column mixes two units.
- */
-const csvColumns: [string, (r: ResonanceRow) => string | number | boolean | null][] = [
-  ['energy_meV', (r) => (mw(r) ? null : r.energy)],
-  ['width_meV', (r) => (mw(r) ? null : r.width)],
-  ['lifetime_ps', (r) => r.lifetimePs],
-  ['quality', (r) => r.quality],
-  ['petermann', (r) => r.petermann],
-  ['residual', (r) => r.residual],
-  ['partial_widths_meV', (r) => (mw(r) ? null : r.partialWidths.map((p) => `${p.lead}=${p.width}`).join('; '))],
-  ['bound', (r) => r.bound],
-  ['near_threshold', (r) => r.nearThreshold],
-  ['overlapping', (r) => r.overlapping],
-  ['model_name', (r) => r.modelName],
-  ['model_version', (r) => r.modelVersion],
-  ['family', (r) => r.family],
-  ['material', (r) => r.material],
-  ['field_T', (r) => r.fieldT],
-  ['width_nm', (r) => r.keyDimensions.width ?? null],
-  ['height_nm', (r) => r.keyDimensions.height ?? null],
-  ['radius_nm', (r) => r.keyDimensions.radius ?? null],
-  ['length_nm', (r) => r.keyDimensions.length ?? null],
-  // Added with the lattice validity, the per-family dimensions and the microwave mode
-  // (between the dimensions and the tags; the first and last columns keep their places).
-  ['physics', (r) => r.physics],
-  ['frequency_GHz', (r) => r.microwave?.frequencyGhz ?? null],
-  ['frequency_width_MHz', (r) => r.microwave?.widthMhz ?? null],
-  ['lifetime_ns', (r) => r.microwave?.lifetimeNs ?? null],
-  ['k2_per_mm2', (r) => (mw(r) ? r.energy : null)],
-  ['k2_width_per_mm2', (r) => (mw(r) ? r.width : null)],
-  ['validity_limit_meV', (r) => (mw(r) ? null : r.validity.limit)],
-  ['validity_limit_GHz', (r) => r.microwave?.validityLimitGhz ?? null],
-  ['wavelength_over_spacing', (r) => r.validity.wavelengthSpacings],
-  ['above_validity_limit', (r) => r.validity.aboveLimit],
-  ['rx_nm', (r) => r.keyDimensions.rx ?? null],
-  ['ry_nm', (r) => r.keyDimensions.ry ?? null],
-  ['inner_nm', (r) => r.keyDimensions.inner ?? null],
-  ['outer_nm', (r) => r.keyDimensions.outer ?? null],
-  ['area_nm2', (r) => r.keyDimensions.area ?? null],
-  ['partial_widths_per_mm2', (r) => (mw(r) ? r.partialWidths.map((p) => `${p.lead}=${p.width}`).join('; ') : null)],
-  ['tags', (r) => r.tags.join('; ')],
-  ['notes', (r) => r.notes],
-  ['created_at', (r) => r.createdAt],
-  ['resonance_id', (r) => r.id],
-  ['run_id', (r) => r.runId],
-  ['model_id', (r) => r.modelId],
-  ['source', (r) => r.source],
-  ['fit_id', (r) => r.fitId],
-];
-
-export const csvHeader = csvColumns.map(([name]) => name);
-
-/** Units of the JSON export's fields, written at its top so the file explains itself. */
-const jsonUnits = {
-  energy: 'meV',
-  width: 'meV',
-  lifetimePs: 'ps (null: infinite, bound state)',
-  quality: 'E/Γ, or Re f/Γ_f for physics = microwave; no unit (null: infinite, bound state)',
-  partialWidths: 'meV',
-  physics: 'electrons, or microwave: then energy, width and partialWidths are k² in mm⁻², and `microwave` gives the frequencies',
-  fieldT: 'T',
-  keyDimensions: 'nm (area: nm²)',
-  microwave: 'frequencyGhz GHz, widthMhz MHz (Γ_f = 2|Im f|), lifetimeNs ns, validityLimitGhz GHz',
-  validity: 'limit in the unit of energy; wavelengthSpacings = λ/a at the resonance (null: infinite); aboveLimit: the lattice is not trusted there',
-};
+// The columns and units are one table with the run page's pole download (shared/api/resonance-columns.ts).
+const csvColumns = resonanceCsvColumns;
+export const csvHeader = resonanceCsvHeader;
+const jsonUnits = resonanceJsonUnits;
 
 /**
  * RFC 4180 lines (CRLF). escapeFormulae prefixes text cells that start with =, +, -, @

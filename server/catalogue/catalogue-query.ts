@@ -82,15 +82,17 @@ const rangeColumns: Record<RangeName, AnyColumn | SQL> = {
   quality: nullAsInfinity(resonances.quality),
   lifetime: nullAsInfinity(resonances.lifetimePs),
   field: resonances.fieldT,
-  dimWidth: resonances.widthNm,
-  dimHeight: resonances.heightNm,
-  dimRadius: resonances.radiusNm,
-  dimLength: resonances.lengthNm,
-  dimRx: resonances.rxNm,
-  dimRy: resonances.ryNm,
-  dimInner: resonances.innerNm,
-  dimOuter: resonances.outerNm,
-  dimArea: resonances.areaNm2,
+  // Dimensions through the expressions of their sort indexes (a missing one is +Infinity,
+  // kept out by dimensionPresent), so a range on the dimension one sorts by bounds the scan.
+  dimWidth: nullAsInfinity(resonances.widthNm),
+  dimHeight: nullAsInfinity(resonances.heightNm),
+  dimRadius: nullAsInfinity(resonances.radiusNm),
+  dimLength: nullAsInfinity(resonances.lengthNm),
+  dimRx: nullAsInfinity(resonances.rxNm),
+  dimRy: nullAsInfinity(resonances.ryNm),
+  dimInner: nullAsInfinity(resonances.innerNm),
+  dimOuter: nullAsInfinity(resonances.outerNm),
+  dimArea: nullAsInfinity(resonances.areaNm2),
   frequency: resonances.frequencyGhz,
   // Infinite λ (at or below the band bottom) is stored as null: it passes a lower bound only.
   wavelength: nullAsInfinity(resonances.wavelengthSpacings),
@@ -131,6 +133,8 @@ export function catalogueConditions(groupId: string, f: CatalogueFilter): SQL {
     const col = rangeColumns[name];
     if (r.min !== undefined) conds.push(col instanceof SQL ? gte(col, r.min) : gte(col, r.min));
     if (r.max !== undefined) conds.push(col instanceof SQL ? lte(col, r.max) : lte(col, r.max));
+    // A dimension filter keeps only the rows that have the dimension (not the +Infinity of a missing one).
+    if (name.startsWith('dim')) conds.push(sql`${col} < 'Infinity'::float8`);
   }
   return and(...conds)!;
 }
@@ -166,7 +170,22 @@ const sortParts: Record<CatalogueSort, SortKeyPart[]> = {
   model: [part(resonances.modelName, 'text'), part(resonances.modelVersion, 'int4')],
   date: [part(resonances.createdAt, 'timestamptz')],
   tags: [part(resonances.tags, 'text[]')],
+  // One dimension each; a row whose family lacks it (+Infinity) comes last ascending.
+  'dim.width': [part(nullAsInfinity(resonances.widthNm), 'float8')],
+  'dim.height': [part(nullAsInfinity(resonances.heightNm), 'float8')],
+  'dim.radius': [part(nullAsInfinity(resonances.radiusNm), 'float8')],
+  'dim.length': [part(nullAsInfinity(resonances.lengthNm), 'float8')],
+  'dim.rx': [part(nullAsInfinity(resonances.rxNm), 'float8')],
+  'dim.ry': [part(nullAsInfinity(resonances.ryNm), 'float8')],
+  'dim.inner': [part(nullAsInfinity(resonances.innerNm), 'float8')],
+  'dim.outer': [part(nullAsInfinity(resonances.outerNm), 'float8')],
+  'dim.area': [part(nullAsInfinity(resonances.areaNm2), 'float8')],
 };
+
+/** The name of the index that holds a sort's order (server/db/schema/catalogue.ts): `resonances_group_<sort>_key`. */
+export function sortIndexName(sort: CatalogueSort): string {
+  return `resonances_group_${sort === 'date' ? 'created' : sort.replace('.', '_')}_key`;
+}
 
 /** The full key of a sort: its own columns, then energy and id, so every row has one place and pages never overlap. */
 export function sortKey(sort: CatalogueSort): SortKeyPart[] {

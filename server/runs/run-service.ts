@@ -148,6 +148,10 @@ export class RunService {
       spectrum,
       // Lead names in engine order: the spectrum's pairs index into this list.
       leads: derived?.leads.map((l) => ({ name: l.name, side: l.side, width: l.width })) ?? [],
+      microwave:
+        derived?.physics === 'microwave' && derived.permittivity !== undefined && derived.heightMm !== undefined
+          ? { permittivity: derived.permittivity, heightMm: derived.heightMm, twoDimensionalLimitGhz: derived.twoDimensionalLimitGhz! }
+          : null,
     };
   }
 

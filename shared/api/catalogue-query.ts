@@ -71,7 +71,11 @@ const booleanParam = z.preprocess(
     .optional(),
 );
 
-export const catalogueSorts = ['energy', 'width', 'lifetime', 'quality', 'geometry', 'model', 'date', 'tags'] as const;
+/** The geometry dimensions one can sort by (`sort=dim.rx`), the same names as the dimension filters. */
+export const dimensionSorts = ['dim.width', 'dim.height', 'dim.radius', 'dim.length', 'dim.rx', 'dim.ry', 'dim.inner', 'dim.outer', 'dim.area'] as const;
+export type DimensionSort = (typeof dimensionSorts)[number];
+
+export const catalogueSorts = ['energy', 'width', 'lifetime', 'quality', 'geometry', 'model', 'date', 'tags', ...dimensionSorts] as const;
 export type CatalogueSort = (typeof catalogueSorts)[number];
 
 /** Range filters: query parameter pair → column. Lower and upper bounds are named for the error message. */

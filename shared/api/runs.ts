@@ -141,6 +141,10 @@ export const runDetailSchema = runSchema
     poles: z.array(resonanceRowSchema),
     spectrum: spectrumSchema.nullable(),
     leads: z.array(runLeadSchema).meta({ description: "The model version's leads in engine order (spectrum pairs index into it)" }),
+    microwave: z.object({ permittivity: z.number(), heightMm: z.number(), twoDimensionalLimitGhz: z.number() }).nullable().meta({
+      description:
+        "A microwave model's filling ε_r, height h (mm) and 2D limit c/(2h√ε_r) (GHz): the run's window, thresholds and spectrum energies are k² (mm⁻²), f = c·√k²/(2π√ε_r); null for electrons",
+    }),
   })
   .meta({ id: 'RunDetail' });
 export type RunDetail = z.infer<typeof runDetailSchema>;

@@ -7,7 +7,13 @@
 import { and, eq, sql } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { decodeCursor, encodeCursor, type CursorPosition } from '../../server/catalogue/catalogue-cursor.js';
-import { catalogueQuerySchema, catalogueSorts, toCataloguePageRequest, type CataloguePageRequest } from '../../server/catalogue/catalogue-query.js';
+import {
+  catalogueQuerySchema,
+  catalogueSorts,
+  sortIndexName,
+  toCataloguePageRequest,
+  type CataloguePageRequest,
+} from '../../server/catalogue/catalogue-query.js';
 import { countResonances, estimateResonances, pageOfResonances, pageQuery } from '../../server/catalogue/catalogue-repository.js';
 import { CatalogueService } from '../../server/catalogue/catalogue-service.js';
 import { connectDb, type DbHandle } from '../../server/db/client.js';
@@ -84,7 +90,7 @@ describe('query plans on a catalogue of some size (EXPLAIN, after ANALYZE)', () 
   it.each(sortCases)('sort=%s&dir=%s reads its index in order, on the first page and beyond a cursor', async (sort, dir) => {
     const req = request(`sort=${sort}&dir=${dir}&pageSize=25`);
     const first = await planOf(pageQuery(handle.db, main.groupId, req, { offset: 0 }, 26));
-    const index = `resonances_group_${sort === 'date' ? 'created' : sort}_key`;
+    const index = sortIndexName(sort);
     expect(
       first.map((n) => n['Node Type']),
       describePlan(first),

@@ -131,6 +131,16 @@ export const resonances = pgTable(
       t.id,
     ),
     index('resonances_group_tags_key').on(t.groupId, t.tags, t.energy, t.id),
+    // One per geometry dimension (sort=dim.NAME); the same expressions serve dim.NAME.min/max.
+    index('resonances_group_dim_width_key').on(t.groupId, nullAsInfinity(t.widthNm), t.energy, t.id),
+    index('resonances_group_dim_height_key').on(t.groupId, nullAsInfinity(t.heightNm), t.energy, t.id),
+    index('resonances_group_dim_radius_key').on(t.groupId, nullAsInfinity(t.radiusNm), t.energy, t.id),
+    index('resonances_group_dim_length_key').on(t.groupId, nullAsInfinity(t.lengthNm), t.energy, t.id),
+    index('resonances_group_dim_rx_key').on(t.groupId, nullAsInfinity(t.rxNm), t.energy, t.id),
+    index('resonances_group_dim_ry_key').on(t.groupId, nullAsInfinity(t.ryNm), t.energy, t.id),
+    index('resonances_group_dim_inner_key').on(t.groupId, nullAsInfinity(t.innerNm), t.energy, t.id),
+    index('resonances_group_dim_outer_key').on(t.groupId, nullAsInfinity(t.outerNm), t.energy, t.id),
+    index('resonances_group_dim_area_key').on(t.groupId, nullAsInfinity(t.areaNm2), t.energy, t.id),
     // The usual "one family, by energy" search.
     index('resonances_group_family_energy_key').on(t.groupId, t.family, t.energy, t.id),
     index('resonances_tags').using('gin', t.tags),

@@ -18,6 +18,9 @@ export interface CatalogueFilter {
   taumax: string;
   bmin: string;
   bmax: string;
+  /** Frequency range (GHz) of microwave resonances (fmin/fmax). */
+  fmin: string;
+  fmax: string;
   /** '' (any), 'true' (above the lattice-validity limit) or 'false' (within it). */
   aboveLimit: string;
   /** Which key dimension the range applies to (width, height, radius, ...). */
@@ -27,7 +30,10 @@ export interface CatalogueFilter {
   tags: string[];
 }
 
-export type SortKey = 'energy' | 'width' | 'lifetime' | 'quality' | 'geometry' | 'model' | 'date' | 'tags';
+/** The geometry dimensions the API sorts by (sort=dim.NAME), the same names as the dimension filter. */
+export const dimensionKeys = ['width', 'height', 'radius', 'length', 'rx', 'ry', 'inner', 'outer', 'area'] as const;
+export type DimensionSortKey = `dim.${(typeof dimensionKeys)[number]}`;
+export type SortKey = 'energy' | 'width' | 'lifetime' | 'quality' | 'geometry' | 'model' | 'date' | 'tags' | DimensionSortKey;
 
 export interface CatalogueView {
   filter: CatalogueFilter;
@@ -54,6 +60,8 @@ export const emptyFilter: CatalogueFilter = {
   taumax: '',
   bmin: '',
   bmax: '',
+  fmin: '',
+  fmax: '',
   aboveLimit: '',
   dimKey: 'width',
   dimMin: '',
@@ -61,8 +69,18 @@ export const emptyFilter: CatalogueFilter = {
   tags: [],
 };
 
-const plainKeys = ['q', 'family', 'material', 'emin', 'emax', 'gmin', 'gmax', 'qmin', 'qmax', 'taumin', 'taumax', 'bmin', 'bmax', 'aboveLimit'] as const;
-const sortKeys: readonly SortKey[] = ['energy', 'width', 'lifetime', 'quality', 'geometry', 'model', 'date', 'tags'];
+const plainKeys = ['q', 'family', 'material', 'emin', 'emax', 'gmin', 'gmax', 'qmin', 'qmax', 'taumin', 'taumax', 'bmin', 'bmax', 'fmin', 'fmax', 'aboveLimit'] as const;
+const sortKeys: readonly SortKey[] = [
+  'energy',
+  'width',
+  'lifetime',
+  'quality',
+  'geometry',
+  'model',
+  'date',
+  'tags',
+  ...dimensionKeys.map((k): DimensionSortKey => `dim.${k}`),
+];
 export const defaultPageSize = 25;
 
 /** Query parameters of a view (URL and API alike); empty fields are left out. */
@@ -126,6 +144,8 @@ export const numericFields: { key: keyof CatalogueFilter; label: string }[] = [
   { key: 'taumax', label: 'τ to' },
   { key: 'bmin', label: 'B from' },
   { key: 'bmax', label: 'B to' },
+  { key: 'fmin', label: 'f from' },
+  { key: 'fmax', label: 'f to' },
   { key: 'dimMin', label: 'Dimension from' },
   { key: 'dimMax', label: 'Dimension to' },
 ];

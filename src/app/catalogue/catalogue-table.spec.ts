@@ -117,6 +117,34 @@ describe('CatalogueTable', () => {
     expect(subs[1]).toContain('custom m*');
   });
 
+  it('shows a microwave row in GHz, MHz, mm and ε_r, with the field not applicable; an electron area in nm²', async () => {
+    const http = setUp();
+    const harness = await RouterTestingHarness.create();
+    await harness.navigateByUrl('/catalogue');
+    await wait(0);
+    const mw: ResonanceRow = {
+      ...row('m', 'eps_r=2.25'),
+      family: 'rectangle',
+      physics: 'microwave',
+      energy: 0.0888,
+      width: 0.0013,
+      // 1 mm = 10⁶ nm (stored in nm so one filter means one length).
+      keyDimensions: { width: 36e6, height: 24e6, area: 864e12 },
+      microwave: { frequencyGhz: 14.217, widthMhz: 103.4, lifetimeNs: 1.539, quality: 137, validityLimitGhz: 29.49 },
+    };
+    const el: ResonanceRow = { ...row('e', 'gaas'), keyDimensions: { radius: 120, area: 45000 } };
+    http.expectOne((r) => r.url === '/api/groups/g1/catalogue').flush({ ...emptyPage, items: [mw, el], total: 2 });
+    harness.detectChanges();
+    const host = harness.routeNativeElement as HTMLElement;
+    const subs = Array.from(host.querySelectorAll('[data-test="geometry-sub"]')).map((e) => (e.textContent ?? '').replace(/\s+/g, ' ').trim());
+    expect(subs[0]).toBe('width 36.00 · height 24.00 mm · area 864.0 mm² · ε_r = 2.25 · field not applicable');
+    expect(subs[1]).toContain('radius 120 nm · area 45000 nm²');
+    const widths = Array.from(host.querySelectorAll('[data-test="width-cell"]')).map((e) => e.textContent!.trim());
+    expect(widths[0]).toBe('103 MHz');
+    expect(host.querySelector('[data-test="raw-k2"]')!.textContent).toContain('k² 0.08880 mm⁻²');
+    expect(host.textContent).toContain('14.2170 GHz');
+  });
+
   it('pages by the API\'s cursors: next and previous put the cursor in the URL and the request, first drops it', async () => {
     const http = setUp();
     const harness = await RouterTestingHarness.create();

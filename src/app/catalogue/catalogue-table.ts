@@ -17,18 +17,19 @@ import { MATERIAL_PRESETS } from '../../../shared/model/materials';
 import { toProblem } from '../core/errors/problem';
 import { CurrentGroup } from '../core/group/current-group';
 import { modelFamilies } from '../core/api/model-families';
-import { type CataloguePage, CatalogueApi } from './catalogue-api';
+import { type CataloguePage, CatalogueApi, type ResonanceRow } from './catalogue-api';
 import { countLabel } from './count-label';
 import {
   type CatalogueFilter,
   type CatalogueView,
   type SortKey,
+  dimensionKeys,
   emptyFilter,
   numericFields,
   queryToView,
   viewToQuery,
 } from './catalogue-filter';
-import { EnergyPipe, LifetimePipe, QualityPipe, WidthPipe } from '../core/format/energy-format';
+import { EnergyPipe, LifetimePipe, QualityPipe, WidthPipe, significant } from '../core/format/energy-format';
 import { MaterialLabelPipe } from '../core/format/material-label';
 
 type FilterControls = { [K in keyof Omit<CatalogueFilter, 'tags'>]: FormControl<string> } & { tags: FormControl<string> };
@@ -73,7 +74,12 @@ export class CatalogueTable {
   protected readonly group = inject(CurrentGroup);
   protected readonly families = modelFamilies;
   protected readonly materials = MATERIAL_PRESETS;
-  protected readonly dimensionKeys = ['width', 'height', 'radius', 'length', 'rx', 'ry', 'inner', 'outer', 'area'];
+  protected readonly dimensionKeys = dimensionKeys;
+  /** Every row on the page a microwave resonance: the columns read f, Γ_f in their headers. */
+  protected readonly allMicrowave = computed(() => {
+    const items = this.page()?.items ?? [];
+    return items.length > 0 && items.every((r) => r.physics === 'microwave');
+  });
   protected readonly columns = ['thumbnail', 'energy', 'width', 'lifetime', 'quality', 'flags', 'validity', 'geometry', 'model', 'date', 'tags'];
 
   protected readonly form = new FormGroup<FilterControls>(
@@ -191,10 +197,31 @@ export class CatalogueTable {
     this.navigate({ ...this.view(), filter: emptyFilter, page: 1, cursor: '' });
   }
 
+  /** The dimensions of an electron row: lengths in nm, the area in nm². */
   protected dimensions(dims: Record<string, number>): string {
-    return Object.entries(dims ?? {})
-      .map(([k, v]) => `${k} ${Math.round(v)}`)
-      .join(' · ');
+    const entries = Object.entries(dims ?? {});
+    const lengths = entries.filter(([k]) => k !== 'area').map(([k, v]) => `${k} ${Math.round(v)}`);
+    const area = entries.filter(([k]) => k === 'area').map(([, v]) => `area ${Math.round(v)} nm²`);
+    return [lengths.length ? `${lengths.join(' · ')} nm` : '', ...area].filter(Boolean).join(' · ');
+  }
+
+  /** The geometry line of a row in its own units: nm and T, or mm, ε_r and "field not applicable" for a microwave resonator. */
+  protected geometryLine(r: ResonanceRow): string {
+    if (r.physics !== 'microwave') return '';
+    // Stored in nm so one filter means one length (1 mm = 10⁶ nm; area 10¹² nm² per mm²).
+    const entries = Object.entries(r.keyDimensions ?? {});
+    const lengths = entries.filter(([k]) => k !== 'area').map(([k, v]) => `${k} ${significant(v / 1e6, 4)}`);
+    const area = entries.filter(([k]) => k === 'area').map(([, v]) => `area ${significant(v / 1e12, 4)} mm²`);
+    const eps = /^eps_r=(.*)$/.exec(r.material)?.[1];
+    return [lengths.length ? `${lengths.join(' · ')} mm` : '', ...area, `ε_r = ${eps ?? r.material}`, 'field not applicable'].filter(Boolean).join(' · ');
+  }
+
+  /** Sorts by the dimension chosen in the filter (sort=dim.NAME); again flips the direction. */
+  protected sortByDimension(): void {
+    const key = `dim.${this.form.controls.dimKey.value || 'width'}` as SortKey;
+    const v = this.view();
+    const dir = v.sort === key && v.dir === 'asc' ? 'desc' : 'asc';
+    this.navigate({ ...v, sort: key, dir, page: 1, cursor: '' });
   }
 
   private navigate(view: CatalogueView): void {

@@ -163,8 +163,10 @@ export class LatticePreview {
   readonly mask = input.required<Uint8Array | null>();
   readonly nx = input.required<number>();
   readonly ny = input.required<number>();
-  /** Lattice spacing a (nm), for the scale bar. */
+  /** Lattice spacing a (in lengthUnit), for the scale bar. */
   readonly spacing = input.required<number>();
+  /** nm for electrons, mm for a microwave resonator. */
+  readonly lengthUnit = input('nm');
   readonly leads = input<readonly Lead[]>([]);
   /** The model's potential terms (document values), drawn over the cavity. */
   readonly potential = input<readonly Record<string, unknown>[]>([]);
@@ -253,17 +255,18 @@ export class LatticePreview {
     });
   });
 
-  /** A round length (1, 2 or 5 × 10^k nm) close to a fifth of the grid width. */
+  /** A round length (1, 2 or 5 × 10^k in the length unit) close to a fifth of the grid width. */
   protected readonly scaleBar = computed(() => {
     const a = this.spacing();
     const target = (this.nx() * a) / 5;
     const pow = 10 ** Math.floor(Math.log10(target));
     const nm = [1, 2, 5, 10].map((f) => f * pow).reduce((best, v) => (Math.abs(v - target) < Math.abs(best - target) ? v : best));
-    const label = nm >= 1000 ? `${nm / 1000} µm` : `${nm} nm`;
+    const unit = this.lengthUnit();
+    const label = unit === 'nm' && nm >= 1000 ? `${nm / 1000} µm` : `${nm} ${unit}`;
     return { sites: nm / a, label };
   });
 
   protected readonly description = computed(
-    () => `Lattice of ${this.nx()} × ${this.ny()} sites, spacing ${this.spacing()} nm, with ${this.leads().length} lead(s)`,
+    () => `Lattice of ${this.nx()} × ${this.ny()} sites, spacing ${this.spacing()} ${this.lengthUnit()}, with ${this.leads().length} lead(s)`,
   );
 }

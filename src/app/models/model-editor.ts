@@ -29,6 +29,7 @@ import { countSites } from './lattice-mask-path';
 import { issueInWords } from './issue-words';
 import { addLeadStub } from './lead-stub';
 import { ceilingGhz, twoDimensionalLimitWarning } from './two-dimensional-limit';
+import { frequencyOfWavenumberSquared } from '../../../shared/units/microwave';
 import { type LeadForm, customMaterial, fillForm, leadGroup, materialChoices, modelForm, readForm, starterModel } from './model-form';
 import { type PlacedIssue, clearPlacedIssues, dottedPath, placeIssues } from '../core/errors/model-issues';
 import { PotentialEditor } from './potential-editor';
@@ -246,11 +247,19 @@ export class ModelEditor {
     }
   }
 
-  /** The opening energies ε_m − 2t of a lead's channels, the first few of them. */
-  protected thresholdText(thresholds: readonly ChannelThreshold[]): string {
+  /**
+   * The opening energies ε_m − 2t of a lead's channels, the first few of them; for a microwave
+   * resonator (ε_r given) the waveguide port's mode cut-offs as frequencies (GHz).
+   */
+  protected thresholdText(thresholds: readonly ChannelThreshold[], permittivity?: number): string {
     if (!thresholds?.length) return '—';
+    const more = thresholds.length > 6 ? `, … (${thresholds.length} ${permittivity ? 'modes' : 'channels'})` : '';
+    if (permittivity) {
+      const shown = thresholds.slice(0, 6).map((th) => frequencyOfWavenumberSquared(th.opens, permittivity).toPrecision(4));
+      return `${shown.join(', ')}${more} GHz`;
+    }
     const shown = thresholds.slice(0, 6).map((th) => formatEnergy(th.opens, 4).replace(' meV', ''));
-    return `${shown.join(', ')}${thresholds.length > 6 ? `, … (${thresholds.length} channels)` : ''} meV`;
+    return `${shown.join(', ')}${more} meV`;
   }
 
   protected issuesOf(section: string): string[] {

@@ -31,12 +31,17 @@ export class ShapeEditor {
   readonly issues = input<readonly PlacedIssue[]>([]);
   readonly extent = input<GridExtent>({ widthNm: 300, heightNm: 200 });
   readonly readonly = input(false);
+  /** The model's length unit: nm for electrons, mm for a microwave resonator (the labels say it). */
+  readonly lengthUnit = input('nm');
   readonly shapeChange = output<ShapeValue>();
 
   protected readonly kinds = shapeKinds;
   protected readonly kindLabels = shapeKindLabels;
   protected readonly kind = computed(() => String(this.shape()['kind'] ?? '') as ShapeKind);
-  protected readonly numberFields = computed(() => shapeNumberFields[this.kind()] ?? null);
+  protected readonly numberFields = computed(() => {
+    const unit = this.lengthUnit();
+    return shapeNumberFields[this.kind()]?.map((f) => ({ ...f, label: f.label.replace('(nm)', `(${unit})`) })) ?? null;
+  });
   protected readonly members = computed(() => (Array.isArray(this.shape()['of']) ? (this.shape()['of'] as ShapeValue[]) : []));
   protected readonly removed = computed(() => (Array.isArray(this.shape()['remove']) ? (this.shape()['remove'] as ShapeValue[]) : []));
   protected readonly base = computed(() => (this.shape()['from'] as ShapeValue | undefined) ?? { kind: 'rectangle' });

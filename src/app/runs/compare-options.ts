@@ -1,6 +1,6 @@
 import type { EChartsCoreOption } from 'echarts/core';
 import type { ChartColours } from '../core/charts/chart-colours';
-import type { PlanePole } from '../core/charts/pole-plane-options';
+import { type PlanePole, poleAxisWords } from '../core/charts/pole-plane-options';
 import { widthAxisRange } from '../core/charts/pole-width-options';
 import type { Spectrum } from './runs-api';
 import { type SpectrumQuantity, spectrumCurves } from './spectrum-curves';
@@ -10,6 +10,8 @@ export interface ComparedRun {
   poles: readonly PlanePole[];
   spectrum: Spectrum | null;
   leadNames: readonly string[];
+  /** Unit of the poles and the spectrum's axis: meV, or GHz for a microwave run (poles as Re f and Γ_f). */
+  unit?: string;
 }
 
 /** Two runs' poles in one log-width view (E, Γ on a log axis): A as circles, B as diamonds. */
@@ -20,6 +22,8 @@ export function overlayPolesOptions(a: ComparedRun, b: ComparedRun, colours: Cha
   const range = widthAxisRange(all, undefined);
   const y = (p: PlanePole) => (view === 'width' ? p.width : -p.width / 2);
   const keep = (p: PlanePole) => view === 'plane' || (p.width > 0 && !p.bound);
+  const u = a.unit ?? 'meV';
+  const words = poleAxisWords(u);
   return {
     animation: false,
     grid: { left: 80, right: 24, top: 40, bottom: 56 },
@@ -27,14 +31,14 @@ export function overlayPolesOptions(a: ComparedRun, b: ComparedRun, colours: Cha
     tooltip: {
       trigger: 'item',
       formatter: (p: { seriesName: string; value: number[] }) =>
-        `${p.seriesName}<br>E = ${p.value[0].toPrecision(6)} meV<br>${view === 'width' ? 'Γ' : 'Im z'} = ${p.value[1].toPrecision(3)} meV`,
+        `${p.seriesName}<br>${words.x} = ${p.value[0].toPrecision(6)} ${u}<br>${view === 'width' ? words.width : words.im} = ${p.value[1].toPrecision(3)} ${u}`,
     },
-    xAxis: { type: 'value', name: 'E (meV)', nameLocation: 'middle', nameGap: 32, scale: true, axisLabel: axisText, nameTextStyle: axisText },
+    xAxis: { type: 'value', name: `${words.x} (${u})`, nameLocation: 'middle', nameGap: 32, scale: true, axisLabel: axisText, nameTextStyle: axisText },
     yAxis:
       view === 'width'
         ? {
             type: 'log',
-            name: 'width Γ (meV, log)',
+            name: `${words.width} (${u}, log)`,
             nameLocation: 'middle',
             nameGap: 60,
             min: range.min,
@@ -42,7 +46,7 @@ export function overlayPolesOptions(a: ComparedRun, b: ComparedRun, colours: Cha
             axisLabel: { ...axisText, formatter: (v: number) => v.toExponential(0) },
             nameTextStyle: axisText,
           }
-        : { type: 'value', name: 'Im z = −Γ/2 (meV)', nameLocation: 'middle', nameGap: 60, max: 0, axisLabel: axisText, nameTextStyle: axisText },
+        : { type: 'value', name: `${words.im} (${u})`, nameLocation: 'middle', nameGap: 60, max: 0, axisLabel: axisText, nameTextStyle: axisText },
     series: [
       {
         name: a.label,
@@ -88,7 +92,15 @@ export function overlaySpectraOptions(a: ComparedRun, b: ComparedRun, colours: C
     legend: { top: 4, type: 'scroll', textStyle: { color: c.onSurface } },
     tooltip: { trigger: 'axis' },
     dataZoom: [{ type: 'inside' }],
-    xAxis: { type: 'value', name: 'E (meV)', nameLocation: 'middle', nameGap: 30, scale: true, axisLabel: axisText, nameTextStyle: axisText },
+    xAxis: {
+      type: 'value',
+      name: a.unit === 'GHz' ? 'f (GHz)' : 'E (meV)',
+      nameLocation: 'middle',
+      nameGap: 30,
+      scale: true,
+      axisLabel: axisText,
+      nameTextStyle: axisText,
+    },
     yAxis: {
       type: 'value',
       name: quantity === 'conductance' ? 'G (2e²/h)' : 'transmission T',

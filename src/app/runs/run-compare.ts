@@ -18,6 +18,15 @@ import { matchPoles } from './pole-matching';
 import { durationText } from './progress-times';
 import { kindLabel, windowText } from './run-labels';
 import { type RunDetail, RunsApi } from './runs-api';
+import { frequencyPole, frequencySpectrum, frequencyWindowText } from './microwave-view';
+import { aboveLimitMeaning, microwaveCells, validitySummary } from './pole-validity';
+import type { ResonanceRow } from '../core/answers/resonance-row';
+
+/** A run's poles in its own units: as they are (meV), or as Re f and Γ_f (GHz) for a microwave run. */
+function ownUnits(run: RunDetail): ResonanceRow[] {
+  const eps = run.microwave?.permittivity;
+  return eps ? run.poles.map((p) => frequencyPole(p, eps)) : run.poles;
+}
 
 interface Side {
   label: string;
@@ -51,7 +60,14 @@ export class RunCompare {
   private readonly destroyRef = inject(DestroyRef);
   protected readonly group = inject(CurrentGroup);
   protected readonly kindLabel = kindLabel;
-  protected readonly windowText = windowText;
+  protected readonly aboveLimitMeaning = aboveLimitMeaning;
+  protected readonly microwaveCells = microwaveCells;
+  protected readonly validitySummary = validitySummary;
+  /** Both runs of a microwave model: frequencies (GHz, MHz) and Q instead of E and Γ. */
+  protected readonly microwave = computed(() => {
+    const s = this.sides();
+    return !!s && s.every((side) => !!side.run?.microwave);
+  });
 
   protected readonly sides = signal<[Side, Side] | null>(null);
   protected readonly failed = signal<string | null>(null);
@@ -60,12 +76,18 @@ export class RunCompare {
   protected readonly compared = computed<[ComparedRun, ComparedRun] | null>(() => {
     const s = this.sides();
     if (!s || !s[0].run || !s[1].run) return null;
-    return s.map((side) => ({
-      label: side.label,
-      poles: side.run!.poles,
-      spectrum: side.run!.spectrum,
-      leadNames: side.run!.leads?.map((l) => l.name) ?? [],
-    })) as unknown as [ComparedRun, ComparedRun];
+    const mw = this.microwave();
+    return s.map((side) => {
+      const run = side.run!;
+      const eps = mw ? run.microwave!.permittivity : null;
+      return {
+        label: side.label,
+        poles: mw ? ownUnits(run) : run.poles,
+        spectrum: eps && run.spectrum ? frequencySpectrum(run.spectrum, eps) : run.spectrum,
+        leadNames: run.leads?.map((l) => l.name) ?? [],
+        unit: mw ? 'GHz' : 'meV',
+      };
+    }) as unknown as [ComparedRun, ComparedRun];
   });
   protected readonly polesOptions = computed(() => {
     const c = this.compared();
@@ -77,7 +99,9 @@ export class RunCompare {
   });
   protected readonly matched = computed(() => {
     const s = this.sides();
-    return s?.[0].run && s[1].run ? matchPoles(s[0].run.poles, s[1].run.poles) : [];
+    if (!s?.[0].run || !s[1].run) return [];
+    // Matched where they are drawn: in the frequency plane for two microwave runs.
+    return this.microwave() ? matchPoles(ownUnits(s[0].run), ownUnits(s[1].run)) : matchPoles(s[0].run.poles, s[1].run.poles);
   });
   protected readonly diff = computed(() => {
     const s = this.sides();
@@ -89,6 +113,15 @@ export class RunCompare {
       const ids = { a: this.a(), b: this.b(), model: this.model(), va: this.va(), vb: this.vb() };
       untracked(() => this.load(ids));
     });
+  }
+
+  protected windowOf(run: RunDetail): string {
+    return run.microwave ? frequencyWindowText(run.window, run.microwave.permittivity) : windowText(run.window);
+  }
+
+  /** A frequency difference (GHz) in MHz, signed. */
+  protected mhz(ghz: number): string {
+    return `${ghz >= 0 ? '+' : ''}${(ghz * 1e3).toPrecision(4)} MHz`;
   }
 
   protected durationOf(run: RunDetail): string {

@@ -66,7 +66,7 @@ const pole = (over: Partial<ResonanceRow>): ResonanceRow =>
     ...over,
   }) as ResonanceRow;
 
-async function completedPage(poles: ResonanceRow[]) {
+async function completedPage(poles: ResonanceRow[], extra: Record<string, unknown> = {}) {
   TestBed.configureTestingModule({
     providers: [provideHttpClient(), provideHttpClientTesting(), provideRouter([]), provideFakeCurrentGroup('viewer')],
   });
@@ -76,7 +76,7 @@ async function completedPage(poles: ResonanceRow[]) {
   fixture.componentRef.setInput('runId', 'r1');
   fixture.detectChanges();
   await settle();
-  http.expectOne('/api/groups/g1/runs/r1').flush({ ...detail, status: 'completed', progress: null, finishedAt: '2025-01-01T10:01:00Z', poles });
+  http.expectOne('/api/groups/g1/runs/r1').flush({ ...detail, status: 'completed', progress: null, finishedAt: '2025-01-01T10:01:00Z', poles, ...extra });
   fixture.detectChanges();
   return fixture;
 }
@@ -173,16 +173,28 @@ describe('RunDetail', () => {
   });
 
   it("shows a microwave run's poles as frequency, width, lifetime and Q from their stored figures", async () => {
-    const fixture = await completedPage([
-      pole({
-        id: 'm',
-        physics: 'microwave',
-        energy: 1.234,
-        width: 2e-4,
-        validity: { limit: 3.3, wavelengthSpacings: 22, aboveLimit: false },
-        microwave: { frequencyGhz: 5.30123456, widthMhz: 0.87654, lifetimeNs: 0.18157, quality: 6047.9, validityLimitGhz: 8.75 },
-      }),
-    ]);
+    const fixture = await completedPage(
+      [
+        pole({
+          id: 'm',
+          physics: 'microwave',
+          energy: 1.234,
+          width: 2e-4,
+          validity: { limit: 3.3, wavelengthSpacings: 22, aboveLimit: false },
+          microwave: { frequencyGhz: 5.30123456, widthMhz: 0.87654, lifetimeNs: 0.18157, quality: 6047.9, validityLimitGhz: 8.75 },
+        }),
+      ],
+      {
+        microwave: { permittivity: 100, heightMm: 5, twoDimensionalLimitGhz: 3 },
+        window: { emin: 1, emax: 2, gammaMax: 0.01 },
+        spectrum: {
+          energies: [1, 2],
+          transmission: [[0.5, 0.6]],
+          pairs: [{ from: 0, to: 1 }],
+          residual: [0, 0],
+        },
+      },
+    );
     const host = fixture.nativeElement as HTMLElement;
     const text = (t: string) => host.querySelector(`[data-test="${t}"]`)!.textContent!.trim();
     expect(text('frequency')).toBe('5.301235 GHz');
@@ -194,7 +206,14 @@ describe('RunDetail', () => {
     expect(headers).toContain('Frequency f (GHz)');
     expect(headers.some((h) => h.includes('meV') || h === 'Energy E')).toBe(false);
     const plane = fixture.debugElement.query((d) => d.componentInstance instanceof PlaneStub).componentInstance as PlaneStub;
-    expect(plane.unit()).toBe('mm⁻² (k²)');
+    // The charts and the window read in GHz: f = c·√k²/(2π√ε_r) (c = 299.792458 mm/ns, SI).
+    expect(plane.unit()).toBe('GHz');
+    const f = (k2: number) => (299.792458 * Math.sqrt(k2)) / (2 * Math.PI * 10);
+    expect((plane.poles() as { energy: number }[])[0]!.energy).toBeCloseTo(f(1.234), 6);
+    expect(host.querySelector('.meta')!.textContent).toContain(`${f(1).toFixed(3)}–${f(2).toFixed(3)} GHz`);
+    expect(host.querySelector('.meta')!.textContent).not.toContain('meV');
+    // No conductance for a microwave resonator.
+    expect(host.querySelector('[data-test="show-conductance"]')).toBeNull();
   });
 });
 

@@ -31,6 +31,7 @@ import { type ConductanceUnit, type SpectrumQuantity, conductanceUnitLabels } fr
 import { spectrumWarnings } from './spectrum-warnings';
 import { aboveLimitMeaning, microwaveCells, validitySummary } from './pole-validity';
 import type { SpectrumView } from './transmission-options';
+import { frequencies, frequencyPole, frequencySpectrum, frequencyWindow, frequencyWindowText } from './microwave-view';
 
 /**
  * One run: live progress while it works; afterwards its poles in the complex
@@ -86,10 +87,12 @@ export class RunDetail {
   protected readonly units = Object.keys(conductanceUnitLabels) as ConductanceUnit[];
   protected readonly showReflection = signal(false);
   protected readonly spectrumView = computed<SpectrumView>(() => ({
-    quantity: this.quantity(),
+    // A microwave run has no conductance: T only.
+    quantity: this.permittivity() ? 'transmission' : this.quantity(),
     unit: this.unit(),
     residual: this.showResidual(),
     reflection: this.reflectionCurves(),
+    xName: this.permittivity() ? 'f (GHz)' : 'E (meV)',
   }));
   /** R per lead, named by the lead, when asked for and stored; drawn beside T only (R has no conductance unit). */
   private readonly reflectionCurves = computed(() => {
@@ -134,7 +137,31 @@ export class RunDetail {
   protected readonly uncertified = computed(() => this.run()?.certificate?.pieces.filter((p) => !p.certified) ?? []);
   protected readonly poles = computed(() => this.run()?.poles ?? []);
   /** A microwave model's run: poles as frequencies (GHz, MHz, ns, Q) from the rows' `microwave` block. */
-  protected readonly microwave = computed(() => this.poles().some((p) => p.physics === 'microwave' && p.microwave));
+  protected readonly microwave = computed(() => !!this.run()?.microwave || this.poles().some((p) => p.physics === 'microwave' && p.microwave));
+  /** ε_r of a microwave run's model: the charts, the window and the spectrum then read in GHz. */
+  protected readonly permittivity = computed(() => this.run()?.microwave?.permittivity ?? null);
+  protected readonly windowLine = computed(() => {
+    const r = this.run();
+    if (!r) return '';
+    const eps = this.permittivity();
+    return eps ? frequencyWindowText(r.window, eps) : windowText(r.window);
+  });
+  /** What the charts draw, in the run's own units: meV, or GHz for a microwave run. */
+  protected readonly chart = computed(() => {
+    const r = this.run();
+    const eps = this.permittivity();
+    const poles = this.planePoles();
+    const limit = this.validityLimit();
+    if (!r || !eps) return { unit: 'meV', poles, window: r?.window ?? null, thresholds: r?.thresholds ?? [], limit, spectrum: r?.spectrum ?? null };
+    return {
+      unit: 'GHz',
+      poles: poles.map((p) => frequencyPole(p, eps)),
+      window: frequencyWindow(r.window, eps),
+      thresholds: frequencies(r.thresholds, eps),
+      limit: limit == null ? null : frequencies([limit], eps)[0]!,
+      spectrum: r.spectrum ? frequencySpectrum(r.spectrum, eps) : null,
+    };
+  });
   protected readonly columns = computed(() =>
     this.microwave()
       ? ['index', 'frequency', 'frequencyWidth', 'lifetimeNs', 'qualityMw', 'petermann', 'validity', 'flags']

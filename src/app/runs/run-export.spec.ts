@@ -1,5 +1,6 @@
 import Papa from 'papaparse';
 import type { ResonanceRow } from '../core/answers/resonance-row';
+import { resonanceCsvHeader } from '../../../shared/api/resonance-columns';
 import { exportFileName, polesCsv, polesJson, spectrumCsv, spectrumJson } from './run-export';
 import type { RunDetail } from './runs-api';
 
@@ -99,5 +100,56 @@ describe('run downloads', () => {
     expect(poles.units.width).toBe('meV');
     expect(poles.items[0].thumbnailUrl).toBeUndefined();
     expect(exportFileName(run, 'poles', 'csv')).toBe('dot-a-v2-poles.csv');
+  });
+
+  it('has the columns of the catalogue export for the poles, validity included', () => {
+    const withValidity = {
+      ...run,
+      poles: [pole(1.5, 0.01, { validity: { limit: 1.2, wavelengthSpacings: 8.5, aboveLimit: true }, keyDimensions: { rx: 40, ry: 20, area: 2500 } })],
+    } as RunDetail;
+    const rows = Papa.parse<Record<string, string>>(polesCsv(withValidity), { header: true, skipEmptyLines: true });
+    expect(rows.meta.fields).toEqual(resonanceCsvHeader);
+    expect(rows.data[0]['above_validity_limit']).toBe('true');
+    expect(rows.data[0]['validity_limit_meV']).toBe('1.2');
+    expect(rows.data[0]['rx_nm']).toBe('40');
+  });
+
+  it('writes R per lead beside T, and the residual, when the run stored reflection', () => {
+    const withR = {
+      ...run,
+      spectrum: {
+        ...run.spectrum!,
+        reflection: [
+          [0.9, 0.8],
+          [0.85, 0.75],
+        ],
+      },
+    } as RunDetail;
+    const rows = Papa.parse<Record<string, string>>(spectrumCsv(withR), { header: true, skipEmptyLines: true });
+    expect(rows.meta.fields).toEqual(['energy_meV', 'T_source_to_drain', 'T_drain_to_source', 'R_source', 'R_drain', 'current_residual']);
+    expect(Number(rows.data[1]['R_drain'])).toBeCloseTo(0.75, 12);
+    expect(Number(rows.data[0]['current_residual'])).toBeCloseTo(1e-13, 20);
+    const json = JSON.parse(spectrumJson(withR));
+    expect(json.reflection).toEqual([
+      [0.9, 0.8],
+      [0.85, 0.75],
+    ]);
+  });
+
+  it('gives the spectrum of a microwave run in GHz beside the raw k²', () => {
+    // f = c·√k²/(2π√ε_r), c = 299.792458 mm/ns (SI); k² for 10 GHz in vacuum.
+    const k2 = ((2 * Math.PI * 10) / 299.792458) ** 2;
+    const mw = {
+      ...run,
+      microwave: { permittivity: 1, heightMm: 5, twoDimensionalLimitGhz: 30 },
+      spectrum: { ...run.spectrum!, energies: [k2, 4 * k2] },
+    } as RunDetail;
+    const rows = Papa.parse<Record<string, string>>(spectrumCsv(mw), { header: true, skipEmptyLines: true });
+    expect(rows.meta.fields!.slice(0, 2)).toEqual(['frequency_GHz', 'k2_per_mm2']);
+    expect(Number(rows.data[0]['frequency_GHz'])).toBeCloseTo(10, 9);
+    expect(Number(rows.data[1]['frequency_GHz'])).toBeCloseTo(20, 9);
+    const json = JSON.parse(spectrumJson(mw));
+    expect(json.frequenciesGhz[1]).toBeCloseTo(20, 9);
+    expect(json.units.energies).toContain('k²');
   });
 });

@@ -1,42 +1,18 @@
 import Papa from 'papaparse';
-import type { ResonanceRow } from '../core/answers/resonance-row';
+import { resonanceCsvColumns, resonanceCsvHeader, resonanceJsonUnits } from '../../../shared/api/resonance-columns';
+import { frequencyOfWavenumberSquared } from '../../../shared/units/microwave';
 import type { RunDetail } from './runs-api';
 import { spectrumWarnings } from './spectrum-warnings';
 
 /**
  * A run's poles and spectrum as files, with the catalogue export's conventions
- * (server/catalogue/catalogue-export.ts): the unit in every dimensional column's
- * name, RFC 4180 lines (CRLF), empty lifetime and quality cells for bound states
- * (infinite), lists "; "-separated in one cell, text cells that start like a
- * formula escaped. JSON files say their units and warnings at the top.
+ * (server/catalogue/catalogue-export.ts): the poles with the very columns of the
+ * catalogue export (shared/api/resonance-columns.ts: validity, microwave frequencies,
+ * every dimension), the unit in every dimensional column's name, RFC 4180 lines
+ * (CRLF), empty lifetime and quality cells for bound states (infinite), lists
+ * "; "-separated in one cell, text cells that start like a formula escaped. JSON
+ * files say their units and warnings at the top.
  */
-const poleColumns: [string, (r: ResonanceRow) => string | number | boolean | null][] = [
-  ['energy_meV', (r) => r.energy],
-  ['width_meV', (r) => r.width],
-  ['lifetime_ps', (r) => r.lifetimePs],
-  ['quality', (r) => r.quality],
-  ['petermann', (r) => r.petermann],
-  ['residual', (r) => r.residual],
-  ['partial_widths_meV', (r) => r.partialWidths.map((p) => `${p.lead}=${p.width}`).join('; ')],
-  ['bound', (r) => r.bound],
-  ['near_threshold', (r) => r.nearThreshold],
-  ['overlapping', (r) => r.overlapping],
-  ['model_name', (r) => r.modelName],
-  ['model_version', (r) => r.modelVersion],
-  ['field_T', (r) => r.fieldT],
-  ['resonance_id', (r) => r.id],
-  ['run_id', (r) => r.runId],
-];
-
-const poleUnits = {
-  energy: 'meV',
-  width: 'meV',
-  lifetimePs: 'ps (null: infinite, bound state)',
-  quality: 'E/Γ, no unit (null: infinite, bound state)',
-  partialWidths: 'meV',
-  fieldT: 'T',
-};
-
 function csv(fields: string[], data: unknown[][]): string {
   const text = Papa.unparse({ fields, data }, { newline: '\r\n', escapeFormulae: true });
   return text.endsWith('\r\n') ? text : `${text}\r\n`;
@@ -44,45 +20,70 @@ function csv(fields: string[], data: unknown[][]): string {
 
 export function polesCsv(run: RunDetail): string {
   return csv(
-    poleColumns.map(([name]) => name),
-    run.poles.map((p) => poleColumns.map(([, get]) => get(p))),
+    resonanceCsvHeader,
+    run.poles.map((p) => resonanceCsvColumns.map(([, get]) => get(p))),
   );
 }
 
 export function polesJson(run: RunDetail): string {
   const items = run.poles.map(({ thumbnailUrl: _t, imageUrl: _i, ...rest }) => rest);
-  return `${JSON.stringify({ run: runHead(run), units: poleUnits, count: items.length, items }, null, 2)}\n`;
+  return `${JSON.stringify({ run: runHead(run), units: resonanceJsonUnits, count: items.length, items }, null, 2)}\n`;
 }
+
+const safe = (name: string) => name.replace(/[^A-Za-z0-9]+/g, '_');
+const leadName = (run: RunDetail, lead: number | string) => safe(typeof lead === 'number' ? (run.leads?.[lead]?.name ?? `lead${lead + 1}`) : lead);
 
 /** Column name of one spectrum curve: T_source_to_drain (no unit: T counts channels). */
 export function spectrumColumn(run: RunDetail, k: number): string {
   const pair = run.spectrum!.pairs[k];
-  const name = (lead: number | string) => {
-    const n = typeof lead === 'number' ? (run.leads?.[lead]?.name ?? `lead${lead + 1}`) : lead;
-    return n.replace(/[^A-Za-z0-9]+/g, '_');
-  };
-  return `T_${name(pair.from)}_to_${name(pair.to)}`;
+  return `T_${leadName(run, pair.from)}_to_${leadName(run, pair.to)}`;
 }
 
-/** One row per energy: energy_meV, every T column, the current-conservation residual. */
+/** Column name of one lead's reflection: R_source (no unit). */
+export function reflectionColumn(run: RunDetail, lead: number): string {
+  return `R_${leadName(run, lead)}`;
+}
+
+/**
+ * One row per sample point: the energy (energy_meV; for a microwave run frequency_GHz and
+ * the raw k2_per_mm2), every T column, R per lead where the run stored it, and the
+ * current-conservation residual.
+ */
 export function spectrumCsv(run: RunDetail): string {
   const s = run.spectrum;
-  if (!s) return csv(['energy_meV'], []);
-  const fields = ['energy_meV', ...s.pairs.map((_, k) => spectrumColumn(run, k)), 'current_residual'];
-  const data = s.energies.map((e, n) => [e, ...s.transmission.map((row) => row[n] ?? null), s.residual[n] ?? null]);
+  const eps = run.microwave?.permittivity;
+  const head = eps ? ['frequency_GHz', 'k2_per_mm2'] : ['energy_meV'];
+  if (!s) return csv(head, []);
+  const reflection = s.reflection ?? [];
+  const fields = [...head, ...s.pairs.map((_, k) => spectrumColumn(run, k)), ...reflection.map((_, l) => reflectionColumn(run, l)), 'current_residual'];
+  const data = s.energies.map((e, n) => [
+    ...(eps ? [frequencyOfWavenumberSquared(e, eps), e] : [e]),
+    ...s.transmission.map((row) => row[n] ?? null),
+    ...reflection.map((row) => row[n] ?? null),
+    s.residual[n] ?? null,
+  ]);
   return csv(fields, data);
 }
 
 export function spectrumJson(run: RunDetail): string {
   const s = run.spectrum;
+  const eps = run.microwave?.permittivity;
   const body = {
     run: runHead(run),
-    units: { energies: 'meV', transmission: 'no unit (T summed over channels)', residual: 'relative, no unit' },
+    units: {
+      energies: eps ? 'k² in mm⁻² (the lattice eigenvalue); frequenciesGhz gives f = c·√k²/(2π√ε_r)' : 'meV',
+      ...(eps ? { frequenciesGhz: 'GHz' } : {}),
+      transmission: 'no unit (T summed over channels)',
+      reflection: 'no unit (R per lead in `leads` order, summed over its open channels)',
+      residual: 'relative, no unit',
+    },
     warnings: spectrumWarnings(run),
     leads: run.leads?.map((l) => l.name) ?? [],
+    ...(eps ? { permittivity: eps, frequenciesGhz: (s?.energies ?? []).map((e) => frequencyOfWavenumberSquared(e, eps)) } : {}),
     energies: s?.energies ?? [],
     pairs: s?.pairs ?? [],
     transmission: s?.transmission ?? [],
+    reflection: s?.reflection ?? null,
     residual: s?.residual ?? [],
   };
   return `${JSON.stringify(body, null, 2)}\n`;

@@ -60,6 +60,8 @@ export interface RunDetail extends Run {
   spectrum: Spectrum | null;
   /** The model version's leads in engine order; the spectrum's pairs index into it. */
   leads?: { name: string; side: string; width: number }[];
+  /** A microwave model's ε_r, h (mm) and 2D limit (GHz): window, thresholds and spectrum energies are then k² (mm⁻²). */
+  microwave?: { permittivity: number; heightMm: number; twoDimensionalLimitGhz: number } | null;
 }
 
 export interface RunEstimate {

@@ -10,6 +10,8 @@ export interface SpectrumView {
   residual?: boolean;
   /** R_ℓ(E) per lead, when the run stored it. */
   reflection?: { lead: string; values: number[] }[] | null;
+  /** The x axis's name: 'E (meV)', or 'f (GHz)' for a microwave run (its energies given as frequencies). */
+  xName?: string;
 }
 
 /**
@@ -50,7 +52,7 @@ export function transmissionOptions(
     dataZoom: [{ type: 'inside' }, { type: 'slider', height: 18, bottom: 8 }],
     xAxis: {
       type: 'value',
-      name: 'E (meV)',
+      name: view.xName ?? 'E (meV)',
       nameLocation: 'middle',
       nameGap: 30,
       min: emin,

@@ -26,6 +26,13 @@ export interface PlaneInput {
   colours: ChartColours;
 }
 
+/** The axis words of a pole chart: energy (z = E − iΓ/2) or, in GHz, frequency (f − iΓ_f/2) for a microwave run. */
+export function poleAxisWords(unit: string): { re: string; im: string; x: string; width: string; half: string } {
+  return unit === 'GHz'
+    ? { re: 'Re f', im: 'Im f = −Γ_f/2', x: 'f', width: 'width Γ_f', half: 'Γ_f/2' }
+    : { re: 'Re z = E', im: 'Im z = −Γ/2', x: 'E', width: 'width Γ', half: 'Γ/2' };
+}
+
 /**
  * echarts option for the complex energy plane: Re z = E on x, Im z = −Γ/2 on y
  * (both meV), poles below the real axis, channel thresholds as vertical lines and
@@ -34,6 +41,7 @@ export interface PlaneInput {
 export function polePlaneOptions(input: PlaneInput): EChartsCoreOption {
   const c = input.colours;
   const u = input.unit ?? 'meV';
+  const words = poleAxisWords(u);
   const point = (p: PlanePole) => ({ value: [p.energy, -p.width / 2], id: p.id });
   const isolated = input.poles.filter((p) => !p.bound && !p.nearThreshold && !p.overlapping && p.id !== input.highlightId);
   const nearThreshold = input.poles.filter((p) => !p.bound && p.nearThreshold && p.id !== input.highlightId);
@@ -61,11 +69,11 @@ export function polePlaneOptions(input: PlaneInput): EChartsCoreOption {
     tooltip: {
       trigger: 'item',
       formatter: (p: { value: [number, number]; seriesName: string }) =>
-        `${p.seriesName}<br>E = ${p.value[0].toPrecision(6)} ${u}<br>Γ/2 = ${(-p.value[1]).toPrecision(3)} ${u}`,
+        `${p.seriesName}<br>${words.x} = ${p.value[0].toPrecision(6)} ${u}<br>${words.half} = ${(-p.value[1]).toPrecision(3)} ${u}`,
     },
     xAxis: {
       type: 'value',
-      name: `Re z = E (${u})`,
+      name: `${words.re} (${u})`,
       nameLocation: 'middle',
       nameGap: 32,
       scale: true,
@@ -77,7 +85,7 @@ export function polePlaneOptions(input: PlaneInput): EChartsCoreOption {
     },
     yAxis: {
       type: 'value',
-      name: `Im z = −Γ/2 (${u})`,
+      name: `${words.im} (${u})`,
       nameLocation: 'middle',
       nameGap: 52,
       max: 0,

@@ -1,6 +1,6 @@
 import type { EChartsCoreOption } from 'echarts/core';
 import type { PlaneInput, PlanePole } from './pole-plane-options';
-import { validityOverlay } from './pole-plane-options';
+import { poleAxisWords, validityOverlay } from './pole-plane-options';
 
 /**
  * The range of the log-width axis (meV): from a little below the smallest width in
@@ -25,6 +25,7 @@ export function widthAxisRange(poles: readonly PlanePole[], gammaMax: number | u
 export function poleWidthOptions(input: PlaneInput): EChartsCoreOption {
   const c = input.colours;
   const u = input.unit ?? 'meV';
+  const words = poleAxisWords(u);
   const w = input.window;
   const range = widthAxisRange(input.poles, w?.gammaMax);
   const shown = input.poles.filter((p) => !p.bound && p.width > 0);
@@ -45,11 +46,11 @@ export function poleWidthOptions(input: PlaneInput): EChartsCoreOption {
     tooltip: {
       trigger: 'item',
       formatter: (p: { value: [number, number]; seriesName: string }) =>
-        `${p.seriesName}<br>E = ${p.value[0].toPrecision(6)} ${u}<br>Γ = ${p.value[1].toPrecision(3)} ${u}`,
+        `${p.seriesName}<br>${words.x} = ${p.value[0].toPrecision(6)} ${u}<br>${words.width} = ${p.value[1].toPrecision(3)} ${u}`,
     },
     xAxis: {
       type: 'value',
-      name: `E (${u})`,
+      name: `${words.x} (${u})`,
       nameLocation: 'middle',
       nameGap: 32,
       scale: true,
@@ -62,7 +63,7 @@ export function poleWidthOptions(input: PlaneInput): EChartsCoreOption {
     yAxis: {
       type: 'log',
       logBase: 10,
-      name: `width Γ (${u}, log)`,
+      name: `${words.width} (${u}, log)`,
       nameLocation: 'middle',
       nameGap: 60,
       min: range.min,
@@ -92,8 +93,8 @@ export function poleWidthOptions(input: PlaneInput): EChartsCoreOption {
                   })),
                   ...(w
                     ? [
-                        { xAxis: w.emin, label: { formatter: 'E min', color: c.primary, fontSize: 10, position: 'insideStartTop' }, lineStyle: edge },
-                        { xAxis: w.emax, label: { formatter: 'E max', color: c.primary, fontSize: 10, position: 'insideStartTop' }, lineStyle: edge },
+                        { xAxis: w.emin, label: { formatter: `${words.x} min`, color: c.primary, fontSize: 10, position: 'insideStartTop' }, lineStyle: edge },
+                        { xAxis: w.emax, label: { formatter: `${words.x} max`, color: c.primary, fontSize: 10, position: 'insideStartTop' }, lineStyle: edge },
                       ]
                     : []),
                   ...(w?.gammaMax != null
