@@ -18,8 +18,9 @@ import { modelNotFound, type ModelService } from '../models/model-service.js';
 import { checkEnsembleDefinition, type EnsembleDefinition } from '../../shared/engine/study/ensemble-definition.js';
 import { checkStudyDefinition, studyStepCount, studyStepModel, studyStepSpec, type StudyDefinition } from '../../shared/engine/study/study-definition.js';
 import { rangeValues } from '../../shared/engine/study/parameter-values.js';
+import { DEFAULT_MAP_POINTS } from '../../shared/engine/study/study-transmission.js';
 import { poleReport } from '../../shared/engine/study/study-report.js';
-import type { StudyRequest } from '../../shared/api/studies.js';
+import type { EnsembleOutcome, StudyRequest, SweepOutcome } from '../../shared/api/studies.js';
 import { decodeSearch, type StoredSearch } from './step-codec.js';
 import type { StudyQueue } from './study-queue.js';
 import type { StudyDefinitionStored } from './study-step-task.js';
@@ -57,6 +58,7 @@ export class StudyService {
           })),
           window: req.window,
           search,
+          transmissionPoints: req.transmissionPoints ?? DEFAULT_MAP_POINTS,
         };
         checkStudyDefinition(study);
         return { kind: 'sweep', study };
@@ -299,12 +301,17 @@ export class StudyService {
   }
 
   /** Trajectory points (a sweep) or samples (an ensemble) as rows. */
-  async exportRows(groupId: string, studyId: string): Promise<{ header: string[]; rows: (string | number | boolean | null)[][]; json: unknown }> {
+  async exportRows(
+    groupId: string,
+    studyId: string,
+    table: 'trajectories' | 'transmission' = 'trajectories',
+  ): Promise<{ header: string[]; rows: (string | number | boolean | null)[][]; json: unknown; notes: string[] }> {
     const { row } = await this.row(groupId, studyId);
     const outcome = row.outcome as Record<string, unknown> | null;
     if (!outcome) throw new ApiError(409, 'not_ready', 'The study has not ended yet: its trajectories or statistics are assembled when the last step ends.');
+    if (table === 'transmission') return transmissionRows(outcome);
     if (outcome.kind === 'sweep') {
-      const o = outcome as unknown as import('../../shared/api/studies.js').SweepOutcome;
+      const o = outcome as unknown as SweepOutcome;
       const header = [
         'line',
         'line_value',
@@ -323,9 +330,9 @@ export class StudyService {
           for (const p of t.points) rows.push([li, l.value, t.id, p.step, p.value, p.energy, p.width, p.link, p.overlap, o.steps[p.step]?.certified ?? null]);
         }
       });
-      return { header, rows, json: outcome };
+      return { header, rows, json: outcome, notes: [] };
     }
-    const o = outcome as unknown as import('../../shared/api/studies.js').EnsembleOutcome;
+    const o = outcome as unknown as EnsembleOutcome;
     const header = [
       'realisation',
       'seed',
@@ -352,8 +359,38 @@ export class StudyService {
       s.record.roughness?.added ?? null,
       s.record.roughness?.removed ?? null,
     ]);
-    return { header, rows, json: outcome };
+    return { header, rows, json: outcome, notes: [] };
   }
+}
+
+/** A sweep's transmission map as rows (line, step, parameter value, energy, T); 409 when the study has none. */
+function transmissionRows(outcome: Record<string, unknown>) {
+  const o = outcome as unknown as SweepOutcome;
+  if (o.kind !== 'sweep' || !o.transmission)
+    throw new ApiError(409, 'no_map', 'This study has no transmission map: an ensemble has none, and a sweep has one only when it asked for map energies.');
+  const map = o.transmission;
+  if (map.from === null) throw new ApiError(409, 'no_map', 'This model has fewer than two leads: there is no transmission to export.');
+  const header = ['line', 'line_value', 'step', o.parameters[0].path, 'energy_meV', 'transmission', 'certified'];
+  const rows: (string | number | boolean | null)[][] = [];
+  const n0 = o.parameters[0].values.length;
+  for (const s of o.steps) {
+    const line = Math.floor(s.index / n0);
+    map.energies.forEach((e, k) => rows.push([line, s.values[1] ?? null, s.index, s.values[0], e, s.transmission?.[k] ?? null, s.certified]));
+  }
+  const notes = [
+    `# Transmission from lead ${map.from} into ${map.into.join(', ')} (summed), in units of one channel (2e²/h per spin-degenerate channel).`,
+    '# Each value is the largest T sampled within half a column of its energy (the sweep refines near narrow resonances).',
+    ...(map.budgetExhaustedSteps.length
+      ? [`# Steps ${map.budgetExhaustedSteps.join(', ')} ran out of sweep energies: a narrow peak there may be drawn too low.`]
+      : []),
+    '# An empty transmission cell: that step did not complete.',
+  ];
+  return {
+    header,
+    rows,
+    json: { transmission: map, steps: o.steps.map((s) => ({ index: s.index, values: s.values, transmission: s.transmission ?? null })) },
+    notes,
+  };
 }
 
 /** The stored definition without the model document (the client has the model). */

@@ -53,6 +53,13 @@ export const sweepRequestSchema = z.object({
   parameters: z.array(studyParameterSchema).min(1).max(2),
   window: studyWindowSchema,
   search: searchOptions,
+  transmissionPoints: z
+    .number()
+    .int()
+    .min(0)
+    .max(400)
+    .optional()
+    .meta({ description: 'Energies per step of the transmission map T(E, p) over the window; 0: no map; default 80' }),
 });
 
 export const ensembleRequestSchema = z.object({
@@ -176,6 +183,18 @@ export const trajectorySchema = z.object({
 });
 export type Trajectory = z.infer<typeof trajectorySchema>;
 
+export const transmissionMapSchema = z.object({
+  /** Column energies (meV), evenly spaced over the window; each value is the largest T sampled within half a column of it. */
+  energies: z.array(z.number()),
+  /** The lead the transmission leaves from and those it enters (T summed over them); null: fewer than two leads. */
+  from: z.string().nullable(),
+  into: z.array(z.string()),
+  worstCurrentResidual: z.number(),
+  /** Steps whose adaptive sweep ran out of energies with intervals still flagged (a peak may be lower than drawn). */
+  budgetExhaustedSteps: z.array(z.number().int()),
+});
+export type TransmissionMap = z.infer<typeof transmissionMapSchema>;
+
 export const sweepOutcomeSchema = z.object({
   kind: z.literal('sweep'),
   parameters: z.array(z.object({ path: z.string(), values: z.array(z.number()) })),
@@ -190,8 +209,12 @@ export const sweepOutcomeSchema = z.object({
       factorisations: z.number(),
       coveredByContinuation: z.boolean(),
       poles: z.array(poleSchema),
+      /** The step's row of the transmission map (one value per `transmission.energies`); null without a map. */
+      transmission: z.array(z.number()).nullable().optional(),
     }),
   ),
+  /** The transmission map's columns and leads; null when the study asked for no map (absent in studies from before maps). */
+  transmission: transmissionMapSchema.nullable().optional(),
   lines: z.array(z.object({ value: z.number().nullable(), trajectories: z.array(trajectorySchema), marks: z.array(trajectoryMarkSchema) })),
   fullSearchFraction: z.number(),
   units: z.object({ energy: z.string(), width: z.string(), lifetime: z.string() }),
@@ -378,8 +401,13 @@ export const exportStudyRoute = declareRoute({
   access: 'member',
   tag: 'studies',
   summary: 'Trajectories (a sweep) or samples (an ensemble) as CSV or JSON',
+  notes:
+    "format=json gives the whole outcome (trajectories, marks, every step's poles and transmission-map row). In CSV, table=transmission gives a sweep's map T(E, p) as one row per step and energy instead of the trajectory points.",
   params: studyParams,
-  query: z.object({ format: z.enum(['csv', 'json']).default('csv') }),
+  query: z.object({
+    format: z.enum(['csv', 'json']).default('csv'),
+    table: z.enum(['trajectories', 'transmission']).default('trajectories'),
+  }),
   answer: media(200, 'text/csv', 'CSV (or JSON with format=json)', z.string()),
 });
 
