@@ -306,7 +306,15 @@ export const studyStepDetailSchema = z.object({
 });
 export type StudyStepDetail = z.infer<typeof studyStepDetailSchema>;
 
-export const savedStepSchema = z.object({ modelId: z.uuid(), version: z.number().int() });
+export const savedStepSchema = z.object({
+  modelId: z.uuid(),
+  version: z.number().int(),
+  /** Resonances of the step filed in the catalogue under the new version. */
+  resonances: z.number().int(),
+  /** Whether the step's search was certified (an uncertified step may have missed poles). */
+  certified: z.boolean(),
+});
+export type SavedStep = z.infer<typeof savedStepSchema>;
 
 const studyParams = z.object({ groupId: z.uuid(), studyId: z.uuid() });
 const stepParams = z.object({ groupId: z.uuid(), studyId: z.uuid(), index: z.string().regex(/^\d{1,4}$/, 'a step number (0, 1, 2, …)') });
@@ -389,7 +397,9 @@ export const saveStudyStepRoute = declareRoute({
   path: '/groups/{groupId}/studies/{studyId}/steps/{index}/save',
   access: 'designer',
   tag: 'studies',
-  summary: "Keep a step's model as a new version of the study's model",
+  summary: "Keep a step's model as a new version of the study's model and file its resonances in the catalogue",
+  notes:
+    'The version and the catalogue rows (with mode images and details.provenance.study: study id, step, parameter values) are written in one transaction. 409 when the step has not completed.',
   params: stepParams,
   answer: json(201, 'The new version', savedStepSchema),
 });
