@@ -209,7 +209,8 @@ export class TransmissionMap {
     ctx.fillStyle = ink;
     ctx.textAlign = 'left';
     for (const v of niceTicks(0, l.peak, 5)) ctx.fillText(String(v), barX + 18, size.top + (1 - v / l.peak) * plotH);
-    ctx.textBaseline = 'bottom';
-    ctx.fillText(this.quantity(), barX - 4, size.top + plotH + 30);
+    // The full quantity (leads) is in the caption above the map and the accessible description.
+    ctx.textBaseline = 'top';
+    ctx.fillText('T', barX + 3, size.top + plotH + 6);
   }
 }
