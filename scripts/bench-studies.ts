@@ -1,16 +1,21 @@
 // The study row of `npm run bench` (issue 14): steps per minute of a 40-step field sweep
 // of a 2,500-site dot computed by 1, 2 and 4 worker processes, and the fraction of steps
 // that needed the full search rather than continuation alone. Each process computes whole
-// steps (search + continuation, study-step.ts) handed out one at a time as the study-step
-// queue does, without the database round trips (a few ms per step). Expect near-linear
-// speed-up up to the machine's core count, and a flat line beyond it.
-// Sizes: BENCH_STUDY_SIDE (default 50: a 50×50 rectangle, 2,500 sites) and BENCH_STUDY_STEPS (40).
+// steps exactly as a study-step worker does (server/studies/study-step-task.ts: the
+// certified search, the continuation into the next step and the transmission-map row of
+// DEFAULT_MAP_POINTS energies), handed out one at a time as the study-step queue does,
+// without the database round trips (a few ms per step); the outcome is assembled as the
+// last worker does (study-assembly.ts). Expect near-linear speed-up up to the machine's
+// core count, and a flat line beyond it.
+// Sizes: BENCH_STUDY_SIDE (default 50: a 50×50 rectangle, 2,500 sites), BENCH_STUDY_STEPS (40),
+// BENCH_STUDY_PROCESSES (1,2,4).
 import { fork, type ChildProcess } from 'node:child_process';
 import { fileURLToPath } from 'node:url';
 import { loadavg } from 'node:os';
-import { assembleStudy } from '../shared/engine/study/study-run';
-import { computeStep, type StepResult } from '../shared/engine/study/study-step';
-import { studyStepModel, studyStepPath, type StudyDefinition } from '../shared/engine/study/study-definition';
+import type { StudyDefinition } from '../shared/engine/study/study-definition';
+import { DEFAULT_MAP_POINTS } from '../shared/engine/study/study-transmission';
+import { runStudyStepTask, type StudyStepOutput } from '../server/studies/study-step-task';
+import { assembleOutcome } from '../server/studies/study-assembly';
 import { rangeValues } from '../shared/engine/study/parameter-values';
 import { hoppingEnergy } from '../shared/units/constants';
 import { benchCavity } from './bench-cavity';
@@ -24,6 +29,7 @@ export function benchStudyDefinition(side = Number(process.env.BENCH_STUDY_SIDE 
     model,
     parameters: [{ path: 'field', values: rangeValues(0, 0.5, steps) }],
     window: { emin: 0.4 * t, emax: 0.4 * t + width, gammaMax: 2e-3 * t },
+    transmissionPoints: DEFAULT_MAP_POINTS,
   };
 }
 
@@ -32,15 +38,15 @@ function child() {
   const def = benchStudyDefinition();
   process.on('message', (index: number) => {
     if (index < 0) process.exit(0);
-    const r = computeStep(studyStepModel(def, index), def.window, {}, studyStepPath(def, index));
+    const r = runStudyStepTask({ definition: { kind: 'sweep', study: def }, index, reuse: null });
     process.send!({ index, result: r });
   });
   process.send!('ready');
 }
 
-async function withProcesses(count: number, def: StudyDefinition): Promise<{ seconds: number; results: StepResult[] }> {
+async function withProcesses(count: number, def: StudyDefinition): Promise<{ seconds: number; results: StudyStepOutput[] }> {
   const total = def.parameters[0].values.length;
-  const results: StepResult[] = new Array(total);
+  const results: StudyStepOutput[] = new Array(total);
   let next = 0;
   let done = 0;
   let ready = 0;
@@ -54,7 +60,7 @@ async function withProcesses(count: number, def: StudyDefinition): Promise<{ sec
     };
     for (let k = 0; k < count; k++) {
       const kid = fork(fileURLToPath(import.meta.url), ['--child'], { execArgv: ['--import', 'tsx'], serialization: 'advanced' });
-      kid.on('message', (m: 'ready' | { index: number; result: StepResult }) => {
+      kid.on('message', (m: 'ready' | { index: number; result: StudyStepOutput }) => {
         if (m === 'ready') {
           if (++ready === count) {
             t0 = performance.now();
@@ -80,14 +86,28 @@ export async function benchStudies(): Promise<Record<string, number | string>> {
   const steps = def.parameters[0].values.length;
   const out: Record<string, number | string> = { steps, 'load average before': loadavg()[0].toFixed(1) };
   let fraction = NaN;
-  for (const n of [1, 2, 4]) {
+  const counts = (process.env.BENCH_STUDY_PROCESSES ?? '1,2,4').split(',').map(Number);
+  for (const n of counts) {
     const { seconds, results } = await withProcesses(n, def);
     out[`steps per minute, ${n} process${n > 1 ? 'es' : ''}`] = (60 * steps) / seconds;
     if (Number.isNaN(fraction)) {
-      fraction = assembleStudy(def, results).fullSearchFraction;
-      out['sites'] = results[0].sites.i.length;
-      out['poles per step (mean)'] = results.reduce((s, r) => s + r.poles.length, 0) / steps;
-      out['steps certified'] = `${results.filter((r) => r.certified).length} of ${steps}`;
+      const outcome = assembleOutcome(
+        { kind: 'sweep', study: def },
+        results.map((r, index) => ({
+          index,
+          status: 'completed',
+          search: r.search,
+          continuation: r.continuation,
+          transmission: r.transmission,
+          record: null,
+          error: null,
+        })),
+      ) as { fullSearchFraction: number; steps: { certified: boolean; poles: unknown[] }[] };
+      fraction = outcome.fullSearchFraction;
+      out['sites'] = results[0].search ? Buffer.from(results[0].search.sites.i, 'base64').length / 4 : 0;
+      out['poles per step (mean)'] = outcome.steps.reduce((s, r) => s + r.poles.length, 0) / steps;
+      out['steps certified'] = `${outcome.steps.filter((r) => r.certified).length} of ${steps}`;
+      out[`seconds per step (mean, ${n} process${n > 1 ? 'es' : ''})`] = seconds / steps;
     }
   }
   out['fraction needing a full search'] = fraction;

@@ -3,14 +3,15 @@
  * (shared/engine/study). Prints JSON.
  *
  *   npm run engine -- study MODEL.json --param PATH --values FROM:TO:COUNT|V1,V2,… --emin A --emax B --gmax G
- *       [--param2 PATH --values2 …] [--probes P] [--seed S] [--max-nodes M]
+ *       [--param2 PATH --values2 …] [--probes P] [--seed S] [--max-nodes M] [--map-points N]
  *   npm run engine -- study MODEL.json --ensemble N --emin A --emax B --gmax G
  *       [--roughness-nm R --correlation-nm L] [--seed S] [--follow E]
  *       [--jitter PATH:SIGMA[:dimension|lead-width|gate-offset]]… [--disorder]
  *       [--tolerance-energy A:B] [--tolerance-width A:B] [--tolerance-q A:B] [--bins K]
  *
  * A study prints every step's poles, the linked trajectories and the marks
- * (crossing, avoided crossing, width exchange); an ensemble prints each
+ * (crossing, avoided crossing, width exchange), and with --map-points N the
+ * transmission map T(E, p) (N energies per step); an ensemble prints each
  * realisation (its seed, what was drawn, its poles) and the statistics of the
  * followed resonance (default: the nominal pole nearest the window's middle).
  */
@@ -43,6 +44,7 @@ const VALUE_FLAGS = [
   'tolerance-width',
   'tolerance-q',
   'bins',
+  'map-points',
 ];
 const JITTER_KINDS: JitterKind[] = ['dimension', 'lead-width', 'gate-offset'];
 
@@ -109,7 +111,13 @@ export function runStudyCommand(model: unknown, rest: string[]): unknown {
     }
     const parameters = [{ path: flags.get('param')!.at(-1)!, values: values(flags, 'values') }];
     if (flags.has('param2')) parameters.push({ path: flags.get('param2')!.at(-1)!, values: values(flags, 'values2') });
-    const def: StudyDefinition = { model, parameters, window, search: { ...search, seed: numberFlag(flags, 'seed', { integer: true, min: 0 }) } };
+    const def: StudyDefinition = {
+      model,
+      parameters,
+      window,
+      search: { ...search, seed: numberFlag(flags, 'seed', { integer: true, min: 0 }) },
+      transmissionPoints: numberFlag(flags, 'map-points', { integer: true, min: 0 }),
+    };
     try {
       return studyReport(def, runStudy(def));
     } catch (err) {
@@ -118,6 +126,7 @@ export function runStudyCommand(model: unknown, rest: string[]): unknown {
     }
   }
   if (flags.has('param')) throw new StudyUsageError('give either --param (a study) or --ensemble (an ensemble), not both');
+  if (flags.has('map-points')) throw new StudyUsageError('--map-points belongs to a parameter study (--param), not an ensemble');
   const jitter: JitterSpec[] = (flags.get('jitter') ?? []).map((text) => {
     const [path, sigma, kind = 'dimension'] = text.split(':');
     const s = Number(sigma);

@@ -39,7 +39,7 @@ const USAGE = `usage:
   engine current MODEL.json (--pole-near E | --energy E --lead L --channel M) [--window W] [--gmax G]
   engine husimi MODEL.json (--pole-near E | --energy E --lead L --channel M) [--sigma-nm S] [--directions N] [--grid-nm G] [--threshold F]
   engine study MODEL.json --param PATH --values FROM:TO:COUNT|V1,V2,... --emin A --emax B --gmax G
-      [--param2 PATH --values2 ...] [--probes P] [--seed S] [--max-nodes M]
+      [--param2 PATH --values2 ...] [--probes P] [--seed S] [--max-nodes M] [--map-points N]
   engine study MODEL.json --ensemble N --emin A --emax B --gmax G [--roughness-nm R --correlation-nm L]
       [--seed S] [--follow E] [--jitter PATH:SIGMA[:dimension|lead-width|gate-offset]]... [--disorder]
       [--tolerance-energy A:B] [--tolerance-width A:B] [--tolerance-q A:B] [--bins K]

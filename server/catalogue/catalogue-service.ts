@@ -1,7 +1,12 @@
 import type { CataloguePage as CatalogueAnswer, ResonanceDetail } from '../../shared/api/catalogue.js';
 import { writeAudit } from '../audit/audit-log.js';
 import { exportedModels } from '../fabrication/catalogue-import.js';
-import type { Db } from '../db/client.js';
+import type { Db, Queryable } from '../db/client.js';
+import { insertFiledPole } from './filed-pole-repository.js';
+import { FULL_SIDE, isOverlapping, THUMB_SIDE } from '../jobs/run-results.js';
+import { geometryOf, type ModelColumns } from '../models/model-figures.js';
+import { resonanceFigures, resonancePhysicsOfDocument } from '../../shared/model/resonance-validity.js';
+
 import { ApiError } from '../http/error-handler.js';
 import type { RowSource } from './catalogue-export.js';
 import type { CatalogueFilter, CataloguePageRequest } from './catalogue-query.js';
@@ -23,6 +28,31 @@ export type { CataloguePage as CatalogueAnswer, ResonanceDetail } from '../../sh
 
 /** Rows per keyset batch in an export: a few hundred kB of JSON at a time. */
 const exportBatch = 1000;
+
+/** Longest sides (pixels) of the two mode images of a filed pole, [thumb, full]: the same as a run's poles get. */
+export const FILED_IMAGE_SIDES = [THUMB_SIDE, FULL_SIDE];
+
+/** What `fileComputedPoles` files: the poles with their modes and images (thumb, full), the version they belong to, and where they came from. */
+export interface FiledPoles {
+  groupId: string;
+  model: { id: string; versionId: string; name: string; version: number; document: unknown; columns: ModelColumns };
+  leadNames: string[];
+  poles: {
+    energy: number;
+    width: number;
+    petermann: number;
+    partialWidths: number[];
+    bound: boolean;
+    residual: number;
+    nearThreshold: { threshold: number; distanceInWidths: number } | null;
+    mode: Float64Array;
+  }[];
+  /** PNGs per pole: [thumb, full]. */
+  images: Uint8Array[][];
+  provenance: Record<string, unknown>;
+  tags: string[];
+  notes: string;
+}
 
 export function resonanceNotFound(): ApiError {
   return new ApiError(404, 'not_found', 'No such resonance in this group.');
@@ -165,6 +195,69 @@ export class CatalogueService {
     // Tags and notes feed the tag and text filters: their cached totals are stale now.
     this.counter.forgetGroup(groupId);
     return result;
+  }
+
+  /**
+   * Files computed poles that no run produced (a parameter-study step kept as a model
+   * version) under that version, with their modes and mode images, inside the caller's
+   * transaction: the version and its catalogue rows land together or not at all. Each row
+   * carries `details.provenance` (where the poles were computed), the validity figures of
+   * the version's document and the overlap flag a run's poles get. Returns the new ids;
+   * call `forgetCounts` after the transaction commits.
+   */
+  async fileComputedPoles(tx: Queryable, input: FiledPoles): Promise<string[]> {
+    const physics = resonancePhysicsOfDocument(input.model.document);
+    const c = input.model.columns;
+    const ids: string[] = [];
+    for (let k = 0; k < input.poles.length; k++) {
+      const p = input.poles[k];
+      const figures = resonanceFigures(p.energy, p.width, physics);
+      const id = await insertFiledPole(
+        tx,
+        {
+          groupId: input.groupId,
+          modelId: input.model.id,
+          modelVersionId: input.model.versionId,
+          energy: p.energy,
+          width: p.width,
+          lifetimePs: p.bound ? null : figures.lifetimePs,
+          quality: p.bound ? null : figures.quality,
+          partialWidths: p.partialWidths.map((w, l) => ({ lead: input.leadNames[l] ?? `lead ${l}`, width: w })),
+          petermann: p.petermann,
+          residual: p.residual,
+          bound: p.bound,
+          nearThreshold: p.nearThreshold !== null,
+          overlapping: isOverlapping(input.poles, k),
+          validityLimit: figures.validity.limit,
+          wavelengthSpacings: figures.validity.wavelengthSpacings,
+          aboveValidity: figures.validity.aboveLimit,
+          physics: figures.physics,
+          frequencyGhz: figures.frequencyGhz,
+          details: { nearThreshold: p.nearThreshold, provenance: input.provenance },
+          tags: input.tags,
+          notes: input.notes,
+          modelName: input.model.name,
+          modelVersion: input.model.version,
+          family: c.family,
+          material: c.material,
+          fieldT: c.fieldT,
+          spacingNm: c.spacingNm,
+          ...geometryOf(c),
+        },
+        p.mode,
+        [
+          { size: 'thumb', png: input.images[k][0] },
+          { size: 'full', png: input.images[k][1] },
+        ],
+      );
+      ids.push(id);
+    }
+    return ids;
+  }
+
+  /** Drops the cached catalogue totals of a group (after rows were added outside a run). */
+  forgetCounts(groupId: string): void {
+    this.counter.forgetGroup(groupId);
   }
 
   /** The PNG (null when the caller's ETag is current) and its ETag; 404 when there is none. */

@@ -12,13 +12,15 @@ import { estimateRun, type RunEstimate } from '../runs/run-estimate.js';
 import type { RunRequest } from '../runs/run-window.js';
 import { buildLayoutFiles, type LayoutFiles } from '../fabrication/layout-files.js';
 import { renderSpecSheet, type SpecSheetInput } from '../fabrication/spec-sheet.js';
+import { renderModePng, type ModeLattice } from '../catalogue/mode-image.js';
 
 export type ComputeTask =
   | { kind: 'check-model'; document: unknown }
   | { kind: 'mask-from-bitmap'; file: Uint8Array; spacingNm: number; widthNm: number; maxSites: number }
   | { kind: 'estimate-run'; document: unknown; request: Pick<RunRequest, 'kind' | 'window'> }
   | { kind: 'device-layout'; document: unknown; title: string; structureName: string; time: Date }
-  | { kind: 'spec-sheet'; input: SpecSheetInput };
+  | { kind: 'spec-sheet'; input: SpecSheetInput }
+  | { kind: 'mode-images'; lattice: ModeLattice; modes: Float64Array[]; sides: number[] };
 
 /** What each task kind answers. */
 export interface ComputeAnswers {
@@ -27,6 +29,8 @@ export interface ComputeAnswers {
   'estimate-run': RunEstimate;
   'device-layout': LayoutFiles;
   'spec-sheet': Uint8Array;
+  /** One PNG per mode and side, in the order asked. */
+  'mode-images': Uint8Array[][];
 }
 
 export interface ComputeProblem {
@@ -58,6 +62,14 @@ function compute(task: ComputeTask): unknown {
     case 'spec-sheet':
       // Font parsing and subsetting take a second or two of CPU under load: never on the API thread.
       return renderSpecSheet(task.input).then((pdf) => new Uint8Array(pdf.buffer, pdf.byteOffset, pdf.byteLength));
+    case 'mode-images':
+      // PNG encoding of full-size mode images takes tens of ms each: never on the API thread.
+      return task.modes.map((mode) =>
+        task.sides.map((maxSide) => {
+          const png = renderModePng(task.lattice, mode, { maxSide });
+          return new Uint8Array(png.buffer, png.byteOffset, png.byteLength);
+        }),
+      );
   }
 }
 

@@ -26,7 +26,7 @@ export const FULL_SIDE = 720;
  * not orthogonal to its neighbours). A narrow pole on a broad one's flank is
  * flagged too: its transmission peak is Fano-shaped, not Breit–Wigner.
  */
-export function isOverlapping(poles: readonly Pole[], k: number): boolean {
+export function isOverlapping(poles: readonly Pick<Pole, 'energy' | 'width' | 'petermann'>[], k: number): boolean {
   const p = poles[k];
   if (p.petermann > OVERLAP_PETERMANN) return true;
   return poles.some((q, j) => j !== k && Math.abs(q.energy - p.energy) < 0.5 * (p.width + q.width));

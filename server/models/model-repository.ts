@@ -129,8 +129,12 @@ export async function insertVersion(
   userId: string,
   checked: Pick<CheckedModel, 'model' | 'columns' | 'derived'>,
 ) {
-  await q.insert(modelVersions).values({ groupId, modelId, version, createdBy: userId, document: checked.model, derived: checked.derived, ...checked.columns });
+  const [row] = await q
+    .insert(modelVersions)
+    .values({ groupId, modelId, version, createdBy: userId, document: checked.model, derived: checked.derived, ...checked.columns })
+    .returning({ id: modelVersions.id });
   await q.update(cavityModels).set({ latestVersion: version, updatedAt: new Date() }).where(eq(cavityModels.id, modelId));
+  return row.id;
 }
 
 /** Locks the model row so two concurrent edits cannot both write version n+1. */

@@ -1,11 +1,11 @@
-import type { Db } from '../db/client.js';
+import type { Db, Queryable } from '../db/client.js';
 import { writeAudit } from '../audit/audit-log.js';
 import { ApiError } from '../http/error-handler.js';
 import type { Compute } from '../compute/compute-pool.js';
 import * as repo from './model-repository.js';
 import type { DerivedFigures } from '../../shared/model/derived-figures.js';
 import type { CavityModel } from '../../shared/model/cavity-model.js';
-import { figuresOfStored } from './model-figures.js';
+import { figuresOfStored, type ModelColumns } from './model-figures.js';
 
 export function modelNotFound(): ApiError {
   return new ApiError(404, 'not_found', 'No such cavity model in this group.');
@@ -85,13 +85,24 @@ export class ModelService {
     return this.detail(groupId, id);
   }
 
-  async update(groupId: string, userId: string, modelId: string, document: unknown, signal?: AbortSignal) {
+  /**
+   * Writes the next version. `onSaved` runs last in the same transaction (a study files the
+   * saved step's resonances there, so the version and its catalogue rows land together or not at all).
+   */
+  async update(
+    groupId: string,
+    userId: string,
+    modelId: string,
+    document: unknown,
+    signal?: AbortSignal,
+    onSaved?: (tx: Queryable, saved: SavedVersion) => Promise<void>,
+  ) {
     const checked = await this.check(document, signal);
     await this.db.transaction(async (tx) => {
       const current = await repo.lockModel(tx, groupId, modelId);
       if (!current) throw modelNotFound();
       const version = current.latestVersion + 1;
-      await repo.insertVersion(tx, groupId, modelId, version, userId, checked);
+      const versionId = await repo.insertVersion(tx, groupId, modelId, version, userId, checked);
       if (checked.model.name !== current.name) await repo.renameModel(tx, modelId, checked.model.name);
       await writeAudit(tx, {
         groupId,
@@ -100,9 +111,27 @@ export class ModelService {
         subject: `${checked.model.name} v${version}`,
         details: { modelId, version },
       });
+      await onSaved?.(tx, { modelId, versionId, version, name: checked.model.name, document: checked.model, columns: checked.columns });
     });
     return this.detail(groupId, modelId);
   }
+
+  /** One version of a group's model (the latest when `version` is left out) with its stored columns; 404 when there is none. */
+  async versionRecord(groupId: string, modelId: string, version?: number) {
+    const v = await repo.findVersion(this.db, groupId, modelId, version);
+    if (!v) throw version ? new ApiError(404, 'not_found', `This model has no version ${version}.`) : modelNotFound();
+    return v;
+  }
+}
+
+/** A version just written, as `update`'s onSaved hook sees it. */
+export interface SavedVersion {
+  modelId: string;
+  versionId: string;
+  version: number;
+  name: string;
+  document: CavityModel;
+  columns: ModelColumns;
 }
 
 /**

@@ -10,6 +10,7 @@ import { ensembleStatistics, type RealisationOutcome } from '../../shared/engine
 import type { RealisationRecord } from '../../shared/engine/study/ensemble-definition.js';
 import { poleReport, studyReport } from '../../shared/engine/study/study-report.js';
 import type { StepResult, StepSearch } from '../../shared/engine/study/study-step.js';
+import type { StepTransmission } from '../../shared/engine/study/study-transmission.js';
 import { decodeContinuation, decodeSearch, type StoredContinuation, type StoredSearch } from './step-codec.js';
 import type { StudyDefinitionStored } from './study-step-task.js';
 
@@ -18,6 +19,8 @@ export interface EndedStep {
   status: string;
   search: StoredSearch | null;
   continuation: StoredContinuation | null;
+  /** The step's stored transmission-map row (any column count; only the study's own count is used). */
+  transmission?: StepTransmission | null;
   record: Record<string, unknown> | null;
   error: string | null;
 }
@@ -45,6 +48,7 @@ export function assembleOutcome(def: StudyDefinitionStored, steps: EndedStep[]):
         continued: c ? c.continued : null,
         continuationFailures: c?.failures ?? 0,
         continuationFactorisations: c?.factorisations ?? 0,
+        transmission: s?.transmission && s.transmission.points === def.study.transmissionPoints ? s.transmission : null,
       });
     }
     const report = studyReport(def.study, assembleStudy(def.study, results));

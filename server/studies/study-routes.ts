@@ -33,8 +33,8 @@ export function studyRoutes(service: StudyService): Router {
     service.save(params.groupId, signedInUser(req).id, params.studyId, Number(params.index), clientGone(res)),
   );
   mountRoute(router, exportStudyRoute, async ({ params, query }, _req, res) => {
-    const out = await service.exportRows(params.groupId, params.studyId);
-    const name = `study-${params.studyId.slice(0, 8)}`;
+    const out = await service.exportRows(params.groupId, params.studyId, query.table);
+    const name = `study-${params.studyId.slice(0, 8)}${query.table === 'transmission' ? '-transmission' : ''}`;
     if (query.format === 'json') {
       res.setHeader('Content-Disposition', `attachment; filename="${name}.json"`);
       res.type('application/json').send(JSON.stringify(out.json));
@@ -44,6 +44,7 @@ export function studyRoutes(service: StudyService): Router {
     const notes = [
       '# Poleward study export. Energies and widths in meV.',
       '# Rows of uncertified steps (certified=false) may miss poles; see docs/physics-model.md.',
+      ...out.notes,
     ];
     res.setHeader('Content-Disposition', `attachment; filename="${name}.csv"`);
     res.type('text/csv').send([...notes, out.header.join(','), ...out.rows.map((r) => r.map(csvCell).join(','))].join('\n') + '\n');

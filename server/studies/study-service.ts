@@ -13,13 +13,14 @@ import { cavityModels, modelVersions } from '../db/schema/models.js';
 import { users } from '../db/schema/users.js';
 import { ApiError } from '../http/error-handler.js';
 import type { Compute } from '../compute/compute-pool.js';
-import { findVersion } from '../models/model-repository.js';
-import { modelNotFound, type ModelService } from '../models/model-service.js';
+import type { ModelService } from '../models/model-service.js';
+import { FILED_IMAGE_SIDES, type CatalogueService } from '../catalogue/catalogue-service.js';
 import { checkEnsembleDefinition, type EnsembleDefinition } from '../../shared/engine/study/ensemble-definition.js';
 import { checkStudyDefinition, studyStepCount, studyStepModel, studyStepSpec, type StudyDefinition } from '../../shared/engine/study/study-definition.js';
 import { rangeValues } from '../../shared/engine/study/parameter-values.js';
+import { DEFAULT_MAP_POINTS } from '../../shared/engine/study/study-transmission.js';
 import { poleReport } from '../../shared/engine/study/study-report.js';
-import type { StudyRequest } from '../../shared/api/studies.js';
+import type { EnsembleOutcome, StudyRequest, SweepOutcome } from '../../shared/api/studies.js';
 import { decodeSearch, type StoredSearch } from './step-codec.js';
 import type { StudyQueue } from './study-queue.js';
 import type { StudyDefinitionStored } from './study-step-task.js';
@@ -36,12 +37,11 @@ export class StudyService {
     private readonly queue: StudyQueue | null,
     private readonly compute: Compute,
     private readonly models: ModelService,
+    private readonly catalogue: CatalogueService,
   ) {}
 
-  private async version(groupId: string, req: Pick<StudyRequest, 'modelId' | 'version'>) {
-    const v = await findVersion(this.db, groupId, req.modelId, req.version);
-    if (!v) throw req.version ? new ApiError(404, 'not_found', `This model has no version ${req.version}.`) : modelNotFound();
-    return v;
+  private version(groupId: string, req: Pick<StudyRequest, 'modelId' | 'version'>) {
+    return this.models.versionRecord(groupId, req.modelId, req.version);
   }
 
   /** The engine's definition of the request on this document; 400 naming the field when a path or value is wrong. */
@@ -57,6 +57,7 @@ export class StudyService {
           })),
           window: req.window,
           search,
+          transmissionPoints: req.transmissionPoints ?? DEFAULT_MAP_POINTS,
         };
         checkStudyDefinition(study);
         return { kind: 'sweep', study };
@@ -244,14 +245,19 @@ export class StudyService {
   }
 
   private async stepRow(groupId: string, studyId: string, index: number) {
-    const { row } = await this.row(groupId, studyId);
+    const { row, modelId, modelName, modelVersion } = await this.row(groupId, studyId);
     if (index >= row.stepCount) throw new ApiError(404, 'not_found', `This study has no step ${index} (it has ${row.stepCount}).`);
     const [step] = await this.db
       .select({ step: studySteps, search: studyStepResults.search })
       .from(studySteps)
       .leftJoin(studyStepResults, eq(studyStepResults.key, studySteps.resultKey))
       .where(and(eq(studySteps.studyId, studyId), eq(studySteps.index, index)));
-    return { study: row, step: step.step, search: (step.search as unknown as StoredSearch | null) ?? null };
+    return {
+      study: row,
+      model: { id: modelId, name: modelName, version: modelVersion },
+      step: step.step,
+      search: (step.search as unknown as StoredSearch | null) ?? null,
+    };
   }
 
   /** The model document of a step: the sweep's parameters set, or the realisation the worker drew. */
@@ -289,22 +295,76 @@ export class StudyService {
     };
   }
 
-  /** Keeps a step's model as a new version of the study's model (checked like any edit). */
+  /**
+   * Keeps a step's model as a new version of the study's model (checked like any edit) and
+   * files the step's poles in the catalogue under that version, with their modes and mode
+   * images and where they came from (study, step, parameter values), in one transaction.
+   * Only a completed step can be kept: its poles are what goes into the catalogue.
+   */
   async save(groupId: string, userId: string, studyId: string, index: number, signal?: AbortSignal) {
-    const { study, step } = await this.stepRow(groupId, studyId, index);
+    const { study, model, step, search } = await this.stepRow(groupId, studyId, index);
+    if (step.status !== 'completed' || !search)
+      throw new ApiError(409, 'not_ready', `Step ${index} has not been computed (it is ${step.status}): only a computed step can be kept with its resonances.`);
     const document = this.stepDocument(study, step);
-    const [mv] = await this.db.select({ modelId: modelVersions.modelId }).from(modelVersions).where(eq(modelVersions.id, study.modelVersionId));
-    const saved = await this.models.update(groupId, userId, mv.modelId, document, signal);
-    return { modelId: mv.modelId, version: saved.versions.reduce((m, v) => Math.max(m, v.version), 0) };
+    const def = study.definition as unknown as StudyDefinitionStored;
+    const decoded = decodeSearch(search);
+    const grid = (document as { grid: { nx: number; ny: number } }).grid;
+    const images = await this.compute.run(
+      {
+        kind: 'mode-images',
+        lattice: { nx: grid.nx, ny: grid.ny, i: decoded.sites.i, j: decoded.sites.j },
+        modes: decoded.poles.map((p) => p.mode),
+        sides: FILED_IMAGE_SIDES,
+      },
+      signal,
+    );
+    const values = def.kind === 'sweep' ? def.study.parameters.map((p, k) => ({ path: p.path, value: studyStepSpec(def.study, index).values[k] })) : [];
+    const where =
+      def.kind === 'sweep'
+        ? values.map((v) => `${v.path} = ${Number(v.value.toPrecision(12))}`).join(', ')
+        : `realisation ${index}${index === 0 ? ' (nominal)' : ''}`;
+    const provenance = {
+      study: { studyId, name: study.name, kind: study.kind, step: index, values, fromModelVersion: model.version, certified: decoded.certified },
+    };
+    let filed = 0;
+    let version = 0;
+    await this.models.update(groupId, userId, model.id, document, signal, async (tx, saved) => {
+      version = saved.version;
+      const ids = await this.catalogue.fileComputedPoles(tx, {
+        groupId,
+        model: { id: saved.modelId, versionId: saved.versionId, name: saved.name, version: saved.version, document: saved.document, columns: saved.columns },
+        leadNames: leadNames(saved.document),
+        poles: decoded.poles,
+        images,
+        provenance,
+        tags: ['study'],
+        notes: `From ${study.kind === 'ensemble' ? 'ensemble' : 'study'} ${study.name || studyId.slice(0, 8)}, step ${index} (${where}) of ${model.name} v${model.version}.${decoded.certified ? '' : ' The step was not certified: it may have missed poles.'}`,
+      });
+      filed = ids.length;
+      await writeAudit(tx, {
+        groupId,
+        actorId: userId,
+        action: 'study.step_saved',
+        subject: `${saved.name} v${saved.version}`,
+        details: { studyId, step: index, version: saved.version, resonances: ids.length },
+      });
+    });
+    this.catalogue.forgetCounts(groupId);
+    return { modelId: model.id, version, resonances: filed, certified: decoded.certified };
   }
 
   /** Trajectory points (a sweep) or samples (an ensemble) as rows. */
-  async exportRows(groupId: string, studyId: string): Promise<{ header: string[]; rows: (string | number | boolean | null)[][]; json: unknown }> {
+  async exportRows(
+    groupId: string,
+    studyId: string,
+    table: 'trajectories' | 'transmission' = 'trajectories',
+  ): Promise<{ header: string[]; rows: (string | number | boolean | null)[][]; json: unknown; notes: string[] }> {
     const { row } = await this.row(groupId, studyId);
     const outcome = row.outcome as Record<string, unknown> | null;
     if (!outcome) throw new ApiError(409, 'not_ready', 'The study has not ended yet: its trajectories or statistics are assembled when the last step ends.');
+    if (table === 'transmission') return transmissionRows(outcome);
     if (outcome.kind === 'sweep') {
-      const o = outcome as unknown as import('../../shared/api/studies.js').SweepOutcome;
+      const o = outcome as unknown as SweepOutcome;
       const header = [
         'line',
         'line_value',
@@ -323,9 +383,9 @@ export class StudyService {
           for (const p of t.points) rows.push([li, l.value, t.id, p.step, p.value, p.energy, p.width, p.link, p.overlap, o.steps[p.step]?.certified ?? null]);
         }
       });
-      return { header, rows, json: outcome };
+      return { header, rows, json: outcome, notes: [] };
     }
-    const o = outcome as unknown as import('../../shared/api/studies.js').EnsembleOutcome;
+    const o = outcome as unknown as EnsembleOutcome;
     const header = [
       'realisation',
       'seed',
@@ -352,8 +412,43 @@ export class StudyService {
       s.record.roughness?.added ?? null,
       s.record.roughness?.removed ?? null,
     ]);
-    return { header, rows, json: outcome };
+    return { header, rows, json: outcome, notes: [] };
   }
+}
+
+/** A sweep's transmission map as rows (line, step, parameter value, energy, T); 409 when the study has none. */
+function transmissionRows(outcome: Record<string, unknown>) {
+  const o = outcome as unknown as SweepOutcome;
+  if (o.kind !== 'sweep' || !o.transmission)
+    throw new ApiError(409, 'no_map', 'This study has no transmission map: an ensemble has none, and a sweep has one only when it asked for map energies.');
+  const map = o.transmission;
+  if (map.from === null) throw new ApiError(409, 'no_map', 'This model has fewer than two leads: there is no transmission to export.');
+  const header = ['line', 'line_value', 'step', o.parameters[0].path, 'energy_meV', 'transmission', 'certified'];
+  const rows: (string | number | boolean | null)[][] = [];
+  const n0 = o.parameters[0].values.length;
+  for (const s of o.steps) {
+    const line = Math.floor(s.index / n0);
+    map.energies.forEach((e, k) => rows.push([line, s.values[1] ?? null, s.index, s.values[0], e, s.transmission?.[k] ?? null, s.certified]));
+  }
+  const notes = [
+    `# Transmission from lead ${map.from} into ${map.into.join(', ')} (summed), in units of one channel (2e²/h per spin-degenerate channel).`,
+    '# Each value is the largest T sampled within half a column of its energy (the sweep refines near narrow resonances).',
+    ...(map.budgetExhaustedSteps.length
+      ? [`# Steps ${map.budgetExhaustedSteps.join(', ')} ran out of sweep energies: a narrow peak there may be drawn too low.`]
+      : []),
+    '# An empty transmission cell: that step did not complete.',
+  ];
+  return {
+    header,
+    rows,
+    json: { transmission: map, steps: o.steps.map((s) => ({ index: s.index, values: s.values, transmission: s.transmission ?? null })) },
+    notes,
+  };
+}
+
+/** Lead names as the engine gives them (a lead without a name: its side and index), for partial widths. */
+function leadNames(document: { leads?: { name?: string; side: string }[] }): string[] {
+  return (document.leads ?? []).map((l, k) => l.name ?? `${l.side}${k}`);
 }
 
 /** The stored definition without the model document (the client has the model). */

@@ -8,6 +8,7 @@ import { InvalidModelError } from '../../shared/engine/effective-hamiltonian.js'
 import { realisationModel, type EnsembleDefinition } from '../../shared/engine/study/ensemble-definition.js';
 import { studyStepModel, studyStepPath, type StudyDefinition } from '../../shared/engine/study/study-definition.js';
 import { continuePoles, searchStep } from '../../shared/engine/study/study-step.js';
+import { stepTransmission, type StepTransmission } from '../../shared/engine/study/study-transmission.js';
 import { ENGINE_VERSION } from '../jobs/engine-task.js';
 import { decodeSearch, encodeContinuation, encodeSearch, type StoredContinuation, type StoredSearch } from './step-codec.js';
 
@@ -18,12 +19,18 @@ export interface StudyStepTask {
   index: number;
   /** The stored search of an identical step, when there is one. */
   reuse: StoredSearch | null;
+  /** The stored transmission-map row of that step, when it has the column count this study asks for. */
+  reuseTransmission?: StepTransmission | null;
 }
 
 export interface StudyStepOutput {
   search: StoredSearch | null;
   continuation: StoredContinuation | null;
   record: Record<string, unknown> | null;
+  /** The step's row of the transmission map (a sweep asking for one); null when not asked for or without two leads. */
+  transmission: StepTransmission | null;
+  /** True when `transmission` was computed here (not taken from the stored identical step). */
+  transmissionComputed: boolean;
   /** An invalid realised model (a jittered lead past the edge): the step ends, counted as not followed. */
   invalid: string | null;
   seconds: number;
@@ -57,6 +64,8 @@ export function runStudyStepTask(task: StudyStepTask, signal?: AbortSignal): Stu
       return {
         search: null,
         continuation: null,
+        transmission: null,
+        transmissionComputed: false,
         record,
         invalid: err.issues.map((i) => `${i.path.join('.')}: ${i.message}`).join('; '),
         seconds: (performance.now() - started) / 1000,
@@ -65,9 +74,27 @@ export function runStudyStepTask(task: StudyStepTask, signal?: AbortSignal): Stu
     throw err;
   }
   let continuation: StoredContinuation | null = null;
+  let transmission: StepTransmission | null = null;
+  let transmissionComputed = false;
   if (task.definition.kind === 'sweep') {
-    const path = studyStepPath(task.definition.study, task.index);
+    const study = task.definition.study;
+    const path = studyStepPath(study, task.index);
     if (path) continuation = encodeContinuation(continuePoles(search, path, { signal }));
+    if (study.transmissionPoints) {
+      if (task.reuseTransmission?.points === study.transmissionPoints) transmission = task.reuseTransmission;
+      else {
+        transmission = stepTransmission(model, study.window, study.transmissionPoints, { signal });
+        transmissionComputed = true;
+      }
+    }
   }
-  return { search: encodeSearch(search), continuation, record, invalid: null, seconds: (performance.now() - started) / 1000 };
+  return {
+    search: encodeSearch(search),
+    continuation,
+    transmission,
+    transmissionComputed,
+    record,
+    invalid: null,
+    seconds: (performance.now() - started) / 1000,
+  };
 }

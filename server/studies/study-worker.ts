@@ -24,6 +24,7 @@ import type { StudyStepJobData } from './study-queue.js';
 import { runStudyStepInThread, StudyStepError } from './study-step-runner.js';
 import { stepDocument, stepResultKey, type StudyDefinitionStored, type StudyStepOutput, type StudyStepTask } from './study-step-task.js';
 import type { StoredSearch } from './step-codec.js';
+import type { StepTransmission } from '../../shared/engine/study/study-transmission.js';
 
 export interface StudyWorkerOptions {
   db: Db;
@@ -98,21 +99,30 @@ export async function handleStudyStepJob(
   try {
     let key: string | null = null;
     let reuse: StoredSearch | null = null;
+    let reuseTransmission: StepTransmission | null = null;
     try {
       const { model } = stepDocument(definition, job.index);
       key = stepResultKey(definition, model);
-      const [stored] = await db.select({ search: studyStepResults.search }).from(studyStepResults).where(eq(studyStepResults.key, key));
+      const [stored] = await db
+        .select({ search: studyStepResults.search, transmission: studyStepResults.transmission })
+        .from(studyStepResults)
+        .where(eq(studyStepResults.key, key));
       reuse = (stored?.search as unknown as StoredSearch | undefined) ?? null;
+      reuseTransmission = (stored?.transmission as unknown as StepTransmission | null | undefined) ?? null;
     } catch {
       key = null; // an invalid realised model: the thread reports it
     }
-    const output = await (o.compute ?? runStudyStepInThread)({ definition, index: job.index, reuse }, controller.signal);
+    const output = await (o.compute ?? runStudyStepInThread)({ definition, index: job.index, reuse, reuseTransmission }, controller.signal);
+    const transmission = output.transmissionComputed && output.transmission ? (output.transmission as unknown as Record<string, unknown>) : null;
     const ended = await db.transaction(async (tx) => {
       if (output.search && key && !reuse) {
         await tx
           .insert(studyStepResults)
-          .values({ key, engineVersion: ENGINE_VERSION, search: output.search as unknown as Record<string, unknown> })
+          .values({ key, engineVersion: ENGINE_VERSION, search: output.search as unknown as Record<string, unknown>, transmission })
           .onConflictDoNothing();
+      } else if (key && transmission) {
+        // A stored step computed without a map, or with another column count: the map row is added to it.
+        await tx.update(studyStepResults).set({ transmission }).where(eq(studyStepResults.key, key));
       }
       return tx
         .update(studySteps)
@@ -181,6 +191,7 @@ export async function finishStudy(db: Db, studyId: string): Promise<boolean> {
         index: studySteps.index,
         status: studySteps.status,
         search: studyStepResults.search,
+        transmission: studyStepResults.transmission,
         continuation: studySteps.continuation,
         record: studySteps.record,
         error: studySteps.error,
@@ -193,6 +204,7 @@ export async function finishStudy(db: Db, studyId: string): Promise<boolean> {
       status: r.status,
       search: r.status === 'completed' ? ((r.search as unknown as EndedStep['search']) ?? null) : null,
       continuation: r.status === 'completed' ? ((r.continuation as unknown as EndedStep['continuation']) ?? null) : null,
+      transmission: r.status === 'completed' ? ((r.transmission as unknown as EndedStep['transmission']) ?? null) : null,
       record: r.record ?? null,
       error: r.error,
     }));

@@ -53,6 +53,13 @@ export const sweepRequestSchema = z.object({
   parameters: z.array(studyParameterSchema).min(1).max(2),
   window: studyWindowSchema,
   search: searchOptions,
+  transmissionPoints: z
+    .number()
+    .int()
+    .min(0)
+    .max(400)
+    .optional()
+    .meta({ description: 'Energies per step of the transmission map T(E, p) over the window; 0: no map; default 80' }),
 });
 
 export const ensembleRequestSchema = z.object({
@@ -176,6 +183,18 @@ export const trajectorySchema = z.object({
 });
 export type Trajectory = z.infer<typeof trajectorySchema>;
 
+export const transmissionMapSchema = z.object({
+  /** Column energies (meV), evenly spaced over the window; each value is the largest T sampled within half a column of it. */
+  energies: z.array(z.number()),
+  /** The lead the transmission leaves from and those it enters (T summed over them); null: fewer than two leads. */
+  from: z.string().nullable(),
+  into: z.array(z.string()),
+  worstCurrentResidual: z.number(),
+  /** Steps whose adaptive sweep ran out of energies with intervals still flagged (a peak may be lower than drawn). */
+  budgetExhaustedSteps: z.array(z.number().int()),
+});
+export type TransmissionMap = z.infer<typeof transmissionMapSchema>;
+
 export const sweepOutcomeSchema = z.object({
   kind: z.literal('sweep'),
   parameters: z.array(z.object({ path: z.string(), values: z.array(z.number()) })),
@@ -190,8 +209,12 @@ export const sweepOutcomeSchema = z.object({
       factorisations: z.number(),
       coveredByContinuation: z.boolean(),
       poles: z.array(poleSchema),
+      /** The step's row of the transmission map (one value per `transmission.energies`); null without a map. */
+      transmission: z.array(z.number()).nullable().optional(),
     }),
   ),
+  /** The transmission map's columns and leads; null when the study asked for no map (absent in studies from before maps). */
+  transmission: transmissionMapSchema.nullable().optional(),
   lines: z.array(z.object({ value: z.number().nullable(), trajectories: z.array(trajectorySchema), marks: z.array(trajectoryMarkSchema) })),
   fullSearchFraction: z.number(),
   units: z.object({ energy: z.string(), width: z.string(), lifetime: z.string() }),
@@ -283,7 +306,15 @@ export const studyStepDetailSchema = z.object({
 });
 export type StudyStepDetail = z.infer<typeof studyStepDetailSchema>;
 
-export const savedStepSchema = z.object({ modelId: z.uuid(), version: z.number().int() });
+export const savedStepSchema = z.object({
+  modelId: z.uuid(),
+  version: z.number().int(),
+  /** Resonances of the step filed in the catalogue under the new version. */
+  resonances: z.number().int(),
+  /** Whether the step's search was certified (an uncertified step may have missed poles). */
+  certified: z.boolean(),
+});
+export type SavedStep = z.infer<typeof savedStepSchema>;
 
 const studyParams = z.object({ groupId: z.uuid(), studyId: z.uuid() });
 const stepParams = z.object({ groupId: z.uuid(), studyId: z.uuid(), index: z.string().regex(/^\d{1,4}$/, 'a step number (0, 1, 2, …)') });
@@ -366,7 +397,9 @@ export const saveStudyStepRoute = declareRoute({
   path: '/groups/{groupId}/studies/{studyId}/steps/{index}/save',
   access: 'designer',
   tag: 'studies',
-  summary: "Keep a step's model as a new version of the study's model",
+  summary: "Keep a step's model as a new version of the study's model and file its resonances in the catalogue",
+  notes:
+    'The version and the catalogue rows (with mode images and details.provenance.study: study id, step, parameter values) are written in one transaction. 409 when the step has not completed.',
   params: stepParams,
   answer: json(201, 'The new version', savedStepSchema),
 });
@@ -378,8 +411,13 @@ export const exportStudyRoute = declareRoute({
   access: 'member',
   tag: 'studies',
   summary: 'Trajectories (a sweep) or samples (an ensemble) as CSV or JSON',
+  notes:
+    "format=json gives the whole outcome (trajectories, marks, every step's poles and transmission-map row). In CSV, table=transmission gives a sweep's map T(E, p) as one row per step and energy instead of the trajectory points.",
   params: studyParams,
-  query: z.object({ format: z.enum(['csv', 'json']).default('csv') }),
+  query: z.object({
+    format: z.enum(['csv', 'json']).default('csv'),
+    table: z.enum(['trajectories', 'transmission']).default('trajectories'),
+  }),
   answer: media(200, 'text/csv', 'CSV (or JSON with format=json)', z.string()),
 });
 

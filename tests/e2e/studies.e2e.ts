@@ -1,6 +1,7 @@
 // A parameter study in a real browser: the demo designer runs a three-step field sweep
-// of a small dot, watches its steps, sees the trajectories, opens a step and keeps it
-// as a new version of the model.
+// of a small dot, watches its steps, sees the trajectories and the transmission map,
+// follows a resonance step by step and keeps a step as a new version of the model, whose
+// resonances then show in the catalogue.
 import type { Browser, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import { smallDot } from '../server/fixtures/small-dot.js';
@@ -70,17 +71,37 @@ describe('a field study from the launcher to a saved version', () => {
     expect(await page.locator('[data-test="plane-chart"] svg path').count()).toBeGreaterThan(2);
     expect(await page.locator('[data-test="steps"] button').count()).toBe(3);
     expect(await page.locator('[data-test="export-csv"]').getAttribute('href')).toContain('/export?format=csv');
+    // The transmission map T(E, p) is drawn (the two-lead dot: T source → drain), with its own CSV.
+    const map = page.locator('[data-test="transmission-map"]');
+    await map.scrollIntoViewIfNeeded();
+    expect(await map.getAttribute('aria-label')).toContain('T source → drain');
+    expect(await map.getAttribute('aria-label')).toContain('3 steps');
+    expect(await page.locator('[data-test="export-map"]').getAttribute('href')).toContain('table=transmission');
+    // The canvas is really painted: its centre pixel is not transparent.
+    const painted = await map.evaluate((c: HTMLCanvasElement) => c.getContext('2d')!.getImageData(c.width / 2, c.height / 2, 1, 1).data[3]);
+    expect(painted).toBe(255);
     await screenshot(page, 'study-trajectories');
+    await map.screenshot({ path: 'test-output/screenshots/study-transmission-map.png' });
   });
 
-  it('opens a step with its mode densities and saves it as a new version of the model', async () => {
-    await page.locator('[data-step="1"]').click();
+  it('follows a resonance step by step, then saves a step as a new version with its resonances in the catalogue', async () => {
+    // Follow the first trajectory: its first step opens with the followed resonance's mode first.
+    await page.locator('[data-test="follow"]').click();
+    await page.getByRole('option', { name: /Trajectory 0/ }).click();
     const panel = page.locator('[data-test="step-panel"]');
     await panel.waitFor({ timeout: 15_000 });
+    await expect.poll(() => panel.locator('[data-test="followed"]').textContent(), { timeout: 15_000 }).toContain('Trajectory 0 at this step');
+    await expect.poll(() => panel.textContent()).toContain('field = 0');
+    await panel.locator('[data-test="next-step"]').click();
     await expect.poll(() => panel.textContent(), { timeout: 15_000 }).toContain('field = 0.1');
-    expect(await panel.locator('pw-density-image canvas').count()).toBeGreaterThan(0);
+    await expect.poll(() => panel.locator('[data-test="followed"]').count(), { timeout: 15_000 }).toBe(1);
+    expect(await panel.locator('[data-test="followed"] pw-density-image canvas').count()).toBe(1);
+    expect(await panel.locator('pw-density-image canvas').count()).toBeGreaterThan(1);
+    await panel.scrollIntoViewIfNeeded();
+    await screenshot(page, 'study-followed-step');
     await panel.locator('[data-test="save-step"]').click();
     await expect.poll(() => page.locator('[data-test="saved"]').textContent(), { timeout: 15_000 }).toContain('Saved as version 2');
+    expect(await page.locator('[data-test="saved"]').textContent()).toMatch(/its \d+ resonance\(s\) in the catalogue/);
     await page.locator('[data-test="step-panel"]').scrollIntoViewIfNeeded();
     await screenshot(page, 'study-step-saved');
     // The new version holds the step's field.
@@ -91,5 +112,10 @@ describe('a field study from the launcher to a saved version', () => {
       return v.document.field as number;
     }, modelId);
     expect(field).toBeCloseTo(0.1, 9);
+    // Its resonances are in the catalogue under version 2, tagged "study".
+    await page.locator('[data-test="saved"] a', { hasText: 'See them in the catalogue' }).click();
+    await page.waitForURL(/\/catalogue/);
+    await expect.poll(() => page.locator('body').textContent(), { timeout: 15_000 }).toContain('E2E study dot');
+    await screenshot(page, 'study-step-in-catalogue');
   });
 });

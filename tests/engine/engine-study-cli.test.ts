@@ -47,6 +47,36 @@ describe('engine study command', () => {
     expect(poles).toBeGreaterThan(0);
     expect(points).toBe(poles);
     expect(typeof out.fullSearchFraction).toBe('number');
+    // Without --map-points no map is computed.
+    expect(out.transmission).toBeNull();
+  });
+
+  it('prints the transmission map with --map-points', () => {
+    const r = engine(
+      'study',
+      file,
+      '--param',
+      'potential.0.amplitude',
+      '--values',
+      '0,0.4',
+      '--emin',
+      '24',
+      '--emax',
+      '27',
+      '--gmax',
+      '1',
+      '--map-points',
+      '12',
+    );
+    expect(r.status).toBe(0);
+    const out = JSON.parse(r.stdout);
+    expect(out.transmission.energies).toHaveLength(12);
+    expect(out.transmission.from).toBe('left0');
+    expect(out.transmission.into).toEqual(['right1']);
+    out.steps.forEach((s: { transmission: number[] }) => expect(s.transmission).toHaveLength(12));
+    const bad = engine('study', file, '--ensemble', '2', '--emin', '24', '--emax', '27', '--gmax', '1', '--map-points', '12');
+    expect(bad.status).toBe(2);
+    expect(bad.stderr).toMatch(/--map-points/);
   });
 
   it('prints the samples and statistics of an ensemble', () => {

@@ -57,8 +57,8 @@ describe('parameter study trajectories', () => {
     const both = out.lines[0].trajectories.filter((tr) => tr.points[0].step === 0);
     expect(both.length).toBe(2);
     expect(Math.min(...both.map((tr) => tr.points.length))).toBeGreaterThanOrEqual(7);
-    // Each trajectory keeps one rotation class at every step (different classes cannot mix: the
-    // crossing is exact for the closed disk, a symmetry fact, no source needed).
+    // Each trajectory keeps one rotation class at every step (states of different C4 classes are not
+    // coupled by the Hamiltonian, so their levels cross exactly on the closed disk: common practice, no source).
     const classes = both.map((t) => t.points.map((p) => rotationClass(pole(out, p).mode, out.steps[p.step].sites)));
     classes.forEach((c) => {
       expect(c[0]).not.toBeNull();
@@ -156,9 +156,12 @@ describe('parameter study trajectories', () => {
   });
 
   it('gives Landau levels of a closed disk approaching ħω_c(n + ½) with the lattice correction', () => {
-    // Lattice correction (docs/physics-model.md, "Landau levels on the lattice", first-order
-    // perturbation in the quartic term of the band): E_n ≈ ħω_c(n + ½) − (ħω_c)²(2n² + 2n + 1)/(32t).
-    // ħω_c = ħeB/m* (Ashcroft & Mermin ch. 14; constants CODATA 2018). Disk of 12 sites radius, a = 5 nm.
+    // Landau levels E_n = ħω_c(n + ½), ω_c = eB/m* (Landau & Lifshitz, Quantum Mechanics, §112
+    // "motion in a uniform magnetic field"; Ashcroft & Mermin, Solid State Physics, ch. 14; section
+    // numbers from memory), constants CODATA 2018 (shared/units). Lattice correction
+    // (docs/physics-model.md, "Landau levels on the lattice", derived there by first-order perturbation
+    // in the quartic term of the band): E_n ≈ ħω_c(n + ½) − (ħω_c)²(2n² + 2n + 1)/(32t).
+    // Closed disk of 12 sites radius, a = 5 nm.
     const r = 12;
     const model = {
       name: 'disk',
@@ -195,6 +198,7 @@ describe('parameter study trajectories', () => {
   });
 
   it('finds the second Landau level at 6 T where the corrected formula puts it', () => {
+    // Same formula and sources as above, n = 1.
     const r = 12;
     const model = {
       name: 'disk',

@@ -5,6 +5,7 @@ import { and, eq } from 'drizzle-orm';
 import type PgBoss from 'pg-boss';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { studySteps } from '../../server/db/schema/studies.js';
+import { resonances } from '../../server/db/schema/catalogue.js';
 import { startBoss } from '../../server/jobs/boss.js';
 import { studyQueue } from '../../server/studies/study-queue.js';
 import { runStudyStepTask } from '../../server/studies/study-step-task.js';
@@ -99,6 +100,81 @@ describe('studies API', () => {
     expect(saved.body.version).toBe(2);
     const v2 = await designer.get(`/api/groups/${lab.groupId}/models/${modelId}/versions/2`);
     expect(v2.body.document.potential[0].amplitude).toBeCloseTo(0.4, 12);
+    // The step's poles are in the catalogue under version 2, with where they came from and their mode images.
+    const stepPoles = done.outcome.steps[2].poles as { energy: number; width: number }[];
+    expect(saved.body.resonances).toBe(stepPoles.length);
+    const cat = await viewer.get(`/api/groups/${lab.groupId}/catalogue?tag=study&pageSize=50`);
+    expect(cat.status).toBe(200);
+    const filed = (cat.body.items as { id: string; modelVersion: number; energy: number; width: number; tags: string[]; notes: string }[]).filter(
+      (r) => r.modelVersion === 2,
+    );
+    expect(filed.length).toBe(stepPoles.length);
+    for (const p of stepPoles) {
+      const row = filed.find((r) => Math.abs(r.energy - p.energy) <= 1e-9 * p.energy);
+      expect(row).toBeDefined();
+      expect(Math.abs(row!.width - p.width)).toBeLessThanOrEqual(1e-9 * Math.max(p.width, 1e-12));
+      expect(row!.tags).toContain('study');
+      expect(row!.notes).toContain('potential.0.amplitude = 0.4');
+    }
+    const detail = await viewer.get(`/api/groups/${lab.groupId}/resonances/${filed[0].id}`);
+    expect(detail.status).toBe(200);
+    expect(detail.body.run).toBeNull();
+    expect(detail.body.model).toMatchObject({ id: modelId, version: 2 });
+    const [stored] = await app.handle.db.select({ details: resonances.details }).from(resonances).where(eq(resonances.id, filed[0].id));
+    const provenance = (stored!.details as { provenance: { study: { studyId: string; step: number; values: { path: string; value: number }[] } } }).provenance;
+    expect(provenance.study).toMatchObject({ studyId: created.body.id, step: 2, values: [{ path: 'potential.0.amplitude' }] });
+    expect(provenance.study.values[0].value).toBeCloseTo(0.4, 12);
+    const image = await viewer.get(`/api/groups/${lab.groupId}/resonances/${filed[0].id}/mode.png?size=thumb`);
+    expect(image.status).toBe(200);
+    expect(image.headers['content-type']).toBe('image/png');
+    // A step not computed cannot be kept (nothing to file), and nothing is written.
+    await app.handle.db
+      .update(studySteps)
+      .set({ status: 'failed' })
+      .where(and(eq(studySteps.studyId, created.body.id), eq(studySteps.index, 3)));
+    const refused = await designer.post(`/api/groups/${lab.groupId}/studies/${created.body.id}/steps/3/save`);
+    expect(refused.status).toBe(409);
+    expect((await designer.get(`/api/groups/${lab.groupId}/models/${modelId}`)).body.latestVersion).toBe(2);
+  });
+
+  it('gives the transmission map T(E, p) of a sweep, one row per step, in the outcome and the exports', async () => {
+    const created = await designer.post(`/api/groups/${lab.groupId}/studies`, { ...sweep, modelId, version: 1, transmissionPoints: 30 });
+    expect(created.status).toBe(201);
+    startWorker();
+    const done = await finished(created.body.id);
+    expect(done.status).toBe('completed');
+    const map = done.outcome.transmission;
+    expect(map.energies.length).toBe(30);
+    expect(map.from).toBe('source');
+    expect(map.into).toEqual(['drain']);
+    // Reused searches (the first test's steps) still get their map rows, computed once and stored.
+    expect(done.reusedSteps).toBe(4);
+    done.outcome.steps.forEach((s: { transmission: number[] }) => {
+      expect(s.transmission.length).toBe(30);
+      s.transmission.forEach((t) => expect(t).toBeGreaterThanOrEqual(0));
+    });
+    // The narrow resonance shows as a peak of T near the pole (an isolated pole gives a peak at Re z; common practice, no source).
+    const first = done.outcome.steps[0];
+    const narrow = first.poles.find((p: { width: number }) => p.width < 0.05);
+    const peak = map.energies[first.transmission.indexOf(Math.max(...first.transmission))];
+    expect(Math.abs(peak - narrow.energy)).toBeLessThanOrEqual(2 * (map.energies[1] - map.energies[0]));
+    const csv = await viewer.get(`/api/groups/${lab.groupId}/studies/${created.body.id}/export?format=csv&table=transmission`);
+    expect(csv.status).toBe(200);
+    const lines = csv.text.trim().split('\n');
+    const header = lines.findIndex((l) => l.startsWith('line,'));
+    expect(lines[header]).toBe('line,line_value,step,potential.0.amplitude,energy_meV,transmission,certified');
+    expect(lines.length - header - 1).toBe(4 * 30);
+    expect(csv.text).toMatch(/# Transmission from lead source into drain/);
+    const json = await viewer.get(`/api/groups/${lab.groupId}/studies/${created.body.id}/export?format=json`);
+    expect(JSON.parse(json.text).transmission.energies.length).toBe(30);
+    // A study without a map says so.
+    const none = await designer.post(`/api/groups/${lab.groupId}/studies`, { ...sweep, modelId, version: 1, transmissionPoints: 0 });
+    const plain = await finished(none.body.id);
+    expect(plain.outcome.transmission).toBeNull();
+    expect((await viewer.get(`/api/groups/${lab.groupId}/studies/${none.body.id}/export?table=transmission`)).status).toBe(409);
+    const bad = await designer.post(`/api/groups/${lab.groupId}/studies`, { ...sweep, modelId, transmissionPoints: 1 });
+    expect(bad.status).toBe(400);
+    expect(JSON.stringify(bad.body.issues)).toMatch(/transmissionPoints/);
   });
 
   it('reuses the results of identical steps', async () => {

@@ -98,7 +98,13 @@ describe('a study shared by two worker processes', () => {
       expect(rows.length).toBe(1);
     }
     // Every pole of every step lies on exactly one trajectory of the assembled outcome.
-    const outcome = study.outcome as { steps: { poles: unknown[] }[]; lines: { trajectories: { points: unknown[] }[] }[] };
+    const outcome = study.outcome as {
+      steps: { poles: unknown[]; transmission: number[] | null }[];
+      lines: { trajectories: { points: unknown[] }[] }[];
+      transmission: { energies: number[] };
+    };
+    // Every step's row of the transmission map is there too (the killed step's included).
+    outcome.steps.forEach((s) => expect(s.transmission?.length).toBe(outcome.transmission.energies.length));
     const poles = outcome.steps.reduce((n, s) => n + s.poles.length, 0);
     const points = outcome.lines[0].trajectories.reduce((n, t) => n + t.points.length, 0);
     expect(points).toBe(poles);

@@ -87,11 +87,15 @@ export const studySteps = pgTable(
 /**
  * Pole-search results of study steps, keyed by a hash of (model document, window,
  * search options, engine version): a step identical to one computed before reuses it.
- * `search` holds the poles with their modes (base64 float32) and the site list.
+ * `search` holds the poles with their modes (base64 float32) and the site list;
+ * `transmission` the step's row of the transmission map T(E, p) with its column count
+ * (null until a study asking for a map computed it; a study asking for another column
+ * count computes it again and replaces it).
  */
 export const studyStepResults = pgTable('study_step_results', {
   key: text('key').primaryKey(),
   engineVersion: text('engine_version').notNull(),
   search: jsonb('search').$type<Record<string, unknown>>().notNull(),
+  transmission: jsonb('transmission').$type<Record<string, unknown>>(),
   createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
 });

@@ -10,6 +10,7 @@ import type { PoleWindow } from '../pole-types';
 import { withNumberAtPath, numberAtPath } from './model-path';
 import { MAX_STUDY_STEPS } from './parameter-values';
 import type { StepSearchOptions } from './study-step';
+import { MAX_MAP_POINTS } from './study-transmission';
 
 export interface StudyParameter {
   /** Dotted path into the model document, e.g. `field` or `potential.0.value`. */
@@ -22,6 +23,8 @@ export interface StudyDefinition {
   parameters: StudyParameter[];
   window: PoleWindow;
   search?: StepSearchOptions;
+  /** Columns of the transmission map T(E, p) computed at every step (study-transmission.ts); 0 or left out: no map. */
+  transmissionPoints?: number;
 }
 
 export interface StudyStepSpec {
@@ -52,6 +55,9 @@ export function checkStudyDefinition(def: StudyDefinition): void {
   const w = def.window;
   if (!(w.emax > w.emin)) throw new RangeError('window.emax must be above window.emin');
   if (!(w.gammaMax > 0)) throw new RangeError('window.gammaMax must be positive');
+  const m = def.transmissionPoints ?? 0;
+  if (m !== 0 && (!Number.isInteger(m) || m < 2 || m > MAX_MAP_POINTS))
+    throw new RangeError(`transmissionPoints: 0 (no map) or an integer from 2 to ${MAX_MAP_POINTS}`);
 }
 
 export function studyStepCount(def: StudyDefinition): number {

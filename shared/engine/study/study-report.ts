@@ -9,6 +9,7 @@ import type { EnsembleStatistics } from './ensemble-statistics';
 import type { StudyDefinition } from './study-definition';
 import type { StudyOutcome } from './study-run';
 import type { StepPole } from './study-step';
+import { mapEnergies, type StepTransmission } from './study-transmission';
 
 export function poleReport(p: StepPole) {
   return {
@@ -35,7 +36,9 @@ export function studyReport(def: StudyDefinition, out: StudyOutcome) {
       factorisations: s.factorisations + s.continuationFactorisations,
       coveredByContinuation: s.coveredByContinuation,
       poles: s.poles.map(poleReport),
+      transmission: s.transmission?.values ?? null,
     })),
+    transmission: transmissionMapReport(def, out),
     lines: out.lines.map((l) => ({
       value: l.value,
       trajectories: l.trajectories.map((t) => ({
@@ -51,6 +54,23 @@ export function studyReport(def: StudyDefinition, out: StudyOutcome) {
     })),
     fullSearchFraction: out.fullSearchFraction,
     units: { energy: 'meV', width: 'meV', lifetime: 'ps' },
+  };
+}
+
+/**
+ * The columns and leads of the transmission map T(E, p) (each step's row is in its
+ * `transmission`), or null when the study asked for no map.
+ */
+export function transmissionMapReport(def: StudyDefinition, out: StudyOutcome) {
+  if (!def.transmissionPoints) return null;
+  const rows = out.steps.map((s) => s.transmission).filter((t): t is StepTransmission => !!t);
+  return {
+    energies: mapEnergies(def.window, def.transmissionPoints),
+    /** The first lead and the leads it transmits into; null when the model has fewer than two leads. */
+    from: rows[0]?.from ?? null,
+    into: rows[0]?.into ?? [],
+    worstCurrentResidual: rows.reduce((w, r) => Math.max(w, r.worstCurrentResidual), 0),
+    budgetExhaustedSteps: out.steps.filter((s) => s.transmission?.budgetExhausted).map((s) => s.index),
   };
 }
 

@@ -14,6 +14,7 @@ import {
   type StudyStepSpec,
 } from './study-definition';
 import { computeStep, type StepResult } from './study-step';
+import { stepTransmission } from './study-transmission';
 import { linkTrajectories, type Trajectory } from './trajectory-linking';
 import { trajectoryMarks, type TrajectoryMark } from './trajectory-marks';
 
@@ -39,7 +40,10 @@ export function runStudy(def: StudyDefinition, control?: WorkControl): StudyOutc
   const count = studyStepCount(def);
   const results: StepResult[] = [];
   for (let k = 0; k < count; k++) {
-    results.push(computeStep(studyStepModel(def, k), def.window, def.search ?? {}, studyStepPath(def, k), control));
+    const model = studyStepModel(def, k);
+    const step = computeStep(model, def.window, def.search ?? {}, studyStepPath(def, k), control);
+    if (def.transmissionPoints) step.transmission = stepTransmission(model, def.window, def.transmissionPoints, control);
+    results.push(step);
     control?.onProgress?.('steps', (k + 1) / count);
   }
   return assembleStudy(def, results);

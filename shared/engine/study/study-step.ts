@@ -13,6 +13,7 @@ import { refinePole } from '../pole-refine';
 import { SparseLuPlan } from '../sparse-lu';
 import type { NonlinearOperator, WorkControl } from '../operator';
 import { moveMode, type SiteList } from './mode-overlap';
+import type { StepTransmission } from './study-transmission';
 
 /** The options of every step's pole search (a study uses the same for all steps). */
 export interface StepSearchOptions {
@@ -59,6 +60,8 @@ export interface StepResult extends StepSearch {
   /** Continuations that failed (the pole left the strip, or Newton did not converge). */
   continuationFailures: number;
   continuationFactorisations: number;
+  /** The step's row of the transmission map; null without leads to transmit between, absent when no map was asked for. */
+  transmission?: StepTransmission | null;
 }
 
 /** The certified search of one model (throws InvalidModelError for an invalid document). */

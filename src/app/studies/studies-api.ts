@@ -58,8 +58,8 @@ export class StudiesApi {
   }
 
   /** The export link (a plain GET the browser downloads with the session cookie). */
-  exportUrl(groupId: string, studyId: string, format: 'csv' | 'json'): string {
-    return `${base(groupId)}/studies/${encodeURIComponent(studyId)}/export?format=${format}`;
+  exportUrl(groupId: string, studyId: string, format: 'csv' | 'json', table: 'trajectories' | 'transmission' = 'trajectories'): string {
+    return `${base(groupId)}/studies/${encodeURIComponent(studyId)}/export?format=${format}${table === 'transmission' ? '&table=transmission' : ''}`;
   }
 }
 

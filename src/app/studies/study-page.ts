@@ -56,6 +56,12 @@ export class StudyPage {
   });
   protected readonly csvUrl = computed(() => this.exportUrl('csv'));
   protected readonly jsonUrl = computed(() => this.exportUrl('json'));
+  /** The CSV of the transmission map, when the study has one to export. */
+  protected readonly mapCsvUrl = computed(() => {
+    const groupId = this.group.id();
+    const map = this.sweep()?.transmission;
+    return groupId && map && map.from !== null ? this.api.exportUrl(groupId, this.studyId(), 'csv', 'transmission') : null;
+  });
 
   constructor() {
     effect(() => {

@@ -14,7 +14,9 @@ import { type SavedStep, StudiesApi } from './studies-api';
 
 /**
  * One opened step (or realisation) of a study: its poles with their mode densities, the
- * certificate of its search, and "Save as model version" for designers.
+ * certificate of its search, and "Save as model version" for designers (the version gets
+ * the step's resonances in the catalogue). With a followed trajectory, its resonance at
+ * this step comes first, with buttons to walk along the trajectory step by step.
  */
 @Component({
   selector: 'pw-study-step-panel',
@@ -28,7 +30,11 @@ export class StudyStepPanel {
   readonly index = input.required<number>();
   /** The swept parameter's name, for the heading (none for an ensemble). */
   readonly parameter = input<string | null>(null);
+  /** The followed trajectory at this step: its pole here and its previous and next steps (null: none followed, or not through this step). */
+  readonly followed = input<{ trajectory: number; pole: number; previous: number | null; next: number | null } | null>(null);
   readonly closed = output<void>();
+  /** Another step along the followed trajectory was asked for. */
+  readonly moved = output<number>();
 
   private readonly api = inject(StudiesApi);
   private readonly errors = inject(ErrorReport);

@@ -56,9 +56,11 @@ describe('SweepResult', () => {
     panel.querySelector<HTMLButtonElement>('[data-test=save-step]')!.click();
     const save = http.expectOne(`${stepUrl}/save`);
     expect(save.request.method).toBe('POST');
-    save.flush({ modelId: '5f0c1f3e-2d4a-4b6c-8e9f-0a1b2c3d4e5f', version: 3 });
+    save.flush({ modelId: '5f0c1f3e-2d4a-4b6c-8e9f-0a1b2c3d4e5f', version: 3, resonances: 2, certified: true });
     fixture.detectChanges();
     expect(host.querySelector('[data-test=saved]')!.textContent).toContain('Saved as version 3');
+    expect(host.querySelector('[data-test=saved]')!.textContent).toContain('its 2 resonance(s) in the catalogue');
+    expect(host.querySelector('[data-test=saved]')!.textContent).not.toContain('not certified');
     expect(host.querySelector<HTMLButtonElement>('[data-test=save-step]')!.disabled).toBe(true);
   });
 
@@ -71,5 +73,40 @@ describe('SweepResult', () => {
     fixture.detectChanges();
     expect(host.querySelector('[data-test=step-panel]')).not.toBeNull();
     expect(host.querySelector('[data-test=save-step]')).toBeNull();
+  });
+
+  it('draws the transmission map of the line with its leads, or says why there is none', () => {
+    const { fixture, host } = setUp();
+    const map = host.querySelector('pw-transmission-map canvas')!;
+    expect(map.getAttribute('aria-label')).toContain('T source → drain');
+    expect(map.getAttribute('aria-label')).toContain('3 steps');
+    expect(map.getAttribute('aria-label')).toContain('from 0 to 0.900');
+    fixture.componentRef.setInput('outcome', { ...sampleSweepOutcome, transmission: { ...sampleSweepOutcome.transmission!, from: null, into: [] } });
+    fixture.detectChanges();
+    expect(host.querySelector('pw-transmission-map')).toBeNull();
+    expect(host.querySelector('[data-test=no-map]')!.textContent).toContain('fewer than two leads');
+    fixture.componentRef.setInput('outcome', { ...sampleSweepOutcome, transmission: null });
+    fixture.detectChanges();
+    expect(host.querySelector('[data-test=no-map]')!.textContent).toContain('without a transmission map');
+  });
+
+  it('follows a resonance along its trajectory: its mode first, then the next step', async () => {
+    const { http, fixture, host } = setUp();
+    // A click on trajectory 1's point at step 1 in the complex plane ([E, Im z, p, trajectory, step]).
+    fixture.componentInstance['chartClick']({ seriesName: 'Poles', value: [3.4, -0.035, 0.5, 1, 1] });
+    fixture.detectChanges();
+    await settle();
+    http.expectOne(stepUrl).flush(sampleStep);
+    fixture.detectChanges();
+    const followed = host.querySelector('[data-test=followed]')!;
+    expect(followed.textContent).toContain('Trajectory 1 at this step');
+    // Trajectory 1 runs through pole 1 of every step: here E = 3.4 meV.
+    expect(followed.textContent).toContain('E = 3.4');
+    expect(host.querySelector('[data-pole="1"]')!.classList).toContain('is-followed');
+    expect(host.querySelector<HTMLButtonElement>('[data-test=previous-step]')!.disabled).toBe(false);
+    host.querySelector<HTMLButtonElement>('[data-test=next-step]')!.click();
+    fixture.detectChanges();
+    await settle();
+    http.expectOne(`/api/groups/g1/studies/${studyId}/steps/2`);
   });
 });

@@ -1,0 +1,1 @@
+ALTER TABLE "study_step_results" ADD COLUMN "transmission" jsonb;
