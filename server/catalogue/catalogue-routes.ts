@@ -1,7 +1,7 @@
 import { Router, type Request, type Response } from 'express';
 import { exportCatalogueCsvRoute, exportCatalogueJsonRoute, searchCatalogueRoute } from '../../shared/api/catalogue.js';
 import type { Db } from '../db/client.js';
-import { mountRoute } from '../http/mount-route.js';
+import { jsonText, mountRoute } from '../http/mount-route.js';
 import { sendCatalogueExport, type ExportFormat } from './catalogue-export.js';
 import { toCatalogueFilter, toCataloguePageRequest, type CatalogueFilter } from './catalogue-query.js';
 import { CatalogueService } from './catalogue-service.js';
@@ -16,7 +16,10 @@ export function catalogueRoutes(deps: { db: Db; service?: CatalogueService }): R
   const service = deps.service ?? new CatalogueService(deps.db);
   const router = Router();
 
-  mountRoute(router, searchCatalogueRoute, ({ query }, req) => service.search(req.membership!.groupId, toCataloguePageRequest(query)));
+  mountRoute(router, searchCatalogueRoute, async ({ query }, req) => {
+    const { groupId, catalogueGeneration } = req.membership!;
+    return jsonText(await service.searchText(groupId, toCataloguePageRequest(query), catalogueGeneration));
+  });
 
   // Exports take the group's data away whole: recorded before the first byte goes out.
   async function exportAs(format: ExportFormat, query: Record<string, unknown>, filter: CatalogueFilter, req: Request, res: Response): Promise<void> {

@@ -6,8 +6,10 @@ import { ApiError } from '../http/error-handler.js';
 import type { RowSource } from './catalogue-export.js';
 import type { CatalogueFilter, CataloguePageRequest } from './catalogue-query.js';
 import { CatalogueCounter, type CountPolicy } from './catalogue-count.js';
-import { decodeCursor, encodeCursor, type CursorPosition } from './catalogue-cursor.js';
+import { answerText, CatalogueAnswerCache, type AnswerCacheLimits, type KeptAnswer } from './catalogue-answer-cache.js';
+import { decodeCursor, encodeCursor, searchFingerprint, type CursorPosition } from './catalogue-cursor.js';
 import {
+  catalogueGeneration,
   findModeImage,
   findResonance,
   findResonanceContext,
@@ -43,17 +45,25 @@ function leadsOf(document: unknown): ResonanceDetail['leads'] {
   });
 }
 
+/** What names one page of one search: the filter, the order and the page (by number or cursor). */
+function searchKey(req: CataloguePageRequest): string {
+  return `${searchFingerprint(req)} ${req.sort} ${req.dir} ${req.pageSize} ${req.cursor ?? `page ${req.page ?? 1}`}`;
+}
+
 /** Catalogue rules: searching, exporting, detail, labelling, mode images; everything scoped by group. */
 export class CatalogueService {
   private readonly counter: CatalogueCounter;
+  private readonly answers: CatalogueAnswerCache;
 
-  /** `countPolicy` and `now` (the clock of count ages) are for tests; the defaults serve the app. */
+  /** `countPolicy`, `now` (the clock of count ages) and `answerLimits` are for tests; the defaults serve the app. */
   constructor(
     private readonly db: Db,
     countPolicy?: CountPolicy,
     private readonly now: () => number = Date.now,
+    answerLimits?: AnswerCacheLimits,
   ) {
     this.counter = new CatalogueCounter(db, countPolicy, now);
+    this.answers = new CatalogueAnswerCache(answerLimits);
   }
 
   /** Resolves once background recounts are done (tests; shutdown). */
@@ -62,27 +72,44 @@ export class CatalogueService {
   }
 
   /**
-   * One page of a search: by offset (`page`, the first pages) or by keyset cursor, with
-   * cursors to the next and previous pages either way, and the total with its kind.
-   * The page and the count run at once on two pool connections.
+   * One page of a search as the answer's JSON text: by offset (`page`, the first pages) or
+   * by keyset cursor, with cursors to the next and previous pages either way, and the total
+   * with its kind. `generation` is the group's catalogue generation read with the caller's
+   * membership (before any query of this search); an answer kept under it is answered as it
+   * is (CatalogueAnswerCache). Otherwise the page and the count run at once on two pool
+   * connections. `count=exact` always counts and is never kept.
    */
-  async search(groupId: string, req: CataloguePageRequest): Promise<CatalogueAnswer> {
+  async searchText(groupId: string, req: CataloguePageRequest, generation: number): Promise<string> {
+    const cacheable = req.count === 'estimate';
+    const search = cacheable ? searchKey(req) : '';
+    const hit = cacheable ? this.answers.get(groupId, generation, search) : undefined;
+    if (hit) return answerText(hit, this.now());
     const position = req.cursor !== undefined ? decodeCursor(req.cursor, req) : undefined;
-    const [paged, count] = await Promise.all([this.page(groupId, req, position), this.counter.count(groupId, req, req.count)]);
+    const [paged, count] = await Promise.all([this.page(groupId, req, position), this.counter.count(groupId, req, req.count, generation)]);
     const { rows, page, hasNext, hasPrev } = paged;
     const first = rows[0];
     const last = rows.at(-1);
-    return {
-      items: rows.map((r) => toResonanceRow(r.record)),
-      total: count.total,
-      totalKind: count.kind,
-      countedAt: count.countedAt?.toISOString() ?? null,
-      countAgeSeconds: count.countedAt ? Math.max(0, Math.round((this.now() - count.countedAt.getTime()) / 1000)) : null,
-      page,
-      pageSize: req.pageSize,
-      nextCursor: hasNext && last ? encodeCursor(req, { toward: 'after', key: last.key, page: page + 1 }) : null,
-      prevCursor: hasPrev && first ? encodeCursor(req, { toward: 'before', key: first.key, page: Math.max(1, page - 1) }) : null,
+    const kept: KeptAnswer = {
+      itemsJson: JSON.stringify(rows.map((r) => toResonanceRow(r.record))),
+      rest: {
+        total: count.total,
+        totalKind: count.kind,
+        countedAt: count.countedAt?.toISOString() ?? null,
+        page,
+        pageSize: req.pageSize,
+        nextCursor: hasNext && last ? encodeCursor(req, { toward: 'after', key: last.key, page: page + 1 }) : null,
+        prevCursor: hasPrev && first ? encodeCursor(req, { toward: 'before', key: first.key, page: Math.max(1, page - 1) }) : null,
+      },
+      countedAtMs: count.countedAt?.getTime() ?? null,
     };
+    if (cacheable && count.kind === 'exact') this.answers.set(groupId, generation, search, kept);
+    return answerText(kept, this.now());
+  }
+
+  /** searchText as a value (tests, scripts); reads the group's generation itself unless given. */
+  async search(groupId: string, req: CataloguePageRequest, generation?: number): Promise<CatalogueAnswer> {
+    const text = await this.searchText(groupId, req, generation ?? (await catalogueGeneration(this.db, groupId)));
+    return JSON.parse(text) as CatalogueAnswer;
   }
 
   /** Reads one more row than the page holds to learn whether another page follows. */
@@ -162,8 +189,8 @@ export class CatalogueService {
       });
       return toResonanceRow(after);
     });
-    // Tags and notes feed the tag and text filters: their cached totals are stale now.
-    this.counter.forgetGroup(groupId);
+    // Kept answers and counts of the group are dropped by the next request: the trigger on
+    // resonances raised the group's catalogue generation in this transaction.
     return result;
   }
 
