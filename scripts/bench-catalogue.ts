@@ -208,6 +208,8 @@ export async function benchCatalogue(): Promise<Record<string, number>> {
   const url = server.url(dbName);
   await migrate(url);
   const handle = connectDb(url, 10);
+  // Connections stay open: the CPU per answer is read from the backends alive at the end.
+  handle.pool.options.idleTimeoutMillis = 0;
   const db = handle.db;
   const [existing] = await db.select({ n: sql<number>`count(*)::int` }).from(researchGroups);
   const config = loadConfig({ ...process.env, NODE_ENV: 'test', DATABASE_URL: url, POLEWARD_JWT_SECRET: randomBytes(32).toString('hex') });
@@ -371,36 +373,41 @@ export async function benchCatalogue(): Promise<Record<string, number>> {
     figures.load_connections = 20;
     figures.answer_check_sampled = answerCheckMode() === 'sample' ? 1 : 0;
     console.log(`[bench] answers checked against their schema: ${answerCheckMode() === 'sample' ? 'a sample (as in production)' : 'every one'}`);
+    // BENCH_LOADS picks some of the three loads (default all): repeated,writes,cold.
+    const loads = (process.env.BENCH_LOADS ?? 'repeated,writes,cold').split(',');
     // 1. The seven searches over and over: what many people browsing the same pages ask.
-    await runLoad(`mix of ${paths.length} searches, repeated`, 'load_', { requests: paths.map((p) => ({ method: 'GET', path: p.path })) });
+    if (loads.includes('repeated'))
+      await runLoad(`mix of ${paths.length} searches, repeated`, 'load_', { requests: paths.map((p) => ({ method: 'GET', path: p.path })) });
     // 2. The same, while one resonance of the group is retagged every 500 ms (as a designer or a
     //    run's result writer would): each change drops the group's kept answers and counts.
     const writeEveryMs = 500;
     let writes = 0;
-    await runLoad(
-      `same mix, one write to the group every ${writeEveryMs} ms`,
-      'load_writes_',
-      { requests: paths.map((p) => ({ method: 'GET', path: p.path })) },
-      () => {
-        const timer = setInterval(() => {
-          writes++;
-          void db
-            .execute(
-              sql`update resonances set notes = ${`bench write ${writes}`} where id = (select id from resonances where group_id = ${main.groupId} order by energy offset ${writes % 1000} limit 1)`,
-            )
-            .catch(() => {});
-        }, writeEveryMs);
-        return () => clearInterval(timer);
-      },
-    );
+    if (loads.includes('writes'))
+      await runLoad(
+        `same mix, one write to the group every ${writeEveryMs} ms`,
+        'load_writes_',
+        { requests: paths.map((p) => ({ method: 'GET', path: p.path })) },
+        () => {
+          const timer = setInterval(() => {
+            writes++;
+            void db
+              .execute(
+                sql`update resonances set notes = ${`bench write ${writes}`} where id = (select id from resonances where group_id = ${main.groupId} order by energy offset ${writes % 1000} limit 1)`,
+              )
+              .catch(() => {});
+          }, writeEveryMs);
+          return () => clearInterval(timer);
+        },
+      );
     figures.load_writes_count = writes;
     // 3. Cold: the same seven kinds of search in the same proportions, but no two requests alike
     //    (other windows, bounds, words, tags and deep-page positions), so no answer is ever kept.
-    const distinct = await distinctSearches(db, main.groupId, catalogue, 40_000);
+    const distinct = loads.includes('cold') ? await distinctSearches(db, main.groupId, catalogue, 40_000) : [];
     const file = join(tmpdir(), `poleward-bench-paths-${process.pid}.json`);
     writeFileSync(file, JSON.stringify(distinct));
     try {
-      await runLoad(`cold: ${distinct.length} distinct searches of the same ${paths.length} kinds, none repeated`, 'load_cold_', { distinctPathsFile: file });
+      if (loads.includes('cold'))
+        await runLoad(`cold: ${distinct.length} distinct searches of the same ${paths.length} kinds, none repeated`, 'load_cold_', { distinctPathsFile: file });
     } finally {
       rmSync(file, { force: true });
     }

@@ -48,7 +48,7 @@ export class CatalogueAnswerCache {
 
   set(groupId: string, generation: number, search: string, answer: KeptAnswer): void {
     if (!this.observe(groupId, generation)) return;
-    const chars = answer.itemsJson.length + 400;
+    const chars = answer.itemsJson.length + search.length + 400;
     if (chars > this.limits.maxChars / 8) return;
     const key = `${groupId} ${generation} ${search}`;
     this.drop(key);

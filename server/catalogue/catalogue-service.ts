@@ -45,7 +45,7 @@ function leadsOf(document: unknown): ResonanceDetail['leads'] {
   });
 }
 
-/** What names one page of one search: the filter, the order and the page (by number or cursor). */
+/** What names one page of one search (the filter, the order, the page by number or cursor), for callers without a query string. */
 function searchKey(req: CataloguePageRequest): string {
   return `${searchFingerprint(req)} ${req.sort} ${req.dir} ${req.pageSize} ${req.cursor ?? `page ${req.page ?? 1}`}`;
 }
@@ -75,15 +75,12 @@ export class CatalogueService {
    * One page of a search as the answer's JSON text: by offset (`page`, the first pages) or
    * by keyset cursor, with cursors to the next and previous pages either way, and the total
    * with its kind. `generation` is the group's catalogue generation read with the caller's
-   * membership (before any query of this search); an answer kept under it is answered as it
-   * is (CatalogueAnswerCache). Otherwise the page and the count run at once on two pool
-   * connections. `count=exact` always counts and is never kept.
+   * membership (before any query of this search). The page and the count run at once on
+   * two pool connections. `asked` names the request as it came (its query string): the
+   * answer is kept under it and the generation (CatalogueAnswerCache) when its total is
+   * exact; `count=exact` answers are never kept.
    */
-  async searchText(groupId: string, req: CataloguePageRequest, generation: number): Promise<string> {
-    const cacheable = req.count === 'estimate';
-    const search = cacheable ? searchKey(req) : '';
-    const hit = cacheable ? this.answers.get(groupId, generation, search) : undefined;
-    if (hit) return answerText(hit, this.now());
+  async searchText(groupId: string, req: CataloguePageRequest, generation: number, asked = searchKey(req)): Promise<string> {
     const position = req.cursor !== undefined ? decodeCursor(req.cursor, req) : undefined;
     const [paged, count] = await Promise.all([this.page(groupId, req, position), this.counter.count(groupId, req, req.count, generation)]);
     const { rows, page, hasNext, hasPrev } = paged;
@@ -102,13 +99,25 @@ export class CatalogueService {
       },
       countedAtMs: count.countedAt?.getTime() ?? null,
     };
-    if (cacheable && count.kind === 'exact') this.answers.set(groupId, generation, search, kept);
+    if (req.count === 'estimate' && count.kind === 'exact') this.answers.set(groupId, generation, asked, kept);
     return answerText(kept, this.now());
+  }
+
+  /**
+   * The kept answer of a search asked exactly this way (`asked`: its query string) under the
+   * group's current generation, or undefined. Checked before the query is even validated: a
+   * query string that was answered once is valid, and means the same search, every time.
+   */
+  keptAnswer(groupId: string, generation: number, asked: string): string | undefined {
+    const hit = this.answers.get(groupId, generation, asked);
+    return hit && answerText(hit, this.now());
   }
 
   /** searchText as a value (tests, scripts); reads the group's generation itself unless given. */
   async search(groupId: string, req: CataloguePageRequest, generation?: number): Promise<CatalogueAnswer> {
-    const text = await this.searchText(groupId, req, generation ?? (await catalogueGeneration(this.db, groupId)));
+    const current = generation ?? (await catalogueGeneration(this.db, groupId));
+    const asked = searchKey(req);
+    const text = (req.count === 'estimate' ? this.keptAnswer(groupId, current, asked) : undefined) ?? (await this.searchText(groupId, req, current, asked));
     return JSON.parse(text) as CatalogueAnswer;
   }
 
