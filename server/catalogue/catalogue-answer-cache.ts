@@ -7,6 +7,10 @@ export interface KeptAnswer {
   rest: Omit<CataloguePage, 'items' | 'countAgeSeconds'>;
   /** When the total was counted (ms since the epoch); null for an estimate. */
   countedAtMs: number | null;
+  /** Served until then (ms since the epoch) at most: a `cached` total is kept only until its recount is due… */
+  keepUntilMs: number;
+  /** …or until its count (named so, CatalogueCounter.keyOf) is exact again; null for an exact total. */
+  staleCount: string | null;
 }
 
 export interface AnswerCacheLimits {
@@ -25,8 +29,9 @@ export const defaultAnswerCacheLimits: AnswerCacheLimits = { maxChars: 32_000_00
  * first request that reads a newer generation drops every answer of the group; one that
  * still read an older one (it raced the change) neither reads nor keeps answers.
  *
- * Only answers whose total is exact for the generation are kept (an estimate or an earlier
- * generation's count is answered afresh until its recount lands). Each API process keeps
+ * Answers whose total is exact for the generation are kept while it holds; one whose total
+ * is an earlier generation's count (`cached`, with its age) only until that count is due
+ * for a recount; one with an estimate is not kept. Each API process keeps
  * its own; nothing is shared between groups: the group is the first part of every key.
  */
 export class CatalogueAnswerCache {
@@ -36,11 +41,15 @@ export class CatalogueAnswerCache {
 
   constructor(private readonly limits: AnswerCacheLimits = defaultAnswerCacheLimits) {}
 
-  get(groupId: string, generation: number, search: string): KeptAnswer | undefined {
+  get(groupId: string, generation: number, search: string, nowMs: number): KeptAnswer | undefined {
     if (!this.observe(groupId, generation)) return undefined;
     const key = `${groupId} ${generation} ${search}`;
     const hit = this.entries.get(key);
     if (!hit) return undefined;
+    if (hit.answer.keepUntilMs < nowMs) {
+      this.drop(key);
+      return undefined;
+    }
     this.entries.delete(key); // most recently used last
     this.entries.set(key, hit);
     return hit.answer;

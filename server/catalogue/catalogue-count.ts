@@ -26,7 +26,9 @@ export interface CountPolicy {
   countBelow: number;
   /** …but that count stops after this many rows, so a wrong estimate costs a bounded scan. */
   countCap: number;
-  /** A count of an earlier generation is answered (as `cached`, with its age) up to this age while a recount runs. */
+  /** A large set's count of an earlier generation is answered (as `cached`, with its age) without a recount up to this age… */
+  freshMs: number;
+  /** …and up to this age while a recount runs. */
   staleMs: number;
   /** Cached counts kept (least recently used dropped first). */
   maxEntries: number;
@@ -37,6 +39,7 @@ export interface CountPolicy {
 export const defaultCountPolicy: CountPolicy = {
   countBelow: 2_000,
   countCap: 10_000,
+  freshMs: 30_000,
   staleMs: 10 * 60_000,
   maxEntries: 1_000,
   maxQueued: 16,
@@ -57,8 +60,10 @@ interface CachedCount {
  * resonances, read with the caller's membership on every request): while the generation is
  * the same, the kept count is exact. After a change, a small set (by the last count or the
  * planner's estimate) is counted again on the spot; a large one answers its previous count
- * as `cached` with its age, or the planner's estimate, while one background recount at a
- * time brings it up to date; `count=exact` always counts.
+ * as `cached` with its age, and once that count is older than freshMs, one background
+ * recount at a time brings it up to date. A
+ * large set never counted answers the planner's estimate, and is counted in the background
+ * once it is asked for a second time; `count=exact` always counts.
  *
  * Each API process keeps its own counts; the generation comes from the database, so a
  * change made anywhere (another API process, a worker, a restore) is seen by the next request.
@@ -66,6 +71,8 @@ interface CachedCount {
 export class CatalogueCounter {
   private readonly cache = new Map<string, CachedCount>();
   private readonly queued = new Map<string, { groupId: string; filter: CatalogueFilter; generation: number }>();
+  /** When each search last got an estimate (least recently asked dropped first). */
+  private readonly asked = new Map<string, number>();
   private running = false;
 
   constructor(
@@ -75,8 +82,18 @@ export class CatalogueCounter {
   ) {}
 
   /** `generation`: the group's catalogue generation, read before this call (never after the count). */
+  /** The name of a search's count (group and filter). */
+  static keyOf(groupId: string, filter: CatalogueFilter): string {
+    return `${groupId}:${searchFingerprint(filter)}`;
+  }
+
+  /** Whether the count named `key` is exact for `generation` (counted under it or later). */
+  exactFor(key: string, generation: number): boolean {
+    return (this.cache.get(key)?.generation ?? -1) >= generation;
+  }
+
   async count(groupId: string, filter: CatalogueFilter, mode: 'estimate' | 'exact', generation: number): Promise<CatalogueCount> {
-    const key = `${groupId}:${searchFingerprint(filter)}`;
+    const key = CatalogueCounter.keyOf(groupId, filter);
     if (mode === 'exact') return this.countNow(key, groupId, filter, generation);
 
     const hit = this.cache.get(key);
@@ -90,7 +107,9 @@ export class CatalogueCounter {
     if (!knownSmall) {
       const age = hit ? this.now() - hit.countedAt : Infinity;
       if (hit && age <= this.policy.staleMs) {
-        this.recountLater(key, groupId, filter, generation);
+        // Recounted at most every freshMs: a group whose rows change every second (results
+        // arriving, tags set) would otherwise keep the database counting its large sets.
+        if (age > this.policy.freshMs) this.recountLater(key, groupId, filter, generation);
         this.remember(key, hit);
         return { total: hit.total, kind: 'cached', countedAt: new Date(hit.countedAt) };
       }
@@ -106,8 +125,20 @@ export class CatalogueCounter {
       // The planner (or the last count) was wrong: at least this many.
       estimate = Math.max(knownSmall ? await estimateResonances(this.db, groupId, filter) : estimate!, this.policy.countCap + 1);
     }
-    this.recountLater(key, groupId, filter, generation);
+    // Counted in the background only when asked again: a search made once (a window dragged
+    // past, a word half typed) is not worth a full count, and many of them would keep the
+    // database counting rows nobody looks at.
+    if (this.askedBefore(key)) this.recountLater(key, groupId, filter, generation);
     return { total: estimate!, kind: 'estimated', countedAt: null };
+  }
+
+  /** Whether this search was asked for within staleMs before (and notes that it is now). */
+  private askedBefore(key: string): boolean {
+    const last = this.asked.get(key);
+    this.asked.delete(key);
+    this.asked.set(key, this.now());
+    while (this.asked.size > this.policy.maxEntries) this.asked.delete(this.asked.keys().next().value!);
+    return last !== undefined && this.now() - last <= this.policy.staleMs;
   }
 
   /** Resolves when no background recount is queued or running (for tests and orderly shutdown). */

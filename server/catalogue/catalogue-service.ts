@@ -5,7 +5,7 @@ import type { Db } from '../db/client.js';
 import { ApiError } from '../http/error-handler.js';
 import type { RowSource } from './catalogue-export.js';
 import type { CatalogueFilter, CataloguePageRequest } from './catalogue-query.js';
-import { CatalogueCounter, type CountPolicy } from './catalogue-count.js';
+import { CatalogueCounter, defaultCountPolicy, type CountPolicy } from './catalogue-count.js';
 import { answerText, CatalogueAnswerCache, type AnswerCacheLimits, type KeptAnswer } from './catalogue-answer-cache.js';
 import { decodeCursor, encodeCursor, searchFingerprint, type CursorPosition } from './catalogue-cursor.js';
 import {
@@ -58,7 +58,7 @@ export class CatalogueService {
   /** `countPolicy`, `now` (the clock of count ages) and `answerLimits` are for tests; the defaults serve the app. */
   constructor(
     private readonly db: Db,
-    countPolicy?: CountPolicy,
+    private readonly countPolicy: CountPolicy = defaultCountPolicy,
     private readonly now: () => number = Date.now,
     answerLimits?: AnswerCacheLimits,
   ) {
@@ -98,8 +98,10 @@ export class CatalogueService {
         prevCursor: hasPrev && first ? encodeCursor(req, { toward: 'before', key: first.key, page: Math.max(1, page - 1) }) : null,
       },
       countedAtMs: count.countedAt?.getTime() ?? null,
+      keepUntilMs: count.kind === 'cached' ? count.countedAt!.getTime() + this.countPolicy.freshMs : Infinity,
+      staleCount: count.kind === 'cached' ? CatalogueCounter.keyOf(groupId, req) : null,
     };
-    if (req.count === 'estimate' && count.kind === 'exact') this.answers.set(groupId, generation, asked, kept);
+    if (req.count === 'estimate' && count.kind !== 'estimated') this.answers.set(groupId, generation, asked, kept);
     return answerText(kept, this.now());
   }
 
@@ -109,8 +111,10 @@ export class CatalogueService {
    * query string that was answered once is valid, and means the same search, every time.
    */
   keptAnswer(groupId: string, generation: number, asked: string): string | undefined {
-    const hit = this.answers.get(groupId, generation, asked);
-    return hit && answerText(hit, this.now());
+    const hit = this.answers.get(groupId, generation, asked, this.now());
+    // An answer with an old count is not served once a recount (or count=exact) made it exact.
+    if (!hit || (hit.staleCount !== null && this.counter.exactFor(hit.staleCount, generation))) return undefined;
+    return answerText(hit, this.now());
   }
 
   /** searchText as a value (tests, scripts); reads the group's generation itself unless given. */

@@ -215,7 +215,7 @@ describe('keyset paging walks', () => {
 });
 
 describe('totals: exact, cached with its age, or estimated', () => {
-  const policy = { countBelow: 2000, countCap: 10_000, staleMs: 600_000, maxEntries: 100, maxQueued: 4 };
+  const policy = { countBelow: 2000, countCap: 10_000, freshMs: 30_000, staleMs: 600_000, maxEntries: 100, maxQueued: 4 };
 
   /** A change of one of the group's rows, as any process might make it: the trigger raises the generation. */
   async function retagOne(groupId: string, tag: string): Promise<void> {
@@ -245,11 +245,13 @@ describe('totals: exact, cached with its age, or estimated', () => {
     const answer = await service.search(main.groupId, req);
     expect(answer.totalKind).toBe('estimated');
     expect(answer.total).toBeGreaterThan(10);
+    // Asked again: now it is counted in the background.
+    expect((await service.search(main.groupId, req)).totalKind).toBe('estimated');
     await service.settled();
     expect(await service.search(main.groupId, req)).toMatchObject({ totalKind: 'exact', total: await countResonances(handle.db, main.groupId, req) });
   });
 
-  it('estimates a large set, counts it in the background, then: exact while nothing changes, its age after a change until recounted, too old an estimate', async () => {
+  it('estimates a large set, counts it in the background once asked again, then: exact while nothing changes, its age after a change until recounted, too old an estimate', async () => {
     let clock = Date.UTC(2026, 0, 1);
     const service = new CatalogueService(handle.db, { ...policy, countBelow: 100 }, () => clock);
     const req = request('sort=date&dir=desc');
@@ -260,7 +262,10 @@ describe('totals: exact, cached with its age, or estimated', () => {
     expect(first.countedAt).toBeNull();
     expect(first.countAgeSeconds).toBeNull();
     expect(Math.abs(first.total - exact)).toBeLessThan(0.1 * exact);
-
+    // Asked once, it is not counted (a search made once is not worth a full count)…
+    await service.settled();
+    expect((await service.search(main.groupId, req)).totalKind).toBe('estimated');
+    // …asked a second time, it is counted in the background.
     await service.settled();
     clock += 20_000;
     // Nothing changed in the group since the count: it is the number of matches now, with when it was taken.
@@ -268,9 +273,15 @@ describe('totals: exact, cached with its age, or estimated', () => {
     expect(second).toMatchObject({ totalKind: 'exact', total: exact, countAgeSeconds: 20, countedAt: new Date(clock - 20_000).toISOString() });
 
     // A change (here a retag, which does not change this total): the count predates it, so it is
-    // answered as cached with its age while a recount runs…
+    // answered as cached with its age; not recounted while younger than freshMs (30 s)…
     await retagOne(main.groupId, 'large-set-change');
-    clock += 60_000;
+    clock += 5_000;
+    expect(await service.search(main.groupId, req)).toMatchObject({ totalKind: 'cached', total: exact, countAgeSeconds: 25 });
+    await service.settled();
+    clock += 1_000;
+    expect(await service.search(main.groupId, req)).toMatchObject({ totalKind: 'cached', countAgeSeconds: 26 });
+    // …then recounted in the background while still answered with its age.
+    clock += 54_000;
     const third = await service.search(main.groupId, req);
     expect(third).toMatchObject({ totalKind: 'cached', total: exact, countAgeSeconds: 80 });
     await service.settled();
