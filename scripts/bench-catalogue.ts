@@ -4,8 +4,8 @@
 // PostgreSQL, fills it with synthetic but plausible resonances, serves the real app on a
 // loopback port and loads it with autocannon. Prints figures; asserts nothing.
 import { randomBytes } from 'node:crypto';
-import { readFileSync } from 'node:fs';
-import { availableParallelism, loadavg } from 'node:os';
+import { readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { availableParallelism, loadavg, tmpdir } from 'node:os';
 import type { AddressInfo } from 'node:net';
 import { fileURLToPath } from 'node:url';
 import { execFile } from 'node:child_process';
@@ -13,11 +13,12 @@ import { dirname, join } from 'node:path';
 import { sql } from 'drizzle-orm';
 import { createApp } from '../server/app.js';
 import { hashPassword } from '../server/auth/password.js';
-import { decodeCursor, type CursorPosition } from '../server/catalogue/catalogue-cursor.js';
+import { decodeCursor, encodeCursor, type CursorPosition } from '../server/catalogue/catalogue-cursor.js';
 import { catalogueQuerySchema, toCataloguePageRequest, type CataloguePageRequest } from '../server/catalogue/catalogue-query.js';
 import { countQuery, estimateResonances, pageQuery } from '../server/catalogue/catalogue-repository.js';
 import { loadConfig } from '../server/config.js';
 import { connectDb, type Db } from '../server/db/client.js';
+import { answerCheckMode } from '../server/http/answer-check.js';
 import { researchGroups } from '../server/db/schema/groups.js';
 import { ensureDatabase } from './db.js';
 import { migrate } from './migrate.js';
@@ -102,8 +103,98 @@ async function drain(pool: { totalCount: number; idleCount: number; waitingCount
   for (let i = 0; i < 200 && (pool.waitingCount > 0 || pool.idleCount < pool.totalCount); i++) await new Promise((r) => setTimeout(r, 50));
 }
 
+/** xorshift32 (the bench's own fixed sequence, common practice, no source). */
+function sequence(seedValue: number): () => number {
+  let x = seedValue;
+  return () => {
+    x ^= x << 13;
+    x ^= x >>> 17;
+    x ^= x << 5;
+    return (x >>> 0) / 4294967296;
+  };
+}
+
+/**
+ * `count` catalogue searches of the seven kinds of typicalSearches() and the deep page, in turn
+ * (the same proportions as the repeated mix), each with its own values: energy windows, width and
+ * Q bounds, words (prefixes of words the synthetic notes and names use), tags and cursors at random
+ * rows of the group, so no two are the same. Paths as autocannon requests them.
+ */
+async function distinctSearches(db: Db, groupId: string, catalogue: string, count: number): Promise<string[]> {
+  const random = sequence(0x6a09e667);
+  const pick = <T>(items: readonly T[]): T => items[Math.floor(random() * items.length)]!;
+  const rows = (
+    await db.execute(
+      sql`select created_at::text as created, energy, id from resonances where group_id = ${groupId} order by md5(id::text) limit ${Math.ceil(count / 7) + 10}`,
+    )
+  ).rows as { created: string; energy: number; id: string }[];
+  const words = [
+    'whispering',
+    'gallery',
+    'bouncing',
+    'ball',
+    'doublet',
+    'threshold',
+    'coupling',
+    'harrow',
+    'quarry',
+    'billiard',
+    'stadium',
+    'bowtie',
+    'notch',
+    'tapered',
+  ];
+  const tags = ['candidate', 'fabricate', 'high-q', 'bic', 'reviewed', 'symmetric'];
+  const families = ['rectangle', 'disk', 'ellipse', 'stadium', 'annulus', 'polygon'];
+  const prefix = (w: string) => w.slice(0, 3 + Math.floor(random() * (w.length - 2)));
+  const seen = new Set<string>();
+  const out: string[] = [];
+  for (let i = 0; out.length < count && i < count * 2; i++) {
+    let q: string;
+    switch (i % 7) {
+      case 0: {
+        const emin = 0.5 + random() * 30;
+        q = `emin=${emin.toFixed(4)}&emax=${(emin + 0.5 + random()).toFixed(4)}&sort=quality&dir=desc&pageSize=25`;
+        break;
+      }
+      case 1: {
+        const gmin = 10 ** (-3.5 + random() * 1.5);
+        q = `family=${pick(families)}&gmin=${gmin.toPrecision(4)}&gmax=${(gmin * (3 + random() * 20)).toPrecision(4)}&sort=energy&dir=asc&pageSize=25`;
+        break;
+      }
+      case 2:
+        q = `q=${encodeURIComponent(random() < 0.5 ? prefix(pick(words)) : `${prefix(pick(words))} ${prefix(pick(words))}`)}&emin=${(random() * 20).toFixed(3)}&sort=date&dir=desc&pageSize=25`;
+        break;
+      case 3:
+        q = `tag=${encodeURIComponent(pick(tags))}&emax=${(5 + random() * 40).toFixed(4)}&sort=width&dir=asc&pageSize=25`;
+        break;
+      case 4: {
+        const r = rows[Math.floor(i / 7) % rows.length]!;
+        const req = requestOf('sort=date&dir=desc&pageSize=25');
+        q = `sort=date&dir=desc&pageSize=25&cursor=${encodeCursor(req, { toward: 'after', key: [r.created, String(r.energy), r.id], page: 2 })}`;
+        break;
+      }
+      case 5:
+        q = `qmin=${(10 ** (2.5 + random() * 2)).toPrecision(5)}&bound=false&sort=quality&dir=desc&pageSize=50`;
+        break;
+      default: {
+        const r = rows[(Math.floor(i / 7) + 5) % rows.length]!;
+        const req = requestOf(deepSearch);
+        q = `${deepSearch}&cursor=${encodeCursor(req, { toward: 'after', key: [String(r.energy), r.id], page: 2 })}`;
+      }
+    }
+    if (!seen.has(q)) {
+      seen.add(q);
+      out.push(`${catalogue}?${q}`);
+    }
+  }
+  return out;
+}
+
 export async function benchCatalogue(): Promise<Record<string, number>> {
   const figures: Record<string, number> = {};
+  // The bench serves answers as production does: their schema check on a sample (server/http/answer-check.ts).
+  process.env.POLEWARD_ANSWER_CHECK ??= 'sample';
   console.log(
     `[bench] catalogue: machine load average ${loadavg()
       .map((x) => x.toFixed(1))
@@ -117,6 +208,8 @@ export async function benchCatalogue(): Promise<Record<string, number>> {
   const url = server.url(dbName);
   await migrate(url);
   const handle = connectDb(url, 10);
+  // Connections stay open: the CPU per answer is read from the backends alive at the end.
+  handle.pool.options.idleTimeoutMillis = 0;
   const db = handle.db;
   const [existing] = await db.select({ n: sql<number>`count(*)::int` }).from(researchGroups);
   const config = loadConfig({ ...process.env, NODE_ENV: 'test', DATABASE_URL: url, POLEWARD_JWT_SECRET: randomBytes(32).toString('hex') });
@@ -235,51 +328,89 @@ export async function benchCatalogue(): Promise<Record<string, number>> {
     figures.single_count_exact_unfiltered_p50_ms = percentile(exactTimes, 50);
     console.log(`  count=exact on the unfiltered 100,000: p50 ${figures.single_count_exact_unfiltered_p50_ms.toFixed(1)} ms (asked for, never by default)`);
     const paths = Object.entries(searches).map(([name, q]) => ({ name, path: `${catalogue}?${q}` }));
+    const seconds = Number(process.env.BENCH_SECONDS ?? 10);
 
-    // The load generator runs in a child process: in this one it would take the server's event loop.
-    const cpuBefore = { node: process.cpuUsage(), db: await databaseCpuMs(db, dbName) };
-    const load = await new Promise<{ rps: number; requests: number; non2xx: number; p50: number; p95: number; p99: number; duration: number }>(
-      (resolve, reject) => {
-        const options = {
-          url: base,
-          connections: 20,
-          duration: Number(process.env.BENCH_SECONDS ?? 10),
-          headers: { cookie },
-          requests: paths.map((p) => ({ method: 'GET', path: p.path })),
-        };
-        execFile(
-          process.execPath,
-          [join(dirname(fileURLToPath(import.meta.url)), 'load-client.mjs'), JSON.stringify(options)],
-          { maxBuffer: 1 << 20 },
-          (err, stdout) => (err ? reject(err) : resolve(JSON.parse(stdout.trim().split('\n').pop()!))),
-        );
-      },
-    );
-    const nodeCpu = process.cpuUsage(cpuBefore.node);
-    const dbCpuMs = (await databaseCpuMs(db, dbName)) - cpuBefore.db;
-    // Other work on the machine shows up in every figure: print how busy it was.
-    figures.machine_loadavg_1min = loadavg()[0]!;
+    /** One autocannon run (in a child process: in this one it would take the server's event loop), with CPU per answer. */
+    const runLoad = async (label: string, prefix: string, requestOptions: Record<string, unknown>, during?: () => () => void) => {
+      const cpuBefore = { node: process.cpuUsage(), db: await databaseCpuMs(db, dbName) };
+      const stop = during?.();
+      const load = await new Promise<{ rps: number; requests: number; non2xx: number; p50: number; p95: number; p99: number; duration: number }>(
+        (resolve, reject) => {
+          const options = { url: base, connections: 20, duration: seconds, headers: { cookie }, ...requestOptions };
+          execFile(
+            process.execPath,
+            [join(dirname(fileURLToPath(import.meta.url)), 'load-client.mjs'), JSON.stringify(options)],
+            { maxBuffer: 1 << 20 },
+            (err, stdout) => (err ? reject(err) : resolve(JSON.parse(stdout.trim().split('\n').pop()!))),
+          );
+        },
+      );
+      stop?.();
+      const nodeCpu = process.cpuUsage(cpuBefore.node);
+      const dbCpuMs = (await databaseCpuMs(db, dbName)) - cpuBefore.db;
+      // Other work on the machine shows up in every figure: print how busy it was.
+      const loadAverage = loadavg()[0]!;
+      figures[`${prefix}machine_loadavg_1min`] = loadAverage;
+      figures[`${prefix}requests`] = load.requests;
+      figures[`${prefix}non2xx`] = load.non2xx;
+      figures[`${prefix}rps`] = load.rps;
+      figures[`${prefix}p50_ms`] = load.p50;
+      figures[`${prefix}p95_ms`] = load.p95;
+      figures[`${prefix}p99_ms`] = load.p99;
+      // CPU time per answer, which other work on the machine does not inflate the way it inflates latency.
+      const requests = Math.max(1, load.requests);
+      figures[`${prefix}cpu_ms_per_request_node`] = (nodeCpu.user + nodeCpu.system) / 1000 / requests;
+      figures[`${prefix}cpu_ms_per_request_db`] = dbCpuMs / requests;
+      console.log(
+        `[bench] ${label}: 20 connections, ${load.duration.toFixed(0)} s: ${load.rps.toFixed(0)} req/s, p50 ${load.p50.toFixed(1)} ms, ` +
+          `p95 ${load.p95.toFixed(1)} ms, p99 ${load.p99.toFixed(1)} ms (${load.requests} requests, ${load.non2xx} not 2xx; ` +
+          `machine load average ${loadAverage.toFixed(1)} on ${availableParallelism()} cores); CPU per answer: API process ` +
+          `${figures[`${prefix}cpu_ms_per_request_node`]!.toFixed(2)} ms, PostgreSQL backends ${figures[`${prefix}cpu_ms_per_request_db`]!.toFixed(2)} ms`,
+      );
+      await drain(handle.pool);
+    };
+
     figures.load_connections = 20;
-    figures.load_requests = load.requests;
-    figures.load_non2xx = load.non2xx;
-    figures.load_rps = load.rps;
-    figures.load_p50_ms = load.p50;
-    figures.load_p95_ms = load.p95;
-    figures.load_p99_ms = load.p99;
-    console.log(
-      `[bench] autocannon, 20 connections, ${load.duration.toFixed(0)} s, mix of ${paths.length} searches: ` +
-        `${figures.load_rps.toFixed(0)} req/s, p50 ${figures.load_p50_ms.toFixed(1)} ms, p95 ${figures.load_p95_ms.toFixed(1)} ms, ` +
-        `p99 ${figures.load_p99_ms.toFixed(1)} ms (${load.requests} requests, ${load.non2xx} not 2xx; machine load average ${figures.machine_loadavg_1min.toFixed(1)} on ${availableParallelism()} cores)`,
-    );
-    // CPU time per answer, which other work on the machine does not inflate the way it inflates latency.
-    const requests = Math.max(1, load.requests);
-    figures.cpu_ms_per_request_node = (nodeCpu.user + nodeCpu.system) / 1000 / requests;
-    figures.cpu_ms_per_request_db = dbCpuMs / requests;
-    console.log(
-      `[bench] CPU per answer under that load: API process ${figures.cpu_ms_per_request_node.toFixed(2)} ms, PostgreSQL backends ${figures.cpu_ms_per_request_db.toFixed(2)} ms ` +
-        `(the API's event loop alone allows at most ~${(1000 / figures.cpu_ms_per_request_node).toFixed(0)} answers/s)`,
-    );
-    await drain(handle.pool);
+    figures.answer_check_sampled = answerCheckMode() === 'sample' ? 1 : 0;
+    console.log(`[bench] answers checked against their schema: ${answerCheckMode() === 'sample' ? 'a sample (as in production)' : 'every one'}`);
+    // BENCH_LOADS picks some of the three loads (default all): repeated,writes,cold.
+    const loads = (process.env.BENCH_LOADS ?? 'repeated,writes,cold').split(',');
+    // 1. The seven searches over and over: what many people browsing the same pages ask.
+    if (loads.includes('repeated'))
+      await runLoad(`mix of ${paths.length} searches, repeated`, 'load_', { requests: paths.map((p) => ({ method: 'GET', path: p.path })) });
+    // 2. The same, while one resonance of the group is retagged every 500 ms (as a designer or a
+    //    run's result writer would): each change drops the group's kept answers and counts.
+    const writeEveryMs = 500;
+    let writes = 0;
+    if (loads.includes('writes'))
+      await runLoad(
+        `same mix, one write to the group every ${writeEveryMs} ms`,
+        'load_writes_',
+        { requests: paths.map((p) => ({ method: 'GET', path: p.path })) },
+        () => {
+          const timer = setInterval(() => {
+            writes++;
+            void db
+              .execute(
+                sql`update resonances set notes = ${`bench write ${writes}`} where id = (select id from resonances where group_id = ${main.groupId} order by energy offset ${writes % 1000} limit 1)`,
+              )
+              .catch(() => {});
+          }, writeEveryMs);
+          return () => clearInterval(timer);
+        },
+      );
+    figures.load_writes_count = writes;
+    // 3. Cold: the same seven kinds of search in the same proportions, but no two requests alike
+    //    (other windows, bounds, words, tags and deep-page positions), so no answer is ever kept.
+    const distinct = loads.includes('cold') ? await distinctSearches(db, main.groupId, catalogue, 40_000) : [];
+    const file = join(tmpdir(), `poleward-bench-paths-${process.pid}.json`);
+    writeFileSync(file, JSON.stringify(distinct));
+    try {
+      if (loads.includes('cold'))
+        await runLoad(`cold: ${distinct.length} distinct searches of the same ${paths.length} kinds, none repeated`, 'load_cold_', { distinctPathsFile: file });
+    } finally {
+      rmSync(file, { force: true });
+    }
 
     // The whole group as one CSV download: time, size, and how far the process memory grew.
     if (process.env.BENCH_SKIP_EXPORT === '1') return figures;

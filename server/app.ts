@@ -112,6 +112,10 @@ export function createApp(deps: AppDeps): Express {
 
   const app = express();
   app.set('trust proxy', config.trustProxy);
+  // No ETag hashed over every answer body: API answers are no-store, so nothing revalidates
+  // them, and the hash cost a catalogue page a tenth of its CPU. Routes whose answers are
+  // revalidated set their own (mode images, the OpenAPI document); static files have theirs.
+  app.set('etag', false);
   app.locals.db = db; // read by requireRole, which other features' routers also use
   const compute = deps.compute ?? new ComputePool({ threads: config.computeThreads, timeoutSeconds: config.computeTimeoutSeconds });
   app.locals.compute = compute;

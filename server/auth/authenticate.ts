@@ -5,7 +5,7 @@ import { findActiveApiToken, touchApiToken } from './api-token-repository.js';
 import { csrfTokenFor } from './csrf.js';
 import { apiTokenPrefix, hashOpaqueToken } from './opaque-token.js';
 import { sessionCookie } from './session-cookies.js';
-import { findLiveSession } from './session-repository.js';
+import { findLiveSessionInGroup, type SessionInGroup } from './session-repository.js';
 import { verifySessionToken } from './session-token.js';
 import { findUserById } from './user-repository.js';
 
@@ -30,10 +30,22 @@ declare module 'express-serve-static-core' {
     };
     /** Why a session cookie was refused, for the 401 message of a protected route. */
     authProblem?: string;
+    /**
+     * The caller's membership of the group the path names (/groups/:groupId/…), read with
+     * the session in the same query; requireRole uses it instead of asking again.
+     */
+    groupAccess?: { groupId: string; membership: SessionInGroup['membership'] };
   }
 }
 
 const authUser = (u: AuthUser): AuthUser => ({ id: u.id, email: u.email, name: u.name, siteOperator: u.siteOperator });
+
+const groupPath = /^\/groups\/([0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12})(?:\/|$)/i;
+
+/** The group id a request path names (/groups/:groupId/…), or null. */
+export function groupIdInPath(path: string): string | null {
+  return groupPath.exec(path)?.[1]?.toLowerCase() ?? null;
+}
 
 /**
  * Resolves who is calling, without refusing anyone: public routes still work with a
@@ -59,16 +71,23 @@ export function authenticate(db: Db, jwtSecret: string): RequestHandler {
     const jwtToken = (req.cookies as Record<string, string | undefined>)[sessionCookie];
     if (jwtToken) {
       const claims = verifySessionToken(jwtToken, jwtSecret);
-      const live = claims && (await findLiveSession(db, claims.sessionId, claims.userId));
+      const groupId = groupIdInPath(req.path);
+      const live = claims && (await findLiveSessionInGroup(db, claims.sessionId, claims.userId, groupId));
       if (!claims || !live) {
         req.authProblem = 'Your session is invalid, has ended or has expired; sign in again.';
       } else {
+        const sessionId = live.sessionId;
+        let csrf: string | undefined;
         req.auth = {
           user: authUser(live.user),
           via: 'cookie',
-          sessionId: live.session.id,
-          csrfToken: csrfTokenFor(live.session.id, jwtSecret),
+          sessionId,
+          // An HMAC, computed only when a write or the session description needs it.
+          get csrfToken() {
+            return (csrf ??= csrfTokenFor(sessionId, jwtSecret));
+          },
         };
+        if (groupId) req.groupAccess = { groupId, membership: live.membership };
       }
     }
     next();

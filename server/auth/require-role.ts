@@ -1,6 +1,7 @@
-import { and, eq } from 'drizzle-orm';
+import { and, eq, sql } from 'drizzle-orm';
 import type { RequestHandler } from 'express';
 import type { Db } from '../db/client.js';
+import { catalogueGenerations } from '../db/schema/catalogue.js';
 import { memberships, researchGroups, type MembershipRole } from '../db/schema/groups.js';
 import { ApiError } from '../http/error-handler.js';
 import { signedInUser } from './authenticate.js';
@@ -11,6 +12,8 @@ export interface GroupMembership {
   groupName: string;
   groupSlug: string;
   role: MembershipRole;
+  /** The group's catalogue generation when the membership was read (catalogue_generations). */
+  catalogueGeneration: number;
 }
 
 declare module 'express-serve-static-core' {
@@ -26,6 +29,21 @@ export function groupNotFound(): ApiError {
   return new ApiError(404, 'not_found', 'No such group, or you are not a member of it.');
 }
 
+async function findMembership(db: Db, groupId: string, userId: string): Promise<Omit<GroupMembership, 'groupId'> | undefined> {
+  const [row] = await db
+    .select({
+      groupName: researchGroups.name,
+      groupSlug: researchGroups.slug,
+      role: memberships.role,
+      catalogueGeneration: sql<number>`coalesce(${catalogueGenerations.generation}, 0)::float8`,
+    })
+    .from(memberships)
+    .innerJoin(researchGroups, eq(researchGroups.id, memberships.groupId))
+    .leftJoin(catalogueGenerations, eq(catalogueGenerations.groupId, memberships.groupId))
+    .where(and(eq(memberships.groupId, groupId), eq(memberships.userId, userId)));
+  return row && { ...row, catalogueGeneration: Number(row.catalogueGeneration) };
+}
+
 /**
  * Resolves :groupId to the caller's membership. Not a member (or no such group) → 404,
  * so a group's existence never leaks; a member with the wrong role → 403. Admin passes
@@ -37,12 +55,9 @@ export function requireRole(...roles: MembershipRole[]): RequestHandler {
     const user = signedInUser(req);
     const groupId = req.params.groupId;
     if (typeof groupId !== 'string' || !uuidPattern.test(groupId)) throw groupNotFound();
-    const db = req.app.locals.db as Db;
-    const [row] = await db
-      .select({ groupName: researchGroups.name, groupSlug: researchGroups.slug, role: memberships.role })
-      .from(memberships)
-      .innerJoin(researchGroups, eq(researchGroups.id, memberships.groupId))
-      .where(and(eq(memberships.groupId, groupId), eq(memberships.userId, user.id)));
+    // Read with the session by authenticate when the path names this group (one query for both).
+    const row =
+      req.groupAccess?.groupId === groupId.toLowerCase() ? req.groupAccess.membership : await findMembership(req.app.locals.db as Db, groupId, user.id);
     if (!row) throw groupNotFound();
     // Set before the CSRF check, so a refusal is recorded in this group's activity.
     req.membership = { groupId, ...row };

@@ -1,6 +1,8 @@
 import { and, eq, gt, isNull, lt, or, sql } from 'drizzle-orm';
-import type { Queryable } from '../db/client.js';
+import type { Db, Queryable } from '../db/client.js';
+import { catalogueGenerations } from '../db/schema/catalogue.js';
 import { sessions } from '../db/schema/credentials.js';
+import { memberships, researchGroups, type MembershipRole } from '../db/schema/groups.js';
 import { users } from '../db/schema/users.js';
 
 export type SessionRow = typeof sessions.$inferSelect;
@@ -48,4 +50,58 @@ export async function revokeAllSessions(q: Queryable, userId: string): Promise<n
     .where(and(eq(sessions.userId, userId), isNull(sessions.revokedAt)))
     .returning({ id: sessions.id });
   return rows.length;
+}
+
+/** What a request needs of its session, its user and, when its path names a group, the caller's membership there. */
+export interface SessionInGroup {
+  sessionId: string;
+  user: { id: string; email: string; name: string; siteOperator: boolean };
+  /** Null when the caller is not a member of the group (or no group was asked about). */
+  membership: { groupName: string; groupSlug: string; role: MembershipRole; catalogueGeneration: number } | null;
+}
+
+function prepareSessionInGroup(db: Db) {
+  return db
+    .select({
+      sessionId: sessions.id,
+      user: { id: users.id, email: users.email, name: users.name, siteOperator: users.siteOperator },
+      groupName: researchGroups.name,
+      groupSlug: researchGroups.slug,
+      role: memberships.role,
+      catalogueGeneration: sql<number>`coalesce(${catalogueGenerations.generation}, 0)::float8`,
+    })
+    .from(sessions)
+    .innerJoin(users, eq(users.id, sessions.userId))
+    .leftJoin(memberships, and(eq(memberships.userId, sessions.userId), eq(memberships.groupId, sql.placeholder('groupId'))))
+    .leftJoin(researchGroups, eq(researchGroups.id, memberships.groupId))
+    .leftJoin(catalogueGenerations, eq(catalogueGenerations.groupId, memberships.groupId))
+    .where(
+      and(
+        eq(sessions.id, sql.placeholder('sessionId')),
+        eq(sessions.userId, sql.placeholder('userId')),
+        isNull(sessions.revokedAt),
+        gt(sessions.expiresAt, sql`now()`),
+      ),
+    )
+    .prepare('live_session_in_group');
+}
+
+const sessionInGroupStatements = new WeakMap<Db, ReturnType<typeof prepareSessionInGroup>>();
+
+/**
+ * findLiveSession and the caller's membership of one group in one round trip: a prepared
+ * statement (parsed and planned once per connection) that every group route's request runs,
+ * so its session, its role and the group's catalogue generation are all read at the same
+ * moment, as fresh as separate queries would be. `groupId` null: no group, membership null.
+ */
+export async function findLiveSessionInGroup(db: Db, id: string, userId: string, groupId: string | null): Promise<SessionInGroup | undefined> {
+  let statement = sessionInGroupStatements.get(db);
+  if (!statement) sessionInGroupStatements.set(db, (statement = prepareSessionInGroup(db)));
+  const [row] = await statement.execute({ sessionId: id, userId, groupId });
+  if (!row) return undefined;
+  const membership =
+    row.role !== null && row.groupName !== null && row.groupSlug !== null
+      ? { groupName: row.groupName, groupSlug: row.groupSlug, role: row.role, catalogueGeneration: Number(row.catalogueGeneration) }
+      : null;
+  return { sessionId: row.sessionId, user: row.user, membership };
 }

@@ -61,6 +61,7 @@ export function searchFingerprint(filter: CatalogueFilter): string {
     // Added only when given, so the fingerprints of earlier searches stay as they were.
     ...(filter.aboveLimit !== undefined ? { aboveLimit: filter.aboveLimit } : {}),
     ...(filter.physics ? { physics: [...filter.physics].sort() } : {}),
+    ...(filter.source ? { source: filter.source } : {}),
   };
   return createHash('sha256').update(JSON.stringify(canonical)).digest('base64url').slice(0, 16);
 }

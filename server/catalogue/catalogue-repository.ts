@@ -1,6 +1,6 @@
 import { and, asc, eq, ne, sql, type Column } from 'drizzle-orm';
 import type { Queryable, Tx } from '../db/client.js';
-import { modeImages, resonances } from '../db/schema/catalogue.js';
+import { catalogueGenerations, modeImages, resonances } from '../db/schema/catalogue.js';
 import { modelVersions } from '../db/schema/models.js';
 import { runs } from '../db/schema/runs.js';
 import { keyFields, keysetCondition, toKeyValue, type CursorPosition, type KeyValue } from './catalogue-cursor.js';
@@ -153,6 +153,12 @@ function fromDriverRow(raw: Record<string, unknown>): ResonanceRecord {
     out[key] = value === null || value === undefined ? null : col.mapFromDriverValue(value);
   }
   return out as unknown as ResonanceRecord;
+}
+
+/** The group's catalogue generation (0 before its first change); requests read it with the membership instead. */
+export async function catalogueGeneration(q: Queryable, groupId: string): Promise<number> {
+  const [row] = await q.select({ generation: catalogueGenerations.generation }).from(catalogueGenerations).where(eq(catalogueGenerations.groupId, groupId));
+  return row?.generation ?? 0;
 }
 
 /** The count query: the matches, at most `cap` + 1 of them when a cap is given. */

@@ -10,9 +10,11 @@ import { resonanceFigures, resonancePhysicsOfDocument } from '../../shared/model
 import { ApiError } from '../http/error-handler.js';
 import type { RowSource } from './catalogue-export.js';
 import type { CatalogueFilter, CataloguePageRequest } from './catalogue-query.js';
-import { CatalogueCounter, type CountPolicy } from './catalogue-count.js';
-import { decodeCursor, encodeCursor, type CursorPosition } from './catalogue-cursor.js';
+import { CatalogueCounter, defaultCountPolicy, type CountPolicy } from './catalogue-count.js';
+import { answerText, CatalogueAnswerCache, type AnswerCacheLimits, type KeptAnswer } from './catalogue-answer-cache.js';
+import { decodeCursor, encodeCursor, searchFingerprint, type CursorPosition } from './catalogue-cursor.js';
 import {
+  catalogueGeneration,
   findModeImage,
   findResonance,
   findResonanceContext,
@@ -73,17 +75,25 @@ function leadsOf(document: unknown): ResonanceDetail['leads'] {
   });
 }
 
+/** What names one page of one search (the filter, the order, the page by number or cursor), for callers without a query string. */
+function searchKey(req: CataloguePageRequest): string {
+  return `${searchFingerprint(req)} ${req.sort} ${req.dir} ${req.pageSize} ${req.cursor ?? `page ${req.page ?? 1}`}`;
+}
+
 /** Catalogue rules: searching, exporting, detail, labelling, mode images; everything scoped by group. */
 export class CatalogueService {
   private readonly counter: CatalogueCounter;
+  private readonly answers: CatalogueAnswerCache;
 
-  /** `countPolicy` and `now` (the clock of count ages) are for tests; the defaults serve the app. */
+  /** `countPolicy`, `now` (the clock of count ages) and `answerLimits` are for tests; the defaults serve the app. */
   constructor(
     private readonly db: Db,
-    countPolicy?: CountPolicy,
+    private readonly countPolicy: CountPolicy = defaultCountPolicy,
     private readonly now: () => number = Date.now,
+    answerLimits?: AnswerCacheLimits,
   ) {
     this.counter = new CatalogueCounter(db, countPolicy, now);
+    this.answers = new CatalogueAnswerCache(answerLimits);
   }
 
   /** Resolves once background recounts are done (tests; shutdown). */
@@ -92,27 +102,57 @@ export class CatalogueService {
   }
 
   /**
-   * One page of a search: by offset (`page`, the first pages) or by keyset cursor, with
-   * cursors to the next and previous pages either way, and the total with its kind.
-   * The page and the count run at once on two pool connections.
+   * One page of a search as the answer's JSON text: by offset (`page`, the first pages) or
+   * by keyset cursor, with cursors to the next and previous pages either way, and the total
+   * with its kind. `generation` is the group's catalogue generation read with the caller's
+   * membership (before any query of this search). The page and the count run at once on
+   * two pool connections. `asked` names the request as it came (its query string): the
+   * answer is kept under it and the generation (CatalogueAnswerCache) when its total is
+   * exact; `count=exact` answers are never kept.
    */
-  async search(groupId: string, req: CataloguePageRequest): Promise<CatalogueAnswer> {
+  async searchText(groupId: string, req: CataloguePageRequest, generation: number, asked = searchKey(req)): Promise<string> {
     const position = req.cursor !== undefined ? decodeCursor(req.cursor, req) : undefined;
-    const [paged, count] = await Promise.all([this.page(groupId, req, position), this.counter.count(groupId, req, req.count)]);
+    const [paged, count] = await Promise.all([this.page(groupId, req, position), this.counter.count(groupId, req, req.count, generation)]);
     const { rows, page, hasNext, hasPrev } = paged;
     const first = rows[0];
     const last = rows.at(-1);
-    return {
-      items: rows.map((r) => toResonanceRow(r.record)),
-      total: count.total,
-      totalKind: count.kind,
-      countedAt: count.countedAt?.toISOString() ?? null,
-      countAgeSeconds: count.countedAt ? Math.max(0, Math.round((this.now() - count.countedAt.getTime()) / 1000)) : null,
-      page,
-      pageSize: req.pageSize,
-      nextCursor: hasNext && last ? encodeCursor(req, { toward: 'after', key: last.key, page: page + 1 }) : null,
-      prevCursor: hasPrev && first ? encodeCursor(req, { toward: 'before', key: first.key, page: Math.max(1, page - 1) }) : null,
+    const kept: KeptAnswer = {
+      itemsJson: JSON.stringify(rows.map((r) => toResonanceRow(r.record))),
+      rest: {
+        total: count.total,
+        totalKind: count.kind,
+        countedAt: count.countedAt?.toISOString() ?? null,
+        page,
+        pageSize: req.pageSize,
+        nextCursor: hasNext && last ? encodeCursor(req, { toward: 'after', key: last.key, page: page + 1 }) : null,
+        prevCursor: hasPrev && first ? encodeCursor(req, { toward: 'before', key: first.key, page: Math.max(1, page - 1) }) : null,
+      },
+      countedAtMs: count.countedAt?.getTime() ?? null,
+      keepUntilMs: count.kind === 'cached' ? count.countedAt!.getTime() + this.countPolicy.freshMs : Infinity,
+      staleCount: count.kind === 'cached' ? CatalogueCounter.keyOf(groupId, req) : null,
     };
+    if (req.count === 'estimate' && count.kind !== 'estimated') this.answers.set(groupId, generation, asked, kept);
+    return answerText(kept, this.now());
+  }
+
+  /**
+   * The kept answer of a search asked exactly this way (`asked`: its query string) under the
+   * group's current generation, or undefined. Checked before the query is even validated: a
+   * query string that was answered once is valid, and means the same search, every time.
+   */
+  keptAnswer(groupId: string, generation: number, asked: string): string | undefined {
+    const hit = this.answers.get(groupId, generation, asked, this.now());
+    // An answer with an old count is not served once a recount (or count=exact) made it exact.
+    if (!hit || (hit.staleCount !== null && this.counter.exactFor(hit.staleCount, generation))) return undefined;
+    return answerText(hit, this.now());
+  }
+
+  /** searchText as a value (tests, scripts); reads the group's generation itself unless given. */
+  async search(groupId: string, req: CataloguePageRequest, generation?: number): Promise<CatalogueAnswer> {
+    const current = generation ?? (await catalogueGeneration(this.db, groupId));
+    const asked = searchKey(req);
+    const text = (req.count === 'estimate' ? this.keptAnswer(groupId, current, asked) : undefined) ?? (await this.searchText(groupId, req, current, asked));
+    return JSON.parse(text) as CatalogueAnswer;
   }
 
   /** Reads one more row than the page holds to learn whether another page follows. */
@@ -192,8 +232,8 @@ export class CatalogueService {
       });
       return toResonanceRow(after);
     });
-    // Tags and notes feed the tag and text filters: their cached totals are stale now.
-    this.counter.forgetGroup(groupId);
+    // Kept answers and counts of the group are dropped by the next request: the trigger on
+    // resonances raised the group's catalogue generation in this transaction.
     return result;
   }
 

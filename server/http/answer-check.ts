@@ -40,3 +40,37 @@ export function checkAnswer(schema: z.ZodType, wire: unknown): AnswerMismatch | 
   }
   return problems.length > 0 ? { problems } : null;
 }
+
+/**
+ * Which JSON answers mountRoute checks against their schemas: `every` one (tests and
+ * development), or a `sample` (production's default): the first 20 answers of each route
+ * after the process starts, then one in 50. A full check parses the answer back and walks
+ * every field through zod, which cost as much CPU as the rest of a catalogue page; a
+ * contract slip a change brings in shows in the tests (every answer checked there) and in
+ * production within the first answers of the route, while a slip that only some rows
+ * trigger is found there later, by the sample. POLEWARD_ANSWER_CHECK=every|sample overrides.
+ */
+export type AnswerCheckMode = 'every' | 'sample';
+
+export function answerCheckMode(env: Record<string, string | undefined> = process.env): AnswerCheckMode {
+  const asked = env.POLEWARD_ANSWER_CHECK;
+  if (asked === 'every' || asked === 'sample') return asked;
+  return env.NODE_ENV === 'production' ? 'sample' : 'every';
+}
+
+/** Decides, answer by answer, whether one route's answer is checked. */
+export class AnswerSample {
+  private seen = 0;
+
+  constructor(
+    private readonly mode: AnswerCheckMode,
+    private readonly first = 20,
+    private readonly oneIn = 50,
+  ) {}
+
+  due(): boolean {
+    if (this.mode === 'every') return true;
+    this.seen++;
+    return this.seen <= this.first || this.seen % this.oneIn === 0;
+  }
+}

@@ -2,7 +2,8 @@
  * Mounts a route handler from its declaration in shared/api: the access guard of the
  * declared rule, then any route-specific middleware (rate limits, uploads), then the
  * declared params/query/body schemas, then the handler with typed input. A JSON answer is
- * checked against the declared schema before it is sent.
+ * checked against the declared schema before it is sent: every answer in tests and
+ * development, a sample of them in production (answerCheckMode in answer-check.ts).
  *
  * An answer that does not fit its schema (a field missing, mistyped or undeclared) is a
  * server bug: it is logged with the field paths and answered 500 answer_mismatch, in every
@@ -14,7 +15,7 @@ import type { Request, RequestHandler, Response, Router } from 'express';
 import type { z } from 'zod';
 import type { EmptyAnswer, JsonAnswer, MediaAnswer, RouteDeclaration, RouteInput } from '../../shared/api/route.js';
 import { accessGuard } from './access-guard.js';
-import { checkAnswer } from './answer-check.js';
+import { AnswerSample, answerCheckMode, checkAnswer, type AnswerCheckMode } from './answer-check.js';
 import { ApiError } from './error-handler.js';
 import { validateRequest } from './validate.js';
 
@@ -28,6 +29,18 @@ export class WithStatus<T> {
 
 export function withStatus<T>(status: number, body: T): WithStatus<T> {
   return new WithStatus(status, body);
+}
+
+/**
+ * A JSON answer already serialised (a cached answer's text): sent as it is, with the
+ * declared status, after the same answer check as any other JSON answer.
+ */
+export class JsonText {
+  constructor(readonly text: string) {}
+}
+
+export function jsonText(text: string): JsonText {
+  return new JsonText(text);
 }
 
 /**
@@ -50,7 +63,11 @@ type Awaitable<T> = T | Promise<T>;
 
 /** What the handler of route D returns: the answer for JSON routes, nothing when it writes the answer itself. */
 export type HandlerResult<D extends RouteDeclaration> =
-  D['answer'] extends JsonAnswer<infer S> ? Wire<z.input<S>> | WithStatus<Wire<z.input<S>>> : D['answer'] extends EmptyAnswer | MediaAnswer ? void : never;
+  D['answer'] extends JsonAnswer<infer S>
+    ? Wire<z.input<S>> | WithStatus<Wire<z.input<S>>> | JsonText
+    : D['answer'] extends EmptyAnswer | MediaAnswer
+      ? void
+      : never;
 
 export type RouteHandler<D extends RouteDeclaration> = (input: RouteInput<D>, req: Request, res: Response) => Awaitable<HandlerResult<D>>;
 
@@ -59,6 +76,8 @@ export interface MountOptions {
   before?: RequestHandler[];
   /** Where answer mismatches are reported (console.error by default). */
   log?: (msg: string, err: unknown) => void;
+  /** Which answers are checked against the schema (default: answerCheckMode() of the environment). */
+  answerCheck?: AnswerCheckMode;
 }
 
 const isProduction = () => process.env.NODE_ENV === 'production';
@@ -68,9 +87,13 @@ export function expressPath(path: string): string {
   return path.replace(/\{(\w+)\}/g, ':$1');
 }
 
-/** Serialises a JSON answer and checks it against its schema; throws 500 answer_mismatch when it does not fit. */
-export function checkedJson(route: RouteDeclaration, schema: z.ZodType, body: unknown, log: (msg: string, err: unknown) => void): string {
-  const text = JSON.stringify(body);
+/**
+ * Serialises a JSON answer (unless it is JsonText already) and, when `check`, checks it
+ * against its schema; throws 500 answer_mismatch when it does not fit.
+ */
+export function checkedJson(route: RouteDeclaration, schema: z.ZodType, body: unknown, log: (msg: string, err: unknown) => void, check = true): string {
+  const text = body instanceof JsonText ? body.text : JSON.stringify(body);
+  if (!check) return text;
   const mismatch = checkAnswer(schema, text === undefined ? undefined : JSON.parse(text));
   if (mismatch) {
     const where = `${route.method.toUpperCase()} /api${route.path} (${route.id})`;
@@ -83,6 +106,7 @@ export function checkedJson(route: RouteDeclaration, schema: z.ZodType, body: un
 
 export function mountRoute<const D extends RouteDeclaration>(router: Router, route: D, handler: RouteHandler<D>, options: MountOptions = {}): void {
   const log = options.log ?? ((msg: string, err: unknown) => console.error(msg, err));
+  const sample = new AnswerSample(options.answerCheck ?? answerCheckMode());
   const run: RequestHandler = async (req, res) => {
     const valid = validateRequest(route, req);
     const input = {
@@ -100,7 +124,7 @@ export function mountRoute<const D extends RouteDeclaration>(router: Router, rou
       res
         .status(status)
         .type('application/json')
-        .send(checkedJson(route, answer.schema, body, log));
+        .send(checkedJson(route, answer.schema, body, log, sample.due()));
     } else if (answer.kind === 'empty') {
       if (!res.headersSent) res.status(answer.status).end();
     }

@@ -1,3 +1,4 @@
+import { createHash } from 'node:crypto';
 import { Router } from 'express';
 import { healthRoute, openApiDocumentRoute } from '../../shared/api/meta.js';
 import { mountRoute } from '../http/mount-route.js';
@@ -9,12 +10,16 @@ export function metaRoutes(version: string): Router {
   mountRoute(router, healthRoute, () => ({ ok: true as const, version }));
 
   // Built on the first request (about 0.1 s) and then kept, since it only changes with the
-  // code. Express adds an ETag, so a revalidation answers 304.
-  let document: string | undefined;
+  // code. It carries its ETag (the app computes none by itself), so a revalidation answers 304.
+  let document: { text: string; etag: string } | undefined;
   mountRoute(router, openApiDocumentRoute, (_input, _req, res) => {
-    document ??= JSON.stringify(buildOpenApiDocument(version));
+    if (!document) {
+      const text = JSON.stringify(buildOpenApiDocument(version));
+      document = { text, etag: `"${createHash('sha256').update(text).digest('base64url').slice(0, 27)}"` };
+    }
     res.setHeader('Cache-Control', 'public, max-age=300');
-    res.type('application/json').send(document);
+    res.setHeader('ETag', document.etag);
+    res.type('application/json').send(document.text);
   });
   return router;
 }

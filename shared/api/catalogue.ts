@@ -15,9 +15,11 @@ export const cataloguePageSchema = z
     items: z.array(resonanceRowSchema),
     total: z.number().int().nonnegative().meta({ description: 'Number of matches, obtained as totalKind says' }),
     totalKind: z.enum(TOTAL_KINDS).meta({
-      description: "exact: counted for this answer; cached: counted exactly countAgeSeconds ago; estimated: the database planner's estimate (ask count=exact)",
+      description:
+        "exact: the number of matches now (counted for this answer, or at countedAt with no change to the group's resonances since); " +
+        "cached: counted countAgeSeconds ago, before the group's rows last changed; estimated: the database planner's estimate (ask count=exact)",
     }),
-    countedAt: timestamp().nullable().meta({ description: 'When the exact count was taken; null for an estimate' }),
+    countedAt: timestamp().nullable().meta({ description: 'When the count was taken; null for an estimate' }),
     countAgeSeconds: z.number().int().nonnegative().nullable(),
     page: z.number().int().min(1).meta({ description: 'Page number: exact with page=, carried as a label by cursors' }),
     pageSize: z.number().int(),

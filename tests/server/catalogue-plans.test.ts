@@ -223,15 +223,26 @@ describe('keyset paging walks', () => {
 describe('totals: exact, cached with its age, or estimated', () => {
   const policy = { countBelow: 2000, countCap: 10_000, freshMs: 30_000, staleMs: 600_000, maxEntries: 100, maxQueued: 4 };
 
-  it('counts a small set on the spot', async () => {
+  /** A change of one of the group's rows, as any process might make it: the trigger raises the generation. */
+  async function retagOne(groupId: string, tag: string): Promise<void> {
+    await handle.db.execute(
+      sql`update ${resonances} set tags = array_append(tags, ${tag}) where id = (select id from ${resonances} where group_id = ${groupId} and not (${tag} = any(tags)) limit 1)`,
+    );
+  }
+
+  it('counts a small set on the spot, then answers that count as exact while the generation holds', async () => {
     const service = new CatalogueService(handle.db, policy);
     const req = request('family=disk&emin=5&emax=6');
     const answer = await service.search(main.groupId, req);
     expect(answer.totalKind).toBe('exact');
     expect(answer.total).toBe(await countResonances(handle.db, main.groupId, req));
     expect(answer.countAgeSeconds).toBe(0);
-    // Again: still counted now (a small set is never answered from a cache).
-    expect(await service.search(main.groupId, req)).toMatchObject({ totalKind: 'exact', total: answer.total });
+    expect(await service.search(main.groupId, req)).toMatchObject({ totalKind: 'exact', total: answer.total, countedAt: answer.countedAt });
+    // A change in the group: the small set is counted again on the spot, never answered from before.
+    await retagOne(main.groupId, 'small-set-change');
+    const after = await service.search(main.groupId, req);
+    expect(after.totalKind).toBe('exact');
+    expect(after.total).toBe(await countResonances(handle.db, main.groupId, req));
   });
 
   it('stops counting at the cap when the set is larger than the planner thought, and estimates instead', async () => {
@@ -240,11 +251,13 @@ describe('totals: exact, cached with its age, or estimated', () => {
     const answer = await service.search(main.groupId, req);
     expect(answer.totalKind).toBe('estimated');
     expect(answer.total).toBeGreaterThan(10);
+    // Asked again: now it is counted in the background.
+    expect((await service.search(main.groupId, req)).totalKind).toBe('estimated');
     await service.settled();
-    expect(await service.search(main.groupId, req)).toMatchObject({ totalKind: 'cached', total: await countResonances(handle.db, main.groupId, req) });
+    expect(await service.search(main.groupId, req)).toMatchObject({ totalKind: 'exact', total: await countResonances(handle.db, main.groupId, req) });
   });
 
-  it('estimates a large set, counts it in the background, then answers the count with its age until it is too old', async () => {
+  it('estimates a large set, counts it in the background once asked again, then: exact while nothing changes, its age after a change until recounted, too old an estimate', async () => {
     let clock = Date.UTC(2026, 0, 1);
     const service = new CatalogueService(handle.db, { ...policy, countBelow: 100 }, () => clock);
     const req = request('sort=date&dir=desc');
@@ -255,31 +268,44 @@ describe('totals: exact, cached with its age, or estimated', () => {
     expect(first.countedAt).toBeNull();
     expect(first.countAgeSeconds).toBeNull();
     expect(Math.abs(first.total - exact)).toBeLessThan(0.1 * exact);
-
+    // Asked once, it is not counted (a search made once is not worth a full count)…
+    await service.settled();
+    expect((await service.search(main.groupId, req)).totalKind).toBe('estimated');
+    // …asked a second time, it is counted in the background.
     await service.settled();
     clock += 20_000;
+    // Nothing changed in the group since the count: it is the number of matches now, with when it was taken.
     const second = await service.search(main.groupId, req);
-    expect(second).toMatchObject({ totalKind: 'cached', total: exact, countAgeSeconds: 20, countedAt: new Date(clock - 20_000).toISOString() });
+    expect(second).toMatchObject({ totalKind: 'exact', total: exact, countAgeSeconds: 20, countedAt: new Date(clock - 20_000).toISOString() });
 
-    // Stale: still answered with its age while a recount runs…
-    clock += 60_000;
-    const third = await service.search(main.groupId, req);
-    expect(third).toMatchObject({ totalKind: 'cached', countAgeSeconds: 80 });
+    // A change (here a retag, which does not change this total): the count predates it, so it is
+    // answered as cached with its age; not recounted while younger than freshMs (30 s)…
+    await retagOne(main.groupId, 'large-set-change');
+    clock += 5_000;
+    expect(await service.search(main.groupId, req)).toMatchObject({ totalKind: 'cached', total: exact, countAgeSeconds: 25 });
     await service.settled();
-    expect(await service.search(main.groupId, req)).toMatchObject({ totalKind: 'cached', countAgeSeconds: 0 });
+    clock += 1_000;
+    expect(await service.search(main.groupId, req)).toMatchObject({ totalKind: 'cached', countAgeSeconds: 26 });
+    // …then recounted in the background while still answered with its age.
+    clock += 54_000;
+    const third = await service.search(main.groupId, req);
+    expect(third).toMatchObject({ totalKind: 'cached', total: exact, countAgeSeconds: 80 });
+    await service.settled();
+    expect(await service.search(main.groupId, req)).toMatchObject({ totalKind: 'exact', total: exact, countAgeSeconds: 0 });
 
-    // …and beyond staleMs an estimate again.
+    // …and beyond staleMs after a change, an estimate again.
+    await retagOne(main.groupId, 'large-set-change-2');
     clock += 700_000;
     expect((await service.search(main.groupId, req)).totalKind).toBe('estimated');
     await service.settled();
   });
 
-  it("count=exact counts now; a label change forgets the group's cached counts", async () => {
+  it('count=exact counts now; after a label change the new total shows once recounted, the old one only as cached', async () => {
     const service = new CatalogueService(handle.db, { ...policy, countBelow: 100 });
     const req = request('tag=candidate&count=exact');
     const exact = await service.search(main.groupId, req);
     expect(exact).toMatchObject({ totalKind: 'exact', total: await countResonances(handle.db, main.groupId, req) });
-    expect((await service.search(main.groupId, request('tag=candidate'))).totalKind).toBe('cached');
+    expect(await service.search(main.groupId, request('tag=candidate'))).toMatchObject({ totalKind: 'exact', total: exact.total });
 
     const [untagged] = await handle.db
       .select({ id: resonances.id })
@@ -288,8 +314,10 @@ describe('totals: exact, cached with its age, or estimated', () => {
       .limit(1);
     await service.label(main.groupId, main.userId, untagged!.id, { tags: ['candidate'] });
     const after = await service.search(main.groupId, request('tag=candidate'));
-    expect(after.totalKind).not.toBe('cached');
+    expect(after).toMatchObject({ totalKind: 'cached', total: exact.total });
+    // The page itself is read afresh: the newly tagged row is among the matches at once.
+    expect((await service.search(main.groupId, request('tag=candidate&sort=energy&pageSize=200&count=exact'))).total).toBe(exact.total + 1);
     await service.settled();
-    expect(await service.search(main.groupId, request('tag=candidate'))).toMatchObject({ totalKind: 'cached', total: exact.total + 1 });
+    expect(await service.search(main.groupId, request('tag=candidate'))).toMatchObject({ totalKind: 'exact', total: exact.total + 1 });
   });
 });

@@ -7,7 +7,8 @@ import { describe, expect, it } from 'vitest';
 import { z } from 'zod';
 import { declareRoute, empty, json } from '../../shared/api/route.js';
 import { errorHandler } from '../../server/http/error-handler.js';
-import { mountRoute, withStatus, type RouteHandler } from '../../server/http/mount-route.js';
+import { AnswerSample, answerCheckMode, type AnswerCheckMode } from '../../server/http/answer-check.js';
+import { jsonText, mountRoute, withStatus, type RouteHandler } from '../../server/http/mount-route.js';
 
 const itemSchema = z.object({ id: z.string(), size: z.number(), at: z.iso.datetime({ offset: true }), tags: z.array(z.object({ name: z.string() })) });
 
@@ -34,11 +35,11 @@ const goneRoute = declareRoute({
   answer: empty(204, 'gone'),
 });
 
-function appWith(handler: RouteHandler<typeof itemRoute>): { app: express.Express; logged: unknown[] } {
+function appWith(handler: RouteHandler<typeof itemRoute>, answerCheck: AnswerCheckMode = 'every'): { app: express.Express; logged: unknown[] } {
   const logged: unknown[] = [];
   const log = (msg: string, err: unknown) => void logged.push([msg, err]);
   const router = Router();
-  mountRoute(router, itemRoute, handler, { log });
+  mountRoute(router, itemRoute, handler, { log, answerCheck });
   mountRoute(router, goneRoute, () => undefined, { log });
   const app = express();
   app.use(express.json());
@@ -124,5 +125,39 @@ describe('mountRoute', () => {
     const res = await request(appWith(() => good).app).delete('/api/things/abc');
     expect(res.status).toBe(204);
     expect(res.text).toBe('');
+  });
+
+  it('sends JSON text as it is, after the same check', async () => {
+    const text = JSON.stringify({ ...good, at: good.at.toISOString() });
+    const sent = await request(appWith(() => jsonText(text)).app)
+      .post('/api/things/abc/items')
+      .send({ size: 1 });
+    expect(sent.status).toBe(201);
+    expect(sent.text).toBe(text);
+    const bad = await request(appWith(() => jsonText(JSON.stringify({ ...good, extra: 1 }))).app)
+      .post('/api/things/abc/items')
+      .send({ size: 1 });
+    expect(bad.status).toBe(500);
+    expect(bad.body.code).toBe('answer_mismatch');
+  });
+
+  it('in sample mode checks the first 20 answers of a route, then one in 50', async () => {
+    const { app } = appWith(() => ({ ...good, extra: 1 }) as never, 'sample');
+    const statuses: number[] = [];
+    for (let i = 0; i < 60; i++) statuses.push((await request(app).post('/api/things/abc/items').send({ size: 1 })).status);
+    const refused = statuses.flatMap((s, i) => (s === 500 ? [i + 1] : []));
+    expect(refused).toEqual([...Array.from({ length: 20 }, (_, i) => i + 1), 50]);
+  });
+});
+
+describe('answerCheckMode', () => {
+  it('checks every answer outside production and a sample in production, unless POLEWARD_ANSWER_CHECK says otherwise', () => {
+    expect(answerCheckMode({ NODE_ENV: 'test' })).toBe('every');
+    expect(answerCheckMode({})).toBe('every');
+    expect(answerCheckMode({ NODE_ENV: 'production' })).toBe('sample');
+    expect(answerCheckMode({ NODE_ENV: 'production', POLEWARD_ANSWER_CHECK: 'every' })).toBe('every');
+    expect(answerCheckMode({ NODE_ENV: 'test', POLEWARD_ANSWER_CHECK: 'sample' })).toBe('sample');
+    const every = new AnswerSample('every');
+    expect(Array.from({ length: 100 }, () => every.due()).every(Boolean)).toBe(true);
   });
 });

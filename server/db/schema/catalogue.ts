@@ -1,5 +1,6 @@
 import { sql, type SQL } from 'drizzle-orm';
 import {
+  bigint,
   boolean,
   customType,
   doublePrecision,
@@ -147,6 +148,21 @@ export const resonances = pgTable(
     index('resonances_search_text').using('gin', t.searchText),
   ],
 );
+
+/**
+ * The catalogue generation of each group: a counter that a trigger on `resonances` raises
+ * in the same transaction as every statement that inserts, updates or deletes the group's
+ * rows (migrations/0014_catalogue_generation_trigger.sql; TRUNCATE raises every group's).
+ * Every API process reads it with the caller's membership on each request, so answers and
+ * counts cached under a generation are dropped by the first request after any change, made
+ * by any process (API, workers, restores, cascaded deletes). No row yet reads as 0.
+ * No foreign key: a group's deletion cascades to its resonances, whose trigger must not
+ * need the group row that is going away; a leftover counter of a deleted group is harmless.
+ */
+export const catalogueGenerations = pgTable('catalogue_generations', {
+  groupId: uuid('group_id').primaryKey(),
+  generation: bigint('generation', { mode: 'number' }).notNull().default(0),
+});
 
 /** The mode vector ψ_R of a resonance (Float64 interleaved re, im), kept for later maps (currents, Husimi). */
 export const resonanceModes = pgTable('resonance_modes', {
