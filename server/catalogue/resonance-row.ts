@@ -4,13 +4,8 @@ import { keyDimensionsOf } from '../models/model-figures.js';
 
 export type { ResonanceRow };
 
-/**
- * The mode picture of a resonance, or null when it has none. Pictures are rendered by the run
- * that found the resonance (and carried by group backups with their runs), so a resonance
- * without a run has none: a fitted peak, or a row imported from another group's export.
- */
-export function modeImageUrl(groupId: string, r: { id: string; runId: string | null }, size: 'thumb' | 'full'): string | null {
-  return r.runId === null ? null : `/api/groups/${groupId}/resonances/${r.id}/mode.png?size=${size}`;
+export function modeImageUrl(groupId: string, id: string, size: 'thumb' | 'full'): string {
+  return `/api/groups/${groupId}/resonances/${id}/mode.png?size=${size}`;
 }
 
 /** Record → API row; only the key dimensions the family has are listed. */
@@ -60,8 +55,8 @@ export function toResonanceRow(r: ResonanceRecord): ResonanceRow {
     tags: r.tags,
     notes: r.notes,
     createdAt: r.createdAt.toISOString(),
-    thumbnailUrl: modeImageUrl(r.groupId, r, 'thumb'),
-    imageUrl: modeImageUrl(r.groupId, r, 'full'),
+    thumbnailUrl: r.source === 'fitted' ? null : modeImageUrl(r.groupId, r.id, 'thumb'),
+    imageUrl: r.source === 'fitted' ? null : modeImageUrl(r.groupId, r.id, 'full'),
   };
 }
 

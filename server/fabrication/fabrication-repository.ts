@@ -73,7 +73,6 @@ export async function listFabrication(q: Queryable, groupId: string, states: Fab
       nearThreshold: resonances.nearThreshold,
       overlapping: resonances.overlapping,
       source: resonances.source,
-      runId: resonances.runId,
     })
     .from(resonanceFabrication)
     .innerJoin(resonances, eq(resonances.id, resonanceFabrication.resonanceId))

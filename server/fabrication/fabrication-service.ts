@@ -290,7 +290,7 @@ export class FabricationService {
       quality: r.quality,
       nearThreshold: r.nearThreshold,
       overlapping: r.overlapping,
-      thumbnailUrl: modeImageUrl(groupId, { id: r.f.resonanceId, runId: r.runId }, 'thumb'),
+      thumbnailUrl: r.source === 'fitted' ? null : modeImageUrl(groupId, r.f.resonanceId, 'thumb'),
       measurement: measurementOf(r.f, r, names),
       downloads: PACKAGE_STATES.includes(r.f.state as FabricationState) ? packageLinks(groupId, r.f.resonanceId) : null,
     }));

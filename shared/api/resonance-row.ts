@@ -70,10 +70,7 @@ export const resonanceRowSchema = z
     tags: z.array(z.string()),
     notes: z.string(),
     createdAt: timestamp(),
-    thumbnailUrl: z
-      .string()
-      .nullable()
-      .meta({ description: 'null when the resonance has no run and so no mode image (fitted peaks, rows imported from another group)' }),
+    thumbnailUrl: z.string().nullable().meta({ description: 'null for fitted resonances (no mode image)' }),
     imageUrl: z.string().nullable(),
   })
   .meta({ id: 'ResonanceRow', description: 'One catalogued resonance z = E − iΓ/2.' });

@@ -88,8 +88,11 @@ export class ResonanceDetail {
           ]),
     ];
   });
-  /** The answer says where the picture is, or null when the resonance has no run here (imported rows). */
-  protected readonly imageUrl = computed(() => this.resonance()?.imageUrl ?? null);
+  protected readonly imageUrl = computed(() => {
+    const r = this.resonance();
+    const groupId = this.group.id();
+    return r && groupId ? this.api.modeImageUrl(groupId, r.id, 'full') : null;
+  });
   protected readonly planePoles = computed<PlanePole[]>(() => {
     const r = this.resonance();
     if (!r) return [];
