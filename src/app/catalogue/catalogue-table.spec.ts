@@ -117,6 +117,22 @@ describe('CatalogueTable', () => {
     expect(subs[1]).toContain('custom m*');
   });
 
+  it('says "no picture" instead of a broken image when a row has no stored mode picture', async () => {
+    const http = setUp();
+    const harness = await RouterTestingHarness.create();
+    await harness.navigateByUrl('/catalogue');
+    await wait(0);
+    http.expectOne((r) => r.url === '/api/groups/g1/catalogue').flush({ ...emptyPage, items: [row('a', 'gaas'), row('b', 'gaas')], total: 2 });
+    harness.detectChanges();
+    const host = harness.routeNativeElement as HTMLElement;
+    const images = host.querySelectorAll('img');
+    expect(images).toHaveLength(2);
+    images[1]!.dispatchEvent(new Event('error'));
+    harness.detectChanges();
+    expect(host.querySelectorAll('img')).toHaveLength(1);
+    expect(host.querySelectorAll('[data-test="no-picture"]')).toHaveLength(1);
+  });
+
   it('shows a microwave row in GHz, MHz, mm and ε_r, with the field not applicable; an electron area in nm²', async () => {
     const http = setUp();
     const harness = await RouterTestingHarness.create();

@@ -80,6 +80,11 @@ export class CatalogueTable {
     const items = this.page()?.items ?? [];
     return items.length > 0 && items.every((r) => r.physics === 'microwave');
   });
+  /** Rows whose picture answered an error (imported rows have none in this group). */
+  protected readonly missingPictures = signal<ReadonlySet<string>>(new Set());
+  protected pictureMissing(id: string): void {
+    this.missingPictures.update((s) => new Set(s).add(id));
+  }
   protected readonly columns = ['thumbnail', 'energy', 'width', 'lifetime', 'quality', 'flags', 'validity', 'geometry', 'model', 'date', 'tags'];
 
   protected readonly form = new FormGroup<FilterControls>(

@@ -88,6 +88,8 @@ export class ResonanceDetail {
           ]),
     ];
   });
+  /** The picture URL that answered an error (none is stored for that resonance). */
+  protected readonly missingPicture = signal<string | null>(null);
   protected readonly imageUrl = computed(() => {
     const r = this.resonance();
     const groupId = this.group.id();

@@ -31,6 +31,10 @@ import { STATE_ICONS, stateLabel } from '../core/fabrication/state-label';
   styleUrl: './review-queue.scss',
 })
 export class ReviewQueue {
+  /** A resonance without a stored picture (e.g. imported): no broken image. */
+  protected hideImage(event: Event): void {
+    (event.target as HTMLImageElement).hidden = true;
+  }
   private readonly api = inject(FabricationApi);
   private readonly errors = inject(ErrorReport);
   private readonly snackBar = inject(MatSnackBar);
