@@ -295,11 +295,6 @@ export class CatalogueService {
     return ids;
   }
 
-  /** Drops the cached catalogue totals of a group (after rows were added outside a run). */
-  forgetCounts(groupId: string): void {
-    this.counter.forgetGroup(groupId);
-  }
-
   /** The PNG (null when the caller's ETag is current) and its ETag; 404 when there is none. */
   async modeImage(groupId: string, id: string, size: 'thumb' | 'full', knownEtags: string[]): Promise<{ etag: string; png: Buffer | null }> {
     const image = await findModeImage(this.db, groupId, id, size, knownEtags);

@@ -349,7 +349,6 @@ export class StudyService {
         details: { studyId, step: index, version: saved.version, resonances: ids.length },
       });
     });
-    this.catalogue.forgetCounts(groupId);
     return { modelId: model.id, version, resonances: filed, certified: decoded.certified };
   }
 
