@@ -24,8 +24,10 @@
  * (the interface rule for its slanted bonds is not written yet). Energies in meV, lengths nm.
  */
 import { FLUX_QUANTUM_T_NM2 } from '../units/constants';
-import type { LeadSide } from '../model/cavity-model';
-import { forEachPresetBond, presetOnsite, type TightBindingParameters } from './tight-binding';
+import { formatIssuePath, type CavityModel, type Lead, type LeadSide } from '../model/cavity-model';
+import { validateCavityModel } from '../model/model-validation';
+import { indexSites } from './lattice';
+import { forEachPresetBond, modelTightBinding, presetOnsite, type TightBindingParameters } from './tight-binding';
 
 /** One lead's unit cell and its coupling to the cavity. Matrices are dense, row-major, interleaved (re, im). */
 export interface LeadCell {
@@ -187,4 +189,25 @@ export function leadBlochHamiltonian(cell: Pick<LeadCell, 'size' | 'h0' | 'h1'>,
     }
   }
   return h;
+}
+
+/**
+ * The unit cell of one of a model's leads, attached to the model's cavity: `lead` is the
+ * lead's index in model.leads or the lead itself (its side, start, width and offset are
+ * used). Rasterises the cavity (O(nx·ny)); throws on an invalid model. The contacts are
+ * the cavity sites bonded to cell 0, `mouth` their unknown indices in the cavity's
+ * lexicographic order (the order of every engine vector). Energies in meV.
+ */
+export function leadCellOf(model: CavityModel, lead: number | Lead): AttachedLeadCell {
+  const checked = validateCavityModel(model);
+  if (!checked.ok) throw new Error(`leadCellOf: invalid model: ${checked.issues.map((i) => `${formatIssuePath(i.path)}: ${i.message}`).join('; ')}`);
+  const l = typeof lead === 'number' ? checked.model.leads[lead] : lead;
+  if (!l) throw new RangeError(`leadCellOf: lead ${String(lead)} does not exist (the model has ${checked.model.leads.length} leads)`);
+  const { nx, ny } = checked.model.grid;
+  const mask = checked.mask;
+  const { siteIndex } = indexSites(mask, nx, ny);
+  const cell = presetLeadCell(modelTightBinding(checked.model), l.side, l.start, l.width, l.offset, nx, ny, (i, j) => mask[i * ny + j] === 1);
+  const mouth = new Int32Array(cell.contacts.i.length);
+  for (let p = 0; p < mouth.length; p++) mouth[p] = siteIndex[cell.contacts.i[p] * ny + cell.contacts.j[p]];
+  return { ...cell, mouth };
 }

@@ -12,7 +12,8 @@
  * 81, 109 (2009), eq. 6). Energies in meV, lengths in nm, field in T.
  */
 import { FLUX_QUANTUM_T_NM2 } from '../units/constants';
-import type { SitePlacement } from '../model/lattice-geometry';
+import { placementOf, type SitePlacement } from '../model/lattice-geometry';
+import { modelHopping, modelLattice, type CavityModel } from '../model/cavity-model';
 import { indexSites, type CavityLattice } from './lattice';
 
 export interface TightBindingParameters {
@@ -144,4 +145,24 @@ export function blochHamiltonian(p: TightBindingParameters, cols: number, rows: 
     }
   }
   return h;
+}
+
+/**
+ * The tight-binding parameters of a parsed model (energies in meV): the square lattice with
+ * t from the material and E0 = 4t, or the honeycomb with its t, Δ, t' (given in eV) and E0 = 0.
+ */
+export function modelTightBinding(model: CavityModel): TightBindingParameters {
+  const lattice = modelLattice(model);
+  const t = modelHopping(model);
+  if (lattice.kind === 'honeycomb') {
+    return {
+      placement: placementOf('honeycomb', model.spacing),
+      hopping: t,
+      onsiteOffset: 0,
+      sublattice: 1000 * lattice.sublatticePotential,
+      nextHopping: 1000 * lattice.nextHopping,
+      field: model.field,
+    };
+  }
+  return { placement: placementOf('square', model.spacing), hopping: t, onsiteOffset: 4 * t, field: model.field };
 }

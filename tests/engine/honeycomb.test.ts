@@ -6,8 +6,11 @@
 import { describe, expect, it } from 'vitest';
 import { EigenvalueDecomposition, Matrix } from 'ml-matrix';
 import { blochHamiltonian, buildTightBinding, type TightBindingParameters } from '../../shared/engine/tight-binding';
-import { leadBlochHamiltonian, presetLeadCell } from '../../shared/engine/lead-cell';
-import { buildLattice, hamiltonianCsc } from '../../shared/engine/lattice';
+import { leadBlochHamiltonian, leadCellOf, presetLeadCell } from '../../shared/engine/lead-cell';
+import { validateCavityModel } from '../../shared/model/model-validation';
+import { cavityModelSchema } from '../../shared/model/cavity-model';
+import { deriveFigures } from '../../shared/model/derived-figures';
+import { hamiltonianCsc } from '../../shared/engine/lattice';
 import { closedCavityEigenvalues } from '../../shared/engine/closed-cavity';
 import { honeycombPlacement, removeDanglingSites, squarePlacement, neighbourCount } from '../../shared/model/lattice-geometry';
 import { rasteriseShape, connectedComponents } from '../../shared/model/geometry';
@@ -340,5 +343,86 @@ describe('honeycomb flakes', () => {
     }
     // No level between the plateaus: (0, E_1) holds nothing at the guiding centre's wavevector.
     expect(e.filter((v) => Math.abs(v) > 0.05 * e1 && Math.abs(v) < 0.9 * e1)).toHaveLength(0);
+  });
+});
+
+const GRAPHENE_DISK = {
+  name: 'graphene disk',
+  spacing: ACC,
+  lattice: { kind: 'honeycomb', hopping: 2.7, removeDangling: true },
+  grid: { nx: 40, ny: 24 },
+  shape: { kind: 'disk', cx: 2.8, cy: 2.6, radius: 2.2 },
+} as const;
+
+describe('honeycomb model documents', () => {
+  it('leaves a square document as it was (no lattice key is added) and reads a honeycomb one', () => {
+    const square = { name: 'old', spacing: 5, material: 'gaas', grid: { nx: 10, ny: 10 }, shape: { kind: 'rectangle', x0: 0, y0: 0, width: 50, height: 50 } };
+    expect('lattice' in cavityModelSchema.parse(square)).toBe(false);
+    const checked = validateCavityModel(GRAPHENE_DISK);
+    expect(checked.ok).toBe(true);
+    if (!checked.ok) return;
+    // Cut without clean-up, the same disk has more atoms: the dangling rim ones.
+    const raw = validateCavityModel({ ...GRAPHENE_DISK, lattice: { kind: 'honeycomb', hopping: 2.7 } });
+    expect(raw.ok && raw.siteCount > checked.siteCount).toBe(true);
+    const figures = deriveFigures(checked.model, checked.siteCount, 300);
+    expect(figures.hopping).toBe(2700);
+    // v_F = 3t·a_CC/(2ħ) (Castro Neto et al. 2009, eq. 7): about 8.7·10⁵ m/s for t = 2.7 eV.
+    expect(figures.dirac!.velocity).toBeGreaterThan(8.6e5);
+    expect(figures.dirac!.velocity).toBeLessThan(8.8e5);
+    expect(figures.validity!.warnings).toHaveLength(0);
+    expect(deriveFigures(checked.model, checked.siteCount, 1500).validity!.warnings).toHaveLength(1);
+  });
+
+  it('refuses a material on the honeycomb, and leads until the numerical lead solver exists', () => {
+    const withMaterial = validateCavityModel({ ...GRAPHENE_DISK, material: 'gaas' });
+    expect(!withMaterial.ok && withMaterial.issues[0].path).toEqual(['material']);
+    const ribbon = {
+      ...GRAPHENE_DISK,
+      shape: { kind: 'rectangle', x0: 0, y0: 0, width: 40 * 0.123, height: 24 * 0.213 },
+      leads: [{ side: 'left', start: 4, width: 10 }],
+    };
+    expect(validateCavityModel(ribbon).ok).toBe(true);
+    expect(() => buildCavitySystem(ribbon)).toThrow(/leads on a honeycomb lattice need the numerical lead solver/);
+  });
+});
+
+describe('lead cells (leadCellOf)', () => {
+  it('gives the square lead of the contract: H0 tridiagonal (4t + V_L, −t), H1 = −t·1, V = −t on the mouth', () => {
+    const doc = {
+      name: 'wire',
+      spacing: 4,
+      material: 'gaas',
+      grid: { nx: 12, ny: 9 },
+      shape: { kind: 'rectangle', x0: 0, y0: 0, width: 48, height: 36 },
+      leads: [{ side: 'left', start: 2, width: 5, offset: 0.7 }],
+    };
+    const system = buildCavitySystem(doc);
+    const t = system.hopping;
+    const cell = leadCellOf(system.model, 0);
+    const w = 5;
+    expect(cell.size).toBe(w);
+    expect(Array.from(cell.mouth)).toEqual(Array.from(system.leads[0].mouth));
+    expect(cell.translation[0]).toBeCloseTo(-4, 12);
+    for (let r = 0; r < w; r++)
+      for (let c = 0; c < w; c++) {
+        const h0 = r === c ? 4 * t + 0.7 : Math.abs(r - c) === 1 ? -t : 0;
+        expect(Math.abs(cell.h0[2 * (r * w + c)] - h0)).toBeLessThan(1e-12 * t);
+        expect(Math.abs(cell.h1[2 * (r * w + c)] - (r === c ? -t : 0))).toBeLessThan(1e-12 * t);
+        expect(Math.abs(cell.coupling[2 * (r * w + c)] - (r === c ? -t : 0))).toBeLessThan(1e-12 * t);
+      }
+  });
+
+  it('gives a honeycomb top lead (an armchair ribbon) its 2W sites, bonded to the B atoms of the top row', () => {
+    const doc = { ...GRAPHENE_DISK, shape: { kind: 'rectangle', x0: 0, y0: 0, width: 5, height: 5 }, leads: [{ side: 'top', start: 6, width: 8 }] };
+    const checked = validateCavityModel(doc);
+    expect(checked.ok).toBe(true);
+    if (!checked.ok) return;
+    const cell = leadCellOf(checked.model, 0);
+    expect(cell.size).toBe(16);
+    // Nearest-neighbour only: the vertical bonds from (i, ny−1) with i + ny − 1 odd, 4 of the 8 columns.
+    expect(cell.contacts.j.every((j) => j === 23)).toBe(true);
+    expect(cell.contacts.i.every((i) => (i + 23) % 2 === 1)).toBe(true);
+    expect(cell.mouth).toHaveLength(4);
+    expect(Math.hypot(...cell.translation)).toBeCloseTo(3 * ACC, 12);
   });
 });
