@@ -173,6 +173,10 @@ async function run(argv: string[]): Promise<unknown> {
       steps: res.steps,
       vectors: res.vectors?.map((v) => Array.from(v)),
       sites: switches.has('vectors') ? { i: Array.from(system.sites.i), j: Array.from(system.sites.j) } : undefined,
+      // Off the square lattice (i, j) are grid labels, not positions: give the positions (nm) too.
+      ...(switches.has('vectors') && system.lattice.kind !== 'square'
+        ? { lattice: system.lattice.kind, positions: { x: Array.from(system.lattice.positions.x), y: Array.from(system.lattice.positions.y) } }
+        : {}),
     };
   }
   const op = new EffectiveHamiltonian(system);

@@ -10,7 +10,7 @@ import { formatIssuePath } from '../../shared/model/cavity-model.js';
  * converted, so one filter means one length), null where the family lacks it:
  * width/height: bounding box of the cavity sites ((columns, rows) × a; a rectangle's own);
  * radius: disk, stadium; length: stadium; rx, ry: ellipse; inner, outer: annulus;
- * area: cavity sites × a² (nm²), for every family.
+ * area: cavity sites × a² (nm²), for every family; × (3√3/4)a_CC² on the honeycomb.
  */
 export interface GeometryColumns {
   widthNm: number | null;
@@ -90,20 +90,27 @@ export function checkModel(document: unknown): CheckedModel {
 export function geometryColumns(model: CavityModel, mask: Uint8Array, siteCount: number): GeometryColumns {
   const scale = physicsUnits(model.physics.kind).nmPerLength;
   const a = model.spacing;
+  // Column and row pitch and area per site: a, a, a² on the square lattice; on the honeycomb
+  // (√3/2)a_CC, (3/2)a_CC and (3√3/4)a_CC² (one hexagon, (3√3/2)a_CC², holds two atoms).
+  // The square lattice keeps its exact arithmetic.
+  const honeycomb = model.lattice?.kind === 'honeycomb';
+  const dx = honeycomb ? (Math.sqrt(3) / 2) * a : a;
+  const dy = honeycomb ? 1.5 * a : a;
+  const perSite = ((3 * Math.sqrt(3)) / 4) * a * a;
   const box = maskBox(mask, model.grid.nx, model.grid.ny);
   const body = bodyShape(model.shape);
   const nm = (v: number | undefined) => (v === undefined ? null : v * scale);
   const own = body === model.shape && body.kind === 'rectangle';
   return {
-    widthNm: own ? body.width * scale : box ? (box.imax - box.imin + 1) * a * scale : null,
-    heightNm: own ? body.height * scale : box ? (box.jmax - box.jmin + 1) * a * scale : null,
+    widthNm: own ? body.width * scale : box ? (box.imax - box.imin + 1) * dx * scale : null,
+    heightNm: own ? body.height * scale : box ? (box.jmax - box.jmin + 1) * dy * scale : null,
     radiusNm: nm(body.kind === 'disk' || body.kind === 'stadium' ? body.radius : undefined),
     lengthNm: nm(body.kind === 'stadium' ? body.length : undefined),
     rxNm: nm(body.kind === 'ellipse' ? body.rx : undefined),
     ryNm: nm(body.kind === 'ellipse' ? body.ry : undefined),
     innerNm: nm(body.kind === 'annulus' ? body.inner : undefined),
     outerNm: nm(body.kind === 'annulus' ? body.outer : undefined),
-    areaNm2: siteCount * a * a * scale * scale,
+    areaNm2: honeycomb ? siteCount * perSite * scale * scale : siteCount * a * a * scale * scale,
   };
 }
 

@@ -12,7 +12,9 @@
  * with Σ|ψ|² = 1 (ħ = 0.6582119569 meV·ps), times `scale`.
  * Per-site vector: j_x(s) = ½[J((i−1,j) → s) + J(s → (i+1,j))], j_y likewise; a bond
  * that does not exist counts 0, a lead bond counts with its direction (left lead −x,
- * right +x, bottom −y, top +y). Cost O(n + bonds + Σ W²).
+ * right +x, bottom −y, top +y). On another lattice (honeycomb) each bond adds
+ * ½·J·ê_b at both ends, ê_b its unit vector from `from` to `to`, which is the same rule
+ * written for bonds in any direction. Cost O(n + bonds + Σ W²).
  */
 import { HBAR_MEV_PS } from '../units/constants';
 import type { CavityLattice } from './lattice';
@@ -67,14 +69,16 @@ export function currentMap(
   const n = lattice.onsite.length;
   if (psi.length !== 2 * n) throw new RangeError(`currentMap: psi has length ${psi.length}, expected 2·sites = ${2 * n}`);
   const factor = (2 / HBAR_MEV_PS) * (options.scale ?? 1);
-  const t = lattice.hopping;
-  const { from, to, phase } = lattice.bonds;
+  const { from, to, phase, hopping } = lattice.bonds;
   const bonds = new Float64Array(from.length);
   const siteVectors = new Float64Array(2 * n);
   const sj = lattice.sites.j;
+  const square = lattice.kind === 'square';
+  const { x: px, y: py } = lattice.positions;
   for (let b = 0; b < from.length; b++) {
     const s = from[b];
     const r = to[b];
+    const t = hopping[b];
     // H[r,s]ψ_s = −t e^{iθ} ψ_s; J = factor·Im(conj(ψ_r)·H[r,s]ψ_s)
     const c = -t * Math.cos(phase[b]);
     const sn = -t * Math.sin(phase[b]);
@@ -82,6 +86,16 @@ export function currentMap(
     const hi = c * psi[2 * s + 1] + sn * psi[2 * s];
     const j = factor * (psi[2 * r] * hi - psi[2 * r + 1] * hr);
     bonds[b] = j;
+    if (!square) {
+      const dx = px[r] - px[s];
+      const dy = py[r] - py[s];
+      const len = Math.hypot(dx, dy);
+      siteVectors[2 * s] += (0.5 * j * dx) / len;
+      siteVectors[2 * s + 1] += (0.5 * j * dy) / len;
+      siteVectors[2 * r] += (0.5 * j * dx) / len;
+      siteVectors[2 * r + 1] += (0.5 * j * dy) / len;
+      continue;
+    }
     // Bonds point in +x or +y: the same sign is the flow along that axis at both ends.
     const axis = sj[r] !== sj[s] ? 1 : 0;
     siteVectors[2 * s + axis] += 0.5 * j;

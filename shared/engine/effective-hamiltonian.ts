@@ -4,7 +4,9 @@
  * The pattern is H's plus one dense W×W block per lead mouth, fixed for all z.
  */
 import { fluxPerPlaquette } from '../units/constants';
-import { modelHopping, modelMassRatio, formatIssuePath, type CavityModel, type LeadSide, type ModelIssue } from '../model/cavity-model';
+import { modelHopping, modelLattice, modelMassRatio, formatIssuePath, type CavityModel, type LeadSide, type ModelIssue } from '../model/cavity-model';
+import { placementOf, type SitePlacement } from '../model/lattice-geometry';
+import { buildTightBinding, modelTightBinding } from './tight-binding';
 import { validateCavityModel } from '../model/model-validation';
 import { mouthSites } from '../model/geometry';
 import { evaluatePotential } from '../model/potential';
@@ -53,8 +55,10 @@ export interface SystemLead {
 export interface CavitySystem {
   model: CavityModel;
   massRatio: number;
-  /** Lattice spacing a (nm; mm in the microwave mode). */
+  /** Lattice spacing a (nm; mm in the microwave mode); a_CC on the honeycomb. */
   spacing: number;
+  /** Where the lattice's sites sit (lattice-geometry.ts). */
+  placement: SitePlacement;
   mask: Uint8Array;
   lattice: CavityLattice;
   sites: { i: Int32Array; j: Int32Array };
@@ -79,9 +83,24 @@ export function buildCavitySystem(doc: unknown): CavitySystem {
   // meV for electrons, 1/a² (mm⁻²) for the microwave mode: the same operator either way.
   const hopping = modelHopping(model);
   const flux = fluxPerPlaquette(model.field, model.spacing);
+  const placement = placementOf(modelLattice(model).kind, model.spacing);
   const { siteIndex, sites } = indexSites(mask, nx, ny);
-  const potential = evaluatePotential(model.potential, sites, siteIndex, ny, model.spacing);
-  const lattice = buildLattice(mask, nx, ny, hopping, flux, potential);
+  const potential = evaluatePotential(model.potential, sites, siteIndex, ny, model.spacing, placement);
+  if (placement.kind !== 'square') {
+    if (model.leads.length > 0) {
+      throw new InvalidModelError([
+        {
+          path: ['leads'],
+          message:
+            'leads on a honeycomb lattice need the numerical lead solver, which is not in this version yet: remove the leads ' +
+            'to compute the closed flake (info, closed, poles of bound states), or use the square lattice',
+        },
+      ]);
+    }
+    const lattice = buildTightBinding(mask, nx, ny, modelTightBinding(model), potential);
+    return { model, massRatio, spacing: model.spacing, placement, mask, lattice, sites: lattice.sites, hopping, flux: lattice.flux, leads: [] };
+  }
+  const lattice = buildLattice(mask, nx, ny, hopping, flux, potential, model.spacing);
   const leads = model.leads.map((lead, k): SystemLead => {
     const m = mouthSites(lead, nx, ny);
     const mouth = new Int32Array(lead.width);
@@ -94,7 +113,7 @@ export function buildCavitySystem(doc: unknown): CavitySystem {
       theta: mouthPhases(lead.side, m.i, m.j, flux),
     };
   });
-  return { model, massRatio, spacing: model.spacing, mask, lattice, sites: lattice.sites, hopping, flux, leads };
+  return { model, massRatio, spacing: model.spacing, placement, mask, lattice, sites: lattice.sites, hopping, flux, leads };
 }
 
 /** Open-channel coupling vectors W (columns sqrt(2t sin k_m)·e^{−iθ_p}χ_m(p) on each mouth). */

@@ -36,9 +36,10 @@ export function symmetricGauge(flux: number): Gauge {
  * must not change. Cost O(bonds).
  */
 export function latticeInGauge(lattice: CavityLattice, gauge: Gauge): CavityLattice {
-  const { from, to } = lattice.bonds;
+  if (lattice.kind !== 'square') throw new Error('latticeInGauge: gauges in lattice units are defined on the square lattice only');
+  const { from, to, hopping } = lattice.bonds;
   const { i, j } = lattice.sites;
   const phase = new Float64Array(from.length);
   for (let b = 0; b < from.length; b++) phase[b] = gauge.lineIntegral(i[from[b]], j[from[b]], i[to[b]], j[to[b]]);
-  return { ...lattice, bonds: { from, to, phase } };
+  return { ...lattice, bonds: { from, to, phase, hopping } };
 }

@@ -91,6 +91,11 @@ export function latticeWavenumber(e: number, t: number, c: number, s: number): n
 
 /** The Husimi direction map of ψ (interleaved over the lattice sites); spacing a in nm. */
 export function husimiMap(lattice: CavityLattice, spacing: number, psi: Float64Array, options: HusimiOptions): HusimiMap {
+  if (lattice.kind !== 'square') {
+    throw new Error(
+      `Husimi maps are defined on the square lattice only (its coherent states follow the square-lattice dispersion); this cavity is on a ${lattice.kind} lattice`,
+    );
+  }
   const n = lattice.onsite.length;
   if (psi.length !== 2 * n) throw new RangeError(`husimi: psi has length ${psi.length}, expected 2·sites = ${2 * n}`);
   const { energy } = options;

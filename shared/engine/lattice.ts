@@ -1,28 +1,42 @@
 /**
- * The closed-cavity tight-binding Hamiltonian H on the cavity sites S
- * (docs/physics-model.md, "Lattice and cavity"):
+ * The closed-cavity tight-binding Hamiltonian H on the cavity sites S, as a list of
+ * sites (grid labels, positions, onsite energies) and bonds (hopping, Peierls phase):
+ * H[s,s] = onsite(s), H[to,from] = −t_b·exp(iθ_b), H[from,to] its conjugate. Every lattice
+ * (square, honeycomb: tight-binding.ts) is described this way, and every driver (sparse
+ * LU, pole search, transmission, closed cavity, currents) works from it.
+ * The square lattice's own builder here is the fast path (docs/physics-model.md,
+ * "Lattice and cavity"):
  *   H[s,s] = 4t + V(s),  H[s',s] = −t·exp(iθ(s→s')) for nearest neighbours in S,
  *   θ((i,j)→(i+1,j)) = +2πφ·j, vertical bonds 0, φ = B a²/(h/e)
  * (Landau gauge A = (−B·y, 0), y from row 0, charge −e). Energies in meV.
  * Unknowns are numbered in lexicographic (i, j) order.
  */
 import { buildPattern, patternSlot, type SparsityPattern } from './sparsity-pattern';
+import type { LatticeKind } from '../model/lattice-geometry';
 
-/** Cavity sites and their bonds; H[to, from] = −t·exp(i·phase) for each listed bond. */
+/** Cavity sites and their bonds; H[to, from] = −t_b·exp(i·phase) for each listed bond. */
 export interface CavityLattice {
+  /** Which lattice the sites sit on (lattice-geometry.ts); paths that only know the square lattice check it. */
+  kind: LatticeKind;
   nx: number;
   ny: number;
-  /** Hopping t (meV). */
+  /** The nearest-neighbour hopping t (meV), the energy scale of tolerances. */
   hopping: number;
-  /** Flux per plaquette φ (dimensionless). */
+  /** Flux B·ℓ²/(h/e) through a square of the lattice length ℓ (a, or a_CC) (dimensionless). */
   flux: number;
   /** Grid point i·ny + j → unknown index, −1 outside the cavity. */
   siteIndex: Int32Array;
+  /** Grid labels (i, j) of each unknown. */
   sites: { i: Int32Array; j: Int32Array };
-  /** H[s,s] = 4t + V(s) (meV). */
+  /** Position of each unknown (nm; lattice units when the square builder is given no spacing). */
+  positions: { x: Float64Array; y: Float64Array };
+  /** H[s,s] (meV): 4t + V(s) on the square lattice. */
   onsite: Float64Array;
-  /** Each bond once, `from` → `to` pointing in +x or +y. */
-  bonds: { from: Int32Array; to: Int32Array; phase: Float64Array };
+  /**
+   * Each bond once. On the square lattice `from` → `to` points in +x or +y; `hopping` is t_b
+   * (meV) in H[to,from] = −t_b·e^{iθ}.
+   */
+  bonds: { from: Int32Array; to: Int32Array; phase: Float64Array; hopping: Float64Array };
 }
 
 /** Unknown numbering of a mask (index i·ny + j) in lexicographic (i, j) order. Cost O(nx·ny). */
@@ -43,10 +57,12 @@ export function indexSites(mask: Uint8Array, nx: number, ny: number): { siteInde
 }
 
 /**
- * Builds the lattice of a mask. Cost O(nx·ny).
+ * Builds the square lattice of a mask (the fast path; tight-binding.ts builds the same
+ * lattice from its preset, and tests/engine/tight-binding.test.ts checks they agree). Cost O(nx·ny).
  * @param potential V(s) in meV per unknown (lexicographic order), or undefined for V = 0
+ * @param spacing a (nm) for the positions; 1 gives them in lattice units
  */
-export function buildLattice(mask: Uint8Array, nx: number, ny: number, hopping: number, flux: number, potential?: Float64Array): CavityLattice {
+export function buildLattice(mask: Uint8Array, nx: number, ny: number, hopping: number, flux: number, potential?: Float64Array, spacing = 1): CavityLattice {
   const { siteIndex, sites } = indexSites(mask, nx, ny);
   const n = sites.i.length;
   const onsite = new Float64Array(n);
@@ -74,15 +90,23 @@ export function buildLattice(mask: Uint8Array, nx: number, ny: number, hopping: 
       }
     }
   }
+  const x = new Float64Array(n);
+  const y = new Float64Array(n);
+  for (let s = 0; s < n; s++) {
+    x[s] = sites.i[s] * spacing;
+    y[s] = sites.j[s] * spacing;
+  }
   return {
+    kind: 'square',
     nx,
     ny,
     hopping,
     flux,
     siteIndex,
     sites,
+    positions: { x, y },
     onsite,
-    bonds: { from: Int32Array.from(from), to: Int32Array.from(to), phase: Float64Array.from(phase) },
+    bonds: { from: Int32Array.from(from), to: Int32Array.from(to), phase: Float64Array.from(phase), hopping: new Float64Array(from.length).fill(hopping) },
   };
 }
 
@@ -109,10 +133,10 @@ export function hamiltonianEntries(lattice: CavityLattice): { rows: number[]; co
  */
 export function addHamiltonian(lattice: CavityLattice, pattern: SparsityPattern, scale: number, values: Float64Array): void {
   const n = lattice.onsite.length;
-  const t = lattice.hopping;
   for (let s = 0; s < n; s++) values[2 * patternSlot(pattern, s, s)] += scale * lattice.onsite[s];
-  const { from, to, phase } = lattice.bonds;
+  const { from, to, phase, hopping } = lattice.bonds;
   for (let b = 0; b < from.length; b++) {
+    const t = hopping[b];
     const c = Math.cos(phase[b]);
     const sn = Math.sin(phase[b]);
     // H[to,from] = −t e^{iθ}; H[from,to] is its conjugate (H Hermitian).
@@ -137,13 +161,13 @@ export function hamiltonianCsc(lattice: CavityLattice): SparsityPattern & { valu
 /** out = H·x for interleaved complex vectors, straight from the bond list. Cost O(n + bonds). */
 export function applyHamiltonian(lattice: CavityLattice, x: Float64Array, out: Float64Array = new Float64Array(x.length)): Float64Array {
   const n = lattice.onsite.length;
-  const t = lattice.hopping;
   for (let s = 0; s < n; s++) {
     out[2 * s] = lattice.onsite[s] * x[2 * s];
     out[2 * s + 1] = lattice.onsite[s] * x[2 * s + 1];
   }
-  const { from, to, phase } = lattice.bonds;
+  const { from, to, phase, hopping } = lattice.bonds;
   for (let b = 0; b < from.length; b++) {
+    const t = hopping[b];
     const c = -t * Math.cos(phase[b]);
     const sn = -t * Math.sin(phase[b]);
     const f = 2 * from[b];

@@ -182,6 +182,30 @@ export const leadSchema = z.object({
 });
 export type Lead = z.infer<typeof leadSchema>;
 
+/** Today's lattice: square, spacing `spacing`, t from the material's effective mass. */
+export const squareLatticeSchema = z.object({ kind: z.literal('square') });
+/**
+ * The honeycomb lattice of graphene (docs/physics-model.md, "Lattices"): `spacing` is the
+ * carbon–carbon distance a_CC (nm); the energies of this block are in eV, as the
+ * tight-binding literature quotes them (every other energy of the document stays in meV).
+ */
+export const honeycombLatticeSchema = z.object({
+  kind: z.literal('honeycomb'),
+  /** Nearest-neighbour hopping t (eV), H[s',s] = −t. */
+  hopping: positive(),
+  /** Sublattice potential Δ (eV): +Δ on sublattice A, −Δ on B. */
+  sublatticePotential: finite().default(0),
+  /** Next-nearest-neighbour hopping t' (eV), H[s',s] = −t'. */
+  nextHopping: finite().default(0),
+  /** Remove atoms with fewer than two neighbours in the cavity, repeatedly (the clean-up of an etched edge). */
+  removeDangling: z.boolean().default(false),
+});
+export const latticeSchema = z.discriminatedUnion('kind', [squareLatticeSchema, honeycombLatticeSchema], {
+  error: 'lattice.kind must be "square" or "honeycomb"',
+});
+export type LatticeChoice = z.infer<typeof latticeSchema>;
+export type HoneycombLattice = z.infer<typeof honeycombLatticeSchema>;
+
 export const materialSchema = z.union([z.string().min(1), z.object({ effectiveMass: positive() })]);
 
 export const cavityModelSchema = z.object({
@@ -189,8 +213,10 @@ export const cavityModelSchema = z.object({
   notes: z.string().max(10_000).optional(),
   /** Electrons in a 2DEG (default; lengths nm) or a flat microwave resonator (lengths mm). */
   physics: physicsSchema,
-  /** Lattice spacing a (nm; mm in the microwave mode). */
+  /** Lattice spacing a (nm; mm in the microwave mode); on the honeycomb lattice the carbon–carbon distance a_CC (nm). */
   spacing: positive(),
+  /** The lattice; absent means square (every document written before lattices were a choice). */
+  lattice: latticeSchema.optional(),
   /** The 2DEG's material; required for electrons, absent in the microwave mode. */
   material: materialSchema.optional(),
   grid: z.object({ nx: z.number().int().positive(), ny: z.number().int().positive() }),
@@ -205,9 +231,14 @@ export type CavityModel = z.infer<typeof cavityModelSchema>;
 /** A model as written in JSON (defaults optional). */
 export type CavityModelInput = z.input<typeof cavityModelSchema>;
 
-/** The mass ratio m* / m_e of a parsed model's material (throws on an unknown preset); 1 in the microwave mode (unused there). */
+/** The lattice of a parsed model: square when the document names none. */
+export function modelLattice(model: Pick<CavityModel, 'lattice'>): LatticeChoice {
+  return model.lattice ?? { kind: 'square' };
+}
+
+/** The mass ratio m* / m_e of a parsed model's material (throws on an unknown preset); 1 in the microwave mode and on the honeycomb lattice (unused there). */
 export function modelMassRatio(model: CavityModel): number {
-  if (model.physics.kind === 'microwave') return 1;
+  if (model.physics.kind === 'microwave' || modelLattice(model).kind === 'honeycomb') return 1;
   if (model.material === undefined) throw new Error('the model has no material');
   if (typeof model.material !== 'string') return model.material.effectiveMass;
   const preset = findMaterial(model.material);
@@ -216,9 +247,12 @@ export function modelMassRatio(model: CavityModel): number {
 }
 /**
  * The hopping t of the lattice operator: (ħ²/2m_e)/(m* / m_e)/a² in meV for electrons,
- * 1/a² in mm⁻² for the microwave mode (docs/physics-model.md, "Physics modes"). Cost O(1).
+ * the honeycomb's t (given in eV) in meV, 1/a² in mm⁻² for the microwave mode (docs/physics-model.md, "Physics modes"). Cost O(1).
  */
 export function modelHopping(model: CavityModel): number {
+  const lattice = modelLattice(model);
+  // The honeycomb's t is given in eV; the engine works in meV.
+  if (lattice.kind === 'honeycomb') return 1000 * lattice.hopping;
   if (model.physics.kind === 'microwave') return 1 / (model.spacing * model.spacing);
   return hoppingEnergy(model.spacing, modelMassRatio(model));
 }

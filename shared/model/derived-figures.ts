@@ -3,9 +3,9 @@
  * every channel threshold, field scales, and how far the lattice can be trusted
  * at a chosen energy (docs/physics-model.md, "Choices made in Poleward").
  */
-import { cyclotronEnergy, fluxPerPlaquette, magneticLength } from '../units/constants';
+import { cyclotronEnergy, FLUX_QUANTUM_T_NM2, HBAR_MEV_PS, fluxPerPlaquette, magneticLength } from '../units/constants';
 import { twoDimensionalLimitGhz } from '../units/microwave';
-import { modelHopping, modelMassRatio, type CavityModel } from './cavity-model';
+import { modelHopping, modelLattice, modelMassRatio, type CavityModel } from './cavity-model';
 import type { PhysicsKind } from './physics-mode';
 
 /** Recommended ceiling of the kinetic energy, as a fraction of t (dispersion error about 4 %). */
@@ -52,6 +52,10 @@ export interface DerivedFigures {
   validity?: EnergyValidity;
   /** Which physics the lattice describes; in the microwave mode every energy above is k² (mm⁻²), every length mm. */
   physics?: PhysicsKind;
+  /** The lattice: square (default) or honeycomb. */
+  lattice?: 'square' | 'honeycomb';
+  /** Honeycomb: ħv_F = 3t·a_CC/2 (meV·nm), v_F (m/s) and the Dirac-point energy 3t' (meV). */
+  dirac?: { hbarVelocity: number; velocity: number; energy: number };
   /** Microwave mode: ε_r of the filling, the height h (mm) and the 2D limit c/(2h√ε_r) (GHz). */
   permittivity?: number;
   heightMm?: number;
@@ -103,8 +107,73 @@ export function energyValidity(energy: number, hopping: number, spacing: number,
   return { energy, dispersionError: err, wavelength: wl, wavelengthOverSpacing: wl / spacing, warnings };
 }
 
+/** Warn when |E − E_D| exceeds this fraction of t: the Dirac cone is visibly warped there. */
+export const DIRAC_CEILING_OVER_T = 0.25;
+
+/**
+ * Validity of the Dirac (continuum) picture on the honeycomb at energy E: the relative error of
+ * ħv_F·q against the lattice band t|f(K − q)| along the line from K to Γ (one of the directions
+ * of trigonal warping; Castro Neto et al., Rev. Mod. Phys. 81, 109 (2009), §II.A, from memory), and the wavelength 2πħv_F/|E − E_D|. The tight-binding results
+ * themselves need no such limit: this is about reading them with the continuum formulas.
+ */
+export function diracValidity(energy: number, hopping: number, acc: number, diracEnergy: number): EnergyValidity {
+  const e = Math.abs(energy - diracEnergy);
+  const hv = 1.5 * hopping * acc;
+  // On the k_x axis f = 1 + 2cos(√3·k_x·a_CC/2), zero at K = 4π/(3√3·a_CC), 3 at Γ; bisection on q.
+  const band = (q: number) => hopping * Math.abs(1 + 2 * Math.cos(((4 * Math.PI) / (3 * Math.sqrt(3) * acc) - q) * (Math.sqrt(3) / 2) * acc));
+  let lo = 0;
+  let hi = (4 * Math.PI) / (3 * Math.sqrt(3) * acc);
+  const top = band(hi);
+  let err = NaN;
+  if (e === 0) err = 0;
+  else if (e < top) {
+    for (let k = 0; k < 80; k++) {
+      const mid = 0.5 * (lo + hi);
+      if (band(mid) < e) lo = mid;
+      else hi = mid;
+    }
+    const q = 0.5 * (lo + hi);
+    err = (e - hv * q) / (hv * q);
+  }
+  const wl = e === 0 ? Infinity : (2 * Math.PI * hv) / e;
+  const warnings: string[] = [];
+  if (e > DIRAC_CEILING_OVER_T * hopping) {
+    warnings.push(
+      `|E − E_D| = ${e.toPrecision(4)} meV is above t/4 = ${(hopping / 4).toPrecision(4)} meV: the Dirac cone is warped (${Number.isFinite(err) ? (100 * Math.abs(err)).toFixed(1) + ' %' : 'beyond the band'}), so continuum figures (v_F, Landau levels ∝ √B) do not apply; the tight-binding results stand`,
+    );
+  }
+  return { energy, dispersionError: err, wavelength: wl, wavelengthOverSpacing: wl / acc, warnings };
+}
+
 /** Derived figures of a parsed model; `energy` (meV) adds the validity block. Cost O(Σ W). */
 export function deriveFigures(model: CavityModel, siteCount: number, energy?: number): DerivedFigures {
+  const lattice = modelLattice(model);
+  if (lattice.kind === 'honeycomb') {
+    const t = modelHopping(model);
+    const acc = model.spacing;
+    const hbarVelocity = 1.5 * t * acc;
+    const diracEnergy = 3000 * lattice.nextHopping;
+    const lB = magneticLength(model.field);
+    return {
+      siteCount,
+      hopping: t,
+      massRatio: 1,
+      energyCeiling: DIRAC_CEILING_OVER_T * t,
+      wavelengthCeiling: DIRAC_CEILING_OVER_T * t,
+      // Flux through one hexagon, (3√3/2)a_CC², in flux quanta.
+      fluxPerPlaquette: (model.field * 1.5 * Math.sqrt(3) * acc * acc) / FLUX_QUANTUM_T_NM2,
+      // The first graphene Landau level √2·ħv_F/ℓ_B (E_n = sgn(n)√(2eħv_F²B|n|)).
+      cyclotronEnergy: model.field === 0 ? 0 : (Math.SQRT2 * hbarVelocity) / lB,
+      magneticLength: lB,
+      // Leads on the honeycomb need the numerical lead solver: no closed-form thresholds.
+      leads: model.leads.map((lead, k) => ({ name: lead.name ?? `${lead.side}${k}`, side: lead.side, width: lead.width, offset: lead.offset, thresholds: [] })),
+      validity: energy === undefined ? undefined : diracValidity(energy, t, acc, diracEnergy),
+      physics: model.physics.kind,
+      lattice: 'honeycomb',
+      // ħ in meV·ps and lengths in nm: v = ħv/ħ in nm/ps = 1000 m/s.
+      dirac: { hbarVelocity, velocity: (hbarVelocity / HBAR_MEV_PS) * 1000, energy: diracEnergy },
+    };
+  }
   const massRatio = modelMassRatio(model);
   const t = modelHopping(model);
   const leads = model.leads.map((lead, k) => {

@@ -8,6 +8,7 @@
  * A tolerance of 1e-9·a absorbs rounding in i·a.
  */
 import type { Lead, Shape } from './cavity-model';
+import type { SitePlacement } from './lattice-geometry';
 
 const EDGE_TOLERANCE = 1e-9;
 
@@ -40,7 +41,17 @@ function fillWhere(
   a: number,
   box: [number, number, number, number],
   inside: (x: number, y: number) => boolean,
+  placement?: SitePlacement,
 ): void {
+  if (placement && placement.kind !== 'square') {
+    const [i0, i1, j0, j1] = placedBox(box, nx, ny, placement);
+    for (let i = i0; i <= i1; i++) {
+      for (let j = j0; j <= j1; j++) {
+        if (inside(placement.x(i, j), placement.y(i, j))) mask[i * ny + j] = 1;
+      }
+    }
+    return;
+  }
   const i0 = Math.max(0, Math.floor(box[0] / a) - 1);
   const i1 = Math.min(nx - 1, Math.ceil(box[2] / a) + 1);
   const j0 = Math.max(0, Math.floor(box[1] / a) - 1);
@@ -50,6 +61,27 @@ function fillWhere(
       if (inside(i * a, j * a)) mask[i * ny + j] = 1;
     }
   }
+}
+
+/** Index ranges [i0, i1, j0, j1] of the grid sites a placement puts near a box (nm), clipped to the grid. */
+function placedBox(box: [number, number, number, number], nx: number, ny: number, p: SitePlacement): [number, number, number, number] {
+  return [
+    Math.max(0, Math.floor(box[0] / p.dx) - 1),
+    Math.min(nx - 1, Math.ceil(box[2] / p.dx) + 1),
+    Math.max(0, Math.floor((box[1] - p.rowLift) / p.dy) - 1),
+    Math.min(ny - 1, Math.ceil(box[3] / p.dy) + 1),
+  ];
+}
+
+/** Even-odd rule at one point: an odd number of polygon edges cross the horizontal line through it to its right. */
+function insidePolygon(vertices: readonly (readonly [number, number])[], x: number, y: number): boolean {
+  let inside = false;
+  for (let k = 0, l = vertices.length - 1; k < vertices.length; l = k++) {
+    const [xk, yk] = vertices[k];
+    const [xl, yl] = vertices[l];
+    if (yk > y !== yl > y && x < ((xl - xk) * (y - yk)) / (yl - yk) + xk) inside = !inside;
+  }
+  return inside;
 }
 
 /**
@@ -131,7 +163,11 @@ function shapeBox(shape: Shape): [number, number, number, number] | null {
 }
 
 /** Grid sites fillWhere scans for a bounding box (the same clipping, so the count is exact). */
-function boxSites(box: [number, number, number, number], nx: number, ny: number, a: number): number {
+function boxSites(box: [number, number, number, number], nx: number, ny: number, a: number, placement?: SitePlacement): number {
+  if (placement && placement.kind !== 'square') {
+    const [i0, i1, j0, j1] = placedBox(box, nx, ny, placement);
+    return Math.max(0, i1 - i0 + 1) * Math.max(0, j1 - j0 + 1);
+  }
   const i0 = Math.max(0, Math.floor(box[0] / a) - 1);
   const i1 = Math.min(nx - 1, Math.ceil(box[2] / a) + 1);
   const j0 = Math.max(0, Math.floor(box[1] / a) - 1);
@@ -145,8 +181,24 @@ function boxSites(box: [number, number, number, number], nx: number, ny: number,
  * (nx·ny) for every shape's mask and every member a combinator merges. Cost
  * O(shapes + vertices). Used to refuse a document before the work starts.
  */
-export function rasterWork(shape: Shape, nx: number, ny: number, a: number): number {
+export function rasterWork(shape: Shape, nx: number, ny: number, a: number, placement?: SitePlacement): number {
   const grid = nx * ny;
+  if (placement && placement.kind !== 'square') {
+    // Off the square lattice every primitive is tested site by site (a polygon: every edge at every site).
+    switch (shape.kind) {
+      case 'sites':
+      case 'bitmap':
+        return rasterWork(shape, nx, ny, a);
+      case 'union':
+        return grid + shape.of.reduce((s, m) => s + grid + rasterWork(m, nx, ny, a, placement), 0);
+      case 'subtract':
+        return grid + rasterWork(shape.from, nx, ny, a, placement) + shape.remove.reduce((s, m) => s + grid + rasterWork(m, nx, ny, a, placement), 0);
+      case 'polygon':
+        return grid + boxSites(shapeBox(shape)!, nx, ny, a, placement) * shape.vertices.length;
+      default:
+        return grid + boxSites(shapeBox(shape)!, nx, ny, a, placement);
+    }
+  }
   switch (shape.kind) {
     case 'sites':
       return grid + shape.list.length;
@@ -172,19 +224,20 @@ export function rasterWork(shape: Shape, nx: number, ny: number, a: number): num
  * The site mask (1 = cavity) of a shape tree on an nx × ny grid of spacing a (nm).
  * Cost O(Σ bounding-box sites of the primitives); combinators add O(nx·ny) each.
  */
-export function rasteriseShape(shape: Shape, nx: number, ny: number, a: number): Uint8Array {
+export function rasteriseShape(shape: Shape, nx: number, ny: number, a: number, placement?: SitePlacement): Uint8Array {
   const mask = new Uint8Array(nx * ny);
+  const fill = (box: [number, number, number, number], inside: (x: number, y: number) => boolean) => fillWhere(mask, nx, ny, a, box, inside, placement);
   const eps = EDGE_TOLERANCE * a;
   switch (shape.kind) {
     case 'rectangle': {
       const { x0, y0, width, height } = shape;
-      fillWhere(mask, nx, ny, a, [x0, y0, x0 + width, y0 + height], (x, y) => x >= x0 - eps && x < x0 + width - eps && y >= y0 - eps && y < y0 + height - eps);
+      fill([x0, y0, x0 + width, y0 + height], (x, y) => x >= x0 - eps && x < x0 + width - eps && y >= y0 - eps && y < y0 + height - eps);
       break;
     }
     case 'disk': {
       const { cx, cy, radius: r } = shape;
       const r2 = (r + eps) * (r + eps);
-      fillWhere(mask, nx, ny, a, [cx - r, cy - r, cx + r, cy + r], (x, y) => (x - cx) ** 2 + (y - cy) ** 2 <= r2);
+      fill([cx - r, cy - r, cx + r, cy + r], (x, y) => (x - cx) ** 2 + (y - cy) ** 2 <= r2);
       break;
     }
     case 'ellipse': {
@@ -194,7 +247,7 @@ export function rasteriseShape(shape: Shape, nx: number, ny: number, a: number):
       const s = Math.sin(phi);
       const reach = Math.max(rx, ry);
       const tol = 1 + 2 * EDGE_TOLERANCE;
-      fillWhere(mask, nx, ny, a, [cx - reach, cy - reach, cx + reach, cy + reach], (x, y) => {
+      fill([cx - reach, cy - reach, cx + reach, cy + reach], (x, y) => {
         const u = (c * (x - cx) + s * (y - cy)) / rx;
         const v = (-s * (x - cx) + c * (y - cy)) / ry;
         return u * u + v * v <= tol;
@@ -205,7 +258,7 @@ export function rasteriseShape(shape: Shape, nx: number, ny: number, a: number):
       const { cx, cy, length, radius: r } = shape;
       const half = length / 2;
       const r2 = (r + eps) * (r + eps);
-      fillWhere(mask, nx, ny, a, [cx - half - r, cy - r, cx + half + r, cy + r], (x, y) => {
+      fill([cx - half - r, cy - r, cx + half + r, cy + r], (x, y) => {
         const dx = Math.max(0, Math.abs(x - cx) - half);
         return dx * dx + (y - cy) ** 2 <= r2;
       });
@@ -215,14 +268,15 @@ export function rasteriseShape(shape: Shape, nx: number, ny: number, a: number):
       const { cx, cy, inner, outer } = shape;
       const o2 = (outer + eps) * (outer + eps);
       const i2 = (inner + eps) * (inner + eps);
-      fillWhere(mask, nx, ny, a, [cx - outer, cy - outer, cx + outer, cy + outer], (x, y) => {
+      fill([cx - outer, cy - outer, cx + outer, cy + outer], (x, y) => {
         const d2 = (x - cx) ** 2 + (y - cy) ** 2;
         return d2 <= o2 && d2 > i2;
       });
       break;
     }
     case 'polygon':
-      fillPolygon(mask, nx, ny, a, shape.vertices);
+      if (placement && placement.kind !== 'square') fill(shapeBox(shape)!, (x, y) => insidePolygon(shape.vertices, x, y));
+      else fillPolygon(mask, nx, ny, a, shape.vertices);
       break;
     case 'sites':
       for (const [i, j] of shape.list) if (i < nx && j < ny) mask[i * ny + j] = 1;
@@ -246,14 +300,14 @@ export function rasteriseShape(shape: Shape, nx: number, ny: number, a: number):
     }
     case 'union':
       for (const part of shape.of) {
-        const m = rasteriseShape(part, nx, ny, a);
+        const m = rasteriseShape(part, nx, ny, a, placement);
         for (let s = 0; s < mask.length; s++) mask[s] |= m[s];
       }
       break;
     case 'subtract': {
-      mask.set(rasteriseShape(shape.from, nx, ny, a));
+      mask.set(rasteriseShape(shape.from, nx, ny, a, placement));
       for (const part of shape.remove) {
-        const m = rasteriseShape(part, nx, ny, a);
+        const m = rasteriseShape(part, nx, ny, a, placement);
         for (let s = 0; s < mask.length; s++) if (m[s]) mask[s] = 0;
       }
       break;
@@ -269,8 +323,11 @@ export interface CavityComponent {
   firstJ: number;
 }
 
-/** The 4-connected components of a mask (nearest-neighbour bonds only). Cost O(nx·ny). */
-export function connectedComponents(mask: Uint8Array, nx: number, ny: number): CavityComponent[] {
+/**
+ * The connected components of a mask through nearest-neighbour bonds: 4-connected on the
+ * square lattice, through the placement's bonds on another. Cost O(nx·ny).
+ */
+export function connectedComponents(mask: Uint8Array, nx: number, ny: number, placement?: SitePlacement): CavityComponent[] {
   const seen = new Uint8Array(mask.length);
   const stack = new Int32Array(mask.length);
   const parts: CavityComponent[] = [];
@@ -291,6 +348,14 @@ export function connectedComponents(mask: Uint8Array, nx: number, ny: number): C
           stack[top++] = t;
         }
       };
+      if (placement && placement.kind !== 'square') {
+        for (const [di, dj] of placement.nearestAll(i, j)) {
+          const a = i + di;
+          const b = j + dj;
+          if (a >= 0 && a < nx && b >= 0 && b < ny) push(a * ny + b);
+        }
+        continue;
+      }
       if (i > 0) push(s - ny);
       if (i < nx - 1) push(s + ny);
       if (j > 0) push(s - 1);

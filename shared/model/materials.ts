@@ -58,3 +58,34 @@ export const MATERIAL_PRESETS: readonly MaterialPreset[] = [
 export function findMaterial(id: string): MaterialPreset | undefined {
   return MATERIAL_PRESETS.find((m) => m.id === id);
 }
+
+/** A honeycomb-lattice material: the carbon–carbon distance and the hopping, with where they come from. */
+export interface HoneycombPreset {
+  id: string;
+  label: string;
+  /** Carbon–carbon distance a_CC (nm). */
+  acc: number;
+  /** The hopping t (eV) the editor fills in. */
+  hopping: number;
+  /** The range of t quoted in the literature (eV). */
+  hoppingRange: [number, number];
+  source: string;
+}
+
+export const HONEYCOMB_PRESETS: readonly HoneycombPreset[] = [
+  {
+    id: 'graphene',
+    label: 'Graphene (nearest-neighbour tight binding)',
+    acc: 0.142,
+    hopping: 2.7,
+    hoppingRange: [2.7, 2.8],
+    // From memory: a ≈ 1.42 Å and t ≈ 2.8 eV in the review's §II.A; 2.7 eV is the other
+    // value commonly used (e.g. fits to ab initio bands, Reich et al., PRB 66, 035412 (2002)).
+    source: 'Castro Neto, Guinea, Peres, Novoselov & Geim, Rev. Mod. Phys. 81, 109 (2009), §II.A: a_CC ≈ 0.142 nm, t ≈ 2.7–2.8 eV (from memory)',
+  },
+];
+
+/** The honeycomb preset with this id, or undefined. */
+export function findHoneycombPreset(id: string): HoneycombPreset | undefined {
+  return HONEYCOMB_PRESETS.find((m) => m.id === id);
+}

@@ -3,7 +3,8 @@
  * cavity, one connected piece, size caps). Apart from the schema file so that the
  * geometry can read the schema's types without an import loop.
  */
-import { cavityModelSchema, MAX_CAVITY_SITES, MAX_GRID_POINTS, type CavityModel, type Lead, type Shape } from './cavity-model';
+import { cavityModelSchema, MAX_CAVITY_SITES, MAX_GRID_POINTS, modelLattice, type CavityModel, type Lead, type Shape } from './cavity-model';
+import { placementOf, removeDanglingSites } from './lattice-geometry';
 import { DOCUMENT_LIMITS, checkDocumentLimits } from './document-limits';
 import { connectedComponents, mouthSites, rasteriseShape, rasterWork } from './geometry';
 import { findMaterial, MATERIAL_PRESETS } from './materials';
@@ -13,6 +14,13 @@ export type ModelValidation = { ok: true; model: CavityModel; issues: []; mask: 
 
 /** The rules of the microwave mode: no material, field, potential or lead offset (none has a meaning there). */
 function checkPhysicsMode(model: CavityModel, doc: unknown, issues: ModelIssue[]): void {
+  if (modelLattice(model).kind === 'honeycomb') {
+    if (model.physics.kind === 'microwave')
+      issues.push({ path: ['lattice'], message: 'the microwave mode uses the square lattice: remove lattice or set it to {"kind": "square"}' });
+    if (model.material !== undefined)
+      issues.push({ path: ['material'], message: 'a honeycomb lattice has no effective mass: remove material (the hopping is lattice.hopping, in eV)' });
+    return;
+  }
   if (model.physics.kind === 'electrons') {
     if (model.material === undefined)
       issues.push({ path: ['material'], message: 'material is missing: give a preset id (e.g. "gaas") or { "effectiveMass": m* / m_e }' });
@@ -111,7 +119,9 @@ export function validateCavityModel(doc: unknown): ModelValidation {
   });
   if (issues.length) return { ok: false, issues };
 
-  const work = rasterWork(model.shape, nx, ny, model.spacing);
+  const latticeChoice = modelLattice(model);
+  const placement = placementOf(latticeChoice.kind, model.spacing);
+  const work = rasterWork(model.shape, nx, ny, model.spacing, placement);
   if (work > DOCUMENT_LIMITS.rasterWork) {
     issues.push({
       path: ['shape'],
@@ -121,7 +131,18 @@ export function validateCavityModel(doc: unknown): ModelValidation {
     });
     return { ok: false, issues };
   }
-  const mask = rasteriseShape(model.shape, nx, ny, model.spacing);
+  const mask = rasteriseShape(model.shape, nx, ny, model.spacing, placement);
+  if (latticeChoice.kind === 'honeycomb' && latticeChoice.removeDangling) {
+    // Lead mouths stay: the lead itself is their missing neighbour.
+    const keep = new Uint8Array(nx * ny);
+    for (const lead of model.leads) {
+      const edgeLength = lead.side === 'left' || lead.side === 'right' ? ny : nx;
+      if (lead.start + lead.width > edgeLength) continue;
+      const m = mouthSites(lead, nx, ny);
+      for (let p = 0; p < m.i.length; p++) keep[m.i[p] * ny + m.j[p]] = 1;
+    }
+    removeDanglingSites(mask, nx, ny, placement, keep);
+  }
   let siteCount = 0;
   for (let s = 0; s < mask.length; s++) siteCount += mask[s];
   if (siteCount === 0) {
@@ -132,7 +153,7 @@ export function validateCavityModel(doc: unknown): ModelValidation {
     issues.push({ path: ['shape'], message: `the cavity has ${siteCount} sites, above the cap of ${MAX_CAVITY_SITES}` });
     return { ok: false, issues };
   }
-  const parts = connectedComponents(mask, nx, ny);
+  const parts = connectedComponents(mask, nx, ny, placement);
   if (parts.length > 1) {
     const list = parts
       .slice(0, 5)

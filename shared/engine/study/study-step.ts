@@ -206,5 +206,9 @@ function strip(op: NonlinearOperator, energy: number): [number, number] {
 
 /** The site list of a built model (positions, grid and flux, for overlaps and moved modes). */
 export function stepSites(system: CavitySystem): SiteList {
+  // The symmetric-gauge phases of mode-overlap.ts are written in square-lattice units.
+  if (system.lattice.kind !== 'square' && system.flux !== 0) {
+    throw new Error(`studies in a magnetic field are available on the square lattice only; this model is on the ${system.lattice.kind} lattice`);
+  }
   return { i: system.sites.i, j: system.sites.j, nx: system.model.grid.nx, ny: system.model.grid.ny, flux: system.flux };
 }
