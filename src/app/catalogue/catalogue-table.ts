@@ -17,7 +17,7 @@ import { MATERIAL_PRESETS } from '../../../shared/model/materials';
 import { toProblem } from '../core/errors/problem';
 import { CurrentGroup } from '../core/group/current-group';
 import { modelFamilies } from '../core/api/model-families';
-import { type CataloguePage, CatalogueApi } from './catalogue-api';
+import { CatalogueApi } from './catalogue-api';
 import { countLabel } from './count-label';
 import {
   type CatalogueFilter,
@@ -30,6 +30,7 @@ import {
 } from './catalogue-filter';
 import { EnergyPipe, LifetimePipe, QualityPipe, WidthPipe } from '../core/format/energy-format';
 import { MaterialLabelPipe } from '../core/format/material-label';
+import type { CataloguePage } from '../../../shared/api/catalogue';
 
 type FilterControls = { [K in keyof Omit<CatalogueFilter, 'tags'>]: FormControl<string> } & { tags: FormControl<string> };
 

@@ -5,7 +5,7 @@ import { provideRouter } from '@angular/router';
 import { RouterTestingHarness } from '@angular/router/testing';
 import { Auth } from '../core/auth/auth';
 import { authInterceptor } from '../core/auth/auth-interceptor';
-import type { Role } from '../core/auth/session';
+import type { Role } from '../../../shared/api/enums';
 import { demoSession } from '../core/testing/demo-session';
 import { nextRequest, settle } from '../core/testing/next-request';
 import { Members } from './members';

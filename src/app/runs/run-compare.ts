@@ -17,7 +17,8 @@ import { documentDiff } from './document-diff';
 import { matchPoles } from './pole-matching';
 import { durationText } from './progress-times';
 import { kindLabel, windowText } from './run-labels';
-import { type RunDetail, RunsApi } from './runs-api';
+import { RunsApi } from './runs-api';
+import type { RunDetail } from '../../../shared/api/runs';
 
 interface Side {
   label: string;

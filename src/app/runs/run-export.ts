@@ -1,7 +1,7 @@
 import Papa from 'papaparse';
-import type { ResonanceRow } from '../core/answers/resonance-row';
-import type { RunDetail } from './runs-api';
 import { spectrumWarnings } from './spectrum-warnings';
+import type { ResonanceRow } from '../../../shared/api/resonance-row';
+import type { RunDetail } from '../../../shared/api/runs';
 
 /**
  * A run's poles and spectrum as files, with the catalogue export's conventions

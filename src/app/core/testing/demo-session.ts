@@ -1,4 +1,5 @@
-import type { Role, Session } from '../auth/session';
+import type { Role } from '../../../../shared/api/enums';
+import type { Session } from '../../../../shared/api/auth';
 
 /** A session of the seed's Harrow Lake lab with the given role, for specs. */
 export function demoSession(role: Role, extraGroups: Session['groups'] = []): Session {
