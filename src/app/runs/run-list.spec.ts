@@ -4,7 +4,7 @@ import { TestBed } from '@angular/core/testing';
 import { provideRouter } from '@angular/router';
 import { provideFakeCurrentGroup } from '../core/testing/fake-current-group';
 import { FakeEventSource } from '../core/testing/fake-event-source';
-import { fixtureId, sampleRun as runFixture } from '../core/testing/answer-fixtures';
+import { fixtureId, sampleRun as runFixture, sampleRunDetail } from '../core/testing/answer-fixtures';
 import { RunList } from './run-list';
 import { RunsApi, pollPeriodMs } from './runs-api';
 import type { Run } from '../../../shared/api/runs';
@@ -115,7 +115,7 @@ describe('RunsApi.updates', () => {
     const sub = api.updates('g1', 'r1').subscribe((u) => seen.push(u.progress?.fraction ?? -1));
     FakeEventSource.last!.emit('error');
     await new Promise((r) => setTimeout(r, 0));
-    http.expectOne('/api/groups/g1/runs/r1').flush({ ...sampleRun, progress: { stage: 'contour', fraction: 0.4 } });
+    http.expectOne('/api/groups/g1/runs/r1').flush(sampleRunDetail({ progress: { stage: 'contour', fraction: 0.4 } }));
     expect(seen).toEqual([0.4]);
     expect(FakeEventSource.last!.closed).toBe(true);
     // The 2 s poll would otherwise outlive this spec and fire into a destroyed injector (NG0205).
@@ -131,7 +131,7 @@ describe('RunsApi.updates', () => {
     let completed = false;
     api.updates('g1', 'r1').subscribe({ complete: () => (completed = true) });
     await vi.advanceTimersByTimeAsync(0);
-    http.expectOne('/api/groups/g1/runs/r1').flush(sampleRun);
+    http.expectOne('/api/groups/g1/runs/r1').flush(sampleRunDetail());
     TestBed.resetTestingModule();
     expect(completed).toBe(true);
     // No poll fires into the destroyed injector (it would throw NG0205 as an unhandled error).

@@ -1,5 +1,6 @@
 import type { z } from 'zod';
 import type { JsonAnswer, RouteDeclaration } from '../../../../shared/api/route';
+import { type ModelVersion, getModelVersionRoute } from '../../../../shared/api/models';
 import { type ResonanceRow, resonanceRowSchema } from '../../../../shared/api/resonance-row';
 import { type Run, type RunDetail, type RunEstimate, runDetailSchema, runEstimateSchema, runSchema } from '../../../../shared/api/runs';
 
@@ -24,6 +25,13 @@ export function answerFixture(routeOrSchema: (RouteDeclaration & { answer: JsonA
 /** The n-th id of the specs, a valid UUID as the contract requires (fixtureId(1) → …-000000000001). */
 export function fixtureId(n: number): string {
   return `00000000-0000-4000-8000-${n.toString(16).padStart(12, '0')}`;
+}
+
+/** A UUID named by a label, the same for the same label ('u-ada' → always one id), for specs that read better by name. */
+export function specId(label: string): string {
+  let h = 0x811c9dc5; // FNV-1a, 32 bits
+  for (const c of label) h = Math.imul(h ^ c.charCodeAt(0), 0x01000193) >>> 0;
+  return fixtureId(h);
 }
 
 /** A running pole search as the API lists it; vary it with `changes`. */
@@ -110,6 +118,34 @@ export function sampleResonance(changes: Partial<ResonanceRow> = {}): ResonanceR
     createdAt: '2025-01-01T10:05:00Z',
     thumbnailUrl: null,
     imageUrl: null,
+    ...changes,
+  });
+}
+
+/** A version of a small GaAs rectangle (a = 5 nm, 60 × 40 sites) as GET /models/:id/versions/:v answers. */
+export function sampleModelVersion(changes: Partial<ModelVersion> = {}): ModelVersion {
+  return answerFixture(getModelVersionRoute, {
+    version: 2,
+    document: {
+      name: 'Dot A',
+      spacing: 5,
+      material: 'gaas',
+      grid: { nx: 60, ny: 40 },
+      shape: { kind: 'rectangle', x0: 0, y0: 0, width: 300, height: 200 },
+      leads: [],
+    },
+    derived: {
+      siteCount: 2400,
+      hopping: 22.75,
+      massRatio: 0.067,
+      energyCeiling: 11.4,
+      wavelengthCeiling: 8.9,
+      fluxPerPlaquette: 0,
+      cyclotronEnergy: 0,
+      magneticLength: null,
+      leads: [],
+    },
+    createdAt: '2025-01-01T10:00:00Z',
     ...changes,
   });
 }
