@@ -5,7 +5,7 @@ import { fileURLToPath } from 'node:url';
 import { drizzle } from 'drizzle-orm/node-postgres';
 import { migrate as runMigrations } from 'drizzle-orm/node-postgres/migrator';
 import pg from 'pg';
-import { backfillDerivedFigures } from '../server/models/model-backfill.js';
+import { backfillDerivedFigures, backfillOutlines } from '../server/models/model-backfill.js';
 import { backfillDerivedColumns } from '../server/catalogue/derived-columns-backfill.js';
 import * as schema from '../server/db/schema/index.js';
 
@@ -17,8 +17,10 @@ export async function migrate(databaseUrl: string): Promise<void> {
     const db = drizzle(pool);
     await runMigrations(db, { migrationsFolder });
     // Data the migrations cannot compute in SQL: derived figures of older model versions,
-    // then the columns only code can compute (dimensions, validity figures).
+    // their cavity outlines (traced from the rasterised mask), then the columns only code can
+    // compute (dimensions, validity figures).
     await backfillDerivedFigures(db);
+    await backfillOutlines(db);
     await backfillDerivedColumns(drizzle(pool, { schema }), (line) => console.log(line));
   } finally {
     await pool.end();

@@ -2,15 +2,9 @@ import { and, desc, eq, not, like, type SQL } from 'drizzle-orm';
 import type { Queryable } from '../db/client.js';
 import { auditLog } from '../db/schema/audit.js';
 import { users } from '../db/schema/users.js';
+import type { ActivityEntry } from '../../shared/api/account.js';
 
-export interface ActivityEntry {
-  id: string;
-  at: string;
-  actor: { id: string; name: string } | null;
-  action: string;
-  subject: string;
-  details: Record<string, unknown>;
-}
+export type { ActivityEntry } from '../../shared/api/account.js';
 
 /** Actions of this prefix are refusals (CSRF, rate limits): shown to admins only. */
 export const securityActionPrefix = 'security.';

@@ -1,16 +1,9 @@
 import type { Queryable } from '../db/client.js';
 import type { AuthUser } from './authenticate.js';
-import { groupsOfUser, type GroupOfUser } from './user-repository.js';
+import { groupsOfUser } from './user-repository.js';
+import type { Session } from '../../shared/api/auth.js';
 
-/** What the client keeps about the signed-in person (the API contract's Session). */
-export interface Session {
-  user: { id: string; email: string; name: string };
-  groups: GroupOfUser[];
-  /** The session's CSRF value to echo in X-CSRF-Token; empty for personal-token callers, who need none. */
-  csrfToken: string;
-  /** True for the site operator, the one person who may read the local mail outbox. */
-  siteOperator: boolean;
-}
+export type { Session } from '../../shared/api/auth.js';
 
 export async function sessionOf(q: Queryable, user: AuthUser, csrfToken: string): Promise<Session> {
   return {

@@ -1,16 +1,12 @@
 import { eq, sql } from 'drizzle-orm';
 import type { Queryable } from '../db/client.js';
-import { memberships, researchGroups, type MembershipRole } from '../db/schema/groups.js';
+import { memberships, researchGroups } from '../db/schema/groups.js';
 import { users } from '../db/schema/users.js';
+import type { GroupOfUser } from '../../shared/api/auth.js';
 
 export type UserRow = typeof users.$inferSelect;
 
-export interface GroupOfUser {
-  id: string;
-  name: string;
-  slug: string;
-  role: MembershipRole;
-}
+export type { GroupOfUser } from '../../shared/api/auth.js';
 
 export function normaliseEmail(email: string): string {
   return email.trim().toLowerCase();

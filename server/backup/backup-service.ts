@@ -3,7 +3,7 @@ import { pipeline } from 'node:stream/promises';
 import { writeAudit } from '../audit/audit-log.js';
 import type { Db } from '../db/client.js';
 import { groupBackupStream } from './group-backup.js';
-import { readBackup, restoreGroup, type RestoreSummary } from './group-restore.js';
+import { readBackup, restoreGroup, type RestoredCounts } from './group-restore.js';
 
 /** Group backup (an archive streamed from one snapshot) and restore into an empty group. */
 export class BackupService {
@@ -20,7 +20,7 @@ export class BackupService {
   }
 
   /** Reads and checks the whole archive, then writes it in one transaction (nothing on a refusal). */
-  async restore(groupId: string, actorId: string, archive: Readable): Promise<RestoreSummary> {
+  async restore(groupId: string, actorId: string, archive: Readable): Promise<RestoredCounts> {
     return restoreGroup(this.db, groupId, actorId, await readBackup(archive));
   }
 }

@@ -81,8 +81,9 @@ export async function* groupBackupRecords(q: Queryable, groupId: string, include
   const versions = await q.select().from(modelVersions).where(eq(modelVersions.groupId, groupId));
   versions.sort((a, b) => modelOrder.get(a.modelId)! - modelOrder.get(b.modelId)! || a.version - b.version);
   for (const v of versions) {
-    // The derived figures are not in the archive: the restore computes them from the document.
-    const { groupId: _g, createdBy, createdAt, document, derived: _d, ...rest } = v;
+    // The derived figures and the outline are not in the archive: the restore computes the
+    // figures from the document, the start-up back-fill traces the outline.
+    const { groupId: _g, createdBy, createdAt, document, derived: _d, outline: _o, ...rest } = v;
     count('modelVersion');
     yield { type: 'modelVersion', ...rest, document: document as Record<string, unknown>, createdBy: await emailOf(createdBy), createdAt: iso(createdAt)! };
   }

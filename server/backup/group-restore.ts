@@ -204,7 +204,8 @@ async function insertAll<T>(rows: T[], size: number, insert: (slice: T[]) => Pro
   for (let k = 0; k < rows.length; k += size) await insert(rows.slice(k, k + size));
 }
 
-export interface RestoreSummary {
+/** Record counts a restore wrote, by section (the `restored` of the answer's RestoreSummary). */
+export interface RestoredCounts {
   models: number;
   modelVersions: number;
   runs: number;
@@ -219,7 +220,7 @@ export interface RestoreSummary {
  * are members of the target group. A run that was unfinished in the archive is
  * restored as cancelled (its worker belonged to the other server): launch it again.
  */
-export async function restoreGroup(db: Db, groupId: string, actorId: string, b: ParsedBackup): Promise<RestoreSummary> {
+export async function restoreGroup(db: Db, groupId: string, actorId: string, b: ParsedBackup): Promise<RestoredCounts> {
   return db.transaction(async (tx) => {
     // Lock the group so two restores (or a restore and a new model) cannot interleave.
     await tx.execute(sql`select id from research_groups where id = ${groupId} for update`);
@@ -352,7 +353,7 @@ export async function restoreGroup(db: Db, groupId: string, actorId: string, b: 
         })),
       ),
     );
-    const summary: RestoreSummary = {
+    const summary: RestoredCounts = {
       models: b.core.model.length,
       modelVersions: b.core.modelVersion.length,
       runs: b.core.run.length,

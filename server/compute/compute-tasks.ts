@@ -10,7 +10,7 @@ import { maskFromBitmap, type BitmapMask } from '../models/mask-from-bitmap.js';
 import { checkModel, type CheckedModel, invalidModel } from '../models/model-figures.js';
 import { estimateRun, type RunEstimate } from '../runs/run-estimate.js';
 import type { RunRequest } from '../runs/run-window.js';
-import { buildLayoutFiles, type LayoutFiles } from '../fabrication/layout-files.js';
+import { buildLayoutFiles, type LayoutFiles, type StoredOutline } from '../fabrication/layout-files.js';
 import { renderSpecSheet, type SpecSheetInput } from '../fabrication/spec-sheet.js';
 import { renderModePng, type ModeLattice } from '../catalogue/mode-image.js';
 
@@ -18,7 +18,7 @@ export type ComputeTask =
   | { kind: 'check-model'; document: unknown }
   | { kind: 'mask-from-bitmap'; file: Uint8Array; spacingNm: number; widthNm: number; maxSites: number }
   | { kind: 'estimate-run'; document: unknown; request: Pick<RunRequest, 'kind' | 'window'> }
-  | { kind: 'device-layout'; document: unknown; title: string; structureName: string; time: Date }
+  | { kind: 'device-layout'; document: unknown; title: string; structureName: string; time: Date; stored: StoredOutline | null }
   | { kind: 'spec-sheet'; input: SpecSheetInput }
   | { kind: 'mode-images'; lattice: ModeLattice; modes: Float64Array[]; sides: number[] };
 
@@ -58,7 +58,7 @@ function compute(task: ComputeTask): unknown {
         throw err;
       }
     case 'device-layout':
-      return buildLayoutFiles(task.document, task.title, task.structureName, task.time);
+      return buildLayoutFiles(task.document, task.title, task.structureName, task.time, task.stored);
     case 'spec-sheet':
       // Font parsing and subsetting take a second or two of CPU under load: never on the API thread.
       return renderSpecSheet(task.input).then((pdf) => new Uint8Array(pdf.buffer, pdf.byteOffset, pdf.byteLength));

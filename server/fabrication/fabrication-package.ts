@@ -63,7 +63,13 @@ export class FabricationPackages {
 
   private async source(groupId: string, resonanceId: string) {
     const [r] = await this.db
-      .select({ r: resonances, groupName: researchGroups.name, document: modelVersions.document })
+      .select({
+        r: resonances,
+        groupName: researchGroups.name,
+        document: modelVersions.document,
+        outline: modelVersions.outline,
+        siteCount: modelVersions.siteCount,
+      })
       .from(resonances)
       .innerJoin(researchGroups, eq(researchGroups.id, resonances.groupId))
       .innerJoin(modelVersions, eq(modelVersions.id, resonances.modelVersionId))
@@ -84,7 +90,14 @@ export class FabricationPackages {
     const base = `poleward-${slug(r.modelName)}-v${r.modelVersion}-E${Number(r.energy.toPrecision(6))}meV`;
     const title = `${r.modelName} v${r.modelVersion}, resonance at E = ${Number(r.energy.toPrecision(6))} meV`;
     const files = await this.compute.run(
-      { kind: 'device-layout', document: s.document, title, structureName: `${r.modelName}_V${r.modelVersion}`, time: new Date() },
+      {
+        kind: 'device-layout',
+        document: s.document,
+        title,
+        structureName: `${r.modelName}_V${r.modelVersion}`,
+        time: new Date(),
+        stored: s.outline ? { outline: s.outline, siteCount: s.siteCount } : null,
+      },
       signal,
     );
     if (which === 'layout.gds') return { fileName: `${base}.gds`, mediaType: PACKAGE_MEDIA_TYPES[which], bytes: files.gds };

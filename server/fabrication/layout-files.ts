@@ -3,9 +3,10 @@
  * compute-pool thread (compute-tasks.ts 'device-layout'): rasterising and tracing is geometry
  * work and never runs on the API's event loop.
  */
-import { formatIssuePath } from '../../shared/model/cavity-model.js';
+import { cavityModelSchema, formatIssuePath } from '../../shared/model/cavity-model.js';
+import type { TracedOutline } from '../../shared/layout/outline-trace.js';
 import { validateCavityModel } from '../../shared/model/model-validation.js';
-import { buildDeviceLayout, type DeviceLayout } from '../../shared/layout/device-layout.js';
+import { buildDeviceLayout, layoutOfOutline, type DeviceLayout } from '../../shared/layout/device-layout.js';
 import { writeGdsii } from '../../shared/layout/gdsii-writer.js';
 import { ApiError } from '../http/error-handler.js';
 import { layoutDxf } from './layout-dxf.js';
@@ -29,17 +30,19 @@ function gdsName(text: string): string {
   return (clean || 'DEVICE').slice(0, 32).toUpperCase();
 }
 
-export function buildLayoutFiles(document: unknown, title: string, structureName: string, time: Date): LayoutFiles {
-  const checked = validateCavityModel(document);
-  if (!checked.ok) {
-    const first = checked.issues[0]!;
-    throw new ApiError(
-      422,
-      'invalid_model',
-      `The model of this resonance is no longer valid (${formatIssuePath(first.path)}: ${first.message}); no layout can be drawn.`,
-    );
-  }
-  const layout = buildDeviceLayout(checked.model, checked.mask);
+/** The outline and site count stored with a model version (null for a row the back-fill has not reached). */
+export interface StoredOutline {
+  outline: TracedOutline;
+  siteCount: number;
+}
+
+/**
+ * The layout and its files. With the version's stored outline the document is only parsed
+ * (it was validated when the version was saved): nothing is rasterised or traced again.
+ */
+export function buildLayoutFiles(document: unknown, title: string, structureName: string, time: Date, stored: StoredOutline | null = null): LayoutFiles {
+  const parsed = stored ? cavityModelSchema.safeParse(document) : null;
+  const layout = parsed?.success && stored ? layoutOfOutline(parsed.data, stored.outline, stored.siteCount) : layoutOfDocument(document);
   let gdsRoundingNm = 0;
   const boundaries = layout.layers.flatMap((l) =>
     l.polygons.map((ring) => ({
@@ -62,4 +65,18 @@ export function buildLayoutFiles(document: unknown, title: string, structureName
     time,
   });
   return { layout, gds, dxf: layoutDxf(layout), svg: layoutSvg(layout, title), gdsRoundingNm };
+}
+
+/** Validates (rasterises) the document and traces its mask: for a version without a stored outline. */
+function layoutOfDocument(document: unknown): DeviceLayout {
+  const checked = validateCavityModel(document);
+  if (!checked.ok) {
+    const first = checked.issues[0]!;
+    throw new ApiError(
+      422,
+      'invalid_model',
+      `The model of this resonance is no longer valid (${formatIssuePath(first.path)}: ${first.message}); no layout can be drawn.`,
+    );
+  }
+  return buildDeviceLayout(checked.model, checked.mask);
 }

@@ -5,29 +5,12 @@
  */
 import type { FittedPeak } from '../../shared/engine/fit.js';
 import { OVERLAP_PETERMANN } from '../jobs/run-results.js';
+import type { PoleComparison } from '../../shared/api/fits.js';
 
-export interface CandidatePole {
-  id: string;
-  energy: number;
-  width: number;
-  petermann: number | null;
-  overlapping: boolean;
-  runId: string | null;
-  modelVersion: number;
-}
+/** A computed pole a fitted peak may be compared with (the pole of a PoleComparison). */
+export type CandidatePole = NonNullable<PoleComparison['pole']>;
 
-export interface PoleComparison {
-  peak: number;
-  pole: CandidatePole | null;
-  /** 100·(E_fit − E_pole)/E_pole; null when positions are not comparable (gate-voltage trace). */
-  energyPercent: number | null;
-  /** (E_fit − E_pole)/σ_E of the fit. */
-  energySigmas: number | null;
-  widthPercent: number | null;
-  widthSigmas: number | null;
-  positionComparable: boolean;
-  warnings: string[];
-}
+export type { PoleComparison } from '../../shared/api/fits.js';
 
 /**
  * The nearest pole by complex distance |z_fit − z_pole| with z = E − iΓ/2 (by width alone

@@ -2,14 +2,9 @@ import { and, count, eq } from 'drizzle-orm';
 import type { Queryable } from '../db/client.js';
 import { memberships, type MembershipRole } from '../db/schema/groups.js';
 import { users } from '../db/schema/users.js';
+import type { Member } from '../../shared/api/groups.js';
 
-export interface Member {
-  userId: string;
-  email: string;
-  name: string;
-  role: MembershipRole;
-  joinedAt: string;
-}
+export type { Member } from '../../shared/api/groups.js';
 
 export async function memberCount(q: Queryable, groupId: string): Promise<number> {
   const [row] = await q.select({ n: count() }).from(memberships).where(eq(memberships.groupId, groupId));

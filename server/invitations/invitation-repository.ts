@@ -3,18 +3,12 @@ import type { Queryable } from '../db/client.js';
 import { researchGroups, type MembershipRole } from '../db/schema/groups.js';
 import { invitations } from '../db/schema/invitations.js';
 import { users } from '../db/schema/users.js';
+import type { Invitation } from '../../shared/api/groups.js';
 
 export type InvitationRow = typeof invitations.$inferSelect;
 
-export interface OpenInvitation {
-  id: string;
-  email: string;
-  role: MembershipRole;
-  invitedBy: { id: string; name: string } | null;
-  createdAt: string;
-  expiresAt: string;
-  status: 'pending' | 'expired';
-}
+/** An invitation neither accepted nor revoked, as GET /invitations lists it. */
+export type OpenInvitation = Invitation;
 
 /** Invitations neither accepted nor revoked, newest first; expired ones are shown as such. */
 export async function openInvitations(q: Queryable, groupId: string): Promise<OpenInvitation[]> {

@@ -21,16 +21,12 @@ import {
   type InvitationWithGroup,
   type OpenInvitation,
 } from './invitation-repository.js';
+import type { InvitationPreview } from '../../shared/api/auth.js';
 
 /** Invitation links are valid for 7 days. */
 export const invitationLifetimeMs = 7 * 24 * 60 * 60 * 1000;
 
-export interface InvitationPreview {
-  email: string;
-  groupName: string;
-  role: MembershipRole;
-  invitedBy: string | null;
-}
+export type { InvitationPreview } from '../../shared/api/auth.js';
 
 export interface InvitationServiceDeps {
   db: Db;

@@ -10,6 +10,7 @@ import type { CertificatePiece, PoleSearchOptions, PoleSearchResult } from '../.
 import { PoleThreadPool } from './pole-pool.js';
 import { transmissionSweep } from '../../shared/engine/transmission.js';
 import { withCurrents, type RunPole } from '../modemaps/pole-currents.js';
+import type { Spectrum } from '../../shared/api/runs.js';
 
 /** Bumped whenever a change of the engine can change computed numbers. */
 export const ENGINE_VERSION = 'poleward-engine 0.1.0';
@@ -31,14 +32,8 @@ export type EngineTask =
       maxPoints?: number;
     };
 
-export interface EngineSpectrum {
-  energies: number[];
-  pairs: { from: number; to: number }[];
-  transmission: number[][];
-  residual: number[];
-  /** R_ℓ(E) per lead in engine order: reflection[lead][energy] (transmission.ts). */
-  reflection: number[][];
-}
+/** The spectrum as the engine computes it: the answer's Spectrum, with R_ℓ(E) per lead always present (transmission.ts). */
+export type EngineSpectrum = Spectrum & { reflection: number[][] };
 
 export interface EngineTaskResult {
   engineVersion: string;

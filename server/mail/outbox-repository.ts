@@ -1,19 +1,9 @@
 import { desc, eq } from 'drizzle-orm';
 import type { Queryable } from '../db/client.js';
 import { outboxMessages } from '../db/schema/outbox.js';
+import type { OutboxMessage, OutboxSummary } from '../../shared/api/outbox.js';
 
-/** What the outbox list shows: no bodies, so every read of a link is one audited GET of one message. */
-export interface OutboxSummary {
-  id: string;
-  to: string;
-  subject: string;
-  receivedAt: string;
-}
-
-export interface OutboxMessage extends OutboxSummary {
-  text: string;
-  html?: string;
-}
+export type { OutboxMessage, OutboxSummary } from '../../shared/api/outbox.js';
 
 type Row = typeof outboxMessages.$inferSelect;
 

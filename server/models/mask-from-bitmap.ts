@@ -1,12 +1,9 @@
 import { PNG } from 'pngjs';
 import { ApiError } from '../http/error-handler.js';
 import { readPngHeader } from './png-header.js';
+import type { BitmapMask } from '../../shared/api/models.js';
 
-export interface BitmapMask {
-  shape: { kind: 'bitmap'; width: number; height: number; data: string };
-  grid: { nx: number; ny: number };
-  siteCount: number;
-}
+export type { BitmapMask } from '../../shared/api/models.js';
 
 /** Largest side of a drawing accepted (pixels); larger ones are refused before decoding. */
 export const MAX_DRAWING_SIDE = 4096;

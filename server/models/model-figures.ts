@@ -1,4 +1,5 @@
 import { cavityModelSchema, type CavityModel, type ModelIssue, type Shape } from '../../shared/model/cavity-model.js';
+import { traceMaskOutline, type TracedOutline } from '../../shared/layout/outline-trace.js';
 import { validateCavityModel } from '../../shared/model/model-validation.js';
 import { deriveFigures, type DerivedFigures } from '../../shared/model/derived-figures.js';
 import { physicsUnits, type PhysicsKind } from '../../shared/model/physics-mode.js';
@@ -50,6 +51,8 @@ export interface CheckedModel {
   model: CavityModel;
   columns: ModelColumns;
   derived: DerivedFigures;
+  /** The cavity outline traced from the site mask (stored with the version; the fabrication layout reads it). */
+  outline: TracedOutline;
 }
 
 /** Turns the model's validation issues into the API's 400, with the field path of each. */
@@ -70,6 +73,7 @@ export function checkModel(document: unknown): CheckedModel {
   return {
     model,
     derived,
+    outline: traceMaskOutline(mask, model.grid.nx, model.grid.ny, model.spacing),
     columns: {
       family: shapeFamily(model.shape),
       physics: model.physics.kind,

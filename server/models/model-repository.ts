@@ -127,11 +127,11 @@ export async function insertVersion(
   modelId: string,
   version: number,
   userId: string,
-  checked: Pick<CheckedModel, 'model' | 'columns' | 'derived'>,
+  checked: Pick<CheckedModel, 'model' | 'columns' | 'derived' | 'outline'>,
 ) {
   const [row] = await q
     .insert(modelVersions)
-    .values({ groupId, modelId, version, createdBy: userId, document: checked.model, derived: checked.derived, ...checked.columns })
+    .values({ groupId, modelId, version, createdBy: userId, document: checked.model, derived: checked.derived, outline: checked.outline, ...checked.columns })
     .returning({ id: modelVersions.id });
   await q.update(cavityModels).set({ latestVersion: version, updatedAt: new Date() }).where(eq(cavityModels.id, modelId));
   return row.id;

@@ -10,11 +10,12 @@ import { buildCavitySystem, EffectiveHamiltonian } from '../../shared/engine/eff
 import { currentMap, siteOutflow } from '../../shared/engine/current-map.js';
 import { husimiMap } from '../../shared/engine/husimi-map.js';
 import { resolveState, type StateRequest } from '../../shared/engine/mode-state.js';
-import { summarise, type StateSummary } from '../../shared/engine/mode-maps.js';
+import { summarise } from '../../shared/engine/mode-maps.js';
 import { localDensityOfStates } from '../../shared/engine/scattering-state.js';
 import type { SheetFlags } from '../../shared/engine/operator.js';
 import { ENGINE_VERSION } from '../jobs/engine-task.js';
 import { maskBits } from './pole-currents.js';
+import type { ModeMapPayload } from '../../shared/api/mode-maps.js';
 
 export interface HusimiParams {
   sigmaNm?: number;
@@ -31,44 +32,9 @@ export interface ModeMapTask {
   husimi: HusimiParams | null;
 }
 
-export interface HusimiPayload {
-  sigmaNm: number;
-  gridNm: number;
-  directions: number[];
-  angularResolution: number;
-  meanWavenumber: number;
-  peakThreshold: number;
-  /** (x, y) per point (nm), float32. */
-  points: string;
-  /** P(point, direction), float32, row per point. */
-  distribution: string;
-  /** Vector sum per point (x, y), float32. */
-  vectorSum: string;
-  /** E − V per point (meV), float32; ≤ 0 is forbidden. */
-  kineticEnergy: string;
-  peaks: { point: number; angle: number; share: number }[];
-}
+type HusimiPayload = NonNullable<ModeMapPayload['husimi']>;
 
-export interface ModeMapPayload {
-  engineVersion: string;
-  state: StateSummary;
-  /** Unit of the currents: 1/ps for a mode with Σ|ψ|² = 1, "incoming flux" for a scattering state. */
-  unit: string;
-  spacingNm: number;
-  grid: { nx: number; ny: number };
-  /** Bitset over the grid, bit i·ny + j, most significant bit first. */
-  mask: string;
-  /** ψ per site (re, im), float32. */
-  psi: string;
-  /** (j_x, j_y) per site, float32. */
-  vectors: string;
-  leads: { name: string; side: string; current: number }[];
-  /** Largest |net outflow| of a site over the largest bond current (0 for a pole, which decays). */
-  kirchhoffResidual: number | null;
-  /** Local density of states at the energy (1/meV per site), float32; scattering states only. */
-  ldos: string | null;
-  husimi: HusimiPayload | null;
-}
+export type { ModeMapPayload } from '../../shared/api/mode-maps.js';
 
 export function base64Float32(values: ArrayLike<number>): string {
   const f = Float32Array.from(values as ArrayLike<number>);

@@ -7,6 +7,7 @@ import { energyValidity } from '../../shared/model/derived-figures.js';
 import { ENGINE_VERSION, spectrumBudget } from '../jobs/engine-task.js';
 import { POLE_SEARCH_SPECTRUM_POINTS } from '../jobs/run-job.js';
 import type { RunRequest } from './run-window.js';
+import type { RunEstimate } from '../../shared/api/runs.js';
 
 /**
  * The constants of the run cost model, fitted by `npx tsx scripts/calibrate-estimate.ts`
@@ -39,20 +40,7 @@ export interface RunCostModel {
   measurements?: unknown[];
 }
 
-export interface RunEstimate {
-  sites: number;
-  pieces: number;
-  thresholdsInWindow: number[];
-  /** Closed-cavity levels expected in the window by Weyl's law: an upper bound on the poles. */
-  expectedLevels: number;
-  factorisations: number;
-  /** Modelled seconds of one pole-search step (an LU of z − H_eff and its probe solves). */
-  secondsPerFactorisation: number;
-  expectedSeconds: number;
-  /** How the time was estimated: the cost model's engine version and calibration date. */
-  method: { kind: 'cost-model'; engineVersion: string; calibratedAt: string };
-  warnings: string[];
-}
+export type { RunEstimate } from '../../shared/api/runs.js';
 
 /** What the cost of a run depends on; computed from the model and the window alone (no LU). */
 export interface RunCostFeatures {

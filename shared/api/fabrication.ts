@@ -3,7 +3,7 @@
  * notification settings and catalogue import. The server validates with these schemas and
  * the client takes its types from them (z.infer), so there is one copy.
  */
-import { z } from 'zod';
+import * as z from 'zod';
 import { noNul } from './catalogue-query.js';
 import { FABRICATION_ACTIONS, FABRICATION_STATES } from '../fabrication/fabrication-states.js';
 import { declareRoute, json, media } from './route.js';

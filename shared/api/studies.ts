@@ -4,7 +4,7 @@
  * The physics of the outcome (trajectories, marks, statistics): docs/physics-model.md,
  * "Parameter studies and tolerance ensembles".
  */
-import { z } from 'zod';
+import * as z from 'zod';
 import { declareRoute, json, media } from './route.js';
 import { personRef, timestamp } from './fields.js';
 

@@ -16,7 +16,7 @@
  */
 import type { CavityModel } from '../model/cavity-model';
 import { drawnOutline, segmentsFor } from './drawn-outline';
-import { traceMaskOutline } from './outline-trace';
+import { traceMaskOutline, type TracedOutline } from './outline-trace';
 import { bridgeHoles, ellipseRing, rectangleRing, type Ring } from './polygon';
 
 export const LAYERS = { cavityTraced: 1, cavityDrawn: 2, leads: 3, firstGate: 10 } as const;
@@ -64,11 +64,18 @@ function boxOf(rings: Ring[]) {
 
 /** Lays out a parsed, valid model and its site mask. Cost O(nx·ny + vertices). */
 export function buildDeviceLayout(model: CavityModel, mask: Uint8Array): DeviceLayout {
-  const a = model.spacing;
-  const { nx, ny } = model.grid;
   let siteCount = 0;
   for (let s = 0; s < mask.length; s++) siteCount += mask[s];
-  const traced = traceMaskOutline(mask, nx, ny, a);
+  return layoutOfOutline(model, traceMaskOutline(mask, model.grid.nx, model.grid.ny, model.spacing), siteCount);
+}
+
+/**
+ * Lays out a parsed, valid model from its outline already traced (the one stored with the
+ * model version) and its site count: no rasterising, no tracing. Cost O(vertices).
+ */
+export function layoutOfOutline(model: CavityModel, traced: TracedOutline, siteCount: number): DeviceLayout {
+  const a = model.spacing;
+  const { nx, ny } = model.grid;
   const cavity = traced.parts.map((p) => bridgeHoles(p.outer, p.holes));
   const layers: LayoutLayer[] = [
     {

@@ -9,7 +9,7 @@
  *   (mm⁻²); poles are shown as complex frequencies f = c·√z/(2π√ε_r). No field, no
  *   potential, no lead offsets.
  */
-import { z } from 'zod';
+import * as z from 'zod';
 
 export const electronPhysicsSchema = z.object({ kind: z.literal('electrons') });
 export const microwavePhysicsSchema = z.object({

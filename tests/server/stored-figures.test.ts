@@ -1,13 +1,16 @@
-// A model version's derived figures are computed once, when the version is saved, and
-// stored with it (issue 8, part 4): reading a model, a version or a run does no geometry
-// or figure work. Counted with spies on the functions that do it (validation, the
-// rasteriser, the derived figures), wrapped around the real ones. The app computes
+// A model version's derived figures and its cavity outline are computed once, when the version
+// is saved, and stored with it (issue 8, part 4): reading a model, a version or a run does no
+// geometry or figure work, and the fabrication layout reads the stored outline. Counted with spies
+// on the functions that do it (validation, the rasteriser, the outline tracer, the derived
+// figures), wrapped around the real ones. The app computes
 // in-process here (inlineCompute), so the save's own calls are seen too.
 import { eq, sql } from 'drizzle-orm';
 import { afterAll, beforeAll, beforeEach, describe, expect, it, vi } from 'vitest';
 import { inlineCompute } from '../../server/compute/compute-pool.js';
 import { modelVersions } from '../../server/db/schema/models.js';
-import { backfillDerivedFigures } from '../../server/models/model-backfill.js';
+import { backfillDerivedFigures, backfillOutlines } from '../../server/models/model-backfill.js';
+import { buildLayoutFiles } from '../../server/fabrication/layout-files.js';
+import * as outlineTrace from '../../shared/layout/outline-trace.js';
 import * as cavityModel from '../../shared/model/model-validation.js';
 import * as derivedFigures from '../../shared/model/derived-figures.js';
 import * as geometry from '../../shared/model/geometry.js';
@@ -24,6 +27,10 @@ vi.mock('../../shared/model/geometry.js', async (importOriginal) => {
   const real = await importOriginal<typeof import('../../shared/model/geometry.js')>();
   return { ...real, rasteriseShape: vi.fn(real.rasteriseShape) };
 });
+vi.mock('../../shared/layout/outline-trace.js', async (importOriginal) => {
+  const real = await importOriginal<typeof import('../../shared/layout/outline-trace.js')>();
+  return { ...real, traceMaskOutline: vi.fn(real.traceMaskOutline) };
+});
 vi.mock('../../shared/model/model-validation.js', async (importOriginal) => {
   const real = await importOriginal<typeof import('../../shared/model/model-validation.js')>();
   return { ...real, validateCavityModel: vi.fn(real.validateCavityModel) };
@@ -33,8 +40,9 @@ const spies = () => ({
   deriveFigures: vi.mocked(derivedFigures.deriveFigures).mock.calls.length,
   rasteriseShape: vi.mocked(geometry.rasteriseShape).mock.calls.length,
   validateCavityModel: vi.mocked(cavityModel.validateCavityModel).mock.calls.length,
+  traceMaskOutline: vi.mocked(outlineTrace.traceMaskOutline).mock.calls.length,
 });
-const none = { deriveFigures: 0, rasteriseShape: 0, validateCavityModel: 0 };
+const none = { deriveFigures: 0, rasteriseShape: 0, validateCavityModel: 0, traceMaskOutline: 0 };
 
 let app: TestApp;
 let lab: Lab;
@@ -64,13 +72,18 @@ describe('derived figures stored with the version', () => {
     expect(counts.validateCavityModel).toBe(1);
     expect(counts.rasteriseShape).toBeGreaterThanOrEqual(1);
     expect(counts.deriveFigures).toBeGreaterThanOrEqual(1);
+    expect(counts.traceMaskOutline).toBe(1);
     const [row] = await app.handle.db
-      .select({ derived: modelVersions.derived, siteCount: modelVersions.siteCount })
+      .select({ derived: modelVersions.derived, siteCount: modelVersions.siteCount, outline: modelVersions.outline })
       .from(modelVersions)
       .where(eq(modelVersions.modelId, modelId));
     expect(row!.derived).not.toBeNull();
     expect(row!.derived!.siteCount).toBe(row!.siteCount);
     expect(JSON.parse(JSON.stringify(row!.derived))).toEqual(res.body.derived);
+    // The traced outline: one part (a rectangle has no holes), area exactly sites·a² (a = 5 nm).
+    expect(row!.outline!.parts).toHaveLength(1);
+    expect(row!.outline!.parts[0]!.holes).toEqual([]);
+    expect(row!.outline!.area).toBeCloseTo(row!.siteCount * 25, 9);
     const run = await designer.post(`${base()}/runs`, { kind: 'pole-search', modelId, window: smallWindow });
     expect(run.status).toBe(201);
     runId = run.body.id;
@@ -92,6 +105,34 @@ describe('derived figures stored with the version', () => {
       (e) => e >= smallWindow.emin && e <= smallWindow.emax,
     );
     expect(run.body.thresholds).toHaveLength(inWindow.length);
+  });
+
+  it('the fabrication layout drawn from the stored outline rasterises and traces nothing, and equals the layout traced anew', async () => {
+    const [row] = await app.handle.db
+      .select({ document: modelVersions.document, outline: modelVersions.outline, siteCount: modelVersions.siteCount })
+      .from(modelVersions)
+      .where(eq(modelVersions.modelId, modelId));
+    const time = new Date('2026-12-02T10:00:00Z');
+    const fromStored = buildLayoutFiles(row!.document, 'T', 'S', time, { outline: row!.outline!, siteCount: row!.siteCount });
+    expect(spies()).toEqual(none);
+    const traced = buildLayoutFiles(row!.document, 'T', 'S', time);
+    expect(spies()).toMatchObject({ rasteriseShape: 1, traceMaskOutline: 1 });
+    expect(fromStored.layout).toEqual(traced.layout);
+    expect(Buffer.from(fromStored.gds).equals(Buffer.from(traced.gds))).toBe(true);
+  });
+
+  it('an older or restored version without a stored outline is traced at start-up, not on a read', async () => {
+    const [before] = await app.handle.db.select({ outline: modelVersions.outline }).from(modelVersions).where(eq(modelVersions.modelId, modelId));
+    await app.handle.db.execute(sql`update model_versions set outline = null where model_id = ${modelId}`);
+    const read = await designer.get(`${base()}/models/${modelId}/versions/1`);
+    expect(read.status).toBe(200);
+    expect(spies()).toEqual(none);
+    const { filled } = await backfillOutlines(app.handle.db);
+    expect(filled).toBeGreaterThanOrEqual(1);
+    expect(spies().traceMaskOutline).toBe(filled);
+    const [after] = await app.handle.db.select({ outline: modelVersions.outline }).from(modelVersions).where(eq(modelVersions.modelId, modelId));
+    expect(after!.outline).toEqual(before!.outline);
+    expect((await backfillOutlines(app.handle.db)).filled).toBe(0);
   });
 
   it('an older version without stored figures is back-filled at start-up, from its stored site count', async () => {

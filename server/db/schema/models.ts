@@ -1,4 +1,5 @@
 import { doublePrecision, index, integer, jsonb, pgTable, text, timestamp, unique, uuid } from 'drizzle-orm/pg-core';
+import type { TracedOutline } from '../../../shared/layout/outline-trace.js';
 import type { DerivedFigures } from '../../../shared/model/derived-figures.js';
 import { researchGroups } from './groups.js';
 import { users } from './users.js';
@@ -70,6 +71,13 @@ export const modelVersions = pgTable(
      * or a run re-validates nothing. Null only until the start-up back-fill reaches an older row.
      */
     derived: jsonb('derived').$type<DerivedFigures>(),
+    /**
+     * The cavity outline traced from the site mask when the version is saved
+     * (shared/layout/outline-trace.ts: polygons in the model's length unit, layout frame), so the
+     * fabrication layout neither rasterises nor traces again. Null only until the start-up
+     * back-fill (server/models/model-backfill.ts) reaches an older or restored row.
+     */
+    outline: jsonb('outline').$type<TracedOutline>(),
     createdBy: uuid('created_by').references(() => users.id, { onDelete: 'set null' }),
     createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
   },

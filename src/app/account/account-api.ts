@@ -1,42 +1,40 @@
 import { HttpClient } from '@angular/common/http';
 import { Injectable, inject } from '@angular/core';
-import { Observable, map } from 'rxjs';
-// zod/mini: the classic build pulls ~450 kB (all locales) into the first chunk.
-import * as z from 'zod/mini';
-import type { AccountProfile } from '../../../shared/api/account';
+import type { Observable } from 'rxjs';
+import {
+  type AccountProfile,
+  type ActivityEntry,
+  accountActivityRoute,
+  accountProfileRoute,
+  accountRenameRoute,
+  passwordChangeRoute,
+  signOutEverywhereRoute,
+} from '../../../shared/api/account';
+import type { AnswerOf } from '../../../shared/api/route';
+import { emptyAnswer, parseAnswer } from '../core/http/parse-answer';
 
-export const accountEntrySchema = z.object({
-  id: z.string(),
-  at: z.string(),
-  actor: z.nullable(z.object({ id: z.string(), name: z.string() })),
-  action: z.string(),
-  subject: z.string(),
-  details: z.record(z.string(), z.unknown()),
-});
-export type AccountEntry = z.infer<typeof accountEntrySchema>;
-
-/** HTTP for what concerns the signed-in person's own account. */
+/** HTTP for what concerns the signed-in person's own account (routes declared in shared/api/account.ts). */
 @Injectable({ providedIn: 'root' })
 export class AccountApi {
   private readonly http = inject(HttpClient);
 
   profile(): Observable<AccountProfile> {
-    return this.http.get<AccountProfile>('/api/account');
+    return this.http.get('/api/account').pipe(parseAnswer(accountProfileRoute, 'account'));
   }
 
   rename(name: string): Observable<AccountProfile> {
-    return this.http.patch<AccountProfile>('/api/account', { name });
+    return this.http.patch('/api/account', { name }).pipe(parseAnswer(accountRenameRoute, 'account'));
   }
 
   changePassword(currentPassword: string, newPassword: string): Observable<void> {
-    return this.http.post<void>('/api/account/password', { currentPassword, newPassword });
+    return this.http.post('/api/account/password', { currentPassword, newPassword }).pipe(emptyAnswer(passwordChangeRoute));
   }
 
-  signOutEverywhere(): Observable<{ sessionsEnded: number }> {
-    return this.http.post<{ sessionsEnded: number }>('/api/account/sign-out-everywhere', {});
+  signOutEverywhere(): Observable<AnswerOf<typeof signOutEverywhereRoute>> {
+    return this.http.post('/api/account/sign-out-everywhere', {}).pipe(parseAnswer(signOutEverywhereRoute));
   }
 
-  activity(limit = 50): Observable<AccountEntry[]> {
-    return this.http.get('/api/account/activity', { params: { limit } }).pipe(map((body) => z.array(accountEntrySchema).parse(body)));
+  activity(limit = 50): Observable<ActivityEntry[]> {
+    return this.http.get('/api/account/activity', { params: { limit } }).pipe(parseAnswer(accountActivityRoute, 'account activity'));
   }
 }

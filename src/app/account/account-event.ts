@@ -1,4 +1,4 @@
-import type { AccountEntry } from './account-api';
+import type { ActivityEntry } from '../../../shared/api/account';
 
 /** One account entry in words, and whether it deserves the person's attention. */
 export interface AccountEvent {
@@ -14,7 +14,7 @@ const num = (v: unknown): number => (typeof v === 'number' ? v : 0);
 const plural = (n: number, one: string, many: string) => `${n} ${n === 1 ? one : many}`;
 
 /** Describes the audit actions docs/api.md lists for accounts; unknown ones are spelled out. */
-export function accountEvent(e: AccountEntry): AccountEvent {
+export function accountEvent(e: ActivityEntry): AccountEvent {
   const d = e.details;
   const ip = str(d['ip']);
   const by = e.actor ? ` by ${e.actor.name}` : '';

@@ -8,6 +8,8 @@ import { authInterceptor } from '../core/auth/auth-interceptor';
 import { demoSession } from '../core/testing/demo-session';
 import { nextRequest, settle } from '../core/testing/next-request';
 import { Account } from './account';
+import { answerFixture, specId } from '../core/testing/answer-fixtures';
+import { accountActivityRoute } from '../../../shared/api/account';
 
 describe('Account', () => {
   let mock: HttpTestingController;
@@ -26,40 +28,42 @@ describe('Account', () => {
     const harness = await RouterTestingHarness.create();
     await harness.navigateByUrl('/account', Account);
     (await nextRequest(mock, '/api/account/notifications')).flush({ kinds: [] });
-    (await nextRequest(mock, '/api/account/activity?limit=50')).flush([
-      {
-        id: 'e4',
-        at: '2026-12-01T10:04:00Z',
-        actor: { id: 'u-op', name: 'Ada Marlow' },
-        action: 'outbox.read',
-        subject: 'Reset your Poleward password',
-        details: { messageId: 'm1' },
-      },
-      {
-        id: 'e3',
-        at: '2026-12-01T10:03:00Z',
-        actor: { id: 'u-ada', name: 'Ada Marlow' },
-        action: 'auth.password_reset',
-        subject: 'ada.admin@harrow-lake.example',
-        details: { sessionsEnded: 2, tokensRevoked: 1 },
-      },
-      {
-        id: 'e2',
-        at: '2026-12-01T10:02:00Z',
-        actor: null,
-        action: 'auth.sign_in_failed',
-        subject: 'ada.admin@harrow-lake.example',
-        details: { ip: '192.0.2.7' },
-      },
-      {
-        id: 'e1',
-        at: '2026-12-01T10:01:00Z',
-        actor: { id: 'u-ada', name: 'Ada Marlow' },
-        action: 'auth.signed_in',
-        subject: 'ada.admin@harrow-lake.example',
-        details: { ip: '127.0.0.1' },
-      },
-    ]);
+    (await nextRequest(mock, '/api/account/activity?limit=50')).flush(
+      answerFixture(accountActivityRoute, [
+        {
+          id: specId('e4'),
+          at: '2026-12-01T10:04:00Z',
+          actor: { id: specId('u-op'), name: 'Ada Marlow' },
+          action: 'outbox.read',
+          subject: 'Reset your Poleward password',
+          details: { messageId: 'm1' },
+        },
+        {
+          id: specId('e3'),
+          at: '2026-12-01T10:03:00Z',
+          actor: { id: specId('u-ada'), name: 'Ada Marlow' },
+          action: 'auth.password_reset',
+          subject: 'ada.admin@harrow-lake.example',
+          details: { sessionsEnded: 2, tokensRevoked: 1 },
+        },
+        {
+          id: specId('e2'),
+          at: '2026-12-01T10:02:00Z',
+          actor: null,
+          action: 'auth.sign_in_failed',
+          subject: 'ada.admin@harrow-lake.example',
+          details: { ip: '192.0.2.7' },
+        },
+        {
+          id: specId('e1'),
+          at: '2026-12-01T10:01:00Z',
+          actor: { id: specId('u-ada'), name: 'Ada Marlow' },
+          action: 'auth.signed_in',
+          subject: 'ada.admin@harrow-lake.example',
+          details: { ip: '127.0.0.1' },
+        },
+      ]),
+    );
     await settle();
     harness.detectChanges();
     const page = harness.routeNativeElement!;

@@ -1,51 +1,20 @@
 import { HttpClient, HttpParams } from '@angular/common/http';
 import { Injectable, inject } from '@angular/core';
 import type { Observable } from 'rxjs';
-import type { ResonanceRow } from '../core/answers/resonance-row';
-import type { RunCertificate } from '../core/answers/run-certificate';
-import type { RunWindow } from '../core/answers/run-window';
-
-export type { ResonanceRow } from '../core/answers/resonance-row';
-
-export interface ResonanceDetail extends ResonanceRow {
-  /** null for a fitted resonance of a measured trace. */
-  run: { id: string; window: RunWindow; certificate: RunCertificate | null } | null;
-  model: { id: string; name: string; version: number };
-  otherPoles: { energy: number; width: number }[];
-  thresholds: number[];
-  leads: { name: string; side: string; width: number }[];
-}
-
-/**
- * How the total was obtained (docs/api.md): counted for this answer, counted exactly
- * `countAgeSeconds` ago, or the database's estimate.
- */
-export type CountKind = 'exact' | 'cached' | 'estimated';
-
-export interface CataloguePage {
-  items: ResonanceRow[];
-  total: number;
-  totalKind: CountKind;
-  countedAt: string | null;
-  countAgeSeconds: number | null;
-  /** Page number: exact for numbered pages, a label the cursor carries otherwise. */
-  page: number;
-  pageSize: number;
-  /** Opaque keyset cursors of the neighbouring pages; null at either end. */
-  nextCursor: string | null;
-  prevCursor: string | null;
-}
+import { type CataloguePage, type ResonanceDetail, getResonanceRoute, labelResonanceRoute, searchCatalogueRoute } from '../../../shared/api/catalogue';
+import type { ResonanceRow } from '../../../shared/api/resonance-row';
+import { parseAnswer } from '../core/http/parse-answer';
 
 /** The catalogue query exactly as the API names its parameters (strings, as in a URL). */
 export type CatalogueQuery = Record<string, string | string[]>;
 
-/** HTTP for the group's resonance catalogue. */
+/** HTTP for the group's resonance catalogue (routes declared in shared/api/catalogue.ts). */
 @Injectable({ providedIn: 'root' })
 export class CatalogueApi {
   private readonly http = inject(HttpClient);
 
   list(groupId: string, query: CatalogueQuery): Observable<CataloguePage> {
-    return this.http.get<CataloguePage>(`${base(groupId)}/catalogue`, { params: new HttpParams({ fromObject: query }) });
+    return this.http.get(`${base(groupId)}/catalogue`, { params: new HttpParams({ fromObject: query }) }).pipe(parseAnswer(searchCatalogueRoute, 'catalogue page'));
   }
 
   /** A link (not a request) so the browser downloads the file with the session cookie. */
@@ -55,11 +24,11 @@ export class CatalogueApi {
   }
 
   resonance(groupId: string, id: string): Observable<ResonanceDetail> {
-    return this.http.get<ResonanceDetail>(`${base(groupId)}/resonances/${encodeURIComponent(id)}`);
+    return this.http.get(`${base(groupId)}/resonances/${encodeURIComponent(id)}`).pipe(parseAnswer(getResonanceRoute, 'resonance'));
   }
 
   update(groupId: string, id: string, change: { tags?: string[]; notes?: string }): Observable<ResonanceRow> {
-    return this.http.patch<ResonanceRow>(`${base(groupId)}/resonances/${encodeURIComponent(id)}`, change);
+    return this.http.patch(`${base(groupId)}/resonances/${encodeURIComponent(id)}`, change).pipe(parseAnswer(labelResonanceRoute, 'resonance'));
   }
 
   modeImageUrl(groupId: string, id: string, size: 'thumb' | 'full'): string {

@@ -4,8 +4,9 @@ import { TestBed } from '@angular/core/testing';
 import { provideRouter, Router } from '@angular/router';
 import { RouterTestingHarness } from '@angular/router/testing';
 import { provideFakeCurrentGroup } from '../core/testing/fake-current-group';
-import type { ResonanceRow } from './catalogue-api';
 import { CatalogueTable } from './catalogue-table';
+import type { ResonanceRow } from '../../../shared/api/resonance-row';
+import { fixtureId, sampleResonance } from '../core/testing/answer-fixtures';
 
 const wait = (ms: number) => new Promise((r) => setTimeout(r, ms));
 
@@ -23,14 +24,22 @@ function setUp() {
 
 const emptyPage = { items: [], total: 0, totalKind: 'exact', countedAt: '2026-01-01T00:00:00Z', countAgeSeconds: 0, page: 1, pageSize: 25, nextCursor: null, prevCursor: null };
 
-/** One catalogue row as the API lists it; only the fields a test changes vary. */
-function row(id: string, material: string): ResonanceRow {
-  return {
-    id, runId: 'r1', source: 'computed', fitId: null, modelId: 'm1', modelName: 'Dot A', modelVersion: 1, family: 'disk', keyDimensions: { radius: 120 },
-    material, fieldT: 0.4, energy: 2.5, width: 0.01, lifetimePs: 65.8, quality: 250, partialWidths: [], petermann: 1.01,
-    residual: 1e-12, bound: false, nearThreshold: false, overlapping: false, tags: [], notes: '', createdAt: '2025-01-01T10:00:00Z',
-    thumbnailUrl: '/t.png', imageUrl: '/i.png',
-  };
+/** One catalogue row as the API lists it (parsed through its schema); only the fields a test changes vary. */
+function row(n: number, material: string): ResonanceRow {
+  return sampleResonance({
+    id: fixtureId(n),
+    modelVersion: 1,
+    keyDimensions: { radius: 120 },
+    material,
+    fieldT: 0.4,
+    energy: 2.5,
+    width: 0.01,
+    lifetimePs: 65.8,
+    quality: 250,
+    partialWidths: [],
+    thumbnailUrl: '/t.png',
+    imageUrl: '/i.png',
+  });
 }
 
 describe('CatalogueTable', () => {
@@ -108,7 +117,7 @@ describe('CatalogueTable', () => {
     const harness = await RouterTestingHarness.create();
     await harness.navigateByUrl('/catalogue');
     await wait(0);
-    http.expectOne((r) => r.url === '/api/groups/g1/catalogue').flush({ ...emptyPage, items: [row('a', 'gaas'), row('b', 'custom')], total: 2 });
+    http.expectOne((r) => r.url === '/api/groups/g1/catalogue').flush({ ...emptyPage, items: [row(0xa, 'gaas'), row(0xb, 'custom')], total: 2 });
     harness.detectChanges();
     const subs = Array.from((harness.routeNativeElement as HTMLElement).querySelectorAll('[data-test="geometry-sub"]')).map((e) => e.textContent ?? '');
     expect(subs).toHaveLength(2);
@@ -122,7 +131,7 @@ describe('CatalogueTable', () => {
     const harness = await RouterTestingHarness.create();
     await harness.navigateByUrl('/catalogue');
     await wait(0);
-    http.expectOne((r) => r.url === '/api/groups/g1/catalogue').flush({ ...emptyPage, items: [row('a', 'gaas'), row('b', 'gaas')], total: 2 });
+    http.expectOne((r) => r.url === '/api/groups/g1/catalogue').flush({ ...emptyPage, items: [row(1, 'gaas'), row(2, 'gaas')], total: 2 });
     harness.detectChanges();
     const host = harness.routeNativeElement as HTMLElement;
     const images = host.querySelectorAll('img');
@@ -139,7 +148,7 @@ describe('CatalogueTable', () => {
     await harness.navigateByUrl('/catalogue');
     await wait(0);
     const mw: ResonanceRow = {
-      ...row('m', 'eps_r=2.25'),
+      ...row(0x3d, 'eps_r=2.25'),
       family: 'rectangle',
       physics: 'microwave',
       energy: 0.0888,
@@ -148,7 +157,7 @@ describe('CatalogueTable', () => {
       keyDimensions: { width: 36e6, height: 24e6, area: 864e12 },
       microwave: { frequencyGhz: 14.217, widthMhz: 103.4, lifetimeNs: 1.539, quality: 137, validityLimitGhz: 29.49 },
     };
-    const el: ResonanceRow = { ...row('e', 'gaas'), keyDimensions: { radius: 120, area: 45000 } };
+    const el: ResonanceRow = { ...row(0x3e, 'gaas'), keyDimensions: { radius: 120, area: 45000 } };
     http.expectOne((r) => r.url === '/api/groups/g1/catalogue').flush({ ...emptyPage, items: [mw, el], total: 2 });
     harness.detectChanges();
     const host = harness.routeNativeElement as HTMLElement;
@@ -166,7 +175,7 @@ describe('CatalogueTable', () => {
     const harness = await RouterTestingHarness.create();
     await harness.navigateByUrl('/catalogue?family=disk&sort=width');
     await wait(0);
-    http.expectOne((r) => r.url === '/api/groups/g1/catalogue').flush({ ...emptyPage, items: [row('a', 'gaas')], total: 60, nextCursor: 'NEXT1' });
+    http.expectOne((r) => r.url === '/api/groups/g1/catalogue').flush({ ...emptyPage, items: [row(0xa, 'gaas')], total: 60, nextCursor: 'NEXT1' });
     harness.detectChanges();
     const host = harness.routeNativeElement as HTMLElement;
     const button = (name: string) => host.querySelector<HTMLButtonElement>(`[data-test="${name}"]`)!;
@@ -182,14 +191,14 @@ describe('CatalogueTable', () => {
     expect(next.request.params.get('cursor')).toBe('NEXT1');
     expect(next.request.params.get('family')).toBe('disk');
     expect(next.request.params.has('page')).toBe(false);
-    next.flush({ ...emptyPage, items: [row('b', 'gaas')], total: 60, page: 2, nextCursor: 'NEXT2', prevCursor: 'PREV1' });
+    next.flush({ ...emptyPage, items: [row(0xb, 'gaas')], total: 60, page: 2, nextCursor: 'NEXT2', prevCursor: 'PREV1' });
     harness.detectChanges();
     expect(host.querySelector('[data-test="page-label"]')!.textContent).toContain('Page 2 · rows 26–26');
 
     button('previous-page').click();
     await harness.fixture.whenStable();
     await wait(0);
-    http.expectOne((r) => r.params.get('cursor') === 'PREV1').flush({ ...emptyPage, items: [row('a', 'gaas')], total: 60, nextCursor: 'NEXT1', prevCursor: 'PREV0' });
+    http.expectOne((r) => r.params.get('cursor') === 'PREV1').flush({ ...emptyPage, items: [row(0xa, 'gaas')], total: 60, nextCursor: 'NEXT1', prevCursor: 'PREV0' });
     harness.detectChanges();
 
     button('first-page').click();
@@ -209,7 +218,7 @@ describe('CatalogueTable', () => {
     await wait(0);
     http
       .expectOne((r) => r.url === '/api/groups/g1/catalogue')
-      .flush({ ...emptyPage, items: [row('a', 'gaas')], total: 41213, totalKind: 'estimated', countedAt: null, countAgeSeconds: null, nextCursor: 'N' });
+      .flush({ ...emptyPage, items: [row(0xa, 'gaas')], total: 41213, totalKind: 'estimated', countedAt: null, countAgeSeconds: null, nextCursor: 'N' });
     harness.detectChanges();
     const host = harness.routeNativeElement as HTMLElement;
     expect(host.querySelector('[data-test="count"]')!.textContent).toContain('about 41,200 resonances (estimated)');
@@ -217,7 +226,7 @@ describe('CatalogueTable', () => {
     host.querySelector<HTMLButtonElement>('[data-test="count-exact"]')!.click();
     const exact = http.expectOne((r) => r.params.get('count') === 'exact');
     expect(exact.request.params.get('emin')).toBe('1');
-    exact.flush({ ...emptyPage, items: [row('a', 'gaas')], total: 41213, totalKind: 'exact', countAgeSeconds: 0, nextCursor: 'N' });
+    exact.flush({ ...emptyPage, items: [row(0xa, 'gaas')], total: 41213, totalKind: 'exact', countAgeSeconds: 0, nextCursor: 'N' });
     harness.detectChanges();
     expect(host.querySelector('[data-test="count"]')!.textContent!.trim()).toBe('41,213 resonances');
     expect(host.querySelector('[data-test="count-exact"]')).toBeNull();

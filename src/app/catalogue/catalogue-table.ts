@@ -17,7 +17,8 @@ import { MATERIAL_PRESETS } from '../../../shared/model/materials';
 import { toProblem } from '../core/errors/problem';
 import { CurrentGroup } from '../core/group/current-group';
 import { modelFamilies } from '../core/api/model-families';
-import { type CataloguePage, CatalogueApi, type ResonanceRow } from './catalogue-api';
+import { CatalogueApi } from './catalogue-api';
+import type { ResonanceRow } from '../../../shared/api/resonance-row';
 import { countLabel } from './count-label';
 import {
   type CatalogueFilter,
@@ -31,6 +32,7 @@ import {
 } from './catalogue-filter';
 import { EnergyPipe, LifetimePipe, QualityPipe, WidthPipe, significant } from '../core/format/energy-format';
 import { MaterialLabelPipe } from '../core/format/material-label';
+import type { CataloguePage } from '../../../shared/api/catalogue';
 
 type FilterControls = { [K in keyof Omit<CatalogueFilter, 'tags'>]: FormControl<string> } & { tags: FormControl<string> };
 

@@ -1,4 +1,4 @@
-import type { CataloguePage } from './catalogue-api';
+import type { CataloguePage } from '../../../shared/api/catalogue';
 
 /** "20 s", "3 min", "2 h": how long ago a count was taken, in the coarsest unit that fits. */
 export function ageText(seconds: number): string {

@@ -2,6 +2,7 @@ import { provideHttpClient } from '@angular/common/http';
 import { HttpTestingController, provideHttpClientTesting } from '@angular/common/http/testing';
 import { TestBed } from '@angular/core/testing';
 import { settle } from '../core/testing/next-request';
+import { sampleModelVersion } from '../core/testing/answer-fixtures';
 import { ModeImageScale } from './mode-image-scale';
 
 describe('ModeImageScale', () => {
@@ -14,7 +15,7 @@ describe('ModeImageScale', () => {
     fixture.detectChanges();
     await settle();
     // 60 columns at a = 5 nm: a 300 nm wide image; the bar is 50 nm, a sixth of it.
-    TestBed.inject(HttpTestingController).expectOne('/api/groups/g1/models/m1/versions/2').flush({ version: 2, document: { grid: { nx: 60, ny: 40 }, spacing: 5 } });
+    TestBed.inject(HttpTestingController).expectOne('/api/groups/g1/models/m1/versions/2').flush(sampleModelVersion());
     fixture.detectChanges();
     const host = fixture.nativeElement as HTMLElement;
     expect(host.textContent).toContain('50 nm · image 300 nm wide');

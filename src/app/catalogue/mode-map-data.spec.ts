@@ -1,4 +1,5 @@
-import { currentArrows, decodeModeMap, glyphPath, scaleBarLength, type ModeMapPayload } from './mode-map-data';
+import type { ModeMapPayload } from '../../../shared/api/mode-maps';
+import { currentArrows, decodeModeMap, glyphPath, scaleBarLength } from './mode-map-data';
 
 function b64(values: number[]): string {
   const bytes = new Uint8Array(Float32Array.from(values).buffer);

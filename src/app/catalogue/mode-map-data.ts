@@ -4,35 +4,9 @@
  * bitset over the grid. Pure functions, so the view (mode-map-view.ts) only draws.
  * Drawing coordinates are nm with y pointing down: X = x, Y = (ny − 1)·a − y.
  */
+import type { ModeMapPayload } from '../../../shared/api/mode-maps';
 
-export interface ModeMapPayload {
-  engineVersion: string;
-  state: { kind: 'pole' | 'bound' | 'scattering'; energy: number; width: number; lead?: number; leadName?: string; channel?: number; label: string };
-  unit: string;
-  spacingNm: number;
-  grid: { nx: number; ny: number };
-  mask: string;
-  psi: string;
-  vectors: string;
-  leads: { name: string; side: string; current: number }[];
-  kirchhoffResidual: number | null;
-  ldos: string | null;
-  husimi: HusimiPayload | null;
-}
-
-export interface HusimiPayload {
-  sigmaNm: number;
-  gridNm: number;
-  directions: number[];
-  angularResolution: number;
-  meanWavenumber: number;
-  peakThreshold: number;
-  points: string;
-  distribution: string;
-  vectorSum: string;
-  kineticEnergy: string;
-  peaks: { point: number; angle: number; share: number }[];
-}
+type HusimiPayload = NonNullable<ModeMapPayload['husimi']>;
 
 /** A decoded map: sites, |ψ|², phase, current vectors, optional LDOS and Husimi data. */
 export interface ModeMapField {

@@ -11,10 +11,12 @@ import { MatSelectModule } from '@angular/material/select';
 import { HttpErrorResponse } from '@angular/common/http';
 import { Subscription, filter, switchMap, take, timer } from 'rxjs';
 import { ErrorReport } from '../core/errors/error-report';
-import { decodeModeMap, type ModeMapPayload } from './mode-map-data';
-import { ModeMapApi, type HusimiSettings, type ModeMapJob, type ModeMapRequest } from './mode-map-api';
+import type { ModeMapPayload } from '../../../shared/api/mode-maps';
+import { decodeModeMap } from './mode-map-data';
+import { ModeMapApi, type HusimiSettings, type ModeMapRequest } from './mode-map-api';
 import { ModeMapView, type ModeMapLayers } from './mode-map-view';
 import { significant } from '../core/format/energy-format';
+import type { ModeMapView as ModeMapJob } from '../../../shared/api/mode-maps';
 
 type Source = 'mode' | 'scattering';
 

@@ -17,13 +17,14 @@ import { certificateInWords } from '../core/format/certificate-words';
 import { PolePlaneChart } from '../core/charts/pole-plane-chart';
 import type { PlanePole } from '../core/charts/pole-plane-options';
 import { windowText } from '../core/format/window-text';
-import { type ResonanceDetail as ResonanceData, CatalogueApi } from './catalogue-api';
+import { CatalogueApi } from './catalogue-api';
 import { formatEnergy, formatLifetime, formatQuality, formatWidth, significant } from '../core/format/energy-format';
 import { materialLabel } from '../core/format/material-label';
 import { PartialWidths } from './partial-widths';
 import { PhaseLegend } from './phase-legend';
 import { ModeMapPanel } from './mode-map-panel';
 import { FabricationPanel } from '../core/fabrication/fabrication-panel';
+import type { ResonanceDetail as ResonanceData } from '../../../shared/api/catalogue';
 
 /**
  * One catalogued resonance: its figures in units that fit, the partial widths per

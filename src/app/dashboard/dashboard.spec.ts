@@ -5,7 +5,8 @@ import { provideRouter } from '@angular/router';
 import { RouterTestingHarness } from '@angular/router/testing';
 import { Auth } from '../core/auth/auth';
 import { authInterceptor } from '../core/auth/auth-interceptor';
-import { demoSession } from '../core/testing/demo-session';
+import { demoSession, harrowGroupId } from '../core/testing/demo-session';
+import { specId } from '../core/testing/answer-fixtures';
 import { nextRequest, settle } from '../core/testing/next-request';
 import { Dashboard } from './dashboard';
 
@@ -29,19 +30,19 @@ describe('Dashboard', () => {
     TestBed.inject(Auth).adopt(demoSession('reviewer'));
     const harness = await RouterTestingHarness.create();
     await harness.navigateByUrl('/g/harrow-lake/dashboard', Dashboard);
-    (await nextRequest(mock, '/api/groups/g-harrow/activity?limit=20')).flush([
+    (await nextRequest(mock, `/api/groups/${harrowGroupId}/activity?limit=20`)).flush([
       {
-        id: 'a2',
+        id: specId('a2'),
         at: '2026-11-30T14:05:00Z',
-        actor: { id: 'u-ada', name: 'Ada Marlow' },
+        actor: { id: specId('u-ada'), name: 'Ada Marlow' },
         action: 'member.role_changed',
         subject: 'Rae Lindqvist',
-        details: { userId: 'u-rae', from: 'designer', to: 'reviewer' },
+        details: { userId: specId('u-rae'), from: 'designer', to: 'reviewer' },
       },
-      { id: 'a1', at: '2026-11-29T08:00:00Z', actor: null, action: 'invitation.created', subject: 'someone@harrow-lake.example', details: {} },
+      { id: specId('a1'), at: '2026-11-29T08:00:00Z', actor: null, action: 'invitation.created', subject: 'someone@harrow-lake.example', details: {} },
     ]);
-    (await nextRequest(mock, '/api/groups/g-harrow/members')).flush([
-      { userId: 'u-rae', email: 'rae.reviewer@harrow-lake.example', name: 'Rae Lindqvist', role: 'reviewer', joinedAt: '2026-01-05T09:00:00Z' },
+    (await nextRequest(mock, `/api/groups/${harrowGroupId}/members`)).flush([
+      { userId: specId('u-rae'), email: 'rae.reviewer@harrow-lake.example', name: 'Rae Lindqvist', role: 'reviewer', joinedAt: '2026-01-05T09:00:00Z' },
     ]);
     await settle();
     harness.detectChanges();
@@ -62,8 +63,8 @@ describe('Dashboard', () => {
     TestBed.inject(Auth).adopt(demoSession('admin'));
     const harness = await RouterTestingHarness.create();
     await harness.navigateByUrl('/g/harrow-lake/dashboard', Dashboard);
-    (await nextRequest(mock, '/api/groups/g-harrow/activity?limit=20')).flush([]);
-    (await nextRequest(mock, '/api/groups/g-harrow/members')).flush([]);
+    (await nextRequest(mock, `/api/groups/${harrowGroupId}/activity?limit=20`)).flush([]);
+    (await nextRequest(mock, `/api/groups/${harrowGroupId}/members`)).flush([]);
     await settle();
     harness.detectChanges();
     const text = harness.routeNativeElement!.textContent!;
@@ -77,8 +78,8 @@ describe('Dashboard', () => {
     TestBed.inject(Auth).adopt({ ...demoSession('admin'), siteOperator: true });
     const harness = await RouterTestingHarness.create();
     await harness.navigateByUrl('/g/harrow-lake/dashboard', Dashboard);
-    (await nextRequest(mock, '/api/groups/g-harrow/activity?limit=20')).flush([]);
-    (await nextRequest(mock, '/api/groups/g-harrow/members')).flush([]);
+    (await nextRequest(mock, `/api/groups/${harrowGroupId}/activity?limit=20`)).flush([]);
+    (await nextRequest(mock, `/api/groups/${harrowGroupId}/members`)).flush([]);
     await settle();
     harness.detectChanges();
     expect(harness.routeNativeElement!.textContent).toContain('Mail outbox');

@@ -1,6 +1,6 @@
 import type { EChartsCoreOption } from 'echarts/core';
 import type { ChartColours } from '../core/charts/chart-colours';
-import type { FitResult } from '../core/api/fits-api';
+import type { FitResult } from '../../../shared/api/fits';
 
 /**
  * The fit workspace chart: the data (points), the fitted curve and each peak on the

@@ -1,4 +1,3 @@
-import { HttpClient } from '@angular/common/http';
 import { ChangeDetectionStrategy, Component, computed, effect, inject, signal, untracked } from '@angular/core';
 import { FormsModule } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
@@ -11,7 +10,9 @@ import { Router, RouterLink } from '@angular/router';
 import { ErrorReport } from '../core/errors/error-report';
 import { CurrentGroup } from '../core/group/current-group';
 import { significant } from '../core/format/energy-format';
-import { FitsApi, type FitDetail, type TracePreview, type TraceSummary } from '../core/api/fits-api';
+import { FitsApi } from '../core/api/fits-api';
+import type { FitListItem, TracePreview, TraceSummary } from '../../../shared/api/fits';
+import { ModelsApi } from '../core/api/models-api';
 
 const LINESHAPE_WORDS: Record<string, string> = { bw: 'Breit–Wigner', fano: 'Fano', thermal: 'thermal Breit–Wigner', 'thermal-fano': 'thermal Fano' };
 
@@ -29,14 +30,14 @@ const LINESHAPE_WORDS: Record<string, string> = { bw: 'Breit–Wigner', fano: 'F
 })
 export class FitList {
   private readonly api = inject(FitsApi);
-  private readonly http = inject(HttpClient);
+  private readonly modelsApi = inject(ModelsApi);
   private readonly errors = inject(ErrorReport);
   private readonly router = inject(Router);
   protected readonly group = inject(CurrentGroup);
   protected readonly significant = significant;
   protected readonly lineshapeWords = LINESHAPE_WORDS;
 
-  protected readonly fits = signal<FitDetail[]>([]);
+  protected readonly fits = signal<FitListItem[]>([]);
   protected readonly traces = signal<TraceSummary[]>([]);
   protected readonly models = signal<{ id: string; name: string }[]>([]);
   protected readonly preview = signal<TracePreview | null>(null);
@@ -65,9 +66,7 @@ export class FitList {
       untracked(() => {
         this.api.fits(groupId).subscribe({ next: (f) => this.fits.set(f), error: (e) => this.errors.show(e) });
         this.api.traces(groupId).subscribe({ next: (t) => this.traces.set(t), error: (e) => this.errors.show(e) });
-        this.http
-          .get<{ items: { id: string; name: string }[] }>(`/api/groups/${groupId}/models?pageSize=200`)
-          .subscribe({ next: (m) => this.models.set(m.items) });
+        this.modelsApi.list(groupId, { pageSize: 200 }).subscribe({ next: (m) => this.models.set(m.items), error: (e) => this.errors.show(e) });
       });
     });
   }

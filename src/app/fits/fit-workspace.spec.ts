@@ -8,7 +8,9 @@ import { settle } from '../core/testing/next-request';
 import { brushRange } from './brush-range';
 import { fitChartOptions } from './fit-chart-options';
 import { FitWorkspace } from './fit-workspace';
-import { FitsApi, type FitDetail } from '../core/api/fits-api';
+import { FitsApi } from '../core/api/fits-api';
+import { type FitDetail, getFitRoute } from '../../../shared/api/fits';
+import { answerFixture, fixtureId } from '../core/testing/answer-fixtures';
 
 /** A brushEnd event as echarts emits it for a lineX brush bound to x axis 0. */
 const brushEnd = (a: number, b: number) => ({ type: 'brushEnd', areas: [{ brushType: 'lineX', range: [120, 340], coordRange: [a, b], xAxisIndex: 0 }] });
@@ -81,21 +83,28 @@ describe('FitWorkspace', () => {
 });
 
 describe('FitWorkspace on a queued fit', () => {
-  const queuedFit: FitDetail = {
-    id: 'f1',
+  const fitId = fixtureId(0xf1);
+  const traceId = fixtureId(0x71);
+  const queuedFit: FitDetail = answerFixture(getFitRoute, {
+    id: fitId,
     runId: null,
-    traceId: 't1',
+    traceId,
     modelId: null,
     modelName: null,
-    request: { source: { kind: 'trace', traceId: 't1' }, lineshape: 'thermal-fano', background: 'linear', peaks: 3, temperatureMK: 100 },
+    modelVersionId: null,
+    request: { source: { kind: 'trace', traceId }, lineshape: 'thermal-fano', background: 'linear', peaks: 3, temperatureMK: 100 },
     status: 'queued',
     progressFraction: 0,
+    attempt: 0,
     error: null,
     comparison: null,
     deviceName: 'R3',
     createdBy: null,
     createdAt: '2026-01-01T00:00:00.000Z',
-  };
+    finishedAt: null,
+    result: null,
+    catalogueIds: [],
+  });
 
   it('follows the fit on its event stream, then loads it once when it is done', async () => {
     FakeEventSource.made = [];
@@ -105,34 +114,34 @@ describe('FitWorkspace on a queued fit', () => {
     TestBed.inject(FitsApi).eventSourceFactory = (url) => new FakeEventSource(url) as unknown as EventSource;
     const http = TestBed.inject(HttpTestingController);
     const fixture = TestBed.createComponent(FitWorkspace);
-    fixture.componentRef.setInput('fitId', 'f1');
+    fixture.componentRef.setInput('fitId', fitId);
     fixture.detectChanges();
     await settle();
-    http.expectOne('/api/groups/g1/fits/f1').flush(queuedFit);
+    http.expectOne(`/api/groups/g1/fits/${fitId}`).flush(queuedFit);
     // The trace behind the fit is left unanswered: its chart needs echarts and a canvas.
-    http.expectOne('/api/groups/g1/traces/t1');
+    http.expectOne(`/api/groups/g1/traces/${traceId}`);
     fixture.detectChanges();
     const host = fixture.nativeElement as HTMLElement;
     const progress = () => host.querySelector('[data-test="fit-progress"]')?.textContent ?? '';
     expect(progress()).toContain('0 %');
-    expect(FakeEventSource.made.map((s) => s.url)).toEqual(['/api/groups/g1/fits/f1/events']);
+    expect(FakeEventSource.made.map((s) => s.url)).toEqual([`/api/groups/g1/fits/${fitId}/events`]);
 
-    FakeEventSource.last!.emit('progress', { id: 'f1', status: 'running', progressFraction: 0.4, attempt: 1, error: null });
+    FakeEventSource.last!.emit('progress', { id: fitId, status: 'running', progressFraction: 0.4, attempt: 1, error: null });
     fixture.detectChanges();
     expect(progress()).toContain('40 %');
     // No polling while the stream lasts.
     await settle();
-    http.expectNone('/api/groups/g1/fits/f1');
+    http.expectNone(`/api/groups/g1/fits/${fitId}`);
 
-    FakeEventSource.last!.emit('progress', { id: 'f1', status: 'failed', progressFraction: 0.4, attempt: 1, error: 'the worker ran out of memory' });
+    FakeEventSource.last!.emit('progress', { id: fitId, status: 'failed', progressFraction: 0.4, attempt: 1, error: 'the worker ran out of memory' });
     FakeEventSource.last!.emit('done', { status: 'failed' });
     expect(FakeEventSource.last!.closed).toBe(true);
     await settle();
-    http.expectOne('/api/groups/g1/fits/f1').flush({ ...queuedFit, status: 'failed', error: 'the worker ran out of memory' });
+    http.expectOne(`/api/groups/g1/fits/${fitId}`).flush({ ...queuedFit, status: 'failed', error: 'the worker ran out of memory' });
     fixture.detectChanges();
     expect(host.querySelector('[data-test="fit-progress"]')).toBeNull();
     expect(host.textContent).toContain('The fit failed: the worker ran out of memory');
     await settle();
-    http.expectNone('/api/groups/g1/fits/f1');
+    http.expectNone(`/api/groups/g1/fits/${fitId}`);
   });
 });

@@ -1,4 +1,3 @@
-import { HttpClient } from '@angular/common/http';
 import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, inject, input, signal, untracked } from '@angular/core';
 import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
 import { FormsModule } from '@angular/forms';
@@ -17,7 +16,9 @@ import { significant } from '../core/format/energy-format';
 import { chartColours } from '../core/charts/chart-colours';
 import { brushRange } from './brush-range';
 import { fitChartOptions } from './fit-chart-options';
-import { FitsApi, type FitDetail, type FitRequest, type Lineshape } from '../core/api/fits-api';
+import { FitsApi, type FitRequest } from '../core/api/fits-api';
+import type { FitDetail, FitRequestBody } from '../../../shared/api/fits';
+import type { Lineshape } from '../../../shared/engine/fit-lineshapes';
 
 /** The parts of the echarts instance the workspace calls. */
 interface FitChart {
@@ -64,7 +65,6 @@ export class FitWorkspace {
   readonly to = input<string>();
 
   private readonly api = inject(FitsApi);
-  private readonly http = inject(HttpClient);
   private readonly errors = inject(ErrorReport);
   private readonly router = inject(Router);
   private readonly destroyRef = inject(DestroyRef);
@@ -126,7 +126,7 @@ export class FitWorkspace {
 
   private loadRun(groupId: string, runId: string) {
     this.source = { kind: 'run', runId };
-    this.http.get<{ energies: number[]; transmission: number[][] }>(`/api/groups/${groupId}/runs/${runId}/spectrum`).subscribe({
+    this.api.runSpectrum(groupId, runId).subscribe({
       next: (s) => {
         this.data.set({ x: s.energies, y: s.transmission[0] ?? [] });
         this.sourceText.set(`Computed spectrum of run ${runId.slice(0, 8)} (first lead pair)`);
@@ -157,7 +157,7 @@ export class FitWorkspace {
     this.api.fit(groupId, fitId).subscribe({
       next: (f) => {
         this.fit.set(f);
-        const req = f.request as unknown as FitRequest;
+        const req = f.request as unknown as FitRequestBody; // stored as validated, defaults filled in
         this.lineshape = req.lineshape;
         this.background = req.background;
         this.peaks = req.peaks;

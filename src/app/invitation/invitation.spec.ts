@@ -8,6 +8,8 @@ import { Auth } from '../core/auth/auth';
 import { authInterceptor } from '../core/auth/auth-interceptor';
 import { nextRequest, settle } from '../core/testing/next-request';
 import { Invitation } from './invitation';
+import { demoSession } from '../core/testing/demo-session';
+import { specId } from '../core/testing/answer-fixtures';
 
 @Component({ template: 'dashboard' })
 class DashboardStub {}
@@ -65,9 +67,8 @@ describe('Invitation', () => {
     expect(req.request.body).toEqual({ name: 'Noor Haddad', password: 'long-enough-pass' });
     req.flush(
       {
-        user: { id: 'u-noor', email: 'new.student@harrow-lake.example', name: 'Noor Haddad' },
-        groups: [{ id: 'g-harrow', name: 'Harrow Lake Mesoscopics Lab', slug: 'harrow-lake', role: 'designer' }],
-        csrfToken: 'c',
+        ...demoSession('designer'),
+        user: { id: specId('u-noor'), email: 'new.student@harrow-lake.example', name: 'Noor Haddad' },
       },
       { status: 201, statusText: 'Created' },
     );

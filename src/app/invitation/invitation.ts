@@ -13,9 +13,10 @@ import { roleDuty, roleLabel } from '../core/auth/role-label';
 import { ErrorReport } from '../core/errors/error-report';
 import { fieldError } from '../core/errors/field-error';
 import { toProblem } from '../core/errors/problem';
-import { type InvitationOffer, InvitationApi } from './invitation-api';
+import type { InvitationPreview } from '../../../shared/api/auth';
+import { InvitationApi } from './invitation-api';
 
-type OfferState = { kind: 'loading' } | { kind: 'ready'; offer: InvitationOffer } | { kind: 'gone'; message: string };
+type OfferState = { kind: 'loading' } | { kind: 'ready'; offer: InvitationPreview } | { kind: 'gone'; message: string };
 
 /** Why a link does not work, in words for the person who clicked it. */
 function goneMessage(err: unknown): string {

@@ -1,9 +1,8 @@
 import { HttpClient, HttpHeaders } from '@angular/common/http';
 import { Injectable, inject } from '@angular/core';
 import { Observable, map } from 'rxjs';
-
-/** Record counts the server restored (models, runs, resonances…). */
-export type RestoreSummary = Record<string, number>;
+import { type RestoreSummary, restoreGroupRoute } from '../../../shared/api/backup';
+import { parseAnswer } from '../core/http/parse-answer';
 
 /** HTTP of the group backup (admins only; the server enforces it). */
 @Injectable({ providedIn: 'root' })
@@ -15,11 +14,15 @@ export class GroupBackupApi {
     return `/api/groups/${encodeURIComponent(groupId)}/backup?members=${members}`;
   }
 
-  restore(groupId: string, file: Blob): Observable<RestoreSummary> {
+  /** Record counts the server restored (models, runs, resonances…). */
+  restore(groupId: string, file: Blob): Observable<RestoreSummary['restored']> {
     return this.http
-      .post<{ restored: RestoreSummary }>(`/api/groups/${encodeURIComponent(groupId)}/restore`, file, {
+      .post(`/api/groups/${encodeURIComponent(groupId)}/restore`, file, {
         headers: new HttpHeaders({ 'Content-Type': 'application/gzip' }),
       })
-      .pipe(map((r) => r.restored));
+      .pipe(
+        parseAnswer(restoreGroupRoute, 'restore summary'),
+        map((r) => r.restored),
+      );
   }
 }

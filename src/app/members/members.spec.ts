@@ -5,16 +5,28 @@ import { provideRouter } from '@angular/router';
 import { RouterTestingHarness } from '@angular/router/testing';
 import { Auth } from '../core/auth/auth';
 import { authInterceptor } from '../core/auth/auth-interceptor';
-import type { Role } from '../core/auth/session';
-import { demoSession } from '../core/testing/demo-session';
+import type { Role } from '../../../shared/api/enums';
+import { demoSession, harrowGroupId } from '../core/testing/demo-session';
+import { answerFixture, specId } from '../core/testing/answer-fixtures';
+import { inviteRoute, listMembersRoute } from '../../../shared/api/groups';
 import { nextRequest, settle } from '../core/testing/next-request';
 import { Members } from './members';
 
-const members = [
-  { userId: 'u-ada', email: 'ada.admin@harrow-lake.example', name: 'Ada Marlow', role: 'admin', joinedAt: '2026-01-05T09:00:00Z' },
-  { userId: 'u-devi', email: 'dev.designer@harrow-lake.example', name: 'Devi Okafor', role: 'designer', joinedAt: '2026-01-06T09:00:00Z' },
-  { userId: 'u-vic', email: 'vic.viewer@harrow-lake.example', name: 'Victor Sandoval', role: 'viewer', joinedAt: '2026-02-01T09:00:00Z' },
-];
+const invitation = answerFixture(inviteRoute, {
+  id: specId('i1'),
+  email: 'new.student@harrow-lake.example',
+  role: 'designer',
+  invitedBy: { id: specId('u-ada'), name: 'Ada Marlow' },
+  createdAt: '2026-12-01T10:00:00Z',
+  expiresAt: '2026-12-08T10:00:00Z',
+  status: 'pending',
+});
+
+const members = answerFixture(listMembersRoute, [
+  { userId: specId('u-ada'), email: 'ada.admin@harrow-lake.example', name: 'Ada Marlow', role: 'admin', joinedAt: '2026-01-05T09:00:00Z' },
+  { userId: specId('u-devi'), email: 'dev.designer@harrow-lake.example', name: 'Devi Okafor', role: 'designer', joinedAt: '2026-01-06T09:00:00Z' },
+  { userId: specId('u-vic'), email: 'vic.viewer@harrow-lake.example', name: 'Victor Sandoval', role: 'viewer', joinedAt: '2026-02-01T09:00:00Z' },
+]);
 
 describe('Members', () => {
   let mock: HttpTestingController;
@@ -32,8 +44,8 @@ describe('Members', () => {
     TestBed.inject(Auth).adopt(demoSession(role));
     harness = await RouterTestingHarness.create();
     await harness.navigateByUrl('/g/harrow-lake/members', Members);
-    (await nextRequest(mock, '/api/groups/g-harrow/members')).flush(members);
-    if (role === 'admin') (await nextRequest(mock, '/api/groups/g-harrow/invitations')).flush([]);
+    (await nextRequest(mock, `/api/groups/${harrowGroupId}/members`)).flush(members);
+    if (role === 'admin') (await nextRequest(mock, `/api/groups/${harrowGroupId}/invitations`)).flush([]);
     await settle();
     harness.detectChanges();
     return harness.routeNativeElement!;
@@ -65,16 +77,14 @@ describe('Members', () => {
     email.value = 'new.student@harrow-lake.example';
     email.dispatchEvent(new Event('input'));
     root.querySelector<HTMLFormElement>('[data-testid=invite-section] form')!.dispatchEvent(new Event('submit'));
-    const req = await nextRequest(mock, '/api/groups/g-harrow/invitations');
+    const req = await nextRequest(mock, `/api/groups/${harrowGroupId}/invitations`);
     expect(req.request.method).toBe('POST');
     expect(req.request.body).toEqual({ email: 'new.student@harrow-lake.example', role: 'designer' });
     expect(req.request.headers.get('X-CSRF-Token')).toBe('csrf-test');
-    req.flush({ id: 'i1' }, { status: 201, statusText: 'Created' });
+    req.flush(invitation, { status: 201, statusText: 'Created' });
     // After sending, both lists are fetched again.
-    (await nextRequest(mock, '/api/groups/g-harrow/members')).flush(members);
-    (await nextRequest(mock, '/api/groups/g-harrow/invitations')).flush([
-      { id: 'i1', email: 'new.student@harrow-lake.example', role: 'designer', expiresAt: '2026-12-08T10:00:00Z' },
-    ]);
+    (await nextRequest(mock, `/api/groups/${harrowGroupId}/members`)).flush(members);
+    (await nextRequest(mock, `/api/groups/${harrowGroupId}/invitations`)).flush([invitation]);
     await settle();
     harness.detectChanges();
     expect(root.textContent).toContain('new.student@harrow-lake.example');
@@ -86,7 +96,7 @@ describe('Members', () => {
     email.value = 'devi@harrow-lake.example';
     email.dispatchEvent(new Event('input'));
     root.querySelector<HTMLFormElement>('[data-testid=invite-section] form')!.dispatchEvent(new Event('submit'));
-    (await nextRequest(mock, '/api/groups/g-harrow/invitations')).flush(
+    (await nextRequest(mock, `/api/groups/${harrowGroupId}/invitations`)).flush(
       {
         status: 400,
         code: 'validation_failed',

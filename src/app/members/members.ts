@@ -14,13 +14,14 @@ import { MatTooltipModule } from '@angular/material/tooltip';
 import { catchError, combineLatest, filter, firstValueFrom, of, switchMap } from 'rxjs';
 import { Auth } from '../core/auth/auth';
 import { roleDuty, roleLabel } from '../core/auth/role-label';
-import { type Role, roles } from '../core/auth/session';
+import { type Role, ROLES as roles } from '../../../shared/api/enums';
 import { confirmAction } from '../core/confirm/confirm-dialog';
 import { ErrorReport } from '../core/errors/error-report';
 import { fieldError } from '../core/errors/field-error';
 import { CurrentGroup } from '../core/group/current-group';
 import { GroupBackup } from './group-backup';
-import { type Member, MembersApi, type PendingInvitation } from '../core/api/members-api';
+import type { Invitation, Member } from '../../../shared/api/groups';
+import { MembersApi } from '../core/api/members-api';
 
 /**
  * The group's members. Admins invite by e-mail, change roles and remove people; everyone
@@ -145,7 +146,7 @@ export class Members {
     });
   }
 
-  protected async revoke(invitation: PendingInvitation): Promise<void> {
+  protected async revoke(invitation: Invitation): Promise<void> {
     const groupId = this.currentGroup.id();
     if (!groupId) return;
     await this.run(async () => {

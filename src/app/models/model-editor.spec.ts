@@ -5,13 +5,16 @@ import { provideRouter } from '@angular/router';
 import { provideFakeCurrentGroup } from '../core/testing/fake-current-group';
 import { ModelEditor } from './model-editor';
 import { starterModel } from './model-form';
-import type { ModelDetail } from '../core/api/models-api';
+import { type ModelDetail, getModelRoute } from '../../../shared/api/models';
+import { answerFixture, fixtureId } from '../core/testing/answer-fixtures';
 
 /** A saved model as GET /models/:id answers, built on the editor's own starting document. */
-const saved: ModelDetail = {
-  id: 'm1',
+const modelId = fixtureId(0x201);
+const saved: ModelDetail = answerFixture(getModelRoute, {
+  id: modelId,
   name: 'Dot A',
   family: 'rectangle',
+  physics: 'electrons',
   latestVersion: 2,
   material: 'gaas',
   spacingNm: 5,
@@ -20,9 +23,9 @@ const saved: ModelDetail = {
   leadCount: 2,
   keyDimensions: { width: 300, height: 200 },
   updatedAt: '2025-01-01T10:00:00Z',
-  createdBy: { id: 'u1', name: 'Ada' },
+  createdBy: { id: fixtureId(0x301), name: 'Ada' },
   document: { ...starterModel, name: 'Dot A' },
-  versions: [{ version: 2, createdAt: '2025-01-01T10:00:00Z', createdBy: { id: 'u1', name: 'Ada' }, usedByRuns: 1 }],
+  versions: [{ version: 2, createdAt: '2025-01-01T10:00:00Z', createdBy: { id: fixtureId(0x301), name: 'Ada' }, usedByRuns: 1 }],
   derived: {
     siteCount: 2400,
     hopping: 22.75,
@@ -31,10 +34,10 @@ const saved: ModelDetail = {
     wavelengthCeiling: 8.9,
     fluxPerPlaquette: 0,
     cyclotronEnergy: 0,
-    magneticLength: Infinity,
+    magneticLength: null,
     leads: [],
   },
-};
+});
 
 function setUp(role: 'designer' | 'viewer' | 'reviewer', modelId?: string) {
   TestBed.configureTestingModule({
@@ -155,8 +158,8 @@ describe('ModelEditor', () => {
 
   for (const role of ['viewer', 'reviewer'] as const) {
     it(`shows a ${role} a saved model with no save, launch, upload or lead controls, and no live check`, async () => {
-      const { fixture, http, host } = setUp(role, 'm1');
-      http.expectOne('/api/groups/g1/models/m1').flush(saved);
+      const { fixture, http, host } = setUp(role, modelId);
+      http.expectOne(`/api/groups/g1/models/${modelId}`).flush(saved);
       fixture.detectChanges();
       await fixture.whenStable();
       expect(host.textContent).toContain('Dot A · version 2');
@@ -173,8 +176,8 @@ describe('ModelEditor', () => {
   }
 
   it('gives a designer the same saved model with its controls', async () => {
-    const { fixture, http, host } = setUp('designer', 'm1');
-    http.expectOne('/api/groups/g1/models/m1').flush(saved);
+    const { fixture, http, host } = setUp('designer', modelId);
+    http.expectOne(`/api/groups/g1/models/${modelId}`).flush(saved);
     fixture.detectChanges();
     await fixture.whenStable();
     expect(host.querySelector('[data-test="save"]')).not.toBeNull();

@@ -22,7 +22,8 @@ import { ErrorReport } from '../core/errors/error-report';
 import { fieldError } from '../core/errors/field-error';
 import { toProblem } from '../core/errors/problem';
 import { formatEnergy } from '../core/format/energy-format';
-import type { ChannelThreshold, DerivedFigures } from '../../../shared/model/derived-figures';
+import type { DerivedFiguresAnswer as DerivedFigures } from '../../../shared/api/models';
+import type { ChannelThreshold } from '../../../shared/model/derived-figures';
 import { injectCanDesign } from '../core/group/design-permission';
 import { LatticePreview } from './lattice-preview';
 import { countSites } from './lattice-mask-path';
@@ -34,7 +35,8 @@ import { type LeadForm, customMaterial, fillForm, leadGroup, materialChoices, mo
 import { type PlacedIssue, clearPlacedIssues, dottedPath, placeIssues } from '../core/errors/model-issues';
 import { PotentialEditor } from './potential-editor';
 import { ShapeEditor } from './shape-editor';
-import { type ModelDetail, ModelsApi } from '../core/api/models-api';
+import { ModelsApi } from '../core/api/models-api';
+import type { ModelDetail } from '../../../shared/api/models';
 
 /** What the live drawing needs: the rasterised mask of the current form, or why there is none. */
 interface Drawing {

@@ -17,7 +17,8 @@ import { formatLength } from '../core/format/energy-format';
 import { MaterialLabelPipe } from '../core/format/material-label';
 import { injectCanDesign } from '../core/group/design-permission';
 import { modelFamilies } from '../core/api/model-families';
-import { type ModelSummary, ModelsApi } from '../core/api/models-api';
+import { ModelsApi } from '../core/api/models-api';
+import type { ModelSummary } from '../../../shared/api/models';
 
 /** The group's cavity models, searchable by name and filtered by geometry family. */
 @Component({

@@ -1,4 +1,4 @@
-import type { DerivedFigures } from '../../../shared/model/derived-figures';
+import type { DerivedFiguresAnswer as DerivedFigures } from '../../../shared/api/models';
 import { fillForm, modelForm, readForm, starterModel } from './model-form';
 import { twoDimensionalLimitWarning } from './two-dimensional-limit';
 

@@ -1,4 +1,4 @@
-import type { DerivedFigures } from '../../../shared/model/derived-figures';
+import type { DerivedFiguresAnswer as DerivedFigures } from '../../../shared/api/models';
 import { frequencyOfWavenumberSquared } from '../../../shared/units/microwave';
 
 /**

@@ -7,6 +7,7 @@ import { authInterceptor } from '../core/auth/auth-interceptor';
 import { nextRequest, settle } from '../core/testing/next-request';
 import { Outbox } from './outbox';
 import { OutboxMessage } from './outbox-message';
+import { specId } from '../core/testing/answer-fixtures';
 
 describe('Outbox', () => {
   let mock: HttpTestingController;
@@ -35,13 +36,13 @@ describe('Outbox', () => {
   it('lists the received messages, each leading to its own page', async () => {
     await harness.navigateByUrl('/outbox', Outbox);
     (await nextRequest(mock, '/api/outbox')).flush([
-      { id: 'm1', to: 'new.student@harrow-lake.example', subject: 'Join Harrow Lake Mesoscopics Lab', receivedAt: '2026-12-01T10:00:00Z' },
+      { id: specId('m1'), to: 'new.student@harrow-lake.example', subject: 'Join Harrow Lake Mesoscopics Lab', receivedAt: '2026-12-01T10:00:00Z' },
     ]);
     await settle();
     harness.detectChanges();
     const link = harness.routeNativeElement!.querySelector<HTMLAnchorElement>('a.message-link')!;
     expect(link.textContent).toContain('Join Harrow Lake Mesoscopics Lab');
-    expect(link.getAttribute('href')).toBe('/outbox/m1');
+    expect(link.getAttribute('href')).toBe(`/outbox/${specId('m1')}`);
   });
 
   it('explains the 404 anyone but the site operator, or a real mail host, gets', async () => {
@@ -53,9 +54,9 @@ describe('Outbox', () => {
   });
 
   it('shows a message with its links clickable', async () => {
-    await harness.navigateByUrl('/outbox/m1', OutboxMessage);
-    (await nextRequest(mock, '/api/outbox/m1')).flush({
-      id: 'm1',
+    await harness.navigateByUrl(`/outbox/${specId('m1')}`, OutboxMessage);
+    (await nextRequest(mock, `/api/outbox/${specId('m1')}`)).flush({
+      id: specId('m1'),
       to: 'rae.reviewer@harrow-lake.example',
       subject: 'Reset your Poleward password',
       text: 'Open http://127.0.0.1:8640/reset-password?token=xyz within one hour.',

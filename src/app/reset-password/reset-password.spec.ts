@@ -38,7 +38,7 @@ describe('ResetPassword', () => {
     root.querySelector('form')!.dispatchEvent(new Event('submit'));
     const req = await nextRequest(mock, '/api/auth/password-reset');
     expect(req.request.body).toEqual({ email: 'rae.reviewer@harrow-lake.example' });
-    req.flush(null, { status: 202, statusText: 'Accepted' });
+    req.flush({ message: 'If the address has an account, a link is on its way.' }, { status: 202, statusText: 'Accepted' });
     await settle();
     harness.detectChanges();
     expect(root.querySelector('[data-testid=reset-requested]')?.textContent).toContain('rae.reviewer@harrow-lake.example');

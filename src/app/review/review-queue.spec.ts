@@ -3,7 +3,8 @@ import { HttpTestingController, provideHttpClientTesting } from '@angular/common
 import { signal } from '@angular/core';
 import { TestBed } from '@angular/core/testing';
 import { provideRouter } from '@angular/router';
-import type { FabricationItem } from '../../../shared/api/fabrication';
+import { type FabricationItem, moveFabricationRoute } from '../../../shared/api/fabrication';
+import { answerFixture } from '../core/testing/answer-fixtures';
 import { Auth } from '../core/auth/auth';
 import { provideFakeCurrentGroup } from '../core/testing/fake-current-group';
 import { settle } from '../core/testing/next-request';
@@ -67,7 +68,25 @@ describe('ReviewQueue', () => {
     cards[0]!.querySelector<HTMLButtonElement>('[data-test="reject"]')!.click();
     const req = http.expectOne('/api/groups/g1/resonances/r1/fabrication');
     expect(req.request.body).toEqual({ action: 'reject', reason: 'too close to the gate' });
-    req.flush({});
+    req.flush(
+      answerFixture(moveFabricationRoute, {
+        resonanceId: 'r1',
+        state: 'rejected',
+        reason: 'reason of r1',
+        tolerances: { energyMeV: 0.05, minQuality: null },
+        proposedBy: { id: 'u-dee', name: 'Dee Signer' },
+        proposedAt: '2026-12-02T10:00:00Z',
+        reviewedBy: { id: 'u-ada', name: 'Ada Marlow' },
+        reviewedAt: '2026-12-02T11:00:00Z',
+        reviewReason: 'too close to the gate',
+        batch: null,
+        sentAt: null,
+        measurement: null,
+        updatedAt: '2026-12-02T11:00:00Z',
+        allowedActions: [],
+        history: [],
+      }),
+    );
     await settle();
     fixture.detectChanges();
     expect(host.querySelectorAll('[data-test="candidate"]')).toHaveLength(1);

@@ -2,8 +2,8 @@ import type { EChartsCoreOption } from 'echarts/core';
 import type { ChartColours } from '../core/charts/chart-colours';
 import { type PlanePole, poleAxisWords } from '../core/charts/pole-plane-options';
 import { widthAxisRange } from '../core/charts/pole-width-options';
-import type { Spectrum } from './runs-api';
 import { type SpectrumQuantity, spectrumCurves } from './spectrum-curves';
+import type { Spectrum } from '../../../shared/api/runs';
 
 export interface ComparedRun {
   label: string;

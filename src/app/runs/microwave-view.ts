@@ -1,8 +1,7 @@
-import type { RunWindow } from '../core/answers/run-window';
+import type { Run, Spectrum } from '../../../shared/api/runs';
 import type { PlanePole } from '../core/charts/pole-plane-options';
 import { significant } from '../core/format/energy-format';
 import { frequencyOfWavenumberSquared, microwaveFigures } from '../../../shared/units/microwave';
-import type { Spectrum } from './runs-api';
 
 /**
  * A microwave run in its own units. The engine's eigenvalue is k² (mm⁻²); a microwave
@@ -23,19 +22,20 @@ export function frequencyPole<P extends PlanePole>(p: P, permittivity: number): 
  * the window at every frequency of it (Γ_f of the lower edge Γmax at the top of the window:
  * a fixed Γ in k² is a narrower Γ_f at a higher frequency).
  */
-export function frequencyWindow(window: RunWindow, permittivity: number): { emin: number; emax: number; gammaMax?: number } {
-  const emin = frequencyOfWavenumberSquared(window.emin, permittivity);
-  const emax = frequencyOfWavenumberSquared(window.emax, permittivity);
-  if (!('gammaMax' in window) || window.gammaMax == null) return { emin, emax };
-  return { emin, emax, gammaMax: microwaveFigures(window.emax, window.gammaMax, permittivity).widthMhz / 1e3 };
+export function frequencyWindow(window: Run['window'], permittivity: number): { emin: number; emax: number; gammaMax?: number } {
+  const emin = frequencyOfWavenumberSquared(window['emin'] ?? NaN, permittivity);
+  const emax = frequencyOfWavenumberSquared(window['emax'] ?? NaN, permittivity);
+  const gammaMax = window['gammaMax'];
+  if (gammaMax == null) return { emin, emax };
+  return { emin, emax, gammaMax: microwaveFigures(window['emax'] ?? NaN, gammaMax, permittivity).widthMhz / 1e3 };
 }
 
 /** The window in words: "12.500–17.000 GHz, Γ_f ≤ 12.3 MHz (k² 0.0686–0.127 mm⁻²)". */
-export function frequencyWindowText(window: RunWindow, permittivity: number): string {
+export function frequencyWindowText(window: Run['window'], permittivity: number): string {
   const f = frequencyWindow(window, permittivity);
   const range = `${f.emin.toFixed(3)}–${f.emax.toFixed(3)} GHz`;
-  const raw = `k² ${significant(window.emin)}–${significant(window.emax)} mm⁻²`;
-  if ('points' in window) return `${range}, ${window.points} frequencies (${raw})`;
+  const raw = `k² ${significant(window['emin'] ?? NaN)}–${significant(window['emax'] ?? NaN)} mm⁻²`;
+  if (window['points'] != null) return `${range}, ${window['points']} frequencies (${raw})`;
   return f.gammaMax != null ? `${range}, Γ_f ≤ ${significant(f.gammaMax * 1e3)} MHz (${raw})` : `${range} (${raw})`;
 }
 

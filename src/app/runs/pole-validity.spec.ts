@@ -1,7 +1,7 @@
-import type { ResonanceRow } from '../core/answers/resonance-row';
 import type { ChartColours } from '../core/charts/chart-colours';
 import { polePlaneOptions } from '../core/charts/pole-plane-options';
 import { microwaveCells, validitySummary } from './pole-validity';
+import type { ResonanceRow } from '../../../shared/api/resonance-row';
 
 const colours = new Proxy({}, { get: () => '#000' }) as ChartColours;
 const row = (over: Partial<ResonanceRow>) => ({ energy: 8, width: 0.01, bound: false, ...over }) as ResonanceRow;

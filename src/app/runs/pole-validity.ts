@@ -1,4 +1,4 @@
-import type { ResonanceRow } from '../core/answers/resonance-row';
+import type { ResonanceRow } from '../../../shared/api/resonance-row';
 
 /** What a validity mark on a pole means, for the tooltip and the screen reader. */
 export const aboveLimitMeaning =

@@ -17,10 +17,11 @@ import { documentDiff } from './document-diff';
 import { matchPoles } from './pole-matching';
 import { durationText } from './progress-times';
 import { kindLabel, windowText } from './run-labels';
-import { type RunDetail, RunsApi } from './runs-api';
+import { RunsApi } from './runs-api';
+import type { RunDetail } from '../../../shared/api/runs';
 import { frequencyPole, frequencySpectrum, frequencyWindowText } from './microwave-view';
 import { aboveLimitMeaning, microwaveCells, validitySummary } from './pole-validity';
-import type { ResonanceRow } from '../core/answers/resonance-row';
+import type { ResonanceRow } from '../../../shared/api/resonance-row';
 
 /** A run's poles in its own units: as they are (meV), or as Re f and Γ_f (GHz) for a microwave run. */
 function ownUnits(run: RunDetail): ResonanceRow[] {

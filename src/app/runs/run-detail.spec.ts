@@ -6,14 +6,14 @@ import { provideRouter } from '@angular/router';
 import { provideEchartsCore } from 'ngx-echarts';
 import { provideFakeCurrentGroup } from '../core/testing/fake-current-group';
 import { FakeEventSource } from '../core/testing/fake-event-source';
-import { sampleRun } from './sample-run';
+import { fixtureId, sampleEstimate, sampleResonance, sampleRunDetail } from '../core/testing/answer-fixtures';
 import { settle } from '../core/testing/next-request';
 import { RunDetail } from './run-detail';
 import { RunsApi } from './runs-api';
 import { Component, input } from '@angular/core';
 import { PolePlaneChart } from '../core/charts/pole-plane-chart';
 import { TransmissionChart } from './transmission-chart';
-import type { ResonanceRow } from '../core/answers/resonance-row';
+import type { ResonanceRow } from '../../../shared/api/resonance-row';
 
 /** Stand-ins for the charts (echarts needs a canvas): they keep the inputs the page binds. */
 @Component({ selector: 'pw-pole-plane-chart', template: '' })
@@ -36,35 +36,7 @@ class TransmissionStub {
 }
 
 const pole = (over: Partial<ResonanceRow>): ResonanceRow =>
-  ({
-    id: 'p',
-    runId: 'r1',
-    source: 'computed',
-    fitId: null,
-    modelId: 'm1',
-    modelName: 'Dot A',
-    modelVersion: 2,
-    family: 'rectangle',
-    keyDimensions: {},
-    material: 'GaAs',
-    fieldT: 0,
-    energy: 8,
-    width: 0.01,
-    lifetimePs: 0.0658,
-    quality: 800,
-    partialWidths: [],
-    petermann: 1.01,
-    residual: 1e-12,
-    bound: false,
-    nearThreshold: false,
-    overlapping: false,
-    tags: [],
-    notes: '',
-    createdAt: '2025-01-01T10:00:00Z',
-    thumbnailUrl: null,
-    imageUrl: null,
-    ...over,
-  }) as ResonanceRow;
+  sampleResonance({ family: 'rectangle', keyDimensions: {}, energy: 8, width: 0.01, lifetimePs: 0.0658, quality: 800, partialWidths: [], ...over });
 
 async function completedPage(poles: ResonanceRow[], extra: Record<string, unknown> = {}) {
   TestBed.configureTestingModule({
@@ -81,7 +53,7 @@ async function completedPage(poles: ResonanceRow[], extra: Record<string, unknow
   return fixture;
 }
 
-const detail = { ...sampleRun, thresholds: [], poles: [], spectrum: null };
+const detail = sampleRunDetail();
 
 describe('RunDetail', () => {
   it('follows its run on the event stream, in plain words, and loads the run again when it ends', async () => {
@@ -102,7 +74,7 @@ describe('RunDetail', () => {
     expect(stage()).toContain('searching the contour · 10 %');
     expect(FakeEventSource.made.map((s) => s.url)).toEqual(['/api/groups/g1/runs/r1/events']);
 
-    FakeEventSource.last!.emit('progress', { status: 'running', progress: { stage: 'transmission', fraction: 0.9 } });
+    FakeEventSource.last!.emit('progress', { id: detail.id, status: 'running', progress: { stage: 'transmission', fraction: 0.9 }, attempts: 1, error: null, resonanceCount: null });
     fixture.detectChanges();
     expect(stage()).toContain('transmission spectrum · 90 %');
 
@@ -138,7 +110,7 @@ describe('RunDetail', () => {
       ...detail,
       startedAt,
       note: 'ry scan, second point',
-      estimate: { expectedSeconds: 100 },
+      estimate: sampleEstimate({ expectedSeconds: 100 }),
       progress: { stage: 'contour', fraction: 0.4 },
     });
     fixture.detectChanges();
@@ -154,9 +126,9 @@ describe('RunDetail', () => {
   it('marks the poles above the lattice-validity limit and says how many, in the table and on the charts', async () => {
     const v = { limit: 8.69, wavelengthSpacings: 9.1 };
     const fixture = await completedPage([
-      pole({ id: 'a', energy: 7.8, validity: { ...v, aboveLimit: false } }),
-      pole({ id: 'b', energy: 9.2, validity: { ...v, aboveLimit: true } }),
-      pole({ id: 'c', energy: 9.9, validity: { ...v, aboveLimit: true } }),
+      pole({ id: fixtureId(0xa), energy: 7.8, validity: { ...v, aboveLimit: false } }),
+      pole({ id: fixtureId(0xb), energy: 9.2, validity: { ...v, aboveLimit: true } }),
+      pole({ id: fixtureId(0xc), energy: 9.9, validity: { ...v, aboveLimit: true } }),
     ]);
     const host = fixture.nativeElement as HTMLElement;
     expect(host.querySelector('[data-test="validity-line"]')!.textContent).toContain(
@@ -176,7 +148,7 @@ describe('RunDetail', () => {
     const fixture = await completedPage(
       [
         pole({
-          id: 'm',
+          id: fixtureId(0xd),
           physics: 'microwave',
           energy: 1.234,
           width: 2e-4,

@@ -21,7 +21,7 @@ import { injectCanDesign } from '../core/group/design-permission';
 import { certificateInWords } from '../core/format/certificate-words';
 import { PolePlaneChart } from '../core/charts/pole-plane-chart';
 import { kindLabel, statusLabel, windowText } from './run-labels';
-import { type RunDetail as RunDetailData, RunsApi, finishedStatuses } from './runs-api';
+import { RunsApi, finishedStatuses } from './runs-api';
 import { stageInWords } from './stage-words';
 import { runErrorTone } from './run-error-tone';
 import { TransmissionChart } from './transmission-chart';
@@ -32,6 +32,7 @@ import { spectrumWarnings } from './spectrum-warnings';
 import { aboveLimitMeaning, microwaveCells, validitySummary } from './pole-validity';
 import type { SpectrumView } from './transmission-options';
 import { frequencies, frequencyPole, frequencySpectrum, frequencyWindow, frequencyWindowText } from './microwave-view';
+import type { RunDetail as RunDetailData } from '../../../shared/api/runs';
 
 /**
  * One run: live progress while it works; afterwards its poles in the complex
@@ -185,7 +186,7 @@ export class RunDetail {
   protected readonly canCancel = computed(() => {
     const r = this.run();
     if (!r || !this.active() || !this.canDesign()) return false;
-    return this.group.group()?.role === 'admin' || r.createdBy.id === this.auth.user()?.id;
+    return this.group.group()?.role === 'admin' || r.createdBy?.id === this.auth.user()?.id;
   });
 
   constructor() {

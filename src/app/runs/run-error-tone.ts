@@ -1,4 +1,4 @@
-import type { Run } from './runs-api';
+import type { Run } from '../../../shared/api/runs';
 
 /**
  * How to show a run's error line. A run that is queued or running again carries the

@@ -1,61 +1,39 @@
 import Papa from 'papaparse';
-import type { ResonanceRow } from '../core/answers/resonance-row';
-import { resonanceCsvHeader } from '../../../shared/api/resonance-columns';
 import { exportFileName, polesCsv, polesJson, spectrumCsv, spectrumJson } from './run-export';
-import type { RunDetail } from './runs-api';
+import type { ResonanceRow } from '../../../shared/api/resonance-row';
+import type { RunDetail } from '../../../shared/api/runs';
+import { resonanceCsvHeader } from '../../../shared/api/resonance-columns';
+import { fixtureId, sampleResonance, sampleRunDetail } from '../core/testing/answer-fixtures';
 
-const pole = (energy: number, width: number, extra: Partial<ResonanceRow> = {}): ResonanceRow => ({
-  id: `p${energy}`,
-  runId: 'r1',
-  source: 'computed',
-  fitId: null,
-  modelId: 'm1',
-  modelName: 'Dot A',
-  modelVersion: 2,
-  family: 'ellipse',
-  keyDimensions: {},
-  material: 'gaas',
-  fieldT: 0,
-  energy,
-  width,
-  lifetimePs: width > 0 ? 0.658 / width : null,
-  quality: width > 0 ? energy / width : null,
-  partialWidths: [
-    { lead: 'source', width: width / 2 },
-    { lead: 'drain', width: width / 2 },
-  ],
-  petermann: 1.01,
-  residual: 1e-12,
-  bound: width === 0,
-  nearThreshold: false,
-  overlapping: false,
-  tags: [],
-  notes: '=cmd',
-  createdAt: '2026-12-02T10:00:00Z',
-  thumbnailUrl: null,
-  imageUrl: null,
-  ...extra,
-});
+const pole = (energy: number, width: number, extra: Partial<ResonanceRow> = {}): ResonanceRow =>
+  sampleResonance({
+    id: fixtureId(Math.round(energy * 10)),
+    family: 'ellipse',
+    keyDimensions: {},
+    material: 'gaas',
+    energy,
+    width,
+    lifetimePs: width > 0 ? 0.658 / width : null,
+    quality: width > 0 ? energy / width : null,
+    partialWidths: [
+      { lead: 'source', width: width / 2 },
+      { lead: 'drain', width: width / 2 },
+    ],
+    bound: width === 0,
+    notes: '=cmd',
+    createdAt: '2026-12-02T10:00:00Z',
+    ...extra,
+  });
 
-const run = {
-  id: 'r1',
-  kind: 'pole-search',
+const run: RunDetail = sampleRunDetail({
   status: 'completed',
   progress: null,
   window: { emin: 1, emax: 3, gammaMax: 0.5 },
-  modelId: 'm1',
-  modelName: 'Dot A',
-  modelVersion: 2,
-  createdBy: { id: 'u', name: 'Ada' },
-  createdAt: '',
   startedAt: null,
   finishedAt: '2026-12-02T10:01:00Z',
-  attempts: 1,
-  error: null,
   engineVersion: 'e1',
   resonanceCount: 2,
   certificate: { pieces: [], certified: true, summary: '' },
-  thresholds: [],
   poles: [pole(1.5, 0.01), pole(2.5, 0)],
   spectrum: {
     energies: [1, 2],
@@ -68,13 +46,14 @@ const run = {
       [0.1, 0.2],
     ],
     residual: [1e-13, 2e-13],
+    reflection: null,
   },
   leads: [
     { name: 'source', side: 'left', width: 10 },
     { name: 'drain', side: 'right', width: 10 },
   ],
   stats: { spectrumBudgetExhausted: true },
-} as unknown as RunDetail;
+});
 
 describe('run downloads', () => {
   it('writes the poles as CSV with units in the column names, bound states with empty lifetime and Q', () => {

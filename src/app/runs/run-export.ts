@@ -1,8 +1,9 @@
 import Papa from 'papaparse';
 import { resonanceCsvColumns, resonanceCsvHeader, resonanceJsonUnits } from '../../../shared/api/resonance-columns';
 import { frequencyOfWavenumberSquared } from '../../../shared/units/microwave';
-import type { RunDetail } from './runs-api';
 import { spectrumWarnings } from './spectrum-warnings';
+import type { ResonanceRow } from '../../../shared/api/resonance-row';
+import type { RunDetail } from '../../../shared/api/runs';
 
 /**
  * A run's poles and spectrum as files, with the catalogue export's conventions

@@ -1,4 +1,4 @@
-import type { RunKind, RunStatus } from './runs-api';
+import type { RunKind, RunStatus } from '../../../shared/api/enums';
 
 export { windowText } from '../core/format/window-text';
 

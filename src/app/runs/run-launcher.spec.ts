@@ -2,7 +2,7 @@ import { provideHttpClient } from '@angular/common/http';
 import { HttpTestingController, provideHttpClientTesting } from '@angular/common/http/testing';
 import { TestBed } from '@angular/core/testing';
 import { provideRouter } from '@angular/router';
-import type { Role } from '../core/auth/session';
+import type { Role } from '../../../shared/api/enums';
 import { provideFakeCurrentGroup } from '../core/testing/fake-current-group';
 import { RunLauncher } from './run-launcher';
 

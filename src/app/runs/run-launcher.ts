@@ -16,13 +16,17 @@ import { ErrorReport } from '../core/errors/error-report';
 import { fieldError } from '../core/errors/field-error';
 import { toProblem } from '../core/errors/problem';
 import { CurrentGroup } from '../core/group/current-group';
-import { type DerivedFigures, energyValidity } from '../../../shared/model/derived-figures';
+import type { DerivedFiguresAnswer as DerivedFigures } from '../../../shared/api/models';
+import { energyValidity } from '../../../shared/model/derived-figures';
 import { launcherWarnings } from './launcher-warnings';
 import { injectCanDesign } from '../core/group/design-permission';
-import { type ModelDetail, type ModelSummary, ModelsApi } from '../core/api/models-api';
+import { ModelsApi } from '../core/api/models-api';
 import { placeIssues } from '../core/errors/model-issues';
 import { type AxisThreshold, EnergyAxis } from './energy-axis';
-import { type RunEstimate, type RunKind, type RunRequest, RunsApi } from './runs-api';
+import { type RunRequest, RunsApi } from './runs-api';
+import type { ModelDetail, ModelSummary } from '../../../shared/api/models';
+import type { RunEstimate } from '../../../shared/api/runs';
+import type { RunKind } from '../../../shared/api/enums';
 
 /**
  * Launches a pole search or a transmission sweep on one model version. The window
@@ -116,7 +120,7 @@ export class RunLauncher {
   /** Every warning once: the launcher's validity check and the estimate's other warnings. */
   protected readonly warnings = computed(() => launcherWarnings(this.estimate()?.warnings ?? [], this.validity()?.warnings ?? []));
 
-  private readonly estimates = new Subject<Omit<RunRequest, 'note'> | null>();
+  private readonly estimates = new Subject<RunRequest | null>();
 
   constructor() {
     this.form.valueChanges.pipe(takeUntilDestroyed()).subscribe(() => {
@@ -200,15 +204,15 @@ export class RunLauncher {
   }
 
   /** The request the form describes, or null while it is incomplete. */
-  private request(): Omit<RunRequest, 'note'> | null {
+  private request(): RunRequest | null {
     const v = this.form.getRawValue();
     const w = v.window;
     if (!v.modelId || w.emin == null || w.emax == null || !(w.emax > w.emin)) return null;
-    const window =
-      v.kind === 'transmission'
-        ? { emin: w.emin, emax: w.emax, points: w.points ?? 400 }
-        : { emin: w.emin, emax: w.emax, ...(w.gammaMax != null ? { gammaMax: w.gammaMax } : {}) };
-    return { modelId: v.modelId, ...(v.version != null ? { version: v.version } : {}), kind: v.kind, window };
+    const common = { modelId: v.modelId, ...(v.version != null ? { version: v.version } : {}) };
+    if (v.kind === 'transmission') return { ...common, kind: 'transmission', window: { emin: w.emin, emax: w.emax, points: w.points ?? 400 } };
+    // The contract requires the width bound of a pole search (shared/api/runs.ts).
+    if (w.gammaMax == null) return null;
+    return { ...common, kind: 'pole-search', window: { emin: w.emin, emax: w.emax, gammaMax: w.gammaMax } };
   }
 
   private loadModel(id: string, version: number | null): void {

@@ -4,12 +4,14 @@ import { TestBed } from '@angular/core/testing';
 import { provideRouter } from '@angular/router';
 import { provideFakeCurrentGroup } from '../core/testing/fake-current-group';
 import { FakeEventSource } from '../core/testing/fake-event-source';
-import { sampleRun } from './sample-run';
+import { fixtureId, sampleRun as runFixture, sampleRunDetail } from '../core/testing/answer-fixtures';
 import { RunList } from './run-list';
-import { type Run, RunsApi, pollPeriodMs } from './runs-api';
+import { RunsApi, pollPeriodMs } from './runs-api';
+import type { Run } from '../../../shared/api/runs';
 
 const listUrl = '/api/groups/g1/runs';
-const done: Run = { ...sampleRun, id: 'r2', status: 'completed', progress: null, resonanceCount: 4 };
+const sampleRun = runFixture();
+const done: Run = runFixture({ id: fixtureId(0x102), status: 'completed', progress: null, resonanceCount: 4 });
 
 /** The run list on fake timers, so the 2 s polling period can be stepped through. */
 function setUp() {
@@ -33,9 +35,9 @@ describe('RunList', () => {
     await vi.advanceTimersByTimeAsync(0);
     http.expectOne((r) => r.url === listUrl).flush({ items: [sampleRun, done], total: 2 });
     fixture.detectChanges();
-    const bar = () => host.querySelector('[data-run="r1"] mat-progress-bar');
+    const bar = () => host.querySelector(`[data-run="${sampleRun.id}"] mat-progress-bar`);
     expect(bar()!.getAttribute('aria-valuenow')).toBe('10');
-    expect(host.querySelector('[data-run="r1"] .stage')!.textContent).toContain('searching the contour');
+    expect(host.querySelector(`[data-run="${sampleRun.id}"] .stage`)!.textContent).toContain('searching the contour');
     // No event stream per run: with many runs in flight they would use up the browser's connections.
     expect(FakeEventSource.made).toHaveLength(0);
 
@@ -45,13 +47,13 @@ describe('RunList', () => {
     http.expectOne((r) => r.url === listUrl).flush({ items: [{ ...sampleRun, progress: { stage: 'refine', fraction: 0.6 } }, done], total: 2 });
     fixture.detectChanges();
     expect(bar()!.getAttribute('aria-valuenow')).toBe('60');
-    expect(host.querySelector('[data-run="r1"] .stage')!.textContent).toContain('refining poles');
+    expect(host.querySelector(`[data-run="${sampleRun.id}"] .stage`)!.textContent).toContain('refining poles');
 
     await vi.advanceTimersByTimeAsync(pollPeriodMs);
     http.expectOne((r) => r.url === listUrl).flush({ items: [{ ...sampleRun, status: 'completed', progress: null, resonanceCount: 3 }, done], total: 2 });
     fixture.detectChanges();
     expect(bar()).toBeNull();
-    expect(host.querySelector('[data-run="r1"]')!.textContent).toContain('3 resonance(s)');
+    expect(host.querySelector(`[data-run="${sampleRun.id}"]`)!.textContent).toContain('3 resonance(s)');
 
     // Every listed run has finished: no more requests.
     await vi.advanceTimersByTimeAsync(5 * pollPeriodMs);
@@ -66,8 +68,8 @@ describe('RunList', () => {
     const stuck = { ...sampleRun, status: 'queued' as const, notice: 'No worker has taken this run for 5 min.' };
     http.expectOne((r) => r.url === listUrl).flush({ items: [stuck, done], total: 2 });
     fixture.detectChanges();
-    expect(host.querySelector('[data-run="r1"] [data-test="notice"]')!.textContent).toContain('No worker has taken this run for 5 min.');
-    expect(host.querySelector('[data-run="r2"] [data-test="notice"]')).toBeNull();
+    expect(host.querySelector(`[data-run="${sampleRun.id}"] [data-test="notice"]`)!.textContent).toContain('No worker has taken this run for 5 min.');
+    expect(host.querySelector(`[data-run="${done.id}"] [data-test="notice"]`)).toBeNull();
   });
 
   it('does not poll a page of finished runs at all', async () => {
@@ -90,7 +92,7 @@ describe('RunList', () => {
     http.expectOne((r) => r.url === listUrl).flush({ items: [{ ...sampleRun, progress: { stage: 'refine', fraction: 0.5 } }], total: 1 });
     fixture.detectChanges();
     expect(host.querySelector('.issue')).toBeNull();
-    expect(host.querySelector('[data-run="r1"] mat-progress-bar')!.getAttribute('aria-valuenow')).toBe('50');
+    expect(host.querySelector(`[data-run="${sampleRun.id}"] mat-progress-bar`)!.getAttribute('aria-valuenow')).toBe('50');
   });
 
   it('stops polling when the page is left', async () => {
@@ -113,7 +115,7 @@ describe('RunsApi.updates', () => {
     const sub = api.updates('g1', 'r1').subscribe((u) => seen.push(u.progress?.fraction ?? -1));
     FakeEventSource.last!.emit('error');
     await new Promise((r) => setTimeout(r, 0));
-    http.expectOne('/api/groups/g1/runs/r1').flush({ ...sampleRun, progress: { stage: 'contour', fraction: 0.4 } });
+    http.expectOne('/api/groups/g1/runs/r1').flush(sampleRunDetail({ progress: { stage: 'contour', fraction: 0.4 } }));
     expect(seen).toEqual([0.4]);
     expect(FakeEventSource.last!.closed).toBe(true);
     // The 2 s poll would otherwise outlive this spec and fire into a destroyed injector (NG0205).
@@ -129,7 +131,7 @@ describe('RunsApi.updates', () => {
     let completed = false;
     api.updates('g1', 'r1').subscribe({ complete: () => (completed = true) });
     await vi.advanceTimersByTimeAsync(0);
-    http.expectOne('/api/groups/g1/runs/r1').flush(sampleRun);
+    http.expectOne('/api/groups/g1/runs/r1').flush(sampleRunDetail());
     TestBed.resetTestingModule();
     expect(completed).toBe(true);
     // No poll fires into the destroyed injector (it would throw NG0205 as an unhandled error).

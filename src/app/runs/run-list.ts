@@ -17,10 +17,12 @@ import { toProblem } from '../core/errors/problem';
 import { CurrentGroup } from '../core/group/current-group';
 import { injectCanDesign } from '../core/group/design-permission';
 import { kindLabel, statusLabel, windowText } from './run-labels';
-import { type Run, type RunKind, type RunListQuery, type RunStatus, RunsApi, finishedStatuses, pollPeriodMs } from './runs-api';
+import { type RunListQuery, RunsApi, finishedStatuses, pollPeriodMs } from './runs-api';
 import { stageInWords } from './stage-words';
 import { runErrorTone } from './run-error-tone';
 import { durationText, progressTimes } from './progress-times';
+import type { Run } from '../../../shared/api/runs';
+import type { RunKind, RunStatus } from '../../../shared/api/enums';
 
 type RunPage = { items: Run[]; total: number };
 
@@ -158,7 +160,7 @@ export class RunList {
   /** The owner and admins may cancel (the server says the same). */
   protected canCancel(run: Run): boolean {
     if (!this.isActive(run) || !this.canDesign()) return false;
-    return this.group.group()?.role === 'admin' || run.createdBy.id === this.auth.user()?.id;
+    return this.group.group()?.role === 'admin' || run.createdBy?.id === this.auth.user()?.id;
   }
 
   protected cancel(run: Run): void {

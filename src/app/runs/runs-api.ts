@@ -1,106 +1,41 @@
-import { browserEventSource, progressEvents, type EventSourceFactory } from '../core/events/progress-events';
 import { HttpClient, HttpParams } from '@angular/common/http';
 import { DestroyRef, Injectable, inject } from '@angular/core';
 import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
 import { Observable, map, of, switchMap, takeWhile, timer } from 'rxjs';
-import type { ResonanceRow } from '../core/answers/resonance-row';
-import type { RunCertificate } from '../core/answers/run-certificate';
-import type { RunWindow } from '../core/answers/run-window';
+import type { z } from 'zod';
+import { FINISHED_RUN_STATUSES, type RunStatus } from '../../../shared/api/enums';
+import {
+  type Run,
+  type RunDetail,
+  type RunEstimate,
+  type RunList,
+  cancelRunRoute,
+  estimateRunRoute,
+  getRunRoute,
+  launchRunRoute,
+  listRunsRoute,
+  type runListQuery,
+  runProgressEventSchema,
+  type runRequestSchema,
+} from '../../../shared/api/runs';
+import { browserEventSource, progressEvents, type EventSourceFactory } from '../core/events/progress-events';
+import { parseAnswer } from '../core/http/parse-answer';
 
-export type RunKind = 'pole-search' | 'transmission';
-export type RunStatus = 'queued' | 'running' | 'completed' | 'failed' | 'cancelled';
+/** What a launch sends (defaults may be left out). */
+export type RunRequest = z.input<typeof runRequestSchema>;
 
-export interface RunProgress {
-  stage: string;
-  fraction: number;
-}
-
-export interface Run {
-  id: string;
-  kind: RunKind;
-  status: RunStatus;
-  progress: RunProgress | null;
-  window: RunWindow;
-  modelId: string;
-  modelName: string;
-  modelVersion: number;
-  createdBy: { id: string; name: string };
-  createdAt: string;
-  startedAt: string | null;
-  finishedAt: string | null;
-  attempts: number;
-  error: string | null;
-  /** Set while the run looks stuck: what is happening and what to do. */
-  notice?: string | null;
-  engineVersion: string;
-  resonanceCount: number | null;
-  certificate: RunCertificate | null;
-  /** The launcher's note, as typed. */
-  note?: string | null;
-  /** The launch estimate (expectedSeconds is what the progress bar's time left starts from). */
-  estimate?: { expectedSeconds?: number } | null;
-  /** Engine figures of the finished run (spectrumBudgetExhausted, seconds, …). */
-  stats?: Record<string, unknown> | null;
-}
-
-export interface Spectrum {
-  energies: number[];
-  /** transmission[pair][energy], pairs[k] names the leads of row k. */
-  transmission: number[][];
-  /** Lead indices in the model's lead order (server/jobs/engine-task.ts); a name is shown as it is. */
-  pairs: { from: number | string; to: number | string }[];
-  residual: number[];
-  /** R per lead in the model's lead order: reflection[lead][energy]; null for runs stored before it was kept. */
-  reflection?: number[][] | null;
-}
-
-export interface RunDetail extends Run {
-  thresholds: number[];
-  poles: ResonanceRow[];
-  spectrum: Spectrum | null;
-  /** The model version's leads in engine order; the spectrum's pairs index into it. */
-  leads?: { name: string; side: string; width: number }[];
-  /** A microwave model's ε_r, h (mm) and 2D limit (GHz): window, thresholds and spectrum energies are then k² (mm⁻²). */
-  microwave?: { permittivity: number; heightMm: number; twoDimensionalLimitGhz: number } | null;
-}
-
-export interface RunEstimate {
-  sites: number;
-  pieces: number;
-  thresholdsInWindow: number[];
-  factorisations: number;
-  expectedSeconds: number;
-  warnings: string[];
-}
-
-export interface RunRequest {
-  modelId: string;
-  version?: number;
-  kind: RunKind;
-  window: RunWindow;
-  note?: string;
-}
-
-export interface RunListQuery {
-  status?: RunStatus;
-  kind?: RunKind;
-  modelId?: string;
-  page?: number;
-  pageSize?: number;
-}
+/** Filters and page of the run list, as the API names them. */
+export type RunListQuery = Partial<z.input<typeof runListQuery>>;
 
 /** What the events stream and the polling fallback both deliver. */
-export interface RunUpdate {
-  status: RunStatus;
-  progress: RunProgress | null;
-}
+export type RunUpdate = Pick<Run, 'status' | 'progress'>;
 
-export const finishedStatuses: ReadonlySet<RunStatus> = new Set(['completed', 'failed', 'cancelled']);
+export const finishedStatuses: ReadonlySet<RunStatus> = new Set(FINISHED_RUN_STATUSES);
 
 /** Polling period of the run list, and of the run page when its event stream is unavailable (the contract says 2 s). */
 export const pollPeriodMs = 2000;
 
-/** HTTP for runs: estimate, launch, list, detail, cancel and live progress. */
+/** HTTP for runs: estimate, launch, list, detail, cancel and live progress (routes declared in shared/api/runs.ts). */
 @Injectable({ providedIn: 'root' })
 export class RunsApi {
   private readonly http = inject(HttpClient);
@@ -109,28 +44,28 @@ export class RunsApi {
   /** Replaced in specs; null when the browser has no EventSource, which means polling. */
   eventSourceFactory: EventSourceFactory | null = browserEventSource;
 
-  estimate(groupId: string, request: Omit<RunRequest, 'note'>): Observable<RunEstimate> {
-    return this.http.post<RunEstimate>(`${base(groupId)}/runs/estimate`, request);
+  estimate(groupId: string, request: RunRequest): Observable<RunEstimate> {
+    return this.http.post(`${base(groupId)}/runs/estimate`, request).pipe(parseAnswer(estimateRunRoute, 'estimate'));
   }
 
   launch(groupId: string, request: RunRequest): Observable<Run> {
-    return this.http.post<Run>(`${base(groupId)}/runs`, request);
+    return this.http.post(`${base(groupId)}/runs`, request).pipe(parseAnswer(launchRunRoute, 'run'));
   }
 
-  list(groupId: string, query: RunListQuery = {}): Observable<{ items: Run[]; total: number }> {
+  list(groupId: string, query: RunListQuery = {}): Observable<RunList> {
     let params = new HttpParams();
     for (const [key, value] of Object.entries(query)) {
       if (value !== undefined && value !== '') params = params.set(key, String(value));
     }
-    return this.http.get<{ items: Run[]; total: number }>(`${base(groupId)}/runs`, { params });
+    return this.http.get(`${base(groupId)}/runs`, { params }).pipe(parseAnswer(listRunsRoute, 'list of runs'));
   }
 
   run(groupId: string, runId: string): Observable<RunDetail> {
-    return this.http.get<RunDetail>(`${base(groupId)}/runs/${encodeURIComponent(runId)}`);
+    return this.http.get(`${base(groupId)}/runs/${encodeURIComponent(runId)}`).pipe(parseAnswer(getRunRoute, 'run'));
   }
 
-  cancel(groupId: string, runId: string): Observable<void> {
-    return this.http.post<void>(`${base(groupId)}/runs/${encodeURIComponent(runId)}/cancel`, {});
+  cancel(groupId: string, runId: string): Observable<Run> {
+    return this.http.post(`${base(groupId)}/runs/${encodeURIComponent(runId)}/cancel`, {}).pipe(parseAnswer(cancelRunRoute, 'run'));
   }
 
   /**
@@ -149,7 +84,7 @@ export class RunsApi {
     const factory = this.eventSourceFactory;
     if (!factory) return poll().pipe(takeUntilDestroyed(this.destroyRef));
     const url = `${base(groupId)}/runs/${encodeURIComponent(runId)}/events`;
-    return progressEvents<RunUpdate>(factory, url).pipe(
+    return progressEvents(factory, url, runProgressEventSchema).pipe(
       switchMap((event) => (event === 'poll' ? poll() : of(event))),
       takeWhile((u) => !finishedStatuses.has(u.status), true),
       takeUntilDestroyed(this.destroyRef),

@@ -1,6 +1,6 @@
 import { E2_OVER_H_US, conductanceFactor, spectrumCurves } from './spectrum-curves';
 
-const base = { energies: [1, 2, 3], residual: [0, 0, 0] };
+const base = { energies: [1, 2, 3], residual: [0, 0, 0], reflection: null };
 
 describe('spectrumCurves', () => {
   it('draws a two-terminal pair that is equal both ways as one curve', () => {

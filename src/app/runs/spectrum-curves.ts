@@ -1,4 +1,4 @@
-import type { Spectrum } from './runs-api';
+import type { Spectrum } from '../../../shared/api/runs';
 
 /** What the spectrum chart plots: transmission T, or the conductance G from it (Landauer). */
 export type SpectrumQuantity = 'transmission' | 'conductance';

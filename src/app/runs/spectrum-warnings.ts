@@ -1,4 +1,4 @@
-import type { RunDetail } from './runs-api';
+import type { RunDetail } from '../../../shared/api/runs';
 
 /**
  * What a reader of the spectrum must know before trusting it, in plain words: the
@@ -8,7 +8,8 @@ import type { RunDetail } from './runs-api';
 export function spectrumWarnings(run: Pick<RunDetail, 'stats' | 'spectrum' | 'kind'>): string[] {
   const out: string[] = [];
   if (!run.spectrum) return out;
-  if (run.stats?.['spectrumBudgetExhausted'] === true) {
+  const stats = run.stats as Record<string, unknown> | null | undefined; // engine counters, an open record in the contract
+  if (stats?.['spectrumBudgetExhausted'] === true) {
     out.push(
       'The spectrum ran out of its refinement budget: narrow resonances may be missing from the curve or drawn too low.' +
         (run.kind === 'pole-search'

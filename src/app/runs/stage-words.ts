@@ -1,4 +1,4 @@
-import type { RunStatus } from './runs-api';
+import type { RunStatus } from '../../../shared/api/enums';
 
 /**
  * Plain words for the stage names a run reports: the engine's own (shared/engine/

@@ -1,8 +1,8 @@
 import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
 import { NgxEchartsDirective } from 'ngx-echarts';
 import { chartColours } from '../core/charts/chart-colours';
-import type { Spectrum } from './runs-api';
 import { type SpectrumView, transmissionOptions } from './transmission-options';
+import type { Spectrum } from '../../../shared/api/runs';
 
 /** The transmission spectrum of a run, with its poles marked on the energy axis. */
 @Component({

@@ -22,6 +22,7 @@ describe('transmission chart options', () => {
         { from: 1, to: 0 },
       ],
       residual: [0, 0],
+      reflection: null,
     };
     const named = transmissionOptions(spectrum, [], [], colours, ['source', 'drain']) as { series: { name: string }[] };
     expect(named.series.map((s) => s.name)).toEqual(['T(source ↔ drain)']);
@@ -30,7 +31,7 @@ describe('transmission chart options', () => {
   });
 
   it('adds the residual on a second (log) axis on request and draws G in its unit', () => {
-    const spectrum = { energies: [1, 2], transmission: [[0.1, 0.2]], pairs: [{ from: 0, to: 1 }], residual: [0, 3e-12] };
+    const spectrum = { energies: [1, 2], transmission: [[0.1, 0.2]], pairs: [{ from: 0, to: 1 }], residual: [0, 3e-12], reflection: null };
     const o = transmissionOptions(spectrum, [], [], colours, ['s', 'd'], { quantity: 'conductance', unit: '2e2/h', residual: true }) as {
       yAxis: { name: string; type: string }[];
       series: { name: string; yAxisIndex?: number; data: number[][] }[];

@@ -1,7 +1,7 @@
 import type { EChartsCoreOption } from 'echarts/core';
 import type { ChartColours } from '../core/charts/chart-colours';
-import type { Spectrum } from './runs-api';
 import { type ConductanceUnit, type SpectrumQuantity, conductanceUnitLabels, spectrumCurves } from './spectrum-curves';
+import type { Spectrum } from '../../../shared/api/runs';
 
 /** What else to draw: the conductance instead of T, the current-conservation residual on a second axis. */
 export interface SpectrumView {

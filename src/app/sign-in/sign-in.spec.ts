@@ -8,6 +8,7 @@ import { Auth } from '../core/auth/auth';
 import { authInterceptor } from '../core/auth/auth-interceptor';
 import { nextRequest, settle } from '../core/testing/next-request';
 import { SignIn } from './sign-in';
+import { demoSession } from '../core/testing/demo-session';
 
 @Component({ template: 'members page' })
 class MembersStub {}
@@ -78,11 +79,7 @@ describe('SignIn', () => {
   it('signs in and goes back to the page the user wanted', async () => {
     await harness.navigateByUrl('/sign-in?returnUrl=%2Fg%2Fharrow-lake%2Fmembers', SignIn);
     await submit('ada.admin@harrow-lake.example', 'poleward-demo');
-    (await nextRequest(mock, '/api/auth/sign-in')).flush({
-      user: { id: 'u1', email: 'ada.admin@harrow-lake.example', name: 'Ada Marlow' },
-      groups: [{ id: 'g1', name: 'Harrow Lake Mesoscopics Lab', slug: 'harrow-lake', role: 'admin' }],
-      csrfToken: 'c',
-    });
+    (await nextRequest(mock, '/api/auth/sign-in')).flush(demoSession('admin'));
     await settle();
     await harness.fixture.whenStable();
     expect(TestBed.inject(Router).url).toBe('/g/harrow-lake/members');
@@ -92,11 +89,7 @@ describe('SignIn', () => {
   it('ignores a return address that leads off the site', async () => {
     await harness.navigateByUrl('/sign-in?returnUrl=%2F%2Fevil.example%2F', SignIn);
     await submit('ada.admin@harrow-lake.example', 'poleward-demo');
-    (await nextRequest(mock, '/api/auth/sign-in')).flush({
-      user: { id: 'u1', email: 'ada.admin@harrow-lake.example', name: 'Ada Marlow' },
-      groups: [],
-      csrfToken: 'c',
-    });
+    (await nextRequest(mock, '/api/auth/sign-in')).flush({ ...demoSession('admin'), groups: [] });
     await settle();
     await harness.fixture.whenStable();
     expect(TestBed.inject(Router).url).toBe('/');

@@ -7,16 +7,20 @@ import {
   type StudyEstimate,
   type StudyRequest,
   type StudyStepDetail,
-  savedStepSchema,
-  studyDetailSchema,
-  studyEstimateSchema,
-  studyListSchema,
-  studyStepDetailSchema,
+  cancelStudyRoute,
+  createStudyRoute,
+  listStudiesRoute,
+  saveStudyStepRoute,
+  studyDetailRoute,
+  studyEstimateRoute,
+  type SavedStep,
+  studyStepRoute,
+  type studyListSchema,
 } from '../../../shared/api/studies';
 import { parseAnswer } from '../core/http/parse-answer';
 
 export type StudyList = z.infer<typeof studyListSchema>;
-export type SavedStep = z.infer<typeof savedStepSchema>;
+export type { SavedStep };
 
 /** Polling period of the study list and the study page while a study runs (the API has no event stream for studies). */
 export const studyPollMs = 2000;
@@ -27,34 +31,34 @@ export class StudiesApi {
   private readonly http = inject(HttpClient);
 
   estimate(groupId: string, request: StudyRequest): Observable<StudyEstimate> {
-    return this.http.post(`${base(groupId)}/studies/estimate`, request).pipe(parseAnswer(studyEstimateSchema, 'estimate'));
+    return this.http.post(`${base(groupId)}/studies/estimate`, request).pipe(parseAnswer(studyEstimateRoute, 'estimate'));
   }
 
   create(groupId: string, request: StudyRequest): Observable<StudyDetail> {
-    return this.http.post(`${base(groupId)}/studies`, request).pipe(parseAnswer(studyDetailSchema, 'study'));
+    return this.http.post(`${base(groupId)}/studies`, request).pipe(parseAnswer(createStudyRoute, 'study'));
   }
 
   list(groupId: string, page = 1, pageSize = 25): Observable<StudyList> {
     const params = new HttpParams().set('page', page).set('pageSize', pageSize);
-    return this.http.get(`${base(groupId)}/studies`, { params }).pipe(parseAnswer(studyListSchema, 'list of studies'));
+    return this.http.get(`${base(groupId)}/studies`, { params }).pipe(parseAnswer(listStudiesRoute, 'list of studies'));
   }
 
   study(groupId: string, studyId: string): Observable<StudyDetail> {
-    return this.http.get(`${base(groupId)}/studies/${encodeURIComponent(studyId)}`).pipe(parseAnswer(studyDetailSchema, 'study'));
+    return this.http.get(`${base(groupId)}/studies/${encodeURIComponent(studyId)}`).pipe(parseAnswer(studyDetailRoute, 'study'));
   }
 
   cancel(groupId: string, studyId: string): Observable<StudyDetail> {
-    return this.http.post(`${base(groupId)}/studies/${encodeURIComponent(studyId)}/cancel`, {}).pipe(parseAnswer(studyDetailSchema, 'study'));
+    return this.http.post(`${base(groupId)}/studies/${encodeURIComponent(studyId)}/cancel`, {}).pipe(parseAnswer(cancelStudyRoute, 'study'));
   }
 
   step(groupId: string, studyId: string, index: number): Observable<StudyStepDetail> {
-    return this.http.get(`${base(groupId)}/studies/${encodeURIComponent(studyId)}/steps/${index}`).pipe(parseAnswer(studyStepDetailSchema, 'step'));
+    return this.http.get(`${base(groupId)}/studies/${encodeURIComponent(studyId)}/steps/${index}`).pipe(parseAnswer(studyStepRoute, 'step'));
   }
 
   saveStep(groupId: string, studyId: string, index: number): Observable<SavedStep> {
     return this.http
       .post(`${base(groupId)}/studies/${encodeURIComponent(studyId)}/steps/${index}/save`, {})
-      .pipe(parseAnswer(savedStepSchema, 'saved version'));
+      .pipe(parseAnswer(saveStudyStepRoute, 'saved version'));
   }
 
   /** The export link (a plain GET the browser downloads with the session cookie). */

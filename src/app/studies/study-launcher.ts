@@ -19,11 +19,12 @@ import { fieldError } from '../core/errors/field-error';
 import { toProblem } from '../core/errors/problem';
 import { CurrentGroup } from '../core/group/current-group';
 import { injectCanDesign } from '../core/group/design-permission';
-import { type ModelDetail, type ModelSummary, ModelsApi } from '../core/api/models-api';
+import { ModelsApi } from '../core/api/models-api';
 import { type ParameterPath, parameterPaths } from './parameter-paths';
 import { expandValues, parseParameterValues } from './parameter-values';
 import { StudiesApi } from './studies-api';
 import { type StudyFormValue, studyRequest } from './study-request';
+import type { ModelDetail, ModelSummary } from '../../../shared/api/models';
 
 type JitterKind = 'dimension' | 'lead-width' | 'gate-offset';
 

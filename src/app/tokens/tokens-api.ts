@@ -1,20 +1,8 @@
 import { HttpClient } from '@angular/common/http';
 import { Injectable, inject } from '@angular/core';
-import { Observable, map } from 'rxjs';
-// zod/mini: the classic build pulls ~450 kB (all locales) into the first chunk.
-import * as z from 'zod/mini';
-
-export const apiTokenSchema = z.object({
-  id: z.string(),
-  name: z.string(),
-  createdAt: z.string(),
-  lastUsedAt: z.optional(z.nullable(z.string())),
-});
-export type ApiToken = z.infer<typeof apiTokenSchema>;
-
-/** The answer to creating a token: the only time the secret itself is sent. */
-export const createdTokenSchema = z.extend(apiTokenSchema, { token: z.string() });
-export type CreatedToken = z.infer<typeof createdTokenSchema>;
+import type { Observable } from 'rxjs';
+import { type ApiToken, type CreatedApiToken, createTokenRoute, listTokensRoute, revokeTokenRoute } from '../../../shared/api/account';
+import { emptyAnswer, parseAnswer } from '../core/http/parse-answer';
 
 /** HTTP for the user's personal API tokens. */
 @Injectable({ providedIn: 'root' })
@@ -22,14 +10,15 @@ export class TokensApi {
   private readonly http = inject(HttpClient);
 
   list(): Observable<ApiToken[]> {
-    return this.http.get('/api/tokens').pipe(map((body) => z.array(apiTokenSchema).parse(body)));
+    return this.http.get('/api/tokens').pipe(parseAnswer(listTokensRoute, 'list of tokens'));
   }
 
-  create(name: string): Observable<CreatedToken> {
-    return this.http.post('/api/tokens', { name }).pipe(map((body) => createdTokenSchema.parse(body)));
+  /** The answer to creating a token: the only time the secret itself is sent. */
+  create(name: string): Observable<CreatedApiToken> {
+    return this.http.post('/api/tokens', { name }).pipe(parseAnswer(createTokenRoute, 'new token'));
   }
 
-  revoke(id: string): Observable<unknown> {
-    return this.http.delete(`/api/tokens/${encodeURIComponent(id)}`);
+  revoke(id: string): Observable<void> {
+    return this.http.delete(`/api/tokens/${encodeURIComponent(id)}`).pipe(emptyAnswer(revokeTokenRoute));
   }
 }

@@ -7,6 +7,7 @@ import { RouterTestingHarness } from '@angular/router/testing';
 import { authInterceptor } from '../core/auth/auth-interceptor';
 import { nextRequest, settle } from '../core/testing/next-request';
 import { Tokens } from './tokens';
+import { specId } from '../core/testing/answer-fixtures';
 
 @Component({ template: 'elsewhere' })
 class Elsewhere {}
@@ -46,8 +47,8 @@ describe('Tokens', () => {
     const req = await nextRequest(mock, '/api/tokens');
     expect(req.request.method).toBe('POST');
     expect(req.request.body).toEqual({ name: 'sweep script' });
-    req.flush({ id: 't1', name: 'sweep script', token: 'pwt_secret123', createdAt: '2026-12-01T10:00:00Z' }, { status: 201, statusText: 'Created' });
-    (await nextRequest(mock, '/api/tokens')).flush([{ id: 't1', name: 'sweep script', createdAt: '2026-12-01T10:00:00Z' }]);
+    req.flush({ id: specId('t1'), name: 'sweep script', token: 'pwt_secret123', createdAt: '2026-12-01T10:00:00Z' }, { status: 201, statusText: 'Created' });
+    (await nextRequest(mock, '/api/tokens')).flush([{ id: specId('t1'), name: 'sweep script', createdAt: '2026-12-01T10:00:00Z', lastUsedAt: null }]);
     await settle();
     harness.detectChanges();
 
@@ -59,7 +60,7 @@ describe('Tokens', () => {
     // Coming back to the page lists the token by name only: the secret is gone.
     await harness.navigateByUrl('/elsewhere', Elsewhere);
     await harness.navigateByUrl('/tokens', Tokens);
-    (await nextRequest(mock, '/api/tokens')).flush([{ id: 't1', name: 'sweep script', createdAt: '2026-12-01T10:00:00Z' }]);
+    (await nextRequest(mock, '/api/tokens')).flush([{ id: specId('t1'), name: 'sweep script', createdAt: '2026-12-01T10:00:00Z', lastUsedAt: null }]);
     await settle();
     harness.detectChanges();
     expect(harness.routeNativeElement!.textContent).toContain('sweep script');

@@ -15,7 +15,8 @@ import { confirmAction } from '../core/confirm/confirm-dialog';
 import { ErrorReport } from '../core/errors/error-report';
 import { fieldError } from '../core/errors/field-error';
 import { curlExample } from './curl-example';
-import { type ApiToken, type CreatedToken, TokensApi } from './tokens-api';
+import type { ApiToken, CreatedApiToken } from '../../../shared/api/account';
+import { TokensApi } from './tokens-api';
 
 /** Personal API tokens for scripts: create (the secret is shown once), list, revoke. */
 @Component({
@@ -38,7 +39,7 @@ export class Tokens {
   private readonly formDirective = viewChild(FormGroupDirective);
   protected readonly busy = signal(false);
   /** The just-created token; kept only in memory, gone on navigation. */
-  protected readonly created = signal<CreatedToken | null>(null);
+  protected readonly created = signal<CreatedApiToken | null>(null);
   protected readonly curl = computed(() => {
     const c = this.created();
     return c ? curlExample(this.origin, c.token) : '';

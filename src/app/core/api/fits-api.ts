@@ -1,117 +1,30 @@
 import { HttpClient } from '@angular/common/http';
 import { Injectable, inject } from '@angular/core';
 import { Observable, of, switchMap, takeWhile, timer } from 'rxjs';
-import type { FittedPeak } from '../../../../shared/engine/fit';
+import type { z } from 'zod';
+import {
+  type FitDetail,
+  type FitListItem,
+  type FitProgress,
+  type TraceDetail,
+  type TracePreview,
+  type TraceSummary,
+  createFitRoute,
+  type fitBody,
+  fitProgressSchema,
+  getFitRoute,
+  getTraceRoute,
+  listFitsRoute,
+  listTracesRoute,
+  previewTraceRoute,
+  uploadTraceRoute,
+} from '../../../../shared/api/fits';
+import { type Spectrum, getRunSpectrumRoute } from '../../../../shared/api/runs';
 import { browserEventSource, progressEvents, type EventSourceFactory } from '../events/progress-events';
+import { parseAnswer } from '../http/parse-answer';
 
-export type Lineshape = 'bw' | 'fano' | 'thermal' | 'thermal-fano';
-
-export interface TraceSummary {
-  id: string;
-  deviceName: string;
-  fileName: string;
-  temperatureMK: number;
-  notes: string;
-  modelId: string | null;
-  modelName: string | null;
-  columns: string[];
-  selection: Record<string, unknown>;
-  points: number;
-  createdBy: string | null;
-  createdAt: string;
-}
-
-export interface TraceDetail extends TraceSummary {
-  energies: number[];
-  transmission: number[];
-}
-
-export interface TracePreview {
-  columns: string[];
-  hasHeader: boolean;
-  delimiter: string;
-  rowCount: number;
-  rows: { line: number; cells: string[] }[];
-}
-
-export interface FittedParameter {
-  name: string;
-  role: string;
-  peak: number | null;
-  unit: string;
-  value: number;
-  error: number | null;
-  atBound: 'lower' | 'upper' | null;
-}
-
-/** One fitted peak with its standard errors: the engine's own type (shared/engine/fit.ts). */
-export type { FittedPeak } from '../../../../shared/engine/fit';
-
-export interface FitResult {
-  lineshape: Lineshape;
-  background: 'constant' | 'linear';
-  temperatureMK: number | null;
-  parameters: FittedParameter[];
-  covariance: number[][];
-  chiSquare: number;
-  reducedChiSquare: number;
-  degreesOfFreedom: number;
-  points: number;
-  iterations: number;
-  converged: boolean;
-  peaks: FittedPeak[];
-  warnings: { code: string; message: string }[];
-  curve: { x: number[]; y: number[]; fit: number[]; background: number[]; components: number[][]; residuals: number[] };
-}
-
-export interface PoleComparison {
-  peak: number;
-  pole: { id: string; energy: number; width: number; petermann: number | null; overlapping: boolean; runId: string | null; modelVersion: number } | null;
-  energyPercent: number | null;
-  energySigmas: number | null;
-  widthPercent: number | null;
-  widthSigmas: number | null;
-  positionComparable: boolean;
-  warnings: string[];
-}
-
-export interface FitDetail {
-  id: string;
-  runId: string | null;
-  traceId: string | null;
-  modelId: string | null;
-  modelName: string | null;
-  request: Record<string, unknown>;
-  status: 'queued' | 'running' | 'completed' | 'failed';
-  progressFraction: number | null;
-  error: string | null;
-  comparison: PoleComparison[] | null;
-  deviceName: string | null;
-  createdBy: string | null;
-  createdAt: string;
-  result?: FitResult | null;
-  peaks?: FittedPeak[] | null;
-  catalogueIds?: string[];
-}
-
-export interface FitRequest {
-  source: { kind: 'run'; runId: string; pair: number; from: number; to: number } | { kind: 'trace'; traceId: string; from?: number; to?: number };
-  lineshape: Lineshape;
-  background: 'constant' | 'linear';
-  peaks: number;
-  temperatureMK?: number;
-  modelId?: string;
-  hints?: { energy: number; width?: number }[];
-}
-
-/** One message of a fit's event stream (GET /fits/:id/events). */
-export interface FitProgress {
-  id: string;
-  status: FitDetail['status'];
-  progressFraction: number | null;
-  attempt: number;
-  error: string | null;
-}
+/** What POST /fits takes (defaults may be left out). */
+export type FitRequest = z.input<typeof fitBody>;
 
 const finished = (status: FitDetail['status']) => status === 'completed' || status === 'failed';
 const pollPeriodMs = 1000;
@@ -126,36 +39,41 @@ export class FitsApi {
   eventSourceFactory: EventSourceFactory | null = browserEventSource;
 
   traces(groupId: string): Observable<TraceSummary[]> {
-    return this.http.get<TraceSummary[]>(`${base(groupId)}/traces`);
+    return this.http.get(`${base(groupId)}/traces`).pipe(parseAnswer(listTracesRoute, 'list of traces'));
   }
 
   trace(groupId: string, id: string): Observable<TraceDetail> {
-    return this.http.get<TraceDetail>(`${base(groupId)}/traces/${encodeURIComponent(id)}`);
+    return this.http.get(`${base(groupId)}/traces/${encodeURIComponent(id)}`).pipe(parseAnswer(getTraceRoute, 'trace'));
   }
 
   preview(groupId: string, file: File): Observable<TracePreview> {
     const form = new FormData();
     form.append('file', file);
-    return this.http.post<TracePreview>(`${base(groupId)}/traces/preview`, form);
+    return this.http.post(`${base(groupId)}/traces/preview`, form).pipe(parseAnswer(previewTraceRoute, 'trace preview'));
   }
 
   upload(groupId: string, file: File, fields: Record<string, string>): Observable<TraceDetail> {
     const form = new FormData();
     for (const [k, v] of Object.entries(fields)) form.append(k, v);
     form.append('file', file);
-    return this.http.post<TraceDetail>(`${base(groupId)}/traces`, form);
+    return this.http.post(`${base(groupId)}/traces`, form).pipe(parseAnswer(uploadTraceRoute, 'trace'));
   }
 
-  fits(groupId: string): Observable<FitDetail[]> {
-    return this.http.get<FitDetail[]>(`${base(groupId)}/fits`);
+  /** The transmission a run computed, to fit its peaks. */
+  runSpectrum(groupId: string, runId: string): Observable<Spectrum> {
+    return this.http.get(`${base(groupId)}/runs/${encodeURIComponent(runId)}/spectrum`).pipe(parseAnswer(getRunSpectrumRoute, 'spectrum'));
+  }
+
+  fits(groupId: string): Observable<FitListItem[]> {
+    return this.http.get(`${base(groupId)}/fits`).pipe(parseAnswer(listFitsRoute, 'list of fits'));
   }
 
   fit(groupId: string, id: string): Observable<FitDetail> {
-    return this.http.get<FitDetail>(`${base(groupId)}/fits/${encodeURIComponent(id)}`);
+    return this.http.get(`${base(groupId)}/fits/${encodeURIComponent(id)}`).pipe(parseAnswer(getFitRoute, 'fit'));
   }
 
   create(groupId: string, request: FitRequest): Observable<FitDetail> {
-    return this.http.post<FitDetail>(`${base(groupId)}/fits`, request);
+    return this.http.post(`${base(groupId)}/fits`, request).pipe(parseAnswer(createFitRoute, 'fit'));
   }
 
   /**
@@ -174,7 +92,7 @@ export class FitsApi {
     if (!factory) return poll();
     // A finished status is not passed on: the stream's `done` follows it and the GET after it brings the result.
     const url = `${base(groupId)}/fits/${encodeURIComponent(id)}/events`;
-    return progressEvents<FitProgress>(factory, url, (data) => !finished(data.status)).pipe(
+    return progressEvents(factory, url, fitProgressSchema, (data) => !finished(data.status)).pipe(
       switchMap((event) => (event === 'poll' ? poll() : of(event))),
       takeWhile((u) => !finished(u.status), true),
     );

@@ -1,31 +1,18 @@
 import { HttpClient } from '@angular/common/http';
 import { Injectable, inject } from '@angular/core';
-import { Observable, map } from 'rxjs';
-// zod/mini: the classic build pulls ~450 kB (all locales) into the first chunk.
-import * as z from 'zod/mini';
-import { roleSchema } from '../auth/role-schema';
-import type { Role } from '../auth/session';
-
-export const memberSchema = z.object({
-  userId: z.string(),
-  email: z.string(),
-  name: z.string(),
-  role: roleSchema,
-  joinedAt: z.string(),
-});
-export type Member = z.infer<typeof memberSchema>;
-
-/** A pending invitation; the server may add fields, only these are shown. */
-export const pendingInvitationSchema = z.object({
-  id: z.string(),
-  email: z.string(),
-  role: roleSchema,
-  createdAt: z.optional(z.string()),
-  expiresAt: z.optional(z.string()),
-  invitedBy: z.optional(z.nullable(z.object({ id: z.string(), name: z.string() }))),
-  status: z.optional(z.string()),
-});
-export type PendingInvitation = z.infer<typeof pendingInvitationSchema>;
+import type { Observable } from 'rxjs';
+import type { Role } from '../../../../shared/api/enums';
+import {
+  type Invitation,
+  type Member,
+  changeMemberRoleRoute,
+  inviteRoute,
+  listInvitationsRoute,
+  listMembersRoute,
+  removeMemberRoute,
+  revokeInvitationRoute,
+} from '../../../../shared/api/groups';
+import { emptyAnswer, parseAnswer } from '../http/parse-answer';
 
 /** HTTP for a group's members and its invitations (writes are admin-only on the server). */
 @Injectable({ providedIn: 'root' })
@@ -33,26 +20,30 @@ export class MembersApi {
   private readonly http = inject(HttpClient);
 
   members(groupId: string): Observable<Member[]> {
-    return this.http.get(`/api/groups/${encodeURIComponent(groupId)}/members`).pipe(map((body) => z.array(memberSchema).parse(body)));
+    return this.http.get(`/api/groups/${encodeURIComponent(groupId)}/members`).pipe(parseAnswer(listMembersRoute, 'list of members'));
   }
 
-  changeRole(groupId: string, userId: string, role: Role): Observable<unknown> {
-    return this.http.patch(`/api/groups/${encodeURIComponent(groupId)}/members/${encodeURIComponent(userId)}`, { role });
+  changeRole(groupId: string, userId: string, role: Role): Observable<Member> {
+    return this.http
+      .patch(`/api/groups/${encodeURIComponent(groupId)}/members/${encodeURIComponent(userId)}`, { role })
+      .pipe(parseAnswer(changeMemberRoleRoute, 'member'));
   }
 
-  remove(groupId: string, userId: string): Observable<unknown> {
-    return this.http.delete(`/api/groups/${encodeURIComponent(groupId)}/members/${encodeURIComponent(userId)}`);
+  remove(groupId: string, userId: string): Observable<void> {
+    return this.http.delete(`/api/groups/${encodeURIComponent(groupId)}/members/${encodeURIComponent(userId)}`).pipe(emptyAnswer(removeMemberRoute));
   }
 
-  invitations(groupId: string): Observable<PendingInvitation[]> {
-    return this.http.get(`/api/groups/${encodeURIComponent(groupId)}/invitations`).pipe(map((body) => z.array(pendingInvitationSchema).parse(body)));
+  invitations(groupId: string): Observable<Invitation[]> {
+    return this.http.get(`/api/groups/${encodeURIComponent(groupId)}/invitations`).pipe(parseAnswer(listInvitationsRoute, 'list of invitations'));
   }
 
-  invite(groupId: string, email: string, role: Role): Observable<unknown> {
-    return this.http.post(`/api/groups/${encodeURIComponent(groupId)}/invitations`, { email, role });
+  invite(groupId: string, email: string, role: Role): Observable<Invitation> {
+    return this.http.post(`/api/groups/${encodeURIComponent(groupId)}/invitations`, { email, role }).pipe(parseAnswer(inviteRoute, 'invitation'));
   }
 
-  revokeInvitation(groupId: string, invitationId: string): Observable<unknown> {
-    return this.http.delete(`/api/groups/${encodeURIComponent(groupId)}/invitations/${encodeURIComponent(invitationId)}`);
+  revokeInvitation(groupId: string, invitationId: string): Observable<void> {
+    return this.http
+      .delete(`/api/groups/${encodeURIComponent(groupId)}/invitations/${encodeURIComponent(invitationId)}`)
+      .pipe(emptyAnswer(revokeInvitationRoute));
   }
 }

@@ -1,8 +1,8 @@
 import { HttpClient } from '@angular/common/http';
 import { Injectable, inject } from '@angular/core';
-import { Observable, map } from 'rxjs';
-import { readSession } from './read-session';
-import type { Session } from './session';
+import type { Observable } from 'rxjs';
+import { type Session, sessionRoute, signInRoute, signOutRoute } from '../../../../shared/api/auth';
+import { emptyAnswer, parseAnswer } from '../http/parse-answer';
 
 /** HTTP for signing in and out and for the current session. */
 @Injectable({ providedIn: 'root' })
@@ -10,14 +10,14 @@ export class AuthApi {
   private readonly http = inject(HttpClient);
 
   session(): Observable<Session> {
-    return this.http.get('/api/auth/session').pipe(map((body) => readSession(body)));
+    return this.http.get('/api/auth/session').pipe(parseAnswer(sessionRoute, 'session'));
   }
 
   signIn(email: string, password: string): Observable<Session> {
-    return this.http.post('/api/auth/sign-in', { email, password }).pipe(map((body) => readSession(body)));
+    return this.http.post('/api/auth/sign-in', { email, password }).pipe(parseAnswer(signInRoute, 'session'));
   }
 
   signOut(): Observable<void> {
-    return this.http.post<void>('/api/auth/sign-out', {});
+    return this.http.post('/api/auth/sign-out', {}).pipe(emptyAnswer(signOutRoute));
   }
 }

@@ -6,6 +6,7 @@ import { Router, provideRouter } from '@angular/router';
 import { authGuard } from './auth-guard';
 import { authInterceptor } from './auth-interceptor';
 import { nextRequest } from '../testing/next-request';
+import { demoSession } from '../testing/demo-session';
 
 @Component({ selector: 'pw-secret-stub', template: 'secret page' })
 class Secret {}
@@ -45,11 +46,7 @@ describe('authGuard', () => {
 
   it('lets a signed-in user through after asking the server once', async () => {
     const navigation = router.navigateByUrl('/tokens');
-    (await nextRequest(mock, '/api/auth/session')).flush({
-      user: { id: 'u1', email: 'vic.viewer@harrow-lake.example', name: 'Victor Sandoval' },
-      groups: [{ id: 'g1', name: 'Harrow Lake Mesoscopics Lab', slug: 'harrow-lake', role: 'viewer' }],
-      csrfToken: 'c',
-    });
+    (await nextRequest(mock, '/api/auth/session')).flush(demoSession('viewer'));
     expect(await navigation).toBe(true);
     expect(router.url).toBe('/tokens');
 

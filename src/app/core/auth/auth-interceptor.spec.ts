@@ -6,7 +6,7 @@ import { Router, provideRouter } from '@angular/router';
 import { firstValueFrom } from 'rxjs';
 import { Auth } from './auth';
 import { authInterceptor } from './auth-interceptor';
-import type { Session } from './session';
+import type { Session } from '../../../../shared/api/auth';
 
 @Component({ template: '' })
 class Blank {}

@@ -2,7 +2,7 @@ import { HttpErrorResponse } from '@angular/common/http';
 import { Injectable, computed, inject, signal } from '@angular/core';
 import { firstValueFrom } from 'rxjs';
 import { AuthApi } from './auth-api';
-import type { Session } from './session';
+import type { Session } from '../../../../shared/api/auth';
 
 /**
  * The signed-in session as signals. `undefined` means "not asked yet", `null` means

@@ -1,4 +1,4 @@
-import type { Role } from './session';
+import type { Role } from '../../../../shared/api/enums';
 
 /** The words shown for each role, with what it may do, for selects and lists. */
 export const roleLabel: Record<Role, string> = {

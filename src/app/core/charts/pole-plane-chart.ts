@@ -1,5 +1,7 @@
 import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
 import { NgxEchartsDirective } from 'ngx-echarts';
+import type { Run } from '../../../../shared/api/runs';
+import { searchedWindow } from '../format/window-text';
 import { chartColours } from './chart-colours';
 import { type PlanePole, polePlaneOptions } from './pole-plane-options';
 import { poleWidthOptions } from './pole-width-options';
@@ -23,7 +25,8 @@ import { poleWidthOptions } from './pole-width-options';
 export class PolePlaneChart {
   readonly poles = input.required<readonly PlanePole[]>();
   readonly thresholds = input<readonly number[]>([]);
-  readonly window = input<{ emin: number; emax: number; gammaMax?: number } | null>(null);
+  /** The run's window as the API sends it (emin, emax and gammaMax or points). */
+  readonly window = input<Run['window'] | null>(null);
   readonly highlightId = input<string | null>(null);
   /** The model's lattice-validity limit in the poles' unit; poles above it carry `aboveLimit`. */
   readonly validityLimit = input<number | null>(null);
@@ -36,7 +39,7 @@ export class PolePlaneChart {
     (this.view() === 'width' ? poleWidthOptions : polePlaneOptions)({
       poles: this.poles(),
       thresholds: this.thresholds(),
-      window: this.window(),
+      window: searchedWindow(this.window()),
       highlightId: this.highlightId(),
       validityLimit: this.validityLimit(),
       unit: this.unit(),

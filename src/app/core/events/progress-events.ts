@@ -1,4 +1,5 @@
 import { Observable } from 'rxjs';
+import type { z } from 'zod';
 
 /** Creates an EventSource; a seam so specs can hand in a fake one (jsdom has none). */
 export type EventSourceFactory = (url: string) => EventSource;
@@ -9,11 +10,17 @@ export const browserEventSource: EventSourceFactory | null =
 
 /**
  * A long job's server-sent event stream (server/http/progress-stream.ts) as an observable
- * of its `progress` payloads, ending in 'poll': after `done` one GET fetches the exact final
+ * of its `progress` payloads, each parsed with its schema from shared/api, ending in 'poll': after `done` one GET fetches the exact final
  * state, and after a stream error polling takes over, so both cases end the same way.
  * `pass` decides which payloads go on (a fit leaves its final one to that GET).
  */
-export function progressEvents<T>(factory: EventSourceFactory, url: string, pass: (data: T) => boolean = () => true): Observable<T | 'poll'> {
+export function progressEvents<S extends z.ZodType>(
+  factory: EventSourceFactory,
+  url: string,
+  schema: S,
+  pass: (data: z.output<S>) => boolean = () => true,
+): Observable<z.output<S> | 'poll'> {
+  type T = z.output<S>;
   return new Observable<T | 'poll'>((subscriber) => {
     const source = factory(url);
     const handOver = () => {
@@ -22,13 +29,15 @@ export function progressEvents<T>(factory: EventSourceFactory, url: string, pass
       subscriber.complete();
     };
     source.addEventListener('progress', (e: Event) => {
-      let data: T;
+      let parsed: unknown;
       try {
-        data = JSON.parse((e as MessageEvent<string>).data) as T;
+        parsed = JSON.parse((e as MessageEvent<string>).data);
       } catch {
         return; // A malformed message is skipped; the next one or the final GET corrects it.
       }
-      if (pass(data)) subscriber.next(data);
+      const data = schema.safeParse(parsed);
+      if (!data.success) return; // same: the final GET, parsed with its answer schema, reports a real mismatch
+      if (pass(data.data)) subscriber.next(data.data);
     });
     source.addEventListener('done', handOver);
     source.addEventListener('error', handOver);

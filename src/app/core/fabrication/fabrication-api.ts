@@ -2,17 +2,28 @@ import { HttpClient, HttpParams } from '@angular/common/http';
 import { Injectable, inject } from '@angular/core';
 import { type Observable, map } from 'rxjs';
 import type { z } from 'zod';
-import type {
-  CatalogueImportResult,
-  failedNotificationListSchema,
-  FabricationItem,
-  FabricationRecord,
-  NotificationKind,
-  NotificationSettings,
-  ResonanceComment,
-  transitionBodySchema,
+import {
+  type CatalogueImportResult,
+  type FabricationItem,
+  type FailedNotification,
+  type FabricationRecord,
+  type NotificationKind,
+  type NotificationSettings,
+  type ResonanceComment,
+  addCommentRoute,
+  getFabricationRoute,
+  getNotificationSettingsRoute,
+  importCatalogueRoute,
+  listCommentsRoute,
+  listFabricationRoute,
+  listFailedNotificationsRoute,
+  retryFailedNotificationRoute,
+  moveFabricationRoute,
+  setNotificationSettingsRoute,
+  type transitionBodySchema,
 } from '../../../../shared/api/fabrication';
 import type { FabricationState } from '../../../../shared/fabrication/fabrication-states';
+import { parseAnswer } from '../http/parse-answer';
 
 /** What a move sends (defaults may be left out). */
 export type TransitionRequest = z.input<typeof transitionBodySchema>;
@@ -28,48 +39,65 @@ export class FabricationApi {
 
   list(groupId: string, states: FabricationState[]): Observable<FabricationItem[]> {
     const params = new HttpParams().set('state', states.join(','));
-    return this.http.get<{ items: FabricationItem[] }>(`${this.base(groupId)}/fabrication`, { params }).pipe(map((b) => b.items));
+    return this.http.get(`${this.base(groupId)}/fabrication`, { params }).pipe(
+      parseAnswer(listFabricationRoute, 'fabrication list'),
+      map((b) => b.items),
+    );
   }
 
   record(groupId: string, resonanceId: string): Observable<FabricationRecord> {
-    return this.http.get<FabricationRecord>(`${this.base(groupId)}/resonances/${encodeURIComponent(resonanceId)}/fabrication`);
+    return this.http
+      .get(`${this.base(groupId)}/resonances/${encodeURIComponent(resonanceId)}/fabrication`)
+      .pipe(parseAnswer(getFabricationRoute, 'fabrication record'));
   }
 
   move(groupId: string, resonanceId: string, body: TransitionRequest): Observable<FabricationRecord> {
-    return this.http.post<FabricationRecord>(`${this.base(groupId)}/resonances/${encodeURIComponent(resonanceId)}/fabrication`, body);
+    return this.http
+      .post(`${this.base(groupId)}/resonances/${encodeURIComponent(resonanceId)}/fabrication`, body)
+      .pipe(parseAnswer(moveFabricationRoute, 'fabrication record'));
   }
 
   comments(groupId: string, resonanceId: string): Observable<ResonanceComment[]> {
     return this.http
-      .get<{ items: ResonanceComment[] }>(`${this.base(groupId)}/resonances/${encodeURIComponent(resonanceId)}/comments`)
-      .pipe(map((b) => b.items));
+      .get(`${this.base(groupId)}/resonances/${encodeURIComponent(resonanceId)}/comments`)
+      .pipe(
+        parseAnswer(listCommentsRoute, 'comments'),
+        map((b) => b.items),
+      );
   }
 
   comment(groupId: string, resonanceId: string, body: string, mentions: string[]): Observable<ResonanceComment> {
-    return this.http.post<ResonanceComment>(`${this.base(groupId)}/resonances/${encodeURIComponent(resonanceId)}/comments`, { body, mentions });
+    return this.http
+      .post(`${this.base(groupId)}/resonances/${encodeURIComponent(resonanceId)}/comments`, { body, mentions })
+      .pipe(parseAnswer(addCommentRoute, 'comment'));
   }
 
   /** Admin only: e-mails that could not be sent after every retry. */
-  failedNotifications(groupId: string): Observable<z.infer<typeof failedNotificationListSchema>['items']> {
-    return this.http.get<z.infer<typeof failedNotificationListSchema>>(`${this.base(groupId)}/notifications/failed`).pipe(map((b) => b.items));
+  failedNotifications(groupId: string): Observable<FailedNotification[]> {
+    return this.http.get(`${this.base(groupId)}/notifications/failed`).pipe(
+      parseAnswer(listFailedNotificationsRoute, 'failed notifications'),
+      map((b) => b.items),
+    );
   }
 
   /** Admin only: queue a failed e-mail again (after the server's mail settings were fixed). */
   retryNotification(groupId: string, notificationId: string): Observable<{ id: string; status: 'queued' }> {
-    return this.http.post<{ id: string; status: 'queued' }>(`${this.base(groupId)}/notifications/${encodeURIComponent(notificationId)}/retry`, {});
+    return this.http
+      .post(`${this.base(groupId)}/notifications/${encodeURIComponent(notificationId)}/retry`, {})
+      .pipe(parseAnswer(retryFailedNotificationRoute, 'notification sent again'));
   }
 
   settings(): Observable<NotificationSettings> {
-    return this.http.get<NotificationSettings>('/api/account/notifications');
+    return this.http.get('/api/account/notifications').pipe(parseAnswer(getNotificationSettingsRoute, 'notification settings'));
   }
 
   saveSettings(enabled: Partial<Record<NotificationKind, boolean>>): Observable<NotificationSettings> {
-    return this.http.put<NotificationSettings>('/api/account/notifications', { enabled });
+    return this.http.put('/api/account/notifications', { enabled }).pipe(parseAnswer(setNotificationSettingsRoute, 'notification settings'));
   }
 
   importCatalogue(groupId: string, file: File): Observable<CatalogueImportResult> {
     const form = new FormData();
     form.append('file', file, file.name);
-    return this.http.post<CatalogueImportResult>(`${this.base(groupId)}/catalogue/import`, form);
+    return this.http.post(`${this.base(groupId)}/catalogue/import`, form).pipe(parseAnswer(importCatalogueRoute, 'import result'));
   }
 }

@@ -2,7 +2,7 @@ import { provideHttpClient } from '@angular/common/http';
 import { HttpTestingController, provideHttpClientTesting } from '@angular/common/http/testing';
 import { TestBed } from '@angular/core/testing';
 import type { FabricationRecord } from '../../../../shared/api/fabrication';
-import type { Role } from '../auth/session';
+import type { Role } from '../../../../shared/api/enums';
 import { provideFakeCurrentGroup } from '../testing/fake-current-group';
 import { settle } from '../testing/next-request';
 import { FabricationPanel } from './fabrication-panel';

@@ -14,10 +14,11 @@ import { transitionOf, type FabricationAction } from '../../../../shared/fabrica
 import { ErrorReport } from '../errors/error-report';
 import { CurrentGroup } from '../group/current-group';
 import { formatEnergy, formatWidth, significant } from '../format/energy-format';
-import { MembersApi, type Member } from '../api/members-api';
+import { MembersApi } from '../api/members-api';
 import { FitsApi } from '../api/fits-api';
 import { FabricationApi, type TransitionRequest } from './fabrication-api';
 import { STATE_ICONS, stateLabel } from './state-label';
+import type { Member } from '../../../../shared/api/groups';
 
 /** A number typed in a form field, or null when empty or not a number. */
 function numberOf(text: string): number | null {

@@ -1,4 +1,4 @@
-import type { RunCertificate } from '../answers/run-certificate';
+import type { RunCertificate } from '../../../../shared/api/runs';
 
 /**
  * The run's certificate in plain words. A piece is certified when the winding
@@ -23,7 +23,9 @@ export function certificateInWords(certificate: RunCertificate | null): { headli
   const problems = failed.map(({ p, k }) => {
     const range = `${p.emin.toFixed(3)}–${p.emax.toFixed(3)} meV`;
     const why =
-      p.windingNumber !== p.polesFound
+      p.windingNumber === null
+        ? `the winding number could not be settled (${p.polesFound} ${p.polesFound === 1 ? 'pole' : 'poles'} found), so poles may be missing`
+        : p.windingNumber !== p.polesFound
         ? `winding number ${p.windingNumber} but ${p.polesFound} ${p.polesFound === 1 ? 'pole' : 'poles'} found, so ${Math.abs(p.windingNumber - p.polesFound)} may be missing or spurious`
         : 'not certified';
     return `Piece ${k + 1} (${range}): ${why}${p.note ? ` (${p.note})` : ''}.`;

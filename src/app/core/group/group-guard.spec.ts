@@ -4,6 +4,7 @@ import { Component } from '@angular/core';
 import { TestBed } from '@angular/core/testing';
 import { Router, provideRouter } from '@angular/router';
 import { demoSession } from '../testing/demo-session';
+import { specId } from '../testing/answer-fixtures';
 import { Auth } from '../auth/auth';
 import { CurrentGroup } from './current-group';
 import { groupGuard } from './group-guard';
@@ -24,7 +25,7 @@ describe('groupGuard and CurrentGroup', () => {
         ]),
       ],
     });
-    TestBed.inject(Auth).adopt(demoSession('viewer', [{ id: 'g-quarry', name: 'Quarry Hill Microwave Group', slug: 'quarry-hill', role: 'admin' }]));
+    TestBed.inject(Auth).adopt(demoSession('viewer', [{ id: specId('g-quarry'), name: 'Quarry Hill Microwave Group', slug: 'quarry-hill', role: 'admin' }]));
   });
 
   it('shows a group the user is not in exactly like a missing page', async () => {

@@ -1,5 +1,6 @@
 import { map, type OperatorFunction } from 'rxjs';
 import type { z } from 'zod';
+import type { EmptyAnswer, JsonAnswer, RouteDeclaration } from '../../../../shared/api/route';
 
 /** An API answer that does not fit the contract in shared/api: reported like any failed request. */
 export class MalformedAnswer extends Error {
@@ -15,12 +16,20 @@ export class MalformedAnswer extends Error {
   }
 }
 
+/** A route of shared/api whose answer is JSON. */
+type JsonRoute = RouteDeclaration & { answer: JsonAnswer };
+
 /**
- * Parses an HTTP answer with its schema from shared/api: the value that goes on is typed by
- * the schema, and an answer of another form becomes a MalformedAnswer error (which
- * ErrorReport shows) instead of a silent undefined further down.
+ * Parses an HTTP answer with the answer schema the route declares in shared/api (or with a
+ * schema of shared/api, for a part of an answer): the value that goes on is typed by the
+ * schema, and an answer of another form becomes a MalformedAnswer error (which
+ * ErrorReport shows) instead of a silent undefined further down. Every HTTP call of a
+ * `*-api.ts` goes through this or `emptyAnswer` (tests/structure/answer-types-once.test.ts).
  */
-export function parseAnswer<S extends z.ZodType>(schema: S, what = 'answer'): OperatorFunction<unknown, z.output<S>> {
+export function parseAnswer<D extends JsonRoute>(route: D, what?: string): OperatorFunction<unknown, z.output<D['answer']['schema']>>;
+export function parseAnswer<S extends z.ZodType>(schema: S, what?: string): OperatorFunction<unknown, z.output<S>>;
+export function parseAnswer(routeOrSchema: JsonRoute | z.ZodType, what = 'answer'): OperatorFunction<unknown, unknown> {
+  const schema = 'answer' in routeOrSchema ? routeOrSchema.answer.schema : routeOrSchema;
   return map((answer) => {
     const result = schema.safeParse(answer);
     if (result.success) return result.data;
@@ -29,4 +38,10 @@ export function parseAnswer<S extends z.ZodType>(schema: S, what = 'answer'): Op
       what,
     );
   });
+}
+
+/** For a route that answers without a body (204): nothing is passed on but the completion. */
+export function emptyAnswer(route: RouteDeclaration & { answer: EmptyAnswer }): OperatorFunction<unknown, void> {
+  void route; // named so that the call site says which declared route it calls
+  return map((): void => undefined);
 }

@@ -5,7 +5,7 @@ import { MatMenuModule } from '@angular/material/menu';
 import { Router } from '@angular/router';
 import { Auth } from '../auth/auth';
 import { roleLabel } from '../auth/role-label';
-import type { GroupMembership } from '../auth/session';
+import type { GroupOfUser } from '../../../../shared/api/auth';
 import { CurrentGroup } from '../group/current-group';
 
 /** Toolbar menu that moves the user to the same area of another of their groups. */
@@ -64,7 +64,7 @@ export class GroupSwitcher {
   protected readonly roleLabel = roleLabel;
 
   /** Keeps the area (dashboard, members...) but not deeper ids: those belong to the old group. */
-  protected switchTo(group: GroupMembership): void {
+  protected switchTo(group: GroupOfUser): void {
     const segments = this.router.parseUrl(this.router.url).root.children['primary']?.segments ?? [];
     const area = segments[0]?.path === 'g' && segments[2] ? segments[2].path : 'dashboard';
     void this.router.navigate(['/g', group.slug, area]);

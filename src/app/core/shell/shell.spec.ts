@@ -5,6 +5,7 @@ import { TestBed } from '@angular/core/testing';
 import { Router, provideRouter, withComponentInputBinding } from '@angular/router';
 import { RouterTestingHarness } from '@angular/router/testing';
 import { demoSession } from '../testing/demo-session';
+import { specId } from '../testing/answer-fixtures';
 import { settle } from '../testing/next-request';
 import { Auth } from '../auth/auth';
 import { LaterRelease } from './later-release';
@@ -36,7 +37,7 @@ describe('Shell', () => {
         ),
       ],
     });
-    TestBed.inject(Auth).adopt(demoSession('admin', [{ id: 'g-quarry', name: 'Quarry Hill Microwave Group', slug: 'quarry-hill', role: 'viewer' }]));
+    TestBed.inject(Auth).adopt(demoSession('admin', [{ id: specId('g-quarry'), name: 'Quarry Hill Microwave Group', slug: 'quarry-hill', role: 'viewer' }]));
     harness = await RouterTestingHarness.create();
   });
 

@@ -1,5 +1,5 @@
 import { computed, signal } from '@angular/core';
-import type { Role } from '../auth/session';
+import type { Role } from '../../../../shared/api/enums';
 import { CurrentGroup } from '../group/current-group';
 
 /**
