@@ -30,7 +30,10 @@ describe('microwave view of a run', () => {
   });
 
   it('samples the spectrum at frequencies, leaving the curves as they are', () => {
-    const s = frequencySpectrum({ energies: [k2Of(1, 1), k2Of(2, 1)], transmission: [[0.1, 0.9]], pairs: [{ from: 0, to: 1 }], residual: [0, 0], reflection: null }, 1);
+    const s = frequencySpectrum(
+      { energies: [k2Of(1, 1), k2Of(2, 1)], transmission: [[0.1, 0.9]], pairs: [{ from: 0, to: 1 }], residual: [0, 0], reflection: null },
+      1,
+    );
     expect(s.energies[0]).toBeCloseTo(1, 9);
     expect(s.energies[1]).toBeCloseTo(2, 9);
     expect(s.transmission).toEqual([[0.1, 0.9]]);

@@ -74,7 +74,14 @@ describe('RunDetail', () => {
     expect(stage()).toContain('searching the contour · 10 %');
     expect(FakeEventSource.made.map((s) => s.url)).toEqual(['/api/groups/g1/runs/r1/events']);
 
-    FakeEventSource.last!.emit('progress', { id: detail.id, status: 'running', progress: { stage: 'transmission', fraction: 0.9 }, attempts: 1, error: null, resonanceCount: null });
+    FakeEventSource.last!.emit('progress', {
+      id: detail.id,
+      status: 'running',
+      progress: { stage: 'transmission', fraction: 0.9 },
+      attempts: 1,
+      error: null,
+      resonanceCount: null,
+    });
     fixture.detectChanges();
     expect(stage()).toContain('transmission spectrum · 90 %');
 

@@ -2,7 +2,6 @@ import Papa from 'papaparse';
 import { resonanceCsvColumns, resonanceCsvHeader, resonanceJsonUnits } from '../../../shared/api/resonance-columns';
 import { frequencyOfWavenumberSquared } from '../../../shared/units/microwave';
 import { spectrumWarnings } from './spectrum-warnings';
-import type { ResonanceRow } from '../../../shared/api/resonance-row';
 import type { RunDetail } from '../../../shared/api/runs';
 
 /**

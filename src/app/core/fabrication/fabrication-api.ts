@@ -58,12 +58,10 @@ export class FabricationApi {
   }
 
   comments(groupId: string, resonanceId: string): Observable<ResonanceComment[]> {
-    return this.http
-      .get(`${this.base(groupId)}/resonances/${encodeURIComponent(resonanceId)}/comments`)
-      .pipe(
-        parseAnswer(listCommentsRoute, 'comments'),
-        map((b) => b.items),
-      );
+    return this.http.get(`${this.base(groupId)}/resonances/${encodeURIComponent(resonanceId)}/comments`).pipe(
+      parseAnswer(listCommentsRoute, 'comments'),
+      map((b) => b.items),
+    );
   }
 
   comment(groupId: string, resonanceId: string, body: string, mentions: string[]): Observable<ResonanceComment> {

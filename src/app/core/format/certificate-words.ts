@@ -26,8 +26,8 @@ export function certificateInWords(certificate: RunCertificate | null): { headli
       p.windingNumber === null
         ? `the winding number could not be settled (${p.polesFound} ${p.polesFound === 1 ? 'pole' : 'poles'} found), so poles may be missing`
         : p.windingNumber !== p.polesFound
-        ? `winding number ${p.windingNumber} but ${p.polesFound} ${p.polesFound === 1 ? 'pole' : 'poles'} found, so ${Math.abs(p.windingNumber - p.polesFound)} may be missing or spurious`
-        : 'not certified';
+          ? `winding number ${p.windingNumber} but ${p.polesFound} ${p.polesFound === 1 ? 'pole' : 'poles'} found, so ${Math.abs(p.windingNumber - p.polesFound)} may be missing or spurious`
+          : 'not certified';
     return `Piece ${k + 1} (${range}): ${why}${p.note ? ` (${p.note})` : ''}.`;
   });
   const headline = failed.length
