@@ -39,6 +39,7 @@ await ensureDatabase({ fastUnsafe: true, databases: [] });
 const results: Record<string, boolean> = {};
 results.typecheck = step('typecheck', 'npm', ['run', '--silent', 'typecheck']);
 results.lint = step('lint (ESLint, --max-warnings 0)', bin('eslint'), ['.', '--max-warnings', '0']);
+results.unused = step('unused files, exports and dependencies (knip)', bin('knip'), ['--no-progress']);
 results.format = step('format (Prettier --check; `npm run format` fixes)', bin('prettier'), ['--check', '.', '--log-level', 'warn']);
 results.client = step('client component specs (ng test)', bin('ng'), [
   'test',

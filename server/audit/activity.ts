@@ -4,10 +4,8 @@ import { auditLog } from '../db/schema/audit.js';
 import { users } from '../db/schema/users.js';
 import type { ActivityEntry } from '../../shared/api/account.js';
 
-export type { ActivityEntry } from '../../shared/api/account.js';
-
 /** Actions of this prefix are refusals (CSRF, rate limits): shown to admins only. */
-export const securityActionPrefix = 'security.';
+const securityActionPrefix = 'security.';
 
 async function activity(q: Queryable, where: SQL | undefined, limit: number): Promise<ActivityEntry[]> {
   const rows = await q

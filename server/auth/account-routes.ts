@@ -7,7 +7,7 @@ import { signedInUser } from './authenticate.js';
 import { openSession } from './open-session.js';
 import { clearSessionCookies } from './session-cookies.js';
 
-export interface AccountRouteDeps {
+interface AccountRouteDeps {
   db: Db;
   account: AccountService;
   jwtSecret: string;

@@ -2,7 +2,7 @@ import { and, desc, eq, isNull, sql } from 'drizzle-orm';
 import type { Queryable } from '../db/client.js';
 import { apiTokens } from '../db/schema/credentials.js';
 
-export type ApiTokenRow = typeof apiTokens.$inferSelect;
+type ApiTokenRow = typeof apiTokens.$inferSelect;
 
 export async function insertApiToken(q: Queryable, userId: string, name: string, tokenHash: string): Promise<ApiTokenRow> {
   const [row] = await q.insert(apiTokens).values({ userId, name, tokenHash }).returning();

@@ -9,7 +9,7 @@ import { SessionService } from './session-service.js';
 import { clearSessionCookies, csrfCookie, setCsrfCookie } from './session-cookies.js';
 import { accountAndIpLimiters, attemptLimiter, type AttemptLimit, type AttemptLimits } from './sign-in-limit.js';
 
-export interface AuthRouteDeps {
+interface AuthRouteDeps {
   db: Db;
   auth: AuthService;
   jwtSecret: string;

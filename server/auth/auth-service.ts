@@ -13,9 +13,9 @@ import { revokeAllSessions, revokeSession } from './session-repository.js';
 import { findUserByEmail, findUserById, updatePasswordHash, type UserRow } from './user-repository.js';
 
 /** Reset links are valid for one hour. */
-export const resetLinkLifetimeMs = 60 * 60 * 1000;
+const resetLinkLifetimeMs = 60 * 60 * 1000;
 
-export interface AuthServiceDeps {
+interface AuthServiceDeps {
   db: Db;
   mailer: Mailer;
   publicUrl: string;

@@ -43,7 +43,7 @@ const authUser = (u: AuthUser): AuthUser => ({ id: u.id, email: u.email, name: u
 const groupPath = /^\/groups\/([0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12})(?:\/|$)/i;
 
 /** The group id a request path names (/groups/:groupId/…), or null. */
-export function groupIdInPath(path: string): string | null {
+function groupIdInPath(path: string): string | null {
   return groupPath.exec(path)?.[1]?.toLowerCase() ?? null;
 }
 

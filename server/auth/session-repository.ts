@@ -5,8 +5,7 @@ import { sessions } from '../db/schema/credentials.js';
 import { memberships, researchGroups, type MembershipRole } from '../db/schema/groups.js';
 import { users } from '../db/schema/users.js';
 
-export type SessionRow = typeof sessions.$inferSelect;
-type UserRow = typeof users.$inferSelect;
+type SessionRow = typeof sessions.$inferSelect;
 
 /** Drops the user's sessions that ended more than a day ago (called at sign-in, so the table stays small). */
 export async function pruneSessions(q: Queryable, userId: string): Promise<void> {
@@ -21,16 +20,6 @@ export async function insertSession(
 ): Promise<SessionRow> {
   const [row] = await q.insert(sessions).values(values).returning();
   return row!;
-}
-
-/** The session with its user, when it is neither revoked nor expired. */
-export async function findLiveSession(q: Queryable, id: string, userId: string): Promise<{ session: SessionRow; user: UserRow } | undefined> {
-  const [row] = await q
-    .select({ session: sessions, user: users })
-    .from(sessions)
-    .innerJoin(users, eq(users.id, sessions.userId))
-    .where(and(eq(sessions.id, id), eq(sessions.userId, userId), isNull(sessions.revokedAt), gt(sessions.expiresAt, sql`now()`)));
-  return row;
 }
 
 export async function revokeSession(q: Queryable, id: string): Promise<boolean> {

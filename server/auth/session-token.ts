@@ -29,7 +29,7 @@ export function signSessionToken(userId: string, sessionId: string, secret: stri
   return jwt.sign({}, hmacKey(secret), { subject: userId, jwtid: sessionId, expiresIn: lifetimeSeconds, algorithm: 'HS256' });
 }
 
-export interface SessionClaims {
+interface SessionClaims {
   userId: string;
   sessionId: string;
 }

@@ -29,7 +29,7 @@ export const defaultResetRequestLimits: AttemptLimits = { perAccount: { max: 5, 
 /** Failed uses of reset and invitation links (each success consumes its link): 10 per IP in 15 minutes. */
 export const defaultLinkLimit: AttemptLimit = { max: 10, windowMs: quarterHour };
 
-export type LimitKey = 'account' | 'ip';
+type LimitKey = 'account' | 'ip';
 
 /** The lower-cased e-mail of the body, or '' when it has none. */
 export function bodyEmail(req: Request): string {

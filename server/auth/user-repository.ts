@@ -6,8 +6,6 @@ import type { GroupOfUser } from '../../shared/api/auth.js';
 
 export type UserRow = typeof users.$inferSelect;
 
-export type { GroupOfUser } from '../../shared/api/auth.js';
-
 export function normaliseEmail(email: string): string {
   return email.trim().toLowerCase();
 }

@@ -28,7 +28,7 @@ const email = z.string().max(320).nullable();
 const num = z.number().finite();
 const base64 = z.string().regex(/^[A-Za-z0-9+/]*={0,2}$/, 'must be base64');
 
-export const headerRecord = z.object({
+const headerRecord = z.object({
   type: z.literal('header'),
   format: z.literal(BACKUP_FORMAT, { error: `must be "${BACKUP_FORMAT}" (this is not a Poleward group backup)` }),
   version: z.union([z.literal(1), z.literal(BACKUP_FORMAT_VERSION)], {
@@ -39,14 +39,14 @@ export const headerRecord = z.object({
   group: z.object({ name: z.string(), slug: z.string() }),
 });
 
-export const memberRecord = z.object({
+const memberRecord = z.object({
   type: z.literal('member'),
   email: z.string().max(320),
   name: z.string().max(200),
   role: z.enum(['admin', 'designer', 'reviewer', 'viewer']),
 });
 
-export const modelRecord = z.object({
+const modelRecord = z.object({
   type: z.literal('model'),
   id,
   name: z.string().min(1).max(200),
@@ -77,7 +77,7 @@ export const validityFields = {
   frequencyGhz: num.nullable().optional(),
 };
 
-export const modelVersionRecord = z.object({
+const modelVersionRecord = z.object({
   type: z.literal('modelVersion'),
   id,
   modelId: id,
@@ -101,7 +101,7 @@ export const modelVersionRecord = z.object({
   createdAt: when,
 });
 
-export const runRecord = z.object({
+const runRecord = z.object({
   type: z.literal('run'),
   id,
   modelVersionId: id,
@@ -125,7 +125,7 @@ export const runRecord = z.object({
   finishedAt: when.nullable(),
 });
 
-export const spectrumRecord = z.object({
+const spectrumRecord = z.object({
   type: z.literal('spectrum'),
   runId: id,
   energies: z.array(num),
@@ -137,7 +137,7 @@ export const spectrumRecord = z.object({
   createdAt: when,
 });
 
-export const resonanceRecord = z.object({
+const resonanceRecord = z.object({
   type: z.literal('resonance'),
   id,
   runId: id,
@@ -172,7 +172,7 @@ export const resonanceRecord = z.object({
   createdAt: when,
 });
 
-export const modeRecord = z.object({
+const modeRecord = z.object({
   type: z.literal('mode'),
   resonanceId: id,
   sites: z.number().int().nonnegative(),
@@ -180,7 +180,7 @@ export const modeRecord = z.object({
   vector: base64,
 });
 
-export const modeImageRecord = z.object({
+const modeImageRecord = z.object({
   type: z.literal('modeImage'),
   resonanceId: id,
   size: z.enum(['thumb', 'full']),
@@ -190,7 +190,7 @@ export const modeImageRecord = z.object({
   png: base64,
 });
 
-export const endRecord = z.object({
+const endRecord = z.object({
   type: z.literal('end'),
   counts: z.record(z.string(), z.number().int().nonnegative()),
 });

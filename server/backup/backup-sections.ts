@@ -11,7 +11,7 @@ import { fitsBackupSections } from './fits-backup-sections.js';
 import { modeMapsBackupSections } from './mode-maps-backup-sections.js';
 import { fabricationBackupSections, importedResonanceSections } from './fabrication-backup-sections.js';
 
-export type { BackupSection, IdKind, RestoredIds } from './backup-section.js';
+export type { IdKind, RestoredIds } from './backup-section.js';
 
 /** Registered sections, in archive order: a record's links point only at core records or earlier sections. */
 export const backupSections: BackupSection[] = [

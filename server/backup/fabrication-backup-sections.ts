@@ -20,7 +20,7 @@ const num = z.number().finite();
 const person = z.string().max(320).nullable();
 const iso = (d: Date | null) => (d ? d.toISOString() : null);
 
-export const importedResonanceRecord = z.object({
+const importedResonanceRecord = z.object({
   type: z.literal('importedResonance'),
   id,
   modelId: id,
@@ -52,7 +52,7 @@ export const importedResonanceRecord = z.object({
   createdAt: when,
 });
 
-export const fabricationRecord = z.object({
+const fabricationRecord = z.object({
   type: z.literal('fabricationRecord'),
   resonanceId: id,
   state: z.enum(['candidate', 'under_review', 'approved', 'rejected', 'sent', 'measured']),
@@ -77,7 +77,7 @@ export const fabricationRecord = z.object({
   updatedAt: when,
 });
 
-export const commentRecord = z.object({
+const commentRecord = z.object({
   type: z.literal('resonanceComment'),
   resonanceId: id,
   author: person,

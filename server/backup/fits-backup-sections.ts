@@ -23,7 +23,7 @@ const num = z.number().finite();
 const iso = (d: Date | null) => (d ? d.toISOString() : null);
 const date = (s: string | null) => (s ? new Date(s) : null);
 
-export const measuredTraceRecord = z.object({
+const measuredTraceRecord = z.object({
   type: z.literal('measuredTrace'),
   id,
   deviceName: z.string().max(200),
@@ -40,7 +40,7 @@ export const measuredTraceRecord = z.object({
   createdAt: when,
 });
 
-export const peakFitRecord = z
+const peakFitRecord = z
   .object({
     type: z.literal('peakFit'),
     id,
@@ -61,7 +61,7 @@ export const peakFitRecord = z
   })
   .refine((f) => (f.runId === null) !== (f.traceId === null), { path: ['traceId'], message: 'a fit has exactly one source: a runId or a traceId' });
 
-export const fittedResonanceRecord = z.object({
+const fittedResonanceRecord = z.object({
   type: z.literal('fittedResonance'),
   id,
   fitId: id,

@@ -19,7 +19,7 @@ const RESONANCE_BATCH = 100;
  * group never sits in memory whole. `includeMembers` adds the member list (names,
  * e-mails, roles), which a restore uses only to re-attach authorship.
  */
-export async function* groupBackupRecords(q: Queryable, groupId: string, includeMembers: boolean): AsyncGenerator<CoreRecord | { type: string }> {
+async function* groupBackupRecords(q: Queryable, groupId: string, includeMembers: boolean): AsyncGenerator<CoreRecord | { type: string }> {
   const [group] = await q.select().from(researchGroups).where(eq(researchGroups.id, groupId));
   const counts: Record<string, number> = {};
   const count = (type: string) => (counts[type] = (counts[type] ?? 0) + 1);

@@ -25,7 +25,7 @@ const PNG_SIGNATURE = Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0
 
 type Core = { [T in CoreRecord['type']]: RecordOf<T>[] };
 
-export interface ParsedBackup {
+interface ParsedBackup {
   core: Core;
   sections: Map<string, { type: string }[]>;
   lines: number;

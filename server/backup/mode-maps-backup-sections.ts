@@ -25,7 +25,7 @@ const iso = (d: Date | null) => (d ? d.toISOString() : null);
 /** Currents read per query: each holds a float32 pair per site. */
 const BATCH = 100;
 
-export const resonanceCurrentRecord = z.object({
+const resonanceCurrentRecord = z.object({
   type: z.literal('resonanceCurrent'),
   resonanceId: id,
   nx: z.number().int().positive(),
@@ -37,7 +37,7 @@ export const resonanceCurrentRecord = z.object({
   leadCurrents: z.array(z.object({ name: z.string(), side: z.string(), current: num })),
 });
 
-export const modeMapRecord = z.object({
+const modeMapRecord = z.object({
   type: z.literal('modeMap'),
   id,
   modelVersionId: id,

@@ -19,7 +19,7 @@ export interface AnswerCacheLimits {
   maxEntries: number;
 }
 
-export const defaultAnswerCacheLimits: AnswerCacheLimits = { maxChars: 32_000_000, maxEntries: 4_000 };
+const defaultAnswerCacheLimits: AnswerCacheLimits = { maxChars: 32_000_000, maxEntries: 4_000 };
 
 /**
  * Catalogue answers kept by (group, catalogue generation, search and page), least recently

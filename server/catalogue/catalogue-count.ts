@@ -12,9 +12,9 @@ import { countResonances, estimateResonances } from './catalogue-repository.js';
  *   added, retagged or removed since are not in it); a recount is on its way;
  * - `estimated`: PostgreSQL's planner estimate from its table statistics, no rows counted.
  */
-export type CountKind = 'exact' | 'cached' | 'estimated';
+type CountKind = 'exact' | 'cached' | 'estimated';
 
-export interface CatalogueCount {
+interface CatalogueCount {
   total: number;
   kind: CountKind;
   /** When the count was taken; null for an estimate. */

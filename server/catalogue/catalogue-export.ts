@@ -11,7 +11,7 @@ export type RowSource = (onBatch: (rows: ResonanceRecord[]) => Promise<boolean>)
 
 // The columns and units are one table with the run page's pole download (shared/api/resonance-columns.ts).
 const csvColumns = resonanceCsvColumns;
-export const csvHeader = resonanceCsvHeader;
+const csvHeader = resonanceCsvHeader;
 const jsonUnits = resonanceJsonUnits;
 
 /**

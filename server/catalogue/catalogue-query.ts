@@ -106,7 +106,7 @@ const rangeColumns: Record<RangeName, AnyColumn | SQL> = {
  * removed, and each word becomes `word:*`, all ANDed; to_tsquery then parses each word with
  * the same parser, so "disk-12" matches the way it was indexed.
  */
-export function prefixQuery(text: string): string | null {
+function prefixQuery(text: string): string | null {
   const words = text
     .split(/\s+/)
     .map((w) => w.replace(/[&|!():*<>'"\\]/g, ''))
@@ -142,7 +142,7 @@ export function catalogueConditions(groupId: string, f: CatalogueFilter): SQL {
 /** How a sort key's value travels in a cursor, and the SQL type it is compared as. */
 export type KeyType = 'float8' | 'int4' | 'text' | 'text[]' | 'timestamptz' | 'uuid';
 
-export interface SortKeyPart {
+interface SortKeyPart {
   expr: AnyColumn | SQL;
   type: KeyType;
 }

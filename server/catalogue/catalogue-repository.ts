@@ -219,7 +219,7 @@ export async function streamResonances(
   return sent;
 }
 
-export interface ResonanceContext {
+interface ResonanceContext {
   row: ResonanceRecord;
   /** Null for a fitted resonance of a measured trace. */
   run: {

@@ -26,7 +26,7 @@ import {
 } from './catalogue-repository.js';
 import { toResonanceRow, type ResonanceRow } from './resonance-row.js';
 
-export type { CataloguePage as CatalogueAnswer, ResonanceDetail } from '../../shared/api/catalogue.js';
+;
 
 /** Rows per keyset batch in an export: a few hundred kB of JSON at a time. */
 const exportBatch = 1000;
@@ -35,7 +35,7 @@ const exportBatch = 1000;
 export const FILED_IMAGE_SIDES = [THUMB_SIDE, FULL_SIDE];
 
 /** What `fileComputedPoles` files: the poles with their modes and images (thumb, full), the version they belong to, and where they came from. */
-export interface FiledPoles {
+interface FiledPoles {
   groupId: string;
   model: { id: string; versionId: string; name: string; version: number; document: unknown; columns: ModelColumns };
   leadNames: string[];

@@ -7,7 +7,7 @@ import { createHash } from 'node:crypto';
 import type { Queryable } from '../db/client.js';
 import { modeImages, resonanceModes, resonances } from '../db/schema/catalogue.js';
 
-export type FiledPoleRow = Omit<typeof resonances.$inferInsert, 'id' | 'runId' | 'fitId' | 'idx' | 'source'>;
+type FiledPoleRow = Omit<typeof resonances.$inferInsert, 'id' | 'runId' | 'fitId' | 'idx' | 'source'>;
 
 export async function insertFiledPole(q: Queryable, row: FiledPoleRow, mode: Float64Array, images: { size: 'thumb' | 'full'; png: Uint8Array }[]): Promise<string> {
   const [inserted] = await q

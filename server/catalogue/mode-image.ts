@@ -9,13 +9,13 @@ export interface ModeLattice {
   j: ArrayLike<number>;
 }
 
-export interface ModeImageOptions {
+interface ModeImageOptions {
   /** Longest side of the image in pixels; each site becomes a square of whole pixels. */
   maxSide: number;
 }
 
 /** Colour of grid points outside the cavity (a neutral grey, distinct from zero density, which is black). */
-export const OUTSIDE_RGB: readonly [number, number, number] = [206, 210, 214];
+const OUTSIDE_RGB: readonly [number, number, number] = [206, 210, 214];
 
 /**
  * Renders a mode ψ (interleaved re, im) as a PNG: brightness is sqrt(|ψ|²/max|ψ|²)
@@ -67,7 +67,7 @@ export function renderModePng(lattice: ModeLattice, psi: Float64Array, options: 
  * HSV → RGB with full saturation: hue from the phase (radians, any range), value in [0, 1].
  * The same mapping is drawn as the legend in the client (catalogue/phase-legend).
  */
-export function phaseColour(phase: number, value: number, out: [number, number, number]): void {
+function phaseColour(phase: number, value: number, out: [number, number, number]): void {
   const turns = phase / (2 * Math.PI);
   const h = (turns - Math.floor(turns)) * 6;
   const sector = Math.floor(h) % 6;

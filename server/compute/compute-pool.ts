@@ -9,7 +9,7 @@ export interface Compute {
   close(): Promise<void>;
 }
 
-export interface ComputePoolOptions {
+interface ComputePoolOptions {
   /** Threads computing at once (default: cores − 1, at least 1). */
   threads?: number;
   /** Tasks waiting for a thread before new ones are refused with 503 (default 32 per thread). */

@@ -22,7 +22,7 @@ import { mountRoute } from '../http/mount-route.js';
 import { insertModel, insertVersion } from '../models/model-repository.js';
 import type { CheckedModel } from '../models/model-figures.js';
 
-export const IMPORT_MAX_BYTES = 20 * 1024 * 1024;
+const IMPORT_MAX_BYTES = 20 * 1024 * 1024;
 
 /** The model versions of an export: what an import needs to rebuild them. */
 export async function exportedModels(q: Queryable, groupId: string, versionIds: string[]) {
@@ -42,7 +42,7 @@ function lineOf(text: string, offset: number): { line: number; column: number } 
   return { line, column: offset - before.lastIndexOf('\n') };
 }
 
-export function parseExportFile(bytes: Buffer): CatalogueExportFile {
+function parseExportFile(bytes: Buffer): CatalogueExportFile {
   const text = bytes.toString('utf8');
   let raw: unknown;
   try {

@@ -25,7 +25,7 @@ import { STANDING_CAUTION, type SpecSheetInput } from './spec-sheet.js';
 import { compareFigure } from '../../shared/fabrication/measurement-comparison.js';
 import type { PackageFile } from '../../shared/api/fabrication.js';
 
-export const PACKAGE_MEDIA_TYPES: Record<PackageFile, string> = {
+const PACKAGE_MEDIA_TYPES: Record<PackageFile, string> = {
   'package.zip': 'application/zip',
   'spec.pdf': 'application/pdf',
   'layout.gds': 'application/octet-stream',
@@ -33,7 +33,7 @@ export const PACKAGE_MEDIA_TYPES: Record<PackageFile, string> = {
   'layout.svg': 'image/svg+xml',
 };
 
-export interface PackageAnswer {
+interface PackageAnswer {
   fileName: string;
   mediaType: string;
   bytes: Uint8Array;

@@ -18,12 +18,12 @@ import type { Caller, FabricationService } from './fabrication-service.js';
 const uuidPattern = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 
 /** A malformed id cannot be one of the group's resonances: 404 like any other stranger's id. */
-export function resonanceIdOf(id: string): string {
+function resonanceIdOf(id: string): string {
   if (!uuidPattern.test(id)) throw resonanceNotFound();
   return id.toLowerCase();
 }
 
-export function callerOf(req: Request): Caller {
+function callerOf(req: Request): Caller {
   return { id: req.auth!.user.id, role: req.membership!.role };
 }
 

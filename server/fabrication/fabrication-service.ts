@@ -36,7 +36,7 @@ function figures(r: { energy: number; width: number; modelName: string; modelVer
   return `E = ${r.energy.toPrecision(6)} meV, Γ = ${r.width.toPrecision(4)} meV (${r.modelName} v${r.modelVersion})`;
 }
 
-export function packageLinks(groupId: string, resonanceId: string) {
+function packageLinks(groupId: string, resonanceId: string) {
   const base = `/api/groups/${groupId}/resonances/${resonanceId}/fabrication`;
   return { archive: `${base}/package.zip`, specSheet: `${base}/spec.pdf`, gdsii: `${base}/layout.gds`, dxf: `${base}/layout.dxf`, svg: `${base}/layout.svg` };
 }

@@ -11,7 +11,7 @@ import { NOTIFICATION_QUEUE } from '../jobs/queues.js';
 import type { Mailer } from '../mail/mailer.js';
 import type { NotificationJobData } from './notification-queue.js';
 
-export async function sendNotification(db: Db, mailer: Mailer, notificationId: string, lastTry: boolean): Promise<void> {
+async function sendNotification(db: Db, mailer: Mailer, notificationId: string, lastTry: boolean): Promise<void> {
   const [row] = await db.select().from(notifications).where(eq(notifications.id, notificationId));
   if (!row || row.status !== 'queued') return;
   try {

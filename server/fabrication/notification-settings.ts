@@ -14,7 +14,7 @@ import type { Db, Queryable } from '../db/client.js';
 import { notificationOptOuts } from '../db/schema/fabrication.js';
 import { mountRoute } from '../http/mount-route.js';
 
-export async function notificationSettings(q: Queryable, userId: string): Promise<NotificationSettings> {
+async function notificationSettings(q: Queryable, userId: string): Promise<NotificationSettings> {
   const off = await q.select({ kind: notificationOptOuts.kind }).from(notificationOptOuts).where(eq(notificationOptOuts.userId, userId));
   const offKinds = new Set(off.map((o) => o.kind));
   return { kinds: NOTIFICATION_KINDS.map((kind) => ({ kind, label: NOTIFICATION_KIND_WORDS[kind], enabled: !offKinds.has(kind) })) };

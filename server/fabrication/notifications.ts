@@ -12,13 +12,13 @@ import { users } from '../db/schema/users.js';
 import { escapeHtml } from '../mail/escape-html.js';
 import type { NotificationQueue } from './notification-queue.js';
 
-export interface Recipient {
+interface Recipient {
   id: string;
   email: string;
   name: string;
 }
 
-export interface NotificationSpec {
+interface NotificationSpec {
   groupId: string | null;
   kind: NotificationKind;
   recipients: Recipient[];

@@ -13,7 +13,7 @@ import type { NotificationQueue } from './notification-queue.js';
 import { recordNotifications, userById } from './notifications.js';
 
 /** From submission to end; shorter runs send no e-mail. */
-export const LONG_RUN_SECONDS = 60;
+const LONG_RUN_SECONDS = 60;
 
 export async function notifyRunEnded(
   db: Db,

@@ -8,7 +8,7 @@ import { runs, spectra } from '../db/schema/runs.js';
 import { users } from '../db/schema/users.js';
 import type { CandidatePole } from './fit-comparison.js';
 
-export const traceSummaryColumns = {
+const traceSummaryColumns = {
   id: measuredTraces.id,
   deviceName: measuredTraces.deviceName,
   fileName: measuredTraces.fileName,

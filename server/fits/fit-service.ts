@@ -44,7 +44,7 @@ export interface FitRequest {
   hints?: { energy: number; width?: number }[];
 }
 
-export interface TraceFields {
+interface TraceFields {
   deviceName: string;
   temperatureMK: number;
   notes: string;
@@ -61,14 +61,14 @@ export interface FitQueue {
  * Fits whose cost n·p²·(8 if thermal)·(2 if Fano) stays under this run during the request
  * (a few hundred ms at most, in a worker thread); larger ones go to the queue.
  */
-export const SMALL_FIT_COST = 400_000;
+const SMALL_FIT_COST = 400_000;
 
-export function fitCost(points: number, req: Pick<FitRequest, 'lineshape' | 'background' | 'peaks'>): number {
+function fitCost(points: number, req: Pick<FitRequest, 'lineshape' | 'background' | 'peaks'>): number {
   const p = (req.background === 'linear' ? 2 : 1) + req.peaks * (hasAsymmetry(req.lineshape) ? 4 : 3);
   return points * p * p * (isThermal(req.lineshape) ? 8 : 1) * (hasAsymmetry(req.lineshape) ? 2 : 1);
 }
 
-export function fitNotFound(): ApiError {
+function fitNotFound(): ApiError {
   return new ApiError(404, 'not_found', 'No such fit in this group.');
 }
 

@@ -23,7 +23,7 @@ export const FIT_TRANSITIONS: Transitions<FitStatus> = {
   failed: [],
 };
 
-export type FitRow = typeof peakFits.$inferSelect;
+type FitRow = typeof peakFits.$inferSelect;
 type Changes = Omit<PgUpdateSetSource<typeof peakFits>, 'id' | 'groupId' | 'status'>;
 
 async function transition(q: Queryable, id: string, to: FitStatus, guard: { attempt?: number; when?: SQL; set?: Changes } = {}): Promise<FitRow | null> {

@@ -4,8 +4,6 @@ import { memberships, type MembershipRole } from '../db/schema/groups.js';
 import { users } from '../db/schema/users.js';
 import type { Member } from '../../shared/api/groups.js';
 
-export type { Member } from '../../shared/api/groups.js';
-
 export async function memberCount(q: Queryable, groupId: string): Promise<number> {
   const [row] = await q.select({ n: count() }).from(memberships).where(eq(memberships.groupId, groupId));
   return row?.n ?? 0;

@@ -1,6 +1,6 @@
 import type { z } from 'zod';
 
-export interface AnswerMismatch {
+interface AnswerMismatch {
   /** Field paths ("items.0.createdBy") with what is wrong there. */
   problems: string[];
 }

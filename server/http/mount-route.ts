@@ -20,7 +20,7 @@ import { ApiError } from './error-handler.js';
 import { validateRequest } from './validate.js';
 
 /** A JSON answer with a success status other than the declared one (it must be in `alsoStatus`). */
-export class WithStatus<T> {
+class WithStatus<T> {
   constructor(
     readonly status: number,
     readonly body: T,
@@ -35,7 +35,7 @@ export function withStatus<T>(status: number, body: T): WithStatus<T> {
  * A JSON answer already serialised (a cached answer's text): sent as it is, with the
  * declared status, after the same answer check as any other JSON answer.
  */
-export class JsonText {
+class JsonText {
   constructor(readonly text: string) {}
 }
 
@@ -47,7 +47,7 @@ export function jsonText(text: string): JsonText {
  * A value as a handler may hand it over: JSON turns a Date into the ISO string the contract
  * declares, so a Date stands where a (non-literal) string is declared.
  */
-export type Wire<T> = T extends string
+type Wire<T> = T extends string
   ? string extends T
     ? string | Date
     : T
@@ -71,7 +71,7 @@ export type HandlerResult<D extends RouteDeclaration> =
 
 export type RouteHandler<D extends RouteDeclaration> = (input: RouteInput<D>, req: Request, res: Response) => Awaitable<HandlerResult<D>>;
 
-export interface MountOptions {
+interface MountOptions {
   /** Middleware between the access guard and validation: rate limits, multipart uploads. */
   before?: RequestHandler[];
   /** Where answer mismatches are reported (console.error by default). */
@@ -83,7 +83,7 @@ export interface MountOptions {
 const isProduction = () => process.env.NODE_ENV === 'production';
 
 /** '/groups/{groupId}/runs' → '/groups/:groupId/runs' */
-export function expressPath(path: string): string {
+function expressPath(path: string): string {
   return path.replace(/\{(\w+)\}/g, ':$1');
 }
 
@@ -91,7 +91,7 @@ export function expressPath(path: string): string {
  * Serialises a JSON answer (unless it is JsonText already) and, when `check`, checks it
  * against its schema; throws 500 answer_mismatch when it does not fit.
  */
-export function checkedJson(route: RouteDeclaration, schema: z.ZodType, body: unknown, log: (msg: string, err: unknown) => void, check = true): string {
+function checkedJson(route: RouteDeclaration, schema: z.ZodType, body: unknown, log: (msg: string, err: unknown) => void, check = true): string {
   const text = body instanceof JsonText ? body.text : JSON.stringify(body);
   if (!check) return text;
   const mismatch = checkAnswer(schema, text === undefined ? undefined : JSON.parse(text));

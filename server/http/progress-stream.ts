@@ -1,6 +1,6 @@
 import type { Request, Response } from 'express';
 
-export interface ProgressStream<V> {
+interface ProgressStream<V> {
   /** Reads the current state (a run's or a fit's view). */
   read: () => Promise<V>;
   /** The payload of a `progress` event for a state. */

@@ -2,13 +2,13 @@ import type { Request } from 'express';
 import type { z } from 'zod';
 import { ApiError, type FieldIssue } from './error-handler.js';
 
-export interface RequestSchemas {
+interface RequestSchemas {
   params?: z.ZodType;
   query?: z.ZodType;
   body?: z.ZodType;
 }
 
-export interface ValidRequest {
+interface ValidRequest {
   params?: unknown;
   query?: unknown;
   body?: unknown;

@@ -24,11 +24,9 @@ import {
 import type { InvitationPreview } from '../../shared/api/auth.js';
 
 /** Invitation links are valid for 7 days. */
-export const invitationLifetimeMs = 7 * 24 * 60 * 60 * 1000;
+const invitationLifetimeMs = 7 * 24 * 60 * 60 * 1000;
 
-export type { InvitationPreview } from '../../shared/api/auth.js';
-
-export interface InvitationServiceDeps {
+interface InvitationServiceDeps {
   db: Db;
   mailer: Mailer;
   publicUrl: string;

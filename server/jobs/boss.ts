@@ -1,7 +1,7 @@
 import PgBoss from 'pg-boss';
 import { FIT_QUEUE, MODE_MAP_QUEUE, NOTIFICATION_QUEUE, RUN_QUEUES, STUDY_STEP_QUEUE, type RunKind } from './queues.js';
 
-export interface BossOptions {
+interface BossOptions {
   databaseUrl: string;
   /** How often pg-boss looks for expired jobs (its own backstop for lost workers). */
   maintenanceIntervalSeconds?: number;

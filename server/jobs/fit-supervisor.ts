@@ -5,7 +5,7 @@ import { fitStore } from '../fits/fit-store.js';
 import { bossDb, jobsAffected } from './boss-in-transaction.js';
 import { FIT_QUEUE } from './queues.js';
 
-export interface FitSupervisorOptions {
+interface FitSupervisorOptions {
   db: Db;
   boss: PgBoss;
   /** A running fit whose heartbeat is older than this lost its worker (POLEWARD_RUN_STALE_SECONDS). */
@@ -15,7 +15,7 @@ export interface FitSupervisorOptions {
   groupId?: string;
 }
 
-export interface FitSupervisorReport {
+interface FitSupervisorReport {
   /** Running fits whose worker stopped answering, put back in the queue. */
   handedOn: number;
   /** Fits ended as failed because their retries were used up. */

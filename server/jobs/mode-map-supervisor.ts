@@ -5,7 +5,7 @@ import { modeMapStore, type ModeMapRow } from '../modemaps/mode-map-store.js';
 import { bossDb, jobsAffected } from './boss-in-transaction.js';
 import { MODE_MAP_QUEUE } from './queues.js';
 
-export interface ModeMapSupervisorOptions {
+interface ModeMapSupervisorOptions {
   db: Db;
   boss: PgBoss;
   /** A computing map whose heartbeat is older than this lost its worker (POLEWARD_RUN_STALE_SECONDS). */
@@ -15,7 +15,7 @@ export interface ModeMapSupervisorOptions {
   groupId?: string;
 }
 
-export interface ModeMapSupervisorReport {
+interface ModeMapSupervisorReport {
   /** Computing maps whose worker stopped answering, put back in the queue. */
   handedOn: number;
   /** Maps ended as failed because their retries were used up. */

@@ -42,7 +42,6 @@ export const FIT_QUEUE = {
 } as const satisfies QueueSpec;
 
 export type RunKind = keyof typeof RUN_QUEUES;
-export const RUN_KINDS = Object.keys(RUN_QUEUES) as RunKind[];
 
 /** The payload of every run job: the run row holds everything else. */
 export interface RunJobData {

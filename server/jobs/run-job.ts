@@ -31,7 +31,7 @@ export interface RunJobDeps {
  */
 export type JobSettler = (tx: Queryable, how: 'complete' | 'fail', output: Record<string, unknown>) => Promise<void>;
 
-export interface RunJobInfo {
+interface RunJobInfo {
   runId: string;
   retryCount: number;
   retryLimit: number;

@@ -8,7 +8,7 @@ import { superviseModeMaps } from './mode-map-supervisor.js';
 import { HEARTBEAT_SECONDS, RUN_QUEUES, type RunKind } from './queues.js';
 import { runStore } from '../runs/run-store.js';
 
-export interface SupervisorOptions {
+interface SupervisorOptions {
   db: Db;
   boss: PgBoss;
   /** A running run whose heartbeat is older than this is taken to have lost its worker. */
@@ -29,7 +29,7 @@ export const STARTUP_STALE_SECONDS = 2 * HEARTBEAT_SECONDS;
 /** What the run page shows (as "Resumes by itself: …") for a run interrupted by a shutdown: news, not a fault. */
 export const INTERRUPTED_NOTE = 'the workers were stopped while this run was computing; it starts again';
 
-export interface SupervisorReport {
+interface SupervisorReport {
   /** Running runs whose worker stopped answering, put back in the queue. */
   handedOn: number;
   /** Runs that had no live queue job, sent again. */

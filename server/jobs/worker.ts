@@ -10,7 +10,7 @@ import { RUN_QUEUES, DEFAULT_STALE_AFTER_SECONDS, type RunJobData } from './queu
 import { handleRunJob, type JobSettler, type RunJobDeps, type RunJobOutcome } from './run-job.js';
 import { startSupervisor } from './supervisor.js';
 
-export interface WorkerLoopOptions {
+interface WorkerLoopOptions {
   db: Db;
   boss: PgBoss;
   compute: RunJobDeps['compute'];

@@ -3,8 +3,6 @@ import type { Queryable } from '../db/client.js';
 import { outboxMessages } from '../db/schema/outbox.js';
 import type { OutboxMessage, OutboxSummary } from '../../shared/api/outbox.js';
 
-export type { OutboxMessage, OutboxSummary } from '../../shared/api/outbox.js';
-
 type Row = typeof outboxMessages.$inferSelect;
 
 function toMessage(r: Row): OutboxMessage {

@@ -3,7 +3,7 @@ import multer from 'multer';
 import { ApiError } from '../http/error-handler.js';
 
 /** Largest drawing file accepted (bytes). */
-export const MAX_DRAWING_BYTES = 8 * 1024 * 1024;
+const MAX_DRAWING_BYTES = 8 * 1024 * 1024;
 
 const upload = multer({
   storage: multer.memoryStorage(),

@@ -6,9 +6,9 @@ import type { BitmapMask } from '../../shared/api/models.js';
 export type { BitmapMask } from '../../shared/api/models.js';
 
 /** Largest side of a drawing accepted (pixels); larger ones are refused before decoding. */
-export const MAX_DRAWING_SIDE = 4096;
+const MAX_DRAWING_SIDE = 4096;
 /** Largest drawing accepted (pixels): 4096×4096 decodes to 64 MiB of RGBA. */
-export const MAX_DRAWING_PIXELS = MAX_DRAWING_SIDE * MAX_DRAWING_SIDE;
+const MAX_DRAWING_PIXELS = MAX_DRAWING_SIDE * MAX_DRAWING_SIDE;
 
 /**
  * Checks a drawing's header without decoding it: 415 when it is not a PNG, 413 when

@@ -26,8 +26,8 @@ export interface GeometryColumns {
 }
 
 /** The dimension names of GeometryColumns as the API lists them (keyDimensions) and the catalogue filters them (dim.NAME.min/max). */
-export const geometryDimensionNames = ['width', 'height', 'radius', 'length', 'rx', 'ry', 'inner', 'outer', 'area'] as const;
-export type GeometryDimension = (typeof geometryDimensionNames)[number];
+const geometryDimensionNames = ['width', 'height', 'radius', 'length', 'rx', 'ry', 'inner', 'outer', 'area'] as const;
+type GeometryDimension = (typeof geometryDimensionNames)[number];
 
 /** What the catalogue can search on, computed once per model version. */
 export interface ModelColumns extends GeometryColumns {
@@ -156,14 +156,14 @@ export function keyDimensionsOf(g: GeometryColumns): Record<string, number> {
  * member (lead stubs and bumps are usually added after the body), a subtraction
  * under what is subtracted from.
  */
-export function bodyShape(shape: Shape): Shape {
+function bodyShape(shape: Shape): Shape {
   if (shape.kind === 'union') return shape.of.length ? bodyShape(shape.of[0]) : shape;
   if (shape.kind === 'subtract') return bodyShape(shape.from);
   return shape;
 }
 
 /** The family a geometry is filed under: the primitive of its body (see bodyShape). */
-export function shapeFamily(shape: Shape): string {
+function shapeFamily(shape: Shape): string {
   const body = bodyShape(shape);
   return body.kind === 'union' || body.kind === 'subtract' ? 'composite' : body.kind;
 }

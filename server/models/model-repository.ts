@@ -30,8 +30,6 @@ const summaryColumns = {
   versionId: modelVersions.id,
 };
 
-export type ModelSummaryRow = Awaited<ReturnType<typeof listModels>>['rows'][number];
-
 /** The group's models with the figures of their latest version, newest first. */
 export async function listModels(q: Queryable, groupId: string, f: ModelListFilter) {
   const where = and(

@@ -13,7 +13,7 @@ export function modelNotFound(): ApiError {
 
 type SummaryRow = NonNullable<Awaited<ReturnType<typeof repo.findModel>>>;
 
-export function toSummary(r: SummaryRow) {
+function toSummary(r: SummaryRow) {
   return {
     id: r.id,
     name: r.name,
@@ -125,7 +125,7 @@ export class ModelService {
 }
 
 /** A version just written, as `update`'s onSaved hook sees it. */
-export interface SavedVersion {
+interface SavedVersion {
   modelId: string;
   versionId: string;
   version: number;

@@ -1,7 +1,7 @@
 /** The 8 bytes every PNG file starts with (PNG specification, ISO/IEC 15948, 5.2). */
 const SIGNATURE = [0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a];
 
-export interface PngHeader {
+interface PngHeader {
   width: number;
   height: number;
 }

@@ -1,2 +1,2 @@
 // The request schema is part of the HTTP contract: shared/api/mode-maps.ts.
-export { modeMapRequestSchema, type HusimiRequest, type ModeMapRequest } from '../../shared/api/mode-maps.js';
+export { type ModeMapRequest } from '../../shared/api/mode-maps.js';

@@ -13,9 +13,9 @@ import { modeMapStore } from './mode-map-store.js';
 import type { ModeMapRequest } from './mode-map-request.js';
 import { base64Float32, type ModeMapPayload } from './mode-map-task.js';
 
-export type ModeMapRow = typeof modeMaps.$inferSelect;
+type ModeMapRow = typeof modeMaps.$inferSelect;
 
-export function toModeMapView(row: ModeMapRow) {
+function toModeMapView(row: ModeMapRow) {
   return {
     id: row.id,
     status: row.status,

@@ -15,7 +15,7 @@ import { canTransition, IllegalTransition, unlessEnded, sourcesOf, type Transiti
  * running → running (a new attempt after pg-boss gave the last one up), queued (a failure
  * that may pass, or a lost worker), completed, failed; failed → queued (asked again).
  */
-export const MODE_MAP_TRANSITIONS: Transitions<ModeMapStatus> = {
+const MODE_MAP_TRANSITIONS: Transitions<ModeMapStatus> = {
   queued: ['running', 'failed'],
   running: ['running', 'queued', 'completed', 'failed'],
   completed: [],

@@ -32,8 +32,6 @@ function runQuery(q: Queryable, where: SQL | undefined) {
     .where(where);
 }
 
-export type RunRecord = Awaited<ReturnType<typeof findRun>> & {};
-
 export async function listRuns(q: Queryable, groupId: string, f: RunListFilter) {
   const where = and(
     eq(runs.groupId, groupId),

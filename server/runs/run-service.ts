@@ -15,14 +15,14 @@ import * as repo from './run-repository.js';
 import { isFinished, runStore } from './run-store.js';
 import type { RunRequest } from './run-window.js';
 
-export function runNotFound(): ApiError {
+function runNotFound(): ApiError {
   return new ApiError(404, 'not_found', 'No such run in this group.');
 }
 
 type RunRow = NonNullable<Awaited<ReturnType<typeof repo.findRun>>>;
 
 /** The API's view of a run. */
-export function toRunView(r: RunRow) {
+function toRunView(r: RunRow) {
   const run = r.run;
   return {
     id: run.id,

@@ -37,11 +37,11 @@ export function isFinished(status: RunStatus): boolean {
   return RUN_TRANSITIONS[status].length === 0;
 }
 
-export type RunRow = typeof runs.$inferSelect;
+type RunRow = typeof runs.$inferSelect;
 /** Columns a transition may set beside the status (never the identity of the run). */
-export type RunChanges = Omit<PgUpdateSetSource<typeof runs>, 'id' | 'groupId' | 'modelVersionId' | 'kind' | 'status' | 'createdBy' | 'createdAt'>;
+type RunChanges = Omit<PgUpdateSetSource<typeof runs>, 'id' | 'groupId' | 'modelVersionId' | 'kind' | 'status' | 'createdBy' | 'createdAt'>;
 
-export interface TransitionGuard {
+interface TransitionGuard {
   /** Applies only while this attempt owns the run (its attempt, status running); otherwise null. */
   attempt?: number;
   /** A further condition (a stale heartbeat, say); when false the answer is null. */

@@ -1,2 +1,2 @@
 // The run request is part of the HTTP contract: shared/api/runs.ts.
-export { poleWindowSchema, runRequestSchema, transmissionWindowSchema, type RunRequest } from '../../shared/api/runs.js';
+export { type RunRequest } from '../../shared/api/runs.js';

@@ -21,12 +21,12 @@ export interface StoredContinuation {
   factorisations: number;
 }
 
-export function encodeFloat32(values: ArrayLike<number>): string {
+function encodeFloat32(values: ArrayLike<number>): string {
   const f = Float32Array.from(values as ArrayLike<number>);
   return Buffer.from(f.buffer, f.byteOffset, f.byteLength).toString('base64');
 }
 
-export function decodeFloat32(text: string): Float64Array {
+function decodeFloat32(text: string): Float64Array {
   const buf = Buffer.from(text, 'base64');
   const f = new Float32Array(buf.buffer.slice(buf.byteOffset, buf.byteOffset + buf.byteLength));
   return Float64Array.from(f);

@@ -25,7 +25,7 @@ import { decodeSearch, type StoredSearch } from './step-codec.js';
 import type { StudyQueue } from './study-queue.js';
 import type { StudyDefinitionStored } from './study-step-task.js';
 
-export function studyNotFound(): ApiError {
+function studyNotFound(): ApiError {
   return new ApiError(404, 'not_found', 'No such study in this group.');
 }
 

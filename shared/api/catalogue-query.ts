@@ -72,8 +72,7 @@ const booleanParam = z.preprocess(
 );
 
 /** The geometry dimensions one can sort by (`sort=dim.rx`), the same names as the dimension filters. */
-export const dimensionSorts = ['dim.width', 'dim.height', 'dim.radius', 'dim.length', 'dim.rx', 'dim.ry', 'dim.inner', 'dim.outer', 'dim.area'] as const;
-export type DimensionSort = (typeof dimensionSorts)[number];
+const dimensionSorts = ['dim.width', 'dim.height', 'dim.radius', 'dim.length', 'dim.rx', 'dim.ry', 'dim.inner', 'dim.outer', 'dim.area'] as const;
 
 export const catalogueSorts = ['energy', 'width', 'lifetime', 'quality', 'geometry', 'model', 'date', 'tags', ...dimensionSorts] as const;
 export type CatalogueSort = (typeof catalogueSorts)[number];
@@ -100,7 +99,7 @@ export const CATALOGUE_RANGES = {
 export type RangeName = keyof typeof CATALOGUE_RANGES;
 
 /** The dimension names `dim.NAME.min/max` accepts (server/models/model-figures.ts, GeometryColumns). */
-export const dimensionFilterNames = Object.values(CATALOGUE_RANGES)
+const dimensionFilterNames = Object.values(CATALOGUE_RANGES)
   .map((r) => /^dim\.(\w+)\.min$/.exec(r.min)?.[1])
   .filter((n): n is string => n !== undefined);
 
@@ -169,7 +168,7 @@ export const catalogueFilterSchema = z
   .pipe(catalogueFilterFields);
 
 /** Offset paging stops this many rows deep; deeper pages follow the keyset cursor. */
-export const maxOffsetRows = 10_000;
+const maxOffsetRows = 10_000;
 
 export const countKinds = ['estimate', 'exact'] as const;
 

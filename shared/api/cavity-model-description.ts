@@ -18,7 +18,7 @@ import {
  * `{ kind: string }`; this lists the same primitive schemas as one tagged union. Only
  * the two recursive branches are restated here (the test compares both on samples).
  */
-export const shapeDescription: z.ZodType<Shape> = z
+const shapeDescription: z.ZodType<Shape> = z
   .lazy(() =>
     z.discriminatedUnion('kind', [
       rectangleSchema,

@@ -17,8 +17,7 @@ export type RunKind = (typeof RUN_KINDS)[number];
 export const runKindSchema = z.enum(RUN_KINDS).meta({ id: 'RunKind' });
 
 /** A computation queued apart from runs (peak fits, mode maps): no cancellation. */
-export const JOB_STATUSES = ['queued', 'running', 'completed', 'failed'] as const;
-export type JobStatus = (typeof JOB_STATUSES)[number];
+const JOB_STATUSES = ['queued', 'running', 'completed', 'failed'] as const;
 export const jobStatusSchema = z.enum(JOB_STATUSES);
 
 /** Roles inside one research group; admin can also do what designer and reviewer do. */

@@ -26,11 +26,11 @@ const nonNegative = (what: string) =>
     .finite(`${what} must be finite`)
     .nonnegative(`${what} must not be negative`);
 
-export const fabricationStateSchema = z.enum(FABRICATION_STATES);
-export const fabricationActionSchema = z.enum(FABRICATION_ACTIONS);
+const fabricationStateSchema = z.enum(FABRICATION_STATES);
+const fabricationActionSchema = z.enum(FABRICATION_ACTIONS);
 
 /** The tolerances that matter for the device: how far E may be off, and the least Q that still works. */
-export const tolerancesSchema = z.strictObject({
+const tolerancesSchema = z.strictObject({
   energyMeV: positive('energyMeV').nullable().default(null),
   minQuality: positive('minQuality').nullable().default(null),
 });
@@ -65,7 +65,7 @@ export const transitionBodySchema = z.discriminatedUnion(
 );
 export type TransitionBody = z.infer<typeof transitionBodySchema>;
 
-export const figureComparisonSchema = z.object({
+const figureComparisonSchema = z.object({
   predicted: z.number(),
   measured: z.number(),
   difference: z.number(),
@@ -147,7 +147,7 @@ export const fabricationItemSchema = z.object({
 });
 export type FabricationItem = z.infer<typeof fabricationItemSchema>;
 
-export const fabricationListQuerySchema = z.object({
+const fabricationListQuerySchema = z.object({
   state: z
     .string()
     .optional()
@@ -163,7 +163,7 @@ export const fabricationListQuerySchema = z.object({
       return list as (typeof FABRICATION_STATES)[number][];
     }),
 });
-export const fabricationListSchema = z.object({ items: z.array(fabricationItemSchema) });
+const fabricationListSchema = z.object({ items: z.array(fabricationItemSchema) });
 
 export const commentBodySchema = z.strictObject({
   body: text(4000, 'body'),
@@ -180,7 +180,7 @@ export const commentSchema = z.object({
   createdAt: z.string(),
 });
 export type ResonanceComment = z.infer<typeof commentSchema>;
-export const commentListSchema = z.object({ items: z.array(commentSchema) });
+const commentListSchema = z.object({ items: z.array(commentSchema) });
 
 /** Kinds of e-mail a member can turn off, one by one. */
 export const NOTIFICATION_KINDS = ['candidate_proposed', 'candidate_decided', 'fabrication_progress', 'mentioned', 'run_finished'] as const;
@@ -192,14 +192,14 @@ export const NOTIFICATION_KIND_WORDS: Record<NotificationKind, string> = {
   mentioned: 'Someone mentions me in a comment',
   run_finished: 'My long run finishes or fails',
 };
-export const notificationKindSchema = z.enum(NOTIFICATION_KINDS);
+const notificationKindSchema = z.enum(NOTIFICATION_KINDS);
 
 export const notificationSettingsSchema = z.object({
   kinds: z.array(z.object({ kind: notificationKindSchema, label: z.string(), enabled: z.boolean() })),
 });
 export type NotificationSettings = z.infer<typeof notificationSettingsSchema>;
 /** A partial change: kinds not named keep their setting. */
-export const notificationSettingsBodySchema = z.strictObject({
+const notificationSettingsBodySchema = z.strictObject({
   enabled: z.partialRecord(notificationKindSchema, z.boolean({ error: 'must be true or false' })),
 });
 
@@ -214,7 +214,7 @@ export const failedNotificationSchema = z.object({
   createdAt: z.string(),
 });
 export type FailedNotification = z.infer<typeof failedNotificationSchema>;
-export const failedNotificationListSchema = z.object({ items: z.array(failedNotificationSchema) });
+const failedNotificationListSchema = z.object({ items: z.array(failedNotificationSchema) });
 
 /** The answer of a catalogue import. */
 export const catalogueImportResultSchema = z.object({
@@ -255,7 +255,6 @@ const exportedRowSchema = z.object({
   notes: z.string().max(4000).regex(noNul),
   createdAt: z.string(),
 });
-export type ExportedRow = z.infer<typeof exportedRowSchema>;
 
 export const catalogueExportFileSchema = z.object({
   exportedAt: z.string({ error: 'missing: is this a Poleward catalogue export (JSON)?' }),

@@ -9,7 +9,6 @@ export const numberOrInfinite = () => z.number().nullable().meta({ description: 
 
 /** Who did something; null once the account is gone. */
 export const personRef = z.object({ id: z.uuid(), name: z.string() });
-export type PersonRef = z.infer<typeof personRef>;
 
 export const groupParams = z.object({ groupId: z.uuid() });
 
@@ -25,4 +24,3 @@ export const problemSchema = z
       .meta({ description: 'Only on validation_failed.' }),
   })
   .meta({ id: 'Problem', description: 'Every error answer of the API.' });
-export type Problem = z.infer<typeof problemSchema>;

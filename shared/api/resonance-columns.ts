@@ -9,7 +9,7 @@
  */
 
 /** What the columns read of a resonance: the API's ResonanceRow (shared/api/resonance-row.ts) and the client's copy both fit. */
-export interface ResonanceColumnRow {
+interface ResonanceColumnRow {
   id: string;
   runId: string | null;
   source: string;

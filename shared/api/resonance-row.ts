@@ -2,10 +2,9 @@
 import * as z from 'zod';
 import { timestamp } from './fields.js';
 
-export const RESONANCE_SOURCES = ['computed', 'fitted'] as const;
-export type ResonanceSource = (typeof RESONANCE_SOURCES)[number];
+const RESONANCE_SOURCES = ['computed', 'fitted'] as const;
 
-export const keyDimensionsSchema = z.object({
+const keyDimensionsSchema = z.object({
   width: z.number().optional(),
   height: z.number().optional(),
   radius: z.number().optional(),
@@ -17,10 +16,10 @@ export const keyDimensionsSchema = z.object({
   area: z.number().optional().meta({ description: 'nm²' }),
 });
 
-export const PHYSICS_KINDS = ['electrons', 'microwave'] as const;
+const PHYSICS_KINDS = ['electrons', 'microwave'] as const;
 
 /** Microwave mode: the complex frequency's figures (GHz, MHz, ns, Q = Re f/Γ_f). */
-export const microwaveFiguresSchema = z.object({
+const microwaveFiguresSchema = z.object({
   frequencyGhz: z.number(),
   widthMhz: z.number(),
   lifetimeNs: z.number().nullable(),
@@ -33,7 +32,7 @@ export const microwaveFiguresSchema = z.object({
  * (meV, or mm⁻² in the microwave mode), λ/a at this energy (null: infinite), and whether the
  * resonance lies above the limit (null: not known, e.g. a fit on a gate-voltage axis).
  */
-export const resonanceValiditySchema = z.object({
+const resonanceValiditySchema = z.object({
   limit: z.number().nullable(),
   wavelengthSpacings: z.number().nullable(),
   aboveLimit: z.boolean().nullable(),

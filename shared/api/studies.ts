@@ -8,9 +8,9 @@ import * as z from 'zod';
 import { declareRoute, json, media } from './route.js';
 import { personRef, timestamp } from './fields.js';
 
-export const STUDY_KINDS = ['sweep', 'ensemble'] as const;
-export const STUDY_STATUSES = ['queued', 'running', 'completed', 'failed', 'cancelled'] as const;
-export type StudyStatus = (typeof STUDY_STATUSES)[number];
+const STUDY_KINDS = ['sweep', 'ensemble'] as const;
+const STUDY_STATUSES = ['queued', 'running', 'completed', 'failed', 'cancelled'] as const;
+type StudyStatus = (typeof STUDY_STATUSES)[number];
 export const FINISHED_STUDY_STATUSES: readonly StudyStatus[] = ['completed', 'failed', 'cancelled'];
 
 const modelPath = z
@@ -18,7 +18,7 @@ const modelPath = z
   .regex(/^[A-Za-z0-9_]+(\.[A-Za-z0-9_]+)*$/, 'a dotted path into the model, e.g. field or potential.0.value')
   .max(200);
 
-export const studyWindowSchema = z
+const studyWindowSchema = z
   .object({
     emin: z.number().finite(),
     emax: z.number().finite(),
@@ -40,7 +40,7 @@ export const parameterValuesSchema = z.union([
   z.object({ list: z.array(z.number().finite()).min(1).max(400) }),
 ]);
 
-export const studyParameterSchema = z.object({ path: modelPath, values: parameterValuesSchema });
+const studyParameterSchema = z.object({ path: modelPath, values: parameterValuesSchema });
 
 const range = z.object({ min: z.number().finite().optional(), max: z.number().finite().optional() });
 
@@ -128,7 +128,7 @@ export const studySummarySchema = z.object({
 });
 export type StudySummary = z.infer<typeof studySummarySchema>;
 
-export const studyStepViewSchema = z.object({
+const studyStepViewSchema = z.object({
   index: z.number().int(),
   /** Parameter values of a sweep step; [] for an ensemble realisation. */
   values: z.array(z.number()),
@@ -139,7 +139,6 @@ export const studyStepViewSchema = z.object({
   worker: z.string().nullable(),
   error: z.string().nullable(),
 });
-export type StudyStepView = z.infer<typeof studyStepViewSchema>;
 
 const poleSchema = z.object({
   energy: z.number(),
@@ -151,7 +150,6 @@ const poleSchema = z.object({
   bound: z.boolean(),
   nearThreshold: z.object({ threshold: z.number(), distanceInWidths: z.number() }).nullable(),
 });
-export type StudyPole = z.infer<typeof poleSchema>;
 
 export const trajectoryMarkSchema = z.object({
   kind: z.enum(['crossing', 'avoided-crossing', 'width-exchange']),
@@ -183,7 +181,7 @@ export const trajectorySchema = z.object({
 });
 export type Trajectory = z.infer<typeof trajectorySchema>;
 
-export const transmissionMapSchema = z.object({
+const transmissionMapSchema = z.object({
   /** Column energies (meV), evenly spaced over the window; each value is the largest T sampled within half a column of it. */
   energies: z.array(z.number()),
   /** The lead the transmission leaves from and those it enters (T summed over them); null: fewer than two leads. */
@@ -193,7 +191,6 @@ export const transmissionMapSchema = z.object({
   /** Steps whose adaptive sweep ran out of energies with intervals still flagged (a peak may be lower than drawn). */
   budgetExhaustedSteps: z.array(z.number().int()),
 });
-export type TransmissionMap = z.infer<typeof transmissionMapSchema>;
 
 export const sweepOutcomeSchema = z.object({
   kind: z.literal('sweep'),
@@ -230,7 +227,7 @@ const distributionSchema = z.object({
   histogram: z.object({ edges: z.array(z.number()), counts: z.array(z.number().int()) }),
 });
 
-export const ensembleSampleSchema = z.object({
+const ensembleSampleSchema = z.object({
   realisation: z.number().int(),
   seed: z.number().int(),
   followed: z.boolean(),
@@ -250,7 +247,6 @@ export const ensembleSampleSchema = z.object({
     disorderSeeds: z.array(z.number().int()),
   }),
 });
-export type EnsembleSample = z.infer<typeof ensembleSampleSchema>;
 
 export const ensembleOutcomeSchema = z.object({
   kind: z.literal('ensemble'),

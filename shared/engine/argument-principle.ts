@@ -17,7 +17,7 @@ import { PANEL_ORDER, splitRefInto, traverse, type Contour, type Panel } from '.
  * enough that node spacing tracks the distance of nearby poles, which the contour
  * integral needs too (common practice, no source).
  */
-export const PHASE_LIMIT = Math.PI / 4;
+const PHASE_LIMIT = Math.PI / 4;
 
 export interface WindingCount {
   /** The settled winding number, or null when the node budget ran out first. */
@@ -34,9 +34,9 @@ export interface WindingCount {
  * det T(z)/Π(z − z_k) winds (count − found inside) times and, once the zeros near the
  * contour are known, its phase is smooth, so far fewer nodes settle the count.
  */
-export type PhaseShift = (zRe: number, zIm: number) => number;
+type PhaseShift = (zRe: number, zIm: number) => number;
 
-export interface SettleOptions {
+interface SettleOptions {
   /** Phase taken off every node before the steps are checked. */
   shift?: PhaseShift;
   /** Called each round once all panels are evaluated, before the check (it may change `shift`'s zeros). */
@@ -45,7 +45,7 @@ export interface SettleOptions {
 }
 
 /** Evaluates the nodes of one panel (one LU per node); false when the node budget is spent. */
-export type PanelEvaluator = (panel: Panel) => boolean;
+type PanelEvaluator = (panel: Panel) => boolean;
 
 /**
  * Phase steps between consecutive nodes of an evaluated contour (the last entry
@@ -79,7 +79,7 @@ export function wrapPhase(d: number): number {
  * true once they are all evaluated, false when the node budget does not allow it),
  * or a pause before the phase check (the pole search refines candidates there).
  */
-export type SettleRequest = { kind: 'panels'; panels: Panel[] } | { kind: 'check' };
+type SettleRequest = { kind: 'panels'; panels: Panel[] } | { kind: 'check' };
 
 /**
  * Refines the contour in place until every phase step is below PHASE_LIMIT and the

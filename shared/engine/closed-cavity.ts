@@ -15,7 +15,7 @@ import { SingularMatrixError, SparseLuPlan, type SparseLuFactors } from './spars
 import { applyHamiltonian, hamiltonianCsc, type CavityLattice } from './lattice';
 import { siteUniform } from '../model/site-noise';
 
-export interface ClosedCavityOptions extends WorkControl {
+interface ClosedCavityOptions extends WorkControl {
   /** Target energy σ (meV). */
   target: number;
   /** Number of eigenvalues wanted (clipped to the number of sites). */
@@ -30,7 +30,7 @@ export interface ClosedCavityOptions extends WorkControl {
   seed?: number;
 }
 
-export interface ClosedCavityResult {
+interface ClosedCavityResult {
   /** The `count` eigenvalues nearest the target, ascending (meV). */
   energies: number[];
   /** ‖Hx − λx‖ of each returned pair (meV). */

@@ -18,7 +18,7 @@ import { complexEigenvalues } from './complex-eigenvalues';
 import { complexSvd } from './complex-svd';
 import { traverse, type Contour } from './contour';
 
-export interface ContourEigenvalues {
+interface ContourEigenvalues {
   /** Candidate eigenvalues z (interleaved re, im), unrefined. */
   values: Float64Array;
   /** Singular values of H0, descending. */

@@ -64,8 +64,8 @@ export interface Contour {
 const GAUSS = gaussLegendre(PANEL_ORDER);
 
 /** Gauss–Legendre nodes (ascending, on [−1, 1]) and weights of the panel rule. */
-export const gaussNodes: Float64Array = GAUSS.x;
-export const gaussWeights: Float64Array = GAUSS.w;
+const gaussNodes: Float64Array = GAUSS.x;
+const gaussWeights: Float64Array = GAUSS.w;
 
 /**
  * A panel rule on [0, 1] in the panel's own parameter τ (z = a + (b − a)τ):
@@ -127,7 +127,7 @@ export function gaussLegendre(q: number): { x: Float64Array; w: Float64Array } {
 }
 
 /** How to cut one edge of the rectangle into panels. */
-export interface EdgeGrading {
+interface EdgeGrading {
   /** Longest panel allowed (meV). */
   maxPanel: number;
   /**
@@ -175,7 +175,7 @@ export function rectangleContour(
  * Panels are stored bottom-to-top and referenced reversed when traversed downward,
  * so a cut shared by two contours can use the same panels in both directions.
  */
-export function verticalEdge(x: number, y0: number, y1: number, grading: EdgeGrading, downward: boolean): PanelRef[] {
+function verticalEdge(x: number, y0: number, y1: number, grading: EdgeGrading, downward: boolean): PanelRef[] {
   if (grading.branchOnEdge && y0 < 0 && y1 > 0) {
     const up: Panel[] = [];
     const below = uniformBreaks(y0, 0, grading.maxPanel);

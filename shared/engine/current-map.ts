@@ -30,7 +30,7 @@ export interface LeadCoupling {
   selfEnergy: Float64Array;
 }
 
-export interface CurrentMap {
+interface CurrentMap {
   /** J(from → to) on each lattice bond (lattice.bonds order). */
   bonds: Float64Array;
   /** (j_x, j_y) per site, interleaved. */

@@ -15,7 +15,7 @@
  *
  * Cost: 8·(q1−q0)·(m − q0) real flops, about.
  */
-export function eliminateColumn(f: Float64Array, m: number, j: number, q0: number, q1: number): void {
+function eliminateColumn(f: Float64Array, m: number, j: number, q0: number, q1: number): void {
   const cj = 2 * j * m;
   const end = 2 * m;
   let q = q0;
@@ -67,7 +67,7 @@ export function eliminateColumn(f: Float64Array, m: number, j: number, q0: numbe
  * multiplier loaded from F serves two columns, which makes the trailing update
  * about a third faster in V8 than one column at a time (measured, 320×320 front).
  */
-export function eliminateColumnPair(f: Float64Array, m: number, j: number, q0: number, q1: number): void {
+function eliminateColumnPair(f: Float64Array, m: number, j: number, q0: number, q1: number): void {
   const cj = 2 * j * m;
   const ck = cj + 2 * m;
   const end = 2 * m;

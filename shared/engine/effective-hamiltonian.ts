@@ -117,7 +117,7 @@ export function buildCavitySystem(doc: unknown): CavitySystem {
 }
 
 /** Open-channel coupling vectors W (columns sqrt(2t sin k_m)·e^{−iθ_p}χ_m(p) on each mouth). */
-export interface CouplingColumns {
+interface CouplingColumns {
   /** Total number of open channels (columns). */
   count: number;
   /** Column-major n × count, interleaved complex. */

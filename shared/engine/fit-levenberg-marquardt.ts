@@ -21,7 +21,7 @@
  */
 import { CholeskyDecomposition, Matrix, solve as solveLinear } from 'ml-matrix';
 
-export interface LeastSquaresProblem {
+interface LeastSquaresProblem {
   /** Number of residuals. */
   n: number;
   /** Writes f(u) into out (length n). */
@@ -31,7 +31,7 @@ export interface LeastSquaresProblem {
   hi: number[];
 }
 
-export interface LeastSquaresResult {
+interface LeastSquaresResult {
   u: number[];
   chiSquare: number;
   iterations: number;

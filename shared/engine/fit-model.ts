@@ -28,11 +28,11 @@ export interface ParameterInfo {
   unit: string;
 }
 
-export function backgroundCount(spec: FitModelSpec): number {
+function backgroundCount(spec: FitModelSpec): number {
   return spec.background === 'linear' ? 2 : 1;
 }
 
-export function perPeakCount(spec: FitModelSpec): number {
+function perPeakCount(spec: FitModelSpec): number {
   return hasAsymmetry(spec.lineshape) ? 4 : 3;
 }
 

@@ -7,7 +7,7 @@
 import { THERMAL_FWHM_PER_KT, hasAsymmetry, isThermal } from './fit-lineshapes.js';
 import { parameterCount, peakOffset, type FitModelSpec } from './fit-model.js';
 
-export interface PeakGuess {
+interface PeakGuess {
   energy: number;
   /** Full width at half deviation, meV. */
   width: number;
@@ -41,7 +41,7 @@ function smooth(y: ArrayLike<number>, h: number): Float64Array {
  * The `count` most prominent peaks or dips of y(x) (x ascending), largest deviation first,
  * each at least one of its own widths away from those already taken.
  */
-export function detectPeaks(x: ArrayLike<number>, y: ArrayLike<number>, count: number): PeakGuess[] {
+function detectPeaks(x: ArrayLike<number>, y: ArrayLike<number>, count: number): PeakGuess[] {
   const n = x.length;
   const base = median(y);
   const d = smooth(
@@ -68,7 +68,7 @@ export function detectPeaks(x: ArrayLike<number>, y: ArrayLike<number>, count: n
   return taken.sort((a, b) => a.energy - b.energy);
 }
 
-export interface FitStart {
+interface FitStart {
   values: number[];
   min: number[];
   max: number[];

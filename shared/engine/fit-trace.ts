@@ -26,7 +26,7 @@ const SPIN = 2;
 /** Largest trace file accepted (bytes), by the API and the command line alike. */
 export const TRACE_MAX_BYTES = 2 * 1024 * 1024;
 /** A fit needs at least this many points. */
-export const MIN_TRACE_POINTS = 8;
+const MIN_TRACE_POINTS = 8;
 
 export interface TraceSelection {
   /** Column name (as in the header) or 1-based column number. */
@@ -43,7 +43,7 @@ export interface TraceSelection {
   range?: { from: number; to: number };
 }
 
-export interface TraceProblem {
+interface TraceProblem {
   /** 1-based line of the file; null when the problem is not on one line. */
   line: number | null;
   /** Column name, or null. */
@@ -58,7 +58,7 @@ export class TraceError extends Error {
   }
 }
 
-export interface ParsedTable {
+interface ParsedTable {
   /** Column names: the header's, or "column 1", "column 2"… when the file has none. */
   columns: string[];
   hasHeader: boolean;
@@ -67,7 +67,7 @@ export interface ParsedTable {
   rows: { line: number; cells: string[] }[];
 }
 
-export interface SelectedTrace {
+interface SelectedTrace {
   /** Energies, meV, ascending. */
   x: number[];
   /** Transmission T. */
@@ -119,14 +119,14 @@ function columnIndex(table: ParsedTable, wanted: string, role: 'x' | 'y'): numbe
 }
 
 /** x in the file's unit → meV. */
-export function energyFromColumn(value: number, unit: TraceXUnit, leverArm?: number): number {
+function energyFromColumn(value: number, unit: TraceXUnit, leverArm?: number): number {
   if (unit === 'meV') return value;
   if (unit === 'ueV') return value / 1000;
   return value * (leverArm as number);
 }
 
 /** y in the file's unit → transmission T. */
-export function transmissionFromColumn(value: number, unit: TraceYUnit): number {
+function transmissionFromColumn(value: number, unit: TraceYUnit): number {
   if (unit === 'T') return value;
   if (unit === 'e2h') return value / SPIN;
   if (unit === '2e2h') return value;

@@ -76,7 +76,7 @@ export interface FittedPeak {
   fwhm: number | null;
 }
 
-export type FitWarningCode = 'not_converged' | 'at_bound' | 'undetermined' | 'thermal_width' | 'overlapping_peaks' | 'few_points';
+type FitWarningCode = 'not_converged' | 'at_bound' | 'undetermined' | 'thermal_width' | 'overlapping_peaks' | 'few_points';
 
 export interface FitWarning {
   code: FitWarningCode;

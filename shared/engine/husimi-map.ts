@@ -41,7 +41,7 @@ export interface HusimiOptions {
   onProgress?: (fraction: number) => void;
 }
 
-export interface HusimiPeak {
+interface HusimiPeak {
   /** Index of the sample point. */
   point: number;
   /** Direction (rad, from +x counterclockwise, in (−π, π]). */
@@ -52,7 +52,7 @@ export interface HusimiPeak {
   value: number;
 }
 
-export interface HusimiMap {
+interface HusimiMap {
   energy: number;
   sigmaNm: number;
   gridNm: number;

@@ -22,7 +22,7 @@ export class SolveScratch {
 }
 
 /** Storage a released factorisation hands to the next factor() of its plan. */
-export interface FactorStorage {
+interface FactorStorage {
   store: Float64Array;
   index: Int32Array;
   valOff: Float64Array;

@@ -9,7 +9,7 @@ import type { CavitySystem } from './effective-hamiltonian';
 import { husimiMap, type HusimiOptions } from './husimi-map';
 import type { ModeState } from './mode-state';
 
-export interface StateSummary {
+interface StateSummary {
   kind: ModeState['kind'];
   energy: number;
   width: number;
@@ -19,7 +19,7 @@ export interface StateSummary {
   label: string;
 }
 
-export interface CurrentReport {
+interface CurrentReport {
   state: StateSummary;
   unit: ModeState['unit'];
   spacingNm: number;
@@ -87,7 +87,7 @@ export function currentReport(system: CavitySystem, state: ModeState): CurrentRe
   };
 }
 
-export interface HusimiReport {
+interface HusimiReport {
   state: StateSummary;
   sigmaNm: number;
   gridNm: number;

@@ -114,7 +114,7 @@ function petermann(l: Float64Array, r: Float64Array): number {
  * ψ normalised to Σ|ψ|² = 1 and rotated so its largest-magnitude site is real
  * positive; ties within 1e-9 relative go to the first site in (i, j) order (contract).
  */
-export function modeImage(op: NonlinearOperator, psi: Float64Array): Float64Array {
+function modeImage(op: NonlinearOperator, psi: Float64Array): Float64Array {
   const out = Float64Array.from(psi);
   normalise(out);
   let maxAbs = 0;

@@ -29,7 +29,7 @@ export interface FoundPole extends RefinedPole {
 }
 
 /** The window's pieces, the thresholds that cut it, and intervals too narrow to search. */
-export interface WindowPieces {
+interface WindowPieces {
   pieces: Piece[];
   cuts: number[];
   skipped: string[];

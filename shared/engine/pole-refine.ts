@@ -12,7 +12,7 @@
 import type { NonlinearOperator, SheetFlags } from './operator';
 import type { PoleFactorPlan, PoleFactors } from './pole-types';
 
-export interface RefineSetting {
+interface RefineSetting {
   op: NonlinearOperator;
   plan: PoleFactorPlan;
   sheet: SheetFlags;
@@ -142,7 +142,7 @@ export function factorNear(op: NonlinearOperator, plan: PoleFactorPlan, zRe: num
  * is near machine precision for an exact eigenpair whatever the energy scale.
  * Uses `values` and `out` as scratch. Cost O(nnz).
  */
-export function relativeResidual(
+function relativeResidual(
   op: NonlinearOperator,
   sheet: SheetFlags,
   zRe: number,
@@ -169,7 +169,7 @@ export function relativeResidual(
 }
 
 /** out = A·x for A with op's CSC pattern and the given values (interleaved). Cost O(nnz). */
-export function cscMultiply(op: NonlinearOperator, values: Float64Array, x: Float64Array, out: Float64Array): Float64Array {
+function cscMultiply(op: NonlinearOperator, values: Float64Array, x: Float64Array, out: Float64Array): Float64Array {
   out.fill(0);
   const { colPtr, rowIdx } = op;
   for (let j = 0; j < op.n; j++) {

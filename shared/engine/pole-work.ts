@@ -53,7 +53,7 @@ export interface PoleWork {
 }
 
 /** Newton steps allowed per candidate. */
-export const REFINE_STEPS = 8;
+const REFINE_STEPS = 8;
 
 /**
  * The probe blocks of a search: ℓ right and ℓ left random vectors (column-major n×ℓ,

@@ -29,10 +29,7 @@ import { windowPieces, type FoundPole, type Piece } from './pole-pieces';
 import { searchPiece, type SearchState, type Steps, type WorkAnswer } from './pole-piece-search';
 import type { PoleFactorPlan, PoleSearchOptions, PoleSearchResult, PoleWindow } from './pole-types';
 
-export type { CertificatePiece, Pole, PoleSearchOptions, PoleSearchResult, PoleWindow } from './pole-types';
-export type { PoleWork, PoleWorkSetup } from './pole-work';
-export { modeImage } from './pole-certificate';
-
+export type { PoleSearchResult, PoleWindow } from './pole-types';
 /**
  * Finds and certifies every pole of `op` in `window`, on this thread.
  * @throws RangeError naming the bad field when the window or an option is invalid

@@ -16,7 +16,7 @@ import type { EffectiveHamiltonian } from './effective-hamiltonian';
 import { SparseLuPlan } from './sparse-lu';
 import type { SheetFlags } from './operator';
 
-export interface ScatteringState {
+interface ScatteringState {
   energy: number;
   /** Injecting lead index and its 1-based channel. */
   lead: number;
@@ -28,7 +28,7 @@ export interface ScatteringState {
   sheet: SheetFlags;
 }
 
-export interface ScatteringStates {
+interface ScatteringStates {
   energy: number;
   sheet: SheetFlags;
   states: ScatteringState[];

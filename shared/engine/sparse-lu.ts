@@ -60,7 +60,7 @@ import { invertPermutation, nestedDissectionOrder, symmetricAdjacency } from './
 export { SingularMatrixError } from './lu-numeric-factorisation';
 export type { SparseLuFactors } from './lu-solves';
 
-export interface LuPlanOptions {
+interface LuPlanOptions {
   /** Lattice coordinates (column i, row j) of every unknown → geometric nested dissection. */
   sites?: { i: Int32Array; j: Int32Array };
   /** An elimination order to use instead of computing one: perm[k] = original index of the k-th pivot. */

@@ -15,7 +15,7 @@ import { MouthInterpolation, type MouthInterpolationOptions } from './mouth-inte
 import { MouthSpectral, type MouthSpectralOptions, type MouthSpectralSummary } from './mouth-spectral';
 import { mouthOrder, pointFromMouth, scatteringPoint, type TransmissionPoint } from './scattering-point';
 
-export { mouthOrder, pointFromMouth, type TransmissionPoint } from './scattering-point';
+export { type TransmissionPoint } from './scattering-point';
 
 /** A reusable evaluator: one symbolic analysis of T's pattern serves every energy. */
 export class TransmissionSolver {
@@ -121,7 +121,7 @@ export function transmissionAt(op: EffectiveHamiltonian, energy: number, withS =
   return new TransmissionSolver(op).at(energy, withS);
 }
 
-export interface SweepRefinement {
+interface SweepRefinement {
   /** Largest total number of energies, grid included. */
   maxPoints: number;
   /** Largest change of any T(ℓ→ℓ') or R_ℓ allowed between neighbouring energies, and between a
@@ -141,7 +141,7 @@ export interface SweepRefinement {
   probeTolerance?: number;
 }
 
-export interface SweepRequest {
+interface SweepRequest {
   emin: number;
   emax: number;
   /** Points of the uniform grid (≥ 2), both ends included. */
@@ -164,7 +164,7 @@ export interface SweepRequest {
   spectral?: boolean | MouthSpectralOptions;
 }
 
-export interface TransmissionSweep {
+interface TransmissionSweep {
   /** Samples sorted by energy. */
   points: TransmissionPoint[];
   /** Size of the uniform grid and how many refinement passes ran. */

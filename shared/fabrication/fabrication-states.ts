@@ -17,7 +17,7 @@ export type FabricationAction = (typeof FABRICATION_ACTIONS)[number];
 /** Roles of a group member; admin may do whatever any other role may. */
 export type MemberRole = 'admin' | 'designer' | 'reviewer' | 'viewer';
 
-export interface FabricationTransition {
+interface FabricationTransition {
   action: FabricationAction;
   /** States the action starts from; null = not proposed. */
   from: readonly (FabricationState | null)[];
@@ -30,7 +30,7 @@ export interface FabricationTransition {
   label: string;
 }
 
-export const FABRICATION_TRANSITIONS: readonly FabricationTransition[] = [
+const FABRICATION_TRANSITIONS: readonly FabricationTransition[] = [
   { action: 'propose', from: [null, 'rejected'], to: 'candidate', roles: ['designer'], notByProposer: false, label: 'propose as candidate' },
   { action: 'start_review', from: ['candidate'], to: 'under_review', roles: ['reviewer'], notByProposer: true, label: 'start review' },
   { action: 'approve', from: ['candidate', 'under_review'], to: 'approved', roles: ['reviewer'], notByProposer: true, label: 'approve' },
@@ -41,7 +41,7 @@ export const FABRICATION_TRANSITIONS: readonly FabricationTransition[] = [
 ];
 
 /** Words for a state in messages and on screen. */
-export const STATE_WORDS: Record<FabricationState, string> = {
+const STATE_WORDS: Record<FabricationState, string> = {
   candidate: 'candidate',
   under_review: 'under review',
   approved: 'approved',
@@ -61,11 +61,11 @@ export function transitionOf(action: FabricationAction): FabricationTransition {
 }
 
 /** The transitions that start from this state, whoever may take them. */
-export function transitionsFrom(state: FabricationState | null): FabricationTransition[] {
+function transitionsFrom(state: FabricationState | null): FabricationTransition[] {
   return FABRICATION_TRANSITIONS.filter((t) => t.from.includes(state));
 }
 
-export function roleMayTake(role: MemberRole, t: FabricationTransition): boolean {
+function roleMayTake(role: MemberRole, t: FabricationTransition): boolean {
   return role === 'admin' || t.roles.includes(role);
 }
 
@@ -76,7 +76,7 @@ export function actionsFor(state: FabricationState | null, role: MemberRole, cal
     .map((t) => t.action);
 }
 
-export type TransitionRefusal = { ok: true; transition: FabricationTransition } | { ok: false; status: 403 | 409; code: string; message: string };
+type TransitionRefusal = { ok: true; transition: FabricationTransition } | { ok: false; status: 403 | 409; code: string; message: string };
 
 /**
  * Whether `action` may be taken now: the role first (403), then the state (409, saying what

@@ -3,7 +3,7 @@
  * prediction, and in units of the measurement's standard uncertainty (the fit's σ), when
  * one is known. Plain arithmetic, common practice, no source.
  */
-export interface FigureComparison {
+interface FigureComparison {
   predicted: number;
   measured: number;
   /** measured − predicted, same unit. */

@@ -8,14 +8,14 @@
  */
 import type { Ring } from './polygon';
 
-export interface GdsiiBoundary {
+interface GdsiiBoundary {
   layer: number;
   datatype: number;
   /** Vertices in database units (integers), not closed. */
   ring: Ring;
 }
 
-export interface GdsiiLibrary {
+interface GdsiiLibrary {
   libraryName: string;
   structureName: string;
   /** User units per database unit (1e-3: database unit 1 nm, user unit 1 µm). */
@@ -28,7 +28,7 @@ export interface GdsiiLibrary {
 }
 
 /** Largest number of distinct vertices of one boundary (8191 points including the closing one). */
-export const GDSII_MAX_VERTICES = 8190;
+const GDSII_MAX_VERTICES = 8190;
 
 /** Record type and data type, as one u16. */
 const Rec = {

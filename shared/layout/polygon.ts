@@ -25,7 +25,7 @@ export function containsPoint(ring: readonly Point[], x: number, y: number): boo
 }
 
 /** Drops vertices that repeat their predecessor (cyclically). */
-export function withoutRepeats(ring: Ring): Ring {
+function withoutRepeats(ring: Ring): Ring {
   const out: Ring = [];
   for (const p of ring) {
     const last = out[out.length - 1];

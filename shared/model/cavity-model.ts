@@ -137,7 +137,7 @@ export const shapeSchema: z.ZodType<Shape> = z.lazy(() =>
     ),
 ) as unknown as z.ZodType<Shape>;
 
-export const blockPotentialSchema = z.object({
+const blockPotentialSchema = z.object({
   kind: z.literal('block'),
   x0: finite(),
   y0: finite(),
@@ -146,7 +146,7 @@ export const blockPotentialSchema = z.object({
   /** Added potential (meV). */
   value: finite(),
 });
-export const gaussianPotentialSchema = z.object({
+const gaussianPotentialSchema = z.object({
   kind: z.literal('gaussian'),
   cx: finite(),
   cy: finite(),
@@ -154,13 +154,13 @@ export const gaussianPotentialSchema = z.object({
   /** Peak value (meV); V = A·exp(−r²/(2σ²)). */
   amplitude: finite(),
 });
-export const disorderPotentialSchema = z.object({
+const disorderPotentialSchema = z.object({
   kind: z.literal('disorder'),
   /** Anderson strength W (meV): V uniform in [−W/2, W/2] on each site. */
   strength: nonNegative(),
   seed: z.number().int().min(0).max(0xffffffff),
 });
-export const sitePotentialSchema = z.object({
+const sitePotentialSchema = z.object({
   kind: z.literal('sites'),
   /** Explicit [i, j, V (meV)] entries, added to the other terms. */
   values: z.array(z.tuple([siteIndex(), siteIndex(), finite()])).min(1),
@@ -183,13 +183,13 @@ export const leadSchema = z.object({
 export type Lead = z.infer<typeof leadSchema>;
 
 /** Today's lattice: square, spacing `spacing`, t from the material's effective mass. */
-export const squareLatticeSchema = z.object({ kind: z.literal('square') });
+const squareLatticeSchema = z.object({ kind: z.literal('square') });
 /**
  * The honeycomb lattice of graphene (docs/physics-model.md, "Lattices"): `spacing` is the
  * carbon–carbon distance a_CC (nm); the energies of this block are in eV, as the
  * tight-binding literature quotes them (every other energy of the document stays in meV).
  */
-export const honeycombLatticeSchema = z.object({
+const honeycombLatticeSchema = z.object({
   kind: z.literal('honeycomb'),
   /** Nearest-neighbour hopping t (eV), H[s',s] = −t. */
   hopping: positive(),
@@ -200,13 +200,12 @@ export const honeycombLatticeSchema = z.object({
   /** Remove atoms with fewer than two neighbours in the cavity, repeatedly (the clean-up of an etched edge). */
   removeDangling: z.boolean().default(false),
 });
-export const latticeSchema = z.discriminatedUnion('kind', [squareLatticeSchema, honeycombLatticeSchema], {
+const latticeSchema = z.discriminatedUnion('kind', [squareLatticeSchema, honeycombLatticeSchema], {
   error: 'lattice.kind must be "square" or "honeycomb"',
 });
-export type LatticeChoice = z.infer<typeof latticeSchema>;
-export type HoneycombLattice = z.infer<typeof honeycombLatticeSchema>;
+type LatticeChoice = z.infer<typeof latticeSchema>;
 
-export const materialSchema = z.union([z.string().min(1), z.object({ effectiveMass: positive() })]);
+const materialSchema = z.union([z.string().min(1), z.object({ effectiveMass: positive() })]);
 
 export const cavityModelSchema = z.object({
   name: z.string().min(1, 'name is empty').max(200),

@@ -77,7 +77,7 @@ export function dispersionError(energy: number, hopping: number): number {
 }
 
 /** Lattice wavelength 2π/k (nm) at kinetic energy E on a 1D lattice of spacing a. */
-export function latticeWavelength(energy: number, hopping: number, spacing: number): number {
+function latticeWavelength(energy: number, hopping: number, spacing: number): number {
   if (energy <= 0) return Infinity;
   const c = 1 - energy / (2 * hopping);
   if (c < -1) return NaN;
@@ -108,7 +108,7 @@ export function energyValidity(energy: number, hopping: number, spacing: number,
 }
 
 /** Warn when |E − E_D| exceeds this fraction of t: the Dirac cone is visibly warped there. */
-export const DIRAC_CEILING_OVER_T = 0.25;
+const DIRAC_CEILING_OVER_T = 0.25;
 
 /**
  * Validity of the Dirac (continuum) picture on the honeycomb at energy E: the relative error of
@@ -116,7 +116,7 @@ export const DIRAC_CEILING_OVER_T = 0.25;
  * of trigonal warping; Castro Neto et al., Rev. Mod. Phys. 81, 109 (2009), §II.A, from memory), and the wavelength 2πħv_F/|E − E_D|. The tight-binding results
  * themselves need no such limit: this is about reading them with the continuum formulas.
  */
-export function diracValidity(energy: number, hopping: number, acc: number, diracEnergy: number): EnergyValidity {
+function diracValidity(energy: number, hopping: number, acc: number, diracEnergy: number): EnergyValidity {
   const e = Math.abs(energy - diracEnergy);
   const hv = 1.5 * hopping * acc;
   // On the k_x axis f = 1 + 2cos(√3·k_x·a_CC/2), zero at K = 4π/(3√3·a_CC), 3 at Γ; bisection on q.

@@ -317,7 +317,7 @@ export function rasteriseShape(shape: Shape, nx: number, ny: number, a: number, 
 }
 
 /** One 4-connected piece of the cavity: its size and its first site in (i, j) order. */
-export interface CavityComponent {
+interface CavityComponent {
   size: number;
   firstI: number;
   firstJ: number;

@@ -3,7 +3,7 @@
  * property the lattice model uses (t = (ħ²/2m_e)/(m* / m_e)/a²).
  */
 
-export interface MaterialPreset {
+interface MaterialPreset {
   /** Stable id used in model documents. */
   id: string;
   /** Human-readable name for the editor. */
@@ -60,7 +60,7 @@ export function findMaterial(id: string): MaterialPreset | undefined {
 }
 
 /** A honeycomb-lattice material: the carbon–carbon distance and the hopping, with where they come from. */
-export interface HoneycombPreset {
+interface HoneycombPreset {
   id: string;
   label: string;
   /** Carbon–carbon distance a_CC (nm). */
@@ -72,7 +72,7 @@ export interface HoneycombPreset {
   source: string;
 }
 
-export const HONEYCOMB_PRESETS: readonly HoneycombPreset[] = [
+const HONEYCOMB_PRESETS: readonly HoneycombPreset[] = [
   {
     id: 'graphene',
     label: 'Graphene (nearest-neighbour tight binding)',
@@ -85,7 +85,10 @@ export const HONEYCOMB_PRESETS: readonly HoneycombPreset[] = [
   },
 ];
 
-/** The honeycomb preset with this id, or undefined. */
+/**
+ * The honeycomb preset with this id, or undefined.
+ * @public for the model editor's lattice choice (issue 15), which is not built yet.
+ */
 export function findHoneycombPreset(id: string): HoneycombPreset | undefined {
   return HONEYCOMB_PRESETS.find((m) => m.id === id);
 }

@@ -10,7 +10,7 @@ import { connectedComponents, mouthSites, rasteriseShape, rasterWork } from './g
 import { findMaterial, MATERIAL_PRESETS } from './materials';
 import type { ModelIssue } from './model-issue';
 
-export type ModelValidation = { ok: true; model: CavityModel; issues: []; mask: Uint8Array; siteCount: number } | { ok: false; issues: ModelIssue[] };
+type ModelValidation = { ok: true; model: CavityModel; issues: []; mask: Uint8Array; siteCount: number } | { ok: false; issues: ModelIssue[] };
 
 /** The rules of the microwave mode: no material, field, potential or lead offset (none has a meaning there). */
 function checkPhysicsMode(model: CavityModel, doc: unknown, issues: ModelIssue[]): void {

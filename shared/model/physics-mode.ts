@@ -11,8 +11,8 @@
  */
 import * as z from 'zod';
 
-export const electronPhysicsSchema = z.object({ kind: z.literal('electrons') });
-export const microwavePhysicsSchema = z.object({
+const electronPhysicsSchema = z.object({ kind: z.literal('electrons') });
+const microwavePhysicsSchema = z.object({
   kind: z.literal('microwave'),
   /** Relative permittivity ε_r of the filling (1 for air). */
   permittivity: z.number().finite().min(1, 'the relative permittivity ε_r is at least 1').max(1000, 'ε_r above 1000 is not a microwave filling').default(1),
@@ -26,11 +26,10 @@ export const physicsSchema = z
   .default({ kind: 'electrons' });
 
 export type Physics = z.infer<typeof physicsSchema>;
-export type MicrowavePhysics = z.infer<typeof microwavePhysicsSchema>;
 export type PhysicsKind = Physics['kind'];
 
 /** Units of a physics mode's document and raw engine figures, for messages and labels. */
-export interface PhysicsUnits {
+interface PhysicsUnits {
   length: 'nm' | 'mm';
   /** Unit of z = E (meV) or k² (mm⁻²). */
   energy: 'meV' | 'mm⁻²';

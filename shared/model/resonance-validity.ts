@@ -21,7 +21,7 @@ export interface ResonancePhysics {
   permittivity: number;
 }
 
-export interface ResonanceValidity {
+interface ResonanceValidity {
   /** Energy below which the lattice is trusted (model's energy unit). */
   limit: number;
   /** λ/a at the resonance's largest local kinetic energy; null when infinite (at or below the band bottom). */
@@ -69,7 +69,7 @@ export function validityLimit(hopping: number, lowestOffset: number): number {
 }
 
 /** λ/a = 2π/(k a) with cos(k a) = 1 − E_kin/(2t), the largest E_kin = E − lowestOffset; 2 above the 1D band top. */
-export function wavelengthSpacings(energy: number, p: Pick<ResonancePhysics, 'hopping' | 'lowestOffset'>): number | null {
+function wavelengthSpacings(energy: number, p: Pick<ResonancePhysics, 'hopping' | 'lowestOffset'>): number | null {
   const kinetic = energy - p.lowestOffset;
   if (kinetic <= 0) return null;
   const c = 1 - kinetic / (2 * p.hopping);
@@ -82,7 +82,7 @@ export function resonanceValidity(energy: number, p: ResonancePhysics): Resonanc
 }
 
 /** Figures a catalogued resonance stores beside E and Γ. */
-export interface ResonanceFigures {
+interface ResonanceFigures {
   validity: ResonanceValidity;
   physics: PhysicsKind;
   /** Re f (GHz) in the microwave mode, else null. */

@@ -8,7 +8,7 @@
 export const HBAR_MEV_PS = 0.6582119569;
 
 /** ħ²/(2 m_e) in meV·nm² (CODATA 2018 ħ, m_e; the contract rounds to 7 digits). */
-export const HBAR2_OVER_2ME_MEV_NM2 = 38.09982;
+const HBAR2_OVER_2ME_MEV_NM2 = 38.09982;
 
 /** Flux quantum h/e in T·nm² (CODATA 2018: 4.135667696e-15 Wb). */
 export const FLUX_QUANTUM_T_NM2 = 4135.667696;
@@ -22,7 +22,7 @@ export const SPEED_OF_LIGHT_M_S = 299_792_458;
  * ħe/m_e = 2·(ħ²/2m_e)·2π / (h/e) because ħ/e = (h/e)/(2π).
  * Value ≈ 0.1157676 meV/T (CODATA 2018 gives 2 μ_B = 0.115767636 meV/T).
  */
-export const CYCLOTRON_MEV_PER_T_FREE = (2 * HBAR2_OVER_2ME_MEV_NM2 * 2 * Math.PI) / FLUX_QUANTUM_T_NM2;
+const CYCLOTRON_MEV_PER_T_FREE = (2 * HBAR2_OVER_2ME_MEV_NM2 * 2 * Math.PI) / FLUX_QUANTUM_T_NM2;
 
 /**
  * Hopping energy t = (ħ²/2m_e)/(m* / m_e)/a² in meV of the effective-mass finite

@@ -10,7 +10,7 @@ import { SPEED_OF_LIGHT_M_S } from './constants';
 /** c in mm per ns (= mm·GHz): f (GHz) = C_MM_PER_NS · k (1/mm) / (2π√ε_r). */
 export const C_MM_PER_NS = SPEED_OF_LIGHT_M_S * 1e-6;
 
-export interface MicrowaveFigures {
+interface MicrowaveFigures {
   /** Re f (GHz). */
   frequencyGhz: number;
   /** Γ_f = 2|Im f| (MHz): the full width at half maximum of the power peak. */

@@ -57,7 +57,7 @@ export function zigzagRibbonCell(chains: number, t: number): LeadCellBlocks {
 }
 
 /** The cell's Hermitian conjugate hopping: the cell of the same ribbon seen as a lead along −x. */
-export function reversedCell(cell: LeadCellBlocks): LeadCellBlocks {
+function reversedCell(cell: LeadCellBlocks): LeadCellBlocks {
   const n = cell.size;
   const h1 = new Float64Array(2 * n * n);
   for (let i = 0; i < n; i++)
@@ -69,7 +69,7 @@ export function reversedCell(cell: LeadCellBlocks): LeadCellBlocks {
 }
 
 /** A piece of L cells of a ribbon (cells 0..L−1 along +x) with extra on-site energies, and its two leads. */
-export interface RibbonDevice {
+interface RibbonDevice {
   n: number;
   h: Float64Array;
   leads: { lead: NumericalLead; mouth: number[] }[];
@@ -115,7 +115,7 @@ export function ribbonDevice(cell: LeadCellBlocks, length: number, potential: (c
 }
 
 /** S-matrix, transmissions and residuals at a real energy (contract's S = −1 + i·W†GW). */
-export interface DeviceScattering {
+interface DeviceScattering {
   open: number[];
   s: Float64Array;
   transmission: number;

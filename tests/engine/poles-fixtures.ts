@@ -8,7 +8,7 @@
 import type { Complex, NonlinearOperator, SheetFlags } from '../../shared/engine/operator';
 import type { PoleFactorPlan, PoleFactors } from '../../shared/engine/pole-types';
 
-export interface StripSpec {
+interface StripSpec {
   nx: number;
   ny: number;
   /** Hopping t (meV). */
@@ -199,7 +199,7 @@ export class StripWithLeads implements NonlinearOperator {
   }
 }
 
-export function csqrt(re: number, im: number): Complex {
+function csqrt(re: number, im: number): Complex {
   const m = Math.hypot(re, im);
   const r = Math.sqrt(0.5 * (m + re));
   const i = Math.sqrt(0.5 * (m - re));
@@ -225,7 +225,7 @@ export class DenseLuPlan implements PoleFactorPlan {
 }
 
 /** LU = PA of a dense row-major complex matrix (overwritten). Cost 8n³/3 flops. */
-export function denseLu(n: number, A: Float64Array): PoleFactors {
+function denseLu(n: number, A: Float64Array): PoleFactors {
   const perm = new Int32Array(n);
   for (let i = 0; i < n; i++) perm[i] = i;
   let swaps = 0;

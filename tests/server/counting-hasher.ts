@@ -2,7 +2,7 @@
 // server do bcrypt work at all. It hashes for real (in the worker threads).
 import { threadPasswordHasher, type PasswordHasher } from '../../server/auth/password-hasher.js';
 
-export interface CountingHasher extends PasswordHasher {
+interface CountingHasher extends PasswordHasher {
   calls: { hash: number; verify: number };
 }
 

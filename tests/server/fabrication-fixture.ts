@@ -31,7 +31,7 @@ export const fabricationModel = {
   ],
 };
 
-export interface FixtureResonance {
+interface FixtureResonance {
   energy: number;
   width: number;
 }

@@ -5,7 +5,7 @@ import type { z } from 'zod';
 import type { RouteDeclaration } from '../../shared/api/route';
 
 /** A declared interface or object type: its name, where, and its top-level property names. */
-export interface DeclaredShape {
+interface DeclaredShape {
   file: string;
   line: number;
   name: string;
@@ -81,7 +81,7 @@ export function objectSchemasIn(schema: z.ZodType, found = new Set<z.ZodType>(),
 }
 
 /** The keys of an object schema. */
-export function schemaKeys(schema: z.ZodType): string[] {
+function schemaKeys(schema: z.ZodType): string[] {
   const def = (schema as unknown as { _zod: { def: { shape: Record<string, unknown> } } })._zod.def;
   return Object.keys(def.shape);
 }

@@ -89,7 +89,7 @@ export function importLoops(graph: Map<string, string[]>): string[][] {
 }
 
 /** The client area a file belongs to: the folder under src/app/ ('core' or a feature), or null. */
-export function clientArea(file: string): string | null {
+function clientArea(file: string): string | null {
   return /^src\/app\/([^/]+)\//.exec(file)?.[1] ?? null;
 }
 

@@ -23,7 +23,7 @@ export interface RoughnessSpec {
   correlationNm: number;
 }
 
-export interface RoughMask {
+interface RoughMask {
   mask: Uint8Array;
   added: number;
   removed: number;

@@ -19,7 +19,7 @@ import { realisationSeed, SeededRandom } from './seeded-random';
 import type { StepSearchOptions } from './study-step';
 
 /** Most realisations one ensemble may have. */
-export const MAX_REALISATIONS = 1000;
+const MAX_REALISATIONS = 1000;
 
 export type JitterKind = 'dimension' | 'lead-width' | 'gate-offset';
 

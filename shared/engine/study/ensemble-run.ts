@@ -28,7 +28,7 @@ export function runEnsemble(def: EnsembleDefinition, control?: WorkControl): Ens
 }
 
 /** Realisation r's search; an invalid realised model is an outcome with its error, not a throw. */
-export function computeRealisation(def: EnsembleDefinition, r: number, control?: WorkControl): RealisationOutcome {
+function computeRealisation(def: EnsembleDefinition, r: number, control?: WorkControl): RealisationOutcome {
   const { model, record } = realisationModel(def, r);
   try {
     return { record, search: searchStep(model, def.window, def.search ?? {}, control), error: null };

@@ -22,7 +22,7 @@ export interface SiteList {
 }
 
 /** Phase taking the engine's Landau gauge to the symmetric gauge about the grid's centre, at site s. */
-export function symmetricGaugePhase(sites: SiteList, s: number): number {
+function symmetricGaugePhase(sites: SiteList, s: number): number {
   if (sites.flux === 0) return 0;
   return -Math.PI * sites.flux * (sites.i[s] - (sites.nx - 1) / 2) * (sites.j[s] + (sites.ny - 1) / 2);
 }

@@ -5,7 +5,7 @@
  * the document (a study never invents fields), so a typo gives a clear error.
  */
 
-export class ModelPathError extends Error {
+class ModelPathError extends Error {
   constructor(message: string) {
     super(message);
     this.name = 'ModelPathError';
@@ -13,7 +13,7 @@ export class ModelPathError extends Error {
 }
 
 /** The parts of a dotted path; numeric parts index arrays. */
-export function pathParts(path: string): (string | number)[] {
+function pathParts(path: string): (string | number)[] {
   if (typeof path !== 'string' || !/^[A-Za-z0-9_]+(\.[A-Za-z0-9_]+)*$/.test(path)) {
     throw new ModelPathError(`'${path}' is not a path into the model (write it with dots, e.g. field or potential.0.value)`);
   }

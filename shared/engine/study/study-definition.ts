@@ -96,7 +96,7 @@ export function studyStepPath(def: StudyDefinition, index: number): ((fraction: 
 }
 
 /** The step the poles of `index` are continued into (the next along the first parameter), or null. */
-export function nextStudyStep(def: StudyDefinition, index: number): number | null {
+function nextStudyStep(def: StudyDefinition, index: number): number | null {
   const spec = studyStepSpec(def, index);
   return spec.position + 1 < def.parameters[0].values.length ? index + 1 : null;
 }

@@ -61,7 +61,7 @@ export function studyReport(def: StudyDefinition, out: StudyOutcome) {
  * The columns and leads of the transmission map T(E, p) (each step's row is in its
  * `transmission`), or null when the study asked for no map.
  */
-export function transmissionMapReport(def: StudyDefinition, out: StudyOutcome) {
+function transmissionMapReport(def: StudyDefinition, out: StudyOutcome) {
   if (!def.transmissionPoints) return null;
   const rows = out.steps.map((s) => s.transmission).filter((t): t is StepTransmission => !!t);
   return {
@@ -74,7 +74,7 @@ export function transmissionMapReport(def: StudyDefinition, out: StudyOutcome) {
   };
 }
 
-export function ensembleStatisticsReport(stats: EnsembleStatistics) {
+function ensembleStatisticsReport(stats: EnsembleStatistics) {
   return { ...stats, samples: stats.samples.map((s) => ({ ...s })) };
 }
 

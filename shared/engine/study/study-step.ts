@@ -92,7 +92,7 @@ export function searchStep(model: unknown, window: PoleWindow, options: StepSear
  * The models between this step and the next: modelAt(f) for f in (0, 1], with
  * modelAt(1) the next step's model (the parameter moved by the fraction f).
  */
-export type ModelPath = (fraction: number) => unknown;
+type ModelPath = (fraction: number) => unknown;
 
 /** How many times a failed continuation step is halved before the pole counts as lost. */
 const MAX_HALVINGS = 3;
@@ -205,7 +205,7 @@ function strip(op: NonlinearOperator, energy: number): [number, number] {
 }
 
 /** The site list of a built model (positions, grid and flux, for overlaps and moved modes). */
-export function stepSites(system: CavitySystem): SiteList {
+function stepSites(system: CavitySystem): SiteList {
   // The symmetric-gauge phases of mode-overlap.ts are written in square-lattice units.
   if (system.lattice.kind !== 'square' && system.flux !== 0) {
     throw new Error(`studies in a magnetic field are available on the square lattice only; this model is on the ${system.lattice.kind} lattice`);

@@ -18,7 +18,7 @@ import type { ContinuedPole, StepPole } from './study-step';
 export const MIN_OVERLAP = 0.5;
 
 /** What the linker needs of one step (a StepResult has this shape). */
-export interface LinkableStep {
+interface LinkableStep {
   poles: StepPole[];
   sites: SiteList;
   continued: ContinuedPole[] | null;
@@ -42,7 +42,7 @@ export interface Trajectory {
   left: boolean;
 }
 
-export interface Linking {
+interface Linking {
   trajectories: Trajectory[];
   /**
    * Per step: true when continuation alone accounted for its poles (every pole of the

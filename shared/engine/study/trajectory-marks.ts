@@ -19,7 +19,7 @@ import type { Trajectory } from './trajectory-linking';
 import type { StepPole } from './study-step';
 
 /** How many times closer than on both sides a pair must come to be an encounter. */
-export const APPROACH = 3;
+const APPROACH = 3;
 
 export interface TrajectoryMark {
   kind: 'crossing' | 'avoided-crossing' | 'width-exchange';

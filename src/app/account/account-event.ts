@@ -1,7 +1,7 @@
 import type { ActivityEntry } from '../../../shared/api/account';
 
 /** One account entry in words, and whether it deserves the person's attention. */
-export interface AccountEvent {
+interface AccountEvent {
   text: string;
   /** Worth a second look: a failure, a refusal, or someone reading mail sent to you. */
   alert: boolean;

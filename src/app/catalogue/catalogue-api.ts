@@ -6,7 +6,7 @@ import type { ResonanceRow } from '../../../shared/api/resonance-row';
 import { parseAnswer } from '../core/http/parse-answer';
 
 /** The catalogue query exactly as the API names its parameters (strings, as in a URL). */
-export type CatalogueQuery = Record<string, string | string[]>;
+type CatalogueQuery = Record<string, string | string[]>;
 
 /** HTTP for the group's resonance catalogue (routes declared in shared/api/catalogue.ts). */
 @Injectable({ providedIn: 'root' })

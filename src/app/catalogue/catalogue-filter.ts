@@ -81,7 +81,7 @@ const sortKeys: readonly SortKey[] = [
   'tags',
   ...dimensionKeys.map((k): DimensionSortKey => `dim.${k}`),
 ];
-export const defaultPageSize = 25;
+const defaultPageSize = 25;
 
 /** Query parameters of a view (URL and API alike); empty fields are left out. */
 export function viewToQuery(view: CatalogueView): Record<string, string | string[]> {

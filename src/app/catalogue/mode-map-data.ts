@@ -37,7 +37,7 @@ export interface HusimiField {
   maxP: number;
 }
 
-export function float32FromBase64(b64: string): Float32Array {
+function float32FromBase64(b64: string): Float32Array {
   const bin = atob(b64);
   const bytes = new Uint8Array(bin.length);
   for (let k = 0; k < bin.length; k++) bytes[k] = bin.charCodeAt(k);
@@ -119,7 +119,7 @@ export function drawY(f: Pick<ModeMapField, 'ny' | 'a'>, y: number): number {
   return (f.ny - 1) * f.a - y;
 }
 
-export interface Arrow {
+interface Arrow {
   x: number;
   y: number;
   /** Direction (unit, drawing coordinates) and relative length 0..1. */

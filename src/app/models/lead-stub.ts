@@ -2,7 +2,7 @@ import type { Lead, RectangleShape, Shape } from '../../../shared/model/cavity-m
 import { rasteriseShape } from '../../../shared/model/geometry';
 
 /** What the one-click helper found: the stub to add and the shape with it, or why none is needed. */
-export type LeadStubResult = { ok: true; stub: RectangleShape; shape: Shape } | { ok: false; reason: string };
+type LeadStubResult = { ok: true; stub: RectangleShape; shape: Shape } | { ok: false; reason: string };
 
 /**
  * The rectangle joining a lead's mouth (on the grid edge) to the cavity: over the

@@ -42,7 +42,7 @@ export function modelForm() {
     potential: new FormControl<Record<string, unknown>[]>([], { nonNullable: true }),
   });
 }
-export type ModelForm = ReturnType<typeof modelForm>;
+type ModelForm = ReturnType<typeof modelForm>;
 
 /** The choice in the material select that means "give the effective mass yourself". */
 export const customMaterial = 'custom';
@@ -95,7 +95,7 @@ export function fillForm(form: ModelForm, doc: CavityModelInput): void {
 }
 
 /** Problems turning form text into a document (bad JSON), by field path. */
-export interface FormReadIssue {
+interface FormReadIssue {
   path: string;
   message: string;
 }

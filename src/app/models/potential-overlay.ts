@@ -1,5 +1,5 @@
 /** One potential term drawn over the lattice, in SVG site units (y down). */
-export type TermDrawing =
+type TermDrawing =
   | { kind: 'block'; x: number; y: number; w: number; h: number; positive: boolean; label: string; short: string; labelAt: { x: number; y: number } }
   | { kind: 'gaussian'; x: number; y: number; r: number; positive: boolean; label: string; short: string; labelAt: { x: number; y: number } };
 

@@ -17,7 +17,7 @@ export type ShapeKind = keyof typeof shapeKindLabels;
 export const shapeKinds = Object.keys(shapeKindLabels) as ShapeKind[];
 
 /** A number field of a simple shape: the document key and the label in words (lengths nm). */
-export interface ShapeNumberField {
+interface ShapeNumberField {
   key: string;
   label: string;
   optional?: boolean;

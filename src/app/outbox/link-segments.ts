@@ -1,5 +1,5 @@
 /** A run of a plain-text mail body: either text, or a link with its address. */
-export interface Segment {
+interface Segment {
   text: string;
   href?: string;
 }

@@ -1,6 +1,6 @@
 import { diffJson } from 'diff';
 
-export interface DiffLine {
+interface DiffLine {
   kind: 'same' | 'added' | 'removed' | 'skipped';
   text: string;
 }

@@ -1,10 +1,10 @@
 /** A pole as the comparison needs it: E and Γ (meV). */
-export interface MatchPole {
+interface MatchPole {
   energy: number;
   width: number;
 }
 
-export interface PoleMatch<P extends MatchPole> {
+interface PoleMatch<P extends MatchPole> {
   a: P | null;
   b: P | null;
   /** E_b − E_a and Γ_b − Γ_a (meV); null for a pole without partner. */

@@ -171,6 +171,7 @@ describe('RunDetail', () => {
           transmission: [[0.5, 0.6]],
           pairs: [{ from: 0, to: 1 }],
           residual: [0, 0],
+          reflection: null,
         },
       },
     );

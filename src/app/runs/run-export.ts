@@ -34,13 +34,13 @@ const safe = (name: string) => name.replace(/[^A-Za-z0-9]+/g, '_');
 const leadName = (run: RunDetail, lead: number | string) => safe(typeof lead === 'number' ? (run.leads?.[lead]?.name ?? `lead${lead + 1}`) : lead);
 
 /** Column name of one spectrum curve: T_source_to_drain (no unit: T counts channels). */
-export function spectrumColumn(run: RunDetail, k: number): string {
+function spectrumColumn(run: RunDetail, k: number): string {
   const pair = run.spectrum!.pairs[k];
   return `T_${leadName(run, pair.from)}_to_${leadName(run, pair.to)}`;
 }
 
 /** Column name of one lead's reflection: R_source (no unit). */
-export function reflectionColumn(run: RunDetail, lead: number): string {
+function reflectionColumn(run: RunDetail, lead: number): string {
   return `R_${leadName(run, lead)}`;
 }
 

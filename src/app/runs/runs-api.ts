@@ -28,7 +28,7 @@ export type RunRequest = z.input<typeof runRequestSchema>;
 export type RunListQuery = Partial<z.input<typeof runListQuery>>;
 
 /** What the events stream and the polling fallback both deliver. */
-export type RunUpdate = Pick<Run, 'status' | 'progress'>;
+type RunUpdate = Pick<Run, 'status' | 'progress'>;
 
 export const finishedStatuses: ReadonlySet<RunStatus> = new Set(FINISHED_RUN_STATUSES);
 

@@ -22,7 +22,7 @@ export function conductanceFactor(unit: ConductanceUnit): number {
   return unit === '2e2/h' ? 1 : unit === 'e2/h' ? 1 : 2 * E2_OVER_H_US;
 }
 
-export interface SpectrumCurve {
+interface SpectrumCurve {
   name: string;
   values: (number | null)[];
 }

@@ -1,7 +1,7 @@
 import type { z } from 'zod';
 import type { parameterValuesSchema } from '../../../shared/api/studies';
 
-export type ParameterValues = z.infer<typeof parameterValuesSchema>;
+type ParameterValues = z.infer<typeof parameterValuesSchema>;
 
 /**
  * Reads the values of a swept parameter as typed: `FROM:TO:COUNT` (both ends included)

@@ -19,7 +19,7 @@ import {
 } from '../../../shared/api/studies';
 import { parseAnswer } from '../core/http/parse-answer';
 
-export type StudyList = z.infer<typeof studyListSchema>;
+type StudyList = z.infer<typeof studyListSchema>;
 export type { SavedStep };
 
 /** Polling period of the study list and the study page while a study runs (the API has no event stream for studies). */

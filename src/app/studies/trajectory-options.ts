@@ -2,7 +2,7 @@ import type { EChartsCoreOption } from 'echarts/core';
 import type { Trajectory, TrajectoryMark } from '../../../shared/api/studies';
 import type { ChartColours } from '../core/charts/chart-colours';
 
-export interface TrajectoryLine {
+interface TrajectoryLine {
   trajectories: Trajectory[];
   marks: TrajectoryMark[];
 }

@@ -21,7 +21,7 @@ import type { CavityModelInput } from '../../../../shared/model/cavity-model';
 import { parseAnswer } from '../http/parse-answer';
 
 /** Search and page of the model list, as the API names them. */
-export type ModelListQuery = Partial<z.input<typeof modelListQuery>>;
+type ModelListQuery = Partial<z.input<typeof modelListQuery>>;
 
 /** HTTP for the group's cavity models and their versions (routes declared in shared/api/models.ts). */
 @Injectable({ providedIn: 'root' })

@@ -3,7 +3,7 @@ import { MatButtonModule } from '@angular/material/button';
 import { MAT_DIALOG_DATA, MatDialog, MatDialogModule } from '@angular/material/dialog';
 import { type Observable, map } from 'rxjs';
 
-export interface ConfirmData {
+interface ConfirmData {
   title: string;
   message: string;
   confirmLabel: string;
@@ -30,7 +30,7 @@ export interface ConfirmData {
     }
   `,
 })
-export class ConfirmDialog {
+class ConfirmDialog {
   protected readonly data = inject<ConfirmData>(MAT_DIALOG_DATA);
 }
 

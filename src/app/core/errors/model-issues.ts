@@ -52,7 +52,7 @@ function leafControl(form: FormGroup, path: string): AbstractControl | null {
 }
 
 /** The longest listed section that is a prefix of the path; '' (the whole document) otherwise. */
-export function nearestSection(path: string, sections: readonly string[]): string {
+function nearestSection(path: string, sections: readonly string[]): string {
   const parts = path.split('.');
   for (let n = parts.length; n > 0; n--) {
     const candidate = parts.slice(0, n).join('.');

@@ -1,5 +1,5 @@
 /** One entry of the side navigation: a group-scoped area of the product. */
-export interface Area {
+interface Area {
   path: string;
   label: string;
   icon: string;
