@@ -1,5 +1,5 @@
 import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
-import { formatWidth } from '../core/format/energy-format';
+import { formatWidth, significant } from '../core/format/energy-format';
 
 /** The partial widths Γ_ℓ of one resonance as a small bar list, each bar its share of Γ. */
 @Component({
@@ -30,12 +30,15 @@ export class PartialWidths {
   readonly widths = input.required<readonly { lead: string; width: number }[]>();
   /** Total width Γ (meV): the partial widths sum to it (contract, "Partial widths"). */
   readonly total = input.required<number>();
+  /** A microwave resonance's total Γ_f (MHz): each port's share of Γ is then shown as its share of Γ_f. */
+  readonly totalMhz = input<number | null>(null);
 
   protected readonly bars = computed(() => {
     const total = this.total();
+    const mhz = this.totalMhz();
     return this.widths().map((w) => ({
       lead: w.lead,
-      text: formatWidth(w.width),
+      text: mhz !== null && total > 0 ? `${significant((mhz * w.width) / total, 4)} MHz` : formatWidth(w.width),
       percent: total > 0 ? Math.min(100, Math.max(0, (100 * w.width) / total)) : 0,
     }));
   });

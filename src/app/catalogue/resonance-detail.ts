@@ -74,6 +74,20 @@ export class ResonanceDetail {
   protected readonly figures = computed(() => {
     const r = this.resonance();
     if (!r) return [];
+    const mw = r.microwave;
+    if (mw) {
+      // A resonator reads in frequencies; the engine's raw eigenvalue k² (mm⁻²) stays beside them.
+      return [
+        { label: 'Frequency f', value: `${mw.frequencyGhz.toFixed(6)} GHz` },
+        { label: 'Width Γ_f = 2|Im f|', value: `${significant(mw.widthMhz, 4)} MHz` },
+        { label: 'Pole f − iΓ_f/2', value: `${mw.frequencyGhz.toFixed(6)} − i·${significant(mw.widthMhz / 2e3, 4)} GHz` },
+        { label: 'Lifetime τ = 1/(2π Γ_f)', value: mw.lifetimeNs == null ? '∞' : `${significant(mw.lifetimeNs, 4)} ns` },
+        { label: 'Quality Q = f/Γ_f', value: mw.quality == null ? '∞' : significant(mw.quality, 4) },
+        { label: 'Raw eigenvalue k² (Re, −2 Im)', value: `${significant(r.energy, 8)} mm⁻², ${significant(r.width, 4)} mm⁻²` },
+        { label: 'Petermann K', value: significant(r.petermann ?? NaN, 4) },
+        { label: 'Relative residual ‖(k² − H − Σ)ψ‖', value: significant(r.residual ?? NaN, 2) },
+      ];
+    }
     return [
       { label: 'Energy E', value: formatEnergy(r.energy, 6) },
       { label: 'Width Γ', value: formatWidth(r.width) },
