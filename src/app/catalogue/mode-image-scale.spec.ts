@@ -22,4 +22,20 @@ describe('ModeImageScale', () => {
     const bar = host.querySelector<HTMLElement>('.bar')!;
     expect(parseFloat(bar.style.width)).toBeCloseTo(100 / 6, 6);
   });
+
+  it('speaks millimetres for a microwave resonator', async () => {
+    TestBed.configureTestingModule({ providers: [provideHttpClient(), provideHttpClientTesting()] });
+    const fixture = TestBed.createComponent(ModeImageScale);
+    fixture.componentRef.setInput('groupId', 'g1');
+    fixture.componentRef.setInput('modelId', 'm1');
+    fixture.componentRef.setInput('version', 2);
+    fixture.detectChanges();
+    await settle();
+    const nm = sampleModelVersion();
+    // 60 columns at a = 0.5 mm: a 30 mm wide image; the bar is 5 mm.
+    const mw = { ...nm, document: { ...nm.document, spacing: 0.5, material: undefined, physics: { kind: 'microwave', permittivity: 1, height: 5 } } };
+    TestBed.inject(HttpTestingController).expectOne('/api/groups/g1/models/m1/versions/2').flush(mw);
+    fixture.detectChanges();
+    expect((fixture.nativeElement as HTMLElement).textContent).toContain('5 mm · image 30 mm wide');
+  });
 });

@@ -3,10 +3,11 @@ import { toObservable, toSignal } from '@angular/core/rxjs-interop';
 import { catchError, of, switchMap } from 'rxjs';
 import { ModelsApi } from '../core/api/models-api';
 import { scaleBarLength } from './mode-map-data';
+import { physicsUnits } from '../../../shared/model/physics-mode';
 
 /**
  * A length scale under a mode image: the image spans the model's whole grid, nx·a
- * nm wide (server/catalogue/mode-image.ts), so a bar of L nm is L/(nx·a) of its width.
+ * wide (nm, or mm for a microwave model) (server/catalogue/mode-image.ts), so a bar of L nm is L/(nx·a) of its width.
  * The grid and spacing come from the model version the resonance was computed on.
  */
 @Component({
@@ -16,7 +17,7 @@ import { scaleBarLength } from './mode-map-data';
     @if (bar(); as b) {
       <div class="scale" data-test="image-scale" [attr.aria-label]="'Scale bar: ' + b.label">
         <span class="bar" [style.width.%]="b.percent"></span>
-        <span class="label">{{ b.label }} · image {{ b.widthNm }} nm wide</span>
+        <span class="label">{{ b.label }} · image {{ b.width }} {{ b.unit }} wide</span>
       </div>
     }
   `,
@@ -42,8 +43,11 @@ export class ModeImageScale {
     const nx = Number(doc?.grid?.nx);
     const a = Number(doc?.spacing);
     if (!(nx > 0 && a > 0)) return null;
-    const widthNm = nx * a;
-    const nm = scaleBarLength(widthNm);
-    return { percent: (100 * nm) / widthNm, label: nm >= 1000 ? `${nm / 1000} µm` : `${nm} nm`, widthNm: Number(widthNm.toPrecision(4)) };
+    // The document's lengths are in its physics mode's unit: nm for a 2DEG, mm for a microwave resonator.
+    const unit = physicsUnits(doc?.physics?.kind === 'microwave' ? 'microwave' : 'electrons').length;
+    const width = nx * a;
+    const bar = scaleBarLength(width);
+    const label = unit === 'nm' && bar >= 1000 ? `${bar / 1000} µm` : `${bar} ${unit}`;
+    return { percent: (100 * bar) / width, label, width: Number(width.toPrecision(4)), unit };
   });
 }
