@@ -36,4 +36,10 @@ describe('catalogue filter in the URL', () => {
     expect(query).toEqual({ aboveLimit: 'true', 'dim.ry.max': '10' });
     expect(queryToView(convertToParamMap(query))).toEqual(view);
   });
+
+  it('shows the sorted dimension in the dimension picker when no dimension is filtered', () => {
+    expect(queryToView(convertToParamMap({ sort: 'dim.area', dir: 'desc' })).filter.dimKey).toBe('area');
+    // A dimension filter names the picker's dimension, whatever the sort.
+    expect(queryToView(convertToParamMap({ sort: 'dim.area', 'dim.rx.min': '10' })).filter.dimKey).toBe('rx');
+  });
 });

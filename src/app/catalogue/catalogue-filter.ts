@@ -118,6 +118,9 @@ export function queryToView(params: { get(name: string): string | null; getAll(n
     else filter.dimMax = params.get(name) ?? '';
   }
   const sort = params.get('sort') as SortKey | null;
+  // Sorted by a dimension without filtering on one: the dimension picker shows the sorted one.
+  const sortedDim = /^dim\.([A-Za-z]\w*)$/.exec(sort ?? '');
+  if (sortedDim && !params.keys.some((k) => k.startsWith('dim.'))) filter.dimKey = sortedDim[1]!;
   const dir = params.get('dir');
   const page = Number(params.get('page') ?? 1);
   const pageSize = Number(params.get('pageSize') ?? defaultPageSize);
