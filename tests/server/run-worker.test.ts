@@ -1,13 +1,14 @@
 // The queue and the workers for real: pg-boss on the test database, the engine in a
 // worker thread, and a worker process killed in the middle of a run.
 import { spawn, type ChildProcess } from 'node:child_process';
-import { and, count, eq } from 'drizzle-orm';
+import { and, count, eq, inArray } from 'drizzle-orm';
 import type PgBoss from 'pg-boss';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { connectDb, type DbHandle } from '../../server/db/client.js';
 import { modeImages, resonances } from '../../server/db/schema/catalogue.js';
 import { runs, spectra } from '../../server/db/schema/runs.js';
 import { runQueue, startBoss } from '../../server/jobs/boss.js';
+import { RUN_QUEUES } from '../../server/jobs/queues.js';
 import { runEngineTask } from '../../server/jobs/engine-task.js';
 import { handleRunJob } from '../../server/jobs/run-job.js';
 import { runInThread } from '../../server/jobs/thread-runner.js';
@@ -32,6 +33,14 @@ const children: ChildProcess[] = [];
 beforeAll(async () => {
   handle = connectDb(testDatabaseUrl(), 4);
   boss = await startBoss({ databaseUrl: testDatabaseUrl() });
+  // Earlier test files leave runs queued on the shared test database (queued, never worked).
+  // The worker processes started here take the oldest job first, so that backlog would be
+  // computed before this file's runs: end it, and its jobs, before starting.
+  await handle.db
+    .update(runs)
+    .set({ status: 'cancelled' })
+    .where(inArray(runs.status, ['queued', 'running']));
+  for (const q of Object.values(RUN_QUEUES)) await boss.purgeQueue(q.name);
   lab = await createLab(handle.db, ['designer']);
   models = new ModelService(handle.db, inlineCompute);
   runService = new RunService(handle.db, runQueue(boss), inlineCompute);
@@ -74,6 +83,52 @@ function startWorkerProcess(): ChildProcess {
 }
 
 describe('runs on the queue', () => {
+  // First in the file: the in-process worker loops of the tests below stop without waiting, and
+  // one still polling could take this run's job before the worker process does.
+  it('a run whose worker process is killed is retried and completes with the same resonances, no duplicates', async () => {
+    const document = smallRectangle('Crash test');
+    const model = await models.create(lab.groupId, lab.as('designer').id, document);
+    // Reference: the same computation done directly in this process.
+    const reference = runEngineTask({ kind: 'pole-search', document, window: smallWindow, spectrumPoints: 400 });
+    const run = await runService.create(lab.groupId, lab.as('designer').id, { kind: 'pole-search', modelId: model.id, window: smallWindow });
+
+    const first = startWorkerProcess();
+    await waitFor(
+      'the first worker to start computing',
+      async () => {
+        const r = await runRow(run.id);
+        return r.status === 'running' && (r.progressFraction ?? 0) > 0 && r;
+      },
+      60,
+    );
+    first.kill('SIGKILL');
+    await new Promise((r) => first.once('exit', r));
+    expect((await runRow(run.id)).status).toBe('running'); // nobody has noticed yet
+
+    startWorkerProcess();
+    const done = await waitFor(
+      'the retried run to finish',
+      async () => {
+        const r = await runRow(run.id);
+        return ['completed', 'failed'].includes(r.status) && r;
+      },
+      150,
+    );
+    expect(done.status).toBe('completed');
+    expect(done.attempt).toBeGreaterThanOrEqual(2);
+    const rows = await handle.db
+      .select({ idx: resonances.idx, energy: resonances.energy, width: resonances.width })
+      .from(resonances)
+      .where(and(eq(resonances.runId, run.id)))
+      .orderBy(resonances.idx);
+    expect(rows.length).toBe(reference.poles.length);
+    expect(new Set(rows.map((r) => r.idx)).size).toBe(rows.length);
+    rows.forEach((r, k) => {
+      const p = reference.poles[k]!;
+      expect(Math.abs(r.energy - p.energy)).toBeLessThan(1e-9 * Math.max(1, Math.abs(p.energy)));
+      expect(Math.abs(r.width - p.width)).toBeLessThan(1e-9 * Math.max(1e-6, p.width) + 1e-12);
+    });
+  }, 240_000);
   it('a finished two-lead transmission run stores R per lead, with R + ΣT = open channels (unitarity)', async () => {
     const model = await models.create(lab.groupId, lab.as('designer').id, smallRectangle('Reflection test'));
     // 3–12 meV crosses the second channel of both width-8 leads (≈ 10.64 meV).
@@ -162,50 +217,7 @@ describe('runs on the queue', () => {
     }
   });
 
-  it('a run whose worker process is killed is retried and completes with the same resonances, no duplicates', async () => {
-    const document = smallRectangle('Crash test');
-    const model = await models.create(lab.groupId, lab.as('designer').id, document);
-    // Reference: the same computation done directly in this process.
-    const reference = runEngineTask({ kind: 'pole-search', document, window: smallWindow, spectrumPoints: 400 });
-    const run = await runService.create(lab.groupId, lab.as('designer').id, { kind: 'pole-search', modelId: model.id, window: smallWindow });
-
-    const first = startWorkerProcess();
-    await waitFor(
-      'the first worker to start computing',
-      async () => {
-        const r = await runRow(run.id);
-        return r.status === 'running' && (r.progressFraction ?? 0) > 0 && r;
-      },
-      60,
-    );
-    first.kill('SIGKILL');
-    await new Promise((r) => first.once('exit', r));
-    expect((await runRow(run.id)).status).toBe('running'); // nobody has noticed yet
-
-    startWorkerProcess();
-    const done = await waitFor(
-      'the retried run to finish',
-      async () => {
-        const r = await runRow(run.id);
-        return ['completed', 'failed'].includes(r.status) && r;
-      },
-      150,
-    );
-    expect(done.status).toBe('completed');
-    expect(done.attempt).toBeGreaterThanOrEqual(2);
-    const rows = await handle.db
-      .select({ idx: resonances.idx, energy: resonances.energy, width: resonances.width })
-      .from(resonances)
-      .where(and(eq(resonances.runId, run.id)))
-      .orderBy(resonances.idx);
-    expect(rows.length).toBe(reference.poles.length);
-    expect(new Set(rows.map((r) => r.idx)).size).toBe(rows.length);
-    rows.forEach((r, k) => {
-      const p = reference.poles[k]!;
-      expect(Math.abs(r.energy - p.energy)).toBeLessThan(1e-9 * Math.max(1, Math.abs(p.energy)));
-      expect(Math.abs(r.width - p.width)).toBeLessThan(1e-9 * Math.max(1e-6, p.width) + 1e-12);
-    });
-  }, 240_000); // its waits add up to 210 s on a loaded machine
+  // its waits add up to 210 s on a loaded machine
 
   it('a pole search split over two threads finds the same poles as one thread', async () => {
     const task = { kind: 'pole-search' as const, document: smallRectangle('Split'), window: smallWindow, spectrumPoints: 100 };
