@@ -64,15 +64,19 @@ const finishedJobStates = new Set(['completed', 'failed', 'cancelled']);
  * STARTUP_STALE_SECONDS instead: what the previous shutdown left queued or running is
  * handed on at once, with a neutral note (INTERRUPTED_NOTE) instead of a lost-worker error.
  */
-export async function superviseRuns(o: Omit<SupervisorOptions, 'intervalSeconds'> & { startup?: boolean }): Promise<SupervisorReport> {
+export async function superviseRuns(o: Omit<SupervisorOptions, 'intervalSeconds'> & { startup?: boolean; processStartedAt?: Date }): Promise<SupervisorReport> {
   const report: SupervisorReport = { handedOn: 0, resent: 0, failed: 0 };
   // The first pass of a starting process: runs left by the previous shutdown go back at once.
   const stale = o.startup ? Math.min(o.staleAfterSeconds, STARTUP_STALE_SECONDS) : o.staleAfterSeconds;
+  // Only what predates this process: a run that beat (or was queued) since it started has a
+  // live worker, even when a loaded machine delays its heartbeat past the short start-up age.
+  const before = o.startup && o.processStartedAt ? o.processStartedAt : null;
   // Job ids that are not pg-boss's (uuid) come from tests' recording queues.
   const scope = sql`(job_id is null or job_id ~* '^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$')
     ${o.groupId ? sql`and group_id = ${o.groupId}` : sql``}`;
   const lost = await o.db.execute<{ id: string }>(sql`
-    select id from runs where status = 'running' and heartbeat_at < now() - make_interval(secs => ${stale}) and ${scope}`);
+    select id from runs where status = 'running' and heartbeat_at < now() - make_interval(secs => ${stale})
+      ${before ? sql`and heartbeat_at < ${before}` : sql``} and ${scope}`);
   for (const { id } of lost.rows) {
     await guarded(o, id, () =>
       o.db.transaction(async (tx) => {
@@ -102,7 +106,8 @@ export async function superviseRuns(o: Omit<SupervisorOptions, 'intervalSeconds'
   }
 
   const waiting = await o.db.execute<{ id: string }>(sql`
-    select id from runs where status = 'queued' and created_at < now() - make_interval(secs => ${stale}) and ${scope}`);
+    select id from runs where status = 'queued' and created_at < now() - make_interval(secs => ${stale})
+      ${before ? sql`and created_at < ${before}` : sql``} and ${scope}`);
   for (const { id } of waiting.rows) {
     await guarded(o, id, () =>
       o.db.transaction(async (tx) => {
@@ -163,10 +168,11 @@ async function failRun(tx: Queryable, runId: string, error: string) {
  */
 export function startSupervisor(o: SupervisorOptions): () => void {
   let busy = false;
+  const processStartedAt = new Date();
   const pass = (startup: boolean) => {
     if (busy) return;
     busy = true;
-    superviseRuns({ ...o, startup })
+    superviseRuns({ ...o, startup, processStartedAt })
       .then(() => superviseFits(o))
       .then(() => superviseModeMaps(o))
       .catch((e) => o.log?.(`supervisor: ${e.message}`))

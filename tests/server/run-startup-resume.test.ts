@@ -93,6 +93,21 @@ describe('runs interrupted by the previous shutdown', () => {
     await runStore.fail(handle.db, beating.runId, 'test over');
   });
 
+  it('a start-up pass leaves a run that beat after this process started, however late its next beat', async () => {
+    // A loaded machine can delay a live attempt's heartbeat past the short start-up age; the
+    // attempt began after the process did, so it is not left over from a shutdown.
+    const late = await interruptedRun('Late beat', STARTUP_STALE_SECONDS + 4);
+    const startedBefore = new Date(Date.now() - (STARTUP_STALE_SECONDS + 30) * 1000);
+    const kept = await superviseRuns({ db: handle.db, boss, staleAfterSeconds: stale, groupId: lab.groupId, startup: true, processStartedAt: startedBefore });
+    expect(kept).toMatchObject({ handedOn: 0 });
+    expect((await runRow(late.runId)).status).toBe('running');
+    // The same run seen by a process that started after its last beat is handed on.
+    const handed = await superviseRuns({ db: handle.db, boss, staleAfterSeconds: stale, groupId: lab.groupId, startup: true, processStartedAt: new Date() });
+    expect(handed).toMatchObject({ handedOn: 1 });
+    expect((await runRow(late.runId)).status).toBe('queued');
+    await runStore.fail(handle.db, late.runId, 'test over');
+  });
+
   it('a starting worker resumes such a run in its first supervisor pass and completes it', async () => {
     const { runId } = await interruptedRun('Interrupted B', STARTUP_STALE_SECONDS + 4);
     const logs: string[] = [];
