@@ -1,4 +1,4 @@
-import { and, eq, sql } from 'drizzle-orm';
+import { and, eq } from 'drizzle-orm';
 import type { RequestHandler } from 'express';
 import type { Db } from '../db/client.js';
 import { catalogueGenerations } from '../db/schema/catalogue.js';
@@ -6,6 +6,7 @@ import { memberships, researchGroups, type MembershipRole } from '../db/schema/g
 import { ApiError } from '../http/error-handler.js';
 import { signedInUser } from './authenticate.js';
 import { checkCsrf } from './csrf.js';
+import { membershipColumns } from './session-repository.js';
 
 export interface GroupMembership {
   groupId: string;
@@ -31,12 +32,7 @@ export function groupNotFound(): ApiError {
 
 async function findMembership(db: Db, groupId: string, userId: string): Promise<Omit<GroupMembership, 'groupId'> | undefined> {
   const [row] = await db
-    .select({
-      groupName: researchGroups.name,
-      groupSlug: researchGroups.slug,
-      role: memberships.role,
-      catalogueGeneration: sql<number>`coalesce(${catalogueGenerations.generation}, 0)::float8`,
-    })
+    .select(membershipColumns)
     .from(memberships)
     .innerJoin(researchGroups, eq(researchGroups.id, memberships.groupId))
     .leftJoin(catalogueGenerations, eq(catalogueGenerations.groupId, memberships.groupId))

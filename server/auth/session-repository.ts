@@ -49,15 +49,20 @@ export interface SessionInGroup {
   membership: { groupName: string; groupSlug: string; role: MembershipRole; catalogueGeneration: number } | null;
 }
 
+/** What a request needs of the caller's membership in the group of its path (joined by both queries that read it). */
+export const membershipColumns = {
+  groupName: researchGroups.name,
+  groupSlug: researchGroups.slug,
+  role: memberships.role,
+  catalogueGeneration: sql<number>`coalesce(${catalogueGenerations.generation}, 0)::float8`,
+};
+
 function prepareSessionInGroup(db: Db) {
   return db
     .select({
       sessionId: sessions.id,
       user: { id: users.id, email: users.email, name: users.name, siteOperator: users.siteOperator },
-      groupName: researchGroups.name,
-      groupSlug: researchGroups.slug,
-      role: memberships.role,
-      catalogueGeneration: sql<number>`coalesce(${catalogueGenerations.generation}, 0)::float8`,
+      ...membershipColumns,
     })
     .from(sessions)
     .innerJoin(users, eq(users.id, sessions.userId))
