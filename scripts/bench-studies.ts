@@ -23,7 +23,7 @@ import { benchCavity } from './bench-cavity';
 export function benchStudyDefinition(side = Number(process.env.BENCH_STUDY_SIDE ?? 50), steps = Number(process.env.BENCH_STUDY_STEPS ?? 40)): StudyDefinition {
   const model = benchCavity(side);
   const t = hoppingEnergy(5, 0.067);
-  // The bench's pole window (scripts/bench.ts) at this size: about 16 poles.
+  // The bench's pole window (scripts/bench.ts) scaled to this size: 4–5 poles a step at 2,500 sites.
   const width = 0.027 * t * (10_000 / (side * side));
   return {
     model,
@@ -102,8 +102,21 @@ export async function benchStudies(): Promise<Record<string, number | string>> {
           record: null,
           error: null,
         })),
-      ) as { fullSearchFraction: number; steps: { certified: boolean; poles: unknown[] }[] };
+      ) as {
+        fullSearchFraction: number;
+        steps: { certified: boolean; poles: unknown[] }[];
+        lines: { trajectories: { entered: boolean; left: boolean; points: { link: string }[] }[] }[];
+      };
       fraction = outcome.fullSearchFraction;
+      // Why steps need the search: poles crossing the window's edges (physics) or
+      // continuations that did not land on a listed pole (method). Counted per pole link.
+      const trajectories = outcome.lines.flatMap((l) => l.trajectories);
+      const links = trajectories.flatMap((t) => t.points.slice(1));
+      out['pole links step to step'] = links.length;
+      out['of them by continuation'] = links.filter((p) => p.link === 'continuation').length;
+      out['of them by mode overlap only'] = links.filter((p) => p.link === 'overlap').length;
+      out['poles entering the window'] = trajectories.filter((t) => t.entered).length;
+      out['poles leaving the window (or not followed)'] = trajectories.filter((t) => t.left).length;
       out['sites'] = results[0].search ? Buffer.from(results[0].search.sites.i, 'base64').length / 4 : 0;
       out['poles per step (mean)'] = outcome.steps.reduce((s, r) => s + r.poles.length, 0) / steps;
       out['steps certified'] = `${outcome.steps.filter((r) => r.certified).length} of ${steps}`;
