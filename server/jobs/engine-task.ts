@@ -153,7 +153,14 @@ function finishTask(ctx: TaskContext, task: EngineTask, search: PoleSearchResult
   if (points === 0) return result({ energies: [], pairs, transmission: pairs.map(() => []), residual: [], reflection: system.leads.map(() => []) });
   const sweep = transmissionSweep(
     op,
-    { emin, emax, points, refine: { maxPoints: (task.kind === 'transmission' ? task.maxPoints : undefined) ?? spectrumBudget(task.kind, points) } },
+    {
+      emin,
+      emax,
+      points,
+      refine: { maxPoints: (task.kind === 'transmission' ? task.maxPoints : undefined) ?? spectrumBudget(task.kind, points) },
+      // Every listed pole's peak on the curve: samples at E and E ± Γ/2 of each.
+      anchors: poles.flatMap((p) => [p.energy - p.width / 2, p.energy, p.energy + p.width / 2]),
+    },
     { ...control, onProgress: (stage, f) => control.onProgress?.(stage, base + spectrumShare * f) },
   );
   const spectrum: EngineSpectrum = {
@@ -165,6 +172,7 @@ function finishTask(ctx: TaskContext, task: EngineTask, search: PoleSearchResult
   };
   stats['spectrumPoints'] = sweep.points.length;
   stats['spectrumBudgetExhausted'] = sweep.budgetExhausted;
+  stats['spectrumPoleSamples'] = sweep.anchors;
   stats['worstCurrentResidual'] = sweep.worstCurrentResidual;
   return result(spectrum);
 }

@@ -147,6 +147,12 @@ interface SweepRequest {
   /** Points of the uniform grid (≥ 2), both ends included. */
   points: number;
   refine?: SweepRefinement;
+  /**
+   * Energies sampled besides the grid (e.g. the listed poles' E and E ± Γ/2, so that every
+   * known resonance's peak is on the curve however narrow); those outside (emin, emax) or
+   * on a grid energy are skipped. They come on top of refine.maxPoints.
+   */
+  anchors?: readonly number[];
   /** An analysed plan of op's pattern to reuse (e.g. shared with a pole search). */
   plan?: SparseLuPlan;
   /**
@@ -172,6 +178,8 @@ interface TransmissionSweep {
   passes: number;
   /** True when the refinement stopped on maxPoints with intervals still flagged. */
   budgetExhausted: boolean;
+  /** Anchor energies sampled (request.anchors inside the window, off the grid). */
+  anchors: number;
   /** Largest current-conservation and unitarity residuals over all samples. */
   worstCurrentResidual: number;
   worstUnitarityResidual: number;
@@ -239,7 +247,10 @@ export function transmissionSweep(op: EffectiveHamiltonian, request: SweepReques
   if (refine && (!Number.isInteger(refine.maxPoints) || refine.maxPoints < points)) {
     throw new RangeError(`transmissionSweep: refine.maxPoints must be an integer ≥ points (${points}), got ${refine.maxPoints}`);
   }
-  const maxPoints = refine ? refine.maxPoints : points;
+  const grid = Array.from({ length: points }, (_, k) => emin + ((emax - emin) * k) / (points - 1));
+  const onGrid = new Set(grid);
+  const anchors = [...new Set(request.anchors ?? [])].filter((e) => Number.isFinite(e) && e > emin && e < emax && !onGrid.has(e));
+  const maxPoints = (refine ? refine.maxPoints : points) + anchors.length;
   const tolerance = refine?.tolerance ?? 0.02;
   const phaseTolerance = refine?.phaseTolerance ?? 0.5;
   const minWidth = refine?.minWidth ?? 1e-6 * op.hopping;
@@ -251,7 +262,6 @@ export function transmissionSweep(op: EffectiveHamiltonian, request: SweepReques
   const report = (done: number) => control?.onProgress?.('transmission', Math.min(1, (done + probes) / total));
 
   let directSolves = 0;
-  const grid = Array.from({ length: points }, (_, k) => emin + ((emax - emin) * k) / (points - 1));
   const spectral = request.spectral
     ? new MouthSpectral(op, solver, grid, request.spectral === true ? {} : request.spectral, () => checkCancelled(control))
     : null;
@@ -304,6 +314,12 @@ export function transmissionSweep(op: EffectiveHamiltonian, request: SweepReques
       previousKnown = true;
     }
   }
+  for (const e of anchors) {
+    checkCancelled(control);
+    samples.push(evaluate(e));
+    report(samples.length);
+  }
+  if (anchors.length) samples.sort((x, y) => x.energy - y.energy);
   const forcedWidth = step / 2 ** PROBE_DEPTH;
   let passes = 0;
   let budgetExhausted = false;
@@ -354,6 +370,7 @@ export function transmissionSweep(op: EffectiveHamiltonian, request: SweepReques
     gridPoints: points,
     passes,
     budgetExhausted,
+    anchors: anchors.length,
     worstCurrentResidual,
     worstUnitarityResidual,
     directSolves,

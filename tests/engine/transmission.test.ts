@@ -2,6 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { buildCavitySystem, EffectiveHamiltonian } from '../../shared/engine/effective-hamiltonian';
 import { TransmissionSolver, transmissionSweep } from '../../shared/engine/transmission';
 import { WorkCancelled } from '../../shared/engine/operator';
+import { findPoles } from '../../shared/engine/poles';
 import type { CavityModelInput } from '../../shared/model/cavity-model';
 
 const spacing = 5;
@@ -272,6 +273,33 @@ describe('transmission', () => {
     expect(fine.budgetExhausted).toBe(false);
     expect(progress[progress.length - 1]).toBe(1);
     expect(fine.worstCurrentResidual).toBeLessThan(1e-9);
+  });
+
+  it('puts the peak of every listed pole on the curve when the poles are given as anchors', () => {
+    // The spectrum beside a pole search: a small budget cannot resolve the narrow peaks by
+    // bisection, but samples at each pole's E and E ± Γ/2 draw them at full height.
+    const op = doubleBarrier();
+    const t = op.hopping;
+    const window = { emin: 2.5 * t, emax: 3.5 * t, gammaMax: 1e-2 * t };
+    const { poles } = findPoles(op, window);
+    expect(poles).toHaveLength(5);
+    const anchors = poles.flatMap((p) => [p.energy - p.width / 2, p.energy, p.energy + p.width / 2]);
+    const request = { emin: window.emin, emax: window.emax, points: 41, refine: { maxPoints: 60 } };
+    const plain = transmissionSweep(op, request);
+    const anchored = transmissionSweep(op, { ...request, anchors });
+    expect(plain.budgetExhausted).toBe(true);
+    expect(anchored.points.length).toBe(plain.points.length + anchors.length);
+    expect(anchored.points.every((p, k) => k === 0 || p.energy > anchored.points[k - 1].energy)).toBe(true);
+    const at = (e: number) => anchored.points.find((p) => p.energy === e)!.transmission[0][1];
+    for (const p of poles) {
+      // Symmetric double barrier: T = 1 on resonance and 1/2 at E ± Γ/2 for an isolated
+      // Breit–Wigner peak (common practice, no source).
+      expect(at(p.energy)).toBeGreaterThan(0.98);
+      expect(at(p.energy - p.width / 2)).toBeGreaterThan(0.4);
+      expect(at(p.energy - p.width / 2)).toBeLessThan(0.6);
+    }
+    // Without anchors this budget misses some of the peaks: the anchors are what draws them.
+    expect(peaksOf(plain.points, t).length).toBeLessThan(poles.length);
   });
 
   it('finds two narrow resonances inside one grid step with the upper probe', () => {
