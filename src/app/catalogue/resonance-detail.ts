@@ -16,7 +16,7 @@ import { injectCanDesign } from '../core/group/design-permission';
 import { certificateInWords } from '../core/format/certificate-words';
 import { PolePlaneChart } from '../core/charts/pole-plane-chart';
 import type { PlanePole } from '../core/charts/pole-plane-options';
-import { windowText } from '../core/format/window-text';
+import { frequencyWindowText, windowText } from '../core/format/window-text';
 import { CatalogueApi } from './catalogue-api';
 import { formatEnergy, formatLifetime, formatQuality, formatWidth, significant } from '../core/format/energy-format';
 import { materialLabel } from '../core/format/material-label';
@@ -62,7 +62,11 @@ export class ResonanceDetail {
   private readonly destroyRef = inject(DestroyRef);
   protected readonly group = inject(CurrentGroup);
   protected readonly canDesign = injectCanDesign();
-  protected readonly windowText = windowText;
+  /** The run's window in the resonance's own units: GHz for a microwave resonator (the run stores k² in mm⁻²). */
+  protected runWindowText(r: ResonanceData): string {
+    if (!r.run) return '';
+    return r.microwave ? frequencyWindowText(r.run.window, Number(r.material.replace('eps_r=', ''))) : windowText(r.run.window);
+  }
   protected readonly materialLabel = materialLabel;
 
   protected readonly resonance = signal<ResonanceData | null>(null);
