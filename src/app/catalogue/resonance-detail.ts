@@ -65,7 +65,8 @@ export class ResonanceDetail {
   /** The run's window in the resonance's own units: GHz for a microwave resonator (the run stores k² in mm⁻²). */
   protected runWindowText(r: ResonanceData): string {
     if (!r.run) return '';
-    return r.microwave ? frequencyWindowText(r.run.window, Number(r.material.replace('eps_r=', ''))) : windowText(r.run.window);
+    const permittivity = r.microwave ? Number(r.material.replace('eps_r=', '')) : NaN;
+    return permittivity > 0 ? frequencyWindowText(r.run.window, permittivity) : windowText(r.run.window);
   }
   protected readonly materialLabel = materialLabel;
 

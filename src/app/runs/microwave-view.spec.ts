@@ -1,4 +1,5 @@
-import { frequencyPole, frequencySpectrum, frequencyWindow, frequencyWindowText } from './microwave-view';
+import { frequencyPole, frequencySpectrum } from './microwave-view';
+import { frequencyWindow, frequencyWindowText } from '../core/format/window-text';
 
 // f = c·√k²/(2π√ε_r) with c = 299.792458 mm/ns exactly (SI definition of the metre).
 const c = 299.792458;

@@ -1,6 +1,5 @@
-import type { Run, Spectrum } from '../../../shared/api/runs';
+import type { Spectrum } from '../../../shared/api/runs';
 import type { PlanePole } from '../core/charts/pole-plane-options';
-import { significant } from '../core/format/energy-format';
 import { frequencyOfWavenumberSquared, microwaveFigures } from '../../../shared/units/microwave';
 
 /**
@@ -15,28 +14,6 @@ import { frequencyOfWavenumberSquared, microwaveFigures } from '../../../shared/
 export function frequencyPole<P extends PlanePole>(p: P, permittivity: number): P {
   const m = microwaveFigures(p.energy, p.width, permittivity);
   return { ...p, energy: m.frequencyGhz, width: m.widthMhz / 1e3 };
-}
-
-/**
- * The pole window in frequencies: f(E_min) to f(E_max), and the largest Γ_f that is inside
- * the window at every frequency of it (Γ_f of the lower edge Γmax at the top of the window:
- * a fixed Γ in k² is a narrower Γ_f at a higher frequency).
- */
-export function frequencyWindow(window: Run['window'], permittivity: number): { emin: number; emax: number; gammaMax?: number } {
-  const emin = frequencyOfWavenumberSquared(window['emin'] ?? NaN, permittivity);
-  const emax = frequencyOfWavenumberSquared(window['emax'] ?? NaN, permittivity);
-  const gammaMax = window['gammaMax'];
-  if (gammaMax == null) return { emin, emax };
-  return { emin, emax, gammaMax: microwaveFigures(window['emax'] ?? NaN, gammaMax, permittivity).widthMhz / 1e3 };
-}
-
-/** The window in words: "12.500–17.000 GHz, Γ_f ≤ 12.3 MHz (k² 0.0686–0.127 mm⁻²)". */
-export function frequencyWindowText(window: Run['window'], permittivity: number): string {
-  const f = frequencyWindow(window, permittivity);
-  const range = `${f.emin.toFixed(3)}–${f.emax.toFixed(3)} GHz`;
-  const raw = `k² ${significant(window['emin'] ?? NaN)}–${significant(window['emax'] ?? NaN)} mm⁻²`;
-  if (window['points'] != null) return `${range}, ${window['points']} frequencies (${raw})`;
-  return f.gammaMax != null ? `${range}, Γ_f ≤ ${significant(f.gammaMax * 1e3)} MHz (${raw})` : `${range} (${raw})`;
 }
 
 /** Real k² values (thresholds, the validity limit) as frequencies (GHz). */

@@ -19,7 +19,8 @@ import { durationText } from './progress-times';
 import { kindLabel, windowText } from './run-labels';
 import { RunsApi } from './runs-api';
 import type { RunDetail } from '../../../shared/api/runs';
-import { frequencyPole, frequencySpectrum, frequencyWindowText } from './microwave-view';
+import { frequencyPole, frequencySpectrum } from './microwave-view';
+import { frequencyWindow, frequencyWindowText } from '../core/format/window-text';
 import { aboveLimitMeaning, microwaveCells, validitySummary } from './pole-validity';
 import type { ResonanceRow } from '../../../shared/api/resonance-row';
 
@@ -27,6 +28,18 @@ import type { ResonanceRow } from '../../../shared/api/resonance-row';
 function ownUnits(run: RunDetail): ResonanceRow[] {
   const eps = run.microwave?.permittivity;
   return eps ? run.poles.map((p) => frequencyPole(p, eps)) : run.poles;
+}
+
+/** The energy (or, for microwave runs, frequency) range both runs searched; null when they share none or a window is missing. */
+function sharedRange(a: RunDetail, b: RunDetail, microwave: boolean): { emin: number; emax: number } | null {
+  const range = (run: RunDetail) => {
+    const w = microwave ? frequencyWindow(run.window, run.microwave!.permittivity) : run.window;
+    return w['emin'] != null && w['emax'] != null ? { emin: w['emin'], emax: w['emax'] } : null;
+  };
+  const ra = range(a);
+  const rb = range(b);
+  if (!ra || !rb) return null;
+  return { emin: Math.max(ra.emin, rb.emin), emax: Math.min(ra.emax, rb.emax) };
 }
 
 interface Side {
@@ -101,8 +114,12 @@ export class RunCompare {
   protected readonly matched = computed(() => {
     const s = this.sides();
     if (!s?.[0].run || !s[1].run) return [];
-    // Matched where they are drawn: in the frequency plane for two microwave runs.
-    return this.microwave() ? matchPoles(ownUnits(s[0].run), ownUnits(s[1].run)) : matchPoles(s[0].run.poles, s[1].run.poles);
+    // Matched where they are drawn: in the frequency plane for two microwave runs; only
+    // inside the energy range both searched (a pole outside it has no partner to find).
+    const shared = sharedRange(s[0].run, s[1].run, this.microwave());
+    return this.microwave()
+      ? matchPoles(ownUnits(s[0].run), ownUnits(s[1].run), Infinity, shared)
+      : matchPoles(s[0].run.poles, s[1].run.poles, Infinity, shared);
   });
   protected readonly diff = computed(() => {
     const s = this.sides();
@@ -114,6 +131,12 @@ export class RunCompare {
       const ids = { a: this.a(), b: this.b(), model: this.model(), va: this.va(), vb: this.vb() };
       untracked(() => this.load(ids));
     });
+  }
+
+  /** Why a row has no partner: the other run never searched there, or it found nothing near. */
+  protected lone(m: { a: unknown; outside: boolean }): string {
+    if (!m.outside) return 'no partner';
+    return m.a ? "outside B's window" : "outside A's window";
   }
 
   protected windowOf(run: RunDetail): string {

@@ -31,7 +31,8 @@ import { type ConductanceUnit, type SpectrumQuantity, conductanceUnitLabels } fr
 import { spectrumWarnings } from './spectrum-warnings';
 import { aboveLimitMeaning, microwaveCells, validitySummary } from './pole-validity';
 import type { SpectrumView } from './transmission-options';
-import { frequencies, frequencyPole, frequencySpectrum, frequencyWindow, frequencyWindowText } from './microwave-view';
+import { frequencies, frequencyPole, frequencySpectrum } from './microwave-view';
+import { frequencyWindow, frequencyWindowText } from '../core/format/window-text';
 import type { RunDetail as RunDetailData } from '../../../shared/api/runs';
 
 /**
