@@ -83,7 +83,7 @@ export function runStudyStepTask(task: StudyStepTask, signal?: AbortSignal): Stu
     if (study.transmissionPoints) {
       if (task.reuseTransmission?.points === study.transmissionPoints) transmission = task.reuseTransmission;
       else {
-        transmission = stepTransmission(model, study.window, study.transmissionPoints, { signal });
+        transmission = stepTransmission(model, study.window, study.transmissionPoints, { signal }, search.poles);
         transmissionComputed = true;
       }
     }

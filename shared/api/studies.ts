@@ -190,6 +190,8 @@ const transmissionMapSchema = z.object({
   worstCurrentResidual: z.number(),
   /** Steps whose adaptive sweep ran out of energies with intervals still flagged (a peak may be lower than drawn). */
   budgetExhaustedSteps: z.array(z.number().int()),
+  /** Steps whose row sampled every pole the step found at E and E ± Γ/2 (those peaks are drawn at full height). */
+  poleSampledSteps: z.array(z.number().int()),
 });
 
 export const sweepOutcomeSchema = z.object({

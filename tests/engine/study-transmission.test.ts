@@ -50,6 +50,15 @@ describe('transmission map of a study', () => {
       expect(v).toBeLessThanOrEqual(channels + 1e-9);
     });
     expect(row.worstCurrentResidual).toBeLessThan(1e-8);
+    expect(row.poleSamples).toBe(0);
+    // Given the step's poles, the row samples each at E and E ± Γ/2: the column of the narrow
+    // pole then holds at least T(Re z) (what a finer grid would have found there).
+    const poles = searchStep(model, dotWindow).poles;
+    const sampled = stepTransmission(model, dotWindow, 40, undefined, poles)!;
+    expect(sampled.poleSamples).toBe(3 * poles.length);
+    const atPole = transmissionAt(op, pole.energy).transmission[0][1];
+    const poleColumn = energies.reduce((best, e, k) => (Math.abs(e - pole.energy) < Math.abs(energies[best] - pole.energy) ? k : best), 0);
+    expect(sampled.values[poleColumn]).toBeGreaterThanOrEqual(atPole - 1e-12);
   });
 
   it('is part of a study when asked for, one row per step, and absent for a closed cavity', () => {

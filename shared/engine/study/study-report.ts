@@ -71,6 +71,7 @@ function transmissionMapReport(def: StudyDefinition, out: StudyOutcome) {
     into: rows[0]?.into ?? [],
     worstCurrentResidual: rows.reduce((w, r) => Math.max(w, r.worstCurrentResidual), 0),
     budgetExhaustedSteps: out.steps.filter((s) => s.transmission?.budgetExhausted).map((s) => s.index),
+    poleSampledSteps: out.steps.filter((s) => (s.transmission?.poleSamples ?? 0) > 0).map((s) => s.index),
   };
 }
 

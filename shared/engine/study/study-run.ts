@@ -42,7 +42,7 @@ export function runStudy(def: StudyDefinition, control?: WorkControl): StudyOutc
   for (let k = 0; k < count; k++) {
     const model = studyStepModel(def, k);
     const step = computeStep(model, def.window, def.search ?? {}, studyStepPath(def, k), control);
-    if (def.transmissionPoints) step.transmission = stepTransmission(model, def.window, def.transmissionPoints, control);
+    if (def.transmissionPoints) step.transmission = stepTransmission(model, def.window, def.transmissionPoints, control, step.poles);
     results.push(step);
     control?.onProgress?.('steps', (k + 1) / count);
   }

@@ -35,6 +35,8 @@ export interface StepTransmission {
   worstCurrentResidual: number;
   /** True when the refinement stopped on its budget with intervals still flagged. */
   budgetExhausted: boolean;
+  /** Energies sampled at the step's poles (E and E ± Γ/2 of each); absent on rows stored before poles were sampled. */
+  poleSamples?: number;
 }
 
 /** The column energies of a map: `points` evenly spaced energies, both window ends included. */
@@ -65,14 +67,23 @@ function outOfFirstLead(p: TransmissionPoint): number {
 
 /**
  * The map row of one model over the window, or null for a model with fewer than two
- * leads (no transmission to draw). Throws InvalidModelError for an invalid document.
+ * leads (no transmission to draw). `poles` (the step's search) are sampled at E and
+ * E ± Γ/2, so every listed resonance reaches its full height in its column however
+ * narrow. Throws InvalidModelError for an invalid document.
  */
-export function stepTransmission(model: unknown, window: PoleWindow, points: number, control?: WorkControl): StepTransmission | null {
+export function stepTransmission(
+  model: unknown,
+  window: PoleWindow,
+  points: number,
+  control?: WorkControl,
+  poles: readonly { energy: number; width: number }[] = [],
+): StepTransmission | null {
   if (!Number.isInteger(points) || points < 2 || points > MAX_MAP_POINTS) throw new RangeError(`transmissionPoints: an integer from 2 to ${MAX_MAP_POINTS}`);
   const system = buildCavitySystem(model);
   if (system.leads.length < 2) return null;
   const op = new EffectiveHamiltonian(system);
-  const sweep = transmissionSweep(op, { emin: window.emin, emax: window.emax, points, refine: { maxPoints: 4 * points, tolerance: 0.1 } }, control);
+  const anchors = poles.flatMap((p) => [p.energy - p.width / 2, p.energy, p.energy + p.width / 2]);
+  const sweep = transmissionSweep(op, { emin: window.emin, emax: window.emax, points, refine: { maxPoints: 4 * points, tolerance: 0.1 }, anchors }, control);
   const energies = mapEnergies(window, points);
   return {
     points,
@@ -85,5 +96,6 @@ export function stepTransmission(model: unknown, window: PoleWindow, points: num
     samples: sweep.points.length,
     worstCurrentResidual: sweep.worstCurrentResidual,
     budgetExhausted: sweep.budgetExhausted,
+    poleSamples: sweep.anchors,
   };
 }

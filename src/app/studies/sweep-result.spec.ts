@@ -30,6 +30,29 @@ function setUp(role: 'designer' | 'viewer' = 'designer') {
 }
 
 describe('SweepResult', () => {
+  it('tells steps whose map ran out of energies but sampled their poles apart from steps that did not', () => {
+    TestBed.configureTestingModule({
+      providers: [
+        provideHttpClient(),
+        provideHttpClientTesting(),
+        provideRouter([]),
+        provideFakeCurrentGroup('viewer'),
+        provideEchartsCore({ echarts: () => import('./echarts') }),
+      ],
+    });
+    const fixture = TestBed.createComponent(SweepResult);
+    fixture.componentRef.setInput('studyId', studyId);
+    fixture.componentRef.setInput('outcome', {
+      ...sampleSweepOutcome,
+      transmission: { ...sampleSweepOutcome.transmission!, budgetExhaustedSteps: [0, 2], poleSampledSteps: [1, 2] },
+    });
+    fixture.detectChanges();
+    const host = fixture.nativeElement as HTMLElement;
+    expect(host.querySelector('[data-test=map-coarse]')!.textContent).toContain('Steps 0 ran out');
+    expect(host.querySelector('[data-test=map-coarse]')!.textContent).toContain('may be drawn too low');
+    expect(host.querySelector('[data-test=map-pole-sampled]')!.textContent).toContain('Steps 2 ran out of sweep energies between their poles');
+  });
+
   it('warns about the uncertified step and lists the avoided crossing', () => {
     const { host } = setUp();
     expect(host.querySelector('[data-test=uncertified]')!.textContent).toContain('1 of 3 step(s) are not certified');

@@ -72,7 +72,15 @@ export class SweepResult {
     const rows: MapRow[] = o.steps
       .filter((s) => Math.floor(s.index / n0) === li)
       .map((s) => ({ step: s.index, value: s.values[0], values: s.transmission ?? null }));
-    return { ...m, rows, quantity: `T ${m.from} → ${m.into.join(' + ')}` };
+    // Steps that ran out of energies but sampled every pole they found: their listed peaks are at full height.
+    const sampled = new Set(m.poleSampledSteps);
+    return {
+      ...m,
+      rows,
+      quantity: `T ${m.from} → ${m.into.join(' + ')}`,
+      coarseSteps: m.budgetExhaustedSteps.filter((k) => !sampled.has(k)),
+      coarseSampledSteps: m.budgetExhaustedSteps.filter((k) => sampled.has(k)),
+    };
   });
   /** Whether the study asked for a map that cannot be drawn (no two leads) or was made before maps existed. */
   protected readonly mapAbsence = computed(() => {

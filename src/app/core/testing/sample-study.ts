@@ -27,7 +27,7 @@ export const sampleSweepOutcome: SweepOutcome = {
     poles: [pole(3 + index * 0.2, 0.1), pole(3.6 - index * 0.2, 0.05 + index * 0.02)],
     transmission: [0.1, 0.9 - index * 0.2, 0.3, 0.05],
   })),
-  transmission: { energies: [1, 4, 7, 10], from: 'source', into: ['drain'], worstCurrentResidual: 1e-13, budgetExhaustedSteps: [] },
+  transmission: { energies: [1, 4, 7, 10], from: 'source', into: ['drain'], worstCurrentResidual: 1e-13, budgetExhaustedSteps: [], poleSampledSteps: [] },
   lines: [
     {
       value: null,
