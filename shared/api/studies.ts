@@ -190,8 +190,8 @@ const transmissionMapSchema = z.object({
   worstCurrentResidual: z.number(),
   /** Steps whose adaptive sweep ran out of energies with intervals still flagged (a peak may be lower than drawn). */
   budgetExhaustedSteps: z.array(z.number().int()),
-  /** Steps whose row sampled every pole the step found at E and E ± Γ/2 (those peaks are drawn at full height). */
-  poleSampledSteps: z.array(z.number().int()),
+  /** Steps whose row sampled every pole the step found at E and E ± Γ/2 (those peaks are drawn at full height); absent in studies stored before. */
+  poleSampledSteps: z.array(z.number().int()).optional(),
 });
 
 export const sweepOutcomeSchema = z.object({
@@ -216,6 +216,13 @@ export const sweepOutcomeSchema = z.object({
   transmission: transmissionMapSchema.nullable().optional(),
   lines: z.array(z.object({ value: z.number().nullable(), trajectories: z.array(trajectorySchema), marks: z.array(trajectoryMarkSchema) })),
   fullSearchFraction: z.number(),
+  /**
+   * Step size against the level spacing: links from one step to the next, and how many moved
+   * a pole by more than half the mean level spacing of the window (the window's width over its
+   * pole count) — then the steps are too coarse to be sure a trajectory stays on one resonance.
+   * Absent in studies stored before.
+   */
+  moves: z.object({ links: z.number().int(), large: z.number().int(), spacing: z.number().nullable() }).optional(),
   units: z.object({ energy: z.string(), width: z.string(), lifetime: z.string() }),
 });
 export type SweepOutcome = z.infer<typeof sweepOutcomeSchema>;

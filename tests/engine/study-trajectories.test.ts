@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { runStudy, type StudyOutcome } from '../../shared/engine/study/study-run';
+import { studyReport } from '../../shared/engine/study/study-report';
 import { inSymmetricGauge, modeOverlap, type SiteList } from '../../shared/engine/study/mode-overlap';
 import { cyclotronEnergy, hoppingEnergy } from '../../shared/units/constants';
 
@@ -75,6 +76,21 @@ describe('parameter study trajectories', () => {
     expect(mark?.kind).toBe('crossing');
     // Every step after the first was linked by Newton continuation alone.
     expect(out.fullSearchFraction).toBeLessThan(0.5);
+  });
+
+  it('says whether the steps are fine enough against the level spacing', () => {
+    // Fine steps (0.0375 T): every link moves its pole by well under half the mean level spacing.
+    const fine = { model: disk(), parameters: [{ path: 'field', values: fields }], window };
+    const fineMoves = studyReport(fine, runStudy(fine)).moves;
+    expect(fineMoves.links).toBeGreaterThan(8);
+    expect(fineMoves.large).toBe(0);
+    expect(fineMoves.spacing).toBeGreaterThan(0);
+    // The same window over 0–3 T in four steps: levels of the disk's fan move by several
+    // spacings between steps, and the report says so.
+    const coarse = { model: disk(), parameters: [{ path: 'field', values: [0, 1, 2, 3] }], window };
+    const coarseMoves = studyReport(coarse, runStudy(coarse)).moves;
+    expect(coarseMoves.links).toBeGreaterThan(0);
+    expect(coarseMoves.large).toBeGreaterThan(0);
   });
 
   it('follows the same pair through an avoided crossing when a bump breaks the symmetry', () => {

@@ -53,8 +53,35 @@ export function studyReport(def: StudyDefinition, out: StudyOutcome) {
       marks: l.marks,
     })),
     fullSearchFraction: out.fullSearchFraction,
+    moves: stepMoves(def, out),
     units: { energy: 'meV', width: 'meV', lifetime: 'ps' },
   };
+}
+
+/**
+ * How far the poles moved from one step to the next against the window's mean level
+ * spacing δ = (E_max − E_min)/N at the earlier step (N its poles): a link that moves a pole
+ * by more than δ/2 could as well have joined a neighbouring resonance, so many of them say
+ * the steps are too coarse to follow resonances one by one (common practice, no source).
+ * `spacing` is the smallest δ over the steps (null without poles).
+ */
+function stepMoves(def: StudyDefinition, out: StudyOutcome): { links: number; large: number; spacing: number | null } {
+  const spacingAt = (step: number) => (def.window.emax - def.window.emin) / Math.max(1, out.steps[step].poles.length);
+  let links = 0;
+  let large = 0;
+  for (const line of out.lines) {
+    for (const t of line.trajectories) {
+      for (let k = 1; k < t.points.length; k++) {
+        const a = t.points[k - 1];
+        const b = t.points[k];
+        links++;
+        const moved = Math.abs(out.steps[b.step].poles[b.pole].energy - out.steps[a.step].poles[a.pole].energy);
+        if (moved > spacingAt(a.step) / 2) large++;
+      }
+    }
+  }
+  const withPoles = out.steps.filter((s) => s.poles.length > 0).map((s) => s.index);
+  return { links, large, spacing: withPoles.length ? Math.min(...withPoles.map(spacingAt)) : null };
 }
 
 /**

@@ -30,6 +30,27 @@ function setUp(role: 'designer' | 'viewer' = 'designer') {
 }
 
 describe('SweepResult', () => {
+  it('says when the steps are coarse against the level spacing, and stays quiet when they are not', () => {
+    TestBed.configureTestingModule({
+      providers: [
+        provideHttpClient(),
+        provideHttpClientTesting(),
+        provideRouter([]),
+        provideFakeCurrentGroup('viewer'),
+        provideEchartsCore({ echarts: () => import('./echarts') }),
+      ],
+    });
+    const fixture = TestBed.createComponent(SweepResult);
+    fixture.componentRef.setInput('studyId', studyId);
+    fixture.componentRef.setInput('outcome', { ...sampleSweepOutcome, moves: { links: 20, large: 7, spacing: 0.11 } });
+    fixture.detectChanges();
+    const host = fixture.nativeElement as HTMLElement;
+    expect(host.querySelector('[data-test=coarse-steps]')!.textContent).toContain('7 of 20 links moved a pole by more than half the mean level spacing');
+    fixture.componentRef.setInput('outcome', { ...sampleSweepOutcome, moves: { links: 20, large: 0, spacing: 0.11 } });
+    fixture.detectChanges();
+    expect(host.querySelector('[data-test=coarse-steps]')).toBeNull();
+  });
+
   it('tells steps whose map ran out of energies but sampled their poles apart from steps that did not', () => {
     TestBed.configureTestingModule({
       providers: [

@@ -1,4 +1,5 @@
 import { ChangeDetectionStrategy, Component, computed, input, signal } from '@angular/core';
+import { EnergyPipe } from '../core/format/energy-format';
 import { MatButtonModule } from '@angular/material/button';
 import { MatButtonToggleModule } from '@angular/material/button-toggle';
 import { MatSelectModule } from '@angular/material/select';
@@ -18,7 +19,7 @@ import { markLabels, markPoint, trajectoryPlaneOptions, trajectoryValueOptions }
 @Component({
   selector: 'pw-sweep-result',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [MatButtonModule, MatButtonToggleModule, MatSelectModule, NgxEchartsDirective, StudyStepPanel, TransmissionMap],
+  imports: [MatButtonModule, MatButtonToggleModule, MatSelectModule, NgxEchartsDirective, StudyStepPanel, TransmissionMap, EnergyPipe],
   templateUrl: './sweep-result.html',
   styleUrl: './sweep-result.scss',
 })
@@ -73,7 +74,7 @@ export class SweepResult {
       .filter((s) => Math.floor(s.index / n0) === li)
       .map((s) => ({ step: s.index, value: s.values[0], values: s.transmission ?? null }));
     // Steps that ran out of energies but sampled every pole they found: their listed peaks are at full height.
-    const sampled = new Set(m.poleSampledSteps);
+    const sampled = new Set(m.poleSampledSteps ?? []);
     return {
       ...m,
       rows,
