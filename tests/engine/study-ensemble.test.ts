@@ -167,6 +167,8 @@ describe('study inputs', () => {
     expect(v.length).toBe(5);
     expect(v[4]).toBe(2);
     expect(Math.abs(v[1] - 0.5)).toBeLessThan(1e-15);
+    // Values are the ones meant, not sums carrying rounding noise (0.2·3/20 is 0.030000000000000006 in floating point).
+    expect(parseParameterValues('0:0.2:21')[3]).toBe(0.03);
     expect(parseParameterValues('1, 2.5,4').length).toBe(3);
     expect(() => parseParameterValues('0:2')).toThrow(/FROM:TO:COUNT/);
     expect(() => parseParameterValues('0:2:1')).toThrow(/COUNT/);

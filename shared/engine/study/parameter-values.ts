@@ -26,7 +26,11 @@ export function parseParameterValues(text: string): number[] {
   return values;
 }
 
-/** COUNT evenly spaced values from `from` to `to`, both included (the last is `to` exactly). */
+/**
+ * COUNT evenly spaced values from `from` to `to`, both included (the last is `to` exactly),
+ * rounded to 12 significant digits so that 0:0.2:21 gives 0.03, not 0.030000000000000006
+ * (the step's model and its label then carry the value the user meant).
+ */
 export function rangeValues(from: number, to: number, count: number): number[] {
-  return Array.from({ length: count }, (_, k) => (k === count - 1 ? to : from + ((to - from) * k) / (count - 1)));
+  return Array.from({ length: count }, (_, k) => (k === count - 1 ? to : Number((from + ((to - from) * k) / (count - 1)).toPrecision(12))));
 }

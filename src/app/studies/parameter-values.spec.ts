@@ -1,4 +1,4 @@
-import { expandValues, parseParameterValues } from './parameter-values';
+import { expandValues, parseParameterValues, stepValueText } from './parameter-values';
 
 describe('parseParameterValues', () => {
   it('reads FROM:TO:COUNT as a range with both ends included', () => {
@@ -22,5 +22,11 @@ describe('parseParameterValues', () => {
     expect((parseParameterValues('0:1:2.5') as { error: string }).error).toContain('COUNT');
     expect((parseParameterValues('a:1:3') as { error: string }).error).toContain('FROM and TO');
     expect((parseParameterValues('1, x, 2') as { error: string }).error).toContain('"x"');
+  });
+
+  it('labels a step value without floating-point noise', () => {
+    expect(stepValueText(0.030000000000000006)).toBe('0.03');
+    expect(stepValueText(1e-7)).toBe('1e-7');
+    expect(stepValueText(12.5)).toBe('12.5');
   });
 });

@@ -34,3 +34,8 @@ export function expandValues(values: ParameterValues): number[] {
   const { from, to, count } = values;
   return Array.from({ length: count }, (_, i) => from + ((to - from) * i) / (count - 1));
 }
+
+/** A step's parameter value for a label: 10 significant digits, so 0.030000000000000006 (studies stored before values were rounded) reads 0.03. */
+export function stepValueText(v: number): string {
+  return Number.isFinite(v) ? Number(v.toPrecision(10)).toString() : String(v);
+}

@@ -1,4 +1,5 @@
 import { ChangeDetectionStrategy, Component, DestroyRef, effect, inject, input, output, signal, untracked } from '@angular/core';
+import { stepValueText } from './parameter-values';
 import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
 import { MatButtonModule } from '@angular/material/button';
 import { MatIconModule } from '@angular/material/icon';
@@ -26,6 +27,7 @@ import { type SavedStep, StudiesApi } from './studies-api';
   styleUrl: './study-step-panel.scss',
 })
 export class StudyStepPanel {
+  protected readonly stepValue = stepValueText;
   readonly studyId = input.required<string>();
   readonly index = input.required<number>();
   /** The swept parameter's name, for the heading (none for an ensemble). */

@@ -1,4 +1,5 @@
 import { ChangeDetectionStrategy, Component, computed, input, signal } from '@angular/core';
+import { stepValueText } from './parameter-values';
 import { EnergyPipe } from '../core/format/energy-format';
 import { MatButtonModule } from '@angular/material/button';
 import { MatButtonToggleModule } from '@angular/material/button-toggle';
@@ -24,6 +25,7 @@ import { markLabels, markPoint, trajectoryPlaneOptions, trajectoryValueOptions }
   styleUrl: './sweep-result.scss',
 })
 export class SweepResult {
+  protected readonly stepValue = stepValueText;
   readonly studyId = input.required<string>();
   readonly outcome = input.required<SweepOutcome>();
 
