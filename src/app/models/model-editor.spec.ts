@@ -223,7 +223,7 @@ describe('ModelEditor', () => {
     expect(host.querySelector<HTMLInputElement>('[data-field="lattice.hopping"]')!.value).toBe('2.7');
     expect(host.querySelector('[data-field="material"]')).toBeNull();
     expect(host.querySelector('[data-test="graphene-source"]')!.textContent).toContain('Castro Neto');
-    expect(fieldOf(host, 'spacing').textContent).toContain('Carbon–carbon a_CC (nm)');
+    expect(fieldOf(host, 'spacing').textContent).toContain('C–C distance a_CC (nm)');
     expect(host.querySelector<HTMLInputElement>('[data-field="spacing"]')!.value).toBe('0.142');
     expect(fieldOf(host, 'leads.0.width').textContent).toContain('Width (zigzag chains)');
     expect(host.querySelector('[data-test="lattice-note"]')!.textContent).toContain('graphene dot');
