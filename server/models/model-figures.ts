@@ -34,9 +34,9 @@ export interface ModelColumns extends GeometryColumns {
   family: string;
   /** 'electrons' or 'microwave' (shared/model/physics-mode.ts). */
   physics: PhysicsKind;
-  /** The material preset id, 'custom', or for a microwave model 'eps_r=<ε_r>'. */
+  /** The material preset id, 'custom', 'honeycomb' for a graphene model, or for a microwave model 'eps_r=<ε_r>'. */
   material: string;
-  /** m* / m_e; 0 for a microwave model (no mass). */
+  /** m* / m_e; 0 for a microwave or honeycomb model (no mass). */
   effectiveMass: number;
   spacingNm: number;
   fieldT: number;
@@ -70,6 +70,7 @@ export function checkModel(document: unknown): CheckedModel {
   const derived = deriveFigures(model, siteCount);
   const geometry = geometryColumns(model, mask, siteCount);
   const microwave = model.physics.kind === 'microwave' ? model.physics : null;
+  const honeycomb = model.lattice?.kind === 'honeycomb';
   return {
     model,
     derived,
@@ -77,8 +78,8 @@ export function checkModel(document: unknown): CheckedModel {
     columns: {
       family: shapeFamily(model.shape),
       physics: model.physics.kind,
-      material: microwave ? `eps_r=${microwave.permittivity}` : typeof model.material === 'string' ? model.material : 'custom',
-      effectiveMass: microwave ? 0 : derived.massRatio,
+      material: microwave ? `eps_r=${microwave.permittivity}` : honeycomb ? 'honeycomb' : typeof model.material === 'string' ? model.material : 'custom',
+      effectiveMass: microwave || honeycomb ? 0 : derived.massRatio,
       spacingNm: model.spacing * physicsUnits(model.physics.kind).nmPerLength,
       fieldT: model.field,
       siteCount,
@@ -186,7 +187,7 @@ function maskBox(mask: Uint8Array, nx: number, ny: number) {
 }
 
 /** The fields of a document the derived figures read (not the shape or the potential). */
-const figureFields = cavityModelSchema.pick({ name: true, spacing: true, material: true, field: true, leads: true, physics: true });
+const figureFields = cavityModelSchema.pick({ name: true, spacing: true, material: true, field: true, leads: true, physics: true, lattice: true });
 
 /**
  * Derived figures of a stored document from its stored site count (nothing rasterised):

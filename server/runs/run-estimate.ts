@@ -3,7 +3,8 @@ import { twoDimensionalLimitGhz, wavenumberSquared } from '../../shared/units/mi
 import { readFileSync } from 'node:fs';
 import { buildCavitySystem, EffectiveHamiltonian } from '../../shared/engine/effective-hamiltonian.js';
 import { SparseLuPlan } from '../../shared/engine/sparse-lu.js';
-import { energyValidity } from '../../shared/model/derived-figures.js';
+import { deriveFigures, energyValidity } from '../../shared/model/derived-figures.js';
+import { modelLattice, type CavityModel } from '../../shared/model/cavity-model.js';
 import { ENGINE_VERSION, spectrumBudget } from '../jobs/engine-task.js';
 import { POLE_SEARCH_SPECTRUM_POINTS } from '../jobs/run-job.js';
 import type { RunRequest } from './run-window.js';
@@ -55,6 +56,8 @@ export interface RunCostFeatures {
   kind: RunRequest['kind'];
   hopping: number;
   spacing: number;
+  /** Honeycomb: the Dirac picture's validity warnings at the window's end farthest from E_D (the square lattice's rule does not apply). */
+  diracWarnings: string[] | null;
   /** electrons (meV, nm) or microwave (k² in mm⁻², mm): the unit words of the warnings. */
   physics: PhysicsKind;
   /** Microwave: the 2D (TM0) limit c/(2h√ε_r) in GHz and as k² (mm⁻²); null for electrons. */
@@ -89,6 +92,7 @@ export function runCostFeatures(document: unknown, req: Pick<RunRequest, 'kind' 
     kind: req.kind,
     hopping: op.hopping,
     spacing: system.spacing,
+    diracWarnings: diracWarnings(system.model, op.n, emin, emax),
     physics: system.model.physics.kind,
     twoDimensionalLimit:
       system.model.physics.kind === 'microwave'
@@ -99,6 +103,14 @@ export function runCostFeatures(document: unknown, req: Pick<RunRequest, 'kind' 
         : null,
     allThresholds: [...op.thresholds],
   };
+}
+
+/** The Dirac-picture warnings of a honeycomb model at the window's end farthest from the Dirac point; null on the square lattice. */
+function diracWarnings(model: CavityModel, sites: number, emin: number, emax: number): string[] | null {
+  if (modelLattice(model).kind !== 'honeycomb') return null;
+  const ed = deriveFigures(model, sites).dirac?.energy ?? 0;
+  const far = Math.abs(emin - ed) > Math.abs(emax - ed) ? emin : emax;
+  return deriveFigures(model, sites, far).validity?.warnings ?? [];
 }
 
 const stepSeconds = (c: RunCostModel['poleStep'], f: RunCostFeatures) => c.perFlop * f.factorFlops + c.perNonzero * f.factorNonzeros + c.perSite * f.sites;
@@ -139,7 +151,7 @@ export function estimateRun(document: unknown, req: Pick<RunRequest, 'kind' | 'w
   const p = predictRunSeconds(f, model);
   const { emax } = req.window;
   const warnings: string[] = [];
-  warnings.push(...energyValidity(emax, f.hopping, f.spacing, f.physics).warnings);
+  warnings.push(...(f.diracWarnings ?? energyValidity(emax, f.hopping, f.spacing, f.physics).warnings));
   if (f.twoDimensionalLimit && emax > f.twoDimensionalLimit.k2) {
     warnings.push(
       `The window reaches above the 2D limit c/(2h√ε_r) = ${f.twoDimensionalLimit.ghz.toPrecision(4)} GHz (k² = ${f.twoDimensionalLimit.k2.toPrecision(4)} mm⁻²): there the resonator's next vertical mode propagates and the 2D (TM0) model does not hold.`,

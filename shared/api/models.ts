@@ -32,6 +32,18 @@ export const derivedFiguresSchema = z
       })
       .optional(),
     physics: z.enum(['electrons', 'microwave']).optional().meta({ description: 'microwave: every energy above is k² (mm⁻²), hopping 1/a²' }),
+    lattice: z
+      .enum(['square', 'honeycomb'])
+      .optional()
+      .meta({ description: 'absent: square. honeycomb: hopping is t in meV, the ceilings are t/4 (Dirac picture), thresholds are empty (no closed form)' }),
+    dirac: z
+      .object({
+        hbarVelocity: z.number().meta({ description: 'ħv_F = 3t·a_CC/2 (meV·nm)' }),
+        velocity: z.number().meta({ description: 'v_F (m/s)' }),
+        energy: z.number().meta({ description: 'Dirac-point energy 3t′ (meV)' }),
+      })
+      .optional()
+      .meta({ description: 'Honeycomb only: the Dirac cone' }),
     permittivity: z.number().optional().meta({ description: 'Microwave: ε_r of the filling' }),
     heightMm: z.number().optional().meta({ description: 'Microwave: height h of the resonator (mm)' }),
     twoDimensionalLimitGhz: z.number().optional().meta({ description: 'Microwave: c/(2h√ε_r) (GHz), above which the 2D picture fails' }),

@@ -223,6 +223,8 @@ export const cavityModelSchema = z.object({
   potential: z.array(potentialTermSchema).max(DOCUMENT_LIMITS.potentialTerms).default([]),
   /** Perpendicular field B (T), along +z. */
   field: finite().default(0),
+  /** The field acts in the leads as well; absent or false: field-free leads, as the contract says. */
+  fieldInLeads: z.boolean().optional(),
   leads: z.array(leadSchema).max(DOCUMENT_LIMITS.leads).default([]),
 });
 /** A parsed model (defaults filled in). */

@@ -5,7 +5,11 @@ import { provideRouter } from '@angular/router';
 import { provideFakeCurrentGroup } from '../core/testing/fake-current-group';
 import { ModelEditor } from './model-editor';
 import { starterModel } from './model-form';
+import { grapheneStarter } from './lattice-switch';
 import { type ModelDetail, getModelRoute } from '../../../shared/api/models';
+import { cavityModelSchema } from '../../../shared/model/cavity-model';
+import { deriveFigures } from '../../../shared/model/derived-figures';
+import { validateCavityModel } from '../../../shared/model/model-validation';
 import { answerFixture, fixtureId } from '../core/testing/answer-fixtures';
 
 /** A saved model as GET /models/:id answers, built on the editor's own starting document. */
@@ -198,5 +202,122 @@ describe('ModelEditor', () => {
     expect(host.querySelector('[data-test="potential-card"]')).toBeNull();
     expect(fieldOf(host, 'spacing').textContent).toContain('Spacing a (mm)');
     http.match(() => true);
+  });
+
+  /** The editor's form and lattice choice, as the template drives them. */
+  type Driven = {
+    form: { controls: { lattice: { controls: { kind: { setValue(v: string): void } } }; field: { setValue(v: number): void } } };
+    chooseLattice(kind: string): void;
+  };
+  function pickGraphene(fixture: ReturnType<typeof setUp>['fixture']): void {
+    const editor = fixture.componentInstance as unknown as Driven;
+    editor.form.controls.lattice.controls.kind.setValue('honeycomb');
+    editor.chooseLattice('honeycomb');
+    fixture.detectChanges();
+  }
+
+  it('turns a new model into a graphene dot: t in eV with the preset’s source, no material, atoms and bonds drawn', () => {
+    const { fixture, http, host } = setUp('designer');
+    expect(host.querySelector('[data-field="lattice.hopping"]')).toBeNull();
+    pickGraphene(fixture);
+    expect(host.querySelector<HTMLInputElement>('[data-field="lattice.hopping"]')!.value).toBe('2.7');
+    expect(host.querySelector('[data-field="material"]')).toBeNull();
+    expect(host.querySelector('[data-test="graphene-source"]')!.textContent).toContain('Castro Neto');
+    expect(fieldOf(host, 'spacing').textContent).toContain('C–C distance a_CC (nm)');
+    expect(host.querySelector<HTMLInputElement>('[data-field="spacing"]')!.value).toBe('0.142');
+    expect(fieldOf(host, 'leads.0.width').textContent).toContain('Width (zigzag chains)');
+    expect(host.querySelector('[data-test="lattice-note"]')!.textContent).toContain('graphene dot');
+    // The drawing: the atoms the shared rules keep, their bonds, the two zigzag leads.
+    const subtitle = host.querySelector('mat-card-subtitle')!.textContent!;
+    const checked = validateCavityModel({ ...grapheneStarter(), name: 'x' });
+    expect(checked.ok).toBe(true);
+    expect(subtitle).toContain(`${checked.ok ? checked.siteCount : -1} atoms · honeycomb, a_CC = 0.142 nm`);
+    expect(host.querySelector('pw-lattice-preview path.bond')).not.toBeNull();
+    expect(Array.from(host.querySelectorAll('pw-lattice-preview path.lead-bond')).map((p) => p.getAttribute('data-edge'))).toEqual(['zigzag', 'zigzag']);
+    expect(host.querySelector('[data-test="no-outline-upload"]')).not.toBeNull();
+    http.match((r) => r.url.endsWith('/models/validate'));
+  });
+
+  it('round-trips the lattice block through the JSON view', () => {
+    const { fixture, http, host } = setUp('designer');
+    pickGraphene(fixture);
+    (host.querySelector('[data-test="view-json"] button') as HTMLButtonElement).click();
+    fixture.detectChanges();
+    const box = host.querySelector<HTMLTextAreaElement>('[data-field="document.json"]')!;
+    const shown = JSON.parse(box.value);
+    expect(shown.lattice).toEqual({ kind: 'honeycomb', hopping: 2.7, removeDangling: true });
+    expect(shown.material).toBeUndefined();
+    box.value = JSON.stringify({ ...shown, lattice: { kind: 'honeycomb', hopping: 2.8, sublatticePotential: 0.05, nextHopping: 0.1 } });
+    box.dispatchEvent(new Event('input'));
+    fixture.detectChanges();
+    (host.querySelector('[data-test="view-form"] button') as HTMLButtonElement).click();
+    fixture.detectChanges();
+    expect(host.querySelector<HTMLInputElement>('[data-field="lattice.hopping"]')!.value).toBe('2.8');
+    expect(host.querySelector<HTMLInputElement>('[data-field="lattice.sublatticePotential"]')!.value).toBe('0.05');
+    expect(host.querySelector<HTMLInputElement>('[data-field="lattice.nextHopping"]')!.value).toBe('0.1');
+    (host.querySelector('[data-test="view-json"] button') as HTMLButtonElement).click();
+    fixture.detectChanges();
+    expect(JSON.parse(host.querySelector<HTMLTextAreaElement>('[data-field="document.json"]')!.value).lattice).toEqual({
+      kind: 'honeycomb',
+      hopping: 2.8,
+      sublatticePotential: 0.05,
+      nextHopping: 0.1,
+    });
+    http.match((r) => r.url.endsWith('/models/validate'));
+  });
+
+  it('offers the field in the leads only when there is a field, and writes fieldInLeads when ticked', () => {
+    const { fixture, http, host } = setUp('designer');
+    expect(host.querySelector('[data-field="fieldInLeads"]')).toBeNull();
+    (fixture.componentInstance as unknown as Driven).form.controls.field.setValue(2);
+    fixture.detectChanges();
+    const box = host.querySelector('[data-field="fieldInLeads"]')!;
+    expect(box.textContent).toContain('Field acts in the leads too');
+    expect(box.closest('.field-in-leads')!.textContent).toContain('field-free');
+    (box.querySelector('input[type="checkbox"]') as HTMLInputElement).click();
+    fixture.detectChanges();
+    (host.querySelector('[data-test="view-json"] button') as HTMLButtonElement).click();
+    fixture.detectChanges();
+    const doc = JSON.parse(host.querySelector<HTMLTextAreaElement>('[data-field="document.json"]')!.value);
+    expect(doc.field).toBe(2);
+    expect(doc.fieldInLeads).toBe(true);
+    http.match((r) => r.url.endsWith('/models/validate'));
+  });
+
+  it('shows a saved graphene model’s figures: t in eV, the Dirac cone, and no made-up lead thresholds', async () => {
+    const document = { ...grapheneStarter(), name: 'Flake', field: 1 };
+    const model = cavityModelSchema.parse(document);
+    const figures = deriveFigures(model, 2571);
+    const graphene: ModelDetail = answerFixture(getModelRoute, {
+      ...saved,
+      name: 'Flake',
+      family: 'composite',
+      material: 'honeycomb',
+      spacingNm: 0.142,
+      fieldT: 1,
+      siteCount: 2571,
+      document,
+      derived: { ...figures, magneticLength: figures.magneticLength },
+    });
+    const { fixture, http, host } = setUp('designer', modelId);
+    http.expectOne(`/api/groups/g1/models/${modelId}`).flush(graphene);
+    fixture.detectChanges();
+    await fixture.whenStable();
+    const panel = host.querySelector('[data-test="honeycomb-figures"]')!;
+    // t = 2.7 eV = 2700 meV; the rest are the figures as the API sends them.
+    expect(panel.querySelector('[data-test="hopping"]')!.textContent).toContain('2.700 eV (2700 meV)');
+    expect(panel.textContent).toContain('Cavity atoms');
+    expect(panel.textContent).toContain('first Landau level');
+    expect(panel.querySelector('[data-test="ceiling"]')!.textContent).toContain('675.0 meV');
+    const leads = Array.from(panel.querySelectorAll('[data-test="lead-thresholds"]')).map((e) => e.textContent!);
+    expect(leads).toHaveLength(2);
+    for (const text of leads) {
+      expect(text).toContain('zigzag ribbon, 8 chains');
+      expect(text).toContain('no closed-form channel thresholds');
+      expect(text).not.toMatch(/\d meV/);
+    }
+    // The lattice select shows the honeycomb, and the form writes the lattice back unchanged.
+    expect(host.querySelector<HTMLInputElement>('[data-field="lattice.hopping"]')!.value).toBe('2.7');
+    http.match((r) => r.url.endsWith('/models/validate'));
   });
 });

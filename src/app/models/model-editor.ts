@@ -5,6 +5,7 @@ import { ReactiveFormsModule } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
 import { MatButtonToggleModule } from '@angular/material/button-toggle';
 import { MatCardModule } from '@angular/material/card';
+import { MatCheckboxModule } from '@angular/material/checkbox';
 import { MAT_FORM_FIELD_DEFAULT_OPTIONS, MatFormFieldModule } from '@angular/material/form-field';
 import { MatIconModule } from '@angular/material/icon';
 import { MatInputModule } from '@angular/material/input';
@@ -16,7 +17,8 @@ import { Router, RouterLink } from '@angular/router';
 import { Subject, catchError, debounceTime, map, of, switchMap } from 'rxjs';
 import { type CavityModelInput, MAX_GRID_POINTS, shapeSchema } from '../../../shared/model/cavity-model';
 import { validateCavityModel } from '../../../shared/model/model-validation';
-import { rasteriseShape } from '../../../shared/model/geometry';
+import { mouthSites, rasteriseShape } from '../../../shared/model/geometry';
+import { type LatticeKind, placementOf, removeDanglingSites } from '../../../shared/model/lattice-geometry';
 import { CurrentGroup } from '../core/group/current-group';
 import { ErrorReport } from '../core/errors/error-report';
 import { fieldError } from '../core/errors/field-error';
@@ -31,7 +33,8 @@ import { issueInWords } from './issue-words';
 import { addLeadStub } from './lead-stub';
 import { ceilingGhz, twoDimensionalLimitWarning } from './two-dimensional-limit';
 import { frequencyOfWavenumberSquared } from '../../../shared/units/microwave';
-import { type LeadForm, customMaterial, fillForm, leadGroup, materialChoices, modelForm, readForm, starterModel } from './model-form';
+import { type LeadForm, customMaterial, fillForm, graphene, leadGroup, materialChoices, modelForm, readForm, starterModel } from './model-form';
+import { switchLattice } from './lattice-switch';
 import { type PlacedIssue, clearPlacedIssues, dottedPath, placeIssues } from '../core/errors/model-issues';
 import { PotentialEditor } from './potential-editor';
 import { ShapeEditor } from './shape-editor';
@@ -43,7 +46,9 @@ interface Drawing {
   mask: Uint8Array | null;
   nx: number;
   ny: number;
+  /** a, or a_CC on the honeycomb. */
   spacing: number;
+  lattice: LatticeKind;
   sites: number;
   reason: string | null;
 }
@@ -63,6 +68,7 @@ interface Drawing {
     MatButtonModule,
     MatButtonToggleModule,
     MatCardModule,
+    MatCheckboxModule,
     MatFormFieldModule,
     MatIconModule,
     MatInputModule,
@@ -95,6 +101,7 @@ export class ModelEditor {
   protected readonly customMaterial = customMaterial;
   protected readonly fieldError = fieldError;
   protected readonly formatEnergy = formatEnergy;
+  protected readonly graphene = graphene;
 
   protected readonly detail = signal<ModelDetail | null>(null);
   protected readonly loading = signal(false);
@@ -113,8 +120,8 @@ export class ModelEditor {
   /** The grid's extent (nm): where new shapes and potential terms are placed. */
   protected readonly extent = computed(() => {
     const v = this.value();
-    const a = v.spacing ?? 0;
-    return { widthNm: (v.grid.nx ?? 0) * a, heightNm: (v.grid.ny ?? 0) * a };
+    const p = placementOf(this.honeycomb() ? 'honeycomb' : 'square', v.spacing ?? 0);
+    return { widthNm: (v.grid.nx ?? 0) * p.dx, heightNm: (v.grid.ny ?? 0) * p.dy };
   });
   /** Issues under the shape tree and the potential terms: their editors show each by its field. */
   protected readonly nestedIssues = signal<PlacedIssue[]>([]);
@@ -129,6 +136,12 @@ export class ModelEditor {
   /** A flat microwave resonator: lengths in mm, ε_r and h shown; material, field, potential and lead offsets hidden. */
   protected readonly microwave = computed(() => this.value().physics === 'microwave');
   protected readonly lengthUnit = computed(() => (this.microwave() ? 'mm' : 'nm'));
+  /** Graphene: the honeycomb lattice (electrons only), t, Δ and t' in eV, the spacing a_CC. */
+  protected readonly honeycomb = computed(() => !this.microwave() && this.value().lattice.kind === 'honeycomb');
+  /** A non-zero field offers the choice of a field in the leads. */
+  protected readonly fieldOn = computed(() => !this.microwave() && (this.value().field ?? 0) !== 0);
+  /** What the last lattice switch changed besides the lattice (starter, re-counted grid). */
+  protected readonly latticeNote = signal<string | null>(null);
   protected readonly limitWarning = computed(() => {
     const d = this.derived();
     return d ? twoDimensionalLimitWarning(d) : null;
@@ -218,11 +231,29 @@ export class ModelEditor {
     if (!shape.success || !d.mask || !lead || lead.start == null || lead.width == null) {
       notes.set(k, 'Complete the shape, the grid and this lead first.');
     } else {
-      const result = addLeadStub(shape.data, { side: lead.side, start: lead.start, width: lead.width }, d.nx, d.ny, d.spacing);
+      const result = addLeadStub(shape.data, { side: lead.side, start: lead.start, width: lead.width }, d.nx, d.ny, placementOf(d.lattice, d.spacing));
       if (result.ok) this.setShape(result.shape as unknown as Record<string, unknown>);
       else notes.set(k, `No stub added: ${result.reason}.`);
     }
     this.stubNotes.set(notes);
+  }
+
+  /** The user picked a lattice: the document follows (lattice-switch.ts), and a note says what else changed. */
+  protected chooseLattice(kind: LatticeKind): void {
+    const { document, note } = switchLattice(this.document(), kind, this.detail() !== null);
+    fillForm(this.form, document);
+    this.latticeNote.set(note);
+  }
+
+  /** A honeycomb lead's width counts zigzag chains (left/right leads) or dimer lines (top/bottom). */
+  protected widthLabel(side: string): string {
+    if (!this.honeycomb()) return 'Width (sites)';
+    return side === 'left' || side === 'right' ? 'Width (zigzag chains)' : 'Width (dimer lines)';
+  }
+
+  /** t in eV with meV beside it, on the honeycomb (the document gives it in eV, the engine works in meV). */
+  protected hoppingText(meV: number): string {
+    return `${(meV / 1000).toPrecision(4)} eV (${formatEnergy(meV)})`;
   }
 
   protected showView(view: 'form' | 'json'): void {
@@ -373,7 +404,7 @@ export class ModelEditor {
     });
     const nested = issues.filter((i) => /^(shape|potential)\./.test(i.path));
     this.nestedIssues.set(nested);
-    const sections = ['', 'grid', 'material', 'shape', 'leads', 'potential', ...this.leads.controls.map((_, k) => `leads.${k}`)];
+    const sections = ['', 'grid', 'material', 'lattice', 'shape', 'leads', 'potential', ...this.leads.controls.map((_, k) => `leads.${k}`)];
     const placed: PlacedIssue[] = [];
     const long: PlacedIssue[] = [];
     for (const i of issues) {
@@ -400,16 +431,45 @@ function drawingOf(doc: CavityModelInput): Drawing {
   const nx = Number(doc.grid?.nx);
   const ny = Number(doc.grid?.ny);
   const spacing = Number(doc.spacing);
-  const empty = (reason: string): Drawing => ({ mask: null, nx: nx > 0 ? nx : 1, ny: ny > 0 ? ny : 1, spacing: spacing > 0 ? spacing : 1, sites: 0, reason });
+  const microwave = (doc.physics as { kind?: string } | undefined)?.kind === 'microwave';
+  const lattice = (doc.lattice ?? {}) as { kind?: string; removeDangling?: boolean };
+  const kind: LatticeKind = !microwave && lattice.kind === 'honeycomb' ? 'honeycomb' : 'square';
+  const empty = (reason: string): Drawing => ({
+    mask: null,
+    nx: nx > 0 ? nx : 1,
+    ny: ny > 0 ? ny : 1,
+    spacing: spacing > 0 ? spacing : 1,
+    lattice: kind,
+    sites: 0,
+    reason,
+  });
   if (!Number.isInteger(nx) || !Number.isInteger(ny) || nx < 1 || ny < 1) return empty('The grid needs whole numbers of columns and rows.');
   if (nx * ny > MAX_GRID_POINTS) return empty(`The grid has ${nx * ny} points, above the cap of ${MAX_GRID_POINTS}.`);
   if (!(spacing > 0)) return empty('The lattice spacing must be positive.');
   const shape = shapeSchema.safeParse(doc.shape);
   if (!shape.success) return empty('The shape is incomplete; see the messages under it.');
   try {
-    const mask = rasteriseShape(shape.data, nx, ny, spacing);
-    return { mask, nx, ny, spacing, sites: countSites(mask), reason: null };
+    // The same sites the server counts (model-validation.ts): placed by the lattice, and on the
+    // honeycomb with dangling atoms removed on request, lead mouth atoms kept.
+    const placement = placementOf(kind, spacing);
+    const mask = rasteriseShape(shape.data, nx, ny, spacing, placement);
+    if (kind === 'honeycomb' && lattice.removeDangling) removeDanglingSites(mask, nx, ny, placement, mouthMask(doc.leads ?? [], nx, ny));
+    return { mask, nx, ny, spacing, lattice: kind, sites: countSites(mask), reason: null };
   } catch (err) {
     return empty(err instanceof Error ? err.message : String(err));
   }
+}
+
+/** The lead mouth sites that fit on their edge: never removed as dangling (the lead is their missing neighbour). */
+function mouthMask(leads: NonNullable<CavityModelInput['leads']>, nx: number, ny: number): Uint8Array {
+  const keep = new Uint8Array(nx * ny);
+  for (const lead of leads) {
+    const start = Number(lead.start);
+    const width = Number(lead.width);
+    const along = lead.side === 'left' || lead.side === 'right' ? ny : nx;
+    if (!Number.isInteger(start) || !Number.isInteger(width) || start < 0 || width < 1 || start + width > along) continue;
+    const m = mouthSites({ side: lead.side, start, width }, nx, ny);
+    for (let p = 0; p < m.i.length; p++) keep[m.i[p] * ny + m.j[p]] = 1;
+  }
+  return keep;
 }

@@ -1,8 +1,11 @@
 import { FormArray, FormControl, FormGroup, Validators } from '@angular/forms';
 import type { CavityModelInput, Lead, LeadSide, Shape } from '../../../shared/model/cavity-model';
-import { MATERIAL_PRESETS } from '../../../shared/model/materials';
+import { MATERIAL_PRESETS, findHoneycombPreset } from '../../../shared/model/materials';
 
 const num = (value: number | null) => new FormControl<number | null>(value);
+
+/** The graphene preset (shared/model/materials.ts): a_CC, t and where they come from. */
+export const graphene = findHoneycombPreset('graphene')!;
 
 export function leadGroup(lead?: Partial<Lead>) {
   return new FormGroup({
@@ -35,6 +38,19 @@ export function modelForm() {
     effectiveMass: num(0.067),
     grid: new FormGroup({ nx: num(60), ny: num(40) }),
     field: num(0),
+    /** The field acts in the leads too (document `fieldInLeads`); off: field-free leads, the contract's default. */
+    fieldInLeads: new FormControl<boolean>(false, { nonNullable: true }),
+    /**
+     * The lattice: square (t from the material's mass) or honeycomb (graphene: t, Δ and t' in eV,
+     * the spacing is a_CC). Electrons only; the microwave mode is always square.
+     */
+    lattice: new FormGroup({
+      kind: new FormControl<'square' | 'honeycomb'>('square', { nonNullable: true }),
+      hopping: num(graphene.hopping),
+      sublatticePotential: num(0),
+      nextHopping: num(0),
+      removeDangling: new FormControl<boolean>(false, { nonNullable: true }),
+    }),
     // The shape tree and the potential terms are edited by their own components (shape-editor.ts,
     // potential-editor.ts); the form holds them as document values.
     shape: new FormControl<Record<string, unknown>>({ kind: 'rectangle' }, { nonNullable: true }),
@@ -71,6 +87,8 @@ export function fillForm(form: ModelForm, doc: CavityModelInput): void {
   const custom = doc.material != null && typeof doc.material !== 'string';
   const physics = doc.physics as { kind?: string; permittivity?: number; height?: number } | undefined;
   const microwave = physics?.kind === 'microwave';
+  const lattice = (doc.lattice ?? {}) as { kind?: string; hopping?: number; sublatticePotential?: number; nextHopping?: number; removeDangling?: boolean };
+  const honeycomb = lattice.kind === 'honeycomb';
   const leads = form.controls.leads;
   leads.clear({ emitEvent: false });
   for (const lead of doc.leads ?? []) leads.push(leadGroup(lead), { emitEvent: false });
@@ -86,6 +104,14 @@ export function fillForm(form: ModelForm, doc: CavityModelInput): void {
       effectiveMass: custom ? ((doc.material as { effectiveMass: number }).effectiveMass ?? null) : null,
       grid: { nx: doc.grid?.nx ?? null, ny: doc.grid?.ny ?? null },
       field: doc.field ?? 0,
+      fieldInLeads: doc.fieldInLeads === true,
+      lattice: {
+        kind: honeycomb ? 'honeycomb' : 'square',
+        hopping: honeycomb ? (lattice.hopping ?? null) : graphene.hopping,
+        sublatticePotential: honeycomb ? (lattice.sublatticePotential ?? 0) : 0,
+        nextHopping: honeycomb ? (lattice.nextHopping ?? 0) : 0,
+        removeDangling: honeycomb && lattice.removeDangling === true,
+      },
       shape: structuredClone((doc.shape ?? { kind: 'rectangle' }) as Shape) as unknown as Record<string, unknown>,
       leads: leads.getRawValue(),
       potential: structuredClone((doc.potential ?? []) as unknown as Record<string, unknown>[]),
@@ -108,15 +134,19 @@ export function readForm(form: ModelForm): { document: CavityModelInput; issues:
   const v = form.getRawValue();
   const issues: FormReadIssue[] = [];
   if (v.physics === 'microwave') return { document: microwaveDocument(v), issues };
+  const honeycomb = v.lattice.kind === 'honeycomb';
+  const field = v.field ?? 0;
   const document = {
     name: v.name.trim(),
     ...(v.notes.trim() ? { notes: v.notes } : {}),
     spacing: v.spacing,
-    material: v.material === customMaterial ? { effectiveMass: v.effectiveMass } : v.material,
+    // The honeycomb has no effective mass: its hopping is given (eV), and the schema refuses a material.
+    ...(honeycomb ? { lattice: honeycombLattice(v.lattice) } : { material: v.material === customMaterial ? { effectiveMass: v.effectiveMass } : v.material }),
     grid: { nx: v.grid.nx, ny: v.grid.ny },
     shape: v.shape,
     potential: v.potential,
-    field: v.field ?? 0,
+    field,
+    ...(field !== 0 && v.fieldInLeads ? { fieldInLeads: true } : {}),
     leads: v.leads.map((l) => ({
       side: l.side,
       start: l.start,
@@ -126,6 +156,17 @@ export function readForm(form: ModelForm): { document: CavityModelInput; issues:
     })),
   } as unknown as CavityModelInput;
   return { document, issues };
+}
+
+/** The document's honeycomb block: t always, Δ, t' and the clean-up only when set (their defaults are 0 and off). */
+function honeycombLattice(l: ReturnType<ModelForm['getRawValue']>['lattice']) {
+  return {
+    kind: 'honeycomb',
+    hopping: l.hopping,
+    ...(l.sublatticePotential ? { sublatticePotential: l.sublatticePotential } : {}),
+    ...(l.nextHopping ? { nextHopping: l.nextHopping } : {}),
+    ...(l.removeDangling ? { removeDangling: true } : {}),
+  };
 }
 
 /**

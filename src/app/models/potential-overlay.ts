@@ -1,4 +1,6 @@
-/** One potential term drawn over the lattice, in SVG site units (y down). */
+import type { DrawingFrame } from './lattice-drawing';
+
+/** One potential term drawn over the lattice, in drawing units (lattice-drawing.ts; y down). */
 type TermDrawing =
   | { kind: 'block'; x: number; y: number; w: number; h: number; positive: boolean; label: string; short: string; labelAt: { x: number; y: number } }
   | { kind: 'gaussian'; x: number; y: number; r: number; positive: boolean; label: string; short: string; labelAt: { x: number; y: number } };
@@ -6,24 +8,25 @@ type TermDrawing =
 const isNum = (v: unknown): v is number => typeof v === 'number' && Number.isFinite(v);
 
 /**
- * Where the blocks and Gaussian bumps of a potential sit on the lattice drawing.
- * Site (i, j) is at (x, y) = (i·a, j·a) nm and is drawn centred at (i + ½, ny − j − ½);
- * a block [x₀, x₀+w) × [y₀, y₀+h) covers the sites i·a in that range, so its
- * rectangle spans x₀/a … (x₀+w)/a in site units. A Gaussian is drawn as its 1σ
- * circle (and a dashed 2σ halo). Incomplete terms (a field still empty) are skipped.
+ * Where the blocks and Gaussian bumps of a potential sit on the lattice drawing (lattice-drawing.ts).
+ * On the square lattice site (i, j) is at (x, y) = (i·a, j·a) and drawn as its cell, so a block
+ * [x₀, x₀+w) × [y₀, y₀+h), which covers the sites i·a in that range, is drawn from the cell
+ * edges x₀/a … (x₀+w)/a; on the honeycomb the atoms are points and the block is drawn at its real
+ * place. A Gaussian is drawn as its 1σ circle (and a dashed 2σ halo) around its centre.
+ * Incomplete terms (a field still empty) are skipped.
  */
-export function potentialOverlay(terms: readonly Record<string, unknown>[], nx: number, ny: number, a: number): TermDrawing[] {
-  if (!(a > 0)) return [];
+export function potentialOverlay(terms: readonly Record<string, unknown>[], frame: DrawingFrame): TermDrawing[] {
+  if (!(frame.unit > 0)) return [];
   const out: TermDrawing[] = [];
   terms.forEach((t, k) => {
     if (t['kind'] === 'block') {
       const { x0, y0, width, height, value } = t as Record<string, unknown>;
       if (![x0, y0, width, height, value].every(isNum)) return;
       const [bx, by, bw, bh, v] = [x0, y0, width, height, value] as number[];
-      const x = bx / a;
-      const w = bw / a;
-      const top = ny - (by + bh) / a;
-      const h = bh / a;
+      const x = frame.edgeX(bx);
+      const w = frame.edgeX(bx + bw) - x;
+      const top = frame.edgeY(by + bh);
+      const h = frame.edgeY(by) - top;
       const short = `${k + 1}: ${signed(v)} meV`;
       out.push({
         kind: 'block',
@@ -34,14 +37,14 @@ export function potentialOverlay(terms: readonly Record<string, unknown>[], nx: 
         positive: v >= 0,
         label: `Term ${k + 1}: block, V = ${v} meV`,
         short,
-        labelAt: { x: x + w / 2, y: Math.max(top - 0.6, -nx * 0.02) },
+        labelAt: { x: x + w / 2, y: Math.max(top - 0.6, -frame.width * 0.02) },
       });
     } else if (t['kind'] === 'gaussian') {
       const { cx, cy, sigma, amplitude } = t as Record<string, unknown>;
       if (![cx, cy, sigma, amplitude].every(isNum)) return;
-      const x = (cx as number) / a + 0.5;
-      const y = ny - (cy as number) / a - 0.5;
-      const r = (sigma as number) / a;
+      const x = frame.x(cx as number);
+      const y = frame.y(cy as number);
+      const r = (sigma as number) / frame.unit;
       const v = amplitude as number;
       out.push({
         kind: 'gaussian',
@@ -55,7 +58,6 @@ export function potentialOverlay(terms: readonly Record<string, unknown>[], nx: 
       });
     }
   });
-  void nx;
   return out;
 }
 

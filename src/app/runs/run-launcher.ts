@@ -17,14 +17,14 @@ import { fieldError } from '../core/errors/field-error';
 import { toProblem } from '../core/errors/problem';
 import { CurrentGroup } from '../core/group/current-group';
 import type { DerivedFiguresAnswer as DerivedFigures } from '../../../shared/api/models';
-import { energyValidity } from '../../../shared/model/derived-figures';
+import { deriveFigures, energyValidity } from '../../../shared/model/derived-figures';
 import { launcherWarnings } from './launcher-warnings';
 import { injectCanDesign } from '../core/group/design-permission';
 import { ModelsApi } from '../core/api/models-api';
 import { placeIssues } from '../core/errors/model-issues';
 import { type AxisThreshold, EnergyAxis } from './energy-axis';
 import { type RunRequest, RunsApi } from './runs-api';
-import type { ModelDetail, ModelSummary } from '../../../shared/api/models';
+import type { ModelDetail, ModelSummary, ModelVersion } from '../../../shared/api/models';
 import type { RunEstimate } from '../../../shared/api/runs';
 import type { RunKind } from '../../../shared/api/enums';
 
@@ -86,6 +86,10 @@ export class RunLauncher {
   protected readonly modelChoices = signal<ModelSummary[]>([]);
   protected readonly model = signal<ModelDetail | null>(null);
   protected readonly derived = signal<DerivedFigures | null>(null);
+  /** The chosen version's document (the honeycomb's validity needs its lattice block). */
+  private readonly versionDocument = signal<ModelVersion['document'] | null>(null);
+  /** Graphene: energies stay in meV (the engine's unit), measured from the band centre; the hopping reads in eV. */
+  protected readonly honeycomb = computed(() => this.derived()?.lattice === 'honeycomb');
   protected readonly estimate = signal<RunEstimate | null>(null);
   protected readonly estimateError = signal<string | null>(null);
   protected readonly estimating = signal(false);
@@ -110,6 +114,7 @@ export class RunLauncher {
    * API uses (docs/physics-model.md, "Validity figures"): dispersion error and λ/a.
    */
   protected readonly validity = computed(() => {
+    if (this.honeycomb()) return this.diracValidity();
     const t = this.hopping();
     const spacing = this.model()?.spacingNm;
     const emax = this.value().window.emax;
@@ -117,8 +122,33 @@ export class RunLauncher {
     return t && spacing && emax != null && emax > 0 ? energyValidity(emax - lowestOffset, t, spacing) : null;
   });
 
+  /**
+   * On the honeycomb, the Dirac picture's validity (shared deriveFigures) at the end of the window
+   * farthest from the Dirac point E_D, where the cone is most warped; null while the window is incomplete.
+   */
+  private readonly diracValidity = computed(() => {
+    const doc = this.versionDocument();
+    const { emin, emax } = this.value().window;
+    if (!doc || emin == null || emax == null) return null;
+    const ed = this.derived()?.dirac?.energy ?? 0;
+    const far = Math.abs(emin - ed) > Math.abs(emax - ed) ? emin : emax;
+    return deriveFigures(doc, 0, far).validity ?? null;
+  });
+  /** Where the validity is checked, in the words of the warnings. */
+  protected readonly validityWhere = computed(() => (this.honeycomb() ? `E = ${this.validity()?.energy ?? '—'} meV` : 'E max'));
+
   /** Every warning once: the launcher's validity check and the estimate's other warnings. */
-  protected readonly warnings = computed(() => launcherWarnings(this.estimate()?.warnings ?? [], this.validity()?.warnings ?? []));
+  protected readonly warnings = computed(() => launcherWarnings(this.estimate()?.warnings ?? [], this.validity()?.warnings ?? [], this.validityWhere()));
+
+  /** A wavelength in lattice lengths, ∞ at the Dirac point. */
+  protected spacingsText(x: number): string {
+    return Number.isFinite(x) ? x.toFixed(1) : '∞';
+  }
+
+  /** t in eV with meV beside it (graphene's t is about 2.7 eV). */
+  protected hoppingEv(meV: number | null): string {
+    return meV == null ? '—' : `${(meV / 1000).toPrecision(4)} eV (${formatEnergy(meV)})`;
+  }
 
   private readonly estimates = new Subject<RunRequest | null>();
 
@@ -224,6 +254,7 @@ export class RunLauncher {
       .subscribe({
         next: (detail) => {
           this.model.set(detail);
+          this.versionDocument.set(detail.document);
           const chosen = version ?? detail.latestVersion;
           this.form.controls.version.setValue(chosen, { emitEvent: false });
           this.value.set(this.form.getRawValue());
@@ -242,6 +273,12 @@ export class RunLauncher {
     this.models
       .version(groupId, id, version)
       .pipe(takeUntilDestroyed(this.destroyRef))
-      .subscribe({ next: (v) => this.derived.set(v.derived), error: (err: unknown) => this.errors.show(err) });
+      .subscribe({
+        next: (v) => {
+          this.derived.set(v.derived);
+          this.versionDocument.set(v.document);
+        },
+        error: (err: unknown) => this.errors.show(err),
+      });
   }
 }

@@ -12,6 +12,7 @@ describe('materialLabel', () => {
 
   it('reads a hand-given mass as "custom m*" and keeps an unknown id as it is', () => {
     expect(materialLabel('custom')).toBe('custom m*');
+    expect(materialLabel('honeycomb')).toBe('graphene (honeycomb)');
     expect(materialLabel('gan-wurtzite')).toBe('gan-wurtzite');
     expect(materialLabel('')).toBe('—');
     expect(materialLabel(null)).toBe('—');
