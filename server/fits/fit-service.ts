@@ -5,7 +5,7 @@
  * the catalogue in the same transaction as the fit's result.
  */
 import { and, eq, sql } from 'drizzle-orm';
-import { resonancePhysicsOfDocument, resonanceValidity, validityLimit, type ResonancePhysics } from '../../shared/model/resonance-validity.js';
+import { resonancePhysicsOfDocument, resonanceValidity, validityLimitOf, type ResonancePhysics } from '../../shared/model/resonance-validity.js';
 import { geometryOf } from '../models/model-figures.js';
 import { writeAudit } from '../audit/audit-log.js';
 import type { Db, Queryable } from '../db/client.js';
@@ -446,7 +446,7 @@ export async function writeFitResult(tx: Queryable, fitId: string, attempt: numb
 
 /** Validity columns of a fitted peak; none when its energy has an arbitrary zero (a gate-voltage axis). */
 function fittedValidity(energy: number, physics: ResonancePhysics, positionComparable: boolean) {
-  if (!positionComparable) return { validityLimit: validityLimit(physics.hopping, physics.lowestOffset), wavelengthSpacings: null, aboveValidity: null };
+  if (!positionComparable) return { validityLimit: validityLimitOf(physics), wavelengthSpacings: null, aboveValidity: null };
   const v = resonanceValidity(energy, physics);
   return { validityLimit: v.limit, wavelengthSpacings: v.wavelengthSpacings, aboveValidity: v.aboveLimit };
 }

@@ -87,8 +87,9 @@ export async function writeRunResults(db: Db, ctx: RunContext, result: EngineTas
           energy: p.energy,
           width: p.width,
           // Microwave mode: τ = 1/(2πΓ_f) and Q = Re f/Γ_f from the complex frequency, not ħ/Γ and E/Γ.
+          // Graphene: Q = |E − E_D|/Γ from the Dirac point (holes below it), not the engine's E/Γ.
           lifetimePs: p.bound ? null : physics.physics === 'microwave' ? figures.lifetimePs : p.lifetimePs,
-          quality: p.bound ? null : physics.physics === 'microwave' ? figures.quality : p.quality,
+          quality: p.bound ? null : physics.physics === 'microwave' || physics.diracEnergy !== null ? figures.quality : p.quality,
           partialWidths: p.partialWidths.map((w, l) => ({ lead: result.leadNames[l] ?? `lead ${l}`, width: w })),
           petermann: p.petermann,
           residual: p.residual,

@@ -4,7 +4,7 @@
  * a run's results are written, so result pages, the catalogue and exports all show the
  * same mark, whoever launched the run.
  */
-import { cavityModelSchema, modelHopping, type CavityModel } from './cavity-model';
+import { cavityModelSchema, modelHopping, modelLattice, type CavityModel } from './cavity-model';
 import { ENERGY_CEILING_OVER_T, MIN_WAVELENGTH_OVER_SPACING } from './derived-figures';
 import type { PhysicsKind } from './physics-mode';
 import { microwaveFigures } from '../units/microwave';
@@ -19,22 +19,31 @@ export interface ResonancePhysics {
   lowestOffset: number;
   /** ε_r of a microwave filling; 1 for electrons (unused). */
   permittivity: number;
+  /**
+   * The honeycomb's Dirac-point energy E_D = 3t' (meV) when the model is graphene, else null.
+   * There the lattice is the crystal's own, so no discretisation limit applies, and Q and λ
+   * are measured from E_D (electrons above it, holes below).
+   */
+  diracEnergy: number | null;
 }
 
 interface ResonanceValidity {
-  /** Energy below which the lattice is trusted (model's energy unit). */
-  limit: number;
+  /** Energy below which the lattice is trusted (model's energy unit); null on the honeycomb (no discretisation limit). */
+  limit: number | null;
   /** λ/a at the resonance's largest local kinetic energy; null when infinite (at or below the band bottom). */
   wavelengthSpacings: number | null;
-  aboveLimit: boolean;
+  /** Null on the honeycomb: not applicable. */
+  aboveLimit: boolean | null;
 }
 
 export function resonancePhysicsOf(model: CavityModel): ResonancePhysics {
+  const lattice = modelLattice(model);
   return {
     physics: model.physics.kind,
     hopping: modelHopping(model),
     lowestOffset: Math.min(0, ...model.leads.map((l) => l.offset)),
     permittivity: model.physics.kind === 'microwave' ? model.physics.permittivity : 1,
+    diracEnergy: lattice.kind === 'honeycomb' ? 3000 * lattice.nextHopping : null,
   };
 }
 
@@ -50,11 +59,13 @@ export function resonancePhysicsOfDocument(document: unknown, fallback?: { physi
   const leads = (document as { leads?: unknown } | null)?.leads;
   const offsets = Array.isArray(leads) ? leads.map((l) => Number((l as { offset?: unknown })?.offset ?? 0)).filter(Number.isFinite) : [];
   const micro = (document as { physics?: { kind?: string; permittivity?: number } } | null)?.physics;
+  const lattice = (document as { lattice?: { kind?: string; nextHopping?: unknown } } | null)?.lattice;
   return {
     physics: fallback.physics,
     hopping: fallback.hopping,
     lowestOffset: Math.min(0, ...offsets),
     permittivity: micro?.kind === 'microwave' && typeof micro.permittivity === 'number' ? micro.permittivity : 1,
+    diracEnergy: lattice?.kind === 'honeycomb' ? 3000 * (Number(lattice.nextHopping ?? 0) || 0) : null,
   };
 }
 
@@ -76,7 +87,18 @@ function wavelengthSpacings(energy: number, p: Pick<ResonancePhysics, 'hopping' 
   return c <= -1 ? 2 : (2 * Math.PI) / Math.acos(c);
 }
 
+/** The trusted energy of a model's resonances, or null on the honeycomb (the crystal's own lattice: no discretisation limit). */
+export function validityLimitOf(p: ResonancePhysics): number | null {
+  return p.diracEnergy === null ? validityLimit(p.hopping, p.lowestOffset) : null;
+}
+
 export function resonanceValidity(energy: number, p: ResonancePhysics): ResonanceValidity {
+  if (p.diracEnergy !== null) {
+    // Graphene: λ = 2πħv_F/|E − E_D| with ħv_F = 3t·a_CC/2, so λ/a_CC = 3πt/|E − E_D| (the Dirac-cone
+    // wavelength; Castro Neto et al., Rev. Mod. Phys. 81, 109 (2009), §II.A, from memory).
+    const e = Math.abs(energy - p.diracEnergy);
+    return { limit: null, wavelengthSpacings: e > 0 ? (3 * Math.PI * p.hopping) / e : null, aboveLimit: null };
+  }
   const limit = validityLimit(p.hopping, p.lowestOffset);
   return { limit, wavelengthSpacings: wavelengthSpacings(energy, p), aboveLimit: energy > limit };
 }
@@ -89,7 +111,7 @@ interface ResonanceFigures {
   frequencyGhz: number | null;
   /** τ (ps): ħ/Γ for electrons, 1/(2πΓ_f) for microwaves; null when bound. */
   lifetimePs: number | null;
-  /** Q: E/Γ for electrons, Re f/Γ_f = Re√z/(2|Im√z|) for microwaves; null when bound. */
+  /** Q: E/Γ for electrons (|E − E_D|/Γ on the honeycomb), Re f/Γ_f = Re√z/(2|Im√z|) for microwaves; null when bound. */
   quality: number | null;
 }
 
@@ -105,6 +127,6 @@ export function resonanceFigures(energy: number, width: number, p: ResonancePhys
     physics: p.physics,
     frequencyGhz: null,
     lifetimePs: width > 0 ? HBAR_MEV_PS / width : null,
-    quality: width > 0 ? energy / width : null,
+    quality: width > 0 ? (p.diracEnergy === null ? energy : Math.abs(energy - p.diracEnergy)) / width : null,
   };
 }
