@@ -74,7 +74,7 @@ export function resonancePhysicsOfDocument(document: unknown, fallback?: { physi
  * where the wavelength is 10 lattice spacings, 2t(1 − cos(2π/10)) ≈ 0.382 t, above the
  * lowest band bottom (the launcher's rule). The same in k² for the microwave mode.
  */
-export function validityLimit(hopping: number, lowestOffset: number): number {
+function validityLimit(hopping: number, lowestOffset: number): number {
   const wavelengthCeiling = 2 * hopping * (1 - Math.cos((2 * Math.PI) / MIN_WAVELENGTH_OVER_SPACING));
   return Math.min(ENERGY_CEILING_OVER_T * hopping, wavelengthCeiling) + lowestOffset;
 }

@@ -1,4 +1,5 @@
 import { ChangeDetectionStrategy, Component, computed, inject, signal } from '@angular/core';
+import { dimensionsText } from '../core/format/dimensions-text';
 import { takeUntilDestroyed, toObservable, toSignal } from '@angular/core/rxjs-interop';
 import { FormControl, FormGroup, ReactiveFormsModule } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
@@ -30,7 +31,7 @@ import {
   queryToView,
   viewToQuery,
 } from './catalogue-filter';
-import { EnergyPipe, LifetimePipe, QualityPipe, WidthPipe, significant } from '../core/format/energy-format';
+import { EnergyPipe, LifetimePipe, QualityPipe, WidthPipe } from '../core/format/energy-format';
 import { MaterialLabelPipe } from '../core/format/material-label';
 import type { CataloguePage } from '../../../shared/api/catalogue';
 
@@ -206,21 +207,14 @@ export class CatalogueTable {
 
   /** The dimensions of an electron row: lengths in nm, the area in nm². */
   protected dimensions(dims: Record<string, number>): string {
-    const entries = Object.entries(dims ?? {});
-    const lengths = entries.filter(([k]) => k !== 'area').map(([k, v]) => `${k} ${Math.round(v)}`);
-    const area = entries.filter(([k]) => k === 'area').map(([, v]) => `area ${Math.round(v)} nm²`);
-    return [lengths.length ? `${lengths.join(' · ')} nm` : '', ...area].filter(Boolean).join(' · ');
+    return dimensionsText(dims, 'electrons');
   }
 
   /** The geometry line of a row in its own units: nm and T, or mm, ε_r and "field not applicable" for a microwave resonator. */
   protected geometryLine(r: ResonanceRow): string {
     if (r.physics !== 'microwave') return '';
-    // Stored in nm so one filter means one length (1 mm = 10⁶ nm; area 10¹² nm² per mm²).
-    const entries = Object.entries(r.keyDimensions ?? {});
-    const lengths = entries.filter(([k]) => k !== 'area').map(([k, v]) => `${k} ${significant(v / 1e6, 4)}`);
-    const area = entries.filter(([k]) => k === 'area').map(([, v]) => `area ${significant(v / 1e12, 4)} mm²`);
     const eps = /^eps_r=(.*)$/.exec(r.material)?.[1];
-    return [lengths.length ? `${lengths.join(' · ')} mm` : '', ...area, `ε_r = ${eps ?? r.material}`, 'field not applicable'].filter(Boolean).join(' · ');
+    return [dimensionsText(r.keyDimensions, 'microwave'), `ε_r = ${eps ?? r.material}`, 'field not applicable'].filter(Boolean).join(' · ');
   }
 
   /** Sorts by the dimension chosen in the filter (sort=dim.NAME); again flips the direction. */

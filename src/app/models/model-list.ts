@@ -1,4 +1,5 @@
 import { ChangeDetectionStrategy, Component, computed, inject, signal } from '@angular/core';
+import { dimensionsText } from '../core/format/dimensions-text';
 import { takeUntilDestroyed, toObservable } from '@angular/core/rxjs-interop';
 import { FormControl, ReactiveFormsModule } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
@@ -13,7 +14,6 @@ import { RouterLink } from '@angular/router';
 import { catchError, combineLatest, debounceTime, distinctUntilChanged, of, startWith, switchMap, tap } from 'rxjs';
 import { CurrentGroup } from '../core/group/current-group';
 import { toProblem } from '../core/errors/problem';
-import { formatLength } from '../core/format/energy-format';
 import { MaterialLabelPipe } from '../core/format/material-label';
 import { injectCanDesign } from '../core/group/design-permission';
 import { modelFamilies } from '../core/api/model-families';
@@ -197,7 +197,7 @@ export class ModelList {
   }
 
   protected dimensions(m: ModelSummary): string {
-    const entries = Object.entries(m.keyDimensions ?? {});
-    return entries.length ? `(${entries.map(([k, v]) => `${k} ${formatLength(v)}`).join(', ')})` : '';
+    const text = dimensionsText(m.keyDimensions, m.physics);
+    return text ? `(${text})` : '';
   }
 }

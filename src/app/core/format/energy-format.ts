@@ -62,13 +62,6 @@ export function formatQuality(q: number | null | undefined, digits = 3): string 
   return significant(q, digits);
 }
 
-/** A length in nm, shown in nm or µm. */
-export function formatLength(nm: number | null | undefined, digits = 3): string {
-  if (nm == null || !Number.isFinite(nm)) return '—';
-  if (Math.abs(nm) >= 1e3) return `${significant(nm / 1e3, digits)} µm`;
-  return `${significant(nm, digits)} nm`;
-}
-
 /** Expected run time in seconds as "40 s", "3.5 min" or "2.1 h". */
 export function formatDuration(seconds: number | null | undefined): string {
   if (seconds == null || !Number.isFinite(seconds)) return '—';
