@@ -96,7 +96,9 @@ export function energyValidity(energy: number, hopping: number, spacing: number,
   const [eUnit, lUnit, eName] = physics === 'microwave' ? ['mm⁻²', 'mm', 'k²'] : ['meV', 'nm', 'E'];
   if (energy > ENERGY_CEILING_OVER_T * hopping) {
     warnings.push(
-      `${eName} = ${energy.toPrecision(4)} ${eUnit} is above t/2 = ${(hopping / 2).toPrecision(4)} ${eUnit}: the lattice dispersion is off the parabola by ${(100 * Math.abs(err)).toFixed(1)} %`,
+      Number.isFinite(err)
+        ? `${eName} = ${energy.toPrecision(4)} ${eUnit} is above t/2 = ${(hopping / 2).toPrecision(4)} ${eUnit}: the lattice dispersion is off the parabola by ${(100 * Math.abs(err)).toFixed(1)} %`
+        : `${eName} = ${energy.toPrecision(4)} ${eUnit} is above the top of the lattice band 4t = ${(4 * hopping).toPrecision(4)} ${eUnit}: the lattice has no propagating states there`,
     );
   }
   if (wl / spacing < MIN_WAVELENGTH_OVER_SPACING) {

@@ -235,6 +235,10 @@ describe('model document', () => {
     expect(f.validity?.warnings).toEqual([]);
     const high = deriveFigures(r.model, r.siteCount, 0.6 * t);
     expect(high.validity?.warnings.length).toBe(2);
+    // Above the band top 4t (a cosine band, common practice, no source) the warning says so instead of a NaN %.
+    const beyond = deriveFigures(r.model, r.siteCount, 5 * t).validity!.warnings.join(' ');
+    expect(beyond).toContain('above the top of the lattice band 4t');
+    expect(beyond).not.toContain('NaN');
     expect(hoppingEnergy(5, 0.067)).toBeCloseTo(f.hopping, 12);
   });
 });

@@ -11,7 +11,7 @@ const LEFT = 16;
 const RIGHT = 16;
 
 /**
- * The energy window on an axis in meV, with the channel thresholds of the chosen
+ * The energy window on an axis in meV (GHz for a microwave resonator), with the channel thresholds of the chosen
  * model version as ticks (a window piece never straddles one) and the hopping
  * energy t, above which the lattice stops resembling the continuum.
  */
@@ -28,7 +28,7 @@ const RIGHT = 16;
       }
       @for (th of visible(); track $index) {
         <line class="threshold" [attr.x1]="x(th.energy)" [attr.x2]="x(th.energy)" y1="10" y2="38">
-          <title>{{ th.lead }}: channel threshold at {{ th.energy.toFixed(3) }} meV</title>
+          <title>{{ th.lead }}: threshold at {{ th.energy.toFixed(3) }} {{ unit() }}</title>
         </line>
       }
       @if (hopping(); as t) {
@@ -37,7 +37,7 @@ const RIGHT = 16;
           <text class="hopping-label" [attr.x]="x(t) + 3" y="12">t</text>
         }
       }
-      <text class="unit" [attr.x]="width - right" y="70" text-anchor="end">E (meV)</text>
+      <text class="unit" [attr.x]="width - right" y="70" text-anchor="end">{{ unit() === 'GHz' ? 'f (GHz)' : 'E (meV)' }}</text>
     </svg>
     <p class="legend">
       <span class="key band-key"></span> window <span class="key threshold-key"></span> channel thresholds ({{ visible().length }} shown{{
@@ -114,6 +114,8 @@ export class EnergyAxis {
   readonly thresholds = input<readonly AxisThreshold[]>([]);
   /** Hopping energy t (meV) of the model version, when known. */
   readonly hopping = input<number | null>(null);
+  /** The axis unit: meV, or GHz for a microwave resonator (window and thresholds as frequencies). */
+  readonly unit = input<'meV' | 'GHz'>('meV');
 
   protected readonly width = WIDTH;
   protected readonly left = LEFT;

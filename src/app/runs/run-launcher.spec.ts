@@ -6,6 +6,7 @@ import type { Role } from '../../../shared/api/enums';
 import { getModelRoute } from '../../../shared/api/models';
 import { cavityModelSchema } from '../../../shared/model/cavity-model';
 import { deriveFigures } from '../../../shared/model/derived-figures';
+import { microwaveWindow, wavenumberSquared } from '../../../shared/units/microwave';
 import { answerFixture, fixtureId } from '../core/testing/answer-fixtures';
 import { provideFakeCurrentGroup } from '../core/testing/fake-current-group';
 import { RunLauncher } from './run-launcher';
@@ -97,6 +98,74 @@ describe('RunLauncher', () => {
     type('window.emin', '100');
     expect(host.querySelector('[data-test="validity"]')).toBeNull();
     expect(host.querySelector('[data-test="dirac-validity"]')!.textContent).toContain('At E = 300 meV');
+    http.match(() => true);
+  });
+
+  it('takes a microwave window in GHz and MHz and sends it as k², the eigenvalue of the engine', async () => {
+    const id = fixtureId(0x502);
+    const document = {
+      name: 'Two-port box',
+      physics: { kind: 'microwave' as const, permittivity: 2.2, height: 5 },
+      spacing: 1,
+      grid: { nx: 36, ny: 24 },
+      shape: { kind: 'rectangle' as const, x0: 0, y0: 0, width: 36, height: 24 },
+      leads: [
+        { side: 'left' as const, start: 2, width: 12, offset: 0, name: 'port 1' },
+        { side: 'right' as const, start: 10, width: 12, offset: 0, name: 'port 2' },
+      ],
+      field: 0,
+      potential: [],
+    };
+    const figures = deriveFigures(cavityModelSchema.parse(document), 864);
+    const detail = answerFixture(getModelRoute, {
+      id,
+      name: 'Two-port box',
+      family: 'rectangle',
+      physics: 'microwave',
+      latestVersion: 1,
+      material: 'eps_r=2.2',
+      spacingNm: 1,
+      fieldT: 0,
+      siteCount: 864,
+      leadCount: 2,
+      keyDimensions: { width: 36e6, height: 24e6 },
+      updatedAt: '2025-01-01T10:00:00Z',
+      createdBy: null,
+      document,
+      versions: [{ version: 1, createdAt: '2025-01-01T10:00:00Z', createdBy: null, usedByRuns: 0 }],
+      derived: { ...figures, magneticLength: null },
+    });
+    TestBed.configureTestingModule({
+      providers: [provideHttpClient(), provideHttpClientTesting(), provideRouter([]), provideFakeCurrentGroup('designer')],
+    });
+    const fixture = TestBed.createComponent(RunLauncher);
+    fixture.componentRef.setInput('modelId', id);
+    fixture.detectChanges();
+    await fixture.whenStable();
+    const http = TestBed.inject(HttpTestingController);
+    http.expectOne((r) => r.url === '/api/groups/g1/models').flush({ items: [], total: 0 });
+    http.expectOne(`/api/groups/g1/models/${id}`).flush(detail);
+    fixture.detectChanges();
+    const host = fixture.nativeElement as HTMLElement;
+    const labels = Array.from(host.querySelectorAll('mat-label'), (l) => l.textContent!.trim());
+    expect(labels).toContain('f min (GHz)');
+    expect(labels).toContain('Largest width Γ_f (MHz)');
+    expect(labels.join(' ')).not.toContain('meV');
+    expect(host.querySelector('pw-energy-axis')!.textContent).toContain('f (GHz)');
+    const type = (path: string, value: string) => {
+      const input = host.querySelector<HTMLInputElement>(`[data-field="${path}"]`)!;
+      input.value = value;
+      input.dispatchEvent(new Event('input'));
+      fixture.detectChanges();
+    };
+    type('window.emin', '8');
+    type('window.emax', '11');
+    type('window.gammaMax', '300');
+    await new Promise((r) => setTimeout(r, 450));
+    const sent = http.match((r) => r.url === '/api/groups/g1/runs/estimate').at(-1)!;
+    // k = 2π f √ε_r / c for each edge; Γ_f ≤ 300 MHz at f max sets the k² width bound (shared/units/microwave.ts).
+    expect(sent.request.body.window).toEqual(microwaveWindow(8, 11, 300, 2.2));
+    expect(sent.request.body.window.emax).toBeCloseTo(wavenumberSquared(11, 2.2), 12);
     http.match(() => true);
   });
 });

@@ -18,6 +18,7 @@ import { toProblem } from '../core/errors/problem';
 import { CurrentGroup } from '../core/group/current-group';
 import type { DerivedFiguresAnswer as DerivedFigures } from '../../../shared/api/models';
 import { deriveFigures, energyValidity } from '../../../shared/model/derived-figures';
+import { frequencyOfWavenumberSquared, microwaveWindow, wavenumberSquared } from '../../../shared/units/microwave';
 import { launcherWarnings } from './launcher-warnings';
 import { injectCanDesign } from '../core/group/design-permission';
 import { ModelsApi } from '../core/api/models-api';
@@ -57,6 +58,11 @@ export class RunLauncher {
   /** ?modelId= and ?version= preselect a model version (from the model page). */
   readonly modelId = input<string | undefined>(undefined);
   readonly version = input<string | undefined>(undefined);
+  /** Prefill from a link (e.g. "compute the peak's spectrum" on a fit): kind and window in the model's own units. */
+  readonly runKind = input<string | undefined>(undefined);
+  readonly windowMin = input<string | undefined>(undefined);
+  readonly windowMax = input<string | undefined>(undefined);
+  readonly windowPoints = input<string | undefined>(undefined);
 
   private readonly runs = inject(RunsApi);
   private readonly models = inject(ModelsApi);
@@ -90,6 +96,12 @@ export class RunLauncher {
   private readonly versionDocument = signal<ModelVersion['document'] | null>(null);
   /** Graphene: energies stay in meV (the engine's unit), measured from the band centre; the hopping reads in eV. */
   protected readonly honeycomb = computed(() => this.derived()?.lattice === 'honeycomb');
+  /**
+   * A microwave resonator: the window is typed as frequencies (GHz) and the largest width as
+   * Γ_f (MHz), and sent as k² (mm⁻²), the engine's eigenvalue (shared/units/microwave.ts).
+   */
+  protected readonly microwave = computed(() => this.derived()?.physics === 'microwave');
+  private readonly permittivity = computed(() => this.derived()?.permittivity ?? 1);
   protected readonly estimate = signal<RunEstimate | null>(null);
   protected readonly estimateError = signal<string | null>(null);
   protected readonly estimating = signal(false);
@@ -98,26 +110,34 @@ export class RunLauncher {
   protected readonly kind = computed(() => this.value().kind);
 
   /** Every channel opening ε_m − 2t and closing ε_m + 2t of every lead: a window piece never straddles one. */
-  protected readonly thresholds = computed<AxisThreshold[]>(() =>
-    (this.derived()?.leads ?? [])
+  protected readonly thresholds = computed<AxisThreshold[]>(() => {
+    // A microwave guide's modes open at k² = ε_m − 2t … drawn at their frequencies; they never close below the band top.
+    const own = (e: number) => (this.microwave() ? frequencyOfWavenumberSquared(e, this.permittivity()) : e);
+    return (this.derived()?.leads ?? [])
       .flatMap((lead) =>
         lead.thresholds.flatMap((th) => [
-          { energy: th.opens, lead: `${lead.name}, channel ${th.channel} opens` },
-          { energy: th.closes, lead: `${lead.name}, channel ${th.channel} closes` },
+          { energy: own(th.opens), lead: `${lead.name}, ${this.microwave() ? 'mode' : 'channel'} ${th.channel} opens` },
+          ...(this.microwave() ? [] : [{ energy: th.closes, lead: `${lead.name}, channel ${th.channel} closes` }]),
         ]),
       )
-      .sort((a, b) => a.energy - b.energy),
-  );
-  protected readonly hopping = computed(() => this.derived()?.hopping ?? null);
+      .sort((a, b) => a.energy - b.energy);
+  });
+  /** t on the axis (meV); none for a microwave model, whose axis is in GHz. */
+  protected readonly hopping = computed(() => (this.microwave() ? null : (this.derived()?.hopping ?? null)));
   /**
    * The model-validity check at the top of the window, by the same shared function the
    * API uses (docs/physics-model.md, "Validity figures"): dispersion error and λ/a.
    */
   protected readonly validity = computed(() => {
     if (this.honeycomb()) return this.diracValidity();
-    const t = this.hopping();
     const spacing = this.model()?.spacingNm;
     const emax = this.value().window.emax;
+    if (this.microwave()) {
+      const t = this.derived()?.hopping;
+      // The same rule in k² (mm⁻²) and mm: at least 10 lattice spacings per wavelength.
+      return t && spacing && emax != null && emax > 0 ? energyValidity(wavenumberSquared(emax, this.permittivity()), t, spacing, 'microwave') : null;
+    }
+    const t = this.hopping();
     const lowestOffset = Math.min(0, ...(this.derived()?.leads ?? []).map((l) => l.offset));
     return t && spacing && emax != null && emax > 0 ? energyValidity(emax - lowestOffset, t, spacing) : null;
   });
@@ -151,6 +171,8 @@ export class RunLauncher {
   }
 
   private readonly estimates = new Subject<RunRequest | null>();
+  /** True when the window came with the link: a model's default window does not replace it. */
+  private prefilled = false;
 
   constructor() {
     this.form.valueChanges.pipe(takeUntilDestroyed()).subscribe(() => {
@@ -202,6 +224,18 @@ export class RunLauncher {
       );
     });
     effect(() => {
+      const kind = this.runKind();
+      const [emin, emax, points] = [this.windowMin(), this.windowMax(), this.windowPoints()].map((x) => (x == null || x === '' ? NaN : Number(x)));
+      untracked(() => {
+        if (kind === 'transmission' || kind === 'pole-search') this.form.controls.kind.setValue(kind, { emitEvent: false });
+        if (Number.isFinite(emin) && Number.isFinite(emax)) {
+          this.prefilled = true;
+          this.form.controls.window.patchValue({ emin, emax, ...(Number.isInteger(points) && points >= 2 ? { points } : {}) }, { emitEvent: false });
+        }
+        this.value.set(this.form.getRawValue());
+      });
+    });
+    effect(() => {
       const id = this.modelId();
       const version = this.version();
       untracked(() => {
@@ -239,9 +273,17 @@ export class RunLauncher {
     const w = v.window;
     if (!v.modelId || w.emin == null || w.emax == null || !(w.emax > w.emin)) return null;
     const common = { modelId: v.modelId, ...(v.version != null ? { version: v.version } : {}) };
-    if (v.kind === 'transmission') return { ...common, kind: 'transmission', window: { emin: w.emin, emax: w.emax, points: w.points ?? 400 } };
+    const eps = this.permittivity();
+    if (v.kind === 'transmission') {
+      const range = this.microwave() ? { emin: wavenumberSquared(w.emin, eps), emax: wavenumberSquared(w.emax, eps) } : { emin: w.emin, emax: w.emax };
+      return { ...common, kind: 'transmission', window: { ...range, points: w.points ?? 400 } };
+    }
     // The contract requires the width bound of a pole search (shared/api/runs.ts).
     if (w.gammaMax == null) return null;
+    if (this.microwave()) {
+      if (!(w.emin >= 0)) return null;
+      return { ...common, kind: 'pole-search', window: microwaveWindow(w.emin, w.emax, w.gammaMax, eps) };
+    }
     return { ...common, kind: 'pole-search', window: { emin: w.emin, emax: w.emax, gammaMax: w.gammaMax } };
   }
 
@@ -253,8 +295,20 @@ export class RunLauncher {
       .pipe(takeUntilDestroyed(this.destroyRef))
       .subscribe({
         next: (detail) => {
+          const wasMicrowave = this.microwave();
           this.model.set(detail);
           this.versionDocument.set(detail.document);
+          const isMicrowave = detail.derived?.physics === 'microwave';
+          if (isMicrowave !== wasMicrowave && !this.prefilled) {
+            // A window in the model's own units: GHz and MHz for a resonator, meV for electrons.
+            const lim = detail.derived?.twoDimensionalLimitGhz;
+            this.form.controls.window.patchValue(
+              isMicrowave
+                ? { emin: lim ? Number((0.4 * lim).toPrecision(2)) : 5, emax: lim ? Number((0.55 * lim).toPrecision(2)) : 10, gammaMax: 100, points: 400 }
+                : { emin: 1, emax: 10, gammaMax: 1, points: 400 },
+              { emitEvent: false },
+            );
+          }
           const chosen = version ?? detail.latestVersion;
           this.form.controls.version.setValue(chosen, { emitEvent: false });
           this.value.set(this.form.getRawValue());
