@@ -62,6 +62,21 @@ export class ResonanceDetail {
   private readonly destroyRef = inject(DestroyRef);
   protected readonly group = inject(CurrentGroup);
   protected readonly canDesign = injectCanDesign();
+  /** The peak-fit link: the run's spectrum around E ± 6Γ, with the model (and ε_r of a resonator) for computing a finer sweep. */
+  protected fitLink(r: ResonanceData): Record<string, string | number> {
+    const permittivity = r.microwave ? Number(r.material.replace('eps_r=', '')) : NaN;
+    return {
+      runId: r.run!.id,
+      energy: r.energy,
+      width: r.width,
+      from: r.energy - 6 * r.width,
+      to: r.energy + 6 * r.width,
+      modelId: r.model.id,
+      version: r.model.version,
+      ...(permittivity > 0 ? { permittivity } : {}),
+    };
+  }
+
   /** The run's window in the resonance's own units: GHz for a microwave resonator (the run stores k² in mm⁻²). */
   protected runWindowText(r: ResonanceData): string {
     if (!r.run) return '';

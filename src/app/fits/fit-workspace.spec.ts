@@ -2,6 +2,7 @@ import { provideHttpClient } from '@angular/common/http';
 import { HttpTestingController, provideHttpClientTesting } from '@angular/common/http/testing';
 import { TestBed } from '@angular/core/testing';
 import { provideRouter } from '@angular/router';
+import { provideEchartsCore } from 'ngx-echarts';
 import { provideFakeCurrentGroup } from '../core/testing/fake-current-group';
 import { FakeEventSource } from '../core/testing/fake-event-source';
 import { settle } from '../core/testing/next-request';
@@ -79,6 +80,52 @@ describe('FitWorkspace', () => {
     fixture.detectChanges();
     await fixture.whenStable();
     expect(Number(field('range-from').value)).toBeCloseTo(3.29, 10);
+  });
+});
+
+describe('FitWorkspace on a coarse computed spectrum', () => {
+  const runId = fixtureId(0x601);
+  const modelId = fixtureId(0x602);
+  async function open(params: Record<string, string>) {
+    TestBed.configureTestingModule({
+      providers: [
+        provideHttpClient(),
+        provideHttpClientTesting(),
+        provideRouter([]),
+        provideFakeCurrentGroup('designer'),
+        provideEchartsCore({ echarts: () => import('../core/charts/echarts') }),
+      ],
+    });
+    const fixture = TestBed.createComponent(FitWorkspace);
+    for (const [k, v] of Object.entries({ runId, ...params })) fixture.componentRef.setInput(k, v);
+    fixture.detectChanges();
+    await settle();
+    const http = TestBed.inject(HttpTestingController);
+    // A preview spectrum 0.005 meV apart: the 0.0025 meV range around a narrow peak falls between two samples.
+    const energies = Array.from({ length: 401 }, (_, k) => 8 + k * 0.005);
+    http
+      .expectOne(`/api/groups/g1/runs/${runId}/spectrum`)
+      .flush({ energies, pairs: [{ from: 0, to: 1 }], transmission: [energies.map(() => 0.5)], residual: energies.map(() => 0), reflection: null });
+    fixture.detectChanges();
+    await fixture.whenStable();
+    return fixture.nativeElement as HTMLElement;
+  }
+
+  it('says the range is too coarse to fit and links a transmission sweep over it', async () => {
+    const host = await open({ from: '8.3463013897', to: '8.3488434205', modelId, version: '2' });
+    const note = host.querySelector('[data-test="coarse-spectrum"]')!;
+    expect(note.textContent).toContain('Only 0 sample(s)');
+    const link = host.querySelector<HTMLAnchorElement>('[data-test="finer-sweep"]')!.getAttribute('href')!;
+    expect(link).toContain(`/g/lab/runs/new?modelId=${modelId}&version=2&runKind=transmission`);
+    expect(link).toContain('windowMin=8.34630139');
+    expect(link).toContain('windowPoints=200');
+    // The range fields read nine figures, not the sixteen of the link's E ± 6Γ.
+    expect(host.querySelector<HTMLInputElement>('[data-test="range-from"]')!.value).toBe('8.34630139');
+  });
+
+  it('says nothing when the range holds enough samples', async () => {
+    const host = await open({ from: '8.2', to: '8.4', modelId });
+    expect(host.querySelector('[data-test="coarse-spectrum"]')).toBeNull();
   });
 });
 

@@ -1,4 +1,5 @@
 import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, inject, input, signal, untracked } from '@angular/core';
+import { frequencyOfWavenumberSquared } from '../../../shared/units/microwave';
 import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
 import { FormsModule } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
@@ -37,6 +38,9 @@ const KT_PER_MK = 8.617333262e-5;
  * computed pole with the agreement. Opened empty (/fits/new?runId=… or ?traceId=…) or on a
  * saved fit (/fits/:fitId).
  */
+/** Fewest samples of a computed spectrum in the range that resolve a peak's lineshape (common practice, no source). */
+const RESOLVED_SAMPLES = 20;
+
 @Component({
   selector: 'pw-fit-workspace',
   changeDetection: ChangeDetectionStrategy.OnPush,
@@ -63,6 +67,11 @@ export class FitWorkspace {
   readonly width = input<string>();
   readonly from = input<string>();
   readonly to = input<string>();
+  /** The run's model and version, when the link knows them: for computing a finer spectrum of the range. */
+  readonly modelId = input<string>();
+  readonly version = input<string>();
+  /** ε_r of a microwave model (the spectrum is in k²; the launcher takes GHz). */
+  readonly permittivity = input<string>();
 
   private readonly api = inject(FitsApi);
   private readonly errors = inject(ErrorReport);
@@ -99,6 +108,41 @@ export class FitWorkspace {
     const to = this.rangeTo();
     return fitChartOptions(d, this.result(), from !== null && to !== null ? { from, to } : null, chartColours());
   });
+  /** Samples of the spectrum inside the chosen range. */
+  protected readonly samplesInRange = computed(() => {
+    const d = this.data();
+    const from = this.rangeFrom();
+    const to = this.rangeTo();
+    if (!d || from === null || to === null) return null;
+    return d.x.filter((x) => x >= Math.min(from, to) && x <= Math.max(from, to)).length;
+  });
+  /**
+   * A run's spectrum too coarse to resolve a lineshape in the range (fewer than
+   * RESOLVED_SAMPLES points): the launcher link of a transmission sweep over it, or null.
+   */
+  protected readonly finerSweep = computed(() => {
+    const n = this.samplesInRange();
+    if (this.source?.kind !== 'run' || n === null || n >= RESOLVED_SAMPLES) return null;
+    const from = this.rangeFrom()!;
+    const to = this.rangeTo()!;
+    const eps = Number(this.permittivity());
+    // The launcher takes a microwave window in GHz; the spectrum here is in k².
+    const own = (k2: number) => (eps > 0 ? Number(frequencyOfWavenumberSquared(k2, eps).toPrecision(9)) : k2);
+    const modelId = this.modelId();
+    return {
+      samples: n,
+      link: modelId
+        ? {
+            modelId,
+            ...(this.version() ? { version: this.version() } : {}),
+            runKind: 'transmission',
+            windowMin: own(Math.min(from, to)),
+            windowMax: own(Math.max(from, to)),
+            windowPoints: 200,
+          }
+        : null,
+    };
+  });
   protected readonly thermalNote = computed(() => {
     const t = this.fit()?.result?.temperatureMK ?? this.temperatureMK;
     return t
@@ -133,8 +177,9 @@ export class FitWorkspace {
         const from = Number(this.from());
         const to = Number(this.to());
         if (Number.isFinite(from) && Number.isFinite(to) && this.from() && this.to()) {
-          this.rangeFrom.set(Math.max(from, Math.min(...s.energies)));
-          this.rangeTo.set(Math.min(to, Math.max(...s.energies)));
+          // Nine figures: the link's E ± 6Γ carries all sixteen of a double.
+          this.rangeFrom.set(Number(Math.max(from, Math.min(...s.energies)).toPrecision(9)));
+          this.rangeTo.set(Number(Math.min(to, Math.max(...s.energies)).toPrecision(9)));
         }
       },
       error: (err) => this.errors.show(err),

@@ -74,6 +74,12 @@ export class RunDetail {
   private readonly destroyRef = inject(DestroyRef);
   protected readonly group = inject(CurrentGroup);
   protected readonly canDesign = injectCanDesign();
+
+  /** The peak-fit page on this run's spectrum, with the model (and ε_r of a resonator) for a finer sweep. */
+  protected fitLink(r: RunDetailData): Record<string, string | number> {
+    const eps = r.microwave?.permittivity;
+    return { runId: r.id, modelId: r.modelId, version: r.modelVersion, ...(eps ? { permittivity: eps } : {}) };
+  }
   protected readonly kindLabel = kindLabel;
   protected readonly statusLabel = statusLabel;
   protected readonly windowText = windowText;
