@@ -167,14 +167,23 @@ export class NumericalLead {
    * (evanescent ones as a basis of their subspace, propagating ones unit-norm), so
    * Γ = i(Σ − Σ†) = Σ_a W_a W_a† (the current of mode a between two cells is v_a for
    * φ_a†φ_a = 1 and the cross terms vanish at a real energy). For the square lattice
-   * W_a is the contract's sqrt(2t·sin k_m)·e^{−iθ_p}χ_m(p) up to the sign of χ_m. Cost O(n³).
+   * W_a is the contract's sqrt(2t·sin k_m)·e^{−iθ_p}χ_m(p) up to the sign of χ_m. Exactly on a
+   * threshold E belongs to the piece below (as in sheetAt): the channels are taken a hair inside
+   * it, 10⁻⁹ of the band scale below E (a channel at its band edge has zero velocity and W → 0
+   * there, so this changes T and R by far less than their rounding on a grid). Cost O(n³).
    */
   channels(energy: number): LeadChannelsAt {
-    const n = this.cell.size;
-    const mm = this.mouthSize;
     const sheet = this.sheetAt(energy);
     const piece = this.piece(sheet);
-    if (!(energy > piece.lo && energy < piece.hi)) throw new RangeError(`NumericalLead.channels: E = ${energy} lies on a threshold`);
+    if (energy > piece.lo && energy < piece.hi) return this.channelsInside(energy, sheet);
+    const scale = Math.max(1, ...this.thresholds.map(Math.abs));
+    const below = Math.max(energy - 1e-9 * scale, Number.isFinite(piece.lo) ? 0.5 * (piece.lo + energy) : -Infinity);
+    return { ...this.channelsInside(below, sheet), energy };
+  }
+
+  private channelsInside(energy: number, sheet: boolean[]): LeadChannelsAt {
+    const n = this.cell.size;
+    const mm = this.mouthSize;
     const modes = realModes(this.cell, energy);
     this.solves++;
     const out = modes.propagating.filter((p) => p.velocity > 0);

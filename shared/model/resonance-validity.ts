@@ -4,8 +4,8 @@
  * a run's results are written, so result pages, the catalogue and exports all show the
  * same mark, whoever launched the run.
  */
-import { cavityModelSchema, modelHopping, type CavityModel } from './cavity-model';
-import { ENERGY_CEILING_OVER_T, MIN_WAVELENGTH_OVER_SPACING } from './derived-figures';
+import { cavityModelSchema, modelHopping, modelLattice, type CavityModel } from './cavity-model';
+import { DIRAC_CEILING_OVER_T, ENERGY_CEILING_OVER_T, MIN_WAVELENGTH_OVER_SPACING } from './derived-figures';
 import type { PhysicsKind } from './physics-mode';
 import { microwaveFigures } from '../units/microwave';
 import { HBAR_MEV_PS } from '../units/constants';
@@ -19,6 +19,8 @@ export interface ResonancePhysics {
   lowestOffset: number;
   /** ε_r of a microwave filling; 1 for electrons (unused). */
   permittivity: number;
+  /** Honeycomb lattice: the Dirac-point energy 3t′ (meV); absent on the square lattice. */
+  diracEnergy?: number;
 }
 
 interface ResonanceValidity {
@@ -30,11 +32,13 @@ interface ResonanceValidity {
 }
 
 export function resonancePhysicsOf(model: CavityModel): ResonancePhysics {
+  const lattice = modelLattice(model);
   return {
     physics: model.physics.kind,
     hopping: modelHopping(model),
     lowestOffset: Math.min(0, ...model.leads.map((l) => l.offset)),
     permittivity: model.physics.kind === 'microwave' ? model.physics.permittivity : 1,
+    ...(lattice.kind === 'honeycomb' ? { diracEnergy: 3000 * lattice.nextHopping } : {}),
   };
 }
 
@@ -76,7 +80,22 @@ function wavelengthSpacings(energy: number, p: Pick<ResonancePhysics, 'hopping' 
   return c <= -1 ? 2 : (2 * Math.PI) / Math.acos(c);
 }
 
+/**
+ * On the honeycomb the continuum (Dirac) picture is what needs care, not the lattice: the limit is
+ * E_D + t/4 (derived-figures.ts, the Dirac-cone warning; the same distance below E_D counts as
+ * above it), λ/a_CC = 2πħv_F/(|E − E_D|·a_CC) = 3πt/|E − E_D| (ħv_F = 3t·a_CC/2), null at E_D.
+ */
+function diracValidity(energy: number, hopping: number, diracEnergy: number): ResonanceValidity {
+  const distance = Math.abs(energy - diracEnergy);
+  return {
+    limit: diracEnergy + DIRAC_CEILING_OVER_T * hopping,
+    wavelengthSpacings: distance === 0 ? null : (3 * Math.PI * hopping) / distance,
+    aboveLimit: distance > DIRAC_CEILING_OVER_T * hopping,
+  };
+}
+
 export function resonanceValidity(energy: number, p: ResonancePhysics): ResonanceValidity {
+  if (p.diracEnergy !== undefined) return diracValidity(energy, p.hopping, p.diracEnergy);
   const limit = validityLimit(p.hopping, p.lowestOffset);
   return { limit, wavelengthSpacings: wavelengthSpacings(energy, p), aboveLimit: energy > limit };
 }
