@@ -82,6 +82,11 @@ describe('clean graphene ribbons as model documents', () => {
       const metallic = n % 3 === 2;
       expect(p.channels, `N = ${n}`).toEqual(metallic ? [1, 1] : [0, 0]);
       expect(Math.abs(p.transmission[0][1] - (metallic ? 1 : 0)), `N = ${n}`).toBeLessThan(1e-9);
+      // At the Dirac point itself the metallic ribbon's two bands cross with opposite velocities:
+      // answered from just below it (docs/physics-model.md, "Numerical leads").
+      const dirac = transmissionAt(op, 0);
+      expect(dirac.channels, `N = ${n} at E = 0`).toEqual(metallic ? [1, 1] : [0, 0]);
+      expect(Math.abs(dirac.transmission[0][1] - (metallic ? 1 : 0)), `N = ${n} at E = 0`).toBeLessThan(1e-6);
       // Higher up, a clean ribbon transmits every open channel.
       const high = transmissionAt(op, 0.6 * t);
       expect(high.channels[0]).toBeGreaterThan(1);
