@@ -4,12 +4,17 @@ import { cavityModelDescription } from './cavity-model-description.js';
 import { groupParams, numberOrInfinite, personRef, timestamp } from './fields.js';
 import { declareRoute, json } from './route.js';
 
-const channelThreshold = z.object({
-  channel: z.number().int().min(1),
-  transverse: z.number().meta({ description: 'ε_m (meV)' }),
-  opens: z.number().meta({ description: 'ε_m − 2t (meV)' }),
-  closes: z.number().meta({ description: 'ε_m + 2t (meV)' }),
-});
+const channelThreshold = z
+  .object({
+    channel: z.number().int().min(1),
+    transverse: z.number().meta({ description: 'ε_m (meV); a numerical lead: the middle of the range' }),
+    opens: z.number().meta({ description: 'ε_m − 2t (meV); a numerical lead: a band edge' }),
+    closes: z.number().meta({ description: 'ε_m + 2t (meV); a numerical lead: a band edge' }),
+  })
+  .meta({
+    description:
+      'Channel m is open for opens < E < closes. A numerical lead (honeycomb, or a field in the leads) numbers its open channels 1..N(E) and may list a channel on several ranges.',
+  });
 
 export const derivedFiguresSchema = z
   .object({
@@ -32,6 +37,11 @@ export const derivedFiguresSchema = z
       })
       .optional(),
     physics: z.enum(['electrons', 'microwave']).optional().meta({ description: 'microwave: every energy above is k² (mm⁻²), hopping 1/a²' }),
+    lattice: z.enum(['square', 'honeycomb']).optional().meta({ description: 'The lattice; absent: square' }),
+    dirac: z
+      .object({ hbarVelocity: z.number(), velocity: z.number(), energy: z.number() })
+      .optional()
+      .meta({ description: 'Honeycomb: ħv_F (meV·nm), v_F (m/s) and the Dirac-point energy 3t′ (meV)' }),
     permittivity: z.number().optional().meta({ description: 'Microwave: ε_r of the filling' }),
     heightMm: z.number().optional().meta({ description: 'Microwave: height h of the resonator (mm)' }),
     twoDimensionalLimitGhz: z.number().optional().meta({ description: 'Microwave: c/(2h√ε_r) (GHz), above which the 2D picture fails' }),

@@ -52,4 +52,3 @@ export interface CavitySystem {
   flux: number;
   leads: SystemLead[];
 }
-

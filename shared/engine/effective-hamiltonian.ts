@@ -11,15 +11,7 @@ import { validateCavityModel } from '../model/model-validation';
 import { mouthSites } from '../model/geometry';
 import { evaluatePotential } from '../model/potential';
 import { buildLattice, hamiltonianEntries, addHamiltonian, indexSites } from './lattice';
-import {
-  channelFlags,
-  leadChannels,
-  leadThresholds,
-  mouthBlock,
-  mouthPhases,
-  selfEnergyCoefficients,
-  selfEnergyDerivativeCoefficients,
-} from './leads';
+import { channelFlags, leadChannels, leadThresholds, mouthBlock, mouthPhases, selfEnergyCoefficients, selfEnergyDerivativeCoefficients } from './leads';
 import { InvalidModelError, type CavitySystem, type SystemLead } from './cavity-system';
 import { latticeLeads, withNumericalLeads } from './numerical-lead-system';
 import { buildPattern, patternSlot } from './sparsity-pattern';

@@ -43,7 +43,7 @@ import { indexSites } from './lattice';
 import { forEachPresetBond, landauPhase, modelTightBinding, presetOnsite, type TightBindingParameters } from './tight-binding';
 
 /** One lead's unit cell and its coupling to the cavity. Matrices are dense, row-major, interleaved (re, im). */
-export interface LeadCell {
+interface LeadCell {
   side: LeadSide;
   /** Number of sites m of one cell. */
   size: number;
@@ -62,7 +62,7 @@ export interface LeadCell {
 }
 
 /** A lead cell on the model's cavity: the contacts as unknown indices of the cavity's lattice. */
-export interface AttachedLeadCell extends LeadCell {
+interface AttachedLeadCell extends LeadCell {
   /** Unknown index of each contact (same order as `contacts`). */
   mouth: Int32Array;
 }

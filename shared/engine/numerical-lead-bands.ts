@@ -16,7 +16,7 @@ import { hermitianEigen } from './hermitian-eigen';
 import { forwardHopping, type LeadCellBlocks } from './numerical-lead-modes';
 
 /** H(k) (n×n, interleaved) of a cell, or H′(k) (order 1) or H″(k) (order 2). */
-export function blochHamiltonian(cell: LeadCellBlocks, k: number, order = 0): Float64Array {
+function blochHamiltonian(cell: LeadCellBlocks, k: number, order = 0): Float64Array {
   const n = cell.size;
   const h1f = forwardHopping(cell);
   const out = new Float64Array(2 * n * n);

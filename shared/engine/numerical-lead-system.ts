@@ -12,7 +12,7 @@ import { leadChannels } from './leads';
 import { NumericalLead, type NumericalLeadOptions, type NumericalLeadSpec } from './numerical-lead';
 import { squareLatticeLead } from './numerical-lead-square';
 
-export interface NumericalLeadsOptions {
+interface NumericalLeadsOptions {
   /** Let the field act in the leads too (default false: the contract's field-free leads). */
   fieldInLeads?: boolean;
   /** k samples for the band edges (default 128). */
@@ -44,7 +44,7 @@ export function withNumericalLeads(system: CavitySystem, options: NumericalLeads
  * coupling's columns. The closed-form fields are left empty (width 0): nothing reads
  * them once `numerical` is set.
  */
-export function numericalSystemLead(name: string, side: LeadSide, mouth: Int32Array, spec: NumericalLeadSpec, options: NumericalLeadOptions = {}): SystemLead {
+function numericalSystemLead(name: string, side: LeadSide, mouth: Int32Array, spec: NumericalLeadSpec, options: NumericalLeadOptions = {}): SystemLead {
   if (mouth.length !== spec.mouthSize) throw new RangeError(`numericalSystemLead: ${mouth.length} mouth sites for a coupling to ${spec.mouthSize}`);
   return { name, side, channels: leadChannels(0, 0, 0), mouth, theta: new Float64Array(mouth.length), numerical: new NumericalLead(spec, options) };
 }
@@ -70,6 +70,10 @@ export function latticeLeads(model: CavityModel, mask: Uint8Array, siteIndex: In
       ]);
     }
     const mouth = Int32Array.from(cell.contacts.i, (i, q) => siteIndex[i * ny + cell.contacts.j[q]]);
-    return numericalSystemLead(name, lead.side, mouth, { cell: { size: cell.size, h0: cell.h0, h1: cell.h1 }, mouthSize: mouth.length, coupling: cell.coupling });
+    return numericalSystemLead(name, lead.side, mouth, {
+      cell: { size: cell.size, h0: cell.h0, h1: cell.h1 },
+      mouthSize: mouth.length,
+      coupling: cell.coupling,
+    });
   });
 }

@@ -32,7 +32,7 @@ export interface NumericalLeadSpec {
 }
 
 /** Open channels at a real energy, flux-normalised (docs/physics-model.md). */
-export interface LeadChannelsAt {
+interface LeadChannelsAt {
   energy: number;
   count: number;
   /** v_a = dE/dk of each outgoing mode (meV), ascending k order is not implied. */

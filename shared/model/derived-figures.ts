@@ -194,7 +194,8 @@ export function deriveFigures(model: CavityModel, siteCount: number, energy?: nu
   const t = modelHopping(model);
   const leads = model.leads.map((lead, k) => {
     // A field in the leads: Landau bands, found numerically.
-    if (model.fieldInLeads === true && model.field !== 0) return { name: lead.name ?? `${lead.side}${k}`, side: lead.side, width: lead.width, offset: lead.offset, thresholds: numerical?.[k] ?? [] };
+    if (model.fieldInLeads === true && model.field !== 0)
+      return { name: lead.name ?? `${lead.side}${k}`, side: lead.side, width: lead.width, offset: lead.offset, thresholds: numerical?.[k] ?? [] };
     const thresholds: ChannelThreshold[] = [];
     for (let m = 1; m <= lead.width; m++) {
       const eps = lead.offset + 4 * t - 2 * t * Math.cos((m * Math.PI) / (lead.width + 1));

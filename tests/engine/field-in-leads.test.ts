@@ -20,7 +20,14 @@ const DX = (Math.sqrt(3) / 2) * ACC;
 const DY = 1.5 * ACC;
 
 function squareDoc(extra: Partial<CavityModelInput>): CavityModelInput {
-  return { name: 'square', spacing: 5, material: 'gaas', grid: { nx: 20, ny: 24 }, shape: { kind: 'rectangle', x0: 0, y0: 0, width: 100, height: 120 }, ...extra };
+  return {
+    name: 'square',
+    spacing: 5,
+    material: 'gaas',
+    grid: { nx: 20, ny: 24 },
+    shape: { kind: 'rectangle', x0: 0, y0: 0, width: 100, height: 120 },
+    ...extra,
+  };
 }
 
 function honeycombDoc(nx: number, ny: number, extra: Partial<CavityModelInput>): CavityModelInput {

@@ -129,7 +129,7 @@ function expectUnitary(op: EffectiveHamiltonian, e: number, label: string): void
 }
 
 describe('a graphene dot with zigzag and armchair leads', () => {
-  it("conserves current and keeps S unitary (t′, Δ, lead offset; B = 0, field-free leads in a field, and the field in the leads)", () => {
+  it('conserves current and keeps S unitary (t′, Δ, lead offset; B = 0, field-free leads in a field, and the field in the leads)', () => {
     for (const [label, extra] of [
       ['B = 0', {}],
       ['B = 40 T, field-free leads', { field: 40 }],
