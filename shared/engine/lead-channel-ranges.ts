@@ -30,8 +30,17 @@ function leadChannelRanges(cell: LeadCellBlocks, kSamples = 128): { thresholds: 
   const thresholds = leadBandEdges(cell, kSamples).map((e) => e.energy);
   const counts: number[] = [];
   for (let p = 0; p + 1 < thresholds.length; p++) {
-    const mid = 0.5 * (thresholds[p] + thresholds[p + 1]);
-    counts.push(realModes(cell, mid).propagating.filter((m) => m.velocity > 0).length);
+    // N is the same anywhere inside the piece: away from its middle when bands cross exactly
+    // there (E = 0 of a metallic armchair ribbon, by electron–hole symmetry).
+    for (const f of [0.5, 0.3719, 0.6281]) {
+      try {
+        const e = thresholds[p] + f * (thresholds[p + 1] - thresholds[p]);
+        counts.push(realModes(cell, e).propagating.filter((m) => m.velocity > 0).length);
+        break;
+      } catch (err) {
+        if (!(err instanceof Error && /move both ways|singular matrix/.test(err.message)) || f !== 0.5) throw err;
+      }
+    }
   }
   const ranges: ChannelRange[] = [];
   const most = Math.max(0, ...counts);
@@ -61,14 +70,22 @@ function hasNumericalLeads(model: Pick<CavityModel, 'lattice' | 'field' | 'field
  * The channel ranges of lead k of a parsed model as the engine computes its numerical lead
  * (lead-cell.ts; the cavity is not needed: the bands are the ribbon's). Cost as leadChannelRanges.
  */
-function modelLeadChannelRanges(model: CavityModel, k: number): { thresholds: number[]; ranges: ChannelRange[] } {
+function modelLeadChannelRanges(model: CavityModel, k: number): ChannelRange[] {
   const lead = model.leads[k];
   const { nx, ny } = model.grid;
   const cell = presetLeadCell(modelTightBinding(model), lead.side, lead.start, lead.width, lead.offset, nx, ny, () => false, {
     fieldInLead: model.fieldInLeads === true,
   });
-  return leadChannelRanges(cell);
+  return cell.size <= FIGURE_CELL_LIMIT ? leadChannelRanges(cell).ranges : [];
 }
+
+/**
+ * Largest lead cell (sites) whose channel ranges the figures compute: the band edges and one
+ * mode solve per piece take seconds at 24 sites and minutes at 40 (seen: a 20-chain zigzag and
+ * a 20-line armchair lead, 40 sites each, 35 s for the band edges alone). Wider leads list
+ * none; the engine still checks a scattering state's channel when it computes the map.
+ */
+const FIGURE_CELL_LIMIT = 24;
 
 /**
  * The model's derived figures (shared/model/derived-figures.ts) with the channel ranges of its
@@ -78,7 +95,7 @@ function modelLeadChannelRanges(model: CavityModel, k: number): { thresholds: nu
 export function deriveFiguresWithLeads(model: CavityModel, siteCount: number, energy?: number): DerivedFigures {
   const numerical = hasNumericalLeads(model)
     ? model.leads.map((_, k) =>
-        modelLeadChannelRanges(model, k).ranges.map((r) => ({ channel: r.channel, transverse: 0.5 * (r.opens + r.closes), opens: r.opens, closes: r.closes })),
+        modelLeadChannelRanges(model, k).map((r) => ({ channel: r.channel, transverse: 0.5 * (r.opens + r.closes), opens: r.opens, closes: r.closes })),
       )
     : undefined;
   return deriveFigures(model, siteCount, energy, numerical);

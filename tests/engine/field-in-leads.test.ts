@@ -396,5 +396,17 @@ describe('transport with the field in the leads', () => {
       const open = new Set(figures.leads[0].thresholds.filter((r) => f * t > r.opens && f * t < r.closes).map((r) => r.channel));
       expect(open.size, `${f}t`).toBe(op.openChannels(0, f * t).length);
     }
+    // A wider lead (a cell of more than 24 sites) is listed without ranges: computing them would take minutes.
+    const wide = validateCavityModel(
+      squareDoc({
+        field: 3.3,
+        fieldInLeads: true,
+        grid: { nx: 20, ny: 30 },
+        shape: { kind: 'rectangle', x0: 0, y0: 0, width: 100, height: 150 },
+        leads: [{ side: 'left', start: 0, width: 25 }],
+      }),
+    );
+    if (!wide.ok) throw new Error('invalid');
+    expect(deriveFiguresWithLeads(wide.model, wide.siteCount).leads[0].thresholds).toEqual([]);
   });
 });
