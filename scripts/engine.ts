@@ -24,7 +24,7 @@ import { transmissionSweep } from '../shared/engine/transmission';
 import { closedCavityEigenvalues } from '../shared/engine/closed-cavity';
 import { formatIssuePath } from '../shared/model/cavity-model';
 import { validateCavityModel } from '../shared/model/model-validation';
-import { deriveFigures } from '../shared/model/derived-figures';
+import { deriveFiguresWithLeads } from '../shared/engine/lead-channel-ranges';
 import { lifetimeFromWidth } from '../shared/units/constants';
 import { FitFileError, FitUsageError, runFitCommand } from './engine-fit';
 import { runStudyCommand, StudyUsageError } from './engine-study';
@@ -112,6 +112,15 @@ function stateRequest(system: CavitySystem, numbers: Record<string, number>, str
   return { kind: 'scattering', energy: numbers.energy, lead, channel: integer(numbers, 'channel', 1) };
 }
 
+/** The lattice, grid labels and positions (nm) of the unknowns, for output off the square lattice. */
+function sitePositions(system: CavitySystem) {
+  return {
+    lattice: system.lattice.kind,
+    sites: { i: Array.from(system.sites.i), j: Array.from(system.sites.j) },
+    positions: { x: Array.from(system.lattice.positions.x), y: Array.from(system.lattice.positions.y) },
+  };
+}
+
 function readModel(file: string): unknown {
   let text: string;
   try {
@@ -146,7 +155,7 @@ async function run(argv: string[]): Promise<unknown> {
     const sys = buildCavitySystem(doc);
     return {
       model: checked.model.name,
-      ...deriveFigures(checked.model, checked.siteCount, numbers.energy),
+      ...deriveFiguresWithLeads(checked.model, checked.siteCount, numbers.energy),
       thresholds: new EffectiveHamiltonian(sys).thresholds,
     };
   }
@@ -174,9 +183,7 @@ async function run(argv: string[]): Promise<unknown> {
       vectors: res.vectors?.map((v) => Array.from(v)),
       sites: switches.has('vectors') ? { i: Array.from(system.sites.i), j: Array.from(system.sites.j) } : undefined,
       // Off the square lattice (i, j) are grid labels, not positions: give the positions (nm) too.
-      ...(switches.has('vectors') && system.lattice.kind !== 'square'
-        ? { lattice: system.lattice.kind, positions: { x: Array.from(system.lattice.positions.x), y: Array.from(system.lattice.positions.y) } }
-        : {}),
+      ...(switches.has('vectors') && system.lattice.kind !== 'square' ? sitePositions(system) : {}),
     };
   }
   const op = new EffectiveHamiltonian(system);
@@ -202,7 +209,7 @@ async function run(argv: string[]): Promise<unknown> {
       spectral: switches.has('spectral'),
     });
     return {
-      leads: system.leads.map((l) => ({ name: l.name, side: l.side, width: l.mouth.length })),
+      leads: system.leads.map((l, k) => ({ name: l.name, side: l.side, width: system.model.leads[k].width })),
       energies: sweep.points.map((p) => p.energy),
       transmission: sweep.points.map((p) => p.transmission),
       reflection: sweep.points.map((p) => p.reflection),
@@ -270,6 +277,8 @@ async function run(argv: string[]): Promise<unknown> {
       lifetimePs: p.bound ? null : lifetimeFromWidth(p.width),
       mode: switches.has('modes') ? Array.from(p.mode) : undefined,
     })),
+    // Off the square lattice the modes' entries follow the sites' grid labels: give labels and positions (nm).
+    ...(switches.has('modes') && system.lattice.kind !== 'square' ? sitePositions(system) : {}),
     units: { energy: 'meV', width: 'meV', lifetime: 'ps' },
   };
 }

@@ -7,6 +7,27 @@ export interface ModeLattice {
   /** Column i and row j of each unknown, in the order of the mode vector. */
   i: ArrayLike<number>;
   j: ArrayLike<number>;
+  /** The lattice the labels are on (absent: square); the honeycomb's atoms are drawn where they sit. */
+  kind?: 'square' | 'honeycomb';
+}
+
+/**
+ * Where grid site (i, j) is drawn, in units of the lattice length, and the size of the block
+ * each site fills: the square lattice's unit squares, or on the honeycomb (shared/model/
+ * lattice-geometry.ts) x = i·√3/2, y = 1.5·j (+ ½ on sublattice B) with blocks of one column
+ * pitch √3/2 by 2 (a row pitch and a half a_CC) above and right of the atom (every atom one block).
+ */
+function drawing(lattice: ModeLattice): { width: number; height: number; block: [number, number]; at: (i: number, j: number) => [number, number] } {
+  if (lattice.kind !== 'honeycomb') return { width: lattice.nx, height: lattice.ny, block: [1, 1], at: (i, j) => [i, j] };
+  const dx = Math.sqrt(3) / 2;
+  const dy = 1.5;
+  // Blocks half an a_CC taller than the row pitch, so that the two heights of a row's atoms leave no seam.
+  return {
+    width: lattice.nx * dx,
+    height: lattice.ny * dy + 1,
+    block: [dx, dy + 0.5],
+    at: (i, j) => [i * dx, j * dy + (((i + j) & 1) === 1 ? 0.5 : 0)],
+  };
 }
 
 interface ModeImageOptions {
@@ -25,10 +46,12 @@ const OUTSIDE_RGB: readonly [number, number, number] = [206, 210, 214];
  * Cost: O(sites · pixels per site).
  */
 export function renderModePng(lattice: ModeLattice, psi: Float64Array, options: ModeImageOptions): Buffer {
-  const { nx, ny } = lattice;
-  const scale = Math.max(1, Math.floor(options.maxSide / Math.max(nx, ny)));
-  const width = nx * scale;
-  const height = ny * scale;
+  const d = drawing(lattice);
+  // Pixels per lattice length: whole pixels per site on the square lattice, as before.
+  const square = lattice.kind !== 'honeycomb';
+  const scale = square ? Math.max(1, Math.floor(options.maxSide / Math.max(lattice.nx, lattice.ny))) : Math.max(1, options.maxSide / Math.max(d.width, d.height));
+  const width = Math.max(1, Math.round(d.width * scale));
+  const height = Math.max(1, Math.round(d.height * scale));
   const png = new PNG({ width, height });
   const data = png.data;
   for (let p = 0; p < width * height; p++) {
@@ -40,20 +63,28 @@ export function renderModePng(lattice: ModeLattice, psi: Float64Array, options: 
   const n = lattice.i.length;
   let maxDensity = 0;
   for (let s = 0; s < n; s++) {
-    const d = psi[2 * s] ** 2 + psi[2 * s + 1] ** 2;
-    if (d > maxDensity) maxDensity = d;
+    const dens = psi[2 * s] ** 2 + psi[2 * s + 1] ** 2;
+    if (dens > maxDensity) maxDensity = dens;
   }
   const rgb: [number, number, number] = [0, 0, 0];
+  const bw = Math.max(1, Math.round(d.block[0] * scale));
+  const bh = Math.max(1, Math.round(d.block[1] * scale));
   for (let s = 0; s < n; s++) {
     const re = psi[2 * s];
     const im = psi[2 * s + 1];
     const value = maxDensity > 0 ? Math.sqrt((re * re + im * im) / maxDensity) : 0;
     phaseColour(Math.atan2(im, re), value, rgb);
-    const x0 = lattice.i[s] * scale;
-    const y0 = (ny - 1 - lattice.j[s]) * scale;
-    for (let dy = 0; dy < scale; dy++) {
-      let p = 4 * ((y0 + dy) * width + x0);
-      for (let dx = 0; dx < scale; dx++, p += 4) {
+    const [cx, cy] = d.at(lattice.i[s], lattice.j[s]);
+    // Row j = 0 at the bottom: image rows count down from the top.
+    const x0 = square ? cx * scale : Math.round(cx * scale);
+    const y0 = square ? (lattice.ny - 1 - cy) * scale : Math.round((d.height - cy - d.block[1]) * scale);
+    for (let dy = 0; dy < bh; dy++) {
+      const y = y0 + dy;
+      if (y < 0 || y >= height) continue;
+      for (let dx = 0; dx < bw; dx++) {
+        const x = x0 + dx;
+        if (x < 0 || x >= width) continue;
+        const p = 4 * (y * width + x);
         data[p] = rgb[0];
         data[p + 1] = rgb[1];
         data[p + 2] = rgb[2];

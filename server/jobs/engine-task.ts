@@ -40,6 +40,8 @@ export interface EngineTaskResult {
   thresholds: number[];
   leadNames: string[];
   grid: { nx: number; ny: number };
+  /** The lattice the site labels are on (mode images draw the honeycomb's atoms where they sit); absent: square. */
+  lattice?: 'square' | 'honeycomb';
   sites: { i: Int32Array; j: Int32Array };
   /** The poles, each with its current map (server/modemaps/pole-currents.ts). */
   poles: RunPole[];
@@ -142,6 +144,7 @@ function finishTask(ctx: TaskContext, task: EngineTask, search: PoleSearchResult
       thresholds,
       leadNames: system.leads.map((l) => l.name),
       grid: { nx: system.model.grid.nx, ny: system.model.grid.ny },
+      lattice: system.lattice.kind,
       sites: system.sites,
       poles,
       certificate,

@@ -60,7 +60,7 @@ export interface RunContext {
  * same transaction (the worker completes the queue job there).
  */
 export async function writeRunResults(db: Db, ctx: RunContext, result: EngineTaskResult, inTransaction?: (tx: Queryable) => Promise<void>): Promise<boolean> {
-  const lattice = { nx: result.grid.nx, ny: result.grid.ny, i: result.sites.i, j: result.sites.j };
+  const lattice = { nx: result.grid.nx, ny: result.grid.ny, i: result.sites.i, j: result.sites.j, kind: result.lattice };
   // Render outside the transaction: it is the slow part and needs no lock.
   const mask = maskBits(result.grid.nx, result.grid.ny, result.sites);
   const images = result.poles.map((p) => {

@@ -2,6 +2,7 @@ import { cavityModelSchema, type CavityModel, type ModelIssue, type Shape } from
 import { traceMaskOutline, type TracedOutline } from '../../shared/layout/outline-trace.js';
 import { validateCavityModel } from '../../shared/model/model-validation.js';
 import { deriveFigures, type DerivedFigures } from '../../shared/model/derived-figures.js';
+import { deriveFiguresWithLeads } from '../../shared/engine/lead-channel-ranges.js';
 import { physicsUnits, type PhysicsKind } from '../../shared/model/physics-mode.js';
 import { ApiError } from '../http/error-handler.js';
 import { formatIssuePath } from '../../shared/model/cavity-model.js';
@@ -67,7 +68,7 @@ export function checkModel(document: unknown): CheckedModel {
   const result = validateCavityModel(document);
   if (!result.ok) throw invalidModel(result.issues);
   const { model, mask, siteCount } = result;
-  const derived = deriveFigures(model, siteCount);
+  const derived = deriveFiguresWithLeads(model, siteCount);
   const geometry = geometryColumns(model, mask, siteCount);
   const microwave = model.physics.kind === 'microwave' ? model.physics : null;
   const honeycomb = model.lattice?.kind === 'honeycomb';
@@ -187,10 +188,21 @@ function maskBox(mask: Uint8Array, nx: number, ny: number) {
 }
 
 /** The fields of a document the derived figures read (not the shape or the potential). */
-const figureFields = cavityModelSchema.pick({ name: true, spacing: true, material: true, field: true, leads: true, physics: true, lattice: true });
+const figureFields = cavityModelSchema.pick({
+  name: true,
+  spacing: true,
+  material: true,
+  field: true,
+  leads: true,
+  physics: true,
+  lattice: true,
+  grid: true,
+  fieldInLeads: true,
+});
 
 /**
- * Derived figures of a stored document from its stored site count (nothing rasterised):
+ * Derived figures of a stored document from its stored site count (nothing rasterised, no
+ * lead solved: a numerical lead's channel ranges, which checkModel stores, are left empty):
  * for versions saved before the figures were stored with them (the back-fill,
  * model-backfill.ts) and for restored versions. Null when the document's figure fields
  * do not validate.
@@ -199,6 +211,7 @@ export function figuresOfStored(document: unknown, siteCount: number): DerivedFi
   const v = figureFields.safeParse(document);
   if (!v.success) return null;
   try {
+    // No engine work here (restores and reads call it): numerical leads list no channel ranges.
     return deriveFigures(v.data as CavityModel, siteCount);
   } catch {
     return null; // a value the form allows but the figures refuse (an unknown material name, say)

@@ -147,7 +147,8 @@ export class ModeMapService {
 
 /**
  * The lead and channel must exist and the channel be open at E (contract, "Leads": open for
- * ε_m − 2t < E < ε_m + 2t, strict, as the engine's channelFlags). Read from the version's
+ * ε_m − 2t < E < ε_m + 2t, strict, as the engine's channelFlags; a numerical lead's ranges
+ * from its band edges, shared/engine/lead-channel-ranges.ts). Read from the version's
  * stored derived figures (no document parsed, no lattice built here).
  */
 function checkChannel(figures: DerivedFigures, energy: number, lead: number, channel: number): void {
@@ -157,9 +158,11 @@ function checkChannel(figures: DerivedFigures, energy: number, lead: number, cha
       { path: 'lead', message: figures.leads.length ? `the model has leads 0 to ${figures.leads.length - 1}` : 'the model has no leads' },
     ]);
   }
-  const flags = l.thresholds.map((t) => energy > t.opens && energy < t.closes);
-  const open = flags.flatMap((f, m) => (f ? [m + 1] : []));
-  if (!flags[channel - 1]) {
+  // A numerical lead stored without its ranges (a restored version): the engine checks the channel when it computes.
+  if (l.thresholds.length === 0) return;
+  // A numerical lead may list one channel on several ranges (derived-figures.ts): open when any holds E.
+  const open = [...new Set(l.thresholds.filter((t) => energy > t.opens && energy < t.closes).map((t) => t.channel))].sort((a, b) => a - b);
+  if (!open.includes(channel)) {
     throw new ApiError(400, 'validation_failed', `Channel ${channel} of lead ${l.name} is not open at ${energy} meV.`, [
       { path: 'channel', message: open.length ? `open channels at this energy: ${open.join(', ')}` : 'no channel of this lead is open at this energy' },
     ]);

@@ -79,8 +79,19 @@ export function runCostFeatures(document: unknown, req: Pick<RunRequest, 'kind' 
   const { emin, emax } = req.window;
   const inside = op.thresholds.filter((e) => e > emin && e < emax);
   // Weyl's law for a 2D billiard: N(E) ≈ A·E/(4π·ħ²/2m*) = sites·E/(4π t) on the lattice
-  // (e.g. Stöckmann, "Quantum Chaos: An Introduction", ch. 3; leading term only).
-  const expectedLevels = Math.max(0, Math.round((op.n * (Math.max(emax, 0) - Math.max(emin, 0))) / (4 * Math.PI * op.hopping)));
+  // (e.g. Stöckmann, "Quantum Chaos: An Introduction", ch. 3; leading term only). On the
+  // honeycomb the Dirac cones (two valleys, ħv_F = 3t·a_CC/2, (3√3/4)a_CC² per atom) give
+  // N(E) = sites·(√3/6π)·((E − E_D)/t)² on each side of the Dirac point E_D (from the density of
+  // states ρ ∝ |E|, Castro Neto et al., RMP 81, 109 (2009), eq. 14; leading term only).
+  const lattice = system.model.lattice;
+  const dirac = (e: number) => {
+    const d = (e - (lattice?.kind === 'honeycomb' ? 3000 * lattice.nextHopping : 0)) / op.hopping;
+    return Math.sign(d) * d * d;
+  };
+  const expectedLevels =
+    lattice?.kind === 'honeycomb'
+      ? Math.max(0, Math.round(op.n * (Math.sqrt(3) / (6 * Math.PI)) * (dirac(emax) - dirac(emin))))
+      : Math.max(0, Math.round((op.n * (Math.max(emax, 0) - Math.max(emin, 0))) / (4 * Math.PI * op.hopping)));
   return {
     sites: op.n,
     factorFlops: plan.factorFlops,

@@ -312,7 +312,13 @@ export class StudyService {
     const images = await this.compute.run(
       {
         kind: 'mode-images',
-        lattice: { nx: grid.nx, ny: grid.ny, i: decoded.sites.i, j: decoded.sites.j },
+        lattice: {
+          nx: grid.nx,
+          ny: grid.ny,
+          i: decoded.sites.i,
+          j: decoded.sites.j,
+          kind: (document as { lattice?: { kind?: string } }).lattice?.kind === 'honeycomb' ? 'honeycomb' : 'square',
+        },
         modes: decoded.poles.map((p) => p.mode),
         sides: FILED_IMAGE_SIDES,
       },

@@ -4,12 +4,17 @@ import { cavityModelDescription } from './cavity-model-description.js';
 import { groupParams, numberOrInfinite, personRef, timestamp } from './fields.js';
 import { declareRoute, json } from './route.js';
 
-const channelThreshold = z.object({
-  channel: z.number().int().min(1),
-  transverse: z.number().meta({ description: 'ε_m (meV)' }),
-  opens: z.number().meta({ description: 'ε_m − 2t (meV)' }),
-  closes: z.number().meta({ description: 'ε_m + 2t (meV)' }),
-});
+const channelThreshold = z
+  .object({
+    channel: z.number().int().min(1),
+    transverse: z.number().meta({ description: 'ε_m (meV); a numerical lead: the middle of the range' }),
+    opens: z.number().meta({ description: 'ε_m − 2t (meV); a numerical lead: a band edge' }),
+    closes: z.number().meta({ description: 'ε_m + 2t (meV); a numerical lead: a band edge' }),
+  })
+  .meta({
+    description:
+      'Channel m is open for opens < E < closes. A numerical lead (honeycomb, or a field in the leads) numbers its open channels 1..N(E) and may list a channel on several ranges.',
+  });
 
 export const derivedFiguresSchema = z
   .object({
@@ -35,7 +40,7 @@ export const derivedFiguresSchema = z
     lattice: z
       .enum(['square', 'honeycomb'])
       .optional()
-      .meta({ description: 'absent: square. honeycomb: hopping is t in meV, the ceilings are t/4 (Dirac picture), thresholds are empty (no closed form)' }),
+      .meta({ description: 'absent: square. honeycomb: hopping is t in meV, the ceilings are t/4 (Dirac picture), and lead thresholds come from the numerical leads (channelRanges) where computed' }),
     dirac: z
       .object({
         hbarVelocity: z.number().meta({ description: 'ħv_F = 3t·a_CC/2 (meV·nm)' }),

@@ -6,7 +6,7 @@
  */
 
 /** LU factors of an n×n matrix: unit-lower L and U packed in lu, row permutation perm. */
-export interface DenseLu {
+interface DenseLu {
   n: number;
   lu: Float64Array;
   perm: Int32Array;

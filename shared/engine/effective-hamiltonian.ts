@@ -4,70 +4,20 @@
  * The pattern is H's plus one dense W×W block per lead mouth, fixed for all z.
  */
 import { fluxPerPlaquette } from '../units/constants';
-import { modelHopping, modelLattice, modelMassRatio, formatIssuePath, type CavityModel, type LeadSide, type ModelIssue } from '../model/cavity-model';
-import { placementOf, type SitePlacement } from '../model/lattice-geometry';
+import { modelHopping, modelLattice, modelMassRatio } from '../model/cavity-model';
+import { placementOf } from '../model/lattice-geometry';
 import { buildTightBinding, modelTightBinding } from './tight-binding';
 import { validateCavityModel } from '../model/model-validation';
 import { mouthSites } from '../model/geometry';
 import { evaluatePotential } from '../model/potential';
-import { buildLattice, hamiltonianEntries, addHamiltonian, indexSites, type CavityLattice } from './lattice';
-import {
-  channelFlags,
-  leadChannels,
-  leadThresholds,
-  mouthBlock,
-  mouthPhases,
-  selfEnergyCoefficients,
-  selfEnergyDerivativeCoefficients,
-  type LeadChannels,
-} from './leads';
-import type { NumericalLead } from './numerical-lead';
+import { buildLattice, hamiltonianEntries, addHamiltonian, indexSites } from './lattice';
+import { channelFlags, leadChannels, leadThresholds, mouthBlock, mouthPhases, selfEnergyCoefficients, selfEnergyDerivativeCoefficients } from './leads';
+import { InvalidModelError, type CavitySystem, type SystemLead } from './cavity-system';
+import { latticeLeads, withNumericalLeads } from './numerical-lead-system';
 import { buildPattern, patternSlot } from './sparsity-pattern';
 import type { Complex, NonlinearOperator, SheetFlags } from './operator';
 
-/** Thrown when a model document fails validation; carries the field-tagged issues. */
-export class InvalidModelError extends Error {
-  constructor(readonly issues: ModelIssue[]) {
-    super(`invalid cavity model: ${issues.map((i) => `${formatIssuePath(i.path)}: ${i.message}`).join('; ')}`);
-    this.name = 'InvalidModelError';
-  }
-}
-
-/** One lead attached to the cavity. */
-export interface SystemLead {
-  name: string;
-  side: LeadSide;
-  channels: LeadChannels;
-  /** Unknown index of each mouth site, p = 1..W order. */
-  mouth: Int32Array;
-  /** Phase θ_p of each lead-cavity bond. */
-  theta: Float64Array;
-  /**
-   * When set, the lead is computed from its unit cell (numerical-lead.ts) instead of the
-   * closed form: its sheet flags are one per threshold of the lead (E above it), its
-   * channels are numbered 1..N by the numerical modes, and `channels`/`theta` are unused
-   * for Σ. Set by withNumericalLeads (numerical-lead-system.ts).
-   */
-  numerical?: NumericalLead;
-}
-
-/** Everything the operator needs, derived once from a model. */
-export interface CavitySystem {
-  model: CavityModel;
-  massRatio: number;
-  /** Lattice spacing a (nm; mm in the microwave mode); a_CC on the honeycomb. */
-  spacing: number;
-  /** Where the lattice's sites sit (lattice-geometry.ts). */
-  placement: SitePlacement;
-  mask: Uint8Array;
-  lattice: CavityLattice;
-  sites: { i: Int32Array; j: Int32Array };
-  /** t (meV; mm⁻² in the microwave mode). */
-  hopping: number;
-  /** φ per plaquette. */
-  flux: number;
-  leads: SystemLead[];
-}
+export { InvalidModelError, type CavitySystem } from './cavity-system';
 
 /**
  * Validates a model document and builds its lattice and leads. Throws
@@ -87,18 +37,11 @@ export function buildCavitySystem(doc: unknown): CavitySystem {
   const { siteIndex, sites } = indexSites(mask, nx, ny);
   const potential = evaluatePotential(model.potential, sites, siteIndex, ny, model.spacing, placement);
   if (placement.kind !== 'square') {
-    if (model.leads.length > 0) {
-      throw new InvalidModelError([
-        {
-          path: ['leads'],
-          message:
-            'leads on a honeycomb lattice need the numerical lead solver, which is not in this version yet: remove the leads ' +
-            'to compute the closed flake (info, closed, poles of bound states), or use the square lattice',
-        },
-      ]);
-    }
-    const lattice = buildTightBinding(mask, nx, ny, modelTightBinding(model), potential);
-    return { model, massRatio, spacing: model.spacing, placement, mask, lattice, sites: lattice.sites, hopping, flux: lattice.flux, leads: [] };
+    const tb = modelTightBinding(model);
+    const lattice = buildTightBinding(mask, nx, ny, tb, potential);
+    // Leads of any lattice: the lead's cell as a ribbon of the same lattice, solved numerically.
+    const leads = latticeLeads(model, mask, lattice.siteIndex, tb);
+    return { model, massRatio, spacing: model.spacing, placement, mask, lattice, sites: lattice.sites, hopping, flux: lattice.flux, leads };
   }
   const lattice = buildLattice(mask, nx, ny, hopping, flux, potential, model.spacing);
   const leads = model.leads.map((lead, k): SystemLead => {
@@ -113,7 +56,9 @@ export function buildCavitySystem(doc: unknown): CavitySystem {
       theta: mouthPhases(lead.side, m.i, m.j, flux),
     };
   });
-  return { model, massRatio, spacing: model.spacing, placement, mask, lattice, sites: lattice.sites, hopping, flux, leads };
+  const system: CavitySystem = { model, massRatio, spacing: model.spacing, placement, mask, lattice, sites: lattice.sites, hopping, flux, leads };
+  // The field in the leads needs the numerical leads; without a field they are the closed form's (the same Σ).
+  return model.fieldInLeads === true && flux !== 0 ? withNumericalLeads(system, { fieldInLeads: true }) : system;
 }
 
 /** Open-channel coupling vectors W (columns sqrt(2t sin k_m)·e^{−iθ_p}χ_m(p) on each mouth). */

@@ -7,7 +7,7 @@
  */
 
 /** Eigenvalues ascending; vectors row-major n×n interleaved, column k the eigenvector of values[k]. */
-export interface HermitianEigen {
+interface HermitianEigen {
   values: Float64Array;
   vectors: Float64Array;
 }

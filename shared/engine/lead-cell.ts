@@ -18,19 +18,32 @@
  * order. Every bond of the preset (nearest and next-nearest) between two lead sites, or
  * between a lead site and a cavity site, is kept.
  *
- * Field: the leads are field-free (H0, H1 real) as in the contract; on the square lattice
- * the lead–cavity bonds carry the contract's mouth phase (top/bottom lead: θ_p = −2πφ·j_p·i_p,
- * V[r, p] = −t·e^{iθ_p}), which reproduces leads.ts. A honeycomb lead in a field is refused
- * (the interface rule for its slanted bonds is not written yet). Energies in meV, lengths nm.
+ * Field (docs/physics-model.md, "A field in the leads"): the cavity keeps the engine's Landau
+ * gauge A = (−B·y, 0). Each lead has a gauge A_ℓ = A + ∇χ_ℓ on the cavity side, its bonds
+ * carry θ = (q/ħ)∫A_ℓ·dl (q = −e, so q/ħ = −2π/(h/e) per T·nm²), and a lead–cavity bond from
+ * contact p carries θ(p → r) = (q/ħ)[∫A_ℓ·dl + χ_ℓ(r_p)]: the lead is in its own gauge and the
+ * jump χ_ℓ is put on the links, which is the gauge transformation e^{iqχ_ℓ/ħ} of the cavity's
+ * sites seen from the lead (no flux is added or lost at the mouth).
+ * - Field in the lead (`fieldInLead`): left/right leads keep A (translation-invariant along
+ *   x, χ_ℓ = 0); top/bottom leads use A′ = (0, B·x) = A + ∇(B·x·y), χ_ℓ = B·x·y. Every plaquette,
+ *   in the lead and at the mouth, holds the flux B·area.
+ * - Field-free lead (the contract's): the field fills the half-plane on the cavity's side of
+ *   the mouth line (x = x_m through the left/right edge column; y = y_m through the highest
+ *   atoms of the top row or the lowest of the bottom row) and is 0 beyond it, A_ℓ = 0 in the
+ *   lead, χ_ℓ = B·(x − x_m)·y (left/right) or B·y_m·x (top/bottom). A link from p to r then
+ *   carries (q/ħ)[∫_{p→c}A·dl + χ_ℓ(c)], c where the bond crosses the line (c = p for every
+ *   nearest-neighbour link). On the square lattice this is the contract's mouth phase
+ *   (top/bottom θ_p = −2πφ·j_p·i_p, left/right 0); a honeycomb plaquette astride the line
+ *   holds the flux of its part on the cavity side. Energies in meV, lengths nm.
  */
 import { FLUX_QUANTUM_T_NM2 } from '../units/constants';
 import { formatIssuePath, type CavityModel, type Lead, type LeadSide } from '../model/cavity-model';
 import { validateCavityModel } from '../model/model-validation';
 import { indexSites } from './lattice';
-import { forEachPresetBond, modelTightBinding, presetOnsite, type TightBindingParameters } from './tight-binding';
+import { forEachPresetBond, landauPhase, modelTightBinding, presetOnsite, type TightBindingParameters } from './tight-binding';
 
 /** One lead's unit cell and its coupling to the cavity. Matrices are dense, row-major, interleaved (re, im). */
-export interface LeadCell {
+interface LeadCell {
   side: LeadSide;
   /** Number of sites m of one cell. */
   size: number;
@@ -49,7 +62,7 @@ export interface LeadCell {
 }
 
 /** A lead cell on the model's cavity: the contacts as unknown indices of the cavity's lattice. */
-export interface AttachedLeadCell extends LeadCell {
+interface AttachedLeadCell extends LeadCell {
   /** Unknown index of each contact (same order as `contacts`). */
   mouth: Int32Array;
 }
@@ -73,6 +86,48 @@ function cellOrigin(
   }
 }
 
+/** (q/ħ) per T·nm² for the electron's charge q = −e: −2π/(h/e). */
+const CHARGE_OVER_HBAR = (-2 * Math.PI) / FLUX_QUANTUM_T_NM2;
+
+/**
+ * The Peierls phases of one lead (see the file comment): `bond` for a bond between two lead
+ * sites, `link` for the bond from a cavity contact (xp, yp) to a lead site (xr, yr). Positions nm.
+ */
+function leadGauge(
+  p: TightBindingParameters,
+  side: LeadSide,
+  nx: number,
+  ny: number,
+  fieldInLead: boolean,
+): { bond: (x0: number, y0: number, x1: number, y1: number) => number; link: (xp: number, yp: number, xr: number, yr: number) => number } {
+  const b = p.field;
+  const pl = p.placement;
+  const across = side === 'left' || side === 'right';
+  if (b === 0) return { bond: () => 0, link: () => 0 };
+  if (fieldInLead) {
+    // A_ℓ = A (left/right) or A′ = (0, B·x) (top/bottom); χ_ℓ = 0 or B·x·y.
+    const bond = across
+      ? (x0: number, y0: number, x1: number, y1: number) => landauPhase(b, x0, y0, x1, y1)
+      : (x0: number, y0: number, x1: number, y1: number) => CHARGE_OVER_HBAR * b * 0.5 * (x0 + x1) * (y1 - y0);
+    const chi = (x: number, y: number) => (across ? 0 : b * x * y);
+    return { bond, link: (xp, yp, xr, yr) => bond(xp, yp, xr, yr) + CHARGE_OVER_HBAR * chi(xp, yp) };
+  }
+  // Field-free lead: the field stops at the mouth line.
+  const line = side === 'left' ? 0 : side === 'right' ? pl.x(nx - 1, 0) : side === 'bottom' ? 0 : (ny - 1) * pl.dy + pl.rowLift;
+  const chi = (x: number, y: number) => (across ? b * (x - line) * y : b * line * x);
+  return {
+    bond: () => 0,
+    link: (xp, yp, xr, yr) => {
+      const from = across ? xp : yp;
+      const to = across ? xr : yr;
+      const s = Math.abs(from - line) <= 1e-12 * Math.max(1, Math.abs(line)) ? 0 : Math.min(1, Math.max(0, (line - from) / (to - from)));
+      const xc = xp + s * (xr - xp);
+      const yc = yp + s * (yr - yp);
+      return landauPhase(b, xp, yp, xc, yc) + CHARGE_OVER_HBAR * chi(xc, yc);
+    },
+  };
+}
+
 /**
  * The cell of a lead of `width` sites along the side from `start`, on an nx × ny grid
  * whose cavity is `inCavity(i, j)`. `offset` is V_L (meV). Cost O(m² + m·z).
@@ -86,9 +141,10 @@ export function presetLeadCell(
   nx: number,
   ny: number,
   inCavity: (i: number, j: number) => boolean,
+  options: { fieldInLead?: boolean } = {},
 ): LeadCell {
   const pl = p.placement;
-  if (p.field !== 0 && pl.kind !== 'square') throw new Error('a lead on the honeycomb lattice in a magnetic field is not available yet: set the field to 0');
+  const gauge = leadGauge(p, side, nx, ny, options.fieldInLead ?? false);
   const period = pl.kind === 'honeycomb' ? 2 : 1;
   const o = cellOrigin(side, start, period, nx, ny);
   const across = side === 'left' || side === 'right';
@@ -122,7 +178,12 @@ export function presetLeadCell(
   const h0 = new Float64Array(2 * m * m);
   const h1 = new Float64Array(2 * m * m);
   for (let s = 0; s < m; s++) h0[2 * (s * m + s)] = presetOnsite(p, ci[s], cj[s]) + offset;
-  const links: { r: number; ci: number; cj: number; t: number }[] = [];
+  /** out[r, c] += −t·e^{iθ} */
+  const add = (out: Float64Array, r: number, c: number, t: number, theta: number) => {
+    out[2 * (r * m + c)] -= t * Math.cos(theta);
+    out[2 * (r * m + c) + 1] -= t * Math.sin(theta);
+  };
+  const links: { r: number; ci: number; cj: number; t: number; theta: number }[] = [];
   // Every bond with an end in cell 0: scan the forward bonds of every site near the cell.
   const reach = 2 * period + 2;
   const iMin = o.i0 - reach,
@@ -134,17 +195,24 @@ export function presetLeadCell(
       forEachPresetBond(p, i, j, (di, dj, t) => {
         const u = locate(i, j);
         const v = locate(i + di, j + dj);
+        const x0 = pl.x(i, j),
+          y0 = pl.y(i, j),
+          x1 = pl.x(i + di, j + dj),
+          y1 = pl.y(i + di, j + dj);
         if (u && v) {
+          // θ(u → v) in the lead's gauge; H[v, u] = −t·e^{iθ}, H[u, v] its conjugate.
+          const theta = gauge.bond(x0, y0, x1, y1);
           if (u.k === 0 && v.k === 0) {
-            h0[2 * (v.s * m + u.s)] -= t;
-            h0[2 * (u.s * m + v.s)] -= t;
-          } else if (u.k === 0 && v.k === 1) h1[2 * (v.s * m + u.s)] -= t;
-          else if (u.k === 1 && v.k === 0) h1[2 * (u.s * m + v.s)] -= t;
+            add(h0, v.s, u.s, t, theta);
+            add(h0, u.s, v.s, t, -theta);
+          } else if (u.k === 0 && v.k === 1) add(h1, v.s, u.s, t, theta);
+          else if (u.k === 1 && v.k === 0) add(h1, u.s, v.s, t, -theta);
           return;
         }
-        // A bond between cell 0 and the cavity.
-        if (u && u.k === 0 && !v && inGrid(i + di, j + dj) && inCavity(i + di, j + dj)) links.push({ r: u.s, ci: i + di, cj: j + dj, t });
-        if (v && v.k === 0 && !u && inGrid(i, j) && inCavity(i, j)) links.push({ r: v.s, ci: i, cj: j, t });
+        // A bond between cell 0 and the cavity: θ(contact → lead site).
+        if (u && u.k === 0 && !v && inGrid(i + di, j + dj) && inCavity(i + di, j + dj))
+          links.push({ r: u.s, ci: i + di, cj: j + dj, t, theta: gauge.link(x1, y1, x0, y0) });
+        if (v && v.k === 0 && !u && inGrid(i, j) && inCavity(i, j)) links.push({ r: v.s, ci: i, cj: j, t, theta: gauge.link(x0, y0, x1, y1) });
       });
     }
   }
@@ -153,13 +221,10 @@ export function presetLeadCell(
   const contactJ = Int32Array.from(keys, (k) => k % ny);
   const w = keys.length;
   const coupling = new Float64Array(2 * m * w);
-  // The contract's mouth phase (square lattice, top/bottom leads): θ_p = −2πφ·j_p·i_p with φ = B a²/(h/e).
-  const phi = (p.field * pl.length * pl.length) / FLUX_QUANTUM_T_NM2;
   for (const l of links) {
     const q = keys.indexOf(l.ci * ny + l.cj);
-    const theta = side === 'top' || side === 'bottom' ? -2 * Math.PI * phi * l.cj * l.ci : 0;
-    coupling[2 * (l.r * w + q)] += -l.t * Math.cos(theta);
-    coupling[2 * (l.r * w + q) + 1] += -l.t * Math.sin(theta);
+    coupling[2 * (l.r * w + q)] += -l.t * Math.cos(l.theta);
+    coupling[2 * (l.r * w + q) + 1] += -l.t * Math.sin(l.theta);
   }
   const d: [number, number] = [pl.x(o.i0 + o.step[0], o.j0 + o.step[1]) - pl.x(o.i0, o.j0), pl.y(o.i0 + o.step[0], o.j0 + o.step[1]) - pl.y(o.i0, o.j0)];
   return { side, size: m, sites: { i: ci, j: cj, x, y }, h0, h1, translation: d, contacts: { i: contactI, j: contactJ }, coupling };
@@ -206,7 +271,9 @@ export function leadCellOf(model: CavityModel, lead: number | Lead): AttachedLea
   const { nx, ny } = checked.model.grid;
   const mask = checked.mask;
   const { siteIndex } = indexSites(mask, nx, ny);
-  const cell = presetLeadCell(modelTightBinding(checked.model), l.side, l.start, l.width, l.offset, nx, ny, (i, j) => mask[i * ny + j] === 1);
+  const cell = presetLeadCell(modelTightBinding(checked.model), l.side, l.start, l.width, l.offset, nx, ny, (i, j) => mask[i * ny + j] === 1, {
+    fieldInLead: checked.model.fieldInLeads === true,
+  });
   const mouth = new Int32Array(cell.contacts.i.length);
   for (let p = 0; p < mouth.length; p++) mouth[p] = siteIndex[cell.contacts.i[p] * ny + cell.contacts.j[p]];
   return { ...cell, mouth };

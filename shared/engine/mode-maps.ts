@@ -25,6 +25,9 @@ interface CurrentReport {
   spacingNm: number;
   grid: { nx: number; ny: number };
   sites: { i: number[]; j: number[] };
+  /** Off the square lattice: the lattice and the sites' positions (nm), since (i, j) are grid labels there. */
+  lattice?: string;
+  positions?: { x: number[]; y: number[] };
   /** |ψ|² and arg ψ per site. */
   density: number[];
   phase: number[];
@@ -77,6 +80,7 @@ export function currentReport(system: CavitySystem, state: ModeState): CurrentRe
     spacingNm: system.spacing,
     grid: { nx: lattice.nx, ny: lattice.ny },
     sites: { i: Array.from(lattice.sites.i), j: Array.from(lattice.sites.j) },
+    ...(lattice.kind !== 'square' ? { lattice: lattice.kind, positions: { x: Array.from(lattice.positions.x), y: Array.from(lattice.positions.y) } } : {}),
     density,
     phase,
     bonds: { from: Array.from(lattice.bonds.from), to: Array.from(lattice.bonds.to), current: Array.from(map.bonds) },

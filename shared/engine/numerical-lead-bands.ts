@@ -16,7 +16,7 @@ import { hermitianEigen } from './hermitian-eigen';
 import { forwardHopping, type LeadCellBlocks } from './numerical-lead-modes';
 
 /** H(k) (n×n, interleaved) of a cell, or H′(k) (order 1) or H″(k) (order 2). */
-export function blochHamiltonian(cell: LeadCellBlocks, k: number, order = 0): Float64Array {
+function blochHamiltonian(cell: LeadCellBlocks, k: number, order = 0): Float64Array {
   const n = cell.size;
   const h1f = forwardHopping(cell);
   const out = new Float64Array(2 * n * n);
@@ -55,7 +55,11 @@ export function leadBands(cell: LeadCellBlocks, k: number): Float64Array {
   return hermitianEigen(cell.size, blochHamiltonian(cell, k)).values;
 }
 
-function slopeAndCurvature(cell: LeadCellBlocks, k: number, band: number): { energy: number; slope: number; curvature: number; gap: number } {
+function slopeAndCurvature(
+  cell: LeadCellBlocks,
+  k: number,
+  band: number,
+): { energy: number; slope: number; curvature: number; gap: number; near: { energy: number; slope: number } } {
   const n = cell.size;
   const { values, vectors } = hermitianEigen(n, blochHamiltonian(cell, k));
   const h1 = blochHamiltonian(cell, k, 1);
@@ -89,15 +93,18 @@ function slopeAndCurvature(cell: LeadCellBlocks, k: number, band: number): { ene
   const slope = form(h1, phi, phi)[0];
   let curvature = form(h2, phi, phi)[0];
   let gap = Infinity;
+  let nearest = band;
   for (let c = 0; c < n; c++) {
     if (c === band) continue;
     const de = values[band] - values[c];
+    if (Math.abs(de) < gap) nearest = c;
     gap = Math.min(gap, Math.abs(de));
     if (Math.abs(de) < 1e-12 * (1 + Math.abs(values[band]))) continue;
     const [mr, mi] = form(h1, col(c), phi);
     curvature += (2 * (mr * mr + mi * mi)) / de;
   }
-  return { energy: values[band], slope, curvature, gap };
+  const other = nearest === band ? phi : col(nearest);
+  return { energy: values[band], slope, curvature, gap, near: { energy: values[nearest], slope: form(h1, other, other)[0] } };
 }
 
 /** One band edge: band index (sorted), its k and energy. */
@@ -138,7 +145,20 @@ export function leadBandEdges(cell: LeadCellBlocks, samples = 128): BandEdge[] {
       let k = ks[i];
       let found: BandEdge | undefined;
       for (let it = 0; it < 60; it++) {
-        const s = slopeAndCurvature(cell, k, b);
+        let s = slopeAndCurvature(cell, k, b);
+        // A sorted band's kink where two bands cross (slopes of both signs, never zero) is
+        // approached by bisection only linearly in the gap: jump to where the two nearest bands'
+        // tangents meet, and take that point when they do meet there (an exact crossing).
+        if (s.gap > 1e-9 * scale && s.near.slope !== s.slope) {
+          const kc = k + (s.near.energy - s.energy) / (s.slope - s.near.slope);
+          if (kc > lo && kc < hi && kc !== k) {
+            const c = slopeAndCurvature(cell, kc, b);
+            if (c.gap <= 1e-9 * scale) {
+              k = kc;
+              s = c;
+            }
+          }
+        }
         if (s.gap <= 1e-9 * scale) {
           // (Nearly) degenerate: an edge when one of the velocities on the degenerate subspace
           // vanishes (a band extremum touching other bands); a plain crossing has none.

@@ -151,7 +151,7 @@ export function leadPencil(cell: LeadCellBlocks, zRe: number, zIm: number): Lead
 }
 
 /** A propagating mode at a real energy: λ = e^{ik}, unit-norm φ (φ†φ = 1), v = dE/dk (meV). */
-export interface PropagatingMode {
+interface PropagatingMode {
   lambdaRe: number;
   lambdaIm: number;
   velocity: number;
@@ -162,7 +162,7 @@ export interface PropagatingMode {
 }
 
 /** Modes at a real energy E: the propagating ones with their velocities, on a pencil at E. */
-export interface RealModes {
+interface RealModes {
   energy: number;
   pencil: LeadPencil;
   propagating: PropagatingMode[];
@@ -171,7 +171,7 @@ export interface RealModes {
 }
 
 /** |λ| within this of 1 counts as a propagating mode at a real energy. */
-export const UNIT_CIRCLE_TOLERANCE = 1e-7;
+const UNIT_CIRCLE_TOLERANCE = 1e-7;
 
 /**
  * Classifies the modes at a real energy E (not on a threshold): propagating modes
@@ -279,7 +279,7 @@ export function realModes(cell: LeadCellBlocks, energy: number, pencil = leadPen
 }
 
 /** y = A·x for an n×n A and an n-vector x (interleaved). */
-export function multiplyVector(n: number, a: Float64Array, x: Float64Array): Float64Array {
+function multiplyVector(n: number, a: Float64Array, x: Float64Array): Float64Array {
   const y = new Float64Array(2 * n);
   for (let i = 0; i < n; i++) {
     let re = 0;
@@ -297,7 +297,7 @@ export function multiplyVector(n: number, a: Float64Array, x: Float64Array): Flo
 }
 
 /** x†y (interleaved vectors of the same length). */
-export function dot(x: Float64Array, y: Float64Array): [number, number] {
+function dot(x: Float64Array, y: Float64Array): [number, number] {
   let re = 0;
   let im = 0;
   for (let i = 0; i < x.length; i += 2) {

@@ -19,7 +19,8 @@
  *   contract's frozen channel flags: an open channel's continued root is the outgoing
  *   one, a closed channel's the decaying one.
  * A piece with no propagating mode (below all bands, above them, or in a gap) needs
- * no tracking: its continuation is |λ| < 1 everywhere.
+ * no tracking: its continuation is |λ| < 1 everywhere. Within 1e-10 of the piece's width of
+ * the real axis the real axis's choice is taken (the side of a propagating λ is below rounding).
  */
 import { leadPencil, realModes, type LeadCellBlocks, type LeadPencil } from './numerical-lead-modes';
 
@@ -57,6 +58,19 @@ export function retardedChoice(cell: LeadCellBlocks, zRe: number, zIm: number, p
     const count = select.filter(Boolean).length;
     if (count !== n) throw new Error(`retardedChoice: ${count} retarded modes at z = ${zRe}${zIm >= 0 ? '+' : ''}${zIm}i (${where}), expected ${n}`);
   };
+  // Within rounding of the real axis (|Im z| ≤ 1e-10 of the piece's width) the side of a
+  // propagating λ is set by rounding, not by Im z: take the real axis's choice, its limit from
+  // either side on this sheet (Σ differs from it by O(|Im z|·dΣ/dz)).
+  const nearAxis = zIm !== 0 && Number.isFinite(piece.hi - piece.lo) && Math.abs(zIm) <= 1e-10 * (piece.hi - piece.lo) && zRe > piece.lo && zRe < piece.hi;
+  if (nearAxis) {
+    try {
+      const modes = realModes(cell, zRe);
+      return { pencil: modes.pencil, select: modes.retarded, solves: 1 };
+    } catch (e) {
+      // an exact band crossing at Re z: follow the modes as below
+      if (!(e instanceof Error && /move both ways|retarded modes at/.test(e.message))) throw e;
+    }
+  }
   if (zIm > 0 || (zIm < 0 && (!Number.isFinite(piece.lo) || !Number.isFinite(piece.hi)))) {
     const pencil = leadPencil(cell, zRe, zIm);
     const select = pencil.inside.slice();

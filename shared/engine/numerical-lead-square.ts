@@ -25,7 +25,7 @@ import type { LeadSide } from '../model/cavity-model';
 import { mouthPhases } from './leads';
 import type { NumericalLeadSpec } from './numerical-lead';
 
-export interface SquareLeadGeometry {
+interface SquareLeadGeometry {
   side: LeadSide;
   /** Lattice column and row of each mouth site, p = 1..W order. */
   mouthI: Int32Array;

@@ -1,15 +1,18 @@
 /**
- * Switches a cavity system's leads to numerical leads (numerical-lead.ts), built from
- * square-lattice cells (numerical-lead-square.ts): field-free (the contract's leads,
- * results unchanged to rounding) or with the field in the leads.
+ * Numerical leads (numerical-lead.ts) in a cavity system: a square-lattice system's leads
+ * switched to them (numerical-lead-square.ts), field-free (the contract's leads, results
+ * unchanged to rounding) or with the field in the leads; and the leads of any other lattice,
+ * built from their cells as ribbons of the cavity's lattice (lead-cell.ts).
  */
-import type { LeadSide } from '../model/cavity-model';
-import type { CavitySystem, SystemLead } from './effective-hamiltonian';
+import type { CavityModel, LeadSide } from '../model/cavity-model';
+import { InvalidModelError, type CavitySystem, type SystemLead } from './cavity-system';
+import { presetLeadCell } from './lead-cell';
+import type { TightBindingParameters } from './tight-binding';
 import { leadChannels } from './leads';
 import { NumericalLead, type NumericalLeadOptions, type NumericalLeadSpec } from './numerical-lead';
 import { squareLatticeLead } from './numerical-lead-square';
 
-export interface NumericalLeadsOptions {
+interface NumericalLeadsOptions {
   /** Let the field act in the leads too (default false: the contract's field-free leads). */
   fieldInLeads?: boolean;
   /** k samples for the band edges (default 128). */
@@ -41,7 +44,36 @@ export function withNumericalLeads(system: CavitySystem, options: NumericalLeads
  * coupling's columns. The closed-form fields are left empty (width 0): nothing reads
  * them once `numerical` is set.
  */
-export function numericalSystemLead(name: string, side: LeadSide, mouth: Int32Array, spec: NumericalLeadSpec, options: NumericalLeadOptions = {}): SystemLead {
+function numericalSystemLead(name: string, side: LeadSide, mouth: Int32Array, spec: NumericalLeadSpec, options: NumericalLeadOptions = {}): SystemLead {
   if (mouth.length !== spec.mouthSize) throw new RangeError(`numericalSystemLead: ${mouth.length} mouth sites for a coupling to ${spec.mouthSize}`);
   return { name, side, channels: leadChannels(0, 0, 0), mouth, theta: new Float64Array(mouth.length), numerical: new NumericalLead(spec, options) };
+}
+
+/**
+ * The leads of a model on any lattice as numerical system leads: each lead's cell from the
+ * preset (presetLeadCell), with the field in the lead when the model asks for it
+ * (`fieldInLeads`), its contacts as unknown indices. Throws InvalidModelError (path
+ * leads.k) for a lead bonded to no cavity site. Cost O(kSamples·m³) per lead, m the cell's sites.
+ */
+export function latticeLeads(model: CavityModel, mask: Uint8Array, siteIndex: Int32Array, p: TightBindingParameters): SystemLead[] {
+  const { nx, ny } = model.grid;
+  const inCavity = (i: number, j: number) => mask[i * ny + j] === 1;
+  return model.leads.map((lead, k) => {
+    const cell = presetLeadCell(p, lead.side, lead.start, lead.width, lead.offset, nx, ny, inCavity, { fieldInLead: model.fieldInLeads === true });
+    const name = lead.name ?? `${lead.side}${k}`;
+    if (cell.contacts.i.length === 0) {
+      throw new InvalidModelError([
+        {
+          path: ['leads', k, 'width'],
+          message: `lead '${name}' is bonded to no atom of the cavity (on the honeycomb a top or bottom lead touches every other atom of the edge row): widen it or move it by one site`,
+        },
+      ]);
+    }
+    const mouth = Int32Array.from(cell.contacts.i, (i, q) => siteIndex[i * ny + cell.contacts.j[q]]);
+    return numericalSystemLead(name, lead.side, mouth, {
+      cell: { size: cell.size, h0: cell.h0, h1: cell.h1 },
+      mouthSize: mouth.length,
+      coupling: cell.coupling,
+    });
+  });
 }

@@ -32,7 +32,7 @@ export interface NumericalLeadSpec {
 }
 
 /** Open channels at a real energy, flux-normalised (docs/physics-model.md). */
-export interface LeadChannelsAt {
+interface LeadChannelsAt {
   energy: number;
   count: number;
   /** v_a = dE/dk of each outgoing mode (meV), ascending k order is not implied. */
@@ -99,6 +99,42 @@ export class NumericalLead {
     return c;
   }
 
+  /**
+   * Runs f at a real energy E, or at E a hair (10⁻⁹ of the band scale, up to 10⁻⁶) below it where the
+   * modes cannot be chosen at E itself: on a threshold (a band edge, where modes coalesce with
+   * zero velocity), at an exact crossing of bands with opposite velocities (the Dirac point of
+   * a metallic armchair ribbon, E = 0 of a zigzag one), or where a symmetry makes the transfer
+   * matrix's basis exactly singular (E = 0 in an armchair ribbon's gap). Σ there is the limit from below, which
+   * changes T and R by far less than their rounding on a grid. Off the real axis f runs as asked.
+   */
+  private atRealEnergy<T>(zRe: number, zIm: number, sheet: readonly boolean[] | undefined, f: (re: number, sheet?: readonly boolean[]) => T): T {
+    if (zIm !== 0) return f(zRe, sheet);
+    const scale = Math.max(1, ...this.thresholds.map(Math.abs));
+    const unresolved = (e: unknown) => e instanceof Error && /move both ways|singular matrix/.test(e.message);
+    // 10⁻⁹·scale below E, or further (×10 up to 10⁻⁶·scale) while the modes there are still too
+    // close to tell apart (two bands crossing with velocities ±v separate by only δ/v in k).
+    const below = () => {
+      const lower = this.thresholds.filter((t) => t < zRe - 1e-12 * scale);
+      const lo = lower.length ? lower[lower.length - 1] : -Infinity;
+      for (const step of [1e-9, 1e-8, 1e-7, 1e-6]) {
+        const re = Math.max(zRe - step * scale, Number.isFinite(lo) ? 0.5 * (lo + zRe) : -Infinity);
+        try {
+          return f(re, this.sheetAt(re));
+        } catch (e) {
+          if (!unresolved(e) || step === 1e-6) throw e;
+        }
+      }
+      throw new Error('unreachable');
+    };
+    if (this.thresholds.some((t) => Math.abs(zRe - t) <= 1e-12 * scale)) return below();
+    try {
+      return f(zRe, sheet);
+    } catch (e) {
+      if (unresolved(e)) return below();
+      throw e;
+    }
+  }
+
   /** Transfer matrix F = Z21·Z11⁻¹ of the chosen modes (n×n interleaved). Cost O(n³). */
   transfer(zRe: number, zIm: number, sheet?: readonly boolean[]): Float64Array {
     const n = this.cell.size;
@@ -128,6 +164,10 @@ export class NumericalLead {
 
   /** Surface Green function g = (z − H0 − H1·F)⁻¹ of the semi-infinite lead (n×n). Cost O(n³). */
   surfaceGreen(zRe: number, zIm: number, sheet?: readonly boolean[]): Float64Array {
+    return this.atRealEnergy(zRe, zIm, sheet, (re, sh) => this.surfaceGreenAt(re, zIm, sh));
+  }
+
+  private surfaceGreenAt(zRe: number, zIm: number, sheet?: readonly boolean[]): Float64Array {
     const n = this.cell.size;
     const f = this.transfer(zRe, zIm, sheet);
     const k = denseMultiply(n, n, n, forwardHopping(this.cell), f);
@@ -167,14 +207,16 @@ export class NumericalLead {
    * (evanescent ones as a basis of their subspace, propagating ones unit-norm), so
    * Γ = i(Σ − Σ†) = Σ_a W_a W_a† (the current of mode a between two cells is v_a for
    * φ_a†φ_a = 1 and the cross terms vanish at a real energy). For the square lattice
-   * W_a is the contract's sqrt(2t·sin k_m)·e^{−iθ_p}χ_m(p) up to the sign of χ_m. Cost O(n³).
+   * W_a is the contract's sqrt(2t·sin k_m)·e^{−iθ_p}χ_m(p) up to the sign of χ_m. On a threshold
+   * or an exact band crossing the channels are taken a hair below E (atRealEnergy). Cost O(n³).
    */
   channels(energy: number): LeadChannelsAt {
+    return { ...this.atRealEnergy(energy, 0, this.sheetAt(energy), (re, sh) => this.channelsInside(re, sh!)), energy };
+  }
+
+  private channelsInside(energy: number, sheet: readonly boolean[]): LeadChannelsAt {
     const n = this.cell.size;
     const mm = this.mouthSize;
-    const sheet = this.sheetAt(energy);
-    const piece = this.piece(sheet);
-    if (!(energy > piece.lo && energy < piece.hi)) throw new RangeError(`NumericalLead.channels: E = ${energy} lies on a threshold`);
     const modes = realModes(this.cell, energy);
     this.solves++;
     const out = modes.propagating.filter((p) => p.velocity > 0);

@@ -223,9 +223,13 @@ export const cavityModelSchema = z.object({
   potential: z.array(potentialTermSchema).max(DOCUMENT_LIMITS.potentialTerms).default([]),
   /** Perpendicular field B (T), along +z. */
   field: finite().default(0),
-  /** The field acts in the leads as well; absent or false: field-free leads, as the contract says. */
-  fieldInLeads: z.boolean().optional(),
   leads: z.array(leadSchema).max(DOCUMENT_LIMITS.leads).default([]),
+  /**
+   * Let the field act in the leads too (docs/physics-model.md, "A field in the leads"): each lead
+   * in a gauge that keeps it translation-invariant along its axis. Absent or false: the contract's
+   * field-free leads, every result as before. Not in the microwave mode (no field there).
+   */
+  fieldInLeads: z.boolean().optional(),
 });
 /** A parsed model (defaults filled in). */
 export type CavityModel = z.infer<typeof cavityModelSchema>;

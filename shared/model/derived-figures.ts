@@ -13,14 +13,19 @@ export const ENERGY_CEILING_OVER_T = 0.5;
 /** Warn when the wavelength is shorter than this many lattice spacings. */
 export const MIN_WAVELENGTH_OVER_SPACING = 10;
 
+/**
+ * Where channel m of a lead is open: opens < E < closes. A closed-form lead lists each channel
+ * once; a numerical lead (honeycomb, or a field in the leads) numbers its open channels
+ * 1..N(E) at each energy and may list a channel on several ranges (shared/engine/lead-channel-ranges.ts).
+ */
 export interface ChannelThreshold {
   /** Channel m (1-based). */
   channel: number;
-  /** Transverse energy ε_m (meV). */
+  /** Transverse energy ε_m (meV); for a numerical lead the middle of the range. */
   transverse: number;
-  /** Channel opens at ε_m − 2t (meV). */
+  /** Channel opens at ε_m − 2t (meV); for a numerical lead at a band edge. */
   opens: number;
-  /** Channel closes at ε_m + 2t (meV). */
+  /** Channel closes at ε_m + 2t (meV); for a numerical lead at a band edge. */
   closes: number;
 }
 
@@ -147,8 +152,13 @@ function diracValidity(energy: number, hopping: number, acc: number, diracEnergy
   return { energy, dispersionError: err, wavelength: wl, wavelengthOverSpacing: wl / acc, warnings };
 }
 
-/** Derived figures of a parsed model; `energy` (meV) adds the validity block. Cost O(Σ W). */
-export function deriveFigures(model: CavityModel, siteCount: number, energy?: number): DerivedFigures {
+/**
+ * Derived figures of a parsed model; `energy` (meV) adds the validity block. Cost O(Σ W).
+ * `numerical` holds the channel ranges of numerical leads (honeycomb, or a field in the leads),
+ * one list per lead, which only the engine can compute: shared/engine/lead-channel-ranges.ts
+ * `deriveFiguresWithLeads` fills it (the server and the CLI use that); without it such leads list none.
+ */
+export function deriveFigures(model: CavityModel, siteCount: number, energy?: number, numerical?: ChannelThreshold[][]): DerivedFigures {
   const lattice = modelLattice(model);
   if (lattice.kind === 'honeycomb') {
     const t = modelHopping(model);
@@ -167,8 +177,14 @@ export function deriveFigures(model: CavityModel, siteCount: number, energy?: nu
       // The first graphene Landau level √2·ħv_F/ℓ_B (E_n = sgn(n)√(2eħv_F²B|n|)).
       cyclotronEnergy: model.field === 0 ? 0 : (Math.SQRT2 * hbarVelocity) / lB,
       magneticLength: lB,
-      // Leads on the honeycomb need the numerical lead solver: no closed-form thresholds.
-      leads: model.leads.map((lead, k) => ({ name: lead.name ?? `${lead.side}${k}`, side: lead.side, width: lead.width, offset: lead.offset, thresholds: [] })),
+      // Leads on the honeycomb are numerical: their channels open and close at the band edges.
+      leads: model.leads.map((lead, k) => ({
+        name: lead.name ?? `${lead.side}${k}`,
+        side: lead.side,
+        width: lead.width,
+        offset: lead.offset,
+        thresholds: numerical?.[k] ?? [],
+      })),
       validity: energy === undefined ? undefined : diracValidity(energy, t, acc, diracEnergy),
       physics: model.physics.kind,
       lattice: 'honeycomb',
@@ -179,6 +195,9 @@ export function deriveFigures(model: CavityModel, siteCount: number, energy?: nu
   const massRatio = modelMassRatio(model);
   const t = modelHopping(model);
   const leads = model.leads.map((lead, k) => {
+    // A field in the leads: Landau bands, found numerically.
+    if (model.fieldInLeads === true && model.field !== 0)
+      return { name: lead.name ?? `${lead.side}${k}`, side: lead.side, width: lead.width, offset: lead.offset, thresholds: numerical?.[k] ?? [] };
     const thresholds: ChannelThreshold[] = [];
     for (let m = 1; m <= lead.width; m++) {
       const eps = lead.offset + 4 * t - 2 * t * Math.cos((m * Math.PI) / (lead.width + 1));

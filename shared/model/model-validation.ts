@@ -31,6 +31,11 @@ function checkPhysicsMode(model: CavityModel, doc: unknown, issues: ModelIssue[]
     issues.push({ path: ['material'], message: 'a microwave resonator has no material: remove it (the filling is physics.permittivity, ε_r)' });
   }
   if (model.field !== 0) issues.push({ path: ['field'], message: 'a magnetic field does not apply in the microwave mode: set it to 0 or remove it' });
+  if (model.fieldInLeads === true)
+    issues.push({
+      path: ['fieldInLeads'],
+      message: 'the microwave mode has no magnetic field, so there is none to put in the leads: remove fieldInLeads or set it to false',
+    });
   if (model.potential.length > 0) {
     issues.push({ path: ['potential'], message: 'potential terms do not apply in the microwave mode: draw metal posts by subtracting them from the shape' });
   }

@@ -373,7 +373,7 @@ describe('honeycomb model documents', () => {
     expect(deriveFigures(checked.model, checked.siteCount, 1500).validity!.warnings).toHaveLength(1);
   });
 
-  it('refuses a material on the honeycomb, and leads until the numerical lead solver exists', () => {
+  it('refuses a material on the honeycomb, and attaches its leads as numerical leads bonded to every edge atom they face', () => {
     const withMaterial = validateCavityModel({ ...GRAPHENE_DISK, material: 'gaas' });
     expect(!withMaterial.ok && withMaterial.issues[0].path).toEqual(['material']);
     const ribbon = {
@@ -382,7 +382,11 @@ describe('honeycomb model documents', () => {
       leads: [{ side: 'left', start: 4, width: 10 }],
     };
     expect(validateCavityModel(ribbon).ok).toBe(true);
-    expect(() => buildCavitySystem(ribbon)).toThrow(/leads on a honeycomb lattice need the numerical lead solver/);
+    const system = buildCavitySystem(ribbon);
+    expect(system.leads).toHaveLength(1);
+    expect(system.leads[0].numerical).toBeDefined();
+    // A zigzag lead of 10 chains: every atom of column 0 on rows 4..13 is bonded to it.
+    expect(Array.from(system.leads[0].mouth, (s) => [system.sites.i[s], system.sites.j[s]])).toEqual(Array.from({ length: 10 }, (_, p) => [0, 4 + p]));
   });
 });
 
