@@ -40,7 +40,10 @@ export const derivedFiguresSchema = z
     lattice: z
       .enum(['square', 'honeycomb'])
       .optional()
-      .meta({ description: 'absent: square. honeycomb: hopping is t in meV, the ceilings are t/4 (Dirac picture), and lead thresholds come from the numerical leads (channelRanges) where computed' }),
+      .meta({
+        description:
+          'absent: square. honeycomb: hopping is t in meV, the ceilings are t/4 (Dirac picture), and lead thresholds come from the numerical leads (channelRanges) where computed',
+      }),
     dirac: z
       .object({
         hbarVelocity: z.number().meta({ description: 'ħv_F = 3t·a_CC/2 (meV·nm)' }),
