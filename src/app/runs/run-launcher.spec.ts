@@ -152,6 +152,10 @@ describe('RunLauncher', () => {
     expect(labels).toContain('Largest width Γ_f (MHz)');
     expect(labels.join(' ')).not.toContain('meV');
     expect(host.querySelector('pw-energy-axis')!.textContent).toContain('f (GHz)');
+    // The default window (40–55 % of the 2D limit) is well resolved: the note speaks of f max, not of meV or t.
+    const note = host.querySelector('[data-test="microwave-validity"]')!.textContent!;
+    expect(note).toContain('At f max');
+    expect(note).not.toContain('hopping t');
     const type = (path: string, value: string) => {
       const input = host.querySelector<HTMLInputElement>(`[data-field="${path}"]`)!;
       input.value = value;
