@@ -24,6 +24,29 @@ async function render(role: Role) {
   return fixture.nativeElement as HTMLElement;
 }
 
+/** The launcher opened on one model (its detail answered), with a helper that types into a field. */
+async function renderWithModel(id: string, detail: unknown) {
+  TestBed.configureTestingModule({
+    providers: [provideHttpClient(), provideHttpClientTesting(), provideRouter([]), provideFakeCurrentGroup('designer')],
+  });
+  const fixture = TestBed.createComponent(RunLauncher);
+  fixture.componentRef.setInput('modelId', id);
+  fixture.detectChanges();
+  await fixture.whenStable();
+  const http = TestBed.inject(HttpTestingController);
+  http.expectOne((r) => r.url === '/api/groups/g1/models').flush({ items: [], total: 0 });
+  http.expectOne(`/api/groups/g1/models/${id}`).flush(detail as object);
+  fixture.detectChanges();
+  const host = fixture.nativeElement as HTMLElement;
+  const type = (path: string, value: string) => {
+    const input = host.querySelector<HTMLInputElement>(`[data-field="${path}"]`)!;
+    input.value = value;
+    input.dispatchEvent(new Event('input'));
+    fixture.detectChanges();
+  };
+  return { http, host, type };
+}
+
 describe('RunLauncher', () => {
   it('shows viewers and reviewers no launch button', async () => {
     for (const role of ['viewer', 'reviewer'] as const) {
@@ -69,24 +92,7 @@ describe('RunLauncher', () => {
       versions: [{ version: 1, createdAt: '2025-01-01T10:00:00Z', createdBy: null, usedByRuns: 0 }],
       derived: { ...figures, magneticLength: null },
     });
-    TestBed.configureTestingModule({
-      providers: [provideHttpClient(), provideHttpClientTesting(), provideRouter([]), provideFakeCurrentGroup('designer')],
-    });
-    const fixture = TestBed.createComponent(RunLauncher);
-    fixture.componentRef.setInput('modelId', id);
-    fixture.detectChanges();
-    await fixture.whenStable();
-    const http = TestBed.inject(HttpTestingController);
-    http.expectOne((r) => r.url === '/api/groups/g1/models').flush({ items: [], total: 0 });
-    http.expectOne(`/api/groups/g1/models/${id}`).flush(detail);
-    fixture.detectChanges();
-    const host = fixture.nativeElement as HTMLElement;
-    const type = (path: string, value: string) => {
-      const input = host.querySelector<HTMLInputElement>(`[data-field="${path}"]`)!;
-      input.value = value;
-      input.dispatchEvent(new Event('input'));
-      fixture.detectChanges();
-    };
+    const { http, host, type } = await renderWithModel(id, detail);
     expect(host.querySelector('[data-test="graphene-energies"]')!.textContent).toContain('t = 2.700 eV (2700 meV)');
     // |E − E_D| = 900 meV at E min, above t/4 = 675 meV: the warning names that end, not E max.
     type('window.emin', '-900');
@@ -135,18 +141,7 @@ describe('RunLauncher', () => {
       versions: [{ version: 1, createdAt: '2025-01-01T10:00:00Z', createdBy: null, usedByRuns: 0 }],
       derived: { ...figures, magneticLength: null },
     });
-    TestBed.configureTestingModule({
-      providers: [provideHttpClient(), provideHttpClientTesting(), provideRouter([]), provideFakeCurrentGroup('designer')],
-    });
-    const fixture = TestBed.createComponent(RunLauncher);
-    fixture.componentRef.setInput('modelId', id);
-    fixture.detectChanges();
-    await fixture.whenStable();
-    const http = TestBed.inject(HttpTestingController);
-    http.expectOne((r) => r.url === '/api/groups/g1/models').flush({ items: [], total: 0 });
-    http.expectOne(`/api/groups/g1/models/${id}`).flush(detail);
-    fixture.detectChanges();
-    const host = fixture.nativeElement as HTMLElement;
+    const { http, host, type } = await renderWithModel(id, detail);
     const labels = Array.from(host.querySelectorAll('mat-label'), (l) => l.textContent!.trim());
     expect(labels).toContain('f min (GHz)');
     expect(labels).toContain('Largest width Γ_f (MHz)');
@@ -156,12 +151,6 @@ describe('RunLauncher', () => {
     const note = host.querySelector('[data-test="microwave-validity"]')!.textContent!;
     expect(note).toContain('At f max');
     expect(note).not.toContain('hopping t');
-    const type = (path: string, value: string) => {
-      const input = host.querySelector<HTMLInputElement>(`[data-field="${path}"]`)!;
-      input.value = value;
-      input.dispatchEvent(new Event('input'));
-      fixture.detectChanges();
-    };
     type('window.emin', '8');
     type('window.emax', '11');
     type('window.gammaMax', '300');

@@ -7,11 +7,12 @@ import { provideFakeCurrentGroup } from '../core/testing/fake-current-group';
 import { sampleStep, sampleSweepOutcome } from '../core/testing/sample-study';
 import { settle } from '../core/testing/next-request';
 import { SweepResult } from './sweep-result';
+import type { SweepOutcome } from '../../../shared/api/studies';
 
 const studyId = '7b0c1f3e-2d4a-4b6c-8e9f-0a1b2c3d4e5f';
 const stepUrl = `/api/groups/g1/studies/${studyId}/steps/1`;
 
-function setUp(role: 'designer' | 'viewer' = 'designer') {
+function setUp(role: 'designer' | 'viewer' = 'designer', outcome: SweepOutcome = sampleSweepOutcome) {
   TestBed.configureTestingModule({
     providers: [
       provideHttpClient(),
@@ -24,27 +25,14 @@ function setUp(role: 'designer' | 'viewer' = 'designer') {
   const http = TestBed.inject(HttpTestingController);
   const fixture = TestBed.createComponent(SweepResult);
   fixture.componentRef.setInput('studyId', studyId);
-  fixture.componentRef.setInput('outcome', sampleSweepOutcome);
+  fixture.componentRef.setInput('outcome', outcome);
   fixture.detectChanges();
   return { http, fixture, host: fixture.nativeElement as HTMLElement };
 }
 
 describe('SweepResult', () => {
   it('says when the steps are coarse against the level spacing, and stays quiet when they are not', () => {
-    TestBed.configureTestingModule({
-      providers: [
-        provideHttpClient(),
-        provideHttpClientTesting(),
-        provideRouter([]),
-        provideFakeCurrentGroup('viewer'),
-        provideEchartsCore({ echarts: () => import('./echarts') }),
-      ],
-    });
-    const fixture = TestBed.createComponent(SweepResult);
-    fixture.componentRef.setInput('studyId', studyId);
-    fixture.componentRef.setInput('outcome', { ...sampleSweepOutcome, moves: { links: 20, large: 7, spacing: 0.11 } });
-    fixture.detectChanges();
-    const host = fixture.nativeElement as HTMLElement;
+    const { fixture, host } = setUp('viewer', { ...sampleSweepOutcome, moves: { links: 20, large: 7, spacing: 0.11 } });
     expect(host.querySelector('[data-test=coarse-steps]')!.textContent).toContain('7 of 20 links moved a pole by more than half the mean level spacing');
     fixture.componentRef.setInput('outcome', { ...sampleSweepOutcome, moves: { links: 20, large: 0, spacing: 0.11 } });
     fixture.detectChanges();
@@ -52,23 +40,10 @@ describe('SweepResult', () => {
   });
 
   it('tells steps whose map ran out of energies but sampled their poles apart from steps that did not', () => {
-    TestBed.configureTestingModule({
-      providers: [
-        provideHttpClient(),
-        provideHttpClientTesting(),
-        provideRouter([]),
-        provideFakeCurrentGroup('viewer'),
-        provideEchartsCore({ echarts: () => import('./echarts') }),
-      ],
-    });
-    const fixture = TestBed.createComponent(SweepResult);
-    fixture.componentRef.setInput('studyId', studyId);
-    fixture.componentRef.setInput('outcome', {
+    const { host } = setUp('viewer', {
       ...sampleSweepOutcome,
       transmission: { ...sampleSweepOutcome.transmission!, budgetExhaustedSteps: [0, 2], poleSampledSteps: [1, 2] },
     });
-    fixture.detectChanges();
-    const host = fixture.nativeElement as HTMLElement;
     expect(host.querySelector('[data-test=map-coarse]')!.textContent).toContain('Steps 0 ran out');
     expect(host.querySelector('[data-test=map-coarse]')!.textContent).toContain('may be drawn too low');
     expect(host.querySelector('[data-test=map-pole-sampled]')!.textContent).toContain('Steps 2 ran out of sweep energies between their poles');
