@@ -37,13 +37,10 @@ export const derivedFiguresSchema = z
       })
       .optional(),
     physics: z.enum(['electrons', 'microwave']).optional().meta({ description: 'microwave: every energy above is k² (mm⁻²), hopping 1/a²' }),
-    lattice: z
-      .enum(['square', 'honeycomb'])
-      .optional()
-      .meta({
-        description:
-          'absent: square. honeycomb: hopping is t in meV, the ceilings are t/4 (Dirac picture), and lead thresholds come from the numerical leads (channelRanges) where computed',
-      }),
+    lattice: z.enum(['square', 'honeycomb']).optional().meta({
+      description:
+        'absent: square. honeycomb: hopping is t in meV, the ceilings are t/4 (Dirac picture), and lead thresholds come from the numerical leads (channelRanges) where computed',
+    }),
     dirac: z
       .object({
         hbarVelocity: z.number().meta({ description: 'ħv_F = 3t·a_CC/2 (meV·nm)' }),
