@@ -1,6 +1,7 @@
-import { and, desc, eq } from 'drizzle-orm';
+import { and, desc, eq, sql } from 'drizzle-orm';
 import type { Queryable } from '../db/client.js';
 import { resonanceModes, resonances } from '../db/schema/catalogue.js';
+import { modelVersions } from '../db/schema/models.js';
 import { modeMaps, resonanceCurrents } from '../db/schema/mode-maps.js';
 
 /** Reads of mode maps and stored pole currents (writes of maps go through mode-map-store.ts). */
@@ -13,6 +14,7 @@ export async function findPoleCurrent(q: Queryable, groupId: string, resonanceId
       width: resonances.width,
       bound: resonances.bound,
       spacingNm: resonances.spacingNm,
+      lattice: sql<string | null>`${modelVersions.document}->'lattice'->>'kind'`,
       nx: resonanceCurrents.nx,
       ny: resonanceCurrents.ny,
       mask: resonanceCurrents.mask,
@@ -23,6 +25,7 @@ export async function findPoleCurrent(q: Queryable, groupId: string, resonanceId
     .from(resonances)
     .innerJoin(resonanceCurrents, eq(resonanceCurrents.resonanceId, resonances.id))
     .innerJoin(resonanceModes, eq(resonanceModes.resonanceId, resonances.id))
+    .innerJoin(modelVersions, eq(modelVersions.id, resonances.modelVersionId))
     .where(and(eq(resonances.id, resonanceId), eq(resonances.groupId, groupId)));
   return row ?? null;
 }

@@ -81,6 +81,7 @@ export class ModeMapService {
       },
       unit: '1/ps',
       spacingNm: row.spacingNm,
+      lattice: row.lattice === 'honeycomb' ? 'honeycomb' : 'square',
       grid: { nx: row.nx, ny: row.ny },
       mask: row.mask.toString('base64'),
       psi: base64Float32(mode),

@@ -90,6 +90,7 @@ export function runModeMapTask(task: ModeMapTask, onProgress: (stage: string, fr
     state: summarise(system, state),
     unit: state.unit,
     spacingNm: system.spacing,
+    lattice: system.lattice.kind,
     grid: { nx: system.lattice.nx, ny: system.lattice.ny },
     mask: maskBits(system.lattice.nx, system.lattice.ny, system.sites).toString('base64'),
     psi: base64Float32(state.psi),

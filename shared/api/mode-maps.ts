@@ -59,7 +59,11 @@ export const modeMapPayloadSchema = z
       label: z.string(),
     }),
     unit: z.string().meta({ description: "Currents: '1/ps' for a mode with Σ|ψ|² = 1, 'incoming flux' for a scattering state" }),
-    spacingNm: z.number(),
+    spacingNm: z.number().meta({ description: 'The lattice length (nm): the spacing a, or a_CC on the honeycomb' }),
+    lattice: z
+      .enum(['square', 'honeycomb'])
+      .optional()
+      .meta({ description: 'Where site (i, j) sits (docs/physics-model.md, "Lattices"); absent in maps stored before it was sent: \'square\'' }),
     grid: z.object({ nx: z.number().int(), ny: z.number().int() }),
     mask: z.string().meta({ description: 'Cavity sites as a bitset over the grid, bit i·ny + j, most significant bit first (base64)' }),
     psi: b64('ψ per site (re, im), sites in lexicographic (i, j) order'),

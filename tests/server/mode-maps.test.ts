@@ -91,6 +91,7 @@ describe('pole currents stored by the run', () => {
     const body = res.body as ModeMapPayload;
     expect(body.unit).toBe('1/ps');
     expect(body.grid).toEqual({ nx: 30, ny: 20 });
+    expect(body.lattice).toBe('square');
     expect(float32(body.psi)).toHaveLength(2 * 600);
     expect(float32(body.vectors)).toHaveLength(2 * 600);
     expect(Buffer.from(body.mask, 'base64')).toHaveLength(Math.ceil(600 / 8));

@@ -1,5 +1,5 @@
 import type { ModeMapPayload } from '../../../shared/api/mode-maps';
-import { currentArrows, decodeModeMap, glyphPath, scaleBarLength } from './mode-map-data';
+import { currentArrows, decodeModeMap, drawY, glyphPath, scaleBarLength } from './mode-map-data';
 
 function b64(values: number[]): string {
   const bytes = new Uint8Array(Float32Array.from(values).buffer);
@@ -26,7 +26,60 @@ function payload(): ModeMapPayload {
   };
 }
 
+/**
+ * A 4 × 2 honeycomb grid, every site set, a_CC = 0.142 nm (graphene's carbon–carbon
+ * distance, common value, no source needed beyond the demo model). Brick-wall placement
+ * as in docs/physics-model.md, "Lattices": x = i·(√3/2)a_CC, y = j·1.5·a_CC, + a_CC/2 on odd i + j.
+ */
+function honeycombPayload(): ModeMapPayload {
+  const n = 8;
+  // Current +x on column 0 and 1 of row 0 only (sites (0,0) and (1,0): indices 0 and 2).
+  const vec = new Array(2 * n).fill(0);
+  vec[0] = 1;
+  vec[4] = 1;
+  return { ...payload(), spacingNm: 0.142, lattice: 'honeycomb', grid: { nx: 4, ny: 2 }, mask: btoa(String.fromCharCode(0xff)), psi: b64(new Array(2 * n).fill(0.5)), vectors: b64(vec) };
+}
+
 describe('mode-map data', () => {
+  it('places honeycomb sites at their brick-wall positions, not at (i·a_CC, j·a_CC)', () => {
+    const f = decodeModeMap(honeycombPayload());
+    const acc = 0.142;
+    expect(f.lattice).toBe('honeycomb');
+    expect(f.dx).toBeCloseTo(0.1229756, 6);
+    expect(f.dy).toBeCloseTo(0.213, 9);
+    // Sites in (i, j) order: (0,0) (0,1) (1,0) (1,1) (2,0) …; (0,1) and (1,0) are odd (B), lifted by a_CC/2.
+    expect(f.x[2]).toBeCloseTo(0.1229756, 6);
+    expect(f.y[2]).toBeCloseTo(acc / 2, 6);
+    expect(f.y[1]).toBeCloseTo(0.213 + acc / 2, 6);
+    expect(f.y[3]).toBeCloseTo(0.213, 6);
+    expect(f.x[6]).toBeCloseTo(3 * 0.1229756, 6);
+    // The top row is drawn at Y = 0, the bottom row at Y = Δy (one row pitch down).
+    expect(drawY(f, f.y[3])).toBeCloseTo(0, 9);
+    expect(drawY(f, f.y[0])).toBeCloseTo(0.213, 9);
+  });
+
+  it('draws a honeycomb arrow at the mean real position of its block', () => {
+    const f = decodeModeMap(honeycombPayload());
+    // Blocks of 2 columns × 1 row: the block (0,0), (1,0) carries the current.
+    const [arrow, ...rest] = currentArrows(f, 2, 1);
+    expect(rest).toHaveLength(0);
+    expect(arrow.x).toBeCloseTo(0.1229756 / 2, 6);
+    expect(arrow.y).toBeCloseTo(0.213 - 0.142 / 4, 6);
+    expect(arrow.ux).toBe(1);
+  });
+
+  it('keeps the square lattice at (i·a, j·a) when the payload names no lattice', () => {
+    const f = decodeModeMap(payload());
+    expect(f.lattice).toBe('square');
+    expect([f.dx, f.dy]).toEqual([5, 5]);
+    expect(Array.from(f.x)).toEqual([0, 0, 5, 10, 10]);
+    expect(Array.from(f.y)).toEqual([0, 5, 0, 0, 5]);
+    const [arrow] = currentArrows(f, 2);
+    // Block (0,0), (0,1), (1,0): mean position (5/3, 5/3) nm, drawn at Y = 5 − 5/3.
+    expect(arrow.x).toBeCloseTo(5 / 3, 6);
+    expect(arrow.y).toBeCloseTo(10 / 3, 6);
+  });
+
   it('decodes the mask and the per-site arrays in lexicographic (i, j) order', () => {
     const f = decodeModeMap(payload());
     expect(Array.from(f.i)).toEqual([0, 0, 1, 2, 2]);

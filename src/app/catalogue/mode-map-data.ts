@@ -2,9 +2,12 @@
  * Decoding and geometry of the mode maps the API sends (docs/api.md, "Mode maps"):
  * per-site arrays as base64 float32 in lexicographic (i, j) site order, the cavity as a
  * bitset over the grid. Pure functions, so the view (mode-map-view.ts) only draws.
- * Drawing coordinates are nm with y pointing down: X = x, Y = (ny − 1)·a − y.
+ * Sites sit where their lattice puts them (shared/model/lattice-geometry.ts): (i·a, j·a) on
+ * the square lattice, (i·Δx, j·Δy + a_CC/2 on odd i + j) on the honeycomb, Δx = (√3/2)a_CC,
+ * Δy = (3/2)a_CC. Drawing coordinates are nm with y pointing down: X = x, Y = (ny − 1)·Δy − y.
  */
 import type { ModeMapPayload } from '../../../shared/api/mode-maps';
+import { placementOf, type LatticeKind } from '../../../shared/model/lattice-geometry';
 
 type HusimiPayload = NonNullable<ModeMapPayload['husimi']>;
 
@@ -12,7 +15,15 @@ type HusimiPayload = NonNullable<ModeMapPayload['husimi']>;
 export interface ModeMapField {
   nx: number;
   ny: number;
+  lattice: LatticeKind;
+  /** The lattice length (nm): a, or a_CC. */
   a: number;
+  /** Column and row pitch (nm): a and a on the square lattice. */
+  dx: number;
+  dy: number;
+  /** Position of each site (nm, y up). */
+  x: Float32Array;
+  y: Float32Array;
   /** Grid index i·ny + j → site index, −1 outside. */
   siteOf: Int32Array;
   i: Int32Array;
@@ -71,10 +82,17 @@ export function decodeModeMap(p: ModeMapPayload, husimi: HusimiPayload | null = 
     jx[s] = vec[2 * s];
     jy[s] = vec[2 * s + 1];
   }
+  const lattice = p.lattice ?? 'square';
+  const place = placementOf(lattice, p.spacingNm);
   return {
     nx,
     ny,
+    lattice,
     a: p.spacingNm,
+    dx: place.dx,
+    dy: place.dy,
+    x: Float32Array.from(is, (i, s) => place.x(i, js[s])),
+    y: Float32Array.from(js, (j, s) => place.y(is[s], j)),
     siteOf,
     i: Int32Array.from(is),
     j: Int32Array.from(js),
@@ -115,8 +133,8 @@ function decodeHusimi(h: HusimiPayload): HusimiField {
 }
 
 /** Drawing Y (nm, down) of a lattice y (nm, up). */
-export function drawY(f: Pick<ModeMapField, 'ny' | 'a'>, y: number): number {
-  return (f.ny - 1) * f.a - y;
+export function drawY(f: Pick<ModeMapField, 'ny' | 'dy'>, y: number): number {
+  return (f.ny - 1) * f.dy - y;
 }
 
 interface Arrow {
@@ -129,24 +147,26 @@ interface Arrow {
 }
 
 /**
- * Current arrows on blocks of `stride` × `stride` sites (the mean vector of the block's
- * sites), relative to the largest block; blocks below 3 % of it are left out.
+ * Current arrows on blocks of `stride` columns × `strideY` rows of sites (the mean vector
+ * of the block's sites, drawn at the mean position of those sites), relative to the
+ * largest block; blocks below 3 % of it are left out.
  */
-export function currentArrows(f: ModeMapField, stride: number): Arrow[] {
+export function currentArrows(f: ModeMapField, stride: number, strideY = stride): Arrow[] {
   const s = Math.max(1, Math.round(stride));
+  const t = Math.max(1, Math.round(strideY));
   const bx = Math.ceil(f.nx / s);
-  const by = Math.ceil(f.ny / s);
+  const by = Math.ceil(f.ny / t);
   const sumX = new Float64Array(bx * by);
   const sumY = new Float64Array(bx * by);
   const cnt = new Int32Array(bx * by);
   const cx = new Float64Array(bx * by);
   const cy = new Float64Array(bx * by);
   for (let k = 0; k < f.i.length; k++) {
-    const b = Math.floor(f.i[k] / s) * by + Math.floor(f.j[k] / s);
+    const b = Math.floor(f.i[k] / s) * by + Math.floor(f.j[k] / t);
     sumX[b] += f.jx[k];
     sumY[b] += f.jy[k];
-    cx[b] += f.i[k];
-    cy[b] += f.j[k];
+    cx[b] += f.x[k];
+    cy[b] += f.y[k];
     cnt[b]++;
   }
   let max = 0;
@@ -159,7 +179,7 @@ export function currentArrows(f: ModeMapField, stride: number): Arrow[] {
     const vy = sumY[b] / cnt[b];
     const len = Math.hypot(vx, vy) / max;
     if (len < 0.03) continue;
-    out.push({ x: (cx[b] / cnt[b]) * f.a, y: drawY(f, (cy[b] / cnt[b]) * f.a), ux: vx / Math.hypot(vx, vy), uy: -vy / Math.hypot(vx, vy), length: len });
+    out.push({ x: cx[b] / cnt[b], y: drawY(f, cy[b] / cnt[b]), ux: vx / Math.hypot(vx, vy), uy: -vy / Math.hypot(vx, vy), length: len });
   }
   return out;
 }

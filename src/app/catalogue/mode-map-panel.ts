@@ -82,6 +82,8 @@ export class ModeMapPanel {
     return p ? decodeModeMap(p) : null;
   });
   protected readonly husimi = computed(() => this.payload()?.husimi ?? null);
+  /** Husimi maps are refused on the honeycomb (their coherent states follow the square band): no button that only fails. */
+  protected readonly honeycomb = computed(() => (this.modeMap() ?? this.scattering())?.lattice === 'honeycomb');
   protected readonly caption = computed(() => {
     const p = this.payload();
     if (!p) return [];

@@ -59,18 +59,22 @@ export class ModeMapView {
 
   protected readonly extent = computed(() => {
     const f = this.field();
-    return { w: f.nx * f.a, h: f.ny * f.a };
+    return { w: f.nx * f.dx, h: f.ny * f.dy };
   });
 
   /** Height of the footer (scale bar and caption lines) in drawing units. */
-  protected readonly footer = computed(() => this.view().w * FONT * (2.6 + 1.4 * this.caption().length) + this.field().a);
+  protected readonly footer = computed(() => this.view().w * FONT * (2.6 + 1.4 * this.caption().length) + this.field().dy);
 
   protected readonly viewBox = computed(() => {
     const v = this.view();
-    return `${v.x - 0.5 * this.field().a} ${v.y - 0.5 * this.field().a} ${v.w} ${v.h + this.footer()}`;
+    const f = this.field();
+    return `${v.x - 0.5 * f.dx} ${v.y - 0.5 * f.dy} ${v.w} ${v.h + this.footer()}`;
   });
 
-  /** The background as a PNG data URL (one pixel per site), or null when drawn without. */
+  /**
+   * The background as a PNG data URL (one pixel per grid site, stretched to the column and
+   * row pitches; on the honeycomb a pixel holds its site's a_CC/2 lift), or null when drawn without.
+   */
   protected readonly image = computed(() => {
     const f = this.field();
     const bg = this.layers().background;
@@ -101,21 +105,23 @@ export class ModeMapView {
     return canvas.toDataURL('image/png');
   });
 
-  /** Sites per arrow block: the arrows stay about ARROW_SPACING_PX apart on screen at any zoom. */
-  protected readonly stride = computed(() => {
+  /** Columns and rows per arrow block: the arrows stay about ARROW_SPACING_PX apart on screen at any zoom. */
+  protected readonly strides = computed(() => {
     const pxPerNm = this.widthPx() / this.view().w;
-    return Math.max(1, Math.ceil(ARROW_SPACING_PX / (pxPerNm * this.field().a)));
+    const f = this.field();
+    return { x: Math.max(1, Math.ceil(ARROW_SPACING_PX / (pxPerNm * f.dx))), y: Math.max(1, Math.ceil(ARROW_SPACING_PX / (pxPerNm * f.dy))) };
   });
+  protected readonly stride = computed(() => this.strides().x);
 
   protected readonly arrows = computed(() => {
     if (!this.layers().current) return [];
     const f = this.field();
     const v = this.view();
-    const stride = this.stride();
-    const step = stride * f.a;
+    const strides = this.strides();
+    const step = Math.min(strides.x * f.dx, strides.y * f.dy);
     // Only the arrows in view (plus a margin) are drawn.
     const inView = (a: { x: number; y: number }) => a.x >= v.x - step && a.x <= v.x + v.w + step && a.y >= v.y - step && a.y <= v.y + v.h + step;
-    return currentArrows(f, stride).filter((a) => a.length >= 0.06 && inView(a)).map((a) => {
+    return currentArrows(f, strides.x, strides.y).filter((a) => a.length >= 0.06 && inView(a)).map((a) => {
       const len = 0.9 * step * a.length;
       const x1 = a.x - 0.5 * len * a.ux;
       const y1 = a.y - 0.5 * len * a.uy;
@@ -126,7 +132,8 @@ export class ModeMapView {
     });
   });
 
-  protected readonly strokeNm = computed(() => Math.max(0.5, 1.4 * (this.view().w / this.widthPx())));
+  /** Line width (nm): 1.4 screen pixels, but not thinner than a tenth of the row pitch when zoomed in (0.5 nm at a = 5 nm). */
+  protected readonly strokeNm = computed(() => Math.max(0.1 * Math.min(this.field().dx, this.field().dy), 1.4 * (this.view().w / this.widthPx())));
 
   protected readonly glyphs = computed(() => {
     const h = this.field().husimi;
@@ -186,7 +193,7 @@ export class ModeMapView {
     const x = cx ?? v.x + v.w / 2;
     const y = cy ?? v.y + v.h / 2;
     const e = this.extent();
-    const w = Math.min(e.w * 1.5, Math.max(this.field().a * 4, v.w * factor));
+    const w = Math.min(e.w * 1.5, Math.max(this.field().dx * 4, v.w * factor));
     const h = (w / v.w) * v.h;
     this.view.set({ x: x - ((x - v.x) * w) / v.w, y: y - ((y - v.y) * h) / v.h, w, h });
   }
