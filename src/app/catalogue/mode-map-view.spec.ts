@@ -65,5 +65,15 @@ describe('ModeMapView on the honeycomb', () => {
     const [, , w, h] = el.querySelector('svg')!.getAttribute('viewBox')!.split(' ').map(Number);
     expect(w).toBeCloseTo(14 * dx, 6);
     expect(h).toBeGreaterThan(6 * dy);
+    // Caption and scale-bar text: laid out at font size 100 and scaled to a fraction of the
+    // 2 nm drawing, never given a sub-unit font size (which browsers lay out glyph by glyph).
+    const texts = Array.from(el.querySelectorAll('g.footer text'));
+    expect(texts.length).toBeGreaterThan(0);
+    for (const t of texts) {
+      expect(t.getAttribute('font-size')).toBe('100');
+      const scale = Number(/scale\(([^)]+)\)/.exec(t.getAttribute('transform')!)![1]);
+      expect(scale * 100).toBeLessThan(w);
+      expect(scale).toBeGreaterThan(0);
+    }
   });
 });

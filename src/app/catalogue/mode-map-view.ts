@@ -57,6 +57,11 @@ export class ModeMapView {
   protected readonly widthPx = signal(640);
   private drag: { x: number; y: number; vx: number; vy: number } | null = null;
 
+  /** Places text laid out at font size 100 at (x, y) with the given font size (drawing units). */
+  protected textAt(x: number, y: number, font: number): string {
+    return `translate(${x} ${y}) scale(${font / 100})`;
+  }
+
   protected readonly extent = computed(() => {
     const f = this.field();
     return { w: f.nx * f.dx, h: f.ny * f.dy };
