@@ -84,6 +84,9 @@ export class ModeMapPanel {
   protected readonly husimi = computed(() => this.payload()?.husimi ?? null);
   /** Husimi maps are refused on the honeycomb (their coherent states follow the square band): no button that only fails. */
   protected readonly honeycomb = computed(() => (this.modeMap() ?? this.scattering())?.lattice === 'honeycomb');
+  /** A bound state's current is zero: the map's values are rounding, and arrows scaled to their own maximum would mislead. */
+  protected readonly bound = computed(() => this.payload()?.state.kind === 'bound');
+  protected readonly viewLayers = computed(() => (this.bound() ? { ...this.layers(), current: false } : this.layers()));
   protected readonly caption = computed(() => {
     const p = this.payload();
     if (!p) return [];
@@ -95,7 +98,9 @@ export class ModeMapPanel {
         : st.kind === 'bound'
           ? `Bound state at E = ${e} meV (Γ = 0)`
           : `Resonance mode, z = E − iΓ/2 = ${e} − i·${significant(st.width / 2, 4)} meV`,
-      `${this.backgroundWords()} · white arrows: probability current, largest site ${significant(this.largestArrow(), 3)} ${p.unit}`,
+      st.kind === 'bound'
+        ? `${this.backgroundWords()} · no current arrows: a bound state carries no net current`
+        : `${this.backgroundWords()} · white arrows: probability current, largest site ${significant(this.largestArrow(), 3)} ${p.unit}`,
     ];
     const h = p.husimi;
     if (h) {
