@@ -2,6 +2,8 @@ import { describe, expect, it } from 'vitest';
 import { runStudy, type StudyOutcome } from '../../shared/engine/study/study-run';
 import { studyReport } from '../../shared/engine/study/study-report';
 import { inSymmetricGauge, modeOverlap, type SiteList } from '../../shared/engine/study/mode-overlap';
+import { stepSites } from '../../shared/engine/study/study-step';
+import { buildCavitySystem } from '../../shared/engine/effective-hamiltonian';
 import { cyclotronEnergy, hoppingEnergy } from '../../shared/units/constants';
 
 // A closed lattice disk of radius 10 sites (317 sites), GaAs, a = 5 nm.
@@ -236,5 +238,70 @@ describe('parameter study trajectories', () => {
     const nearest = out.steps[0].poles.map((p) => p.energy).sort((x, y) => Math.abs(x - corrected) - Math.abs(y - corrected))[0];
     expect(Math.abs(nearest / corrected - 1)).toBeLessThan(2e-3);
     expect(Math.abs(nearest / plain - 1)).toBeGreaterThan(0.03);
+  });
+});
+
+describe('parameter study on the honeycomb', () => {
+  // A closed graphene disk of radius 2.2 nm (about 500 atoms; a_CC = 0.142 nm, t = 2.7 eV) in a
+  // strong field, so that one field step turns the gauge phase across the disk by a sizeable angle:
+  // π·ΔB·(2R)·R/Φ0 ≈ 0.15 rad for ΔB = 20 T.
+  const flake = (field: number) => ({
+    name: 'graphene disk',
+    spacing: 0.142,
+    lattice: { kind: 'honeycomb', hopping: 2.7, removeDangling: true },
+    grid: { nx: 36, ny: 22 },
+    shape: { kind: 'disk', cx: 2.5, cy: 2.4, radius: 2.2 },
+    field,
+  });
+
+  it('follows graphene levels through a field sweep by continuation, in the symmetric gauge of the atoms positions', () => {
+    const fields = [0, 20, 40, 60, 80];
+    const out = runStudy({ model: flake(0), parameters: [{ path: 'field', values: fields }], window: { emin: 350, emax: 700, gammaMax: 1 } });
+    out.steps.forEach((s) => expect(s.certified).toBe(true));
+    const links = out.lines[0].trajectories.flatMap((t) => t.points.slice(1));
+    expect(links.length).toBeGreaterThan(3);
+    // The same state one step on: the moved mode (in the symmetric gauge) overlaps the new one almost fully.
+    for (const p of links) {
+      expect(p.link).toBe('continuation');
+      expect(p.overlap!).toBeGreaterThan(0.95);
+    }
+  });
+
+  it('writes the symmetric gauge with the atoms positions: every bond then carries the symmetric-gauge phase', () => {
+    // A gauge change ψ → e^{ig}ψ turns a bond's Peierls phase Λ(s→r) into Λ + g(r) − g(s). Into the
+    // symmetric gauge A = (B/2)(−(y − y_c), x − x_c) about the centre c, the straight-line integral on a
+    // bond is κ·((x_s − x_c)(y_r − y_c) − (x_r − x_c)(y_s − y_c)) with one constant κ = ±πB/Φ0 for every
+    // bond (the sign is the charge convention; common practice, no source). Grid labels instead of
+    // positions break this on the honeycomb, where (i, j) are not positions.
+    const system = buildCavitySystem(flake(60));
+    const bonds = (system.lattice as unknown as { bonds: { from: Int32Array; to: Int32Array; phase: Float64Array } }).bonds;
+    const check = (sites: SiteList) => {
+      const p = sites.positions!;
+      const ones = new Float64Array(2 * sites.i.length).map((_, k) => (k % 2 === 0 ? 1 : 0));
+      const sym = inSymmetricGauge(ones, sites);
+      const g = (s: number) => Math.atan2(sym[2 * s + 1], sym[2 * s]);
+      const wrap = (a: number) => Math.atan2(Math.sin(a), Math.cos(a));
+      const area = (s: number, r: number) => (p.x[s] - p.xc) * (p.y[r] - p.yc) - (p.x[r] - p.xc) * (p.y[s] - p.yc);
+      const kappa = Math.PI * p.perNm2;
+      let worst = Infinity;
+      for (const sign of [1, -1]) {
+        let w = 0;
+        for (let b = 0; b < bonds.from.length; b++) {
+          const s = bonds.from[b];
+          const r = bonds.to[b];
+          w = Math.max(w, Math.abs(wrap(bonds.phase[b] + g(r) - g(s) - sign * kappa * area(s, r))));
+        }
+        worst = Math.min(worst, w);
+      }
+      return worst;
+    };
+    const sites = stepSites(system);
+    expect(check(sites)).toBeLessThan(1e-9);
+    // The same with the atoms placed at their grid labels times a_CC (the square lattice's rule): far off.
+    const labels = {
+      ...sites,
+      positions: { ...sites.positions!, x: Float64Array.from(sites.i, (i) => i * 0.142), y: Float64Array.from(sites.j, (j) => j * 0.142) },
+    };
+    expect(check(labels)).toBeGreaterThan(1e-3);
   });
 });

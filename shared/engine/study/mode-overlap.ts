@@ -19,11 +19,23 @@ export interface SiteList {
   nx: number;
   ny: number;
   flux: number;
+  /**
+   * Off the square lattice (the honeycomb), where (i, j) are labels, not positions: each site's
+   * position (nm), the grid's centre (nm) and the flux per nm², B/Φ0 with the sign of `flux`.
+   */
+  positions?: { x: Float64Array; y: Float64Array; xc: number; yc: number; perNm2: number };
 }
 
-/** Phase taking the engine's Landau gauge to the symmetric gauge about the grid's centre, at site s. */
+/**
+ * Phase taking the engine's Landau gauge to the symmetric gauge about the grid's centre, at
+ * site s: −π(B/Φ0)(x − x_c)(y + y_c), which on the square lattice (x = i·a) is
+ * −πφ(i − i_c)(j + j_c); the honeycomb's Peierls phases come from the same Landau gauge
+ * (tight-binding.ts), so the same function with the atoms' positions applies there.
+ */
 function symmetricGaugePhase(sites: SiteList, s: number): number {
   if (sites.flux === 0) return 0;
+  const p = sites.positions;
+  if (p) return -Math.PI * p.perNm2 * (p.x[s] - p.xc) * (p.y[s] + p.yc);
   return -Math.PI * sites.flux * (sites.i[s] - (sites.nx - 1) / 2) * (sites.j[s] + (sites.ny - 1) / 2);
 }
 

@@ -205,10 +205,15 @@ function strip(op: NonlinearOperator, energy: number): [number, number] {
 }
 
 /** The site list of a built model (positions, grid and flux, for overlaps and moved modes). */
-function stepSites(system: CavitySystem): SiteList {
-  // The symmetric-gauge phases of mode-overlap.ts are written in square-lattice units.
-  if (system.lattice.kind !== 'square' && system.flux !== 0) {
-    throw new Error(`studies in a magnetic field are available on the square lattice only; this model is on the ${system.lattice.kind} lattice`);
-  }
-  return { i: system.sites.i, j: system.sites.j, nx: system.model.grid.nx, ny: system.model.grid.ny, flux: system.flux };
+export function stepSites(system: CavitySystem): SiteList {
+  const { nx, ny } = system.model.grid;
+  const base = { i: system.sites.i, j: system.sites.j, nx, ny, flux: system.flux };
+  if (system.placement.kind === 'square') return base;
+  // Off the square lattice the labels are not positions: the symmetric gauge (mode-overlap.ts)
+  // is written with the atoms' positions about the grid's centre.
+  const pl = system.placement;
+  const x = Float64Array.from(system.sites.i, (i, s) => pl.x(i, system.sites.j[s]));
+  const y = Float64Array.from(system.sites.j, (j, s) => pl.y(system.sites.i[s], j));
+  const length = pl.length;
+  return { ...base, positions: { x, y, xc: ((nx - 1) / 2) * pl.dx, yc: ((ny - 1) / 2) * pl.dy, perNm2: system.flux / (length * length) } };
 }
