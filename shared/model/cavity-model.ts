@@ -213,7 +213,9 @@ export const cavityModelSchema = z.object({
   /** Electrons in a 2DEG (default; lengths nm) or a flat microwave resonator (lengths mm). */
   physics: physicsSchema,
   /** Lattice spacing a (nm; mm in the microwave mode); on the honeycomb lattice the carbon–carbon distance a_CC (nm). */
-  spacing: positive(),
+  spacing: positive().refine((a) => a <= 0 || a >= DOCUMENT_LIMITS.smallestSpacing, {
+    message: `must be at least ${DOCUMENT_LIMITS.smallestSpacing} (nm, or mm for a resonator)`,
+  }),
   /** The lattice; absent means square (every document written before lattices were a choice). */
   lattice: latticeSchema.optional(),
   /** The 2DEG's material; required for electrons, absent in the microwave mode. */
@@ -222,7 +224,10 @@ export const cavityModelSchema = z.object({
   shape: shapeSchema,
   potential: z.array(potentialTermSchema).max(DOCUMENT_LIMITS.potentialTerms).default([]),
   /** Perpendicular field B (T), along +z. */
-  field: finite().default(0),
+  field: finite()
+    .min(-DOCUMENT_LIMITS.fieldTesla, `must be at least −${DOCUMENT_LIMITS.fieldTesla.toLocaleString('en-US')} T`)
+    .max(DOCUMENT_LIMITS.fieldTesla, `must be at most ${DOCUMENT_LIMITS.fieldTesla.toLocaleString('en-US')} T`)
+    .default(0),
   leads: z.array(leadSchema).max(DOCUMENT_LIMITS.leads).default([]),
   /**
    * Let the field act in the leads too (docs/physics-model.md, "A field in the leads"): each lead

@@ -25,6 +25,17 @@ export const DOCUMENT_LIMITS = {
   /** Leads of one cavity. */
   leads: 16,
   /**
+   * Largest |B| (T) of a model: far beyond any laboratory field (the lattice tests use up to
+   * 3,000 T so that a wrong phase cannot hide), and small enough that every derived figure
+   * (flux per plaquette, magnetic length, cyclotron energy) stays a finite number.
+   */
+  fieldTesla: 100_000,
+  /**
+   * Smallest lattice spacing (nm, or mm for a resonator): well below graphene's a_CC = 0.142 nm,
+   * and large enough that t ∝ 1/a² stays a finite number.
+   */
+  smallestSpacing: 0.001,
+  /**
    * Site tests of the rasterisation (geometry.ts rasterWork): the sites each primitive
    * scans, polygon rows × vertices, and one grid pass per shape and per merged member.
    * Measured at about 4 ns per site test here (180 grid-sized disks on a 500×500 grid:

@@ -81,6 +81,33 @@ function insideReference(v: [number, number][], x: number, y: number): boolean {
   return inside;
 }
 
+describe('field and spacing limits', () => {
+  const box = {
+    name: 'x',
+    spacing: 5,
+    material: 'gaas',
+    grid: { nx: 30, ny: 20 },
+    shape: { kind: 'rectangle', x0: 0, y0: 0, width: 150, height: 100 },
+    leads: [{ side: 'left', start: 5, width: 8 }],
+  };
+  const issues = (doc: object) => {
+    const r = validateCavityModel(doc);
+    return r.ok ? [] : r.issues.map((i) => `${i.path.join('.')}: ${i.message}`);
+  };
+
+  it('refuses a field or a spacing whose figures would not be finite numbers, naming the field', () => {
+    // Found by the input fuzz: B = 1e308 T made the flux per plaquette infinite (null in JSON).
+    expect(issues({ ...box, field: 1e308 })).toEqual([`field: must be at most ${DOCUMENT_LIMITS.fieldTesla.toLocaleString('en-US')} T`]);
+    expect(issues({ ...box, field: -1e308 })[0]).toMatch(/^field: must be at least/);
+    expect(issues({ ...box, spacing: 1e-300 })).toEqual([`spacing: must be at least ${DOCUMENT_LIMITS.smallestSpacing} (nm, or mm for a resonator)`]);
+    // Spacing 0 keeps its one message (the limit does not add a second).
+    expect(issues({ ...box, spacing: 0 }).filter((m) => m.startsWith('spacing'))).toHaveLength(1);
+    // Inside the limits nothing changes: graphene's 0.142 nm and the lattice tests' 3,000 T pass.
+    expect(issues({ ...box, field: 3000 })).toEqual([]);
+    expect(issues({ ...box, spacing: 0.142, grid: { nx: 30, ny: 20 }, shape: { kind: 'rectangle', x0: 0, y0: 0, width: 4, height: 2.8 } })).toEqual([]);
+  });
+});
+
 describe('polygon rasterisation by rows', () => {
   it('marks exactly the sites of the per-site crossing rule, for random (also self-crossing) polygons', () => {
     const coord = fc.double({ min: -20, max: 140, noNaN: true });
