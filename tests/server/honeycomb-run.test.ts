@@ -11,7 +11,7 @@ import { modeImages, resonances } from '../../server/db/schema/catalogue.js';
 import { resonanceCurrents } from '../../server/db/schema/mode-maps.js';
 import { runs, spectra } from '../../server/db/schema/runs.js';
 import { runQueue, startBoss } from '../../server/jobs/boss.js';
-import { RUN_QUEUES } from '../../server/jobs/queues.js';
+import { endLeftoverRuns } from './fixtures/run-queues.js';
 import { runEngineTask } from '../../server/jobs/engine-task.js';
 import { runInThread } from '../../server/jobs/thread-runner.js';
 import { startWorkerLoop } from '../../server/jobs/worker.js';
@@ -35,12 +35,7 @@ let runService: RunService;
 beforeAll(async () => {
   handle = connectDb(testDatabaseUrl(), 4);
   boss = await startBoss({ databaseUrl: testDatabaseUrl() });
-  // Runs other files left queued on the shared test database would be worked first.
-  await handle.db
-    .update(runs)
-    .set({ status: 'cancelled' })
-    .where(inArray(runs.status, ['queued', 'running']));
-  for (const q of Object.values(RUN_QUEUES)) await boss.purgeQueue(q.name);
+  await endLeftoverRuns(handle.db, boss);
   lab = await createLab(handle.db, ['designer']);
   models = new ModelService(handle.db, inlineCompute);
   runService = new RunService(handle.db, runQueue(boss), inlineCompute);

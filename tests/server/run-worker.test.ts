@@ -1,14 +1,14 @@
 // The queue and the workers for real: pg-boss on the test database, the engine in a
 // worker thread, and a worker process killed in the middle of a run.
 import { spawn, type ChildProcess } from 'node:child_process';
-import { and, count, eq, inArray } from 'drizzle-orm';
+import { and, count, eq } from 'drizzle-orm';
 import type PgBoss from 'pg-boss';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { connectDb, type DbHandle } from '../../server/db/client.js';
 import { modeImages, resonances } from '../../server/db/schema/catalogue.js';
 import { runs, spectra } from '../../server/db/schema/runs.js';
 import { runQueue, startBoss } from '../../server/jobs/boss.js';
-import { RUN_QUEUES } from '../../server/jobs/queues.js';
+import { endLeftoverRuns } from './fixtures/run-queues.js';
 import { runEngineTask } from '../../server/jobs/engine-task.js';
 import { handleRunJob } from '../../server/jobs/run-job.js';
 import { runInThread } from '../../server/jobs/thread-runner.js';
@@ -33,14 +33,7 @@ const children: ChildProcess[] = [];
 beforeAll(async () => {
   handle = connectDb(testDatabaseUrl(), 4);
   boss = await startBoss({ databaseUrl: testDatabaseUrl() });
-  // Earlier test files leave runs queued on the shared test database (queued, never worked).
-  // The worker processes started here take the oldest job first, so that backlog would be
-  // computed before this file's runs: end it, and its jobs, before starting.
-  await handle.db
-    .update(runs)
-    .set({ status: 'cancelled' })
-    .where(inArray(runs.status, ['queued', 'running']));
-  for (const q of Object.values(RUN_QUEUES)) await boss.purgeQueue(q.name);
+  await endLeftoverRuns(handle.db, boss);
   lab = await createLab(handle.db, ['designer']);
   models = new ModelService(handle.db, inlineCompute);
   runService = new RunService(handle.db, runQueue(boss), inlineCompute);
