@@ -2,6 +2,7 @@ import { provideHttpClient } from '@angular/common/http';
 import { HttpTestingController, provideHttpClientTesting } from '@angular/common/http/testing';
 import { TestBed } from '@angular/core/testing';
 import { provideRouter } from '@angular/router';
+import type { z } from 'zod';
 import type { Role } from '../../../shared/api/enums';
 import { getModelRoute } from '../../../shared/api/models';
 import { cavityModelSchema } from '../../../shared/model/cavity-model';
@@ -22,6 +23,30 @@ async function render(role: Role) {
   http.expectOne((r) => r.url === '/api/groups/g1/models').flush({ items: [], total: 0 });
   fixture.detectChanges();
   return fixture.nativeElement as HTMLElement;
+}
+
+type ModelAnswer = z.input<(typeof getModelRoute)['answer']['schema']>;
+
+/** A model detail answer for one version of `document`, with its figures derived for `sites` sites. */
+function modelDetail(
+  id: string,
+  document: ModelAnswer['document'] & object,
+  sites: number,
+  summary: Pick<ModelAnswer, 'name' | 'family' | 'physics' | 'material' | 'spacingNm' | 'leadCount' | 'keyDimensions'>,
+) {
+  const figures = deriveFigures(cavityModelSchema.parse(document), sites);
+  return answerFixture(getModelRoute, {
+    id,
+    ...summary,
+    latestVersion: 1,
+    fieldT: 0,
+    siteCount: sites,
+    updatedAt: '2025-01-01T10:00:00Z',
+    createdBy: null,
+    document,
+    versions: [{ version: 1, createdAt: '2025-01-01T10:00:00Z', createdBy: null, usedByRuns: 0 }],
+    derived: { ...figures, magneticLength: null },
+  });
 }
 
 /** The launcher opened on one model (its detail answered), with a helper that types into a field. */
@@ -73,24 +98,14 @@ describe('RunLauncher', () => {
       leads: [],
       potential: [],
     };
-    const figures = deriveFigures(cavityModelSchema.parse(document), 400);
-    const detail = answerFixture(getModelRoute, {
-      id,
+    const detail = modelDetail(id, document, 400, {
       name: 'Flake',
       family: 'disk',
       physics: 'electrons',
-      latestVersion: 1,
       material: 'custom',
       spacingNm: 0.142,
-      fieldT: 0,
-      siteCount: 400,
       leadCount: 0,
       keyDimensions: { radius: 2 },
-      updatedAt: '2025-01-01T10:00:00Z',
-      createdBy: null,
-      document,
-      versions: [{ version: 1, createdAt: '2025-01-01T10:00:00Z', createdBy: null, usedByRuns: 0 }],
-      derived: { ...figures, magneticLength: null },
     });
     const { http, host, type } = await renderWithModel(id, detail);
     expect(host.querySelector('[data-test="graphene-energies"]')!.textContent).toContain('t = 2.700 eV (2700 meV)');
@@ -122,24 +137,14 @@ describe('RunLauncher', () => {
       field: 0,
       potential: [],
     };
-    const figures = deriveFigures(cavityModelSchema.parse(document), 864);
-    const detail = answerFixture(getModelRoute, {
-      id,
+    const detail = modelDetail(id, document, 864, {
       name: 'Two-port box',
       family: 'rectangle',
       physics: 'microwave',
-      latestVersion: 1,
       material: 'eps_r=2.2',
       spacingNm: 1,
-      fieldT: 0,
-      siteCount: 864,
       leadCount: 2,
       keyDimensions: { width: 36e6, height: 24e6 },
-      updatedAt: '2025-01-01T10:00:00Z',
-      createdBy: null,
-      document,
-      versions: [{ version: 1, createdAt: '2025-01-01T10:00:00Z', createdBy: null, usedByRuns: 0 }],
-      derived: { ...figures, magneticLength: null },
     });
     const { http, host, type } = await renderWithModel(id, detail);
     const labels = Array.from(host.querySelectorAll('mat-label'), (l) => l.textContent!.trim());
