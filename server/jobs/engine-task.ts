@@ -8,7 +8,7 @@ import type { WorkControl } from '../../shared/engine/operator.js';
 import { findPoles, findPolesWith, poleWorkSetup } from '../../shared/engine/poles.js';
 import type { CertificatePiece, PoleSearchOptions, PoleSearchResult } from '../../shared/engine/pole-types.js';
 import { PoleThreadPool } from './pole-pool.js';
-import { transmissionSweep } from '../../shared/engine/transmission.js';
+import { poleAnchors, transmissionSweep } from '../../shared/engine/transmission.js';
 import { withCurrents, type RunPole } from '../modemaps/pole-currents.js';
 import type { Spectrum } from '../../shared/api/runs.js';
 
@@ -162,7 +162,7 @@ function finishTask(ctx: TaskContext, task: EngineTask, search: PoleSearchResult
       points,
       refine: { maxPoints: (task.kind === 'transmission' ? task.maxPoints : undefined) ?? spectrumBudget(task.kind, points) },
       // Every listed pole's peak on the curve: samples at E and E ± Γ/2 of each.
-      anchors: poles.flatMap((p) => [p.energy - p.width / 2, p.energy, p.energy + p.width / 2]),
+      anchors: poleAnchors(poles),
     },
     { ...control, onProgress: (stage, f) => control.onProgress?.(stage, base + spectrumShare * f) },
   );

@@ -170,6 +170,11 @@ interface SweepRequest {
   spectral?: boolean | MouthSpectralOptions;
 }
 
+/** Sweep anchors that put each pole's peak on the curve: E − Γ/2, E and E + Γ/2 of every pole. */
+export function poleAnchors(poles: readonly { energy: number; width: number }[]): number[] {
+  return poles.flatMap((p) => [p.energy - p.width / 2, p.energy, p.energy + p.width / 2]);
+}
+
 interface TransmissionSweep {
   /** Samples sorted by energy. */
   points: TransmissionPoint[];

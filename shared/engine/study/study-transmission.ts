@@ -14,7 +14,7 @@
 import { buildCavitySystem, EffectiveHamiltonian } from '../effective-hamiltonian';
 import type { WorkControl } from '../operator';
 import type { PoleWindow } from '../pole-types';
-import { transmissionSweep, type TransmissionPoint } from '../transmission';
+import { poleAnchors, transmissionSweep, type TransmissionPoint } from '../transmission';
 
 /** Default columns of the map (energies per step) on the server. */
 export const DEFAULT_MAP_POINTS = 80;
@@ -82,8 +82,11 @@ export function stepTransmission(
   const system = buildCavitySystem(model);
   if (system.leads.length < 2) return null;
   const op = new EffectiveHamiltonian(system);
-  const anchors = poles.flatMap((p) => [p.energy - p.width / 2, p.energy, p.energy + p.width / 2]);
-  const sweep = transmissionSweep(op, { emin: window.emin, emax: window.emax, points, refine: { maxPoints: 4 * points, tolerance: 0.1 }, anchors }, control);
+  const sweep = transmissionSweep(
+    op,
+    { emin: window.emin, emax: window.emax, points, refine: { maxPoints: 4 * points, tolerance: 0.1 }, anchors: poleAnchors(poles) },
+    control,
+  );
   const energies = mapEnergies(window, points);
   return {
     points,
