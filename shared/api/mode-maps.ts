@@ -85,8 +85,10 @@ export const modeMapPayloadSchema = z
         kineticEnergy: b64('E − V per point (meV); ≤ 0 is forbidden. On the honeycomb E − V − E_D (below 0: hole-like)'),
         peaks: z.array(z.object({ point: z.number().int(), angle: z.number(), share: z.number() })),
         diracEnergy: z.number().optional().meta({ description: 'Honeycomb only: the Dirac energy E_D = E0 + 3t′ (meV)' }),
-        diracCutoff: z.number().optional().meta({ description: "Honeycomb only: points with t·|f(k)| below this fraction of t are empty" }),
-        carrier: b64('Honeycomb only: +1 electron-like, −1 hole-like, 0 empty (near the Dirac energy, in the gap or beyond the van Hove energy) per point').optional(),
+        diracCutoff: z.number().optional().meta({ description: 'Honeycomb only: points with t·|f(k)| below this fraction of t are empty' }),
+        carrier: b64(
+          'Honeycomb only: +1 electron-like, −1 hole-like, 0 empty (near the Dirac energy, in the gap or beyond the van Hove energy) per point',
+        ).optional(),
         valleyShare: b64("Honeycomb only: valley K's share of each point's total (NaN where empty)").optional(),
         valleys: z
           .array(
@@ -100,7 +102,10 @@ export const modeMapPayloadSchema = z
           )
           .length(2)
           .optional()
-          .meta({ description: 'Honeycomb only: the map of each valley (the top-level distribution, vector sum and peaks are of their sum); angles are ray directions' }),
+          .meta({
+            description:
+              'Honeycomb only: the map of each valley (the top-level distribution, vector sum and peaks are of their sum); angles are ray directions',
+          }),
       })
       .nullable(),
   })

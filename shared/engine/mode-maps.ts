@@ -163,7 +163,13 @@ export function husimiReport(system: CavitySystem, state: ModeState, options: Om
           lattice: system.lattice.kind,
           diracEnergy: m.diracEnergy,
           diracCutoff: m.diracCutoff,
-          valleys: m.valleys.map((v) => ({ name: v.name, centre: v.centre, distribution: rows(v.distribution), vectorSum: pairs(v.vectorSum), peaks: v.peaks })),
+          valleys: m.valleys.map((v) => ({
+            name: v.name,
+            centre: v.centre,
+            distribution: rows(v.distribution),
+            vectorSum: pairs(v.vectorSum),
+            peaks: v.peaks,
+          })),
         }
       : {}),
     sigmaNm: m.sigmaNm,

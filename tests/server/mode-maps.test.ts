@@ -148,10 +148,21 @@ describe('maps on demand', () => {
   });
 
   it('computes the valley-resolved Husimi map of a graphene flake (the demo dot G1) through the worker', async () => {
-    const entry = JSON.parse(readFileSync(new URL('../../catalogue/hl-graphene-g1.json', import.meta.url), 'utf8')) as { model: Parameters<ModelService['create']>[2] };
-    const flake = await new ModelService(app.handle.db, inlineCompute).create(lab.groupId, lab.as('designer').id, { ...entry.model, name: 'Graphene map test' });
+    const entry = JSON.parse(readFileSync(new URL('../../catalogue/hl-graphene-g1.json', import.meta.url), 'utf8')) as {
+      model: Parameters<ModelService['create']>[2];
+    };
+    const flake = await new ModelService(app.handle.db, inlineCompute).create(lab.groupId, lab.as('designer').id, {
+      ...entry.model,
+      name: 'Graphene map test',
+    });
     // 1.2 eV above the Dirac point (E_D = 0 here: t′ = 0): electron-like everywhere.
-    const res = await viewer.post(`/api/groups/${lab.groupId}/mode-maps`, { modelId: flake.id, energy: 1200, lead: 0, channel: 1, husimi: { directions: 36, gridNm: 0.25 } });
+    const res = await viewer.post(`/api/groups/${lab.groupId}/mode-maps`, {
+      modelId: flake.id,
+      energy: 1200,
+      lead: 0,
+      channel: 1,
+      husimi: { directions: 36, gridNm: 0.25 },
+    });
     expect(res.status).toBe(202);
     await handleModeMapJob({ db: app.handle.db, compute: inProcess }, { mapId: res.body.id, retryCount: 0, retryLimit: 2 });
     const [row] = await app.handle.db.select().from(modeMaps).where(eq(modeMaps.id, res.body.id));
