@@ -149,7 +149,7 @@ describe('maps on demand', () => {
 
   it('computes the valley-resolved Husimi map of a graphene flake (the demo dot G1) through the worker', async () => {
     const entry = JSON.parse(readFileSync(new URL('../../catalogue/hl-graphene-g1.json', import.meta.url), 'utf8')) as {
-      model: Parameters<ModelService['create']>[2];
+      model: Record<string, unknown>;
     };
     const flake = await new ModelService(app.handle.db, inlineCompute).create(lab.groupId, lab.as('designer').id, {
       ...entry.model,
