@@ -44,7 +44,7 @@ export interface HoneycombBand {
   onsiteOffset?: number;
 }
 
-export interface HoneycombHusimiOptions extends HusimiOptions {
+interface HoneycombHusimiOptions extends HusimiOptions {
   /** Δ, t′, E0 of the lattice's builder (modelTightBinding). */
   band: HoneycombBand;
   /** Points with t·|g(k)| below this fraction of t are left empty; default 0.01. */
