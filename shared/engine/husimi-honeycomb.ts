@@ -21,7 +21,7 @@
  * phases of tight-binding.ts are the Landau gauge's), so P is gauge invariant.
  * Points where t·|g| < cutoff·t (|E − V − E_D| within about cutoff·t of the Dirac energy,
  * or inside the gap |Δ|) or beyond the van Hove energy (|g| ≥ 1, the valleys' contours join)
- * are left empty. Cost O(points·(σ/ℓ)²·directions) plus O(directions·60²) per distinct V.
+ * are left empty. Cost O(points·(σ/ℓ)²·directions) plus about 6·10³·directions evaluations of g per distinct V.
  */
 import type { CavityLattice } from './lattice';
 import { landauGauge } from './gauge';
