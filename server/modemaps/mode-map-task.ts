@@ -8,9 +8,8 @@
  */
 import { buildCavitySystem, EffectiveHamiltonian } from '../../shared/engine/effective-hamiltonian.js';
 import { currentMap, siteOutflow } from '../../shared/engine/current-map.js';
-import { husimiMap } from '../../shared/engine/husimi-map.js';
 import { resolveState, type StateRequest } from '../../shared/engine/mode-state.js';
-import { summarise } from '../../shared/engine/mode-maps.js';
+import { cavityHusimiMap, summarise } from '../../shared/engine/mode-maps.js';
 import { localDensityOfStates } from '../../shared/engine/scattering-state.js';
 import type { SheetFlags } from '../../shared/engine/operator.js';
 import { ENGINE_VERSION } from '../jobs/engine-task.js';
@@ -65,7 +64,7 @@ export function runModeMapTask(task: ModeMapTask, onProgress: (stage: string, fr
   let husimi: HusimiPayload | null = null;
   if (task.husimi) {
     const share = 0.65;
-    const h = husimiMap(system.lattice, system.spacing, state.psi, {
+    const h = cavityHusimiMap(system, state.psi, {
       ...task.husimi,
       energy: state.energy,
       onProgress: (f) => onProgress('Husimi map', 0.3 + share * f),
@@ -82,6 +81,22 @@ export function runModeMapTask(task: ModeMapTask, onProgress: (stage: string, fr
       vectorSum: base64Float32(h.vectorSum),
       kineticEnergy: base64Float32(h.kineticEnergy),
       peaks: h.peaks.map((p) => ({ point: p.point, angle: p.angle, share: p.share })),
+      // The honeycomb's map per valley; a square-lattice payload stays as it was.
+      ...('valleys' in h
+        ? {
+            diracEnergy: h.diracEnergy,
+            diracCutoff: h.diracCutoff,
+            carrier: base64Float32(h.carrier),
+            valleyShare: base64Float32(h.valleyShare),
+            valleys: h.valleys.map((v) => ({
+              name: v.name,
+              centre: v.centre,
+              distribution: base64Float32(v.distribution),
+              vectorSum: base64Float32(v.vectorSum),
+              peaks: v.peaks.map((p) => ({ point: p.point, angle: p.angle, share: p.share })),
+            })),
+          }
+        : {}),
     };
   }
   onProgress('done', 1);

@@ -82,8 +82,30 @@ export const modeMapPayloadSchema = z
         points: b64('Sample points (x, y) in nm'),
         distribution: b64('P(point, direction), one row per point'),
         vectorSum: b64('Vector sum per point (x, y)'),
-        kineticEnergy: b64('E − V per point (meV); ≤ 0 is forbidden'),
+        kineticEnergy: b64('E − V per point (meV); ≤ 0 is forbidden. On the honeycomb E − V − E_D (below 0: hole-like)'),
         peaks: z.array(z.object({ point: z.number().int(), angle: z.number(), share: z.number() })),
+        diracEnergy: z.number().optional().meta({ description: 'Honeycomb only: the Dirac energy E_D = E0 + 3t′ (meV)' }),
+        diracCutoff: z.number().optional().meta({ description: 'Honeycomb only: points with t·|f(k)| below this fraction of t are empty' }),
+        carrier: b64(
+          'Honeycomb only: +1 electron-like, −1 hole-like, 0 empty (near the Dirac energy, in the gap or beyond the van Hove energy) per point',
+        ).optional(),
+        valleyShare: b64("Honeycomb only: valley K's share of each point's total (NaN where empty)").optional(),
+        valleys: z
+          .array(
+            z.object({
+              name: z.enum(['K', 'K′']),
+              centre: z.tuple([z.number(), z.number()]).meta({ description: 'The valley centre (1/nm)' }),
+              distribution: b64('P of this valley, one row per point'),
+              vectorSum: b64("This valley's vector sum per point (x, y)"),
+              peaks: z.array(z.object({ point: z.number().int(), angle: z.number(), share: z.number() })),
+            }),
+          )
+          .length(2)
+          .optional()
+          .meta({
+            description:
+              'Honeycomb only: the map of each valley (the top-level distribution, vector sum and peaks are of their sum); angles are ray directions',
+          }),
       })
       .nullable(),
   })

@@ -33,13 +33,21 @@ export function symmetricGauge(flux: number): Gauge {
 /**
  * A copy of a lattice whose bond phases are those of another gauge. Together with
  * ψ'_s = exp(i(χ(s)))ψ_s this is the same physical system; currents and Husimi maps
- * must not change. Cost O(bonds).
+ * must not change. On the square lattice the gauge takes the grid labels (i, j); on
+ * another lattice it takes the positions in units of the lattice length ℓ (nm), which
+ * is how the engine's Landau gauge writes the honeycomb's bond phases (tight-binding.ts).
+ * Cost O(bonds).
  */
-export function latticeInGauge(lattice: CavityLattice, gauge: Gauge): CavityLattice {
-  if (lattice.kind !== 'square') throw new Error('latticeInGauge: gauges in lattice units are defined on the square lattice only');
+export function latticeInGauge(lattice: CavityLattice, gauge: Gauge, length?: number): CavityLattice {
   const { from, to, hopping } = lattice.bonds;
-  const { i, j } = lattice.sites;
   const phase = new Float64Array(from.length);
-  for (let b = 0; b < from.length; b++) phase[b] = gauge.lineIntegral(i[from[b]], j[from[b]], i[to[b]], j[to[b]]);
+  if (lattice.kind === 'square') {
+    const { i, j } = lattice.sites;
+    for (let b = 0; b < from.length; b++) phase[b] = gauge.lineIntegral(i[from[b]], j[from[b]], i[to[b]], j[to[b]]);
+  } else {
+    if (!(length! > 0)) throw new RangeError(`latticeInGauge: a ${lattice.kind} lattice needs its length ℓ (nm) to write the gauge with positions`);
+    const { x, y } = lattice.positions;
+    for (let b = 0; b < from.length; b++) phase[b] = gauge.lineIntegral(x[from[b]] / length!, y[from[b]] / length!, x[to[b]] / length!, y[to[b]] / length!);
+  }
   return { ...lattice, bonds: { from, to, phase, hopping } };
 }

@@ -41,7 +41,7 @@ export interface HusimiOptions {
   onProgress?: (fraction: number) => void;
 }
 
-interface HusimiPeak {
+export interface HusimiPeak {
   /** Index of the sample point. */
   point: number;
   /** Direction (rad, from +x counterclockwise, in (−π, π]). */
@@ -52,7 +52,7 @@ interface HusimiPeak {
   value: number;
 }
 
-interface HusimiMap {
+export interface HusimiMap {
   energy: number;
   sigmaNm: number;
   gridNm: number;
@@ -93,7 +93,7 @@ export function latticeWavenumber(e: number, t: number, c: number, s: number): n
 export function husimiMap(lattice: CavityLattice, spacing: number, psi: Float64Array, options: HusimiOptions): HusimiMap {
   if (lattice.kind !== 'square') {
     throw new Error(
-      `Husimi maps are defined on the square lattice only (its coherent states follow the square-lattice dispersion); this cavity is on a ${lattice.kind} lattice`,
+      `husimiMap follows the square lattice's dispersion; this cavity is on a ${lattice.kind} lattice (use honeycombHusimiMap, husimi-honeycomb.ts)`,
     );
   }
   const n = lattice.onsite.length;

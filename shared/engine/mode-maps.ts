@@ -6,8 +6,10 @@
  */
 import { currentMap, siteOutflow } from './current-map';
 import type { CavitySystem } from './effective-hamiltonian';
-import { husimiMap, type HusimiOptions } from './husimi-map';
+import { husimiMap, type HusimiMap, type HusimiOptions } from './husimi-map';
+import { honeycombHusimiMap, type HoneycombHusimiMap } from './husimi-honeycomb';
 import type { ModeState } from './mode-state';
+import { modelTightBinding } from './tight-binding';
 
 interface StateSummary {
   kind: ModeState['kind'];
@@ -91,15 +93,43 @@ export function currentReport(system: CavitySystem, state: ModeState): CurrentRe
   };
 }
 
+/**
+ * The Husimi map of a state on the system's own lattice: the square one's, or on the
+ * honeycomb the valley-resolved map with the model's Δ and t′ (husimi-honeycomb.ts).
+ */
+export function cavityHusimiMap(system: CavitySystem, psi: Float64Array, options: HusimiOptions): HusimiMap | HoneycombHusimiMap {
+  if (system.lattice.kind === 'square') return husimiMap(system.lattice, system.spacing, psi, options);
+  const tb = modelTightBinding(system.model);
+  return honeycombHusimiMap(system.lattice, system.spacing, psi, {
+    ...options,
+    band: { sublattice: tb.sublattice, nextHopping: tb.nextHopping, onsiteOffset: tb.onsiteOffset },
+  });
+}
+
+interface ValleyReport {
+  name: string;
+  /** Valley centre (1/nm). */
+  centre: [number, number];
+  distribution: number[][];
+  vectorSum: [number, number][];
+  peaks: { point: number; angle: number; share: number; value: number }[];
+}
+
 interface HusimiReport {
   state: StateSummary;
+  /** On the honeycomb: the lattice, E_D (meV), and per point the carrier (+1, −1, 0 empty) and valley K's share. */
+  lattice?: string;
+  diracEnergy?: number;
+  diracCutoff?: number;
+  valleys?: ValleyReport[];
   sigmaNm: number;
   gridNm: number;
   directions: number[];
   angularResolution: number;
   meanWavenumber: number;
   peakThreshold: number;
-  points: { x: number; y: number; kineticEnergy: number; total: number; vectorSum: [number, number] }[];
+  /** kineticEnergy: E − V (square), E − V − E_D (honeycomb). */
+  points: { x: number; y: number; kineticEnergy: number; total: number; vectorSum: [number, number]; carrier?: number; valleyShare?: number | null }[];
   /** P(point, direction), one row per point. */
   distribution: number[][];
   peaks: { point: number; angle: number; share: number; value: number }[];
@@ -107,7 +137,7 @@ interface HusimiReport {
 
 /** The Husimi direction map of a state. Cost: see husimi-map.ts. */
 export function husimiReport(system: CavitySystem, state: ModeState, options: Omit<HusimiOptions, 'energy'>): HusimiReport {
-  const m = husimiMap(system.lattice, system.spacing, state.psi, { ...options, energy: state.energy });
+  const m = cavityHusimiMap(system, state.psi, { ...options, energy: state.energy });
   const nDir = m.angles.length;
   const count = m.points.length / 2;
   const distribution: number[][] = [];
@@ -121,10 +151,27 @@ export function husimiReport(system: CavitySystem, state: ModeState, options: Om
       kineticEnergy: m.kineticEnergy[p],
       total: row.reduce((a, b) => a + b, 0) / nDir,
       vectorSum: [m.vectorSum[2 * p], m.vectorSum[2 * p + 1]],
+      ...('valleys' in m ? { carrier: m.carrier[p], valleyShare: Number.isNaN(m.valleyShare[p]) ? null : m.valleyShare[p] } : {}),
     });
   }
+  const rows = (values: Float64Array) => Array.from({ length: count }, (_, p) => Array.from(values.subarray(p * nDir, (p + 1) * nDir)));
+  const pairs = (values: Float64Array) => Array.from({ length: count }, (_, p): [number, number] => [values[2 * p], values[2 * p + 1]]);
   return {
     state: summarise(system, state),
+    ...('valleys' in m
+      ? {
+          lattice: system.lattice.kind,
+          diracEnergy: m.diracEnergy,
+          diracCutoff: m.diracCutoff,
+          valleys: m.valleys.map((v) => ({
+            name: v.name,
+            centre: v.centre,
+            distribution: rows(v.distribution),
+            vectorSum: pairs(v.vectorSum),
+            peaks: v.peaks,
+          })),
+        }
+      : {}),
     sigmaNm: m.sigmaNm,
     gridNm: m.gridNm,
     directions: Array.from(m.angles),

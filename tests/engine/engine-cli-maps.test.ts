@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { spawnSync } from 'node:child_process';
-import { mkdtempSync, writeFileSync } from 'node:fs';
+import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 
@@ -53,6 +53,29 @@ describe('engine command line: current and husimi', () => {
     expect(out.distribution[0]).toHaveLength(24);
     expect(out.angularResolution).toBeCloseTo(1 / (2 * 12 * out.meanWavenumber), 12);
     for (const p of out.peaks) expect(p.share).toBeGreaterThan(0);
+  });
+
+  it('prints the valley-resolved Husimi map of a graphene dot (the demo dot G1)', () => {
+    const g1 = join(dir, 'g1.json');
+    writeFileSync(g1, JSON.stringify(JSON.parse(readFileSync('catalogue/hl-graphene-g1.json', 'utf8')).model));
+    const r = engine('husimi', g1, '--energy', '1200', '--lead', 'source', '--channel', '1', '--directions', '24', '--grid-nm', '0.3');
+    expect(r.stderr).toBe('');
+    expect(r.status).toBe(0);
+    const out = JSON.parse(r.stdout);
+    expect(out.lattice).toBe('honeycomb');
+    expect(out.diracEnergy).toBe(0);
+    expect(out.valleys.map((v: { name: string }) => v.name)).toEqual(['K', 'K′']);
+    expect(out.points.length).toBeGreaterThan(4);
+    out.points.forEach((p: { carrier: number; valleyShare: number; total: number; kineticEnergy: number }, k: number) => {
+      expect(p.carrier).toBe(1);
+      expect(p.kineticEnergy).toBe(1200);
+      const inK = out.valleys[0].distribution[k].reduce((a: number, b: number) => a + b, 0) / 24;
+      expect(Math.abs(p.valleyShare - inK / p.total)).toBeLessThan(1e-12);
+    });
+    // 10 meV is within 1 % of t = 2.7 eV of the Dirac energy on every atom: no direction is defined there.
+    const dirac = engine('husimi', g1, '--energy', '10', '--lead', 'source', '--channel', '1');
+    expect(dirac.status).toBe(1);
+    expect(dirac.stderr).toContain('Dirac energy');
   });
 
   it('says what is wrong with the state flags', () => {

@@ -20,6 +20,7 @@ import { createLab, type Lab } from './lab-fixture.js';
 import { signInAs, type SignedIn } from './sign-in-as.js';
 import { recordingQueue, startTestApp, testDatabaseUrl, type TestApp } from './test-app.js';
 import { smallRectangle, smallWindow } from './fixtures/small-cavity.js';
+import { readFileSync } from 'node:fs';
 
 /** ħ in meV·ps, CODATA 2018 (docs/physics-model.md). */
 const HBAR = 0.6582119569;
@@ -124,6 +125,8 @@ describe('maps on demand', () => {
     const points = float32(result.husimi!.points).length / 2;
     expect(points).toBeGreaterThan(4);
     expect(float32(result.husimi!.distribution)).toHaveLength(points * 24);
+    // A square-lattice payload carries no valley fields.
+    expect(Object.keys(result.husimi!).filter((k) => ['valleys', 'valleyShare', 'carrier', 'diracEnergy'].includes(k))).toEqual([]);
     expect((await viewer.get(`/api/groups/${lab.groupId}/resonances/${r!.id}/mode-maps`)).body.items[0].id).toBe(first.body.id);
     expect((await outsider.get(`/api/groups/${lab.groupId}/mode-maps/${first.body.id}`)).status).toBe(404);
   });
@@ -142,6 +145,54 @@ describe('maps on demand', () => {
     expect(drain!.current).toBeLessThanOrEqual(1 + 1e-10);
     expect(Math.abs(source!.current + drain!.current)).toBeLessThan(1e-10);
     expect(float32(result.ldos!)).toHaveLength(600);
+  });
+
+  it('computes the valley-resolved Husimi map of a graphene flake (the demo dot G1) through the worker', async () => {
+    const entry = JSON.parse(readFileSync(new URL('../../catalogue/hl-graphene-g1.json', import.meta.url), 'utf8')) as {
+      model: Record<string, unknown>;
+    };
+    const flake = await new ModelService(app.handle.db, inlineCompute).create(lab.groupId, lab.as('designer').id, {
+      ...entry.model,
+      name: 'Graphene map test',
+    });
+    // 1.2 eV above the Dirac point (E_D = 0 here: t′ = 0): electron-like everywhere.
+    const res = await viewer.post(`/api/groups/${lab.groupId}/mode-maps`, {
+      modelId: flake.id,
+      energy: 1200,
+      lead: 0,
+      channel: 1,
+      husimi: { directions: 36, gridNm: 0.25 },
+    });
+    expect(res.status).toBe(202);
+    await handleModeMapJob({ db: app.handle.db, compute: inProcess }, { mapId: res.body.id, retryCount: 0, retryLimit: 2 });
+    const [row] = await app.handle.db.select().from(modeMaps).where(eq(modeMaps.id, res.body.id));
+    expect(row!.error).toBeNull();
+    expect(row!.status).toBe('completed');
+    const result = row!.result as unknown as ModeMapPayload;
+    expect(result.lattice).toBe('honeycomb');
+    const h = result.husimi!;
+    expect(h.diracEnergy).toBe(0);
+    const points = float32(h.points).length / 2;
+    expect(points).toBeGreaterThan(10);
+    expect(h.valleys!.map((v) => v.name)).toEqual(['K', 'K′']);
+    const total = float32(h.distribution);
+    const [pk, pk2] = h.valleys!.map((v) => float32(v.distribution));
+    const share = float32(h.valleyShare!);
+    const carrier = float32(h.carrier!);
+    expect(total).toHaveLength(points * 36);
+    for (let p = 0; p < points; p++) {
+      expect(carrier[p]).toBe(1);
+      let sk = 0;
+      let all = 0;
+      for (let d = 0; d < 36; d++) {
+        const k = p * 36 + d;
+        // The map is the sum of its valleys (to float32 rounding).
+        expect(Math.abs(pk![k]! + pk2![k]! - total[k]!)).toBeLessThanOrEqual(1e-6 * Math.max(total[k]!, 1e-30));
+        sk += pk![k]!;
+        all += total[k]!;
+      }
+      expect(Math.abs(share[p]! - sk / all)).toBeLessThan(1e-5);
+    }
   });
 
   it('refuses a wrong request with the field that is wrong', async () => {

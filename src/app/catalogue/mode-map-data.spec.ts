@@ -1,5 +1,5 @@
 import type { ModeMapPayload } from '../../../shared/api/mode-maps';
-import { currentArrows, decodeModeMap, drawY, glyphPath, scaleBarLength } from './mode-map-data';
+import { currentArrows, decodeModeMap, drawY, glyphPath, scaleBarLength, valleyColour } from './mode-map-data';
 
 function b64(values: number[]): string {
   const bytes = new Uint8Array(Float32Array.from(values).buffer);
@@ -105,7 +105,58 @@ describe('mode-map data', () => {
     expect(scaleBarLength(150)).toBe(20);
     expect(scaleBarLength(1000)).toBe(200);
     expect(scaleBarLength(37)).toBe(5);
-    const h = { x: new Float32Array([0]), y: new Float32Array([0]), directions: [0, Math.PI / 2, Math.PI, (3 * Math.PI) / 2], distribution: new Float32Array([1, 0, 0, 0]), peaks: [], strength: new Float32Array([1]), maxP: 1 };
+    const h = { x: new Float32Array([0]), y: new Float32Array([0]), directions: [0, Math.PI / 2, Math.PI, (3 * Math.PI) / 2], distribution: new Float32Array([1, 0, 0, 0]), peaks: [], strength: new Float32Array([1]), maxP: 1, valley: null, valleyShare: null, emptyPoints: 0 };
     expect(glyphPath(h, 0, 10, 10, 4)).toMatch(/^M14\.00,10\.00L10\.00,10\.00.*Z$/);
+  });
+
+  it("draws one valley of a honeycomb Husimi map from that valley's own rows and peaks", () => {
+    // Two points, four directions: valley K all along +x at point 0, K′ along +y at point 1; point 1 also has some K.
+    const k = [1, 0, 0, 0, 0.2, 0, 0, 0];
+    const k2 = [0, 0, 0, 0, 0, 0.6, 0, 0];
+    const husimi = {
+      sigmaNm: 1,
+      gridNm: 1,
+      directions: [0, Math.PI / 2, Math.PI, (3 * Math.PI) / 2],
+      angularResolution: 0.2,
+      meanWavenumber: 2,
+      peakThreshold: 0.3,
+      points: b64([0.1, 0.1, 0.3, 0.1]),
+      distribution: b64(k.map((v, n) => v + k2[n])),
+      vectorSum: b64([0, 0, 0, 0]),
+      kineticEnergy: b64([500, 500]),
+      peaks: [
+        { point: 0, angle: 0, share: 1 },
+        { point: 1, angle: Math.PI / 2, share: 0.75 },
+      ],
+      diracEnergy: 0,
+      carrier: b64([1, 1]),
+      valleyShare: b64([1, 0.25]),
+      valleys: [
+        { name: 'K' as const, centre: [17, 0] as [number, number], distribution: b64(k), vectorSum: b64([0, 0, 0, 0]), peaks: [{ point: 0, angle: 0, share: 1 }] },
+        { name: 'K′' as const, centre: [-17, 0] as [number, number], distribution: b64(k2), vectorSum: b64([0, 0, 0, 0]), peaks: [{ point: 1, angle: Math.PI / 2, share: 1 }] },
+      ],
+    };
+    const p = { ...honeycombPayload(), husimi };
+    const both = decodeModeMap(p).husimi!;
+    expect(both.valley).toBe('both');
+    expect(both.distribution[5]).toBeCloseTo(0.6, 6);
+    expect(both.distribution[4]).toBeCloseTo(0.2, 6);
+    expect(both.peaks).toHaveLength(2);
+    expect(Array.from(both.valleyShare!)).toEqual([1, 0.25]);
+    const other = decodeModeMap(p, p.husimi, 'K′').husimi!;
+    expect(other.valley).toBe('K′');
+    expect(other.distribution[4]).toBe(0);
+    expect(other.distribution[0]).toBe(0);
+    expect(other.peaks).toEqual([{ point: 1, angle: Math.PI / 2, share: 1 }]);
+    // Point 0 has no K′ at all: its glyph has zero strength in that valley.
+    expect(other.strength[0]).toBe(0);
+    expect(decodeModeMap(p, p.husimi, 'K').husimi!.peaks).toEqual([{ point: 0, angle: 0, share: 1 }]);
+    expect(decodeModeMap(payload()).husimi).toBeNull();
+  });
+
+  it('tints a glyph from orange (all K) to blue (all K′) and leaves an empty point untinted', () => {
+    expect(valleyColour(1)).toBe('rgb(254,97,0)');
+    expect(valleyColour(0)).toBe('rgb(100,143,255)');
+    expect(valleyColour(NaN)).toBeNull();
   });
 });

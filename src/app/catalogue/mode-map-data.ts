@@ -36,16 +36,23 @@ export interface ModeMapField {
   husimi: HusimiField | null;
 }
 
+/** Which valley of a honeycomb map is shown: one of them, or their sum. */
+export type ValleyChoice = 'both' | 'K' | 'K′';
+
 export interface HusimiField {
   x: Float32Array;
   y: Float32Array;
   directions: number[];
-  /** P per point × direction. */
+  /** P per point × direction (on the honeycomb: of the chosen valley, or of both). */
   distribution: Float32Array;
   peaks: { point: number; angle: number; share: number }[];
   /** Mean P per point over the largest mean. */
   strength: Float32Array;
   maxP: number;
+  /** Honeycomb only: the valley shown, valley K's share per point (NaN where empty) and the number of empty points. */
+  valley: ValleyChoice | null;
+  valleyShare: Float32Array | null;
+  emptyPoints: number;
 }
 
 function float32FromBase64(b64: string): Float32Array {
@@ -55,7 +62,7 @@ function float32FromBase64(b64: string): Float32Array {
   return new Float32Array(bytes.buffer);
 }
 
-export function decodeModeMap(p: ModeMapPayload, husimi: HusimiPayload | null = p.husimi): ModeMapField {
+export function decodeModeMap(p: ModeMapPayload, husimi: HusimiPayload | null = p.husimi, valley: ValleyChoice = 'both'): ModeMapField {
   const { nx, ny } = p.grid;
   const bin = atob(p.mask);
   const siteOf = new Int32Array(nx * ny).fill(-1);
@@ -101,12 +108,14 @@ export function decodeModeMap(p: ModeMapPayload, husimi: HusimiPayload | null = 
     jx,
     jy,
     ldos: p.ldos ? float32FromBase64(p.ldos) : null,
-    husimi: husimi ? decodeHusimi(husimi) : null,
+    husimi: husimi ? decodeHusimi(husimi, valley) : null,
   };
 }
 
-function decodeHusimi(h: HusimiPayload): HusimiField {
+function decodeHusimi(h: HusimiPayload, valley: ValleyChoice): HusimiField {
   const pts = float32FromBase64(h.points);
+  // On the honeycomb the top level is the sum of the valleys; one valley is drawn from its own rows and peaks.
+  const one = h.valleys && valley !== 'both' ? h.valleys.find((v) => v.name === valley) : undefined;
   const count = pts.length / 2;
   const x = new Float32Array(count);
   const y = new Float32Array(count);
@@ -114,7 +123,7 @@ function decodeHusimi(h: HusimiPayload): HusimiField {
     x[p] = pts[2 * p];
     y[p] = pts[2 * p + 1];
   }
-  const distribution = float32FromBase64(h.distribution);
+  const distribution = float32FromBase64(one ? one.distribution : h.distribution);
   const m = h.directions.length;
   const mean = new Float32Array(count);
   let maxMean = 0;
@@ -129,7 +138,19 @@ function decodeHusimi(h: HusimiPayload): HusimiField {
     maxMean = Math.max(maxMean, mean[p]);
   }
   for (let p = 0; p < count; p++) mean[p] = maxMean > 0 ? mean[p] / maxMean : 0;
-  return { x, y, directions: h.directions, distribution, peaks: h.peaks, strength: mean, maxP };
+  const carrier = h.carrier ? float32FromBase64(h.carrier) : null;
+  return {
+    x,
+    y,
+    directions: h.directions,
+    distribution,
+    peaks: one ? one.peaks : h.peaks,
+    strength: mean,
+    maxP,
+    valley: h.valleys ? valley : null,
+    valleyShare: h.valleyShare ? float32FromBase64(h.valleyShare) : null,
+    emptyPoints: carrier ? carrier.filter((c) => c === 0).length : 0,
+  };
 }
 
 /** Drawing Y (nm, down) of a lattice y (nm, up). */
@@ -190,6 +211,18 @@ export function scaleBarLength(visibleWidthNm: number): number {
   const p = 10 ** Math.floor(Math.log10(target));
   for (const m of [5, 2, 1]) if (m * p <= target) return m * p;
   return p;
+}
+
+/**
+ * Fill of a honeycomb glyph by valley K's share: orange (K) through grey to blue (K′), two
+ * colours told apart with the common colour-vision deficiencies; null for an empty point.
+ */
+export function valleyColour(share: number): string | null {
+  if (!Number.isFinite(share)) return null;
+  const k = [254, 97, 0];
+  const k2 = [100, 143, 255];
+  const mix = k.map((c, n) => Math.round(c * share + k2[n] * (1 - share)));
+  return `rgb(${mix[0]},${mix[1]},${mix[2]})`;
 }
 
 /** SVG path of a polar glyph: radius ∝ P(θ)/maxP around (x, y) in drawing coordinates. */

@@ -12,7 +12,7 @@ import { HttpErrorResponse } from '@angular/common/http';
 import { Subscription, filter, switchMap, take, timer } from 'rxjs';
 import { ErrorReport } from '../core/errors/error-report';
 import type { ModeMapPayload } from '../../../shared/api/mode-maps';
-import { decodeModeMap } from './mode-map-data';
+import { decodeModeMap, type ValleyChoice } from './mode-map-data';
 import { ModeMapApi, type HusimiSettings, type ModeMapRequest } from './mode-map-api';
 import { ModeMapView, type ModeMapLayers } from './mode-map-view';
 import { significant } from '../core/format/energy-format';
@@ -63,6 +63,8 @@ export class ModeMapPanel {
   protected readonly job = signal<ModeMapJob | null>(null);
   protected readonly jobError = signal<string | null>(null);
 
+  /** On the honeycomb: which valley's Husimi map is drawn (their sum by default). */
+  protected readonly valley = signal<ValleyChoice>('both');
   protected layers = signal<ModeMapLayers>({ background: 'density', current: true, husimi: false, peaks: false });
   protected sigmaNm: number | null = null;
   protected directions = 48;
@@ -79,11 +81,47 @@ export class ModeMapPanel {
   });
   protected readonly field = computed(() => {
     const p = this.payload();
-    return p ? decodeModeMap(p) : null;
+    return p ? decodeModeMap(p, p.husimi, this.valley()) : null;
   });
   protected readonly husimi = computed(() => this.payload()?.husimi ?? null);
-  /** Husimi maps are refused on the honeycomb (their coherent states follow the square band): no button that only fails. */
   protected readonly honeycomb = computed(() => (this.modeMap() ?? this.scattering())?.lattice === 'honeycomb');
+  /**
+   * A honeycomb Husimi map's valley figures: valley K's share over the non-empty points (mean, range), the
+   * empty points, and whether σ is large against the cavity (long wavelength near the Dirac point).
+   */
+  protected readonly valleySummary = computed(() => {
+    const f = this.field();
+    const h = f?.husimi;
+    if (!f || !h?.valleyShare) return null;
+    let sum = 0,
+      count = 0,
+      lo = 1,
+      hi = 0;
+    for (const v of h.valleyShare) {
+      if (!Number.isFinite(v)) continue;
+      sum += v;
+      count++;
+      lo = Math.min(lo, v);
+      hi = Math.max(hi, v);
+    }
+    let w = 0,
+      ht = 0;
+    for (let s = 0; s < f.x.length; s++) {
+      w = Math.max(w, f.x[s]);
+      ht = Math.max(ht, f.y[s]);
+    }
+    const sigma = this.husimi()!.sigmaNm;
+    return {
+      mean: count ? sum / count : NaN,
+      lo,
+      hi,
+      points: h.valleyShare.length,
+      empty: h.emptyPoints,
+      /** σ above a quarter of the cavity's smaller side: the map averages over much of the cavity. */
+      wide: sigma > 0.25 * Math.min(w, ht),
+      diracEnergy: this.husimi()!.diracEnergy ?? 0,
+    };
+  });
   /** A bound state's current is zero: the map's values are rounding, and arrows scaled to their own maximum would mislead. */
   protected readonly bound = computed(() => this.payload()?.state.kind === 'bound');
   protected readonly viewLayers = computed(() => (this.bound() ? { ...this.layers(), current: false } : this.layers()));
@@ -103,7 +141,16 @@ export class ModeMapPanel {
         : `${this.backgroundWords()} · white arrows: probability current, largest site ${significant(this.largestArrow(), 3)} ${p.unit}`,
     ];
     const h = p.husimi;
-    if (h) {
+    const vs = this.valleySummary();
+    if (h && vs) {
+      const which = this.valley() === 'both' ? 'both valleys (glyph colour: valley K share, orange K → blue K′)' : `valley ${this.valley()}`;
+      lines.push(
+        `Husimi, ${which}: angle = ray direction (group velocity) of the valley's cone; σ = ${significant(h.sigmaNm, 3)} nm, ${h.directions.length} directions, grid ${significant(h.gridNm, 3)} nm, angular resolution ≈ ${significant((h.angularResolution * 180) / Math.PI, 2)}°`,
+        `Valley K share ${significant(vs.mean * 100, 3)} % (${significant(vs.lo * 100, 2)}–${significant(vs.hi * 100, 2)} %)` +
+          (vs.empty ? `; ${vs.empty} of ${vs.points} points near the Dirac energy left empty` : '') +
+          (vs.wide ? '; σ is large against the cavity (long wavelength near the Dirac point): the map is blurred in space' : ''),
+      );
+    } else if (h) {
       lines.push(
         `Husimi: σ = ${significant(h.sigmaNm, 3)} nm, ${h.directions.length} directions, grid ${significant(h.gridNm, 3)} nm, angular resolution ≈ ${significant((h.angularResolution * 180) / Math.PI, 2)}°; amber arrows: peaks above ${significant(h.peakThreshold * 100, 2)} %`,
       );

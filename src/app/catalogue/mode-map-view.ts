@@ -2,7 +2,7 @@ import { ChangeDetectionStrategy, Component, ElementRef, computed, effect, input
 import { MatButtonModule } from '@angular/material/button';
 import { MatIconModule } from '@angular/material/icon';
 import { interpolateCividis, interpolateSinebow } from 'd3-scale-chromatic';
-import { currentArrows, drawY, glyphPath, scaleBarLength, type ModeMapField } from './mode-map-data';
+import { currentArrows, drawY, glyphPath, scaleBarLength, valleyColour, type ModeMapField } from './mode-map-data';
 
 /** Which layers are drawn and how the background is coloured. */
 export interface ModeMapLayers {
@@ -145,7 +145,9 @@ export class ModeMapView {
     if (!h || !this.layers().husimi) return [];
     const f = this.field();
     const spacing = minSpacing(h.x, h.y) || 10 * f.a;
-    return Array.from(h.x, (x, p) => glyphPath(h, p, x, drawY(f, h.y[p]), 0.48 * spacing));
+    // On the honeycomb with both valleys shown, each glyph is tinted by its point's valley share.
+    const tint = h.valleyShare && h.valley === 'both' ? h.valleyShare : null;
+    return Array.from(h.x, (x, p) => ({ d: glyphPath(h, p, x, drawY(f, h.y[p]), 0.48 * spacing), fill: (tint && valleyColour(tint[p])) || '#fe6100' }));
   });
 
   protected readonly peakArrows = computed(() => {
