@@ -14,17 +14,25 @@ import { buildLattice, hamiltonianEntries, addHamiltonian, indexSites } from './
 import { channelFlags, leadChannels, leadThresholds, mouthBlock, mouthPhases, selfEnergyCoefficients, selfEnergyDerivativeCoefficients } from './leads';
 import { InvalidModelError, type CavitySystem, type SystemLead } from './cavity-system';
 import { latticeLeads, withNumericalLeads } from './numerical-lead-system';
+import type { BandEdge } from './numerical-lead-bands';
 import { buildPattern, patternSlot } from './sparsity-pattern';
 import type { Complex, NonlinearOperator, SheetFlags } from './operator';
 
 export { InvalidModelError, type CavitySystem } from './cavity-system';
 
+/** What a caller may hand buildCavitySystem from an earlier build of the same document. */
+interface PrebuiltLeads {
+  /** leadEdgesOf(system) of the earlier build: its numerical leads' band edges, one entry per lead. */
+  leadEdges?: readonly (readonly BandEdge[] | null)[];
+}
+
 /**
  * Validates a model document and builds its lattice and leads. Throws
  * InvalidModelError with field paths when the document is invalid.
- * Cost O(nx·ny + Σ W²).
+ * Cost O(nx·ny + Σ W²), plus each numerical lead's threshold search (O(kSamples·W³)) unless
+ * `prebuilt.leadEdges` holds its edges from an earlier build of the same document.
  */
-export function buildCavitySystem(doc: unknown): CavitySystem {
+export function buildCavitySystem(doc: unknown, prebuilt: PrebuiltLeads = {}): CavitySystem {
   const checked = validateCavityModel(doc);
   if (!checked.ok) throw new InvalidModelError(checked.issues);
   const { model, mask } = checked;
@@ -40,7 +48,7 @@ export function buildCavitySystem(doc: unknown): CavitySystem {
     const tb = modelTightBinding(model);
     const lattice = buildTightBinding(mask, nx, ny, tb, potential);
     // Leads of any lattice: the lead's cell as a ribbon of the same lattice, solved numerically.
-    const leads = latticeLeads(model, mask, lattice.siteIndex, tb);
+    const leads = latticeLeads(model, mask, lattice.siteIndex, tb, prebuilt.leadEdges);
     return { model, massRatio, spacing: model.spacing, placement, mask, lattice, sites: lattice.sites, hopping, flux: lattice.flux, leads };
   }
   const lattice = buildLattice(mask, nx, ny, hopping, flux, potential, model.spacing);
@@ -58,7 +66,7 @@ export function buildCavitySystem(doc: unknown): CavitySystem {
   });
   const system: CavitySystem = { model, massRatio, spacing: model.spacing, placement, mask, lattice, sites: lattice.sites, hopping, flux, leads };
   // The field in the leads needs the numerical leads; without a field they are the closed form's (the same Σ).
-  return model.fieldInLeads === true && flux !== 0 ? withNumericalLeads(system, { fieldInLeads: true }) : system;
+  return model.fieldInLeads === true && flux !== 0 ? withNumericalLeads(system, { fieldInLeads: true, edges: prebuilt.leadEdges }) : system;
 }
 
 /** Open-channel coupling vectors W (columns sqrt(2t sin k_m)·e^{−iθ_p}χ_m(p) on each mouth). */

@@ -48,6 +48,11 @@ interface LeadChannelsAt {
 export interface NumericalLeadOptions {
   /** k samples for the band edges (default 128). */
   kSamples?: number;
+  /**
+   * The band edges of this very cell, found before (by another thread's copy of the same
+   * lead, see leadEdgesOf): the search is skipped. Plain data, so it crosses threads.
+   */
+  edges?: readonly BandEdge[];
 }
 
 export class NumericalLead {
@@ -70,7 +75,7 @@ export class NumericalLead {
     this.cell = spec.cell;
     this.mouthSize = spec.mouthSize;
     this.coupling = spec.coupling;
-    this.edges = leadBandEdges(spec.cell, options.kSamples ?? 128);
+    this.edges = options.edges ? options.edges.map((e) => ({ ...e })) : leadBandEdges(spec.cell, options.kSamples ?? 128);
     this.thresholds = this.edges.map((e) => e.energy);
   }
 

@@ -1,6 +1,8 @@
 import { describe, expect, it } from 'vitest';
 import type { CavityModel } from '../../shared/model/cavity-model';
+import { buildCavitySystem, EffectiveHamiltonian } from '../../shared/engine/effective-hamiltonian';
 import { leadCellOf } from '../../shared/engine/lead-cell';
+import { leadEdgesOf } from '../../shared/engine/numerical-lead-system';
 import { leadBandEdges, leadBands } from '../../shared/engine/numerical-lead-bands';
 import type { LeadCellBlocks } from '../../shared/engine/numerical-lead-modes';
 import { squareRibbonCell, zigzagRibbonCell } from './numerical-lead-systems';
@@ -101,5 +103,63 @@ describe('thresholds of numerical leads against dense sampling', () => {
       for (const e of edges) if (!merged.length || e - merged[merged.length - 1] > 1e-9 * reference.scale) merged.push(e);
       expect(merged.length).toBe(reference.energies.length);
       for (let i = 0; i < merged.length; i++) expect(Math.abs(merged[i] - reference.energies[i])).toBeLessThanOrEqual(1e-12 * reference.scale);
+    });
+});
+
+describe('building the leads again from their band edges (pole-search threads)', () => {
+  // A graphene dot with armchair leads and a square dot with the field in its leads.
+  const documents: [string, unknown][] = [
+    [
+      'graphene, armchair leads',
+      {
+        name: 'armchair dot',
+        spacing: 0.142,
+        lattice: { kind: 'honeycomb', hopping: 2.7 },
+        grid: { nx: 8, ny: 6 },
+        // covers grid columns 0..7 and rows 0..5 exactly (column step √3/2·a_CC, row step 3/2·a_CC)
+        shape: { kind: 'rectangle', x0: -0.01, y0: -0.01, width: 8 * 0.5 * Math.sqrt(3) * 0.142, height: 6 * 1.5 * 0.142 },
+        leads: [
+          { side: 'bottom', start: 0, width: 8 },
+          { side: 'top', start: 0, width: 8 },
+        ],
+      },
+    ],
+    [
+      'square, field in the leads',
+      {
+        name: 'field dot',
+        spacing: 5,
+        material: 'gaas',
+        grid: { nx: 12, ny: 10 },
+        shape: { kind: 'rectangle', x0: 0, y0: 0, width: 60, height: 50 },
+        field: 2,
+        fieldInLeads: true,
+        leads: [
+          { side: 'left', start: 2, width: 6 },
+          { side: 'right', start: 3, width: 6 },
+        ],
+      },
+    ],
+  ];
+  for (const [name, doc] of documents)
+    it(`${name}: the same thresholds and T(z), and the edges handed over are the ones used`, () => {
+      const system = buildCavitySystem(doc);
+      const edges = leadEdgesOf(system);
+      expect(edges.every((e) => e !== null && e.length > 0)).toBe(true);
+      const again = buildCavitySystem(doc, { leadEdges: edges });
+      again.leads.forEach((lead, k) => expect(lead.numerical!.thresholds).toEqual(system.leads[k].numerical!.thresholds));
+      const a = new EffectiveHamiltonian(system);
+      const b = new EffectiveHamiltonian(again);
+      const z = { re: 0.5 * (a.thresholds[0] + a.thresholds[1]), im: -0.01 * Math.abs(a.thresholds[1] - a.thresholds[0]) };
+      const sheet = a.sheetAt(z.re);
+      const va = new Float64Array(2 * a.colPtr[a.n]);
+      const vb = new Float64Array(2 * b.colPtr[b.n]);
+      a.assemble(z, sheet, va);
+      b.assemble(z, sheet, vb);
+      expect(Array.from(vb)).toEqual(Array.from(va));
+      // edges handed over are taken as they are, not searched again
+      const shifted = edges.map((list) => list!.map((e) => ({ ...e, energy: e.energy + 1 })));
+      const moved = buildCavitySystem(doc, { leadEdges: shifted });
+      moved.leads.forEach((lead, k) => expect(lead.numerical!.thresholds).toEqual(shifted[k].map((e) => e.energy)));
     });
 });
