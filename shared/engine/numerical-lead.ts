@@ -191,14 +191,26 @@ export class NumericalLead {
 
   /** Σ(z) and dΣ/dz on the mouth (each M×M). Cost O(n³). */
   selfEnergyWithDerivative(zRe: number, zIm: number, sheet?: readonly boolean[]): { sigma: Float64Array; derivative: Float64Array } {
+    const parts = this.selfEnergyParts(zRe, zIm, sheet);
+    return { sigma: parts.sigma, derivative: parts.derivative() };
+  }
+
+  /**
+   * Σ(z) now and dΣ/dz when asked, from the same g (the same numbers as selfEnergyWithDerivative):
+   * a contour node needs Σ only, a Newton step both. Cost O(n³) each.
+   */
+  selfEnergyParts(zRe: number, zIm: number, sheet?: readonly boolean[]): { sigma: Float64Array; derivative: () => Float64Array } {
     const n = this.cell.size;
     const g = this.surfaceGreen(zRe, zIm, sheet);
-    // H1 of the formulas is H[cell k, cell k+1] = forwardHopping; its adjoint is the cell's own h1.
-    const a = denseMultiply(n, n, n, g, forwardHopping(this.cell));
-    const b = denseMultiply(n, n, n, this.cell.h1, g);
-    const c = denseMultiply(n, n, n, g, g);
-    for (let e = 0; e < c.length; e++) c[e] = -c[e];
-    return { sigma: this.project(g), derivative: this.project(solveStein(n, a, b, c)) };
+    const derivative = () => {
+      // H1 of the formulas is H[cell k, cell k+1] = forwardHopping; its adjoint is the cell's own h1.
+      const a = denseMultiply(n, n, n, g, forwardHopping(this.cell));
+      const b = denseMultiply(n, n, n, this.cell.h1, g);
+      const c = denseMultiply(n, n, n, g, g);
+      for (let e = 0; e < c.length; e++) c[e] = -c[e];
+      return this.project(solveStein(n, a, b, c));
+    };
+    return { sigma: this.project(g), derivative };
   }
 
   /** dΣ/dz on the mouth (M×M). */
