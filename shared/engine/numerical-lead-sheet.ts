@@ -22,7 +22,7 @@
  * no tracking: its continuation is |λ| < 1 everywhere. Within 1e-10 of the piece's width of
  * the real axis the real axis's choice is taken (the side of a propagating λ is below rounding).
  */
-import { leadPencil, realModes, type LeadCellBlocks, type LeadPencil } from './numerical-lead-modes';
+import { leadPencil, realModes, realModesKept, type LeadCellBlocks, type LeadPencil } from './numerical-lead-modes';
 
 /** A threshold piece (lo, hi) of the real axis; ±Infinity at the ends. */
 export interface LeadPiece {
@@ -64,7 +64,7 @@ export function retardedChoice(cell: LeadCellBlocks, zRe: number, zIm: number, p
   const nearAxis = zIm !== 0 && Number.isFinite(piece.hi - piece.lo) && Math.abs(zIm) <= 1e-10 * (piece.hi - piece.lo) && zRe > piece.lo && zRe < piece.hi;
   if (nearAxis) {
     try {
-      const modes = realModes(cell, zRe);
+      const modes = realModesKept(cell, zRe);
       return { pencil: modes.pencil, select: modes.retarded, solves: 1 };
     } catch (e) {
       // an exact band crossing at Re z: follow the modes as below
@@ -79,7 +79,7 @@ export function retardedChoice(cell: LeadCellBlocks, zRe: number, zIm: number, p
   }
   if (zIm === 0) {
     if (!(zRe > piece.lo && zRe < piece.hi)) throw new RangeError(`retardedChoice: real energy ${zRe} is not inside the piece (${piece.lo}, ${piece.hi})`);
-    const modes = realModes(cell, zRe);
+    const modes = realModesKept(cell, zRe);
     return { pencil: modes.pencil, select: modes.retarded, solves: 1 };
   }
   const width = piece.hi - piece.lo;

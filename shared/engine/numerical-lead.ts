@@ -19,7 +19,7 @@
 import { complexSchur, reorderSchur } from './complex-schur';
 import { conjugateTranspose, denseLu, denseLuSolve, denseMultiply } from './dense-solve';
 import { leadBandEdges, type BandEdge } from './numerical-lead-bands';
-import { forwardHopping, realModes, type LeadCellBlocks } from './numerical-lead-modes';
+import { forwardHopping, realModesKept, type LeadCellBlocks } from './numerical-lead-modes';
 import { retardedChoice, type LeadPiece, type RetardedChoice } from './numerical-lead-sheet';
 
 /** A lead given by its cell and its coupling to the cavity. */
@@ -234,7 +234,7 @@ export class NumericalLead {
   private channelsInside(energy: number, sheet: readonly boolean[]): LeadChannelsAt {
     const n = this.cell.size;
     const mm = this.mouthSize;
-    const modes = realModes(this.cell, energy);
+    const modes = realModesKept(this.cell, energy);
     this.solves++;
     const out = modes.propagating.filter((p) => p.velocity > 0);
     const count = out.length;

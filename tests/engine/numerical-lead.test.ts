@@ -12,7 +12,7 @@ import {
   selfEnergyDerivativeCoefficients,
 } from '../../shared/engine/leads';
 import { leadBands } from '../../shared/engine/numerical-lead-bands';
-import { realModes } from '../../shared/engine/numerical-lead-modes';
+import { realModes, realModesKept } from '../../shared/engine/numerical-lead-modes';
 import { NumericalLead, solveStein } from '../../shared/engine/numerical-lead';
 import { deviceScattering, ribbonDevice, squareRibbonCell, zigzagRibbonCell } from './numerical-lead-systems';
 
@@ -292,6 +292,21 @@ describe('numerical leads of other cells', () => {
     const lead = new NumericalLead({ cell, mouthSize: n, coupling }, { kSamples: 64 });
     for (const e of [-1, 1]) expect(Math.min(...lead.thresholds.map((x) => Math.abs(x - e)))).toBeLessThan(1e-9);
     expect(realModes(cell, 1 + 1e-4).propagating.length - realModes(cell, 1 - 1e-4).propagating.length).toBe(2);
+  });
+
+  it('kept real-energy modes are handed out as copies: reordering one leaves the next equal to a fresh solve', () => {
+    const cell = zigzagRibbonCell(4, 1);
+    const e = 0.37;
+    const first = realModesKept(cell, e);
+    reorderSchur(first.pencil.schur, first.retarded);
+    first.retarded.fill(false);
+    first.propagating[0].vector.fill(0);
+    const again = realModesKept(cell, e);
+    const fresh = realModes(cell, e);
+    expect(Array.from(again.pencil.schur.q)).toEqual(Array.from(fresh.pencil.schur.q));
+    expect(Array.from(again.pencil.schur.t)).toEqual(Array.from(fresh.pencil.schur.t));
+    expect(again.retarded).toEqual(fresh.retarded);
+    expect(Array.from(again.propagating[0].vector)).toEqual(Array.from(fresh.propagating[0].vector));
   });
 
   it('Γ = i(Σ − Σ†) = W·W† with the flux-normalised columns, in a field and for zigzag graphene', () => {
