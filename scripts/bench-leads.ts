@@ -1,7 +1,7 @@
 // `npm run bench -- --only=leads`: numerical leads (honeycomb ribbons). The threshold search of
 // a wide armchair and a wide zigzag lead, one self-energy with its derivative at a complex
-// energy, and certified pole searches of graphene dots with numerical leads (build and search
-// timed apart). Wall and CPU time of this process; the load average goes with every figure.
+// energy, certified pole searches of graphene dots with numerical leads (build and search
+// timed apart) and a transmission sweep. Wall and CPU time of this process; the load average goes with every figure.
 import { readFileSync } from 'node:fs';
 import { cpuUsage } from 'node:process';
 import { loadavg } from 'node:os';
@@ -11,6 +11,7 @@ import { leadCellOf } from '../shared/engine/lead-cell';
 import { leadBandEdges } from '../shared/engine/numerical-lead-bands';
 import { NumericalLead } from '../shared/engine/numerical-lead';
 import { findPoles } from '../shared/engine/poles';
+import { transmissionSweep } from '../shared/engine/transmission';
 
 /** Wall and CPU milliseconds of f. */
 function timed<T>(f: () => T): [T, number, number] {
@@ -60,11 +61,21 @@ function leadBuild(side: 'top' | 'left', width: number): Record<string, number |
   };
 }
 
-function dotSearch(doc: CavityModelInput, window: { emin: number; emax: number; gammaMax: number }): Record<string, number | string> {
+function dotSearch(
+  doc: CavityModelInput,
+  window: { emin: number; emax: number; gammaMax: number },
+  sweep?: { emin: number; emax: number; points: number },
+): Record<string, number | string> {
   const [system, bWall, bCpu] = timed(() => buildCavitySystem(doc));
   const op = new EffectiveHamiltonian(system);
   const [search, sWall, sCpu] = timed(() => findPoles(op, window));
+  const swept: Record<string, string> = {};
+  if (sweep) {
+    const [, wWall, wCpu] = timed(() => transmissionSweep(op, sweep));
+    swept[`transmission, ${sweep.points} energies, wall / CPU (ms)`] = `${Math.round(wWall)} / ${Math.round(wCpu)}`;
+  }
   return {
+    ...swept,
     atoms: op.n,
     'lead thresholds': system.leads.map((l) => l.numerical?.thresholds.length ?? 0).join(' + '),
     'build wall / CPU (ms)': `${Math.round(bWall)} / ${Math.round(bCpu)}`,
@@ -89,6 +100,7 @@ export function benchLeads(): Record<string, Record<string, number | string>> {
       { side: 'top', start: 1, width: 20 },
     ]),
     { emin: 300, emax: 900, gammaMax: 200 },
+    { emin: 100, emax: 2000, points: 30 },
   );
   for (const v of Object.values(out)) v['load average (1 min)'] = loadavg()[0].toFixed(2);
   return out;
