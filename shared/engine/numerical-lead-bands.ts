@@ -307,7 +307,7 @@ export function leadBandEdges(cell: LeadCellBlocks, samples = 128, stats?: { sol
       if (!isMin && !isMax) continue;
       // A flat stretch (a Landau level's plateau) holds many rounding-level extrema: refine one.
       if (edges.some((e) => e.band === b && Math.abs(e.energy - e1) <= 1e-10 * scale)) continue;
-      // A crossing of this band with the one below, met while refining that band inside this bracket.
+      // A crossing of this band, met inside this bracket while refining the band it crosses.
       if (meetings.some((m) => m.from !== b && m.bands.includes(b) && Math.abs(wrap(m.k - ks[i])) < h)) continue;
       let lo = ks[i] - h;
       let hi = ks[i] + h;
