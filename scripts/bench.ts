@@ -1,6 +1,6 @@
 // `npm run bench`: prints the speed figures of the engine and the catalogue on this
 // machine. Nothing here is asserted; compare the figures by eye with the targets in
-// DEVELOPERS.md. Sections: --only lu,transmission,sweep,poles,scaling,catalogue,estimate,load,studies (default all).
+// DEVELOPERS.md. Sections: --only lu,transmission,sweep,poles,scaling,catalogue,estimate,load,studies,leads (default all).
 import { cpus, loadavg } from 'node:os';
 import { buildCavitySystem, EffectiveHamiltonian } from '../shared/engine/effective-hamiltonian';
 import { findPoles, findPolesWith, poleWorkSetup } from '../shared/engine/poles';
@@ -12,8 +12,11 @@ import { benchCatalogue } from './bench-catalogue';
 import { benchLoad } from './bench-load';
 import { benchCavity } from './bench-cavity';
 import { benchStudies } from './bench-studies';
+import { benchLeads } from './bench-leads';
 
-const only = (process.argv.find((a) => a.startsWith('--only='))?.slice(7) ?? 'lu,transmission,sweep,poles,scaling,catalogue,estimate,load,studies').split(',');
+const only = (process.argv.find((a) => a.startsWith('--only='))?.slice(7) ?? 'lu,transmission,sweep,poles,scaling,catalogue,estimate,load,studies,leads').split(
+  ',',
+);
 const print = (title: string, figures: Record<string, number | string>) => {
   console.log(`\n== ${title}`);
   for (const [k, v] of Object.entries(figures)) console.log(`  ${k.padEnd(40)} ${typeof v === 'number' && !Number.isInteger(v) ? v.toPrecision(4) : v}`);
@@ -111,3 +114,4 @@ if (only.includes('estimate')) {
 if (only.includes('studies'))
   print('parameter study: 40-step field sweep of the 2,500-site bench rectangle, whole steps on 1, 2, 4 processes', await benchStudies());
 if (only.includes('load')) print('HTTP load on loopback: sign-in, catalogue, resonance, mode image, run launch (20 clients each)', await benchLoad());
+if (only.includes('leads')) for (const [title, figures] of Object.entries(benchLeads())) print(`numerical leads: ${title}`, figures);

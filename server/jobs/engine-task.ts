@@ -8,6 +8,7 @@ import type { WorkControl } from '../../shared/engine/operator.js';
 import { findPoles, findPolesWith, poleWorkSetup } from '../../shared/engine/poles.js';
 import type { CertificatePiece, PoleSearchOptions, PoleSearchResult } from '../../shared/engine/pole-types.js';
 import { PoleThreadPool } from './pole-pool.js';
+import { leadEdgesOf } from '../../shared/engine/numerical-lead-system.js';
 import { poleAnchors, transmissionSweep } from '../../shared/engine/transmission.js';
 import { withCurrents, type RunPole } from '../modemaps/pole-currents.js';
 import type { Spectrum } from '../../shared/api/runs.js';
@@ -84,7 +85,7 @@ export async function runEngineTaskWithPool(task: EngineTask, control: WorkContr
   const ctx = startTask(task);
   if (ctx.op.n < POOL_MIN_SITES) return finishTask(ctx, { ...task, threads: 1 }, findPoles(ctx.op, task.window, poleOptions(task, control)), control);
   const options = poleOptions(task, control);
-  const pool = await PoleThreadPool.start(task.document, poleWorkSetup(options), threads);
+  const pool = await PoleThreadPool.start(task.document, poleWorkSetup(options), threads, leadEdgesOf(ctx.system));
   let search: PoleSearchResult;
   try {
     search = await findPolesWith(ctx.op, task.window, options, pool);

@@ -1,19 +1,20 @@
 /**
  * One thread of a PoleThreadPool: builds the operator and its LU plan from the model
- * document once, says 'ready' (with the id the pool gave it), then answers node and refinement batches with
- * the same SerialPoleWork that a one-thread search uses.
+ * document once (numerical leads from the band edges the pool was given, when it was),
+ * says 'ready' (with the id the pool gave it), then answers node and refinement batches
+ * with the same SerialPoleWork that a one-thread search uses.
  */
 import { parentPort, workerData } from 'node:worker_threads';
 import { buildCavitySystem, EffectiveHamiltonian } from '../../shared/engine/effective-hamiltonian.js';
-import { SerialPoleWork, type PoleWorkSetup } from '../../shared/engine/pole-work.js';
+import { SerialPoleWork } from '../../shared/engine/pole-work.js';
 import { SparseLuPlan } from '../../shared/engine/sparse-lu.js';
-import type { PoolReply, PoolRequest } from './pole-pool.js';
+import type { PoolReply, PoolRequest, PoolThreadData } from './pole-pool.js';
 
 const port = parentPort!;
-const { document, setup, readyId } = workerData as { document: unknown; setup: PoleWorkSetup; readyId: number };
+const { document, setup, readyId, leadEdges } = workerData as PoolThreadData;
 let work: SerialPoleWork;
 try {
-  const op = new EffectiveHamiltonian(buildCavitySystem(document));
+  const op = new EffectiveHamiltonian(buildCavitySystem(document, { leadEdges }));
   const plan = SparseLuPlan.analyse(op.n, op.colPtr, op.rowIdx, { sites: op.sites });
   work = new SerialPoleWork(op, plan, setup);
   port.postMessage({ id: readyId, kind: 'ready' } satisfies PoolReply);

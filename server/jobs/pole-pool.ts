@@ -1,7 +1,8 @@
 /**
  * A pool of worker threads that does the LUs of one pole search (PoleWork): each
- * thread builds its own copy of the operator and LU plan from the model document,
- * then evaluates contour nodes and Newton refinements as the search asks for them.
+ * thread builds its own copy of the operator and LU plan from the model document (with
+ * the numerical leads' band edges the caller found already, so the threshold search runs
+ * once per run), then evaluates contour nodes and Newton refinements as the search asks for them.
  * Work is handed out one panel (or one candidate) at a time to whichever thread is
  * free, and answers are put back in request order, so the search's result is the
  * same as on one thread.
@@ -9,6 +10,15 @@
 import { Worker } from 'node:worker_threads';
 import { PANEL_ORDER, type ContourNode } from '../../shared/engine/contour.js';
 import type { NodeRequest, PoleWork, PoleWorkSetup, RefineOutcome, RefineRequest } from '../../shared/engine/pole-work.js';
+import type { BandEdge } from '../../shared/engine/numerical-lead-bands.js';
+
+/** What a pool thread is started with. */
+export interface PoolThreadData {
+  document: unknown;
+  setup: PoleWorkSetup;
+  readyId: number;
+  leadEdges?: (BandEdge[] | null)[];
+}
 
 export type PoolRequest = { id: number; kind: 'nodes'; requests: NodeRequest[] } | { id: number; kind: 'refine'; requests: RefineRequest[] };
 export type PoolReply =
@@ -32,13 +42,17 @@ export class PoleThreadPool implements PoleWork {
     private readonly lanes: Lane[],
   ) {}
 
-  /** Starts `threads` workers for the model document; resolves once each has built its operator. */
-  static async start(document: unknown, setup: PoleWorkSetup, threads: number): Promise<PoleThreadPool> {
+  /**
+   * Starts `threads` workers for the model document; resolves once each has built its operator.
+   * `leadEdges` (leadEdgesOf of the caller's system for the same document) spares each thread
+   * its numerical leads' threshold search; without it every thread searches again.
+   */
+  static async start(document: unknown, setup: PoleWorkSetup, threads: number, leadEdges?: (BandEdge[] | null)[]): Promise<PoleThreadPool> {
     if (!(Number.isInteger(threads) && threads >= 1)) throw new RangeError(`PoleThreadPool: threads must be a positive integer, got ${threads}`);
     const lanes: Lane[] = [];
     for (let k = 0; k < threads; k++) {
       // ready replies carry the ids −1, −2, … (batches count up from 1)
-      const workerData = { document, setup, readyId: -(k + 1) };
+      const workerData: PoolThreadData = { document, setup, readyId: -(k + 1), leadEdges };
       lanes.push({ worker: new Worker(new URL('./pole-pool-bootstrap.mjs', import.meta.url), { workerData }), busy: false });
     }
     const pool = new PoleThreadPool(setup, lanes);

@@ -14,17 +14,34 @@ import { buildLattice, hamiltonianEntries, addHamiltonian, indexSites } from './
 import { channelFlags, leadChannels, leadThresholds, mouthBlock, mouthPhases, selfEnergyCoefficients, selfEnergyDerivativeCoefficients } from './leads';
 import { InvalidModelError, type CavitySystem, type SystemLead } from './cavity-system';
 import { latticeLeads, withNumericalLeads } from './numerical-lead-system';
+import type { BandEdge } from './numerical-lead-bands';
 import { buildPattern, patternSlot } from './sparsity-pattern';
 import type { Complex, NonlinearOperator, SheetFlags } from './operator';
 
 export { InvalidModelError, type CavitySystem } from './cavity-system';
 
+/** Σ of a numerical lead at one z and sheet; dΣ/dz computed on first read. */
+interface NumericalBlocks {
+  readonly sigma: Float64Array;
+  readonly derivative: Float64Array;
+}
+
+/** How many (z, sheet) blocks each numerical lead keeps. */
+const NUMERICAL_CACHE_SIZE = 8;
+
+/** What a caller may hand buildCavitySystem from an earlier build of the same document. */
+interface PrebuiltLeads {
+  /** leadEdgesOf(system) of the earlier build: its numerical leads' band edges, one entry per lead. */
+  leadEdges?: readonly (readonly BandEdge[] | null)[];
+}
+
 /**
  * Validates a model document and builds its lattice and leads. Throws
  * InvalidModelError with field paths when the document is invalid.
- * Cost O(nx·ny + Σ W²).
+ * Cost O(nx·ny + Σ W²), plus each numerical lead's threshold search (O(kSamples·W³)) unless
+ * `prebuilt.leadEdges` holds its edges from an earlier build of the same document.
  */
-export function buildCavitySystem(doc: unknown): CavitySystem {
+export function buildCavitySystem(doc: unknown, prebuilt: PrebuiltLeads = {}): CavitySystem {
   const checked = validateCavityModel(doc);
   if (!checked.ok) throw new InvalidModelError(checked.issues);
   const { model, mask } = checked;
@@ -40,7 +57,7 @@ export function buildCavitySystem(doc: unknown): CavitySystem {
     const tb = modelTightBinding(model);
     const lattice = buildTightBinding(mask, nx, ny, tb, potential);
     // Leads of any lattice: the lead's cell as a ribbon of the same lattice, solved numerically.
-    const leads = latticeLeads(model, mask, lattice.siteIndex, tb);
+    const leads = latticeLeads(model, mask, lattice.siteIndex, tb, prebuilt.leadEdges);
     return { model, massRatio, spacing: model.spacing, placement, mask, lattice, sites: lattice.sites, hopping, flux: lattice.flux, leads };
   }
   const lattice = buildLattice(mask, nx, ny, hopping, flux, potential, model.spacing);
@@ -58,7 +75,7 @@ export function buildCavitySystem(doc: unknown): CavitySystem {
   });
   const system: CavitySystem = { model, massRatio, spacing: model.spacing, placement, mask, lattice, sites: lattice.sites, hopping, flux, leads };
   // The field in the leads needs the numerical leads; without a field they are the closed form's (the same Σ).
-  return model.fieldInLeads === true && flux !== 0 ? withNumericalLeads(system, { fieldInLeads: true }) : system;
+  return model.fieldInLeads === true && flux !== 0 ? withNumericalLeads(system, { fieldInLeads: true, edges: prebuilt.leadEdges }) : system;
 }
 
 /** Open-channel coupling vectors W (columns sqrt(2t sin k_m)·e^{−iθ_p}χ_m(p) on each mouth). */
@@ -91,7 +108,8 @@ export class EffectiveHamiltonian implements NonlinearOperator {
   private readonly blockSlots: Int32Array[];
   private readonly coef: Float64Array;
   private readonly block: Float64Array;
-  private readonly numericalCache: ({ key: string; sigma: Float64Array; derivative: Float64Array } | undefined)[];
+  /** Per numerical lead, its last NUMERICAL_CACHE_SIZE blocks by z and sheet (oldest first). */
+  private readonly numericalCache: Map<string, NumericalBlocks>[];
 
   constructor(system: CavitySystem) {
     this.system = system;
@@ -126,7 +144,7 @@ export class EffectiveHamiltonian implements NonlinearOperator {
     this.coef = new Float64Array(2 * widest);
     this.block = new Float64Array(2 * widest * widest);
 
-    this.numericalCache = system.leads.map(() => undefined);
+    this.numericalCache = system.leads.map(() => new Map());
     const all = system.leads.flatMap((l) => (l.numerical ? [...l.numerical.thresholds] : leadThresholds(l.channels))).sort((x, y) => x - y);
     const merged: number[] = [];
     const tol = 1e-12 * Math.max(1, system.hopping);
@@ -292,12 +310,27 @@ export class EffectiveHamiltonian implements NonlinearOperator {
   }
 
   /** Σ and dΣ/dz of a numerical lead at (z, sheet), cached for the last point (assemble and its derivative share it). */
-  private numericalBlocks(lead: number, z: Complex, sheet: SheetFlags): { sigma: Float64Array; derivative: Float64Array } {
+  /**
+   * Σ of a numerical lead at z on the sheet, with dΣ/dz computed on first use; the last few are
+   * kept (a search comes back to a node's z for its derivative, its refinement or the
+   * certificate). Only a cache: the numbers are those of a fresh computation.
+   */
+  private numericalBlocks(lead: number, z: Complex, sheet: SheetFlags): NumericalBlocks {
     const key = `${z.re},${z.im},${sheet[lead].map(Number).join('')}`;
-    const cached = this.numericalCache[lead];
-    if (cached?.key === key) return cached;
-    const fresh = { key, ...this.system.leads[lead].numerical!.selfEnergyWithDerivative(z.re, z.im, sheet[lead]) };
-    this.numericalCache[lead] = fresh;
+    const cache = this.numericalCache[lead];
+    const cached = cache.get(key);
+    if (cached) return cached;
+    const parts = this.system.leads[lead].numerical!.selfEnergyParts(z.re, z.im, sheet[lead]);
+    let derivative: Float64Array | undefined;
+    const fresh: NumericalBlocks = {
+      sigma: parts.sigma,
+      get derivative() {
+        derivative ??= parts.derivative();
+        return derivative;
+      },
+    };
+    if (cache.size >= NUMERICAL_CACHE_SIZE) cache.delete(cache.keys().next().value!);
+    cache.set(key, fresh);
     return fresh;
   }
 

@@ -81,9 +81,10 @@ function modelLeadChannelRanges(model: CavityModel, k: number): ChannelRange[] {
 
 /**
  * Largest lead cell (sites) whose channel ranges the figures compute: the band edges and one
- * mode solve per piece take seconds at 24 sites and minutes at 40 (seen: a 20-chain zigzag and
- * a 20-line armchair lead, 40 sites each, 35 s for the band edges alone). Wider leads list
- * none; the engine still checks a scattering state's channel when it computes the map.
+ * mode solve per piece take seconds at 24 sites (a 20-chain zigzag or 20-line armchair lead, 40
+ * sites, 2.2–2.5 s CPU since the faster band edges; a 40-site square lead in a field 17 s, most
+ * of it the mode solves of its many Landau pieces). Wider leads list none; the engine still
+ * checks a scattering state's channel when it computes the map.
  */
 const FIGURE_CELL_LIMIT = 24;
 

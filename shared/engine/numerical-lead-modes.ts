@@ -278,6 +278,43 @@ export function realModes(cell: LeadCellBlocks, energy: number, pencil = leadPen
   return { energy, pencil, propagating, retarded };
 }
 
+/** Real energies whose modes are kept per cell (a transmission energy asks for them up to five times). */
+const REAL_MODES_CACHE_SIZE = 4;
+const realModesCache = new WeakMap<LeadCellBlocks, Map<number, RealModes>>();
+
+/**
+ * realModes(cell, energy), kept for the last few energies of each cell: Σ, the open channels
+ * and their coupling columns at one energy all start from the same modes. Each call gets its
+ * own copy (callers reorder the Schur form in place), so the numbers are those of a fresh
+ * solve. Failures are not kept. Cost O(n³) when new, O(n²) when kept.
+ */
+export function realModesKept(cell: LeadCellBlocks, energy: number): RealModes {
+  let cache = realModesCache.get(cell);
+  if (!cache) {
+    cache = new Map();
+    realModesCache.set(cell, cache);
+  }
+  let kept = cache.get(energy);
+  if (!kept) {
+    kept = realModes(cell, energy);
+    if (cache.size >= REAL_MODES_CACHE_SIZE) cache.delete(cache.keys().next().value!);
+    cache.set(energy, kept);
+  }
+  const p = kept.pencil;
+  return {
+    energy: kept.energy,
+    pencil: {
+      ...p,
+      schur: { n: p.schur.n, t: p.schur.t.slice(), q: p.schur.q.slice() },
+      lambda: p.lambda.slice(),
+      modulus: p.modulus.slice(),
+      inside: p.inside.slice(),
+    },
+    propagating: kept.propagating.map((m) => ({ ...m, vector: m.vector.slice() })),
+    retarded: kept.retarded.slice(),
+  };
+}
+
 /** y = A·x for an n×n A and an n-vector x (interleaved). */
 function multiplyVector(n: number, a: Float64Array, x: Float64Array): Float64Array {
   const y = new Float64Array(2 * n);

@@ -22,7 +22,7 @@
  * no tracking: its continuation is |λ| < 1 everywhere. Within 1e-10 of the piece's width of
  * the real axis the real axis's choice is taken (the side of a propagating λ is below rounding).
  */
-import { leadPencil, realModes, type LeadCellBlocks, type LeadPencil } from './numerical-lead-modes';
+import { leadPencil, realModes, realModesKept, type LeadCellBlocks, type LeadPencil } from './numerical-lead-modes';
 
 /** A threshold piece (lo, hi) of the real axis; ±Infinity at the ends. */
 export interface LeadPiece {
@@ -64,7 +64,7 @@ export function retardedChoice(cell: LeadCellBlocks, zRe: number, zIm: number, p
   const nearAxis = zIm !== 0 && Number.isFinite(piece.hi - piece.lo) && Math.abs(zIm) <= 1e-10 * (piece.hi - piece.lo) && zRe > piece.lo && zRe < piece.hi;
   if (nearAxis) {
     try {
-      const modes = realModes(cell, zRe);
+      const modes = realModesKept(cell, zRe);
       return { pencil: modes.pencil, select: modes.retarded, solves: 1 };
     } catch (e) {
       // an exact band crossing at Re z: follow the modes as below
@@ -79,19 +79,19 @@ export function retardedChoice(cell: LeadCellBlocks, zRe: number, zIm: number, p
   }
   if (zIm === 0) {
     if (!(zRe > piece.lo && zRe < piece.hi)) throw new RangeError(`retardedChoice: real energy ${zRe} is not inside the piece (${piece.lo}, ${piece.hi})`);
-    const modes = realModes(cell, zRe);
+    const modes = realModesKept(cell, zRe);
     return { pencil: modes.pencil, select: modes.retarded, solves: 1 };
   }
   const width = piece.hi - piece.lo;
   const delta = Math.min(0.25 * width, Math.max(Math.abs(zIm), 1e-6 * width));
   let x0 = Math.min(Math.max(zRe, piece.lo + delta), piece.hi - delta);
-  let ref: ReturnType<typeof realModes> | undefined;
+  let ref: ReferenceModes | undefined;
   // The continuation does not depend on where in the piece it starts: step aside from an
   // exact band crossing with opposite velocities (a degenerate λ the choice cannot split).
   for (const shift of [0, 0.01, -0.01, 0.03, -0.03]) {
     const x = Math.min(Math.max(x0 + shift * width, piece.lo + 0.5 * delta), piece.hi - 0.5 * delta);
     try {
-      ref = realModes(cell, x);
+      ref = referenceModes(cell, x);
       x0 = x;
       break;
     } catch (e) {
@@ -103,7 +103,7 @@ export function retardedChoice(cell: LeadCellBlocks, zRe: number, zIm: number, p
     const pencil = leadPencil(cell, zRe, zIm);
     const select = pencil.inside.slice();
     checkCount(select, 'no propagating modes in the piece');
-    return { pencil, select, solves: 2 };
+    return { pencil, select, solves: ref.cached ? 1 : 2 };
   }
   const tracked: Tracked[] = ref.propagating.map((p) => ({
     re: p.lambdaRe,
@@ -115,7 +115,7 @@ export function retardedChoice(cell: LeadCellBlocks, zRe: number, zIm: number, p
   let cur = { re: x0, im: 0 };
   const legs = [{ re: x0, im: zIm }];
   if (zRe !== x0) legs.push({ re: zRe, im: zIm });
-  let solves = 1;
+  let solves = ref.cached ? 0 : 1;
   let last: { pencil: LeadPencil; match: number[] } | undefined;
   for (const target of legs) {
     let h = Math.hypot(target.re - cur.re, target.im - cur.im);
@@ -158,6 +158,39 @@ export function retardedChoice(cell: LeadCellBlocks, zRe: number, zIm: number, p
   });
   checkCount(select, 'continued from the real axis');
   return { pencil, select, solves };
+}
+
+/** The propagating modes at a real energy, as the tracking reads them (λ and velocity). */
+interface ReferenceModes {
+  propagating: readonly { lambdaRe: number; lambdaIm: number; velocity: number }[];
+  /** Taken from the cache (no pencil solved for it this time). */
+  cached: boolean;
+}
+
+/** Reference energies kept per cell: nodes of a contour side share Re z, hence x0. */
+const REFERENCE_CACHE_SIZE = 32;
+const referenceCache = new WeakMap<LeadCellBlocks, Map<number, ReferenceModes>>();
+
+/**
+ * realModes(cell, x) reduced to what the tracking reads, kept for the last few x of each cell
+ * (only a cache: the same numbers as a fresh solve; failures are not kept). Cost O(n³) when new.
+ */
+function referenceModes(cell: LeadCellBlocks, x: number): ReferenceModes {
+  let cache = referenceCache.get(cell);
+  if (!cache) {
+    cache = new Map();
+    referenceCache.set(cell, cache);
+  }
+  const hit = cache.get(x);
+  if (hit) return { ...hit, cached: true };
+  const modes = realModes(cell, x);
+  const fresh: ReferenceModes = {
+    propagating: modes.propagating.map((p) => ({ lambdaRe: p.lambdaRe, lambdaIm: p.lambdaIm, velocity: p.velocity })),
+    cached: false,
+  };
+  if (cache.size >= REFERENCE_CACHE_SIZE) cache.delete(cache.keys().next().value!);
+  cache.set(x, fresh);
+  return fresh;
 }
 
 /** Matches each tracked mode to an eigenvalue of the pencil, or undefined when ambiguous. */

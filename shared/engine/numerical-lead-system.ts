@@ -10,6 +10,7 @@ import { presetLeadCell } from './lead-cell';
 import type { TightBindingParameters } from './tight-binding';
 import { leadChannels } from './leads';
 import { NumericalLead, type NumericalLeadOptions, type NumericalLeadSpec } from './numerical-lead';
+import type { BandEdge } from './numerical-lead-bands';
 import { squareLatticeLead } from './numerical-lead-square';
 
 interface NumericalLeadsOptions {
@@ -17,11 +18,13 @@ interface NumericalLeadsOptions {
   fieldInLeads?: boolean;
   /** k samples for the band edges (default 128). */
   kSamples?: number;
+  /** Band edges found before for each lead (leadEdgesOf of the same model's system); null: search. */
+  edges?: readonly (readonly BandEdge[] | null)[];
 }
 
 /** A copy of the system whose leads are numerical leads. Cost O(kSamples·W³) per lead. */
 export function withNumericalLeads(system: CavitySystem, options: NumericalLeadsOptions = {}): CavitySystem {
-  const leads = system.leads.map((lead) => {
+  const leads = system.leads.map((lead, k) => {
     const mouthI = Int32Array.from(lead.mouth, (s) => system.sites.i[s]);
     const mouthJ = Int32Array.from(lead.mouth, (s) => system.sites.j[s]);
     const spec = squareLatticeLead({
@@ -33,7 +36,7 @@ export function withNumericalLeads(system: CavitySystem, options: NumericalLeads
       flux: system.flux,
       fieldInLead: options.fieldInLeads ?? false,
     });
-    return { ...lead, numerical: new NumericalLead(spec, { kSamples: options.kSamples }) };
+    return { ...lead, numerical: new NumericalLead(spec, { kSamples: options.kSamples, edges: options.edges?.[k] ?? undefined }) };
   });
   return { ...system, leads };
 }
@@ -55,7 +58,13 @@ function numericalSystemLead(name: string, side: LeadSide, mouth: Int32Array, sp
  * (`fieldInLeads`), its contacts as unknown indices. Throws InvalidModelError (path
  * leads.k) for a lead bonded to no cavity site. Cost O(kSamples·m³) per lead, m the cell's sites.
  */
-export function latticeLeads(model: CavityModel, mask: Uint8Array, siteIndex: Int32Array, p: TightBindingParameters): SystemLead[] {
+export function latticeLeads(
+  model: CavityModel,
+  mask: Uint8Array,
+  siteIndex: Int32Array,
+  p: TightBindingParameters,
+  edges?: readonly (readonly BandEdge[] | null)[],
+): SystemLead[] {
   const { nx, ny } = model.grid;
   const inCavity = (i: number, j: number) => mask[i * ny + j] === 1;
   return model.leads.map((lead, k) => {
@@ -70,10 +79,21 @@ export function latticeLeads(model: CavityModel, mask: Uint8Array, siteIndex: In
       ]);
     }
     const mouth = Int32Array.from(cell.contacts.i, (i, q) => siteIndex[i * ny + cell.contacts.j[q]]);
-    return numericalSystemLead(name, lead.side, mouth, {
-      cell: { size: cell.size, h0: cell.h0, h1: cell.h1 },
-      mouthSize: mouth.length,
-      coupling: cell.coupling,
-    });
+    return numericalSystemLead(
+      name,
+      lead.side,
+      mouth,
+      { cell: { size: cell.size, h0: cell.h0, h1: cell.h1 }, mouthSize: mouth.length, coupling: cell.coupling },
+      { edges: edges?.[k] ?? undefined },
+    );
   });
+}
+
+/**
+ * The band edges of each of a system's leads (null for a closed-form lead): what
+ * buildCavitySystem needs (its `leadEdges`) to build the same leads again without their
+ * threshold search, e.g. on the threads of a pole-search pool. Plain objects (structured-clone).
+ */
+export function leadEdgesOf(system: CavitySystem): (BandEdge[] | null)[] {
+  return system.leads.map((lead) => (lead.numerical ? lead.numerical.edges.map((e) => ({ ...e })) : null));
 }

@@ -19,7 +19,7 @@
 import { complexSchur, reorderSchur } from './complex-schur';
 import { conjugateTranspose, denseLu, denseLuSolve, denseMultiply } from './dense-solve';
 import { leadBandEdges, type BandEdge } from './numerical-lead-bands';
-import { forwardHopping, realModes, type LeadCellBlocks } from './numerical-lead-modes';
+import { forwardHopping, realModesKept, type LeadCellBlocks } from './numerical-lead-modes';
 import { retardedChoice, type LeadPiece, type RetardedChoice } from './numerical-lead-sheet';
 
 /** A lead given by its cell and its coupling to the cavity. */
@@ -48,6 +48,11 @@ interface LeadChannelsAt {
 export interface NumericalLeadOptions {
   /** k samples for the band edges (default 128). */
   kSamples?: number;
+  /**
+   * The band edges of this very cell, found before (by another thread's copy of the same
+   * lead, see leadEdgesOf): the search is skipped. Plain data, so it crosses threads.
+   */
+  edges?: readonly BandEdge[];
 }
 
 export class NumericalLead {
@@ -70,7 +75,7 @@ export class NumericalLead {
     this.cell = spec.cell;
     this.mouthSize = spec.mouthSize;
     this.coupling = spec.coupling;
-    this.edges = leadBandEdges(spec.cell, options.kSamples ?? 128);
+    this.edges = options.edges ? options.edges.map((e) => ({ ...e })) : leadBandEdges(spec.cell, options.kSamples ?? 128);
     this.thresholds = this.edges.map((e) => e.energy);
   }
 
@@ -186,14 +191,26 @@ export class NumericalLead {
 
   /** Σ(z) and dΣ/dz on the mouth (each M×M). Cost O(n³). */
   selfEnergyWithDerivative(zRe: number, zIm: number, sheet?: readonly boolean[]): { sigma: Float64Array; derivative: Float64Array } {
+    const parts = this.selfEnergyParts(zRe, zIm, sheet);
+    return { sigma: parts.sigma, derivative: parts.derivative() };
+  }
+
+  /**
+   * Σ(z) now and dΣ/dz when asked, from the same g (the same numbers as selfEnergyWithDerivative):
+   * a contour node needs Σ only, a Newton step both. Cost O(n³) each.
+   */
+  selfEnergyParts(zRe: number, zIm: number, sheet?: readonly boolean[]): { sigma: Float64Array; derivative: () => Float64Array } {
     const n = this.cell.size;
     const g = this.surfaceGreen(zRe, zIm, sheet);
-    // H1 of the formulas is H[cell k, cell k+1] = forwardHopping; its adjoint is the cell's own h1.
-    const a = denseMultiply(n, n, n, g, forwardHopping(this.cell));
-    const b = denseMultiply(n, n, n, this.cell.h1, g);
-    const c = denseMultiply(n, n, n, g, g);
-    for (let e = 0; e < c.length; e++) c[e] = -c[e];
-    return { sigma: this.project(g), derivative: this.project(solveStein(n, a, b, c)) };
+    const derivative = () => {
+      // H1 of the formulas is H[cell k, cell k+1] = forwardHopping; its adjoint is the cell's own h1.
+      const a = denseMultiply(n, n, n, g, forwardHopping(this.cell));
+      const b = denseMultiply(n, n, n, this.cell.h1, g);
+      const c = denseMultiply(n, n, n, g, g);
+      for (let e = 0; e < c.length; e++) c[e] = -c[e];
+      return this.project(solveStein(n, a, b, c));
+    };
+    return { sigma: this.project(g), derivative };
   }
 
   /** dΣ/dz on the mouth (M×M). */
@@ -217,7 +234,7 @@ export class NumericalLead {
   private channelsInside(energy: number, sheet: readonly boolean[]): LeadChannelsAt {
     const n = this.cell.size;
     const mm = this.mouthSize;
-    const modes = realModes(this.cell, energy);
+    const modes = realModesKept(this.cell, energy);
     this.solves++;
     const out = modes.propagating.filter((p) => p.velocity > 0);
     const count = out.length;

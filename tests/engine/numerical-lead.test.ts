@@ -12,7 +12,7 @@ import {
   selfEnergyDerivativeCoefficients,
 } from '../../shared/engine/leads';
 import { leadBands } from '../../shared/engine/numerical-lead-bands';
-import { realModes } from '../../shared/engine/numerical-lead-modes';
+import { realModes, realModesKept } from '../../shared/engine/numerical-lead-modes';
 import { NumericalLead, solveStein } from '../../shared/engine/numerical-lead';
 import { deviceScattering, ribbonDevice, squareRibbonCell, zigzagRibbonCell } from './numerical-lead-systems';
 
@@ -67,23 +67,44 @@ describe('dense kernels of the numerical leads', () => {
     ).toBeLessThan(1e-13);
   });
 
-  it('Hermitian Jacobi eigenpairs satisfy A·V = V·Λ', () => {
-    const n = 10;
+  it('Hermitian eigenpairs satisfy A·V = V·Λ and V†V = 1, also with every eigenvalue doubled', () => {
     const rnd = random(3);
-    const h = new Float64Array(2 * n * n);
-    for (let i = 0; i < n; i++)
-      for (let j = 0; j <= i; j++) {
-        const re = rnd() - 0.5;
-        const im = i === j ? 0 : rnd() - 0.5;
-        h[2 * (i * n + j)] = re;
-        h[2 * (i * n + j) + 1] = im;
-        h[2 * (j * n + i)] = re;
-        h[2 * (j * n + i) + 1] = -im;
-      }
-    const { values, vectors } = hermitianEigen(n, h);
-    const av = denseMultiply(n, n, n, h, vectors);
-    const vl = vectors.map((v, e) => v * values[(e >> 1) % n]);
-    expect(maxDiff(av, vl)).toBeLessThan(1e-13);
+    const block = (n: number) => {
+      const h = new Float64Array(2 * n * n);
+      for (let i = 0; i < n; i++)
+        for (let j = 0; j <= i; j++) {
+          const re = rnd() - 0.5;
+          const im = i === j ? 0 : rnd() - 0.5;
+          h[2 * (i * n + j)] = re;
+          h[2 * (i * n + j) + 1] = im;
+          h[2 * (j * n + i)] = re;
+          h[2 * (j * n + i) + 1] = -im;
+        }
+      return h;
+    };
+    // [[B, 0], [0, B]]: a repeated spectrum, where the eigenvectors are only fixed up to rotations
+    const b = block(6);
+    const doubled = new Float64Array(2 * 144);
+    for (let i = 0; i < 6; i++)
+      for (let j = 0; j < 6; j++)
+        for (const o of [0, 6]) {
+          doubled[2 * ((i + o) * 12 + j + o)] = b[2 * (i * 6 + j)];
+          doubled[2 * ((i + o) * 12 + j + o) + 1] = b[2 * (i * 6 + j) + 1];
+        }
+    for (const [n, h] of [
+      [10, block(10)],
+      [40, block(40)],
+      [12, doubled],
+    ] as const) {
+      const { values, vectors } = hermitianEigen(n, h);
+      const av = denseMultiply(n, n, n, h, vectors);
+      const vl = vectors.map((v, e) => v * values[(e >> 1) % n]);
+      expect(maxDiff(av, vl)).toBeLessThan(1e-13 * n);
+      const vv = denseMultiply(n, n, n, conjugateTranspose(n, n, vectors), vectors);
+      for (let i = 0; i < n; i++) vv[2 * (i * n + i)] -= 1;
+      expect(maxAbs(vv)).toBeLessThan(1e-13 * n);
+      for (let i = 1; i < n; i++) expect(values[i]).toBeGreaterThanOrEqual(values[i - 1]);
+    }
   });
 });
 
@@ -271,6 +292,21 @@ describe('numerical leads of other cells', () => {
     const lead = new NumericalLead({ cell, mouthSize: n, coupling }, { kSamples: 64 });
     for (const e of [-1, 1]) expect(Math.min(...lead.thresholds.map((x) => Math.abs(x - e)))).toBeLessThan(1e-9);
     expect(realModes(cell, 1 + 1e-4).propagating.length - realModes(cell, 1 - 1e-4).propagating.length).toBe(2);
+  });
+
+  it('kept real-energy modes are handed out as copies: reordering one leaves the next equal to a fresh solve', () => {
+    const cell = zigzagRibbonCell(4, 1);
+    const e = 0.37;
+    const first = realModesKept(cell, e);
+    reorderSchur(first.pencil.schur, first.retarded);
+    first.retarded.fill(false);
+    first.propagating[0].vector.fill(0);
+    const again = realModesKept(cell, e);
+    const fresh = realModes(cell, e);
+    expect(Array.from(again.pencil.schur.q)).toEqual(Array.from(fresh.pencil.schur.q));
+    expect(Array.from(again.pencil.schur.t)).toEqual(Array.from(fresh.pencil.schur.t));
+    expect(again.retarded).toEqual(fresh.retarded);
+    expect(Array.from(again.propagating[0].vector)).toEqual(Array.from(fresh.propagating[0].vector));
   });
 
   it('Γ = i(Σ − Σ†) = W·W† with the flux-normalised columns, in a field and for zigzag graphene', () => {

@@ -7,6 +7,7 @@ import { PoleThreadPool } from '../../server/jobs/pole-pool';
 import { runPartitioned } from '../../server/jobs/partitioned-run';
 import { runInThread } from '../../server/jobs/thread-runner';
 import { POOL_MIN_SITES } from '../../server/jobs/engine-task';
+import { leadEdgesOf } from '../../shared/engine/numerical-lead-system';
 
 /** A GaAs dot with tunnel barriers and a shifted lead, so the window holds a threshold and several poles. */
 const document: CavityModelInput = {
@@ -98,5 +99,33 @@ describe('pole search on a pool of worker threads (issue 9, item 3)', () => {
     expect(two.poles.length).toBe(one.poles.length);
     expect(one.poles.length).toBeGreaterThan(0);
     one.poles.forEach((p, k) => expect(Math.abs(two.poles[k].energy - p.energy)).toBeLessThanOrEqual(1e-12 * bigOp.hopping));
+  });
+
+  it('gives the same poles on a graphene dot whose threads get the leads’ band edges instead of searching', async () => {
+    // The reference dot G1 (catalogue/hl-graphene-g1.json): zigzag leads, numerical.
+    const graphene: CavityModelInput = {
+      name: 'pool graphene dot',
+      spacing: 0.142,
+      lattice: { kind: 'honeycomb', hopping: 2.7, removeDangling: true },
+      grid: { nx: 14, ny: 6 },
+      shape: { kind: 'rectangle', x0: -0.01, y0: -0.01, width: 1.72, height: 1.27 },
+      leads: [
+        { side: 'left', start: 1, width: 3, name: 'source' },
+        { side: 'right', start: 2, width: 3, name: 'drain' },
+      ],
+    };
+    const system = buildCavitySystem(graphene);
+    const edges = leadEdgesOf(system);
+    expect(edges.every((e) => e !== null && e.length > 0)).toBe(true);
+    const gOp = new EffectiveHamiltonian(system);
+    const gWindow = { emin: 200, emax: 2400, gammaMax: 800 };
+    const one = findPoles(gOp, gWindow);
+    expect(one.poles.length).toBeGreaterThan(1);
+    const gPool = await PoleThreadPool.start(graphene, poleWorkSetup({}), 2, edges);
+    try {
+      expectSameSearch(one, await findPolesWith(gOp, gWindow, {}, gPool), gOp.hopping);
+    } finally {
+      await gPool.close();
+    }
   });
 });
