@@ -1,7 +1,7 @@
 import { TestBed } from '@angular/core/testing';
 import type { ModeMapPayload } from '../../../shared/api/mode-maps';
 import { decodeModeMap } from './mode-map-data';
-import { ModeMapView } from './mode-map-view';
+import { ModeMapView, wrapLine } from './mode-map-view';
 
 function b64(values: number[]): string {
   const bytes = new Uint8Array(Float32Array.from(values).buffer);
@@ -75,5 +75,17 @@ describe('ModeMapView on the honeycomb', () => {
       expect(scale * 100).toBeLessThan(w);
       expect(scale).toBeGreaterThan(0);
     }
+  });
+});
+
+describe('caption lines', () => {
+  it('break at spaces so no piece is longer than the width allows, and keep every word', () => {
+    const line = 'Husimi, both valleys: angle = ray direction (group velocity) of the valley’s cone; σ = 3.94 nm, 48 directions, grid 3.94 nm, angular resolution ≈ 9.1°';
+    const pieces = wrapLine(line, 60);
+    expect(pieces.length).toBeGreaterThan(1);
+    for (const p of pieces) expect(p.length).toBeLessThanOrEqual(60);
+    expect(pieces.join(' ')).toBe(line);
+    expect(wrapLine('short', 60)).toEqual(['short']);
+    expect(wrapLine('a-very-long-word-without-any-space', 10)).toEqual(['a-very-long-word-without-any-space']);
   });
 });

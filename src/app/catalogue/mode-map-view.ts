@@ -16,6 +16,22 @@ export interface ModeMapLayers {
 const ARROW_SPACING_PX = 26;
 /** Caption font size as a fraction of the visible width (drawing units are nm). */
 const FONT = 1 / 80;
+/** Characters of caption text per line at FONT: the line spans 0.96 of the width at about 0.55 em a character. */
+const CAPTION_CHARS = 140;
+
+/** Breaks a line at spaces so each piece has at most `max` characters (a longer word stays whole). */
+export function wrapLine(line: string, max: number): string[] {
+  const out: string[] = [];
+  let rest = line;
+  while (rest.length > max) {
+    const cut = rest.lastIndexOf(' ', max);
+    if (cut <= 0) break;
+    out.push(rest.slice(0, cut));
+    rest = rest.slice(cut + 1);
+  }
+  out.push(rest);
+  return out;
+}
 
 function lut(interpolate: (t: number) => string): Uint8ClampedArray {
   const out = new Uint8ClampedArray(256 * 3);
@@ -68,7 +84,10 @@ export class ModeMapView {
   });
 
   /** Height of the footer (scale bar and caption lines) in drawing units. */
-  protected readonly footer = computed(() => this.view().w * FONT * (2.6 + 1.4 * this.caption().length) + this.field().dy);
+  protected readonly footer = computed(() => this.view().w * FONT * (2.6 + 1.4 * this.wrappedCaption().length) + this.field().dy);
+
+  /** The caption broken into lines that fit the drawing's width (about CAPTION_CHARS characters at FONT). */
+  private readonly wrappedCaption = computed(() => this.caption().flatMap((line) => wrapLine(line, CAPTION_CHARS)));
 
   protected readonly viewBox = computed(() => {
     const v = this.view();
@@ -178,7 +197,7 @@ export class ModeMapView {
   protected readonly captionLines = computed(() => {
     const v = this.view();
     const font = v.w * FONT;
-    return this.caption().map((text, k) => ({ text, x: v.x + 0.02 * v.w, y: v.y + v.h + (3 + 1.4 * k) * font, font }));
+    return this.wrappedCaption().map((text, k) => ({ text, x: v.x + 0.02 * v.w, y: v.y + v.h + (3 + 1.4 * k) * font, font }));
   });
 
   constructor() {
