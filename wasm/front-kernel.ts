@@ -275,3 +275,143 @@ export function copyColumns(dst: usize, src: usize, rowBytes: usize, cols: i32, 
     src += srcStride;
   }
 }
+
+// The plan table: byte addresses of the plan's arrays in this memory (Int32 unless
+// noted), written by the caller (lu-numeric-factorisation.ts) and rewritten whenever
+// one of them moves. Indices into the table:
+const T_FIRST = 0; // first[s]: first pivot label of front s (ns + 1)
+const T_CHILD_PTR = 1; // childPtr (ns + 1)
+const T_CHILD_LIST = 2; // childList
+const T_NONFS_PTR = 3; // nonfsPtr (ns + 1)
+const T_NONFS = 4; // nonfs: labels of each front's non-fully-summed rows
+const T_REL_MAP = 5; // relMap: position of each child's non-fully-summed index in its parent
+const T_ASM_PTR = 6; // asmPtr (ns + 1)
+const T_ASM_ENTRY = 7; // asmEntry: matrix entry of each assembled value
+const T_ASM_ROW = 8; // asmRow, asmCol: its place in the front (before delays shift it)
+const T_ASM_COL = 9;
+const T_VALUES = 10; // the matrix values (f64, interleaved re, im)
+const T_CB_DIM = 11; // per front: contribution-block dimension
+const T_CB_START = 12; // its start, in doubles (in the stack, or in the previous front buffer)
+const T_CB_LD = 13; // its column stride, in doubles
+const T_DELAY_OUT = 14; // delayed pivots passed to the parent
+const T_DELAY_START = 15; // where their rows and columns start in the delay stack
+const T_DELAY_STACK = 16; // the delay stack (labels)
+const T_MAP = 17; // work: parent position of each child index
+const T_RUNS = 18; // work: runs of consecutive positions (3 per run)
+const T_ROW_LIST = 19; // rowList, colList of the current front (labels)
+const T_COL_LIST = 20;
+const T_CB_STACK = 21; // the contribution-block stack (f64)
+const T_PERM = 22; // perm: original unknown of each label
+
+// @ts-ignore: decorator
+@inline function tab(plan: usize, t: i32): usize {
+  return <usize>load<i32>(plan + <usize>4 * <usize>t);
+}
+// @ts-ignore: decorator
+@inline function at32(base: usize, q: i32): i32 {
+  return load<i32>(base + <usize>4 * <usize>q);
+}
+// @ts-ignore: decorator
+@inline function set32(base: usize, q: i32, v: i32): void {
+  store<i32>(base + <usize>4 * <usize>q, v);
+}
+
+/**
+ * Assembles front s into F (m rows: its k pivots, d pivots delayed from its children,
+ * then its non-fully-summed rows): zeroes F, sets rowList and colList (labels), adds
+ * the matrix entries whose first eliminated index lies in this front, and extend-adds
+ * the children's contribution blocks, from the stack or, for the child prevDirect,
+ * from the previous front buffer at prevF. The same additions in the same order as the
+ * TypeScript loop of lu-numeric-factorisation.ts.
+ */
+export function assembleFront(plan: usize, s: i32, f: usize, m: i32, k: i32, d: i32, prevDirect: i32, prevF: usize): void {
+  memory.fill(f, 0, <usize>16 * <usize>m * <usize>m);
+  const rowList = tab(plan, T_ROW_LIST);
+  const colList = tab(plan, T_COL_LIST);
+  const f0 = at32(tab(plan, T_FIRST), s);
+  for (let q = 0; q < k; q++) {
+    set32(rowList, q, f0 + q);
+    set32(colList, q, f0 + q);
+  }
+  const kFs = k + d;
+  const nonfsPtr = tab(plan, T_NONFS_PTR);
+  const nonfs = tab(plan, T_NONFS);
+  const nf0 = at32(nonfsPtr, s);
+  const nfLen = at32(nonfsPtr, s + 1) - nf0;
+  for (let q = 0; q < nfLen; q++) {
+    const v = at32(nonfs, nf0 + q);
+    set32(rowList, kFs + q, v);
+    set32(colList, kFs + q, v);
+  }
+  const asmPtr = tab(plan, T_ASM_PTR);
+  const asmEntry = tab(plan, T_ASM_ENTRY);
+  const asmRow = tab(plan, T_ASM_ROW);
+  const asmCol = tab(plan, T_ASM_COL);
+  const values = tab(plan, T_VALUES);
+  const a1 = at32(asmPtr, s + 1);
+  for (let a = at32(asmPtr, s); a < a1; a++) {
+    let lr = at32(asmRow, a);
+    let lc = at32(asmCol, a);
+    if (lr >= k) lr += d;
+    if (lc >= k) lc += d;
+    const o = f + <usize>16 * (<usize>lc * <usize>m + <usize>lr);
+    const e = values + <usize>16 * <usize>at32(asmEntry, a);
+    v128.store(o, f64x2.add(v128.load(o), v128.load(e)));
+  }
+  const childPtr = tab(plan, T_CHILD_PTR);
+  const childList = tab(plan, T_CHILD_LIST);
+  const cbDim = tab(plan, T_CB_DIM);
+  const cbStart = tab(plan, T_CB_START);
+  const cbLd = tab(plan, T_CB_LD);
+  const delayOut = tab(plan, T_DELAY_OUT);
+  const delayStart = tab(plan, T_DELAY_START);
+  const delayStack = tab(plan, T_DELAY_STACK);
+  const relMap = tab(plan, T_REL_MAP);
+  const map = tab(plan, T_MAP);
+  const runs = tab(plan, T_RUNS);
+  const cbStack = tab(plan, T_CB_STACK);
+  let off = 0;
+  const c1 = at32(childPtr, s + 1);
+  for (let t = at32(childPtr, s); t < c1; t++) {
+    const c = at32(childList, t);
+    const mc = at32(cbDim, c);
+    const dc = at32(delayOut, c);
+    const ds = at32(delayStart, c);
+    for (let q = 0; q < dc; q++) {
+      set32(map, q, k + off + q);
+      set32(rowList, k + off + q, at32(delayStack, ds + q));
+      set32(colList, k + off + q, at32(delayStack, ds + dc + q));
+    }
+    const rp = at32(nonfsPtr, c);
+    for (let q = dc; q < mc; q++) {
+      const rel = at32(relMap, rp + q - dc);
+      set32(map, q, rel < k ? rel : rel + d);
+    }
+    off += dc;
+    // Runs of consecutive parent positions: [child offset, parent offset, length]·2, in doubles.
+    let nRuns = 0;
+    for (let ii = 0; ii < mc; ) {
+      const start = at32(map, ii);
+      let len = 1;
+      while (ii + len < mc && at32(map, ii + len) == start + len) len++;
+      set32(runs, 3 * nRuns, 2 * ii);
+      set32(runs, 3 * nRuns + 1, 2 * start);
+      set32(runs, 3 * nRuns + 2, 2 * len);
+      nRuns++;
+      ii += len;
+    }
+    const base = c == prevDirect ? prevF : cbStack;
+    extendAdd(f, m, base + <usize>8 * <usize>at32(cbStart, c), at32(cbLd, c), mc, map, runs, nRuns);
+  }
+}
+
+/** out[q] = perm[rowList[q]], out[m + q] = perm[colList[q]] for q < m: a front's original unknowns. */
+export function frontUnknowns(plan: usize, m: i32, out: usize): void {
+  const perm = tab(plan, T_PERM);
+  const rowList = tab(plan, T_ROW_LIST);
+  const colList = tab(plan, T_COL_LIST);
+  for (let q = 0; q < m; q++) {
+    set32(out, q, at32(perm, at32(rowList, q)));
+    set32(out, m + q, at32(perm, at32(colList, q)));
+  }
+}

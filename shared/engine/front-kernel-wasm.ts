@@ -29,6 +29,8 @@ interface FrontKernelExports {
   factorFront(f: number, m: number, kFs: number, threshold: number, rowList: number, colList: number, save: number, nb: number): number;
   extendAdd(f: number, m: number, cb: number, ld: number, mc: number, map: number, runs: number, nRuns: number): void;
   copyColumns(dst: number, src: number, rowBytes: number, cols: number, srcStride: number): void;
+  assembleFront(plan: number, s: number, f: number, m: number, k: number, d: number, prevDirect: number, prevF: number): void;
+  frontUnknowns(plan: number, m: number, out: number): void;
 }
 
 let compiled: object | null | undefined;
@@ -102,6 +104,22 @@ export class WasmFrontKernel {
    */
   extendAdd(f: number, m: number, cb: number, ld: number, mc: number, map: number, runs: number, nRuns: number): void {
     this.exports.extendAdd(f, m, cb, ld, mc, map, runs, nRuns);
+  }
+
+  /**
+   * Assembles front s of a sparse LU into the front at f (m rows, k own pivots, d
+   * delayed from its children): zeroes it, sets its row and column lists, adds the
+   * matrix entries and extend-adds the children's contribution blocks (the child
+   * prevDirect from the previous front buffer at prevF). plan is the plan table of
+   * lu-numeric-factorisation.ts (PLAN_TABLE entries, indices T_* of wasm/front-kernel.ts).
+   */
+  assembleFront(plan: number, s: number, f: number, m: number, k: number, d: number, prevDirect: number, prevF: number): void {
+    this.exports.assembleFront(plan, s, f, m, k, d, prevDirect, prevF);
+  }
+
+  /** The original unknowns of the current front's rows and columns (perm of its lists) into 2·m Int32 at out. */
+  frontUnknowns(plan: number, m: number, out: number): void {
+    this.exports.frontUnknowns(plan, m, out);
   }
 
   /** Copies cols columns of rowBytes bytes from src (column stride srcStride bytes) into a packed block at dst. */

@@ -12,6 +12,14 @@ import { WasmFrontKernel } from './front-kernel-wasm';
 import { SolveScratch, SparseLuFactors } from './lu-solves';
 import type { SymbolicFronts } from './lu-symbolic-analysis';
 
+// The plan table of the WebAssembly kernel: PLAN_TABLE addresses, in the order of the
+// T_* indices of wasm/front-kernel.ts (those the TypeScript side rewrites are named here).
+const PLAN_TABLE = 23;
+const T_VALUES = 10;
+const T_DELAY_STACK = 16;
+const T_ROW_LIST = 19;
+const T_CB_STACK = 21;
+
 /** Thrown when a pivot column is exactly zero after elimination: the matrix is exactly singular. */
 export class SingularMatrixError extends Error {
   /** Original index of the unknown whose column had no nonzero pivot. */
@@ -49,11 +57,12 @@ export class NumericFactorisation {
   // Scratch shared by factorisations (factor() is synchronous, so one at a time).
   private frontA: Float64Array;
   private frontB: Float64Array;
-  private readonly cbDim: Int32Array;
-  private readonly cbStart: Float64Array;
-  private readonly cbLd: Int32Array;
-  private readonly delayOut: Int32Array;
-  private readonly delayStart: Int32Array;
+  // (views into the kernel's memory with the WebAssembly kernel, which reads them)
+  private cbDim: Int32Array;
+  private cbStart: Int32Array;
+  private cbLd: Int32Array;
+  private delayOut: Int32Array;
+  private delayStart: Int32Array;
   /** Work arrays of the solves, shared by every factorisation of this plan (solves are synchronous too). */
   private readonly scratch = new SolveScratch();
   private cbStack: Float64Array;
@@ -78,6 +87,15 @@ export class NumericFactorisation {
   private wsRuns = 0;
   private wsCb = 0;
   private wsCbLength = 0;
+  /** The plan table (wasm/front-kernel.ts, T_*): addresses of the plan's arrays in the kernel's memory. */
+  private wsPlan = 0;
+  private wsValues = 0;
+  private wsState = 0;
+  private wsDelay = 0;
+  private wsDelayLength = 0;
+  private wsUnknowns = 0;
+  private values: Float64Array = new Float64Array(0);
+  private unknowns: Int32Array = new Int32Array(0);
 
   private readonly frontCount: number;
 
@@ -105,7 +123,7 @@ export class NumericFactorisation {
     this.frontB = new Float64Array(dense);
     const ns = this.frontCount;
     this.cbDim = new Int32Array(ns);
-    this.cbStart = new Float64Array(ns);
+    this.cbStart = new Int32Array(ns);
     this.cbLd = new Int32Array(ns);
     this.delayOut = new Int32Array(ns);
     this.delayStart = new Int32Array(ns);
@@ -118,12 +136,30 @@ export class NumericFactorisation {
     this.colList = new Int32Array(mx);
     this.wasm = kernel === 'wasm' ? new WasmFrontKernel() : null;
     if (this.wasm) {
-      // The contribution-block stack, map and runs live in the kernel's memory too (extend-add runs there).
-      this.wsMap = this.wasm.reserve(4 * this.map.length);
-      this.wsRuns = this.wasm.reserve(4 * this.runs.length);
+      // The contribution-block stack, map, runs and the per-front state live in the kernel's
+      // memory too, with copies of the plan's arrays: assembly and extend-add run there.
+      const wasm = this.wasm;
+      this.wsMap = wasm.reserve(4 * this.map.length);
+      this.wsRuns = wasm.reserve(4 * this.runs.length);
       this.wsCbLength = this.cbStack.length;
-      this.wsCb = this.wasm.reserve(8 * this.wsCbLength);
+      this.wsCb = wasm.reserve(8 * this.wsCbLength);
       this.cbStack = new Float64Array(0);
+      this.wsPlan = wasm.reserve(4 * PLAN_TABLE);
+      const copy = (a: Int32Array): number => {
+        const at = wasm.reserve(4 * Math.max(1, a.length));
+        wasm.i32(at, a.length).set(a);
+        return at;
+      };
+      const table = [copy(s.first), copy(s.childPtr), copy(s.childList), copy(s.nonfsPtr), copy(s.nonfs), copy(s.relMap)];
+      table.push(copy(s.asmPtr), copy(s.asmEntry), copy(s.asmRow), copy(s.asmCol));
+      // (the values' place is reserved by the first factor(), which knows their length)
+      this.wsState = wasm.reserve(4 * 5 * ns);
+      table.push(0);
+      for (let q = 0; q < 5; q++) table.push(this.wsState + 4 * q * ns);
+      this.wsDelayLength = 64;
+      this.wsDelay = wasm.reserve(4 * this.wsDelayLength);
+      table.push(this.wsDelay, this.wsMap, this.wsRuns, 0, 0, this.wsCb, copy(perm));
+      wasm.i32(this.wsPlan, PLAN_TABLE).set(table);
       this.growWorkspace(mx);
     }
   }
@@ -148,7 +184,9 @@ export class NumericFactorisation {
     this.wsSave = wasm.reserve(16 * m);
     this.wsRows = wasm.reserve(4 * m);
     this.wsCols = wasm.reserve(4 * m);
+    this.wsUnknowns = wasm.reserve(8 * m);
     this.wsCap = m;
+    wasm.i32(this.wsPlan + 4 * T_ROW_LIST, 2).set([this.wsRows, this.wsCols]);
     if (old > 0) {
       wasm.f64(this.wsA, 2 * old * old).set(wasm.f64(oldA, 2 * old * old));
       wasm.f64(this.wsB, 2 * old * old).set(wasm.f64(oldB, 2 * old * old));
@@ -164,7 +202,29 @@ export class NumericFactorisation {
     this.wsCb = wasm.reserve(8 * length);
     this.wsCbLength = length;
     wasm.f64(this.wsCb, keep).set(wasm.f64(old, keep));
+    wasm.i32(this.wsPlan + 4 * T_CB_STACK, 1)[0] = this.wsCb;
     this.takeViews();
+  }
+
+  /** A larger delay stack in the kernel's memory, keeping its first `keep` entries. */
+  private growDelayStack(need: number, keep: number): void {
+    const wasm = this.wasm!;
+    const length = Math.max(need, Math.ceil(this.wsDelayLength * 1.5));
+    const old = this.wsDelay;
+    this.wsDelay = wasm.reserve(4 * length);
+    this.wsDelayLength = length;
+    wasm.i32(this.wsDelay, keep).set(wasm.i32(old, keep));
+    wasm.i32(this.wsPlan + 4 * T_DELAY_STACK, 1)[0] = this.wsDelay;
+    this.takeViews();
+  }
+
+  /** Room for the matrix values in the kernel's memory (they are copied there by every factor()). */
+  private placeValues(length: number): void {
+    const wasm = this.wasm!;
+    this.wsValues = wasm.reserve(8 * length);
+    wasm.i32(this.wsPlan + 4 * T_VALUES, 1)[0] = this.wsValues;
+    this.takeViews();
+    this.values = wasm.f64(this.wsValues, length);
   }
 
   /** Fresh views of every buffer in the kernel's memory (growing it detaches the old ones). */
@@ -180,6 +240,15 @@ export class NumericFactorisation {
     this.map = wasm.i32(this.wsMap, Math.max(1, this.n));
     this.runs = wasm.i32(this.wsRuns, 3 * Math.max(1, this.n));
     this.cbStack = wasm.f64(this.wsCb, this.wsCbLength);
+    const ns = this.frontCount;
+    this.cbDim = wasm.i32(this.wsState, ns);
+    this.cbStart = wasm.i32(this.wsState + 4 * ns, ns);
+    this.cbLd = wasm.i32(this.wsState + 8 * ns, ns);
+    this.delayOut = wasm.i32(this.wsState + 12 * ns, ns);
+    this.delayStart = wasm.i32(this.wsState + 16 * ns, ns);
+    this.delayStack = wasm.i32(this.wsDelay, this.wsDelayLength);
+    this.unknowns = wasm.i32(this.wsUnknowns, 2 * m);
+    if (this.values.length > 0) this.values = wasm.f64(this.wsValues, this.values.length);
   }
 
   /**
@@ -219,8 +288,9 @@ export class NumericFactorisation {
       store = new Float64Array(Math.max(this.storeHint, 2 * this.factorNonzeros));
       index = new Int32Array(Math.max(this.indexHint, 2 * (this.nonfs.length + this.n)));
     }
-    // Per supernode: its contribution block (where it starts, its column stride), how many of its rows/columns are delayed.
-    const { cbDim, cbStart, cbLd, delayOut, delayStart } = this;
+    // Per supernode: its contribution block (where it starts, its column stride), how many of
+    // its rows/columns are delayed: this.cbDim, cbStart, cbLd, delayOut, delayStart (read
+    // through `this`: with the WebAssembly kernel they are views, taken again when its memory grows).
     let cbTop = 0;
     let delayTop = 0;
     let delayed = 0;
@@ -230,6 +300,15 @@ export class NumericFactorisation {
     // is extend-added straight from there instead of going through the stack.
     let prevFront: Float64Array = this.frontB;
     let prevDirect = -1;
+    if (wasm) {
+      // The kernel assembles from its own copy of the values.
+      if (this.values.length !== values.length) {
+        const prevIsA = prevFront === this.frontA;
+        this.placeValues(values.length);
+        prevFront = prevIsA ? this.frontA : this.frontB;
+      }
+      this.values.set(values);
+    }
 
     for (let s = 0; s < ns; s++) {
       const f0 = first[s];
@@ -237,7 +316,7 @@ export class NumericFactorisation {
       const c0 = childPtr[s];
       const c1 = childPtr[s + 1];
       let d = 0;
-      for (let t = c0; t < c1; t++) d += delayOut[childList[t]];
+      for (let t = c0; t < c1; t++) d += this.delayOut[childList[t]];
       const nf0 = nonfsPtr[s];
       const nfLen = nonfsPtr[s + 1] - nf0;
       const m = k + d + nfLen;
@@ -250,6 +329,9 @@ export class NumericFactorisation {
         if (cbTop + 2 * m * m > this.wsCbLength) this.growCbStack(cbTop + 2 * m * m, cbTop);
         prevFront = prevIsA ? this.frontA : this.frontB;
       }
+      // (a block read in place was never pushed, so it does not move the stack top)
+      const firstChildStart = c1 > c0 && childList[c0] !== prevDirect ? this.cbStart[childList[c0]] : cbTop;
+      const firstDelayStart = c1 > c0 ? this.delayStart[childList[c0]] : delayTop;
       const map = this.map;
       let F = prevFront === this.frontA ? this.frontB : this.frontA;
       if (F.length < 2 * m * m) {
@@ -260,78 +342,76 @@ export class NumericFactorisation {
       if (this.rowList.length < m) this.growLists(m);
       const rowList = this.rowList;
       const colList = this.colList;
-      F.fill(0, 0, 2 * m * m);
-      for (let q = 0; q < k; q++) {
-        rowList[q] = f0 + q;
-        colList[q] = f0 + q;
-      }
-      for (let q = 0; q < nfLen; q++) {
-        rowList[kFs + q] = nonfs[nf0 + q];
-        colList[kFs + q] = nonfs[nf0 + q];
-      }
-      // Matrix entries whose first eliminated index lies in this front.
-      for (let a = asmPtr[s]; a < asmPtr[s + 1]; a++) {
-        let lr = asmRow[a];
-        let lc = asmCol[a];
-        if (lr >= k) lr += d;
-        if (lc >= k) lc += d;
-        const e = asmEntry[a];
-        const o = 2 * (lc * m + lr);
-        F[o] += values[2 * e];
-        F[o + 1] += values[2 * e + 1];
-      }
-      // Extend-add of the children's contribution blocks (on top of the stack, in order,
-      // except the last child's when it is still in the other front buffer).
-      let off = 0;
-      // (a block read in place was never pushed, so it does not move the stack top)
-      const firstChildStart = c1 > c0 && childList[c0] !== prevDirect ? cbStart[childList[c0]] : cbTop;
-      const firstDelayStart = c1 > c0 ? delayStart[childList[c0]] : delayTop;
-      for (let t = c0; t < c1; t++) {
-        const c = childList[t];
-        const mc = cbDim[c];
-        const dc = delayOut[c];
-        const ds = delayStart[c];
-        for (let q = 0; q < dc; q++) {
-          map[q] = k + off + q;
-          rowList[k + off + q] = this.delayStack[ds + q];
-          colList[k + off + q] = this.delayStack[ds + dc + q];
+      if (wasm) {
+        // Zeroing, the matrix entries and the extend-add, in the kernel (same additions, same order).
+        const prevAt = prevFront === this.frontA ? this.wsA : this.wsB;
+        wasm.assembleFront(this.wsPlan, s, F === this.frontA ? this.wsA : this.wsB, m, k, d, prevDirect, prevAt);
+      } else {
+        F.fill(0, 0, 2 * m * m);
+        for (let q = 0; q < k; q++) {
+          rowList[q] = f0 + q;
+          colList[q] = f0 + q;
         }
-        const rp = nonfsPtr[c];
-        for (let q = dc; q < mc; q++) {
-          const rel = relMap[rp + q - dc];
-          map[q] = rel < k ? rel : rel + d;
+        for (let q = 0; q < nfLen; q++) {
+          rowList[kFs + q] = nonfs[nf0 + q];
+          colList[kFs + q] = nonfs[nf0 + q];
         }
-        off += dc;
-        const cb = c === prevDirect ? prevFront : this.cbStack;
-        const ld = cbLd[c];
-        // Runs of consecutive parent positions (separators are labelled contiguously), so
-        // each column is added in a few contiguous stretches: [child offset, parent offset, length]·2.
-        const runs = this.runs;
-        let nRuns = 0;
-        for (let ii = 0; ii < mc;) {
-          let len = 1;
-          while (ii + len < mc && map[ii + len] === map[ii] + len) len++;
-          runs[3 * nRuns] = 2 * ii;
-          runs[3 * nRuns + 1] = 2 * map[ii];
-          runs[3 * nRuns + 2] = 2 * len;
-          nRuns++;
-          ii += len;
+        // Matrix entries whose first eliminated index lies in this front.
+        for (let a = asmPtr[s]; a < asmPtr[s + 1]; a++) {
+          let lr = asmRow[a];
+          let lc = asmCol[a];
+          if (lr >= k) lr += d;
+          if (lc >= k) lc += d;
+          const e = asmEntry[a];
+          const o = 2 * (lc * m + lr);
+          F[o] += values[2 * e];
+          F[o + 1] += values[2 * e + 1];
         }
-        if (wasm) {
-          const at = c === prevDirect ? (prevFront === this.frontA ? this.wsA : this.wsB) : this.wsCb;
-          wasm.extendAdd(F === this.frontA ? this.wsA : this.wsB, m, at + 8 * cbStart[c], ld, mc, this.wsMap, this.wsRuns, nRuns);
-          continue;
-        }
-        let src = cbStart[c];
-        for (let jj = 0; jj < mc; jj++) {
-          const dst = 2 * map[jj] * m;
-          for (let g = 0; g < 3 * nRuns; g += 3) {
-            const a = src + runs[g];
-            const o = dst + runs[g + 1];
-            const len = runs[g + 2];
-            for (let q = 0; q < len; q++) F[o + q] += cb[a + q];
+        // Extend-add of the children's contribution blocks (on top of the stack, in order,
+        // except the last child's when it is still in the other front buffer).
+        let off = 0;
+        for (let t = c0; t < c1; t++) {
+          const c = childList[t];
+          const mc = this.cbDim[c];
+          const dc = this.delayOut[c];
+          const ds = this.delayStart[c];
+          for (let q = 0; q < dc; q++) {
+            map[q] = k + off + q;
+            rowList[k + off + q] = this.delayStack[ds + q];
+            colList[k + off + q] = this.delayStack[ds + dc + q];
           }
-          src += ld;
+          const rp = nonfsPtr[c];
+          for (let q = dc; q < mc; q++) {
+            const rel = relMap[rp + q - dc];
+            map[q] = rel < k ? rel : rel + d;
+          }
+          off += dc;
+          const cb = c === prevDirect ? prevFront : this.cbStack;
+          const ld = this.cbLd[c];
+          // Runs of consecutive parent positions (separators are labelled contiguously), so
+          // each column is added in a few contiguous stretches: [child offset, parent offset, length]·2.
+          const runs = this.runs;
+          let nRuns = 0;
+          for (let ii = 0; ii < mc;) {
+            let len = 1;
+            while (ii + len < mc && map[ii + len] === map[ii] + len) len++;
+            runs[3 * nRuns] = 2 * ii;
+            runs[3 * nRuns + 1] = 2 * map[ii];
+            runs[3 * nRuns + 2] = 2 * len;
+            nRuns++;
+            ii += len;
+          }
+          let src = this.cbStart[c];
+          for (let jj = 0; jj < mc; jj++) {
+            const dst = 2 * map[jj] * m;
+            for (let g = 0; g < 3 * nRuns; g += 3) {
+              const a = src + runs[g];
+              const o = dst + runs[g + 1];
+              const len = runs[g + 2];
+              for (let q = 0; q < len; q++) F[o + q] += cb[a + q];
+            }
+            src += ld;
+          }
         }
       }
       cbTop = firstChildStart;
@@ -372,10 +452,15 @@ export class NumericFactorisation {
       }
       if (idxTop + 2 * m > index.length) index = growInt(index, idxTop + 2 * m);
       // Original unknowns (not labels), so solves need no permuted copy of b.
-      const perm = this.perm;
-      for (let q = 0; q < m; q++) {
-        index[idxTop + q] = perm[rowList[q]];
-        index[idxTop + m + q] = perm[colList[q]];
+      if (wasm) {
+        wasm.frontUnknowns(this.wsPlan, m, this.wsUnknowns);
+        index.set(this.unknowns.subarray(0, 2 * m), idxTop);
+      } else {
+        const perm = this.perm;
+        for (let q = 0; q < m; q++) {
+          index[idxTop + q] = perm[rowList[q]];
+          index[idxTop + m + q] = perm[colList[q]];
+        }
       }
       valOff[s] = valTop;
       idxOff[s] = idxTop;
@@ -386,19 +471,19 @@ export class NumericFactorisation {
 
       // The Schur complement and the delayed rows/columns for the parent.
       const mc = m - done;
-      cbDim[s] = mc;
-      delayOut[s] = kFs - done;
-      delayStart[s] = delayTop;
+      this.cbDim[s] = mc;
+      this.delayOut[s] = kFs - done;
+      this.delayStart[s] = delayTop;
       prevFront = F;
       prevDirect = -1;
       if (mc > 0 && parent[s] === s + 1) {
         // Postorder puts a parent right after its last child: read this block in place.
-        cbStart[s] = 2 * (done * m + done);
-        cbLd[s] = 2 * m;
+        this.cbStart[s] = 2 * (done * m + done);
+        this.cbLd[s] = 2 * m;
         prevDirect = s;
       } else if (mc > 0) {
-        cbStart[s] = cbTop;
-        cbLd[s] = 2 * mc;
+        this.cbStart[s] = cbTop;
+        this.cbLd[s] = 2 * mc;
         if (wasm) {
           wasm.copyColumns(this.wsCb + 8 * cbTop, (F === this.frontA ? this.wsA : this.wsB) + 16 * (done * m + done), 16 * mc, mc, 16 * m);
           cbTop += 2 * mc * mc;
@@ -414,13 +499,16 @@ export class NumericFactorisation {
           cbTop = dst;
         }
       } else {
-        cbStart[s] = cbTop;
-        cbLd[s] = 0;
+        this.cbStart[s] = cbTop;
+        this.cbLd[s] = 0;
       }
       const dOut = kFs - done;
       delayed += dOut;
       if (dOut > 0) {
-        if (delayTop + 2 * dOut > this.delayStack.length) this.delayStack = growInt(this.delayStack, delayTop + 2 * dOut);
+        if (delayTop + 2 * dOut > this.delayStack.length) {
+          if (wasm) this.growDelayStack(delayTop + 2 * dOut, delayTop);
+          else this.delayStack = growInt(this.delayStack, delayTop + 2 * dOut);
+        }
         for (let q = 0; q < dOut; q++) {
           this.delayStack[delayTop + q] = rowList[done + q];
           this.delayStack[delayTop + dOut + q] = colList[done + q];

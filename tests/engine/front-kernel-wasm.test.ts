@@ -225,6 +225,10 @@ describe.runIf(wasmKernelAvailable())('sparse LU with the WebAssembly kernel', (
       // Well-conditioned lattice matrices: forward error of a few thousand ε (common practice, no source).
       expect(err).toBeLessThan(1e-11 * nrm);
       expect(diff).toBeLessThan(1e-12 * nrm);
+      // The kernels (dense, assembly, extend-add) do the same operations in the same order:
+      // the same factors bit for bit, so the same solution and determinant.
+      expect(diff).toBe(0);
+      expect(dWasm).toEqual(dTs);
     });
   }
 
