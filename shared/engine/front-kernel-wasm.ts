@@ -31,6 +31,7 @@ interface FrontKernelExports {
   copyColumns(dst: number, src: number, rowBytes: number, cols: number, srcStride: number): void;
   assembleFront(plan: number, s: number, f: number, m: number, k: number, d: number, prevDirect: number, prevF: number): void;
   frontUnknowns(plan: number, m: number, out: number): void;
+  front(plan: number, s: number, f: number, m: number, k: number, d: number, prevDirect: number, prevF: number, threshold: number, save: number, nb: number, uOut: number, unknownsOut: number): number;
 }
 
 let compiled: object | null | undefined;
@@ -120,6 +121,15 @@ export class WasmFrontKernel {
   /** The original unknowns of the current front's rows and columns (perm of its lists) into 2·m Int32 at out. */
   frontUnknowns(plan: number, m: number, out: number): void {
     this.exports.frontUnknowns(plan, m, out);
+  }
+
+  /**
+   * One front in one call: assembleFront, factorFront (row and column lists from the
+   * plan table), U12 packed into uOut (done·(m − done) complex) and the front's
+   * unknowns into unknownsOut (2·m Int32). Returns the pivots eliminated.
+   */
+  front(plan: number, s: number, f: number, m: number, k: number, d: number, prevDirect: number, prevF: number, threshold: number, save: number, uOut: number, unknownsOut: number, nb = 32): number {
+    return this.exports.front(plan, s, f, m, k, d, prevDirect, prevF, threshold, save, nb, uOut, unknownsOut);
   }
 
   /** Copies cols columns of rowBytes bytes from src (column stride srcStride bytes) into a packed block at dst. */

@@ -342,10 +342,15 @@ export class NumericFactorisation {
       if (this.rowList.length < m) this.growLists(m);
       const rowList = this.rowList;
       const colList = this.colList;
+      let done = 0;
       if (wasm) {
-        // Zeroing, the matrix entries and the extend-add, in the kernel (same additions, same order).
+        // Zeroing, the matrix entries, the extend-add (same additions in the same order), the
+        // dense factorisation, U12 packed into the free part of the block stack above the
+        // children's blocks (there is room: the stack was sized for cbTop + m² above) and the
+        // front's unknowns, all in one call to the kernel.
         const prevAt = prevFront === this.frontA ? this.wsA : this.wsB;
-        wasm.assembleFront(this.wsPlan, s, F === this.frontA ? this.wsA : this.wsB, m, k, d, prevDirect, prevAt);
+        const at = F === this.frontA ? this.wsA : this.wsB;
+        done = wasm.front(this.wsPlan, s, at, m, k, d, prevDirect, prevAt, this.threshold, this.wsSave, this.wsCb + 8 * firstChildStart, this.wsUnknowns);
       } else {
         F.fill(0, 0, 2 * m * m);
         for (let q = 0; q < k; q++) {
@@ -417,10 +422,7 @@ export class NumericFactorisation {
       cbTop = firstChildStart;
       delayTop = firstDelayStart;
 
-      let done: number;
-      if (this.wasm) {
-        done = this.wasm.factorFront(F === this.frontA ? this.wsA : this.wsB, m, kFs, this.threshold, this.wsRows, this.wsCols, this.wsSave);
-      } else {
+      if (!wasm) {
         if (this.save.length < 2 * m) this.save = new Float64Array(2 * m);
         done = factorFront(F, m, kFs, this.threshold, rowList, colList, this.save);
       }
@@ -437,12 +439,9 @@ export class NumericFactorisation {
       store.set(F.subarray(0, lLen), valTop);
       const uLen = 2 * done;
       if (wasm && done > 0 && m > done) {
-        // U12 packed by the kernel into the free part of the block stack above its top
-        // (there is room: the stack was sized for cbTop + m² above), then one native copy.
-        const uCount = uLen * (m - done);
-        wasm.copyColumns(this.wsCb + 8 * cbTop, (F === this.frontA ? this.wsA : this.wsB) + 8 * lLen, 8 * uLen, m - done, 16 * m);
-        store.set(this.cbStack.subarray(cbTop, cbTop + uCount), valTop + lLen);
-      } else {
+        // (packed by the kernel above the stack top: one native copy)
+        store.set(this.cbStack.subarray(cbTop, cbTop + uLen * (m - done)), valTop + lLen);
+      } else if (!wasm) {
         let u = valTop + lLen;
         for (let c = done; c < m; c++) {
           const src = 2 * c * m;
@@ -452,10 +451,8 @@ export class NumericFactorisation {
       }
       if (idxTop + 2 * m > index.length) index = growInt(index, idxTop + 2 * m);
       // Original unknowns (not labels), so solves need no permuted copy of b.
-      if (wasm) {
-        wasm.frontUnknowns(this.wsPlan, m, this.wsUnknowns);
-        index.set(this.unknowns.subarray(0, 2 * m), idxTop);
-      } else {
+      if (wasm) index.set(this.unknowns.subarray(0, 2 * m), idxTop);
+      else {
         const perm = this.perm;
         for (let q = 0; q < m; q++) {
           index[idxTop + q] = perm[rowList[q]];
