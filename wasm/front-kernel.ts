@@ -179,6 +179,73 @@ function swapColumns(f: usize, m: i32, a: i32, b: i32, colList: usize): void {
   }
 }
 
+// Pivot search, two rows per step: |x|² = re² + im² as in the TypeScript kernel, lane 0
+// on rows p, p+2, ..., lane 1 on rows p+1, p+3, ...; each lane keeps its first strictly
+// largest entry, and of the two the larger wins, the lower row on a tie: the same row
+// as the sequential search (the first strictly largest; −1 when all are zero).
+let searchedRow: i32 = -1;
+
+/** Largest |F[r, ·]|² over rows r0..r1−1 of the column at cp (0 if none); its first row goes to searchedRow (−1 if 0). */
+function pivotSearch(cp: usize, r0: i32, r1: i32): f64 {
+  let bestV = f64x2.splat(0.0);
+  let rowV = i64x2.splat(-1);
+  let idx = i64x2.replace_lane(i64x2.splat(<i64>r0), 1, <i64>(r0 + 1));
+  const two = i64x2.splat(2);
+  let r = r0;
+  for (; r + 2 <= r1; r += 2) {
+    const a = v128.load(cp + <usize>16 * <usize>r);
+    const b = v128.load(cp + <usize>16 * <usize>r, 16);
+    const sa = f64x2.mul(a, a);
+    const sb = f64x2.mul(b, b);
+    const mag = f64x2.add(v128.shuffle<f64>(sa, sb, 0, 2), v128.shuffle<f64>(sa, sb, 1, 3));
+    const gt = f64x2.gt(mag, bestV);
+    bestV = v128.bitselect(mag, bestV, gt);
+    rowV = v128.bitselect(idx, rowV, gt);
+    idx = i64x2.add(idx, two);
+  }
+  let m0 = f64x2.extract_lane(bestV, 0);
+  let i0 = <i32>i64x2.extract_lane(rowV, 0);
+  const m1 = f64x2.extract_lane(bestV, 1);
+  const i1 = <i32>i64x2.extract_lane(rowV, 1);
+  if (m1 > m0 || (m1 == m0 && i1 >= 0 && (i0 < 0 || i1 < i0))) {
+    m0 = m1;
+    i0 = i1;
+  }
+  if (r < r1) {
+    const xr = load<f64>(cp + <usize>16 * <usize>r), xi = load<f64>(cp + <usize>16 * <usize>r, 8);
+    const mag = xr * xr + xi * xi;
+    if (mag > m0) {
+      m0 = mag;
+      i0 = r;
+    }
+  }
+  searchedRow = i0;
+  return m0;
+}
+
+/** max(start, |F[r, ·]|² over rows r0..r1−1) of the column at cp, as the sequential `if (mag > colMag)` loop. */
+function columnMax(cp: usize, r0: i32, r1: i32, start: f64): f64 {
+  let bestV = f64x2.splat(start);
+  let r = r0;
+  for (; r + 2 <= r1; r += 2) {
+    const a = v128.load(cp + <usize>16 * <usize>r);
+    const b = v128.load(cp + <usize>16 * <usize>r, 16);
+    const sa = f64x2.mul(a, a);
+    const sb = f64x2.mul(b, b);
+    const mag = f64x2.add(v128.shuffle<f64>(sa, sb, 0, 2), v128.shuffle<f64>(sa, sb, 1, 3));
+    bestV = v128.bitselect(mag, bestV, f64x2.gt(mag, bestV));
+  }
+  let best = f64x2.extract_lane(bestV, 0);
+  const b1 = f64x2.extract_lane(bestV, 1);
+  if (b1 > best) best = b1;
+  if (r < r1) {
+    const xr = load<f64>(cp + <usize>16 * <usize>r), xi = load<f64>(cp + <usize>16 * <usize>r, 8);
+    const mag = xr * xr + xi * xi;
+    if (mag > best) best = mag;
+  }
+  return best;
+}
+
 /**
  * Partial LU of a front with threshold partial pivoting among the fully-summed rows
  * and delayed pivots: factorFront of shared/engine/dense-complex.ts (its JSDoc states
@@ -197,22 +264,9 @@ export function factorFront(f: usize, m: i32, kFs: i32, threshold: f64, rowList:
         memory.copy(save, cp + <usize>16 * <usize>b0, <usize>16 * <usize>(m - b0));
         eliminateColumn(f, m, p, b0, p);
       }
-      let best = -1;
-      let bestMag = 0.0;
-      for (let r = p; r < kFs; r++) {
-        const xr = load<f64>(cp + <usize>16 * <usize>r), xi = load<f64>(cp + <usize>16 * <usize>r, 8);
-        const mag = xr * xr + xi * xi;
-        if (mag > bestMag) {
-          bestMag = mag;
-          best = r;
-        }
-      }
-      let colMag = bestMag;
-      for (let r = kFs; r < m; r++) {
-        const xr = load<f64>(cp + <usize>16 * <usize>r), xi = load<f64>(cp + <usize>16 * <usize>r, 8);
-        const mag = xr * xr + xi * xi;
-        if (mag > colMag) colMag = mag;
-      }
+      const bestMag = pivotSearch(cp, p, kFs);
+      const best = searchedRow;
+      const colMag = columnMax(cp, kFs, m, bestMag);
       const dr = load<f64>(cp + <usize>16 * <usize>p), di = load<f64>(cp + <usize>16 * <usize>p, 8);
       const diagMag = dr * dr + di * di;
       let piv = -1;

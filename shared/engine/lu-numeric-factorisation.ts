@@ -93,7 +93,9 @@ export class NumericFactorisation {
   private wsState = 0;
   private wsDelay = 0;
   private wsDelayLength = 0;
+  /** The factors' index lists as the kernel writes them, for the whole factorisation (copied out once at its end). */
   private wsUnknowns = 0;
+  private wsUnknownsLength = 0;
   private values: Float64Array = new Float64Array(0);
   private unknowns: Int32Array = new Int32Array(0);
 
@@ -156,6 +158,8 @@ export class NumericFactorisation {
       this.wsState = wasm.reserve(4 * 5 * ns);
       table.push(0);
       for (let q = 0; q < 5; q++) table.push(this.wsState + 4 * q * ns);
+      this.wsUnknownsLength = 2 * (s.nonfs.length + n);
+      this.wsUnknowns = wasm.reserve(4 * this.wsUnknownsLength);
       this.wsDelayLength = 64;
       this.wsDelay = wasm.reserve(4 * this.wsDelayLength);
       table.push(this.wsDelay, this.wsMap, this.wsRuns, 0, 0, this.wsCb, copy(perm));
@@ -184,7 +188,6 @@ export class NumericFactorisation {
     this.wsSave = wasm.reserve(16 * m);
     this.wsRows = wasm.reserve(4 * m);
     this.wsCols = wasm.reserve(4 * m);
-    this.wsUnknowns = wasm.reserve(8 * m);
     this.wsCap = m;
     wasm.i32(this.wsPlan + 4 * T_ROW_LIST, 2).set([this.wsRows, this.wsCols]);
     if (old > 0) {
@@ -203,6 +206,17 @@ export class NumericFactorisation {
     this.wsCbLength = length;
     wasm.f64(this.wsCb, keep).set(wasm.f64(old, keep));
     wasm.i32(this.wsPlan + 4 * T_CB_STACK, 1)[0] = this.wsCb;
+    this.takeViews();
+  }
+
+  /** A larger index staging area in the kernel's memory, keeping its first `keep` entries. */
+  private growUnknowns(need: number, keep: number): void {
+    const wasm = this.wasm!;
+    const length = Math.max(need, Math.ceil(this.wsUnknownsLength * 1.5));
+    const old = this.wsUnknowns;
+    this.wsUnknowns = wasm.reserve(4 * length);
+    this.wsUnknownsLength = length;
+    wasm.i32(this.wsUnknowns, keep).set(wasm.i32(old, keep));
     this.takeViews();
   }
 
@@ -247,7 +261,7 @@ export class NumericFactorisation {
     this.delayOut = wasm.i32(this.wsState + 12 * ns, ns);
     this.delayStart = wasm.i32(this.wsState + 16 * ns, ns);
     this.delayStack = wasm.i32(this.wsDelay, this.wsDelayLength);
-    this.unknowns = wasm.i32(this.wsUnknowns, 2 * m);
+    this.unknowns = wasm.i32(this.wsUnknowns, this.wsUnknownsLength);
     if (this.values.length > 0) this.values = wasm.f64(this.wsValues, this.values.length);
   }
 
@@ -323,10 +337,11 @@ export class NumericFactorisation {
       const kFs = k + d;
       // Two front buffers in turn, so the previous front's Schur complement stays readable.
       // (the stack top only drops before this front's block is pushed: cbTop + m² doubles suffice)
-      if (wasm && (m > this.wsCap || cbTop + 2 * m * m > this.wsCbLength)) {
+      if (wasm && (m > this.wsCap || cbTop + 2 * m * m > this.wsCbLength || idxTop + 2 * m > this.wsUnknownsLength)) {
         const prevIsA = prevFront === this.frontA;
         if (m > this.wsCap) this.growWorkspace(m);
         if (cbTop + 2 * m * m > this.wsCbLength) this.growCbStack(cbTop + 2 * m * m, cbTop);
+        if (idxTop + 2 * m > this.wsUnknownsLength) this.growUnknowns(idxTop + 2 * m, idxTop);
         prevFront = prevIsA ? this.frontA : this.frontB;
       }
       // (a block read in place was never pushed, so it does not move the stack top)
@@ -350,7 +365,7 @@ export class NumericFactorisation {
         // front's unknowns, all in one call to the kernel.
         const prevAt = prevFront === this.frontA ? this.wsA : this.wsB;
         const at = F === this.frontA ? this.wsA : this.wsB;
-        done = wasm.front(this.wsPlan, s, at, m, k, d, prevDirect, prevAt, this.threshold, this.wsSave, this.wsCb + 8 * firstChildStart, this.wsUnknowns);
+        done = wasm.front(this.wsPlan, s, at, m, k, d, prevDirect, prevAt, this.threshold, this.wsSave, this.wsCb + 8 * firstChildStart, this.wsUnknowns + 4 * idxTop);
       } else {
         F.fill(0, 0, 2 * m * m);
         for (let q = 0; q < k; q++) {
@@ -451,8 +466,8 @@ export class NumericFactorisation {
       }
       if (idxTop + 2 * m > index.length) index = growInt(index, idxTop + 2 * m);
       // Original unknowns (not labels), so solves need no permuted copy of b.
-      if (wasm) index.set(this.unknowns.subarray(0, 2 * m), idxTop);
-      else {
+      // (with the WebAssembly kernel they are copied out once, after the loop)
+      if (!wasm) {
         const perm = this.perm;
         for (let q = 0; q < m; q++) {
           index[idxTop + q] = perm[rowList[q]];
@@ -513,6 +528,7 @@ export class NumericFactorisation {
         delayTop += 2 * dOut;
       }
     }
+    if (wasm) index.set(this.unknowns.subarray(0, idxTop));
     valOff[ns] = valTop;
     idxOff[ns] = idxTop;
     if (valTop > this.storeHint) this.storeHint = valTop;
