@@ -26,12 +26,12 @@ const wasmApi = (globalThis as { WebAssembly?: WasmApi }).WebAssembly;
 interface FrontKernelExports {
   memory: WasmMemory;
   heapBase(): number;
-  factorFront(f: number, m: number, kFs: number, threshold: number, rowList: number, colList: number, save: number, nb: number): number;
+  factorFront(f: number, m: number, kFs: number, threshold: number, rowList: number, colList: number, save: number, pack: number, nb: number): number;
   extendAdd(f: number, m: number, cb: number, ld: number, mc: number, map: number, runs: number, nRuns: number): void;
   copyColumns(dst: number, src: number, rowBytes: number, cols: number, srcStride: number): void;
   assembleFront(plan: number, s: number, f: number, m: number, k: number, d: number, prevDirect: number, prevF: number): void;
   frontUnknowns(plan: number, m: number, out: number): void;
-  front(plan: number, s: number, f: number, m: number, k: number, d: number, prevDirect: number, prevF: number, threshold: number, save: number, nb: number, uOut: number, unknownsOut: number): number;
+  front(plan: number, s: number, f: number, m: number, k: number, d: number, prevDirect: number, prevF: number, threshold: number, save: number, pack: number, nb: number, uOut: number, unknownsOut: number): number;
 }
 
 let compiled: object | null | undefined;
@@ -91,10 +91,16 @@ export class WasmFrontKernel {
 
   /**
    * factorFront (dense-complex.ts) on the front at byte offset f; rowList, colList
-   * (Int32, m entries) and save (16·m bytes) are byte offsets in this memory too.
+   * (Int32, m entries), save (16·m bytes) and pack (packBytes(m, nb): the packed
+   * multipliers of one block of nb pivots) are byte offsets in this memory too.
    */
-  factorFront(f: number, m: number, kFs: number, threshold: number, rowList: number, colList: number, save: number, nb = 32): number {
-    return this.exports.factorFront(f, m, kFs, threshold, rowList, colList, save, nb);
+  factorFront(f: number, m: number, kFs: number, threshold: number, rowList: number, colList: number, save: number, pack: number, nb = 32): number {
+    return this.exports.factorFront(f, m, kFs, threshold, rowList, colList, save, pack, nb);
+  }
+
+  /** Bytes of the pack buffer factorFront needs for fronts up to m rows and blocks of nb pivots (nb a multiple of 4). */
+  static packBytes(m: number, nb = 32): number {
+    return 32 * m * nb + 64;
   }
 
   /**
@@ -128,8 +134,8 @@ export class WasmFrontKernel {
    * plan table), U12 packed into uOut (done·(m − done) complex) and the front's
    * unknowns into unknownsOut (2·m Int32). Returns the pivots eliminated.
    */
-  front(plan: number, s: number, f: number, m: number, k: number, d: number, prevDirect: number, prevF: number, threshold: number, save: number, uOut: number, unknownsOut: number, nb = 32): number {
-    return this.exports.front(plan, s, f, m, k, d, prevDirect, prevF, threshold, save, nb, uOut, unknownsOut);
+  front(plan: number, s: number, f: number, m: number, k: number, d: number, prevDirect: number, prevF: number, threshold: number, save: number, pack: number, uOut: number, unknownsOut: number, nb = 32): number {
+    return this.exports.front(plan, s, f, m, k, d, prevDirect, prevF, threshold, save, pack, nb, uOut, unknownsOut);
   }
 
   /** Copies cols columns of rowBytes bytes from src (column stride srcStride bytes) into a packed block at dst. */

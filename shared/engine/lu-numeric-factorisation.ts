@@ -82,6 +82,7 @@ export class NumericFactorisation {
   private wsSave = 0;
   private wsRows = 0;
   private wsCols = 0;
+  private wsPack = 0;
   private wsCap = 0;
   private wsMap = 0;
   private wsRuns = 0;
@@ -188,6 +189,7 @@ export class NumericFactorisation {
     this.wsSave = wasm.reserve(16 * m);
     this.wsRows = wasm.reserve(4 * m);
     this.wsCols = wasm.reserve(4 * m);
+    this.wsPack = wasm.reserve(WasmFrontKernel.packBytes(m));
     this.wsCap = m;
     wasm.i32(this.wsPlan + 4 * T_ROW_LIST, 2).set([this.wsRows, this.wsCols]);
     if (old > 0) {
@@ -365,7 +367,7 @@ export class NumericFactorisation {
         // front's unknowns, all in one call to the kernel.
         const prevAt = prevFront === this.frontA ? this.wsA : this.wsB;
         const at = F === this.frontA ? this.wsA : this.wsB;
-        done = wasm.front(this.wsPlan, s, at, m, k, d, prevDirect, prevAt, this.threshold, this.wsSave, this.wsCb + 8 * firstChildStart, this.wsUnknowns + 4 * idxTop);
+        done = wasm.front(this.wsPlan, s, at, m, k, d, prevDirect, prevAt, this.threshold, this.wsSave, this.wsPack, this.wsCb + 8 * firstChildStart, this.wsUnknowns + 4 * idxTop);
       } else {
         F.fill(0, 0, 2 * m * m);
         for (let q = 0; q < k; q++) {

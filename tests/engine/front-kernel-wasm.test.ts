@@ -64,11 +64,12 @@ function factorWasm(kernel: WasmFrontKernel, f0: Float64Array, m: number, kFs: n
   const rowsAt = kernel.reserve(4 * m);
   const colsAt = kernel.reserve(4 * m);
   const saveAt = kernel.reserve(16 * m);
+  const packAt = kernel.reserve(WasmFrontKernel.packBytes(m));
   kernel.f64(at, 2 * m * m).set(f0);
   const rows = kernel.i32(rowsAt, m);
   const cols = kernel.i32(colsAt, m);
   for (let q = 0; q < m; q++) rows[q] = cols[q] = q;
-  const done = kernel.factorFront(at, m, kFs, u, rowsAt, colsAt, saveAt);
+  const done = kernel.factorFront(at, m, kFs, u, rowsAt, colsAt, saveAt, packAt);
   return { f: kernel.f64(at, 2 * m * m).slice(), done, rows: kernel.i32(rowsAt, m).slice(), cols: kernel.i32(colsAt, m).slice() };
 }
 
