@@ -535,14 +535,17 @@ export function frontUnknowns(plan: usize, m: i32, out: usize): void {
 
 /**
  * One front of a sparse LU in one call: assembleFront, factorFront on it (its row and
- * column lists from the plan table), then U12 (rows 0..done−1, columns done..m−1)
- * packed into uOut and the front's original unknowns (frontUnknowns) into unknownsOut.
- * Returns the pivots eliminated.
+ * column lists from the plan table), then its factors packed at out: the L panel
+ * (columns 0..done−1, all m rows) followed by U12 (rows 0..done−1, columns done..m−1),
+ * and the front's original unknowns (frontUnknowns) into unknownsOut. Returns the
+ * pivots eliminated.
  */
-export function front(plan: usize, s: i32, f: usize, m: i32, k: i32, d: i32, prevDirect: i32, prevF: usize, threshold: f64, save: usize, pack: usize, nb: i32, uOut: usize, unknownsOut: usize): i32 {
+export function front(plan: usize, s: i32, f: usize, m: i32, k: i32, d: i32, prevDirect: i32, prevF: usize, threshold: f64, save: usize, pack: usize, nb: i32, out: usize, unknownsOut: usize): i32 {
   assembleFront(plan, s, f, m, k, d, prevDirect, prevF);
   const done = factorFront(f, m, k + d, threshold, tab(plan, T_ROW_LIST), tab(plan, T_COL_LIST), save, pack, nb);
-  if (done > 0 && m > done) copyColumns(uOut, f + <usize>16 * <usize>done * <usize>m, <usize>16 * <usize>done, m - done, <usize>16 * <usize>m);
+  const lBytes = <usize>16 * <usize>done * <usize>m;
+  memory.copy(out, f, lBytes);
+  if (done > 0 && m > done) copyColumns(out + lBytes, f + lBytes, <usize>16 * <usize>done, m - done, <usize>16 * <usize>m);
   frontUnknowns(plan, m, unknownsOut);
   return done;
 }

@@ -31,7 +31,7 @@ interface FrontKernelExports {
   copyColumns(dst: number, src: number, rowBytes: number, cols: number, srcStride: number): void;
   assembleFront(plan: number, s: number, f: number, m: number, k: number, d: number, prevDirect: number, prevF: number): void;
   frontUnknowns(plan: number, m: number, out: number): void;
-  front(plan: number, s: number, f: number, m: number, k: number, d: number, prevDirect: number, prevF: number, threshold: number, save: number, pack: number, nb: number, uOut: number, unknownsOut: number): number;
+  front(plan: number, s: number, f: number, m: number, k: number, d: number, prevDirect: number, prevF: number, threshold: number, save: number, pack: number, nb: number, out: number, unknownsOut: number): number;
 }
 
 let compiled: object | null | undefined;
@@ -131,11 +131,11 @@ export class WasmFrontKernel {
 
   /**
    * One front in one call: assembleFront, factorFront (row and column lists from the
-   * plan table), U12 packed into uOut (done·(m − done) complex) and the front's
-   * unknowns into unknownsOut (2·m Int32). Returns the pivots eliminated.
+   * plan table), its L panel and U12 packed one after the other at out (done·(2m − done)
+   * complex) and the front's unknowns into unknownsOut (2·m Int32). Returns the pivots eliminated.
    */
-  front(plan: number, s: number, f: number, m: number, k: number, d: number, prevDirect: number, prevF: number, threshold: number, save: number, pack: number, uOut: number, unknownsOut: number, nb = 32): number {
-    return this.exports.front(plan, s, f, m, k, d, prevDirect, prevF, threshold, save, pack, nb, uOut, unknownsOut);
+  front(plan: number, s: number, f: number, m: number, k: number, d: number, prevDirect: number, prevF: number, threshold: number, save: number, pack: number, out: number, unknownsOut: number, nb = 32): number {
+    return this.exports.front(plan, s, f, m, k, d, prevDirect, prevF, threshold, save, pack, nb, out, unknownsOut);
   }
 
   /** Copies cols columns of rowBytes bytes from src (column stride srcStride bytes) into a packed block at dst. */

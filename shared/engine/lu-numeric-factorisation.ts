@@ -362,9 +362,9 @@ export class NumericFactorisation {
       let done = 0;
       if (wasm) {
         // Zeroing, the matrix entries, the extend-add (same additions in the same order), the
-        // dense factorisation, U12 packed into the free part of the block stack above the
-        // children's blocks (there is room: the stack was sized for cbTop + m² above) and the
-        // front's unknowns, all in one call to the kernel.
+        // dense factorisation, its L panel and U12 packed together into the free part of the
+        // block stack above the children's blocks (there is room: the stack was sized for
+        // cbTop + m² above) and the front's unknowns, all in one call to the kernel.
         const prevAt = prevFront === this.frontA ? this.wsA : this.wsB;
         const at = F === this.frontA ? this.wsA : this.wsB;
         done = wasm.front(this.wsPlan, s, at, m, k, d, prevDirect, prevAt, this.threshold, this.wsSave, this.wsPack, this.wsCb + 8 * firstChildStart, this.wsUnknowns + 4 * idxTop);
@@ -451,14 +451,14 @@ export class NumericFactorisation {
       // Keep L (m×done) and U12 (done×(m−done)) of this front.
       const need = valTop + 2 * done * (2 * m - done);
       if (need > store.length) store = growFloat(store, need);
-      // The L panel is contiguous in F (one native copy); U12 is strided.
       const lLen = 2 * done * m;
-      store.set(F.subarray(0, lLen), valTop);
       const uLen = 2 * done;
-      if (wasm && done > 0 && m > done) {
+      if (wasm) {
         // (packed by the kernel above the stack top: one native copy)
-        store.set(this.cbStack.subarray(cbTop, cbTop + uLen * (m - done)), valTop + lLen);
-      } else if (!wasm) {
+        if (done > 0) store.set(this.cbStack.subarray(cbTop, cbTop + need - valTop), valTop);
+      } else {
+        // The L panel is contiguous in F (one native copy); U12 is strided.
+        store.set(F.subarray(0, lLen), valTop);
         let u = valTop + lLen;
         for (let c = done; c < m; c++) {
           const src = 2 * c * m;
