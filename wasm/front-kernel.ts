@@ -8,6 +8,29 @@
 // All pointers are byte addresses in this module's linear memory. A front of m rows is
 // column-major, interleaved (re, im): element (r, c) at f + 16·(c·m + r).
 
+// memory.copy and memory.fill are calls into the runtime in V8 (tens of nanoseconds each,
+// and the kernel makes one per pivot and per copied column): short blocks are moved with
+// a SIMD loop instead. Sizes are multiples of 16 bytes (one complex number).
+
+/** Copies n bytes (a multiple of 16; the blocks do not overlap) from src to dst. */
+function copyBytes(dst: usize, src: usize, n: usize): void {
+  if (n >= 2048) {
+    memory.copy(dst, src, n);
+    return;
+  }
+  for (let o: usize = 0; o < n; o += 16) v128.store(dst + o, v128.load(src + o));
+}
+
+/** Zeroes n bytes (a multiple of 16) at dst. */
+function zeroBytes(dst: usize, n: usize): void {
+  if (n >= 2048) {
+    memory.fill(dst, 0, n);
+    return;
+  }
+  const z = i64x2.splat(0);
+  for (let o: usize = 0; o < n; o += 16) v128.store(dst + o, z);
+}
+
 /** First free byte of linear memory (the caller allocates its buffers from here up). */
 export function heapBase(): usize {
   return (__heap_base + 15) & ~(<usize>15);
@@ -324,7 +347,7 @@ export function factorFront(f: usize, m: i32, kFs: i32, threshold: f64, rowList:
     while (p < kEnd && p - b0 < nb) {
       const cp = f + <usize>p * mm;
       if (p > b0) {
-        memory.copy(save, cp + <usize>16 * <usize>b0, <usize>16 * <usize>(m - b0));
+        copyBytes(save, cp + <usize>16 * <usize>b0, <usize>16 * <usize>(m - b0));
         panelColumn(f, m, cp, b0, p, pack);
       }
       const bestMag = pivotSearch(cp, p, kFs);
@@ -336,7 +359,7 @@ export function factorFront(f: usize, m: i32, kFs: i32, threshold: f64, rowList:
       if (diagMag > 0 && diagMag >= u2 * colMag) piv = p;
       else if (bestMag > 0 && bestMag >= u2 * colMag) piv = best;
       if (piv < 0) {
-        if (p > b0) memory.copy(cp + <usize>16 * <usize>b0, save, <usize>16 * <usize>(m - b0));
+        if (p > b0) copyBytes(cp + <usize>16 * <usize>b0, save, <usize>16 * <usize>(m - b0));
         kEnd--;
         if (kEnd != p) swapColumns(f, m, p, kEnd, colList);
         continue;
@@ -387,7 +410,7 @@ export function extendAdd(f: usize, m: i32, cb: usize, ld: i32, mc: i32, map: us
 /** Copies cols columns of rowBytes bytes each, from src (column stride srcStride bytes) to a packed block at dst. */
 export function copyColumns(dst: usize, src: usize, rowBytes: usize, cols: i32, srcStride: usize): void {
   for (let c = 0; c < cols; c++) {
-    memory.copy(dst, src, rowBytes);
+    copyBytes(dst, src, rowBytes);
     dst += rowBytes;
     src += srcStride;
   }
@@ -442,7 +465,7 @@ const T_PERM = 22; // perm: original unknown of each label
  * TypeScript loop of lu-numeric-factorisation.ts.
  */
 export function assembleFront(plan: usize, s: i32, f: usize, m: i32, k: i32, d: i32, prevDirect: i32, prevF: usize): void {
-  memory.fill(f, 0, <usize>16 * <usize>m * <usize>m);
+  zeroBytes(f, <usize>16 * <usize>m * <usize>m);
   const rowList = tab(plan, T_ROW_LIST);
   const colList = tab(plan, T_COL_LIST);
   const f0 = at32(tab(plan, T_FIRST), s);
@@ -544,7 +567,7 @@ export function front(plan: usize, s: i32, f: usize, m: i32, k: i32, d: i32, pre
   assembleFront(plan, s, f, m, k, d, prevDirect, prevF);
   const done = factorFront(f, m, k + d, threshold, tab(plan, T_ROW_LIST), tab(plan, T_COL_LIST), save, pack, nb);
   const lBytes = <usize>16 * <usize>done * <usize>m;
-  memory.copy(out, f, lBytes);
+  copyBytes(out, f, lBytes);
   if (done > 0 && m > done) copyColumns(out + lBytes, f + lBytes, <usize>16 * <usize>done, m - done, <usize>16 * <usize>m);
   frontUnknowns(plan, m, unknownsOut);
   return done;
