@@ -371,8 +371,11 @@ export function factorFront(f: usize, m: i32, kFs: i32, threshold: f64, rowList:
       const pr = load<f64>(cp + <usize>16 * <usize>p), pi = load<f64>(cp + <usize>16 * <usize>p, 8);
       const den = pr * pr + pi * pi;
       const ir = pr / den, ii = -pi / den;
-      const a = f64x2.replace_lane(f64x2.splat(ir), 1, ii);
-      const b = rot(a);
+      // (a and rot(a) through memory, as rot(u) in the updates: see uScratch)
+      v128.store(uScratch, f64x2.replace_lane(f64x2.splat(ir), 1, ii));
+      v128.store(uScratch, rot(v128.load(uScratch)), 16);
+      const a = v128.load(uScratch);
+      const b = v128.load(uScratch, 16);
       for (let r = <usize>16 * <usize>(p + 1); r < mm; r += 16) {
         const x = v128.load(cp + r);
         v128.store(cp + r, f64x2.add(f64x2.mul(lo(x), a), f64x2.mul(hi(x), b)));
