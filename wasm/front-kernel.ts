@@ -1,9 +1,10 @@
 // AssemblyScript source of the WebAssembly front kernel (compiled by scripts/build-wasm.mjs
 // into shared/engine/front-kernel-wasm-bytes.ts). It is a port of factorFront in
-// shared/engine/dense-complex.ts, which stays the reference the tests compare it with:
-// same blocking, same pivot rule, same delays, and the same floating-point operations in
-// the same order (so the same factors, bit for bit, but for the sign of a zero); the
-// updates use 128-bit SIMD, one complex number per f64x2.
+// shared/engine/dense-complex.ts and of the front assembly in lu-numeric-factorisation.ts,
+// which stay the reference the tests compare it with: same blocking, same pivot rule,
+// same delays, and the same floating-point operations on every entry in the same order
+// (so the same factors, bit for bit, but for the sign of a zero); the updates use 128-bit
+// SIMD, one complex number per f64x2.
 //
 // All pointers are byte addresses in this module's linear memory. A front of m rows is
 // column-major, interleaved (re, im): element (r, c) at f + 16·(c·m + r).
@@ -394,7 +395,7 @@ export function factorFront(f: usize, m: i32, kFs: i32, threshold: f64, rowList:
  * map[jj], in nRuns contiguous stretches runs[3g..3g+2] = [block offset, parent
  * offset, length], all in doubles (the runs SparseLuPlan.factor computes).
  */
-export function extendAdd(f: usize, m: i32, cb: usize, ld: i32, mc: i32, map: usize, runs: usize, nRuns: i32): void {
+function extendAdd(f: usize, m: i32, cb: usize, ld: i32, mc: i32, map: usize, runs: usize, nRuns: i32): void {
   let src = cb;
   const stride = <usize>8 * <usize>ld;
   for (let jj = 0; jj < mc; jj++) {
@@ -467,7 +468,7 @@ const T_PERM = 22; // perm: original unknown of each label
  * from the previous front buffer at prevF. The same additions in the same order as the
  * TypeScript loop of lu-numeric-factorisation.ts.
  */
-export function assembleFront(plan: usize, s: i32, f: usize, m: i32, k: i32, d: i32, prevDirect: i32, prevF: usize): void {
+function assembleFront(plan: usize, s: i32, f: usize, m: i32, k: i32, d: i32, prevDirect: i32, prevF: usize): void {
   zeroBytes(f, <usize>16 * <usize>m * <usize>m);
   const rowList = tab(plan, T_ROW_LIST);
   const colList = tab(plan, T_COL_LIST);
@@ -549,7 +550,7 @@ export function assembleFront(plan: usize, s: i32, f: usize, m: i32, k: i32, d: 
 }
 
 /** out[q] = perm[rowList[q]], out[m + q] = perm[colList[q]] for q < m: a front's original unknowns. */
-export function frontUnknowns(plan: usize, m: i32, out: usize): void {
+function frontUnknowns(plan: usize, m: i32, out: usize): void {
   const perm = tab(plan, T_PERM);
   const rowList = tab(plan, T_ROW_LIST);
   const colList = tab(plan, T_COL_LIST);

@@ -367,7 +367,21 @@ export class NumericFactorisation {
         // cbTop + m² above) and the front's unknowns, all in one call to the kernel.
         const prevAt = prevFront === this.frontA ? this.wsA : this.wsB;
         const at = F === this.frontA ? this.wsA : this.wsB;
-        done = wasm.front(this.wsPlan, s, at, m, k, d, prevDirect, prevAt, this.threshold, this.wsSave, this.wsPack, this.wsCb + 8 * firstChildStart, this.wsUnknowns + 4 * idxTop);
+        done = wasm.front(
+          this.wsPlan,
+          s,
+          at,
+          m,
+          k,
+          d,
+          prevDirect,
+          prevAt,
+          this.threshold,
+          this.wsSave,
+          this.wsPack,
+          this.wsCb + 8 * firstChildStart,
+          this.wsUnknowns + 4 * idxTop,
+        );
       } else {
         F.fill(0, 0, 2 * m * m);
         for (let q = 0; q < k; q++) {

@@ -44,10 +44,12 @@
  * Result: P·A·Q = L·U with P, Q the row and column orders of the pivots (equal
  * unless pivoting exchanged rows or delayed columns).
  *
- * Kernels: by default the fronts, the extend-add and the contribution-block stack live
- * in a WebAssembly module with SIMD (front-kernel-wasm.ts, built from wasm/front-kernel.ts);
- * options.denseKernel = 'typescript' runs dense-complex.ts instead, the reference. Both
- * perform the same floating-point operations in the same order.
+ * Kernels: by default each front's assembly, extend-add and dense factorisation run in
+ * one call to a WebAssembly module with SIMD (front-kernel-wasm.ts, built from
+ * wasm/front-kernel.ts), which also holds the fronts and the contribution-block stack;
+ * options.denseKernel = 'typescript' runs the TypeScript loop and dense-complex.ts
+ * instead, the reference. Both perform the same floating-point operations in the same
+ * order on every entry, so they give the same factors bit for bit.
  */
 import { assertCscPattern } from './complex-csc';
 import { wasmKernelAvailable } from './front-kernel-wasm';

@@ -33,8 +33,7 @@ function randomFront(m: number, kFs: number, diagonal: Diagonal, seed: number): 
         f[c] = (r & 1) === 0 ? ((r & 2) === 0 ? 1 : -1) : 0;
         f[c + 1] = (r & 1) === 1 ? ((r & 2) === 0 ? 1 : -1) : 0;
       }
-    }
-    else if (diagonal === 'tiny') {
+    } else if (diagonal === 'tiny') {
       f[o] *= 1e-9;
       f[o + 1] *= 1e-9;
     } else f[o] += 3;
