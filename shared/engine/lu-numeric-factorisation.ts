@@ -9,7 +9,7 @@
  */
 import { factorFront } from './dense-complex';
 import { WasmFrontKernel } from './front-kernel-wasm';
-import { SolveScratch, SparseLuFactors } from './lu-solves';
+import { SolveScratch, SparseLuFactors, type FactorSlot } from './lu-solves';
 import type { SymbolicFronts } from './lu-symbolic-analysis';
 
 // The plan table of the WebAssembly kernel: PLAN_TABLE addresses, in the order of the
@@ -94,11 +94,20 @@ export class NumericFactorisation {
   private wsState = 0;
   private wsDelay = 0;
   private wsDelayLength = 0;
-  /** The factors' index lists as the kernel writes them, for the whole factorisation (copied out once at its end). */
+  /**
+   * The factor slot: the latest factorisation's values (wsStore) and index lists
+   * (wsUnknowns), written there by the kernel and read there by its solves, until the
+   * next factor() needs the slot: then a factorisation still held (not passed as reuse)
+   * gets copies of its own (detachFromSlot), one copy instead of one per front.
+   */
+  private wsStore = 0;
+  private wsStoreLength = 0;
   private wsUnknowns = 0;
   private wsUnknownsLength = 0;
+  private slotOwner: WeakRef<SparseLuFactors> | null = null;
+  private slotValLen = 0;
+  private slotIdxLen = 0;
   private values: Float64Array = new Float64Array(0);
-  private unknowns: Int32Array = new Int32Array(0);
 
   private readonly frontCount: number;
 
@@ -161,6 +170,8 @@ export class NumericFactorisation {
       for (let q = 0; q < 5; q++) table.push(this.wsState + 4 * q * ns);
       this.wsUnknownsLength = 2 * (s.nonfs.length + n);
       this.wsUnknowns = wasm.reserve(4 * this.wsUnknownsLength);
+      this.wsStoreLength = Math.max(2, 2 * s.factorNonzeros);
+      this.wsStore = wasm.reserve(8 * this.wsStoreLength);
       this.wsDelayLength = 64;
       this.wsDelay = wasm.reserve(4 * this.wsDelayLength);
       table.push(this.wsDelay, this.wsMap, this.wsRuns, 0, 0, this.wsCb, copy(perm));
@@ -211,7 +222,18 @@ export class NumericFactorisation {
     this.takeViews();
   }
 
-  /** A larger index staging area in the kernel's memory, keeping its first `keep` entries. */
+  /** A larger slot for the factor values in the kernel's memory, keeping its first `keep` doubles. */
+  private growStore(need: number, keep: number): void {
+    const wasm = this.wasm!;
+    const length = Math.max(need, Math.ceil(this.wsStoreLength * 1.5));
+    const old = this.wsStore;
+    this.wsStore = wasm.reserve(8 * length);
+    this.wsStoreLength = length;
+    wasm.f64(this.wsStore, keep).set(wasm.f64(old, keep));
+    this.takeViews();
+  }
+
+  /** A larger slot for the index lists in the kernel's memory, keeping its first `keep` entries. */
   private growUnknowns(need: number, keep: number): void {
     const wasm = this.wasm!;
     const length = Math.max(need, Math.ceil(this.wsUnknownsLength * 1.5));
@@ -263,7 +285,6 @@ export class NumericFactorisation {
     this.delayOut = wasm.i32(this.wsState + 12 * ns, ns);
     this.delayStart = wasm.i32(this.wsState + 16 * ns, ns);
     this.delayStack = wasm.i32(this.wsDelay, this.wsDelayLength);
-    this.unknowns = wasm.i32(this.wsUnknowns, this.wsUnknownsLength);
     if (this.values.length > 0) this.values = wasm.f64(this.wsValues, this.values.length);
   }
 
@@ -291,9 +312,20 @@ export class NumericFactorisation {
     let pivots: Int32Array;
     let store: Float64Array;
     let index: Int32Array;
+    if (wasm) {
+      // The slot is about to be overwritten: a factorisation still held keeps copies.
+      const owner = this.slotOwner?.deref();
+      if (owner && owner !== reuse && owner.inSlot) owner.detachFromSlot(this.slotValLen, this.slotIdxLen);
+      this.slotOwner = null;
+    }
     if (reuse) {
       const taken = reuse.takeStorage(this.scratch);
       ({ valOff, idxOff, frontDim, pivots, store, index } = taken);
+      // (with the WebAssembly kernel the factors go to the slot, not to these arrays)
+      if (wasm) {
+        store = NO_VALUES;
+        index = NO_INDEX;
+      }
     } else {
       valOff = new Float64Array(ns + 1);
       idxOff = new Int32Array(ns + 1);
@@ -301,8 +333,8 @@ export class NumericFactorisation {
       pivots = new Int32Array(ns);
       // Delayed pivots enlarge fronts beyond the prediction; the plan remembers the largest
       // storage any factorisation needed so later ones allocate once instead of growing.
-      store = new Float64Array(Math.max(this.storeHint, 2 * this.factorNonzeros));
-      index = new Int32Array(Math.max(this.indexHint, 2 * (this.nonfs.length + this.n)));
+      store = wasm ? NO_VALUES : new Float64Array(Math.max(this.storeHint, 2 * this.factorNonzeros));
+      index = wasm ? NO_INDEX : new Int32Array(Math.max(this.indexHint, 2 * (this.nonfs.length + this.n)));
     }
     // Per supernode: its contribution block (where it starts, its column stride), how many of
     // its rows/columns are delayed: this.cbDim, cbStart, cbLd, delayOut, delayStart (read
@@ -339,11 +371,13 @@ export class NumericFactorisation {
       const kFs = k + d;
       // Two front buffers in turn, so the previous front's Schur complement stays readable.
       // (the stack top only drops before this front's block is pushed: cbTop + m² doubles suffice)
-      if (wasm && (m > this.wsCap || cbTop + 2 * m * m > this.wsCbLength || idxTop + 2 * m > this.wsUnknownsLength)) {
+      const valNeed = valTop + 2 * kFs * (2 * m - kFs);
+      if (wasm && (m > this.wsCap || cbTop + 2 * m * m > this.wsCbLength || idxTop + 2 * m > this.wsUnknownsLength || valNeed > this.wsStoreLength)) {
         const prevIsA = prevFront === this.frontA;
         if (m > this.wsCap) this.growWorkspace(m);
         if (cbTop + 2 * m * m > this.wsCbLength) this.growCbStack(cbTop + 2 * m * m, cbTop);
         if (idxTop + 2 * m > this.wsUnknownsLength) this.growUnknowns(idxTop + 2 * m, idxTop);
+        if (valNeed > this.wsStoreLength) this.growStore(valNeed, valTop);
         prevFront = prevIsA ? this.frontA : this.frontB;
       }
       // (a block read in place was never pushed, so it does not move the stack top)
@@ -362,9 +396,8 @@ export class NumericFactorisation {
       let done = 0;
       if (wasm) {
         // Zeroing, the matrix entries, the extend-add (same additions in the same order), the
-        // dense factorisation, its L panel and U12 packed together into the free part of the
-        // block stack above the children's blocks (there is room: the stack was sized for
-        // cbTop + m² above) and the front's unknowns, all in one call to the kernel.
+        // dense factorisation, its L panel and U12 packed into the factor slot and the
+        // front's unknowns into the slot's index lists, all in one call to the kernel.
         const prevAt = prevFront === this.frontA ? this.wsA : this.wsB;
         const at = F === this.frontA ? this.wsA : this.wsB;
         done = wasm.front(
@@ -379,7 +412,7 @@ export class NumericFactorisation {
           this.threshold,
           this.wsSave,
           this.wsPack,
-          this.wsCb + 8 * firstChildStart,
+          this.wsStore + 8 * valTop,
           this.wsUnknowns + 4 * idxTop,
         );
       } else {
@@ -464,13 +497,10 @@ export class NumericFactorisation {
 
       // Keep L (m×done) and U12 (done×(m−done)) of this front.
       const need = valTop + 2 * done * (2 * m - done);
-      if (need > store.length) store = growFloat(store, need);
+      if (!wasm && need > store.length) store = growFloat(store, need);
       const lLen = 2 * done * m;
       const uLen = 2 * done;
-      if (wasm) {
-        // (packed by the kernel above the stack top: one native copy)
-        if (done > 0) store.set(this.cbStack.subarray(cbTop, cbTop + need - valTop), valTop);
-      } else {
+      if (!wasm) {
         // The L panel is contiguous in F (one native copy); U12 is strided.
         store.set(F.subarray(0, lLen), valTop);
         let u = valTop + lLen;
@@ -480,7 +510,7 @@ export class NumericFactorisation {
           u += uLen;
         }
       }
-      if (idxTop + 2 * m > index.length) index = growInt(index, idxTop + 2 * m);
+      if (!wasm && idxTop + 2 * m > index.length) index = growInt(index, idxTop + 2 * m);
       // Original unknowns (not labels), so solves need no permuted copy of b.
       // (with the WebAssembly kernel they are copied out once, after the loop)
       if (!wasm) {
@@ -544,11 +574,23 @@ export class NumericFactorisation {
         delayTop += 2 * dOut;
       }
     }
-    if (wasm) index.set(this.unknowns.subarray(0, idxTop));
     valOff[ns] = valTop;
     idxOff[ns] = idxTop;
     if (valTop > this.storeHint) this.storeHint = valTop;
     if (idxTop > this.indexHint) this.indexHint = idxTop;
+    if (wasm) {
+      const valLen = valTop;
+      const idxLen = idxTop;
+      const slot: FactorSlot = {
+        store: () => wasm.f64(this.wsStore, valLen),
+        index: () => wasm.i32(this.wsUnknowns, idxLen),
+      };
+      const lu = new SparseLuFactors(this.n, store, index, valOff, idxOff, frontDim, pivots, delayed, this.scratch, slot);
+      this.slotOwner = new WeakRef(lu);
+      this.slotValLen = valLen;
+      this.slotIdxLen = idxLen;
+      return lu;
+    }
     return new SparseLuFactors(this.n, store, index, valOff, idxOff, frontDim, pivots, delayed, this.scratch);
   }
 
@@ -557,6 +599,9 @@ export class NumericFactorisation {
     this.colList = new Int32Array(m);
   }
 }
+
+const NO_VALUES = new Float64Array(0);
+const NO_INDEX = new Int32Array(0);
 
 function growFloat(a: Float64Array, need: number): Float64Array<ArrayBuffer> {
   const b = new Float64Array(Math.max(need, Math.ceil(a.length * 1.5)));
