@@ -1,12 +1,36 @@
 // AssemblyScript source of the WebAssembly front kernel (compiled by scripts/build-wasm.mjs
 // into shared/engine/front-kernel-wasm-bytes.ts). It is a port of factorFront in
-// shared/engine/dense-complex.ts, which stays the reference the tests compare it with:
-// same blocking, same pivot rule, same delays, and the same floating-point operations in
-// the same order (so the same factors, bit for bit, but for the sign of a zero); the
-// updates use 128-bit SIMD, one complex number per f64x2.
+// shared/engine/dense-complex.ts and of the front assembly in lu-numeric-factorisation.ts,
+// which stay the reference the tests compare it with: same blocking, same pivot rule,
+// same delays, and the same floating-point operations on every entry in the same order
+// (so the same factors, bit for bit, but for the sign of a zero); the updates use 128-bit
+// SIMD, one complex number per f64x2.
 //
 // All pointers are byte addresses in this module's linear memory. A front of m rows is
 // column-major, interleaved (re, im): element (r, c) at f + 16·(c·m + r).
+
+// memory.copy and memory.fill are calls into the runtime in V8 (tens of nanoseconds each,
+// and the kernel makes one per pivot and per copied column): short blocks are moved with
+// a SIMD loop instead. Sizes are multiples of 16 bytes (one complex number).
+
+/** Copies n bytes (a multiple of 16; the blocks do not overlap) from src to dst. */
+function copyBytes(dst: usize, src: usize, n: usize): void {
+  if (n >= 2048) {
+    memory.copy(dst, src, n);
+    return;
+  }
+  for (let o: usize = 0; o < n; o += 16) v128.store(dst + o, v128.load(src + o));
+}
+
+/** Zeroes n bytes (a multiple of 16) at dst. */
+function zeroBytes(dst: usize, n: usize): void {
+  if (n >= 2048) {
+    memory.fill(dst, 0, n);
+    return;
+  }
+  const z = i64x2.splat(0);
+  for (let o: usize = 0; o < n; o += 16) v128.store(dst + o, z);
+}
 
 /** First free byte of linear memory (the caller allocates its buffers from here up). */
 export function heapBase(): usize {
@@ -54,94 +78,154 @@ function triangle4(f: usize, m: i32, cj: usize, q: i32): void {
   store<f64>(a0, load<f64>(a0, 56) - (load<f64>(l) * u0i + load<f64>(l, 8) * u0r + (load<f64>(l2) * u1i + load<f64>(l2, 8) * u1r) + (load<f64>(l3) * u2i + load<f64>(l3, 8) * u2r)), 56);
 }
 
-/** Column j −= Σ_{q0 ≤ q < q1} L[·, q]·U[q, j] below each pivot (eliminateColumn of dense-complex.ts). */
-function eliminateColumn(f: usize, m: i32, j: i32, q0: i32, q1: i32): void {
+// Packed multipliers. While a block of pivots is eliminated, each finished group of four
+// pivots q..q+3 has its multipliers L[r, q..q+3], rows r ≥ q+4, copied once into a packed
+// block: row r at pk + 128·r holds lo(l0), hi(l0), lo(l1), hi(l1), ..., lo(l3), hi(l3)
+// with lo(l) = (re, re) and hi(l) = (im, im). The updates then read them with plain
+// loads instead of two shuffles per multiplier and column, and compute exactly the same
+// products and sums as before: lo(x)·u + hi(x)·rot(u) per pivot, four pivots summed in
+// order, then subtracted. Row swaps inside the block are mirrored in the packed rows.
+//
+// The rotated U entries rot(u) of a pass go through 64 bytes of memory (uScratch, the
+// start of the pack buffer) before the loop: computed in registers, V8's compiler
+// rebuilds them (constant, shuffle, multiply) in every iteration of the row loop, which
+// cost a quarter of the update's time (measured: 12 → 17 GFlop/s on a 300-row front).
+
+/** 64 bytes of scratch for rot(u) (set by factorFront to the start of its pack buffer). */
+let uScratch: usize = 0;
+
+/** The packed block of group g (pivots b0+4g..b0+4g+3) of the current block of pivots. */
+// @ts-ignore: decorator
+@inline function groupBlock(pack: usize, m: i32, g: i32): usize {
+  return pack + 64 + <usize>128 * <usize>m * <usize>g;
+}
+
+/** Packs rows q+4..m−1 of the multiplier columns q..q+3 into pk (layout above). */
+function packGroup(f: usize, m: i32, q: i32, pk: usize): void {
   const mm = <usize>16 * <usize>m;
-  const cj = f + <usize>j * mm;
-  let q = q0;
-  for (; q + 4 <= q1; q += 4) {
-    triangle4(f, m, cj, q);
-    const c0 = f + <usize>q * mm;
-    const c1 = c0 + mm;
-    const c2 = c1 + mm;
-    const c3 = c2 + mm;
-    const a = cj + <usize>16 * <usize>q;
-    const u0 = v128.load(a), u1 = v128.load(a, 16), u2 = v128.load(a, 32), u3 = v128.load(a, 48);
-    if (!v128.any_true(v128.or(v128.or(u0, u1), v128.or(u2, u3)))) continue;
-    const b0 = rot(u0), b1 = rot(u1), b2 = rot(u2), b3 = rot(u3);
-    for (let r = <usize>16 * <usize>(q + 4); r < mm; r += 16) {
-      const x0 = v128.load(c0 + r), x1 = v128.load(c1 + r), x2 = v128.load(c2 + r), x3 = v128.load(c3 + r);
-      let s = f64x2.mul(lo(x0), u0);
-      s = f64x2.add(s, f64x2.mul(hi(x0), b0));
-      s = f64x2.add(s, f64x2.mul(lo(x1), u1));
-      s = f64x2.add(s, f64x2.mul(hi(x1), b1));
-      s = f64x2.add(s, f64x2.mul(lo(x2), u2));
-      s = f64x2.add(s, f64x2.mul(hi(x2), b2));
-      s = f64x2.add(s, f64x2.mul(lo(x3), u3));
-      s = f64x2.add(s, f64x2.mul(hi(x3), b3));
-      v128.store(cj + r, f64x2.sub(v128.load(cj + r), s));
-    }
-  }
-  for (; q < q1; q++) {
-    const c0 = f + <usize>q * mm;
-    const u = v128.load(cj + <usize>16 * <usize>q);
-    if (!v128.any_true(u)) continue;
-    const b0 = rot(u);
-    for (let r = <usize>16 * <usize>(q + 1); r < mm; r += 16) {
-      const x0 = v128.load(c0 + r);
-      const s = f64x2.add(f64x2.mul(lo(x0), u), f64x2.mul(hi(x0), b0));
-      v128.store(cj + r, f64x2.sub(v128.load(cj + r), s));
-    }
+  const c0 = f + <usize>q * mm;
+  const c1 = c0 + mm;
+  const c2 = c1 + mm;
+  const c3 = c2 + mm;
+  for (let r = <usize>16 * <usize>(q + 4); r < mm; r += 16) {
+    const x0 = v128.load(c0 + r), x1 = v128.load(c1 + r), x2 = v128.load(c2 + r), x3 = v128.load(c3 + r);
+    const d = pk + <usize>8 * r;
+    v128.store(d, lo(x0));
+    v128.store(d, hi(x0), 16);
+    v128.store(d, lo(x1), 32);
+    v128.store(d, hi(x1), 48);
+    v128.store(d, lo(x2), 64);
+    v128.store(d, hi(x2), 80);
+    v128.store(d, lo(x3), 96);
+    v128.store(d, hi(x3), 112);
   }
 }
 
-/** eliminateColumn on columns j and j+1 at once: each multiplier loaded serves two columns. */
-function eliminateColumnPair(f: usize, m: i32, j: i32, q0: i32, q1: i32): void {
+/**
+ * Column cj −= Σ of the four pivots of a packed group over rows [r0, r1) (byte offsets
+ * 16·row), with the group's U entries at a. Skipped when all four are zero, as in the
+ * TypeScript kernel (the difference can only be the sign of a zero).
+ */
+function groupPass(pk: usize, cj: usize, a: usize, r0: usize, r1: usize): void {
+  if (r0 >= r1) return;
+  const u0 = v128.load(a), u1 = v128.load(a, 16), u2 = v128.load(a, 32), u3 = v128.load(a, 48);
+  if (!v128.any_true(v128.or(v128.or(u0, u1), v128.or(u2, u3)))) return;
+  // (rot(u) through memory: see uScratch)
+  v128.store(uScratch, rot(u0));
+  v128.store(uScratch, rot(u1), 16);
+  v128.store(uScratch, rot(u2), 32);
+  v128.store(uScratch, rot(u3), 48);
+  const b0 = v128.load(uScratch), b1 = v128.load(uScratch, 16), b2 = v128.load(uScratch, 32), b3 = v128.load(uScratch, 48);
+  for (let r = r0; r < r1; r += 16) {
+    const x = pk + <usize>8 * r;
+    let s = f64x2.mul(v128.load(x), u0);
+    s = f64x2.add(s, f64x2.mul(v128.load(x, 16), b0));
+    s = f64x2.add(s, f64x2.mul(v128.load(x, 32), u1));
+    s = f64x2.add(s, f64x2.mul(v128.load(x, 48), b1));
+    s = f64x2.add(s, f64x2.mul(v128.load(x, 64), u2));
+    s = f64x2.add(s, f64x2.mul(v128.load(x, 80), b2));
+    s = f64x2.add(s, f64x2.mul(v128.load(x, 96), u3));
+    s = f64x2.add(s, f64x2.mul(v128.load(x, 112), b3));
+    v128.store(cj + r, f64x2.sub(v128.load(cj + r), s));
+  }
+}
+
+/** Column cj −= L[·, q]·U[q, j] over rows [r0, r1) (byte offsets), one pivot, multipliers read from F. */
+function rankOne(f: usize, m: i32, cj: usize, q: i32, r0: usize, r1: usize): void {
+  if (r0 >= r1) return;
+  const c0 = f + <usize>q * <usize>16 * <usize>m;
+  const u = v128.load(cj + <usize>16 * <usize>q);
+  if (!v128.any_true(u)) return;
+  v128.store(uScratch, rot(u));
+  const b0 = v128.load(uScratch);
+  for (let r = r0; r < r1; r += 16) {
+    const x0 = v128.load(c0 + r);
+    const s = f64x2.add(f64x2.mul(lo(x0), u), f64x2.mul(hi(x0), b0));
+    v128.store(cj + r, f64x2.sub(v128.load(cj + r), s));
+  }
+}
+
+/**
+ * Column p −= Σ_{b0 ≤ q < p} L[·, q]·U[q, p] below each pivot, inside the block of
+ * pivots b0.. (eliminateColumn of dense-complex.ts): finished groups from the packed
+ * blocks, the pivots of the unfinished group one by one.
+ */
+function panelColumn(f: usize, m: i32, cj: usize, b0: i32, p: i32, pack: usize): void {
   const mm = <usize>16 * <usize>m;
-  const cj = f + <usize>j * mm;
-  const ck = cj + mm;
-  let q = q0;
-  for (; q + 4 <= q1; q += 4) {
+  let q = b0;
+  let g = 0;
+  for (; q + 4 <= p; q += 4) {
     triangle4(f, m, cj, q);
-    triangle4(f, m, ck, q);
-    const c0 = f + <usize>q * mm;
-    const c1 = c0 + mm;
-    const c2 = c1 + mm;
-    const c3 = c2 + mm;
-    const a = cj + <usize>16 * <usize>q;
-    const b = ck + <usize>16 * <usize>q;
-    const u0 = v128.load(a), u1 = v128.load(a, 16), u2 = v128.load(a, 32), u3 = v128.load(a, 48);
-    const v0 = v128.load(b), v1 = v128.load(b, 16), v2 = v128.load(b, 32), v3 = v128.load(b, 48);
-    if (!v128.any_true(v128.or(v128.or(v128.or(u0, u1), v128.or(u2, u3)), v128.or(v128.or(v0, v1), v128.or(v2, v3))))) continue;
-    const ub0 = rot(u0), ub1 = rot(u1), ub2 = rot(u2), ub3 = rot(u3);
-    const vb0 = rot(v0), vb1 = rot(v1), vb2 = rot(v2), vb3 = rot(v3);
-    for (let r = <usize>16 * <usize>(q + 4); r < mm; r += 16) {
-      const x0 = v128.load(c0 + r), x1 = v128.load(c1 + r), x2 = v128.load(c2 + r), x3 = v128.load(c3 + r);
-      const l0 = lo(x0), h0 = hi(x0), l1 = lo(x1), h1 = hi(x1);
-      let s = f64x2.mul(l0, u0);
-      let t = f64x2.mul(l0, v0);
-      s = f64x2.add(s, f64x2.mul(h0, ub0));
-      t = f64x2.add(t, f64x2.mul(h0, vb0));
-      s = f64x2.add(s, f64x2.mul(l1, u1));
-      t = f64x2.add(t, f64x2.mul(l1, v1));
-      s = f64x2.add(s, f64x2.mul(h1, ub1));
-      t = f64x2.add(t, f64x2.mul(h1, vb1));
-      const l2 = lo(x2), h2 = hi(x2), l3 = lo(x3), h3 = hi(x3);
-      s = f64x2.add(s, f64x2.mul(l2, u2));
-      t = f64x2.add(t, f64x2.mul(l2, v2));
-      s = f64x2.add(s, f64x2.mul(h2, ub2));
-      t = f64x2.add(t, f64x2.mul(h2, vb2));
-      s = f64x2.add(s, f64x2.mul(l3, u3));
-      t = f64x2.add(t, f64x2.mul(l3, v3));
-      s = f64x2.add(s, f64x2.mul(h3, ub3));
-      t = f64x2.add(t, f64x2.mul(h3, vb3));
-      v128.store(cj + r, f64x2.sub(v128.load(cj + r), s));
-      v128.store(ck + r, f64x2.sub(v128.load(ck + r), t));
+    groupPass(groupBlock(pack, m, g), cj, cj + <usize>16 * <usize>q, <usize>16 * <usize>(q + 4), mm);
+    g++;
+  }
+  for (; q < p; q++) rankOne(f, m, cj, q, <usize>16 * <usize>(q + 1), mm);
+}
+
+/**
+ * The right-looking update of columns p..m−1 by the block of pivots b0..p−1, with the
+ * same operations on every entry as eliminateColumn of dense-complex.ts: first the U
+ * rows b0..p−1 of each column (triangles and the packed groups on rows above p), then
+ * the rows p..m−1 group by group across all columns (so a group's packed block stays
+ * in cache), and the pivots of an unfinished last group one by one.
+ */
+function trailingUpdate(f: usize, m: i32, b0: i32, p: i32, pack: usize): void {
+  const mm = <usize>16 * <usize>m;
+  const groups = (p - b0) >> 2;
+  const qr = b0 + 4 * groups;
+  const rp = <usize>16 * <usize>p;
+  for (let j = p; j < m; j++) {
+    const cj = f + <usize>j * mm;
+    for (let g = 0; g < groups; g++) {
+      const q = b0 + 4 * g;
+      triangle4(f, m, cj, q);
+      groupPass(groupBlock(pack, m, g), cj, cj + <usize>16 * <usize>q, <usize>16 * <usize>(q + 4), rp);
+    }
+    for (let q = qr; q < p; q++) rankOne(f, m, cj, q, <usize>16 * <usize>(q + 1), rp);
+  }
+  for (let g = 0; g < groups; g++) {
+    const pk = groupBlock(pack, m, g);
+    const a = <usize>16 * <usize>(b0 + 4 * g);
+    for (let j = p; j < m; j++) {
+      const cj = f + <usize>j * mm;
+      groupPass(pk, cj, cj + a, rp, mm);
     }
   }
-  if (q < q1) {
-    eliminateColumn(f, m, j, q, q1);
-    eliminateColumn(f, m, j + 1, q, q1);
+  for (let q = qr; q < p; q++) {
+    for (let j = p; j < m; j++) rankOne(f, m, f + <usize>j * mm, q, rp, mm);
+  }
+}
+
+/** Swaps rows a and b (both below every finished group) in the first `groups` packed blocks. */
+function swapPackedRows(pack: usize, m: i32, a: i32, b: i32, groups: i32): void {
+  for (let g = 0; g < groups; g++) {
+    const pa = groupBlock(pack, m, g) + <usize>128 * <usize>a;
+    const pb = groupBlock(pack, m, g) + <usize>128 * <usize>b;
+    for (let o: usize = 0; o < 128; o += 16) {
+      const x = v128.load(pa + o);
+      v128.store(pa + o, v128.load(pb + o));
+      v128.store(pb + o, x);
+    }
   }
 }
 
@@ -179,14 +263,84 @@ function swapColumns(f: usize, m: i32, a: i32, b: i32, colList: usize): void {
   }
 }
 
+// Pivot search, two rows per step: |x|² = re² + im² as in the TypeScript kernel, lane 0
+// on rows p, p+2, ..., lane 1 on rows p+1, p+3, ...; each lane keeps its first strictly
+// largest entry, and of the two the larger wins, the lower row on a tie: the same row
+// as the sequential search (the first strictly largest; −1 when all are zero).
+let searchedRow: i32 = -1;
+
+/** Largest |F[r, ·]|² over rows r0..r1−1 of the column at cp (0 if none); its first row goes to searchedRow (−1 if 0). */
+function pivotSearch(cp: usize, r0: i32, r1: i32): f64 {
+  let bestV = f64x2.splat(0.0);
+  let rowV = i64x2.splat(-1);
+  let idx = i64x2.replace_lane(i64x2.splat(<i64>r0), 1, <i64>(r0 + 1));
+  const two = i64x2.splat(2);
+  let r = r0;
+  for (; r + 2 <= r1; r += 2) {
+    const a = v128.load(cp + <usize>16 * <usize>r);
+    const b = v128.load(cp + <usize>16 * <usize>r, 16);
+    const sa = f64x2.mul(a, a);
+    const sb = f64x2.mul(b, b);
+    const mag = f64x2.add(v128.shuffle<f64>(sa, sb, 0, 2), v128.shuffle<f64>(sa, sb, 1, 3));
+    const gt = f64x2.gt(mag, bestV);
+    bestV = v128.bitselect(mag, bestV, gt);
+    rowV = v128.bitselect(idx, rowV, gt);
+    idx = i64x2.add(idx, two);
+  }
+  let m0 = f64x2.extract_lane(bestV, 0);
+  let i0 = <i32>i64x2.extract_lane(rowV, 0);
+  const m1 = f64x2.extract_lane(bestV, 1);
+  const i1 = <i32>i64x2.extract_lane(rowV, 1);
+  if (m1 > m0 || (m1 == m0 && i1 >= 0 && (i0 < 0 || i1 < i0))) {
+    m0 = m1;
+    i0 = i1;
+  }
+  if (r < r1) {
+    const xr = load<f64>(cp + <usize>16 * <usize>r), xi = load<f64>(cp + <usize>16 * <usize>r, 8);
+    const mag = xr * xr + xi * xi;
+    if (mag > m0) {
+      m0 = mag;
+      i0 = r;
+    }
+  }
+  searchedRow = i0;
+  return m0;
+}
+
+/** max(start, |F[r, ·]|² over rows r0..r1−1) of the column at cp, as the sequential `if (mag > colMag)` loop. */
+function columnMax(cp: usize, r0: i32, r1: i32, start: f64): f64 {
+  let bestV = f64x2.splat(start);
+  let r = r0;
+  for (; r + 2 <= r1; r += 2) {
+    const a = v128.load(cp + <usize>16 * <usize>r);
+    const b = v128.load(cp + <usize>16 * <usize>r, 16);
+    const sa = f64x2.mul(a, a);
+    const sb = f64x2.mul(b, b);
+    const mag = f64x2.add(v128.shuffle<f64>(sa, sb, 0, 2), v128.shuffle<f64>(sa, sb, 1, 3));
+    bestV = v128.bitselect(mag, bestV, f64x2.gt(mag, bestV));
+  }
+  let best = f64x2.extract_lane(bestV, 0);
+  const b1 = f64x2.extract_lane(bestV, 1);
+  if (b1 > best) best = b1;
+  if (r < r1) {
+    const xr = load<f64>(cp + <usize>16 * <usize>r), xi = load<f64>(cp + <usize>16 * <usize>r, 8);
+    const mag = xr * xr + xi * xi;
+    if (mag > best) best = mag;
+  }
+  return best;
+}
+
 /**
  * Partial LU of a front with threshold partial pivoting among the fully-summed rows
  * and delayed pivots: factorFront of shared/engine/dense-complex.ts (its JSDoc states
- * the method and sources). save holds 16·m bytes. Returns the pivots eliminated.
+ * the method and sources). save holds 16·m bytes, pack 32·m·nb + 64 bytes (packed
+ * multipliers of one block of nb pivots, nb a multiple of 4, and the rotated U entries
+ * of a group). Returns the pivots eliminated.
  */
-export function factorFront(f: usize, m: i32, kFs: i32, threshold: f64, rowList: usize, colList: usize, save: usize, nb: i32): i32 {
+export function factorFront(f: usize, m: i32, kFs: i32, threshold: f64, rowList: usize, colList: usize, save: usize, pack: usize, nb: i32): i32 {
   const u2 = threshold * threshold;
   const mm = <usize>16 * <usize>m;
+  uScratch = pack;
   let p = 0;
   let kEnd = kFs;
   while (p < kEnd) {
@@ -194,53 +348,43 @@ export function factorFront(f: usize, m: i32, kFs: i32, threshold: f64, rowList:
     while (p < kEnd && p - b0 < nb) {
       const cp = f + <usize>p * mm;
       if (p > b0) {
-        memory.copy(save, cp + <usize>16 * <usize>b0, <usize>16 * <usize>(m - b0));
-        eliminateColumn(f, m, p, b0, p);
+        copyBytes(save, cp + <usize>16 * <usize>b0, <usize>16 * <usize>(m - b0));
+        panelColumn(f, m, cp, b0, p, pack);
       }
-      let best = -1;
-      let bestMag = 0.0;
-      for (let r = p; r < kFs; r++) {
-        const xr = load<f64>(cp + <usize>16 * <usize>r), xi = load<f64>(cp + <usize>16 * <usize>r, 8);
-        const mag = xr * xr + xi * xi;
-        if (mag > bestMag) {
-          bestMag = mag;
-          best = r;
-        }
-      }
-      let colMag = bestMag;
-      for (let r = kFs; r < m; r++) {
-        const xr = load<f64>(cp + <usize>16 * <usize>r), xi = load<f64>(cp + <usize>16 * <usize>r, 8);
-        const mag = xr * xr + xi * xi;
-        if (mag > colMag) colMag = mag;
-      }
+      const bestMag = pivotSearch(cp, p, kFs);
+      const best = searchedRow;
+      const colMag = columnMax(cp, kFs, m, bestMag);
       const dr = load<f64>(cp + <usize>16 * <usize>p), di = load<f64>(cp + <usize>16 * <usize>p, 8);
       const diagMag = dr * dr + di * di;
       let piv = -1;
       if (diagMag > 0 && diagMag >= u2 * colMag) piv = p;
       else if (bestMag > 0 && bestMag >= u2 * colMag) piv = best;
       if (piv < 0) {
-        if (p > b0) memory.copy(cp + <usize>16 * <usize>b0, save, <usize>16 * <usize>(m - b0));
+        if (p > b0) copyBytes(cp + <usize>16 * <usize>b0, save, <usize>16 * <usize>(m - b0));
         kEnd--;
         if (kEnd != p) swapColumns(f, m, p, kEnd, colList);
         continue;
       }
-      if (piv != p) swapRows(f, m, p, piv, rowList);
+      if (piv != p) {
+        swapRows(f, m, p, piv, rowList);
+        swapPackedRows(pack, m, p, piv, (p - b0) >> 2);
+      }
       const pr = load<f64>(cp + <usize>16 * <usize>p), pi = load<f64>(cp + <usize>16 * <usize>p, 8);
       const den = pr * pr + pi * pi;
       const ir = pr / den, ii = -pi / den;
-      const a = f64x2.replace_lane(f64x2.splat(ir), 1, ii);
-      const b = rot(a);
+      // (a and rot(a) through memory, as rot(u) in the updates: see uScratch)
+      v128.store(uScratch, f64x2.replace_lane(f64x2.splat(ir), 1, ii));
+      v128.store(uScratch, rot(v128.load(uScratch)), 16);
+      const a = v128.load(uScratch);
+      const b = v128.load(uScratch, 16);
       for (let r = <usize>16 * <usize>(p + 1); r < mm; r += 16) {
         const x = v128.load(cp + r);
         v128.store(cp + r, f64x2.add(f64x2.mul(lo(x), a), f64x2.mul(hi(x), b)));
       }
       p++;
+      if (((p - b0) & 3) == 0) packGroup(f, m, p - 4, groupBlock(pack, m, (p - b0 - 4) >> 2));
     }
-    if (p > b0) {
-      let j = p;
-      for (; j + 1 < m; j += 2) eliminateColumnPair(f, m, j, b0, p);
-      if (j < m) eliminateColumn(f, m, j, b0, p);
-    }
+    if (p > b0) trailingUpdate(f, m, b0, p, pack);
   }
   return p;
 }
@@ -251,7 +395,7 @@ export function factorFront(f: usize, m: i32, kFs: i32, threshold: f64, rowList:
  * map[jj], in nRuns contiguous stretches runs[3g..3g+2] = [block offset, parent
  * offset, length], all in doubles (the runs SparseLuPlan.factor computes).
  */
-export function extendAdd(f: usize, m: i32, cb: usize, ld: i32, mc: i32, map: usize, runs: usize, nRuns: i32): void {
+function extendAdd(f: usize, m: i32, cb: usize, ld: i32, mc: i32, map: usize, runs: usize, nRuns: i32): void {
   let src = cb;
   const stride = <usize>8 * <usize>ld;
   for (let jj = 0; jj < mc; jj++) {
@@ -270,8 +414,165 @@ export function extendAdd(f: usize, m: i32, cb: usize, ld: i32, mc: i32, map: us
 /** Copies cols columns of rowBytes bytes each, from src (column stride srcStride bytes) to a packed block at dst. */
 export function copyColumns(dst: usize, src: usize, rowBytes: usize, cols: i32, srcStride: usize): void {
   for (let c = 0; c < cols; c++) {
-    memory.copy(dst, src, rowBytes);
+    copyBytes(dst, src, rowBytes);
     dst += rowBytes;
     src += srcStride;
   }
+}
+
+// The plan table: byte addresses of the plan's arrays in this memory (Int32 unless
+// noted), written by the caller (lu-numeric-factorisation.ts) and rewritten whenever
+// one of them moves. Indices into the table:
+const T_FIRST = 0; // first[s]: first pivot label of front s (ns + 1)
+const T_CHILD_PTR = 1; // childPtr (ns + 1)
+const T_CHILD_LIST = 2; // childList
+const T_NONFS_PTR = 3; // nonfsPtr (ns + 1)
+const T_NONFS = 4; // nonfs: labels of each front's non-fully-summed rows
+const T_REL_MAP = 5; // relMap: position of each child's non-fully-summed index in its parent
+const T_ASM_PTR = 6; // asmPtr (ns + 1)
+const T_ASM_ENTRY = 7; // asmEntry: matrix entry of each assembled value
+const T_ASM_ROW = 8; // asmRow, asmCol: its place in the front (before delays shift it)
+const T_ASM_COL = 9;
+const T_VALUES = 10; // the matrix values (f64, interleaved re, im)
+const T_CB_DIM = 11; // per front: contribution-block dimension
+const T_CB_START = 12; // its start, in doubles (in the stack, or in the previous front buffer)
+const T_CB_LD = 13; // its column stride, in doubles
+const T_DELAY_OUT = 14; // delayed pivots passed to the parent
+const T_DELAY_START = 15; // where their rows and columns start in the delay stack
+const T_DELAY_STACK = 16; // the delay stack (labels)
+const T_MAP = 17; // work: parent position of each child index
+const T_RUNS = 18; // work: runs of consecutive positions (3 per run)
+const T_ROW_LIST = 19; // rowList, colList of the current front (labels)
+const T_COL_LIST = 20;
+const T_CB_STACK = 21; // the contribution-block stack (f64)
+const T_PERM = 22; // perm: original unknown of each label
+
+// @ts-ignore: decorator
+@inline function tab(plan: usize, t: i32): usize {
+  return <usize>load<i32>(plan + <usize>4 * <usize>t);
+}
+// @ts-ignore: decorator
+@inline function at32(base: usize, q: i32): i32 {
+  return load<i32>(base + <usize>4 * <usize>q);
+}
+// @ts-ignore: decorator
+@inline function set32(base: usize, q: i32, v: i32): void {
+  store<i32>(base + <usize>4 * <usize>q, v);
+}
+
+/**
+ * Assembles front s into F (m rows: its k pivots, d pivots delayed from its children,
+ * then its non-fully-summed rows): zeroes F, sets rowList and colList (labels), adds
+ * the matrix entries whose first eliminated index lies in this front, and extend-adds
+ * the children's contribution blocks, from the stack or, for the child prevDirect,
+ * from the previous front buffer at prevF. The same additions in the same order as the
+ * TypeScript loop of lu-numeric-factorisation.ts.
+ */
+function assembleFront(plan: usize, s: i32, f: usize, m: i32, k: i32, d: i32, prevDirect: i32, prevF: usize): void {
+  zeroBytes(f, <usize>16 * <usize>m * <usize>m);
+  const rowList = tab(plan, T_ROW_LIST);
+  const colList = tab(plan, T_COL_LIST);
+  const f0 = at32(tab(plan, T_FIRST), s);
+  for (let q = 0; q < k; q++) {
+    set32(rowList, q, f0 + q);
+    set32(colList, q, f0 + q);
+  }
+  const kFs = k + d;
+  const nonfsPtr = tab(plan, T_NONFS_PTR);
+  const nonfs = tab(plan, T_NONFS);
+  const nf0 = at32(nonfsPtr, s);
+  const nfLen = at32(nonfsPtr, s + 1) - nf0;
+  for (let q = 0; q < nfLen; q++) {
+    const v = at32(nonfs, nf0 + q);
+    set32(rowList, kFs + q, v);
+    set32(colList, kFs + q, v);
+  }
+  const asmPtr = tab(plan, T_ASM_PTR);
+  const asmEntry = tab(plan, T_ASM_ENTRY);
+  const asmRow = tab(plan, T_ASM_ROW);
+  const asmCol = tab(plan, T_ASM_COL);
+  const values = tab(plan, T_VALUES);
+  const a1 = at32(asmPtr, s + 1);
+  for (let a = at32(asmPtr, s); a < a1; a++) {
+    let lr = at32(asmRow, a);
+    let lc = at32(asmCol, a);
+    if (lr >= k) lr += d;
+    if (lc >= k) lc += d;
+    const o = f + <usize>16 * (<usize>lc * <usize>m + <usize>lr);
+    const e = values + <usize>16 * <usize>at32(asmEntry, a);
+    v128.store(o, f64x2.add(v128.load(o), v128.load(e)));
+  }
+  const childPtr = tab(plan, T_CHILD_PTR);
+  const childList = tab(plan, T_CHILD_LIST);
+  const cbDim = tab(plan, T_CB_DIM);
+  const cbStart = tab(plan, T_CB_START);
+  const cbLd = tab(plan, T_CB_LD);
+  const delayOut = tab(plan, T_DELAY_OUT);
+  const delayStart = tab(plan, T_DELAY_START);
+  const delayStack = tab(plan, T_DELAY_STACK);
+  const relMap = tab(plan, T_REL_MAP);
+  const map = tab(plan, T_MAP);
+  const runs = tab(plan, T_RUNS);
+  const cbStack = tab(plan, T_CB_STACK);
+  let off = 0;
+  const c1 = at32(childPtr, s + 1);
+  for (let t = at32(childPtr, s); t < c1; t++) {
+    const c = at32(childList, t);
+    const mc = at32(cbDim, c);
+    const dc = at32(delayOut, c);
+    const ds = at32(delayStart, c);
+    for (let q = 0; q < dc; q++) {
+      set32(map, q, k + off + q);
+      set32(rowList, k + off + q, at32(delayStack, ds + q));
+      set32(colList, k + off + q, at32(delayStack, ds + dc + q));
+    }
+    const rp = at32(nonfsPtr, c);
+    for (let q = dc; q < mc; q++) {
+      const rel = at32(relMap, rp + q - dc);
+      set32(map, q, rel < k ? rel : rel + d);
+    }
+    off += dc;
+    // Runs of consecutive parent positions: [child offset, parent offset, length]·2, in doubles.
+    let nRuns = 0;
+    for (let ii = 0; ii < mc; ) {
+      const start = at32(map, ii);
+      let len = 1;
+      while (ii + len < mc && at32(map, ii + len) == start + len) len++;
+      set32(runs, 3 * nRuns, 2 * ii);
+      set32(runs, 3 * nRuns + 1, 2 * start);
+      set32(runs, 3 * nRuns + 2, 2 * len);
+      nRuns++;
+      ii += len;
+    }
+    const base = c == prevDirect ? prevF : cbStack;
+    extendAdd(f, m, base + <usize>8 * <usize>at32(cbStart, c), at32(cbLd, c), mc, map, runs, nRuns);
+  }
+}
+
+/** out[q] = perm[rowList[q]], out[m + q] = perm[colList[q]] for q < m: a front's original unknowns. */
+function frontUnknowns(plan: usize, m: i32, out: usize): void {
+  const perm = tab(plan, T_PERM);
+  const rowList = tab(plan, T_ROW_LIST);
+  const colList = tab(plan, T_COL_LIST);
+  for (let q = 0; q < m; q++) {
+    set32(out, q, at32(perm, at32(rowList, q)));
+    set32(out, m + q, at32(perm, at32(colList, q)));
+  }
+}
+
+/**
+ * One front of a sparse LU in one call: assembleFront, factorFront on it (its row and
+ * column lists from the plan table), then its factors packed at out: the L panel
+ * (columns 0..done−1, all m rows) followed by U12 (rows 0..done−1, columns done..m−1),
+ * and the front's original unknowns (frontUnknowns) into unknownsOut. Returns the
+ * pivots eliminated.
+ */
+export function front(plan: usize, s: i32, f: usize, m: i32, k: i32, d: i32, prevDirect: i32, prevF: usize, threshold: f64, save: usize, pack: usize, nb: i32, out: usize, unknownsOut: usize): i32 {
+  assembleFront(plan, s, f, m, k, d, prevDirect, prevF);
+  const done = factorFront(f, m, k + d, threshold, tab(plan, T_ROW_LIST), tab(plan, T_COL_LIST), save, pack, nb);
+  const lBytes = <usize>16 * <usize>done * <usize>m;
+  copyBytes(out, f, lBytes);
+  if (done > 0 && m > done) copyColumns(out + lBytes, f + lBytes, <usize>16 * <usize>done, m - done, <usize>16 * <usize>m);
+  frontUnknowns(plan, m, unknownsOut);
+  return done;
 }

@@ -1,8 +1,9 @@
 /**
- * The WebAssembly front kernel: factorFront of dense-complex.ts compiled from
+ * The WebAssembly front kernel: factorFront of dense-complex.ts, and a front's assembly
+ * and extend-add as lu-numeric-factorisation.ts does them in TypeScript, compiled from
  * wasm/front-kernel.ts (AssemblyScript, 128-bit SIMD) by scripts/build-wasm.mjs.
- * The TypeScript kernel stays the reference: tests compare the two on random fronts
- * and whole factorisations (tests/engine/front-kernel-wasm.test.ts).
+ * The TypeScript path stays the reference: tests compare the two on random fronts and
+ * whole factorisations, bit for bit (tests/engine/front-kernel-wasm.test.ts).
  *
  * The bytes come from a generated TypeScript module (base64), so this loads in Node,
  * worker threads and browsers alike, without Node APIs. Each WasmFrontKernel is one
@@ -26,9 +27,24 @@ const wasmApi = (globalThis as { WebAssembly?: WasmApi }).WebAssembly;
 interface FrontKernelExports {
   memory: WasmMemory;
   heapBase(): number;
-  factorFront(f: number, m: number, kFs: number, threshold: number, rowList: number, colList: number, save: number, nb: number): number;
-  extendAdd(f: number, m: number, cb: number, ld: number, mc: number, map: number, runs: number, nRuns: number): void;
+  factorFront(f: number, m: number, kFs: number, threshold: number, rowList: number, colList: number, save: number, pack: number, nb: number): number;
   copyColumns(dst: number, src: number, rowBytes: number, cols: number, srcStride: number): void;
+  front(
+    plan: number,
+    s: number,
+    f: number,
+    m: number,
+    k: number,
+    d: number,
+    prevDirect: number,
+    prevF: number,
+    threshold: number,
+    save: number,
+    pack: number,
+    nb: number,
+    out: number,
+    unknownsOut: number,
+  ): number;
 }
 
 let compiled: object | null | undefined;
@@ -88,20 +104,44 @@ export class WasmFrontKernel {
 
   /**
    * factorFront (dense-complex.ts) on the front at byte offset f; rowList, colList
-   * (Int32, m entries) and save (16·m bytes) are byte offsets in this memory too.
+   * (Int32, m entries), save (16·m bytes) and pack (packBytes(m, nb): the packed
+   * multipliers of one block of nb pivots) are byte offsets in this memory too.
    */
-  factorFront(f: number, m: number, kFs: number, threshold: number, rowList: number, colList: number, save: number, nb = 32): number {
-    return this.exports.factorFront(f, m, kFs, threshold, rowList, colList, save, nb);
+  factorFront(f: number, m: number, kFs: number, threshold: number, rowList: number, colList: number, save: number, pack: number, nb = 32): number {
+    return this.exports.factorFront(f, m, kFs, threshold, rowList, colList, save, pack, nb);
+  }
+
+  /** Bytes of the pack buffer factorFront needs for fronts up to m rows and blocks of nb pivots (nb a multiple of 4). */
+  static packBytes(m: number, nb = 32): number {
+    return 32 * m * nb + 64;
   }
 
   /**
-   * Adds a child's contribution block (mc columns, stride ld doubles, at byte cb) into
-   * the front at f (m rows): column jj to column map[jj], in nRuns stretches
-   * runs[3g..3g+2] = [block offset, front offset, length] in doubles (map and runs are
-   * Int32 arrays at byte offsets in this memory). Same additions as the TypeScript loop.
+   * One front of a sparse LU in one call: zeroes the front at f (m rows: k own pivots, d
+   * delayed from its children, then the rest), adds the matrix entries and extend-adds
+   * the children's contribution blocks (the child prevDirect from the previous front
+   * buffer at prevF), factorFront on it, then packs its L panel and U12 one after the
+   * other at out (done·(2m − done) complex) and its original unknowns into unknownsOut
+   * (2·m Int32). plan is the plan table of lu-numeric-factorisation.ts (the addresses of
+   * the plan's arrays, indices T_* of wasm/front-kernel.ts). Returns the pivots eliminated.
    */
-  extendAdd(f: number, m: number, cb: number, ld: number, mc: number, map: number, runs: number, nRuns: number): void {
-    this.exports.extendAdd(f, m, cb, ld, mc, map, runs, nRuns);
+  front(
+    plan: number,
+    s: number,
+    f: number,
+    m: number,
+    k: number,
+    d: number,
+    prevDirect: number,
+    prevF: number,
+    threshold: number,
+    save: number,
+    pack: number,
+    out: number,
+    unknownsOut: number,
+    nb = 32,
+  ): number {
+    return this.exports.front(plan, s, f, m, k, d, prevDirect, prevF, threshold, save, pack, nb, out, unknownsOut);
   }
 
   /** Copies cols columns of rowBytes bytes from src (column stride srcStride bytes) into a packed block at dst. */

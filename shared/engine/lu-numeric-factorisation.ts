@@ -9,8 +9,16 @@
  */
 import { factorFront } from './dense-complex';
 import { WasmFrontKernel } from './front-kernel-wasm';
-import { SolveScratch, SparseLuFactors } from './lu-solves';
+import { SolveScratch, SparseLuFactors, type FactorSlot } from './lu-solves';
 import type { SymbolicFronts } from './lu-symbolic-analysis';
+
+// The plan table of the WebAssembly kernel: PLAN_TABLE addresses, in the order of the
+// T_* indices of wasm/front-kernel.ts (those the TypeScript side rewrites are named here).
+const PLAN_TABLE = 23;
+const T_VALUES = 10;
+const T_DELAY_STACK = 16;
+const T_ROW_LIST = 19;
+const T_CB_STACK = 21;
 
 /** Thrown when a pivot column is exactly zero after elimination: the matrix is exactly singular. */
 export class SingularMatrixError extends Error {
@@ -49,11 +57,12 @@ export class NumericFactorisation {
   // Scratch shared by factorisations (factor() is synchronous, so one at a time).
   private frontA: Float64Array;
   private frontB: Float64Array;
-  private readonly cbDim: Int32Array;
-  private readonly cbStart: Float64Array;
-  private readonly cbLd: Int32Array;
-  private readonly delayOut: Int32Array;
-  private readonly delayStart: Int32Array;
+  // (views into the kernel's memory with the WebAssembly kernel, which reads them)
+  private cbDim: Int32Array;
+  private cbStart: Int32Array;
+  private cbLd: Int32Array;
+  private delayOut: Int32Array;
+  private delayStart: Int32Array;
   /** Work arrays of the solves, shared by every factorisation of this plan (solves are synchronous too). */
   private readonly scratch = new SolveScratch();
   private cbStack: Float64Array;
@@ -73,11 +82,32 @@ export class NumericFactorisation {
   private wsSave = 0;
   private wsRows = 0;
   private wsCols = 0;
+  private wsPack = 0;
   private wsCap = 0;
   private wsMap = 0;
   private wsRuns = 0;
   private wsCb = 0;
   private wsCbLength = 0;
+  /** The plan table (wasm/front-kernel.ts, T_*): addresses of the plan's arrays in the kernel's memory. */
+  private wsPlan = 0;
+  private wsValues = 0;
+  private wsState = 0;
+  private wsDelay = 0;
+  private wsDelayLength = 0;
+  /**
+   * The factor slot: the latest factorisation's values (wsStore) and index lists
+   * (wsUnknowns), written there by the kernel and read there by its solves, until the
+   * next factor() needs the slot: then a factorisation still held (not passed as reuse)
+   * gets copies of its own (detachFromSlot), one copy instead of one per front.
+   */
+  private wsStore = 0;
+  private wsStoreLength = 0;
+  private wsUnknowns = 0;
+  private wsUnknownsLength = 0;
+  private slotOwner: WeakRef<SparseLuFactors> | null = null;
+  private slotValLen = 0;
+  private slotIdxLen = 0;
+  private values: Float64Array = new Float64Array(0);
 
   private readonly frontCount: number;
 
@@ -105,7 +135,7 @@ export class NumericFactorisation {
     this.frontB = new Float64Array(dense);
     const ns = this.frontCount;
     this.cbDim = new Int32Array(ns);
-    this.cbStart = new Float64Array(ns);
+    this.cbStart = new Int32Array(ns);
     this.cbLd = new Int32Array(ns);
     this.delayOut = new Int32Array(ns);
     this.delayStart = new Int32Array(ns);
@@ -118,12 +148,34 @@ export class NumericFactorisation {
     this.colList = new Int32Array(mx);
     this.wasm = kernel === 'wasm' ? new WasmFrontKernel() : null;
     if (this.wasm) {
-      // The contribution-block stack, map and runs live in the kernel's memory too (extend-add runs there).
-      this.wsMap = this.wasm.reserve(4 * this.map.length);
-      this.wsRuns = this.wasm.reserve(4 * this.runs.length);
+      // The contribution-block stack, map, runs and the per-front state live in the kernel's
+      // memory too, with copies of the plan's arrays: assembly and extend-add run there.
+      const wasm = this.wasm;
+      this.wsMap = wasm.reserve(4 * this.map.length);
+      this.wsRuns = wasm.reserve(4 * this.runs.length);
       this.wsCbLength = this.cbStack.length;
-      this.wsCb = this.wasm.reserve(8 * this.wsCbLength);
+      this.wsCb = wasm.reserve(8 * this.wsCbLength);
       this.cbStack = new Float64Array(0);
+      this.wsPlan = wasm.reserve(4 * PLAN_TABLE);
+      const copy = (a: Int32Array): number => {
+        const at = wasm.reserve(4 * Math.max(1, a.length));
+        wasm.i32(at, a.length).set(a);
+        return at;
+      };
+      const table = [copy(s.first), copy(s.childPtr), copy(s.childList), copy(s.nonfsPtr), copy(s.nonfs), copy(s.relMap)];
+      table.push(copy(s.asmPtr), copy(s.asmEntry), copy(s.asmRow), copy(s.asmCol));
+      // (the values' place is reserved by the first factor(), which knows their length)
+      this.wsState = wasm.reserve(4 * 5 * ns);
+      table.push(0);
+      for (let q = 0; q < 5; q++) table.push(this.wsState + 4 * q * ns);
+      this.wsUnknownsLength = 2 * (s.nonfs.length + n);
+      this.wsUnknowns = wasm.reserve(4 * this.wsUnknownsLength);
+      this.wsStoreLength = Math.max(2, 2 * s.factorNonzeros);
+      this.wsStore = wasm.reserve(8 * this.wsStoreLength);
+      this.wsDelayLength = 64;
+      this.wsDelay = wasm.reserve(4 * this.wsDelayLength);
+      table.push(this.wsDelay, this.wsMap, this.wsRuns, 0, 0, this.wsCb, copy(perm));
+      wasm.i32(this.wsPlan, PLAN_TABLE).set(table);
       this.growWorkspace(mx);
     }
   }
@@ -148,7 +200,9 @@ export class NumericFactorisation {
     this.wsSave = wasm.reserve(16 * m);
     this.wsRows = wasm.reserve(4 * m);
     this.wsCols = wasm.reserve(4 * m);
+    this.wsPack = wasm.reserve(WasmFrontKernel.packBytes(m));
     this.wsCap = m;
+    wasm.i32(this.wsPlan + 4 * T_ROW_LIST, 2).set([this.wsRows, this.wsCols]);
     if (old > 0) {
       wasm.f64(this.wsA, 2 * old * old).set(wasm.f64(oldA, 2 * old * old));
       wasm.f64(this.wsB, 2 * old * old).set(wasm.f64(oldB, 2 * old * old));
@@ -164,7 +218,51 @@ export class NumericFactorisation {
     this.wsCb = wasm.reserve(8 * length);
     this.wsCbLength = length;
     wasm.f64(this.wsCb, keep).set(wasm.f64(old, keep));
+    wasm.i32(this.wsPlan + 4 * T_CB_STACK, 1)[0] = this.wsCb;
     this.takeViews();
+  }
+
+  /** A larger slot for the factor values in the kernel's memory, keeping its first `keep` doubles. */
+  private growStore(need: number, keep: number): void {
+    const wasm = this.wasm!;
+    const length = Math.max(need, Math.ceil(this.wsStoreLength * 1.5));
+    const old = this.wsStore;
+    this.wsStore = wasm.reserve(8 * length);
+    this.wsStoreLength = length;
+    wasm.f64(this.wsStore, keep).set(wasm.f64(old, keep));
+    this.takeViews();
+  }
+
+  /** A larger slot for the index lists in the kernel's memory, keeping its first `keep` entries. */
+  private growUnknowns(need: number, keep: number): void {
+    const wasm = this.wasm!;
+    const length = Math.max(need, Math.ceil(this.wsUnknownsLength * 1.5));
+    const old = this.wsUnknowns;
+    this.wsUnknowns = wasm.reserve(4 * length);
+    this.wsUnknownsLength = length;
+    wasm.i32(this.wsUnknowns, keep).set(wasm.i32(old, keep));
+    this.takeViews();
+  }
+
+  /** A larger delay stack in the kernel's memory, keeping its first `keep` entries. */
+  private growDelayStack(need: number, keep: number): void {
+    const wasm = this.wasm!;
+    const length = Math.max(need, Math.ceil(this.wsDelayLength * 1.5));
+    const old = this.wsDelay;
+    this.wsDelay = wasm.reserve(4 * length);
+    this.wsDelayLength = length;
+    wasm.i32(this.wsDelay, keep).set(wasm.i32(old, keep));
+    wasm.i32(this.wsPlan + 4 * T_DELAY_STACK, 1)[0] = this.wsDelay;
+    this.takeViews();
+  }
+
+  /** Room for the matrix values in the kernel's memory (they are copied there by every factor()). */
+  private placeValues(length: number): void {
+    const wasm = this.wasm!;
+    this.wsValues = wasm.reserve(8 * length);
+    wasm.i32(this.wsPlan + 4 * T_VALUES, 1)[0] = this.wsValues;
+    this.takeViews();
+    this.values = wasm.f64(this.wsValues, length);
   }
 
   /** Fresh views of every buffer in the kernel's memory (growing it detaches the old ones). */
@@ -180,6 +278,14 @@ export class NumericFactorisation {
     this.map = wasm.i32(this.wsMap, Math.max(1, this.n));
     this.runs = wasm.i32(this.wsRuns, 3 * Math.max(1, this.n));
     this.cbStack = wasm.f64(this.wsCb, this.wsCbLength);
+    const ns = this.frontCount;
+    this.cbDim = wasm.i32(this.wsState, ns);
+    this.cbStart = wasm.i32(this.wsState + 4 * ns, ns);
+    this.cbLd = wasm.i32(this.wsState + 8 * ns, ns);
+    this.delayOut = wasm.i32(this.wsState + 12 * ns, ns);
+    this.delayStart = wasm.i32(this.wsState + 16 * ns, ns);
+    this.delayStack = wasm.i32(this.wsDelay, this.wsDelayLength);
+    if (this.values.length > 0) this.values = wasm.f64(this.wsValues, this.values.length);
   }
 
   /**
@@ -206,9 +312,20 @@ export class NumericFactorisation {
     let pivots: Int32Array;
     let store: Float64Array;
     let index: Int32Array;
+    if (wasm) {
+      // The slot is about to be overwritten: a factorisation still held keeps copies.
+      const owner = this.slotOwner?.deref();
+      if (owner && owner !== reuse && owner.inSlot) owner.detachFromSlot(this.slotValLen, this.slotIdxLen);
+      this.slotOwner = null;
+    }
     if (reuse) {
       const taken = reuse.takeStorage(this.scratch);
       ({ valOff, idxOff, frontDim, pivots, store, index } = taken);
+      // (with the WebAssembly kernel the factors go to the slot, not to these arrays)
+      if (wasm) {
+        store = NO_VALUES;
+        index = NO_INDEX;
+      }
     } else {
       valOff = new Float64Array(ns + 1);
       idxOff = new Int32Array(ns + 1);
@@ -216,11 +333,12 @@ export class NumericFactorisation {
       pivots = new Int32Array(ns);
       // Delayed pivots enlarge fronts beyond the prediction; the plan remembers the largest
       // storage any factorisation needed so later ones allocate once instead of growing.
-      store = new Float64Array(Math.max(this.storeHint, 2 * this.factorNonzeros));
-      index = new Int32Array(Math.max(this.indexHint, 2 * (this.nonfs.length + this.n)));
+      store = wasm ? NO_VALUES : new Float64Array(Math.max(this.storeHint, 2 * this.factorNonzeros));
+      index = wasm ? NO_INDEX : new Int32Array(Math.max(this.indexHint, 2 * (this.nonfs.length + this.n)));
     }
-    // Per supernode: its contribution block (where it starts, its column stride), how many of its rows/columns are delayed.
-    const { cbDim, cbStart, cbLd, delayOut, delayStart } = this;
+    // Per supernode: its contribution block (where it starts, its column stride), how many of
+    // its rows/columns are delayed: this.cbDim, cbStart, cbLd, delayOut, delayStart (read
+    // through `this`: with the WebAssembly kernel they are views, taken again when its memory grows).
     let cbTop = 0;
     let delayTop = 0;
     let delayed = 0;
@@ -230,6 +348,15 @@ export class NumericFactorisation {
     // is extend-added straight from there instead of going through the stack.
     let prevFront: Float64Array = this.frontB;
     let prevDirect = -1;
+    if (wasm) {
+      // The kernel assembles from its own copy of the values.
+      if (this.values.length !== values.length) {
+        const prevIsA = prevFront === this.frontA;
+        this.placeValues(values.length);
+        prevFront = prevIsA ? this.frontA : this.frontB;
+      }
+      this.values.set(values);
+    }
 
     for (let s = 0; s < ns; s++) {
       const f0 = first[s];
@@ -237,19 +364,25 @@ export class NumericFactorisation {
       const c0 = childPtr[s];
       const c1 = childPtr[s + 1];
       let d = 0;
-      for (let t = c0; t < c1; t++) d += delayOut[childList[t]];
+      for (let t = c0; t < c1; t++) d += this.delayOut[childList[t]];
       const nf0 = nonfsPtr[s];
       const nfLen = nonfsPtr[s + 1] - nf0;
       const m = k + d + nfLen;
       const kFs = k + d;
       // Two front buffers in turn, so the previous front's Schur complement stays readable.
       // (the stack top only drops before this front's block is pushed: cbTop + m² doubles suffice)
-      if (wasm && (m > this.wsCap || cbTop + 2 * m * m > this.wsCbLength)) {
+      const valNeed = valTop + 2 * kFs * (2 * m - kFs);
+      if (wasm && (m > this.wsCap || cbTop + 2 * m * m > this.wsCbLength || idxTop + 2 * m > this.wsUnknownsLength || valNeed > this.wsStoreLength)) {
         const prevIsA = prevFront === this.frontA;
         if (m > this.wsCap) this.growWorkspace(m);
         if (cbTop + 2 * m * m > this.wsCbLength) this.growCbStack(cbTop + 2 * m * m, cbTop);
+        if (idxTop + 2 * m > this.wsUnknownsLength) this.growUnknowns(idxTop + 2 * m, idxTop);
+        if (valNeed > this.wsStoreLength) this.growStore(valNeed, valTop);
         prevFront = prevIsA ? this.frontA : this.frontB;
       }
+      // (a block read in place was never pushed, so it does not move the stack top)
+      const firstChildStart = c1 > c0 && childList[c0] !== prevDirect ? this.cbStart[childList[c0]] : cbTop;
+      const firstDelayStart = c1 > c0 ? this.delayStart[childList[c0]] : delayTop;
       const map = this.map;
       let F = prevFront === this.frontA ? this.frontB : this.frontA;
       if (F.length < 2 * m * m) {
@@ -260,87 +393,100 @@ export class NumericFactorisation {
       if (this.rowList.length < m) this.growLists(m);
       const rowList = this.rowList;
       const colList = this.colList;
-      F.fill(0, 0, 2 * m * m);
-      for (let q = 0; q < k; q++) {
-        rowList[q] = f0 + q;
-        colList[q] = f0 + q;
-      }
-      for (let q = 0; q < nfLen; q++) {
-        rowList[kFs + q] = nonfs[nf0 + q];
-        colList[kFs + q] = nonfs[nf0 + q];
-      }
-      // Matrix entries whose first eliminated index lies in this front.
-      for (let a = asmPtr[s]; a < asmPtr[s + 1]; a++) {
-        let lr = asmRow[a];
-        let lc = asmCol[a];
-        if (lr >= k) lr += d;
-        if (lc >= k) lc += d;
-        const e = asmEntry[a];
-        const o = 2 * (lc * m + lr);
-        F[o] += values[2 * e];
-        F[o + 1] += values[2 * e + 1];
-      }
-      // Extend-add of the children's contribution blocks (on top of the stack, in order,
-      // except the last child's when it is still in the other front buffer).
-      let off = 0;
-      // (a block read in place was never pushed, so it does not move the stack top)
-      const firstChildStart = c1 > c0 && childList[c0] !== prevDirect ? cbStart[childList[c0]] : cbTop;
-      const firstDelayStart = c1 > c0 ? delayStart[childList[c0]] : delayTop;
-      for (let t = c0; t < c1; t++) {
-        const c = childList[t];
-        const mc = cbDim[c];
-        const dc = delayOut[c];
-        const ds = delayStart[c];
-        for (let q = 0; q < dc; q++) {
-          map[q] = k + off + q;
-          rowList[k + off + q] = this.delayStack[ds + q];
-          colList[k + off + q] = this.delayStack[ds + dc + q];
+      let done = 0;
+      if (wasm) {
+        // Zeroing, the matrix entries, the extend-add (same additions in the same order), the
+        // dense factorisation, its L panel and U12 packed into the factor slot and the
+        // front's unknowns into the slot's index lists, all in one call to the kernel.
+        const prevAt = prevFront === this.frontA ? this.wsA : this.wsB;
+        const at = F === this.frontA ? this.wsA : this.wsB;
+        done = wasm.front(
+          this.wsPlan,
+          s,
+          at,
+          m,
+          k,
+          d,
+          prevDirect,
+          prevAt,
+          this.threshold,
+          this.wsSave,
+          this.wsPack,
+          this.wsStore + 8 * valTop,
+          this.wsUnknowns + 4 * idxTop,
+        );
+      } else {
+        F.fill(0, 0, 2 * m * m);
+        for (let q = 0; q < k; q++) {
+          rowList[q] = f0 + q;
+          colList[q] = f0 + q;
         }
-        const rp = nonfsPtr[c];
-        for (let q = dc; q < mc; q++) {
-          const rel = relMap[rp + q - dc];
-          map[q] = rel < k ? rel : rel + d;
+        for (let q = 0; q < nfLen; q++) {
+          rowList[kFs + q] = nonfs[nf0 + q];
+          colList[kFs + q] = nonfs[nf0 + q];
         }
-        off += dc;
-        const cb = c === prevDirect ? prevFront : this.cbStack;
-        const ld = cbLd[c];
-        // Runs of consecutive parent positions (separators are labelled contiguously), so
-        // each column is added in a few contiguous stretches: [child offset, parent offset, length]·2.
-        const runs = this.runs;
-        let nRuns = 0;
-        for (let ii = 0; ii < mc;) {
-          let len = 1;
-          while (ii + len < mc && map[ii + len] === map[ii] + len) len++;
-          runs[3 * nRuns] = 2 * ii;
-          runs[3 * nRuns + 1] = 2 * map[ii];
-          runs[3 * nRuns + 2] = 2 * len;
-          nRuns++;
-          ii += len;
+        // Matrix entries whose first eliminated index lies in this front.
+        for (let a = asmPtr[s]; a < asmPtr[s + 1]; a++) {
+          let lr = asmRow[a];
+          let lc = asmCol[a];
+          if (lr >= k) lr += d;
+          if (lc >= k) lc += d;
+          const e = asmEntry[a];
+          const o = 2 * (lc * m + lr);
+          F[o] += values[2 * e];
+          F[o + 1] += values[2 * e + 1];
         }
-        if (wasm) {
-          const at = c === prevDirect ? (prevFront === this.frontA ? this.wsA : this.wsB) : this.wsCb;
-          wasm.extendAdd(F === this.frontA ? this.wsA : this.wsB, m, at + 8 * cbStart[c], ld, mc, this.wsMap, this.wsRuns, nRuns);
-          continue;
-        }
-        let src = cbStart[c];
-        for (let jj = 0; jj < mc; jj++) {
-          const dst = 2 * map[jj] * m;
-          for (let g = 0; g < 3 * nRuns; g += 3) {
-            const a = src + runs[g];
-            const o = dst + runs[g + 1];
-            const len = runs[g + 2];
-            for (let q = 0; q < len; q++) F[o + q] += cb[a + q];
+        // Extend-add of the children's contribution blocks (on top of the stack, in order,
+        // except the last child's when it is still in the other front buffer).
+        let off = 0;
+        for (let t = c0; t < c1; t++) {
+          const c = childList[t];
+          const mc = this.cbDim[c];
+          const dc = this.delayOut[c];
+          const ds = this.delayStart[c];
+          for (let q = 0; q < dc; q++) {
+            map[q] = k + off + q;
+            rowList[k + off + q] = this.delayStack[ds + q];
+            colList[k + off + q] = this.delayStack[ds + dc + q];
           }
-          src += ld;
+          const rp = nonfsPtr[c];
+          for (let q = dc; q < mc; q++) {
+            const rel = relMap[rp + q - dc];
+            map[q] = rel < k ? rel : rel + d;
+          }
+          off += dc;
+          const cb = c === prevDirect ? prevFront : this.cbStack;
+          const ld = this.cbLd[c];
+          // Runs of consecutive parent positions (separators are labelled contiguously), so
+          // each column is added in a few contiguous stretches: [child offset, parent offset, length]·2.
+          const runs = this.runs;
+          let nRuns = 0;
+          for (let ii = 0; ii < mc;) {
+            let len = 1;
+            while (ii + len < mc && map[ii + len] === map[ii] + len) len++;
+            runs[3 * nRuns] = 2 * ii;
+            runs[3 * nRuns + 1] = 2 * map[ii];
+            runs[3 * nRuns + 2] = 2 * len;
+            nRuns++;
+            ii += len;
+          }
+          let src = this.cbStart[c];
+          for (let jj = 0; jj < mc; jj++) {
+            const dst = 2 * map[jj] * m;
+            for (let g = 0; g < 3 * nRuns; g += 3) {
+              const a = src + runs[g];
+              const o = dst + runs[g + 1];
+              const len = runs[g + 2];
+              for (let q = 0; q < len; q++) F[o + q] += cb[a + q];
+            }
+            src += ld;
+          }
         }
       }
       cbTop = firstChildStart;
       delayTop = firstDelayStart;
 
-      let done: number;
-      if (this.wasm) {
-        done = this.wasm.factorFront(F === this.frontA ? this.wsA : this.wsB, m, kFs, this.threshold, this.wsRows, this.wsCols, this.wsSave);
-      } else {
+      if (!wasm) {
         if (this.save.length < 2 * m) this.save = new Float64Array(2 * m);
         done = factorFront(F, m, kFs, this.threshold, rowList, colList, this.save);
       }
@@ -351,18 +497,12 @@ export class NumericFactorisation {
 
       // Keep L (m×done) and U12 (done×(m−done)) of this front.
       const need = valTop + 2 * done * (2 * m - done);
-      if (need > store.length) store = growFloat(store, need);
-      // The L panel is contiguous in F (one native copy); U12 is strided.
+      if (!wasm && need > store.length) store = growFloat(store, need);
       const lLen = 2 * done * m;
-      store.set(F.subarray(0, lLen), valTop);
       const uLen = 2 * done;
-      if (wasm && done > 0 && m > done) {
-        // U12 packed by the kernel into the free part of the block stack above its top
-        // (there is room: the stack was sized for cbTop + m² above), then one native copy.
-        const uCount = uLen * (m - done);
-        wasm.copyColumns(this.wsCb + 8 * cbTop, (F === this.frontA ? this.wsA : this.wsB) + 8 * lLen, 8 * uLen, m - done, 16 * m);
-        store.set(this.cbStack.subarray(cbTop, cbTop + uCount), valTop + lLen);
-      } else {
+      if (!wasm) {
+        // The L panel is contiguous in F (one native copy); U12 is strided.
+        store.set(F.subarray(0, lLen), valTop);
         let u = valTop + lLen;
         for (let c = done; c < m; c++) {
           const src = 2 * c * m;
@@ -370,12 +510,15 @@ export class NumericFactorisation {
           u += uLen;
         }
       }
-      if (idxTop + 2 * m > index.length) index = growInt(index, idxTop + 2 * m);
+      if (!wasm && idxTop + 2 * m > index.length) index = growInt(index, idxTop + 2 * m);
       // Original unknowns (not labels), so solves need no permuted copy of b.
-      const perm = this.perm;
-      for (let q = 0; q < m; q++) {
-        index[idxTop + q] = perm[rowList[q]];
-        index[idxTop + m + q] = perm[colList[q]];
+      // (with the WebAssembly kernel they are copied out once, after the loop)
+      if (!wasm) {
+        const perm = this.perm;
+        for (let q = 0; q < m; q++) {
+          index[idxTop + q] = perm[rowList[q]];
+          index[idxTop + m + q] = perm[colList[q]];
+        }
       }
       valOff[s] = valTop;
       idxOff[s] = idxTop;
@@ -386,19 +529,19 @@ export class NumericFactorisation {
 
       // The Schur complement and the delayed rows/columns for the parent.
       const mc = m - done;
-      cbDim[s] = mc;
-      delayOut[s] = kFs - done;
-      delayStart[s] = delayTop;
+      this.cbDim[s] = mc;
+      this.delayOut[s] = kFs - done;
+      this.delayStart[s] = delayTop;
       prevFront = F;
       prevDirect = -1;
       if (mc > 0 && parent[s] === s + 1) {
         // Postorder puts a parent right after its last child: read this block in place.
-        cbStart[s] = 2 * (done * m + done);
-        cbLd[s] = 2 * m;
+        this.cbStart[s] = 2 * (done * m + done);
+        this.cbLd[s] = 2 * m;
         prevDirect = s;
       } else if (mc > 0) {
-        cbStart[s] = cbTop;
-        cbLd[s] = 2 * mc;
+        this.cbStart[s] = cbTop;
+        this.cbLd[s] = 2 * mc;
         if (wasm) {
           wasm.copyColumns(this.wsCb + 8 * cbTop, (F === this.frontA ? this.wsA : this.wsB) + 16 * (done * m + done), 16 * mc, mc, 16 * m);
           cbTop += 2 * mc * mc;
@@ -414,13 +557,16 @@ export class NumericFactorisation {
           cbTop = dst;
         }
       } else {
-        cbStart[s] = cbTop;
-        cbLd[s] = 0;
+        this.cbStart[s] = cbTop;
+        this.cbLd[s] = 0;
       }
       const dOut = kFs - done;
       delayed += dOut;
       if (dOut > 0) {
-        if (delayTop + 2 * dOut > this.delayStack.length) this.delayStack = growInt(this.delayStack, delayTop + 2 * dOut);
+        if (delayTop + 2 * dOut > this.delayStack.length) {
+          if (wasm) this.growDelayStack(delayTop + 2 * dOut, delayTop);
+          else this.delayStack = growInt(this.delayStack, delayTop + 2 * dOut);
+        }
         for (let q = 0; q < dOut; q++) {
           this.delayStack[delayTop + q] = rowList[done + q];
           this.delayStack[delayTop + dOut + q] = colList[done + q];
@@ -432,6 +578,19 @@ export class NumericFactorisation {
     idxOff[ns] = idxTop;
     if (valTop > this.storeHint) this.storeHint = valTop;
     if (idxTop > this.indexHint) this.indexHint = idxTop;
+    if (wasm) {
+      const valLen = valTop;
+      const idxLen = idxTop;
+      const slot: FactorSlot = {
+        store: () => wasm.f64(this.wsStore, valLen),
+        index: () => wasm.i32(this.wsUnknowns, idxLen),
+      };
+      const lu = new SparseLuFactors(this.n, store, index, valOff, idxOff, frontDim, pivots, delayed, this.scratch, slot);
+      this.slotOwner = new WeakRef(lu);
+      this.slotValLen = valLen;
+      this.slotIdxLen = idxLen;
+      return lu;
+    }
     return new SparseLuFactors(this.n, store, index, valOff, idxOff, frontDim, pivots, delayed, this.scratch);
   }
 
@@ -440,6 +599,9 @@ export class NumericFactorisation {
     this.colList = new Int32Array(m);
   }
 }
+
+const NO_VALUES = new Float64Array(0);
+const NO_INDEX = new Int32Array(0);
 
 function growFloat(a: Float64Array, need: number): Float64Array<ArrayBuffer> {
   const b = new Float64Array(Math.max(need, Math.ceil(a.length * 1.5)));

@@ -21,6 +21,15 @@ export class SolveScratch {
   local = new Float64Array(0);
 }
 
+/**
+ * Factors kept in a plan's WebAssembly memory (lu-numeric-factorisation.ts): views of
+ * them, taken afresh on each call (growing that memory detaches older views).
+ */
+export interface FactorSlot {
+  store(): Float64Array;
+  index(): Int32Array;
+}
+
 /** Storage a released factorisation hands to the next factor() of its plan. */
 interface FactorStorage {
   store: Float64Array;
@@ -37,24 +46,50 @@ export class SparseLuFactors {
   readonly delayedPivots: number;
   private readonly maxFront: number;
   private released = false;
+  /** While set, the factors are in the plan's kernel memory (store and index are empty until detachFromSlot). */
+  private slot: FactorSlot | null;
 
   /** @internal Built by SparseLuPlan.factor. */
   constructor(
     n: number,
-    private readonly store: Float64Array,
-    private readonly index: Int32Array,
+    private store: Float64Array,
+    private index: Int32Array,
     private readonly valOff: Float64Array,
     private readonly idxOff: Int32Array,
     private readonly frontDim: Int32Array,
     private readonly pivots: Int32Array,
     delayedPivots: number,
     private readonly scratch: SolveScratch,
+    slot: FactorSlot | null = null,
   ) {
     this.n = n;
+    this.slot = slot;
     this.delayedPivots = delayedPivots;
     let mx = 0;
     for (let s = 0; s < frontDim.length; s++) if (frontDim[s] > mx) mx = frontDim[s];
     this.maxFront = mx;
+  }
+
+  /** @internal True while the factors are in the plan's kernel memory and this factorisation is held. */
+  get inSlot(): boolean {
+    return this.slot !== null && !this.released;
+  }
+
+  /**
+   * @internal The plan needs its kernel memory for another factorisation: the factors
+   * move into arrays of this factorisation's own (copies of the first valLen / idxLen entries).
+   */
+  detachFromSlot(valLen: number, idxLen: number): void {
+    if (!this.slot) return;
+    this.store = this.slot.store().slice(0, valLen);
+    this.index = this.slot.index().slice(0, idxLen);
+    this.slot = null;
+  }
+
+  /** The factor values and index lists, wherever they are now. */
+  private arrays(): { store: Float64Array; index: Int32Array } {
+    const slot = this.slot;
+    return slot ? { store: slot.store(), index: slot.index() } : { store: this.store, index: this.index };
   }
 
   /** @internal Hands this factorisation's storage to SparseLuPlan.factor(values, reuse) and releases it. */
@@ -131,7 +166,8 @@ export class SparseLuFactors {
 
   private forEachPivot(fn: (re: number, im: number, row: number, col: number) => void): void {
     this.assertHeld('SparseLuFactors.logDet/pivotRatio');
-    const { store, index, valOff, idxOff, frontDim, pivots } = this;
+    const { valOff, idxOff, frontDim, pivots } = this;
+    const { store, index } = this.arrays();
     for (let s = 0; s < frontDim.length; s++) {
       const m = frontDim[s];
       const k = pivots[s];
@@ -174,7 +210,8 @@ export class SparseLuFactors {
    * load of the factor panel serves two), and scatters back.
    */
   private sweeps(y: Float64Array, x: Float64Array, nrhs: number): void {
-    const { store, index, valOff, idxOff, frontDim, pivots } = this;
+    const { valOff, idxOff, frontDim, pivots } = this;
+    const { store, index } = this.arrays();
     const X = this.scratch.local;
     const ns = frontDim.length;
     const n2 = 2 * this.n;
@@ -210,7 +247,8 @@ export class SparseLuFactors {
 
   /** Uᵀ z = Qᵀ b (z kept in z at the columns' unknowns), then Lᵀ w = z (w into x at the rows' unknowns); blocks as in sweeps(). */
   private transposeSweeps(z: Float64Array, x: Float64Array, nrhs: number): void {
-    const { store, index, valOff, idxOff, frontDim, pivots } = this;
+    const { valOff, idxOff, frontDim, pivots } = this;
+    const { store, index } = this.arrays();
     const X = this.scratch.local;
     const ns = frontDim.length;
     const n2 = 2 * this.n;
