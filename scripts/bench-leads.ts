@@ -28,7 +28,7 @@ const DX = (Math.sqrt(3) / 2) * ACC;
 const DY = 1.5 * ACC;
 
 /** A graphene rectangle covering grid columns 0..nx−1 and rows 0..ny−1 exactly, t = 2.7 eV. */
-function grapheneRectangle(nx: number, ny: number, leads: CavityModelInput['leads']): CavityModelInput {
+export function grapheneRectangle(nx: number, ny: number, leads: CavityModelInput['leads']): CavityModelInput {
   return {
     name: `graphene ${nx}×${ny}`,
     spacing: ACC,

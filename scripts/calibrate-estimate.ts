@@ -23,6 +23,7 @@ import { POLE_SEARCH_SPECTRUM_POINTS } from '../server/jobs/run-job';
 import { predictRunSeconds, runCostFeatures, runCostModel, type RunCostFeatures, type RunCostModel } from '../server/runs/run-estimate';
 import { buildCavitySystem, EffectiveHamiltonian } from '../shared/engine/effective-hamiltonian';
 import { benchCavity } from './bench-cavity';
+import { grapheneRectangle } from './bench-leads';
 
 const root = join(fileURLToPath(import.meta.url), '..', '..');
 
@@ -68,6 +69,16 @@ export function estimateCases(): EstimateCase[] {
     };
     cases.push({ name: `demo ${device.key}`, document: device.model, request: { kind: 'pole-search', window: device.poleSearch } });
   }
+  // A graphene dot with wide numerical leads (armchair, 20 dimer lines top and bottom), whose
+  // lead mode problems dominate each step: the case that fixes the lead terms of the step cost.
+  cases.push({
+    name: 'graphene 22×8, armchair leads 20',
+    document: grapheneRectangle(22, 8, [
+      { side: 'bottom', start: 1, width: 20 },
+      { side: 'top', start: 1, width: 20 },
+    ]),
+    request: { kind: 'pole-search', window: { emin: 300, emax: 900, gammaMax: 200 } },
+  });
   const r3 = JSON.parse(readFileSync(join(dir, 'hl-rect-r3.json'), 'utf8')) as { model: unknown };
   cases.push({ name: 'demo hl-rect-r3, sweep', document: r3.model, request: { kind: 'transmission', window: { emin: 2, emax: 7, points: 1000 } } });
   return cases;
@@ -118,7 +129,7 @@ export function measureCase(c: EstimateCase): CaseMeasurement {
 
 /**
  * Least squares min Σ w_k (a_k·x − y_k)² over x ≥ 0, by trying every set of free
- * constants (there are at most three) and keeping the best feasible one.
+ * constants (there are at most five) and keeping the best feasible one.
  */
 export function fitNonNegative(rows: number[][], y: number[], w: number[]): number[] {
   const p = rows[0].length;
@@ -167,7 +178,7 @@ const median = (xs: number[]) => {
 
 /** Fits the cost model's constants to measured cases. */
 export function fitCostModel(ms: CaseMeasurement[]): RunCostModel {
-  const stepRow = (f: RunCostFeatures) => [f.factorFlops, f.factorNonzeros, f.sites];
+  const stepRow = (f: RunCostFeatures) => [f.factorFlops, f.factorNonzeros, f.sites, f.numericalLeads ?? 0, f.leadWork ?? 0];
   const poles = ms.filter((m) => m.features.kind === 'pole-search' && m.poleLUs > 0);
   const [base, perPiece, perLevel, perLevelSquared] = fitNonNegative(
     poles.map((m) => [1, m.features.pieces, m.features.expectedLevels, m.features.expectedLevels ** 2]),
@@ -175,14 +186,14 @@ export function fitCostModel(ms: CaseMeasurement[]): RunCostModel {
     poles.map((m) => 1 / m.poleLUs ** 2),
   );
   const poleStepY = poles.map((m) => m.poleSeconds / m.poleLUs);
-  const [pf, pn, ps] = fitNonNegative(
+  const [pf, pn, ps, pq, pl] = fitNonNegative(
     poles.map((m) => stepRow(m.features)),
     poleStepY,
     poleStepY.map((v) => 1 / v ** 2),
   );
   const sweeps = ms.filter((m) => m.energies > 0);
   const sweepY = sweeps.map((m) => m.sweepSeconds / m.energies);
-  const [sf, sn, ss] = fitNonNegative(
+  const [sf, sn, ss, sq, sl] = fitNonNegative(
     sweeps.map((m) => stepRow(m.features)),
     sweepY,
     sweepY.map((v) => 1 / v ** 2),
@@ -196,8 +207,8 @@ export function fitCostModel(ms: CaseMeasurement[]): RunCostModel {
     engineVersion: ENGINE_VERSION,
     calibratedAt: new Date().toISOString(),
     measuredOn: `${cpus().length} × ${cpus()[0]?.model.trim() ?? 'cpu'}, one thread per run, load average ${loadavg()[0].toFixed(2)} at the end`,
-    poleStep: { perFlop: pf, perNonzero: pn, perSite: ps },
-    sweepEnergy: { perFlop: sf, perNonzero: sn, perSite: ss },
+    poleStep: { perFlop: pf, perNonzero: pn, perSite: ps, perNumericalLead: pq, perLeadWork: pl },
+    sweepEnergy: { perFlop: sf, perNonzero: sn, perSite: ss, perNumericalLead: sq, perLeadWork: sl },
     poleLUs: { base, perPiece, perLevel, perLevelSquared },
     energiesPerPoint: { poleSearch: ratio('pole-search'), transmission: ratio('transmission') },
     setupPerSite: median(setup),

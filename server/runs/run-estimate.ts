@@ -20,10 +20,14 @@ export interface RunCostModel {
   calibratedAt: string;
   /** How the figures were measured (machine, load average), for the reader. */
   measuredOn: string;
-  /** Seconds of one contour node or Newton step of a pole search: perFlop·flops + perNonzero·nnz(L+U) + perSite·n. */
-  poleStep: { perFlop: number; perNonzero: number; perSite: number };
+  /**
+   * Seconds of one contour node or Newton step of a pole search: perFlop·flops + perNonzero·nnz(L+U)
+   * + perSite·n + perNumericalLead·(numerical leads) + perLeadWork·leadWork (the numerical leads' mode
+   * problems, see RunCostFeatures; both absent in models calibrated before numerical leads, read as 0).
+   */
+  poleStep: StepCost;
   /** Seconds of one energy of a transmission sweep, same form. */
-  sweepEnergy: { perFlop: number; perNonzero: number; perSite: number };
+  sweepEnergy: StepCost;
   /**
    * LU factorisations of a pole search: base + perPiece·pieces + perLevel·L + perLevelSquared·L²,
    * L the levels expected in the window. The square is empirical (no theory): on the
@@ -41,6 +45,14 @@ export interface RunCostModel {
   measurements?: unknown[];
 }
 
+interface StepCost {
+  perFlop: number;
+  perNonzero: number;
+  perSite: number;
+  perNumericalLead?: number;
+  perLeadWork?: number;
+}
+
 export type { RunEstimate } from '../../shared/api/runs.js';
 
 /** What the cost of a run depends on; computed from the model and the window alone (no LU). */
@@ -48,6 +60,13 @@ export interface RunCostFeatures {
   sites: number;
   factorFlops: number;
   factorNonzeros: number;
+  /**
+   * Σ over the numerical leads (honeycomb leads, leads in a field) of (2·cell size)³: the order of
+   * the Schur form of each lead's mode problem, solved at every energy; 0 with closed-form leads.
+   */
+  leadWork: number;
+  /** Leads computed from their unit cell (numerical-lead.ts). */
+  numericalLeads: number;
   pieces: number;
   thresholdsInWindow: number[];
   expectedLevels: number;
@@ -96,6 +115,8 @@ export function runCostFeatures(document: unknown, req: Pick<RunRequest, 'kind' 
     sites: op.n,
     factorFlops: plan.factorFlops,
     factorNonzeros: plan.factorNonzeros,
+    leadWork: system.leads.reduce((sum, l) => sum + (l.numerical ? (2 * l.numerical.cell.size) ** 3 : 0), 0),
+    numericalLeads: system.leads.filter((l) => l.numerical).length,
     pieces: inside.length + 1,
     thresholdsInWindow: inside,
     expectedLevels,
@@ -124,7 +145,12 @@ function diracWarnings(model: CavityModel, sites: number, emin: number, emax: nu
   return deriveFigures(model, sites, far).validity?.warnings ?? [];
 }
 
-const stepSeconds = (c: RunCostModel['poleStep'], f: RunCostFeatures) => c.perFlop * f.factorFlops + c.perNonzero * f.factorNonzeros + c.perSite * f.sites;
+const stepSeconds = (c: StepCost, f: RunCostFeatures) =>
+  c.perFlop * f.factorFlops +
+  c.perNonzero * f.factorNonzeros +
+  c.perSite * f.sites +
+  (c.perNumericalLead ?? 0) * (f.numericalLeads ?? 0) +
+  (c.perLeadWork ?? 0) * (f.leadWork ?? 0);
 
 /** The modelled time of a run, split into its parts (seconds). */
 export function predictRunSeconds(f: RunCostFeatures, m: RunCostModel) {
