@@ -1,0 +1,179 @@
+/**
+ * Real dense front kernel: the partial LU of factorFront (dense-complex.ts) in real
+ * arithmetic, for fronts of E − H with a real Hamiltonian (no magnetic field), which
+ * the mouth Schur complement (mouth-schur.ts) eliminates in real numbers. Same blocking,
+ * pivot rule and delays as the complex kernel; a real multiply-add is 2 flops against
+ * the complex one's 8, so a front costs a quarter of the complex flops.
+ *
+ * A block of m rows has element (r, c) at offset c·m + r (column-major).
+ */
+
+/**
+ * Column j −= Σ_{q0 ≤ q < q1} L[·, q]·U[q, j] below each pivot, unit lower multipliers
+ * in columns q; four pivots per sweep over the column. Cost 2·(q1−q0)·(m − q0) flops.
+ */
+function eliminateColumn(f: Float64Array, m: number, j: number, q0: number, q1: number): void {
+  const cj = j * m;
+  let q = q0;
+  for (; q + 4 <= q1; q += 4) {
+    const a = cj + q;
+    const c0 = q * m;
+    const c1 = c0 + m;
+    const c2 = c1 + m;
+    const c3 = c2 + m;
+    // the unit lower 4×4 triangle of pivots q..q+3, row by row
+    const u0 = f[a];
+    const u1 = f[a + 1] - f[c0 + q + 1] * u0;
+    const u2 = f[a + 2] - f[c0 + q + 2] * u0 - f[c1 + q + 2] * u1;
+    const u3 = f[a + 3] - f[c0 + q + 3] * u0 - f[c1 + q + 3] * u1 - f[c2 + q + 3] * u2;
+    f[a + 1] = u1;
+    f[a + 2] = u2;
+    f[a + 3] = u3;
+    if (u0 === 0 && u1 === 0 && u2 === 0 && u3 === 0) continue;
+    for (let r = q + 4; r < m; r++) f[cj + r] -= f[c0 + r] * u0 + f[c1 + r] * u1 + f[c2 + r] * u2 + f[c3 + r] * u3;
+  }
+  for (; q < q1; q++) {
+    const c0 = q * m;
+    const u = f[cj + q];
+    if (u === 0) continue;
+    for (let r = q + 1; r < m; r++) f[cj + r] -= f[c0 + r] * u;
+  }
+}
+
+/** eliminateColumn on columns j and j+1 at once: each multiplier loaded serves two columns. */
+function eliminateColumnPair(f: Float64Array, m: number, j: number, q0: number, q1: number): void {
+  const cj = j * m;
+  const ck = cj + m;
+  let q = q0;
+  for (; q + 4 <= q1; q += 4) {
+    const c0 = q * m;
+    const c1 = c0 + m;
+    const c2 = c1 + m;
+    const c3 = c2 + m;
+    const l10 = f[c0 + q + 1];
+    const l20 = f[c0 + q + 2];
+    const l21 = f[c1 + q + 2];
+    const l30 = f[c0 + q + 3];
+    const l31 = f[c1 + q + 3];
+    const l32 = f[c2 + q + 3];
+    const a = cj + q;
+    const u0 = f[a];
+    const u1 = f[a + 1] - l10 * u0;
+    const u2 = f[a + 2] - l20 * u0 - l21 * u1;
+    const u3 = f[a + 3] - l30 * u0 - l31 * u1 - l32 * u2;
+    f[a + 1] = u1;
+    f[a + 2] = u2;
+    f[a + 3] = u3;
+    const b = ck + q;
+    const v0 = f[b];
+    const v1 = f[b + 1] - l10 * v0;
+    const v2 = f[b + 2] - l20 * v0 - l21 * v1;
+    const v3 = f[b + 3] - l30 * v0 - l31 * v1 - l32 * v2;
+    f[b + 1] = v1;
+    f[b + 2] = v2;
+    f[b + 3] = v3;
+    if (u0 === 0 && u1 === 0 && u2 === 0 && u3 === 0 && v0 === 0 && v1 === 0 && v2 === 0 && v3 === 0) continue;
+    for (let r = q + 4; r < m; r++) {
+      const x0 = f[c0 + r];
+      const x1 = f[c1 + r];
+      const x2 = f[c2 + r];
+      const x3 = f[c3 + r];
+      f[cj + r] -= x0 * u0 + x1 * u1 + x2 * u2 + x3 * u3;
+      f[ck + r] -= x0 * v0 + x1 * v1 + x2 * v2 + x3 * v3;
+    }
+  }
+  if (q < q1) {
+    eliminateColumn(f, m, j, q, q1);
+    eliminateColumn(f, m, j + 1, q, q1);
+  }
+}
+
+/**
+ * Partial LU of a real front with threshold partial pivoting among the fully-summed
+ * rows and delayed columns: factorFront of dense-complex.ts (its comment gives the
+ * rules and the source) in real arithmetic. On return F holds L (unit, below the
+ * diagonal) and U in its first `done` rows/columns and the Schur complement in
+ * F[done.., done..]; row and column swaps are mirrored in rowList/colList.
+ * `save` holds m doubles. Cost 2·Σ_t (m − t)² flops. Returns the pivots eliminated.
+ */
+export function factorFrontReal(
+  f: Float64Array,
+  m: number,
+  kFs: number,
+  threshold: number,
+  rowList: Int32Array,
+  colList: Int32Array,
+  save: Float64Array,
+  nb = 32,
+): number {
+  let p = 0;
+  let kEnd = kFs;
+  while (p < kEnd) {
+    const b0 = p;
+    while (p < kEnd && p - b0 < nb) {
+      const cp = p * m;
+      if (p > b0) {
+        save.set(f.subarray(cp + b0, cp + m), 0);
+        eliminateColumn(f, m, p, b0, p);
+      }
+      let best = -1;
+      let bestMag = 0;
+      for (let r = p; r < kFs; r++) {
+        const mag = Math.abs(f[cp + r]);
+        if (mag > bestMag) {
+          bestMag = mag;
+          best = r;
+        }
+      }
+      let colMag = bestMag;
+      for (let r = kFs; r < m; r++) {
+        const mag = Math.abs(f[cp + r]);
+        if (mag > colMag) colMag = mag;
+      }
+      const diagMag = Math.abs(f[cp + p]);
+      let piv = -1;
+      if (diagMag > 0 && diagMag >= threshold * colMag) piv = p;
+      else if (bestMag > 0 && bestMag >= threshold * colMag) piv = best;
+      if (piv < 0) {
+        if (p > b0) f.set(save.subarray(0, m - b0), cp + b0);
+        kEnd--;
+        if (kEnd !== p) swapColumns(f, m, p, kEnd, colList);
+        continue;
+      }
+      if (piv !== p) swapRows(f, m, p, piv, rowList);
+      const inv = 1 / f[cp + p];
+      for (let r = cp + p + 1; r < cp + m; r++) f[r] *= inv;
+      p++;
+    }
+    if (p > b0) {
+      let j = p;
+      for (; j + 1 < m; j += 2) eliminateColumnPair(f, m, j, b0, p);
+      if (j < m) eliminateColumn(f, m, j, b0, p);
+    }
+  }
+  return p;
+}
+
+function swapRows(f: Float64Array, m: number, a: number, b: number, rowList: Int32Array): void {
+  const t = rowList[a];
+  rowList[a] = rowList[b];
+  rowList[b] = t;
+  for (let c = 0; c < m * m; c += m) {
+    const x = f[c + a];
+    f[c + a] = f[c + b];
+    f[c + b] = x;
+  }
+}
+
+function swapColumns(f: Float64Array, m: number, a: number, b: number, colList: Int32Array): void {
+  const t = colList[a];
+  colList[a] = colList[b];
+  colList[b] = t;
+  const ca = a * m;
+  const cb = b * m;
+  for (let r = 0; r < m; r++) {
+    const x = f[ca + r];
+    f[ca + r] = f[cb + r];
+    f[cb + r] = x;
+  }
+}

@@ -1,0 +1,339 @@
+/**
+ * The cavity's Green's function on the lead mouths by a Schur complement, for sweeps
+ * at real energies with a real Hamiltonian (no magnetic field): exact, no interpolation.
+ *
+ * With the mouth sites M ordered last, A(E) = E − H − Σ(E) and Σ touching only M×M,
+ *   G_MM = [A(E)⁻¹]_MM = (S(E) − Σ(E))⁻¹,  S(E) = A_MM − A_MI A_II⁻¹ A_IM,
+ * the Schur complement of the closed cavity onto its mouths (Schur complement and block
+ * inverse: Golub & Van Loan, "Matrix Computations", 4th ed. (2013), §3.2.10 and §12.3).
+ * A_II = (E − H)_II is real, so a multifrontal partial factorisation in real numbers
+ * (a quarter of the complex flops, no factors kept, no triangular solves) leaves S(E) in
+ * the root front. Interior pivots that fail the threshold test (E near an eigenvalue of
+ * the interior with the mouth clamped) are delayed into the root, where Σ makes the
+ * block regular: the root's remainder C on (delayed ∪ M) is completed with Σ in complex
+ * numbers, C⁻¹ = [A⁻¹] on those unknowns, and its M×M block is G_MM.
+ * arg det A(E) = arg det C + π·(number of negative real pivots + parity of the row and
+ * column orders), so the sweep's phase test sees the same value as with a direct LU.
+ *
+ * Cost per energy: about a quarter of one complex LU's flops, plus a dense complex LU
+ * of (delayed + M) unknowns and M solves with it (M = mouth sites of all leads).
+ */
+import { denseLu, denseLuSolve } from './dense-solve';
+import { factorFrontReal } from './dense-real';
+import type { EffectiveHamiltonian } from './effective-hamiltonian';
+import { permutationParity, wrapAngle } from './lu-solves';
+import { analyseFronts, type SymbolicFronts } from './lu-symbolic-analysis';
+import { minimumDegreeOrder } from './minimum-degree';
+import { nestedDissectionOrder, symmetricAdjacency, type Adjacency } from './ordering';
+import { mouthOrder } from './scattering-point';
+
+/** The pivot threshold u of the sparse LU (sparse-lu.ts): |a_rp| ≥ u·max|a_·p|. */
+const PIVOT_THRESHOLD = 0.1;
+
+/** G on the mouth sites (M×M row-major interleaved, in mouthOrder) and arg det A(E). */
+interface MouthGreen {
+  mouth: Float64Array;
+  detPhase: number;
+  /** Interior pivots delayed into the complex root block at this energy. */
+  delayed: number;
+}
+
+/**
+ * An elimination order with the sites `last` at the end (in the given order) and the
+ * rest ordered by nested dissection or minimum degree, whichever the symbolic analysis
+ * predicts fewer flops for (as SparseLuPlan.analyse does without the constraint).
+ */
+function constrainedOrder(graph: Adjacency, last: Int32Array, sites: { i: Int32Array; j: Int32Array }): Int32Array[] {
+  const n = graph.n;
+  const sub = new Int32Array(n).fill(-1);
+  const back: number[] = [];
+  const isLast = new Uint8Array(n);
+  for (const v of last) isLast[v] = 1;
+  for (let v = 0; v < n; v++) if (!isLast[v]) sub[v] = back.push(v) - 1;
+  const ni = back.length;
+  const ptr = new Int32Array(ni + 1);
+  const adj: number[] = [];
+  for (let a = 0; a < ni; a++) {
+    const v = back[a];
+    for (let e = graph.ptr[v]; e < graph.ptr[v + 1]; e++) if (sub[graph.adj[e]] >= 0) adj.push(sub[graph.adj[e]]);
+    ptr[a + 1] = adj.length;
+  }
+  const inner: Adjacency = { n: ni, ptr, adj: Int32Array.from(adj) };
+  const subSites = { i: Int32Array.from(back, (v) => sites.i[v]), j: Int32Array.from(back, (v) => sites.j[v]) };
+  return [nestedDissectionOrder(inner, subSites), minimumDegreeOrder(inner)].map((order) => {
+    const perm = new Int32Array(n);
+    order.forEach((a, k) => (perm[k] = back[a]));
+    perm.set(last, ni);
+    return perm;
+  });
+}
+
+/**
+ * Evaluates G_MM(E) by the Schur complement; one per operator, reused across energies
+ * (one symbolic analysis). MouthSchur.forOperator returns null where it does not apply.
+ */
+export class MouthSchur {
+  private readonly n: number;
+  private readonly symbolic: SymbolicFronts;
+  /** Labels (elimination positions) of the unique mouth sites: n − M .. n − 1. */
+  private readonly mouthCount: number;
+  /** For each entry of mouthOrder(op): its index among the unique mouth sites. */
+  private readonly mouthIndex: Int32Array;
+  private readonly values: Float64Array;
+  private front: Float64Array;
+  /** Position in the parent front of each row/column of a child's block. */
+  private target: Int32Array;
+  private cbStack: Float64Array;
+  private delayStack: Int32Array;
+  private save: Float64Array;
+  private rowList: Int32Array;
+  private colList: Int32Array;
+  private readonly cbDim: Int32Array;
+  private readonly cbStart: Int32Array;
+  private readonly delayOut: Int32Array;
+  private readonly delayStart: Int32Array;
+  private readonly rowOrder: Int32Array;
+  private readonly colOrder: Int32Array;
+  private readonly imagMouth: Float64Array;
+  /** Predicted real flops of one partial factorisation (for the docs and the bench). */
+  readonly factorFlops: number;
+
+  private constructor(
+    readonly op: EffectiveHamiltonian,
+    symbolic: SymbolicFronts,
+    mouthCount: number,
+    mouthIndex: Int32Array,
+  ) {
+    this.n = op.n;
+    this.symbolic = symbolic;
+    this.mouthCount = mouthCount;
+    this.mouthIndex = mouthIndex;
+    this.values = new Float64Array(2 * op.rowIdx.length);
+    const mx = Math.max(1, symbolic.maxFront);
+    this.front = new Float64Array(mx * mx);
+    this.target = new Int32Array(mx);
+    this.cbStack = new Float64Array(Math.max(1, symbolic.stackPeak));
+    this.delayStack = new Int32Array(64);
+    this.save = new Float64Array(mx);
+    this.rowList = new Int32Array(mx);
+    this.colList = new Int32Array(mx);
+    const ns = symbolic.first.length - 1;
+    this.cbDim = new Int32Array(ns);
+    this.cbStart = new Int32Array(ns);
+    this.delayOut = new Int32Array(ns);
+    this.delayStart = new Int32Array(ns);
+    this.rowOrder = new Int32Array(op.n);
+    this.colOrder = new Int32Array(op.n);
+    this.imagMouth = new Float64Array(mouthCount * mouthCount);
+    this.factorFlops = symbolic.factorFlops / 4;
+  }
+
+  /**
+   * The Schur path for op, or null where it does not apply: H not real (a magnetic
+   * field, complex hoppings), no leads, or mouths not reachable as one tree (a part of
+   * the cavity that no lead touches). Cost: two orderings and symbolic analyses.
+   */
+  static forOperator(op: EffectiveHamiltonian): MouthSchur | null {
+    const n = op.n;
+    const order = mouthOrder(op);
+    if (order.length === 0) return null;
+    const unique = Int32Array.from(new Set(order));
+    const M = unique.length;
+    if (M >= n) return null;
+    // H real: at a real energy only the mouth blocks (Σ) may carry imaginary parts.
+    const probe = new Float64Array(2 * op.rowIdx.length);
+    const e0 = op.thresholds.length ? op.thresholds[0] + 0.5 * op.hopping : op.hopping;
+    op.assemble({ re: e0, im: 0 }, op.sheetAt(e0), probe);
+    const inMouth = new Uint8Array(n);
+    for (const v of unique) inMouth[v] = 1;
+    for (let c = 0; c < n; c++)
+      for (let e = op.colPtr[c]; e < op.colPtr[c + 1]; e++) {
+        if (probe[2 * e + 1] !== 0 && !(inMouth[c] && inMouth[op.rowIdx[e]])) return null;
+      }
+    const graph = symmetricAdjacency(n, op.colPtr, op.rowIdx);
+    const candidates = constrainedOrder(graph, unique, op.sites).map((perm0) => analyseFronts(graph, perm0, op.colPtr, op.rowIdx));
+    const { perm, symbolic } = candidates.reduce((best, c) => (c.symbolic.factorFlops < best.symbolic.factorFlops ? c : best));
+    const ns = symbolic.first.length - 1;
+    // One tree whose root front ends with the mouth sites, in the order given.
+    for (let s = 0; s < ns - 1; s++) if (symbolic.parent[s] < 0) return null;
+    if (symbolic.first[ns - 1] > n - M) return null;
+    for (let a = 0; a < M; a++) if (perm[n - M + a] !== unique[a]) return null;
+    const label = new Map<number, number>();
+    unique.forEach((v, a) => label.set(v, a));
+    const mouthIndex = Int32Array.from(order, (v) => label.get(v)!);
+    return new MouthSchur(op, symbolic, M, mouthIndex);
+  }
+
+  /**
+   * G_MM at a real energy E (meV) and arg det A(E); null when A(E) is exactly singular
+   * (the caller then uses a direct solve, which reports it).
+   */
+  at(energy: number): MouthGreen | null {
+    const op = this.op;
+    op.assemble({ re: energy, im: 0 }, op.sheetAt(energy), this.values);
+    const root = this.eliminateInterior(this.values);
+    const { size, block, delayed, sign } = root;
+    const M = this.mouthCount;
+    const f = denseLu(size, block);
+    if (f.pivotRatio === 0) return null;
+    let arg = sign < 0 ? Math.PI : 0;
+    for (let k = 0; k < size; k++) arg += Math.atan2(f.lu[2 * (k * size + k) + 1], f.lu[2 * (k * size + k)]);
+    if (permutationParity(f.perm)) arg += Math.PI;
+    const rhs = new Float64Array(2 * size * M);
+    for (let a = 0; a < M; a++) rhs[2 * ((delayed + a) * M + a)] = 1;
+    const x = denseLuSolve(f, rhs, M);
+    const idx = this.mouthIndex;
+    const Mo = idx.length;
+    const mouth = new Float64Array(2 * Mo * Mo);
+    for (let r = 0; r < Mo; r++)
+      for (let c = 0; c < Mo; c++) {
+        const o = 2 * ((delayed + idx[r]) * M + idx[c]);
+        mouth[2 * (r * Mo + c)] = x[o];
+        mouth[2 * (r * Mo + c) + 1] = x[o + 1];
+      }
+    return { mouth, detPhase: wrapAngle(arg), delayed };
+  }
+
+  /**
+   * The real multifrontal partial factorisation of the assembled values (their real
+   * parts; the imaginary parts are zero but on M×M): every interior unknown is
+   * eliminated unless its pivot is delayed to the root. Returns the root's remainder
+   * C on (delayed ∪ M), row-major interleaved complex with Σ's imaginary part added,
+   * and the sign of det A / det C.
+   */
+  private eliminateInterior(values: Float64Array): { size: number; block: Float64Array; delayed: number; sign: number } {
+    const { first, childPtr, childList, nonfsPtr, nonfs, relMap, asmPtr, asmEntry, asmRow, asmCol } = this.symbolic;
+    const ns = first.length - 1;
+    const M = this.mouthCount;
+    const { cbDim, cbStart, delayOut, delayStart, rowOrder, colOrder } = this;
+    let cbTop = 0;
+    let delayTop = 0;
+    let pivotsDone = 0;
+    let negative = 0;
+    let F = this.front;
+    for (let s = 0; s < ns; s++) {
+      const isRoot = s === ns - 1;
+      const f0 = first[s];
+      const k = first[s + 1] - f0;
+      // Candidates: the front's own pivots (at the root, all but the mouth sites) and the delayed ones.
+      const kPiv = isRoot ? k - M : k;
+      const c0 = childPtr[s];
+      const c1 = childPtr[s + 1];
+      let d = 0;
+      for (let t = c0; t < c1; t++) d += delayOut[childList[t]];
+      const nf0 = nonfsPtr[s];
+      const nfLen = nonfsPtr[s + 1] - nf0;
+      const m = k + d + nfLen;
+      const kFs = kPiv + d;
+      if (F.length < m * m) F = this.front = new Float64Array(m * m);
+      if (this.rowList.length < m) {
+        this.rowList = new Int32Array(m);
+        this.colList = new Int32Array(m);
+        this.save = new Float64Array(m);
+        this.target = new Int32Array(m);
+      }
+      const { rowList, colList } = this;
+      F.fill(0, 0, m * m);
+      for (let q = 0; q < k; q++) {
+        const at = q < kPiv ? q : q + d;
+        rowList[at] = f0 + q;
+        colList[at] = f0 + q;
+      }
+      for (let q = 0; q < nfLen; q++) {
+        rowList[k + d + q] = nonfs[nf0 + q];
+        colList[k + d + q] = nonfs[nf0 + q];
+      }
+      for (let a = asmPtr[s]; a < asmPtr[s + 1]; a++) {
+        const r = asmRow[a];
+        const c = asmCol[a];
+        const lr = r < kPiv ? r : r + d;
+        const lc = c < kPiv ? c : c + d;
+        const e = asmEntry[a];
+        F[lc * m + lr] += values[2 * e];
+        if (isRoot && r >= kPiv && c >= kPiv) this.imagMouth[(r - kPiv) * M + (c - kPiv)] += values[2 * e + 1];
+      }
+      // Extend-add of the children's blocks (on top of the stack, in order).
+      let off = 0;
+      const firstChildStart = c1 > c0 ? cbStart[childList[c0]] : cbTop;
+      const firstDelayStart = c1 > c0 ? delayStart[childList[c0]] : delayTop;
+      const cb = this.cbStack;
+      for (let t = c0; t < c1; t++) {
+        const c = childList[t];
+        const mc = cbDim[c];
+        const dc = delayOut[c];
+        const ds = delayStart[c];
+        const target = this.target;
+        for (let q = 0; q < dc; q++) {
+          target[q] = kPiv + off + q;
+          rowList[kPiv + off + q] = this.delayStack[ds + q];
+          colList[kPiv + off + q] = this.delayStack[ds + dc + q];
+        }
+        const rp = nonfsPtr[c];
+        for (let q = dc; q < mc; q++) {
+          const rel = relMap[rp + q - dc];
+          target[q] = rel < kPiv ? rel : rel + d;
+        }
+        off += dc;
+        let src = cbStart[c];
+        for (let jj = 0; jj < mc; jj++) {
+          const dst = target[jj] * m;
+          for (let ii = 0; ii < mc; ii++) F[dst + target[ii]] += cb[src + ii];
+          src += mc;
+        }
+      }
+      cbTop = firstChildStart;
+      delayTop = firstDelayStart;
+
+      const done = factorFrontReal(F, m, kFs, PIVOT_THRESHOLD, rowList, colList, this.save);
+      for (let q = 0; q < done; q++) {
+        if (F[q * m + q] < 0) negative++;
+        rowOrder[pivotsDone] = rowList[q];
+        colOrder[pivotsDone] = colList[q];
+        pivotsDone++;
+      }
+      if (isRoot) {
+        const size = m - done;
+        for (let q = done; q < m; q++) {
+          rowOrder[pivotsDone + q - done] = rowList[q];
+          colOrder[pivotsDone + q - done] = colList[q];
+        }
+        const delayed = size - M;
+        const block = new Float64Array(2 * size * size);
+        for (let j = 0; j < size; j++) for (let i = 0; i < size; i++) block[2 * (i * size + j)] = F[(done + j) * m + done + i];
+        for (let i = 0; i < M; i++) for (let j = 0; j < M; j++) block[2 * ((delayed + i) * size + delayed + j) + 1] = this.imagMouth[i * M + j];
+        this.imagMouth.fill(0);
+        const parity = permutationParity(rowOrder) ^ permutationParity(colOrder);
+        return { size, block, delayed, sign: (negative + parity) % 2 ? -1 : 1 };
+      }
+      const mc = m - done;
+      cbDim[s] = mc;
+      cbStart[s] = cbTop;
+      if (cbTop + mc * mc > this.cbStack.length) {
+        const grown = new Float64Array(Math.max(cbTop + mc * mc, Math.ceil(1.5 * this.cbStack.length)));
+        grown.set(this.cbStack.subarray(0, cbTop));
+        this.cbStack = grown;
+      }
+      const stack = this.cbStack;
+      for (let c = done; c < m; c++) {
+        stack.set(F.subarray(c * m + done, c * m + m), cbTop);
+        cbTop += mc;
+      }
+      const dOut = kFs - done;
+      delayOut[s] = dOut;
+      delayStart[s] = delayTop;
+      if (dOut > 0) {
+        if (delayTop + 2 * dOut > this.delayStack.length) {
+          const grown = new Int32Array(2 * (delayTop + 2 * dOut));
+          grown.set(this.delayStack);
+          this.delayStack = grown;
+        }
+        for (let q = 0; q < dOut; q++) {
+          this.delayStack[delayTop + q] = rowList[done + q];
+          this.delayStack[delayTop + dOut + q] = colList[done + q];
+        }
+        delayTop += 2 * dOut;
+      }
+    }
+    throw new Error('MouthSchur: internal error, no root front');
+  }
+}

@@ -1,0 +1,196 @@
+import { describe, expect, it } from 'vitest';
+import { factorFront } from '../../shared/engine/dense-complex';
+import { factorFrontReal } from '../../shared/engine/dense-real';
+import { buildCavitySystem, EffectiveHamiltonian } from '../../shared/engine/effective-hamiltonian';
+import { hermitianEigen } from '../../shared/engine/hermitian-eigen';
+import { largestDifference } from '../../shared/engine/mouth-interpolation';
+import { MouthSchur } from '../../shared/engine/mouth-schur';
+import { findPoles } from '../../shared/engine/poles';
+import { mouthOrder, pointFromMouth, type TransmissionPoint } from '../../shared/engine/scattering-point';
+import { TransmissionSolver, transmissionSweep } from '../../shared/engine/transmission';
+import type { CavityModelInput } from '../../shared/model/cavity-model';
+
+const material = { effectiveMass: 0.067 };
+
+/** An irregular cavity (rectangle with a hole, disorder) with three leads, one offset. */
+function irregular(field: number): CavityModelInput {
+  return {
+    name: 'irregular',
+    spacing: 5,
+    material,
+    grid: { nx: 16, ny: 12 },
+    shape: {
+      kind: 'subtract',
+      from: { kind: 'rectangle', x0: 0, y0: 0, width: 80, height: 60 },
+      remove: [{ kind: 'disk', cx: 52, cy: 36, radius: 9 }],
+    },
+    potential: [{ kind: 'disorder', strength: 10, seed: 3 }],
+    field,
+    leads: [
+      { side: 'left', start: 2, width: 5 },
+      { side: 'right', start: 4, width: 4 },
+      { side: 'top', start: 3, width: 6, offset: 1.5 },
+    ],
+  };
+}
+
+/** A short wire between two barrier columns (as in transmission-interpolation.test.ts): Q ≈ 10⁵ near 15.15 meV, a threshold at 13.32 meV. */
+const wire: CavityModelInput = {
+  name: 'high-Q wire',
+  spacing: 5,
+  material: 'gaas',
+  grid: { nx: 14, ny: 3 },
+  shape: { kind: 'rectangle', x0: 0, y0: 0, width: 70, height: 15 },
+  potential: [
+    { kind: 'block', x0: 5, y0: 0, width: 5, height: 15, value: 1115 },
+    { kind: 'block', x0: 60, y0: 0, width: 5, height: 15, value: 1115 },
+  ],
+  leads: [
+    { side: 'left', start: 0, width: 3 },
+    { side: 'right', start: 0, width: 3 },
+  ],
+};
+
+const operator = (doc: CavityModelInput) => new EffectiveHamiltonian(buildCavitySystem(doc));
+
+/** Largest difference of T, R and S (when both carry it), and of arg det T (wrapped). */
+function difference(a: TransmissionPoint, b: TransmissionPoint): { t: number; s: number; phase: number } {
+  let s = 0;
+  if (a.sMatrix && b.sMatrix) for (let q = 0; q < a.sMatrix.length; q++) s = Math.max(s, Math.abs(a.sMatrix[q] - b.sMatrix[q]));
+  const d = a.detPhase - b.detPhase;
+  return { t: largestDifference(a, b), s, phase: Math.abs(Math.atan2(Math.sin(d), Math.cos(d))) };
+}
+
+describe('the real front kernel', () => {
+  it('pivots, delays and factorises a real front exactly as the complex kernel does', () => {
+    // deterministic pseudo-random fronts, two columns made tiny so that they are delayed
+    let seed = 7;
+    const random = () => ((seed = (seed * 1103515245 + 12345) % 2147483648) / 2147483648) * 2 - 1;
+    for (const [m, kFs] of [
+      [9, 5],
+      [40, 37],
+      [70, 33],
+    ]) {
+      const real = new Float64Array(m * m).map(random);
+      for (const c of [1, kFs - 2]) for (let r = 0; r < kFs; r++) real[c * m + r] *= 1e-9;
+      const complex = new Float64Array(2 * m * m);
+      real.forEach((x, q) => (complex[2 * q] = x));
+      const rowsR = Int32Array.from({ length: m }, (_, q) => q);
+      const colsR = rowsR.slice();
+      const rowsC = rowsR.slice();
+      const colsC = rowsR.slice();
+      const done = factorFrontReal(real, m, kFs, 0.1, rowsR, colsR, new Float64Array(m), 8);
+      const doneC = factorFront(complex, m, kFs, 0.1, rowsC, colsC, new Float64Array(2 * m), 8);
+      expect(done).toBe(doneC);
+      expect(done).toBe(kFs - 2);
+      expect([...rowsR]).toEqual([...rowsC]);
+      expect([...colsR]).toEqual([...colsC]);
+      let worst = 0;
+      for (let q = 0; q < m * m; q++) worst = Math.max(worst, Math.abs(real[q] - complex[2 * q]), Math.abs(complex[2 * q + 1]));
+      expect(worst).toBeLessThan(1e-12);
+    }
+  });
+});
+
+describe('transmission by the mouth Schur complement (issue 9, item 4)', () => {
+  it('agrees with the direct solve at many energies with three leads, and S†S = 1', () => {
+    const op = operator(irregular(0));
+    const t = op.hopping;
+    const solver = new TransmissionSolver(op);
+    expect(solver.schurApplies).toBe(true);
+    let worst = { t: 0, s: 0, phase: 0 };
+    let unitarity = 0;
+    for (let k = 0; k < 60; k++) {
+      const E = t * (0.02 + (1.9 * k) / 60);
+      const a = solver.atBySchur(E, true);
+      const b = solver.at(E, true);
+      const d = difference(a, b);
+      worst = { t: Math.max(worst.t, d.t), s: Math.max(worst.s, d.s), phase: Math.max(worst.phase, d.phase) };
+      unitarity = Math.max(unitarity, a.unitarityResidual, a.currentResidual);
+      expect(a.channels).toEqual(b.channels);
+    }
+    expect(worst.t).toBeLessThan(1e-10);
+    expect(worst.s).toBeLessThan(1e-10);
+    expect(worst.phase).toBeLessThan(1e-8);
+    expect(unitarity).toBeLessThan(1e-10);
+  });
+
+  it('is exact at an eigenvalue of the cavity with its mouths clamped (the pivot is delayed into the root)', () => {
+    const op = operator(irregular(0));
+    // H on the interior (every site but the mouths), dense: −(values at z = 0) there, Σ touches only the mouths
+    const values = new Float64Array(2 * op.rowIdx.length);
+    op.assemble({ re: 0, im: 0 }, op.sheetAt(0), values);
+    const mouth = new Set(mouthOrder(op));
+    const interior = Array.from({ length: op.n }, (_, v) => v).filter((v) => !mouth.has(v));
+    const at = new Map(interior.map((v, a) => [v, a]));
+    const ni = interior.length;
+    const h = new Float64Array(2 * ni * ni);
+    for (let c = 0; c < op.n; c++)
+      for (let e = op.colPtr[c]; e < op.colPtr[c + 1]; e++) {
+        const r = op.rowIdx[e];
+        if (at.has(r) && at.has(c)) h[2 * (at.get(r)! * ni + at.get(c)!)] = -values[2 * e];
+      }
+    const eigen = hermitianEigen(ni, h);
+    // an interior eigenvalue where every lead has an open channel
+    const E = [...eigen.values].find((x) => [0, 1, 2].every((l) => op.openChannels(l, x).length > 0) && x > 0.5 * op.hopping)!;
+    expect(E).toBeDefined();
+    const schur = MouthSchur.forOperator(op)!;
+    const green = schur.at(E)!;
+    expect(green.delayed).toBeGreaterThanOrEqual(1);
+    const solver = new TransmissionSolver(op);
+    const a = pointFromMouth(op, E, green.mouth, green.detPhase, true);
+    const b = solver.at(E, true);
+    const d = difference(a, b);
+    expect(d.t).toBeLessThan(1e-10);
+    expect(d.s).toBeLessThan(1e-10);
+    expect(a.unitarityResidual).toBeLessThan(1e-10);
+  });
+
+  it('agrees next to a Q = 10^5 resonance and across a channel threshold', () => {
+    const op = operator(wire);
+    const solver = new TransmissionSolver(op);
+    expect(solver.schurApplies).toBe(true);
+    const narrow = findPoles(op, { emin: 14.8, emax: 15.4, gammaMax: 0.01 }).poles.find((p) => (p.quality ?? 0) > 5e4)!;
+    expect(narrow.quality!).toBeGreaterThan(8e4);
+    const threshold = op.thresholds.find((e) => e > 12.8 && e < 15.4)!;
+    const energies = [
+      ...[-3, -1, -0.5, -0.1, 0, 0.1, 0.5, 1, 3].map((x) => narrow.energy + x * narrow.width),
+      ...[-1e-3, -1e-7, -1e-10, 1e-10, 1e-7, 1e-3].map((x) => threshold + x * op.hopping),
+    ];
+    let peak = 0;
+    for (const E of energies) {
+      const a = solver.atBySchur(E, true);
+      const b = solver.at(E, true);
+      const d = difference(a, b);
+      expect(d.t).toBeLessThan(1e-10);
+      expect(d.s).toBeLessThan(1e-10);
+      expect(a.unitarityResidual).toBeLessThan(1e-10);
+      expect(a.channels).toEqual(b.channels);
+      peak = Math.max(peak, a.transmission[0][1]);
+    }
+    // the peak was sampled: the Breit-Wigner top of a symmetric double barrier reaches about one channel
+    expect(peak).toBeGreaterThan(0.5);
+  });
+
+  it('is not used in a magnetic field, where the sweep keeps its direct solves', () => {
+    const op = operator(irregular(0.5));
+    const solver = new TransmissionSolver(op);
+    expect(MouthSchur.forOperator(op)).toBeNull();
+    expect(solver.schurApplies).toBe(false);
+    const E = 0.7 * op.hopping;
+    expect(difference(solver.atBySchur(E, true), solver.at(E, true)).t).toBe(0);
+  });
+
+  it('gives the sweep of direct solves, refinement and phase tests included', () => {
+    const op = operator(wire);
+    const request = { emin: 12.8, emax: 15.4, points: 65, refine: { maxPoints: 300 } };
+    const schur = transmissionSweep(op, request);
+    const direct = transmissionSweep(op, { ...request, method: 'direct' });
+    expect(schur.points.map((p) => p.energy)).toEqual(direct.points.map((p) => p.energy));
+    let worst = 0;
+    schur.points.forEach((p, k) => (worst = Math.max(worst, largestDifference(p, direct.points[k]))));
+    expect(worst).toBeLessThan(1e-10);
+    expect(schur.directSolves).toBe(direct.directSolves);
+    expect(() => transmissionSweep(op, { ...request, method: 'other' as 'direct' })).toThrow(/method/);
+  });
+});
