@@ -1,9 +1,8 @@
 /**
- * Real dense front kernel: the partial LU of factorFront (dense-complex.ts) in real
- * arithmetic, for fronts of E − H with a real Hamiltonian (no magnetic field), which
- * the mouth Schur complement (mouth-schur.ts) eliminates in real numbers. Same blocking,
- * pivot rule and delays as the complex kernel; a real multiply-add is 2 flops against
- * the complex one's 8, so a front costs a quarter of the complex flops.
+ * Real symmetric dense front kernel, for the fronts of E − H with a real Hamiltonian (no
+ * magnetic field) that the mouth Schur complement (mouth-schur.ts) eliminates in real
+ * numbers: a real multiply-add is 2 flops against the complex one's 8, and symmetry
+ * halves the update, so a front costs about an eighth of the complex LU's flops.
  *
  * A block of m rows has element (r, c) at offset c·m + r (column-major).
  */
@@ -40,8 +39,13 @@ function eliminateColumn(f: Float64Array, m: number, j: number, q0: number, q1: 
   }
 }
 
-/** eliminateColumn on columns j and j+1 at once: each multiplier loaded serves two columns. */
-function eliminateColumnPair(f: Float64Array, m: number, j: number, q0: number, q1: number): void {
+/**
+ * eliminateColumn on columns j and j+1 at once (each multiplier loaded serves two
+ * columns), restricted to what a symmetric front needs: the rows q0..q1−1
+ * (the U entries the later pivots of the block read) and the rows from `from` down
+ * (the lower triangle, from = j), so the trailing update costs half the flops of an LU's.
+ */
+function eliminateLowerPair(f: Float64Array, m: number, j: number, q0: number, q1: number): void {
   const cj = j * m;
   const ck = cj + m;
   let q = q0;
@@ -73,7 +77,9 @@ function eliminateColumnPair(f: Float64Array, m: number, j: number, q0: number, 
     f[b + 2] = v2;
     f[b + 3] = v3;
     if (u0 === 0 && u1 === 0 && u2 === 0 && u3 === 0 && v0 === 0 && v1 === 0 && v2 === 0 && v3 === 0) continue;
+    // rows q+4..q1−1, then j..m−1 (row j of column j+1 lies above its diagonal: harmless, mirrored later)
     for (let r = q + 4; r < m; r++) {
+      if (r === q1) r = j;
       const x0 = f[c0 + r];
       const x1 = f[c1 + r];
       const x2 = f[c2 + r];
@@ -82,21 +88,37 @@ function eliminateColumnPair(f: Float64Array, m: number, j: number, q0: number, 
       f[ck + r] -= x0 * v0 + x1 * v1 + x2 * v2 + x3 * v3;
     }
   }
-  if (q < q1) {
-    eliminateColumn(f, m, j, q, q1);
-    eliminateColumn(f, m, j + 1, q, q1);
+  for (; q < q1; q++) {
+    const c0 = q * m;
+    const u = f[cj + q];
+    const v = f[ck + q];
+    if (u === 0 && v === 0) continue;
+    for (let r = q + 1; r < m; r++) {
+      if (r === q1) r = j;
+      f[cj + r] -= f[c0 + r] * u;
+      f[ck + r] -= f[c0 + r] * v;
+    }
   }
 }
 
 /**
- * Partial LU of a real front with threshold partial pivoting among the fully-summed
- * rows and delayed columns: factorFront of dense-complex.ts (its comment gives the
- * rules and the source) in real arithmetic. On return F holds L (unit, below the
- * diagonal) and U in its first `done` rows/columns and the Schur complement in
- * F[done.., done..]; row and column swaps are mirrored in rowList/colList.
- * `save` holds m doubles. Cost 2·Σ_t (m − t)² flops. Returns the pivots eliminated.
+ * Partial LDLᵀ of a real symmetric front (E − H for a real Hamiltonian) with diagonal
+ * pivots only: a fully-summed diagonal d is accepted when |d| ≥ u·max |F[r, p]| over its
+ * whole column (threshold pivoting, growth ≤ 1 + 1/u per step: Duff, Erisman & Reid,
+ * "Direct Methods for Sparse Matrices", 2nd ed. 2017, §5.4, and ch. 12 on delayed pivots
+ * in multifrontal codes; the symmetric case in Duff & Reid 1983, ACM TOMS 9); otherwise
+ * the column is delayed (swapped with its row behind the candidates), so it reaches the
+ * parent front, and at the root the complex block that Σ regularises.
+ *
+ * Blocked as factorFront of dense-complex.ts (left-looking inside blocks of `nb` pivots,
+ * so a rejected column is restored from `save`, m doubles), but each block's trailing
+ * update computes the lower triangle only and then mirrors it, which keeps F symmetric
+ * and halves the flops. On return F holds the unit lower multipliers and the pivots in
+ * its first `done` columns and the symmetric Schur complement in F[done.., done..];
+ * symmetric swaps are mirrored in rowList and colList (which stay equal).
+ * Cost: Σ_t (m − t)² flops over the eliminated pivots t, about. Returns `done`.
  */
-export function factorFrontReal(
+export function factorFrontSymmetric(
   f: Float64Array,
   m: number,
   kFs: number,
@@ -116,39 +138,31 @@ export function factorFrontReal(
         save.set(f.subarray(cp + b0, cp + m), 0);
         eliminateColumn(f, m, p, b0, p);
       }
-      let best = -1;
-      let bestMag = 0;
-      for (let r = p; r < kFs; r++) {
-        const mag = Math.abs(f[cp + r]);
-        if (mag > bestMag) {
-          bestMag = mag;
-          best = r;
-        }
-      }
-      let colMag = bestMag;
-      for (let r = kFs; r < m; r++) {
+      let colMag = 0;
+      for (let r = p + 1; r < m; r++) {
         const mag = Math.abs(f[cp + r]);
         if (mag > colMag) colMag = mag;
       }
       const diagMag = Math.abs(f[cp + p]);
-      let piv = -1;
-      if (diagMag > 0 && diagMag >= threshold * colMag) piv = p;
-      else if (bestMag > 0 && bestMag >= threshold * colMag) piv = best;
-      if (piv < 0) {
+      if (!(diagMag > 0 && diagMag >= threshold * colMag)) {
         if (p > b0) f.set(save.subarray(0, m - b0), cp + b0);
         kEnd--;
-        if (kEnd !== p) swapColumns(f, m, p, kEnd, colList);
+        if (kEnd !== p) {
+          swapRows(f, m, p, kEnd, rowList);
+          swapColumns(f, m, p, kEnd, colList);
+        }
         continue;
       }
-      if (piv !== p) swapRows(f, m, p, piv, rowList);
       const inv = 1 / f[cp + p];
       for (let r = cp + p + 1; r < cp + m; r++) f[r] *= inv;
       p++;
     }
     if (p > b0) {
       let j = p;
-      for (; j + 1 < m; j += 2) eliminateColumnPair(f, m, j, b0, p);
+      for (; j + 1 < m; j += 2) eliminateLowerPair(f, m, j, b0, p);
       if (j < m) eliminateColumn(f, m, j, b0, p);
+      // the upper triangle of the trailing block from its lower one
+      for (let c = p; c < m; c++) for (let r = c + 1; r < m; r++) f[r * m + c] = f[c * m + r];
     }
   }
   return p;

@@ -12,14 +12,15 @@
  * the interior with the mouth clamped) are delayed into the root, where Σ makes the
  * block regular: the root's remainder C on (delayed ∪ M) is completed with Σ in complex
  * numbers, C⁻¹ = [A⁻¹] on those unknowns, and its M×M block is G_MM.
- * arg det A(E) = arg det C + π·(number of negative real pivots + parity of the row and
- * column orders), so the sweep's phase test sees the same value as with a direct LU.
+ * The pivots are diagonal (symmetric swaps only), so arg det A(E) = arg det C + π·(number
+ * of negative real pivots): the sweep's phase test sees the value a direct LU gives.
  *
  * Cost per energy: about a quarter of one complex LU's flops, plus a dense complex LU
  * of (delayed + M) unknowns and M solves with it (M = mouth sites of all leads).
  */
 import { denseLu, denseLuSolve } from './dense-solve';
-import { factorFrontReal } from './dense-real';
+import { factorFrontSymmetric } from './dense-real';
+import { WasmRealFrontKernel } from './front-kernel-real-wasm';
 import type { EffectiveHamiltonian } from './effective-hamiltonian';
 import { permutationParity, wrapAngle } from './lu-solves';
 import { analyseFronts, type SymbolicFronts } from './lu-symbolic-analysis';
@@ -69,6 +70,131 @@ function constrainedOrder(graph: Adjacency, last: Int32Array, sites: { i: Int32A
 }
 
 /**
+ * The buffers of the real partial factorisation: in the WebAssembly kernel's memory when it
+ * runs (front-kernel-real-wasm.ts), else plain arrays for the TypeScript kernel. Every view
+ * is taken again whenever the kernel's memory grows.
+ */
+class RealFronts {
+  front: Float64Array = new Float64Array(0);
+  rowList: Int32Array = new Int32Array(0);
+  colList: Int32Array = new Int32Array(0);
+  save: Float64Array = new Float64Array(0);
+  target: Int32Array = new Int32Array(0);
+  /** Stretches of consecutive targets: [block offset, front offset, length] per run. */
+  runs: Int32Array = new Int32Array(0);
+  stack: Float64Array = new Float64Array(0);
+  private cap = 0;
+  private stackCap = 0;
+  private at = { front: 0, rows: 0, cols: 0, save: 0, target: 0, runs: 0, stack: 0 };
+
+  constructor(
+    readonly wasm: WasmRealFrontKernel | null,
+    cap: number,
+    stackCap: number,
+  ) {
+    this.ensureFront(cap);
+    this.ensureStack(stackCap, 0);
+  }
+
+  /** Room for a front of m rows (contents not kept). */
+  ensureFront(m: number): void {
+    if (m <= this.cap) return;
+    const cap = Math.max(m, Math.ceil(1.5 * this.cap));
+    this.cap = cap;
+    const wasm = this.wasm;
+    if (!wasm) {
+      this.front = new Float64Array(cap * cap);
+      this.rowList = new Int32Array(cap);
+      this.colList = new Int32Array(cap);
+      this.save = new Float64Array(cap);
+      this.target = new Int32Array(cap);
+      this.runs = new Int32Array(3 * cap);
+      return;
+    }
+    this.at.front = wasm.reserve(8 * cap * cap);
+    this.at.rows = wasm.reserve(4 * cap);
+    this.at.cols = wasm.reserve(4 * cap);
+    this.at.save = wasm.reserve(8 * cap);
+    this.at.target = wasm.reserve(4 * cap);
+    this.at.runs = wasm.reserve(12 * cap);
+    this.takeViews();
+  }
+
+  /** Room for `need` doubles of contribution blocks, keeping the first `keep`. */
+  ensureStack(need: number, keep: number): void {
+    if (need <= this.stackCap) return;
+    const cap = Math.max(need, Math.ceil(1.5 * this.stackCap));
+    this.stackCap = cap;
+    const wasm = this.wasm;
+    if (!wasm) {
+      const grown = new Float64Array(cap);
+      grown.set(this.stack.subarray(0, keep));
+      this.stack = grown;
+      return;
+    }
+    const old = this.at.stack;
+    this.at.stack = wasm.reserve(8 * cap);
+    wasm.f64(this.at.stack, keep).set(wasm.f64(old, keep));
+    this.takeViews();
+  }
+
+  private takeViews(): void {
+    const wasm = this.wasm!;
+    const { cap, at } = this;
+    this.front = wasm.f64(at.front, cap * cap);
+    this.rowList = wasm.i32(at.rows, cap);
+    this.colList = wasm.i32(at.cols, cap);
+    this.save = wasm.f64(at.save, cap);
+    this.target = wasm.i32(at.target, cap);
+    this.runs = wasm.i32(at.runs, 3 * cap);
+    this.stack = wasm.f64(at.stack, this.stackCap);
+  }
+
+  /** Partial LDLᵀ of the front (m rows, kFs candidates) by factorFrontSymmetric or its WebAssembly port. */
+  factor(m: number, kFs: number): number {
+    if (this.wasm) return this.wasm.factorFront(this.at.front, m, kFs, PIVOT_THRESHOLD, this.at.rows, this.at.cols, this.at.save);
+    return factorFrontSymmetric(this.front, m, kFs, PIVOT_THRESHOLD, this.rowList, this.colList, this.save);
+  }
+
+  /**
+   * Adds the mc×mc block at `start` of the stack into the front (m rows): entry (ii, jj)
+   * to (target[ii], target[jj]), the rows in stretches of consecutive targets.
+   */
+  extendAdd(m: number, start: number, mc: number): void {
+    const { target, runs } = this;
+    let nRuns = 0;
+    for (let ii = 0; ii < mc;) {
+      let len = 1;
+      while (ii + len < mc && target[ii + len] === target[ii] + len) len++;
+      runs[3 * nRuns] = ii;
+      runs[3 * nRuns + 1] = target[ii];
+      runs[3 * nRuns + 2] = len;
+      nRuns++;
+      ii += len;
+    }
+    if (this.wasm) return this.wasm.extendAdd(this.at.front, m, this.at.stack + 8 * start, mc, this.at.target, this.at.runs, nRuns);
+    const { front, stack } = this;
+    let src = start;
+    for (let jj = 0; jj < mc; jj++) {
+      const dst = target[jj] * m;
+      for (let g = 0; g < 3 * nRuns; g += 3) {
+        const a = src + runs[g];
+        const o = dst + runs[g + 1];
+        for (let q = 0; q < runs[g + 2]; q++) front[o + q] += stack[a + q];
+      }
+      src += mc;
+    }
+  }
+
+  /** Copies the Schur complement F[done.., done..] (m rows) onto the stack at `top`. */
+  push(m: number, done: number, top: number): void {
+    const mc = m - done;
+    if (this.wasm) return this.wasm.copyColumns(this.at.stack + 8 * top, this.at.front + 8 * (done * m + done), 8 * mc, mc, 8 * m);
+    for (let c = done; c < m; c++) this.stack.set(this.front.subarray(c * m + done, c * m + m), top + (c - done) * mc);
+  }
+}
+
+/**
  * Evaluates G_MM(E) by the Schur complement; one per operator, reused across energies
  * (one symbolic analysis). MouthSchur.forOperator returns null where it does not apply.
  */
@@ -80,21 +206,14 @@ export class MouthSchur {
   /** For each entry of mouthOrder(op): its index among the unique mouth sites. */
   private readonly mouthIndex: Int32Array;
   private readonly values: Float64Array;
-  private front: Float64Array;
-  /** Position in the parent front of each row/column of a child's block. */
-  private target: Int32Array;
-  private cbStack: Float64Array;
+  private readonly fronts: RealFronts;
   private delayStack: Int32Array;
-  private save: Float64Array;
-  private rowList: Int32Array;
-  private colList: Int32Array;
   private readonly cbDim: Int32Array;
   private readonly cbStart: Int32Array;
   private readonly delayOut: Int32Array;
   private readonly delayStart: Int32Array;
-  private readonly rowOrder: Int32Array;
-  private readonly colOrder: Int32Array;
-  private readonly imagMouth: Float64Array;
+  /** Matrix entries on M×M (with Σ), interleaved complex, added to the root's remainder. */
+  private readonly mouthEntries: Float64Array;
   /** Predicted real flops of one partial factorisation (for the docs and the bench). */
   readonly factorFlops: number;
 
@@ -103,6 +222,7 @@ export class MouthSchur {
     symbolic: SymbolicFronts,
     mouthCount: number,
     mouthIndex: Int32Array,
+    kernel: 'wasm' | 'typescript',
   ) {
     this.n = op.n;
     this.symbolic = symbolic;
@@ -110,22 +230,15 @@ export class MouthSchur {
     this.mouthIndex = mouthIndex;
     this.values = new Float64Array(2 * op.rowIdx.length);
     const mx = Math.max(1, symbolic.maxFront);
-    this.front = new Float64Array(mx * mx);
-    this.target = new Int32Array(mx);
-    this.cbStack = new Float64Array(Math.max(1, symbolic.stackPeak));
+    this.fronts = new RealFronts(kernel === 'wasm' ? WasmRealFrontKernel.create() : null, mx, Math.max(1, symbolic.stackPeak));
     this.delayStack = new Int32Array(64);
-    this.save = new Float64Array(mx);
-    this.rowList = new Int32Array(mx);
-    this.colList = new Int32Array(mx);
     const ns = symbolic.first.length - 1;
     this.cbDim = new Int32Array(ns);
     this.cbStart = new Int32Array(ns);
     this.delayOut = new Int32Array(ns);
     this.delayStart = new Int32Array(ns);
-    this.rowOrder = new Int32Array(op.n);
-    this.colOrder = new Int32Array(op.n);
-    this.imagMouth = new Float64Array(mouthCount * mouthCount);
-    this.factorFlops = symbolic.factorFlops / 4;
+    this.mouthEntries = new Float64Array(2 * mouthCount * mouthCount);
+    this.factorFlops = symbolic.factorFlops / 8;
   }
 
   /**
@@ -133,7 +246,7 @@ export class MouthSchur {
    * field, complex hoppings), no leads, or mouths not reachable as one tree (a part of
    * the cavity that no lead touches). Cost: two orderings and symbolic analyses.
    */
-  static forOperator(op: EffectiveHamiltonian): MouthSchur | null {
+  static forOperator(op: EffectiveHamiltonian, options: { denseKernel?: 'wasm' | 'typescript' } = {}): MouthSchur | null {
     const n = op.n;
     const order = mouthOrder(op);
     if (order.length === 0) return null;
@@ -161,7 +274,7 @@ export class MouthSchur {
     const label = new Map<number, number>();
     unique.forEach((v, a) => label.set(v, a));
     const mouthIndex = Int32Array.from(order, (v) => label.get(v)!);
-    return new MouthSchur(op, symbolic, M, mouthIndex);
+    return new MouthSchur(op, symbolic, M, mouthIndex, options.denseKernel ?? 'wasm');
   }
 
   /**
@@ -205,12 +318,11 @@ export class MouthSchur {
     const { first, childPtr, childList, nonfsPtr, nonfs, relMap, asmPtr, asmEntry, asmRow, asmCol } = this.symbolic;
     const ns = first.length - 1;
     const M = this.mouthCount;
-    const { cbDim, cbStart, delayOut, delayStart, rowOrder, colOrder } = this;
+    const { cbDim, cbStart, delayOut, delayStart } = this;
     let cbTop = 0;
     let delayTop = 0;
-    let pivotsDone = 0;
     let negative = 0;
-    let F = this.front;
+    const fronts = this.fronts;
     for (let s = 0; s < ns; s++) {
       const isRoot = s === ns - 1;
       const f0 = first[s];
@@ -225,14 +337,8 @@ export class MouthSchur {
       const nfLen = nonfsPtr[s + 1] - nf0;
       const m = k + d + nfLen;
       const kFs = kPiv + d;
-      if (F.length < m * m) F = this.front = new Float64Array(m * m);
-      if (this.rowList.length < m) {
-        this.rowList = new Int32Array(m);
-        this.colList = new Int32Array(m);
-        this.save = new Float64Array(m);
-        this.target = new Int32Array(m);
-      }
-      const { rowList, colList } = this;
+      fronts.ensureFront(m);
+      const { front: F, rowList, colList, target } = fronts;
       F.fill(0, 0, m * m);
       for (let q = 0; q < k; q++) {
         const at = q < kPiv ? q : q + d;
@@ -249,20 +355,22 @@ export class MouthSchur {
         const lr = r < kPiv ? r : r + d;
         const lc = c < kPiv ? c : c + d;
         const e = asmEntry[a];
-        F[lc * m + lr] += values[2 * e];
-        if (isRoot && r >= kPiv && c >= kPiv) this.imagMouth[(r - kPiv) * M + (c - kPiv)] += values[2 * e + 1];
+        if (isRoot && r >= kPiv && c >= kPiv) {
+          // the mouth block (Σ's entries, not symmetric in general) joins at the end, in complex numbers
+          const o = 2 * ((r - kPiv) * M + (c - kPiv));
+          this.mouthEntries[o] += values[2 * e];
+          this.mouthEntries[o + 1] += values[2 * e + 1];
+        } else F[lc * m + lr] += values[2 * e];
       }
       // Extend-add of the children's blocks (on top of the stack, in order).
       let off = 0;
       const firstChildStart = c1 > c0 ? cbStart[childList[c0]] : cbTop;
       const firstDelayStart = c1 > c0 ? delayStart[childList[c0]] : delayTop;
-      const cb = this.cbStack;
       for (let t = c0; t < c1; t++) {
         const c = childList[t];
         const mc = cbDim[c];
         const dc = delayOut[c];
         const ds = delayStart[c];
-        const target = this.target;
         for (let q = 0; q < dc; q++) {
           target[q] = kPiv + off + q;
           rowList[kPiv + off + q] = this.delayStack[ds + q];
@@ -274,49 +382,26 @@ export class MouthSchur {
           target[q] = rel < kPiv ? rel : rel + d;
         }
         off += dc;
-        let src = cbStart[c];
-        for (let jj = 0; jj < mc; jj++) {
-          const dst = target[jj] * m;
-          for (let ii = 0; ii < mc; ii++) F[dst + target[ii]] += cb[src + ii];
-          src += mc;
-        }
+        fronts.extendAdd(m, cbStart[c], mc);
       }
       cbTop = firstChildStart;
       delayTop = firstDelayStart;
 
-      const done = factorFrontReal(F, m, kFs, PIVOT_THRESHOLD, rowList, colList, this.save);
-      for (let q = 0; q < done; q++) {
-        if (F[q * m + q] < 0) negative++;
-        rowOrder[pivotsDone] = rowList[q];
-        colOrder[pivotsDone] = colList[q];
-        pivotsDone++;
-      }
+      const done = fronts.factor(m, kFs);
+      for (let q = 0; q < done; q++) if (F[q * m + q] < 0) negative++;
       if (isRoot) {
         const size = m - done;
-        for (let q = done; q < m; q++) {
-          rowOrder[pivotsDone + q - done] = rowList[q];
-          colOrder[pivotsDone + q - done] = colList[q];
-        }
         const delayed = size - M;
         const block = new Float64Array(2 * size * size);
         for (let j = 0; j < size; j++) for (let i = 0; i < size; i++) block[2 * (i * size + j)] = F[(done + j) * m + done + i];
-        for (let i = 0; i < M; i++) for (let j = 0; j < M; j++) block[2 * ((delayed + i) * size + delayed + j) + 1] = this.imagMouth[i * M + j];
-        this.imagMouth.fill(0);
-        const parity = permutationParity(rowOrder) ^ permutationParity(colOrder);
-        return { size, block, delayed, sign: (negative + parity) % 2 ? -1 : 1 };
-      }
-      const mc = m - done;
-      cbDim[s] = mc;
-      cbStart[s] = cbTop;
-      if (cbTop + mc * mc > this.cbStack.length) {
-        const grown = new Float64Array(Math.max(cbTop + mc * mc, Math.ceil(1.5 * this.cbStack.length)));
-        grown.set(this.cbStack.subarray(0, cbTop));
-        this.cbStack = grown;
-      }
-      const stack = this.cbStack;
-      for (let c = done; c < m; c++) {
-        stack.set(F.subarray(c * m + done, c * m + m), cbTop);
-        cbTop += mc;
+        for (let i = 0; i < M; i++)
+          for (let j = 0; j < M; j++) {
+            const o = 2 * ((delayed + i) * size + delayed + j);
+            block[o] += this.mouthEntries[2 * (i * M + j)];
+            block[o + 1] = this.mouthEntries[2 * (i * M + j) + 1];
+          }
+        this.mouthEntries.fill(0);
+        return { size, block, delayed, sign: negative % 2 ? -1 : 1 };
       }
       const dOut = kFs - done;
       delayOut[s] = dOut;
@@ -333,6 +418,13 @@ export class MouthSchur {
         }
         delayTop += 2 * dOut;
       }
+      const mc = m - done;
+      cbDim[s] = mc;
+      cbStart[s] = cbTop;
+      // (growing the stack may move the front's view, not its contents)
+      fronts.ensureStack(cbTop + mc * mc, cbTop);
+      fronts.push(m, done, cbTop);
+      cbTop += mc * mc;
     }
     throw new Error('MouthSchur: internal error, no root front');
   }

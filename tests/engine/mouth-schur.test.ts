@@ -1,7 +1,8 @@
 import { describe, expect, it } from 'vitest';
-import { factorFront } from '../../shared/engine/dense-complex';
-import { factorFrontReal } from '../../shared/engine/dense-real';
+import { factorFrontSymmetric } from '../../shared/engine/dense-real';
+import { denseLu, denseLuSolve } from '../../shared/engine/dense-solve';
 import { buildCavitySystem, EffectiveHamiltonian } from '../../shared/engine/effective-hamiltonian';
+import { WasmRealFrontKernel } from '../../shared/engine/front-kernel-real-wasm';
 import { hermitianEigen } from '../../shared/engine/hermitian-eigen';
 import { largestDifference } from '../../shared/engine/mouth-interpolation';
 import { MouthSchur } from '../../shared/engine/mouth-schur';
@@ -61,33 +62,78 @@ function difference(a: TransmissionPoint, b: TransmissionPoint): { t: number; s:
   return { t: largestDifference(a, b), s, phase: Math.abs(Math.atan2(Math.sin(d), Math.cos(d))) };
 }
 
-describe('the real front kernel', () => {
-  it('pivots, delays and factorises a real front exactly as the complex kernel does', () => {
-    // deterministic pseudo-random fronts, two columns made tiny so that they are delayed
-    let seed = 7;
-    const random = () => ((seed = (seed * 1103515245 + 12345) % 2147483648) / 2147483648) * 2 - 1;
-    for (const [m, kFs] of [
-      [9, 5],
-      [40, 37],
-      [70, 33],
-    ]) {
-      const real = new Float64Array(m * m).map(random);
-      for (const c of [1, kFs - 2]) for (let r = 0; r < kFs; r++) real[c * m + r] *= 1e-9;
-      const complex = new Float64Array(2 * m * m);
-      real.forEach((x, q) => (complex[2 * q] = x));
-      const rowsR = Int32Array.from({ length: m }, (_, q) => q);
-      const colsR = rowsR.slice();
-      const rowsC = rowsR.slice();
-      const colsC = rowsR.slice();
-      const done = factorFrontReal(real, m, kFs, 0.1, rowsR, colsR, new Float64Array(m), 8);
-      const doneC = factorFront(complex, m, kFs, 0.1, rowsC, colsC, new Float64Array(2 * m), 8);
-      expect(done).toBe(doneC);
-      expect(done).toBe(kFs - 2);
-      expect([...rowsR]).toEqual([...rowsC]);
-      expect([...colsR]).toEqual([...colsC]);
+/** A random symmetric m×m front whose fully-summed rows/columns `tiny` are scaled by 1e-9 there (so they are delayed). */
+function symmetricFront(m: number, kFs: number, tiny: number[], seed: number): Float64Array {
+  const random = () => ((seed = (seed * 1103515245 + 12345) % 2147483648) / 2147483648) * 2 - 1;
+  const f = new Float64Array(m * m);
+  for (let c = 0; c < m; c++)
+    for (let r = c; r < m; r++) {
+      let x = random() + (r === c ? 4 * Math.sign(random()) : 0);
+      if ((tiny.includes(r) && c < kFs) || (tiny.includes(c) && r < kFs)) x *= 1e-9;
+      f[c * m + r] = x;
+      f[r * m + c] = x;
+    }
+  return f;
+}
+
+describe('the real symmetric front kernel', () => {
+  const cases: [number, number, number[]][] = [
+    [9, 5, [1]],
+    [40, 37, [3, 30]],
+    [70, 33, [0, 31]],
+  ];
+
+  it('leaves the Schur complement of the pivots it takes, with diagonal pivots and delays', () => {
+    for (const [m, kFs, tiny] of cases) {
+      const a = symmetricFront(m, kFs, tiny, 11 + m);
+      const f = a.slice();
+      const rows = Int32Array.from({ length: m }, (_, q) => q);
+      const cols = rows.slice();
+      const done = factorFrontSymmetric(f, m, kFs, 0.1, rows, cols, new Float64Array(m), 8);
+      expect(done).toBe(kFs - tiny.length);
+      expect([...rows]).toEqual([...cols]);
+      expect(rows.slice(done, kFs).sort()).toEqual(Int32Array.from(tiny).sort());
+      // S = A_RR − A_RP A_PP⁻¹ A_PR by a dense complex LU of A_PP (dense-solve.ts), P the pivots taken, R the rest
+      const P = [...rows.slice(0, done)];
+      const R = [...rows.slice(done)];
+      const app = new Float64Array(2 * done * done);
+      P.forEach((i, x) => P.forEach((j, y) => (app[2 * (x * done + y)] = a[j * m + i])));
+      const apr = new Float64Array(2 * done * R.length);
+      P.forEach((i, x) => R.forEach((j, y) => (apr[2 * (x * R.length + y)] = a[j * m + i])));
+      const x = denseLuSolve(denseLu(done, app), apr, R.length);
       let worst = 0;
-      for (let q = 0; q < m * m; q++) worst = Math.max(worst, Math.abs(real[q] - complex[2 * q]), Math.abs(complex[2 * q + 1]));
-      expect(worst).toBeLessThan(1e-12);
+      let scale = 0;
+      R.forEach((i, u) =>
+        R.forEach((j, v) => {
+          let s = a[j * m + i];
+          P.forEach((p, w) => (s -= a[p * m + i] * x[2 * (w * R.length + v)]));
+          scale = Math.max(scale, Math.abs(s));
+          worst = Math.max(worst, Math.abs(f[(done + v) * m + done + u] - s));
+        }),
+      );
+      expect(worst).toBeLessThan(1e-12 * scale);
+    }
+  });
+
+  it('gives the same fronts, bit for bit, in WebAssembly', () => {
+    const wasm = WasmRealFrontKernel.create();
+    expect(wasm).not.toBeNull();
+    for (const [m, kFs, tiny] of cases) {
+      const a = symmetricFront(m, kFs, tiny, 5 + m);
+      const rows = Int32Array.from({ length: m }, (_, q) => q);
+      const f = a.slice();
+      const rowsTs = rows.slice();
+      const done = factorFrontSymmetric(f, m, kFs, 0.1, rowsTs, rowsTs.slice(), new Float64Array(m), 8);
+      const at = { f: wasm!.reserve(8 * m * m), rows: wasm!.reserve(4 * m), cols: wasm!.reserve(4 * m), save: wasm!.reserve(8 * m) };
+      wasm!.f64(at.f, m * m).set(a);
+      wasm!.i32(at.rows, m).set(rows);
+      wasm!.i32(at.cols, m).set(rows);
+      expect(wasm!.factorFront(at.f, m, kFs, 0.1, at.rows, at.cols, at.save, 8)).toBe(done);
+      expect([...wasm!.i32(at.rows, m)]).toEqual([...rowsTs]);
+      const g = wasm!.f64(at.f, m * m);
+      let worst = 0;
+      for (let q = 0; q < m * m; q++) worst = Math.max(worst, Math.abs(g[q] - f[q]));
+      expect(worst).toBe(0);
     }
   });
 });
@@ -113,6 +159,17 @@ describe('transmission by the mouth Schur complement (issue 9, item 4)', () => {
     expect(worst.s).toBeLessThan(1e-10);
     expect(worst.phase).toBeLessThan(1e-8);
     expect(unitarity).toBeLessThan(1e-10);
+    // the TypeScript kernels (the reference) give the same G on the mouths
+    const wasm = MouthSchur.forOperator(op)!;
+    const typescript = MouthSchur.forOperator(op, { denseKernel: 'typescript' })!;
+    for (const E of [0.3 * t, 0.9 * t, 1.7 * t]) {
+      const a = wasm.at(E)!;
+      const b = typescript.at(E)!;
+      expect(a.delayed).toBe(b.delayed);
+      let d = 0;
+      a.mouth.forEach((x, q) => (d = Math.max(d, Math.abs(x - b.mouth[q]))));
+      expect(d).toBe(0);
+    }
   });
 
   it('is exact at an eigenvalue of the cavity with its mouths clamped (the pivot is delayed into the root)', () => {
