@@ -218,9 +218,11 @@ export function factorFront(f: usize, m: i32, kFs: i32, threshold: f64, rowList:
       let j = p;
       for (; j + 1 < m; j += 2) eliminateLowerPair(f, m, j, b0, p);
       if (j < m) eliminateColumn(f, m, j, b0, p);
-      for (let c = p; c < m; c++) {
-        const cc = f + <usize>c * mm;
-        for (let r = c + 1; r < m; r++) store<f64>(f + <usize>r * mm + <usize>8 * <usize>c, load<f64>(cc + <usize>8 * <usize>r));
+      if (p < kEnd) {
+        for (let c = p; c < m; c++) {
+          const cc = f + <usize>c * mm;
+          for (let r = c + 1; r < m; r++) store<f64>(f + <usize>r * mm + <usize>8 * <usize>c, load<f64>(cc + <usize>8 * <usize>r));
+        }
       }
     }
   }
@@ -250,11 +252,21 @@ export function extendAdd(f: usize, m: i32, cb: usize, mc: i32, target: usize, r
   }
 }
 
-/** Copies cols columns of rowBytes bytes each, from src (column stride srcStride bytes) to a packed block at dst. */
-export function copyColumns(dst: usize, src: usize, rowBytes: usize, cols: i32, srcStride: usize): void {
-  for (let c = 0; c < cols; c++) {
-    memory.copy(dst, src, rowBytes);
-    dst += rowBytes;
-    src += srcStride;
+/**
+ * Packs the symmetric mc×mc block whose lower triangle starts at src (column stride
+ * `stride` bytes) into dst with both triangles (copyLowerSymmetric of dense-real.ts).
+ */
+export function copyLowerSymmetric(dst: usize, src: usize, stride: usize, mc: i32): void {
+  const md = <usize>8 * <usize>mc;
+  for (let c = 0; c < mc; c++) {
+    const from = src + <usize>c * stride;
+    const col = dst + <usize>c * md;
+    let across = dst + <usize>c * (md + 8);
+    for (let r = c; r < mc; r++) {
+      const x = load<f64>(from + <usize>8 * <usize>r);
+      store<f64>(col + <usize>8 * <usize>r, x);
+      store<f64>(across, x);
+      across += md;
+    }
   }
 }

@@ -112,9 +112,10 @@ function eliminateLowerPair(f: Float64Array, m: number, j: number, q0: number, q
  *
  * Blocked as factorFront of dense-complex.ts (left-looking inside blocks of `nb` pivots,
  * so a rejected column is restored from `save`, m doubles), but each block's trailing
- * update computes the lower triangle only and then mirrors it, which keeps F symmetric
- * and halves the flops. On return F holds the unit lower multipliers and the pivots in
- * its first `done` columns and the symmetric Schur complement in F[done.., done..];
+ * update computes the lower triangle only and then mirrors it for the next block, which
+ * halves the flops. On return F holds the unit lower multipliers and the pivots in its
+ * first `done` columns and the Schur complement in the lower triangle of F[done.., done..]
+ * (its upper triangle is stale: copyLowerSymmetric packs it whole);
  * symmetric swaps are mirrored in rowList and colList (which stay equal).
  * Cost: Σ_t (m − t)² flops over the eliminated pivots t, about. Returns `done`.
  */
@@ -161,8 +162,8 @@ export function factorFrontSymmetric(
       let j = p;
       for (; j + 1 < m; j += 2) eliminateLowerPair(f, m, j, b0, p);
       if (j < m) eliminateColumn(f, m, j, b0, p);
-      // the upper triangle of the trailing block from its lower one
-      for (let c = p; c < m; c++) for (let r = c + 1; r < m; r++) f[r * m + c] = f[c * m + r];
+      // the upper triangle of the trailing block from its lower one, for the next block's columns
+      if (p < kEnd) for (let c = p; c < m; c++) for (let r = c + 1; r < m; r++) f[r * m + c] = f[c * m + r];
     }
   }
   return p;
@@ -189,5 +190,20 @@ function swapColumns(f: Float64Array, m: number, a: number, b: number, colList: 
     const x = f[ca + r];
     f[ca + r] = f[cb + r];
     f[cb + r] = x;
+  }
+}
+
+/**
+ * Copies the symmetric block whose lower triangle is the mc×mc block at `src` of f
+ * (column stride `stride`) into `out` at `at`, packed mc×mc with both triangles.
+ */
+export function copyLowerSymmetric(f: Float64Array, src: number, stride: number, mc: number, out: Float64Array, at: number): void {
+  for (let c = 0; c < mc; c++) {
+    const from = src + c * stride;
+    for (let r = c; r < mc; r++) {
+      const x = f[from + r];
+      out[at + c * mc + r] = x;
+      out[at + r * mc + c] = x;
+    }
   }
 }

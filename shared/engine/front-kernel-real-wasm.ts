@@ -23,7 +23,7 @@ interface RealKernelExports {
   heapBase(): number;
   factorFront(f: number, m: number, kFs: number, threshold: number, rowList: number, colList: number, save: number, nb: number): number;
   extendAdd(f: number, m: number, cb: number, mc: number, target: number, runs: number, nRuns: number): void;
-  copyColumns(dst: number, src: number, rowBytes: number, cols: number, srcStride: number): void;
+  copyLowerSymmetric(dst: number, src: number, stride: number, mc: number): void;
 }
 
 let compiled: object | null | undefined;
@@ -89,8 +89,8 @@ export class WasmRealFrontKernel {
     this.exports.extendAdd(f, m, cb, mc, target, runs, nRuns);
   }
 
-  /** Copies cols columns of rowBytes bytes from src (column stride srcStride bytes) into a packed block at dst. */
-  copyColumns(dst: number, src: number, rowBytes: number, cols: number, srcStride: number): void {
-    this.exports.copyColumns(dst, src, rowBytes, cols, srcStride);
+  /** copyLowerSymmetric (dense-real.ts): packs the block whose lower triangle starts at src (column stride in bytes) into dst, both triangles. */
+  copyLowerSymmetric(dst: number, src: number, stride: number, mc: number): void {
+    this.exports.copyLowerSymmetric(dst, src, stride, mc);
   }
 }

@@ -13,7 +13,7 @@
 import { checkCancelled, type WorkControl } from './operator';
 import { SparseLuPlan, type SparseLuFactors } from './sparse-lu';
 import type { EffectiveHamiltonian } from './effective-hamiltonian';
-import { MouthInterpolation, type MouthInterpolationOptions } from './mouth-interpolation';
+import { MouthInterpolation, type MouthInterpolationOptions, type MouthSolver } from './mouth-interpolation';
 import { MouthSpectral, type MouthSpectralOptions, type MouthSpectralSummary } from './mouth-spectral';
 import { MouthSchur } from './mouth-schur';
 import { mouthOrder, pointFromMouth, scatteringPoint, type TransmissionPoint } from './scattering-point';
@@ -297,24 +297,26 @@ export function transmissionSweep(op: EffectiveHamiltonian, request: SweepReques
   let probes = 0;
   const report = (done: number) => control?.onProgress?.('transmission', Math.min(1, (done + probes) / total));
 
-  let directSolves = 0;
-  const spectral = request.spectral
-    ? new MouthSpectral(op, solver, grid, request.spectral === true ? {} : request.spectral, () => checkCancelled(control))
-    : null;
-  const interpolation = spectral
-    ? spectral
-    : request.interpolate
-      ? new MouthInterpolation(op, solver, grid, request.interpolate === true ? {} : request.interpolate, () => checkCancelled(control))
-      : null;
   if (request.method !== undefined && request.method !== 'schur' && request.method !== 'direct') {
     throw new RangeError(`transmissionSweep: method must be 'schur' or 'direct', got ${String(request.method)}`);
   }
   const bySchur = request.method !== 'direct';
+  // the interpolated and spectral sweeps fall back to the same per-energy evaluation as a plain sweep
+  const pointSolver: MouthSolver = { at: (E) => (bySchur ? solver.atBySchur(E) : solver.at(E)), atMouth: (E) => solver.atMouth(E) };
+  let directSolves = 0;
+  const spectral = request.spectral
+    ? new MouthSpectral(op, pointSolver, grid, request.spectral === true ? {} : request.spectral, () => checkCancelled(control))
+    : null;
+  const interpolation = spectral
+    ? spectral
+    : request.interpolate
+      ? new MouthInterpolation(op, pointSolver, grid, request.interpolate === true ? {} : request.interpolate, () => checkCancelled(control))
+      : null;
   const evaluate = (E: number): TransmissionPoint => {
     if (interpolation) return interpolation.at(E);
     // one factorisation either way: the Schur path's is a partial one in real numbers
     directSolves++;
-    return bySchur ? solver.atBySchur(E) : solver.at(E);
+    return pointSolver.at(E);
   };
   let samples: TransmissionPoint[] = [];
   for (let k = 0; k < points; k++) {
