@@ -27,6 +27,7 @@ import { analyseFronts, type SymbolicFronts } from './lu-symbolic-analysis';
 import { minimumDegreeOrder } from './minimum-degree';
 import { nestedDissectionOrder, symmetricAdjacency, type Adjacency } from './ordering';
 import { mouthOrder } from './scattering-point';
+import { patternSlot } from './sparsity-pattern';
 
 /** The pivot threshold u of the sparse LU (sparse-lu.ts): |a_rp| ≥ u·max|a_·p|. */
 const PIVOT_THRESHOLD = 0.1;
@@ -248,9 +249,9 @@ export class MouthSchur {
   }
 
   /**
-   * The Schur path for op, or null where it does not apply: H not real (a magnetic
-   * field, complex hoppings), no leads, or mouths not reachable as one tree (a part of
-   * the cavity that no lead touches). Cost: two orderings and symbolic analyses.
+   * The Schur path for op, or null where it does not apply: H not real symmetric (a
+   * magnetic field, complex hoppings), no leads, or mouths not reachable as one tree (a
+   * part of the cavity that no lead touches). Cost: two orderings and symbolic analyses.
    */
   static forOperator(op: EffectiveHamiltonian, options: { denseKernel?: 'wasm' | 'typescript' } = {}): MouthSchur | null {
     const n = op.n;
@@ -259,15 +260,18 @@ export class MouthSchur {
     const unique = Int32Array.from(new Set(order));
     const M = unique.length;
     if (M >= n) return null;
-    // H real: at a real energy only the mouth blocks (Σ) may carry imaginary parts.
     const probe = new Float64Array(2 * op.rowIdx.length);
     const e0 = op.thresholds.length ? op.thresholds[0] + 0.5 * op.hopping : op.hopping;
     op.assemble({ re: e0, im: 0 }, op.sheetAt(e0), probe);
     const inMouth = new Uint8Array(n);
     for (const v of unique) inMouth[v] = 1;
+    // H real and symmetric: off the mouth block every entry is real and equals its transpose
     for (let c = 0; c < n; c++)
       for (let e = op.colPtr[c]; e < op.colPtr[c + 1]; e++) {
-        if (probe[2 * e + 1] !== 0 && !(inMouth[c] && inMouth[op.rowIdx[e]])) return null;
+        const r = op.rowIdx[e];
+        if (inMouth[c] && inMouth[r]) continue;
+        const t = patternSlot(op, c, r);
+        if (probe[2 * e + 1] !== 0 || t < 0 || probe[2 * t] !== probe[2 * e]) return null;
       }
     const graph = symmetricAdjacency(n, op.colPtr, op.rowIdx);
     const candidates = constrainedOrder(graph, unique, op.sites).map((perm0) => analyseFronts(graph, perm0, op.colPtr, op.rowIdx, AMALGAMATE_ALWAYS));
