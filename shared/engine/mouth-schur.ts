@@ -219,6 +219,8 @@ export class MouthSchur {
   private readonly cbStart: Int32Array;
   private readonly delayOut: Int32Array;
   private readonly delayStart: Int32Array;
+  /** Place of each assembled entry in its front when no pivot was delayed into it (column·m + row). */
+  private readonly asmOffset: Int32Array;
   /** Matrix entries on M×M (with Σ), interleaved complex, added to the root's remainder. */
   private readonly mouthEntries: Float64Array;
   /** Predicted real flops of one partial factorisation (for the docs and the bench). */
@@ -239,6 +241,12 @@ export class MouthSchur {
     const mx = Math.max(1, symbolic.maxFront);
     this.fronts = new RealFronts(kernel === 'wasm' ? WasmRealFrontKernel.create() : null, mx, Math.max(1, symbolic.stackPeak));
     this.delayStack = new Int32Array(64);
+    const { first, nonfsPtr, asmPtr, asmRow, asmCol } = symbolic;
+    this.asmOffset = new Int32Array(asmRow.length);
+    for (let f = 0; f + 1 < first.length; f++) {
+      const m = first[f + 1] - first[f] + nonfsPtr[f + 1] - nonfsPtr[f];
+      for (let a = asmPtr[f]; a < asmPtr[f + 1]; a++) this.asmOffset[a] = asmCol[a] * m + asmRow[a];
+    }
     const ns = symbolic.first.length - 1;
     this.cbDim = new Int32Array(ns);
     this.cbStart = new Int32Array(ns);
@@ -359,18 +367,24 @@ export class MouthSchur {
         rowList[k + d + q] = nonfs[nf0 + q];
         colList[k + d + q] = nonfs[nf0 + q];
       }
-      for (let a = asmPtr[s]; a < asmPtr[s + 1]; a++) {
-        const r = asmRow[a];
-        const c = asmCol[a];
-        const lr = r < kPiv ? r : r + d;
-        const lc = c < kPiv ? c : c + d;
-        const e = asmEntry[a];
-        if (isRoot && r >= kPiv && c >= kPiv) {
-          // the mouth block (Σ's entries, not symmetric in general) joins at the end, in complex numbers
-          const o = 2 * ((r - kPiv) * M + (c - kPiv));
-          this.mouthEntries[o] += values[2 * e];
-          this.mouthEntries[o + 1] += values[2 * e + 1];
-        } else F[lc * m + lr] += values[2 * e];
+      if (d === 0 && !isRoot) {
+        // no delayed pivots came up: the entries' places in the front were computed once
+        const { asmOffset } = this;
+        for (let a = asmPtr[s]; a < asmPtr[s + 1]; a++) F[asmOffset[a]] += values[2 * asmEntry[a]];
+      } else {
+        for (let a = asmPtr[s]; a < asmPtr[s + 1]; a++) {
+          const r = asmRow[a];
+          const c = asmCol[a];
+          const lr = r < kPiv ? r : r + d;
+          const lc = c < kPiv ? c : c + d;
+          const e = asmEntry[a];
+          if (isRoot && r >= kPiv && c >= kPiv) {
+            // the mouth block (Σ's entries, not symmetric in general) joins at the end, in complex numbers
+            const o = 2 * ((r - kPiv) * M + (c - kPiv));
+            this.mouthEntries[o] += values[2 * e];
+            this.mouthEntries[o + 1] += values[2 * e + 1];
+          } else F[lc * m + lr] += values[2 * e];
+        }
       }
       // Extend-add of the children's blocks (on top of the stack, in order).
       let off = 0;

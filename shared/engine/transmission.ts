@@ -22,7 +22,8 @@ export { type TransmissionPoint } from './scattering-point';
 
 /** A reusable evaluator: one symbolic analysis of T's pattern serves every energy. */
 export class TransmissionSolver {
-  private readonly plan: SparseLuPlan;
+  /** Analysed on first use: a sweep by the Schur complement never needs it. */
+  private analysed: SparseLuPlan | undefined;
   private readonly values: Float64Array;
   /** The last energy's LU, finished with: the next factorisation takes over its storage. */
   private spare: SparseLuFactors | undefined;
@@ -33,8 +34,13 @@ export class TransmissionSolver {
     readonly op: EffectiveHamiltonian,
     plan?: SparseLuPlan,
   ) {
-    this.plan = plan ?? SparseLuPlan.analyse(op.n, op.colPtr, op.rowIdx, { sites: op.sites });
+    this.analysed = plan;
     this.values = new Float64Array(2 * op.rowIdx.length);
+  }
+
+  private get plan(): SparseLuPlan {
+    this.analysed ??= SparseLuPlan.analyse(this.op.n, this.op.colPtr, this.op.rowIdx, { sites: this.op.sites });
+    return this.analysed;
   }
 
   /** arg det T(z) (rad) at a complex energy, sheet chosen by Re z; one LU, no solves. */
