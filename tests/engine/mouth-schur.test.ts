@@ -10,6 +10,7 @@ import { findPoles } from '../../shared/engine/poles';
 import { mouthOrder, pointFromMouth, type TransmissionPoint } from '../../shared/engine/scattering-point';
 import { TransmissionSolver, transmissionSweep } from '../../shared/engine/transmission';
 import type { CavityModelInput } from '../../shared/model/cavity-model';
+import { highQWire } from './high-q-wire';
 
 const material = { effectiveMass: 0.067 };
 
@@ -35,22 +36,7 @@ function irregular(field: number): CavityModelInput {
   };
 }
 
-/** A short wire between two barrier columns (as in transmission-interpolation.test.ts): Q ≈ 10⁵ near 15.15 meV, a threshold at 13.32 meV. */
-const wire: CavityModelInput = {
-  name: 'high-Q wire',
-  spacing: 5,
-  material: 'gaas',
-  grid: { nx: 14, ny: 3 },
-  shape: { kind: 'rectangle', x0: 0, y0: 0, width: 70, height: 15 },
-  potential: [
-    { kind: 'block', x0: 5, y0: 0, width: 5, height: 15, value: 1115 },
-    { kind: 'block', x0: 60, y0: 0, width: 5, height: 15, value: 1115 },
-  ],
-  leads: [
-    { side: 'left', start: 0, width: 3 },
-    { side: 'right', start: 0, width: 3 },
-  ],
-};
+const wire = highQWire;
 
 const operator = (doc: CavityModelInput) => new EffectiveHamiltonian(buildCavitySystem(doc));
 
