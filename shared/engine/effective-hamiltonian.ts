@@ -207,6 +207,11 @@ export class EffectiveHamiltonian implements NonlinearOperator {
     return sum;
   }
 
+  /** −H on the pattern (interleaved complex, length 2·nnz, a copy): T(z) without z and Σ. */
+  minusHamiltonian(): Float64Array {
+    return this.minusH.slice();
+  }
+
   /** Unknown indices of lead ℓ's mouth sites (p = 1..W). */
   mouthSites(lead: number): Int32Array {
     return this.system.leads[lead].mouth;

@@ -212,13 +212,17 @@ export class MouthSchur {
   private readonly mouthCount: number;
   /** For each entry of mouthOrder(op): its index among the unique mouth sites. */
   private readonly mouthIndex: Int32Array;
-  private readonly values: Float64Array;
   private readonly fronts: RealFronts;
   private delayStack: Int32Array;
   private readonly cbDim: Int32Array;
   private readonly cbStart: Int32Array;
   private readonly delayOut: Int32Array;
   private readonly delayStart: Int32Array;
+  /** −H at each assembled entry, and 1 where it is on the diagonal (E goes there). */
+  private readonly asmH: Float64Array;
+  private readonly asmDiagonal: Float64Array;
+  /** Index among the unique mouth sites of each lead's p-th mouth site. */
+  private readonly leadMouth: Int32Array[];
   /** Place of each assembled entry in its front when no pivot was delayed into it (column·m + row). */
   private readonly asmOffset: Int32Array;
   /** Matrix entries on M×M (with Σ), interleaved complex, added to the root's remainder. */
@@ -230,23 +234,30 @@ export class MouthSchur {
     readonly op: EffectiveHamiltonian,
     symbolic: SymbolicFronts,
     mouthCount: number,
+    unique: Int32Array,
     mouthIndex: Int32Array,
+    minusH: Float64Array,
     kernel: 'wasm' | 'typescript',
   ) {
     this.n = op.n;
     this.symbolic = symbolic;
     this.mouthCount = mouthCount;
     this.mouthIndex = mouthIndex;
-    this.values = new Float64Array(2 * op.rowIdx.length);
     const mx = Math.max(1, symbolic.maxFront);
     this.fronts = new RealFronts(kernel === 'wasm' ? WasmRealFrontKernel.create() : null, mx, Math.max(1, symbolic.stackPeak));
     this.delayStack = new Int32Array(64);
-    const { first, nonfsPtr, asmPtr, asmRow, asmCol } = symbolic;
+    const { first, nonfsPtr, asmPtr, asmRow, asmCol, asmEntry } = symbolic;
     this.asmOffset = new Int32Array(asmRow.length);
     for (let f = 0; f + 1 < first.length; f++) {
       const m = first[f + 1] - first[f] + nonfsPtr[f + 1] - nonfsPtr[f];
       for (let a = asmPtr[f]; a < asmPtr[f + 1]; a++) this.asmOffset[a] = asmCol[a] * m + asmRow[a];
     }
+    // −H and the diagonal in assembly order, so each front reads its entries in one sweep
+    const column = new Int32Array(asmEntry.length);
+    for (let c = 0; c < op.n; c++) column.fill(c, op.colPtr[c], op.colPtr[c + 1]);
+    this.asmH = Float64Array.from(asmEntry, (e) => minusH[2 * e]);
+    this.asmDiagonal = Float64Array.from(asmEntry, (e) => (op.rowIdx[e] === column[e] ? 1 : 0));
+    this.leadMouth = op.system.leads.map((lead) => Int32Array.from(lead.mouth, (v) => unique.indexOf(v)));
     const ns = symbolic.first.length - 1;
     this.cbDim = new Int32Array(ns);
     this.cbStart = new Int32Array(ns);
@@ -268,18 +279,12 @@ export class MouthSchur {
     const unique = Int32Array.from(new Set(order));
     const M = unique.length;
     if (M >= n) return null;
-    const probe = new Float64Array(2 * op.rowIdx.length);
-    const e0 = op.thresholds.length ? op.thresholds[0] + 0.5 * op.hopping : op.hopping;
-    op.assemble({ re: e0, im: 0 }, op.sheetAt(e0), probe);
-    const inMouth = new Uint8Array(n);
-    for (const v of unique) inMouth[v] = 1;
-    // H real and symmetric: off the mouth block every entry is real and equals its transpose
+    // H real and symmetric (no field, real hoppings): every entry real and equal to its transpose
+    const minusH = op.minusHamiltonian();
     for (let c = 0; c < n; c++)
       for (let e = op.colPtr[c]; e < op.colPtr[c + 1]; e++) {
-        const r = op.rowIdx[e];
-        if (inMouth[c] && inMouth[r]) continue;
-        const t = patternSlot(op, c, r);
-        if (probe[2 * e + 1] !== 0 || t < 0 || probe[2 * t] !== probe[2 * e]) return null;
+        const t = patternSlot(op, c, op.rowIdx[e]);
+        if (minusH[2 * e + 1] !== 0 || t < 0 || minusH[2 * t] !== minusH[2 * e]) return null;
       }
     const graph = symmetricAdjacency(n, op.colPtr, op.rowIdx);
     const candidates = constrainedOrder(graph, unique, op.sites).map((perm0) => analyseFronts(graph, perm0, op.colPtr, op.rowIdx, AMALGAMATE_ALWAYS));
@@ -292,7 +297,7 @@ export class MouthSchur {
     const label = new Map<number, number>();
     unique.forEach((v, a) => label.set(v, a));
     const mouthIndex = Int32Array.from(order, (v) => label.get(v)!);
-    return new MouthSchur(op, symbolic, M, mouthIndex, options.denseKernel ?? 'wasm');
+    return new MouthSchur(op, symbolic, M, unique, mouthIndex, minusH, options.denseKernel ?? 'wasm');
   }
 
   /**
@@ -301,10 +306,21 @@ export class MouthSchur {
    */
   at(energy: number): MouthGreen | null {
     const op = this.op;
-    op.assemble({ re: energy, im: 0 }, op.sheetAt(energy), this.values);
-    const root = this.eliminateInterior(this.values);
-    const { size, block, delayed, sign } = root;
+    const sheet = op.sheetAt(energy);
     const M = this.mouthCount;
+    // −Σ on the mouths (A[mouth p, mouth q] −= Σ_ℓ[p, q], as EffectiveHamiltonian.assemble does)
+    this.leadMouth.forEach((at, l) => {
+      const sigma = op.selfEnergy(l, { re: energy, im: 0 }, sheet);
+      const w = at.length;
+      for (let p = 0; p < w; p++)
+        for (let q = 0; q < w; q++) {
+          const o = 2 * (at[p] * M + at[q]);
+          this.mouthEntries[o] -= sigma[2 * (p * w + q)];
+          this.mouthEntries[o + 1] -= sigma[2 * (p * w + q) + 1];
+        }
+    });
+    const root = this.eliminateInterior(energy);
+    const { size, block, delayed, sign } = root;
     const f = denseLu(size, block);
     if (f.pivotRatio === 0) return null;
     let arg = sign < 0 ? Math.PI : 0;
@@ -326,14 +342,13 @@ export class MouthSchur {
   }
 
   /**
-   * The real multifrontal partial factorisation of the assembled values (their real
-   * parts; the imaginary parts are zero but on M×M): every interior unknown is
+   * The real multifrontal partial factorisation of E − H: every interior unknown is
    * eliminated unless its pivot is delayed to the root. Returns the root's remainder
-   * C on (delayed ∪ M), row-major interleaved complex with Σ's imaginary part added,
-   * and the sign of det A / det C.
+   * C on (delayed ∪ M), row-major interleaved complex with the mouth block's entries
+   * (E − H − Σ, Σ already in mouthEntries) added, and the sign of det A / det C.
    */
-  private eliminateInterior(values: Float64Array): { size: number; block: Float64Array; delayed: number; sign: number } {
-    const { first, childPtr, childList, nonfsPtr, nonfs, relMap, asmPtr, asmEntry, asmRow, asmCol } = this.symbolic;
+  private eliminateInterior(energy: number): { size: number; block: Float64Array; delayed: number; sign: number } {
+    const { first, childPtr, childList, nonfsPtr, nonfs, relMap, asmPtr, asmRow, asmCol } = this.symbolic;
     const ns = first.length - 1;
     const M = this.mouthCount;
     const { cbDim, cbStart, delayOut, delayStart } = this;
@@ -369,21 +384,18 @@ export class MouthSchur {
       }
       if (d === 0 && !isRoot) {
         // no delayed pivots came up: the entries' places in the front were computed once
-        const { asmOffset } = this;
-        for (let a = asmPtr[s]; a < asmPtr[s + 1]; a++) F[asmOffset[a]] += values[2 * asmEntry[a]];
+        const { asmOffset, asmH, asmDiagonal } = this;
+        for (let a = asmPtr[s]; a < asmPtr[s + 1]; a++) F[asmOffset[a]] += asmH[a] + energy * asmDiagonal[a];
       } else {
         for (let a = asmPtr[s]; a < asmPtr[s + 1]; a++) {
           const r = asmRow[a];
           const c = asmCol[a];
           const lr = r < kPiv ? r : r + d;
           const lc = c < kPiv ? c : c + d;
-          const e = asmEntry[a];
-          if (isRoot && r >= kPiv && c >= kPiv) {
-            // the mouth block (Σ's entries, not symmetric in general) joins at the end, in complex numbers
-            const o = 2 * ((r - kPiv) * M + (c - kPiv));
-            this.mouthEntries[o] += values[2 * e];
-            this.mouthEntries[o + 1] += values[2 * e + 1];
-          } else F[lc * m + lr] += values[2 * e];
+          const value = this.asmH[a] + energy * this.asmDiagonal[a];
+          // the mouth block joins at the end, in complex numbers, with Σ (not symmetric in general)
+          if (isRoot && r >= kPiv && c >= kPiv) this.mouthEntries[2 * ((r - kPiv) * M + (c - kPiv))] += value;
+          else F[lc * m + lr] += value;
         }
       }
       // Extend-add of the children's blocks (on top of the stack, in order).
