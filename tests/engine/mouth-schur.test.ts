@@ -219,6 +219,37 @@ describe('transmission by the mouth Schur complement (issue 9, item 4)', () => {
     expect(peak).toBeGreaterThan(0.5);
   });
 
+  it('agrees with the direct solve on a graphene dot with numerical leads (t′, Δ, a lead offset)', () => {
+    // honeycomb-leads.test.ts's dot: C–C distance 0.142 nm, t = 2.7 eV, zigzag and armchair leads
+    const acc = 0.142;
+    const op = operator({
+      name: 'graphene dot',
+      spacing: acc,
+      lattice: { kind: 'honeycomb', hopping: 2.7, nextHopping: 0.1, sublatticePotential: 0.05, removeDangling: true },
+      grid: { nx: 14, ny: 8 },
+      shape: {
+        kind: 'subtract',
+        from: { kind: 'rectangle', x0: -0.01, y0: -0.01, width: 14 * (Math.sqrt(3) / 2) * acc, height: 8 * 1.5 * acc },
+        remove: [{ kind: 'disk', cx: 9 * (Math.sqrt(3) / 2) * acc, cy: 3 * acc, radius: 0.2 }],
+      },
+      leads: [
+        { side: 'left', start: 2, width: 4 },
+        { side: 'top', start: 5, width: 6, offset: -40 },
+      ],
+    });
+    const solver = new TransmissionSolver(op);
+    expect(solver.schurApplies).toBe(true);
+    let open = 0;
+    for (const f of [0.21, 0.47, 0.83, -0.55]) {
+      const E = f * op.hopping;
+      const d = difference(solver.atBySchur(E, true), solver.at(E, true));
+      expect(d.t).toBeLessThan(1e-10);
+      expect(d.s).toBeLessThan(1e-10);
+      open += solver.at(E).channels.reduce((x, y) => x * y, 1);
+    }
+    expect(open).toBeGreaterThan(0);
+  });
+
   it('is not used in a magnetic field, where the sweep keeps its direct solves', () => {
     const op = operator(irregular(0.5));
     const solver = new TransmissionSolver(op);
