@@ -195,11 +195,12 @@ export function factorFront(f: usize, m: i32, kFs: i32, threshold: f64, rowList:
         memory.copy(save, cp + <usize>8 * <usize>b0, <usize>8 * <usize>(m - b0));
         eliminateColumn(f, m, p, b0, p);
       }
-      let colMag = 0.0;
-      for (let r = p + 1; r < m; r++) {
-        const mag = Math.abs(load<f64>(cp + <usize>8 * <usize>r));
-        if (mag > colMag) colMag = mag;
-      }
+      // the column's largest magnitude below the diagonal, two rows at a time (pmax: no NaN here)
+      let r = <usize>8 * <usize>(p + 1);
+      let most = f64x2.splat(0);
+      for (; r + 8 < mm; r += 16) most = f64x2.pmax(most, f64x2.abs(v128.load(cp + r)));
+      let colMag = Math.max(f64x2.extract_lane(most, 0), f64x2.extract_lane(most, 1));
+      if (r < mm) colMag = Math.max(colMag, Math.abs(load<f64>(cp + r)));
       const diagMag = Math.abs(load<f64>(cp + <usize>8 * <usize>p));
       if (!(diagMag > 0 && diagMag >= threshold * colMag)) {
         if (p > b0) memory.copy(cp + <usize>8 * <usize>b0, save, <usize>8 * <usize>(m - b0));
