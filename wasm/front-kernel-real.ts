@@ -271,3 +271,15 @@ export function copyLowerSymmetric(dst: usize, src: usize, stride: usize, mc: i3
     }
   }
 }
+
+/**
+ * Zeroes a front (`entries` doubles at f) and assembles E − H into it: f[offset[a]] +=
+ * h[a] + energy·diagonal[a] for a in [from, to), as RealFronts.assemble of mouth-schur.ts.
+ */
+export function assembleFront(f: usize, entries: i32, offset: usize, h: usize, diagonal: usize, from: i32, to: i32, energy: f64): void {
+  memory.fill(f, 0, <usize>8 * <usize>entries);
+  for (let a = from; a < to; a++) {
+    const o = f + <usize>8 * <usize>load<i32>(offset + <usize>4 * <usize>a);
+    store<f64>(o, load<f64>(o) + (load<f64>(h + <usize>8 * <usize>a) + energy * load<f64>(diagonal + <usize>8 * <usize>a)));
+  }
+}

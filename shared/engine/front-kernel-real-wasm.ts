@@ -24,6 +24,7 @@ interface RealKernelExports {
   factorFront(f: number, m: number, kFs: number, threshold: number, rowList: number, colList: number, save: number, nb: number): number;
   extendAdd(f: number, m: number, cb: number, mc: number, target: number, runs: number, nRuns: number): void;
   copyLowerSymmetric(dst: number, src: number, stride: number, mc: number): void;
+  assembleFront(f: number, entries: number, offset: number, h: number, diagonal: number, from: number, to: number, energy: number): void;
 }
 
 let compiled: object | null | undefined;
@@ -87,6 +88,11 @@ export class WasmRealFrontKernel {
    */
   extendAdd(f: number, m: number, cb: number, mc: number, target: number, runs: number, nRuns: number): void {
     this.exports.extendAdd(f, m, cb, mc, target, runs, nRuns);
+  }
+
+  /** Zeroes `entries` doubles at f, then f[offset[a]] += h[a] + energy·diagonal[a] for a in [from, to) (byte offsets of Int32/Float64 arrays). */
+  assembleFront(f: number, entries: number, offset: number, h: number, diagonal: number, from: number, to: number, energy: number): void {
+    this.exports.assembleFront(f, entries, offset, h, diagonal, from, to, energy);
   }
 
   /** copyLowerSymmetric (dense-real.ts): packs the block whose lower triangle starts at src (column stride in bytes) into dst, both triangles. */

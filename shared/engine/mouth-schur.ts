@@ -92,7 +92,12 @@ class RealFronts {
   stack: Float64Array = new Float64Array(0);
   private cap = 0;
   private stackCap = 0;
-  private at = { front: 0, rows: 0, cols: 0, save: 0, target: 0, runs: 0, stack: 0 };
+  private at = { front: 0, rows: 0, cols: 0, save: 0, target: 0, runs: 0, stack: 0, offset: 0, h: 0, diagonal: 0 };
+  private assembly: { offset: Int32Array; h: Float64Array; diagonal: Float64Array } = {
+    offset: new Int32Array(0),
+    h: new Float64Array(0),
+    diagonal: new Float64Array(0),
+  };
 
   constructor(
     readonly wasm: WasmRealFrontKernel | null,
@@ -101,6 +106,30 @@ class RealFronts {
   ) {
     this.ensureFront(cap);
     this.ensureStack(stackCap, 0);
+  }
+
+  /** The assembly plan of every front: place (column·m + row), −H and the diagonal flag of each entry. */
+  setAssembly(offset: Int32Array, h: Float64Array, diagonal: Float64Array): void {
+    this.assembly = { offset, h, diagonal };
+    const wasm = this.wasm;
+    if (!wasm) return;
+    const n = offset.length;
+    this.at.offset = wasm.reserve(4 * n);
+    this.at.h = wasm.reserve(8 * n);
+    this.at.diagonal = wasm.reserve(8 * n);
+    wasm.i32(this.at.offset, n).set(offset);
+    wasm.f64(this.at.h, n).set(h);
+    wasm.f64(this.at.diagonal, n).set(diagonal);
+    this.takeViews();
+  }
+
+  /** Zeroes the front (m rows) and adds E − H at entries from..to−1 of the assembly plan. */
+  assemble(m: number, from: number, to: number, energy: number): void {
+    if (this.wasm) return this.wasm.assembleFront(this.at.front, m * m, this.at.offset, this.at.h, this.at.diagonal, from, to, energy);
+    const F = this.front;
+    const { offset, h, diagonal } = this.assembly;
+    F.fill(0, 0, m * m);
+    for (let a = from; a < to; a++) F[offset[a]] += h[a] + energy * diagonal[a];
   }
 
   /** Room for a front of m rows (contents not kept). */
@@ -223,8 +252,6 @@ export class MouthSchur {
   private readonly asmDiagonal: Float64Array;
   /** Index among the unique mouth sites of each lead's p-th mouth site. */
   private readonly leadMouth: Int32Array[];
-  /** Place of each assembled entry in its front when no pivot was delayed into it (column·m + row). */
-  private readonly asmOffset: Int32Array;
   /** Matrix entries on M×M (with Σ), interleaved complex, added to the root's remainder. */
   private readonly mouthEntries: Float64Array;
   /** Predicted real flops of one partial factorisation (for the docs and the bench). */
@@ -247,16 +274,18 @@ export class MouthSchur {
     this.fronts = new RealFronts(kernel === 'wasm' ? WasmRealFrontKernel.create() : null, mx, Math.max(1, symbolic.stackPeak));
     this.delayStack = new Int32Array(64);
     const { first, nonfsPtr, asmPtr, asmRow, asmCol, asmEntry } = symbolic;
-    this.asmOffset = new Int32Array(asmRow.length);
+    // place of each entry in its front when no pivot was delayed into it (column·m + row)
+    const offset = new Int32Array(asmRow.length);
     for (let f = 0; f + 1 < first.length; f++) {
       const m = first[f + 1] - first[f] + nonfsPtr[f + 1] - nonfsPtr[f];
-      for (let a = asmPtr[f]; a < asmPtr[f + 1]; a++) this.asmOffset[a] = asmCol[a] * m + asmRow[a];
+      for (let a = asmPtr[f]; a < asmPtr[f + 1]; a++) offset[a] = asmCol[a] * m + asmRow[a];
     }
     // −H and the diagonal in assembly order, so each front reads its entries in one sweep
     const column = new Int32Array(asmEntry.length);
     for (let c = 0; c < op.n; c++) column.fill(c, op.colPtr[c], op.colPtr[c + 1]);
     this.asmH = Float64Array.from(asmEntry, (e) => minusH[2 * e]);
     this.asmDiagonal = Float64Array.from(asmEntry, (e) => (op.rowIdx[e] === column[e] ? 1 : 0));
+    this.fronts.setAssembly(offset, this.asmH, this.asmDiagonal);
     this.leadMouth = op.system.leads.map((lead) => Int32Array.from(lead.mouth, (v) => unique.indexOf(v)));
     const ns = symbolic.first.length - 1;
     this.cbDim = new Int32Array(ns);
@@ -372,7 +401,10 @@ export class MouthSchur {
       const kFs = kPiv + d;
       fronts.ensureFront(m);
       const { front: F, rowList, colList, target } = fronts;
-      F.fill(0, 0, m * m);
+      const fast = d === 0 && !isRoot;
+      // with no delayed pivots the entries' places in the front were computed once
+      if (fast) fronts.assemble(m, asmPtr[s], asmPtr[s + 1], energy);
+      else F.fill(0, 0, m * m);
       for (let q = 0; q < k; q++) {
         const at = q < kPiv ? q : q + d;
         rowList[at] = f0 + q;
@@ -382,11 +414,7 @@ export class MouthSchur {
         rowList[k + d + q] = nonfs[nf0 + q];
         colList[k + d + q] = nonfs[nf0 + q];
       }
-      if (d === 0 && !isRoot) {
-        // no delayed pivots came up: the entries' places in the front were computed once
-        const { asmOffset, asmH, asmDiagonal } = this;
-        for (let a = asmPtr[s]; a < asmPtr[s + 1]; a++) F[asmOffset[a]] += asmH[a] + energy * asmDiagonal[a];
-      } else {
+      if (!fast) {
         for (let a = asmPtr[s]; a < asmPtr[s + 1]; a++) {
           const r = asmRow[a];
           const c = asmCol[a];
