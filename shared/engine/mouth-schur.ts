@@ -338,6 +338,7 @@ export class MouthSchur {
     const sheet = op.sheetAt(energy);
     const M = this.mouthCount;
     // −Σ on the mouths (A[mouth p, mouth q] −= Σ_ℓ[p, q], as EffectiveHamiltonian.assemble does)
+    this.mouthEntries.fill(0);
     this.leadMouth.forEach((at, l) => {
       const sigma = op.selfEnergy(l, { re: energy, im: 0 }, sheet);
       const w = at.length;
@@ -470,7 +471,6 @@ export class MouthSchur {
             block[o] += this.mouthEntries[2 * (i * M + j)];
             block[o + 1] = this.mouthEntries[2 * (i * M + j) + 1];
           }
-        this.mouthEntries.fill(0);
         return { size, block, delayed, sign: negative % 2 ? -1 : 1 };
       }
       const dOut = kFs - done;
