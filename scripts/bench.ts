@@ -62,7 +62,7 @@ if (only.includes('lu')) {
 }
 if (only.includes('transmission')) print('transmission sweep at 10,000 sites (one thread)', await benchTransmission());
 if (only.includes('sweep'))
-  print('1,000-energy transmission sweep at 10,000 sites: spectral against SciPy/SuperLU per energy, then direct (one thread)', await benchSweep1000());
+  print('1,000-energy transmission sweep at 10,000 sites: Schur complement against SciPy/SuperLU per energy, then direct (one thread)', await benchSweep1000());
 if (only.includes('poles')) {
   const one = searchOnce(100);
   print('certified pole search at 10,000 sites, one thread', {

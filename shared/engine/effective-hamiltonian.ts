@@ -82,7 +82,7 @@ export function buildCavitySystem(doc: unknown, prebuilt: PrebuiltLeads = {}): C
 interface CouplingColumns {
   /** Total number of open channels (columns). */
   count: number;
-  /** Column-major n × count, interleaved complex. */
+  /** Column-major n × count (M × count on the mouths), interleaved complex. */
   values: Float64Array;
   /** Lead of each column. */
   lead: Int32Array;
@@ -225,6 +225,11 @@ export class EffectiveHamiltonian implements NonlinearOperator {
     return sum;
   }
 
+  /** −H on the pattern (interleaved complex, length 2·nnz, a copy): T(z) without z and Σ. */
+  minusHamiltonian(): Float64Array {
+    return this.minusH.slice();
+  }
+
   /** Unknown indices of lead ℓ's mouth sites (p = 1..W). */
   mouthSites(lead: number): Int32Array {
     return this.system.leads[lead].mouth;
@@ -253,8 +258,10 @@ export class EffectiveHamiltonian implements NonlinearOperator {
    * The coupling matrix W at a real energy E: one column per open channel,
    * sqrt(2t sin k_m)·e^{−iθ_p}χ_m(p) on its lead's mouth, so Γ_ℓ = W_ℓW_ℓ†.
    * sin k_m = sqrt(1 − w_m²), w_m = (ε_m − E)/(2t). Cost O(n·N_open).
+   * onMouth: the columns' rows on the mouth sites only, in mouthOrder (every lead's
+   * mouth in turn; M rows instead of n), where they vanish nowhere else. Cost O(M·N_open).
    */
-  couplingColumns(energy: number): CouplingColumns {
+  couplingColumns(energy: number, onMouth = false): CouplingColumns {
     const t = this.hopping;
     const leadOf: number[] = [];
     const channelOf: number[] = [];
@@ -268,16 +275,24 @@ export class EffectiveHamiltonian implements NonlinearOperator {
       }
     }
     const count = leadOf.length;
-    const values = new Float64Array(2 * this.n * count);
+    // row of lead ℓ's p-th mouth site: the site itself, or with onMouth its place in mouthOrder
+    const rowStart: number[] = [];
+    let rows = 0;
+    for (const l of this.system.leads) {
+      rowStart.push(rows);
+      rows += l.mouth.length;
+    }
+    const height = onMouth ? rows : this.n;
+    const values = new Float64Array(2 * height * count);
     const numericalColumns = this.system.leads.map((l) => (l.numerical ? l.numerical.channels(energy) : undefined));
     for (let c = 0; c < count; c++) {
       const l = this.system.leads[leadOf[c]];
       const num = numericalColumns[leadOf[c]];
       if (num) {
         for (let p = 0; p < l.mouth.length; p++) {
-          const s = l.mouth[p];
-          values[2 * (c * this.n + s)] = num.columns[2 * (p * num.count + channelOf[c] - 1)];
-          values[2 * (c * this.n + s) + 1] = num.columns[2 * (p * num.count + channelOf[c] - 1) + 1];
+          const s = onMouth ? rowStart[leadOf[c]] + p : l.mouth[p];
+          values[2 * (c * height + s)] = num.columns[2 * (p * num.count + channelOf[c] - 1)];
+          values[2 * (c * height + s) + 1] = num.columns[2 * (p * num.count + channelOf[c] - 1) + 1];
         }
         continue;
       }
@@ -287,9 +302,9 @@ export class EffectiveHamiltonian implements NonlinearOperator {
       const amp = Math.sqrt(2 * t * Math.sqrt(Math.max(0, 1 - w * w)));
       for (let p = 0; p < ch.width; p++) {
         const x = amp * ch.chi[m * ch.width + p];
-        const s = l.mouth[p];
-        values[2 * (c * this.n + s)] = x * Math.cos(l.theta[p]);
-        values[2 * (c * this.n + s) + 1] = -x * Math.sin(l.theta[p]);
+        const s = onMouth ? rowStart[leadOf[c]] + p : l.mouth[p];
+        values[2 * (c * height + s)] = x * Math.cos(l.theta[p]);
+        values[2 * (c * height + s) + 1] = -x * Math.sin(l.theta[p]);
       }
     }
     return { count, values, lead: Int32Array.from(leadOf), channel: Int32Array.from(channelOf), perLead };

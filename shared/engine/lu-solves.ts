@@ -319,7 +319,7 @@ function scatter(v: Float64Array, n2: number, index: Int32Array, ix: number, cou
 }
 
 /** 0 for an even permutation, 1 for an odd one (by cycle count). Cost: O(n). */
-function permutationParity(p: Int32Array): number {
+export function permutationParity(p: Int32Array): number {
   const n = p.length;
   const seen = new Uint8Array(n);
   let parity = 0;
@@ -336,7 +336,7 @@ function permutationParity(p: Int32Array): number {
 }
 
 /** Reduces an angle to (−π, π]. */
-function wrapAngle(a: number): number {
+export function wrapAngle(a: number): number {
   const twoPi = 2 * Math.PI;
   let r = a - twoPi * Math.round(a / twoPi);
   if (r <= -Math.PI) r += twoPi;

@@ -41,17 +41,10 @@ export function mouthOrder(op: EffectiveHamiltonian): Int32Array {
  * the coupling columns W restricted to the mouth (they vanish elsewhere). Cost O(M²·N_open).
  */
 export function pointFromMouth(op: EffectiveHamiltonian, energy: number, mouth: Float64Array, detPhase: number, withS = false): TransmissionPoint {
-  const n = op.n;
-  const sites = mouthOrder(op);
-  const M = sites.length;
-  const w = op.couplingColumns(energy);
+  const M = mouthOrder(op).length;
+  const w = op.couplingColumns(energy, true);
   const count = w.count;
-  const wm = new Float64Array(2 * M * count);
-  for (let c = 0; c < count; c++)
-    for (let p = 0; p < M; p++) {
-      wm[2 * (c * M + p)] = w.values[2 * (c * n + sites[p])];
-      wm[2 * (c * M + p) + 1] = w.values[2 * (c * n + sites[p]) + 1];
-    }
+  const wm = w.values;
   // X = G_mouth W (M × count, column-major)
   const x = new Float64Array(2 * M * count);
   for (let c = 0; c < count; c++)

@@ -6,30 +6,41 @@
  * (Fisher & Lee, Phys. Rev. B 23, 6851 (1981); Mahaux & Weidenmüller, "Shell-Model
  * Approach to Nuclear Reactions" (1969) for the S-matrix form).
  * Conductance in units of 2e²/h (spin degenerate): G/(2e²/h) = T. Energies in meV.
- * Cost per energy: one sparse LU of T(E) plus N_open solves.
+ * Cost per energy: one sparse LU of T(E) plus N_open solves; with a real Hamiltonian,
+ * sweeps take G on the mouths from the closed cavity's Schur complement instead
+ * (mouth-schur.ts: a real partial factorisation, no solves), the same values to rounding.
  */
 import { checkCancelled, type WorkControl } from './operator';
 import { SparseLuPlan, type SparseLuFactors } from './sparse-lu';
 import type { EffectiveHamiltonian } from './effective-hamiltonian';
-import { MouthInterpolation, type MouthInterpolationOptions } from './mouth-interpolation';
+import { MouthInterpolation, type MouthInterpolationOptions, type MouthSolver } from './mouth-interpolation';
 import { MouthSpectral, type MouthSpectralOptions, type MouthSpectralSummary } from './mouth-spectral';
+import { MouthSchur } from './mouth-schur';
 import { mouthOrder, pointFromMouth, scatteringPoint, type TransmissionPoint } from './scattering-point';
 
 export { type TransmissionPoint } from './scattering-point';
 
 /** A reusable evaluator: one symbolic analysis of T's pattern serves every energy. */
 export class TransmissionSolver {
-  private readonly plan: SparseLuPlan;
+  /** Analysed on first use: a sweep by the Schur complement never needs it. */
+  private analysed: SparseLuPlan | undefined;
   private readonly values: Float64Array;
   /** The last energy's LU, finished with: the next factorisation takes over its storage. */
   private spare: SparseLuFactors | undefined;
+  /** The Schur-complement path, analysed on first use; null where it does not apply. */
+  private schur: MouthSchur | null | undefined;
 
   constructor(
     readonly op: EffectiveHamiltonian,
     plan?: SparseLuPlan,
   ) {
-    this.plan = plan ?? SparseLuPlan.analyse(op.n, op.colPtr, op.rowIdx, { sites: op.sites });
+    this.analysed = plan;
     this.values = new Float64Array(2 * op.rowIdx.length);
+  }
+
+  private get plan(): SparseLuPlan {
+    this.analysed ??= SparseLuPlan.analyse(this.op.n, this.op.colPtr, this.op.rowIdx, { sites: this.op.sites });
+    return this.analysed;
   }
 
   /** arg det T(z) (rad) at a complex energy, sheet chosen by Re z; one LU, no solves. */
@@ -88,6 +99,25 @@ export class TransmissionSolver {
     // Nothing returned refers to lu (x and s are plain arrays), so its storage can be reused.
     this.spare = lu;
     return point;
+  }
+
+  /**
+   * The point at E from G on the mouths by the closed cavity's Schur complement
+   * (mouth-schur.ts) where it applies (a real Hamiltonian: no magnetic field), else by
+   * at(E); both give the same point to rounding. The first call analyses the pattern
+   * once more, with the mouth sites ordered last.
+   */
+  atBySchur(energy: number, withS = false): TransmissionPoint {
+    if (!Number.isFinite(energy)) throw new RangeError(`transmission: energy must be a finite number of meV, got ${energy}`);
+    if (this.schur === undefined) this.schur = MouthSchur.forOperator(this.op);
+    const green = this.schur?.at(energy);
+    return green ? pointFromMouth(this.op, energy, green.mouth, green.detPhase, withS) : this.at(energy, withS);
+  }
+
+  /** Whether atBySchur uses the Schur complement for this operator (analyses it on first call). */
+  get schurApplies(): boolean {
+    if (this.schur === undefined) this.schur = MouthSchur.forOperator(this.op);
+    return this.schur !== null;
   }
 
   /**
@@ -168,6 +198,13 @@ interface SweepRequest {
    * precedence over `interpolate`.
    */
   spectral?: boolean | MouthSpectralOptions;
+  /**
+   * How each energy is evaluated without interpolation: 'schur' (default) takes G on the
+   * mouths from the closed cavity's Schur complement where the Hamiltonian is real
+   * (mouth-schur.ts) and a direct LU elsewhere; 'direct' always factorises T(E) and
+   * solves with the open channels. Both give the same points to rounding.
+   */
+  method?: 'schur' | 'direct';
 }
 
 /** Sweep anchors that put each pole's peak on the curve: E − Γ/2, E and E + Γ/2 of every pole. */
@@ -188,7 +225,7 @@ interface TransmissionSweep {
   /** Largest current-conservation and unitarity residuals over all samples. */
   worstCurrentResidual: number;
   worstUnitarityResidual: number;
-  /** LU factorisations spent (one per direct solve, upper probes included; with `spectral`, the closed cavity's too). */
+  /** LU factorisations spent (one per energy, upper probes included; with `spectral`, the closed cavity's too). */
   directSolves: number;
   /** With `spectral`: whether it served the sweep, eigenpairs, nodes, held-out |ΔT|. */
   spectral?: MouthSpectralSummary;
@@ -266,19 +303,26 @@ export function transmissionSweep(op: EffectiveHamiltonian, request: SweepReques
   let probes = 0;
   const report = (done: number) => control?.onProgress?.('transmission', Math.min(1, (done + probes) / total));
 
+  if (request.method !== undefined && request.method !== 'schur' && request.method !== 'direct') {
+    throw new RangeError(`transmissionSweep: method must be 'schur' or 'direct', got ${String(request.method)}`);
+  }
+  const bySchur = request.method !== 'direct';
+  // the interpolated and spectral sweeps fall back to the same per-energy evaluation as a plain sweep
+  const pointSolver: MouthSolver = { at: (E) => (bySchur ? solver.atBySchur(E) : solver.at(E)), atMouth: (E) => solver.atMouth(E) };
   let directSolves = 0;
   const spectral = request.spectral
-    ? new MouthSpectral(op, solver, grid, request.spectral === true ? {} : request.spectral, () => checkCancelled(control))
+    ? new MouthSpectral(op, pointSolver, grid, request.spectral === true ? {} : request.spectral, () => checkCancelled(control))
     : null;
   const interpolation = spectral
     ? spectral
     : request.interpolate
-      ? new MouthInterpolation(op, solver, grid, request.interpolate === true ? {} : request.interpolate, () => checkCancelled(control))
+      ? new MouthInterpolation(op, pointSolver, grid, request.interpolate === true ? {} : request.interpolate, () => checkCancelled(control))
       : null;
   const evaluate = (E: number): TransmissionPoint => {
     if (interpolation) return interpolation.at(E);
+    // one factorisation either way: the Schur path's is a partial one in real numbers
     directSolves++;
-    return solver.at(E);
+    return pointSolver.at(E);
   };
   let samples: TransmissionPoint[] = [];
   for (let k = 0; k < points; k++) {

@@ -5,26 +5,9 @@ import { TransmissionSolver, transmissionSweep, type TransmissionPoint } from '.
 import { largestDifference } from '../../shared/engine/mouth-interpolation';
 import { hamiltonianCsc } from '../../shared/engine/lattice';
 import type { CavityModelInput } from '../../shared/model/cavity-model';
+import { highQWire } from './high-q-wire';
 
-/**
- * The 42-site GaAs wire of transmission-interpolation.test.ts: a resonance near 15.15 meV
- * with Q ≈ 10⁵ between two barrier columns, and the leads' channel 2 opening at 13.32 meV.
- */
-const wire: CavityModelInput = {
-  name: 'high-Q wire',
-  spacing: 5,
-  material: 'gaas',
-  grid: { nx: 14, ny: 3 },
-  shape: { kind: 'rectangle', x0: 0, y0: 0, width: 70, height: 15 },
-  potential: [
-    { kind: 'block', x0: 5, y0: 0, width: 5, height: 15, value: 1115 },
-    { kind: 'block', x0: 60, y0: 0, width: 5, height: 15, value: 1115 },
-  ],
-  leads: [
-    { side: 'left', start: 0, width: 3 },
-    { side: 'right', start: 0, width: 3 },
-  ],
-};
+const wire = highQWire;
 
 /** A 30 × 30 square (two-fold degenerate closed-cavity levels E_nm = E_mn) with two 10-site leads. */
 const square: CavityModelInput = {
