@@ -29,6 +29,8 @@ import { nestedDissectionOrder, symmetricAdjacency, type Adjacency } from './ord
 import { mouthOrder } from './scattering-point';
 import { patternSlot } from './sparsity-pattern';
 
+/** Delayed pivots beyond which at() leaves the energy to the direct solve (see at()). */
+const DELAY_LIMIT = 64;
 /** The pivot threshold u of the sparse LU (sparse-lu.ts): |a_rp| ≥ u·max|a_·p|. */
 const PIVOT_THRESHOLD = 0.1;
 /**
@@ -331,7 +333,10 @@ export class MouthSchur {
 
   /**
    * G_MM at a real energy E (meV) and arg det A(E); null when A(E) is exactly singular
-   * (the caller then uses a direct solve, which reports it).
+   * (the caller then uses a direct solve, which reports it), or when more than
+   * max(DELAY_LIMIT, 2M) interior pivots were delayed into one front (the root or one on the
+   * way), whose dense work would then outgrow the direct sparse solve's (a bipartite lattice near its band centre, e.g.
+   * graphene near the Dirac point, has diagonals E − V small against its hoppings).
    */
   at(energy: number): MouthGreen | null {
     const op = this.op;
@@ -351,6 +356,7 @@ export class MouthSchur {
     });
     const root = this.eliminateInterior(energy);
     const { size, block, delayed, sign } = root;
+    if (delayed > Math.max(DELAY_LIMIT, 2 * M)) return null;
     const f = denseLu(size, block);
     if (f.pivotRatio === 0) return null;
     let arg = sign < 0 ? Math.PI : 0;
@@ -396,6 +402,8 @@ export class MouthSchur {
       const c1 = childPtr[s + 1];
       let d = 0;
       for (let t = c0; t < c1; t++) d += delayOut[childList[t]];
+      // Too many delays gathered in one front: its dense work would outgrow the direct solve's (see at()).
+      if (d > Math.max(DELAY_LIMIT, 2 * M)) return { size: 0, block: new Float64Array(0), delayed: d, sign: 1 };
       const nf0 = nonfsPtr[s];
       const nfLen = nonfsPtr[s + 1] - nf0;
       const m = k + d + nfLen;

@@ -111,8 +111,16 @@ export class TransmissionSolver {
     if (!Number.isFinite(energy)) throw new RangeError(`transmission: energy must be a finite number of meV, got ${energy}`);
     if (this.schur === undefined) this.schur = MouthSchur.forOperator(this.op);
     const green = this.schur?.at(energy);
+    if (this.schur) {
+      this.schurTries++;
+      if (!green) this.schurMisses++;
+      // Mostly left to the direct solve (many delayed pivots): stop paying for the partial factorisation.
+      if (this.schurTries >= 8 && this.schurMisses * 4 > this.schurTries) this.schur = null;
+    }
     return green ? pointFromMouth(this.op, energy, green.mouth, green.detPhase, withS) : this.at(energy, withS);
   }
+  private schurTries = 0;
+  private schurMisses = 0;
 
   /** Whether atBySchur uses the Schur complement for this operator (analyses it on first call). */
   get schurApplies(): boolean {

@@ -1,3 +1,4 @@
+import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { copyLowerSymmetric, factorFrontSymmetric } from '../../shared/engine/dense-real';
 import { denseLu, denseLuSolve } from '../../shared/engine/dense-solve';
@@ -248,6 +249,25 @@ describe('transmission by the mouth Schur complement (issue 9, item 4)', () => {
       open += solver.at(E).channels.reduce((x, y) => x * y, 1);
     }
     expect(open).toBeGreaterThan(0);
+  });
+
+  it('leaves energies near graphene’s Dirac point to the direct solve, where every diagonal pivot fails the threshold', () => {
+    // Graphene dot G2 of the demo catalogue (a disk with narrow necks, zigzag leads). The honeycomb is
+    // bipartite: A(E) = E − H has the diagonal E against hoppings t, so below |E| = 0.1·t (the pivot
+    // threshold) every interior pivot is delayed and the partial factorisation gives up (at() is null).
+    const g2 = JSON.parse(readFileSync(new URL('../../catalogue/hl-graphene-g2.json', import.meta.url), 'utf8')) as { model: CavityModelInput };
+    const op = operator(g2.model);
+    const schur = MouthSchur.forOperator(op)!;
+    expect(schur).not.toBeNull();
+    expect(schur.at(0.05 * op.hopping)).toBeNull();
+    expect(schur.at(0.2 * op.hopping)).not.toBeNull();
+    const request = { emin: 0.03 * op.hopping, emax: 0.15 * op.hopping, points: 40 };
+    const sweep = transmissionSweep(op, request);
+    const direct = transmissionSweep(op, { ...request, method: 'direct' });
+    expect(sweep.points.map((p) => p.energy)).toEqual(direct.points.map((p) => p.energy));
+    let worst = 0;
+    sweep.points.forEach((p, k) => (worst = Math.max(worst, largestDifference(p, direct.points[k]))));
+    expect(worst).toBeLessThan(1e-10);
   });
 
   it('is not used in a magnetic field, where the sweep keeps its direct solves', () => {
