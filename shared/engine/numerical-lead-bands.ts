@@ -181,7 +181,7 @@ class BlochCell {
   }
 
   /** The smallest |velocity| among the bands within tol of energy (the velocity matrix on that degenerate subspace), and those bands. */
-  degenerateVelocity(d: Decomposition, energy: number, tol: number): { velocity: number; bands: number[] } {
+  degenerateVelocity(d: Decomposition, energy: number, tol: number): { velocity: number; bands: number[]; halfGap: number } {
     const n = this.n;
     const bands: number[] = [];
     for (let c = 0; c < n; c++) if (Math.abs(d.values[c] - energy) <= tol) bands.push(c);
@@ -196,7 +196,17 @@ class BlochCell {
       });
     });
     const vals = hermitianEigen(q, v).values;
-    return { velocity: Math.min(...Array.from(vals, Math.abs)), bands };
+    // Two bands: the 2×2 problem H ≈ diag(E_p, E_q) + δk·V on their subspace. In V's eigenbasis
+    // (the diabatic states, straight lines in k) the off-diagonal of H is c, with
+    // |c| = |E_q − E_p|·|V_pq| / √((V_pp − V_qq)² + 4|V_pq|²), and the smallest gap over k is 2|c|.
+    let halfGap = 0;
+    if (q === 2) {
+      const g = Math.abs(d.values[bands[1]] - d.values[bands[0]]);
+      const w = Math.hypot(v[2], v[3]);
+      const den = Math.hypot(v[0] - v[6], 2 * w);
+      halfGap = den > 0 ? (g * w) / den : 0.5 * g;
+    }
+    return { velocity: Math.min(...Array.from(vals, Math.abs)), bands, halfGap };
   }
 }
 
@@ -223,6 +233,9 @@ interface BandPoint {
  * avoided crossing of half-width Δ is about |Δv|·Δ/g (Δv the difference of their slopes), so
  * Δ ≈ coupling·g/|Δv|. Rounding gives a coupling of about ε‖H‖·|Δv|/g, i.e. Δ ≈ ε‖H‖.
  */
+/** Smallest gap (of the band scale) of an avoided crossing: two bands closer than that cross. */
+const AVOIDED = 1e-11;
+
 function narrow(p: BandPoint, tol: number): boolean {
   return p.near.coupling * p.gap <= tol * Math.abs(p.slope - p.near.slope);
 }
@@ -296,6 +309,71 @@ export function leadBandEdges(cell: LeadCellBlocks, samples = 128, stats?: { sol
   const edges: BandEdge[] = [];
   const meetings: Meeting[] = [];
   const h = (2 * Math.PI) / samples;
+  /**
+   * Band b's edge in the bracket [lo, hi] of a sign change of its slope (fLo the sign at lo),
+   * from k with the decomposition d; a crossing met on the way is noted in meetings.
+   */
+  const refine = (b: number, lo0: number, hi0: number, k0: number, d0: Decomposition, fLo: number): BandEdge | undefined => {
+    let lo = lo0;
+    let hi = hi0;
+    let k = k0;
+    let s = bc.bandAt(d0, b);
+    let found: BandEdge | undefined;
+    for (let it = 0; it < 60; it++) {
+      // A sorted band's kink where two bands cross (slopes of both signs, never zero) is
+      // approached by bisection only linearly in the gap: jump to where the two nearest bands'
+      // tangents meet, and go on from there while the gap at least halves (Newton on the
+      // difference of the two bands, quadratic at an exact crossing).
+      let jumped = false;
+      if (s.gap > tight && s.near.slope !== s.slope) {
+        const kc = k + (s.near.energy - s.energy) / (s.slope - s.near.slope);
+        if (kc > lo && kc < hi && kc !== k) {
+          const c = bc.bandAt(bc.decompose(kc), b);
+          if (c.gap <= tight || (c.gap <= 0.5 * s.gap && narrow(s, 1e-10 * scale) && narrow(c, 1e-10 * scale))) {
+            k = kc;
+            s = c;
+            jumped = c.gap > tight;
+          }
+        }
+      }
+      let avoided = false;
+      if (s.gap <= tight) {
+        // (Nearly) degenerate. Two bands whose 2×2 problem has a smallest gap 2|c| above
+        // AVOIDED·scale avoid each other: the sorted bands are smooth there, and an extremum of
+        // band b (a maximum of the lower, a minimum of the upper) is refined as any other.
+        // Otherwise it is a crossing: an edge when one of the velocities on the degenerate
+        // subspace vanishes (a band extremum touching other bands); a plain crossing has none.
+        const dv = bc.degenerateVelocity(s.d, s.energy, tight);
+        avoided = 2 * dv.halfGap > AVOIDED * scale;
+        if (!avoided) {
+          if (dv.velocity <= 1e-7 * scale) found = { band: b, k: wrap(k), energy: s.energy };
+          meetings.push({ k: wrap(k), bands: dv.bands, from: b });
+          break;
+        }
+      }
+      // Converged when the slope vanishes to 1e-12·scale, or when the energy is known to
+      // 1e-13·scale (|slope| times the bracket): near a narrow avoided crossing the curvature is
+      // about v²/|c|, and the slope cannot be resolved below that times the k rounding.
+      if (Math.abs(s.slope) <= 1e-12 * scale || Math.abs(s.slope) * (hi - lo) <= 1e-13 * scale) {
+        found = { band: b, k: wrap(k), energy: s.energy };
+        break;
+      }
+      if (Math.sign(s.slope) === Math.sign(fLo)) lo = k;
+      else hi = k;
+      if (jumped) continue;
+      let next = k - s.slope / s.curvature;
+      if (!(next > lo && next < hi) || !Number.isFinite(next)) next = 0.5 * (lo + hi);
+      if (hi - lo <= 4 * Number.EPSILON * Math.max(1, Math.abs(k))) {
+        // The bracket of a sign change of the slope has shrunk to rounding: an extremum of a
+        // smooth band (apart from its neighbours by more than a crossing) lies inside it.
+        if (s.gap > tight || avoided) found = { band: b, k: wrap(k), energy: s.energy };
+        break;
+      }
+      k = next;
+      s = bc.bandAt(bc.decompose(k), b);
+    }
+    return found;
+  };
   for (let b = 0; b < n; b++) {
     for (let i = 0; i < samples; i++) {
       if (!computed(i)) continue;
@@ -309,51 +387,8 @@ export function leadBandEdges(cell: LeadCellBlocks, samples = 128, stats?: { sol
       if (edges.some((e) => e.band === b && Math.abs(e.energy - e1) <= 1e-10 * scale)) continue;
       // A crossing of this band, met inside this bracket while refining the band it crosses.
       if (meetings.some((m) => m.from !== b && m.bands.includes(b) && Math.abs(wrap(m.k - ks[i])) < h)) continue;
-      let lo = ks[i] - h;
-      let hi = ks[i] + h;
       // f(lo) has the sign opposite to f(hi) across an extremum: bracket for bisection.
-      const fLo = bc.slope(sample(i - 1), b);
-      let k = ks[i];
-      let s = bc.bandAt(sample(i), b);
-      let found: BandEdge | undefined;
-      for (let it = 0; it < 60; it++) {
-        // A sorted band's kink where two bands cross (slopes of both signs, never zero) is
-        // approached by bisection only linearly in the gap: jump to where the two nearest bands'
-        // tangents meet, and go on from there while the gap at least halves (Newton on the
-        // difference of the two bands, quadratic at an exact crossing).
-        let jumped = false;
-        if (s.gap > tight && s.near.slope !== s.slope) {
-          const kc = k + (s.near.energy - s.energy) / (s.slope - s.near.slope);
-          if (kc > lo && kc < hi && kc !== k) {
-            const c = bc.bandAt(bc.decompose(kc), b);
-            if (c.gap <= tight || (c.gap <= 0.5 * s.gap && narrow(s, 1e-10 * scale) && narrow(c, 1e-10 * scale))) {
-              k = kc;
-              s = c;
-              jumped = c.gap > tight;
-            }
-          }
-        }
-        if (s.gap <= tight) {
-          // (Nearly) degenerate: an edge when one of the velocities on the degenerate subspace
-          // vanishes (a band extremum touching other bands); a plain crossing has none.
-          const dv = bc.degenerateVelocity(s.d, s.energy, tight);
-          if (dv.velocity <= 1e-7 * scale) found = { band: b, k: wrap(k), energy: s.energy };
-          meetings.push({ k: wrap(k), bands: dv.bands, from: b });
-          break;
-        }
-        if (Math.abs(s.slope) <= 1e-12 * scale) {
-          found = { band: b, k: wrap(k), energy: s.energy };
-          break;
-        }
-        if (Math.sign(s.slope) === Math.sign(fLo)) lo = k;
-        else hi = k;
-        if (jumped) continue;
-        let next = k - s.slope / s.curvature;
-        if (!(next > lo && next < hi) || !Number.isFinite(next)) next = 0.5 * (lo + hi);
-        if (hi - lo < 1e-15) break;
-        k = next;
-        s = bc.bandAt(bc.decompose(k), b);
-      }
+      const found = refine(b, ks[i] - h, ks[i] + h, ks[i], sample(i), bc.slope(sample(i - 1), b));
       if (found) edges.push(found);
     }
   }
