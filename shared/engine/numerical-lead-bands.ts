@@ -275,6 +275,24 @@ interface BandPoint {
  * avoided crossing of half-width Δ is about |Δv|·Δ/g (Δv the difference of their slopes), so
  * Δ ≈ coupling·g/|Δv|. Rounding gives a coupling of about ε‖H‖·|Δv|/g, i.e. Δ ≈ ε‖H‖.
  */
+/**
+ * Piece boundaries of a lead from its band edges: the sorted energies, those within
+ * PIECE_MERGE·scale above the previous boundary merged into it (scale = the largest |energy|,
+ * at least 1). Edges that close (the two sides of an avoided crossing narrower than that) bound
+ * a piece in which the propagating modes sit within 1e-7 of the unit circle, where
+ * numerical-lead-modes.ts cannot tell them from evanescent ones; the piece above is used there.
+ */
+export function pieceThresholds(edges: readonly BandEdge[]): number[] {
+  const sorted = edges.map((e) => e.energy).sort((x, y) => x - y);
+  const scale = Math.max(1, ...sorted.map(Math.abs));
+  const out: number[] = [];
+  for (const e of sorted) if (!out.length || e - out[out.length - 1] > PIECE_MERGE * scale) out.push(e);
+  return out;
+}
+
+/** Band edges closer than this (of the band scale) are one piece boundary. */
+const PIECE_MERGE = 1e-7;
+
 /** Smallest gap (of the band scale) of an avoided crossing: two bands closer than that cross. */
 const AVOIDED = 1e-11;
 
