@@ -10,7 +10,9 @@
  * H′ = i(e^{ik}H1 − e^{−ik}H1†), H″ = −(e^{ik}H1 + e^{−ik}H1†). A kink where two
  * sorted bands cross with non-zero slopes is not a threshold and is dropped (no velocity
  * on the degenerate subspace vanishes there); a degenerate point where one of them does
- * (an extremum touching crossing bands) is kept.
+ * (an extremum touching crossing bands) is kept. Two bands avoiding each other by a smallest
+ * gap 2|c| > AVOIDED·scale (the 2×2 problem on their subspace, degenerateVelocity) are smooth
+ * there: the maximum of the lower and the minimum of the upper are edges, however narrow.
  */
 import { hermitianEigen } from './hermitian-eigen';
 import { forwardHopping, type LeadCellBlocks } from './numerical-lead-modes';
@@ -334,6 +336,11 @@ interface Meeting {
  * band b+1's sampled extremum there is skipped; a tangent jump towards a crossing that at
  * least halves the gap is kept as the next step when the two bands cross or avoid each other
  * by less than 1e-10·scale (narrow), where Newton on dE/dk would only bisect.
+ *
+ * Then every sample interval where a band's slope changes sign with no edge or crossing of that
+ * band found inside is refined as well, after halving (down to 1/64 of the step) the intervals
+ * whose Hermite interpolant hides a pair of extrema (docs/physics-model.md, "Thresholds").
+ * The result holds every edge; pieceThresholds merges those too close to bound a piece.
  */
 export function leadBandEdges(cell: LeadCellBlocks, samples = 128, stats?: { solves: number }): BandEdge[] {
   const n = cell.size;

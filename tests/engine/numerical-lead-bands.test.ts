@@ -160,6 +160,8 @@ describe('thresholds of square leads in a field with a potential slope, against 
   const cases: [string, () => LeadCellBlocks][] = [
     ['20 sites, 3 T, 4 meV slope', () => slopedFieldLead(20, 3, 4)],
     ['20 sites, 2 T, 10 meV slope', () => slopedFieldLead(20, 2, 10)],
+    ['24 sites, 3.3 T, no slope', () => slopedFieldLead(24, 3.3, 0)],
+    ['30 sites, 3 T, no slope', () => slopedFieldLead(30, 3, 0)],
     ['40 sites, 3 T, 4 meV slope', () => slopedFieldLead(40, 3, 4)],
   ];
   for (const [name, make] of cases)
