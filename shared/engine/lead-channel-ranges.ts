@@ -14,7 +14,7 @@ import type { CavityModel } from '../model/cavity-model';
 import { modelLattice } from '../model/cavity-model';
 import { deriveFigures, type DerivedFigures } from '../model/derived-figures';
 import { presetLeadCell } from './lead-cell';
-import { leadBandEdges } from './numerical-lead-bands';
+import { leadBandEdges, pieceThresholds } from './numerical-lead-bands';
 import { realModes, type LeadCellBlocks } from './numerical-lead-modes';
 import { modelTightBinding } from './tight-binding';
 
@@ -27,7 +27,7 @@ interface ChannelRange {
 
 /** The open ranges of every channel number of a lead cell, and its thresholds. Cost O(kSamples·n³ + pieces·n³). */
 function leadChannelRanges(cell: LeadCellBlocks, kSamples = 128): { thresholds: number[]; ranges: ChannelRange[] } {
-  const thresholds = leadBandEdges(cell, kSamples).map((e) => e.energy);
+  const thresholds = pieceThresholds(leadBandEdges(cell, kSamples));
   const counts: number[] = [];
   for (let p = 0; p + 1 < thresholds.length; p++) {
     // N is the same anywhere inside the piece: away from its middle when bands cross exactly

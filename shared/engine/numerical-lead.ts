@@ -18,7 +18,7 @@
  */
 import { complexSchur, reorderSchur } from './complex-schur';
 import { conjugateTranspose, denseLu, denseLuSolve, denseMultiply } from './dense-solve';
-import { leadBandEdges, type BandEdge } from './numerical-lead-bands';
+import { leadBandEdges, pieceThresholds, type BandEdge } from './numerical-lead-bands';
 import { forwardHopping, realModesKept, type LeadCellBlocks } from './numerical-lead-modes';
 import { retardedChoice, type LeadPiece, type RetardedChoice } from './numerical-lead-sheet';
 
@@ -61,7 +61,7 @@ export class NumericalLead {
   readonly coupling: Float64Array;
   /** Band edges of the cell, sorted by energy. */
   readonly edges: readonly BandEdge[];
-  /** Sorted threshold energies (band edges, merged to 1e-12 of the band scale). */
+  /** Sorted threshold energies: the band edges, merged to 1e-7 of the band scale (pieceThresholds). */
   readonly thresholds: readonly number[];
   /** Pencils solved so far (a cost figure for benches). */
   solves = 0;
@@ -76,7 +76,7 @@ export class NumericalLead {
     this.mouthSize = spec.mouthSize;
     this.coupling = spec.coupling;
     this.edges = options.edges ? options.edges.map((e) => ({ ...e })) : leadBandEdges(spec.cell, options.kSamples ?? 128);
-    this.thresholds = this.edges.map((e) => e.energy);
+    this.thresholds = pieceThresholds(this.edges);
   }
 
   /**
