@@ -460,16 +460,7 @@ export class NumericFactorisation {
           // Runs of consecutive parent positions (separators are labelled contiguously), so
           // each column is added in a few contiguous stretches: [child offset, parent offset, length]·2.
           const runs = this.runs;
-          let nRuns = 0;
-          for (let ii = 0; ii < mc;) {
-            let len = 1;
-            while (ii + len < mc && map[ii + len] === map[ii] + len) len++;
-            runs[3 * nRuns] = 2 * ii;
-            runs[3 * nRuns + 1] = 2 * map[ii];
-            runs[3 * nRuns + 2] = 2 * len;
-            nRuns++;
-            ii += len;
-          }
+          const nRuns = contiguousRuns(map, mc, runs, 2);
           let src = this.cbStart[c];
           for (let jj = 0; jj < mc; jj++) {
             const dst = 2 * map[jj] * m;
@@ -598,6 +589,24 @@ export class NumericFactorisation {
     this.rowList = new Int32Array(m);
     this.colList = new Int32Array(m);
   }
+}
+
+/**
+ * Splits target[0..mc) into stretches of consecutive values: runs[3g..3g+2] = [first index,
+ * its target, length], each times `scale` (2 for interleaved complex entries). Returns the count.
+ */
+export function contiguousRuns(target: Int32Array, mc: number, runs: Int32Array, scale: number): number {
+  let nRuns = 0;
+  for (let ii = 0; ii < mc;) {
+    let len = 1;
+    while (ii + len < mc && target[ii + len] === target[ii] + len) len++;
+    runs[3 * nRuns] = scale * ii;
+    runs[3 * nRuns + 1] = scale * target[ii];
+    runs[3 * nRuns + 2] = scale * len;
+    nRuns++;
+    ii += len;
+  }
+  return nRuns;
 }
 
 const NO_VALUES = new Float64Array(0);
