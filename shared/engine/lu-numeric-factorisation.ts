@@ -210,49 +210,43 @@ export class NumericFactorisation {
     this.takeViews();
   }
 
+  /**
+   * A larger slot of `bytes`-byte entries (4: Int32, 8: Float64) in the kernel's memory for one
+   * at `old` of `length` entries: at least `need`, else 1.5×, with the first `keep` entries copied.
+   * Returns its offset and length; the caller stores them and takes its views again.
+   */
+  private enlarge(old: number, length: number, need: number, keep: number, bytes: 4 | 8): [number, number] {
+    const wasm = this.wasm!;
+    const grown = Math.max(need, Math.ceil(length * 1.5));
+    const at = wasm.reserve(bytes * grown);
+    if (bytes === 8) wasm.f64(at, keep).set(wasm.f64(old, keep));
+    else wasm.i32(at, keep).set(wasm.i32(old, keep));
+    return [at, grown];
+  }
+
   /** A larger contribution-block stack in the kernel's memory, keeping its first `keep` doubles. */
   private growCbStack(need: number, keep: number): void {
-    const wasm = this.wasm!;
-    const length = Math.max(need, Math.ceil(this.wsCbLength * 1.5));
-    const old = this.wsCb;
-    this.wsCb = wasm.reserve(8 * length);
-    this.wsCbLength = length;
-    wasm.f64(this.wsCb, keep).set(wasm.f64(old, keep));
-    wasm.i32(this.wsPlan + 4 * T_CB_STACK, 1)[0] = this.wsCb;
+    [this.wsCb, this.wsCbLength] = this.enlarge(this.wsCb, this.wsCbLength, need, keep, 8);
+    this.wasm!.i32(this.wsPlan + 4 * T_CB_STACK, 1)[0] = this.wsCb;
     this.takeViews();
   }
 
   /** A larger slot for the factor values in the kernel's memory, keeping its first `keep` doubles. */
   private growStore(need: number, keep: number): void {
-    const wasm = this.wasm!;
-    const length = Math.max(need, Math.ceil(this.wsStoreLength * 1.5));
-    const old = this.wsStore;
-    this.wsStore = wasm.reserve(8 * length);
-    this.wsStoreLength = length;
-    wasm.f64(this.wsStore, keep).set(wasm.f64(old, keep));
+    [this.wsStore, this.wsStoreLength] = this.enlarge(this.wsStore, this.wsStoreLength, need, keep, 8);
     this.takeViews();
   }
 
   /** A larger slot for the index lists in the kernel's memory, keeping its first `keep` entries. */
   private growUnknowns(need: number, keep: number): void {
-    const wasm = this.wasm!;
-    const length = Math.max(need, Math.ceil(this.wsUnknownsLength * 1.5));
-    const old = this.wsUnknowns;
-    this.wsUnknowns = wasm.reserve(4 * length);
-    this.wsUnknownsLength = length;
-    wasm.i32(this.wsUnknowns, keep).set(wasm.i32(old, keep));
+    [this.wsUnknowns, this.wsUnknownsLength] = this.enlarge(this.wsUnknowns, this.wsUnknownsLength, need, keep, 4);
     this.takeViews();
   }
 
   /** A larger delay stack in the kernel's memory, keeping its first `keep` entries. */
   private growDelayStack(need: number, keep: number): void {
-    const wasm = this.wasm!;
-    const length = Math.max(need, Math.ceil(this.wsDelayLength * 1.5));
-    const old = this.wsDelay;
-    this.wsDelay = wasm.reserve(4 * length);
-    this.wsDelayLength = length;
-    wasm.i32(this.wsDelay, keep).set(wasm.i32(old, keep));
-    wasm.i32(this.wsPlan + 4 * T_DELAY_STACK, 1)[0] = this.wsDelay;
+    [this.wsDelay, this.wsDelayLength] = this.enlarge(this.wsDelay, this.wsDelayLength, need, keep, 4);
+    this.wasm!.i32(this.wsPlan + 4 * T_DELAY_STACK, 1)[0] = this.wsDelay;
     this.takeViews();
   }
 
