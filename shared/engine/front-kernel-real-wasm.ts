@@ -2,25 +2,13 @@
  * The real WebAssembly front kernel: factorFrontSymmetric of dense-real.ts compiled from
  * wasm/front-kernel-real.ts (AssemblyScript, 128-bit SIMD) by scripts/build-wasm.mjs, for
  * the mouth Schur complement (mouth-schur.ts). The TypeScript kernel stays the reference:
- * tests/engine/mouth-schur.test.ts compares the two. Loaded like front-kernel-wasm.ts
- * (bytes from a generated module, no Node APIs); each instance has its own memory and the
- * caller's buffers live in it.
+ * tests/engine/mouth-schur.test.ts compares the two. Loaded through wasm-arena.ts, like
+ * front-kernel-wasm.ts; each instance has its own memory and the caller's buffers live in it.
  */
 import { REAL_FRONT_KERNEL_WASM_BASE64 } from './front-kernel-real-wasm-bytes';
+import { compileWasm, WasmArena, type ArenaExports } from './wasm-arena';
 
-interface WasmMemory {
-  readonly buffer: ArrayBuffer;
-  grow(pages: number): number;
-}
-interface WasmApi {
-  Module: new (bytes: Uint8Array) => object;
-  Instance: new (module: object, imports: object) => { exports: unknown };
-}
-const wasmApi = (globalThis as { WebAssembly?: WasmApi }).WebAssembly;
-
-interface RealKernelExports {
-  memory: WasmMemory;
-  heapBase(): number;
+interface RealKernelExports extends ArenaExports {
   factorFront(f: number, m: number, kFs: number, threshold: number, rowList: number, colList: number, save: number, nb: number): number;
   extendAdd(f: number, m: number, cb: number, mc: number, target: number, runs: number, nRuns: number): void;
   copyLowerSymmetric(dst: number, src: number, stride: number, mc: number): void;
@@ -32,48 +20,14 @@ let compiled: object | null | undefined;
 /** The compiled module, or null where WebAssembly or its SIMD instructions are missing. */
 function realKernelModule(): object | null {
   if (compiled !== undefined) return compiled;
-  if (!wasmApi) return (compiled = null);
-  try {
-    const text = atob(REAL_FRONT_KERNEL_WASM_BASE64);
-    compiled = new wasmApi.Module(Uint8Array.from(text, (c) => c.charCodeAt(0)));
-  } catch {
-    compiled = null;
-  }
-  return compiled;
+  return (compiled = compileWasm(REAL_FRONT_KERNEL_WASM_BASE64));
 }
 
-const PAGE = 65536;
-
 /** One instance of the real kernel with its linear memory; null where it cannot run. */
-export class WasmRealFrontKernel {
-  private readonly exports: RealKernelExports;
-  private top: number;
-
-  private constructor(module: object, api: WasmApi) {
-    this.exports = new api.Instance(module, {}).exports as RealKernelExports;
-    this.top = this.exports.heapBase();
-  }
-
+export class WasmRealFrontKernel extends WasmArena<RealKernelExports> {
   static create(): WasmRealFrontKernel | null {
     const module = realKernelModule();
-    return module && wasmApi ? new WasmRealFrontKernel(module, wasmApi) : null;
-  }
-
-  /** Reserves `bytes` (16-byte aligned) and returns the byte offset; growing detaches every earlier view. */
-  reserve(bytes: number): number {
-    const at = this.top;
-    this.top = (at + bytes + 15) & ~15;
-    const memory = this.exports.memory;
-    if (this.top > memory.buffer.byteLength) memory.grow(Math.ceil((this.top - memory.buffer.byteLength) / PAGE));
-    return at;
-  }
-
-  f64(offset: number, length: number): Float64Array {
-    return new Float64Array(this.exports.memory.buffer, offset, length);
-  }
-
-  i32(offset: number, length: number): Int32Array {
-    return new Int32Array(this.exports.memory.buffer, offset, length);
+    return module ? new WasmRealFrontKernel(module) : null;
   }
 
   /** factorFrontSymmetric (dense-real.ts) on the front at byte offset f; the other pointers are byte offsets too. */

@@ -11,22 +11,9 @@
  * (views from f64()/i32()), so the kernel works on them without copies.
  */
 import { FRONT_KERNEL_WASM_BASE64 } from './front-kernel-wasm-bytes';
+import { compileWasm, WasmArena, type ArenaExports } from './wasm-arena';
 
-// The few WebAssembly JS API members used here, typed locally: the server's TypeScript
-// library set (ES2023 + Node types) does not declare the WebAssembly namespace's classes.
-interface WasmMemory {
-  readonly buffer: ArrayBuffer;
-  grow(pages: number): number;
-}
-interface WasmApi {
-  Module: new (bytes: Uint8Array) => object;
-  Instance: new (module: object, imports: object) => { exports: unknown };
-}
-const wasmApi = (globalThis as { WebAssembly?: WasmApi }).WebAssembly;
-
-interface FrontKernelExports {
-  memory: WasmMemory;
-  heapBase(): number;
+interface FrontKernelExports extends ArenaExports {
   factorFront(f: number, m: number, kFs: number, threshold: number, rowList: number, colList: number, save: number, pack: number, nb: number): number;
   copyColumns(dst: number, src: number, rowBytes: number, cols: number, srcStride: number): void;
   front(
@@ -52,16 +39,7 @@ let compiled: object | null | undefined;
 /** The compiled module, or null where WebAssembly or its SIMD instructions are missing. */
 function frontKernelModule(): object | null {
   if (compiled !== undefined) return compiled;
-  if (!wasmApi) return (compiled = null);
-  try {
-    const text = atob(FRONT_KERNEL_WASM_BASE64);
-    const bytes = new Uint8Array(text.length);
-    for (let q = 0; q < text.length; q++) bytes[q] = text.charCodeAt(q);
-    compiled = new wasmApi.Module(bytes);
-  } catch {
-    compiled = null;
-  }
-  return compiled;
+  return (compiled = compileWasm(FRONT_KERNEL_WASM_BASE64));
 }
 
 /** True when this runtime can run the WebAssembly kernel (else the TypeScript kernel is used). */
@@ -69,37 +47,11 @@ export function wasmKernelAvailable(): boolean {
   return frontKernelModule() !== null;
 }
 
-const PAGE = 65536;
-
-export class WasmFrontKernel {
-  private readonly exports: FrontKernelExports;
-  private top: number;
-
+export class WasmFrontKernel extends WasmArena<FrontKernelExports> {
   constructor() {
     const module = frontKernelModule();
-    if (!module || !wasmApi) throw new Error('WasmFrontKernel: WebAssembly with SIMD is not available in this runtime');
-    this.exports = new wasmApi.Instance(module, {}).exports as FrontKernelExports;
-    this.top = this.exports.heapBase();
-  }
-
-  /**
-   * Reserves `bytes` of linear memory (16-byte aligned) and returns its byte offset.
-   * Growing the memory detaches every view handed out before: take them again.
-   */
-  reserve(bytes: number): number {
-    const at = this.top;
-    this.top = (at + bytes + 15) & ~15;
-    const memory = this.exports.memory;
-    if (this.top > memory.buffer.byteLength) memory.grow(Math.ceil((this.top - memory.buffer.byteLength) / PAGE));
-    return at;
-  }
-
-  f64(offset: number, length: number): Float64Array {
-    return new Float64Array(this.exports.memory.buffer, offset, length);
-  }
-
-  i32(offset: number, length: number): Int32Array {
-    return new Int32Array(this.exports.memory.buffer, offset, length);
+    if (!module) throw new Error('WasmFrontKernel: WebAssembly with SIMD is not available in this runtime');
+    super(module);
   }
 
   /**

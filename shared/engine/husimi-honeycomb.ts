@@ -25,7 +25,16 @@
  */
 import type { CavityLattice } from './lattice';
 import { landauGauge } from './gauge';
-import { distributionPeaks, type HusimiMap, type HusimiOptions, type HusimiPeak } from './husimi-map';
+import {
+  addSite,
+  distributionPeaks,
+  husimiDirections,
+  husimiSampleGrid,
+  husimiWidths,
+  type HusimiMap,
+  type HusimiOptions,
+  type HusimiPeak,
+} from './husimi-map';
 
 const SQ3 = Math.sqrt(3);
 /** A → B nearest-neighbour vectors (units of ℓ). */
@@ -235,10 +244,7 @@ export function honeycombHusimiMap(lattice: CavityLattice, length: number, psi: 
   const diracEnergy = e0 + 3 * t2;
   const cutoff = options.diracCutoff ?? 0.01;
   if (!(cutoff > 0 && cutoff < 1)) throw new RangeError(`husimi: diracCutoff must lie in (0, 1), got ${cutoff}`);
-  const nDir = options.directions ?? 48;
-  if (!Number.isInteger(nDir) || nDir < 4 || nDir > 720) throw new RangeError(`husimi: directions must be an integer from 4 to 720, got ${nDir}`);
-  const threshold = options.peakThreshold ?? 0.3;
-  if (!(threshold > 0 && threshold <= 1)) throw new RangeError(`husimi: peakThreshold must lie in (0, 1], got ${threshold}`);
+  const { nDir, threshold } = husimiDirections(options);
   const gauge = options.gauge ?? landauGauge(lattice.flux);
   const l = length;
   const dxl = SQ3 / 2;
@@ -280,65 +286,31 @@ export function honeycombHusimiMap(lattice: CavityLattice, length: number, psi: 
       `husimi: E = ${energy} meV lies within ${cutoff}·t of the Dirac energy (or in the gap, or beyond the van Hove energy) on every atom, so no direction of motion is defined`,
     );
   const meanK = qSum / qCount / l;
-  const sigmaNm = options.sigmaNm ?? Math.PI / meanK;
-  if (!(sigmaNm > 0) || !Number.isFinite(sigmaNm)) throw new RangeError(`husimi: sigmaNm must be a positive number of nm, got ${sigmaNm}`);
-  const gridNm = options.gridNm ?? sigmaNm;
-  if (!(gridNm > 0) || !Number.isFinite(gridNm)) throw new RangeError(`husimi: gridNm must be a positive number of nm, got ${gridNm}`);
+  const { sigmaNm, gridNm } = husimiWidths(options, meanK);
 
   // Sample points (units of ℓ): a grid centred on the atoms' bounding box, kept where the nearest atom of the infinite lattice is in the cavity.
-  let xmin = Infinity,
-    xmax = -Infinity,
-    ymin = Infinity,
-    ymax = -Infinity;
-  for (let s = 0; s < n; s++) {
-    const x = lattice.positions.x[s] / l;
-    const y = lattice.positions.y[s] / l;
-    xmin = Math.min(xmin, x);
-    xmax = Math.max(xmax, x);
-    ymin = Math.min(ymin, y);
-    ymax = Math.max(ymax, y);
-  }
-  const g = gridNm / l;
-  const cols = Math.floor((xmax - xmin) / g) + 1;
-  const rows = Math.floor((ymax - ymin) / g) + 1;
-  const maxPoints = options.maxPoints ?? 4000;
-  if (cols * rows > 4 * maxPoints)
-    throw new RangeError(`husimi: a grid of ${gridNm} nm gives about ${cols * rows} sample points; use a coarser grid (at most ${maxPoints} points)`);
-  const xs: number[] = [];
-  const ys: number[] = [];
-  const near: number[] = [];
-  const cx0 = xmin + (xmax - xmin - (cols - 1) * g) / 2;
-  const cy0 = ymin + (ymax - ymin - (rows - 1) * g) / 2;
   const yOf = (i: number, j: number) => j * dyl + (odd(i, j) ? 0.5 : 0);
-  for (let r = 0; r < rows; r++) {
-    for (let c = 0; c < cols; c++) {
-      const x = cx0 + c * g;
-      const y = cy0 + r * g;
-      const i0 = Math.round(x / dxl);
-      const j0 = Math.round(y / dyl);
-      let best = Infinity;
-      let bi = 0,
-        bj = 0;
-      for (let i = i0 - 2; i <= i0 + 2; i++)
-        for (let j = j0 - 2; j <= j0 + 2; j++) {
-          const d2 = (i * dxl - x) ** 2 + (yOf(i, j) - y) ** 2;
-          if (d2 < best) {
-            best = d2;
-            bi = i;
-            bj = j;
-          }
+  const atomX = Float64Array.from(lattice.positions.x, (v) => v / l);
+  const atomY = Float64Array.from(lattice.positions.y, (v) => v / l);
+  const { xs, ys, near, pointsNm } = husimiSampleGrid(atomX, atomY, l, gridNm, options.maxPoints ?? 4000, (x, y) => {
+    const i0 = Math.round(x / dxl);
+    const j0 = Math.round(y / dyl);
+    let best = Infinity;
+    let bi = 0,
+      bj = 0;
+    for (let i = i0 - 2; i <= i0 + 2; i++)
+      for (let j = j0 - 2; j <= j0 + 2; j++) {
+        const d2 = (i * dxl - x) ** 2 + (yOf(i, j) - y) ** 2;
+        if (d2 < best) {
+          best = d2;
+          bi = i;
+          bj = j;
         }
-      if (bi < 0 || bj < 0 || bi >= lattice.nx || bj >= lattice.ny) continue;
-      const site = lattice.siteIndex[bi * lattice.ny + bj];
-      if (site < 0) continue;
-      xs.push(x);
-      ys.push(y);
-      near.push(site);
-    }
-  }
+      }
+    if (bi < 0 || bj < 0 || bi >= lattice.nx || bj >= lattice.ny) return -1;
+    return lattice.siteIndex[bi * lattice.ny + bj];
+  });
   const points = xs.length;
-  if (points > maxPoints)
-    throw new RangeError(`husimi: a grid of ${gridNm} nm gives ${points} sample points; use a coarser grid (at most ${maxPoints} points)`);
 
   const angles = Float64Array.from({ length: nDir }, (_, d) => (2 * Math.PI * d) / nDir);
   const cosA = angles.map(Math.cos);
@@ -436,22 +408,7 @@ export function honeycombHusimiMap(lattice: CavityLattice, length: number, psi: 
         const d2 = (x - x0) ** 2 + (y - y0) ** 2;
         if (d2 > reach * reach) continue;
         const gw = Math.exp(-d2 / (4 * sl * sl));
-        const lam = gauge.lineIntegral(x0, y0, x, y);
-        const cl = gw * Math.cos(lam);
-        const sn = -gw * Math.sin(lam);
-        const wr = cl * psi[2 * s] - sn * psi[2 * s + 1];
-        const wi = cl * psi[2 * s + 1] + sn * psi[2 * s];
-        const acc = odd(i, j) ? accB : accA;
-        for (let vd = 0; vd < 2 * nDir; vd++) {
-          const xr = ex[2 * (vd * nc + c)];
-          const xi = ex[2 * (vd * nc + c) + 1];
-          const yr = ey[2 * (vd * nr + r)];
-          const yi = ey[2 * (vd * nr + r) + 1];
-          const pr = xr * yr - xi * yi;
-          const pi = xr * yi + xi * yr;
-          acc[2 * vd] += wr * pr - wi * pi;
-          acc[2 * vd + 1] += wr * pi + wi * pr;
-        }
+        addSite(odd(i, j) ? accB : accA, ex, ey, nc, nr, c, r, 2 * nDir, gw, gauge.lineIntegral(x0, y0, x, y), psi, s);
       }
     }
     const row = p * nDir;
@@ -487,11 +444,6 @@ export function honeycombHusimiMap(lattice: CavityLattice, length: number, psi: 
     for (const peak of distributionPeaks(distribution.subarray(row, row + nDir), threshold)) peaks.push({ point: p, ...peak });
   }
   options.onProgress?.(1);
-  const pointsNm = new Float64Array(2 * points);
-  for (let p = 0; p < points; p++) {
-    pointsNm[2 * p] = xs[p] * l;
-    pointsNm[2 * p + 1] = ys[p] * l;
-  }
   const names = ['K', 'K′'] as const;
   return {
     energy,

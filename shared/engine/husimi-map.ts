@@ -102,10 +102,7 @@ export function husimiMap(lattice: CavityLattice, spacing: number, psi: Float64A
   if (!Number.isFinite(energy)) throw new RangeError(`husimi: energy must be a finite number of meV, got ${energy}`);
   const t = lattice.hopping;
   const a = spacing;
-  const nDir = options.directions ?? 48;
-  if (!Number.isInteger(nDir) || nDir < 4 || nDir > 720) throw new RangeError(`husimi: directions must be an integer from 4 to 720, got ${nDir}`);
-  const threshold = options.peakThreshold ?? 0.3;
-  if (!(threshold > 0 && threshold <= 1)) throw new RangeError(`husimi: peakThreshold must lie in (0, 1], got ${threshold}`);
+  const { nDir, threshold } = husimiDirections(options);
   const gauge = options.gauge ?? landauGauge(lattice.flux);
 
   let vSum = 0;
@@ -119,51 +116,21 @@ export function husimiMap(lattice: CavityLattice, spacing: number, psi: Float64A
   }
   if (vCount === 0) throw new RangeError(`husimi: E = ${energy} meV lies below the potential on every site, so no direction of motion is allowed`);
   const meanK = latticeWavenumber(energy - vSum / vCount, t, 1, 0) / a;
-  const sigmaNm = options.sigmaNm ?? Math.PI / meanK;
-  if (!(sigmaNm > 0) || !Number.isFinite(sigmaNm)) throw new RangeError(`husimi: sigmaNm must be a positive number of nm, got ${sigmaNm}`);
-  const gridNm = options.gridNm ?? sigmaNm;
-  if (!(gridNm > 0) || !Number.isFinite(gridNm)) throw new RangeError(`husimi: gridNm must be a positive number of nm, got ${gridNm}`);
+  const { sigmaNm, gridNm } = husimiWidths(options, meanK);
 
   // Sample points (lattice units): a grid centred on the cavity's bounding box, kept where the nearest site is in the cavity.
-  const { i: si, j: sj } = lattice.sites;
-  let imin = Infinity,
-    imax = -Infinity,
-    jmin = Infinity,
-    jmax = -Infinity;
-  for (let s = 0; s < n; s++) {
-    imin = Math.min(imin, si[s]);
-    imax = Math.max(imax, si[s]);
-    jmin = Math.min(jmin, sj[s]);
-    jmax = Math.max(jmax, sj[s]);
-  }
-  const g = gridNm / a;
-  const cols = Math.floor((imax - imin) / g) + 1;
-  const rows = Math.floor((jmax - jmin) / g) + 1;
-  const maxPoints = options.maxPoints ?? 4000;
-  if (cols * rows > 4 * maxPoints)
-    throw new RangeError(`husimi: a grid of ${gridNm} nm gives about ${cols * rows} sample points; use a coarser grid (at most ${maxPoints} points)`);
-  const i0s: number[] = [];
-  const j0s: number[] = [];
-  const near: number[] = [];
-  const ci0 = imin + (imax - imin - (cols - 1) * g) / 2;
-  const cj0 = jmin + (jmax - jmin - (rows - 1) * g) / 2;
-  for (let r = 0; r < rows; r++) {
-    for (let c = 0; c < cols; c++) {
-      const x = ci0 + c * g;
-      const y = cj0 + r * g;
-      const ri = Math.round(x);
-      const rj = Math.round(y);
-      if (ri < 0 || rj < 0 || ri >= lattice.nx || rj >= lattice.ny) continue;
-      const site = lattice.siteIndex[ri * lattice.ny + rj];
-      if (site < 0) continue;
-      i0s.push(x);
-      j0s.push(y);
-      near.push(site);
-    }
-  }
+  const {
+    xs: i0s,
+    ys: j0s,
+    near,
+    pointsNm,
+  } = husimiSampleGrid(lattice.sites.i, lattice.sites.j, a, gridNm, options.maxPoints ?? 4000, (x, y) => {
+    const ri = Math.round(x);
+    const rj = Math.round(y);
+    if (ri < 0 || rj < 0 || ri >= lattice.nx || rj >= lattice.ny) return -1;
+    return lattice.siteIndex[ri * lattice.ny + rj];
+  });
   const points = i0s.length;
-  if (points > maxPoints)
-    throw new RangeError(`husimi: a grid of ${gridNm} nm gives ${points} sample points; use a coarser grid (at most ${maxPoints} points)`);
 
   const angles = Float64Array.from({ length: nDir }, (_, d) => (2 * Math.PI * d) / nDir);
   const cosA = angles.map(Math.cos);
@@ -223,21 +190,7 @@ export function husimiMap(lattice: CavityLattice, spacing: number, psi: Float64A
         if (d2 > reach * reach) continue;
         const gw = Math.exp(-d2 / (4 * sl * sl));
         // w = g·e^{−iΛ(r0→r)}·ψ_s  (conj of the coherent state's gauge phase)
-        const lam = gauge.lineIntegral(x0, y0, i, j);
-        const cl = gw * Math.cos(lam);
-        const sn = -gw * Math.sin(lam);
-        const wr = cl * psi[2 * s] - sn * psi[2 * s + 1];
-        const wi = cl * psi[2 * s + 1] + sn * psi[2 * s];
-        for (let d = 0; d < nDir; d++) {
-          const xr = ex[2 * (d * nc + c)];
-          const xi = ex[2 * (d * nc + c) + 1];
-          const yr = ey[2 * (d * nr + r)];
-          const yi = ey[2 * (d * nr + r) + 1];
-          const pr = xr * yr - xi * yi;
-          const pi = xr * yi + xi * yr;
-          acc[2 * d] += wr * pr - wi * pi;
-          acc[2 * d + 1] += wr * pi + wi * pr;
-        }
+        addSite(acc, ex, ey, nc, nr, c, r, nDir, gw, gauge.lineIntegral(x0, y0, i, j), psi, s);
       }
     }
     let vx = 0;
@@ -254,11 +207,6 @@ export function husimiMap(lattice: CavityLattice, spacing: number, psi: Float64A
     for (const peak of distributionPeaks(distribution.subarray(row, row + nDir), threshold)) peaks.push({ point: p, ...peak });
   }
   options.onProgress?.(1);
-  const points2 = new Float64Array(2 * points);
-  for (let p = 0; p < points; p++) {
-    points2[2 * p] = i0s[p] * a;
-    points2[2 * p + 1] = j0s[p] * a;
-  }
   return {
     energy,
     sigmaNm,
@@ -266,13 +214,122 @@ export function husimiMap(lattice: CavityLattice, spacing: number, psi: Float64A
     angles,
     meanWavenumber: meanK,
     angularResolution: 1 / (2 * sigmaNm * meanK),
-    points: points2,
+    points: pointsNm,
     kineticEnergy,
     distribution,
     vectorSum,
     peaks,
     peakThreshold: threshold,
   };
+}
+
+/** Directions and peak threshold of the options, checked; shared by both lattices' maps. */
+export function husimiDirections(options: HusimiOptions): { nDir: number; threshold: number } {
+  const nDir = options.directions ?? 48;
+  if (!Number.isInteger(nDir) || nDir < 4 || nDir > 720) throw new RangeError(`husimi: directions must be an integer from 4 to 720, got ${nDir}`);
+  const threshold = options.peakThreshold ?? 0.3;
+  if (!(threshold > 0 && threshold <= 1)) throw new RangeError(`husimi: peakThreshold must lie in (0, 1], got ${threshold}`);
+  return { nDir, threshold };
+}
+
+/** σ and the grid spacing (nm) of the options, checked; σ defaults to half the wavelength at wavenumber meanK (1/nm). */
+export function husimiWidths(options: HusimiOptions, meanK: number): { sigmaNm: number; gridNm: number } {
+  const sigmaNm = options.sigmaNm ?? Math.PI / meanK;
+  if (!(sigmaNm > 0) || !Number.isFinite(sigmaNm)) throw new RangeError(`husimi: sigmaNm must be a positive number of nm, got ${sigmaNm}`);
+  const gridNm = options.gridNm ?? sigmaNm;
+  if (!(gridNm > 0) || !Number.isFinite(gridNm)) throw new RangeError(`husimi: gridNm must be a positive number of nm, got ${gridNm}`);
+  return { sigmaNm, gridNm };
+}
+
+/**
+ * Sample points of a Husimi map: a square grid of gridNm, in units of `unit` nm like the site
+ * coordinates (x[s], y[s]), centred on their bounding box and kept where nearest(x, y) names a
+ * cavity site (≥ 0). Returns the points in those units, their nearest sites, and the points in
+ * nm, interleaved (x, y).
+ */
+export function husimiSampleGrid(
+  x: ArrayLike<number>,
+  y: ArrayLike<number>,
+  unit: number,
+  gridNm: number,
+  maxPoints: number,
+  nearest: (x: number, y: number) => number,
+): { xs: number[]; ys: number[]; near: number[]; pointsNm: Float64Array } {
+  let xmin = Infinity,
+    xmax = -Infinity,
+    ymin = Infinity,
+    ymax = -Infinity;
+  for (let s = 0; s < x.length; s++) {
+    xmin = Math.min(xmin, x[s]);
+    xmax = Math.max(xmax, x[s]);
+    ymin = Math.min(ymin, y[s]);
+    ymax = Math.max(ymax, y[s]);
+  }
+  const g = gridNm / unit;
+  const cols = Math.floor((xmax - xmin) / g) + 1;
+  const rows = Math.floor((ymax - ymin) / g) + 1;
+  if (cols * rows > 4 * maxPoints)
+    throw new RangeError(`husimi: a grid of ${gridNm} nm gives about ${cols * rows} sample points; use a coarser grid (at most ${maxPoints} points)`);
+  const xs: number[] = [];
+  const ys: number[] = [];
+  const near: number[] = [];
+  const cx0 = xmin + (xmax - xmin - (cols - 1) * g) / 2;
+  const cy0 = ymin + (ymax - ymin - (rows - 1) * g) / 2;
+  for (let r = 0; r < rows; r++) {
+    for (let c = 0; c < cols; c++) {
+      const px = cx0 + c * g;
+      const py = cy0 + r * g;
+      const site = nearest(px, py);
+      if (site < 0) continue;
+      xs.push(px);
+      ys.push(py);
+      near.push(site);
+    }
+  }
+  const points = xs.length;
+  if (points > maxPoints)
+    throw new RangeError(`husimi: a grid of ${gridNm} nm gives ${points} sample points; use a coarser grid (at most ${maxPoints} points)`);
+  const pointsNm = new Float64Array(2 * points);
+  for (let p = 0; p < points; p++) {
+    pointsNm[2 * p] = xs[p] * unit;
+    pointsNm[2 * p + 1] = ys[p] * unit;
+  }
+  return { xs, ys, near, pointsNm };
+}
+
+/**
+ * Adds one site to the projections: w = gw·e^{−iλ}·ψ_s (the conjugate of the coherent state's
+ * gauge phase λ), then acc[q] += w·ex[q, column c]·ey[q, row r] for q < count (complex,
+ * interleaved; ex has nc columns and ey nr rows per q).
+ */
+export function addSite(
+  acc: Float64Array,
+  ex: Float64Array,
+  ey: Float64Array,
+  nc: number,
+  nr: number,
+  c: number,
+  r: number,
+  count: number,
+  gw: number,
+  lam: number,
+  psi: Float64Array,
+  s: number,
+): void {
+  const cl = gw * Math.cos(lam);
+  const sn = -gw * Math.sin(lam);
+  const wr = cl * psi[2 * s] - sn * psi[2 * s + 1];
+  const wi = cl * psi[2 * s + 1] + sn * psi[2 * s];
+  for (let q = 0; q < count; q++) {
+    const xr = ex[2 * (q * nc + c)];
+    const xi = ex[2 * (q * nc + c) + 1];
+    const yr = ey[2 * (q * nr + r)];
+    const yi = ey[2 * (q * nr + r) + 1];
+    const pr = xr * yr - xi * yi;
+    const pi = xr * yi + xi * yr;
+    acc[2 * q] += wr * pr - wi * pi;
+    acc[2 * q + 1] += wr * pi + wi * pr;
+  }
 }
 
 /**

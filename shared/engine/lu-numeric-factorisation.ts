@@ -210,49 +210,43 @@ export class NumericFactorisation {
     this.takeViews();
   }
 
+  /**
+   * A larger slot of `bytes`-byte entries (4: Int32, 8: Float64) in the kernel's memory for one
+   * at `old` of `length` entries: at least `need`, else 1.5×, with the first `keep` entries copied.
+   * Returns its offset and length; the caller stores them and takes its views again.
+   */
+  private enlarge(old: number, length: number, need: number, keep: number, bytes: 4 | 8): [number, number] {
+    const wasm = this.wasm!;
+    const grown = Math.max(need, Math.ceil(length * 1.5));
+    const at = wasm.reserve(bytes * grown);
+    if (bytes === 8) wasm.f64(at, keep).set(wasm.f64(old, keep));
+    else wasm.i32(at, keep).set(wasm.i32(old, keep));
+    return [at, grown];
+  }
+
   /** A larger contribution-block stack in the kernel's memory, keeping its first `keep` doubles. */
   private growCbStack(need: number, keep: number): void {
-    const wasm = this.wasm!;
-    const length = Math.max(need, Math.ceil(this.wsCbLength * 1.5));
-    const old = this.wsCb;
-    this.wsCb = wasm.reserve(8 * length);
-    this.wsCbLength = length;
-    wasm.f64(this.wsCb, keep).set(wasm.f64(old, keep));
-    wasm.i32(this.wsPlan + 4 * T_CB_STACK, 1)[0] = this.wsCb;
+    [this.wsCb, this.wsCbLength] = this.enlarge(this.wsCb, this.wsCbLength, need, keep, 8);
+    this.wasm!.i32(this.wsPlan + 4 * T_CB_STACK, 1)[0] = this.wsCb;
     this.takeViews();
   }
 
   /** A larger slot for the factor values in the kernel's memory, keeping its first `keep` doubles. */
   private growStore(need: number, keep: number): void {
-    const wasm = this.wasm!;
-    const length = Math.max(need, Math.ceil(this.wsStoreLength * 1.5));
-    const old = this.wsStore;
-    this.wsStore = wasm.reserve(8 * length);
-    this.wsStoreLength = length;
-    wasm.f64(this.wsStore, keep).set(wasm.f64(old, keep));
+    [this.wsStore, this.wsStoreLength] = this.enlarge(this.wsStore, this.wsStoreLength, need, keep, 8);
     this.takeViews();
   }
 
   /** A larger slot for the index lists in the kernel's memory, keeping its first `keep` entries. */
   private growUnknowns(need: number, keep: number): void {
-    const wasm = this.wasm!;
-    const length = Math.max(need, Math.ceil(this.wsUnknownsLength * 1.5));
-    const old = this.wsUnknowns;
-    this.wsUnknowns = wasm.reserve(4 * length);
-    this.wsUnknownsLength = length;
-    wasm.i32(this.wsUnknowns, keep).set(wasm.i32(old, keep));
+    [this.wsUnknowns, this.wsUnknownsLength] = this.enlarge(this.wsUnknowns, this.wsUnknownsLength, need, keep, 4);
     this.takeViews();
   }
 
   /** A larger delay stack in the kernel's memory, keeping its first `keep` entries. */
   private growDelayStack(need: number, keep: number): void {
-    const wasm = this.wasm!;
-    const length = Math.max(need, Math.ceil(this.wsDelayLength * 1.5));
-    const old = this.wsDelay;
-    this.wsDelay = wasm.reserve(4 * length);
-    this.wsDelayLength = length;
-    wasm.i32(this.wsDelay, keep).set(wasm.i32(old, keep));
-    wasm.i32(this.wsPlan + 4 * T_DELAY_STACK, 1)[0] = this.wsDelay;
+    [this.wsDelay, this.wsDelayLength] = this.enlarge(this.wsDelay, this.wsDelayLength, need, keep, 4);
+    this.wasm!.i32(this.wsPlan + 4 * T_DELAY_STACK, 1)[0] = this.wsDelay;
     this.takeViews();
   }
 
@@ -460,16 +454,7 @@ export class NumericFactorisation {
           // Runs of consecutive parent positions (separators are labelled contiguously), so
           // each column is added in a few contiguous stretches: [child offset, parent offset, length]·2.
           const runs = this.runs;
-          let nRuns = 0;
-          for (let ii = 0; ii < mc;) {
-            let len = 1;
-            while (ii + len < mc && map[ii + len] === map[ii] + len) len++;
-            runs[3 * nRuns] = 2 * ii;
-            runs[3 * nRuns + 1] = 2 * map[ii];
-            runs[3 * nRuns + 2] = 2 * len;
-            nRuns++;
-            ii += len;
-          }
+          const nRuns = contiguousRuns(map, mc, runs, 2);
           let src = this.cbStart[c];
           for (let jj = 0; jj < mc; jj++) {
             const dst = 2 * map[jj] * m;
@@ -598,6 +583,24 @@ export class NumericFactorisation {
     this.rowList = new Int32Array(m);
     this.colList = new Int32Array(m);
   }
+}
+
+/**
+ * Splits target[0..mc) into stretches of consecutive values: runs[3g..3g+2] = [first index,
+ * its target, length], each times `scale` (2 for interleaved complex entries). Returns the count.
+ */
+export function contiguousRuns(target: Int32Array, mc: number, runs: Int32Array, scale: number): number {
+  let nRuns = 0;
+  for (let ii = 0; ii < mc;) {
+    let len = 1;
+    while (ii + len < mc && target[ii + len] === target[ii] + len) len++;
+    runs[3 * nRuns] = scale * ii;
+    runs[3 * nRuns + 1] = scale * target[ii];
+    runs[3 * nRuns + 2] = scale * len;
+    nRuns++;
+    ii += len;
+  }
+  return nRuns;
 }
 
 const NO_VALUES = new Float64Array(0);

@@ -22,6 +22,7 @@ import { denseLu, denseLuSolve } from './dense-solve';
 import { copyLowerSymmetric, factorFrontSymmetric } from './dense-real';
 import { WasmRealFrontKernel } from './front-kernel-real-wasm';
 import type { EffectiveHamiltonian } from './effective-hamiltonian';
+import { contiguousRuns } from './lu-numeric-factorisation';
 import { permutationParity, wrapAngle } from './lu-solves';
 import { analyseFronts, type SymbolicFronts } from './lu-symbolic-analysis';
 import { minimumDegreeOrder } from './minimum-degree';
@@ -200,16 +201,7 @@ class RealFronts {
    */
   extendAdd(m: number, start: number, mc: number): void {
     const { target, runs } = this;
-    let nRuns = 0;
-    for (let ii = 0; ii < mc;) {
-      let len = 1;
-      while (ii + len < mc && target[ii + len] === target[ii] + len) len++;
-      runs[3 * nRuns] = ii;
-      runs[3 * nRuns + 1] = target[ii];
-      runs[3 * nRuns + 2] = len;
-      nRuns++;
-      ii += len;
-    }
+    const nRuns = contiguousRuns(target, mc, runs, 1);
     if (this.wasm) return this.wasm.extendAdd(this.at.front, m, this.at.stack + 8 * start, mc, this.at.target, this.at.runs, nRuns);
     const { front, stack } = this;
     let src = start;

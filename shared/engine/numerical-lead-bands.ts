@@ -15,7 +15,7 @@
  * there: the maximum of the lower and the minimum of the upper are edges, however narrow.
  */
 import { hermitianEigen } from './hermitian-eigen';
-import { forwardHopping, type LeadCellBlocks } from './numerical-lead-modes';
+import { blochHamiltonian, forwardHopping, type LeadCellBlocks } from './numerical-lead-modes';
 
 /**
  * The k-dependence of one cell: H(k) built from the cached forward block, and the slope,
@@ -41,24 +41,7 @@ class BlochCell {
   }
 
   hamiltonian(k: number): Float64Array {
-    const n = this.n;
-    const h1f = this.h1f;
-    const out = new Float64Array(2 * n * n);
-    const c = Math.cos(k);
-    const s = Math.sin(k);
-    for (let i = 0; i < n; i++)
-      for (let j = 0; j < n; j++) {
-        const e = 2 * (i * n + j);
-        const ar = h1f[e];
-        const ai = h1f[e + 1];
-        const d = 2 * (j * n + i);
-        const br = h1f[d];
-        const bi = -h1f[d + 1]; // (H1†)[i,j]
-        // e^{ik}H1 + e^{−ik}H1†
-        out[e] = this.h0[e] + (c * ar - s * ai) + (c * br + s * bi);
-        out[e + 1] = this.h0[e + 1] + (c * ai + s * ar) + (c * bi - s * br);
-      }
-    return out;
+    return blochHamiltonian(this.n, this.h0, this.h1f, Math.cos(k), Math.sin(k));
   }
 
   decompose(k: number): Decomposition {

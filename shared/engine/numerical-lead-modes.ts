@@ -42,6 +42,27 @@ export interface LeadCellBlocks {
 const forward = new WeakMap<Float64Array, Float64Array>();
 
 /**
+ * H0 + λ·H1 + λ*·H1† for a unit λ = c + i·s (e^{ik}: the cell's Bloch Hamiltonian at k), with H1
+ * the forward hopping (forwardHopping); complex n×n, interleaved, row-major.
+ */
+export function blochHamiltonian(n: number, h0: Float64Array, h1: Float64Array, c: number, s: number): Float64Array {
+  const out = new Float64Array(2 * n * n);
+  for (let i = 0; i < n; i++)
+    for (let j = 0; j < n; j++) {
+      const e = 2 * (i * n + j);
+      const ar = h1[e];
+      const ai = h1[e + 1];
+      // (H1†)[i,j] = conj(H1[j,i])
+      const d = 2 * (j * n + i);
+      const br = h1[d];
+      const bi = -h1[d + 1];
+      out[e] = h0[e] + (c * ar - s * ai) + (c * br + s * bi);
+      out[e + 1] = h0[e + 1] + (c * ai + s * ar) + (c * bi - s * br);
+    }
+  return out;
+}
+
+/**
  * H[cell k, cell k+1] = H1† (rows in the cell nearer the cavity): the block the
  * formulas of this module call H1 (the mode equation (H0 − z + λ·H1† + λ⁻¹·H1)φ = 0 in
  * the cell's own H1). Cached per H1 array. Cost O(n²) once.
@@ -207,19 +228,7 @@ export function realModes(cell: LeadCellBlocks, energy: number, pencil = leadPen
     const norm = Math.hypot(lr, li);
     lr /= norm;
     li /= norm;
-    const mm = new Float64Array(2 * n * n);
-    for (let i = 0; i < n; i++)
-      for (let j = 0; j < n; j++) {
-        const e = 2 * (i * n + j);
-        const h1r = h1[e];
-        const h1i = h1[e + 1];
-        // (H1†)[i,j] = conj(H1[j,i])
-        const d = 2 * (j * n + i);
-        const hdr = h1[d];
-        const hdi = -h1[d + 1];
-        mm[e] = cell.h0[e] + (lr * h1r - li * h1i) + (lr * hdr + li * hdi);
-        mm[e + 1] = cell.h0[e + 1] + (lr * h1i + li * h1r) + (lr * hdi - li * hdr);
-      }
+    const mm = blochHamiltonian(n, cell.h0, h1, lr, li);
     for (let i = 0; i < n; i++) mm[2 * (i * n + i)] -= energy;
     const eig = hermitianEigen(n, mm);
     const cols = Array.from({ length: n }, (_, k) => k)

@@ -8,33 +8,19 @@ import { closedCavityEigenvalues } from '../../shared/engine/closed-cavity';
 import { landauGauge, latticeInGauge, symmetricGauge } from '../../shared/engine/gauge';
 import { SparseLuPlan } from '../../shared/engine/sparse-lu';
 import { HBAR_MEV_PS } from '../../shared/units/constants';
-import type { CavityModelInput } from '../../shared/model/cavity-model';
+import { irregularCavity } from './irregular-cavity';
 
 const spacing = 5;
 const material = { effectiveMass: 0.067 };
 const maxAbs = (a: ArrayLike<number>) => Array.from(a).reduce((m, x) => Math.max(m, Math.abs(x)), 0);
 
-/** An irregular cavity (rectangle minus a disk, with disorder) and three leads. */
-function irregular(field: number): CavityModelInput {
-  return {
-    name: 'irregular',
-    spacing,
-    material,
-    grid: { nx: 16, ny: 12 },
-    shape: {
-      kind: 'subtract',
-      from: { kind: 'rectangle', x0: 0, y0: 0, width: 80, height: 60 },
-      remove: [{ kind: 'disk', cx: 52, cy: 36, radius: 9 }],
-    },
-    potential: [{ kind: 'disorder', strength: 10, seed: 3 }],
-    field,
-    leads: [
-      { side: 'left', start: 1, width: 5 },
-      { side: 'right', start: 3, width: 4 },
-      { side: 'top', start: 2, width: 6 },
-    ],
-  };
-}
+/** The irregular cavity with three leads. */
+const irregular = (field: number) =>
+  irregularCavity(field, [
+    { side: 'left', start: 1, width: 5 },
+    { side: 'right', start: 3, width: 4 },
+    { side: 'top', start: 2, width: 6 },
+  ]);
 
 describe('probability current of scattering states', () => {
   it('a single open channel of a clean ribbon carries group velocity × density through every cross-section', () => {

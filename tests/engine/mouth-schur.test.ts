@@ -12,30 +12,15 @@ import { mouthOrder, pointFromMouth, type TransmissionPoint } from '../../shared
 import { TransmissionSolver, transmissionSweep } from '../../shared/engine/transmission';
 import type { CavityModelInput } from '../../shared/model/cavity-model';
 import { highQWire } from './high-q-wire';
+import { irregularCavity } from './irregular-cavity';
 
-const material = { effectiveMass: 0.067 };
-
-/** An irregular cavity (rectangle with a hole, disorder) with three leads, one offset. */
-function irregular(field: number): CavityModelInput {
-  return {
-    name: 'irregular',
-    spacing: 5,
-    material,
-    grid: { nx: 16, ny: 12 },
-    shape: {
-      kind: 'subtract',
-      from: { kind: 'rectangle', x0: 0, y0: 0, width: 80, height: 60 },
-      remove: [{ kind: 'disk', cx: 52, cy: 36, radius: 9 }],
-    },
-    potential: [{ kind: 'disorder', strength: 10, seed: 3 }],
-    field,
-    leads: [
-      { side: 'left', start: 2, width: 5 },
-      { side: 'right', start: 4, width: 4 },
-      { side: 'top', start: 3, width: 6, offset: 1.5 },
-    ],
-  };
-}
+/** The irregular cavity with three leads, one offset. */
+const irregular = (field: number) =>
+  irregularCavity(field, [
+    { side: 'left', start: 2, width: 5 },
+    { side: 'right', start: 4, width: 4 },
+    { side: 'top', start: 3, width: 6, offset: 1.5 },
+  ]);
 
 const wire = highQWire;
 

@@ -4,30 +4,13 @@ import { TransmissionSolver, transmissionSweep } from '../../shared/engine/trans
 import { WorkCancelled } from '../../shared/engine/operator';
 import { findPoles } from '../../shared/engine/poles';
 import type { CavityModelInput } from '../../shared/model/cavity-model';
+import { irregularCavity as irregular } from './irregular-cavity';
 
 const spacing = 5;
 const material = { effectiveMass: 0.067 };
 
 function operator(doc: CavityModelInput): EffectiveHamiltonian {
   return new EffectiveHamiltonian(buildCavitySystem(doc));
-}
-
-/** An irregular cavity (stadium plus a notch) with three or four leads. */
-function irregular(field: number, leads: CavityModelInput['leads']): CavityModelInput {
-  return {
-    name: 'irregular',
-    spacing,
-    material,
-    grid: { nx: 16, ny: 12 },
-    shape: {
-      kind: 'subtract',
-      from: { kind: 'rectangle', x0: 0, y0: 0, width: 80, height: 60 },
-      remove: [{ kind: 'disk', cx: 52, cy: 36, radius: 9 }],
-    },
-    potential: [{ kind: 'disorder', strength: 10, seed: 3 }],
-    field,
-    leads,
-  };
 }
 
 /** Double barrier in a chain: a weakly coupled 1D cavity with narrow resonances. */
