@@ -91,9 +91,9 @@ describe('a field study from the launcher to a saved version', () => {
     const panel = page.locator('[data-test="step-panel"]');
     await panel.waitFor({ timeout: 15_000 });
     await expect.poll(() => panel.locator('[data-test="followed"]').textContent(), { timeout: 15_000 }).toContain('Trajectory 0 at this step');
-    await expect.poll(() => panel.textContent()).toContain('field = 0');
+    await expect.poll(() => panel.textContent()).toContain('field (T) = 0');
     await panel.locator('[data-test="next-step"]').click();
-    await expect.poll(() => panel.textContent(), { timeout: 15_000 }).toContain('field = 0.1');
+    await expect.poll(() => panel.textContent(), { timeout: 15_000 }).toContain('field (T) = 0.1');
     await expect.poll(() => panel.locator('[data-test="followed"]').count(), { timeout: 15_000 }).toBe(1);
     expect(await panel.locator('[data-test="followed"] pw-density-image canvas').count()).toBe(1);
     expect(await panel.locator('pw-density-image canvas').count()).toBeGreaterThan(1);

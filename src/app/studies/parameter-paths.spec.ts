@@ -1,4 +1,4 @@
-import { parameterPaths } from './parameter-paths';
+import { parameterLabel, parameterPaths } from './parameter-paths';
 
 describe('parameterPaths', () => {
   it('lists every number of the document as a dotted path, in document order', () => {
@@ -22,5 +22,13 @@ describe('parameterPaths', () => {
   it('leaves out long per-site arrays and keys that are not plain names', () => {
     const doc = { spacing: 5, mask: Array.from({ length: 100 }, () => 1), 'odd-key': 3 };
     expect(parameterPaths(doc).map((p) => p.path)).toEqual(['spacing']);
+  });
+});
+
+describe('parameterLabel', () => {
+  it('gives the field its unit and leaves paths whose unit depends on the mode bare', () => {
+    expect(parameterLabel('field')).toBe('field (T)');
+    expect(parameterLabel('shape.of.0.radius')).toBe('shape.of.0.radius');
+    expect(parameterLabel('fieldInLeads')).toBe('fieldInLeads');
   });
 });

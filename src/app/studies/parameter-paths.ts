@@ -34,3 +34,12 @@ export function parameterPaths(document: unknown): ParameterPath[] {
   walk(document, '');
   return out;
 }
+
+/**
+ * A parameter path with its unit where the path alone fixes it: the field is in tesla in
+ * every model (docs/physics-model.md, "Units"). Other numbers keep their bare path, since
+ * their unit depends on the model's mode (lengths in nm for electrons, mm for resonators).
+ */
+export function parameterLabel(path: string): string {
+  return path === 'field' ? 'field (T)' : path;
+}

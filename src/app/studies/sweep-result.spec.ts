@@ -68,7 +68,7 @@ describe('SweepResult', () => {
     http.expectOne(stepUrl).flush(sampleStep);
     fixture.detectChanges();
     const panel = host.querySelector('[data-test=step-panel]')!;
-    expect(panel.textContent).toContain('field = 0.5');
+    expect(panel.textContent).toContain('field (T) = 0.5');
     expect(panel.querySelectorAll('pw-density-image')).toHaveLength(2);
     expect(panel.querySelector('[data-pole="0"] figcaption')!.textContent).toContain('E = 3.2');
 

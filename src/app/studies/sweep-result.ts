@@ -1,5 +1,6 @@
 import { ChangeDetectionStrategy, Component, computed, input, signal } from '@angular/core';
 import { stepValueText } from './parameter-values';
+import { parameterLabel } from './parameter-paths';
 import { EnergyPipe } from '../core/format/energy-format';
 import { MatButtonModule } from '@angular/material/button';
 import { MatButtonToggleModule } from '@angular/material/button-toggle';
@@ -36,8 +37,12 @@ export class SweepResult {
   protected readonly lineIndex = signal(0);
   protected readonly openStep = signal<number | null>(null);
 
-  protected readonly parameter = computed(() => this.outcome().parameters[0]?.path ?? 'p');
-  protected readonly second = computed(() => this.outcome().parameters[1]?.path ?? null);
+  /** The varied parameter as shown on axes and captions: its path, with its unit where the path fixes one. */
+  protected readonly parameter = computed(() => parameterLabel(this.outcome().parameters[0]?.path ?? 'p'));
+  protected readonly second = computed(() => {
+    const path = this.outcome().parameters[1]?.path;
+    return path === undefined ? null : parameterLabel(path);
+  });
   protected readonly line = computed(
     () => this.outcome().lines[Math.min(this.lineIndex(), this.outcome().lines.length - 1)] ?? { value: null, trajectories: [], marks: [] },
   );
