@@ -266,8 +266,11 @@ export class EffectiveHamiltonian implements NonlinearOperator {
     const leadOf: number[] = [];
     const channelOf: number[] = [];
     const perLead: number[] = [];
+    // a numerical lead's channels are computed once here and serve both its open list and its columns
+    const numericalColumns = this.system.leads.map((l) => (l.numerical ? l.numerical.channels(energy) : undefined));
     for (let k = 0; k < this.leadCount; k++) {
-      const open = this.openChannels(k, energy);
+      const num = numericalColumns[k];
+      const open = num ? Array.from({ length: num.count }, (_, c) => c + 1) : this.openChannels(k, energy);
       perLead.push(open.length);
       for (const m of open) {
         leadOf.push(k);
@@ -284,7 +287,6 @@ export class EffectiveHamiltonian implements NonlinearOperator {
     }
     const height = onMouth ? rows : this.n;
     const values = new Float64Array(2 * height * count);
-    const numericalColumns = this.system.leads.map((l) => (l.numerical ? l.numerical.channels(energy) : undefined));
     for (let c = 0; c < count; c++) {
       const l = this.system.leads[leadOf[c]];
       const num = numericalColumns[leadOf[c]];
