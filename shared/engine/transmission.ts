@@ -29,6 +29,9 @@ export class TransmissionSolver {
   private spare: SparseLuFactors | undefined;
   /** The Schur-complement path, analysed on first use; null where it does not apply. */
   private schur: MouthSchur | null | undefined;
+  /** Energies tried on the Schur path, and those it left to the direct solve (atBySchur). */
+  private schurTries = 0;
+  private schurMisses = 0;
 
   constructor(
     readonly op: EffectiveHamiltonian,
@@ -119,8 +122,6 @@ export class TransmissionSolver {
     }
     return green ? pointFromMouth(this.op, energy, green.mouth, green.detPhase, withS) : this.at(energy, withS);
   }
-  private schurTries = 0;
-  private schurMisses = 0;
 
   /** Whether atBySchur uses the Schur complement for this operator (analyses it on first call). */
   get schurApplies(): boolean {
