@@ -1,7 +1,10 @@
 /**
  * Timings of the sparse complex LU (shared/engine/sparse-lu.ts) on the matrices the
  * product factorises: rectangles of sites with a left and a right lead whose mouth
- * (a third of the height) carries a dense complex block, values of z − H − Σ.
+ * (a third of the height) carries a dense complex block, values of z − H − Σ. Two kinds:
+ * without a field (H real, Σ complex symmetric: the matrix is complex symmetric and the LU
+ * takes diagonal pivots, sparse-lu.ts) and in a field (Peierls phases on the hoppings and
+ * an unsymmetric mouth block: row pivoting).
  *
  * Run: npx tsx scripts/bench-lu.ts   (one thread; figures in ms unless named otherwise;
  * mflopPerS uses the predicted flops of the analysis, so delayed pivots are not counted)
@@ -15,8 +18,14 @@ import { join } from 'node:path';
 import { cscFromTriplets, cscMultiply, type ComplexCsc } from '../shared/engine/complex-csc';
 import { SparseLuPlan } from '../shared/engine/sparse-lu';
 
-/** A rectangle nx × ny with two side leads; hopping t = 1, z = 1.3 − 0.02i (inside the band, below the axis). */
-export function benchMatrix(nx: number, ny: number): { a: ComplexCsc; sites: { i: Int32Array; j: Int32Array } } {
+/**
+ * A rectangle nx × ny with two side leads; hopping t = 1, z = 1.3 − 0.02i (inside the band,
+ * below the axis). Without `field` the mouth blocks are complex symmetric (Σ of a lead
+ * without a field is: docs/physics-model.md), so the whole matrix is; with it the hoppings
+ * along x carry Peierls phases e^{±2πi·0.02·j} (0.02 flux quanta per plaquette, Landau
+ * gauge) and the mouth blocks are unsymmetric.
+ */
+export function benchMatrix(nx: number, ny: number, field = false): { a: ComplexCsc; sites: { i: Int32Array; j: Int32Array } } {
   let seed = 12345;
   const rnd = (): number => {
     seed = (seed * 16807) % 2147483647;
@@ -46,8 +55,10 @@ export function benchMatrix(nx: number, ny: number): { a: ComplexCsc; sites: { i
       sj[v] = j;
       add(v, v, 4 * t - zr, -zi);
       if (i + 1 < nx) {
-        add(v, id(i + 1, j), -t, 0);
-        add(id(i + 1, j), v, -t, 0);
+        // (E − H)_{v, v+x} = t·e^{iθ}, (E − H)_{v+x, v} = t·e^{−iθ}: Hermitian H, unsymmetric E − H
+        const theta = field ? 2 * Math.PI * 0.02 * j : 0;
+        add(v, id(i + 1, j), -t * Math.cos(theta), -t * Math.sin(theta));
+        add(id(i + 1, j), v, -t * Math.cos(theta), t * Math.sin(theta));
       }
       if (j + 1 < ny) {
         add(v, id(i, j + 1), -t, 0);
@@ -59,7 +70,12 @@ export function benchMatrix(nx: number, ny: number): { a: ComplexCsc; sites: { i
   const j0 = Math.floor((ny - w) / 2);
   for (const i of [0, nx - 1]) {
     for (let p = 0; p < w; p++) {
-      for (let q = 0; q < w; q++) add(id(i, j0 + p), id(i, j0 + q), 0.3 * rnd(), -0.3 * Math.abs(rnd()));
+      for (let q = field ? 0 : p; q < w; q++) {
+        const x = 0.3 * rnd();
+        const y = -0.3 * Math.abs(rnd());
+        add(id(i, j0 + p), id(i, j0 + q), x, y);
+        if (!field && q > p) add(id(i, j0 + q), id(i, j0 + p), x, y);
+      }
     }
   }
   return { a: cscFromTriplets(n, rows, cols, re, im), sites: { i: si, j: sj } };
@@ -141,6 +157,13 @@ export async function benchLu(): Promise<Record<string, number>> {
     out[`lu.${key}.fronts`] = plan.frontCount;
     out[`lu.${key}.largestFront`] = plan.largestFront;
     out[`lu.${key}.relError`] = Math.sqrt(err / nrm);
+    out[`lu.${key}.symmetric`] = factors.symmetric ? 1 : 0;
+    // The same rectangle in a field: unsymmetric, row pivoting.
+    const inField = benchMatrix(side, side, true).a;
+    let fieldFactors = plan.factor(inField.values);
+    out[`lu.${key}.inField.factorMs`] = time(() => {
+      fieldFactors = plan.factor(inField.values, fieldFactors);
+    }, reps);
     if (side === 100) {
       // Right-hand sides as the callers have them: 1 (Newton), 6 (contour probes), 32 (many channels).
       for (const [nrhs, solveReps] of [
@@ -197,14 +220,20 @@ export function referenceAvailable(): boolean {
  */
 export async function benchLuReference(rounds = 3, sides = [50, 100, 200]): Promise<Record<string, number | string>> {
   const out: Record<string, number | string> = {};
+  for (const field of [false, true]) Object.assign(out, await luAgainstReference(rounds, sides, field));
+  return out;
+}
+
+async function luAgainstReference(rounds: number, sides: number[], field: boolean): Promise<Record<string, number | string>> {
+  const out: Record<string, number | string> = {};
   if (!referenceAvailable()) {
     out['reference'] = 'skipped: python3 with scipy not found (apt-get install python3-scipy, or pip install scipy)';
   }
   const dir = mkdtempSync(join(tmpdir(), 'poleward-lu-'));
   try {
     for (const side of sides) {
-      const { a, sites } = benchMatrix(side, side);
-      const file = join(dir, `rect-${side}.bin`);
+      const { a, sites } = benchMatrix(side, side, field);
+      const file = join(dir, `rect-${side}${field ? '-field' : ''}.bin`);
       writeMatrix(file, a);
       const plan = SparseLuPlan.analyse(a.n, a.colPtr, a.rowIdx, { sites });
       let factors = plan.factor(a.values);
@@ -233,7 +262,8 @@ export async function benchLuReference(rounds = 3, sides = [50, 100, 200]): Prom
           referenceCpu = Math.min(referenceCpu, ref.minCpuMs);
         }
       }
-      const key = `${a.n} sites`;
+      const key = `${a.n} sites${field ? ' in a field (row pivoting)' : ' (symmetric, diagonal pivots)'}`;
+      if (factors.symmetric === field) throw new Error(`bench-lu: the ${key} matrix was factorised with the wrong pivoting`);
       out[`${key}: product ms (min wall / min CPU)`] = `${product.toFixed(2)} / ${productCpu.toFixed(2)}`;
       if (out['reference'] === undefined) {
         out[`${key}: reference ms (min wall / min CPU)`] = `${reference.toFixed(2)} / ${referenceCpu.toFixed(2)}`;
@@ -254,7 +284,7 @@ if (import.meta.url === `file://${process.argv[1]}` || process.argv[1]?.endsWith
       ?.slice(8)
       .split(',')
       .map(Number);
-    for (const [k, v] of Object.entries(await benchLuReference(3, sides))) console.log(`${k.padEnd(40)} ${typeof v === 'number' ? v.toFixed(2) : v}`);
+    for (const [k, v] of Object.entries(await benchLuReference(3, sides))) console.log(`${k.padEnd(70)} ${typeof v === 'number' ? v.toFixed(2) : v}`);
   } else {
     await benchLu();
   }

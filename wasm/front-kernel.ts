@@ -86,18 +86,18 @@ function triangle4(f: usize, m: i32, cj: usize, q: i32): void {
 // products and sums as before: lo(x)·u + hi(x)·rot(u) per pivot, four pivots summed in
 // order, then subtracted. Row swaps inside the block are mirrored in the packed rows.
 //
-// The rotated U entries rot(u) of a pass go through 64 bytes of memory (uScratch, the
-// start of the pack buffer) before the loop: computed in registers, V8's compiler
+// The rotated U entries rot(u) of a pass go through memory (uScratch, the first 128 bytes of the
+// pack buffer) before the loop: computed in registers, V8's compiler
 // rebuilds them (constant, shuffle, multiply) in every iteration of the row loop, which
 // cost a quarter of the update's time (measured: 12 → 17 GFlop/s on a 300-row front).
 
-/** 64 bytes of scratch for rot(u) (set by factorFront to the start of its pack buffer). */
+/** 128 bytes of scratch for rot(u) (set by factorFront to the start of its pack buffer). */
 let uScratch: usize = 0;
 
 /** The packed block of group g (pivots b0+4g..b0+4g+3) of the current block of pivots. */
 // @ts-ignore: decorator
 @inline function groupBlock(pack: usize, m: i32, g: i32): usize {
-  return pack + 64 + <usize>128 * <usize>m * <usize>g;
+  return pack + 128 + <usize>128 * <usize>m * <usize>g;
 }
 
 /** Packs rows q+4..m−1 of the multiplier columns q..q+3 into pk (layout above). */
@@ -211,8 +211,109 @@ function trailingUpdate(f: usize, m: i32, b0: i32, p: i32, pack: usize): void {
       groupPass(pk, cj, cj + a, rp, mm);
     }
   }
-  for (let q = qr; q < p; q++) {
-    for (let j = p; j < m; j++) rankOne(f, m, f + <usize>j * mm, q, rp, mm);
+  if (qr < p) {
+    for (let j = p; j < m; j++) remainderPass(f, m, f + <usize>j * mm, qr, p - qr, rp, mm);
+  }
+}
+
+/**
+ * Column cj −= L[·, q]·U[q, j] for the cnt (1 to 3) pivots q0.. of an unfinished group,
+ * over rows [r0, r1): the rankOne passes of those pivots fused into one sweep, each entry
+ * getting the same subtractions in the same order (pivots with U[q, j] = 0 are skipped).
+ */
+function remainderPass(f: usize, m: i32, cj: usize, q0: i32, cnt: i32, r0: usize, r1: usize): void {
+  if (r0 >= r1) return;
+  const mm = <usize>16 * <usize>m;
+  // the pivots with a nonzero U entry, in order (at most three)
+  let c0: usize = 0, c1: usize = 0, c2: usize = 0;
+  let n = 0;
+  for (let q = q0; q < q0 + cnt; q++) {
+    const u = v128.load(cj + <usize>16 * <usize>q);
+    if (!v128.any_true(u)) continue;
+    v128.store(uScratch + <usize>32 * <usize>n, u);
+    v128.store(uScratch + <usize>32 * <usize>n, rot(u), 16);
+    const c = f + <usize>q * mm;
+    if (n == 0) c0 = c;
+    else if (n == 1) c1 = c;
+    else c2 = c;
+    n++;
+  }
+  if (n == 0) return;
+  const u0 = v128.load(uScratch), b0 = v128.load(uScratch, 16);
+  if (n == 1) {
+    for (let r = r0; r < r1; r += 16) {
+      const x0 = v128.load(c0 + r);
+      v128.store(cj + r, f64x2.sub(v128.load(cj + r), f64x2.add(f64x2.mul(lo(x0), u0), f64x2.mul(hi(x0), b0))));
+    }
+    return;
+  }
+  const u1 = v128.load(uScratch, 32), b1 = v128.load(uScratch, 48);
+  if (n == 2) {
+    for (let r = r0; r < r1; r += 16) {
+      const x0 = v128.load(c0 + r), x1 = v128.load(c1 + r);
+      let y = f64x2.sub(v128.load(cj + r), f64x2.add(f64x2.mul(lo(x0), u0), f64x2.mul(hi(x0), b0)));
+      y = f64x2.sub(y, f64x2.add(f64x2.mul(lo(x1), u1), f64x2.mul(hi(x1), b1)));
+      v128.store(cj + r, y);
+    }
+    return;
+  }
+  const u2 = v128.load(uScratch, 64), b2 = v128.load(uScratch, 80);
+  for (let r = r0; r < r1; r += 16) {
+    const x0 = v128.load(c0 + r), x1 = v128.load(c1 + r), x2 = v128.load(c2 + r);
+    let y = f64x2.sub(v128.load(cj + r), f64x2.add(f64x2.mul(lo(x0), u0), f64x2.mul(hi(x0), b0)));
+    y = f64x2.sub(y, f64x2.add(f64x2.mul(lo(x1), u1), f64x2.mul(hi(x1), b1)));
+    y = f64x2.sub(y, f64x2.add(f64x2.mul(lo(x2), u2), f64x2.mul(hi(x2), b2)));
+    v128.store(cj + r, y);
+  }
+}
+
+// A symmetric front (factorFront with symmetric ≠ 0) reads and updates its lower triangle
+// only: the U entries of a column come from the L columns (U[q, j] = L[j, q]·d_q, d_q the
+// pivot) instead of the triangles of the unsymmetric path, and the rows of column j are
+// updated from row j down (from the pivot row for a pivot column).
+
+/** U[q, j] = L[j, q]·d_q for the pivots q0..q1−1 into column j (uFromL of dense-complex.ts). */
+function uFromL(f: usize, m: i32, j: i32, q0: i32, q1: i32): void {
+  const mm = <usize>16 * <usize>m;
+  const cj = f + <usize>j * mm;
+  for (let q = q0; q < q1; q++) {
+    const cq = f + <usize>q * mm;
+    const d = v128.load(cq + <usize>16 * <usize>q);
+    const l = v128.load(cq + <usize>16 * <usize>j);
+    v128.store(cj + <usize>16 * <usize>q, f64x2.add(f64x2.mul(lo(l), d), f64x2.mul(hi(l), rot(d))));
+  }
+}
+
+/** panelColumn for a symmetric front: U rows of column p from L, then its rows p..m−1. */
+function panelColumnLower(f: usize, m: i32, cp: usize, b0: i32, p: i32, pack: usize): void {
+  const mm = <usize>16 * <usize>m;
+  uFromL(f, m, p, b0, p);
+  const rp = <usize>16 * <usize>p;
+  let q = b0;
+  let g = 0;
+  for (; q + 4 <= p; q += 4) {
+    groupPass(groupBlock(pack, m, g), cp, cp + <usize>16 * <usize>q, rp, mm);
+    g++;
+  }
+  if (q < p) remainderPass(f, m, cp, q, p - q, rp, mm);
+}
+
+/** trailingUpdate for a symmetric front: U rows of every column j ≥ p from L, then its rows j..m−1. */
+function trailingUpdateLower(f: usize, m: i32, b0: i32, p: i32, pack: usize): void {
+  const mm = <usize>16 * <usize>m;
+  const groups = (p - b0) >> 2;
+  const qr = b0 + 4 * groups;
+  for (let j = p; j < m; j++) uFromL(f, m, j, b0, p);
+  for (let g = 0; g < groups; g++) {
+    const pk = groupBlock(pack, m, g);
+    const a = <usize>16 * <usize>(b0 + 4 * g);
+    for (let j = p; j < m; j++) {
+      const cj = f + <usize>j * mm;
+      groupPass(pk, cj, cj + a, <usize>16 * <usize>j, mm);
+    }
+  }
+  if (qr < p) {
+    for (let j = p; j < m; j++) remainderPass(f, m, f + <usize>j * mm, qr, p - qr, <usize>16 * <usize>j, mm);
   }
 }
 
@@ -330,26 +431,46 @@ function columnMax(cp: usize, r0: i32, r1: i32, start: f64): f64 {
   return best;
 }
 
+/** Copies the lower triangle of F[from.., from..] onto its upper triangle (mirrorLower of dense-complex.ts). */
+function mirrorLower(f: usize, m: i32, from: i32): void {
+  const mm = <usize>16 * <usize>m;
+  for (let c = from; c + 1 < m; c++) {
+    const col = f + <usize>c * mm;
+    let across = col + mm + <usize>16 * <usize>c;
+    for (let r = <usize>16 * <usize>(c + 1); r < mm; r += 16) {
+      v128.store(across, v128.load(col + r));
+      across += mm;
+    }
+  }
+}
+
 /**
  * Partial LU of a front with threshold partial pivoting among the fully-summed rows
  * and delayed pivots: factorFront of shared/engine/dense-complex.ts (its JSDoc states
- * the method and sources). save holds 16·m bytes, pack 32·m·nb + 64 bytes (packed
- * multipliers of one block of nb pivots, nb a multiple of 4, and the rotated U entries
- * of a group). Returns the pivots eliminated.
+ * the method and sources). save holds 16·m bytes, pack 32·m·nb + 128 bytes (packed
+ * multipliers of one block of nb pivots, nb a multiple of 4, and 128 bytes for the rotated
+ * U entries of a group). With symmetric ≠ 0 the front is complex symmetric and only diagonal
+ * pivots are taken, only the lower triangle is read and updated (see uFromL), and the
+ * Schur complement gets both triangles only when pivots were delayed (the symmetric mode
+ * of factorFront in dense-complex.ts).
+ * Returns the pivots eliminated.
  */
-export function factorFront(f: usize, m: i32, kFs: i32, threshold: f64, rowList: usize, colList: usize, save: usize, pack: usize, nb: i32): i32 {
+export function factorFront(f: usize, m: i32, kFs: i32, threshold: f64, rowList: usize, colList: usize, save: usize, pack: usize, nb: i32, symmetric: i32): i32 {
+  const sym = symmetric != 0;
   const u2 = threshold * threshold;
   const mm = <usize>16 * <usize>m;
   uScratch = pack;
   let p = 0;
   let kEnd = kFs;
+  let firstDelay = -1;
   while (p < kEnd) {
     const b0 = p;
     while (p < kEnd && p - b0 < nb) {
       const cp = f + <usize>p * mm;
       if (p > b0) {
         copyBytes(save, cp + <usize>16 * <usize>b0, <usize>16 * <usize>(m - b0));
-        panelColumn(f, m, cp, b0, p, pack);
+        if (sym) panelColumnLower(f, m, cp, b0, p, pack);
+        else panelColumn(f, m, cp, b0, p, pack);
       }
       const bestMag = pivotSearch(cp, p, kFs);
       const best = searchedRow;
@@ -358,11 +479,20 @@ export function factorFront(f: usize, m: i32, kFs: i32, threshold: f64, rowList:
       const diagMag = dr * dr + di * di;
       let piv = -1;
       if (diagMag > 0 && diagMag >= u2 * colMag) piv = p;
-      else if (bestMag > 0 && bestMag >= u2 * colMag) piv = best;
+      else if (!sym && bestMag > 0 && bestMag >= u2 * colMag) piv = best;
       if (piv < 0) {
         if (p > b0) copyBytes(cp + <usize>16 * <usize>b0, save, <usize>16 * <usize>(m - b0));
+        if (firstDelay < 0) firstDelay = p;
         kEnd--;
-        if (kEnd != p) swapColumns(f, m, p, kEnd, colList);
+        if (kEnd != p) {
+          if (sym) {
+            // (a symmetric swap moves entries across the diagonal: both triangles first)
+            mirrorLower(f, m, p);
+            swapRows(f, m, p, kEnd, rowList);
+            swapPackedRows(pack, m, p, kEnd, (p - b0) >> 2);
+          }
+          swapColumns(f, m, p, kEnd, colList);
+        }
         continue;
       }
       if (piv != p) {
@@ -384,8 +514,20 @@ export function factorFront(f: usize, m: i32, kFs: i32, threshold: f64, rowList:
       p++;
       if (((p - b0) & 3) == 0) packGroup(f, m, p - 4, groupBlock(pack, m, (p - b0 - 4) >> 2));
     }
-    if (p > b0) trailingUpdate(f, m, b0, p, pack);
+    if (p > b0) {
+      if (sym) trailingUpdateLower(f, m, b0, p, pack);
+      else trailingUpdate(f, m, b0, p, pack);
+    }
+    // A symmetric front tries its delayed columns again when pivots were taken after the
+    // first of them was set aside: the updates may have made their diagonals acceptable.
+    if (p == kEnd && sym && kEnd < kFs && p > firstDelay) {
+      kEnd = kFs;
+      firstDelay = -1;
+    }
   }
+  // (the parent adds only the lower triangle of a block without delayed pivots; with them
+  // the block's order in the parent is not monotone, so it gets both triangles)
+  if (sym && p < kFs) mirrorLower(f, m, p);
   return p;
 }
 
@@ -405,6 +547,32 @@ function extendAdd(f: usize, m: i32, cb: usize, ld: i32, mc: i32, map: usize, ru
       const a = src + <usize>8 * <usize>load<i32>(run);
       const o = dst + <usize>8 * <usize>load<i32>(run, 4);
       const len = <usize>8 * <usize>load<i32>(run, 8);
+      for (let q: usize = 0; q < len; q += 16) v128.store(o + q, f64x2.add(v128.load(o + q), v128.load(a + q)));
+    }
+    src += stride;
+  }
+}
+
+/**
+ * extendAdd of a symmetric child's block without delayed pivots: its lower triangle only
+ * (column jj from block row jj down), whose place in the parent is the parent's lower
+ * triangle, since the map is increasing.
+ */
+function extendAddLower(f: usize, m: i32, cb: usize, ld: i32, mc: i32, map: usize, runs: usize, nRuns: i32): void {
+  let src = cb;
+  const stride = <usize>8 * <usize>ld;
+  for (let jj = 0; jj < mc; jj++) {
+    const dst = f + <usize>16 * <usize>load<i32>(map + <usize>4 * <usize>jj) * <usize>m;
+    const from = 2 * jj;
+    for (let g = 0; g < nRuns; g++) {
+      const run = runs + <usize>12 * <usize>g;
+      const a0 = load<i32>(run);
+      const len0 = load<i32>(run, 8);
+      if (a0 + len0 <= from) continue;
+      const skip = from > a0 ? from - a0 : 0;
+      const a = src + <usize>8 * <usize>(a0 + skip);
+      const o = dst + <usize>8 * <usize>(load<i32>(run, 4) + skip);
+      const len = <usize>8 * <usize>(len0 - skip);
       for (let q: usize = 0; q < len; q += 16) v128.store(o + q, f64x2.add(v128.load(o + q), v128.load(a + q)));
     }
     src += stride;
@@ -466,9 +634,10 @@ const T_PERM = 22; // perm: original unknown of each label
  * the matrix entries whose first eliminated index lies in this front, and extend-adds
  * the children's contribution blocks, from the stack or, for the child prevDirect,
  * from the previous front buffer at prevF. The same additions in the same order as the
- * TypeScript loop of lu-numeric-factorisation.ts.
+ * TypeScript loop of lu-numeric-factorisation.ts (on the lower triangle only, for a
+ * symmetric front's children without delayed pivots).
  */
-function assembleFront(plan: usize, s: i32, f: usize, m: i32, k: i32, d: i32, prevDirect: i32, prevF: usize): void {
+function assembleFront(plan: usize, s: i32, f: usize, m: i32, k: i32, d: i32, prevDirect: i32, prevF: usize, sym: bool): void {
   zeroBytes(f, <usize>16 * <usize>m * <usize>m);
   const rowList = tab(plan, T_ROW_LIST);
   const colList = tab(plan, T_COL_LIST);
@@ -545,7 +714,8 @@ function assembleFront(plan: usize, s: i32, f: usize, m: i32, k: i32, d: i32, pr
       ii += len;
     }
     const base = c == prevDirect ? prevF : cbStack;
-    extendAdd(f, m, base + <usize>8 * <usize>at32(cbStart, c), at32(cbLd, c), mc, map, runs, nRuns);
+    if (sym && dc == 0) extendAddLower(f, m, base + <usize>8 * <usize>at32(cbStart, c), at32(cbLd, c), mc, map, runs, nRuns);
+    else extendAdd(f, m, base + <usize>8 * <usize>at32(cbStart, c), at32(cbLd, c), mc, map, runs, nRuns);
   }
 }
 
@@ -564,12 +734,12 @@ function frontUnknowns(plan: usize, m: i32, out: usize): void {
  * One front of a sparse LU in one call: assembleFront, factorFront on it (its row and
  * column lists from the plan table), then its factors packed at out: the L panel
  * (columns 0..done−1, all m rows) followed by U12 (rows 0..done−1, columns done..m−1),
- * and the front's original unknowns (frontUnknowns) into unknownsOut. Returns the
- * pivots eliminated.
+ * and the front's original unknowns (frontUnknowns) into unknownsOut; symmetric as
+ * for factorFront. Returns the pivots eliminated.
  */
-export function front(plan: usize, s: i32, f: usize, m: i32, k: i32, d: i32, prevDirect: i32, prevF: usize, threshold: f64, save: usize, pack: usize, nb: i32, out: usize, unknownsOut: usize): i32 {
-  assembleFront(plan, s, f, m, k, d, prevDirect, prevF);
-  const done = factorFront(f, m, k + d, threshold, tab(plan, T_ROW_LIST), tab(plan, T_COL_LIST), save, pack, nb);
+export function front(plan: usize, s: i32, f: usize, m: i32, k: i32, d: i32, prevDirect: i32, prevF: usize, threshold: f64, save: usize, pack: usize, nb: i32, out: usize, unknownsOut: usize, symmetric: i32): i32 {
+  assembleFront(plan, s, f, m, k, d, prevDirect, prevF, symmetric != 0);
+  const done = factorFront(f, m, k + d, threshold, tab(plan, T_ROW_LIST), tab(plan, T_COL_LIST), save, pack, nb, symmetric);
   const lBytes = <usize>16 * <usize>done * <usize>m;
   copyBytes(out, f, lBytes);
   if (done > 0 && m > done) copyColumns(out + lBytes, f + lBytes, <usize>16 * <usize>done, m - done, <usize>16 * <usize>m);

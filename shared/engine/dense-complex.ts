@@ -185,6 +185,17 @@ function triangle4(f: Float64Array, m: number, cj: number, q: number): void {
  * complement in F[done.., done..].
  *
  * Cost: 8·Σ_t (m − t)² real flops over the eliminated pivots t, about.
+ *
+ * symmetric: F is complex symmetric (Fᵀ = F, no conjugation), as z − H − Σ is without a
+ * magnetic field. Only diagonal pivots are taken (the same threshold test on the
+ * diagonal; a rejected column is delayed with its row, a symmetric swap), so the
+ * remaining block stays symmetric: only its lower triangle is read and updated, the U
+ * entries come from the L columns (U = D·Lᵀ, uFromL), half the flops of the trailing
+ * update (the symmetric-indefinite pivoting of Duff, Erisman & Reid, §12.6, without 2×2
+ * pivots). F then holds L and U in the layout above, and the Schur complement is mirrored
+ * whole before returning (the WebAssembly kernel mirrors it only when pivots were
+ * delayed, and its parents add the lower triangle of the others).
+ *
  * Returns the number of pivots eliminated (kFs minus the delayed ones).
  */
 export function factorFront(
@@ -196,17 +207,22 @@ export function factorFront(
   colList: Int32Array,
   save: Float64Array,
   nb = 32,
+  symmetric = false,
 ): number {
   const u2 = threshold * threshold;
   let p = 0;
   let kEnd = kFs;
+  let firstDelay = -1;
   while (p < kEnd) {
     const b0 = p;
     while (p < kEnd && p - b0 < nb) {
       const cp = 2 * p * m;
       if (p > b0) {
         save.set(f.subarray(cp + 2 * b0, cp + 2 * m), 0);
-        eliminateColumn(f, m, p, b0, p);
+        if (symmetric) {
+          uFromL(f, m, p, b0, p);
+          lowerUpdate(f, m, p, b0, p, p);
+        } else eliminateColumn(f, m, p, b0, p);
       }
       // Pivot search: the largest entry among fully-summed rows, and the column maximum.
       let best = -1;
@@ -232,12 +248,20 @@ export function factorFront(
       const diagMag = dr * dr + di * di;
       let piv = -1;
       if (diagMag > 0 && diagMag >= u2 * colMag) piv = p;
-      else if (bestMag > 0 && bestMag >= u2 * colMag) piv = best;
+      else if (!symmetric && bestMag > 0 && bestMag >= u2 * colMag) piv = best;
       if (piv < 0) {
         // Delay: undo this block's updates on the column, move it behind the candidates.
         if (p > b0) f.set(save.subarray(0, 2 * (m - b0)), cp + 2 * b0);
+        if (firstDelay < 0) firstDelay = p;
         kEnd--;
-        if (kEnd !== p) swapColumns(f, m, p, kEnd, colList);
+        if (kEnd !== p) {
+          if (symmetric) {
+            // (a symmetric swap moves entries across the diagonal: both triangles first)
+            mirrorLower(f, m, p);
+            swapRows(f, m, p, kEnd, rowList);
+          }
+          swapColumns(f, m, p, kEnd, colList);
+        }
         continue;
       }
       if (piv !== p) swapRows(f, m, p, piv, rowList);
@@ -256,13 +280,105 @@ export function factorFront(
       p++;
     }
     // Right-looking update of every column not yet pivoted (later candidates and the rest).
-    if (p > b0) {
+    if (p > b0 && symmetric) {
+      for (let j = p; j < m; j++) {
+        uFromL(f, m, j, b0, p);
+        lowerUpdate(f, m, j, b0, p, j);
+      }
+    } else if (p > b0) {
       let j = p;
       for (; j + 1 < m; j += 2) eliminateColumnPair(f, m, j, b0, p);
       if (j < m) eliminateColumn(f, m, j, b0, p);
     }
+    // A symmetric front tries its delayed columns again when pivots were taken after the
+    // first of them was set aside: the updates may have made their diagonals acceptable.
+    if (p === kEnd && symmetric && kEnd < kFs && p > firstDelay) {
+      kEnd = kFs;
+      firstDelay = -1;
+    }
   }
+  if (symmetric) mirrorLower(f, m, p);
   return p;
+}
+
+/**
+ * A symmetric front's U entries of column j from its L columns: U[q, j] = L[j, q]·d_q for
+ * the pivots q0..q1−1, d_q = F[q, q] (U = D·Lᵀ), so no entry above the diagonal is read.
+ */
+function uFromL(f: Float64Array, m: number, j: number, q0: number, q1: number): void {
+  const cj = 2 * j * m;
+  for (let q = q0; q < q1; q++) {
+    const cq = 2 * q * m;
+    const dr = f[cq + 2 * q],
+      di = f[cq + 2 * q + 1];
+    const lr = f[cq + 2 * j],
+      li = f[cq + 2 * j + 1];
+    f[cj + 2 * q] = lr * dr - li * di;
+    f[cj + 2 * q + 1] = lr * di + li * dr;
+  }
+}
+
+/**
+ * Rows from..m−1 of column j −= Σ_{q0 ≤ q < q1} L[·, q]·U[q, j], with the U entries in
+ * place: the row loop of eliminateColumn (four pivots summed per subtraction, then the
+ * rest one by one, pivots with zero U skipped) on the lower rows of a symmetric front.
+ */
+function lowerUpdate(f: Float64Array, m: number, j: number, q0: number, q1: number, from: number): void {
+  const cj = 2 * j * m;
+  const end = 2 * m;
+  let q = q0;
+  for (; q + 4 <= q1; q += 4) {
+    const c0 = 2 * q * m;
+    const c1 = c0 + 2 * m;
+    const c2 = c1 + 2 * m;
+    const c3 = c2 + 2 * m;
+    const a = cj + 2 * q;
+    const u0r = f[a],
+      u0i = f[a + 1],
+      u1r = f[a + 2],
+      u1i = f[a + 3];
+    const u2r = f[a + 4],
+      u2i = f[a + 5],
+      u3r = f[a + 6],
+      u3i = f[a + 7];
+    if (u0r === 0 && u0i === 0 && u1r === 0 && u1i === 0 && u2r === 0 && u2i === 0 && u3r === 0 && u3i === 0) continue;
+    for (let r = 2 * from; r < end; r += 2) {
+      const x0r = f[c0 + r],
+        x0i = f[c0 + r + 1];
+      const x1r = f[c1 + r],
+        x1i = f[c1 + r + 1];
+      const x2r = f[c2 + r],
+        x2i = f[c2 + r + 1];
+      const x3r = f[c3 + r],
+        x3i = f[c3 + r + 1];
+      f[cj + r] -= x0r * u0r - x0i * u0i + x1r * u1r - x1i * u1i + x2r * u2r - x2i * u2i + x3r * u3r - x3i * u3i;
+      f[cj + r + 1] -= x0r * u0i + x0i * u0r + x1r * u1i + x1i * u1r + x2r * u2i + x2i * u2r + x3r * u3i + x3i * u3r;
+    }
+  }
+  for (; q < q1; q++) {
+    const c0 = 2 * q * m;
+    const ur = f[cj + 2 * q],
+      ui = f[cj + 2 * q + 1];
+    if (ur === 0 && ui === 0) continue;
+    for (let r = 2 * from; r < end; r += 2) {
+      const xr = f[c0 + r],
+        xi = f[c0 + r + 1];
+      f[cj + r] -= xr * ur - xi * ui;
+      f[cj + r + 1] -= xr * ui + xi * ur;
+    }
+  }
+}
+
+/** Copies the lower triangle of F[from.., from..] onto its upper triangle. */
+function mirrorLower(f: Float64Array, m: number, from: number): void {
+  for (let c = from; c + 1 < m; c++) {
+    const col = 2 * c * m;
+    for (let r = c + 1; r < m; r++) {
+      const across = 2 * (r * m + c);
+      f[across] = f[col + 2 * r];
+      f[across + 1] = f[col + 2 * r + 1];
+    }
+  }
 }
 
 /** Swaps rows a and b across all m columns of F (and in rowList). */

@@ -14,7 +14,18 @@ import { FRONT_KERNEL_WASM_BASE64 } from './front-kernel-wasm-bytes';
 import { compileWasm, WasmArena, type ArenaExports } from './wasm-arena';
 
 interface FrontKernelExports extends ArenaExports {
-  factorFront(f: number, m: number, kFs: number, threshold: number, rowList: number, colList: number, save: number, pack: number, nb: number): number;
+  factorFront(
+    f: number,
+    m: number,
+    kFs: number,
+    threshold: number,
+    rowList: number,
+    colList: number,
+    save: number,
+    pack: number,
+    nb: number,
+    symmetric: number,
+  ): number;
   copyColumns(dst: number, src: number, rowBytes: number, cols: number, srcStride: number): void;
   front(
     plan: number,
@@ -31,6 +42,7 @@ interface FrontKernelExports extends ArenaExports {
     nb: number,
     out: number,
     unknownsOut: number,
+    symmetric: number,
   ): number;
 }
 
@@ -57,15 +69,27 @@ export class WasmFrontKernel extends WasmArena<FrontKernelExports> {
   /**
    * factorFront (dense-complex.ts) on the front at byte offset f; rowList, colList
    * (Int32, m entries), save (16·m bytes) and pack (packBytes(m, nb): the packed
-   * multipliers of one block of nb pivots) are byte offsets in this memory too.
+   * multipliers of one block of nb pivots) are byte offsets in this memory too;
+   * symmetric as for factorFront of dense-complex.ts.
    */
-  factorFront(f: number, m: number, kFs: number, threshold: number, rowList: number, colList: number, save: number, pack: number, nb = 32): number {
-    return this.exports.factorFront(f, m, kFs, threshold, rowList, colList, save, pack, nb);
+  factorFront(
+    f: number,
+    m: number,
+    kFs: number,
+    threshold: number,
+    rowList: number,
+    colList: number,
+    save: number,
+    pack: number,
+    nb = 32,
+    symmetric = false,
+  ): number {
+    return this.exports.factorFront(f, m, kFs, threshold, rowList, colList, save, pack, nb, symmetric ? 1 : 0);
   }
 
   /** Bytes of the pack buffer factorFront needs for fronts up to m rows and blocks of nb pivots (nb a multiple of 4). */
   static packBytes(m: number, nb = 32): number {
-    return 32 * m * nb + 64;
+    return 32 * m * nb + 128;
   }
 
   /**
@@ -75,7 +99,8 @@ export class WasmFrontKernel extends WasmArena<FrontKernelExports> {
    * buffer at prevF), factorFront on it, then packs its L panel and U12 one after the
    * other at out (done·(2m − done) complex) and its original unknowns into unknownsOut
    * (2·m Int32). plan is the plan table of lu-numeric-factorisation.ts (the addresses of
-   * the plan's arrays, indices T_* of wasm/front-kernel.ts). Returns the pivots eliminated.
+   * the plan's arrays, indices T_* of wasm/front-kernel.ts); symmetric as for
+   * factorFront. Returns the pivots eliminated.
    */
   front(
     plan: number,
@@ -91,9 +116,10 @@ export class WasmFrontKernel extends WasmArena<FrontKernelExports> {
     pack: number,
     out: number,
     unknownsOut: number,
+    symmetric: boolean,
     nb = 32,
   ): number {
-    return this.exports.front(plan, s, f, m, k, d, prevDirect, prevF, threshold, save, pack, nb, out, unknownsOut);
+    return this.exports.front(plan, s, f, m, k, d, prevDirect, prevF, threshold, save, pack, nb, out, unknownsOut, symmetric ? 1 : 0);
   }
 
   /** Copies cols columns of rowBytes bytes from src (column stride srcStride bytes) into a packed block at dst. */

@@ -9,7 +9,7 @@
  */
 import { factorFront } from './dense-complex';
 import { WasmFrontKernel } from './front-kernel-wasm';
-import { SolveScratch, SparseLuFactors, type FactorSlot } from './lu-solves';
+import { SolveScratch, SparseLuFactors, type FactorSlot, type FactorStorage } from './lu-solves';
 import type { SymbolicFronts } from './lu-symbolic-analysis';
 
 // The plan table of the WebAssembly kernel: PLAN_TABLE addresses, in the order of the
@@ -296,40 +296,55 @@ export class NumericFactorisation {
    * @throws Error for a reuse from another plan or already released
    * @throws SingularMatrixError when a pivot column is exactly zero
    */
-  factor(values: Float64Array, reuse?: SparseLuFactors): SparseLuFactors {
-    const ns = this.frontCount;
-    const { first, parent, childPtr, childList, nonfsPtr, nonfs, relMap, asmPtr, asmEntry, asmRow, asmCol } = this;
+  factor(values: Float64Array, reuse?: SparseLuFactors, symmetric = false): SparseLuFactors {
     const wasm = this.wasm;
-    let valOff: Float64Array;
-    let idxOff: Int32Array;
-    let frontDim: Int32Array;
-    let pivots: Int32Array;
-    let store: Float64Array;
-    let index: Int32Array;
     if (wasm) {
       // The slot is about to be overwritten: a factorisation still held keeps copies.
       const owner = this.slotOwner?.deref();
       if (owner && owner !== reuse && owner.inSlot) owner.detachFromSlot(this.slotValLen, this.slotIdxLen);
       this.slotOwner = null;
     }
+    const ns = this.frontCount;
+    let storage: FactorStorage;
     if (reuse) {
-      const taken = reuse.takeStorage(this.scratch);
-      ({ valOff, idxOff, frontDim, pivots, store, index } = taken);
+      storage = reuse.takeStorage(this.scratch);
       // (with the WebAssembly kernel the factors go to the slot, not to these arrays)
-      if (wasm) {
-        store = NO_VALUES;
-        index = NO_INDEX;
-      }
+      if (wasm) storage = { ...storage, store: NO_VALUES, index: NO_INDEX };
     } else {
-      valOff = new Float64Array(ns + 1);
-      idxOff = new Int32Array(ns + 1);
-      frontDim = new Int32Array(ns);
-      pivots = new Int32Array(ns);
-      // Delayed pivots enlarge fronts beyond the prediction; the plan remembers the largest
-      // storage any factorisation needed so later ones allocate once instead of growing.
-      store = wasm ? NO_VALUES : new Float64Array(Math.max(this.storeHint, 2 * this.factorNonzeros));
-      index = wasm ? NO_INDEX : new Int32Array(Math.max(this.indexHint, 2 * (this.nonfs.length + this.n)));
+      storage = {
+        valOff: new Float64Array(ns + 1),
+        idxOff: new Int32Array(ns + 1),
+        frontDim: new Int32Array(ns),
+        pivots: new Int32Array(ns),
+        // Delayed pivots enlarge fronts beyond the prediction; the plan remembers the largest
+        // storage any factorisation needed so later ones allocate once instead of growing.
+        store: wasm ? NO_VALUES : new Float64Array(Math.max(this.storeHint, 2 * this.factorNonzeros)),
+        index: wasm ? NO_INDEX : new Int32Array(Math.max(this.indexHint, 2 * (this.nonfs.length + this.n))),
+      };
     }
+    if (symmetric) {
+      const lu = this.run(values, storage, true);
+      if (lu) return lu;
+      // A root front found no diagonal pivot for some column: the unsymmetric pivoting does.
+      this.symmetricFallbacks++;
+    }
+    return this.run(values, storage, false)!;
+  }
+
+  /** Factorisations of symmetric matrices that had to be redone with unsymmetric pivoting (factor). */
+  symmetricFallbacks = 0;
+
+  /**
+   * One pass over the fronts into `storage` (factor). Symmetric: diagonal pivots and
+   * lower-triangle updates (factorFront of dense-complex.ts); returns null when a root
+   * front is left with columns no diagonal pivot passes for, instead of throwing.
+   */
+  private run(values: Float64Array, storage: FactorStorage, symmetric: boolean): SparseLuFactors | null {
+    const ns = this.frontCount;
+    const { first, parent, childPtr, childList, nonfsPtr, nonfs, relMap, asmPtr, asmEntry, asmRow, asmCol } = this;
+    const wasm = this.wasm;
+    const { valOff, idxOff, frontDim, pivots } = storage;
+    let { store, index } = storage;
     // Per supernode: its contribution block (where it starts, its column stride), how many of
     // its rows/columns are delayed: this.cbDim, cbStart, cbLd, delayOut, delayStart (read
     // through `this`: with the WebAssembly kernel they are views, taken again when its memory grows).
@@ -408,6 +423,7 @@ export class NumericFactorisation {
           this.wsPack,
           this.wsStore + 8 * valTop,
           this.wsUnknowns + 4 * idxTop,
+          symmetric,
         );
       } else {
         F.fill(0, 0, 2 * m * m);
@@ -473,9 +489,10 @@ export class NumericFactorisation {
 
       if (!wasm) {
         if (this.save.length < 2 * m) this.save = new Float64Array(2 * m);
-        done = factorFront(F, m, kFs, this.threshold, rowList, colList, this.save);
+        done = factorFront(F, m, kFs, this.threshold, rowList, colList, this.save, 32, symmetric);
       }
       if (parent[s] < 0 && done < kFs) {
+        if (symmetric) return null;
         const col = this.perm[colList[done]];
         throw new SingularMatrixError(col, `no nonzero pivot is left for column ${col} (front ${s} of ${ns}, ${done} of ${kFs} pivots eliminated)`);
       }
@@ -549,8 +566,13 @@ export class NumericFactorisation {
       delayed += dOut;
       if (dOut > 0) {
         if (delayTop + 2 * dOut > this.delayStack.length) {
-          if (wasm) this.growDelayStack(delayTop + 2 * dOut, delayTop);
-          else this.delayStack = growInt(this.delayStack, delayTop + 2 * dOut);
+          if (wasm) {
+            // Growing takes every view again: prevFront must be the new view of its buffer,
+            // else the next front would take the same buffer and overwrite the block it reads.
+            const prevIsA = prevFront === this.frontA;
+            this.growDelayStack(delayTop + 2 * dOut, delayTop);
+            prevFront = prevIsA ? this.frontA : this.frontB;
+          } else this.delayStack = growInt(this.delayStack, delayTop + 2 * dOut);
         }
         for (let q = 0; q < dOut; q++) {
           this.delayStack[delayTop + q] = rowList[done + q];
@@ -571,12 +593,15 @@ export class NumericFactorisation {
         index: () => wasm.i32(this.wsUnknowns, idxLen),
       };
       const lu = new SparseLuFactors(this.n, store, index, valOff, idxOff, frontDim, pivots, delayed, this.scratch, slot);
+      lu.symmetric = symmetric;
       this.slotOwner = new WeakRef(lu);
       this.slotValLen = valLen;
       this.slotIdxLen = idxLen;
       return lu;
     }
-    return new SparseLuFactors(this.n, store, index, valOff, idxOff, frontDim, pivots, delayed, this.scratch);
+    const lu = new SparseLuFactors(this.n, store, index, valOff, idxOff, frontDim, pivots, delayed, this.scratch);
+    lu.symmetric = symmetric;
+    return lu;
   }
 
   private growLists(m: number): void {

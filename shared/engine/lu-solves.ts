@@ -31,7 +31,7 @@ export interface FactorSlot {
 }
 
 /** Storage a released factorisation hands to the next factor() of its plan. */
-interface FactorStorage {
+export interface FactorStorage {
   store: Float64Array;
   index: Int32Array;
   valOff: Float64Array;
@@ -44,6 +44,8 @@ export class SparseLuFactors {
   readonly n: number;
   /** How many times a pivot column was passed up to a parent front (0 when no pivot was rejected). */
   readonly delayedPivots: number;
+  /** True when the matrix was complex symmetric and only diagonal pivots were taken (SparseLuPlan.factor). */
+  symmetric = false;
   private readonly maxFront: number;
   private released = false;
   /** While set, the factors are in the plan's kernel memory (store and index are empty until detachFromSlot). */

@@ -44,6 +44,16 @@
  * Result: P·A·Q = L·U with P, Q the row and column orders of the pivots (equal
  * unless pivoting exchanged rows or delayed columns).
  *
+ * Complex symmetric matrices (Aᵀ = A entry for entry, no conjugation: z − H − Σ without
+ * a magnetic field, docs/physics-model.md) are factorised with diagonal pivots only and
+ * the updates on one triangle of each front (symmetric mode of factorFront in
+ * dense-complex.ts): half the flops of the trailing updates, the same pivot test on the
+ * diagonal, a rejected column delayed with its own row. The factors keep the layout above
+ * (U = D·Lᵀ, P = Q). When a root front is left with a column no diagonal pivot passes
+ * for (exact symmetric zero blocks such as [[0, a], [a, 0]]), the matrix is factorised
+ * again with row pivoting. factor() checks the symmetry on every call, exactly (O(nnz));
+ * options.symmetric = 'never' always uses row pivoting.
+ *
  * Kernels: by default each front's assembly, extend-add and dense factorisation run in
  * one call to a WebAssembly module with SIMD (front-kernel-wasm.ts, built from
  * wasm/front-kernel.ts), which also holds the fronts and the contribution-block stack;
@@ -81,6 +91,11 @@ interface LuPlanOptions {
    * (dense-complex.ts, the reference). Both give the same factors to rounding.
    */
   denseKernel?: 'wasm' | 'typescript';
+  /**
+   * 'auto' (default): matrices whose values are exactly symmetric are factorised with
+   * diagonal pivots and half the update flops (see above); 'never': row pivoting always.
+   */
+  symmetric?: 'auto' | 'never';
 }
 
 export class SparseLuPlan {
@@ -97,18 +112,22 @@ export class SparseLuPlan {
   /** @internal Nonzeros of the analysed pattern (values must have length 2·nnz). */
   readonly nnz: number;
   private readonly numeric: NumericFactorisation;
+  /** For entry e of the pattern, the entry at its transposed place; null when the pattern is not symmetric or options.symmetric is 'never'. */
+  private readonly transposed: Int32Array | null;
 
   private constructor(
     n: number,
     nnz: number,
     perm: Int32Array,
     numeric: NumericFactorisation,
+    transposed: Int32Array | null,
     s: { factorNonzeros: number; factorFlops: number; frontCount: number; largestFront: number },
   ) {
     this.n = n;
     this.nnz = nnz;
     this.perm = perm;
     this.numeric = numeric;
+    this.transposed = transposed;
     this.factorNonzeros = s.factorNonzeros;
     this.factorFlops = s.factorFlops;
     this.frontCount = s.frontCount;
@@ -118,6 +137,11 @@ export class SparseLuPlan {
   /** Which dense kernel this plan's factorisations use. */
   get denseKernel(): 'wasm' | 'typescript' {
     return this.numeric.denseKernel;
+  }
+
+  /** Factorisations of symmetric values redone with row pivoting because a root had no diagonal pivot left. */
+  get symmetricFallbacks(): number {
+    return this.numeric.symmetricFallbacks;
   }
 
   /**
@@ -146,6 +170,10 @@ export class SparseLuPlan {
     } else {
       perm0 = new Int32Array(0);
     }
+    const symmetric = options.symmetric ?? 'auto';
+    if (symmetric !== 'auto' && symmetric !== 'never') {
+      throw new RangeError(`SparseLuPlan.analyse: symmetric must be 'auto' or 'never', got ${String(symmetric)}`);
+    }
     const ordering = options.ordering ?? 'auto';
     if (!['auto', 'nested-dissection', 'minimum-degree'].includes(ordering)) {
       throw new RangeError(`SparseLuPlan.analyse: ordering must be 'auto', 'nested-dissection' or 'minimum-degree', got ${String(ordering)}`);
@@ -163,7 +191,8 @@ export class SparseLuPlan {
     const { perm, symbolic } = analysed;
     const kernel = options.denseKernel ?? (wasmKernelAvailable() ? 'wasm' : 'typescript');
     const numeric = new NumericFactorisation(n, perm, symbolic, threshold, kernel);
-    return new SparseLuPlan(n, colPtr[n], perm, numeric, {
+    const transposed = symmetric === 'auto' ? transposedEntries(n, colPtr, rowIdx) : null;
+    return new SparseLuPlan(n, colPtr[n], perm, numeric, transposed, {
       factorNonzeros: symbolic.factorNonzeros,
       factorFlops: symbolic.factorFlops,
       frontCount: symbolic.first.length - 1,
@@ -180,7 +209,8 @@ export class SparseLuPlan {
    * storage is taken over (no fresh 16·factorNonzeros bytes to allocate and fault
    * in) and it is released: its solve, solveTranspose, logDet and pivotRatio
    * throw from then on. Results are the same with and without reuse.
-   * Cost: about factorFlops real flops, 16·factorNonzeros bytes.
+   * Cost: about factorFlops real flops (half of the update flops for symmetric values),
+   * 16·factorNonzeros bytes.
    * @throws RangeError for values of the wrong length or with a non-finite entry,
    *   Error for a reuse from another plan or already released
    * @throws SingularMatrixError when a pivot column is exactly zero
@@ -212,6 +242,37 @@ export class SparseLuPlan {
         }
       }
     }
-    return this.numeric.factor(values, reuse);
+    return this.numeric.factor(values, reuse, this.isSymmetric(values));
   }
+
+  /** True when the values are exactly complex symmetric (a_rc = a_cr bit for bit, every entry). */
+  private isSymmetric(values: Float64Array): boolean {
+    const t = this.transposed;
+    if (!t) return false;
+    for (let e = 0; e < t.length; e++) {
+      const f = t[e];
+      if (values[2 * e] !== values[2 * f] || values[2 * e + 1] !== values[2 * f + 1]) return false;
+    }
+    return true;
+  }
+}
+
+/** For every entry e = (r, c) of a CSC pattern (rows sorted), the entry (c, r); null when some entry has no transposed partner. */
+function transposedEntries(n: number, colPtr: Int32Array, rowIdx: Int32Array): Int32Array | null {
+  const t = new Int32Array(colPtr[n]);
+  for (let c = 0; c < n; c++) {
+    for (let e = colPtr[c]; e < colPtr[c + 1]; e++) {
+      const r = rowIdx[e];
+      let lo = colPtr[r];
+      let hi = colPtr[r + 1] - 1;
+      while (lo < hi) {
+        const mid = (lo + hi) >> 1;
+        if (rowIdx[mid] < c) lo = mid + 1;
+        else hi = mid;
+      }
+      if (lo > hi || rowIdx[lo] !== c) return null;
+      t[e] = lo;
+    }
+  }
+  return t;
 }
