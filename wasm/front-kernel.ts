@@ -579,6 +579,26 @@ function extendAddLower(f: usize, m: i32, cb: usize, ld: i32, mc: i32, map: usiz
   }
 }
 
+/**
+ * Checks matrix values before a factorisation (count complex entries at values): returns
+ * bit 0 set when every part is finite, and bit 1 too when the entries of each of the
+ * npairs pairs (Int32 entry indices e, t at pairs) are equal (a_rc = a_cr, complex
+ * symmetric values, sparse-lu.ts). x·0 is 0 exactly when x is finite.
+ */
+export function checkValues(values: usize, count: i32, pairs: usize, npairs: i32): i32 {
+  const zero = f64x2.splat(0);
+  let finite = f64x2.eq(zero, zero);
+  for (let e = 0; e < count; e++) finite = v128.and(finite, f64x2.eq(f64x2.mul(v128.load(values + <usize>16 * <usize>e), zero), zero));
+  if (!i64x2.all_true(finite)) return 0;
+  for (let q = 0; q < npairs; q++) {
+    const at = pairs + <usize>8 * <usize>q;
+    const a = v128.load(values + <usize>16 * <usize>load<i32>(at));
+    const b = v128.load(values + <usize>16 * <usize>load<i32>(at, 4));
+    if (!i64x2.all_true(f64x2.eq(a, b))) return 1;
+  }
+  return 3;
+}
+
 /** Copies cols columns of rowBytes bytes each, from src (column stride srcStride bytes) to a packed block at dst. */
 export function copyColumns(dst: usize, src: usize, rowBytes: usize, cols: i32, srcStride: usize): void {
   for (let c = 0; c < cols; c++) {

@@ -58,7 +58,10 @@ export type { RunEstimate } from '../../shared/api/runs.js';
 /** What the cost of a run depends on; computed from the model and the window alone (no LU). */
 export interface RunCostFeatures {
   sites: number;
+  /** Flops of one LU as the run will take it: plan.symmetricFlops when z − H − Σ is complex symmetric (no field), else plan.factorFlops. */
   factorFlops: number;
+  /** Whether the LU takes the symmetric path (diagonal pivots, one triangle: sparse-lu.ts). */
+  symmetricLu?: boolean;
   factorNonzeros: number;
   /**
    * Σ over the numerical leads (honeycomb leads, leads in a field) of (2·cell size)³: the order of
@@ -96,6 +99,12 @@ export function runCostFeatures(document: unknown, req: Pick<RunRequest, 'kind' 
   const op = new EffectiveHamiltonian(system);
   const plan = SparseLuPlan.analyse(op.n, op.colPtr, op.rowIdx, { sites: op.sites });
   const { emin, emax } = req.window;
+  // Symmetric or not is a property of the model (no field anywhere), the same at every z:
+  // one assembly inside the window tells (no factorisation).
+  const probe = { re: 0.5 * (emin + emax), im: -1e-3 * op.hopping };
+  const values = new Float64Array(2 * op.rowIdx.length);
+  op.assemble(probe, op.sheetAt(probe.re), values);
+  const symmetricLu = plan.takesDiagonalPivots(values);
   const inside = op.thresholds.filter((e) => e > emin && e < emax);
   // Weyl's law for a 2D billiard: N(E) ≈ A·E/(4π·ħ²/2m*) = sites·E/(4π t) on the lattice
   // (e.g. Stöckmann, "Quantum Chaos: An Introduction", ch. 3; leading term only). On the
@@ -113,7 +122,8 @@ export function runCostFeatures(document: unknown, req: Pick<RunRequest, 'kind' 
       : Math.max(0, Math.round((op.n * (Math.max(emax, 0) - Math.max(emin, 0))) / (4 * Math.PI * op.hopping)));
   return {
     sites: op.n,
-    factorFlops: plan.factorFlops,
+    factorFlops: symmetricLu ? plan.symmetricFlops : plan.factorFlops,
+    symmetricLu,
     factorNonzeros: plan.factorNonzeros,
     leadWork: system.leads.reduce((sum, l) => sum + (l.numerical ? (2 * l.numerical.cell.size) ** 3 : 0), 0),
     numericalLeads: system.leads.filter((l) => l.numerical).length,

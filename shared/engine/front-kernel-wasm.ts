@@ -27,6 +27,7 @@ interface FrontKernelExports extends ArenaExports {
     symmetric: number,
   ): number;
   copyColumns(dst: number, src: number, rowBytes: number, cols: number, srcStride: number): void;
+  checkValues(values: number, count: number, pairs: number, npairs: number): number;
   front(
     plan: number,
     s: number,
@@ -125,5 +126,14 @@ export class WasmFrontKernel extends WasmArena<FrontKernelExports> {
   /** Copies cols columns of rowBytes bytes from src (column stride srcStride bytes) into a packed block at dst. */
   copyColumns(dst: number, src: number, rowBytes: number, cols: number, srcStride: number): void {
     this.exports.copyColumns(dst, src, rowBytes, cols, srcStride);
+  }
+
+  /**
+   * Checks count complex values at byte offset values: bit 0 of the result when all are
+   * finite, bit 1 too when the two entries of each of npairs index pairs (Int32 at pairs)
+   * are equal.
+   */
+  checkValues(values: number, count: number, pairs: number, npairs: number): number {
+    return this.exports.checkValues(values, count, pairs, npairs);
   }
 }

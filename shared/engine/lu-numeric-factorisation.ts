@@ -297,6 +297,7 @@ export class NumericFactorisation {
    * @throws SingularMatrixError when a pivot column is exactly zero
    */
   factor(values: Float64Array, reuse?: SparseLuFactors, symmetric = false): SparseLuFactors {
+    // (values must have gone through load() first: the kernel reads its copy)
     const wasm = this.wasm;
     if (wasm) {
       // The slot is about to be overwritten: a factorisation still held keeps copies.
@@ -325,7 +326,8 @@ export class NumericFactorisation {
     if (symmetric) {
       const lu = this.run(values, storage, true);
       if (lu) return lu;
-      // A root front found no diagonal pivot for some column: the unsymmetric pivoting does.
+      // A root front found no diagonal pivot for some column, or too many were delayed: row
+      // pivoting does (the decision depends on the values alone, so every thread takes it alike).
       this.symmetricFallbacks++;
     }
     return this.run(values, storage, false)!;
@@ -333,6 +335,62 @@ export class NumericFactorisation {
 
   /** Factorisations of symmetric matrices that had to be redone with unsymmetric pivoting (factor). */
   symmetricFallbacks = 0;
+  /** Delayed pivots past which a symmetric factorisation gives up for row pivoting: max(64, n/64). */
+  private get symmetricDelayLimit(): number {
+    return Math.max(64, this.n >> 6);
+  }
+
+  /** The entry pairs (e, t), e < t, at transposed places of the pattern (setSymmetricPairs). */
+  private pairs: Int32Array = new Int32Array(0);
+  private wsPairs = 0;
+
+  /** The pattern's pairs of transposed entries (e, t), e < t, flat: load() checks symmetry on them. */
+  setSymmetricPairs(pairs: Int32Array): void {
+    this.pairs = pairs;
+    const wasm = this.wasm;
+    if (!wasm || pairs.length === 0) return;
+    this.wsPairs = wasm.reserve(4 * pairs.length);
+    this.takeViews();
+    wasm.i32(this.wsPairs, pairs.length).set(pairs);
+  }
+
+  /**
+   * Makes values (interleaved, length 2·nnz) the next factor()'s input and checks them:
+   * finite, and symmetric on the pairs of setSymmetricPairs. With the WebAssembly kernel
+   * they are copied into its memory, where the kernel assembles from and checks them.
+   */
+  load(values: Float64Array): { finite: boolean; symmetric: boolean } {
+    const wasm = this.wasm;
+    const npairs = this.pairs.length >> 1;
+    if (wasm) {
+      if (this.values.length !== values.length) this.placeValues(values.length);
+      this.values.set(values);
+      const flags = wasm.checkValues(this.wsValues, values.length >> 1, this.wsPairs, npairs);
+      return { finite: (flags & 1) !== 0, symmetric: npairs > 0 && (flags & 2) !== 0 };
+    }
+    // x·0 is NaN exactly when x is NaN or ±∞: one branch-free pass (four sums, so the
+    // additions do not wait on each other).
+    let p0 = 0,
+      p1 = 0,
+      p2 = 0,
+      p3 = 0;
+    let e = 0;
+    for (; e + 4 <= values.length; e += 4) {
+      p0 += values[e] * 0;
+      p1 += values[e + 1] * 0;
+      p2 += values[e + 2] * 0;
+      p3 += values[e + 3] * 0;
+    }
+    for (; e < values.length; e++) p0 += values[e] * 0;
+    if (p0 + p1 + p2 + p3 !== 0) return { finite: false, symmetric: false };
+    const pairs = this.pairs;
+    for (let q = 0; q < pairs.length; q += 2) {
+      const a = 2 * pairs[q];
+      const b = 2 * pairs[q + 1];
+      if (values[a] !== values[b] || values[a + 1] !== values[b + 1]) return { finite: true, symmetric: false };
+    }
+    return { finite: true, symmetric: npairs > 0 };
+  }
 
   /**
    * One pass over the fronts into `storage` (factor). Symmetric: diagonal pivots and
@@ -357,15 +415,6 @@ export class NumericFactorisation {
     // is extend-added straight from there instead of going through the stack.
     let prevFront: Float64Array = this.frontB;
     let prevDirect = -1;
-    if (wasm) {
-      // The kernel assembles from its own copy of the values.
-      if (this.values.length !== values.length) {
-        const prevIsA = prevFront === this.frontA;
-        this.placeValues(values.length);
-        prevFront = prevIsA ? this.frontA : this.frontB;
-      }
-      this.values.set(values);
-    }
 
     for (let s = 0; s < ns; s++) {
       const f0 = first[s];
@@ -564,6 +613,10 @@ export class NumericFactorisation {
       }
       const dOut = kFs - done;
       delayed += dOut;
+      // Diagonal pivots that keep failing (graphene near its Dirac point, where the diagonal
+      // E − E_D is small against t) would pile the whole matrix into a dense root: past the
+      // limit the matrix goes through row pivoting instead.
+      if (symmetric && delayed > this.symmetricDelayLimit) return null;
       if (dOut > 0) {
         if (delayTop + 2 * dOut > this.delayStack.length) {
           if (wasm) {

@@ -33,6 +33,8 @@ export interface SymbolicFronts {
   stackPeak: number;
   factorNonzeros: number;
   factorFlops: number;
+  /** The same for a complex symmetric matrix (diagonal pivots, one triangle: sparse-lu.ts). */
+  symmetricFlops: number;
   maxFront: number;
 }
 
@@ -217,6 +219,7 @@ export function analyseFronts(
   let list = new Int32Array(64);
   let factorNonzeros = 0;
   let factorFlops = 0;
+  let symmetricFlops = 0;
   let maxFront = 0;
   let stack = 0;
   let stackPeak = 0;
@@ -280,6 +283,9 @@ export function analyseFronts(
     for (let t = 0; t < k; t++) {
       const r = m - t - 1;
       factorFlops += 8 * r * r + 6 * r;
+      // (diagonal pivots of a symmetric matrix: the lower triangle of the update, the
+      // scaling, and the U row from the L column)
+      symmetricFlops += 4 * r * r + 10 * r;
     }
     // Contribution-block stack: children popped, this block pushed.
     for (let t = childPtr[s]; t < childPtr[s + 1]; t++) stack -= cbSize[childList[t]];
@@ -307,6 +313,7 @@ export function analyseFronts(
       stackPeak,
       factorNonzeros,
       factorFlops,
+      symmetricFlops,
       maxFront,
     },
   };

@@ -65,6 +65,8 @@ export class NumericalLead {
   readonly thresholds: readonly number[];
   /** Pencils solved so far (a cost figure for benches). */
   solves = 0;
+  /** True when the cell and its coupling are real (no field): Σ is then complex symmetric. */
+  private readonly real: boolean;
 
   constructor(spec: NumericalLeadSpec, options: NumericalLeadOptions = {}) {
     const n = spec.cell.size;
@@ -77,6 +79,8 @@ export class NumericalLead {
     this.coupling = spec.coupling;
     this.edges = options.edges ? options.edges.map((e) => ({ ...e })) : leadBandEdges(spec.cell, options.kSamples ?? 128);
     this.thresholds = pieceThresholds(this.edges);
+    const imaginaryFree = (a: Float64Array) => a.every((x, q) => q % 2 === 0 || x === 0);
+    this.real = imaginaryFree(spec.cell.h0) && imaginaryFree(spec.cell.h1) && imaginaryFree(spec.coupling);
   }
 
   /**
@@ -186,7 +190,7 @@ export class NumericalLead {
 
   /** Σ(z) = V†gV on the mouth (M×M row-major interleaved). Cost O(n³ + n²M). */
   selfEnergy(zRe: number, zIm: number, sheet?: readonly boolean[]): Float64Array {
-    return this.project(this.surfaceGreen(zRe, zIm, sheet));
+    return this.symmetricIfReal(this.project(this.surfaceGreen(zRe, zIm, sheet)));
   }
 
   /** Σ(z) and dΣ/dz on the mouth (each M×M). Cost O(n³). */
@@ -208,9 +212,30 @@ export class NumericalLead {
       const b = denseMultiply(n, n, n, this.cell.h1, g);
       const c = denseMultiply(n, n, n, g, g);
       for (let e = 0; e < c.length; e++) c[e] = -c[e];
-      return this.project(solveStein(n, a, b, c));
+      return this.symmetricIfReal(this.project(solveStein(n, a, b, c)));
     };
-    return { sigma: this.project(g), derivative };
+    return { sigma: this.symmetricIfReal(this.project(g)), derivative };
+  }
+
+  /**
+   * For a real lead (no field) Σ = V†gV is complex symmetric, as the retarded Green's function
+   * of a real Hamiltonian is (reciprocity; common practice, no source); the solves leave
+   * rounding of about 1e-16 of the block's scale between Σ_pq and Σ_qp, which this averages
+   * away, so z − H − Σ is exactly symmetric and the LU takes its symmetric path (sparse-lu.ts).
+   */
+  private symmetricIfReal(block: Float64Array): Float64Array {
+    if (!this.real) return block;
+    const m = this.mouthSize;
+    for (let p = 0; p < m; p++)
+      for (let q = p + 1; q < m; q++) {
+        const a = 2 * (p * m + q);
+        const b = 2 * (q * m + p);
+        const re = 0.5 * (block[a] + block[b]);
+        const im = 0.5 * (block[a + 1] + block[b + 1]);
+        block[a] = block[b] = re;
+        block[a + 1] = block[b + 1] = im;
+      }
+    return block;
   }
 
   /** dΣ/dz on the mouth (M×M). */

@@ -102,6 +102,8 @@ export class SparseLuPlan {
   readonly n: number;
   readonly factorNonzeros: number;
   readonly factorFlops: number;
+  /** Predicted real flops of one factorisation of symmetric values (diagonal pivots, one triangle, no delays). */
+  readonly symmetricFlops: number;
   /** Number of fronts (supernodes after amalgamation). */
   readonly frontCount: number;
   /** Largest front dimension predicted by the analysis. */
@@ -112,24 +114,21 @@ export class SparseLuPlan {
   /** @internal Nonzeros of the analysed pattern (values must have length 2·nnz). */
   readonly nnz: number;
   private readonly numeric: NumericFactorisation;
-  /** For entry e of the pattern, the entry at its transposed place; null when the pattern is not symmetric or options.symmetric is 'never'. */
-  private readonly transposed: Int32Array | null;
 
   private constructor(
     n: number,
     nnz: number,
     perm: Int32Array,
     numeric: NumericFactorisation,
-    transposed: Int32Array | null,
-    s: { factorNonzeros: number; factorFlops: number; frontCount: number; largestFront: number },
+    s: { factorNonzeros: number; factorFlops: number; symmetricFlops: number; frontCount: number; largestFront: number },
   ) {
     this.n = n;
     this.nnz = nnz;
     this.perm = perm;
     this.numeric = numeric;
-    this.transposed = transposed;
     this.factorNonzeros = s.factorNonzeros;
     this.factorFlops = s.factorFlops;
+    this.symmetricFlops = s.symmetricFlops;
     this.frontCount = s.frontCount;
     this.largestFront = s.largestFront;
   }
@@ -137,6 +136,17 @@ export class SparseLuPlan {
   /** Which dense kernel this plan's factorisations use. */
   get denseKernel(): 'wasm' | 'typescript' {
     return this.numeric.denseKernel;
+  }
+
+  /**
+   * True when factor() would take the symmetric path for these values (finite and exactly
+   * complex symmetric; always false with options.symmetric = 'never'). Cost O(nnz).
+   */
+  takesDiagonalPivots(values: Float64Array): boolean {
+    if (values.length !== 2 * this.nnz) {
+      throw new RangeError(`SparseLuPlan.takesDiagonalPivots: values has length ${values.length}, expected 2·nnz = ${2 * this.nnz}`);
+    }
+    return this.numeric.load(values).symmetric;
   }
 
   /** Factorisations of symmetric values redone with row pivoting because a root had no diagonal pivot left. */
@@ -191,10 +201,12 @@ export class SparseLuPlan {
     const { perm, symbolic } = analysed;
     const kernel = options.denseKernel ?? (wasmKernelAvailable() ? 'wasm' : 'typescript');
     const numeric = new NumericFactorisation(n, perm, symbolic, threshold, kernel);
-    const transposed = symmetric === 'auto' ? transposedEntries(n, colPtr, rowIdx) : null;
-    return new SparseLuPlan(n, colPtr[n], perm, numeric, transposed, {
+    // (pairs of entries at transposed places, against which factor() tests the values' symmetry)
+    if (symmetric === 'auto') numeric.setSymmetricPairs(transposedPairs(n, colPtr, rowIdx));
+    return new SparseLuPlan(n, colPtr[n], perm, numeric, {
       factorNonzeros: symbolic.factorNonzeros,
       factorFlops: symbolic.factorFlops,
+      symmetricFlops: symbolic.symmetricFlops,
       frontCount: symbolic.first.length - 1,
       largestFront: symbolic.maxFront,
     });
@@ -220,46 +232,27 @@ export class SparseLuPlan {
     if (values.length !== 2 * nnz) {
       throw new RangeError(`SparseLuPlan.factor: values has length ${values.length}, expected 2·nnz = ${2 * nnz}`);
     }
-    // x·0 is NaN exactly when x is NaN or ±∞: one branch-free pass, then a search only
-    // when something is wrong (the check ran on every factorisation, 1–2% of its time;
-    // four sums, so the additions do not wait on each other).
-    let p0 = 0,
-      p1 = 0,
-      p2 = 0,
-      p3 = 0;
-    let e = 0;
-    for (; e + 4 <= 2 * nnz; e += 4) {
-      p0 += values[e] * 0;
-      p1 += values[e + 1] * 0;
-      p2 += values[e + 2] * 0;
-      p3 += values[e + 3] * 0;
-    }
-    for (; e < 2 * nnz; e++) p0 += values[e] * 0;
-    if (p0 + p1 + p2 + p3 !== 0) {
+    // Finite and symmetric in one pass (in the kernel's memory with WebAssembly); the entry at
+    // fault is searched for only when something is wrong.
+    const { finite, symmetric } = this.numeric.load(values);
+    if (!finite) {
       for (let e = 0; e < 2 * nnz; e++) {
         if (!Number.isFinite(values[e])) {
           throw new RangeError(`SparseLuPlan.factor: entry ${e >> 1} of the values (${e & 1 ? 'imaginary' : 'real'} part) is ${values[e]}`);
         }
       }
     }
-    return this.numeric.factor(values, reuse, this.isSymmetric(values));
-  }
-
-  /** True when the values are exactly complex symmetric (a_rc = a_cr bit for bit, every entry). */
-  private isSymmetric(values: Float64Array): boolean {
-    const t = this.transposed;
-    if (!t) return false;
-    for (let e = 0; e < t.length; e++) {
-      const f = t[e];
-      if (values[2 * e] !== values[2 * f] || values[2 * e + 1] !== values[2 * f + 1]) return false;
-    }
-    return true;
+    return this.numeric.factor(values, reuse, symmetric);
   }
 }
 
-/** For every entry e = (r, c) of a CSC pattern (rows sorted), the entry (c, r); null when some entry has no transposed partner. */
-function transposedEntries(n: number, colPtr: Int32Array, rowIdx: Int32Array): Int32Array | null {
-  const t = new Int32Array(colPtr[n]);
+/**
+ * The pairs (e, t) of entries e = (r, c), r < c, and t = (c, r) of a CSC pattern (rows
+ * sorted), flat; empty when some entry has no transposed partner (the values can then never
+ * be symmetric).
+ */
+function transposedPairs(n: number, colPtr: Int32Array, rowIdx: Int32Array): Int32Array {
+  const pairs: number[] = [];
   for (let c = 0; c < n; c++) {
     for (let e = colPtr[c]; e < colPtr[c + 1]; e++) {
       const r = rowIdx[e];
@@ -270,9 +263,9 @@ function transposedEntries(n: number, colPtr: Int32Array, rowIdx: Int32Array): I
         if (rowIdx[mid] < c) lo = mid + 1;
         else hi = mid;
       }
-      if (lo > hi || rowIdx[lo] !== c) return null;
-      t[e] = lo;
+      if (lo > hi || rowIdx[lo] !== c) return new Int32Array(0);
+      if (r < c) pairs.push(e, lo);
     }
   }
-  return t;
+  return Int32Array.from(pairs);
 }

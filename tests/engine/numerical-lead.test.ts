@@ -237,6 +237,34 @@ describe('numerical leads of other cells', () => {
     }
   });
 
+  it('Σ of a real lead is exactly symmetric (so T(z) takes the symmetric LU); in a field it is not', () => {
+    const t = 2.7; // eV-scale hopping of graphene, Castro Neto et al., Rev. Mod. Phys. 81, 109 (2009) (from memory)
+    const transposeGap = (b: Float64Array, m: number): number => {
+      let worst = 0;
+      for (let p = 0; p < m; p++)
+        for (let q = 0; q < m; q++)
+          worst = Math.max(worst, Math.hypot(b[2 * (p * m + q)] - b[2 * (q * m + p)], b[2 * (p * m + q) + 1] - b[2 * (q * m + p) + 1]));
+      return worst;
+    };
+    for (const { cell, scale, real } of [
+      { cell: zigzagRibbonCell(5, t), scale: t, real: true },
+      { cell: squareRibbonCell(6, 1, 0.04), scale: 1, real: false },
+    ]) {
+      const n = cell.size;
+      const coupling = new Float64Array(2 * n * n);
+      for (let p = 0; p < n; p++) coupling[2 * (p * n + p)] = -scale;
+      const lead = new NumericalLead({ cell, mouthSize: n, coupling }, { kSamples: 64 });
+      const x = 0.5 * (lead.thresholds[1] + lead.thresholds[2]);
+      const sheet = lead.sheetAt(x);
+      const { sigma, derivative } = lead.selfEnergyWithDerivative(x, -0.03 * scale, sheet);
+      if (real) {
+        expect(transposeGap(sigma, n)).toBe(0);
+        expect(transposeGap(derivative, n)).toBe(0);
+        expect(transposeGap(lead.selfEnergy(x, 0.02 * scale, sheet), n)).toBe(0);
+      } else expect(transposeGap(sigma, n)).toBeGreaterThan(1e-3 * scale);
+    }
+  });
+
   it('below the axis Σ is the analytic continuation of the retarded Σ (Cauchy integral across the real axis)', () => {
     // Cauchy's integral formula on a circle centred on the piece's real segment: it holds
     // only if the values below the axis continue those above it analytically (complex
