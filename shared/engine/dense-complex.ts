@@ -17,48 +17,59 @@
  */
 function eliminateColumn(f: Float64Array, m: number, j: number, q0: number, q1: number): void {
   const cj = 2 * j * m;
-  const end = 2 * m;
   let q = q0;
   for (; q + 4 <= q1; q += 4) {
     triangle4(f, m, cj, q);
-    const c0 = 2 * q * m;
-    const c1 = c0 + 2 * m;
-    const c2 = c1 + 2 * m;
-    const c3 = c2 + 2 * m;
-    const a = cj + 2 * q;
-    const u0r = f[a],
-      u0i = f[a + 1],
-      u1r = f[a + 2],
-      u1i = f[a + 3];
-    const u2r = f[a + 4],
-      u2i = f[a + 5],
-      u3r = f[a + 6],
-      u3i = f[a + 7];
-    if (u0r === 0 && u0i === 0 && u1r === 0 && u1i === 0 && u2r === 0 && u2i === 0 && u3r === 0 && u3i === 0) continue;
-    for (let r = 2 * (q + 4); r < end; r += 2) {
-      const x0r = f[c0 + r],
-        x0i = f[c0 + r + 1];
-      const x1r = f[c1 + r],
-        x1i = f[c1 + r + 1];
-      const x2r = f[c2 + r],
-        x2i = f[c2 + r + 1];
-      const x3r = f[c3 + r],
-        x3i = f[c3 + r + 1];
-      f[cj + r] -= x0r * u0r - x0i * u0i + x1r * u1r - x1i * u1i + x2r * u2r - x2i * u2i + x3r * u3r - x3i * u3i;
-      f[cj + r + 1] -= x0r * u0i + x0i * u0r + x1r * u1i + x1i * u1r + x2r * u2i + x2i * u2r + x3r * u3i + x3i * u3r;
-    }
+    groupRows(f, m, cj, q, q + 4);
   }
-  for (; q < q1; q++) {
-    const c0 = 2 * q * m;
-    const ur = f[cj + 2 * q],
-      ui = f[cj + 2 * q + 1];
-    if (ur === 0 && ui === 0) continue;
-    for (let r = 2 * (q + 1); r < end; r += 2) {
-      const xr = f[c0 + r],
-        xi = f[c0 + r + 1];
-      f[cj + r] -= xr * ur - xi * ui;
-      f[cj + r + 1] -= xr * ui + xi * ur;
-    }
+  for (; q < q1; q++) pivotRows(f, m, cj, q, q + 1);
+}
+
+/**
+ * Rows r0..m−1 of the column at cj −= Σ of the four pivots q..q+3 (their U entries at
+ * cj + 2q), one sum of four products per subtraction; nothing when all four are zero.
+ */
+function groupRows(f: Float64Array, m: number, cj: number, q: number, r0: number): void {
+  const end = 2 * m;
+  const c0 = 2 * q * m;
+  const c1 = c0 + 2 * m;
+  const c2 = c1 + 2 * m;
+  const c3 = c2 + 2 * m;
+  const a = cj + 2 * q;
+  const u0r = f[a],
+    u0i = f[a + 1],
+    u1r = f[a + 2],
+    u1i = f[a + 3];
+  const u2r = f[a + 4],
+    u2i = f[a + 5],
+    u3r = f[a + 6],
+    u3i = f[a + 7];
+  if (u0r === 0 && u0i === 0 && u1r === 0 && u1i === 0 && u2r === 0 && u2i === 0 && u3r === 0 && u3i === 0) return;
+  for (let r = 2 * r0; r < end; r += 2) {
+    const x0r = f[c0 + r],
+      x0i = f[c0 + r + 1];
+    const x1r = f[c1 + r],
+      x1i = f[c1 + r + 1];
+    const x2r = f[c2 + r],
+      x2i = f[c2 + r + 1];
+    const x3r = f[c3 + r],
+      x3i = f[c3 + r + 1];
+    f[cj + r] -= x0r * u0r - x0i * u0i + x1r * u1r - x1i * u1i + x2r * u2r - x2i * u2i + x3r * u3r - x3i * u3i;
+    f[cj + r + 1] -= x0r * u0i + x0i * u0r + x1r * u1i + x1i * u1r + x2r * u2i + x2i * u2r + x3r * u3i + x3i * u3r;
+  }
+}
+
+/** Rows r0..m−1 of the column at cj −= L[·, q]·U[q, j] for one pivot q; nothing when U[q, j] = 0. */
+function pivotRows(f: Float64Array, m: number, cj: number, q: number, r0: number): void {
+  const c0 = 2 * q * m;
+  const ur = f[cj + 2 * q],
+    ui = f[cj + 2 * q + 1];
+  if (ur === 0 && ui === 0) return;
+  for (let r = 2 * r0; r < 2 * m; r += 2) {
+    const xr = f[c0 + r],
+      xi = f[c0 + r + 1];
+    f[cj + r] -= xr * ur - xi * ui;
+    f[cj + r + 1] -= xr * ui + xi * ur;
   }
 }
 
@@ -325,48 +336,9 @@ function uFromL(f: Float64Array, m: number, j: number, q0: number, q1: number): 
  */
 function lowerUpdate(f: Float64Array, m: number, j: number, q0: number, q1: number, from: number): void {
   const cj = 2 * j * m;
-  const end = 2 * m;
   let q = q0;
-  for (; q + 4 <= q1; q += 4) {
-    const c0 = 2 * q * m;
-    const c1 = c0 + 2 * m;
-    const c2 = c1 + 2 * m;
-    const c3 = c2 + 2 * m;
-    const a = cj + 2 * q;
-    const u0r = f[a],
-      u0i = f[a + 1],
-      u1r = f[a + 2],
-      u1i = f[a + 3];
-    const u2r = f[a + 4],
-      u2i = f[a + 5],
-      u3r = f[a + 6],
-      u3i = f[a + 7];
-    if (u0r === 0 && u0i === 0 && u1r === 0 && u1i === 0 && u2r === 0 && u2i === 0 && u3r === 0 && u3i === 0) continue;
-    for (let r = 2 * from; r < end; r += 2) {
-      const x0r = f[c0 + r],
-        x0i = f[c0 + r + 1];
-      const x1r = f[c1 + r],
-        x1i = f[c1 + r + 1];
-      const x2r = f[c2 + r],
-        x2i = f[c2 + r + 1];
-      const x3r = f[c3 + r],
-        x3i = f[c3 + r + 1];
-      f[cj + r] -= x0r * u0r - x0i * u0i + x1r * u1r - x1i * u1i + x2r * u2r - x2i * u2i + x3r * u3r - x3i * u3i;
-      f[cj + r + 1] -= x0r * u0i + x0i * u0r + x1r * u1i + x1i * u1r + x2r * u2i + x2i * u2r + x3r * u3i + x3i * u3r;
-    }
-  }
-  for (; q < q1; q++) {
-    const c0 = 2 * q * m;
-    const ur = f[cj + 2 * q],
-      ui = f[cj + 2 * q + 1];
-    if (ur === 0 && ui === 0) continue;
-    for (let r = 2 * from; r < end; r += 2) {
-      const xr = f[c0 + r],
-        xi = f[c0 + r + 1];
-      f[cj + r] -= xr * ur - xi * ui;
-      f[cj + r + 1] -= xr * ui + xi * ur;
-    }
-  }
+  for (; q + 4 <= q1; q += 4) groupRows(f, m, cj, q, from);
+  for (; q < q1; q++) pivotRows(f, m, cj, q, from);
 }
 
 /** Copies the lower triangle of F[from.., from..] onto its upper triangle. */
