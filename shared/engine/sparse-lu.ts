@@ -50,8 +50,9 @@
  * dense-complex.ts): half the flops of the trailing updates, the same pivot test on the
  * diagonal, a rejected column delayed with its own row. The factors keep the layout above
  * (U = D·Lᵀ, P = Q). When a root front is left with a column no diagonal pivot passes
- * for (exact symmetric zero blocks such as [[0, a], [a, 0]]), the matrix is factorised
- * again with row pivoting. factor() checks the symmetry on every call, exactly (O(nnz));
+ * for (exact symmetric zero blocks such as [[0, a], [a, 0]]), or more than max(64, n/64)
+ * pivots were delayed (graphene near its Dirac point), the matrix is factorised again with
+ * row pivoting. factor() checks the symmetry on every call, exactly (O(nnz));
  * options.symmetric = 'never' always uses row pivoting.
  *
  * Kernels: by default each front's assembly, extend-add and dense factorisation run in
@@ -149,7 +150,7 @@ export class SparseLuPlan {
     return this.numeric.load(values).symmetric;
   }
 
-  /** Factorisations of symmetric values redone with row pivoting because a root had no diagonal pivot left. */
+  /** Factorisations of symmetric values redone with row pivoting (a root without a diagonal pivot, or too many delays). */
   get symmetricFallbacks(): number {
     return this.numeric.symmetricFallbacks;
   }
