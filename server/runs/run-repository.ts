@@ -1,5 +1,5 @@
 import type { RunKind } from '../../shared/api/enums.js';
-import { and, asc, count, desc, eq, type SQL } from 'drizzle-orm';
+import { and, asc, count, desc, eq, inArray, sql, type SQL } from 'drizzle-orm';
 import type { Queryable } from '../db/client.js';
 import { resonances } from '../db/schema/catalogue.js';
 import { cavityModels, modelVersions } from '../db/schema/models.js';
@@ -45,6 +45,29 @@ export async function listRuns(q: Queryable, groupId: string, f: RunListFilter) 
     .offset((f.page - 1) * f.pageSize);
   const [{ total }] = await q.select({ total: count() }).from(runs).innerJoin(modelVersions, eq(modelVersions.id, runs.modelVersionId)).where(where);
   return { rows, total };
+}
+
+/**
+ * The pole searches of one model version, newest first, that are queued, running or completed
+ * with their energy window overlapping [emin, emax]: their poles there are (or will be) in the
+ * catalogue already, and a new search would file them again.
+ */
+export async function overlappingPoleSearches(q: Queryable, groupId: string, modelVersionId: string, emin: number, emax: number) {
+  return q
+    .select({ id: runs.id, status: runs.status, window: runs.window, createdAt: runs.createdAt, resonanceCount: runs.resonanceCount })
+    .from(runs)
+    .where(
+      and(
+        eq(runs.groupId, groupId),
+        eq(runs.modelVersionId, modelVersionId),
+        eq(runs.kind, 'pole-search'),
+        inArray(runs.status, ['queued', 'running', 'completed']),
+        sql`(${runs.window} ->> 'emin')::float8 < ${emax}`,
+        sql`(${runs.window} ->> 'emax')::float8 > ${emin}`,
+      ),
+    )
+    .orderBy(desc(runs.createdAt))
+    .limit(20);
 }
 
 export async function findRun(q: Queryable, groupId: string, runId: string) {

@@ -11,6 +11,7 @@ import { toResonanceRow } from '../catalogue/resonance-row.js';
 import type { Compute } from '../compute/compute-pool.js';
 import { checkRunSize, checkRunSlots, type RunLimits } from './run-limits.js';
 import { runNotice } from './run-notice.js';
+import { frequencyOfWavenumberSquared } from '../../shared/units/microwave.js';
 import * as repo from './run-repository.js';
 import { isFinished, runStore } from './run-store.js';
 import type { RunRequest } from './run-window.js';
@@ -74,9 +75,9 @@ export class RunService {
   async estimate(groupId: string, req: RunRequest, signal?: AbortSignal) {
     const v = await this.version(groupId, req);
     const estimate = await this.estimateOf(v.document, req, signal);
-    if (!this.limits) return estimate;
+    const warnings = [...estimate.warnings, ...(await this.searchedBefore(groupId, v, req))];
+    if (!this.limits) return { ...estimate, warnings };
     const withinLimit = estimate.expectedSeconds <= this.limits.maxSeconds;
-    const warnings = [...estimate.warnings];
     if (!withinLimit) {
       // Say it before the launch is refused: the launcher shows the estimate's warnings.
       try {
@@ -86,6 +87,46 @@ export class RunService {
       }
     }
     return { ...estimate, limitSeconds: this.limits.maxSeconds, withinLimit, warnings };
+  }
+
+  /**
+   * A pole search files every pole it finds in the catalogue, so searching a model version
+   * again over a window an earlier search (queued, running or completed) covered lists the
+   * poles of the overlap twice. Said before the launch, not refused: a search may be repeated
+   * on purpose (after an engine update, to compare).
+   */
+  private async searchedBefore(groupId: string, v: { id: string; modelName: string; version: number; document: unknown }, req: RunRequest): Promise<string[]> {
+    if (req.kind !== 'pole-search') return [];
+    const { emin, emax } = req.window;
+    const earlier = await repo.overlappingPoleSearches(this.db, groupId, v.id, emin, emax);
+    if (earlier.length === 0) return [];
+    // A microwave model's window is k² (mm⁻²); its launcher speaks frequency, so the warning does too.
+    const physics = (v.document as { physics?: { kind?: unknown; permittivity?: unknown } } | null)?.physics;
+    const permittivity = physics?.kind === 'microwave' ? (typeof physics.permittivity === 'number' ? physics.permittivity : 1) : null;
+    const unit = permittivity === null ? 'meV' : 'GHz';
+    const num = (x: number) => String(Number((permittivity === null ? x : frequencyOfWavenumberSquared(x, permittivity)).toPrecision(6)));
+    // The windows searched, merged; the parts of the new window they cover.
+    const covered: [number, number][] = [];
+    for (const w of earlier.map((r) => [r.window.emin, r.window.emax] as [number, number]).sort((a, b) => a[0] - b[0])) {
+      const top = covered.at(-1);
+      if (top && w[0] <= top[1]) top[1] = Math.max(top[1], w[1]);
+      else covered.push([w[0], w[1]]);
+    }
+    const range = ([a, b]: [number, number]) => `${num(a)}–${num(b)}`;
+    const list = (xs: [number, number][]) =>
+      xs
+        .map(range)
+        .join(', ')
+        .replace(/, ([^,]*)$/, ' and $1');
+    const overlap = covered.map(([a, b]) => [Math.max(a, emin), Math.min(b, emax)] as [number, number]).filter(([a, b]) => b > a);
+    const latest = earlier[0]!;
+    const when = latest.createdAt.toISOString().slice(0, 16).replace('T', ' ') + ' UTC';
+    const what = latest.status === 'completed' ? `filed ${latest.resonanceCount ?? 0} pole(s)` : `is ${latest.status} and files its poles when it ends`;
+    const searches = earlier.length === 1 ? `the search launched ${when}, which ${what}` : `${earlier.length} searches; the latest, launched ${when}, ${what}`;
+    return [
+      `${v.modelName} v${v.version} was already searched over ${list(covered)} ${unit} (${searches}). ` +
+        `A new search files the poles it finds again, so those in ${list(overlap)} ${unit} would be listed twice in the catalogue.`,
+    ];
   }
 
   async create(groupId: string, userId: string, req: RunRequest, signal?: AbortSignal) {

@@ -138,6 +138,65 @@ describe('runs', () => {
     expect((await designer.post(`${runsUrl(lab)}/${run.body.id}/cancel`)).status).toBe(409);
   });
 
+  it('says before a launch when an earlier search of the same model version already covered the window', async () => {
+    const m = await designer.post(models(lab), { document: smallRectangle('Searched twice') });
+    const search = (emin: number, emax: number) => ({ kind: 'pole-search', modelId: m.body.id, window: { emin, emax, gammaMax: 1 } });
+    const twice = (warnings: string[]) => warnings.filter((w) => w.includes('would be listed twice'));
+    expect(twice((await designer.post(`${runsUrl(lab)}/estimate`, search(2, 6))).body.warnings)).toEqual([]);
+
+    const first = await designer.post(runsUrl(lab), search(2, 6));
+    expect(first.status).toBe(201);
+    // Queued: its poles are still to come.
+    const [queued] = twice((await designer.post(`${runsUrl(lab)}/estimate`, search(4, 9))).body.warnings);
+    expect(queued).toContain('Searched twice v1 was already searched over 2–6 meV (the search launched ');
+    expect(queued).toContain('which is queued and files its poles when it ends');
+    expect(queued).toContain('so those in 4–6 meV would be listed twice');
+
+    await app.handle.db.update(runs).set({ status: 'completed', resonanceCount: 7 }).where(eq(runs.id, first.body.id));
+    const [done] = twice((await designer.post(`${runsUrl(lab)}/estimate`, search(1, 3))).body.warnings);
+    expect(done).toContain('which filed 7 pole(s)');
+    expect(done).toContain('so those in 2–3 meV would be listed twice');
+    // Two searched windows apart: both named, and the two parts of the new window they cover.
+    expect((await designer.post(runsUrl(lab), search(8, 10))).status).toBe(201);
+    const [both] = twice((await designer.post(`${runsUrl(lab)}/estimate`, search(3, 9))).body.warnings);
+    expect(both).toContain('already searched over 2–6 and 8–10 meV (2 searches; the latest');
+    expect(both).toContain('so those in 3–6 and 8–9 meV would be listed twice');
+
+    // Windows that only touch, another version of the model, a transmission sweep and a failed search are not counted.
+    expect(twice((await designer.post(`${runsUrl(lab)}/estimate`, search(6, 8))).body.warnings)).toEqual([]);
+    await designer.agent
+      .put(`${models(lab)}/${m.body.id}`)
+      .set('X-CSRF-Token', designer.csrf)
+      .send({ document: smallRectangle('Searched twice', { field: 0.5 }) });
+    expect(twice((await designer.post(`${runsUrl(lab)}/estimate`, { ...search(2, 6), version: 2 })).body.warnings)).toEqual([]);
+    const sweep = await designer.post(runsUrl(lab), { kind: 'transmission', modelId: m.body.id, window: { emin: 1, emax: 9, points: 20 } });
+    expect(sweep.status).toBe(201);
+    await app.handle.db.update(runs).set({ status: 'failed' }).where(eq(runs.id, first.body.id));
+    expect(twice((await designer.post(`${runsUrl(lab)}/estimate`, { ...search(2, 6), version: 1 })).body.warnings)).toEqual([]);
+  });
+
+  it('a microwave model is told in GHz, as its launcher speaks', async () => {
+    const doc = {
+      name: 'Searched twice, microwave',
+      physics: { kind: 'microwave', permittivity: 2.25, height: 4 },
+      spacing: 2,
+      grid: { nx: 30, ny: 20 },
+      shape: { kind: 'rectangle', x0: 0, y0: 0, width: 60, height: 40 },
+      leads: [
+        { side: 'left', start: 5, width: 8 },
+        { side: 'right', start: 5, width: 8 },
+      ],
+    };
+    const m = await designer.post(models(lab), { document: doc });
+    expect(m.status, JSON.stringify(m.body)).toBe(201);
+    const body = { kind: 'pole-search', modelId: m.body.id, window: { emin: 0.05, emax: 0.2, gammaMax: 0.01 } };
+    expect((await designer.post(runsUrl(lab), body)).status).toBe(201);
+    const [said] = (await designer.post(`${runsUrl(lab)}/estimate`, body)).body.warnings.filter((w: string) => w.includes('listed twice'));
+    // f = c·√(k²)/(2π√ε_r) with c = 299.792458 mm/ns (SI exact) and k² in mm⁻²; ε_r = 2.25.
+    const ghz = (k2: number) => Number(((299.792458 * Math.sqrt(k2)) / (2 * Math.PI * 1.5)).toPrecision(6));
+    expect(said).toContain(`over ${ghz(0.05)}–${ghz(0.2)} GHz`);
+  });
+
   it('lists runs of the group only', async () => {
     const mine = await designer.get(runsUrl(lab));
     expect(mine.status).toBe(200);
