@@ -66,8 +66,7 @@ export async function overlappingPoleSearches(q: Queryable, groupId: string, mod
         sql`(${runs.window} ->> 'emax')::float8 > ${emin}`,
       ),
     )
-    .orderBy(desc(runs.createdAt))
-    .limit(20);
+    .orderBy(desc(runs.createdAt));
 }
 
 export async function findRun(q: Queryable, groupId: string, runId: string) {
